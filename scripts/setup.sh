@@ -1,0 +1,47 @@
+#!/usr/bin/env bash
+# Installs what building and testing loopwright needs and is missing on a fresh
+# Debian machine with rustup and Node: the wasm32 target, the wasm-bindgen CLI at
+# the exact version the crate pins, Chromium + chromedriver and Firefox ESR
+# (Debian packages), geckodriver (crates.io) and the npm packages of the tests.
+# Safe to run again: every step checks first.
+set -euo pipefail
+cd "$(dirname "$0")/.."
+
+WASM_BINDGEN_VERSION=$(sed -n 's/^wasm-bindgen = { version = "=\([0-9.]*\)".*/\1/p' Cargo.toml)
+[ -n "$WASM_BINDGEN_VERSION" ] || { echo "setup: cannot read the pinned wasm-bindgen version from Cargo.toml" >&2; exit 1; }
+need_browsers=${LOOPWRIGHT_NEED_BROWSERS:-1}
+
+say() { echo "setup: $*" >&2; }
+
+if ! rustup target list --installed | grep -qx wasm32-unknown-unknown; then
+  say "adding the wasm32-unknown-unknown target"
+  rustup target add wasm32-unknown-unknown
+fi
+
+if ! wasm-bindgen --version 2>/dev/null | grep -q " $WASM_BINDGEN_VERSION\$"; then
+  say "installing wasm-bindgen-cli $WASM_BINDGEN_VERSION (about 3 minutes)"
+  cargo install wasm-bindgen-cli --version "$WASM_BINDGEN_VERSION" --force
+fi
+
+if [ "$need_browsers" = 1 ]; then
+  missing=()
+  [ -x /usr/bin/chromium ] || missing+=(chromium)
+  [ -x /usr/bin/chromedriver ] || missing+=(chromium-driver)
+  command -v firefox-esr >/dev/null 2>&1 || missing+=(firefox-esr)
+  if [ ${#missing[@]} -gt 0 ]; then
+    SUDO=""; [ "$(id -u)" = 0 ] || SUDO=sudo
+    say "installing Debian packages: ${missing[*]}"
+    $SUDO apt-get update -qq
+    DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -qq "${missing[@]}" >/dev/null
+  fi
+  if ! command -v geckodriver >/dev/null 2>&1; then
+    say "installing geckodriver from crates.io (about 2 minutes)"
+    cargo install geckodriver
+  fi
+fi
+
+if [ -f tests/js/package.json ] && [ ! -d tests/js/node_modules/playwright-core ]; then
+  say "installing the npm packages of the JS tests"
+  (cd tests/js && npm ci --no-audit --no-fund --loglevel=error)
+fi
+say "done"

@@ -1,0 +1,135 @@
+//! The one error type of loopwright.
+//!
+//! Every fallible function returns [`Result<T>`]. An [`Error`] names the parameter
+//! (or the computed quantity) at fault and says why, in one sentence, without
+//! allocating, so it works the same with and without `std`. The wasm boundary turns
+//! it into a JS `Error` whose `code` is [`Error::code`] and whose `param` is
+//! [`Error::param`].
+
+use core::fmt;
+
+/// Result with loopwright's [`Error`].
+pub type Result<T> = core::result::Result<T, Error>;
+
+/// What went wrong, and with which parameter.
+///
+/// `param` is the parameter's name as the documentation spells it (`a`, `beta`,
+/// `target_gain`, …). Reasons are static sentences ending without a full stop.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[non_exhaustive]
+pub enum Error {
+    /// The value is NaN or infinite.
+    NotFinite { param: &'static str },
+    /// The value is finite but outside the range the formula is defined on;
+    /// `requirement` states the range ("must be greater than zero").
+    OutOfDomain { param: &'static str, requirement: &'static str },
+    /// A design target that the given parts cannot reach; `reason` says why.
+    Unreachable { param: &'static str, reason: &'static str },
+    /// The return difference D = 1 + Aβ is zero: the loop oscillates and the
+    /// closed-loop quantity does not exist.
+    Oscillation { param: &'static str },
+    /// A name (topology, series, distribution…) that is not known; `expected`
+    /// lists what is accepted.
+    UnknownName { param: &'static str, expected: &'static str },
+    /// A count or size above the stated limit.
+    TooLarge { param: &'static str, limit: u64 },
+    /// The inputs are valid but the computed quantity overflows f64.
+    Overflow { param: &'static str },
+    /// An iteration did not converge; `reason` says which.
+    NoConvergence { param: &'static str, reason: &'static str },
+    /// A linear system or model is singular; `reason` says where.
+    Singular { param: &'static str, reason: &'static str },
+}
+
+impl Error {
+    /// A stable, machine-readable code: `not_finite`, `out_of_domain`,
+    /// `unreachable`, `oscillation`, `unknown_name`, `too_large`, `overflow`,
+    /// `no_convergence`, `singular`.
+    pub const fn code(&self) -> &'static str {
+        match self {
+            Error::NotFinite { .. } => "not_finite",
+            Error::OutOfDomain { .. } => "out_of_domain",
+            Error::Unreachable { .. } => "unreachable",
+            Error::Oscillation { .. } => "oscillation",
+            Error::UnknownName { .. } => "unknown_name",
+            Error::TooLarge { .. } => "too_large",
+            Error::Overflow { .. } => "overflow",
+            Error::NoConvergence { .. } => "no_convergence",
+            Error::Singular { .. } => "singular",
+        }
+    }
+
+    /// The name of the parameter or quantity at fault.
+    pub const fn param(&self) -> &'static str {
+        match *self {
+            Error::NotFinite { param }
+            | Error::OutOfDomain { param, .. }
+            | Error::Unreachable { param, .. }
+            | Error::Oscillation { param }
+            | Error::UnknownName { param, .. }
+            | Error::TooLarge { param, .. }
+            | Error::Overflow { param }
+            | Error::NoConvergence { param, .. }
+            | Error::Singular { param, .. } => param,
+        }
+    }
+}
+
+impl fmt::Display for Error {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match *self {
+            Error::NotFinite { param } => write!(f, "{param}: must be a finite number, not NaN or infinity"),
+            Error::OutOfDomain { param, requirement } => write!(f, "{param}: {requirement}"),
+            Error::Unreachable { param, reason } => write!(f, "{param}: cannot be reached: {reason}"),
+            Error::Oscillation { param } => write!(
+                f,
+                "{param}: the return difference 1 + A·β is zero, so the loop oscillates and no closed-loop value exists"
+            ),
+            Error::UnknownName { param, expected } => write!(f, "{param}: unknown name; expected one of {expected}"),
+            Error::TooLarge { param, limit } => write!(f, "{param}: too large; the limit is {limit}"),
+            Error::Overflow { param } => write!(f, "{param}: the result overflows the floating-point range"),
+            Error::NoConvergence { param, reason } => write!(f, "{param}: did not converge: {reason}"),
+            Error::Singular { param, reason } => write!(f, "{param}: singular: {reason}"),
+        }
+    }
+}
+
+#[cfg(feature = "std")]
+impl std::error::Error for Error {}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use alloc::string::ToString;
+
+    #[test]
+    fn display_names_the_parameter_first() {
+        let e = Error::OutOfDomain { param: "beta", requirement: "must not be zero" };
+        assert_eq!(e.to_string(), "beta: must not be zero");
+        assert_eq!(e.code(), "out_of_domain");
+        assert_eq!(e.param(), "beta");
+    }
+
+    #[test]
+    fn every_variant_has_code_and_param() {
+        let all = [
+            Error::NotFinite { param: "p" },
+            Error::OutOfDomain { param: "p", requirement: "r" },
+            Error::Unreachable { param: "p", reason: "r" },
+            Error::Oscillation { param: "p" },
+            Error::UnknownName { param: "p", expected: "x" },
+            Error::TooLarge { param: "p", limit: 3 },
+            Error::Overflow { param: "p" },
+            Error::NoConvergence { param: "p", reason: "r" },
+            Error::Singular { param: "p", reason: "r" },
+        ];
+        let mut codes: alloc::vec::Vec<&str> = all.iter().map(|e| e.code()).collect();
+        codes.sort_unstable();
+        codes.dedup();
+        assert_eq!(codes.len(), all.len());
+        for e in all {
+            assert_eq!(e.param(), "p");
+            assert!(e.to_string().starts_with("p: "));
+        }
+    }
+}

@@ -1,0 +1,176 @@
+//! JS bindings for the feedback relations (catalog area A).
+
+use super::{throw, to_js};
+use crate::feedback::{self as fb, Topology};
+use num_complex::Complex64;
+use serde::Serialize;
+use wasm_bindgen::prelude::*;
+
+fn topology(name: &str) -> Result<Topology, JsValue> {
+    throw(name.parse())
+}
+
+/// A complex number as a JS object, with its polar form for display.
+#[derive(Serialize)]
+#[serde(rename_all = "camelCase")]
+struct Phasor {
+    re: f64,
+    im: f64,
+    magnitude: f64,
+    phase_deg: f64,
+}
+
+impl From<Complex64> for Phasor {
+    fn from(z: Complex64) -> Self {
+        Phasor { re: z.re, im: z.im, magnitude: z.norm(), phase_deg: z.arg().to_degrees() }
+    }
+}
+
+/// Closed-loop gain Af = A/(1 + Aβ).
+#[wasm_bindgen(js_name = closedLoopGain)]
+pub fn closed_loop_gain(a: f64, beta: f64) -> Result<f64, JsValue> {
+    throw(fb::closed_loop_gain(a, beta))
+}
+
+/// Loop gain T = Aβ.
+#[wasm_bindgen(js_name = loopGain)]
+pub fn loop_gain(a: f64, beta: f64) -> Result<f64, JsValue> {
+    throw(fb::loop_gain(a, beta))
+}
+
+/// Amount of feedback D = 1 + Aβ.
+#[wasm_bindgen(js_name = feedbackAmount)]
+pub fn feedback_amount(a: f64, beta: f64) -> Result<f64, JsValue> {
+    throw(fb::feedback_amount(a, beta))
+}
+
+/// Amount of feedback in dB, 20·log10|1 + Aβ|.
+#[wasm_bindgen(js_name = feedbackAmountDb)]
+pub fn feedback_amount_db(a: f64, beta: f64) -> Result<f64, JsValue> {
+    throw(fb::feedback_amount_db(a, beta))
+}
+
+/// Gain sensitivity 1/(1 + Aβ).
+#[wasm_bindgen(js_name = gainSensitivity)]
+pub fn gain_sensitivity(a: f64, beta: f64) -> Result<f64, JsValue> {
+    throw(fb::gain_sensitivity(a, beta))
+}
+
+/// All feedback relations of one stage: `{topology, gainUnit, betaUnit,
+/// closedLoopGain, loopGain, feedbackAmount, feedbackAmountDb, sensitivity,
+/// idealGain, gainError, sense}`.
+#[wasm_bindgen(js_name = summarizeFeedback)]
+pub fn summarize_feedback(topology_name: &str, a: f64, beta: f64) -> Result<JsValue, JsValue> {
+    to_js(&throw(fb::summarize(topology(topology_name)?, a, beta))?)
+}
+
+#[derive(Serialize)]
+#[serde(rename_all = "camelCase")]
+struct PhasorResult {
+    loop_gain: Phasor,
+    feedback_amount: Phasor,
+    closed_loop_gain: Phasor,
+    feedback_amount_db: f64,
+    sense: fb::FeedbackSense,
+}
+
+/// Phasor forms: `{loopGain, feedbackAmount, closedLoopGain}` each as
+/// `{re, im, magnitude, phaseDeg}`, plus `feedbackAmountDb` and `sense`.
+#[wasm_bindgen(js_name = loopPhasors)]
+pub fn loop_phasors(a_re: f64, a_im: f64, beta_re: f64, beta_im: f64) -> Result<JsValue, JsValue> {
+    let p = throw(fb::loop_phasors(Complex64::new(a_re, a_im), Complex64::new(beta_re, beta_im)))?;
+    to_js(&PhasorResult {
+        loop_gain: p.loop_gain.into(),
+        feedback_amount: p.feedback_amount.into(),
+        closed_loop_gain: p.closed_loop_gain.into(),
+        feedback_amount_db: p.feedback_amount_db,
+        sense: p.sense,
+    })
+}
+
+#[derive(Serialize)]
+#[serde(rename_all = "camelCase")]
+struct ImpedanceResult {
+    input: Phasor,
+    output: Phasor,
+    feedback_amount: Phasor,
+}
+
+/// Input and output impedance with feedback: `{input, output, feedbackAmount}`
+/// each as `{re, im, magnitude, phaseDeg}`; impedances in Ω.
+#[wasm_bindgen(js_name = impedancesWithFeedback)]
+#[allow(clippy::too_many_arguments)]
+pub fn impedances_with_feedback(
+    topology_name: &str,
+    zi_re: f64,
+    zi_im: f64,
+    zo_re: f64,
+    zo_im: f64,
+    a_re: f64,
+    a_im: f64,
+    beta_re: f64,
+    beta_im: f64,
+) -> Result<JsValue, JsValue> {
+    let z = throw(fb::impedances_with_feedback(
+        topology(topology_name)?,
+        Complex64::new(zi_re, zi_im),
+        Complex64::new(zo_re, zo_im),
+        Complex64::new(a_re, a_im),
+        Complex64::new(beta_re, beta_im),
+    ))?;
+    to_js(&ImpedanceResult { input: z.input.into(), output: z.output.into(), feedback_amount: z.feedback_amount.into() })
+}
+
+/// β for a target closed-loop gain: 1/Af − 1/A.
+#[wasm_bindgen(js_name = betaForGain)]
+pub fn beta_for_gain(a: f64, target_gain: f64) -> Result<f64, JsValue> {
+    throw(fb::beta_for_gain(a, target_gain))
+}
+
+/// Least open-loop gain for a gain error (fraction) against 1/β.
+#[wasm_bindgen(js_name = minOpenLoopGain)]
+pub fn min_open_loop_gain(beta: f64, gain_error: f64) -> Result<f64, JsValue> {
+    throw(fb::min_open_loop_gain(beta, gain_error))
+}
+
+/// Largest closed-loop gain with at least D of feedback: `{closedLoopGain, beta}`.
+#[wasm_bindgen(js_name = maxClosedLoopGain)]
+pub fn max_closed_loop_gain(a: f64, feedback_amount: f64) -> Result<JsValue, JsValue> {
+    to_js(&throw(fb::max_closed_loop_gain(a, feedback_amount))?)
+}
+
+/// Closed-loop gain over an open-loop gain range: `{atMin, atTyp, atMax,
+/// lowPercent, highPercent, spreadPercent, spreadPpm, sensitivity,
+/// positiveFeedback}`.
+#[wasm_bindgen(js_name = gainSpread)]
+pub fn gain_spread(beta: f64, a_min: f64, a_typ: f64, a_max: f64) -> Result<JsValue, JsValue> {
+    to_js(&throw(fb::gain_spread(beta, a_min, a_typ, a_max))?)
+}
+
+#[derive(Serialize)]
+#[serde(rename_all = "camelCase")]
+struct TopologyInfo {
+    name: &'static str,
+    sampling_mixing_name: &'static str,
+    amplifier_kind: &'static str,
+    mixing: fb::Mixing,
+    sampling: fb::Sampling,
+    gain_unit: &'static str,
+    beta_unit: &'static str,
+}
+
+/// What a topology name means: `{name, samplingMixingName, amplifierKind,
+/// mixing, sampling, gainUnit, betaUnit}`.
+#[wasm_bindgen(js_name = topologyInfo)]
+pub fn topology_info(topology_name: &str) -> Result<JsValue, JsValue> {
+    let t = topology(topology_name)?;
+    to_js(&TopologyInfo {
+        name: t.name(),
+        sampling_mixing_name: t.sampling_mixing_name(),
+        amplifier_kind: t.amplifier_kind(),
+        mixing: t.mixing(),
+        sampling: t.sampling(),
+        gain_unit: t.gain_unit(),
+        beta_unit: t.beta_unit(),
+    })
+}

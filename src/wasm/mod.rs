@@ -1,0 +1,42 @@
+//! The thin wasm-bindgen boundary: the only code that knows about JS.
+//!
+//! Each exported function converts its arguments, calls the pure core and converts
+//! the result: numbers stay `f64`, structured results become plain JS objects via
+//! serde-wasm-bindgen, sweeps become typed arrays, and every [`crate::Error`] is
+//! thrown as a JS `Error` with `code` and `param` fields. JS names are camelCase.
+//! One file per catalog area.
+
+mod feedback;
+
+use crate::Error;
+use wasm_bindgen::prelude::*;
+
+/// A JS `Error` whose message is the core error's sentence, with `name`
+/// `"LoopwrightError"` and the fields `code` and `param`.
+pub(crate) fn js_error(e: Error) -> JsValue {
+    let err = js_sys::Error::new(&alloc::format!("{e}"));
+    err.set_name("LoopwrightError");
+    let obj: &js_sys::Object = err.as_ref();
+    // Reflect::set only fails on frozen or proxy objects; a fresh Error is neither.
+    let _ = js_sys::Reflect::set(obj, &"code".into(), &e.code().into());
+    let _ = js_sys::Reflect::set(obj, &"param".into(), &e.param().into());
+    err.into()
+}
+
+/// Serialize a result struct into a plain JS object (maps as objects, `None` as
+/// `null`), or throw a serialization failure as an error on `result`.
+pub(crate) fn to_js<T: serde::Serialize>(value: &T) -> Result<JsValue, JsValue> {
+    let ser = serde_wasm_bindgen::Serializer::new().serialize_maps_as_objects(true).serialize_missing_as_null(true);
+    value.serialize(&ser).map_err(|e| JsValue::from(js_sys::Error::new(&alloc::format!("result: {e}"))))
+}
+
+/// Map a core result into a thrown JS error.
+pub(crate) fn throw<T>(r: crate::Result<T>) -> Result<T, JsValue> {
+    r.map_err(js_error)
+}
+
+/// The crate version, as in Cargo.toml.
+#[wasm_bindgen(js_name = version)]
+pub fn version() -> String {
+    env!("CARGO_PKG_VERSION").into()
+}
