@@ -6,7 +6,7 @@
 //! thrown as a JS `Error` with `code` and `param` fields. JS names are camelCase.
 //! One file per catalog area.
 
-mod feedback;
+pub mod feedback;
 
 use crate::Error;
 use wasm_bindgen::prelude::*;
