@@ -6,7 +6,7 @@ PORT ?= 8080
 PY := $(HOME)/.cache/loopwright/venv/bin/python
 export CARGO_TERM_COLOR := never
 
-.PHONY: serve test setup setup-page build test-native test-reference test-browser test-page
+.PHONY: serve test setup setup-page build package test-native test-reference test-browser test-page test-package
 
 serve: setup-page build
 	node scripts/serve.mjs www $(PORT)
@@ -20,7 +20,10 @@ setup:
 build:
 	./scripts/build-wasm.sh
 
-test: setup test-native test-reference test-browser build test-page
+package:
+	./scripts/build-package.sh
+
+test: setup test-native test-reference test-browser build test-page package test-package
 	@echo "make test: all suites passed"
 
 test-native:
@@ -36,3 +39,6 @@ test-browser:
 
 test-page:
 	cd tests/js && node --test page.test.mjs
+
+test-package:
+	cd tests/js && node --test package.test.mjs

@@ -1,0 +1,46 @@
+// Runs inside a temporary project that installed the packed tarball: every value
+// below is checked against the same closed forms as the Rust tests.
+import assert from 'node:assert/strict';
+import init, * as lw from 'loopwright';
+
+await init(); // a no-op in Node, kept so browser code runs unchanged
+
+// Sedra & Smith, Microelectronic Circuits, 7th ed., Example 10.1 (from memory):
+// A = 10⁴, Af = 10 → β = 0.0999, D = 1000, 60 dB.
+const beta = lw.betaForGain(1e4, 10);
+assert.ok(Math.abs(beta - 0.0999) < 1e-15);
+assert.ok(Math.abs(lw.closedLoopGain(1e4, beta) - 10) < 1e-12);
+assert.ok(Math.abs(lw.feedbackAmountDb(1e4, beta) - 60) < 1e-9);
+assert.ok(Math.abs(lw.gainSensitivity(1e4, beta) - 1e-3) < 1e-15);
+assert.ok(Math.abs(lw.loopGain(1e4, beta) - 999) < 1e-9);
+assert.ok(Math.abs(lw.feedbackAmount(1e4, beta) - 1000) < 1e-9);
+// min A = (1 − ε)/(ε·β): 0.999/(0.001·0.01) = 99 900 (sympy closed form, tests/reference).
+assert.ok(Math.abs(lw.minOpenLoopGain(0.01, 0.001) - 99900) < 1e-8);
+
+const s = lw.summarizeFeedback('Voltage-Shunt', -1e5, -1e-3);
+assert.equal(s.topology, 'shunt-shunt');
+assert.equal(s.gainUnit, 'V/A');
+assert.ok(Math.abs(s.closedLoopGain + 1e5 / 101) < 1e-9);
+
+// Shunt mixing divides Zi, voltage sampling divides Zo (Sedra & Smith, 7th ed., Table 10.1, from memory).
+const z = lw.impedancesWithFeedback('shunt-shunt', 1e5, 0, 1e3, 0, 1e4, 0, 0.0999, 0);
+assert.ok(Math.abs(z.input.re - 100) < 1e-9 && Math.abs(z.output.re - 1) < 1e-12);
+
+const g = lw.gainSpread(0.01, 5e4, 1e5, 2e5);
+assert.equal(g.positiveFeedback, false);
+assert.ok(Math.abs(g.spreadPpm - g.spreadPercent * 1e4) < 1e-6);
+
+const throws = (fn, code, param) => assert.throws(fn, (e) => {
+  assert.ok(e instanceof Error);
+  assert.equal(e.name, 'LoopwrightError');
+  assert.equal(e.code, code);
+  assert.equal(e.param, param);
+  return true;
+});
+throws(() => lw.closedLoopGain(Number.NaN, 1), 'not_finite', 'a');
+throws(() => lw.closedLoopGain(-100, 0.01), 'oscillation', 'beta');
+throws(() => lw.betaForGain(10, 100), 'unreachable', 'target_gain');
+throws(() => lw.summarizeFeedback('parallel-parallel', 1, 1), 'unknown_name', 'topology');
+throws(() => lw.impedancesWithFeedback('series-shunt', -1, 0, 1, 0, 1, 0, 1, 0), 'out_of_domain', 'zi');
+
+console.log('consumer: all checks passed');
