@@ -6,7 +6,7 @@ PORT ?= 8080
 PY := $(HOME)/.cache/loopwright/venv/bin/python
 export CARGO_TERM_COLOR := never
 
-.PHONY: serve test setup setup-page build package test-native test-reference test-browser test-page test-package
+.PHONY: serve test setup setup-page build single package test-native test-reference test-browser test-page test-package
 
 serve: setup-page build
 	node scripts/serve.mjs www $(PORT)
@@ -20,10 +20,13 @@ setup:
 build:
 	./scripts/build-wasm.sh
 
+single: build
+	node scripts/build-single.mjs
+
 package:
 	./scripts/build-package.sh
 
-test: setup test-native test-reference test-browser build test-page package test-package
+test: setup test-native test-reference test-browser single test-page package test-package
 	@echo "make test: all suites passed"
 
 test-native:

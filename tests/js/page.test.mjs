@@ -5,7 +5,8 @@
 import { test, before, after } from 'node:test';
 import assert from 'node:assert/strict';
 import { join } from 'node:path';
-import { launch, serveWww, openPage, ARTIFACTS } from './browser.mjs';
+import { pathToFileURL } from 'node:url';
+import { launch, serveWww, openPage, ARTIFACTS, ROOT } from './browser.mjs';
 
 let browser;
 let server;
@@ -128,5 +129,21 @@ test('the cautions are on the page', async () => {
   assert.match(text, /check every design on the bench/);
   assert.match(text, /mains/);
   assert.match(text, /licensed practice/);
+  await context.close();
+});
+
+test('the single-file build works from file:// with no request and no CSP violation', async () => {
+  const file = pathToFileURL(join(ROOT, 'dist', 'loopwright.html')).href;
+  const { context, page, problems, foreign } = await openPage(browser, file, { allowedOrigin: file });
+  // Same closed form as the served page: A = 100k, β = 0.00999 → Af = 100.
+  assert.equal(await result(page, 'card-stage', 'af'), '100.0');
+  await retype(page, '#card-stage-a', '10k');
+  await retype(page, '#card-stage-beta', '99.9m');
+  assert.equal(await result(page, 'card-stage', 'af'), '10.00');
+  const csp = await page.getAttribute('meta[http-equiv="Content-Security-Policy"]', 'content');
+  assert.doesNotMatch(csp, /'unsafe-inline'|'unsafe-eval'/);
+  assert.match(csp, /'sha256-[A-Za-z0-9+/=]+'/);
+  assert.deepEqual(foreign, []);
+  assert.deepEqual(problems, []);
   await context.close();
 });

@@ -3,11 +3,12 @@
 import init, * as api from '../pkg/loopwright.js';
 import { mountCard } from './card.js';
 import { FEEDBACK_CARDS } from './cards/feedback.js';
+import { wasmSource } from './wasm-source.js';
 
 async function start() {
   const status = document.getElementById('load-status');
   try {
-    await init();
+    await init({ module_or_path: wasmSource() });
   } catch (err) {
     status.textContent = `The calculation core could not be loaded: ${err.message}`;
     status.dataset.state = 'failed';
