@@ -6,7 +6,7 @@ PORT ?= 8080
 PY := $(HOME)/.cache/loopwright/venv/bin/python
 export CARGO_TERM_COLOR := never
 
-.PHONY: serve test setup setup-page build single package test-native test-reference test-browser test-page test-package
+.PHONY: serve test bench bench-quick setup setup-page build single package test-native test-reference test-browser test-page test-package
 
 serve: setup-page build
 	node scripts/serve.mjs www $(PORT)
@@ -26,7 +26,7 @@ single: build
 package:
 	./scripts/build-package.sh
 
-test: setup test-native test-reference test-browser single test-page package test-package
+test: setup test-native test-reference test-browser single test-page package test-package bench-quick
 	@echo "make test: all suites passed"
 
 test-native:
@@ -45,3 +45,9 @@ test-page:
 
 test-package:
 	cd tests/js && node --test package.test.mjs
+
+bench: setup single package
+	node bench/run.mjs
+
+bench-quick:
+	node bench/run.mjs --quick

@@ -16,6 +16,7 @@ async function start() {
   }
   const host = document.getElementById('cards');
   for (const def of FEEDBACK_CARDS) mountCard(host, def, api);
+  performance.mark('loopwright-first-result');
   status.textContent = `Core ${api.version()} loaded.`;
   status.dataset.state = 'ready';
   document.documentElement.dataset.ready = 'true';
