@@ -54,6 +54,8 @@ const replaceOnce = (from, to) => {
   if (!html.includes(from)) throw new Error(`build-single: index.html no longer contains ${from}`);
   html = html.replace(from, () => to);
 };
+const icon = readFileSync(join(root, 'www', 'favicon.svg')).toString('base64');
+replaceOnce('<link rel="icon" href="favicon.svg">', `<link rel="icon" href="data:image/svg+xml;base64,${icon}">`);
 replaceOnce('<link rel="stylesheet" href="css/style.css">', `<style>${style}</style>`);
 replaceOnce('<script type="module" src="js/main.js"></script>', `<script type="module">${script}</script>`);
 html = html.replace(

@@ -7,6 +7,7 @@ import assert from 'node:assert/strict';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { launch, serveWww, openPage, ARTIFACTS, ROOT } from './browser.mjs';
+import { startServer } from '../../scripts/serve.mjs';
 
 let browser;
 let server;
@@ -146,4 +147,33 @@ test('the single-file build works from file:// with no request and no CSP violat
   assert.deepEqual(foreign, []);
   assert.deepEqual(problems, []);
   await context.close();
+});
+
+test('embedding: the custom element and the frame work under a strict CSP', async () => {
+  const { server: rootServer, url: rootUrl } = await startServer(ROOT, 0);
+  try {
+    const context = await browser.newContext({ viewport: { width: 1000, height: 1400 } });
+    const page = await context.newPage();
+    const problems = [];
+    page.on('console', (msg) => { if (msg.type() === 'error') problems.push(msg.text()); });
+    page.on('pageerror', (err) => problems.push(err.message));
+    await page.goto(`${rootUrl}tests/js/fixtures/embed.html`);
+    await page.waitForSelector('loopwright-panel[data-ready="true"]', { timeout: 15000 });
+    // Only the two requested cards, inside the shadow root.
+    assert.equal(await page.locator('loopwright-panel section.card').count(), 2);
+    // Default stage inputs: A = 100k, β = 0.00999 → Af = 100 (closed form).
+    assert.equal(await page.locator('loopwright-panel #card-stage dd[data-name="af"] output').textContent(), '100.0');
+    await page.locator('loopwright-panel #card-stage-a').fill('10k');
+    await page.locator('loopwright-panel #card-stage-beta').fill('99.9m');
+    assert.equal(await page.locator('loopwright-panel #card-stage dd[data-name="af"] output').textContent(), '10.00');
+    // No global names leaked by the element's script.
+    assert.deepEqual(await page.evaluate(() => Object.keys(window).filter((k) => /loopwright|wasm|wbg/i.test(k))), []);
+    const frame = page.frameLocator('iframe');
+    assert.equal(await frame.locator('#card-stage dd[data-name="af"] output').textContent(), '100.0');
+    await page.screenshot({ path: join(ARTIFACTS, 'embed.png'), fullPage: true });
+    assert.deepEqual(problems, []);
+    await context.close();
+  } finally {
+    rootServer.close();
+  }
 });
