@@ -25,12 +25,13 @@ export function parseEngineering(text) {
   }
   if (PLAIN.test(s)) return finite(Number(s));
   const last = s.slice(-1);
-  if (last in SI_PREFIX && PLAIN.test(s.slice(0, -1))) return finite(Number(s.slice(0, -1)) * SI_PREFIX[last]);
+  const mantissa = s.slice(0, -1).trim();
+  if (last in SI_PREFIX && PLAIN.test(mantissa)) return finite(Number(mantissa) * SI_PREFIX[last]);
   const m = LETTER_CODE.exec(s);
   if (m && (m[2] !== '' || m[4] !== '')) {
     const scale = m[3] === 'R' ? 1 : SI_PREFIX[m[3]];
-    const mantissa = Number(`${m[2] || '0'}.${m[4] || '0'}`);
-    return finite((m[1] === '-' ? -1 : 1) * mantissa * scale);
+    const digits = Number(`${m[2] || '0'}.${m[4] || '0'}`);
+    return finite((m[1] === '-' ? -1 : 1) * digits * scale);
   }
   return { error: `"${String(text).trim()}" is not a number (try 4.7k, 4k7, 2.2e-9, 10 MΩ)` };
 }
