@@ -44,3 +44,14 @@ throws(() => lw.summarizeFeedback('parallel-parallel', 1, 1), 'unknown_name', 't
 throws(() => lw.impedancesWithFeedback('series-shunt', -1, 0, 1, 0, 1, 0, 1, 0), 'out_of_domain', 'zi');
 
 console.log('consumer: all checks passed');
+
+// Errors must leave the module healthy: a thrown error may not leak wasm stack or
+// heap (an earlier design that threw from inside wasm broke after 32 764 errors).
+let caught = 0;
+for (let i = 0; i < 100_000; i++) {
+  try { lw.closedLoopGain(-100, 0.01); } catch (e) { if (e.code === 'oscillation') caught++; }
+  try { lw.summarizeFeedback('nope', 1, 1); } catch (e) { if (e.code === 'unknown_name') caught++; }
+}
+assert.equal(caught, 200_000);
+assert.ok(Math.abs(lw.summarizeFeedback('series-shunt', 1e5, 0.00999).closedLoopGain - 100) < 1e-9);
+console.log('consumer: 200 000 errors later the module is healthy');
