@@ -17,9 +17,12 @@
 //! // In a loop for a gain of about 20 (D ≈ 100), at 1 V out.
 //! let f = feedback_distortion(&amp, 0.0495, 1.0, AmplitudeAt::Output).unwrap();
 //! assert!((f.hd2_ratio.unwrap() - 0.01).abs() < 1e-12);
-//! // The numeric solve agrees with the series at this amplitude.
+//! // The numeric solve agrees with the leading-order series to about 1 % here,
+//! // and 100 times better at a tenth of the amplitude.
 //! let c = series_check(&amp, 0.0495, f.closed.input_amplitude, 64).unwrap();
-//! assert!(c.hd2_difference < 1e-3);
+//! assert!(c.hd2_difference < 0.02 && c.hd3_difference < 0.02);
+//! let c = series_check(&amp, 0.0495, 0.1 * f.closed.input_amplitude, 64).unwrap();
+//! assert!(c.hd2_difference < 2e-4 && c.hd3_difference < 2e-4);
 //! ```
 
 pub mod distortion;
