@@ -4,7 +4,9 @@
 //! bandwidth, and refusal of the loops numpy.roots finds unstable.
 #![cfg(not(target_arch = "wasm32"))]
 
-use loopwright::noise::{integrated_output_noise, noise_contributions, output_noise_density, AmplifierNoise, ClosedLoopResponse, Stage};
+use loopwright::noise::{
+    integrated_output_noise, noise_contributions, output_noise_density, AmplifierNoise, ClosedLoopResponse, Stage,
+};
 use serde::Deserialize;
 use std::collections::BTreeMap;
 
@@ -76,7 +78,8 @@ fn stage_noise_matches_scipy() {
         let stage = Stage::new(c.kind.parse().unwrap(), c.r_feedback, c.r_gain, c.r_plus, c.temperature_k).unwrap();
         assert!(rel(stage.noise_gain(), c.noise_gain) < DENSITY_REL, "{n}: noise gain");
         assert!(rel(stage.signal_gain(), c.signal_gain) < DENSITY_REL, "{n}: signal gain");
-        let amp = AmplifierNoise::new(c.voltage_density, c.voltage_corner_hz, c.current_density, c.current_corner_hz).unwrap();
+        let amp = AmplifierNoise::new(c.voltage_density, c.voltage_corner_hz, c.current_density, c.current_corner_hz)
+            .unwrap();
         let response = ClosedLoopResponse::new(stage.noise_gain(), c.gbw_hz, &c.extra_poles_hz);
         if c.unstable {
             let e = response.unwrap_err();
@@ -102,14 +105,24 @@ fn stage_noise_matches_scipy() {
             assert!(rel(d.total, p.total) < DENSITY_REL, "{n} at {f} Hz: total");
             assert!(rel(d.input_referred, p.input_referred) < DENSITY_REL, "{n} at {f} Hz: input-referred");
             let od = output_noise_density(&stage, &amp, &h, f).unwrap();
-            assert!(rel(od, p.output_density) < DENSITY_REL, "{n} at {f} Hz: output density {od} vs {}", p.output_density);
+            assert!(
+                rel(od, p.output_density) < DENSITY_REL,
+                "{n} at {f} Hz: output density {od} vs {}",
+                p.output_density
+            );
         }
-        let r = integrated_output_noise(&stage, &amp, &h, c.f_low, c.f_high.unwrap_or(f64::INFINITY)).unwrap_or_else(|e| panic!("{n}: {e}"));
+        let r = integrated_output_noise(&stage, &amp, &h, c.f_low, c.f_high.unwrap_or(f64::INFINITY))
+            .unwrap_or_else(|e| panic!("{n}: {e}"));
         let want = c.output_rms.unwrap();
         assert!(rel(r.output_rms, want) < INTEGRAL_REL, "{n}: output rms {} vs scipy {want}", r.output_rms);
         assert!(rel(r.input_referred_rms, c.input_referred_rms.unwrap()) < INTEGRAL_REL, "{n}: input-referred rms");
         assert!(rel(r.noise_bandwidth_hz, c.noise_bandwidth_hz.unwrap()) < INTEGRAL_REL, "{n}: noise bandwidth");
-        assert!(rel(r.bandwidth_hz, c.bandwidth_hz.unwrap()) < BANDWIDTH_REL, "{n}: -3 dB bandwidth {} vs {:?}", r.bandwidth_hz, c.bandwidth_hz);
+        assert!(
+            rel(r.bandwidth_hz, c.bandwidth_hz.unwrap()) < BANDWIDTH_REL,
+            "{n}: -3 dB bandwidth {} vs {:?}",
+            r.bandwidth_hz,
+            c.bandwidth_hz
+        );
         assert!(r.relative_error < INTEGRAL_REL, "{n}: error estimate {}", r.relative_error);
     }
     assert_eq!(unstable_seen, 1);

@@ -11,19 +11,24 @@ use proptest::test_runner::{Config, RngAlgorithm, TestRng, TestRunner};
 const CASES: u32 = 64;
 
 fn runner(seed: u8) -> TestRunner {
-    TestRunner::new_with_rng(Config { cases: CASES, failure_persistence: None, ..Config::default() }, TestRng::from_seed(RngAlgorithm::ChaCha, &[seed; 32]))
+    TestRunner::new_with_rng(
+        Config { cases: CASES, failure_persistence: None, ..Config::default() },
+        TestRng::from_seed(RngAlgorithm::ChaCha, &[seed; 32]),
+    )
 }
 
 /// A compressive amplifier (a3 opposite in sign to a1, the usual case, so that
 /// a3·D and 2·a2²·β never cancel in b3) in a loop with D = 1 … 1000.
 fn amplifier_and_loop() -> impl Strategy<Value = (PowerSeries, f64)> {
-    (1.0f64..4.0, 0.0f64..3.0, -2.0f64..0.5, any::<bool>(), -2.0f64..0.5).prop_map(|(lg_a1, lg_d, lg_r2, neg2, lg_r3)| {
-        let a1 = 10f64.powf(lg_a1);
-        let d = 10f64.powf(lg_d);
-        let a2 = a1 * 10f64.powf(lg_r2) * if neg2 { -1.0 } else { 1.0 };
-        let a3 = -a1 * 10f64.powf(lg_r3);
-        (PowerSeries::new(a1, a2, a3).unwrap(), (d - 1.0) / a1)
-    })
+    (1.0f64..4.0, 0.0f64..3.0, -2.0f64..0.5, any::<bool>(), -2.0f64..0.5).prop_map(
+        |(lg_a1, lg_d, lg_r2, neg2, lg_r3)| {
+            let a1 = 10f64.powf(lg_a1);
+            let d = 10f64.powf(lg_d);
+            let a2 = a1 * 10f64.powf(lg_r2) * if neg2 { -1.0 } else { 1.0 };
+            let a3 = -a1 * 10f64.powf(lg_r3);
+            (PowerSeries::new(a1, a2, a3).unwrap(), (d - 1.0) / a1)
+        },
+    )
 }
 
 #[test]

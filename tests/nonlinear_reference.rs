@@ -7,7 +7,9 @@
 //!   amplitudes past the fold that must be refused.
 #![cfg(not(target_arch = "wasm32"))]
 
-use loopwright::nonlinear::{closed_loop_series, closed_loop_spectrum, feedback_distortion, AmplitudeAt, LoopSolver, PowerSeries};
+use loopwright::nonlinear::{
+    closed_loop_series, closed_loop_spectrum, feedback_distortion, AmplitudeAt, LoopSolver, PowerSeries,
+};
 use serde::Deserialize;
 
 /// b1, b2, b3 from the closed forms against sympy's exact solution: a few ulps,
@@ -111,7 +113,12 @@ fn numeric_spectrum_matches_scipy_and_numpy() {
         let s = closed_loop_spectrum(&amp, c.beta, c.amplitude, c.samples).unwrap();
         let scale = c.harmonics[0];
         for (h, (got, want)) in s.harmonics.iter().zip(&c.harmonics).enumerate() {
-            assert!((got - want).abs() <= HARMONIC_REL_TO_FUNDAMENTAL * scale, "{}: harmonic {} = {got}, numpy {want}", c.name, h + 1);
+            assert!(
+                (got - want).abs() <= HARMONIC_REL_TO_FUNDAMENTAL * scale,
+                "{}: harmonic {} = {got}, numpy {want}",
+                c.name,
+                h + 1
+            );
         }
         assert!((s.dc - c.dc).abs() <= HARMONIC_REL_TO_FUNDAMENTAL * scale, "{}: dc {} vs {}", c.name, s.dc, c.dc);
         assert!(rel(s.hd2, c.hd2) < HD_REL, "{}: hd2 {} vs {}", c.name, s.hd2, c.hd2);

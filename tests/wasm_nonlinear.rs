@@ -100,7 +100,22 @@ fn thermal_noise_of_one_kilohm() {
 fn stage_noise_integrates_over_the_single_pole_noise_bandwidth() {
     // π/2·f_c noise bandwidth for one pole: 10 nV/√Hz, NG = 10, GBW = 1 MHz,
     // plus 4kTR of 9 kΩ and 1 kΩ: 42.49 µV rms (see tests/noise_reference.rs).
-    let r = noise::integrated_noise("non-inverting", 9e3, 1e3, 0.0, 300.0, 10e-9, 0.0, 0.0, 0.0, 1e6, &[], 0.0, f64::INFINITY).unwrap();
+    let r = noise::integrated_noise(
+        "non-inverting",
+        9e3,
+        1e3,
+        0.0,
+        300.0,
+        10e-9,
+        0.0,
+        0.0,
+        0.0,
+        1e6,
+        &[],
+        0.0,
+        f64::INFINITY,
+    )
+    .unwrap();
     assert!((num(&r, "outputRms") * 1e6 - 42.49).abs() < 0.005);
     assert!((num(&r, "outputRms") / num(&r, "singlePoleEstimateRms") - 1.0).abs() < 1e-9);
     assert!((num(&r, "noiseBandwidthHz") / (std::f64::consts::FRAC_PI_2 * 1e5) - 1.0).abs() < 1e-9);
@@ -112,16 +127,49 @@ fn stage_noise_integrates_over_the_single_pole_noise_bandwidth() {
 
 #[wasm_bindgen_test]
 fn noise_sweep_and_errors() {
-    let w = noise::noise_density_sweep("inverting", 10e3, 1e3, 0.0, 300.0, 5e-9, 5.0, 1e-12, 50.0, 5e6, &[2e6], 1.0, 1e7, 71).unwrap();
+    let w = noise::noise_density_sweep(
+        "inverting",
+        10e3,
+        1e3,
+        0.0,
+        300.0,
+        5e-9,
+        5.0,
+        1e-12,
+        50.0,
+        5e6,
+        &[2e6],
+        1.0,
+        1e7,
+        71,
+    )
+    .unwrap();
     let f: Float64Array = field(&w, "frequencies").dyn_into().unwrap();
     let d: Float64Array = field(&w, "outputDensity").dyn_into().unwrap();
     assert_eq!((f.length(), d.length()), (71, 71));
     // Above the closed-loop bandwidth the density falls.
     assert!(d.get_index(70) < d.get_index(40));
-    let e = noise::integrated_noise("inverting", 1e3, 1e3, 0.0, 300.0, 5e-9, 0.0, 0.0, 0.0, 20e6, &[3e6, 4e6], 0.0, f64::INFINITY).unwrap_err();
+    let e = noise::integrated_noise(
+        "inverting",
+        1e3,
+        1e3,
+        0.0,
+        300.0,
+        5e-9,
+        0.0,
+        0.0,
+        0.0,
+        20e6,
+        &[3e6, 4e6],
+        0.0,
+        f64::INFINITY,
+    )
+    .unwrap_err();
     assert_eq!(error_code_param(e), ("oscillation".into(), "extra_poles_hz".into()));
-    let e = noise::integrated_noise("inverting", 1e3, 1e3, 0.0, 300.0, -5e-9, 0.0, 0.0, 0.0, 20e6, &[], 0.0, 1e3).unwrap_err();
+    let e = noise::integrated_noise("inverting", 1e3, 1e3, 0.0, 300.0, -5e-9, 0.0, 0.0, 0.0, 20e6, &[], 0.0, 1e3)
+        .unwrap_err();
     assert_eq!(error_code_param(e), ("out_of_domain".into(), "voltage_density".into()));
-    let e = noise::integrated_noise("buffer", 1e3, 1e3, 0.0, 300.0, 5e-9, 0.0, 0.0, 0.0, 20e6, &[], 0.0, 1e3).unwrap_err();
+    let e =
+        noise::integrated_noise("buffer", 1e3, 1e3, 0.0, 300.0, 5e-9, 0.0, 0.0, 0.0, 20e6, &[], 0.0, 1e3).unwrap_err();
     assert_eq!(error_code_param(e), ("unknown_name".into(), "kind".into()));
 }

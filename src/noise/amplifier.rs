@@ -52,7 +52,12 @@ impl AmplifierNoise {
     /// assert!((amp.voltage_density_at(10.0) - 4e-9 * 2f64.sqrt()).abs() < 1e-24);
     /// assert_eq!(AmplifierNoise::new(-4e-9, 0.0, 0.0, 0.0).unwrap_err().param(), "voltage_density");
     /// ```
-    pub fn new(voltage_density: f64, voltage_corner_hz: f64, current_density: f64, current_corner_hz: f64) -> Result<Self> {
+    pub fn new(
+        voltage_density: f64,
+        voltage_corner_hz: f64,
+        current_density: f64,
+        current_corner_hz: f64,
+    ) -> Result<Self> {
         Ok(AmplifierNoise {
             voltage_density: check::non_negative("voltage_density", voltage_density)?,
             voltage_corner_hz: check::non_negative("voltage_corner_hz", voltage_corner_hz)?,

@@ -51,7 +51,12 @@ const MAX_BREAKS: usize = 8;
 /// assert!((at_fc / flat - 0.5f64.sqrt()).abs() < 1e-6);
 /// assert!(output_noise_density(&s, &amp, &h, f64::NAN).is_err());
 /// ```
-pub fn output_noise_density(stage: &Stage, amp: &AmplifierNoise, response: &ClosedLoopResponse, frequency_hz: f64) -> Result<f64> {
+pub fn output_noise_density(
+    stage: &Stage,
+    amp: &AmplifierNoise,
+    response: &ClosedLoopResponse,
+    frequency_hz: f64,
+) -> Result<f64> {
     let f = density_frequency(amp, frequency_hz)?;
     check::result("output_noise_density", libm::sqrt(output_psd(stage, amp, f) * response.magnitude_squared(f)))
 }
@@ -186,10 +191,16 @@ fn integrate_band<G: Fn(f64) -> f64>(g: &G, f_low: f64, f_high: f64, breaks: &[f
         let q = if a == 0.0 {
             integrate(g, 0.0, b, REL_TOL, 0.0)?
         } else {
-            integrate(|t: f64| {
-                let f = libm::exp(t);
-                g(f) * f
-            }, libm::log(a), libm::log(b), REL_TOL, 0.0)?
+            integrate(
+                |t: f64| {
+                    let f = libm::exp(t);
+                    g(f) * f
+                },
+                libm::log(a),
+                libm::log(b),
+                REL_TOL,
+                0.0,
+            )?
         };
         total += q.value;
         err += q.error;
@@ -198,11 +209,24 @@ fn integrate_band<G: Fn(f64) -> f64>(g: &G, f_low: f64, f_high: f64, breaks: &[f
         let top = pts[n - 1];
         // The tail piece starts at the last break (or f_low); if that is 0 Hz,
         // start it at the first positive break instead, which exists (f_c).
-        let start = if top > 0.0 { top } else { return Err(Error::OutOfDomain { param: "f_high", requirement: "must be finite when the band has no break above 0 Hz" }) };
-        let q = integrate(|s: f64| {
-            let f = start / s;
-            g(f) * start / (s * s)
-        }, 0.0, 1.0, REL_TOL, 0.0)?;
+        let start = if top > 0.0 {
+            top
+        } else {
+            return Err(Error::OutOfDomain {
+                param: "f_high",
+                requirement: "must be finite when the band has no break above 0 Hz",
+            });
+        };
+        let q = integrate(
+            |s: f64| {
+                let f = start / s;
+                g(f) * start / (s * s)
+            },
+            0.0,
+            1.0,
+            REL_TOL,
+            0.0,
+        )?;
         total += q.value;
         err += q.error;
     }
@@ -243,15 +267,22 @@ pub fn integrated_output_noise(
     if f_low == 0.0 && amp.has_flicker() {
         return Err(Error::OutOfDomain {
             param: "f_low",
-            requirement: "must be greater than zero when a 1/f corner is set (1/f noise integrates to infinity at 0 Hz)",
+            requirement:
+                "must be greater than zero when a 1/f corner is set (1/f noise integrates to infinity at 0 Hz)",
         });
     }
-    if f_high.is_nan() || !(f_high > f_low) {
-        return Err(Error::OutOfDomain { param: "f_high", requirement: "must be greater than f_low (infinity allowed)" });
+    if f_high.is_nan() || f_high <= f_low {
+        return Err(Error::OutOfDomain {
+            param: "f_high",
+            requirement: "must be greater than f_low (infinity allowed)",
+        });
     }
     let ng = stage.noise_gain();
     if libm::fabs(response.noise_gain() - ng) > 1e-12 * ng {
-        return Err(Error::OutOfDomain { param: "noise_gain", requirement: "the response must be built with the stage's noise gain" });
+        return Err(Error::OutOfDomain {
+            param: "noise_gain",
+            requirement: "the response must be built with the stage's noise gain",
+        });
     }
     let fc = response.loop_crossover_hz();
     // Breaks of the response alone (f_c, a decade above, the extra poles), then
@@ -273,7 +304,8 @@ pub fn integrated_output_noise(
     }
     let g = |f: f64| output_psd(stage, amp, f) * response.magnitude_squared(f);
     let (power, err) = integrate_band(&g, f_low, f_high, &breaks[..nb])?;
-    let (nbw, _) = integrate_band(&|f: f64| response.magnitude_squared(f), 0.0, f64::INFINITY, &breaks[..shape_breaks])?;
+    let (nbw, _) =
+        integrate_band(&|f: f64| response.magnitude_squared(f), 0.0, f64::INFINITY, &breaks[..shape_breaks])?;
     let output_rms = check::result("output_rms", libm::sqrt(power))?;
     let signal_gain = stage.signal_gain();
     let white = AmplifierNoise { voltage_corner_hz: 0.0, current_corner_hz: 0.0, ..*amp };
@@ -289,7 +321,10 @@ pub fn integrated_output_noise(
         bandwidth_hz: response.bandwidth_hz()?,
         noise_bandwidth_hz: check::result("noise_bandwidth_hz", nbw)?,
         single_pole_noise_bandwidth_hz: single,
-        single_pole_estimate_rms: check::result("single_pole_estimate_rms", libm::sqrt(output_psd(stage, &white, 1.0) * single))?,
+        single_pole_estimate_rms: check::result(
+            "single_pole_estimate_rms",
+            libm::sqrt(output_psd(stage, &white, 1.0) * single),
+        )?,
         relative_error: if power > 0.0 { 0.5 * err / power } else { 0.0 },
     })
 }
@@ -301,7 +336,10 @@ mod tests {
     use core::f64::consts::PI;
 
     fn white_stage() -> (Stage, AmplifierNoise) {
-        (Stage::new(StageKind::NonInverting, 9e3, 1e3, 100.0, 300.0).unwrap(), AmplifierNoise::new(7e-9, 0.0, 1e-12, 0.0).unwrap())
+        (
+            Stage::new(StageKind::NonInverting, 9e3, 1e3, 100.0, 300.0).unwrap(),
+            AmplifierNoise::new(7e-9, 0.0, 1e-12, 0.0).unwrap(),
+        )
     }
 
     #[test]

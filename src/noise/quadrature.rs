@@ -11,6 +11,9 @@
 //! The Kronrod nodes exclude the ends of the interval, so an integrand singular
 //! at an end (after a change of variable) is never evaluated there.
 
+// The nodes and weights are kept to the digits they are published with.
+#![allow(clippy::excessive_precision)]
+
 use crate::error::{Error, Result};
 
 /// Most subintervals of one integral.
@@ -106,7 +109,10 @@ pub fn integrate<F: FnMut(f64) -> f64>(mut f: F, a: f64, b: f64, rel_tol: f64, a
             return Ok(Quadrature { value: total, error: total_err, evaluations });
         }
         if n == MAX_INTERVALS {
-            return Err(Error::NoConvergence { param: "integrand", reason: "the adaptive quadrature ran out of subintervals" });
+            return Err(Error::NoConvergence {
+                param: "integrand",
+                reason: "the adaptive quadrature ran out of subintervals",
+            });
         }
         // Halve the worst subinterval.
         let mut worst = 0;
@@ -118,7 +124,10 @@ pub fn integrate<F: FnMut(f64) -> f64>(mut f: F, a: f64, b: f64, rel_tol: f64, a
         let (a0, b0) = (lo[worst], hi[worst]);
         let m = 0.5 * (a0 + b0);
         if !(a0 < m && m < b0) {
-            return Err(Error::NoConvergence { param: "integrand", reason: "a subinterval shrank to the floating-point resolution" });
+            return Err(Error::NoConvergence {
+                param: "integrand",
+                reason: "a subinterval shrank to the floating-point resolution",
+            });
         }
         let (v1, e1) = kronrod(&mut f, a0, m)?;
         let (v2, e2) = kronrod(&mut f, m, b0)?;

@@ -80,9 +80,12 @@ impl ClosedLoopResponse {
         let h = ClosedLoopResponse { noise_gain, gbw_hz, poles, pole_count: extra_poles_hz.len() };
         let fc = h.loop_crossover_hz();
         if !fc.is_finite() || fc <= 0.0 {
-            return Err(Error::OutOfDomain { param: "noise_gain", requirement: "must give a finite, positive GBW/noise_gain" });
+            return Err(Error::OutOfDomain {
+                param: "noise_gain",
+                requirement: "must give a finite, positive GBW/noise_gain",
+            });
         }
-        if h.pole_count == MAX_EXTRA_POLES && !(poles[0] + poles[1] > fc) {
+        if h.pole_count == MAX_EXTRA_POLES && poles[0] + poles[1] <= fc {
             return Err(Error::Oscillation { param: "extra_poles_hz" });
         }
         Ok(h)
@@ -166,7 +169,12 @@ impl ClosedLoopResponse {
         }
         let i = match last_above {
             Some(i) if i < steps => i,
-            _ => return Err(Error::NoConvergence { param: "bandwidth_hz", reason: "no −3 dB crossing in the scanned range" }),
+            _ => {
+                return Err(Error::NoConvergence {
+                    param: "bandwidth_hz",
+                    reason: "no −3 dB crossing in the scanned range",
+                })
+            }
         };
         let (mut a, mut b) = (at(i), at(i + 1));
         for _ in 0..200 {
@@ -215,7 +223,8 @@ mod tests {
         // 1 + 1/T vanishes there.
         let inv = |f: f64| {
             let jf = Complex64::new(0.0, f);
-            Complex64::new(1.0, 0.0) + jf / 1e6 * (Complex64::new(1.0, 0.0) + jf / 0.5e6) * (Complex64::new(1.0, 0.0) + jf / 0.5e6)
+            Complex64::new(1.0, 0.0)
+                + jf / 1e6 * (Complex64::new(1.0, 0.0) + jf / 0.5e6) * (Complex64::new(1.0, 0.0) + jf / 0.5e6)
         };
         assert!(inv(0.5e6).norm() < 1e-12);
     }

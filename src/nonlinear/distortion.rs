@@ -167,7 +167,12 @@ pub struct FeedbackDistortion {
 /// assert!((f.hd3_ratio.unwrap() - 0.01).abs() < 1e-15 && f.hd2_ratio.is_none());
 /// assert_eq!(feedback_distortion(&amp, 0.099, 0.0, AmplitudeAt::Output).unwrap_err().param(), "amplitude");
 /// ```
-pub fn feedback_distortion(open: &PowerSeries, beta: f64, amplitude: f64, at: AmplitudeAt) -> Result<FeedbackDistortion> {
+pub fn feedback_distortion(
+    open: &PowerSeries,
+    beta: f64,
+    amplitude: f64,
+    at: AmplitudeAt,
+) -> Result<FeedbackDistortion> {
     let d = return_difference(open, beta)?;
     let closed_series = closed_loop_series(open, beta)?;
     let open_d = harmonic_distortion(open, amplitude, at)?;

@@ -120,7 +120,7 @@ pub fn closed_loop_spectrum(open: &PowerSeries, beta: f64, amplitude: f64, sampl
         solver.output_named(x, "amplitude")
     })?;
     let fundamental = harmonics[0];
-    if !(fundamental > 0.0) {
+    if fundamental <= 0.0 {
         return Err(Error::Singular { param: "amplitude", reason: "the output has no fundamental" });
     }
     let mut sum = 0.0;

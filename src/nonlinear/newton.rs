@@ -104,7 +104,14 @@ impl LoopSolver {
         let fold = |u: f64| if u.is_finite() { u + beta * amp.output(u) } else { u };
         let x_lo = fold(u_lo);
         let x_hi = fold(u_hi);
-        Ok(LoopSolver { amp: *amp, beta, u_lo, u_hi, x_lo: if x_lo.is_nan() { -f64::INFINITY } else { x_lo }, x_hi: if x_hi.is_nan() { f64::INFINITY } else { x_hi } })
+        Ok(LoopSolver {
+            amp: *amp,
+            beta,
+            u_lo,
+            u_hi,
+            x_lo: if x_lo.is_nan() { -f64::INFINITY } else { x_lo },
+            x_hi: if x_hi.is_nan() { f64::INFINITY } else { x_hi },
+        })
     }
 
     /// The largest peak amplitude of a signal symmetric about zero that stays on
@@ -166,7 +173,10 @@ impl LoopSolver {
                 step *= 2.0;
             }
             if !found {
-                return Err(Error::NoConvergence { param, reason: "no bracket for the error signal was found in range" });
+                return Err(Error::NoConvergence {
+                    param,
+                    reason: "no bracket for the error signal was found in range",
+                });
             }
         }
         let mut u = x / d;

@@ -56,11 +56,7 @@ impl PowerSeries {
     /// assert_eq!(PowerSeries::new(0.0, 1.0, 1.0).unwrap_err().param(), "a1");
     /// ```
     pub fn new(a1: f64, a2: f64, a3: f64) -> Result<Self> {
-        Ok(PowerSeries {
-            a1: check::nonzero("a1", a1)?,
-            a2: check::finite("a2", a2)?,
-            a3: check::finite("a3", a3)?,
-        })
+        Ok(PowerSeries { a1: check::nonzero("a1", a1)?, a2: check::finite("a2", a2)?, a3: check::finite("a3", a3)? })
     }
 
     /// y = a1·x + a2·x² + a3·x³, by Horner's rule.

@@ -144,7 +144,10 @@ pub fn series_validity_sweep(
     }
     let tol = check::finite("tolerance", tolerance)?;
     if !(tol > 0.0 && tol < 1.0) {
-        return Err(Error::OutOfDomain { param: "tolerance", requirement: "must be a fraction greater than 0 and less than 1" });
+        return Err(Error::OutOfDomain {
+            param: "tolerance",
+            requirement: "must be a fraction greater than 0 and less than 1",
+        });
     }
     let solver = LoopSolver::new(open, beta)?;
     let fold = solver.max_input_amplitude();

@@ -37,13 +37,25 @@ pub fn closed_loop_series(a1: f64, a2: f64, a3: f64, beta: f64) -> Result<JsValu
 /// Coefficients `{a1, a2, a3}` from signed HD2 and HD3 (fractions) measured at a
 /// peak amplitude at the `"input"` or `"output"`.
 #[wasm_bindgen(js_name = seriesFromDistortion)]
-pub fn series_from_distortion(a1: f64, hd2: f64, hd3: f64, amplitude: f64, amplitude_at_name: &str) -> Result<JsValue, JsValue> {
+pub fn series_from_distortion(
+    a1: f64,
+    hd2: f64,
+    hd3: f64,
+    amplitude: f64,
+    amplitude_at_name: &str,
+) -> Result<JsValue, JsValue> {
     to_js(&throw(nl::series_from_distortion(a1, hd2, hd3, amplitude, amplitude_at(amplitude_at_name)?))?)
 }
 
 /// Leading-order distortion `{inputAmplitude, outputAmplitude, hd2, hd3}`.
 #[wasm_bindgen(js_name = harmonicDistortion)]
-pub fn harmonic_distortion(a1: f64, a2: f64, a3: f64, amplitude: f64, amplitude_at_name: &str) -> Result<JsValue, JsValue> {
+pub fn harmonic_distortion(
+    a1: f64,
+    a2: f64,
+    a3: f64,
+    amplitude: f64,
+    amplitude_at_name: &str,
+) -> Result<JsValue, JsValue> {
     to_js(&throw(nl::harmonic_distortion(&series(a1, a2, a3)?, amplitude, amplitude_at(amplitude_at_name)?))?)
 }
 
@@ -51,7 +63,14 @@ pub fn harmonic_distortion(a1: f64, a2: f64, a3: f64, amplitude: f64, amplitude_
 /// amplitudeAt, open, closed, hd2Ratio, hd3Ratio}` (ratios `null` when the open-loop
 /// figure is zero).
 #[wasm_bindgen(js_name = feedbackDistortion)]
-pub fn feedback_distortion(a1: f64, a2: f64, a3: f64, beta: f64, amplitude: f64, amplitude_at_name: &str) -> Result<JsValue, JsValue> {
+pub fn feedback_distortion(
+    a1: f64,
+    a2: f64,
+    a3: f64,
+    beta: f64,
+    amplitude: f64,
+    amplitude_at_name: &str,
+) -> Result<JsValue, JsValue> {
     to_js(&throw(nl::feedback_distortion(&series(a1, a2, a3)?, beta, amplitude, amplitude_at(amplitude_at_name)?))?)
 }
 
@@ -65,7 +84,14 @@ pub fn closed_loop_output(a1: f64, a2: f64, a3: f64, beta: f64, x: f64) -> Resul
 /// Numeric spectrum of the closed loop for a cosine input of peak `amplitude`:
 /// `{inputAmplitude, dc, harmonics: [5], hd2, hd3, thd, samples}`.
 #[wasm_bindgen(js_name = closedLoopSpectrum)]
-pub fn closed_loop_spectrum(a1: f64, a2: f64, a3: f64, beta: f64, amplitude: f64, samples: u32) -> Result<JsValue, JsValue> {
+pub fn closed_loop_spectrum(
+    a1: f64,
+    a2: f64,
+    a3: f64,
+    beta: f64,
+    amplitude: f64,
+    samples: u32,
+) -> Result<JsValue, JsValue> {
     to_js(&throw(nl::closed_loop_spectrum(&series(a1, a2, a3)?, beta, amplitude, samples as usize))?)
 }
 
