@@ -104,9 +104,9 @@ pub fn harmonic_distortion(series: &PowerSeries, amplitude: f64, at: AmplitudeAt
 /// measured ones.
 ///
 /// a2 = 2·HD2·a1/X, a3 = 4·HD3·a1/X² with X the input amplitude (from an output
-/// amplitude Y, X = Y/|a1|). `hd2` and `hd3` are fractions with a sign: the sign
-/// the coefficient relative to a1 should carry (a negative `hd3` is the usual
-/// compressive curve, a2 and a3 opposite in sign to a1 for negative values).
+/// amplitude Y, X = Y/|a1|). `hd2` and `hd3` are fractions carrying the signs of
+/// a2/a1 and a3/a1 (a measurement gives only the size; a negative `hd3` is the
+/// usual compressive curve).
 ///
 /// # Errors
 /// `a1` zero or not finite; `hd2`, `hd3` not finite; `amplitude` not positive.
