@@ -164,7 +164,7 @@ mod tests {
 
     #[test]
     fn end_singularity_is_never_evaluated() {
-        // ∫₀¹ x^(−1/2) dx = 2, singular at 0.
+        // ∫₀¹ x^(−1/2) dx = [2√x]₀¹ = 2 (calculus), singular at 0.
         let q = integrate(|x| 1.0 / x.sqrt(), 0.0, 1.0, 1e-8, 0.0).unwrap();
         assert!((q.value - 2.0).abs() < 1e-7);
     }

@@ -222,6 +222,7 @@ mod tests {
 
     #[test]
     fn measured_distortion_round_trips() {
+        // Identity: coefficients from HD figures give those figures back.
         let s = series_from_distortion(-50.0, 0.02, -0.003, 0.2, AmplitudeAt::Input).unwrap();
         let d = harmonic_distortion(&s, 0.2, AmplitudeAt::Input).unwrap();
         assert!((d.hd2 - 0.02).abs() < 1e-15 && (d.hd3 - 0.003).abs() < 1e-15);

@@ -232,6 +232,7 @@ mod tests {
 
     #[test]
     fn solves_the_loop_equation_on_both_sides_of_zero() {
+        // Identity: the residual of y = A(x − β·y) at the answer is at rounding level.
         let amp = PowerSeries::new(800.0, 120.0, -300.0).unwrap();
         let beta = 0.02;
         let s = LoopSolver::new(&amp, beta).unwrap();
@@ -243,6 +244,7 @@ mod tests {
 
     #[test]
     fn open_loop_is_the_polynomial_itself() {
+        // Identity: β = 0 gives y = A(x) and no fold.
         let amp = PowerSeries::new(3.0, 2.0, 1.0).unwrap();
         let s = LoopSolver::new(&amp, 0.0).unwrap();
         assert!((s.output(0.7).unwrap() - amp.output(0.7)).abs() < 1e-15);
