@@ -29,6 +29,8 @@ extern crate alloc;
 pub mod check;
 pub mod error;
 pub mod feedback;
+pub mod noise;
+pub mod nonlinear;
 
 #[cfg(feature = "wasm")]
 pub mod wasm;

@@ -7,6 +7,8 @@
 //! One file per catalog area.
 
 pub mod feedback;
+pub mod noise;
+pub mod nonlinear;
 
 use crate::Error;
 use wasm_bindgen::prelude::*;
