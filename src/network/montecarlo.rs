@@ -58,16 +58,17 @@ pub enum Distribution {
 }
 
 impl Distribution {
-    /// Parse `"uniform"` or `"normal"` (the latter with the given k).
+    /// Parse `"uniform"` or `"normal"` (the latter with the given k, whose
+    /// parameter name is `k_param` in errors).
     ///
     /// # Errors
     /// [`Error::UnknownName`] on `distribution`; `k` not finite or ≤ 0 for normal.
-    pub fn from_name(name: &str, k: f64) -> Result<Distribution> {
+    pub fn from_name(name: &str, k: f64, k_param: &'static str) -> Result<Distribution> {
         let t = name.trim();
         if t.eq_ignore_ascii_case("uniform") {
             Ok(Distribution::Uniform)
         } else if t.eq_ignore_ascii_case("normal") {
-            Ok(Distribution::Normal { k: check::positive("k", k)? })
+            Ok(Distribution::Normal { k: check::positive(k_param, k)? })
         } else {
             Err(Error::UnknownName { param: "distribution", expected: "uniform, normal" })
         }
@@ -175,6 +176,29 @@ pub fn seed_from_number(seed: f64) -> Result<u64> {
         return Err(Error::OutOfDomain { param: "seed", requirement: "must be a whole number from 0 to 2^53" });
     }
     Ok(s as u64)
+}
+
+/// A count given as a JS number: a whole number from 0 to `limit`.
+///
+/// # Errors
+/// [`Error::NotFinite`]; [`Error::OutOfDomain`] when negative or fractional;
+/// [`Error::TooLarge`] above `limit`; all on `param`.
+///
+/// # Example
+/// ```
+/// use loopwright::network::montecarlo::count_from_number;
+/// assert_eq!(count_from_number("trials", 1e6, 1_000_000).unwrap(), 1_000_000);
+/// assert_eq!(count_from_number("trials", 1e10, 1_000_000).unwrap_err().code(), "too_large");
+/// ```
+pub fn count_from_number(param: &'static str, x: f64, limit: usize) -> Result<usize> {
+    let x = check::non_negative(param, x)?;
+    if x != libm::trunc(x) {
+        return Err(Error::OutOfDomain { param, requirement: "must be a whole number" });
+    }
+    if x > limit as f64 {
+        return Err(Error::TooLarge { param, limit: limit as u64 });
+    }
+    Ok(x as usize)
 }
 
 /// The generator and the spare normal deviate of the polar method.
@@ -438,7 +462,7 @@ impl FromStr for Distribution {
     /// # Errors
     /// [`Error::UnknownName`] on `distribution`.
     fn from_str(s: &str) -> Result<Self> {
-        Distribution::from_name(s, 3.0)
+        Distribution::from_name(s, 3.0, "k")
     }
 }
 
