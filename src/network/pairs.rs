@@ -9,16 +9,17 @@
 //! achieved/target − 1 (for the non-inverting gain this is smaller than the ratio
 //! error by q/(1 + q)).
 //!
-//! Search (sorted, not every combination): for each standard R1 that can satisfy
-//! the total-resistance range, the best R2 is one of the two standard values
-//! around q·R1 (the error is monotonic in R2), clamped into the R2 interval the
-//! range leaves. Those are found by rank arithmetic on the decade table in O(1),
-//! so the whole search is O(number of R1 values). R1 is limited to
-//! [total_min/(1 + q·s), total_max/(1 + q/s)], s the series' largest step: outside
-//! it every allowed R2 misses q by more than a whole step. A leg made of two
-//! resistors (series or parallel) is searched the same way: one part runs over its
-//! half-range ([T/2, T] for series, [T, 2T] for parallel) and the other is rounded
-//! down and up to complete T.
+//! Search (sorted, not every combination): for each standard R1 below the total
+//! maximum, the best R2 is one of the two standard values around q·R1 (the error
+//! is monotonic in R2), clamped into the R2 interval the total-resistance range
+//! leaves. Those are found by rank arithmetic on the decade table in O(1), so the
+//! whole search is O(number of R1 values) — at most 30 decades of the series. The
+//! good candidates have R1 in the window [total_min/(1 + q·s), total_max/(1 + q/s)],
+//! s the series' largest step (outside it every allowed R2 misses q by more than a
+//! whole step); two-resistor legs are tried for R1 in that window. A leg made of
+//! two resistors (series or parallel) is searched the same way: one part runs over
+//! its half-range ([T/2, T] for series, (T, 2T] for parallel) and the other is
+//! rounded down and up to complete T.
 //!
 //! The common practice this automates (choosing the nearest standard pair and
 //! trimming with a second resistor) is described in, e.g., Horowitz & Hill,
@@ -361,14 +362,17 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
     let (series, network, target) = (spec.series, spec.network, spec.target);
     let error_of = |r1: f64, r2: f64| network.value(r1, r2, target) / target - 1.0;
 
-    // R1 values: the fixed one, or the standard values of the window.
-    let r1_values: Vec<f64> = match fixed_r1 {
-        Some(r) => alloc::vec![r],
+    // R1 values: the fixed one, or every standard value below total_max (at most
+    // 30 decades, O(1) each). Two-resistor legs are tried for the window only.
+    let ranks = |lo: f64, hi: f64| -> Vec<f64> {
+        let (lo, hi) = (lo.clamp(MIN_VALUE, MAX_VALUE), hi.clamp(MIN_VALUE, MAX_VALUE));
+        (series.ceil_rank(lo)..=series.floor_rank(hi)).map(|n| series.value_at(n)).collect()
+    };
+    let (r1_values, r1_window): (Vec<f64>, Vec<f64>) = match fixed_r1 {
+        Some(r) => (alloc::vec![r], alloc::vec![r]),
         None => {
             let s = series.max_step();
-            let lo = (total_min / (1.0 + q * s)).clamp(MIN_VALUE, MAX_VALUE);
-            let hi = (total_max / (1.0 + q / s)).clamp(MIN_VALUE, MAX_VALUE);
-            (series.ceil_rank(lo)..=series.floor_rank(hi)).map(|n| series.value_at(n)).collect()
+            (ranks(MIN_VALUE, total_max), ranks(total_min / (1.0 + q * s), total_max / (1.0 + q / s)))
         }
     };
 
@@ -399,7 +403,7 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
         (Some(c), Some(m)) => libm::fabs(c.error) <= m,
     };
     if spec.combine != Combine::None && !good_enough(candidates.first()) {
-        for &r1 in &r1_values {
+        for &r1 in &r1_window {
             let Some((a, b)) = r2_interval(r1, total_min, total_max) else { continue };
             let score = |r2: f64| libm::fabs(error_of(r1, r2));
             if let Some((leg, _)) = best_combination(series, q * r1, a, b, spec.combine, score) {
