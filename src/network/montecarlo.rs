@@ -40,8 +40,8 @@ pub const MAX_TRIALS: usize = 1_000_000;
 pub const MAX_BINS: usize = 1000;
 /// The percentiles reported, in %.
 pub const PERCENTILES: [f64; 7] = [0.1, 1.0, 5.0, 50.0, 95.0, 99.0, 99.9];
-/// Largest seed the JS number form accepts, 2⁵³ (every integer up to it is exact).
-pub const MAX_NUMBER_SEED: f64 = 9_007_199_254_740_992.0;
+/// Largest seed the JS number form accepts, 2⁵³ − 1 (`Number.MAX_SAFE_INTEGER`).
+pub const MAX_NUMBER_SEED: f64 = 9_007_199_254_740_991.0;
 
 /// How a part value is spread about its nominal.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -159,10 +159,10 @@ pub struct MonteCarloResult {
     pub stats: SampleStats,
 }
 
-/// A seed given as a JS number: an integer from 0 to 2⁵³.
+/// A seed given as a JS number: an integer from 0 to 2⁵³ − 1.
 ///
 /// # Errors
-/// `seed` not finite, negative, fractional or above 2⁵³.
+/// `seed` not finite, negative, fractional or above 2⁵³ − 1.
 ///
 /// # Example
 /// ```
@@ -173,7 +173,7 @@ pub struct MonteCarloResult {
 pub fn seed_from_number(seed: f64) -> Result<u64> {
     let s = check::non_negative("seed", seed)?;
     if s != libm::trunc(s) || s > MAX_NUMBER_SEED {
-        return Err(Error::OutOfDomain { param: "seed", requirement: "must be a whole number from 0 to 2^53" });
+        return Err(Error::OutOfDomain { param: "seed", requirement: "must be a whole number from 0 to 2^53 - 1" });
     }
     Ok(s as u64)
 }

@@ -128,7 +128,7 @@ pub fn worst_case(
 /// Monte Carlo of one quantity (`metric`: gain, input-impedance,
 /// output-impedance, bandwidth) of an op-amp stage. Distributions are "uniform"
 /// or "normal" (tolerance = k·σ; `k` for the resistors, `kGain` for the gain).
-/// `seed` is a whole number 0 … 2⁵³. Returns `{metric, seed, nominal, stats:
+/// `seed` is a whole number 0 … 2⁵³ − 1. Returns `{metric, seed, nominal, stats:
 /// {count, mean, sd, min, max, percentiles: [{percent, value}], yieldFraction,
 /// histogram: {edges, counts}}}`.
 #[wasm_bindgen(js_name = monteCarlo)]
