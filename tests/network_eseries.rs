@@ -35,8 +35,9 @@ struct Reference {
 }
 
 fn reference() -> Reference {
-    let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/reference/data/network_eseries.json"))
-        .expect("run tests/reference/network_eseries.py to write the reference data");
+    let text =
+        std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/reference/data/network_eseries.json"))
+            .expect("run tests/reference/network_eseries.py to write the reference data");
     serde_json::from_str(&text).expect("reference JSON")
 }
 

@@ -147,10 +147,17 @@ fn mean_and_sd_match_first_order_propagation() {
                 Distribution::Normal { k } => (s.a_max - s.a_min) / (2.0 * k),
             };
             let [d1, d2, da] = gain_partials(kind, s.r1, s.r2, a_mid);
-            let sd1 = ((d1 * sigma_r(s.tol_r1, s.r1)).powi(2) + (d2 * sigma_r(s.tol_r2, s.r2)).powi(2) + (da * sigma_a).powi(2)).sqrt();
+            let sd1 = ((d1 * sigma_r(s.tol_r1, s.r1)).powi(2)
+                + (d2 * sigma_r(s.tol_r2, s.r2)).powi(2)
+                + (da * sigma_a).powi(2))
+            .sqrt();
             let f0 = closed_form_gain(kind, s.r1, s.r2, a_mid);
             let mean_bound = 5.0 * sd1 / (n as f64).sqrt();
-            assert!((r.stats.mean - f0).abs() <= mean_bound, "{kind:?} {resistors:?}: mean {} vs {f0}, bound {mean_bound:e}", r.stats.mean);
+            assert!(
+                (r.stats.mean - f0).abs() <= mean_bound,
+                "{kind:?} {resistors:?}: mean {} vs {f0}, bound {mean_bound:e}",
+                r.stats.mean
+            );
             let sd_bound = 5.0 / (2.0 * n as f64).sqrt();
             assert!((r.stats.sd / sd1 - 1.0).abs() <= sd_bound, "{kind:?} {resistors:?}: sd {} vs {sd1}", r.stats.sd);
         }

@@ -58,7 +58,10 @@ fn small_tolerances_match_the_first_order_sum() {
         assert!((down / first_order - 1.0).abs() < 1e-4, "{kind:?}: down {down:e}, first order {first_order:e}");
         // The corner is where each partial pushes the gain up.
         let side = |d: f64| if d > 0.0 { End::High } else { End::Low };
-        assert_eq!((w.gain.max_corner.r1, w.gain.max_corner.r2, w.gain.max_corner.open_loop_gain), (side(d1), side(d2), side(da)));
+        assert_eq!(
+            (w.gain.max_corner.r1, w.gain.max_corner.r2, w.gain.max_corner.open_loop_gain),
+            (side(d1), side(d2), side(da))
+        );
     }
 }
 

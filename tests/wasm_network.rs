@@ -86,7 +86,10 @@ fn worst_case_names_the_corners() {
     let g = field(&w, "gain");
     let corner = field(&g, "minCorner");
     // |Af| is largest with R1 low, R2 high, A high (monotonic, see worstcase.rs).
-    assert_eq!((text(&corner, "r1"), text(&corner, "r2"), text(&corner, "openLoopGain")), ("low".into(), "high".into(), "high".into()));
+    assert_eq!(
+        (text(&corner, "r1"), text(&corner, "r2"), text(&corner, "openLoopGain")),
+        ("low".into(), "high".into(), "high".into())
+    );
     assert!(num(&g, "min") < num(&g, "nominal") && num(&g, "nominal") < num(&g, "max"));
     for name in ["inputImpedance", "outputImpedance", "bandwidthHz"] {
         let e = field(&w, name);
@@ -147,11 +150,34 @@ fn bad_input_throws_typed_errors() {
     assert_thrown(api::standard_value("E24", f64::NAN, "nearest"), "not_finite", "value");
     assert_thrown(api::parse_value("4k7k"), "out_of_domain", "text");
     assert_thrown(api::best_pairs("divider", 1.2, "E24", 1e3, 1e5, None, None, "none", 5.0), "out_of_domain", "target");
-    assert_thrown(api::worst_case("inverting", 10e3, 47e3, 0.0, 0.01, 5e4, 1e5, 2e5, 1e6, 75.0, 5.0), "out_of_domain", "tol_r1");
+    assert_thrown(
+        api::worst_case("inverting", 10e3, 47e3, 0.0, 0.01, 5e4, 1e5, 2e5, 1e6, 75.0, 5.0),
+        "out_of_domain",
+        "tol_r1",
+    );
     let mc = |trials: f64, seed: f64, k: f64| {
         api::monte_carlo(
-            "inverting", 10e3, 47e3, 0.01, 0.01, 5e4, 1e5, 2e5, 1e6, 75.0, 5.0, "normal", k, "uniform", 3.0, "gain",
-            trials, seed, None, None, 10.0,
+            "inverting",
+            10e3,
+            47e3,
+            0.01,
+            0.01,
+            5e4,
+            1e5,
+            2e5,
+            1e6,
+            75.0,
+            5.0,
+            "normal",
+            k,
+            "uniform",
+            3.0,
+            "gain",
+            trials,
+            seed,
+            None,
+            None,
+            10.0,
         )
     };
     assert_thrown(mc(1_000_001.0, 1.0, 3.0), "too_large", "trials");

@@ -100,7 +100,8 @@ pub enum Series {
 
 impl Series {
     /// All seven, coarsest first.
-    pub const ALL: [Series; 7] = [Series::E3, Series::E6, Series::E12, Series::E24, Series::E48, Series::E96, Series::E192];
+    pub const ALL: [Series; 7] =
+        [Series::E3, Series::E6, Series::E12, Series::E24, Series::E48, Series::E96, Series::E192];
 
     /// The name, e.g. `"E24"`.
     pub const fn name(self) -> &'static str {

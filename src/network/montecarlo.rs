@@ -439,7 +439,16 @@ pub fn sample_stats(samples: &mut [f64], lower: Option<f64>, upper: Option<f64>,
         let value = if frac > 0.0 { a + frac * (stat(lo + 1) - a) } else { a };
         Percentile { percent: PERCENTILES[j], value }
     });
-    Ok(SampleStats { count: n, mean, sd, min, max, percentiles, yield_fraction, histogram: Histogram { edges, counts } })
+    Ok(SampleStats {
+        count: n,
+        mean,
+        sd,
+        min,
+        max,
+        percentiles,
+        yield_fraction,
+        histogram: Histogram { edges, counts },
+    })
 }
 
 /// Put the order statistics at the sorted absolute indices `ks` (all within

@@ -278,7 +278,10 @@ pub fn letter_code(value: f64, digits: u32) -> Result<String> {
     let x = crate::check::positive("value", value)?;
     let digits = check_digits(digits)?;
     if !(1e-3..1e15).contains(&x) {
-        return Err(Error::OutOfDomain { param: "value", requirement: "must lie from 0.001 Ω up to (not including) 10¹⁵ Ω" });
+        return Err(Error::OutOfDomain {
+            param: "value",
+            requirement: "must lie from 0.001 Ω up to (not including) 10¹⁵ Ω",
+        });
     }
     let (m, e3) = engineering(x, digits);
     if e3 < 0 {

@@ -58,11 +58,16 @@ impl FromStr for Network {
     /// [`Error::UnknownName`] with `param = "network"`.
     fn from_str(s: &str) -> Result<Self> {
         let t = s.trim();
-        [("non-inverting", Network::NonInverting), ("noninverting", Network::NonInverting), ("inverting", Network::Inverting), ("divider", Network::Divider)]
-            .iter()
-            .find(|(n, _)| n.eq_ignore_ascii_case(t))
-            .map(|&(_, n)| n)
-            .ok_or(Error::UnknownName { param: "network", expected: NETWORK_NAMES })
+        [
+            ("non-inverting", Network::NonInverting),
+            ("noninverting", Network::NonInverting),
+            ("inverting", Network::Inverting),
+            ("divider", Network::Divider),
+        ]
+        .iter()
+        .find(|(n, _)| n.eq_ignore_ascii_case(t))
+        .map(|&(_, n)| n)
+        .ok_or(Error::UnknownName { param: "network", expected: NETWORK_NAMES })
     }
 }
 
@@ -127,11 +132,16 @@ impl FromStr for Combine {
     /// [`Error::UnknownName`] with `param = "combine"`.
     fn from_str(s: &str) -> Result<Self> {
         let t = s.trim();
-        [("none", Combine::None), ("series", Combine::Series), ("parallel", Combine::Parallel), ("either", Combine::Either)]
-            .iter()
-            .find(|(n, _)| n.eq_ignore_ascii_case(t))
-            .map(|&(_, c)| c)
-            .ok_or(Error::UnknownName { param: "combine", expected: COMBINE_NAMES })
+        [
+            ("none", Combine::None),
+            ("series", Combine::Series),
+            ("parallel", Combine::Parallel),
+            ("either", Combine::Either),
+        ]
+        .iter()
+        .find(|(n, _)| n.eq_ignore_ascii_case(t))
+        .map(|&(_, c)| c)
+        .ok_or(Error::UnknownName { param: "combine", expected: COMBINE_NAMES })
     }
 }
 
@@ -212,7 +222,17 @@ pub struct PairSpec {
 impl PairSpec {
     /// A spec with no fixed R1, no required error, single resistors and 10 candidates.
     pub fn new(network: Network, target: f64, series: Series, total_min: f64, total_max: f64) -> PairSpec {
-        PairSpec { network, target, series, total_min, total_max, fixed_r1: None, max_error: None, combine: Combine::None, count: 10 }
+        PairSpec {
+            network,
+            target,
+            series,
+            total_min,
+            total_max,
+            fixed_r1: None,
+            max_error: None,
+            combine: Combine::None,
+            count: 10,
+        }
     }
 }
 
@@ -236,10 +256,7 @@ pub struct PairResult {
 }
 
 fn by_error(a: &PairCandidate, b: &PairCandidate) -> Ordering {
-    libm::fabs(a.error)
-        .total_cmp(&libm::fabs(b.error))
-        .then(a.total.total_cmp(&b.total))
-        .then(a.r1.total_cmp(&b.r1))
+    libm::fabs(a.error).total_cmp(&libm::fabs(b.error)).then(a.total.total_cmp(&b.total)).then(a.r1.total_cmp(&b.r1))
 }
 
 fn validate_count(count: usize) -> Result<usize> {
@@ -274,7 +291,14 @@ fn r2_interval(r1: f64, total_min: f64, total_max: f64) -> Option<(f64, f64)> {
 
 /// Best two-resistor leg with value in [a, b] nearest `t` by the score `err`
 /// (smaller is better), over the joints `combine` allows.
-fn best_combination(series: Series, t: f64, a: f64, b: f64, combine: Combine, err: impl Fn(f64) -> f64) -> Option<(Leg, f64)> {
+fn best_combination(
+    series: Series,
+    t: f64,
+    a: f64,
+    b: f64,
+    combine: Combine,
+    err: impl Fn(f64) -> f64,
+) -> Option<(Leg, f64)> {
     let t = t.clamp(a, b);
     let mut best: Option<(Leg, f64)> = None;
     let mut consider = |leg: Leg| {
@@ -386,11 +410,8 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
     };
     for &r1 in &r1_values {
         let Some((a, b)) = r2_interval(r1, total_min, total_max) else { continue };
-        let best = around(series, q * r1, a, b)
-            .into_iter()
-            .flatten()
-            .map(|r2| make(r1, Leg::single(r2)))
-            .min_by(by_error);
+        let best =
+            around(series, q * r1, a, b).into_iter().flatten().map(|r2| make(r1, Leg::single(r2))).min_by(by_error);
         if let Some(c) = best {
             candidates.push(c);
         }
@@ -447,7 +468,12 @@ pub struct SingleCandidate {
 /// assert_eq!(c[0].leg.value, 0.051);
 /// assert!(single_resistor(-1.0, Series::E24, None, Combine::None).is_err());
 /// ```
-pub fn single_resistor(target: f64, series: Series, max_error: Option<f64>, combine: Combine) -> Result<Vec<SingleCandidate>> {
+pub fn single_resistor(
+    target: f64,
+    series: Series,
+    max_error: Option<f64>,
+    combine: Combine,
+) -> Result<Vec<SingleCandidate>> {
     let t = in_range("target", target)?;
     let max_error = validate_max_error(max_error)?;
     let score = |v: f64| libm::fabs(v / t - 1.0);

@@ -92,7 +92,10 @@ impl StageSpec {
         check::positive("tol_r2", self.tol_r2)?;
         for (p, t) in [("tol_r1", self.tol_r1), ("tol_r2", self.tol_r2)] {
             if t >= 1.0 {
-                return Err(Error::OutOfDomain { param: p, requirement: "must be less than 1 (a fraction: 0.01 for 1 %)" });
+                return Err(Error::OutOfDomain {
+                    param: p,
+                    requirement: "must be less than 1 (a fraction: 0.01 for 1 %)",
+                });
             }
         }
         check::positive("a_min", self.a_min)?;
