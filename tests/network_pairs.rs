@@ -41,11 +41,11 @@ proptest! {
     /// Every ranked candidate has the error of the brute force at the same rank,
     /// lies in the total range and reports its own error correctly.
     #[test]
-    fn search_equals_brute_force((network, target) in network_strategy(), series in series_strategy(), lo_exp in 2.0f64..4.0, span in 0.5f64..2.0) {
+    fn search_equals_brute_force((network, target) in network_strategy(), series in series_strategy(), lo_exp in 2.0f64..4.0, span in 0.05f64..2.0, count in 1usize..40) {
         let total_min = 10f64.powf(lo_exp);
         let total_max = total_min * 10f64.powf(span);
         let mut spec = PairSpec::new(network, target, series, total_min, total_max);
-        spec.count = 8;
+        spec.count = count;
         let fast = best_pairs(&spec).unwrap();
         // Every standard value that can be a leg: 1 mΩ … total_max.
         let slow = brute_force(&spec, 1e-3, total_max);

@@ -11,8 +11,11 @@
 //!   part zero or negative is drawn again (a truncation beyond k·(1/tol)
 //!   standard deviations, never reached for tolerances below 10 % and k ≥ 3).
 //!
-//! Generator: PCG-XSL-RR 128/64 (MCG) from the `rand_pcg` crate, seeded by
-//! `seed_from_u64`; uniform doubles from the top 53 bits; normal deviates by
+//! Generator: xoshiro256++ (D. Blackman & S. Vigna, "Scrambled linear
+//! pseudorandom number generators", ACM TOMS 47(4), 2021, from memory) from the
+//! `rand_xoshiro` crate, seeded by its `seed_from_u64` (SplitMix64); 64-bit integer
+//! operations only, which WebAssembly has natively. Uniform doubles from the top
+//! 53 bits; normal deviates by
 //! Marsaglia's polar form of the Box–Muller transform (G. Marsaglia & T. A. Bray,
 //! "A convenient method for generating normal variables", SIAM Review 6(3),
 //! 1964, from memory), with `libm::log` and `libm::sqrt`. Only IEEE-754 basic
@@ -26,13 +29,15 @@
 //! trials within the spec limits (inclusive); histogram of equal bins from the
 //! smallest to the largest value.
 
-use super::worstcase::{stage_gain, stage_metric, Metric, StageSpec};
+#[cfg(any(test, doc))]
+use super::worstcase::stage_gain;
+use super::worstcase::{stage_metric, Metric, Stage, StageSpec};
 use crate::check;
 use crate::error::{Error, Result};
 use alloc::vec::Vec;
 use core::str::FromStr;
 use rand_core::{RngCore, SeedableRng};
-use rand_pcg::Pcg64Mcg;
+use rand_xoshiro::Xoshiro256PlusPlus;
 
 /// Most trials one run may ask for.
 pub const MAX_TRIALS: usize = 1_000_000;
@@ -203,13 +208,13 @@ pub fn count_from_number(param: &'static str, x: f64, limit: usize) -> Result<us
 
 /// The generator and the spare normal deviate of the polar method.
 struct Draws {
-    rng: Pcg64Mcg,
+    rng: Xoshiro256PlusPlus,
     spare: Option<f64>,
 }
 
 impl Draws {
     fn new(seed: u64) -> Draws {
-        Draws { rng: Pcg64Mcg::seed_from_u64(seed), spare: None }
+        Draws { rng: Xoshiro256PlusPlus::seed_from_u64(seed), spare: None }
     }
 
     /// Uniform on [0, 1) with 53 random bits.
@@ -259,6 +264,23 @@ impl Draws {
             }
         }
     }
+}
+
+/// The closed-loop gain of the Monte Carlo inner loop: the operations of
+/// [`stage_gain`] (β = R1/(R1 + R2), T = A·β, D = 1 + T, Af = A/D, times
+/// −R2/(R1 + R2) when inverting) in the same order, so bit-identical to it, without
+/// the oscillation test of [`crate::feedback::closed_loop_gain`]: the parts are
+/// drawn positive, so D > 1 and the loop cannot oscillate. The test
+/// `inner_loop_gain_equals_the_feedback_relation` checks the identity.
+fn gain_of_positive_parts(stage: Stage, r1: f64, r2: f64, a: f64) -> Result<f64> {
+    let sum = r1 + r2;
+    let beta = r1 / sum;
+    let af = a / (1.0 + a * beta);
+    let v = match stage {
+        Stage::NonInverting => af,
+        Stage::Inverting => -(r2 / sum) * af,
+    };
+    check::result("gain", v)
 }
 
 fn validate_distribution(param: &'static str, d: Distribution) -> Result<Distribution> {
@@ -315,7 +337,7 @@ pub fn monte_carlo_samples(spec: &MonteCarloSpec) -> Result<Vec<f64>> {
         let r2 = draws.part(resistors, stage.r2, stage.tol_r2);
         let a = draws.gain(gain_dist, stage.a_min, stage.a_max);
         let v = if spec.metric == Metric::Gain {
-            stage_gain(stage.stage, r1, r2, a)?
+            gain_of_positive_parts(stage.stage, r1, r2, a)?
         } else {
             stage_metric(&stage, spec.metric, r1, r2, a)?
         };
@@ -478,7 +500,6 @@ impl FromStr for Distribution {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::network::worstcase::Stage;
 
     fn spec() -> MonteCarloSpec {
         MonteCarloSpec {
@@ -564,6 +585,22 @@ mod tests {
         assert_eq!(monte_carlo(&s).unwrap_err().param(), "bins");
         assert_eq!(seed_from_number(-1.0).unwrap_err().param(), "seed");
         assert_eq!("lognormal".parse::<Distribution>().unwrap_err().param(), "distribution");
+    }
+
+    #[test]
+    fn inner_loop_gain_equals_the_feedback_relation() {
+        // Identity: the inlined gain is bit-identical to the one built on
+        // crate::feedback::closed_loop_gain, over a spread of positive parts.
+        let mut d = Draws::new(5);
+        for _ in 0..20_000 {
+            let r1 = libm::pow(10.0, 6.0 * d.unit());
+            let r2 = libm::pow(10.0, 6.0 * d.unit());
+            let a = libm::pow(10.0, 1.0 + 6.0 * d.unit());
+            for stage in [Stage::NonInverting, Stage::Inverting] {
+                let fast = gain_of_positive_parts(stage, r1, r2, a).unwrap();
+                assert_eq!(fast.to_bits(), stage_gain(stage, r1, r2, a).unwrap().to_bits(), "{r1} {r2} {a}");
+            }
+        }
     }
 
     #[test]

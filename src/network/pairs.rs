@@ -13,10 +13,12 @@
 //! maximum, the best R2 is one of the two standard values around q·R1 (the error
 //! is monotonic in R2), clamped into the R2 interval the total-resistance range
 //! leaves. Those are found by rank arithmetic on the decade table in O(1), so the
-//! whole search is O(number of R1 values) — at most 30 decades of the series. The
-//! good candidates have R1 in the window [total_min/(1 + q·s), total_max/(1 + q/s)],
-//! s the series' largest step (outside it every allowed R2 misses q by more than a
-//! whole step); two-resistor legs are tried for R1 in that window. A leg made of
+//! whole search is O(number of R1 values). The good candidates have R1 in the
+//! window [total_min/(1 + q·s), total_max/(1 + q/s)], s the series' largest step:
+//! outside it every allowed R2 gives a ratio beyond q·s or q/s. The window is
+//! scanned first; the rest (at most 30 decades) only when the window's `count`-th
+//! candidate is not already better than that bound, so the ranking is exact.
+//! Two-resistor legs are tried for R1 in the window. A leg made of
 //! two resistors (series or parallel) is searched the same way: one part runs over
 //! its half-range ([T/2, T] for series, (T, 2T] for parallel) and the other is
 //! rounded down and up to complete T.
@@ -386,21 +388,6 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
     let (series, network, target) = (spec.series, spec.network, spec.target);
     let error_of = |r1: f64, r2: f64| network.value(r1, r2, target) / target - 1.0;
 
-    // R1 values: the fixed one, or every standard value below total_max (at most
-    // 30 decades, O(1) each). Two-resistor legs are tried for the window only.
-    let ranks = |lo: f64, hi: f64| -> Vec<f64> {
-        let (lo, hi) = (lo.clamp(MIN_VALUE, MAX_VALUE), hi.clamp(MIN_VALUE, MAX_VALUE));
-        (series.ceil_rank(lo)..=series.floor_rank(hi)).map(|n| series.value_at(n)).collect()
-    };
-    let (r1_values, r1_window): (Vec<f64>, Vec<f64>) = match fixed_r1 {
-        Some(r) => (alloc::vec![r], alloc::vec![r]),
-        None => {
-            let s = series.max_step();
-            (ranks(MIN_VALUE, total_max), ranks(total_min / (1.0 + q * s), total_max / (1.0 + q / s)))
-        }
-    };
-
-    let mut candidates: Vec<PairCandidate> = Vec::new();
     let make = |r1: f64, r2: Leg| PairCandidate {
         r1,
         r2,
@@ -408,14 +395,49 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
         error: error_of(r1, r2.value),
         total: r1 + r2.value,
     };
-    for &r1 in &r1_values {
-        let Some((a, b)) = r2_interval(r1, total_min, total_max) else { continue };
-        let best =
-            around(series, q * r1, a, b).into_iter().flatten().map(|r2| make(r1, Leg::single(r2))).min_by(by_error);
-        if let Some(c) = best {
-            candidates.push(c);
+    // The best single-resistor R2 for each R1 of a rank range.
+    let scan = |first: i64, last: i64, out: &mut Vec<PairCandidate>| {
+        for r1 in (first..=last).map(|n| series.value_at(n)) {
+            let Some((a, b)) = r2_interval(r1, total_min, total_max) else { continue };
+            let best =
+                around(series, q * r1, a, b).into_iter().flatten().map(|r2| make(r1, Leg::single(r2))).min_by(by_error);
+            out.extend(best);
         }
-    }
+    };
+
+    // R1: the fixed one; or the window first, then every other standard value
+    // below total_max (at most 30 decades) unless the window's candidates already
+    // beat the bound that every R1 outside it misses by (ratio beyond q·s or q/s).
+    let mut candidates: Vec<PairCandidate> = Vec::new();
+    let r1_window: Vec<f64> = match fixed_r1 {
+        Some(r1) => {
+            if let Some((a, b)) = r2_interval(r1, total_min, total_max) {
+                candidates
+                    .extend(around(series, q * r1, a, b).into_iter().flatten().map(|r2| make(r1, Leg::single(r2))));
+            }
+            alloc::vec![r1]
+        }
+        None => {
+            let s = series.max_step();
+            let clamp = |x: f64| x.clamp(MIN_VALUE, MAX_VALUE);
+            let (all_first, all_last) = (series.ceil_rank(MIN_VALUE), series.floor_rank(clamp(total_max)));
+            let w_first = series.ceil_rank(clamp(total_min / (1.0 + q * s)));
+            let w_last = series.floor_rank(clamp(total_max / (1.0 + q / s))).min(all_last);
+            scan(w_first, w_last, &mut candidates);
+            candidates.sort_by(by_error);
+            let outside_bound = libm::fabs(error_of(1.0, q * s)).min(libm::fabs(error_of(1.0, q / s)));
+            let settled = candidates.get(count - 1).is_some_and(|c| libm::fabs(c.error) <= outside_bound);
+            if !settled {
+                if w_first > w_last {
+                    scan(all_first, all_last, &mut candidates);
+                } else {
+                    scan(all_first, w_first - 1, &mut candidates);
+                    scan(w_last + 1, all_last, &mut candidates);
+                }
+            }
+            (w_first..=w_last).map(|n| series.value_at(n)).collect()
+        }
+    };
     candidates.sort_by(by_error);
 
     let good_enough = |c: Option<&PairCandidate>| match (c, max_error) {
