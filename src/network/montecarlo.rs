@@ -604,6 +604,31 @@ mod tests {
     }
 
     #[test]
+    fn polar_method_gives_standard_normal_quantiles() {
+        // Standard normal quantiles z(0.95) = 1.644854, z(0.99) = 2.326348,
+        // z(0.999) = 3.090232 (Abramowitz & Stegun, *Handbook of Mathematical
+        // Functions*, 1964, table 26.5, from memory). Bound: 5 standard errors of a
+        // sample quantile, √(p(1 − p)/n)/φ(z).
+        let n = 200_000;
+        let mut d = Draws::new(31);
+        let mut x: Vec<f64> = (0..n).map(|_| d.normal()).collect();
+        let s = sample_stats(&mut x, Some(-1.0), Some(1.0), 10).unwrap();
+        let phi = |z: f64| libm::exp(-0.5 * z * z) / libm::sqrt(2.0 * core::f64::consts::PI);
+        for (idx, p, z) in [(3, 0.5, 0.0), (4, 0.95, 1.644_854), (5, 0.99, 2.326_348), (6, 0.999, 3.090_232)] {
+            let se = libm::sqrt(p * (1.0 - p) / n as f64) / phi(z);
+            assert!((s.percentiles[idx].value - z).abs() < 5.0 * se, "p{p}: {}", s.percentiles[idx].value);
+            assert!((s.percentiles[6 - idx].value + z).abs() < 5.0 * se, "mirror of p{p}");
+        }
+        // Within ±1σ: 0.682689 (same table), binomial bound.
+        let y = s.yield_fraction.unwrap();
+        assert!((y - 0.682_689).abs() < 5.0 * libm::sqrt(0.2167 / n as f64), "{y}");
+        assert!(
+            libm::fabs(s.mean) < 5.0 / libm::sqrt(n as f64)
+                && libm::fabs(s.sd - 1.0) < 5.0 / libm::sqrt(2.0 * n as f64)
+        );
+    }
+
+    #[test]
     fn constant_sample_has_one_full_bin() {
         let mut x = [3.0; 10];
         let s = sample_stats(&mut x, Some(3.0), Some(3.0), 4).unwrap();
