@@ -7,6 +7,7 @@
 //! One file per catalog area.
 
 pub mod feedback;
+pub mod network;
 pub mod noise;
 pub mod nonlinear;
 
