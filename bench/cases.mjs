@@ -39,4 +39,22 @@ export const CASES = [
     },
     target: 'within 2x of inline plain JS',
   },
+  {
+    key: 'monte_carlo_1e6',
+    area: 'network',
+    what: 'Monte Carlo, 1 000 000 trials of Af (2 resistors 1 % + A spread), stats, percentiles, yield, histogram',
+    make: (lw) => () => lw.monteCarlo('inverting', 10e3, 47e3, 0.01, 0.01, 5e4, 1e5, 2e5, 1e6, 75, 5,
+      'uniform', 3, 'uniform', 3, 'gain', 1_000_000, 42, -4.72, -4.68, 50),
+    python: true,
+    pythonLabel: 'numpy, vectorised',
+    heavy: true,
+    target: 'at least as fast as numpy; < 50 ms',
+  },
+  {
+    key: 'best_pairs_e192',
+    area: 'network',
+    what: 'best E192 resistor pair for gain 7.77 over three decades (1 kΩ … 1 MΩ)',
+    make: (lw) => () => lw.bestPairs('non-inverting', 7.77, 'E192', 1e3, 1e6, undefined, undefined, 'none', 10),
+    target: '< 2 ms',
+  },
 ];

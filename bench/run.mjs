@@ -76,7 +76,7 @@ say();
 say('| area | case | loopwright (wasm, Node) | peer | peer time | loopwright ÷ peer | target |');
 say('|---|---|---|---|---|---|---|');
 for (const c of CASES) {
-  const ours = timeIt(c.make(lw), { quick });
+  const ours = timeIt(c.make(lw), { quick, ...(c.heavy ? { minSampleMs: 1, samples: quick ? 1 : 7 } : {}) });
   const peers = [];
   if (c.plainJs) peers.push(['plain JS', timeIt(c.plainJs(), { quick })]);
   if (c.python) {
