@@ -62,7 +62,7 @@ test('bad input shows an error in place and keeps what was typed', async () => {
   const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
   await retype(page, '#card-stage-beta', 'ten');
   assert.equal(await page.getAttribute('#card-stage-beta', 'aria-invalid'), 'true');
-  assert.match(await page.locator('#card-stage-beta-hint').textContent(), /not a number/);
+  assert.match(await page.locator("#card-stage-beta-hint").textContent(), /must be a number/);
   assert.equal(await page.inputValue('#card-stage-beta'), 'ten');
   // A·β = −1: the oscillation condition is named on the β cell (100k · −10µ = −1).
   await retype(page, '#card-stage-beta', '-10u');
@@ -74,7 +74,7 @@ test('bad input shows an error in place and keeps what was typed', async () => {
   // Script-like text renders as text and runs nothing.
   await retype(page, '#card-inverse-a', '<img src=x onerror=alert(1)>');
   assert.equal(await page.locator('#card-inverse img').count(), 0);
-  assert.match(await page.locator('#card-inverse-a-hint').textContent(), /not a number/);
+  assert.match(await page.locator("#card-inverse-a-hint").textContent(), /must be a number/);
   await page.screenshot({ path: join(ARTIFACTS, 'page-errors.png'), fullPage: true });
   assert.deepEqual(problems, []);
   await context.close();

@@ -4,16 +4,29 @@
 // - inputs: [{name, label, unit, value, choices?}]; `unit` is text or a function
 //   (values, api) => text; `name` is the core's parameter
 //   name, so a thrown error's `param` points at the cell that caused it;
-// - compute(values, api): returns [{label, value, unit, format?}] or throws.
+// - compute(values, api): returns rows [{name, label, value, unit, format?, text?}]
+//   or {rows, figures: [{svg, name}]}, or throws (a LoopwrightError's `param`
+//   marks the input cell at fault).
 
 import { el, clear } from './dom.js';
-import { parseEngineering, formatEngineering, formatPlain } from './format.js';
+import { formatEngineering, formatPlain } from './format.js';
 import { CLASS } from './constants.js';
+import { saveSvg, savePng } from './plot/export.js';
+
+/**
+ * A number as typed in a cell, read by the core's parser (SI prefixes, IEC 60062
+ * letter codes, unit words); a trailing % divides by 100.
+ */
+export function parseNumber(text, api) {
+  const t = String(text).trim();
+  return t.endsWith('%') ? api.parseValue(t.slice(0, -1)) / 100 : api.parseValue(t);
+}
 
 export function mountCard(host, def, api) {
   const inputs = new Map();
   const results = el('dl', { class: CLASS.results, 'aria-live': 'polite' });
   const message = el('p', { class: CLASS.cardMessage, role: 'status' });
+  const figures = el('div', { class: 'card-figures' });
 
   const grid = el('div', { class: CLASS.inputs });
   for (const input of def.inputs) {
@@ -43,7 +56,8 @@ export function mountCard(host, def, api) {
     grid,
     el('pre', { class: CLASS.formula, 'aria-label': 'formula' }, def.formula),
     message,
-    results);
+    results,
+    figures);
   host.append(card);
 
   function recompute() {
@@ -56,13 +70,12 @@ export function mountCard(host, def, api) {
         values[name] = control.value;
         continue;
       }
-      const parsed = parseEngineering(control.value);
-      if ('error' in parsed) {
-        hint.textContent = parsed.error;
+      try {
+        values[name] = parseNumber(control.value, api);
+      } catch (err) {
+        hint.textContent = `"${control.value.trim()}" ${err.message.replace(/^text: /, '')}`;
         control.setAttribute('aria-invalid', 'true');
         bad = true;
-      } else {
-        values[name] = parsed.value;
       }
     }
     for (const { def: input, unit } of inputs.values()) {
@@ -73,12 +86,20 @@ export function mountCard(host, def, api) {
     message.textContent = '';
     delete message.dataset.code;
     clear(results);
+    clear(figures);
     if (bad) {
       message.textContent = 'Fix the marked cell to see results.';
       return;
     }
     try {
-      for (const row of def.compute(values, api)) {
+      const out = def.compute(values, api);
+      const rows = Array.isArray(out) ? out : out.rows;
+      for (const fig of (Array.isArray(out) ? [] : out.figures ?? [])) {
+        figures.append(fig.svg, el('div', { class: 'plot-tools' },
+          el('button', { type: 'button', onclick: () => saveSvg(fig.svg, fig.name) }, 'SVG'),
+          el('button', { type: 'button', onclick: () => savePng(fig.svg, fig.name) }, 'PNG')));
+      }
+      for (const row of rows) {
         const text = row.text ?? (row.format === 'plain' ? formatPlain(row.value) : formatEngineering(row.value));
         results.append(
           el('dt', {}, row.label),

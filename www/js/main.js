@@ -4,6 +4,7 @@
 import init, * as api from '../pkg/loopwright.js';
 import { mountCard } from './card.js';
 import { FEEDBACK_CARDS } from './cards/feedback.js';
+import { NETWORK_CARDS } from './cards/network.js';
 import { mountWorksheet } from './sheet/worksheet.js';
 import { wasmSource } from './wasm-source.js';
 
@@ -39,9 +40,9 @@ async function start() {
     return;
   }
   const host = document.getElementById('cards');
-  for (const def of FEEDBACK_CARDS) mountCard(host, def, api);
+  for (const def of [...FEEDBACK_CARDS, ...NETWORK_CARDS]) mountCard(host, def, api);
   performance.mark('loopwright-first-result');
-  await mountWorksheet(document.getElementById('worksheet'), api);
+  if (api.Worksheet) await mountWorksheet(document.getElementById('worksheet'), api);
   if (location.search.includes('view=sheet')) select(document.getElementById('tab-sheet'));
   status.textContent = `Core ${api.version()} loaded.`;
   status.dataset.state = 'ready';
