@@ -177,3 +177,34 @@ test('embedding: the custom element and the frame work under a strict CSP', asyn
     rootServer.close();
   }
 });
+
+test('every card computes its defaults, and the area cards show closed-form values', async () => {
+  const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
+  const cards = await page.locator('section.card').evaluateAll((els) => els.map((e) => e.id));
+  assert.ok(cards.length >= 9, `cards: ${cards}`);
+  for (const id of cards) {
+    assert.equal(await page.locator(`#${id} .card-message`).textContent(), '', `${id} shows an error`);
+    assert.ok(await page.locator(`#${id} dd`).count() > 0, `${id} shows no results`);
+  }
+  // Full-power bandwidth SR/(2π·Vp) = 20 V/µs / (2π · 10 V) = 318.3 kHz.
+  assert.equal(await result(page, 'card-slew', 'fpbw'), '318.3k');
+  // Largest peak at 100 kHz: 20e6/(2π·1e5) = 31.83 V.
+  assert.equal(await result(page, 'card-slew', 'vmax'), '31.83');
+  // Noise gain 1 + Rf/Rg = 1 + 9.09k/1k = 10.09.
+  assert.equal(await result(page, 'card-noise', 'ng'), '10.09');
+  // D = 1 + a1·β = 1 + 10k·0.01 = 101; HD2 falls by D²/D³ at equal output: 1/101.
+  assert.equal(await result(page, 'card-distortion', 'd'), '101');
+  assert.equal(await result(page, 'card-distortion', 'hd2ratio'), (1 / 101).toPrecision(6));
+  // Resistor pair: non-inverting 7.77 needs R2/R1 = 6.77.
+  assert.equal(await result(page, 'card-pairs', 'ideal'), '6.77');
+  // Worst case: the lowest gain is at R1 high, R2 low, A low (gain 1 + R2/R1 falls).
+  assert.equal(await result(page, 'card-worst', 'mincorner'), 'R1 high, R2 low, A low');
+  // Monte Carlo: a histogram is drawn with both spec limits.
+  assert.equal(await page.locator('#card-montecarlo svg .plot-marker-limit').count(), 2);
+  // A bad tolerance names the cell.
+  await retype(page, '#card-worst-tol', '-1%');
+  assert.equal(await page.getAttribute('#card-worst-tol', 'aria-invalid'), 'true');
+  await page.screenshot({ path: join(ARTIFACTS, 'page-all-cards.png'), fullPage: true });
+  assert.deepEqual(problems, []);
+  await context.close();
+});

@@ -1,12 +1,13 @@
 // A calculator card: named input cells, the formula as text, result cells.
 //
-// A card definition is {id, title, blurb, formula, inputs, compute}:
+// A card definition is {id, title, blurb, formula, inputs, compute, aliases?}:
 // - inputs: [{name, label, unit, value, choices?}]; `unit` is text or a function
 //   (values, api) => text; `name` is the core's parameter
 //   name, so a thrown error's `param` points at the cell that caused it;
 // - compute(values, api): returns rows [{name, label, value, unit, format?, text?}]
 //   or {rows, figures: [{svg, name}]}, or throws (a LoopwrightError's `param`
-//   marks the input cell at fault).
+//   marks the input cell at fault; `aliases` maps a core parameter name to the
+//   input that feeds it when the names differ).
 
 import { el, clear } from './dom.js';
 import { formatEngineering, formatPlain } from './format.js';
@@ -107,7 +108,7 @@ export function mountCard(host, def, api) {
             el('output', {}, text), row.unit ? el('span', { class: CLASS.cellUnit }, ` ${row.unit}`) : null));
       }
     } catch (err) {
-      const target = err && inputs.get(err.param);
+      const target = err && inputs.get(def.aliases?.[err.param] ?? err.param);
       if (target) {
         target.hint.textContent = err.message;
         target.control.setAttribute('aria-invalid', 'true');

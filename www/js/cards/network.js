@@ -52,6 +52,7 @@ export const worstCaseCard = {
   blurb: 'Extremes of the closed-loop gain over every corner of resistor tolerance and open-loop gain (op-amp stage, 1 MΩ input, 75 Ω output, 10 Hz dominant pole).',
   formula: 'corners: R1 ± tol, R2 ± tol, A ∈ {A min, A max}\nAf = A/(1 + A·β), β = R1/(R1 + R2)',
   inputs: stageInputs,
+  aliases: { tol_r1: 'tol', tol_r2: 'tol' },
   compute(v, api) {
     const w = api.worstCase(v.stage, v.r1, v.r2, v.tol, v.tol, v.a_min, v.a_typ, v.a_max, 1e6, 75, 10);
     const corner = (c) => `R1 ${c.r1}, R2 ${c.r2}, A ${c.openLoopGain}`;
@@ -79,6 +80,7 @@ export const monteCarloCard = {
     { name: 'lower', label: 'Spec low', value: '39.8' },
     { name: 'upper', label: 'Spec high', value: '40.2' },
   ],
+  aliases: { tol_r1: 'tol', tol_r2: 'tol' },
   compute(v, api) {
     const r = api.monteCarlo(v.stage, v.r1, v.r2, v.tol, v.tol, v.a_min, v.a_typ, v.a_max, 1e6, 75, 10,
       'uniform', 3, 'uniform', 3, 'gain', v.trials, v.seed, v.lower, v.upper, 40);

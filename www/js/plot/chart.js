@@ -2,8 +2,8 @@
 // Bode, response and step plots, add nothing to download, and need no inline
 // styles, so they work under the page's strict content security policy).
 //
-// lineChart({title, width, height, x: {label, log}, y: {label, domain?},
-//            series: [{label, x, y, kind}], markers: [{kind, x?, y?, label}]})
+// lineChart({title, width, height, x: {label, log}, y: {label, log?, domain?},
+//            series: [{label, x, y, kind}], markers: [{kind, x?, y?, label, align?}]})
 // returns an <svg> element. Series and markers are styled by CSS classes
 // (plot-series-<kind>, plot-marker-<kind>), so the look stays in the stylesheet.
 
@@ -30,10 +30,15 @@ export function lineChart({ title, width = 640, height = 260, x, y, series, mark
   let xTicks;
   if (x.log) ({ ticks: xTicks, domain: xDomain } = decadeTicks(...xDomain));
   else { xDomain = niceDomain(...xDomain); xTicks = linearTicks(...xDomain).ticks; }
-  const yDomain = y.domain ?? niceDomain(...extent(series.map((s) => s.y)));
-  const yTicks = linearTicks(...yDomain, 5).ticks;
+  let yDomain;
+  let yTicks;
+  if (y.log) ({ ticks: yTicks, domain: yDomain } = decadeTicks(...(y.domain ?? extent(series.map((s) => s.y), true))));
+  else {
+    yDomain = y.domain ?? niceDomain(...extent(series.map((s) => s.y)));
+    yTicks = linearTicks(...yDomain, 5).ticks;
+  }
   const sx = makeScale(xDomain, [inner.x0, inner.x1], x.log);
-  const sy = makeScale(yDomain, [inner.y0, inner.y1]);
+  const sy = makeScale(yDomain, [inner.y0, inner.y1], y.log);
 
   const grid = svg('g', { class: 'plot-grid' });
   for (const t of xTicks) {
@@ -81,7 +86,7 @@ function pathOf(xs, ys, sx, sy) {
   let d = '';
   let pen = false;
   for (let i = 0; i < xs.length; i++) {
-    const ok = Number.isFinite(xs[i]) && Number.isFinite(ys[i]) && (!sx.log || xs[i] > 0);
+    const ok = Number.isFinite(xs[i]) && Number.isFinite(ys[i]) && (!sx.log || xs[i] > 0) && (!sy.log || ys[i] > 0);
     if (!ok) { pen = false; continue; }
     d += `${pen ? 'L' : 'M'}${sx(xs[i]).toFixed(1)},${sy(ys[i]).toFixed(1)}`;
     pen = true;
@@ -94,7 +99,10 @@ function marker(m, sx, sy, inner) {
   if (m.x !== undefined && m.y === undefined) {
     const px = sx(m.x).toFixed(1);
     g.append(svg('line', { x1: px, x2: px, y1: inner.y1, y2: inner.y0 }));
-    if (m.label) g.append(svg('text', { x: Number(px) + 4, y: inner.y1 + 12 }, m.label));
+    if (m.label) {
+      const left = m.align === 'left';
+      g.append(svg('text', { x: Number(px) + (left ? -4 : 4), y: inner.y1 + 12, 'text-anchor': left ? 'end' : 'start' }, m.label));
+    }
   } else if (m.y !== undefined && m.x === undefined) {
     const py = sy(m.y).toFixed(1);
     g.append(svg('line', { x1: inner.x0, x2: inner.x1, y1: py, y2: py }));
