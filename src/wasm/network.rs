@@ -5,6 +5,34 @@ use crate::network::montecarlo::count_from_number;
 use crate::network::{self as nw, Distribution, Metric, MonteCarloSpec, PairSpec, Stage, StageSpec};
 use wasm_bindgen::prelude::*;
 
+#[wasm_bindgen(typescript_custom_section)]
+const TYPES: &str = r#"
+export type SeriesName = "E3" | "E6" | "E12" | "E24" | "E48" | "E96" | "E192";
+export interface StandardNeighbours { series: SeriesName; down: number; up: number; nearest: number; error: number; tolerance: number; }
+/** One leg of a network: a single standard value, or two in series or parallel. */
+export interface ResistorLeg { value: number; first: number; second: number | null; joint: "single" | "series" | "parallel"; }
+export interface PairCandidate { r1: number; r2: ResistorLeg; achieved: number; error: number; total: number; }
+export interface PairResult {
+  network: "non-inverting" | "inverting" | "divider";
+  target: number; idealRatio: number; candidates: PairCandidate[]; meetsMaxError: boolean;
+}
+export interface SingleCandidate { leg: ResistorLeg; error: number; }
+export type End = "low" | "high";
+export interface Corner { r1: End; r2: End; openLoopGain: End; }
+export interface Extremes { nominal: number; min: number; max: number; minCorner: Corner; maxCorner: Corner; lowPercent: number; highPercent: number; }
+export interface WorstCase { gain: Extremes; inputImpedance: Extremes; outputImpedance: Extremes; bandwidthHz: Extremes; }
+export interface Percentile { percent: number; value: number; }
+export interface SampleStats {
+  count: number; mean: number; sd: number; min: number; max: number;
+  percentiles: Percentile[]; yieldFraction: number | null;
+  histogram: { edges: number[]; counts: number[] };
+}
+export interface MonteCarloResult {
+  metric: "gain" | "input-impedance" | "output-impedance" | "bandwidth";
+  seed: number; nominal: number; stats: SampleStats;
+}
+"#;
+
 /// The series' values from `low` to `high` inclusive (Float64Array).
 #[wasm_bindgen(js_name = seriesValues)]
 pub fn series_values(series: &str, low: f64, high: f64) -> Result<Box<[f64]>, JsValue> {
@@ -19,7 +47,7 @@ pub fn standard_value(series: &str, value: f64, rounding: &str) -> Result<f64, J
 }
 
 /// `{series, down, up, nearest, error, tolerance}` around a value.
-#[wasm_bindgen(js_name = standardNeighbours)]
+#[wasm_bindgen(js_name = standardNeighbours, unchecked_return_type = "StandardNeighbours")]
 pub fn standard_neighbours(series: &str, value: f64) -> Result<JsValue, JsValue> {
     to_js(&throw(nw::neighbours(throw(series.parse())?, value))?)
 }
@@ -52,7 +80,7 @@ pub fn letter_code(value: f64, digits: u32) -> Result<String, JsValue> {
 /// candidates: [{r1, r2: {value, first, second, joint}, achieved, error, total}]}`.
 /// `network` is non-inverting, inverting or divider; `combine` none, series,
 /// parallel or either; `fixedR1` and `maxError` may be undefined.
-#[wasm_bindgen(js_name = bestPairs)]
+#[wasm_bindgen(js_name = bestPairs, unchecked_return_type = "PairResult")]
 #[allow(clippy::too_many_arguments)]
 pub fn best_pairs(
     network: &str,
@@ -80,7 +108,7 @@ pub fn best_pairs(
 }
 
 /// One resistance (transresistance or sense resistor): `[{leg, error}]`.
-#[wasm_bindgen(js_name = singleResistor)]
+#[wasm_bindgen(js_name = singleResistor, unchecked_return_type = "SingleCandidate[]")]
 pub fn single_resistor(target: f64, series: &str, max_error: Option<f64>, combine: &str) -> Result<JsValue, JsValue> {
     to_js(&throw(nw::single_resistor(target, throw(series.parse())?, max_error, throw(combine.parse())?))?)
 }
@@ -106,7 +134,7 @@ fn stage_spec(
 /// Worst case of an op-amp stage: `{gain, inputImpedance, outputImpedance,
 /// bandwidthHz}`, each `{nominal, min, max, minCorner, maxCorner, lowPercent,
 /// highPercent}` with corners `{r1, r2, openLoopGain}` of "low"/"high".
-#[wasm_bindgen(js_name = worstCase)]
+#[wasm_bindgen(js_name = worstCase, unchecked_return_type = "WorstCase")]
 #[allow(clippy::too_many_arguments)]
 pub fn worst_case(
     stage: &str,
@@ -131,7 +159,7 @@ pub fn worst_case(
 /// `seed` is a whole number 0 … 2⁵³ − 1. Returns `{metric, seed, nominal, stats:
 /// {count, mean, sd, min, max, percentiles: [{percent, value}], yieldFraction,
 /// histogram: {edges, counts}}}`.
-#[wasm_bindgen(js_name = monteCarlo)]
+#[wasm_bindgen(js_name = monteCarlo, unchecked_return_type = "MonteCarloResult")]
 #[allow(clippy::too_many_arguments)]
 pub fn monte_carlo(
     stage: &str,

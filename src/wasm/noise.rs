@@ -10,6 +10,22 @@ use super::{throw, to_js};
 use crate::noise::{self as nz, AmplifierNoise, ClosedLoopResponse, Stage, StageKind};
 use wasm_bindgen::prelude::*;
 
+#[wasm_bindgen(typescript_custom_section)]
+const TYPES: &str = r#"
+export interface NoiseContributions {
+  frequencyHz: number; noiseGain: number; signalGain: number;
+  rFeedback: number; rGain: number; rPlus: number;
+  amplifierVoltage: number; amplifierCurrentPlus: number; amplifierCurrentMinus: number;
+  total: number; inputReferred: number;
+}
+export interface IntegratedNoise {
+  outputRms: number; inputReferredRms: number; fLow: number; fHigh: number | null;
+  noiseGain: number; signalGain: number; loopCrossoverHz: number; bandwidthHz: number;
+  noiseBandwidthHz: number; singlePoleNoiseBandwidthHz: number; singlePoleEstimateRms: number; relativeError: number;
+}
+export interface NoiseSweep { frequencies: Float64Array; outputDensity: Float64Array; inputReferredDensity: Float64Array; }
+"#;
+
 fn stage(kind: &str, r_feedback: f64, r_gain: f64, r_plus: f64, temperature_k: f64) -> Result<Stage, JsValue> {
     let kind: StageKind = throw(kind.parse())?;
     throw(Stage::new(kind, r_feedback, r_gain, r_plus, temperature_k))
@@ -31,7 +47,7 @@ pub fn thermal_noise_current_density(resistance_ohm: f64, temperature_k: f64) ->
 /// response): `{frequencyHz, noiseGain, signalGain, rFeedback, rGain, rPlus,
 /// amplifierVoltage, amplifierCurrentPlus, amplifierCurrentMinus, total,
 /// inputReferred}`, V/√Hz.
-#[wasm_bindgen(js_name = stageNoiseContributions)]
+#[wasm_bindgen(js_name = stageNoiseContributions, unchecked_return_type = "NoiseContributions")]
 #[allow(clippy::too_many_arguments)]
 pub fn stage_noise_contributions(
     kind: &str,
@@ -54,7 +70,7 @@ pub fn stage_noise_contributions(
 /// fLow, fHigh (null when unbounded), noiseGain, signalGain, loopCrossoverHz,
 /// bandwidthHz, noiseBandwidthHz, singlePoleNoiseBandwidthHz,
 /// singlePoleEstimateRms, relativeError}`.
-#[wasm_bindgen(js_name = integratedNoise)]
+#[wasm_bindgen(js_name = integratedNoise, unchecked_return_type = "IntegratedNoise")]
 #[allow(clippy::too_many_arguments)]
 pub fn integrated_noise(
     kind: &str,
@@ -79,7 +95,7 @@ pub fn integrated_noise(
 
 /// Output and input-referred density over log-spaced frequencies: Float64Arrays
 /// `frequencies, outputDensity, inputReferredDensity`.
-#[wasm_bindgen(js_name = noiseDensitySweep)]
+#[wasm_bindgen(js_name = noiseDensitySweep, unchecked_return_type = "NoiseSweep")]
 #[allow(clippy::too_many_arguments)]
 pub fn noise_density_sweep(
     kind: &str,

@@ -7,6 +7,26 @@ use super::{throw, to_js};
 use crate::nonlinear::{self as nl, AmplitudeAt, PowerSeries};
 use wasm_bindgen::prelude::*;
 
+#[wasm_bindgen(typescript_custom_section)]
+const TYPES: &str = r#"
+/** Coefficients of y = a1·x + a2·x² + a3·x³. */
+export interface PowerSeries { a1: number; a2: number; a3: number; }
+export interface Distortion { inputAmplitude: number; outputAmplitude: number; hd2: number; hd3: number; }
+export interface FeedbackDistortion {
+  closedSeries: PowerSeries; feedbackAmount: number; amplitudeAt: "input" | "output";
+  open: Distortion; closed: Distortion; hd2Ratio: number | null; hd3Ratio: number | null;
+}
+export interface Spectrum { inputAmplitude: number; dc: number; harmonics: number[]; hd2: number; hd3: number; thd: number; samples: number; }
+export interface SeriesCheck {
+  inputAmplitude: number; seriesHd2: number; seriesHd3: number; numericHd2: number; numericHd3: number;
+  hd2Difference: number; hd3Difference: number;
+}
+export interface ValiditySweep {
+  amplitudes: Float64Array; seriesHd2: Float64Array; seriesHd3: Float64Array; numericHd2: Float64Array; numericHd3: Float64Array;
+  foldAmplitude: number | null; hd3LimitAmplitude: number | null; hd3HoldsThroughout: boolean;
+}
+"#;
+
 fn series(a1: f64, a2: f64, a3: f64) -> Result<PowerSeries, JsValue> {
     throw(PowerSeries::new(a1, a2, a3))
 }
@@ -29,14 +49,14 @@ fn option_number(x: Option<f64>) -> JsValue {
 }
 
 /// Closed-loop coefficients under feedback β: `{a1, a2, a3}` holding b1, b2, b3.
-#[wasm_bindgen(js_name = closedLoopSeries)]
+#[wasm_bindgen(js_name = closedLoopSeries, unchecked_return_type = "PowerSeries")]
 pub fn closed_loop_series(a1: f64, a2: f64, a3: f64, beta: f64) -> Result<JsValue, JsValue> {
     to_js(&throw(nl::closed_loop_series(&series(a1, a2, a3)?, beta))?)
 }
 
 /// Coefficients `{a1, a2, a3}` from signed HD2 and HD3 (fractions) measured at a
 /// peak amplitude at the `"input"` or `"output"`.
-#[wasm_bindgen(js_name = seriesFromDistortion)]
+#[wasm_bindgen(js_name = seriesFromDistortion, unchecked_return_type = "PowerSeries")]
 pub fn series_from_distortion(
     a1: f64,
     hd2: f64,
@@ -48,7 +68,7 @@ pub fn series_from_distortion(
 }
 
 /// Leading-order distortion `{inputAmplitude, outputAmplitude, hd2, hd3}`.
-#[wasm_bindgen(js_name = harmonicDistortion)]
+#[wasm_bindgen(js_name = harmonicDistortion, unchecked_return_type = "Distortion")]
 pub fn harmonic_distortion(
     a1: f64,
     a2: f64,
@@ -62,7 +82,7 @@ pub fn harmonic_distortion(
 /// Open and closed loop at the same amplitude: `{closedSeries, feedbackAmount,
 /// amplitudeAt, open, closed, hd2Ratio, hd3Ratio}` (ratios `null` when the open-loop
 /// figure is zero).
-#[wasm_bindgen(js_name = feedbackDistortion)]
+#[wasm_bindgen(js_name = feedbackDistortion, unchecked_return_type = "FeedbackDistortion")]
 pub fn feedback_distortion(
     a1: f64,
     a2: f64,
@@ -83,7 +103,7 @@ pub fn closed_loop_output(a1: f64, a2: f64, a3: f64, beta: f64, x: f64) -> Resul
 
 /// Numeric spectrum of the closed loop for a cosine input of peak `amplitude`:
 /// `{inputAmplitude, dc, harmonics: [5], hd2, hd3, thd, samples}`.
-#[wasm_bindgen(js_name = closedLoopSpectrum)]
+#[wasm_bindgen(js_name = closedLoopSpectrum, unchecked_return_type = "Spectrum")]
 pub fn closed_loop_spectrum(
     a1: f64,
     a2: f64,
@@ -97,7 +117,7 @@ pub fn closed_loop_spectrum(
 
 /// Series against numeric at one input amplitude: `{inputAmplitude, seriesHd2,
 /// seriesHd3, numericHd2, numericHd3, hd2Difference, hd3Difference}`.
-#[wasm_bindgen(js_name = seriesCheck)]
+#[wasm_bindgen(js_name = seriesCheck, unchecked_return_type = "SeriesCheck")]
 pub fn series_check(a1: f64, a2: f64, a3: f64, beta: f64, amplitude: f64, samples: u32) -> Result<JsValue, JsValue> {
     to_js(&throw(nl::series_check(&series(a1, a2, a3)?, beta, amplitude, samples as usize))?)
 }
@@ -105,7 +125,7 @@ pub fn series_check(a1: f64, a2: f64, a3: f64, beta: f64, amplitude: f64, sample
 /// Series against numeric over log-spaced input amplitudes: Float64Arrays
 /// `amplitudes, seriesHd2, seriesHd3, numericHd2, numericHd3`, and `foldAmplitude`,
 /// `hd3LimitAmplitude` (numbers or `null`), `hd3HoldsThroughout`.
-#[wasm_bindgen(js_name = seriesValiditySweep)]
+#[wasm_bindgen(js_name = seriesValiditySweep, unchecked_return_type = "ValiditySweep")]
 #[allow(clippy::too_many_arguments)]
 pub fn series_validity_sweep(
     a1: f64,

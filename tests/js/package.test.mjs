@@ -45,6 +45,7 @@ test('TypeScript: the definitions type-check a consumer, and reject a wrong one'
   assert.notEqual(bad.status, 0, 'tsc accepted bad-consumer.ts: the types are too loose');
   assert.match(bad.stdout, /closedLoopGain|not assignable/);
   assert.match(bad.stdout, /bandwidth/);
+  assert.match(bad.stdout, /median/);
 });
 
 test('esbuild bundle of an ES-module consumer runs in headless Chromium', async () => {

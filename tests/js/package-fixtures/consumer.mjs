@@ -43,6 +43,30 @@ throws(() => lw.betaForGain(10, 100), 'unreachable', 'target_gain');
 throws(() => lw.summarizeFeedback('parallel-parallel', 1, 1), 'unknown_name', 'topology');
 throws(() => lw.impedancesWithFeedback('series-shunt', -1, 0, 1, 0, 1, 0, 1, 0), 'out_of_domain', 'zi');
 
+// Network area. IEC 60063 E24 holds 4.7 and 5.1 next to each other: 4.8k is
+// nearest to 4.7k, 5.0k nearest to 5.1k, whether distance is taken linearly or by ratio.
+assert.equal(lw.standardValue('E24', 4800, 'nearest'), 4700);
+assert.equal(lw.standardValue('E24', 5000, 'nearest'), 5100);
+assert.equal(lw.standardValue('E24', 4800, 'up'), 5100);
+assert.equal(lw.parseValue('4k7'), 4700); // IEC 60062 letter code
+const pairs = lw.bestPairs('non-inverting', 11, 'E24', 1e3, 1e6, undefined, undefined, 'none', 3);
+assert.equal(pairs.idealRatio, 10); // 1 + R2/R1 = 11
+assert.ok(Math.abs(pairs.candidates[0].error) < 1e-12, 'E24 has exact decade ratios (e.g. 1k/10k)');
+throws(() => lw.standardValue('E7', 100, 'nearest'), 'unknown_name', 'series');
+const mc1 = lw.monteCarlo('inverting', 10e3, 47e3, 0.01, 0.01, 5e4, 1e5, 2e5, 1e6, 75, 5, 'uniform', 3, 'uniform', 3, 'gain', 1000, 7, undefined, undefined, 10);
+const mc2 = lw.monteCarlo('inverting', 10e3, 47e3, 0.01, 0.01, 5e4, 1e5, 2e5, 1e6, 75, 5, 'uniform', 3, 'uniform', 3, 'gain', 1000, 7, undefined, undefined, 10);
+assert.equal(mc1.stats.mean, mc2.stats.mean, 'same seed, same numbers');
+
+// Distortion and noise. 4kTR: 1 kΩ at 300 K ≈ 4.07 nV/√Hz (common practice, no source).
+assert.ok(Math.abs(lw.thermalNoiseDensity(1e3, 300) - 4.07e-9) < 0.01e-9);
+// Full-power bandwidth SR/(2π·Vp): 1 V/µs at 10 V peak = 15.9 kHz.
+assert.ok(Math.abs(lw.fullPowerBandwidth(1e6, 10) - 1e6 / (2 * Math.PI * 10)) < 1e-9);
+// Closed-loop series: b1 = a1/(1 + a1·β) (Gray, Hurst, Lewis & Meyer, 5th ed., ch. 8, from memory).
+assert.ok(Math.abs(lw.closedLoopSeries(1e4, 1e6, -2e10, 0.01).a1 - 1e4 / 101) < 1e-9);
+throws(() => lw.thermalNoiseDensity(1e3, -1), 'out_of_domain', 'temperature_k');
+const sweep = lw.noiseDensitySweep('non-inverting', 9e3, 1e3, 0, 300, 4e-9, 10, 1e-12, 100, 10e6, new Float64Array(0), 1, 1e7, 50);
+assert.ok(sweep.frequencies instanceof Float64Array && sweep.frequencies.length === 50);
+
 console.log('consumer: all checks passed');
 
 // Errors must leave the module healthy: a thrown error may not leak wasm stack or
