@@ -26,7 +26,7 @@ single: build
 package:
 	./scripts/build-package.sh
 
-test: setup test-native test-reference test-browser single test-page package test-package bench-quick
+test: setup test-native test-reference test-browser single package bench-quick test-page test-package
 	@echo "make test: all suites passed"
 
 test-native:
