@@ -8,6 +8,7 @@
 //! - [`mna`]: the exact modified nodal solution, transfers and port impedances;
 
 pub mod error;
+pub mod json;
 pub mod lu;
 pub mod mna;
 pub mod netlist;
