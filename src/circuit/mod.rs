@@ -12,6 +12,7 @@ pub mod json;
 pub mod lu;
 pub mod mna;
 pub mod netlist;
+pub mod templates;
 pub mod value;
 
 pub use error::{CircuitError, CircuitResult, Name, MAX_NAME_LEN};

@@ -457,7 +457,8 @@ impl Circuit {
         self.add(name, kind, a, b, control, value, value_im, false)
     }
 
-    /// A copy without the named element (nodes are kept).
+    /// A copy without the named element; nodes that no remaining element uses
+    /// are dropped too (so removing a source and its resistor leaves no floating node).
     ///
     /// # Errors
     /// Unknown element name.
@@ -465,6 +466,37 @@ impl Circuit {
         let i = self.element_index(name)?;
         let mut c = self.clone();
         c.elements.remove(i);
+        let mut used = alloc::vec![false; c.nodes.len()];
+        let mut mark = |k: usize| {
+            if let Some(u) = used.get_mut(k) {
+                *u = true;
+            }
+        };
+        mark(0);
+        for e in &c.elements {
+            e.nodes.iter().for_each(|&k| mark(k));
+            if let Control::Nodes(ns) = e.control {
+                ns.iter().for_each(|&k| mark(k));
+            }
+        }
+        let mut new_index = alloc::vec![0usize; c.nodes.len()];
+        let mut kept = Vec::with_capacity(c.nodes.len());
+        for (k, (&name, &u)) in c.nodes.iter().zip(used.iter()).enumerate() {
+            if u {
+                if let Some(slot) = new_index.get_mut(k) {
+                    *slot = kept.len();
+                }
+                kept.push(name);
+            }
+        }
+        let remap = |k: usize| new_index.get(k).copied().unwrap_or(0);
+        for e in &mut c.elements {
+            e.nodes = [remap(e.nodes[0]), remap(e.nodes[1])];
+            if let Control::Nodes([p, n]) = e.control {
+                e.control = Control::Nodes([remap(p), remap(n)]);
+            }
+        }
+        c.nodes = kept;
         Ok(c)
     }
 
@@ -570,6 +602,20 @@ mod tests {
         assert_eq!(c.node_index("zz").unwrap_err().name.as_str(), "zz");
         assert_eq!(c.element_index("R9").unwrap_err().error.code(), "unknown_name");
         assert_eq!(c.admittance("Y1", "a", "0", -1.0, 0.0).unwrap_err().error.param(), "value");
+    }
+
+    #[test]
+    fn removing_elements_drops_their_unused_nodes() {
+        let mut c = Circuit::new();
+        c.voltage_source("V1", "s", "0", 1.0).unwrap();
+        c.resistor("R1", "s", "a", 1.0).unwrap();
+        c.vcvs("E1", "b", "0", "a", "0", 2.0).unwrap();
+        c.resistor("R2", "b", "0", 1.0).unwrap();
+        let d = c.without("V1").unwrap().without("R1").unwrap();
+        let names: Vec<&str> = d.nodes().iter().map(|n| n.as_str()).collect();
+        assert_eq!(names, ["0", "a", "b"]);
+        assert_eq!(d.element("E1").unwrap().control(), Control::Nodes([1, 0]));
+        assert_eq!(d.element("E1").unwrap().nodes(), [2, 0]);
     }
 
     #[test]
