@@ -11,6 +11,15 @@
 use alloc::vec::Vec;
 use num_complex::Complex64;
 
+/// The power of two nearest to 1/m (exact scaling, no rounding), or 1 for m = 0.
+fn inverse_power_of_two(m: f64) -> f64 {
+    if m > 0.0 && m.is_finite() {
+        libm::exp2(-libm::round(libm::log2(m)))
+    } else {
+        1.0
+    }
+}
+
 /// A pivot counts as zero when |pivot| ≤ PIVOT_TOL × (largest |entry| the
 /// column had before elimination): the column was cancelled to rounding level.
 const PIVOT_TOL: f64 = 1e-13;
@@ -21,6 +30,8 @@ pub struct Lu {
     n: usize,
     a: Vec<Complex64>,
     perm: Vec<usize>,
+    row_scale: Vec<f64>,
+    col_scale: Vec<f64>,
 }
 
 /// The factorization failed at this column: no usable pivot.
@@ -32,9 +43,30 @@ pub struct NoPivot {
 
 impl Lu {
     /// Factor the n × n row-major matrix `a` (length n², checked by the caller).
+    ///
+    /// The matrix is first equilibrated by powers of two — each row, then each
+    /// column, scaled to a largest entry near 1 — because nodal matrices mix
+    /// conductances of 1e-9 S with gains of 1e6 and more; the scaling is exact and
+    /// undone in [`Lu::solve`].
     pub fn factor(n: usize, mut a: Vec<Complex64>) -> Result<Lu, NoPivot> {
         if a.len() != n * n {
             return Err(NoPivot { column: 0 });
+        }
+        let mut row_scale = alloc::vec![1.0f64; n];
+        for (r, rs) in row_scale.iter_mut().enumerate() {
+            let m = (0..n).map(|c| a[r * n + c].norm()).fold(0.0, f64::max);
+            *rs = inverse_power_of_two(m);
+            for c in 0..n {
+                a[r * n + c] *= *rs;
+            }
+        }
+        let mut col_scale = alloc::vec![1.0f64; n];
+        for (c, cs) in col_scale.iter_mut().enumerate() {
+            let m = (0..n).map(|r| a[r * n + c].norm()).fold(0.0, f64::max);
+            *cs = inverse_power_of_two(m);
+            for r in 0..n {
+                a[r * n + c] *= *cs;
+            }
         }
         let mut scale = alloc::vec![0.0f64; n];
         for r in 0..n {
@@ -53,7 +85,7 @@ impl Lu {
                     best_mag = m;
                 }
             }
-            if !(best_mag > PIVOT_TOL * scale[k]) || !best_mag.is_finite() {
+            if best_mag <= PIVOT_TOL * scale[k] || !best_mag.is_finite() {
                 return Err(NoPivot { column: k });
             }
             if best != k {
@@ -75,13 +107,19 @@ impl Lu {
                 }
             }
         }
-        Ok(Lu { n, a, perm })
+        Ok(Lu { n, a, perm, row_scale, col_scale })
     }
 
     /// Solve A·x = b for one right-hand side (length n), returning x.
+    #[allow(clippy::needless_range_loop)]
     pub fn solve(&self, b: &[Complex64]) -> Vec<Complex64> {
         let n = self.n;
-        let mut x: Vec<Complex64> = self.perm.iter().map(|&p| b.get(p).copied().unwrap_or_default()).collect();
+        // Solve (R·A·C)·y = R·b, then x = C·y.
+        let mut x: Vec<Complex64> = self
+            .perm
+            .iter()
+            .map(|&p| b.get(p).copied().unwrap_or_default() * self.row_scale.get(p).copied().unwrap_or(1.0))
+            .collect();
         for r in 0..n {
             let mut s = x[r];
             for c in 0..r {
@@ -95,6 +133,9 @@ impl Lu {
                 s -= self.a[r * n + c] * x[c];
             }
             x[r] = s / self.a[r * n + r];
+        }
+        for (xi, &c) in x.iter_mut().zip(&self.col_scale) {
+            *xi *= c;
         }
         x
     }

@@ -26,7 +26,7 @@
 //! and 7th ed., ch. 10 (from memory); Gray, Hurst, Lewis & Meyer, *Analysis and
 //! Design of Analog Integrated Circuits*, 5th ed., sections 8.4–8.6 (from memory).
 
-use super::error::{CircuitError, CircuitResult, WithName};
+use super::error::{CircuitError, CircuitResult};
 use super::mna::{port_impedance, solve, Solution};
 use super::netlist::{Circuit, ElementKind};
 use super::templates::{build, build_loaded, Loading, Stage, StageSpec};
@@ -289,14 +289,16 @@ pub(crate) fn output_of(t: Topology, s: &Solution) -> CircuitResult<Complex64> {
     }
 }
 
-/// Input impedance including Rs, from a solution with the unit source:
-/// Vs / I delivered, or V(in) / Is.
-fn input_with_source(t: Topology, stage: &Stage, s: &Solution) -> CircuitResult<Complex64> {
-    let z = match t.mixing() {
-        Mixing::Series => Complex64::new(1.0, 0.0) / -s.current(stage.source)?,
-        Mixing::Shunt => s.voltage("in")?,
+/// Input impedance seen by the source (without Rs) and including Rs, each from a
+/// test-source solve at node `in` (no cancellation, unlike V(in)/I(Rs)).
+fn input_impedances(t: Topology, stage: &Stage, rs: f64, f: f64) -> CircuitResult<(Complex64, Complex64)> {
+    let no_source = stage.circuit.without(stage.source)?;
+    let rin = port_impedance(&no_source.without("Rs")?, "in", "0", f)?;
+    let rif = match t.mixing() {
+        Mixing::Series => rin + rs,
+        Mixing::Shunt => port_impedance(&no_source, "in", "0", f)?,
     };
-    Ok(check::result_complex("rif", z)?)
+    Ok((rin, rif))
 }
 
 /// Output impedance including Rl, with sources zeroed.
@@ -361,7 +363,7 @@ pub fn analyze(spec: &StageSpec, frequency_hz: f64) -> CircuitResult<TwoPortAnal
     let a_stage = build_loaded(spec, loading)?;
     let a_sol = solve(&a_stage.circuit, f)?;
     let a = output_of(t, &a_sol)?;
-    let ri = input_with_source(t, &a_stage, &a_sol)?;
+    let (_, ri) = input_impedances(t, &a_stage, spec.rs, f)?;
     let ro = output_with_load(t, &a_stage, spec.rl, f)?;
     let beta = params.p12;
     let loop_ = fb::loop_phasors(a, beta).map_err(CircuitError::from)?;
@@ -377,14 +379,7 @@ pub fn analyze(spec: &StageSpec, frequency_hz: f64) -> CircuitResult<TwoPortAnal
     // The exact solution of the same circuit.
     let sol = solve(&stage.circuit, f)?;
     let af_exact = output_of(t, &sol)?;
-    let rif_exact = input_with_source(t, &stage, &sol)?;
-    let vin = sol.voltage("in")?;
-    let i_rs = sol.current("Rs")?;
-    let rin_exact = match t.mixing() {
-        Mixing::Series => vin / i_rs,
-        Mixing::Shunt => vin / (one - i_rs),
-    };
-    let rin_exact = check::result_complex("rin", rin_exact).named(super::error::Name::truncated("Rs"))?;
+    let (rin_exact, rif_exact) = input_impedances(t, &stage, spec.rs, f)?;
     let (lp, lm) = stage.load_port;
     let rout_exact = port_impedance(&stage.circuit.without("Rl")?, lp, lm, f)?;
     let rof_exact = output_with_load(t, &stage, spec.rl, f)?;

@@ -1,0 +1,183 @@
+#!/usr/bin/env python3
+"""Exact closed forms of the non-inverting and inverting op-amp stages with finite
+open-loop gain a, input resistance Ri, output resistance Ro, source resistance Rs
+and load RL, derived by sympy from Kirchhoff's current law; and the closed forms of
+the two-port method (h parameters for the non-inverting, y for the inverting stage)
+derived the same way, for comparison with loopwright's numeric two-port analysis.
+
+Op-amp model: Ri between the + and - inputs, an ideal source a*(v+ - v-) behind Ro.
+Non-inverting: vs -> Rs -> (+); (-) to ground through R1 and to the output through R2.
+Inverting: (+) grounded; vs -> Rs -> R1 -> (-); R2 from the output to (-).
+Rin is what vs sees after Rs; Rout is what RL sees (vs shorted, RL removed).
+
+The last case of each stage is the worked example (WORKED below).
+
+Writes tests/reference/data/circuit_sympy.json, which tests/circuit_reference.rs
+compares with loopwright. With --check, recompute and compare with the committed
+file (relative tolerance 1e-9; prints the differing case; exit 1 on a mismatch).
+
+    ~/.cache/loopwright/venv/bin/python tests/reference/circuit_sympy.py [--check]
+"""
+import json
+import random
+import sys
+from pathlib import Path
+
+import sympy as sp
+
+OUT = Path(__file__).parent / "data" / "circuit_sympy.json"
+SEED = 20260502
+N_CASES = 40
+
+a, Ri, Ro, Rs, RL, R1, R2, vs, it = sp.symbols("a R_i R_o R_s R_L R_1 R_2 v_s i_t", positive=True)
+
+
+def par(*rs):
+    return 1 / sum(1 / r for r in rs)
+
+
+def noninverting():
+    vp, vn, vo = sp.symbols("v_p v_n v_o")
+    # KCL, currents leaving each node.
+    eqs = [
+        sp.Eq((vp - vs) / Rs + (vp - vn) / Ri, 0),
+        sp.Eq((vn - vp) / Ri + vn / R1 + (vn - vo) / R2, 0),
+        sp.Eq((vo - a * (vp - vn)) / Ro + vo / RL + (vo - vn) / R2, 0),
+    ]
+    sol = sp.solve(eqs, [vp, vn, vo], dict=True)[0]
+    af = sp.simplify(sol[vo] / vs)
+    rin = sp.simplify(sol[vp] / ((vs - sol[vp]) / Rs))
+    # Rout: vs = 0, RL removed, test current it into the output node.
+    eqs_out = [
+        sp.Eq(vp / Rs + (vp - vn) / Ri, 0),
+        sp.Eq((vn - vp) / Ri + vn / R1 + (vn - vo) / R2, 0),
+        sp.Eq((vo - a * (vp - vn)) / Ro + (vo - vn) / R2 - it, 0),
+    ]
+    so = sp.solve(eqs_out, [vp, vn, vo], dict=True)[0]
+    rout = sp.simplify(so[vo] / it)
+    # Two-port method (h parameters of the R1-R2 network).
+    h11, h22, beta = par(R1, R2), 1 / (R1 + R2), R1 / (R1 + R2)
+    rl_loaded = par(RL, R1 + R2)
+    A = a * Ri / (Rs + Ri + h11) * rl_loaded / (Ro + rl_loaded)
+    D = 1 + A * beta
+    tp_af = A / D
+    tp_rin = (Rs + Ri + h11) * D - Rs
+    rof = par(Ro, RL, R1 + R2) / D
+    tp_rout = 1 / (1 / rof - 1 / RL)
+    return {"af": af, "rin": rin, "rout": rout, "tp_af": tp_af, "tp_rin": tp_rin, "tp_rout": tp_rout, "beta": beta, "tp_a": A}
+
+
+def inverting():
+    vm, vn, vo = sp.symbols("v_m v_n v_o")
+    eqs = [
+        sp.Eq((vm - vs) / Rs + (vm - vn) / R1, 0),
+        sp.Eq((vn - vm) / R1 + vn / Ri + (vn - vo) / R2, 0),
+        sp.Eq((vo - a * (0 - vn)) / Ro + vo / RL + (vo - vn) / R2, 0),
+    ]
+    sol = sp.solve(eqs, [vm, vn, vo], dict=True)[0]
+    af = sp.simplify(sol[vo] / vs)
+    rin = sp.simplify(sol[vm] / ((vs - sol[vm]) / Rs))
+    eqs_out = [
+        sp.Eq(vm / Rs + (vm - vn) / R1, 0),
+        sp.Eq((vn - vm) / R1 + vn / Ri + (vn - vo) / R2, 0),
+        sp.Eq((vo - a * (0 - vn)) / Ro + (vo - vn) / R2 - it, 0),
+    ]
+    so = sp.solve(eqs_out, [vm, vn, vo], dict=True)[0]
+    rout = sp.simplify(so[vo] / it)
+    # Two-port method on the Norton form: is = vs/(Rs + R1) with Rs + R1 across
+    # the input; y parameters of R2: y11 = y22 = 1/R2, beta = y12 = -1/R2.
+    rsum = Rs + R1
+    beta = -1 / R2
+    rl_loaded = par(RL, R2)
+    zin = par(rsum, R2, Ri)
+    A = -a * zin * rl_loaded / (Ro + rl_loaded)  # vo / is
+    D = 1 + A * beta
+    tp_af = A / D / rsum  # back to vo / vs
+    rif = zin / D
+    tp_rin = R1 + 1 / (1 / rif - 1 / rsum)  # vs sees R1 plus the (-) node
+    rof = par(Ro, RL, R2) / D
+    tp_rout = 1 / (1 / rof - 1 / RL)
+    return {"af": af, "rin": rin, "rout": rout, "tp_af": tp_af, "tp_rin": tp_rin, "tp_rout": tp_rout, "beta": beta, "tp_a": A}
+
+
+def log_uniform(rng, lo, hi):
+    import math
+
+    return math.exp(rng.uniform(math.log(lo), math.log(hi)))
+
+
+def cases(rng):
+    out = []
+    for _ in range(N_CASES):
+        out.append(
+            {
+                "a": log_uniform(rng, 1e2, 1e6),
+                "ri": log_uniform(rng, 1e3, 1e7),
+                "ro": log_uniform(rng, 1.0, 1e3),
+                "rs": log_uniform(rng, 10.0, 1e4),
+                "rl": log_uniform(rng, 1e2, 1e5),
+                "r1": log_uniform(rng, 1e2, 1e5),
+                "r2": log_uniform(rng, 1e3, 1e6),
+            }
+        )
+    return out
+
+
+# Worked examples at fixed values. The op-amp (a = 1e4, Ri = 100k, Ro = 1k) and the
+# non-inverting stage (R1 = 1k, R2 = 1M, RL = 2k, Rs = 10k) are those of the worked
+# series-shunt example in Sedra & Smith, Microelectronic Circuits, 5th ed., ch. 8
+# (from memory); the inverting stage with the same op-amp is a scenario of our own.
+WORKED = {
+    "noninverting": {"a": 1e4, "ri": 1e5, "ro": 1e3, "rs": 1e4, "rl": 2e3, "r1": 1e3, "r2": 1e6},
+    "inverting": {"a": 1e4, "ri": 1e5, "ro": 1e3, "rs": 100.0, "rl": 2e3, "r1": 1e3, "r2": 1e5},
+}
+
+
+def evaluate():
+    rng = random.Random(SEED)
+    stages = {"noninverting": noninverting(), "inverting": inverting()}
+    result = {"tolerance": 1e-9, "seed": SEED, "stages": {}}
+    inputs = cases(rng)
+    for name, forms in stages.items():
+        rows = []
+        for c in inputs:
+            sub = {a: c["a"], Ri: c["ri"], Ro: c["ro"], Rs: c["rs"], RL: c["rl"], R1: c["r1"], R2: c["r2"]}
+            row = dict(c)
+            for k, expr in forms.items():
+                row[k] = float(sp.N(expr.subs(sub), 30))
+            rows.append(row)
+        worked = dict(WORKED[name])
+        sub = {a: worked["a"], Ri: worked["ri"], Ro: worked["ro"], Rs: worked["rs"], RL: worked["rl"], R1: worked["r1"], R2: worked["r2"]}
+        for k, expr in forms.items():
+            worked[k] = float(sp.N(expr.subs(sub), 30))
+        rows.append(worked)
+        result["stages"][name] = {"forms": {k: str(v) for k, v in forms.items()}, "cases": rows}
+    return result
+
+
+def main():
+    result = evaluate()
+    if "--check" in sys.argv:
+        committed = json.loads(OUT.read_text())
+        bad = 0
+        for stage, body in result["stages"].items():
+            old_rows = committed["stages"][stage]["cases"]
+            if len(old_rows) != len(body["cases"]):
+                print(f"circuit_sympy {stage}: case count differs")
+                bad += 1
+            for i, (new, old) in enumerate(zip(body["cases"], old_rows)):
+                for k, v in new.items():
+                    if abs(v - old[k]) > 1e-9 * max(abs(v), abs(old[k]), 1e-300):
+                        print(f"circuit_sympy {stage} case {i} {k}: {v} != committed {old[k]}")
+                        bad += 1
+        if bad:
+            sys.exit(1)
+        print(f"circuit_sympy: {sum(len(b['cases']) for b in result['stages'].values())} cases match")
+        return
+    OUT.parent.mkdir(parents=True, exist_ok=True)
+    OUT.write_text(json.dumps(result, indent=1) + "\n")
+    print(f"wrote {OUT}")
+
+
+if __name__ == "__main__":
+    main()
