@@ -472,6 +472,51 @@ pub fn current_transfer(c: &Circuit, source: &str, element: &str, frequency_hz: 
     solve(&c1, frequency_hz)?.current(element)
 }
 
+/// Most frequencies in one sweep.
+pub const MAX_SWEEP: usize = 100_000;
+
+/// The voltage transfer of [`voltage_transfer`] at each of `frequencies_hz`.
+///
+/// The circuit is checked and laid out once; each frequency is one assembly and
+/// one LU solve.
+///
+/// # Errors
+/// More than [`MAX_SWEEP`] frequencies (param `frequencies`); otherwise as
+/// [`voltage_transfer`] at the first frequency that fails.
+///
+/// # Example
+/// ```
+/// use loopwright::circuit::{voltage_transfer_sweep, Circuit};
+/// let mut c = Circuit::new();
+/// c.voltage_source("V1", "in", "0", 1.0).unwrap();
+/// c.resistor("R1", "in", "out", 1e3).unwrap();
+/// c.capacitor("C1", "out", "0", 1e-6).unwrap();
+/// let h = voltage_transfer_sweep(&c, "V1", "out", "0", &[0.0, 1e6]).unwrap();
+/// assert!((h[0].re - 1.0).abs() < 1e-15 && h[1].norm() < 1e-3);
+/// assert!(voltage_transfer_sweep(&c, "V1", "out", "0", &[-5.0]).is_err());
+/// ```
+pub fn voltage_transfer_sweep(
+    c: &Circuit,
+    source: &str,
+    plus: &str,
+    minus: &str,
+    frequencies_hz: &[f64],
+) -> CircuitResult<Vec<Complex64>> {
+    if frequencies_hz.len() > MAX_SWEEP {
+        return Err(CircuitError::from(Error::TooLarge { param: "frequencies", limit: MAX_SWEEP as u64 }));
+    }
+    let (c1, _) = unit_source(c, source)?;
+    let (p, m) = (c1.node_index(plus)?, c1.node_index(minus)?);
+    let lay = layout(&c1)?;
+    let mut out = Vec::with_capacity(frequencies_hz.len());
+    for &f in frequencies_hz {
+        let x = solve_vector(&c1, &lay, omega(f)?)?;
+        let v = |k: usize| k.checked_sub(1).and_then(|i| x.get(i).copied()).unwrap_or_default();
+        out.push(v(p) - v(m));
+    }
+    Ok(out)
+}
+
 /// A copy with every independent source at zero except `source`, which is set to 1.
 pub(crate) fn unit_source(c: &Circuit, source: &str) -> CircuitResult<(Circuit, usize)> {
     let i = c.element_index(source)?;
