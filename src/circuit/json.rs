@@ -265,6 +265,20 @@ mod tests {
     }
 
     #[test]
+    fn the_documented_example_reads_and_solves() {
+        let doc = include_str!("../../docs/circuit-format.md");
+        let start = doc.find("```json").map(|i| i + 7).unwrap();
+        let end = start + doc[start..].find("```").unwrap();
+        let c = read_circuit(&doc[start..end]).unwrap();
+        assert!(c.declares_nodes());
+        assert_eq!(c.element("Rg").unwrap().value(), 4700.0);
+        assert_eq!(c.element("Rs").unwrap().value(), 600.0);
+        // A non-inverting stage of gain near 1 + 47k/4k7 = 11 at low frequency.
+        let v = crate::circuit::solve(&c, 10.0).unwrap().voltage("out").unwrap();
+        assert!((v.norm() - 11.0).abs() < 0.01, "{v}");
+    }
+
+    #[test]
     fn bad_documents_name_the_fault() {
         let e = |doc: &str| read_circuit(doc).unwrap_err();
         assert_eq!(e("{").error.param(), "json");
