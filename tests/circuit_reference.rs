@@ -17,7 +17,7 @@ use std::collections::BTreeMap;
 /// Exact MNA against sympy's exact evaluation. The op-amp systems here reach
 /// condition numbers near 1e9 (gain up to 1e6 times resistance ratios up to 1e4);
 /// the solver equilibrates and refines once, which brings the worst case to a few
-/// about 1e-11 (printed by the tests); 1e-10 leaves room across platforms.
+/// a few parts in 1e11 (printed by the tests); 1e-10 leaves room across platforms.
 const SYMPY_EXACT_REL: f64 = 1e-10;
 /// Numeric two-port method against its sympy closed form (same approximations,
 /// different arithmetic path).

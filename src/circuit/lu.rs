@@ -11,13 +11,22 @@
 use alloc::vec::Vec;
 use num_complex::Complex64;
 
-/// The power of two nearest to 1/m (exact scaling, no rounding), or 1 for m = 0.
+/// |re| + |im|: the magnitude used for pivoting and scaling, as LAPACK's
+/// complex routines do (within √2 of |z|, and no square root or hypot call).
+fn abs1(z: Complex64) -> f64 {
+    libm::fabs(z.re) + libm::fabs(z.im)
+}
+
+/// A power of two within a factor 2 of 1/m (so scaling by it is exact), read
+/// from the exponent bits; 1 for zero, subnormal or non-finite m.
 fn inverse_power_of_two(m: f64) -> f64 {
-    if m > 0.0 && m.is_finite() {
-        libm::exp2(-libm::round(libm::log2(m)))
-    } else {
-        1.0
+    let biased = ((m.to_bits() >> 52) & 0x7ff) as i64;
+    if biased == 0 || biased == 0x7ff {
+        return 1.0;
     }
+    // m = 1.f × 2^(biased − 1023); 1/m ≈ 2^(1023 − biased), clamped to normal range.
+    let e = (2046 - biased).clamp(1, 2046) as u64;
+    f64::from_bits(e << 52)
 }
 
 /// A pivot counts as zero when |pivot| ≤ PIVOT_TOL × (largest |entry| the
@@ -53,33 +62,30 @@ impl Lu {
             return Err(NoPivot { column: 0 });
         }
         let mut row_scale = alloc::vec![1.0f64; n];
-        for (r, rs) in row_scale.iter_mut().enumerate() {
-            let m = (0..n).map(|c| a[r * n + c].norm()).fold(0.0, f64::max);
-            *rs = inverse_power_of_two(m);
-            for c in 0..n {
-                a[r * n + c] *= *rs;
+        for (row, rs) in a.chunks_exact_mut(n).zip(row_scale.iter_mut()) {
+            *rs = inverse_power_of_two(row.iter().map(|&z| abs1(z)).fold(0.0, f64::max));
+            row.iter_mut().for_each(|z| *z *= *rs);
+        }
+        let mut col_max = alloc::vec![0.0f64; n];
+        for row in a.chunks_exact(n) {
+            for (m, &z) in col_max.iter_mut().zip(row) {
+                *m = m.max(abs1(z));
             }
         }
-        let mut col_scale = alloc::vec![1.0f64; n];
-        for (c, cs) in col_scale.iter_mut().enumerate() {
-            let m = (0..n).map(|r| a[r * n + c].norm()).fold(0.0, f64::max);
-            *cs = inverse_power_of_two(m);
-            for r in 0..n {
-                a[r * n + c] *= *cs;
-            }
-        }
-        let mut scale = alloc::vec![0.0f64; n];
-        for r in 0..n {
-            for (c, s) in scale.iter_mut().enumerate() {
-                *s = s.max(a[r * n + c].norm());
+        let col_scale: Vec<f64> = col_max.iter().map(|&m| inverse_power_of_two(m)).collect();
+        // After column scaling each column's largest entry is col_max·col_scale.
+        let scale: Vec<f64> = col_max.iter().zip(&col_scale).map(|(m, c)| m * c).collect();
+        for row in a.chunks_exact_mut(n) {
+            for (z, &c) in row.iter_mut().zip(&col_scale) {
+                *z *= c;
             }
         }
         let mut perm: Vec<usize> = (0..n).collect();
         for k in 0..n {
             let mut best = k;
-            let mut best_mag = a[k * n + k].norm();
+            let mut best_mag = abs1(a[k * n + k]);
             for r in k + 1..n {
-                let m = a[r * n + k].norm();
+                let m = abs1(a[r * n + k]);
                 if m > best_mag {
                     best = r;
                     best_mag = m;
@@ -94,16 +100,18 @@ impl Lu {
                 }
                 perm.swap(k, best);
             }
-            let pivot = a[k * n + k];
-            for r in k + 1..n {
-                let f = a[r * n + k] / pivot;
+            let inv_pivot = Complex64::new(1.0, 0.0) / a[k * n + k];
+            // Rows k and below, split so row k can be read while the others change.
+            let (upper, lower) = a.split_at_mut((k + 1) * n);
+            let pivot_row = &upper[k * n + k + 1..(k + 1) * n];
+            for row in lower.chunks_exact_mut(n) {
+                let f = row[k] * inv_pivot;
                 if f == Complex64::new(0.0, 0.0) {
                     continue;
                 }
-                a[r * n + k] = f;
-                for c in k + 1..n {
-                    let u = a[k * n + c];
-                    a[r * n + c] -= f * u;
+                row[k] = f;
+                for (x, &u) in row[k + 1..].iter_mut().zip(pivot_row) {
+                    *x -= f * u;
                 }
             }
         }
@@ -111,7 +119,6 @@ impl Lu {
     }
 
     /// Solve A·x = b for one right-hand side (length n), returning x.
-    #[allow(clippy::needless_range_loop)]
     pub fn solve(&self, b: &[Complex64]) -> Vec<Complex64> {
         let n = self.n;
         // Solve (R·A·C)·y = R·b, then x = C·y.
@@ -120,19 +127,14 @@ impl Lu {
             .iter()
             .map(|&p| b.get(p).copied().unwrap_or_default() * self.row_scale.get(p).copied().unwrap_or(1.0))
             .collect();
-        for r in 0..n {
-            let mut s = x[r];
-            for c in 0..r {
-                s -= self.a[r * n + c] * x[c];
-            }
-            x[r] = s;
+        let rows = self.a.chunks_exact(n);
+        for (r, row) in rows.clone().enumerate() {
+            let s: Complex64 = row[..r].iter().zip(&x[..r]).map(|(a, b)| a * b).sum();
+            x[r] -= s;
         }
-        for r in (0..n).rev() {
-            let mut s = x[r];
-            for c in r + 1..n {
-                s -= self.a[r * n + c] * x[c];
-            }
-            x[r] = s / self.a[r * n + r];
+        for (r, row) in rows.enumerate().rev() {
+            let s: Complex64 = row[r + 1..].iter().zip(&x[r + 1..]).map(|(a, b)| a * b).sum();
+            x[r] = (x[r] - s) / row[r];
         }
         for (xi, &c) in x.iter_mut().zip(&self.col_scale) {
             *xi *= c;
