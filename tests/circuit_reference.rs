@@ -1,5 +1,6 @@
 //! The circuit area against sources outside the project:
-//! - closed forms of the non-inverting and inverting op-amp stages derived by sympy
+//! - closed forms of the non-inverting and inverting op-amp stages and of the
+//!   series-series and shunt-series templates, exact and two-port, derived by sympy
 //!   (tests/reference/circuit_sympy.py → tests/reference/data/circuit_sympy.json);
 //! - random circuits solved by numpy.linalg.solve
 //!   (tests/reference/circuit_numpy.py → tests/reference/data/circuit_numpy.json);
@@ -140,6 +141,41 @@ fn inverting_stage_matches_sympy_as_template_and_as_netlist() {
         n.resistor("R2", "out", "minus", c.r2).unwrap();
         n.resistor("RL", "out", "0", c.rl).unwrap();
         assert_rel("netlist af", i, voltage_transfer(&n, "Vs", "out", "0", 0.0).unwrap(), c.af, SYMPY_EXACT_REL);
+    }
+    println!("worst relative difference against sympy so far: {:e}", WORST.lock().map(|w| *w).unwrap_or(0.0));
+}
+
+/// The current-output templates, mapped one to one (see circuit_sympy.py):
+/// series-series with the sense resistor r1 and rf = 0, shunt-series with Rg = r1
+/// and Rf = r2; `a` is gm or the (negative) current gain.
+fn current_output(t: Topology, c: &SympyCase) -> StageSpec {
+    StageSpec {
+        topology: t,
+        amplifier: AmplifierModel { ri: c.ri, ro: c.ro, gain: c.a, ci: 0.0, co: 0.0 },
+        network: FeedbackNetwork { rf: c.r2, rg: c.r1, cf: 0.0 },
+        rs: c.rs,
+        rl: c.rl,
+    }
+}
+
+#[test]
+fn current_output_stages_match_sympy() {
+    let r = sympy();
+    for (key, t) in [("series_series", Topology::SeriesSeries), ("shunt_series", Topology::ShuntSeries)] {
+        let cases = &r.stages[key].cases;
+        assert!(cases.len() >= 40, "{key}");
+        for (i, c) in cases.iter().enumerate() {
+            let a = analyze(&current_output(t, c), 0.0).unwrap();
+            let what = |q: &str| format!("{key} {q}");
+            assert_rel(&what("exact af"), i, a.af.exact, c.af, SYMPY_EXACT_REL);
+            assert_rel(&what("exact rin"), i, a.rin.exact, c.rin, SYMPY_EXACT_REL);
+            assert_rel(&what("exact rout"), i, a.rout.exact, c.rout, SYMPY_EXACT_REL);
+            assert_rel(&what("two-port a"), i, a.a, c.tp_a, SYMPY_TWO_PORT_REL);
+            assert_rel(&what("beta"), i, a.beta, c.beta, SYMPY_TWO_PORT_REL);
+            assert_rel(&what("two-port af"), i, a.af.two_port, c.tp_af, SYMPY_TWO_PORT_REL);
+            assert_rel(&what("two-port rin"), i, a.rin.two_port, c.tp_rin, SYMPY_TWO_PORT_REL);
+            assert_rel(&what("two-port rout"), i, a.rout.two_port, c.tp_rout, SYMPY_TWO_PORT_REL);
+        }
     }
     println!("worst relative difference against sympy so far: {:e}", WORST.lock().map(|w| *w).unwrap_or(0.0));
 }

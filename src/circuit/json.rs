@@ -103,7 +103,7 @@ pub fn read_circuit(json: &str) -> CircuitResult<Circuit> {
     let obj = doc
         .as_object()
         .ok_or(err(Error::OutOfDomain { param: "json", requirement: "must be a JSON object" }))?;
-    reject_unknown(obj, &["format", "version", "nodes", "elements"], DOCUMENT_FIELDS, Name::EMPTY)?;
+    reject_unknown(obj, &["format", "version", "nodes", "elements"], DOCUMENT_FIELDS)?;
     if obj.get("format").and_then(Value::as_str) != Some(FORMAT) {
         return Err(err(Error::UnknownName { param: "format", expected: FORMAT }));
     }
@@ -146,7 +146,7 @@ pub fn read_circuit(json: &str) -> CircuitResult<Circuit> {
     Ok(circuit)
 }
 
-fn reject_unknown(obj: &Map<String, Value>, known: &[&str], expected: &'static str, _owner: Name) -> CircuitResult<()> {
+fn reject_unknown(obj: &Map<String, Value>, known: &[&str], expected: &'static str) -> CircuitResult<()> {
     for key in obj.keys() {
         if !known.contains(&key.as_str()) {
             return Err(CircuitError::named(Error::UnknownName { param: "field", expected }, key));
@@ -162,7 +162,7 @@ fn read_element(circuit: &mut Circuit, e: &Value, index: usize) -> CircuitResult
         .ok_or(CircuitError::new(Error::OutOfDomain { param: "element", requirement: "must be a JSON object" }, place))?;
     let name_text = text(obj.get("name"), "name", place)?;
     let name = Name::new(name_text)?;
-    reject_unknown(obj, &["name", "kind", "nodes", "value", "valueIm", "control", "controlElement"], ELEMENT_FIELDS, name)?;
+    reject_unknown(obj, &["name", "kind", "nodes", "value", "valueIm", "control", "controlElement"], ELEMENT_FIELDS)?;
     let kind = ElementKind::from_name(text(obj.get("kind"), "kind", name)?).named(name)?;
     let (a, b) = pair(obj.get("nodes"), "nodes", name)?;
     let value = number(obj.get("value"), "value", name)?;

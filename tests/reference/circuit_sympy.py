@@ -4,6 +4,8 @@ open-loop gain a, input resistance Ri, output resistance Ro, source resistance R
 and load RL, derived by sympy from Kirchhoff's current law; and the closed forms of
 the two-port method (h parameters for the non-inverting, y for the inverting stage)
 derived the same way, for comparison with loopwright's numeric two-port analysis.
+The same for the two current-output templates: series-series (transconductance,
+z parameters) and shunt-series (current amplifier, g parameters).
 
 Op-amp model: Ri between the + and - inputs, an ideal source a*(v+ - v-) behind Ro.
 Non-inverting: vs -> Rs -> (+); (-) to ground through R1 and to the output through R2.
@@ -100,6 +102,72 @@ def inverting():
     return {"af": af, "rin": rin, "rout": rout, "tp_af": tp_af, "tp_rin": tp_rin, "tp_rout": tp_rout, "beta": beta, "tp_a": A}
 
 
+def series_series():
+    """Transconductance stage (loopwright template, rf = 0): vs -> Rs -> in; Ri
+    from in to fb; gm*(v_in - v_fb) into out; Ro from out to ground; RL from out
+    to fb; the sense resistor RE (symbol R_1) from fb to ground. Output io = I(RL)."""
+    vi, vf, vo = sp.symbols("v_i v_f v_o")
+    RE = R1
+    eqs = [
+        sp.Eq((vi - vs) / Rs + (vi - vf) / Ri, 0),
+        sp.Eq(-a * (vi - vf) + vo / Ro + (vo - vf) / RL, 0),
+        sp.Eq((vf - vi) / Ri + (vf - vo) / RL + vf / RE, 0),
+    ]
+    sol = sp.solve(eqs, [vi, vf, vo], dict=True)[0]
+    af = sp.simplify((sol[vo] - sol[vf]) / RL / vs)
+    rin = sp.simplify(sol[vi] / ((vs - sol[vi]) / Rs))
+    # Rout: vs = 0, RL removed, test current from fb into out.
+    eqs_out = [
+        sp.Eq(vi / Rs + (vi - vf) / Ri, 0),
+        sp.Eq(-a * (vi - vf) + vo / Ro - it, 0),
+        sp.Eq((vf - vi) / Ri + vf / RE + it, 0),
+    ]
+    so = sp.solve(eqs_out, [vi, vf, vo], dict=True)[0]
+    rout = sp.simplify((so[vo] - so[vf]) / it)
+    # Two-port method, z parameters of RE: z11 = z12 = z22 = RE.
+    beta = RE
+    A = a * Ri / (Rs + Ri + RE) * Ro / (Ro + RL + RE)
+    D = 1 + A * beta
+    return {
+        "af": af, "rin": rin, "rout": rout, "tp_af": A / D, "tp_rin": (Rs + Ri + RE) * D - Rs,
+        "tp_rout": (Ro + RL + RE) * D - RL, "beta": beta, "tp_a": A,
+    }
+
+
+def shunt_series():
+    """Current amplifier (loopwright template): is into in, Rs across it; Ri from in
+    to ground carries i_i; a*i_i (a < 0) into out; Ro from out to ground; RL from
+    out to ld; Rg (symbol R_1) from ld to ground; Rf (symbol R_2) from ld to in.
+    Output io = I(RL); Rin as seen by the Norton source (Rs excluded)."""
+    vi, vl, vo, i_s = sp.symbols("v_i v_l v_o i_s")
+    Rg, Rf = R1, R2
+    eqs = [
+        sp.Eq(-i_s + vi / Rs + vi / Ri + (vi - vl) / Rf, 0),
+        sp.Eq(-a * vi / Ri + vo / Ro + (vo - vl) / RL, 0),
+        sp.Eq((vl - vo) / RL + vl / Rg + (vl - vi) / Rf, 0),
+    ]
+    sol = sp.solve(eqs, [vi, vl, vo], dict=True)[0]
+    af = sp.simplify((sol[vo] - sol[vl]) / RL / i_s)
+    rin = sp.simplify(sol[vi] / (i_s - sol[vi] / Rs))
+    eqs_out = [
+        sp.Eq(vi / Rs + vi / Ri + (vi - vl) / Rf, 0),
+        sp.Eq(-a * vi / Ri + vo / Ro - it, 0),
+        sp.Eq(vl / Rg + (vl - vi) / Rf + it, 0),
+    ]
+    so = sp.solve(eqs_out, [vi, vl, vo], dict=True)[0]
+    rout = sp.simplify((so[vo] - so[vl]) / it)
+    # Two-port method, g parameters: g11 = 1/(Rf + Rg), g22 = Rf || Rg, g12 = -Rg/(Rf + Rg).
+    beta = -Rg / (Rf + Rg)
+    zin = par(Rs, Ri, Rf + Rg)
+    A = a * zin / Ri * Ro / (Ro + RL + par(Rf, Rg))
+    D = 1 + A * beta
+    rif = zin / D
+    return {
+        "af": af, "rin": rin, "rout": rout, "tp_af": A / D, "tp_rin": 1 / (1 / rif - 1 / Rs),
+        "tp_rout": (Ro + RL + par(Rf, Rg)) * D - RL, "beta": beta, "tp_a": A,
+    }
+
+
 def log_uniform(rng, lo, hi):
     import math
 
@@ -133,24 +201,41 @@ WORKED = {
 }
 
 
+def current_output_cases(rng, kind):
+    """Values for the current-output stages: a is gm (A/V) for series-series and the
+    (negative) current gain for shunt-series; r1 is RE or Rg, r2 is Rf."""
+    out = []
+    for _ in range(N_CASES):
+        if kind == "series_series":
+            c = {"a": log_uniform(rng, 1e-3, 1.0), "ri": log_uniform(rng, 1e3, 1e7), "r1": log_uniform(rng, 10.0, 1e3), "r2": 0.0}
+        else:
+            c = {"a": -log_uniform(rng, 10.0, 1e4), "ri": log_uniform(rng, 10.0, 1e3), "r1": log_uniform(rng, 10.0, 1e3), "r2": log_uniform(rng, 1e3, 1e5)}
+        c.update({"ro": log_uniform(rng, 1e3, 1e7), "rs": log_uniform(rng, 10.0, 1e4), "rl": log_uniform(rng, 1e2, 1e4)})
+        out.append(c)
+    return out
+
+
 def evaluate():
     rng = random.Random(SEED)
-    stages = {"noninverting": noninverting(), "inverting": inverting()}
+    stages = {"noninverting": noninverting(), "inverting": inverting(), "series_series": series_series(), "shunt_series": shunt_series()}
     result = {"tolerance": 1e-9, "seed": SEED, "stages": {}}
     inputs = cases(rng)
+    more = {k: current_output_cases(random.Random(SEED + i + 1), k) for i, k in enumerate(["series_series", "shunt_series"])}
     for name, forms in stages.items():
         rows = []
-        for c in inputs:
+        for c in more.get(name, inputs):
             sub = {a: c["a"], Ri: c["ri"], Ro: c["ro"], Rs: c["rs"], RL: c["rl"], R1: c["r1"], R2: c["r2"]}
+            sub.update({sp.Symbol("v_s"): 1, sp.Symbol("i_s"): 1})
             row = dict(c)
             for k, expr in forms.items():
                 row[k] = float(sp.N(expr.subs(sub), 30))
             rows.append(row)
-        worked = dict(WORKED[name])
-        sub = {a: worked["a"], Ri: worked["ri"], Ro: worked["ro"], Rs: worked["rs"], RL: worked["rl"], R1: worked["r1"], R2: worked["r2"]}
-        for k, expr in forms.items():
-            worked[k] = float(sp.N(expr.subs(sub), 30))
-        rows.append(worked)
+        if name in WORKED:
+            worked = dict(WORKED[name])
+            sub = {a: worked["a"], Ri: worked["ri"], Ro: worked["ro"], Rs: worked["rs"], RL: worked["rl"], R1: worked["r1"], R2: worked["r2"]}
+            for k, expr in forms.items():
+                worked[k] = float(sp.N(expr.subs(sub), 30))
+            rows.append(worked)
         result["stages"][name] = {"forms": {k: str(v) for k, v in forms.items()}, "cases": rows}
     return result
 
