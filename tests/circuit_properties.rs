@@ -123,3 +123,45 @@ fn passive_networks_are_reciprocal() {
         })
         .unwrap();
 }
+
+#[test]
+fn malformed_input_never_panics() {
+    // Random texts and random single-byte edits of a valid document: every one is
+    // read and, when it reads, solved, ending in a value or a typed error.
+    use loopwright::circuit::json::read_circuit;
+    use loopwright::circuit::parse_value;
+    const DOC: &str = r#"{"format":"loopwright-circuit","version":1,"elements":[
+        {"name":"V1","kind":"voltage-source","nodes":["in","0"],"value":1},
+        {"name":"R1","kind":"resistor","nodes":["in","out"],"value":"4k7"},
+        {"name":"C1","kind":"capacitor","nodes":["out","0"],"value":"100n"},
+        {"name":"E1","kind":"vcvs","nodes":["x","0"],"control":["out","0"],"value":-2},
+        {"name":"H1","kind":"ccvs","nodes":["y","0"],"controlElement":"V1","value":"1k"},
+        {"name":"R2","kind":"resistor","nodes":["y","x"],"value":10}]}"#;
+    let edits = (0..DOC.len(), proptest::sample::select(b"{}[]\":,0123456789.-eEkRnux ".to_vec()));
+    runner(300)
+        .run(&proptest::collection::vec(edits, 1..4), |edits| {
+            let mut bytes = DOC.as_bytes().to_vec();
+            for (at, b) in edits {
+                bytes[at] = b;
+            }
+            if let Ok(text) = core::str::from_utf8(&bytes) {
+                if let Ok(c) = read_circuit(text) {
+                    for f in [0.0, 1e3] {
+                        if let Ok(s) = solve(&c, f) {
+                            prop_assert!(s.node_voltages.iter().all(|v| v.re.is_finite() && v.im.is_finite()));
+                        }
+                    }
+                }
+            }
+            Ok(())
+        })
+        .unwrap();
+    runner(300)
+        .run(&"[ -~µΩ]{0,12}", |text| {
+            if let Ok(v) = parse_value("value", &text) {
+                prop_assert!(v.is_finite(), "{text} → {v}");
+            }
+            Ok(())
+        })
+        .unwrap();
+}
