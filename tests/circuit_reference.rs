@@ -56,6 +56,37 @@ struct SympyStage {
 #[derive(Deserialize)]
 struct SympyRef {
     stages: BTreeMap<String, SympyStage>,
+    noninverting_ac: Vec<AcCase>,
+}
+
+/// A non-inverting stage with Cf across R2 at frequency f; results as [re, im].
+#[derive(Deserialize)]
+struct AcCase {
+    a: f64,
+    ri: f64,
+    ro: f64,
+    rs: f64,
+    rl: f64,
+    r1: f64,
+    r2: f64,
+    cf: f64,
+    f: f64,
+    af: [f64; 2],
+    rin: [f64; 2],
+    rout: [f64; 2],
+    tp_af: [f64; 2],
+    tp_rin: [f64; 2],
+    tp_rout: [f64; 2],
+    beta: [f64; 2],
+}
+
+fn assert_rel_c(what: &str, case: usize, got: Complex64, want: [f64; 2], rel: f64) {
+    let w = Complex64::new(want[0], want[1]);
+    let err = (got - w).norm() / w.norm();
+    if let Ok(mut m) = WORST.lock() {
+        *m = m.max(err);
+    }
+    assert!(err <= rel, "{what}, case {case}: loopwright {got}, reference {w} (relative error {err:e})");
 }
 
 fn sympy() -> SympyRef {
@@ -176,6 +207,31 @@ fn current_output_stages_match_sympy() {
             assert_rel(&what("two-port rin"), i, a.rin.two_port, c.tp_rin, SYMPY_TWO_PORT_REL);
             assert_rel(&what("two-port rout"), i, a.rout.two_port, c.tp_rout, SYMPY_TWO_PORT_REL);
         }
+    }
+    println!("worst relative difference against sympy so far: {:e}", WORST.lock().map(|w| *w).unwrap_or(0.0));
+}
+
+#[test]
+fn noninverting_stage_with_feedback_capacitor_matches_sympy_at_frequency() {
+    // The complex (phasor) answers, exact and two-port, with Cf across R2.
+    let r = sympy();
+    assert!(r.noninverting_ac.len() >= 20);
+    for (i, c) in r.noninverting_ac.iter().enumerate() {
+        let spec = StageSpec {
+            topology: Topology::SeriesShunt,
+            amplifier: AmplifierModel { ri: c.ri, ro: c.ro, gain: c.a, ci: 0.0, co: 0.0 },
+            network: FeedbackNetwork { rf: c.r2, rg: c.r1, cf: c.cf },
+            rs: c.rs,
+            rl: c.rl,
+        };
+        let t = analyze(&spec, c.f).unwrap();
+        assert_rel_c("exact af", i, t.af.exact, c.af, SYMPY_EXACT_REL);
+        assert_rel_c("exact rin", i, t.rin.exact, c.rin, SYMPY_EXACT_REL);
+        assert_rel_c("exact rout", i, t.rout.exact, c.rout, SYMPY_EXACT_REL);
+        assert_rel_c("beta", i, t.beta, c.beta, SYMPY_TWO_PORT_REL);
+        assert_rel_c("two-port af", i, t.af.two_port, c.tp_af, SYMPY_TWO_PORT_REL);
+        assert_rel_c("two-port rin", i, t.rin.two_port, c.tp_rin, SYMPY_TWO_PORT_REL);
+        assert_rel_c("two-port rout", i, t.rout.two_port, c.tp_rout, SYMPY_TWO_PORT_REL);
     }
     println!("worst relative difference against sympy so far: {:e}", WORST.lock().map(|w| *w).unwrap_or(0.0));
 }

@@ -5,7 +5,9 @@ and load RL, derived by sympy from Kirchhoff's current law; and the closed forms
 the two-port method (h parameters for the non-inverting, y for the inverting stage)
 derived the same way, for comparison with loopwright's numeric two-port analysis.
 The same for the two current-output templates: series-series (transconductance,
-z parameters) and shunt-series (current amplifier, g parameters).
+z parameters) and shunt-series (current amplifier, g parameters); and the
+non-inverting stage with a capacitor across R2 at random frequencies (complex).
+The closed forms are evaluated with mpmath at 30 digits (sympy.lambdify).
 
 Op-amp model: Ri between the + and - inputs, an ideal source a*(v+ - v-) behind Ro.
 Non-inverting: vs -> Rs -> (+); (-) to ground through R1 and to the output through R2.
@@ -25,13 +27,29 @@ import random
 import sys
 from pathlib import Path
 
+import mpmath
 import sympy as sp
+
+# Closed forms are evaluated with mpmath at 30 significant digits.
+mpmath.mp.dps = 30
+ARGS = None  # set below, after the symbols
+
+
+def numeric(expr):
+    """The closed form as a fast function of (a, Ri, Ro, Rs, RL, R1, R2) in mpmath."""
+    return sp.lambdify(ARGS, expr, modules="mpmath")
 
 OUT = Path(__file__).parent / "data" / "circuit_sympy.json"
 SEED = 20260502
 N_CASES = 40
 
 a, Ri, Ro, Rs, RL, R1, R2, vs, it = sp.symbols("a R_i R_o R_s R_L R_1 R_2 v_s i_t", positive=True)
+ARGS = (a, Ri, Ro, Rs, RL, R1, R2)
+
+
+def values(c, r2=None):
+    mp = mpmath.mpf
+    return (mp(c["a"]), mp(c["ri"]), mp(c["ro"]), mp(c["rs"]), mp(c["rl"]), mp(c["r1"]), mp(c["r2"]) if r2 is None else r2)
 
 
 def par(*rs):
@@ -222,26 +240,45 @@ def evaluate():
     inputs = cases(rng)
     more = {k: current_output_cases(random.Random(SEED + i + 1), k) for i, k in enumerate(["series_series", "shunt_series"])}
     for name, forms in stages.items():
+        fns = {k: numeric(v) for k, v in forms.items()}
         rows = []
         for c in more.get(name, inputs):
-            sub = {a: c["a"], Ri: c["ri"], Ro: c["ro"], Rs: c["rs"], RL: c["rl"], R1: c["r1"], R2: c["r2"]}
-            sub.update({sp.Symbol("v_s"): 1, sp.Symbol("i_s"): 1})
             row = dict(c)
-            for k, expr in forms.items():
-                row[k] = float(sp.N(expr.subs(sub), 30))
+            for k, fn in fns.items():
+                row[k] = float(fn(*values(c)))
             rows.append(row)
         if name in WORKED:
             worked = dict(WORKED[name])
-            sub = {a: worked["a"], Ri: worked["ri"], Ro: worked["ro"], Rs: worked["rs"], RL: worked["rl"], R1: worked["r1"], R2: worked["r2"]}
-            for k, expr in forms.items():
-                worked[k] = float(sp.N(expr.subs(sub), 30))
+            for k, fn in fns.items():
+                worked[k] = float(fn(*values(worked)))
             rows.append(worked)
         result["stages"][name] = {"forms": {k: str(v) for k, v in forms.items()}, "cases": rows}
     return result
 
 
+def evaluate_ac(forms):
+    """The non-inverting stage with Cf across R2 at a frequency: KCL is the same
+    with R2 replaced by the impedance Z2 = R2 / (1 + j*2*pi*f*R2*Cf), so the exact
+    and two-port forms above hold with that substitution. Complex results as [re, im]."""
+    rng = random.Random(SEED + 7)
+    fns = {k: numeric(v) for k, v in forms.items()}
+    rows = []
+    for c in cases(rng)[:20]:
+        c = dict(c)
+        c["cf"] = log_uniform(rng, 1e-12, 1e-9)
+        c["f"] = log_uniform(rng, 1e2, 1e7)
+        r2 = mpmath.mpf(c["r2"])
+        z2 = r2 / (1 + 1j * 2 * mpmath.pi * mpmath.mpf(c["f"]) * r2 * mpmath.mpf(c["cf"]))
+        for k, fn in fns.items():
+            v = complex(fn(*values(c, z2)))
+            c[k] = [v.real, v.imag]
+        rows.append(c)
+    return rows
+
+
 def main():
     result = evaluate()
+    result["noninverting_ac"] = evaluate_ac(noninverting())
     if "--check" in sys.argv:
         committed = json.loads(OUT.read_text())
         bad = 0
@@ -255,9 +292,17 @@ def main():
                     if abs(v - old[k]) > 1e-9 * max(abs(v), abs(old[k]), 1e-300):
                         print(f"circuit_sympy {stage} case {i} {k}: {v} != committed {old[k]}")
                         bad += 1
+        for i, (new, old) in enumerate(zip(result["noninverting_ac"], committed["noninverting_ac"])):
+            for k, v in new.items():
+                pairs = zip(v, old[k]) if isinstance(v, list) else [(v, old[k])]
+                for x, y in pairs:
+                    if abs(x - y) > 1e-9 * max(abs(x), abs(y), 1e-300):
+                        print(f"circuit_sympy noninverting_ac case {i} {k}: {v} != committed {old[k]}")
+                        bad += 1
         if bad:
             sys.exit(1)
-        print(f"circuit_sympy: {sum(len(b['cases']) for b in result['stages'].values())} cases match")
+        n = sum(len(b["cases"]) for b in result["stages"].values()) + len(result["noninverting_ac"])
+        print(f"circuit_sympy: {n} cases match")
         return
     OUT.parent.mkdir(parents=True, exist_ok=True)
     OUT.write_text(json.dumps(result, indent=1) + "\n")
