@@ -6,6 +6,7 @@
 //! thrown as a JS `Error` with `code` and `param` fields. JS names are camelCase.
 //! One file per catalog area.
 
+pub mod circuit;
 pub mod feedback;
 pub mod network;
 pub mod noise;

@@ -1,0 +1,700 @@
+//! Exact complex modified nodal analysis (MNA) at one frequency.
+//!
+//! Unknowns: the voltage of every node but ground, then the branch current of
+//! every element that carries one (voltage sources, inductors, VCVS, CCVS). Rows:
+//! Kirchhoff's current law at each node (sum of currents leaving = 0), then one
+//! constitutive equation per branch element. With s = j·2π·f:
+//! - resistor G = 1/R, capacitor Y = s·C, admittance Y (fixed): stamped as admittances;
+//! - inductor: V(a) − V(b) − s·L·I = 0 (a short at 0 Hz);
+//! - voltage source: V(a) − V(b) = value; VCVS: V(a) − V(b) − k·(V(c+) − V(c−)) = 0;
+//! - CCVS: V(a) − V(b) − r·I(control) = 0;
+//! - current source, VCCS, CCCS: their current leaves node a and enters node b.
+//!
+//! Source: Ho, Ruehli & Brennan, "The modified nodal approach to network
+//! analysis", IEEE Trans. Circuits and Systems, vol. 22, no. 6, 1975 (from memory);
+//! the stamps as in Vlach & Singhal, *Computer Methods for Circuit Analysis and
+//! Design*, 2nd ed., ch. 4 (from memory).
+//!
+//! Before the solve the structure is checked, so that the error names the fault:
+//! a node with no conducting path to ground (capacitors do not conduct at 0 Hz,
+//! current sources never) and a loop made only of voltage-defining elements
+//! (voltage sources, VCVS, CCVS, and inductors at 0 Hz). Whatever is still
+//! singular is found by the LU ([`super::lu`]) and named by its unknown.
+
+use super::error::{CircuitError, CircuitResult, Name, WithName};
+use super::lu::Lu;
+use super::netlist::{Circuit, Control, ElementKind};
+use crate::check;
+use crate::error::Error;
+use alloc::vec::Vec;
+use core::f64::consts::PI;
+use num_complex::Complex64;
+
+/// A named complex value (a node voltage or an element current).
+#[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+pub struct NamedValue {
+    /// Node or element name.
+    pub name: Name,
+    /// Real part.
+    pub re: f64,
+    /// Imaginary part.
+    pub im: f64,
+}
+
+impl NamedValue {
+    /// The value as a complex number.
+    pub fn value(&self) -> Complex64 {
+        Complex64::new(self.re, self.im)
+    }
+}
+
+/// The exact solution of a circuit at one frequency.
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[cfg_attr(feature = "serde", serde(rename_all = "camelCase"))]
+pub struct Solution {
+    /// Frequency, Hz.
+    pub frequency_hz: f64,
+    /// Voltage of every node against ground, V (ground first, at 0).
+    pub node_voltages: Vec<NamedValue>,
+    /// Current of every element, from its node a through it to its node b, A.
+    pub element_currents: Vec<NamedValue>,
+}
+
+impl Solution {
+    /// Voltage of a node against ground.
+    ///
+    /// # Errors
+    /// Unknown node name.
+    pub fn voltage(&self, node: &str) -> CircuitResult<Complex64> {
+        let n = Name::truncated(node);
+        if n.is_ground() {
+            return Ok(Complex64::new(0.0, 0.0));
+        }
+        self.node_voltages.iter().find(|v| v.name == n).map(NamedValue::value).ok_or(CircuitError::new(
+            Error::UnknownName { param: "node", expected: "the name of a node of the circuit" },
+            n,
+        ))
+    }
+
+    /// Voltage V(plus) − V(minus).
+    ///
+    /// # Errors
+    /// Unknown node name.
+    pub fn voltage_between(&self, plus: &str, minus: &str) -> CircuitResult<Complex64> {
+        Ok(self.voltage(plus)? - self.voltage(minus)?)
+    }
+
+    /// Current of an element (from its node a through it to its node b).
+    ///
+    /// # Errors
+    /// Unknown element name.
+    pub fn current(&self, element: &str) -> CircuitResult<Complex64> {
+        let n = Name::truncated(element);
+        self.element_currents.iter().find(|v| v.name == n).map(NamedValue::value).ok_or(CircuitError::new(
+            Error::UnknownName { param: "element", expected: "the name of an element of the circuit" },
+            n,
+        ))
+    }
+}
+
+/// Angular frequency for a frequency in Hz (finite, ≥ 0).
+pub(crate) fn omega(frequency_hz: f64) -> CircuitResult<f64> {
+    check::non_negative("frequency", frequency_hz)?;
+    Ok(check::result("frequency", 2.0 * PI * frequency_hz)?)
+}
+
+/// Small union-find over node indices.
+struct Sets(Vec<usize>);
+
+impl Sets {
+    fn new(n: usize) -> Sets {
+        Sets((0..n).collect())
+    }
+    fn root(&mut self, mut i: usize) -> usize {
+        while let Some(&p) = self.0.get(i) {
+            if p == i {
+                break;
+            }
+            let gp = self.0.get(p).copied().unwrap_or(p);
+            if let Some(slot) = self.0.get_mut(i) {
+                *slot = gp;
+            }
+            i = p;
+        }
+        i
+    }
+    /// Join; false when they were already joined.
+    fn join(&mut self, a: usize, b: usize) -> bool {
+        let (ra, rb) = (self.root(a), self.root(b));
+        if ra == rb {
+            return false;
+        }
+        if let Some(slot) = self.0.get_mut(ra) {
+            *slot = rb;
+        }
+        true
+    }
+}
+
+/// Index of the element controlling element `i`'s current, checked.
+fn control_element(c: &Circuit, name: Name, control: Name) -> CircuitResult<usize> {
+    let j = c.element_index(control.as_str()).map_err(|e| {
+        CircuitError::new(
+            Error::UnknownName {
+                param: "controlElement",
+                expected: "the name of an element of the circuit that carries a branch current",
+            },
+            e.name,
+        )
+    })?;
+    let kind = c.elements().get(j).map(|e| e.kind()).unwrap_or(ElementKind::Resistor);
+    if !kind.has_branch() {
+        return Err(CircuitError::new(
+            Error::OutOfDomain {
+                param: "controlElement",
+                requirement: "must name a voltage source, inductor, VCVS or CCVS (an element with its own branch current)",
+            },
+            name,
+        ));
+    }
+    Ok(j)
+}
+
+/// The structure of the MNA system of a circuit.
+pub(crate) struct Layout {
+    /// Node unknowns (nodes but ground).
+    pub nodes: usize,
+    /// Branch unknown index (absolute row/column) per element, for branch elements.
+    pub branch: Vec<Option<usize>>,
+    /// Controlling element per element, for CCVS and CCCS.
+    pub control: Vec<Option<usize>>,
+    /// Total unknowns.
+    pub size: usize,
+}
+
+pub(crate) fn layout(c: &Circuit) -> CircuitResult<Layout> {
+    let nodes = c.nodes().len().saturating_sub(1);
+    let mut next = nodes;
+    let mut branch = Vec::with_capacity(c.elements().len());
+    let mut control = Vec::with_capacity(c.elements().len());
+    for e in c.elements() {
+        branch.push(if e.kind().has_branch() {
+            next += 1;
+            Some(next - 1)
+        } else {
+            None
+        });
+        control.push(match e.control() {
+            Control::Element(n) => Some(control_element(c, e.name(), n)?),
+            _ => None,
+        });
+    }
+    Ok(Layout { nodes, branch, control, size: next })
+}
+
+/// Check for floating nodes and loops of voltage-defining elements.
+fn check_structure(c: &Circuit, w: f64) -> CircuitResult<()> {
+    let n = c.nodes().len();
+    let mut conducting = Sets::new(n);
+    let mut voltage = Sets::new(n);
+    for e in c.elements() {
+        let [a, b] = e.nodes();
+        let conducts = match e.kind() {
+            ElementKind::CurrentSource => false,
+            ElementKind::Capacitor => w > 0.0,
+            ElementKind::Admittance => e.value() != 0.0 || e.value_im() != 0.0,
+            _ => true,
+        };
+        if conducts {
+            conducting.join(a, b);
+        }
+        let defines_voltage = match e.kind() {
+            ElementKind::VoltageSource | ElementKind::Vcvs | ElementKind::Ccvs => true,
+            ElementKind::Inductor => w == 0.0,
+            _ => false,
+        };
+        if defines_voltage && !voltage.join(a, b) {
+            return Err(CircuitError::new(
+                Error::Singular {
+                    param: "element",
+                    reason: "closes a loop of voltage sources (or inductors at 0 Hz), so the loop current is undetermined",
+                },
+                e.name(),
+            ));
+        }
+    }
+    let ground = conducting.root(0);
+    for (i, name) in c.nodes().iter().enumerate().skip(1) {
+        if conducting.root(i) != ground {
+            return Err(CircuitError::new(
+                Error::Singular {
+                    param: "node",
+                    reason: "floating: no conducting path to ground at this frequency (capacitors are open at 0 Hz, current sources always)",
+                },
+                *name,
+            ));
+        }
+    }
+    Ok(())
+}
+
+/// Assemble the MNA matrix and right-hand side at angular frequency `w`.
+pub(crate) fn assemble(c: &Circuit, lay: &Layout, w: f64) -> (Vec<Complex64>, Vec<Complex64>) {
+    let size = lay.size;
+    let mut m = alloc::vec![Complex64::new(0.0, 0.0); size * size];
+    let mut rhs = alloc::vec![Complex64::new(0.0, 0.0); size];
+    // Node k (k ≥ 1) is unknown k − 1; ground has no row or column.
+    let idx = |node: usize| node.checked_sub(1);
+    let mut add = |r: Option<usize>, col: Option<usize>, v: Complex64| {
+        if let (Some(r), Some(col)) = (r, col) {
+            if let Some(x) = m.get_mut(r * size + col) {
+                *x += v;
+            }
+        }
+    };
+    let s = Complex64::new(0.0, w);
+    let one = Complex64::new(1.0, 0.0);
+    for (i, e) in c.elements().iter().enumerate() {
+        let [a, b] = e.nodes();
+        let (ra, rb) = (idx(a), idx(b));
+        let br = lay.branch.get(i).copied().flatten();
+        let admittance = |y: Complex64, add: &mut dyn FnMut(Option<usize>, Option<usize>, Complex64)| {
+            add(ra, ra, y);
+            add(rb, rb, y);
+            add(ra, rb, -y);
+            add(rb, ra, -y);
+        };
+        let k = Complex64::new(e.value(), 0.0);
+        match e.kind() {
+            ElementKind::Resistor => admittance(one / k, &mut add),
+            ElementKind::Capacitor => admittance(s * k, &mut add),
+            ElementKind::Admittance => admittance(Complex64::new(e.value(), e.value_im()), &mut add),
+            ElementKind::CurrentSource => {
+                // Current leaves a: −value on a's right side, +value on b's.
+                if let Some(r) = ra {
+                    if let Some(x) = rhs.get_mut(r) {
+                        *x -= k;
+                    }
+                }
+                if let Some(r) = rb {
+                    if let Some(x) = rhs.get_mut(r) {
+                        *x += k;
+                    }
+                }
+            }
+            ElementKind::Vccs | ElementKind::Cccs => {
+                let (cp, cn) = match (e.control(), lay.control.get(i).copied().flatten()) {
+                    (Control::Nodes([p, n]), _) => (idx(p), idx(n)),
+                    (_, Some(j)) => (lay.branch.get(j).copied().flatten(), None),
+                    _ => (None, None),
+                };
+                add(ra, cp, k);
+                add(ra, cn, -k);
+                add(rb, cp, -k);
+                add(rb, cn, k);
+            }
+            ElementKind::VoltageSource
+            | ElementKind::Inductor
+            | ElementKind::Vcvs
+            | ElementKind::Ccvs => {
+                // KCL: the branch current leaves a and enters b.
+                add(ra, br, one);
+                add(rb, br, -one);
+                // Branch equation: V(a) − V(b) − (…) = rhs.
+                add(br, ra, one);
+                add(br, rb, -one);
+                match e.kind() {
+                    ElementKind::VoltageSource => {
+                        if let Some(x) = br.and_then(|r| rhs.get_mut(r)) {
+                            *x += k;
+                        }
+                    }
+                    ElementKind::Inductor => add(br, br, -(s * k)),
+                    ElementKind::Vcvs => {
+                        if let Control::Nodes([p, n]) = e.control() {
+                            add(br, idx(p), -k);
+                            add(br, idx(n), k);
+                        }
+                    }
+                    _ => {
+                        let cb = lay.control.get(i).copied().flatten().and_then(|j| lay.branch.get(j).copied().flatten());
+                        add(br, cb, -k);
+                    }
+                }
+            }
+        }
+    }
+    (m, rhs)
+}
+
+/// Solve the circuit exactly at `frequency_hz`.
+///
+/// # Errors
+/// `frequency` negative or not finite; a floating node (param `node`, named); a
+/// loop of voltage sources (param `element`, named); an unknown or unsuitable
+/// control element (param `controlElement`); any other singular system
+/// ([`Error::Singular`] naming the node or branch element whose unknown has no
+/// pivot); results that overflow ([`Error::Overflow`]).
+///
+/// # Example
+/// ```
+/// use loopwright::circuit::{solve, Circuit};
+/// let mut c = Circuit::new();
+/// c.voltage_source("V1", "in", "0", 10.0).unwrap();
+/// c.resistor("R1", "in", "out", 3e3).unwrap();
+/// c.resistor("R2", "out", "0", 1e3).unwrap();
+/// let s = solve(&c, 0.0).unwrap();
+/// assert!((s.voltage("out").unwrap().re - 2.5).abs() < 1e-12);
+/// // A node reached only through a capacitor floats at 0 Hz.
+/// c.capacitor("C1", "out", "x", 1e-9).unwrap();
+/// assert_eq!(solve(&c, 0.0).unwrap_err().name.as_str(), "x");
+/// ```
+pub fn solve(c: &Circuit, frequency_hz: f64) -> CircuitResult<Solution> {
+    let w = omega(frequency_hz)?;
+    let lay = layout(c)?;
+    let x = solve_vector(c, &lay, w)?;
+    let v = |node: usize| node.checked_sub(1).and_then(|i| x.get(i).copied()).unwrap_or_default();
+    let node_voltages = c
+        .nodes()
+        .iter()
+        .enumerate()
+        .map(|(i, &name)| {
+            let z = v(i);
+            NamedValue { name, re: z.re, im: z.im }
+        })
+        .collect();
+    let s = Complex64::new(0.0, w);
+    let mut element_currents = Vec::with_capacity(c.elements().len());
+    for (i, e) in c.elements().iter().enumerate() {
+        let [a, b] = e.nodes();
+        let vab = v(a) - v(b);
+        let k = Complex64::new(e.value(), 0.0);
+        let branch_current = |j: Option<usize>| j.and_then(|r| x.get(r).copied()).unwrap_or_default();
+        let current = match e.kind() {
+            ElementKind::Resistor => vab / k,
+            ElementKind::Capacitor => vab * s * k,
+            ElementKind::Admittance => vab * Complex64::new(e.value(), e.value_im()),
+            ElementKind::CurrentSource => k,
+            ElementKind::Vccs => match e.control() {
+                Control::Nodes([p, n]) => k * (v(p) - v(n)),
+                _ => Complex64::default(),
+            },
+            ElementKind::Cccs => {
+                let j = lay.control.get(i).copied().flatten().and_then(|j| lay.branch.get(j).copied().flatten());
+                k * branch_current(j)
+            }
+            _ => branch_current(lay.branch.get(i).copied().flatten()),
+        };
+        let current = check::result_complex("current", current).named(e.name())?;
+        element_currents.push(NamedValue { name: e.name(), re: current.re, im: current.im });
+    }
+    Ok(Solution { frequency_hz, node_voltages, element_currents })
+}
+
+/// The raw unknown vector (node voltages, then branch currents) at angular
+/// frequency `w`, after the structural checks.
+pub(crate) fn solve_vector(c: &Circuit, lay: &Layout, w: f64) -> CircuitResult<Vec<Complex64>> {
+    check_structure(c, w)?;
+    let (m, rhs) = assemble(c, lay, w);
+    solve_matrix(c, lay, m, &rhs)
+}
+
+/// Factor, solve, refine once and check the unknowns of an assembled system.
+fn solve_matrix(c: &Circuit, lay: &Layout, m: Vec<Complex64>, rhs: &[Complex64]) -> CircuitResult<Vec<Complex64>> {
+    let lu = Lu::factor(lay.size, m.clone()).map_err(|p| {
+        if p.column < lay.nodes {
+            let name = c.nodes().get(p.column + 1).copied().unwrap_or(Name::EMPTY);
+            CircuitError::new(
+                Error::Singular {
+                    param: "node",
+                    reason: "the circuit equations leave this node's voltage undetermined",
+                },
+                name,
+            )
+        } else {
+            let name = lay
+                .branch
+                .iter()
+                .position(|&b| b == Some(p.column))
+                .and_then(|i| c.elements().get(i))
+                .map(|e| e.name())
+                .unwrap_or(Name::EMPTY);
+            CircuitError::new(
+                Error::Singular {
+                    param: "element",
+                    reason: "the circuit equations leave this element's current undetermined",
+                },
+                name,
+            )
+        }
+    })?;
+    let mut x = lu.solve(rhs);
+    // One step of iterative refinement: r = b − M·x, x += M⁻¹·r. It recovers the
+    // digits the elimination lost on badly scaled systems (Golub & Van Loan,
+    // Matrix Computations, 4th ed., section 3.5.3, from memory).
+    let n = lay.size;
+    let residual: Vec<Complex64> = (0..n)
+        .map(|r| {
+            let row = m.get(r * n..(r + 1) * n).unwrap_or(&[]);
+            rhs.get(r).copied().unwrap_or_default() - row.iter().zip(&x).map(|(a, b)| a * b).sum::<Complex64>()
+        })
+        .collect();
+    let dx = lu.solve(&residual);
+    if dx.iter().all(|z| z.re.is_finite() && z.im.is_finite()) {
+        for (xi, d) in x.iter_mut().zip(dx) {
+            *xi += d;
+        }
+    }
+    for (i, z) in x.iter().enumerate() {
+        if !(z.re.is_finite() && z.im.is_finite()) {
+            let name = c.nodes().get(i + 1).copied().unwrap_or(Name::EMPTY);
+            return Err(CircuitError::new(Error::Overflow { param: "solution" }, name));
+        }
+    }
+    Ok(x)
+}
+
+/// The voltage transfer V(plus) − V(minus) per unit of the named independent
+/// source, with every other independent source set to zero.
+///
+/// # Errors
+/// As [`solve`]; unknown names; `source` not an independent source or of value 0
+/// is fine (it is set to 1 for the solve).
+pub fn voltage_transfer(c: &Circuit, source: &str, plus: &str, minus: &str, frequency_hz: f64) -> CircuitResult<Complex64> {
+    let (c1, _) = unit_source(c, source)?;
+    solve(&c1, frequency_hz)?.voltage_between(plus, minus)
+}
+
+/// The current of `element` per unit of the named independent source, other
+/// independent sources set to zero.
+///
+/// # Errors
+/// As [`voltage_transfer`].
+pub fn current_transfer(c: &Circuit, source: &str, element: &str, frequency_hz: f64) -> CircuitResult<Complex64> {
+    let (c1, _) = unit_source(c, source)?;
+    solve(&c1, frequency_hz)?.current(element)
+}
+
+/// Most frequencies in one sweep.
+pub const MAX_SWEEP: usize = 100_000;
+
+/// The voltage transfer of [`voltage_transfer`] at each of `frequencies_hz`.
+///
+/// The circuit is checked and laid out once; each frequency is one assembly and
+/// one LU solve.
+///
+/// # Errors
+/// More than [`MAX_SWEEP`] frequencies (param `frequencies`); otherwise as
+/// [`voltage_transfer`] at the first frequency that fails.
+///
+/// # Example
+/// ```
+/// use loopwright::circuit::{voltage_transfer_sweep, Circuit};
+/// let mut c = Circuit::new();
+/// c.voltage_source("V1", "in", "0", 1.0).unwrap();
+/// c.resistor("R1", "in", "out", 1e3).unwrap();
+/// c.capacitor("C1", "out", "0", 1e-6).unwrap();
+/// let h = voltage_transfer_sweep(&c, "V1", "out", "0", &[0.0, 1e6]).unwrap();
+/// assert!((h[0].re - 1.0).abs() < 1e-15 && h[1].norm() < 1e-3);
+/// assert!(voltage_transfer_sweep(&c, "V1", "out", "0", &[-5.0]).is_err());
+/// ```
+pub fn voltage_transfer_sweep(
+    c: &Circuit,
+    source: &str,
+    plus: &str,
+    minus: &str,
+    frequencies_hz: &[f64],
+) -> CircuitResult<Vec<Complex64>> {
+    if frequencies_hz.len() > MAX_SWEEP {
+        return Err(CircuitError::from(Error::TooLarge { param: "frequencies", limit: MAX_SWEEP as u64 }));
+    }
+    let (c1, _) = unit_source(c, source)?;
+    let (p, m) = (c1.node_index(plus)?, c1.node_index(minus)?);
+    let lay = layout(&c1)?;
+    // Every stamp is constant or proportional to s = jω, so M(ω) = M0 + jω·M1:
+    // assemble both once, and check the structure once per kind of frequency
+    // (0 Hz, where capacitors are open and inductors short, or above).
+    let (m0, rhs) = assemble(&c1, &lay, 0.0);
+    let (unit, _) = assemble(&c1, &lay, 1.0);
+    let m1: Vec<f64> = unit.iter().zip(&m0).map(|(u, z)| u.im - z.im).collect();
+    let (mut dc_checked, mut ac_checked) = (false, false);
+    let mut out = Vec::with_capacity(frequencies_hz.len());
+    for &f in frequencies_hz {
+        let w = omega(f)?;
+        let checked = if w == 0.0 { &mut dc_checked } else { &mut ac_checked };
+        if !*checked {
+            check_structure(&c1, w)?;
+            *checked = true;
+        }
+        let mw: Vec<Complex64> = m0.iter().zip(&m1).map(|(z, b)| Complex64::new(z.re, z.im + w * b)).collect();
+        let x = solve_matrix(&c1, &lay, mw, &rhs)?;
+        let v = |k: usize| k.checked_sub(1).and_then(|i| x.get(i).copied()).unwrap_or_default();
+        out.push(v(p) - v(m));
+    }
+    Ok(out)
+}
+
+/// A copy with every independent source at zero except `source`, which is set to 1.
+pub(crate) fn unit_source(c: &Circuit, source: &str) -> CircuitResult<(Circuit, usize)> {
+    let i = c.element_index(source)?;
+    let kind = c.elements().get(i).map(|e| e.kind()).unwrap_or(ElementKind::Resistor);
+    if !kind.is_independent() {
+        return Err(CircuitError::named(
+            Error::OutOfDomain { param: "source", requirement: "must name an independent voltage or current source" },
+            source,
+        ));
+    }
+    let mut c1 = c.clone();
+    c1.zero_sources();
+    c1.replace_with_source(i, 1.0);
+    Ok((c1, i))
+}
+
+/// Impedance between `plus` and `minus` seen by a test current source, with every
+/// independent source set to zero (voltage sources shorted, current sources open).
+///
+/// Z = (V(plus) − V(minus)) / I_test, Ω.
+///
+/// # Errors
+/// As [`solve`]; a port across which nothing conducts is a floating node.
+///
+/// # Example
+/// ```
+/// use loopwright::circuit::{port_impedance, Circuit};
+/// let mut c = Circuit::new();
+/// c.resistor("R1", "a", "0", 1e3).unwrap();
+/// c.resistor("R2", "a", "0", 1e3).unwrap();
+/// assert!((port_impedance(&c, "a", "0", 0.0).unwrap().re - 500.0).abs() < 1e-9);
+/// assert_eq!(port_impedance(&c, "a", "b", 0.0).unwrap_err().error.code(), "unknown_name");
+/// ```
+pub fn port_impedance(c: &Circuit, plus: &str, minus: &str, frequency_hz: f64) -> CircuitResult<Complex64> {
+    c.node_index(plus)?;
+    c.node_index(minus)?;
+    let mut c1 = c.clone();
+    c1.zero_sources();
+    // 1 A from minus through the test source to plus: it enters the circuit at plus.
+    c1.add_internal("test", ElementKind::CurrentSource, minus, plus, 1.0)?;
+    let s = solve(&c1, frequency_hz)?;
+    Ok(check::result_complex("impedance", s.voltage_between(plus, minus)?)?)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn close(a: Complex64, b: Complex64, tol: f64) -> bool {
+        (a - b).norm() <= tol * b.norm().max(1e-300)
+    }
+
+    #[test]
+    fn rc_divider_matches_the_hand_formula() {
+        // Vout/Vin = 1/(1 + jωRC): the first-order low-pass (any circuits text).
+        let mut c = Circuit::new();
+        c.voltage_source("V1", "in", "0", 1.0).unwrap();
+        c.resistor("R1", "in", "out", 1e3).unwrap();
+        c.capacitor("C1", "out", "0", 1e-6).unwrap();
+        let f = 159.154_943_091_895_35; // 1/(2π·RC)
+        let h = solve(&c, f).unwrap().voltage("out").unwrap();
+        assert!(close(h, Complex64::new(0.5, -0.5), 1e-12), "{h}");
+        // The source current leaves its + terminal into R1: I(V1) = −I(R1).
+        let s = solve(&c, f).unwrap();
+        assert!(close(s.current("V1").unwrap(), -s.current("R1").unwrap(), 1e-12));
+    }
+
+    #[test]
+    fn inductor_is_a_short_at_dc_and_jwl_above() {
+        let mut c = Circuit::new();
+        c.current_source("I1", "0", "a", 1.0).unwrap();
+        c.inductor("L1", "a", "b", 1e-3).unwrap();
+        c.resistor("R1", "b", "0", 10.0).unwrap();
+        assert!(close(port_impedance(&c, "a", "0", 0.0).unwrap(), Complex64::new(10.0, 0.0), 1e-12));
+        let f = 1e3;
+        let want = Complex64::new(10.0, 2.0 * PI * f * 1e-3);
+        assert!(close(port_impedance(&c, "a", "0", f).unwrap(), want, 1e-12));
+        // I1 enters node a: V(a) = 10 V at DC.
+        assert!(close(solve(&c, 0.0).unwrap().voltage("a").unwrap(), Complex64::new(10.0, 0.0), 1e-12));
+    }
+
+    #[test]
+    fn controlled_sources_follow_their_definitions() {
+        // Each output is a chain of the definitions in the netlist module doc.
+        let mut c = Circuit::new();
+        c.voltage_source("V1", "in", "0", 2.0).unwrap();
+        c.resistor("R1", "in", "0", 1e3).unwrap();
+        c.vcvs("E1", "e", "0", "in", "0", 3.0).unwrap(); // V(e) = 6
+        c.resistor("Re", "e", "m", 2.0).unwrap();
+        c.voltage_source("Vm", "m", "0", 0.0).unwrap(); // ammeter: I = 3 A
+        c.ccvs("H1", "h", "0", "Vm", 5.0).unwrap(); // V(h) = 15
+        c.resistor("Rh", "h", "0", 1.0).unwrap();
+        c.vccs("G1", "0", "g", "in", "0", 0.5).unwrap(); // 1 A into g
+        c.resistor("Rg", "g", "0", 4.0).unwrap(); // V(g) = 4
+        c.cccs("F1", "0", "f", "Vm", 2.0).unwrap(); // 6 A into f
+        c.resistor("Rf", "f", "0", 0.5).unwrap(); // V(f) = 3
+        let s = solve(&c, 0.0).unwrap();
+        for (node, want) in [("e", 6.0), ("h", 15.0), ("g", 4.0), ("f", 3.0)] {
+            assert!(close(s.voltage(node).unwrap(), Complex64::new(want, 0.0), 1e-12), "{node}");
+        }
+        assert!(close(s.current("Vm").unwrap(), Complex64::new(3.0, 0.0), 1e-12));
+        assert!(close(s.current("F1").unwrap(), Complex64::new(6.0, 0.0), 1e-12));
+    }
+
+    #[test]
+    fn sweep_equals_one_solve_per_frequency() {
+        // The fast path (M0 + jω·M1 assembled once) against the direct solve at
+        // each frequency, with every reactive kind and an admittance present.
+        let mut c = Circuit::new();
+        c.voltage_source("V1", "in", "0", 1.0).unwrap();
+        c.resistor("R1", "in", "a", 1e3).unwrap();
+        c.capacitor("C1", "a", "0", 1e-8).unwrap();
+        c.inductor("L1", "a", "b", 1e-3).unwrap();
+        c.admittance("Y1", "b", "0", 1e-3, 2e-4).unwrap();
+        c.vcvs("E1", "o", "0", "b", "0", 5.0).unwrap();
+        c.resistor("R2", "o", "0", 50.0).unwrap();
+        let freqs = [0.0, 1.0, 1e3, 5e4, 1e6];
+        let h = voltage_transfer_sweep(&c, "V1", "o", "0", &freqs).unwrap();
+        for (f, hf) in freqs.iter().zip(h) {
+            let direct = voltage_transfer(&c, "V1", "o", "0", *f).unwrap();
+            assert!(close(hf, direct, 1e-14), "{f} Hz: {hf} vs {direct}");
+        }
+        let too_many = alloc::vec![1.0; MAX_SWEEP + 1];
+        assert_eq!(voltage_transfer_sweep(&c, "V1", "o", "0", &too_many).unwrap_err().error.param(), "frequencies");
+    }
+
+    #[test]
+    fn faults_are_named() {
+        let mut c = Circuit::new();
+        c.voltage_source("V1", "a", "0", 1.0).unwrap();
+        c.voltage_source("V2", "a", "0", 2.0).unwrap();
+        let e = solve(&c, 1.0).unwrap_err();
+        assert_eq!((e.name.as_str(), e.error.param(), e.error.code()), ("V2", "element", "singular"));
+
+        let mut c = Circuit::new();
+        c.current_source("I1", "0", "a", 1.0).unwrap();
+        c.resistor("R1", "a", "0", 1.0).unwrap();
+        c.current_source("I2", "a", "b", 1.0).unwrap();
+        assert_eq!(solve(&c, 1.0).unwrap_err().name.as_str(), "b");
+
+        let mut c = Circuit::new();
+        c.resistor("R1", "a", "0", 1.0).unwrap();
+        c.cccs("F1", "a", "0", "R1", 1.0).unwrap();
+        let e = solve(&c, 0.0).unwrap_err();
+        assert_eq!((e.name.as_str(), e.error.param()), ("F1", "controlElement"));
+        let mut c = Circuit::new();
+        c.resistor("R1", "a", "0", 1.0).unwrap();
+        c.ccvs("H1", "b", "0", "Vnone", 1.0).unwrap();
+        let e = solve(&c, 0.0).unwrap_err();
+        assert_eq!((e.name.as_str(), e.error.code()), ("Vnone", "unknown_name"));
+
+        // A VCVS whose output node drives its own control with gain 1 around a
+        // loop: V(a) = 1·V(a) leaves V(a) undetermined; the LU names it.
+        let mut c = Circuit::new();
+        c.vcvs("E1", "a", "0", "a", "0", 1.0).unwrap();
+        c.resistor("R1", "a", "0", 1.0).unwrap();
+        let e = solve(&c, 0.0).unwrap_err();
+        assert_eq!(e.error.code(), "singular");
+        assert!(["a", "E1"].contains(&e.name.as_str()), "{}", e.name);
+        assert_eq!(solve(&c, -1.0).unwrap_err().error.param(), "frequency");
+    }
+}
