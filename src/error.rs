@@ -59,6 +59,22 @@ impl Error {
         }
     }
 
+    /// The same error about another parameter: a helper that validates a value for
+    /// a caller reports it under the caller's parameter name.
+    pub const fn with_param(self, name: &'static str) -> Error {
+        match self {
+            Error::NotFinite { .. } => Error::NotFinite { param: name },
+            Error::OutOfDomain { requirement, .. } => Error::OutOfDomain { param: name, requirement },
+            Error::Unreachable { reason, .. } => Error::Unreachable { param: name, reason },
+            Error::Oscillation { .. } => Error::Oscillation { param: name },
+            Error::UnknownName { expected, .. } => Error::UnknownName { param: name, expected },
+            Error::TooLarge { limit, .. } => Error::TooLarge { param: name, limit },
+            Error::Overflow { .. } => Error::Overflow { param: name },
+            Error::NoConvergence { reason, .. } => Error::NoConvergence { param: name, reason },
+            Error::Singular { reason, .. } => Error::Singular { param: name, reason },
+        }
+    }
+
     /// The name of the parameter or quantity at fault.
     pub const fn param(&self) -> &'static str {
         match *self {

@@ -33,6 +33,7 @@ pub mod feedback;
 pub mod network;
 pub mod noise;
 pub mod nonlinear;
+pub mod notation;
 
 #[cfg(feature = "wasm")]
 pub mod wasm;

@@ -13,7 +13,6 @@
 
 pub mod eseries;
 pub mod montecarlo;
-pub mod notation;
 pub mod pairs;
 pub mod worstcase;
 
@@ -22,7 +21,7 @@ pub use montecarlo::{
     monte_carlo, monte_carlo_samples, sample_stats, seed_from_number, Distribution, Histogram, MonteCarloResult,
     MonteCarloSpec, Percentile, SampleStats, MAX_BINS, MAX_TRIALS, PERCENTILES,
 };
-pub use notation::{format_si, letter_code, parse_value, parse_value_with_unit, ParsedValue};
+pub use crate::notation::{format_si, letter_code, parse_value, parse_value_with_unit, ParsedValue};
 pub use pairs::{
     best_pairs, single_resistor, Combine, Joint, Leg, Network, PairCandidate, PairResult, PairSpec, SingleCandidate,
     MAX_CANDIDATES,

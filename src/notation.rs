@@ -13,8 +13,8 @@
 //! Source: IEC 60062:2016 *Marking codes for resistors and capacitors*, clause 4
 //! (letter code, from memory); SI Brochure, 9th edition, table 7 (prefixes).
 //!
-//! The parser is a pure function of the text: the worksheet and the circuit areas
-//! reuse it for engineering literals.
+//! The parser is a pure function of the text, shared by every area that reads a
+//! value a person typed: the network functions, the circuit document, the page.
 
 use crate::error::{Error, Result};
 use alloc::format;
@@ -69,7 +69,7 @@ pub struct ParsedValue<'a> {
 ///
 /// # Example
 /// ```
-/// use loopwright::network::parse_value_with_unit;
+/// use loopwright::notation::parse_value_with_unit;
 /// let p = parse_value_with_unit("4.7 kΩ").unwrap();
 /// assert_eq!((p.value, p.unit), (4700.0, "Ω"));
 /// assert_eq!(parse_value_with_unit("4k7k").unwrap_err().param(), "text");
@@ -164,7 +164,7 @@ pub fn parse_value_with_unit(text: &str) -> Result<ParsedValue<'_>> {
 ///
 /// # Example
 /// ```
-/// use loopwright::network::parse_value;
+/// use loopwright::notation::parse_value;
 /// assert_eq!(parse_value("4k7").unwrap(), 4700.0);
 /// assert_eq!(parse_value("R47").unwrap(), 0.47);
 /// assert_eq!(parse_value("100nF").unwrap(), 1e-7);
@@ -230,7 +230,7 @@ fn engineering(x: f64, digits: usize) -> (String, i32) {
 ///
 /// # Example
 /// ```
-/// use loopwright::network::format_si;
+/// use loopwright::notation::format_si;
 /// assert_eq!(format_si(4700.0, 2).unwrap(), "4.7 k");
 /// assert_eq!(format_si(-0.000_001_5, 3).unwrap(), "-1.50 µ");
 /// assert_eq!(format_si(f64::NAN, 3).unwrap_err().param(), "value");
@@ -269,7 +269,7 @@ pub fn format_si(value: f64, digits: u32) -> Result<String> {
 ///
 /// # Example
 /// ```
-/// use loopwright::network::letter_code;
+/// use loopwright::notation::letter_code;
 /// assert_eq!(letter_code(4700.0, 2).unwrap(), "4k7");
 /// assert_eq!(letter_code(0.47, 2).unwrap(), "R47");
 /// assert_eq!(letter_code(0.0, 2).unwrap_err().param(), "value");
