@@ -71,12 +71,6 @@ fn spec(
     })
 }
 
-/// Read a component value: `4k7`, `2R2`, `100nF`, `4.7e3` → number.
-#[wasm_bindgen(js_name = circuitParseValue)]
-pub fn circuit_parse_value(text: &str) -> Result<f64, JsValue> {
-    throw(core::parse_value("value", text).map_err(CircuitError::from))
-}
-
 /// Read a circuit document and write it back in canonical form (values as
 /// numbers, compact JSON): the round trip of the format.
 #[wasm_bindgen(js_name = circuitNormalize)]
