@@ -164,6 +164,12 @@ fn refine(g: &dyn Fn(f64) -> f64, f0: f64, f1: f64, g0: f64, g1: f64) -> f64 {
 /// assert!(gain_crossings_hz(&l, 1).is_err());
 /// ```
 pub fn gain_crossings_hz(l: &FeedbackLoop, ppd: u32) -> Result<Vec<f64>> {
+    Ok(gain_crossings(l, ppd)?.into_iter().map(|(f, _)| f).collect())
+}
+
+/// Unity-gain crossings with their direction: `true` when |T| rises through 1
+/// as the frequency rises.
+pub(crate) fn gain_crossings(l: &FeedbackLoop, ppd: u32) -> Result<Vec<(f64, bool)>> {
     let f = grid(l, ppd)?;
     let g = |x: f64| loop_log(l, libm::exp(x)).ln_mag;
     let mut out = Vec::new();
@@ -172,9 +178,9 @@ pub fn gain_crossings_hz(l: &FeedbackLoop, ppd: u32) -> Result<Vec<f64>> {
         let gi = loop_log(l, fi).ln_mag;
         if let Some((fp, gp)) = prev {
             if (gp < 0.0) != (gi < 0.0) && gp != 0.0 {
-                out.push(refine(&g, fp, fi, gp, gi));
-            } else if gp == 0.0 && out.last() != Some(&fp) {
-                out.push(fp);
+                out.push((refine(&g, fp, fi, gp, gi), gi > gp));
+            } else if gp == 0.0 && out.last().map(|c| c.0) != Some(fp) {
+                out.push((fp, gi > gp));
             }
         }
         prev = Some((fi, gi));

@@ -1,8 +1,10 @@
 //! Phase margin and gain margin of the loop gain T = A·β, with their frequencies.
 //!
 //! - At each unity-gain crossover fc (|T| = 1): phase margin PM = 180° + ∠T(fc),
-//!   wrapped into (−180°, 180°]. The reported PM is the smallest over all
-//!   crossovers.
+//!   wrapped into (−180°, 180°]; where |T| rises through 1 with frequency (below
+//!   the passband of a loop with a low cut) PM = 180° − ∠T(fc), the same reading
+//!   on the mirror-image branch of the Nyquist plot. The reported PM is the
+//!   smallest over all crossovers.
 //! - At each phase crossover f180 (∠T = −180° modulo 360°): gain margin
 //!   GM = −20·log10|T(f180)| dB. The reported GM is the smallest over all phase
 //!   crossovers.
@@ -16,7 +18,7 @@
 //! Source: the definitions in Franklin, Powell & Emami-Naeini, *Feedback Control of
 //! Dynamic Systems*, 7th ed., section 6.4 (from memory).
 
-use super::crossings::{gain_crossings_hz, phase_crossings_hz, DEFAULT_POINTS_PER_DECADE};
+use super::crossings::{gain_crossings, phase_crossings_hz, DEFAULT_POINTS_PER_DECADE};
 use super::model::FeedbackLoop;
 use super::response::loop_log;
 use crate::error::Result;
@@ -46,6 +48,11 @@ pub struct Crossing {
     /// Phase margin (deg) at a unity-gain crossing, gain margin (dB) at a phase
     /// crossing.
     pub margin: f64,
+    /// At a unity-gain crossing: |T| rises through 1 as f rises (the low side of
+    /// a loop with a low cut). The phase margin there is read against phase lead,
+    /// 180° − ∠T, which is the usual reading on the mirror-image (negative
+    /// frequency) branch of the Nyquist plot. Always false at a phase crossing.
+    pub rising: bool,
 }
 
 /// Stability margins of a loop.
@@ -105,13 +112,20 @@ pub fn stability_margins(l: &FeedbackLoop) -> Result<Margins> {
 /// # Errors
 /// `points_per_decade` outside 4…2000.
 pub fn margins_with_density(l: &FeedbackLoop, points_per_decade: u32) -> Result<Margins> {
-    let gains: Vec<Crossing> = gain_crossings_hz(l, points_per_decade)?
+    let gains: Vec<Crossing> = gain_crossings(l, points_per_decade)?
         .into_iter()
-        .map(|f| Crossing { freq_hz: f, margin: wrap_deg(180.0 + loop_log(l, f).deg()) })
+        .map(|(f, rising)| {
+            let phase = loop_log(l, f).deg();
+            let margin = if rising { wrap_deg(180.0 - phase) } else { wrap_deg(180.0 + phase) };
+            Crossing { freq_hz: f, margin, rising }
+        })
         .collect();
     let phases: Vec<Crossing> = phase_crossings_hz(l, points_per_decade)?
         .into_iter()
-        .map(|f| Crossing { freq_hz: f, margin: -loop_log(l, f).db() })
+        .map(|f| {
+            let g = loop_log(l, f);
+            Crossing { freq_hz: f, margin: -g.db(), rising: false }
+        })
         .collect();
     let worst = |v: &[Crossing]| v.iter().copied().min_by(|a, b| a.margin.total_cmp(&b.margin));
     let pm = worst(&gains);

@@ -149,6 +149,9 @@ struct System {
     wn: f64,
     /// Slowest decay rate (−max Re p) in normalised units, when stable.
     sigma_min: Option<f64>,
+    /// Latest first peak 1.5·π/ω_d among the oscillatory poles whose overshoot is
+    /// above rounding level (ω_d ≥ σ/10), normalised time.
+    first_peak: f64,
     final_value: f64,
 }
 
@@ -181,7 +184,12 @@ impl System {
         let stable = poles.iter().all(|p| p.re < -AXIS_TOL * p.norm());
         let sigma_min = if stable { poles.iter().map(|p| -p.re).min_by(f64::total_cmp) } else { None };
         let final_value = if den[0] != 0.0 { num.first().copied().unwrap_or(0.0) / den[0] } else { 0.0 };
-        Ok(System { m, c, d, wn, sigma_min, final_value })
+        let first_peak = poles
+            .iter()
+            .filter(|p| p.im > 0.0 && p.im >= 0.1 * -p.re)
+            .map(|p| 1.5 * core::f64::consts::PI / p.im)
+            .fold(0.0, f64::max);
+        Ok(System { m, c, d, wn, sigma_min, first_peak, final_value })
     }
 
     /// Output at normalised time τ from rest.
@@ -292,7 +300,7 @@ pub fn step_response(l: &FeedbackLoop, settle_band: f64, points: usize) -> Resul
             reason: "the closed-loop gain at DC is zero (a low cut), so there is no final value to settle to",
         });
     }
-    let mut span = (libm::log(1.0 / band) + 8.0) * 1.2 / sigma;
+    let mut span = ((libm::log(1.0 / band) + 8.0) * 1.2 / sigma).max(sys.first_peak.min(200.0 / sigma));
     let count = points.max(DETECT_SAMPLES);
     let yn = |tau: f64| sys.output_at(tau) / yf;
     for _ in 0..=MAX_EXTENSIONS {
@@ -302,7 +310,9 @@ pub fn step_response(l: &FeedbackLoop, settle_band: f64, points: usize) -> Resul
         // Settling: last sample outside the band must not be the last one, and the
         // final tenth must be inside.
         let outside = y.iter().rposition(|v| libm::fabs(v - 1.0) > band);
-        if outside.is_some_and(|k| k + count / 10 >= count) {
+        let top = y.iter().copied().enumerate().fold((0, f64::NEG_INFINITY), |b, (i, v)| if v > b.1 { (i, v) } else { b });
+        // Not settled yet, or still rising above the final value at the end.
+        if outside.is_some_and(|k| k + count / 10 >= count) || (top.1 > 1.0 && top.0 + 1 >= count) {
             span *= 2.0;
             continue;
         }
