@@ -7,6 +7,7 @@
 //! One file per catalog area.
 
 pub mod feedback;
+pub mod freq;
 
 use crate::Error;
 use wasm_bindgen::prelude::*;
