@@ -134,7 +134,7 @@ pub(crate) fn closed_log(l: &FeedbackLoop, f: f64) -> LogPhasor {
 
 fn frequency(f_hz: f64) -> Result<f64> {
     let f = check::positive("f_hz", f_hz)?;
-    if f < MIN_SWEEP_HZ || f > MAX_SWEEP_HZ {
+    if !(MIN_SWEEP_HZ..=MAX_SWEEP_HZ).contains(&f) {
         return Err(Error::OutOfDomain { param: "f_hz", requirement: "must be between 1e-12 Hz and 1e15 Hz" });
     }
     Ok(f)

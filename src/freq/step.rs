@@ -176,8 +176,8 @@ impl System {
         for i in 0..n.saturating_sub(1) {
             m.a[i * w + i + 1] = 1.0;
         }
-        for j in 0..n {
-            m.a[(n - 1) * w + j] = -a[j];
+        for (j, aj) in a.iter().take(n).enumerate() {
+            m.a[(n - 1) * w + j] = -aj;
         }
         m.a[(n - 1) * w + n] = 1.0;
         let poles = roots(&den)?;
