@@ -164,28 +164,43 @@ fn refine(g: &dyn Fn(f64) -> f64, f0: f64, f1: f64, g0: f64, g1: f64) -> f64 {
 /// assert!(gain_crossings_hz(&l, 1).is_err());
 /// ```
 pub fn gain_crossings_hz(l: &FeedbackLoop, ppd: u32) -> Result<Vec<f64>> {
-    Ok(gain_crossings(l, ppd)?.into_iter().map(|(f, _)| f).collect())
+    Ok(scan(l, ppd)?.0.into_iter().map(|(f, _)| f).collect())
 }
 
-/// Unity-gain crossings with their direction: `true` when |T| rises through 1
-/// as the frequency rises.
-pub(crate) fn gain_crossings(l: &FeedbackLoop, ppd: u32) -> Result<Vec<(f64, bool)>> {
+/// Both kinds of crossing from one pass over the grid: unity-gain crossings with
+/// their direction (`true` when |T| rises through 1 as f rises), and −180°
+/// crossings.
+pub(crate) fn scan(l: &FeedbackLoop, ppd: u32) -> Result<(Vec<(f64, bool)>, Vec<f64>)> {
     let f = grid(l, ppd)?;
+    let (mut ln, mut ph) = (Vec::with_capacity(f.len()), Vec::with_capacity(f.len()));
+    l.fast_loop().sweep(&f, &mut ln, &mut ph);
     let g = |x: f64| loop_log(l, libm::exp(x)).ln_mag;
-    let mut out = Vec::new();
-    let mut prev: Option<(f64, f64)> = None;
-    for &fi in &f {
-        let gi = loop_log(l, fi).ln_mag;
-        if let Some((fp, gp)) = prev {
-            if (gp < 0.0) != (gi < 0.0) && gp != 0.0 {
-                out.push((refine(&g, fp, fi, gp, gi), gi > gp));
-            } else if gp == 0.0 && out.last().map(|c| c.0) != Some(fp) {
-                out.push((fp, gi > gp));
-            }
+    let mut gains = Vec::new();
+    let mut phases = Vec::new();
+    for i in 1..f.len() {
+        let (fp, fi) = (f[i - 1], f[i]);
+        let (gp, gi) = (ln[i - 1], ln[i]);
+        if (gp < 0.0) != (gi < 0.0) && gp != 0.0 {
+            gains.push((refine(&g, fp, fi, gp, gi), gi > gp));
+        } else if gp == 0.0 && gains.last().map(|c: &(f64, bool)| c.0) != Some(fp) {
+            gains.push((fp, gi > gp));
         }
-        prev = Some((fi, gi));
+        let (pp, pi) = (ph[i - 1].to_degrees(), ph[i].to_degrees());
+        // Every level −180° + 360°·m strictly inside (min, max] of the step.
+        let (lo, hi) = if pp < pi { (pp, pi) } else { (pi, pp) };
+        let m_lo = libm::floor((lo + 180.0) / 360.0) as i64 + 1;
+        let m_hi = libm::floor((hi + 180.0) / 360.0) as i64;
+        let first = phases.len();
+        for m in m_lo..=m_hi {
+            let level = -180.0 + 360.0 * m as f64;
+            let h = move |x: f64| loop_log(l, libm::exp(x)).deg() - level;
+            phases.push(refine(&h, fp, fi, pp - level, pi - level));
+        }
+        if let Some(tail) = phases.get_mut(first..) {
+            tail.sort_by(f64::total_cmp);
+        }
     }
-    Ok(out)
+    Ok((gains, phases))
 }
 
 /// Frequencies (Hz, ascending) where the continuous phase of T passes −180° plus
@@ -204,29 +219,7 @@ pub(crate) fn gain_crossings(l: &FeedbackLoop, ppd: u32) -> Result<Vec<(f64, boo
 /// assert!((c[0] / (1e3 * 3f64.sqrt()) - 1.0).abs() < 1e-11);
 /// ```
 pub fn phase_crossings_hz(l: &FeedbackLoop, ppd: u32) -> Result<Vec<f64>> {
-    let f = grid(l, ppd)?;
-    let mut out = Vec::new();
-    let mut prev: Option<(f64, f64)> = None;
-    for &fi in &f {
-        let pi = loop_log(l, fi).deg();
-        if let Some((fp, pp)) = prev {
-            // Every level −180° + 360°·m strictly inside (min, max] of the step.
-            let (lo, hi) = if pp < pi { (pp, pi) } else { (pi, pp) };
-            let m_lo = libm::floor((lo + 180.0) / 360.0) as i64 + 1;
-            let m_hi = libm::floor((hi + 180.0) / 360.0) as i64;
-            let mut found: Vec<f64> = Vec::new();
-            for m in m_lo..=m_hi {
-                let level = -180.0 + 360.0 * m as f64;
-                let g = move |x: f64| loop_log(l, libm::exp(x)).deg() - level;
-                let (g0, g1) = (pp - level, pi - level);
-                found.push(refine(&g, fp, fi, g0, g1));
-            }
-            found.sort_by(f64::total_cmp);
-            out.extend(found);
-        }
-        prev = Some((fi, pi));
-    }
-    Ok(out)
+    Ok(scan(l, ppd)?.1)
 }
 
 #[cfg(test)]

@@ -18,7 +18,7 @@
 //! Source: the definitions in Franklin, Powell & Emami-Naeini, *Feedback Control of
 //! Dynamic Systems*, 7th ed., section 6.4 (from memory).
 
-use super::crossings::{gain_crossings, phase_crossings_hz, DEFAULT_POINTS_PER_DECADE};
+use super::crossings::{scan, DEFAULT_POINTS_PER_DECADE};
 use super::model::FeedbackLoop;
 use super::response::loop_log;
 use crate::error::Result;
@@ -112,7 +112,8 @@ pub fn stability_margins(l: &FeedbackLoop) -> Result<Margins> {
 /// # Errors
 /// `points_per_decade` outside 4…2000.
 pub fn margins_with_density(l: &FeedbackLoop, points_per_decade: u32) -> Result<Margins> {
-    let gains: Vec<Crossing> = gain_crossings(l, points_per_decade)?
+    let (gain_list, phase_list) = scan(l, points_per_decade)?;
+    let gains: Vec<Crossing> = gain_list
         .into_iter()
         .map(|(f, rising)| {
             let phase = loop_log(l, f).deg();
@@ -120,7 +121,7 @@ pub fn margins_with_density(l: &FeedbackLoop, points_per_decade: u32) -> Result<
             Crossing { freq_hz: f, margin, rising }
         })
         .collect();
-    let phases: Vec<Crossing> = phase_crossings_hz(l, points_per_decade)?
+    let phases: Vec<Crossing> = phase_list
         .into_iter()
         .map(|f| {
             let g = loop_log(l, f);

@@ -32,6 +32,7 @@ pub mod bandwidth;
 pub mod closed_forms;
 pub mod compensation;
 pub mod crossings;
+mod eval;
 pub mod margins;
 pub mod model;
 pub mod poles;

@@ -28,6 +28,7 @@
 //! Source: the factor forms are the standard Bode forms, e.g. Franklin, Powell &
 //! Emami-Naeini, *Feedback Control of Dynamic Systems*, 7th ed., ch. 6 (from memory).
 
+use super::eval::FastModel;
 use crate::check;
 use crate::error::{Error, Result};
 use alloc::vec::Vec;
@@ -292,6 +293,10 @@ pub struct FeedbackLoop {
     a: TransferModel,
     beta: TransferModel,
     pade_order: u32,
+    /// A·β prepared for fast evaluation.
+    fast_loop: FastModel,
+    /// A alone prepared for fast evaluation.
+    fast_amp: FastModel,
 }
 
 impl FeedbackLoop {
@@ -356,7 +361,9 @@ impl FeedbackLoop {
         if order > MAX_ORDER {
             return Err(Error::TooLarge { param: "beta", limit: MAX_ORDER as u64 });
         }
-        Ok(FeedbackLoop { a, beta, pade_order })
+        let fast_loop = FastModel::new(&[&a, &beta]);
+        let fast_amp = FastModel::new(&[&a]);
+        Ok(FeedbackLoop { a, beta, pade_order, fast_loop, fast_amp })
     }
 
     /// A loop with a frequency-independent β.
@@ -378,6 +385,12 @@ impl FeedbackLoop {
     /// The Padé order used for a delay in pole computations.
     pub fn pade_order(&self) -> u32 {
         self.pade_order
+    }
+    pub(crate) fn fast_loop(&self) -> &FastModel {
+        &self.fast_loop
+    }
+    pub(crate) fn fast_amp(&self) -> &FastModel {
+        &self.fast_amp
     }
 
     /// True when the loop gain A·β has a pole in the right half plane, so the

@@ -1,20 +1,23 @@
 //! Loop gain T(jω) and closed-loop gain Af(jω) at any frequency, log-spaced
 //! sweeps, and continuous phase.
 //!
-//! Each factor of a [`TransferModel`] is evaluated on its own as a natural-log
-//! magnitude and a phase, and the factors are summed: ln|T| = Σ ln|factor|,
-//! ∠T = Σ ∠factor. Every factor's phase is continuous in f (a real pole goes
-//! 0 → −90°, a pair 0 → −180°, a delay −360°·f·τ), so the sum is the unwrapped
-//! phase directly, with no jumps to repair and no overflow of |T| at extreme
-//! frequencies. A negative gain contributes −180°.
+//! The phase of T is the sum of the phases of its factors, each continuous in f
+//! (a real pole goes 0 → −90°, a pair 0 → −180°, a delay −360°·f·τ), so it is
+//! the unwrapped phase directly, with no jumps to repair; |T| is kept as a
+//! natural log so it cannot overflow at extreme frequencies. A negative gain
+//! contributes −180°. The evaluation itself is the fast product form of
+//! [`super::eval`], checked against the factor-by-factor sum.
 //!
 //! The closed-loop phase is not a sum of factors; [`unwrap_phase_deg`] makes a
 //! sampled phase continuous by removing jumps larger than 180°.
 
-use super::model::{FeedbackLoop, TransferModel};
+use super::model::FeedbackLoop;
+#[cfg(test)]
+use super::model::TransferModel;
 use crate::check;
 use crate::error::{Error, Result};
 use alloc::vec::Vec;
+#[cfg(test)]
 use core::f64::consts::{PI, TAU};
 use num_complex::Complex64;
 
@@ -33,9 +36,6 @@ pub(crate) struct LogPhasor {
 }
 
 impl LogPhasor {
-    pub(crate) fn add(self, o: LogPhasor) -> LogPhasor {
-        LogPhasor { ln_mag: self.ln_mag + o.ln_mag, phase: self.phase + o.phase }
-    }
     pub(crate) fn sub(self, o: LogPhasor) -> LogPhasor {
         LogPhasor { ln_mag: self.ln_mag - o.ln_mag, phase: self.phase - o.phase }
     }
@@ -51,18 +51,22 @@ impl LogPhasor {
 }
 
 /// ln|1 + j·x| and its phase atan(x).
+#[cfg(test)]
 fn first_order(x: f64) -> (f64, f64) {
     (libm::log(libm::hypot(1.0, x)), libm::atan(x))
 }
 
 /// ln|1 − x² + j·x/Q| and its phase in [0, π].
+#[cfg(test)]
 fn second_order(x: f64, q: f64) -> (f64, f64) {
     let re = (1.0 - x) * (1.0 + x);
     let im = x / q;
     (libm::log(libm::hypot(re, im)), libm::atan2(im, re))
 }
 
-/// ln|model(j·2π·f)| and its continuous phase, f > 0.
+/// ln|model(j·2π·f)| and its continuous phase, f > 0, factor by factor: the slow
+/// reference for the fast product form of [`super::eval`].
+#[cfg(test)]
 pub(crate) fn model_log(m: &TransferModel, f: f64) -> LogPhasor {
     let mut ln = libm::log(libm::fabs(m.gain));
     let mut ph = if m.gain < 0.0 { -PI } else { 0.0 };
@@ -113,12 +117,14 @@ pub(crate) fn model_log(m: &TransferModel, f: f64) -> LogPhasor {
 
 /// Loop gain T = A·β at f Hz as log magnitude and continuous phase.
 pub(crate) fn loop_log(l: &FeedbackLoop, f: f64) -> LogPhasor {
-    model_log(l.amplifier(), f).add(model_log(l.feedback(), f))
+    let (ln_mag, phase) = l.fast_loop().eval(f);
+    LogPhasor { ln_mag, phase }
 }
 
 /// Closed-loop gain A/(1 + T) at f Hz as log magnitude and principal phase.
 pub(crate) fn closed_log(l: &FeedbackLoop, f: f64) -> LogPhasor {
-    let a = model_log(l.amplifier(), f);
+    let (ln_a, ph_a) = l.fast_amp().eval(f);
+    let a = LogPhasor { ln_mag: ln_a, phase: ph_a };
     let t = loop_log(l, f);
     // 1 + T in log form: ln|1+T| = ln|T| + ln|1 + 1/T| is safer for large T.
     let d = if t.ln_mag > 0.0 {
@@ -220,7 +226,19 @@ pub fn log_frequencies(start_hz: f64, stop_hz: f64, points: usize) -> Result<Vec
     }
     let (la, lb) = (libm::log(a), libm::log(b));
     let step = (lb - la) / (points - 1) as f64;
-    let mut f: Vec<f64> = (0..points).map(|i| libm::exp(la + step * i as f64)).collect();
+    // A geometric progression by multiplication, re-anchored with exp every
+    // RESYNC points so the rounding of the products cannot build up.
+    const RESYNC: usize = 64;
+    let ratio = libm::exp(step);
+    let mut f: Vec<f64> = Vec::with_capacity(points);
+    let mut x = a;
+    for i in 0..points {
+        if i % RESYNC == 0 {
+            x = libm::exp(la + step * i as f64);
+        }
+        f.push(x);
+        x *= ratio;
+    }
     // Pin the ends exactly.
     if let Some(first) = f.first_mut() {
         *first = a;
@@ -258,10 +276,10 @@ fn finish(freq_hz: Vec<f64>, magnitude_db: Vec<f64>, phase_deg: Vec<f64>, what: 
 pub fn loop_gain_sweep(l: &FeedbackLoop, start_hz: f64, stop_hz: f64, points: usize) -> Result<Sweep> {
     let f = log_frequencies(start_hz, stop_hz, points)?;
     let (mut m, mut p) = (Vec::with_capacity(f.len()), Vec::with_capacity(f.len()));
-    for &fi in &f {
-        let t = loop_log(l, fi);
-        m.push(t.db());
-        p.push(t.deg());
+    l.fast_loop().sweep(&f, &mut m, &mut p);
+    for (mi, pi) in m.iter_mut().zip(p.iter_mut()) {
+        *mi *= 20.0 / core::f64::consts::LN_10;
+        *pi = pi.to_degrees();
     }
     finish(f, m, p, "loop_gain")
 }

@@ -125,6 +125,7 @@ fn aberth(c: &[f64]) -> Option<Vec<Complex64>> {
                     continue;
                 }
             }
+            let converged_before = small && quiet[i] > 1;
             let mut sum = Complex64::new(0.0, 0.0);
             for (j, &zj) in z.iter().enumerate() {
                 if j != i {
@@ -134,7 +135,9 @@ fn aberth(c: &[f64]) -> Option<Vec<Complex64>> {
             let w = ratio / (Complex64::new(1.0, 0.0) - ratio * sum);
             if w.re.is_finite() && w.im.is_finite() {
                 z[i] = zi - w;
-                if w.norm() <= f64::EPSILON * zi.norm() {
+                // A simple root: at rounding level and the correction has
+                // stopped mattering.
+                if w.norm() <= 8.0 * f64::EPSILON * zi.norm() || (converged_before && w.norm() <= 1e-12 * zi.norm()) {
                     done[i] = true;
                 }
             } else {
