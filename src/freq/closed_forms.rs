@@ -137,6 +137,16 @@ pub fn two_pole_response(f1: f64, f2: f64, t0: f64) -> Result<TwoPoleResponse> {
 
 /// Peaking of a second-order low-pass in dB, and the peak frequency as a fraction
 /// of f0: Mp = Q/√(1 − 1/(4Q²)) at √(1 − 1/(2Q²)); (0, None) for Q ≤ 1/√2.
+/// Any Q is accepted (no error): Q ≤ 1/√2, including zero or negative, has no
+/// peaking.
+///
+/// # Example
+/// ```
+/// use loopwright::freq::closed_forms::peaking_from_q;
+/// let (db, at) = peaking_from_q(1.0); // 1.25 dB at f0/√2
+/// assert!((db - 1.2494).abs() < 1e-4 && (at.unwrap() - 0.5f64.sqrt()).abs() < 1e-12);
+/// assert_eq!(peaking_from_q(0.5), (0.0, None));
+/// ```
 pub fn peaking_from_q(q: f64) -> (f64, Option<f64>) {
     // Q ≤ 1/√2, with a few ulps of slack so that Q = 1/√2 itself counts as flat.
     if q * q <= 0.5 * (1.0 + 8.0 * f64::EPSILON) {
@@ -147,7 +157,15 @@ pub fn peaking_from_q(q: f64) -> (f64, Option<f64>) {
 }
 
 /// Step overshoot of a second-order system as a fraction: exp(−πζ/√(1 − ζ²)),
-/// 0 for ζ ≥ 1.
+/// 0 for ζ ≥ 1. Any ζ < 1 is accepted (ζ ≤ 0 gives ≥ 100 %, the undamped and
+/// growing cases).
+///
+/// # Example
+/// ```
+/// use loopwright::freq::closed_forms::overshoot_from_zeta;
+/// assert!((overshoot_from_zeta(0.5) - 0.163).abs() < 1e-3); // 16.3 %
+/// assert_eq!(overshoot_from_zeta(1.2), 0.0);
+/// ```
 pub fn overshoot_from_zeta(zeta: f64) -> f64 {
     if zeta >= 1.0 {
         return 0.0;

@@ -180,10 +180,12 @@ pub(crate) fn scan(l: &FeedbackLoop, ppd: u32) -> Result<(Vec<(f64, bool)>, Vec<
     for i in 1..f.len() {
         let (fp, fi) = (f[i - 1], f[i]);
         let (gp, gi) = (ln[i - 1], ln[i]);
-        if (gp < 0.0) != (gi < 0.0) && gp != 0.0 {
+        // A sign change brackets a crossing; a grid point exactly on |T| = 1 is
+        // one when reached from a nonzero side (so |T| ≡ 1 gives none).
+        if gp != 0.0 && gi != 0.0 && (gp < 0.0) != (gi < 0.0) {
             gains.push((refine(&g, fp, fi, gp, gi), gi > gp));
-        } else if gp == 0.0 && gains.last().map(|c: &(f64, bool)| c.0) != Some(fp) {
-            gains.push((fp, gi > gp));
+        } else if gi == 0.0 && gp != 0.0 {
+            gains.push((fi, gp < 0.0));
         }
         let (pp, pi) = (ph[i - 1].to_degrees(), ph[i].to_degrees());
         // Every level −180° + 360°·m strictly inside (min, max] of the step.

@@ -111,6 +111,16 @@ pub fn stability_margins(l: &FeedbackLoop) -> Result<Margins> {
 ///
 /// # Errors
 /// `points_per_decade` outside 4…2000.
+///
+/// # Example
+/// ```
+/// use loopwright::freq::{margins_with_density, FeedbackLoop, TransferModel};
+/// let a = TransferModel::constant(1e4).pole(1e3).pole(1e5).pole(1e6);
+/// let l = FeedbackLoop::with_constant_beta(a, 0.01).unwrap();
+/// let (coarse, fine) = (margins_with_density(&l, 8).unwrap(), margins_with_density(&l, 800).unwrap());
+/// assert!((coarse.phase_margin_deg.unwrap() - fine.phase_margin_deg.unwrap()).abs() < 1e-9);
+/// assert_eq!(margins_with_density(&l, 3).unwrap_err().param(), "points_per_decade");
+/// ```
 pub fn margins_with_density(l: &FeedbackLoop, points_per_decade: u32) -> Result<Margins> {
     let (gain_list, phase_list) = scan(l, points_per_decade)?;
     let gains: Vec<Crossing> = gain_list

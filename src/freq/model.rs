@@ -330,6 +330,15 @@ impl FeedbackLoop {
     ///
     /// # Errors
     /// As [`FeedbackLoop::new`], and `pade_order` outside 1…10.
+    ///
+    /// # Example
+    /// ```
+    /// use loopwright::freq::{FeedbackLoop, TransferModel};
+    /// let a = TransferModel::constant(1e3).pole(1e3).delay(1e-6);
+    /// let b = TransferModel::constant(0.1);
+    /// assert_eq!(FeedbackLoop::with_pade_order(a.clone(), b.clone(), 8).unwrap().pade_order(), 8);
+    /// assert_eq!(FeedbackLoop::with_pade_order(a, b, 11).unwrap_err().param(), "pade_order");
+    /// ```
     pub fn with_pade_order(a: TransferModel, beta: TransferModel, pade_order: u32) -> Result<Self> {
         a.validate(Role::A)?;
         beta.validate(Role::Beta)?;

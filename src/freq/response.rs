@@ -169,6 +169,16 @@ pub fn loop_gain_at(l: &FeedbackLoop, f_hz: f64) -> Result<Complex64> {
 ///
 /// # Errors
 /// As [`loop_gain_at`]; [`Error::Oscillation`] when 1 + T = 0 at this frequency.
+///
+/// # Example
+/// ```
+/// use loopwright::freq::{closed_loop_gain_at, FeedbackLoop, TransferModel};
+/// // One pole at 10 Hz, A0 = 1e5, β = 0.01: Af = 99.9/(1 + j·f/10 010 Hz).
+/// let l = FeedbackLoop::with_constant_beta(TransferModel::constant(1e5).pole(10.0), 0.01).unwrap();
+/// let af = closed_loop_gain_at(&l, 10_010.0).unwrap();
+/// assert!((af.norm() - 1e5 / 1001.0 / 2f64.sqrt()).abs() < 1e-9);
+/// assert_eq!(closed_loop_gain_at(&l, f64::NAN).unwrap_err().param(), "f_hz");
+/// ```
 pub fn closed_loop_gain_at(l: &FeedbackLoop, f_hz: f64) -> Result<Complex64> {
     let f = frequency(f_hz)?;
     let c = closed_log(l, f);
@@ -289,6 +299,16 @@ pub fn loop_gain_sweep(l: &FeedbackLoop, start_hz: f64, stop_hz: f64, points: us
 ///
 /// # Errors
 /// As [`loop_gain_sweep`]; [`Error::Overflow`] when a point lands on 1 + T = 0.
+///
+/// # Example
+/// ```
+/// use loopwright::freq::{closed_loop_sweep, FeedbackLoop, TransferModel};
+/// let l = FeedbackLoop::with_constant_beta(TransferModel::constant(1e5).pole(10.0), 0.01).unwrap();
+/// let s = closed_loop_sweep(&l, 1.0, 1e7, 71).unwrap();
+/// // 20·log10(1e5/1001) = 39.99 dB in the passband.
+/// assert!((s.magnitude_db[0] - 20.0 * (1e5f64 / 1001.0).log10()).abs() < 1e-6);
+/// assert_eq!(closed_loop_sweep(&l, 1.0, 1e7, 0).unwrap_err().param(), "points");
+/// ```
 pub fn closed_loop_sweep(l: &FeedbackLoop, start_hz: f64, stop_hz: f64, points: usize) -> Result<Sweep> {
     let f = log_frequencies(start_hz, stop_hz, points)?;
     let (mut m, mut p) = (Vec::with_capacity(f.len()), Vec::with_capacity(f.len()));

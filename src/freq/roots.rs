@@ -259,6 +259,17 @@ fn laguerre(c: &[Complex64], mut x: Complex64) -> Complex64 {
 
 /// All roots by Laguerre's method with deflation, each polished on the full
 /// polynomial. Slow but independent of [`roots`]; used as its fallback.
+///
+/// # Errors
+/// As [`roots`].
+///
+/// # Example
+/// ```
+/// use loopwright::freq::roots::roots_laguerre;
+/// let r = roots_laguerre(&[5.0, 2.0, 1.0]).unwrap(); // z² + 2z + 5: −1 ± 2j
+/// assert!(r.iter().all(|z| (z.re + 1.0).abs() < 1e-12 && (z.im.abs() - 2.0).abs() < 1e-12));
+/// assert!(roots_laguerre(&[0.0]).is_err());
+/// ```
 pub fn roots_laguerre(c: &[f64]) -> Result<Vec<Complex64>> {
     let c = prepare(c)?;
     let (zeros, c) = split_zero_roots(&c);

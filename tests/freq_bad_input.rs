@@ -1,0 +1,96 @@
+//! Bad input to the frequency-response engine, as the issue lists it: each gets a
+//! typed error naming the parameter, never a panic, NaN or infinity.
+
+use loopwright::freq::{
+    closed_loop_bandwidth, closed_loop_sweep, dominant_pole_for_margin, log_frequencies, loop_gain_sweep,
+    max_beta_for_margin, stability_margins, step_response, step_waveform, two_pole_response, FeedbackLoop,
+    TransferModel, MAX_SWEEP_POINTS,
+};
+
+fn amp() -> TransferModel {
+    TransferModel::constant(1e5).pole(10.0).pole(1e6)
+}
+
+fn err(a: TransferModel, b: TransferModel) -> (String, String) {
+    let e = FeedbackLoop::new(a, b).unwrap_err();
+    (e.code().to_string(), e.param().to_string())
+}
+
+fn pair(c: &str, p: &str) -> (String, String) {
+    (c.to_string(), p.to_string())
+}
+
+#[test]
+fn pole_and_zero_frequencies_must_be_positive_except_explicit_origin_poles() {
+    let b = TransferModel::constant(0.1);
+    for f in [0.0, -10.0] {
+        assert_eq!(err(amp().pole(f), b.clone()), pair("out_of_domain", "a.poles_hz"));
+        assert_eq!(err(amp().zero(f), b.clone()), pair("out_of_domain", "a.zeros_hz"));
+        assert_eq!(err(amp().rhp_zero(f), b.clone()), pair("out_of_domain", "a.rhp_zeros_hz"));
+        assert_eq!(err(amp().low_cut(f), b.clone()), pair("out_of_domain", "a.low_cuts_hz"));
+        assert_eq!(err(amp(), b.clone().pole(f)), pair("out_of_domain", "beta.poles_hz"));
+    }
+    // The explicit way to put a pole at the origin is accepted.
+    assert!(FeedbackLoop::new(amp().integrator(), b).is_ok());
+}
+
+#[test]
+fn q_must_be_positive() {
+    let b = TransferModel::constant(0.1);
+    for q in [0.0, -0.7] {
+        assert_eq!(err(amp().complex_pole(1e5, q), b.clone()), pair("out_of_domain", "a.complex_poles"));
+        assert_eq!(err(amp().complex_zero(1e5, q), b.clone()), pair("out_of_domain", "a.complex_zeros"));
+    }
+}
+
+#[test]
+fn improper_models_are_refused() {
+    // Three zeros over two poles in A, or a loop A·β with more zeros than poles.
+    assert_eq!(err(amp().zero(1.0).zero(2.0).zero(3.0), TransferModel::constant(0.1)), pair("out_of_domain", "a.zeros_hz"));
+    let b = TransferModel::constant(0.1).zero(1e3).zero(1e4).zero(1e5);
+    assert_eq!(err(amp(), b), pair("out_of_domain", "beta.zeros_hz"));
+}
+
+#[test]
+fn non_finite_numbers_are_refused_by_name() {
+    let b = TransferModel::constant(0.1);
+    assert_eq!(err(TransferModel::constant(f64::NAN), b.clone()), pair("not_finite", "a.gain"));
+    assert_eq!(err(amp().pole(f64::INFINITY), b.clone()), pair("not_finite", "a.poles_hz"));
+    assert_eq!(err(amp().delay(f64::NAN), b.clone()), pair("not_finite", "a.delay_s"));
+    assert_eq!(err(amp(), TransferModel::constant(f64::NEG_INFINITY)), pair("not_finite", "beta.gain"));
+    let l = FeedbackLoop::new(amp(), b).unwrap();
+    assert_eq!(step_response(&l, f64::NAN, 100).unwrap_err().param(), "settle_band");
+    assert_eq!(step_waveform(&l, f64::INFINITY, 100).unwrap_err().param(), "duration_s");
+    assert_eq!(two_pole_response(f64::NAN, 1.0, 1.0).unwrap_err().param(), "f1");
+    assert_eq!(dominant_pole_for_margin(&amp(), 0.1, f64::NAN).unwrap_err().param(), "target_pm_deg");
+    assert_eq!(max_beta_for_margin(&amp(), 45.0, f64::NAN).unwrap_err().param(), "beta_limit");
+}
+
+#[test]
+fn sweep_limits_are_stated_and_enforced() {
+    let l = FeedbackLoop::new(amp(), TransferModel::constant(0.1)).unwrap();
+    assert_eq!(MAX_SWEEP_POINTS, 100_000);
+    let e = loop_gain_sweep(&l, 1e3, 1e3, 100).unwrap_err();
+    assert_eq!((e.code(), e.param()), ("out_of_domain", "stop_hz"));
+    let e = closed_loop_sweep(&l, 1e4, 1e3, 100).unwrap_err();
+    assert_eq!((e.code(), e.param()), ("out_of_domain", "stop_hz"));
+    let e = loop_gain_sweep(&l, 1.0, 1e6, MAX_SWEEP_POINTS + 1).unwrap_err();
+    assert_eq!((e.code(), e.param()), ("too_large", "points"));
+    assert_eq!(log_frequencies(0.0, 1.0, 10).unwrap_err().param(), "start_hz");
+    assert!(loop_gain_sweep(&l, 1.0, 1e6, MAX_SWEEP_POINTS).is_ok());
+}
+
+#[test]
+fn open_loop_unstable_models_flag_their_margins_and_the_poles_decide() {
+    // An amplifier with a right-half-plane pole, held stable by the loop: the
+    // Bode margins are computed but flagged, the pole verdict is the authority.
+    let a = TransferModel::constant(-10.0).rhp_pole(1e3).pole(1e5);
+    let l = FeedbackLoop::with_constant_beta(a, 1.0).unwrap();
+    let m = stability_margins(&l).unwrap();
+    assert_eq!(m.validity, loopwright::freq::MarginValidity::OpenLoopUnstable);
+    let p = loopwright::freq::closed_loop_poles(&l).unwrap();
+    assert_eq!(p.verdict, loopwright::freq::Verdict::Stable);
+    // A bandwidth still exists; the results never hold NaN.
+    let b = closed_loop_bandwidth(&l).unwrap();
+    assert!(b.midband_gain.is_finite() && b.peaking_db.is_finite());
+}
