@@ -8,6 +8,7 @@
 //! - Af·(1 + T) = A at any frequency;
 //! - Aberth–Ehrlich and Laguerre-with-deflation (the slow reference) find the
 //!   same roots.
+#![cfg(not(target_arch = "wasm32"))] // proptest and serde_json are native-only dev-dependencies
 
 use loopwright::freq::roots::roots_laguerre;
 use loopwright::freq::{

@@ -5,6 +5,7 @@
 //! `--check` to recompute). Each quantity has a named tolerance below; a failure
 //! names the case and the quantity. Run with `--nocapture` to see the largest
 //! deviation reached for each quantity.
+#![cfg(not(target_arch = "wasm32"))] // proptest and serde_json are native-only dev-dependencies
 
 use loopwright::freq::{
     closed_loop_bandwidth, closed_loop_poles, stability_margins, step_response, ComplexPair, FeedbackLoop,

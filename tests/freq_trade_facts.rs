@@ -82,7 +82,7 @@ fn closed_loop_gain_at_crossover_is_about_1_3_at_45_and_1_0_at_60_degrees() {
         let fc = c.crossover_hz.unwrap();
         let ratio = closed_loop_gain_at(&l, fc).unwrap().norm() / c.closed_loop_gain;
         assert!((ratio - about).abs() < 0.01, "PM {pm}: {ratio}");
-        let exact = 1.0 / (2.0 * (pm as f64 / 2.0).to_radians().sin());
+        let exact = 1.0 / (2.0 * (pm / 2.0).to_radians().sin());
         assert!((ratio - exact).abs() < 2e-4, "PM {pm}: {ratio} vs {exact}");
     }
 }

@@ -167,10 +167,13 @@ pub fn gain_crossings_hz(l: &FeedbackLoop, ppd: u32) -> Result<Vec<f64>> {
     Ok(scan(l, ppd)?.0.into_iter().map(|(f, _)| f).collect())
 }
 
+/// Unity-gain crossings (frequency, rising) and −180° crossings (frequency).
+pub(crate) type Scan = (Vec<(f64, bool)>, Vec<f64>);
+
 /// Both kinds of crossing from one pass over the grid: unity-gain crossings with
 /// their direction (`true` when |T| rises through 1 as f rises), and −180°
 /// crossings.
-pub(crate) fn scan(l: &FeedbackLoop, ppd: u32) -> Result<(Vec<(f64, bool)>, Vec<f64>)> {
+pub(crate) fn scan(l: &FeedbackLoop, ppd: u32) -> Result<Scan> {
     let f = grid(l, ppd)?;
     let (mut ln, mut ph) = (Vec::with_capacity(f.len()), Vec::with_capacity(f.len()));
     l.fast_loop().sweep(&f, &mut ln, &mut ph);
