@@ -94,3 +94,32 @@ fn open_loop_unstable_models_flag_their_margins_and_the_poles_decide() {
     let b = closed_loop_bandwidth(&l).unwrap();
     assert!(b.midband_gain.is_finite() && b.peaking_db.is_finite());
 }
+
+#[test]
+fn the_largest_models_are_handled() {
+    // 32 poles over 8 decades, 8 complex pairs, a delay with a 10th-order Padé
+    // approximant, and a β with its own poles: order 32 + 16 + 10 + 4 = 62.
+    let mut a = TransferModel::constant(1e6).delay(1e-7);
+    for i in 0..32 {
+        a = a.pole(10f64.powf(i as f64 / 4.0));
+    }
+    for i in 0..8 {
+        a = a.complex_pole(1e5 * (1.0 + i as f64), 0.5 + i as f64);
+    }
+    let b = TransferModel::constant(1e-3).pole(1e6).pole(2e6).pole(3e6).pole(4e6);
+    let l = FeedbackLoop::with_pade_order(a, b, 10).unwrap();
+    let p = loopwright::freq::closed_loop_poles(&l).unwrap();
+    assert_eq!(p.poles.len(), 62);
+    assert!(p.poles.iter().all(|q| q.re.is_finite() && q.im.is_finite()));
+    let m = stability_margins(&l).unwrap();
+    assert!(m.phase_margin_deg.map_or(true, f64::is_finite));
+    let s = loop_gain_sweep(&l, 1e-3, 1e12, 2000).unwrap();
+    assert!(s.phase_deg.iter().all(|x| x.is_finite()));
+    // Past the order limit (64) the loop is refused with the limit stated:
+    // 32 poles + 16 pairs in A is 64, one more pole in β is 65.
+    let big = (0..32).fold(TransferModel::constant(1.0), |m, i| m.pole(1.0 + i as f64));
+    let big = (0..16).fold(big, |m, i| m.complex_pole(1e3 + i as f64, 1.0));
+    let e = FeedbackLoop::new(big, TransferModel::constant(1.0).pole(1e6)).unwrap_err();
+    assert_eq!((e.code(), e.param()), ("too_large", "beta"));
+    assert_eq!(e.to_string(), "beta: too large; the limit is 64");
+}
