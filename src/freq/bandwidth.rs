@@ -23,6 +23,7 @@
 use super::crossings::{brent, grid, CROSSING_REL_TOL, DEFAULT_POINTS_PER_DECADE};
 use super::model::FeedbackLoop;
 use super::response::closed_log;
+use crate::check;
 use crate::error::{Error, Result};
 use core::f64::consts::LN_2;
 
@@ -80,7 +81,9 @@ fn midband_hz(l: &FeedbackLoop, lo: f64) -> f64 {
 /// Closed-loop −3 dB bandwidth and peaking.
 ///
 /// # Errors
-/// [`Error::Oscillation`] when the midband return difference 1 + AM·βM is zero.
+/// [`Error::Oscillation`] when the midband return difference 1 + AM·βM is zero;
+/// [`Error::Overflow`] (`peaking_db`) when the loop sits exactly on an undamped
+/// closed-loop pole at a search frequency.
 ///
 /// # Example
 /// ```
@@ -145,7 +148,16 @@ pub fn closed_loop_bandwidth(l: &FeedbackLoop) -> Result<Bandwidth> {
         (0.0, None)
     };
     let bandwidth_hz = high.map(|h| h - low.unwrap_or(0.0));
-    Ok(Bandwidth { midband_gain: libm::exp(ref_ln), high_hz: high, low_hz: low, bandwidth_hz, peaking_db, peak_hz })
+    // A grid point exactly on an undamped closed-loop pole would make the peak
+    // infinite: an error, never an infinite answer.
+    Ok(Bandwidth {
+        midband_gain: check::result("midband_gain", libm::exp(ref_ln))?,
+        high_hz: high,
+        low_hz: low,
+        bandwidth_hz,
+        peaking_db: check::result("peaking_db", peaking_db)?,
+        peak_hz,
+    })
 }
 
 /// Golden-section search for the maximum of `h` on [a, b]: (argmax, max).
