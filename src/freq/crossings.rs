@@ -24,6 +24,12 @@ pub const DEFAULT_POINTS_PER_DECADE: u32 = 40;
 pub const POINTS_PER_DECADE_RANGE: (u32, u32) = (4, 2000);
 /// Decades beyond the outermost corners that the grid covers.
 const MARGIN_DECADES: f64 = 3.0;
+/// Phase crossings are searched only where |T| ≥ 10^(−MAX_GAIN_MARGIN_DB/20).
+pub const MAX_GAIN_MARGIN_DB: f64 = 240.0;
+const LN_MIN_LOOP_GAIN: f64 = -MAX_GAIN_MARGIN_DB / 20.0 * core::f64::consts::LN_10;
+/// Most phase crossings one loop may have within the search range (a long delay
+/// in front of a wide loop can turn the phase many times).
+pub const MAX_PHASE_CROSSINGS: usize = 5000;
 /// Widest search span, decades.
 const MAX_SPAN_DECADES: f64 = 40.0;
 
@@ -190,11 +196,19 @@ pub(crate) fn scan(l: &FeedbackLoop, ppd: u32) -> Result<Scan> {
         } else if gi == 0.0 && gp != 0.0 {
             gains.push((fi, gp < 0.0));
         }
+        // Phase crossings where the loop gain is too small to matter (gain margin
+        // above MAX_GAIN_MARGIN_DB) are not searched.
+        if gp < LN_MIN_LOOP_GAIN && gi < LN_MIN_LOOP_GAIN {
+            continue;
+        }
         let (pp, pi) = (ph[i - 1].to_degrees(), ph[i].to_degrees());
         // Every level −180° + 360°·m strictly inside (min, max] of the step.
         let (lo, hi) = if pp < pi { (pp, pi) } else { (pi, pp) };
         let m_lo = libm::floor((lo + 180.0) / 360.0) as i64 + 1;
         let m_hi = libm::floor((hi + 180.0) / 360.0) as i64;
+        if m_hi - m_lo + 1 + phases.len() as i64 > MAX_PHASE_CROSSINGS as i64 {
+            return Err(Error::TooLarge { param: "phase_crossings", limit: MAX_PHASE_CROSSINGS as u64 });
+        }
         let first = phases.len();
         for m in m_lo..=m_hi {
             let level = -180.0 + 360.0 * m as f64;
@@ -209,10 +223,13 @@ pub(crate) fn scan(l: &FeedbackLoop, ppd: u32) -> Result<Scan> {
 }
 
 /// Frequencies (Hz, ascending) where the continuous phase of T passes −180° plus
-/// any whole number of turns, at `ppd` grid points per decade.
+/// any whole number of turns, at `ppd` grid points per decade. Only where
+/// |T| ≥ −[`MAX_GAIN_MARGIN_DB`] dB (a gain margin beyond that is no margin
+/// question).
 ///
 /// # Errors
-/// `points_per_decade` outside 4…2000.
+/// `points_per_decade` outside 4…2000; [`Error::TooLarge`] (`phase_crossings`)
+/// past [`MAX_PHASE_CROSSINGS`].
 ///
 /// # Example
 /// ```
@@ -261,6 +278,20 @@ mod tests {
             let k = libm::round((p + 180.0) / 360.0);
             assert!((p + 180.0 - 360.0 * k).abs() < 1e-12 * p.abs().max(360.0), "phase {p} at {f}");
         }
+    }
+
+    #[test]
+    fn a_long_delay_before_a_wide_loop_is_bounded() {
+        // τ = 1 ms in front of a loop reaching 1 GHz: millions of turns while |T|
+        // is still large; refused with the limit instead of looping for ever.
+        let m = TransferModel::constant(1e5).pole(1.0).pole(1e9).delay(1e-3);
+        let l = FeedbackLoop::with_constant_beta(m, 1.0).unwrap();
+        let e = phase_crossings_hz(&l, 40).unwrap_err();
+        assert_eq!((e.code(), e.param()), ("too_large", "phase_crossings"));
+        // A delay whose turns happen where |T| is tiny is fine.
+        let m = TransferModel::constant(10.0).pole(1.0).pole(2.0).pole(3.0).delay(1e-9);
+        let l = FeedbackLoop::with_constant_beta(m, 1.0).unwrap();
+        assert!(phase_crossings_hz(&l, 40).unwrap().len() < 10);
     }
 
     #[test]

@@ -7,7 +7,7 @@
 //!   smallest over all crossovers.
 //! - At each phase crossover f180 (∠T = −180° modulo 360°): gain margin
 //!   GM = −20·log10|T(f180)| dB. The reported GM is the smallest over all phase
-//!   crossovers.
+//!   crossovers; crossovers where |T| < −240 dB are not searched.
 //! - No crossover of a kind is a result: that margin is unbounded (`None`).
 //!
 //! The Bode reading of margins assumes a loop gain without right-half-plane poles
@@ -88,7 +88,7 @@ pub(crate) fn wrap_deg(x: f64) -> f64 {
 /// Stability margins of the loop, with the default grid density.
 ///
 /// # Errors
-/// None for a valid loop beyond those of [`margins_with_density`].
+/// As [`margins_with_density`].
 ///
 /// # Example
 /// ```
@@ -110,7 +110,10 @@ pub fn stability_margins(l: &FeedbackLoop) -> Result<Margins> {
 /// tolerance, as long as crossings are a grid step apart.
 ///
 /// # Errors
-/// `points_per_decade` outside 4…2000.
+/// `points_per_decade` outside 4…2000; [`crate::Error::TooLarge`]
+/// (`phase_crossings`) when a long delay turns the phase more than
+/// [`super::crossings::MAX_PHASE_CROSSINGS`] times while |T| is still above
+/// −240 dB.
 ///
 /// # Example
 /// ```
