@@ -32,6 +32,13 @@ const BIG: f64 = 2.582_249_878_086_908_6e120; // 2^400
 const SMALL: f64 = 3.872_591_914_849_318e-121; // 2^−400
 const LN_BIG: f64 = 400.0 * LN_2;
 
+/// Nearest whole number of a turn count (|x| far below 2^53; saturating beyond),
+/// by a float-to-integer conversion, which is one instruction in wasm.
+#[inline]
+fn nearest(x: f64) -> f64 {
+    (if x >= 0.0 { (x + 0.5) as i64 } else { (x - 0.5) as i64 }) as f64
+}
+
 /// Arctangent of x ≥ 0 to within [`ATAN_ERR`].
 fn atan_approx(x: f64) -> f64 {
     if x <= 1.0 {
@@ -147,7 +154,7 @@ impl FastModel {
     /// ln|H(j2πf)| and the continuous phase in radians, f > 0.
     pub(crate) fn eval(&self, f: f64) -> (f64, f64) {
         let (ln_mag, principal, est) = self.product::<true>(f);
-        let turns = libm::round((est - principal) / TAU);
+        let turns = nearest((est - principal) / TAU);
         (ln_mag, principal + TAU * turns + self.phase0 - TAU * f * self.delay)
     }
 
@@ -241,7 +248,7 @@ impl FastModel {
             // Continuous phase of the factors: from the estimate at the first
             // point, then the turn nearest the previous point.
             let reference = prev.unwrap_or(est);
-            let factors = principal + TAU * libm::round((reference - principal) / TAU);
+            let factors = principal + TAU * nearest((reference - principal) / TAU);
             prev = Some(factors);
             ln_mag.push(l);
             phase.push(factors + self.phase0 - TAU * x * self.delay);
