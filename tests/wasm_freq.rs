@@ -105,6 +105,21 @@ fn step_response_has_metrics_and_a_waveform() {
 }
 
 #[wasm_bindgen_test]
+fn analyze_loop_gathers_every_part() {
+    // Three equal poles at T0 = 4 are stable; at T0 = 12 unstable (the T0 = 8
+    // trade fact, common practice, no source), so the step is null with a note.
+    let s = api::analyze_loop(three_equal_poles(4.0), 1.0.into(), 0.02, 100).unwrap();
+    assert_eq!(text(&field(&s, "poles"), "verdict"), "stable");
+    assert!((num(&field(&s, "margins"), "gainMarginDb") - 20.0 * 2f64.log10()).abs() < 1e-9);
+    assert!(num(&field(&s, "step"), "overshootPercent") > 0.0);
+    assert!(field(&s, "stepNote").is_null());
+    let u = api::analyze_loop(three_equal_poles(12.0), 1.0.into(), 0.02, 100).unwrap();
+    assert_eq!(text(&field(&u, "poles"), "verdict"), "unstable");
+    assert!(field(&u, "step").is_null());
+    assert!(text(&u, "stepNote").contains("not stable"));
+}
+
+#[wasm_bindgen_test]
 fn closed_forms_and_compensation() {
     let r = api::two_pole_response(1e3, 1e6, 999.0).unwrap();
     // Q = √((1+T0)·f1·f2)/(f1+f2) (two-pole closed form).

@@ -26,7 +26,8 @@
 //! - [`bandwidth`]: −3 dB frequencies and peaking;
 //! - [`step`]: step response and its metrics;
 //! - [`closed_forms`]: one- and two-pole formulas;
-//! - [`compensation`]: dominant pole and largest β for a target margin.
+//! - [`compensation`]: dominant pole and largest β for a target margin;
+//! - [`summary`]: all of the above for one loop at once.
 
 pub mod bandwidth;
 pub mod closed_forms;
@@ -40,6 +41,7 @@ pub mod poly;
 pub mod response;
 pub mod roots;
 pub mod step;
+pub mod summary;
 
 pub use bandwidth::{closed_loop_bandwidth, Bandwidth};
 pub use closed_forms::{gain_bandwidth, single_pole_high_cutoff, single_pole_low_cutoff, two_pole_response, TwoPoleResponse};
@@ -55,3 +57,4 @@ pub use response::{
 };
 pub use roots::roots as polynomial_roots;
 pub use step::{step_response, step_waveform, StepResponse, StepWaveform};
+pub use summary::{analyze_loop, LoopSummary};

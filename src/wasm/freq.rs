@@ -216,6 +216,17 @@ pub fn step_response(a: JsValue, beta: JsValue, settle_band: f64, points: usize)
     Ok(obj)
 }
 
+/// Everything about one loop: `{margins, poles, bandwidth, bandwidthNote, step,
+/// stepNote}` (the objects of `stabilityMargins`, `closedLoopPoles`,
+/// `closedLoopBandwidth` and `stepResponse`, with the step waveform as
+/// `step.waveform = {timeS, output}` in plain arrays); a part that does not exist
+/// for this loop is `null` with its note.
+#[wasm_bindgen(js_name = analyzeLoop)]
+pub fn analyze_loop(a: JsValue, beta: JsValue, settle_band: f64, points: usize) -> Result<JsValue, JsValue> {
+    let l = feedback_loop(&a, &beta)?;
+    to_js(&throw(fq::analyze_loop(&l, settle_band, points))?)
+}
+
 /// Step waveform over a chosen duration (any loop): `{timeS, output}` as
 /// `Float64Array`s.
 #[wasm_bindgen(js_name = stepWaveform)]
