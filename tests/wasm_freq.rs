@@ -149,5 +149,7 @@ fn bad_input_throws_typed_errors() {
     assert_thrown(api::closed_loop_poles(a.clone(), obj(r#"{"gain": 0.1, "zerosHz": [1, 2]}"#)), "out_of_domain", "beta.zeros_hz");
     assert_thrown(api::step_response(three_equal_poles(12.0), 1.0.into(), 0.02, 100), "unreachable", "closed_loop");
     assert_thrown(api::two_pole_response(1e3, 1e6, -1.0), "out_of_domain", "t0");
+    assert_thrown(api::closed_loop_poles(a.clone(), obj(r#"{"gain": 0.1, "padeOrder": 4}"#)), "out_of_domain", "beta");
+    assert_thrown(api::closed_loop_poles(obj(r#"{"gain": 10, "delayS": 1e-6, "padeOrder": 0}"#), 0.1.into()), "out_of_domain", "pade_order");
     assert_thrown(api::closed_loop_bandwidth(a, JsValue::from(f64::NAN)), "not_finite", "beta.gain");
 }

@@ -95,7 +95,13 @@ originPoles, lowCutsHz, delayS, padeOrder",
 fn beta_model(beta: &JsValue) -> Result<TransferModel, JsValue> {
     match beta.as_f64() {
         Some(b) => Ok(TransferModel::constant(b)),
-        None => Ok(model("beta", beta)?.0),
+        None => match model("beta", beta)? {
+            (m, None) => Ok(m),
+            (_, Some(_)) => Err(super::js_error(Error::OutOfDomain {
+                param: "beta",
+                requirement: "padeOrder belongs on the amplifier object, which sets it for the whole loop",
+            })),
+        },
     }
 }
 

@@ -17,8 +17,9 @@ well-conditioned for numpy; frequencies and times are scaled back afterwards.
   (smallest) phase margin and worst gain margin in dB; for a delay, which a
   transfer function cannot hold exactly, the exact response exp(-jw tau)·L(jw) is
   bracketed on a dense grid and refined with scipy.optimize.brentq.
-- poles: roots of den_A·den_b + num_A·num_b (numpy.roots, via control.feedback's
-  polynomials), a delay through control.pade of the same order (6).
+- poles: numpy.roots of den_A·den_b + num_A·num_b, the polynomials of the
+  python-control transfer functions; a delay through control.pade of the same
+  order (6).
 - bandwidth: |Af| on the exact response (delay exact), brentq on the -3 dB level
   relative to the DC (or midband) closed-loop gain; peaking by a dense grid and
   scipy.optimize.minimize_scalar.
