@@ -215,3 +215,96 @@ fn aberth_and_laguerre_agree() {
         })
         .unwrap();
 }
+
+/// Any model the checks accept: every factor kind, integrators, low cuts, RHP
+/// poles, a delay, a β with its own factors.
+fn any_loop() -> impl Strategy<Value = Option<FeedbackLoop>> {
+    (
+        (-3.0..5.0f64, prop::bool::weighted(0.1)),
+        prop::collection::vec(-2.0..10.0f64, 0..5),
+        prop::collection::vec(-2.0..10.0f64, 0..3),
+        prop::collection::vec((-2.0..10.0f64, -1.0..2.0f64), 0..3),
+        (0u32..2, prop::collection::vec(-2.0..4.0f64, 0..2), prop::option::weighted(0.1, -2.0..10.0f64)),
+        (prop::option::weighted(0.2, -10.0..-5.0f64), prop::collection::vec(-2.0..10.0f64, 0..2), -4.0..0.0f64),
+    )
+        .prop_map(|((g, neg), poles, zeros, pairs, (ints, cuts, rhp_pole), (delay, beta_poles, b))| {
+            let mut a = TransferModel::constant(if neg { -1.0 } else { 1.0 } * 10f64.powf(g));
+            for p in poles {
+                a = a.pole(10f64.powf(p));
+            }
+            for (f, q) in pairs {
+                a = a.complex_pole(10f64.powf(f), 10f64.powf(q));
+            }
+            for _ in 0..ints {
+                a = a.integrator();
+            }
+            for c in cuts {
+                a = a.low_cut(10f64.powf(c));
+            }
+            if let Some(p) = rhp_pole {
+                a = a.rhp_pole(10f64.powf(p));
+            }
+            if let Some(d) = delay {
+                a = a.delay(10f64.powf(d));
+            }
+            for z in zeros {
+                a = a.zero(10f64.powf(z));
+            }
+            let mut beta = TransferModel::constant(10f64.powf(b));
+            for p in beta_poles {
+                beta = beta.pole(10f64.powf(p)).zero(10f64.powf(p - 1.0));
+            }
+            // Improper combinations are refused by the checks (tested elsewhere).
+            FeedbackLoop::new(a, beta).ok()
+        })
+}
+
+#[test]
+fn every_entry_point_returns_finite_values_or_a_typed_error() {
+    use loopwright::freq::{analyze_loop, closed_loop_sweep, dominant_pole_for_margin, loop_gain_sweep, max_beta_for_margin};
+    let finite = |x: f64| x.is_finite();
+    let seen = std::cell::Cell::new((0u32, 0u32, 0u32));
+    runner(120, 6)
+        .run(&any_loop(), |l| {
+            let Some(l) = l else { return Ok(()) };
+            let (n, unstable, steps) = seen.get();
+            seen.set((n + 1, unstable, steps));
+            let s = loop_gain_sweep(&l, 1e-3, 1e10, 300);
+            if let Ok(s) = &s {
+                prop_assert!(s.magnitude_db.iter().chain(&s.phase_deg).copied().all(finite));
+            }
+            if let Ok(s) = closed_loop_sweep(&l, 1e-3, 1e10, 300) {
+                prop_assert!(s.magnitude_db.iter().chain(&s.phase_deg).copied().all(finite));
+            }
+            match analyze_loop(&l, 0.02, 200) {
+                Ok(r) => {
+                    let (n, unstable, steps) = seen.get();
+                    seen.set((n, unstable + u32::from(r.poles.verdict == Verdict::Unstable), steps + u32::from(r.step.is_some())));
+                    let m = &r.margins;
+                    prop_assert!(m.gain_crossings.iter().chain(&m.phase_crossings).all(|c| c.margin.is_finite() && c.freq_hz > 0.0));
+                    prop_assert!(r.poles.poles.iter().all(|p| p.re.is_finite() && p.im.is_finite() && p.zeta.is_finite()));
+                    if let Some(b) = r.bandwidth {
+                        prop_assert!(b.midband_gain.is_finite() && b.peaking_db.is_finite());
+                    }
+                    if let Some(st) = r.step {
+                        prop_assert!(st.rise_time_s.is_finite() && st.settling_time_s.is_finite() && st.overshoot_percent.is_finite());
+                        prop_assert!(st.waveform.output.iter().copied().all(finite));
+                    }
+                }
+                Err(e) => prop_assert!(!e.param().is_empty()),
+            }
+            let a = l.amplifier().clone();
+            for r in [dominant_pole_for_margin(&a, 0.1, 45.0), max_beta_for_margin(&a, 45.0, 1.0)] {
+                match r {
+                    Ok(c) => prop_assert!(c.value.is_finite() && c.closed_loop_gain.is_finite()),
+                    Err(e) => prop_assert!(!e.param().is_empty()),
+                }
+            }
+            Ok(())
+        })
+        .unwrap();
+    // The generator reaches accepted, unstable and settling loops alike.
+    let (n, unstable, steps) = seen.get();
+    eprintln!("{n} loops accepted, {unstable} unstable, {steps} with step metrics");
+    assert!(n >= 60 && unstable >= 10 && steps >= 10, "{n} {unstable} {steps}");
+}
