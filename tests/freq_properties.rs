@@ -308,3 +308,43 @@ fn every_entry_point_returns_finite_values_or_a_typed_error() {
     eprintln!("{n} loops accepted, {unstable} unstable, {steps} with step metrics");
     assert!(n >= 60 && unstable >= 10 && steps >= 10, "{n} {unstable} {steps}");
 }
+
+#[test]
+fn step_waveform_matches_the_residue_sum_for_simple_poles() {
+    // Slow reference: with simple closed-loop poles p_i (normalised), the step
+    // response is y(τ) = Af(0) + Σ N(p_i)·e^(p_i·τ) / (p_i·C'(p_i)) — partial
+    // fractions, independent of the state-space matrix exponential.
+    use loopwright::freq::{closed_loop_transfer, step_waveform};
+    let checked = std::cell::Cell::new(0u32);
+    runner(80, 7)
+        .run(&(amplifier(), beta()), |(a, b)| {
+            let l = FeedbackLoop::with_constant_beta(a, b).unwrap();
+            let t = closed_loop_transfer(&l).unwrap();
+            let roots = polynomial_roots(&t.denominator).unwrap();
+            if roots.iter().any(|p| p.re >= -1e-6 * p.norm()) {
+                return Ok(());
+            }
+            // Close poles make the residues ill-conditioned; leave those to the
+            // repeated-pole tests.
+            let close = roots.iter().enumerate().any(|(i, p)| roots.iter().skip(i + 1).any(|q| (p - q).norm() < 1e-2 * p.norm()));
+            if close {
+                return Ok(());
+            }
+            let eval = |c: &[f64], z: Complex64| c.iter().rev().fold(Complex64::new(0.0, 0.0), |acc, &x| acc * z + x);
+            let deriv: Vec<f64> = t.denominator.iter().enumerate().skip(1).map(|(k, x)| x * k as f64).collect();
+            let dc = t.numerator[0] / t.denominator[0];
+            let slowest = roots.iter().map(|p| -p.re).fold(f64::INFINITY, f64::min);
+            let duration = 3.0 / slowest / t.omega_n;
+            let w = step_waveform(&l, duration, 7).unwrap();
+            for (&ts, &y) in w.time_s.iter().zip(&w.output) {
+                let tau = ts * t.omega_n;
+                let sum: Complex64 = roots.iter().map(|&p| eval(&t.numerator, p) * (p * tau).exp() / (p * eval(&deriv, p))).sum();
+                let want = dc + sum.re;
+                prop_assert!((y - want).abs() <= 1e-7 * dc.abs(), "t = {ts}: {y} vs {want}");
+            }
+            checked.set(checked.get() + 1);
+            Ok(())
+        })
+        .unwrap();
+    assert!(checked.get() >= 20, "only {} loops checked", checked.get());
+}

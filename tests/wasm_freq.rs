@@ -72,6 +72,12 @@ fn margins_poles_and_bandwidth_are_plain_objects() {
     assert_eq!(text(&m, "validity"), "meaningful");
     assert!(Array::is_array(&field(&m, "gainCrossings")));
 
+    // (1 + p)³ + 4 with ωn at the poles: the closed loop is 4/(5 + 3p + 3p² + p³).
+    let t = api::closed_loop_transfer(three_equal_poles(4.0), 1.0.into()).unwrap();
+    let den = Array::from(&field(&t, "denominator"));
+    assert_eq!(den.length(), 4);
+    assert!((den.get(0).as_f64().unwrap() - 5.0).abs() < 1e-12);
+
     let p = api::closed_loop_poles(three_equal_poles(12.0), 1.0.into()).unwrap();
     assert_eq!(text(&p, "verdict"), "unstable");
     assert_eq!(Array::from(&field(&p, "poles")).length(), 3);

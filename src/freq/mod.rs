@@ -50,7 +50,7 @@ pub use crossings::{gain_crossings_hz, phase_crossings_hz, CROSSING_REL_TOL};
 pub use margins::{margins_with_density, stability_margins, Crossing, MarginValidity, Margins};
 pub use model::{ComplexPair, FeedbackLoop, TransferModel};
 pub use poles::{closed_loop_poles, ClosedLoopPoles, Pole, Verdict};
-pub use poly::{characteristic_polynomial, CharacteristicPolynomial};
+pub use poly::{characteristic_polynomial, closed_loop_transfer, CharacteristicPolynomial, ClosedLoopTransfer};
 pub use response::{
     closed_loop_gain_at, closed_loop_sweep, log_frequencies, loop_gain_at, loop_gain_sweep, unwrap_phase_deg, Sweep,
     MAX_SWEEP_POINTS,

@@ -185,6 +185,38 @@ pub fn characteristic_polynomial(l: &FeedbackLoop) -> Result<CharacteristicPolyn
     Ok(CharacteristicPolynomial { omega_n: wn, coeffs: c })
 }
 
+/// The closed-loop gain as a rational function in the normalised variable.
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[cfg_attr(feature = "serde", serde(rename_all = "camelCase"))]
+pub struct ClosedLoopTransfer {
+    /// ωn, rad/s: p = s/ωn.
+    pub omega_n: f64,
+    /// Numerator kA·NA(p)·Dβ(p), lowest power first, in the unit of A.
+    pub numerator: Vec<f64>,
+    /// Denominator C(p), the characteristic polynomial, lowest power first.
+    pub denominator: Vec<f64>,
+}
+
+/// Closed-loop gain Af(p) = kA·NA·Dβ / C(p) with p = s/ωn (a delay by its Padé
+/// approximant), for export or for an independent check of the step response.
+///
+/// # Errors
+/// As [`characteristic_polynomial`].
+///
+/// # Example
+/// ```
+/// use loopwright::freq::{closed_loop_transfer, FeedbackLoop, TransferModel};
+/// // 9/(1 + s/ω0) with β = 1 and ωn = ω0: Af = 9/(10 + p).
+/// let l = FeedbackLoop::with_constant_beta(TransferModel::constant(9.0).pole(1e3), 1.0).unwrap();
+/// let t = closed_loop_transfer(&l).unwrap();
+/// assert!((t.numerator[0] - 9.0).abs() < 1e-12 && (t.denominator[0] - 10.0).abs() < 1e-12);
+/// ```
+pub fn closed_loop_transfer(l: &FeedbackLoop) -> Result<ClosedLoopTransfer> {
+    let (numerator, denominator, omega_n) = closed_loop_rational(l)?;
+    Ok(ClosedLoopTransfer { omega_n, numerator, denominator })
+}
+
 /// Closed-loop Af(p) = kA·NA·Dβ / C(p): (numerator, denominator, ωn).
 pub(crate) fn closed_loop_rational(l: &FeedbackLoop) -> Result<(Coeffs, Coeffs, f64)> {
     let cp = characteristic_polynomial(l)?;

@@ -182,6 +182,14 @@ pub fn closed_loop_poles(a: JsValue, beta: JsValue) -> Result<JsValue, JsValue> 
     to_js(&throw(fq::closed_loop_poles(&l))?)
 }
 
+/// The closed-loop gain as a rational function of p = s/ωn: `{omegaN, numerator,
+/// denominator}`, coefficients lowest power first (a delay by its Padé approximant).
+#[wasm_bindgen(js_name = closedLoopTransfer)]
+pub fn closed_loop_transfer(a: JsValue, beta: JsValue) -> Result<JsValue, JsValue> {
+    let l = feedback_loop(&a, &beta)?;
+    to_js(&throw(fq::closed_loop_transfer(&l))?)
+}
+
 /// Closed-loop −3 dB bandwidth and peaking: `{midbandGain, highHz, lowHz,
 /// bandwidthHz, peakingDb, peakHz}`.
 #[wasm_bindgen(js_name = closedLoopBandwidth)]
