@@ -30,6 +30,7 @@ pub mod check;
 pub mod circuit;
 pub mod error;
 pub mod feedback;
+pub mod freq;
 pub mod network;
 pub mod noise;
 pub mod nonlinear;

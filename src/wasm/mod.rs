@@ -8,6 +8,7 @@
 
 pub mod circuit;
 pub mod feedback;
+pub mod freq;
 pub mod network;
 pub mod noise;
 pub mod nonlinear;

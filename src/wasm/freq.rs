@@ -1,0 +1,292 @@
+//! JS bindings for frequency response, bandwidth and stability (catalog area B).
+//!
+//! A model is a plain object `{gain, polesHz, zerosHz, rhpZerosHz, rhpPolesHz,
+//! complexPoles: [{freqHz, q}], complexZeros, originPoles, lowCutsHz, delayS}`;
+//! every field but `gain` may be left out. The amplifier object may also carry
+//! `padeOrder` (1…10, default 6) for a delay in pole and step computations. β is
+//! either a number (a frequency-independent feedback factor) or such an object.
+//! Sweeps come back as objects of `Float64Array`s.
+
+use super::{throw, to_js};
+use crate::error::Error;
+use crate::freq::{self as fq, ComplexPair, FeedbackLoop, TransferModel};
+use js_sys::{Float64Array, Object, Reflect};
+use serde::Deserialize;
+use wasm_bindgen::prelude::*;
+use wasm_bindgen::JsCast;
+
+#[derive(Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct JsPair {
+    freq_hz: f64,
+    q: f64,
+}
+
+#[derive(Deserialize, Default)]
+#[serde(rename_all = "camelCase", default, deny_unknown_fields)]
+struct JsModel {
+    gain: f64,
+    poles_hz: Vec<f64>,
+    zeros_hz: Vec<f64>,
+    rhp_zeros_hz: Vec<f64>,
+    rhp_poles_hz: Vec<f64>,
+    complex_poles: Vec<JsPair>,
+    complex_zeros: Vec<JsPair>,
+    origin_poles: u32,
+    low_cuts_hz: Vec<f64>,
+    delay_s: f64,
+    pade_order: Option<u32>,
+}
+
+const MODEL_SHAPE: &str = "must be a model object {gain, polesHz, zerosHz, rhpZerosHz, rhpPolesHz, complexPoles: \
+[{freqHz, q}], complexZeros, originPoles, lowCutsHz, delayS} with numbers and arrays of numbers";
+
+fn pairs(v: Vec<JsPair>) -> Vec<ComplexPair> {
+    v.into_iter().map(|p| ComplexPair { freq_hz: p.freq_hz, q: p.q }).collect()
+}
+
+const MODEL_FIELDS: [&str; 11] = [
+    "gain",
+    "polesHz",
+    "zerosHz",
+    "rhpZerosHz",
+    "rhpPolesHz",
+    "complexPoles",
+    "complexZeros",
+    "originPoles",
+    "lowCutsHz",
+    "delayS",
+    "padeOrder",
+];
+
+fn model(param: &'static str, v: &JsValue) -> Result<(TransferModel, Option<u32>), JsValue> {
+    // A misspelt field would otherwise be skipped silently.
+    if let Some(o) = v.dyn_ref::<Object>() {
+        for key in Object::keys(o).iter() {
+            let known = key.as_string().is_some_and(|k| MODEL_FIELDS.contains(&k.as_str()));
+            if !known {
+                return Err(super::js_error(Error::UnknownName {
+                    param,
+                    expected: "gain, polesHz, zerosHz, rhpZerosHz, rhpPolesHz, complexPoles, complexZeros, \
+originPoles, lowCutsHz, delayS, padeOrder",
+                }));
+            }
+        }
+    }
+    let m: JsModel = serde_wasm_bindgen::from_value(v.clone())
+        .map_err(|_| super::js_error(Error::OutOfDomain { param, requirement: MODEL_SHAPE }))?;
+    Ok((
+        TransferModel {
+            gain: m.gain,
+            poles_hz: m.poles_hz,
+            zeros_hz: m.zeros_hz,
+            rhp_zeros_hz: m.rhp_zeros_hz,
+            rhp_poles_hz: m.rhp_poles_hz,
+            complex_poles: pairs(m.complex_poles),
+            complex_zeros: pairs(m.complex_zeros),
+            origin_poles: m.origin_poles,
+            low_cuts_hz: m.low_cuts_hz,
+            delay_s: m.delay_s,
+        },
+        m.pade_order,
+    ))
+}
+
+fn beta_model(beta: &JsValue) -> Result<TransferModel, JsValue> {
+    match beta.as_f64() {
+        Some(b) => Ok(TransferModel::constant(b)),
+        None => match model("beta", beta)? {
+            (m, None) => Ok(m),
+            (_, Some(_)) => Err(super::js_error(Error::OutOfDomain {
+                param: "beta",
+                requirement: "padeOrder belongs on the amplifier object, which sets it for the whole loop",
+            })),
+        },
+    }
+}
+
+fn feedback_loop(a: &JsValue, beta: &JsValue) -> Result<FeedbackLoop, JsValue> {
+    let (am, pade) = model("a", a)?;
+    let bm = beta_model(beta)?;
+    throw(FeedbackLoop::with_pade_order(am, bm, pade.unwrap_or(crate::freq::model::DEFAULT_PADE_ORDER)))
+}
+
+/// A plain object whose fields are `Float64Array`s.
+fn arrays(fields: &[(&str, &[f64])]) -> JsValue {
+    let obj = Object::new();
+    for (name, values) in fields {
+        // Reflect::set only fails on frozen or proxy objects; a fresh Object is neither.
+        let _ = Reflect::set(&obj, &(*name).into(), &Float64Array::from(*values).into());
+    }
+    obj.into()
+}
+
+/// Loop-gain sweep T = A·β: `{freqHz, magnitudeDb, phaseDeg}` as `Float64Array`s,
+/// phase continuous; at most 100 000 points.
+#[wasm_bindgen(js_name = loopGainSweep)]
+pub fn loop_gain_sweep(a: JsValue, beta: JsValue, start_hz: f64, stop_hz: f64, points: usize) -> Result<JsValue, JsValue> {
+    let l = feedback_loop(&a, &beta)?;
+    let s = throw(fq::loop_gain_sweep(&l, start_hz, stop_hz, points))?;
+    Ok(arrays(&[("freqHz", &s.freq_hz), ("magnitudeDb", &s.magnitude_db), ("phaseDeg", &s.phase_deg)]))
+}
+
+/// Closed-loop sweep Af = A/(1 + Aβ): `{freqHz, magnitudeDb, phaseDeg}` as
+/// `Float64Array`s.
+#[wasm_bindgen(js_name = closedLoopSweep)]
+pub fn closed_loop_sweep(a: JsValue, beta: JsValue, start_hz: f64, stop_hz: f64, points: usize) -> Result<JsValue, JsValue> {
+    let l = feedback_loop(&a, &beta)?;
+    let s = throw(fq::closed_loop_sweep(&l, start_hz, stop_hz, points))?;
+    Ok(arrays(&[("freqHz", &s.freq_hz), ("magnitudeDb", &s.magnitude_db), ("phaseDeg", &s.phase_deg)]))
+}
+
+#[derive(serde::Serialize)]
+#[serde(rename_all = "camelCase")]
+struct Phasor {
+    re: f64,
+    im: f64,
+    magnitude: f64,
+    phase_deg: f64,
+}
+
+/// Loop gain and closed-loop gain at one frequency: `{loopGain, closedLoopGain}`,
+/// each `{re, im, magnitude, phaseDeg}` (principal phase).
+#[wasm_bindgen(js_name = loopAt)]
+pub fn loop_at(a: JsValue, beta: JsValue, f_hz: f64) -> Result<JsValue, JsValue> {
+    let l = feedback_loop(&a, &beta)?;
+    let t = throw(fq::loop_gain_at(&l, f_hz))?;
+    let af = throw(fq::closed_loop_gain_at(&l, f_hz))?;
+    #[derive(serde::Serialize)]
+    #[serde(rename_all = "camelCase")]
+    struct At {
+        loop_gain: Phasor,
+        closed_loop_gain: Phasor,
+    }
+    let p = |z: num_complex::Complex64| Phasor { re: z.re, im: z.im, magnitude: z.norm(), phase_deg: z.arg().to_degrees() };
+    to_js(&At { loop_gain: p(t), closed_loop_gain: p(af) })
+}
+
+/// Stability margins: `{phaseMarginDeg, crossoverHz, gainMarginDb,
+/// phaseCrossoverHz, gainCrossings, phaseCrossings, validity}`; a margin is
+/// `null` when unbounded (no crossover of that kind).
+#[wasm_bindgen(js_name = stabilityMargins)]
+pub fn stability_margins(a: JsValue, beta: JsValue) -> Result<JsValue, JsValue> {
+    let l = feedback_loop(&a, &beta)?;
+    to_js(&throw(fq::stability_margins(&l))?)
+}
+
+/// Closed-loop poles: `{poles: [{re, im, naturalHz, zeta, q}], verdict, minZeta,
+/// padeOrder}`; `verdict` is `"stable"`, `"marginal"` or `"unstable"`.
+#[wasm_bindgen(js_name = closedLoopPoles)]
+pub fn closed_loop_poles(a: JsValue, beta: JsValue) -> Result<JsValue, JsValue> {
+    let l = feedback_loop(&a, &beta)?;
+    to_js(&throw(fq::closed_loop_poles(&l))?)
+}
+
+/// The closed-loop gain as a rational function of p = s/ωn: `{omegaN, numerator,
+/// denominator}`, coefficients lowest power first (a delay by its Padé approximant).
+#[wasm_bindgen(js_name = closedLoopTransfer)]
+pub fn closed_loop_transfer(a: JsValue, beta: JsValue) -> Result<JsValue, JsValue> {
+    let l = feedback_loop(&a, &beta)?;
+    to_js(&throw(fq::closed_loop_transfer(&l))?)
+}
+
+/// Closed-loop −3 dB bandwidth and peaking: `{midbandGain, highHz, lowHz,
+/// bandwidthHz, peakingDb, peakHz}`.
+#[wasm_bindgen(js_name = closedLoopBandwidth)]
+pub fn closed_loop_bandwidth(a: JsValue, beta: JsValue) -> Result<JsValue, JsValue> {
+    let l = feedback_loop(&a, &beta)?;
+    to_js(&throw(fq::closed_loop_bandwidth(&l))?)
+}
+
+/// Step response: `{finalValue, overshootPercent, peakTimeS, undershootPercent,
+/// riseTimeS, settlingTimeS, settleBand, timeS, output}` with `timeS` and
+/// `output` as `Float64Array`s of `points` samples.
+#[wasm_bindgen(js_name = stepResponse)]
+pub fn step_response(a: JsValue, beta: JsValue, settle_band: f64, points: usize) -> Result<JsValue, JsValue> {
+    let l = feedback_loop(&a, &beta)?;
+    let s = throw(fq::step_response(&l, settle_band, points))?;
+    #[derive(serde::Serialize)]
+    #[serde(rename_all = "camelCase")]
+    struct Metrics {
+        final_value: f64,
+        overshoot_percent: f64,
+        peak_time_s: Option<f64>,
+        undershoot_percent: f64,
+        rise_time_s: f64,
+        settling_time_s: f64,
+        settle_band: f64,
+    }
+    let obj = to_js(&Metrics {
+        final_value: s.final_value,
+        overshoot_percent: s.overshoot_percent,
+        peak_time_s: s.peak_time_s,
+        undershoot_percent: s.undershoot_percent,
+        rise_time_s: s.rise_time_s,
+        settling_time_s: s.settling_time_s,
+        settle_band: s.settle_band,
+    })?;
+    let _ = Reflect::set(&obj, &"timeS".into(), &Float64Array::from(&s.waveform.time_s[..]).into());
+    let _ = Reflect::set(&obj, &"output".into(), &Float64Array::from(&s.waveform.output[..]).into());
+    Ok(obj)
+}
+
+/// Everything about one loop: `{margins, poles, bandwidth, bandwidthNote, step,
+/// stepNote}` (the objects of `stabilityMargins`, `closedLoopPoles`,
+/// `closedLoopBandwidth` and `stepResponse`, with the step waveform as
+/// `step.waveform = {timeS, output}` in plain arrays); a part that does not exist
+/// for this loop is `null` with its note.
+#[wasm_bindgen(js_name = analyzeLoop)]
+pub fn analyze_loop(a: JsValue, beta: JsValue, settle_band: f64, points: usize) -> Result<JsValue, JsValue> {
+    let l = feedback_loop(&a, &beta)?;
+    to_js(&throw(fq::analyze_loop(&l, settle_band, points))?)
+}
+
+/// Step waveform over a chosen duration (any loop): `{timeS, output}` as
+/// `Float64Array`s.
+#[wasm_bindgen(js_name = stepWaveform)]
+pub fn step_waveform(a: JsValue, beta: JsValue, duration_s: f64, points: usize) -> Result<JsValue, JsValue> {
+    let l = feedback_loop(&a, &beta)?;
+    let w = throw(fq::step_waveform(&l, duration_s, points))?;
+    Ok(arrays(&[("timeS", &w.time_s), ("output", &w.output)]))
+}
+
+/// The dominant pole (Hz) that gives a target phase margin at a constant β:
+/// `{value, phaseMarginDeg, crossoverHz, closedLoopGain}`.
+#[wasm_bindgen(js_name = dominantPoleForMargin)]
+pub fn dominant_pole_for_margin(a: JsValue, beta: f64, target_pm_deg: f64) -> Result<JsValue, JsValue> {
+    let (am, _) = model("a", &a)?;
+    to_js(&throw(fq::dominant_pole_for_margin(&am, beta, target_pm_deg))?)
+}
+
+/// The largest constant β (up to `betaLimit`) that keeps a target phase margin:
+/// `{value, phaseMarginDeg, crossoverHz, closedLoopGain}`.
+#[wasm_bindgen(js_name = maxBetaForMargin)]
+pub fn max_beta_for_margin(a: JsValue, target_pm_deg: f64, beta_limit: f64) -> Result<JsValue, JsValue> {
+    let (am, _) = model("a", &a)?;
+    to_js(&throw(fq::max_beta_for_margin(&am, target_pm_deg, beta_limit))?)
+}
+
+/// Two-pole closed loop in closed form: `{naturalHz, q, zeta, peakingDb, peakHz,
+/// overshootPercent, maximallyFlatLoopGain}`.
+#[wasm_bindgen(js_name = twoPoleResponse)]
+pub fn two_pole_response(f1: f64, f2: f64, t0: f64) -> Result<JsValue, JsValue> {
+    to_js(&throw(fq::two_pole_response(f1, f2, t0))?)
+}
+
+/// Single-pole closed-loop upper −3 dB frequency fH·(1 + A0·β), Hz.
+#[wasm_bindgen(js_name = singlePoleHighCutoff)]
+pub fn single_pole_high_cutoff(f_h: f64, a0: f64, beta: f64) -> Result<f64, JsValue> {
+    throw(fq::single_pole_high_cutoff(f_h, a0, beta))
+}
+
+/// Single low cut closed-loop lower −3 dB frequency fL/(1 + AM·β), Hz.
+#[wasm_bindgen(js_name = singlePoleLowCutoff)]
+pub fn single_pole_low_cutoff(f_l: f64, am: f64, beta: f64) -> Result<f64, JsValue> {
+    throw(fq::single_pole_low_cutoff(f_l, am, beta))
+}
+
+/// Gain–bandwidth product A0·fH.
+#[wasm_bindgen(js_name = gainBandwidth)]
+pub fn gain_bandwidth(a0: f64, f_h: f64) -> Result<f64, JsValue> {
+    throw(fq::gain_bandwidth(a0, f_h))
+}
