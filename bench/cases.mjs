@@ -4,6 +4,54 @@
 // same key. Each case: {key, area, what, make(lw) → fn, plainJs?: () → fn,
 // python?: true, target}.
 
+import { CIRCUIT_CASES } from './circuit_cases.mjs';
+
+// The loop of the freq cases (bench/peers.py builds the same one).
+const FREQ_A = { gain: 1e5, polesHz: [10, 1e5, 1e6, 3e6, 1e7, 3e7], zerosHz: [2e6, 5e7] };
+const FREQ_BETA = 0.1;
+
+/** The sweep as a competent engineer writes it inline: complex products, dB, unwrapped phase. */
+function plainJsSweep(points) {
+  const f = new Float64Array(points);
+  const db = new Float64Array(points);
+  const ph = new Float64Array(points);
+  const a = Math.log10(1);
+  const b = Math.log10(1e9);
+  let prev = 0;
+  let turns = 0;
+  for (let i = 0; i < points; i++) {
+    const fi = 10 ** (a + ((b - a) * i) / (points - 1));
+    f[i] = fi;
+    let re = FREQ_A.gain * FREQ_BETA;
+    let im = 0;
+    for (const p of FREQ_A.polesHz) {
+      // multiply by 1/(1 + j f/p)
+      const x = fi / p;
+      const d = 1 + x * x;
+      const nr = (re + im * x) / d;
+      const ni = (im - re * x) / d;
+      re = nr;
+      im = ni;
+    }
+    for (const z of FREQ_A.zerosHz) {
+      const x = fi / z;
+      const nr = re - im * x;
+      const ni = im + re * x;
+      re = nr;
+      im = ni;
+    }
+    db[i] = 10 * Math.log10(re * re + im * im);
+    let p = (Math.atan2(im, re) * 180) / Math.PI;
+    if (i > 0) {
+      while (p + turns - prev > 180) turns -= 360;
+      while (p + turns - prev < -180) turns += 360;
+    }
+    ph[i] = p + turns;
+    prev = ph[i];
+  }
+  return { f, db, ph };
+}
+
 export const CASES = [
   {
     key: 'closed_loop_gain',
@@ -40,6 +88,25 @@ export const CASES = [
     target: 'within 2x of inline plain JS',
   },
   {
+    key: 'freq_sweep_10k',
+    area: 'freq',
+    what: '10 000-point loop-gain sweep of a 6-pole, 2-zero loop (dB, continuous phase)',
+    make: (lw) => () => lw.loopGainSweep(FREQ_A, FREQ_BETA, 1, 1e9, 10_000),
+    plainJs: () => () => plainJsSweep(10_000),
+    python: true,
+    pythonLabel: 'python-control',
+    target: '< 1 ms; ≥ 5x faster than python-control; no slower than plain JS',
+  },
+  {
+    key: 'freq_margins_poles',
+    area: 'freq',
+    what: 'phase and gain margins (every crossing refined) + closed-loop poles',
+    make: (lw) => () => { lw.stabilityMargins(FREQ_A, FREQ_BETA); lw.closedLoopPoles(FREQ_A, FREQ_BETA); },
+    python: true,
+    pythonLabel: 'python-control',
+    target: '< 0.2 ms',
+  },
+  {
     key: 'monte_carlo_1e6',
     area: 'network',
     what: 'Monte Carlo, 1 000 000 trials of Af (2 resistors 1 % + A spread), stats, percentiles, yield, histogram',
@@ -57,4 +124,5 @@ export const CASES = [
     make: (lw) => () => lw.bestPairs('non-inverting', 7.77, 'E192', 1e3, 1e6, undefined, undefined, 'none', 10),
     target: '< 2 ms',
   },
+  ...CIRCUIT_CASES,
 ];

@@ -4,6 +4,7 @@ a user of numpy/scipy/python-control would do it. Prints {case_key: median_ns} a
 
 Cases are added beside the matching entries of bench/cases.mjs (same keys)."""
 import json
+import math
 import statistics
 import sys
 import time
@@ -39,7 +40,43 @@ def monte_carlo_1e6(n=1_000_000, seed=42):
     np.histogram(af, bins=50)
 
 
-CASES = {"monte_carlo_1e6": monte_carlo_1e6}
+TAU = 2 * math.pi
+
+
+def freq_loop():
+    """The loop of the freq cases: A0 = 1e5, poles 10 Hz, 100 kHz, 1, 3, 10, 30 MHz,
+    zeros 2 and 50 MHz, beta = 0.1, built as a python-control user would."""
+    import control
+
+    s = control.tf("s")
+    a = control.tf([1e5], [1])
+    for f in [10.0, 1e5, 1e6, 3e6, 1e7, 3e7]:
+        a = a / (1 + s / (TAU * f))
+    for f in [2e6, 5e7]:
+        a = a * (1 + s / (TAU * f))
+    return a, 0.1
+
+
+def freq_cases():
+    import control
+    import numpy as np
+
+    a, beta = freq_loop()
+    loop = a * beta
+    w = TAU * np.logspace(0, 9, 10_000)
+
+    def sweep():
+        r = control.frequency_response(loop, w)
+        20 * np.log10(r.magnitude), np.unwrap(r.phase) * 180 / math.pi
+
+    def margins_and_poles():
+        control.stability_margins(loop)
+        control.feedback(a, beta).poles()
+
+    return {"freq_sweep_10k": sweep, "freq_margins_poles": margins_and_poles}
+
+
+CASES = {"monte_carlo_1e6": monte_carlo_1e6, **freq_cases()}
 
 
 def main():
