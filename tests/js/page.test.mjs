@@ -208,3 +208,30 @@ test('every card computes its defaults, and the area cards show closed-form valu
   assert.deepEqual(problems, []);
   await context.close();
 });
+
+test('loop stability card: trade facts through the page', async () => {
+  const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
+  // Common practice, no source: three equal real poles go unstable at a DC loop
+  // gain of 8 (the loop is marginal exactly there).
+  await retype(page, '#card-loop-gain', '8');
+  await retype(page, '#card-loop-poles', '1k 1k 1k');
+  await retype(page, '#card-loop-beta', '1');
+  assert.match(await result(page, 'card-loop', 'verdict'), /MARGINAL/);
+  await retype(page, '#card-loop-gain', '9');
+  assert.match(await result(page, 'card-loop', 'verdict'), /UNSTABLE/);
+  await retype(page, '#card-loop-gain', '7');
+  assert.equal(await result(page, 'card-loop', 'verdict'), 'stable');
+  // The Bode plots carry the crossover and the phase-margin bar.
+  await retype(page, '#card-loop-poles', '10, 1M, 20M');
+  await retype(page, '#card-loop-gain', '100k');
+  assert.equal(await page.locator('#card-loop svg .plot-span').count(), 2);
+  // Two poles in closed form: Q = √((1 + T0)·f1·f2)/(f1 + f2); with T0 = 1000,
+  // f1 = 10 Hz, f2 = 5 MHz: Q = √(1001·5e7)/(5e6 + 10) = 0.0447 (hand computed).
+  const q = Math.sqrt(1001 * 10 * 5e6) / (5e6 + 10);
+  assert.equal(await result(page, 'card-closedform', 'q'), q.toPrecision(6));
+  // fHf = fH·(1 + A0·β) = 10·1001 = 10.01 kHz.
+  assert.equal(await result(page, 'card-closedform', 'fhf'), '10.01k');
+  await page.locator('#card-loop').screenshot({ path: join(ARTIFACTS, 'card-loop.png') });
+  assert.deepEqual(problems, []);
+  await context.close();
+});

@@ -1,7 +1,8 @@
 // A calculator card: named input cells, the formula as text, result cells.
 //
 // A card definition is {id, title, blurb, formula, inputs, compute, aliases?}:
-// - inputs: [{name, label, unit, value, choices?}]; `unit` is text or a function
+// - inputs: [{name, label, unit, value, choices?, list?}]; `list` reads several
+//   numbers ("10, 1M, 30M"); `unit` is text or a function
 //   (values, api) => text; `name` is the core's parameter
 //   name, so a thrown error's `param` points at the cell that caused it;
 // - compute(values, api): returns rows [{name, label, value, unit, format?, text?}]
@@ -21,6 +22,12 @@ import { saveSvg, savePng } from './plot/export.js';
 export function parseNumber(text, api) {
   const t = String(text).trim();
   return t.endsWith('%') ? api.parseValue(t.slice(0, -1)) / 100 : api.parseValue(t);
+}
+
+/** A list of numbers separated by commas, semicolons or spaces; empty text is an empty list. */
+export function parseList(text, api) {
+  const parts = String(text).split(/[,;\s]+/).filter(Boolean);
+  return parts.map((p) => parseNumber(p, api));
 }
 
 export function mountCard(host, def, api) {
@@ -72,7 +79,7 @@ export function mountCard(host, def, api) {
         continue;
       }
       try {
-        values[name] = parseNumber(control.value, api);
+        values[name] = input.list ? parseList(control.value, api) : parseNumber(control.value, api);
       } catch (err) {
         hint.textContent = `"${control.value.trim()}" ${err.message.replace(/^text: /, '')}`;
         control.setAttribute('aria-invalid', 'true');

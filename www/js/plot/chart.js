@@ -96,7 +96,12 @@ function pathOf(xs, ys, sx, sy) {
 
 function marker(m, sx, sy, inner) {
   const g = svg('g', { class: `plot-marker plot-marker-${m.kind}` });
-  if (m.x !== undefined && m.y === undefined) {
+  if (m.y0 !== undefined) {
+    // A vertical span at x from y0 to y1: a margin drawn as a bar.
+    const px = sx(m.x).toFixed(1);
+    g.append(svg('line', { x1: px, x2: px, y1: sy(m.y0).toFixed(1), y2: sy(m.y1).toFixed(1), class: 'plot-span' }));
+    if (m.label) g.append(svg('text', { x: Number(px) + 5, y: ((sy(m.y0) + sy(m.y1)) / 2 + 4).toFixed(1) }, m.label));
+  } else if (m.x !== undefined && m.y === undefined) {
     const px = sx(m.x).toFixed(1);
     g.append(svg('line', { x1: px, x2: px, y1: inner.y1, y2: inner.y0 }));
     if (m.label) {
@@ -107,11 +112,6 @@ function marker(m, sx, sy, inner) {
     const py = sy(m.y).toFixed(1);
     g.append(svg('line', { x1: inner.x0, x2: inner.x1, y1: py, y2: py }));
     if (m.label) g.append(svg('text', { x: inner.x0 + 4, y: Number(py) - 4 }, m.label));
-  } else if (m.y0 !== undefined) {
-    // A vertical span at x from y0 to y1: a margin drawn as an arrow-less bar.
-    const px = sx(m.x).toFixed(1);
-    g.append(svg('line', { x1: px, x2: px, y1: sy(m.y0).toFixed(1), y2: sy(m.y1).toFixed(1), class: 'plot-span' }));
-    if (m.label) g.append(svg('text', { x: Number(px) + 5, y: ((sy(m.y0) + sy(m.y1)) / 2 + 4).toFixed(1) }, m.label));
   } else {
     const [px, py] = [sx(m.x).toFixed(1), sy(m.y).toFixed(1)];
     g.append(svg('circle', { cx: px, cy: py, r: 4 }));
