@@ -235,3 +235,20 @@ test('loop stability card: trade facts through the page', async () => {
   assert.deepEqual(problems, []);
   await context.close();
 });
+
+test('loaded stage card: exact, two-port and ideal side by side', async () => {
+  const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
+  // Series-shunt, Rf = 9k, Rg = 1k: β = Rg/(Rf + Rg) = 0.1, ideal gain 1/β = 10.
+  assert.equal(await result(page, 'card-loaded', 'beta'), '0.1');
+  assert.match(await result(page, 'card-loaded', 'ideal'), /^10\.00 /);
+  // Shunt-shunt with Rf = 100k: the ideal transresistance is −Rf = −100 kV/A.
+  await page.selectOption('#card-loaded-topology', 'shunt-shunt');
+  await retype(page, '#card-loaded-gain', '-100M');
+  await retype(page, '#card-loaded-rf', '100k');
+  await retype(page, '#card-loaded-rg', '0');
+  assert.match(await result(page, 'card-loaded', 'ideal'), /^-100\.0k /);
+  assert.equal(await page.locator('#card-loaded .card-message').textContent(), '');
+  await page.locator('#card-loaded').screenshot({ path: join(ARTIFACTS, 'card-loaded.png') });
+  assert.deepEqual(problems, []);
+  await context.close();
+});

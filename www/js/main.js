@@ -7,6 +7,7 @@ import { FEEDBACK_CARDS } from './cards/feedback.js';
 import { NETWORK_CARDS } from './cards/network.js';
 import { DISTORTION_CARDS } from './cards/distortion.js';
 import { STABILITY_CARDS } from './cards/stability.js';
+import { CIRCUIT_CARDS } from './cards/circuit.js';
 import { mountWorksheet } from './sheet/worksheet.js';
 import { wasmSource } from './wasm-source.js';
 
@@ -42,7 +43,7 @@ async function start() {
     return;
   }
   const host = document.getElementById('cards');
-  for (const def of [...FEEDBACK_CARDS, ...STABILITY_CARDS, ...NETWORK_CARDS, ...DISTORTION_CARDS]) mountCard(host, def, api);
+  for (const def of [...FEEDBACK_CARDS, ...STABILITY_CARDS, ...NETWORK_CARDS, ...CIRCUIT_CARDS, ...DISTORTION_CARDS]) mountCard(host, def, api);
   performance.mark('loopwright-first-result');
   if (api.Worksheet) await mountWorksheet(document.getElementById('worksheet'), api);
   if (location.search.includes('view=sheet')) select(document.getElementById('tab-sheet'));
