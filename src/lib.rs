@@ -29,6 +29,7 @@ extern crate alloc;
 pub mod check;
 pub mod error;
 pub mod feedback;
+pub mod sheet;
 
 #[cfg(feature = "wasm")]
 pub mod wasm;
