@@ -7,6 +7,7 @@
 //! One file per catalog area.
 
 pub mod feedback;
+pub mod sheet;
 
 use crate::Error;
 use wasm_bindgen::prelude::*;
