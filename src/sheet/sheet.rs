@@ -76,7 +76,8 @@ pub struct Sheet {
 /// Read one cell input into its content.
 fn read_input(input: &str) -> Content {
     if let Some(formula) = input.strip_prefix('=') {
-        return Content::Formula(parse(formula));
+        // Columns count from the `=` the user typed.
+        return Content::Formula(parse(formula).map_err(|e| ParseError { pos: e.pos + 1, ..e }));
     }
     if let Some(text) = input.strip_prefix('\'') {
         return Content::Constant(Value::Text(String::from(text)));

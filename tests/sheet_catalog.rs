@@ -1,0 +1,100 @@
+//! Every catalog entry's worked example evaluates to its stated value, and the
+//! catalog JSON describes every entry.
+
+use loopwright::sheet::functions::{all, catalog_json, Expected};
+use loopwright::sheet::{CellRef, Sheet, Value};
+
+/// Relative tolerance for stated example values: they are written to 16
+/// significant digits (or exactly), so only the last-digit rounding may differ.
+const EXAMPLE_RTOL: f64 = 1e-13;
+
+fn as_number(v: &Value) -> Option<f64> {
+    match v {
+        Value::Number(x, _) => Some(*x),
+        Value::Bool(b) => Some(f64::from(u8::from(*b))),
+        _ => None,
+    }
+}
+
+#[test]
+fn every_example_gives_its_stated_value() {
+    let mut count = 0;
+    for f in all() {
+        let mut s = Sheet::new();
+        s.set("A1", f.example.formula).unwrap();
+        let origin = CellRef::parse("A1").unwrap();
+        match f.example.expected {
+            Expected::Numbers(xs) => {
+                if xs.len() > 1 {
+                    let r = s.spill_range(origin).unwrap_or_else(|| panic!("{}: no spill", f.name));
+                    assert_eq!(r.area(), xs.len() as u64, "{}", f.name);
+                    assert_eq!(f.spill.len(), xs.len(), "{}: spill descriptions", f.name);
+                }
+                for (i, want) in xs.iter().enumerate() {
+                    let c = origin.offset(0, i as u32).unwrap();
+                    let got = s.shown(c);
+                    let got = as_number(&got).unwrap_or_else(|| panic!("{} item {i}: {got:?}", f.name));
+                    let tol = EXAMPLE_RTOL * want.abs().max(f64::MIN_POSITIVE);
+                    assert!((got - want).abs() <= tol, "{} item {i}: got {got:e}, stated {want:e}", f.name);
+                }
+            }
+            Expected::Bool(b) => assert_eq!(s.shown(origin), Value::Bool(b), "{}", f.name),
+            Expected::Text(t) => assert_eq!(s.shown(origin), Value::Text(t.into()), "{}", f.name),
+        }
+        count += 1;
+    }
+    assert!(count >= 30, "only {count} functions");
+}
+
+#[test]
+fn catalog_json_lists_every_function_with_its_parts() {
+    let v: serde_json::Value = serde_json::from_str(&catalog_json()).unwrap();
+    assert_eq!(v["format"], "loopwright-functions");
+    let list = v["functions"].as_array().unwrap();
+    assert_eq!(list.len(), all().count());
+    for (entry, f) in list.iter().zip(all()) {
+        assert_eq!(entry["name"], f.name);
+        assert_eq!(entry["params"].as_array().unwrap().len(), f.params.len());
+        assert_eq!(entry["example"]["formula"], f.example.formula);
+        assert_eq!(entry["resultUnit"], f.result_unit);
+    }
+    let round = list.iter().find(|e| e["name"] == "ROUND").unwrap();
+    assert_eq!(round["params"][1]["default"], 0.0);
+    assert_eq!(round["params"][1]["optional"], true);
+}
+
+#[test]
+fn the_required_functions_are_present() {
+    for name in [
+        "SUM", "MIN", "MAX", "AVERAGE", "ABS", "SQRT", "EXP", "LN", "LOG10", "PI", "IF", "AND", "OR", "NOT", "ROUND",
+        "DB.VOLTAGE", "DB.POWER", "DB.VOLTAGERATIO", "DB.POWERRATIO", "FB.GAIN", "FB.LOOPGAIN", "FB.AMOUNT",
+        "FB.AMOUNTDB", "FB.SENSITIVITY", "FB.BETA", "FB.MINGAIN", "FB.CEILING", "FB.SPREAD", "FB.ZIN", "FB.ZOUT",
+        "FB.PHASOR", "FB.SUMMARY",
+    ] {
+        assert!(all().any(|f| f.name == name), "{name}");
+    }
+}
+
+#[test]
+fn feedback_functions_agree_with_the_core() {
+    // The worksheet is a thin layer: the same inputs give the same f64 as the core.
+    use loopwright::feedback as fb;
+    let mut s = Sheet::new();
+    s.set("A1", "=FB.GAIN(2e4; 0.05)").unwrap();
+    s.set("A2", "=FB.BETA(-2e4; -10)").unwrap();
+    s.set("A3", "=FB.ZOUT(\"shunt-series\"; 50; 990; 0.1)").unwrap();
+    assert_eq!(as_number(&s.value("A1").unwrap()), Some(fb::closed_loop_gain(2e4, 0.05).unwrap()));
+    assert_eq!(as_number(&s.value("A2").unwrap()), Some(fb::beta_for_gain(-2e4, -10.0).unwrap()));
+    let (_, rout) = fb::resistances_with_feedback(fb::Topology::ShuntSeries, 0.0, 50.0, 990.0, 0.1).unwrap();
+    assert_eq!(as_number(&s.value("A3").unwrap()), Some(rout));
+    // Core errors arrive as error values carrying the core's sentence.
+    s.set("A4", "=FB.GAIN(-50; 0.02)").unwrap();
+    match s.value("A4").unwrap() {
+        Value::Error(e) => assert!(e.detail.starts_with("FB.GAIN: beta: the return difference"), "{}", e.detail),
+        v => panic!("{v:?}"),
+    }
+    s.set("A5", "=FB.ZIN(\"sideways\"; 1; 2; 3)").unwrap();
+    assert_eq!(s.value("A5").unwrap().display(), "#VALUE!");
+    s.set("A6", "=FB.SUMMARY(\"voltage\"; 1000; 0)").unwrap();
+    assert_eq!(s.shown(CellRef::parse("F6").unwrap()).display(), "#N/A");
+}
