@@ -120,7 +120,7 @@ fn unit_words() {
 #[test]
 fn malformed_literals_are_refused_not_guessed() {
     for bad in ["1Meg", "1kdB", "1k dB", "4k7k", "1x", "2.2.2", "1e", "1e99999"] {
-        assert!(scan(bad).map(|(_, n)| n == bad.len()).unwrap_or(false) == false, "{bad}");
+        assert!(!scan(bad).map(|(_, n)| n == bad.len()).unwrap_or(false), "{bad}");
         assert!(parse_cell_number(bad).is_none(), "{bad}");
     }
     let mut s = Sheet::new();

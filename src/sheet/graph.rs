@@ -3,8 +3,10 @@
 //!
 //! A formula's precedents are the cells and ranges it names (names resolved to
 //! their cells). The reverse index maps a cell to the formulas naming it
-//! directly; formulas reading ranges are kept apart and tested by containment,
-//! so a large range costs no index entries. Ordering uses Tarjan's strongly
+//! directly, and each block of [`BLOCK_ROWS`] rows of one column to the formulas
+//! reading a range that overlaps it; a range covering more than
+//! [`MAX_BLOCKS_PER_RANGE`] blocks goes on a short list that is tested by
+//! containment instead, so a huge range costs no index entries. Ordering uses Tarjan's strongly
 //! connected components (R. Tarjan, "Depth-first search and linear graph
 //! algorithms", SIAM J. Computing 1(2), 1972), written without recursion so
 //! that a long chain of cells cannot overflow the stack; a component of more
@@ -23,12 +25,31 @@ pub enum Dep {
     Range(Range),
 }
 
+/// Rows per block of the range index.
+pub const BLOCK_ROWS: u32 = 64;
+/// Ranges covering more blocks than this are tested one by one instead.
+pub const MAX_BLOCKS_PER_RANGE: u64 = 256;
+
 /// Precedents of every formula cell and the reverse index.
 #[derive(Debug, Default, Clone)]
 pub struct Graph {
     precedents: BTreeMap<CellRef, Vec<Dep>>,
     readers: BTreeMap<CellRef, BTreeSet<CellRef>>,
+    /// Reader → every range it reads.
     range_readers: BTreeMap<CellRef, Vec<Range>>,
+    /// (column, row block) → readers of a range overlapping that block.
+    blocks: BTreeMap<(u32, u32), Vec<CellRef>>,
+    /// Readers of a range too large for the block index.
+    wide_readers: BTreeSet<CellRef>,
+}
+
+fn block_count(r: &Range) -> u64 {
+    u64::from(r.cols()) * u64::from(r.end.row / BLOCK_ROWS - r.start.row / BLOCK_ROWS + 1)
+}
+
+fn blocks_of(r: Range) -> impl Iterator<Item = (u32, u32)> {
+    (r.start.col..=r.end.col)
+        .flat_map(move |col| (r.start.row / BLOCK_ROWS..=r.end.row / BLOCK_ROWS).map(move |b| (col, b)))
 }
 
 impl Graph {
@@ -45,6 +66,18 @@ impl Graph {
                     self.readers.entry(c).or_default().insert(cell);
                 }
                 Dep::Range(r) => ranges.push(r),
+            }
+        }
+        for r in &ranges {
+            if block_count(r) > MAX_BLOCKS_PER_RANGE {
+                self.wide_readers.insert(cell);
+                continue;
+            }
+            for key in blocks_of(*r) {
+                let list = self.blocks.entry(key).or_default();
+                if list.last() != Some(&cell) {
+                    list.push(cell);
+                }
             }
         }
         if !ranges.is_empty() {
@@ -66,7 +99,19 @@ impl Graph {
                 }
             }
         }
-        self.range_readers.remove(&cell);
+        if let Some(ranges) = self.range_readers.remove(&cell) {
+            for r in ranges.iter().filter(|r| block_count(r) <= MAX_BLOCKS_PER_RANGE) {
+                for key in blocks_of(*r) {
+                    if let Some(list) = self.blocks.get_mut(&key) {
+                        list.retain(|x| *x != cell);
+                        if list.is_empty() {
+                            self.blocks.remove(&key);
+                        }
+                    }
+                }
+            }
+            self.wide_readers.remove(&cell);
+        }
     }
 
     /// Forget everything.
@@ -84,21 +129,36 @@ impl Graph {
         if let Some(set) = self.readers.get(&cell) {
             set.iter().copied().for_each(&mut f);
         }
-        for (reader, ranges) in &self.range_readers {
-            if ranges.iter().any(|r| r.contains(cell)) {
-                f(*reader);
-            }
+        let reads = |reader: &CellRef| self.range_readers.get(reader).is_some_and(|rs| rs.iter().any(|r| r.contains(cell)));
+        // A reader appears at most once per block list (see `set`).
+        let listed = self.blocks.get(&(cell.col, cell.row / BLOCK_ROWS)).map_or(&[][..], Vec::as_slice);
+        listed.iter().filter(|r| reads(r)).copied().for_each(&mut f);
+        for reader in self.wide_readers.iter().filter(|r| reads(r) && !listed.contains(r)) {
+            f(*reader);
         }
     }
 }
 
-/// Evaluation order of `nodes` given, for node `i`, the nodes it reads
-/// (`edges(i)` as indices into `nodes`): every node comes after the nodes it
-/// reads, except inside circular references. Returns the order (indices) and,
-/// per node, whether it lies on a circular reference.
-pub fn order(n: usize, edges: impl Fn(usize) -> Vec<usize>) -> (Vec<usize>, Vec<bool>) {
+/// Evaluation order of `n` nodes given, for node `i`, the nodes it reads
+/// (`edges(i, out)` pushes their indices onto `out`): every node comes after the
+/// nodes it reads, except inside circular references. Returns the order
+/// (indices) and, per node, whether it lies on a circular reference.
+pub fn order(n: usize, edges: impl Fn(usize, &mut Vec<usize>)) -> (Vec<usize>, Vec<bool>) {
     const UNSEEN: usize = usize::MAX;
-    let adj: Vec<Vec<usize>> = (0..n).map(&edges).collect();
+    // Adjacency in one flat buffer: the targets of i are targets[start[i]..start[i + 1]].
+    let mut start = Vec::with_capacity(n + 1);
+    let mut targets = Vec::new();
+    for i in 0..n {
+        start.push(targets.len());
+        edges(i, &mut targets);
+    }
+    start.push(targets.len());
+    let adj = |v: usize| -> &[usize] {
+        match (start.get(v), start.get(v + 1)) {
+            (Some(&a), Some(&b)) => targets.get(a..b).unwrap_or(&[]),
+            _ => &[],
+        }
+    };
     let mut index = alloc::vec![UNSEEN; n];
     let mut low = alloc::vec![0usize; n];
     let mut on_stack = alloc::vec![false; n];
@@ -118,8 +178,7 @@ pub fn order(n: usize, edges: impl Fn(usize) -> Vec<usize>) -> (Vec<usize>, Vec<
         on_stack[root] = true;
         calls.push((root, 0));
         while let Some(&mut (v, ref mut next_edge)) = calls.last_mut() {
-            let targets = adj.get(v).map_or(&[][..], Vec::as_slice);
-            if let Some(&w) = targets.get(*next_edge) {
+            if let Some(&w) = adj(v).get(*next_edge) {
                 *next_edge += 1;
                 if w >= n {
                     continue;
@@ -186,10 +245,31 @@ mod tests {
     }
 
     #[test]
+    fn block_index_matches_a_scan() {
+        // Reference: the readers found by testing every range of every reader.
+        let mut g = Graph::default();
+        let ranges = ["A1:A10", "A60:B70", "A1:A1048576", "C100:C100", "A1:XFD3", "B2:D200", "A63:A64"];
+        for (i, r) in ranges.iter().enumerate() {
+            let reader = CellRef::new(i as u32, 20).unwrap();
+            g.set(reader, alloc::vec![Dep::Range(Range::parse(r).unwrap()), Dep::Range(Range::parse("A5:A6").unwrap())]);
+        }
+        g.set(CellRef::new(3, 20).unwrap(), alloc::vec![]);
+        for probe in ["A1", "A5", "A64", "A65", "B70", "C100", "D150", "Q2", "A1000000", "E5", "XFD1"] {
+            let cell = c(probe);
+            let mut fast = Vec::new();
+            g.readers_of(cell, |r| fast.push(r));
+            fast.sort_unstable();
+            let mut slow: Vec<CellRef> = g.range_readers.iter().filter(|(_, rs)| rs.iter().any(|r| r.contains(cell))).map(|(k, _)| *k).collect();
+            slow.sort_unstable();
+            assert_eq!(fast, slow, "{probe}");
+        }
+    }
+
+    #[test]
     fn order_puts_precedents_first_and_finds_cycles() {
         // 0 reads 1, 1 reads 2, 3 reads 4 and 4 reads 3, 5 reads itself, 6 reads 3.
         let reads = [alloc::vec![1], alloc::vec![2], alloc::vec![], alloc::vec![4], alloc::vec![3], alloc::vec![5], alloc::vec![3]];
-        let (ord, cyc) = order(reads.len(), |i| reads[i].clone());
+        let (ord, cyc) = order(reads.len(), |i, out| out.extend(&reads[i]));
         let pos = |i: usize| ord.iter().position(|&x| x == i).unwrap();
         assert_eq!(ord.len(), 7);
         assert!(pos(2) < pos(1) && pos(1) < pos(0));
@@ -200,7 +280,11 @@ mod tests {
     #[test]
     fn a_long_chain_does_not_recurse() {
         let n = 200_000;
-        let (ord, cyc) = order(n, |i| if i + 1 < n { alloc::vec![i + 1] } else { alloc::vec![] });
+        let (ord, cyc) = order(n, |i, out| {
+            if i + 1 < n {
+                out.push(i + 1);
+            }
+        });
         assert_eq!(ord[0], n - 1);
         assert!(!cyc.iter().any(|&b| b));
     }

@@ -125,8 +125,16 @@ pub fn cell_ref(address: &str) -> Result<CellRef> {
     CellRef::parse(address.trim()).ok_or_else(bad_cell)
 }
 
+/// Shown values before a recalculation, to report what changed; `None` when
+/// nothing needs reporting (a freshly loaded sheet).
 struct Recalc {
-    old: BTreeMap<CellRef, Value>,
+    old: Option<BTreeMap<CellRef, Value>>,
+}
+
+impl Recalc {
+    fn tracking() -> Recalc {
+        Recalc { old: Some(BTreeMap::new()) }
+    }
 }
 
 impl Context for Sheet {
@@ -247,7 +255,7 @@ impl Sheet {
         if self.cells.len() + added > MAX_CELLS {
             return Err(Error::TooLarge { param: "cells", limit: MAX_CELLS as u64 });
         }
-        let mut rc = Recalc { old: BTreeMap::new() };
+        let mut rc = Recalc::tracking();
         let mut seeds = BTreeSet::new();
         for &(c, input) in edits {
             self.record(&mut rc, c);
@@ -326,7 +334,9 @@ impl Sheet {
             }
             fresh.put_input(*c, input);
         }
-        fresh.rebuild_all();
+        // Names were set first, so the graph built by put_input is complete.
+        let everything: BTreeSet<CellRef> = fresh.cells.keys().copied().collect();
+        fresh.run(everything, &mut Recalc { old: None });
         let mut changed: BTreeSet<CellRef> = self.cells.keys().copied().collect();
         changed.extend(self.owner.keys().copied());
         changed.extend(fresh.cells.keys().copied());
@@ -337,7 +347,20 @@ impl Sheet {
     }
 
     fn record(&self, rc: &mut Recalc, c: CellRef) {
-        rc.old.entry(c).or_insert_with(|| self.shown(c));
+        if let Some(old) = rc.old.as_mut() {
+            old.entry(c).or_insert_with(|| self.shown(c));
+        }
+    }
+
+    /// Re-evaluate every cell (without re-reading inputs); returns the cells
+    /// whose shown value changed, which is none unless a previous edit was
+    /// interrupted by a limit.
+    pub fn recalculate_all(&mut self) -> &[CellRef] {
+        let mut rc = Recalc::tracking();
+        let everything: BTreeSet<CellRef> = self.cells.keys().copied().collect();
+        self.run(everything, &mut rc);
+        self.finish(rc);
+        &self.changed
     }
 
     fn deps_of(&self, e: &Expr) -> Vec<Dep> {
@@ -375,7 +398,7 @@ impl Sheet {
     }
 
     fn rebuild_all(&mut self) {
-        let mut rc = Recalc { old: BTreeMap::new() };
+        let mut rc = Recalc::tracking();
         self.graph.clear();
         let cells: Vec<CellRef> = self.cells.keys().copied().collect();
         for c in &cells {
@@ -416,15 +439,18 @@ impl Sheet {
 
     /// The pending cells that `c` reads (directly, or as the anchor of a spill
     /// covering what it reads), as indices into `nodes`.
-    fn pending_precedents(&self, c: CellRef, index: &BTreeMap<CellRef, usize>) -> Vec<usize> {
-        let mut out = Vec::new();
+    fn pending_precedents(&self, c: CellRef, nodes: &[CellRef], out: &mut Vec<usize>) {
+        let from = out.len();
+        let check_owner = !self.owner.is_empty();
         let mut see = |x: CellRef| {
-            if let Some(&i) = index.get(&x) {
+            if let Ok(i) = nodes.binary_search(&x) {
                 out.push(i);
             }
-            if let Some(a) = self.owner.get(&x) {
-                if let Some(&i) = index.get(a) {
-                    out.push(i);
+            if check_owner {
+                if let Some(a) = self.owner.get(&x) {
+                    if let Ok(i) = nodes.binary_search(a) {
+                        out.push(i);
+                    }
                 }
             }
         };
@@ -435,17 +461,20 @@ impl Sheet {
                 Dep::Range(_) => {}
             }
         }
-        out.sort_unstable();
-        out.dedup();
-        out
+        if let Some(mine) = out.get_mut(from..) {
+            mine.sort_unstable();
+        }
+        // Duplicates only repeat an edge; the ordering does not mind them.
     }
 
     fn run(&mut self, mut pending: BTreeSet<CellRef>, rc: &mut Recalc) {
         for pass in 0..=MAX_SPILL_PASSES {
+            // Sorted, since it comes from a set: indices are found by binary search.
             let nodes: Vec<CellRef> = pending.iter().copied().collect();
-            let index: BTreeMap<CellRef, usize> = nodes.iter().enumerate().map(|(i, c)| (*c, i)).collect();
-            let (ord, cyclic) = order(nodes.len(), |i| {
-                nodes.get(i).map_or_else(Vec::new, |c| self.pending_precedents(*c, &index))
+            let (ord, cyclic) = order(nodes.len(), |i, out| {
+                if let Some(c) = nodes.get(i) {
+                    self.pending_precedents(*c, &nodes, out);
+                }
             });
             let mut again = BTreeSet::new();
             for i in ord {
@@ -536,7 +565,8 @@ impl Sheet {
     }
 
     fn finish(&mut self, rc: Recalc) {
-        self.changed = rc.old.into_iter().filter(|(c, old)| *old != self.shown(*c)).map(|(c, _)| c).collect();
+        let old = rc.old.unwrap_or_default();
+        self.changed = old.into_iter().filter(|(c, old)| *old != self.shown(*c)).map(|(c, _)| c).collect();
     }
 }
 

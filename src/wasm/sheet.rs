@@ -139,6 +139,11 @@ impl Worksheet {
         to_js(&rows)
     }
 
+    /// Re-evaluate every cell; returns the changed addresses (normally none).
+    pub fn recalculate(&mut self) -> js_sys::Array {
+        addresses(self.sheet.recalculate_all())
+    }
+
     /// A cell's input, or `undefined`.
     pub fn input(&self, address: &str) -> Result<Option<String>, JsValue> {
         Ok(self.sheet.input(cell(address)?).map(String::from))
