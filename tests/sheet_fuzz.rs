@@ -137,3 +137,41 @@ fn huge_ranges_and_spills_are_refused_not_computed() {
     s.set("XFD5", "=FB.CEILING(10; 2)").unwrap();
     assert!(matches!(s.shown(CellRef::parse("XFD5").unwrap()), Value::Error(e) if e.kind == ErrorKind::Blocked));
 }
+
+/// Inputs for A1 that spill over neighbours of the 3×3 block (or are blocked by
+/// them, or read what they cover). Only A1 spills, so no two spills compete.
+const SPILLERS: &[&str] = &[
+    "=FB.CEILING(A2*1000+1000; 100)",
+    "=B2:C3*2",
+    "=A2:A3+1",
+    "=FB.SUMMARY(\"series-shunt\"; 1000; B3)",
+    "=FB.PHASOR(100; B2; 0.01; 0)",
+    "7",
+];
+
+proptest! {
+    #![proptest_config(config(150))]
+
+    #[test]
+    fn incremental_recalculation_with_a_spill_matches_a_fresh_load(
+        edits in prop::collection::vec(prop_oneof![
+            (1usize..9, formula().prop_map(|f| format!("={f}"))),
+            (1usize..9, (-9i32..9).prop_map(|n| n.to_string())),
+            (1usize..9, Just(String::new())),
+            (0usize..1, prop::sample::select(SPILLERS).prop_map(String::from)),
+        ], 1..25),
+    ) {
+        let mut s = Sheet::new();
+        for (cell, input) in &edits {
+            s.set(CELLS[*cell], input).unwrap();
+        }
+        let mut fresh = Sheet::new();
+        fresh.load_document(&s.save_document()).unwrap();
+        for row in 0..6u32 {
+            for col in 0..8u32 {
+                let c = CellRef::new(row, col).unwrap();
+                prop_assert_eq!(s.shown(c), fresh.shown(c), "cell {} after {:?}", c, edits);
+            }
+        }
+    }
+}

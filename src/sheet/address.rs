@@ -158,9 +158,17 @@ impl Range {
         c.row >= self.start.row && c.row <= self.end.row && c.col >= self.start.col && c.col <= self.end.col
     }
 
+    /// Whether the two rectangles share a cell.
+    pub const fn intersects(&self, other: &Range) -> bool {
+        self.start.row <= other.end.row
+            && other.start.row <= self.end.row
+            && self.start.col <= other.end.col
+            && other.start.col <= self.end.col
+    }
+
     /// The cells row by row.
-    pub fn cells(&self) -> impl Iterator<Item = CellRef> + '_ {
-        let r = *self;
+    pub fn cells(self) -> impl Iterator<Item = CellRef> {
+        let r = self;
         (r.start.row..=r.end.row).flat_map(move |row| (r.start.col..=r.end.col).map(move |col| CellRef { row, col }))
     }
 }
@@ -201,5 +209,7 @@ mod tests {
         assert_eq!(r.cells().count(), 12);
         assert!(r.contains(CellRef::parse("B2").unwrap()));
         assert!(!r.contains(CellRef::parse("D2").unwrap()));
+        assert!(r.intersects(&Range::parse("C4:D9").unwrap()));
+        assert!(!r.intersects(&Range::parse("D1:D9").unwrap()));
     }
 }

@@ -29,10 +29,20 @@ use alloc::string::String;
 use alloc::vec::Vec;
 use core::cmp::Ordering;
 
-/// Largest range (in cells) a formula may read, and largest array it may build.
+/// Most cells one formula may read through ranges (all its ranges together),
+/// which also bounds the size of any array it builds.
 pub const MAX_RANGE_CELLS: u64 = 100_000;
 /// Longest text a formula may build, in bytes.
 pub const MAX_TEXT_BYTES: usize = 32_768;
+/// Most text bytes one formula may build in all (an array of joined texts).
+pub const MAX_TOTAL_TEXT_BYTES: usize = 1 << 20;
+
+/// The sheet plus what this evaluation has used of its budgets.
+struct Eval<'a> {
+    ctx: &'a dyn Context,
+    cells_read: core::cell::Cell<u64>,
+    text_bytes: core::cell::Cell<usize>,
+}
 
 /// What evaluation needs from the sheet.
 pub trait Context {
@@ -45,43 +55,50 @@ pub trait Context {
 /// Evaluate a formula's tree: the value the cell holds. An empty result (a
 /// reference to an empty cell) is 0.
 pub fn evaluate(e: &Expr, ctx: &dyn Context) -> Value {
-    match eval(e, ctx) {
+    let ev = Eval { ctx, cells_read: core::cell::Cell::new(0), text_bytes: core::cell::Cell::new(0) };
+    match eval(e, &ev) {
         Value::Empty => Value::Number(0.0, None),
         Value::Array(a) if a.rows() == 1 && a.cols() == 1 => a.get(0, 0),
         v => v,
     }
 }
 
-fn eval(e: &Expr, ctx: &dyn Context) -> Value {
+fn eval(e: &Expr, ev: &Eval<'_>) -> Value {
+    let ctx = ev.ctx;
     match e {
         Expr::Number(x, u) => Value::Number(*x, *u),
         Expr::Text(s) => Value::Text(s.clone()),
         Expr::Bool(b) => Value::Bool(*b),
         Expr::Error(k) => Value::Error(CellError::new(*k, "")),
         Expr::Cell(c) => ctx.cell(*c),
-        Expr::Range(r) => range(*r, ctx),
+        Expr::Range(r) => range(*r, ev),
         Expr::Name(n) => match ctx.name(n) {
             Some(c) => ctx.cell(c),
             None => Value::error(ErrorKind::Name, format!("no cell is named {n}")),
         },
         Expr::Missing => Value::Empty,
-        Expr::Plus(x) => eval(x, ctx),
-        Expr::Neg(x) => lift1(eval(x, ctx), |x, u| Ok(Value::Number(-x, u))),
-        Expr::Percent(x) => lift1(eval(x, ctx), |x, _| Ok(Value::num(x / 100.0))),
+        Expr::Plus(x) => eval(x, ev),
+        Expr::Neg(x) => lift1(eval(x, ev), |x, u| Ok(Value::Number(-x, u))),
+        Expr::Percent(x) => lift1(eval(x, ev), |x, _| Ok(Value::num(x / 100.0))),
         Expr::Binary(op, a, b) => {
-            let (a, b) = (eval(a, ctx), eval(b, ctx));
-            lift2(a, b, |a, b| binary(*op, a, b))
+            let (a, b) = (eval(a, ev), eval(b, ev));
+            lift2(a, b, |a, b| binary(*op, a, b, ev))
         }
-        Expr::Call(spec, args) => call(spec, args, ctx),
+        Expr::Call(spec, args) => call(spec, args, ev),
         Expr::UnknownCall(name, _) => Value::error(ErrorKind::Name, format!("no function is named {name}")),
     }
 }
 
-fn range(r: Range, ctx: &dyn Context) -> Value {
+fn range(r: Range, ev: &Eval<'_>) -> Value {
     if r.area() > MAX_RANGE_CELLS {
         return Value::error(ErrorKind::Ref, format!("the range {r} has more than {MAX_RANGE_CELLS} cells"));
     }
-    let items: Vec<Value> = r.cells().map(|c| ctx.cell(c)).collect();
+    let used = ev.cells_read.get() + r.area();
+    if used > MAX_RANGE_CELLS {
+        return Value::error(ErrorKind::Ref, format!("the formula reads more than {MAX_RANGE_CELLS} cells through ranges"));
+    }
+    ev.cells_read.set(used);
+    let items: Vec<Value> = r.cells().map(|c| ev.ctx.cell(c)).collect();
     Array::new(r.rows(), r.cols(), items).map_or_else(|| Value::error(ErrorKind::Ref, "empty range"), Value::Array)
 }
 
@@ -188,14 +205,14 @@ fn compare(a: &Value, b: &Value) -> Result<Ordering, CellError> {
     }
 }
 
-fn binary(op: BinOp, a: &Value, b: &Value) -> Value {
-    match binary_inner(op, a, b) {
+fn binary(op: BinOp, a: &Value, b: &Value, ev: &Eval<'_>) -> Value {
+    match binary_inner(op, a, b, ev) {
         Ok(v) => v,
         Err(e) => Value::Error(e),
     }
 }
 
-fn binary_inner(op: BinOp, a: &Value, b: &Value) -> Result<Value, CellError> {
+fn binary_inner(op: BinOp, a: &Value, b: &Value, ev: &Eval<'_>) -> Result<Value, CellError> {
     let cmp = |pred: fn(Ordering) -> bool| compare(a, b).map(|o| Value::Bool(pred(o)));
     match op {
         BinOp::Eq => return cmp(|o| o == Ordering::Equal),
@@ -209,6 +226,11 @@ fn binary_inner(op: BinOp, a: &Value, b: &Value) -> Result<Value, CellError> {
             if x.len() + y.len() > MAX_TEXT_BYTES {
                 return Err(CellError::new(ErrorKind::Value, "the text would be longer than 32768 bytes"));
             }
+            let total = ev.text_bytes.get() + x.len() + y.len();
+            if total > MAX_TOTAL_TEXT_BYTES {
+                return Err(CellError::new(ErrorKind::Value, "the formula builds more than 1 MiB of text"));
+            }
+            ev.text_bytes.set(total);
             return Ok(Value::Text(x + &y));
         }
         _ => {}
@@ -241,7 +263,7 @@ fn binary_inner(op: BinOp, a: &Value, b: &Value) -> Result<Value, CellError> {
     }
 }
 
-fn call(spec: &'static FunctionSpec, args: &[Expr], ctx: &dyn Context) -> Value {
+fn call(spec: &'static FunctionSpec, args: &[Expr], ev: &Eval<'_>) -> Value {
     let n = args.len();
     if n < spec.required() || n > spec.max_args() {
         let count = if spec.repeats {
@@ -254,13 +276,13 @@ fn call(spec: &'static FunctionSpec, args: &[Expr], ctx: &dyn Context) -> Value 
         return Value::error(ErrorKind::Value, format!("{} takes {count} arguments, not {n}", spec.name));
     }
     if spec.name == "IF" {
-        return lazy_if(spec, args, ctx);
+        return lazy_if(spec, args, ev);
     }
     let mut values = Vec::with_capacity(n.max(spec.params.len()));
     for (i, arg) in args.iter().enumerate() {
         let v = match (arg, spec.param(i).and_then(|p| p.default)) {
             (Expr::Missing, Some(d)) => Value::Number(d, None),
-            _ => eval(arg, ctx),
+            _ => eval(arg, ev),
         };
         if let Some(e) = unit_mismatch(spec, i, &v) {
             return Value::Error(e);
@@ -275,12 +297,12 @@ fn call(spec: &'static FunctionSpec, args: &[Expr], ctx: &dyn Context) -> Value 
     (spec.eval)(&Args { spec, values: &values })
 }
 
-fn lazy_if(spec: &'static FunctionSpec, args: &[Expr], ctx: &dyn Context) -> Value {
-    let cond = [eval(args.first().unwrap_or(&Expr::Missing), ctx)];
+fn lazy_if(spec: &'static FunctionSpec, args: &[Expr], ev: &Eval<'_>) -> Value {
+    let cond = [eval(args.first().unwrap_or(&Expr::Missing), ev)];
     match (Args { spec, values: &cond }).boolean(0) {
-        Ok(true) => eval(args.get(1).unwrap_or(&Expr::Missing), ctx),
+        Ok(true) => eval(args.get(1).unwrap_or(&Expr::Missing), ev),
         Ok(false) => match args.get(2) {
-            Some(e) => eval(e, ctx),
+            Some(e) => eval(e, ev),
             None => Value::Bool(false),
         },
         Err(e) => Value::Error(e),
@@ -343,8 +365,29 @@ mod tests {
     }
 
     #[test]
+    fn budgets_bound_work_and_memory() {
+        // Each range alone is within the limit; together they are not.
+        assert_eq!(kind("SUM(A1:A60000; B1:B60000)"), ErrorKind::Ref);
+        assert_eq!(ev("SUM(A1:A50000; B1:B50000)"), Value::num(0.0));
+        // 100 joined texts of 20 000 bytes each would be 2 MB; the later items
+        // become #VALUE! once the formula has built 1 MiB.
+        struct Long;
+        impl Context for Long {
+            fn cell(&self, _: CellRef) -> Value {
+                Value::Text("z".repeat(20_000))
+            }
+            fn name(&self, _: &str) -> Option<CellRef> {
+                None
+            }
+        }
+        let Value::Array(a) = evaluate(&parse("A1:A100&\"!\"").unwrap(), &Long) else { panic!() };
+        assert!(matches!(a.get(0, 0), Value::Text(t) if t.len() == 20_001));
+        assert!(matches!(a.get(99, 0), Value::Error(e) if e.kind == ErrorKind::Value));
+    }
+
+    #[test]
     fn arrays_apply_item_by_item() {
-        let Value::Array(a) = eval(&parse("FB.CEILING(100k; 100) * 2").unwrap(), &Empty) else { panic!() };
+        let Value::Array(a) = evaluate(&parse("FB.CEILING(100k; 100) * 2").unwrap(), &Empty) else { panic!() };
         assert_eq!(a.get(0, 0), Value::num(2000.0));
         assert_eq!(a.get(0, 1), Value::num(0.00198));
     }

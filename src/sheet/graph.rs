@@ -142,8 +142,10 @@ impl Graph {
 /// Evaluation order of `n` nodes given, for node `i`, the nodes it reads
 /// (`edges(i, out)` pushes their indices onto `out`): every node comes after the
 /// nodes it reads, except inside circular references. Returns the order
-/// (indices) and, per node, whether it lies on a circular reference.
-pub fn order(n: usize, edges: impl Fn(usize, &mut Vec<usize>)) -> (Vec<usize>, Vec<bool>) {
+/// (indices), per node whether it lies on a circular reference, and per node the
+/// number of its strongly connected component (components are numbered in
+/// the order they appear in the returned order, which keeps each one together).
+pub fn order(n: usize, edges: impl Fn(usize, &mut Vec<usize>)) -> (Vec<usize>, Vec<bool>, Vec<usize>) {
     const UNSEEN: usize = usize::MAX;
     // Adjacency in one flat buffer: the targets of i are targets[start[i]..start[i + 1]].
     let mut start = Vec::with_capacity(n + 1);
@@ -163,6 +165,8 @@ pub fn order(n: usize, edges: impl Fn(usize, &mut Vec<usize>)) -> (Vec<usize>, V
     let mut low = alloc::vec![0usize; n];
     let mut on_stack = alloc::vec![false; n];
     let mut cyclic = alloc::vec![false; n];
+    let mut component_of = alloc::vec![0usize; n];
+    let mut components = 0;
     let mut stack: Vec<usize> = Vec::new();
     let mut out = Vec::with_capacity(n);
     let mut counter = 0;
@@ -214,11 +218,13 @@ pub fn order(n: usize, edges: impl Fn(usize, &mut Vec<usize>)) -> (Vec<usize>, V
                 if component.len() > 1 {
                     component.iter().for_each(|&w| cyclic[w] = true);
                 }
+                component.iter().for_each(|&w| component_of[w] = components);
+                components += 1;
                 out.extend(component);
             }
         }
     }
-    (out, cyclic)
+    (out, cyclic, component_of)
 }
 
 #[cfg(test)]
@@ -269,7 +275,9 @@ mod tests {
     fn order_puts_precedents_first_and_finds_cycles() {
         // 0 reads 1, 1 reads 2, 3 reads 4 and 4 reads 3, 5 reads itself, 6 reads 3.
         let reads = [alloc::vec![1], alloc::vec![2], alloc::vec![], alloc::vec![4], alloc::vec![3], alloc::vec![5], alloc::vec![3]];
-        let (ord, cyc) = order(reads.len(), |i, out| out.extend(&reads[i]));
+        let (ord, cyc, comp) = order(reads.len(), |i, out| out.extend(&reads[i]));
+        assert_eq!(comp[3], comp[4]);
+        assert_ne!(comp[3], comp[6]);
         let pos = |i: usize| ord.iter().position(|&x| x == i).unwrap();
         assert_eq!(ord.len(), 7);
         assert!(pos(2) < pos(1) && pos(1) < pos(0));
@@ -280,7 +288,7 @@ mod tests {
     #[test]
     fn a_long_chain_does_not_recurse() {
         let n = 200_000;
-        let (ord, cyc) = order(n, |i, out| {
+        let (ord, cyc, _) = order(n, |i, out| {
             if i + 1 < n {
                 out.push(i + 1);
             }

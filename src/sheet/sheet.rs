@@ -42,7 +42,7 @@ pub const MAX_NAMES: usize = 10_000;
 /// Longest cell name.
 pub const MAX_NAME_CHARS: usize = 64;
 /// Recalculation passes allowed for spills that change what other formulas read.
-pub const MAX_SPILL_PASSES: usize = 8;
+pub const MAX_SPILL_PASSES: usize = 32;
 
 #[derive(Debug, Clone)]
 enum Content {
@@ -439,25 +439,34 @@ impl Sheet {
 
     /// The pending cells that `c` reads (directly, or as the anchor of a spill
     /// covering what it reads), as indices into `nodes`.
-    fn pending_precedents(&self, c: CellRef, nodes: &[CellRef], out: &mut Vec<usize>) {
+    fn pending_precedents(&self, c: CellRef, nodes: &[CellRef], out: &mut Vec<usize>, spills: bool) {
         let from = out.len();
-        let check_owner = !self.owner.is_empty();
-        let mut see = |x: CellRef| {
+        let see = |x: CellRef, out: &mut Vec<usize>| {
             if let Ok(i) = nodes.binary_search(&x) {
                 out.push(i);
             }
-            if check_owner {
-                if let Some(a) = self.owner.get(&x) {
-                    if let Ok(i) = nodes.binary_search(a) {
-                        out.push(i);
-                    }
+            if let Some(a) = self.owner.get(&x).filter(|a| spills && **a != c) {
+                if let Ok(i) = nodes.binary_search(a) {
+                    out.push(i);
                 }
             }
         };
         for d in self.graph.precedents(c) {
             match *d {
-                Dep::Cell(x) => see(x),
-                Dep::Range(r) if r.area() <= MAX_RANGE_CELLS => r.cells().for_each(&mut see),
+                Dep::Cell(x) => see(x, out),
+                Dep::Range(r) if r.area() <= MAX_RANGE_CELLS && r.area() <= nodes.len() as u64 => {
+                    r.cells().for_each(|x| see(x, out));
+                }
+                Dep::Range(r) if r.area() <= MAX_RANGE_CELLS => {
+                    // Fewer pending cells than range cells: test each pending cell, and
+                    // each pending anchor whose spill overlaps the range.
+                    for (i, x) in nodes.iter().enumerate() {
+                        let covers = spills && *x != c && self.spills.get(x).is_some_and(|s| s.intersects(&r));
+                        if r.contains(*x) || covers {
+                            out.push(i);
+                        }
+                    }
+                }
                 Dep::Range(_) => {}
             }
         }
@@ -471,11 +480,30 @@ impl Sheet {
         for pass in 0..=MAX_SPILL_PASSES {
             // Sorted, since it comes from a set: indices are found by binary search.
             let nodes: Vec<CellRef> = pending.iter().copied().collect();
-            let (ord, cyclic) = order(nodes.len(), |i, out| {
+            // The order follows references and spills (a reader of a spilled cell
+            // after the formula spilling into it); circular references are those
+            // of references alone. A cycle through a spill is found when the spill
+            // is placed (see `spill_reads_itself`).
+            let (combined, _, component) = order(nodes.len(), |i, out| {
                 if let Some(c) = nodes.get(i) {
-                    self.pending_precedents(*c, &nodes, out);
+                    self.pending_precedents(*c, &nodes, out, true);
                 }
             });
+            let (by_reference, cyclic, _) = order(nodes.len(), |i, out| {
+                if let Some(c) = nodes.get(i) {
+                    self.pending_precedents(*c, &nodes, out, false);
+                }
+            });
+            // Where spills and references together form a loop, go by references
+            // alone inside that loop.
+            let mut rank = alloc::vec![0usize; nodes.len()];
+            for (pos, &i) in by_reference.iter().enumerate() {
+                if let Some(r) = rank.get_mut(i) {
+                    *r = pos;
+                }
+            }
+            let mut ord = combined;
+            ord.sort_by_key(|&i| (component.get(i).copied().unwrap_or(0), rank.get(i).copied().unwrap_or(0)));
             let mut again = BTreeSet::new();
             for i in ord {
                 let Some(&c) = nodes.get(i) else { continue };
@@ -486,11 +514,13 @@ impl Sheet {
                     self.compute(c, on_cycle)
                 };
                 let Some(v) = v else { continue };
-                if self.place(c, v, rc) {
-                    let mut touched = BTreeSet::new();
-                    touched.insert(c);
-                    let more = self.closure(touched);
-                    again.extend(more.into_iter().filter(|x| *x != c));
+                if let Some((old, new)) = self.place(c, v, rc) {
+                    // Whoever reads a cell the spill left or now covers reads anew.
+                    let touched: BTreeSet<CellRef> =
+                        old.into_iter().chain(new).flat_map(Range::cells).filter(|x| *x != c).collect();
+                    if !touched.is_empty() {
+                        again.extend(self.closure(touched));
+                    }
                 }
             }
             if again.is_empty() {
@@ -513,9 +543,55 @@ impl Sheet {
         })
     }
 
-    /// Store `v` as the value of `c`, spilling arrays; returns whether the set of
-    /// cells covered by its spill changed.
-    fn place(&mut self, c: CellRef, v: Value, rc: &mut Recalc) -> bool {
+    /// A cell of `region` (other than `anchor`) that the formula in `anchor`
+    /// depends on, through references, ranges, names or other spills: spilling
+    /// there would make the formula read its own results.
+    fn spill_reads_itself(&self, anchor: CellRef, region: Range) -> Option<CellRef> {
+        let mut seen = BTreeSet::new();
+        let mut todo = alloc::vec![anchor];
+        seen.insert(anchor);
+        while let Some(cell) = todo.pop() {
+            for d in self.graph.precedents(cell) {
+                let (hit, more): (Option<CellRef>, Vec<CellRef>) = match *d {
+                    Dep::Cell(x) => {
+                        let hit = (x != anchor && region.contains(x)).then_some(x);
+                        (hit, alloc::vec![x])
+                    }
+                    Dep::Range(r) => {
+                        let hit = if r.intersects(&region) {
+                            let overlap = Range::new(
+                                CellRef { row: r.start.row.max(region.start.row), col: r.start.col.max(region.start.col) },
+                                CellRef { row: r.end.row.min(region.end.row), col: r.end.col.min(region.end.col) },
+                            );
+                            overlap.cells().find(|x| *x != anchor)
+                        } else {
+                            None
+                        };
+                        let inputs = self.cells.range(r.start..=r.end).map(|(k, _)| *k).filter(|k| r.contains(*k));
+                        let covered = self.owner.range(r.start..=r.end).map(|(k, _)| *k).filter(|k| r.contains(*k));
+                        (hit, inputs.chain(covered).collect())
+                    }
+                };
+                if hit.is_some() {
+                    return hit;
+                }
+                for x in more {
+                    // Follow the cell's own formula and, if it is covered by a
+                    // spill, the formula spilling into it.
+                    for next in [Some(x), self.owner.get(&x).copied()].into_iter().flatten() {
+                        if next != anchor && seen.insert(next) {
+                            todo.push(next);
+                        }
+                    }
+                }
+            }
+        }
+        None
+    }
+
+    /// Store `v` as the value of `c`, spilling arrays; when the rectangle covered
+    /// by its spill changed, returns the old and the new one.
+    fn place(&mut self, c: CellRef, v: Value, rc: &mut Recalc) -> Option<(Option<Range>, Option<Range>)> {
         self.record(rc, c);
         let old_spill = self.spills.remove(&c);
         self.blocked.remove(&c);
@@ -536,12 +612,19 @@ impl Sheet {
                         let blocker = r
                             .cells()
                             .find(|x| *x != c && (self.cells.contains_key(x) || self.owner.get(x).is_some_and(|a| *a != c)));
-                        match blocker {
-                            Some(b) => {
+                        match (blocker, self.spill_reads_itself(c, r)) {
+                            (Some(b), _) => {
                                 self.blocked.insert(c, r);
                                 Value::error(ErrorKind::Blocked, format!("the results would spill into {b}, which is not empty"))
                             }
-                            None => {
+                            (None, Some(x)) => {
+                                self.blocked.insert(c, r);
+                                Value::error(
+                                    ErrorKind::Cycle,
+                                    format!("the results would spill into {x}, which this formula depends on"),
+                                )
+                            }
+                            (None, None) => {
                                 for x in r.cells().filter(|x| *x != c) {
                                     self.record(rc, x);
                                     self.owner.insert(x, c);
@@ -561,7 +644,7 @@ impl Sheet {
         } else {
             self.values.remove(&c);
         }
-        old_spill != new_spill
+        (old_spill != new_spill).then_some((old_spill, new_spill))
     }
 
     fn finish(&mut self, rc: Recalc) {
@@ -638,6 +721,23 @@ mod tests {
         s.set("B1", "").unwrap();
         assert_eq!(s.value("A1").unwrap(), Value::num(1000.0));
         assert_eq!(s.value("C1").unwrap(), Value::num(0.00198));
+    }
+
+    #[test]
+    fn a_spill_over_what_it_reads_is_circular() {
+        let mut s = Sheet::new();
+        // B2:C3 doubled would spill into A1:B2, over B2 which it reads.
+        s.set("A1", "=B2:C3*2").unwrap();
+        assert!(matches!(s.value("A1").unwrap(), Value::Error(e) if e.kind == ErrorKind::Cycle && e.detail.contains("B2")));
+        // Through another formula: A1 spills into B1, which C5 reads, which A1 reads.
+        s.set("A1", "=FB.CEILING(1000 + C5; 100)").unwrap();
+        // β = (D − 1)/A = 99/1000.
+        assert_eq!(s.value("B1").unwrap(), Value::num(0.099));
+        s.set("C5", "=B1*0").unwrap();
+        assert!(matches!(s.value("A1").unwrap(), Value::Error(e) if e.kind == ErrorKind::Cycle));
+        assert_eq!(s.value("C5").unwrap(), Value::num(0.0));
+        s.set("C5", "1").unwrap();
+        assert_eq!(s.value("A1").unwrap(), Value::num(1001.0 / 100.0));
     }
 
     #[test]
