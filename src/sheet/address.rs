@@ -36,6 +36,12 @@ impl CellRef {
     }
 
     /// Parse `B3`, `$B$3`, `b$3`; the whole string must be the address.
+    ///
+    /// ```
+    /// use loopwright::sheet::CellRef;
+    /// assert_eq!(CellRef::parse("$B$3"), CellRef::new(2, 1));
+    /// assert_eq!(CellRef::parse("B0"), None);
+    /// ```
     pub fn parse(s: &str) -> Option<CellRef> {
         let (cell, used) = CellRef::parse_prefix(s)?;
         (used == s.len()).then_some(cell)

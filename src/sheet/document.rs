@@ -117,6 +117,15 @@ fn members<'a>(v: &'a Json, what: &str) -> core::result::Result<&'a [(String, Js
 ///
 /// # Errors
 /// [`DocumentError`] naming the first problem.
+///
+/// # Example
+/// ```
+/// use loopwright::sheet::from_document;
+/// let ok = r#"{"format": "loopwright-sheet", "version": 1, "cells": {"A1": "4k7"}, "names": {}}"#;
+/// assert_eq!(from_document(ok).unwrap().cells.len(), 1);
+/// let newer = r#"{"format": "loopwright-sheet", "version": 2, "cells": {}}"#;
+/// assert!(from_document(newer).unwrap_err().message.contains("newer loopwright"));
+/// ```
 pub fn from_document(text: &str) -> core::result::Result<Contents, DocumentError> {
     if text.len() > MAX_DOCUMENT_BYTES {
         return refuse(format!("it is larger than {MAX_DOCUMENT_BYTES} bytes"));

@@ -200,6 +200,15 @@ const LEADING_LETTERS: [&str; 6] = ["R", "p", "n", "u", "\u{b5}", "\u{3bc}"];
 /// A whole cell input read as a number: optional sign, a literal as for
 /// [`scan`] (or a letter code opening with `R`, `p`, `n`, `u`, `µ`), an optional
 /// `%`, blanks around. `None` when the text is not entirely such a number.
+///
+/// ```
+/// use loopwright::sheet::literal::parse_cell_number;
+/// use loopwright::sheet::Unit;
+/// let q = parse_cell_number("4k7Ω").unwrap();
+/// assert_eq!((q.value, q.unit), (4700.0, Some(Unit::Ohm)));
+/// assert_eq!(parse_cell_number("R47").unwrap().value, 0.47);
+/// assert!(parse_cell_number("1Meg").is_none()); // never a guess
+/// ```
 pub fn parse_cell_number(input: &str) -> Option<Quantity> {
     let s = input.trim();
     let (negative, s) = match s.strip_prefix('-') {

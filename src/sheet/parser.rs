@@ -302,6 +302,14 @@ impl Parser {
 ///
 /// # Errors
 /// [`ParseError`] with the column of the first problem.
+///
+/// # Example
+/// ```
+/// use loopwright::sheet::parser::{parse, BinOp, Expr};
+/// assert!(matches!(parse("-2^2").unwrap(), Expr::Binary(BinOp::Pow, _, _)));
+/// let e = parse("SUM(1;").unwrap_err();
+/// assert_eq!((e.pos, e.message), (7, "the formula ends where a value was expected"));
+/// ```
 pub fn parse(src: &str) -> Result<Expr, ParseError> {
     let tokens = tokenize(src)?;
     let end_pos = src.chars().count() + 1;

@@ -14,9 +14,14 @@
 //! Spilling: a formula whose value is several values (a range, an array result)
 //! shows them in the rectangle whose top-left corner is its own cell. If any
 //! other cell of that rectangle has an input, or is covered by another spill,
-//! the formula's cell shows `#BLOCKED!` instead. Cells reading a covered cell see
-//! the spilled item. When spills keep changing the cells they read, the cells
-//! involved get `#CYCLE!` after [`MAX_SPILL_PASSES`] passes.
+//! the formula's cell shows `#BLOCKED!` instead; if the formula depends on a
+//! cell of the rectangle it shows `#CYCLE!`. Cells reading a covered cell see
+//! the spilled item. Cells are ordered by references and spills together; where
+//! both form a loop, by references alone; after a spill moves, the readers of
+//! the cells it left or covered are evaluated again in a further pass. When
+//! spills still change what they read after [`MAX_SPILL_PASSES`] passes, the
+//! cells involved get `#CYCLE!`. Two spills competing for the same cells: the
+//! one evaluated first wins, which can depend on the order of edits.
 
 use super::address::{CellRef, Range, MAX_COLS, MAX_ROWS};
 use super::errors::{CellError, ErrorKind};
@@ -225,6 +230,21 @@ impl Sheet {
     /// [`Error::OutOfDomain`] for a malformed address; [`Error::TooLarge`] for an
     /// input longer than [`MAX_INPUT_BYTES`] or a sheet of more than
     /// [`MAX_CELLS`] inputs. The sheet is unchanged on error.
+    ///
+    /// # Example
+    /// ```
+    /// use loopwright::sheet::{Sheet, Value};
+    ///
+    /// let mut s = Sheet::new();
+    /// s.set("B1", "4k7").unwrap();
+    /// let changed = s.set("B2", "=B1*2").unwrap();
+    /// assert_eq!(changed.len(), 1);
+    /// assert_eq!(s.value("B2").unwrap(), Value::Number(9400.0, None));
+    /// // A bad formula is an error value in the cell; a bad address is refused.
+    /// s.set("B3", "=B1+").unwrap();
+    /// assert_eq!(s.value("B3").unwrap().display(), "#SYNTAX!");
+    /// assert_eq!(s.set("B0", "1").unwrap_err().param(), "cell");
+    /// ```
     pub fn set(&mut self, address: &str, input: &str) -> Result<&[CellRef]> {
         let c = cell_ref(address)?;
         self.set_cell(c, input)
