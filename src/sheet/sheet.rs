@@ -504,26 +504,31 @@ impl Sheet {
             // after the formula spilling into it); circular references are those
             // of references alone. A cycle through a spill is found when the spill
             // is placed (see `spill_reads_itself`).
-            let (combined, _, component) = order(nodes.len(), |i, out| {
-                if let Some(c) = nodes.get(i) {
-                    self.pending_precedents(*c, &nodes, out, true);
-                }
-            });
             let (by_reference, cyclic, _) = order(nodes.len(), |i, out| {
                 if let Some(c) = nodes.get(i) {
                     self.pending_precedents(*c, &nodes, out, false);
                 }
             });
-            // Where spills and references together form a loop, go by references
-            // alone inside that loop.
-            let mut rank = alloc::vec![0usize; nodes.len()];
-            for (pos, &i) in by_reference.iter().enumerate() {
-                if let Some(r) = rank.get_mut(i) {
-                    *r = pos;
+            let ord = if self.owner.is_empty() {
+                by_reference
+            } else {
+                let (combined, _, component) = order(nodes.len(), |i, out| {
+                    if let Some(c) = nodes.get(i) {
+                        self.pending_precedents(*c, &nodes, out, true);
+                    }
+                });
+                // Where spills and references together form a loop, go by
+                // references alone inside that loop.
+                let mut rank = alloc::vec![0usize; nodes.len()];
+                for (pos, &i) in by_reference.iter().enumerate() {
+                    if let Some(r) = rank.get_mut(i) {
+                        *r = pos;
+                    }
                 }
-            }
-            let mut ord = combined;
-            ord.sort_by_key(|&i| (component.get(i).copied().unwrap_or(0), rank.get(i).copied().unwrap_or(0)));
+                let mut ord = combined;
+                ord.sort_by_key(|&i| (component.get(i).copied().unwrap_or(0), rank.get(i).copied().unwrap_or(0)));
+                ord
+            };
             let mut again = BTreeSet::new();
             for i in ord {
                 let Some(&c) = nodes.get(i) else { continue };
