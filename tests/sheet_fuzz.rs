@@ -147,6 +147,7 @@ const SPILLERS: &[&str] = &[
     "=FB.SUMMARY(\"series-shunt\"; 1000; B3)",
     "=FB.PHASOR(100; B2; 0.01; 0)",
     "7",
+    "",
 ];
 
 proptest! {
@@ -161,12 +162,19 @@ proptest! {
             (0usize..1, prop::sample::select(SPILLERS).prop_map(String::from)),
         ], 1..25),
     ) {
+        let grid: Vec<CellRef> = (0..6u32).flat_map(|r| (0..8u32).map(move |c| CellRef::new(r, c).unwrap())).collect();
         let mut s = Sheet::new();
         for (cell, input) in &edits {
-            s.set(CELLS[*cell], input).unwrap();
+            // The reported changes are exactly the cells whose shown value changed.
+            let before: Vec<Value> = grid.iter().map(|c| s.shown(*c)).collect();
+            let changed = s.set(CELLS[*cell], input).unwrap().to_vec();
+            let differ: Vec<CellRef> =
+                grid.iter().zip(&before).filter(|(c, b)| s.shown(**c) != **b).map(|(c, _)| *c).collect();
+            prop_assert_eq!(&changed, &differ, "after {:?}", edits);
         }
         let mut fresh = Sheet::new();
         fresh.load_document(&s.save_document()).unwrap();
+        prop_assert_eq!(s.spill_range(CellRef::new(0, 0).unwrap()), fresh.spill_range(CellRef::new(0, 0).unwrap()));
         for row in 0..6u32 {
             for col in 0..8u32 {
                 let c = CellRef::new(row, col).unwrap();

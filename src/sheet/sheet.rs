@@ -279,6 +279,9 @@ impl Sheet {
         let mut seeds = BTreeSet::new();
         for &(c, input) in edits {
             self.record(&mut rc, c);
+            if let Some(r) = self.spills.get(&c).copied() {
+                r.cells().for_each(|x| self.record(&mut rc, x));
+            }
             self.put_input(c, input);
             seeds.insert(c);
             // A spill covering c, or blocked by c, must be redone.
@@ -538,7 +541,8 @@ impl Sheet {
                 } else {
                     self.compute(c, on_cycle)
                 };
-                let Some(v) = v else { continue };
+                // A cell without input still gives up the cells it spilled into.
+                let v = v.unwrap_or(Value::Empty);
                 if let Some((old, new)) = self.place(c, v, rc) {
                     // Whoever reads a cell the spill left or now covers reads anew.
                     let touched: BTreeSet<CellRef> =
@@ -746,6 +750,17 @@ mod tests {
         s.set("B1", "").unwrap();
         assert_eq!(s.value("A1").unwrap(), Value::num(1000.0));
         assert_eq!(s.value("C1").unwrap(), Value::num(0.00198));
+        // Clearing the formula frees the cells it spilled into.
+        let changed = s.set("A1", "").unwrap().to_vec();
+        assert_eq!(changed, [c("A1"), c("B1"), c("C1")]);
+        assert_eq!(s.spill_range(c("A1")), None);
+        s.set("B0", "").unwrap_err();
+        // B1 is free for another spill: A2 spills [A/D, (D − 1)/A] = [10⁴, 9·10⁻⁵]
+        // into A2:B2, and A1 copies that row into A1:B1.
+        s.set("A2", "=FB.CEILING(100k; 10)").unwrap();
+        s.set("A1", "=A2:B2").unwrap();
+        assert_eq!(s.value("B1").unwrap(), Value::num(9e-5));
+        assert_eq!(s.value("C1").unwrap(), Value::num(9e-5 * 2.0));
     }
 
     #[test]
