@@ -128,6 +128,16 @@ fn z_out(a: &Args<'_>) -> Value {
     }
 }
 
+fn impedances(a: &Args<'_>) -> Value {
+    let t = tri!(topology(a, 0));
+    let c = |i: usize| -> Result<Complex64, CellError> { Ok(Complex64::new(a.number(i)?, a.number(i + 1)?)) };
+    let (zi, zo, x, b) = (tri!(c(1)), tri!(c(3)), tri!(c(5)), tri!(c(7)));
+    match fb::impedances_with_feedback(t, zi, zo, x, b) {
+        Ok(z) => row(vec![ohms(z.input.re), ohms(z.input.im), ohms(z.output.re), ohms(z.output.im)]),
+        Err(e) => core_err(a, e),
+    }
+}
+
 fn phasor(a: &Args<'_>) -> Value {
     let x = Complex64::new(tri!(a.number(0)), tri!(a.number(1)));
     let b = Complex64::new(tri!(a.number(2)), tri!(a.number(3)));
@@ -364,6 +374,31 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             source: "75 Ω / 1001",
         },
         eval: z_out,
+    },
+    FunctionSpec {
+        name: "FB.IMPEDANCES",
+        area: "feedback",
+        summary: "Complex input and output impedance with feedback, for complex A and β at one frequency",
+        params: &[
+            TOPOLOGY,
+            req("zi_re", "input resistance of the loaded open-loop circuit", "Ω", ">= 0"),
+            req("zi_im", "input reactance", "Ω", "any finite"),
+            req("zo_re", "output resistance of the loaded open-loop circuit", "Ω", ">= 0"),
+            req("zo_im", "output reactance", "Ω", "any finite"),
+            req("a_re", "real part of A", "as a", "A not 0"),
+            req("a_im", "imaginary part of A", "as a", "any finite"),
+            req("beta_re", "real part of β", "reciprocal of a's unit", "any finite"),
+            req("beta_im", "imaginary part of β", "reciprocal of a's unit", "any finite"),
+        ],
+        repeats: false,
+        result_unit: "Ω",
+        spill: &["Re Zin", "Im Zin", "Re Zout", "Im Zout"],
+        example: Example {
+            formula: "=FB.IMPEDANCES(\"series-series\"; 1k; -1k; 10; 0; 0; 10; 0.1; 0)",
+            expected: Expected::Numbers(&[2000.0, 0.0, 10.0, 10.0]),
+            source: "T = j, D = 1 + j: Zin = (1k − j1k)(1 + j) = 2 kΩ, Zout = 10(1 + j) Ω (hand calculation)",
+        },
+        eval: impedances,
     },
     FunctionSpec {
         name: "FB.PHASOR",
