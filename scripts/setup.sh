@@ -40,8 +40,17 @@ if [ "$need_browsers" = 1 ]; then
   fi
 fi
 
-if [ -f tests/js/package.json ] && [ ! -d tests/js/node_modules/playwright-core ]; then
-  say "installing the npm packages of the JS tests"
-  (cd tests/js && npm ci --no-audit --no-fund --loglevel=error)
+VENV=${LOOPWRIGHT_VENV:-$HOME/.cache/loopwright/venv}
+if [ "${LOOPWRIGHT_NEED_REFERENCE:-$need_browsers}" = 1 ] && \
+   ! "$VENV/bin/python" -c "import sympy, numpy, scipy, control, eseries" >/dev/null 2>&1; then
+  say "creating the reference-oracle venv in $VENV (sympy, numpy, scipy, control, eseries)"
+  python3 -m venv "$VENV"
+  "$VENV/bin/pip" install --quiet --disable-pip-version-check -r tests/reference/requirements.txt
+fi
+
+# npm packages of the JS tests and build tools; reinstalled when the lock file changes.
+if ! cmp -s tests/js/package-lock.json tests/js/node_modules/.loopwright-lock 2>/dev/null; then
+  say "installing the npm packages of tests/js (playwright-core, esbuild, typescript)"
+  (cd tests/js && npm ci --no-audit --no-fund --loglevel=error && cp package-lock.json node_modules/.loopwright-lock)
 fi
 say "done"

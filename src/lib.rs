@@ -29,6 +29,9 @@ extern crate alloc;
 pub mod check;
 pub mod error;
 pub mod feedback;
+pub mod network;
+pub mod noise;
+pub mod nonlinear;
 pub mod sheet;
 
 #[cfg(feature = "wasm")]

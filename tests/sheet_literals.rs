@@ -148,3 +148,17 @@ fn declared_units_are_checked() {
     // A plain number is taken to be in the parameter's unit.
     assert_eq!(s.value("B3").unwrap(), s.value("B1").unwrap());
 }
+
+#[test]
+fn agrees_with_the_network_notation_parser() {
+    // Two readers of the same notation (the network area's for part values, this
+    // one for worksheet cells) must give the same f64 wherever both accept the text.
+    use loopwright::network::notation::parse_value;
+    for text in [
+        "4k7", "2R2", "R47", "1M5", "4n7", "2p2", "p68", "4.7k", "10R", "470R", "100nF", "4.7 kΩ", "10 kohm", "1e-9",
+        ".47", "-2.5", "3K3", "4u7", "2\u{b5}2", "33 V", "1G", "1T5",
+    ] {
+        let network = parse_value(text).unwrap_or_else(|e| panic!("network refuses {text}: {e}"));
+        assert_eq!(cell(text), network, "{text}");
+    }
+}

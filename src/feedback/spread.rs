@@ -107,10 +107,10 @@ pub fn gain_spread(beta: f64, a_min: f64, a_typ: f64, a_max: f64) -> Result<Gain
         at_min,
         at_typ,
         at_max,
-        low_percent: (low - at_typ) * scale,
-        high_percent: (high - at_typ) * scale,
+        low_percent: check::result("low_percent", (low - at_typ) * scale)?,
+        high_percent: check::result("high_percent", (high - at_typ) * scale)?,
         spread_percent,
-        spread_ppm: spread_percent * 1e4,
+        spread_ppm: check::result("spread_ppm", spread_percent * 1e4)?,
         sensitivity: at_typ / a_typ,
         positive_feedback,
     })

@@ -6,6 +6,57 @@ use num_complex::Complex64;
 use serde::Serialize;
 use wasm_bindgen::prelude::*;
 
+#[wasm_bindgen(typescript_custom_section)]
+const FEEDBACK_TYPES: &str = r#"
+/** Topology name in either family, case-insensitive: series-shunt, shunt-series, series-series, shunt-shunt, voltage-series, current-shunt, current-series, voltage-shunt, voltage, current, transconductance, transresistance. */
+export type TopologyName = string;
+/** The canonical mixing-sampling name. */
+export type Topology = "series-shunt" | "shunt-series" | "series-series" | "shunt-shunt";
+/** Kind of feedback by |D|. */
+export type FeedbackSense = "negative" | "neutral" | "positive" | "oscillation";
+/** A complex value with its polar form; phase in degrees. */
+export interface Phasor { re: number; im: number; magnitude: number; phaseDeg: number; }
+export interface FeedbackSummary {
+  topology: Topology;
+  gainUnit: "V/V" | "A/A" | "A/V" | "V/A";
+  betaUnit: "V/V" | "A/A" | "V/A" | "A/V";
+  closedLoopGain: number;
+  loopGain: number;
+  feedbackAmount: number;
+  feedbackAmountDb: number;
+  sensitivity: number;
+  /** 1/β, or null when β = 0. */
+  idealGain: number | null;
+  /** Af·β − 1, or null when β = 0. */
+  gainError: number | null;
+  sense: FeedbackSense;
+}
+export interface LoopPhasorsResult {
+  loopGain: Phasor;
+  feedbackAmount: Phasor;
+  closedLoopGain: Phasor;
+  feedbackAmountDb: number;
+  sense: FeedbackSense;
+}
+export interface FeedbackImpedances { input: Phasor; output: Phasor; feedbackAmount: Phasor; }
+export interface GainCeiling { closedLoopGain: number; beta: number; }
+export interface GainSpread {
+  atMin: number; atTyp: number; atMax: number;
+  lowPercent: number; highPercent: number;
+  spreadPercent: number; spreadPpm: number;
+  sensitivity: number; positiveFeedback: boolean;
+}
+export interface TopologyInfo {
+  name: Topology;
+  samplingMixingName: "voltage-series" | "current-shunt" | "current-series" | "voltage-shunt";
+  amplifierKind: "voltage" | "current" | "transconductance" | "transresistance";
+  mixing: "series" | "shunt";
+  sampling: "voltage" | "current";
+  gainUnit: string;
+  betaUnit: string;
+}
+"#;
+
 fn topology(name: &str) -> Result<Topology, JsValue> {
     throw(name.parse())
 }
@@ -59,8 +110,9 @@ pub fn gain_sensitivity(a: f64, beta: f64) -> Result<f64, JsValue> {
 /// All feedback relations of one stage: `{topology, gainUnit, betaUnit,
 /// closedLoopGain, loopGain, feedbackAmount, feedbackAmountDb, sensitivity,
 /// idealGain, gainError, sense}`.
-#[wasm_bindgen(js_name = summarizeFeedback)]
-pub fn summarize_feedback(topology_name: &str, a: f64, beta: f64) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = summarizeFeedback, unchecked_return_type = "FeedbackSummary")]
+pub fn summarize_feedback(
+    #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology_name: &str, a: f64, beta: f64) -> Result<JsValue, JsValue> {
     to_js(&throw(fb::summarize(topology(topology_name)?, a, beta))?)
 }
 
@@ -76,7 +128,7 @@ struct PhasorResult {
 
 /// Phasor forms: `{loopGain, feedbackAmount, closedLoopGain}` each as
 /// `{re, im, magnitude, phaseDeg}`, plus `feedbackAmountDb` and `sense`.
-#[wasm_bindgen(js_name = loopPhasors)]
+#[wasm_bindgen(js_name = loopPhasors, unchecked_return_type = "LoopPhasorsResult")]
 pub fn loop_phasors(a_re: f64, a_im: f64, beta_re: f64, beta_im: f64) -> Result<JsValue, JsValue> {
     let p = throw(fb::loop_phasors(Complex64::new(a_re, a_im), Complex64::new(beta_re, beta_im)))?;
     to_js(&PhasorResult {
@@ -98,10 +150,10 @@ struct ImpedanceResult {
 
 /// Input and output impedance with feedback: `{input, output, feedbackAmount}`
 /// each as `{re, im, magnitude, phaseDeg}`; impedances in Ω.
-#[wasm_bindgen(js_name = impedancesWithFeedback)]
+#[wasm_bindgen(js_name = impedancesWithFeedback, unchecked_return_type = "FeedbackImpedances")]
 #[allow(clippy::too_many_arguments)]
 pub fn impedances_with_feedback(
-    topology_name: &str,
+    #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology_name: &str,
     zi_re: f64,
     zi_im: f64,
     zo_re: f64,
@@ -134,7 +186,7 @@ pub fn min_open_loop_gain(beta: f64, gain_error: f64) -> Result<f64, JsValue> {
 }
 
 /// Largest closed-loop gain with at least D of feedback: `{closedLoopGain, beta}`.
-#[wasm_bindgen(js_name = maxClosedLoopGain)]
+#[wasm_bindgen(js_name = maxClosedLoopGain, unchecked_return_type = "GainCeiling")]
 pub fn max_closed_loop_gain(a: f64, feedback_amount: f64) -> Result<JsValue, JsValue> {
     to_js(&throw(fb::max_closed_loop_gain(a, feedback_amount))?)
 }
@@ -142,7 +194,7 @@ pub fn max_closed_loop_gain(a: f64, feedback_amount: f64) -> Result<JsValue, JsV
 /// Closed-loop gain over an open-loop gain range: `{atMin, atTyp, atMax,
 /// lowPercent, highPercent, spreadPercent, spreadPpm, sensitivity,
 /// positiveFeedback}`.
-#[wasm_bindgen(js_name = gainSpread)]
+#[wasm_bindgen(js_name = gainSpread, unchecked_return_type = "GainSpread")]
 pub fn gain_spread(beta: f64, a_min: f64, a_typ: f64, a_max: f64) -> Result<JsValue, JsValue> {
     to_js(&throw(fb::gain_spread(beta, a_min, a_typ, a_max))?)
 }
@@ -161,8 +213,8 @@ struct TopologyInfo {
 
 /// What a topology name means: `{name, samplingMixingName, amplifierKind,
 /// mixing, sampling, gainUnit, betaUnit}`.
-#[wasm_bindgen(js_name = topologyInfo)]
-pub fn topology_info(topology_name: &str) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = topologyInfo, unchecked_return_type = "TopologyInfo")]
+pub fn topology_info(#[wasm_bindgen(unchecked_param_type = "TopologyName")] topology_name: &str) -> Result<JsValue, JsValue> {
     let t = topology(topology_name)?;
     to_js(&TopologyInfo {
         name: t.name(),

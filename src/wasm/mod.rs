@@ -7,10 +7,27 @@
 //! One file per catalog area.
 
 pub mod feedback;
+pub mod network;
+pub mod noise;
+pub mod nonlinear;
 pub mod sheet;
 
 use crate::Error;
 use wasm_bindgen::prelude::*;
+
+#[wasm_bindgen(typescript_custom_section)]
+const ERROR_TYPES: &str = r#"
+/** Machine-readable reason of a thrown LoopwrightError. */
+export type ErrorCode =
+  | "not_finite" | "out_of_domain" | "unreachable" | "oscillation" | "unknown_name"
+  | "too_large" | "overflow" | "no_convergence" | "singular";
+/** What every loopwright function throws on bad input: `param` names the argument at fault. */
+export interface LoopwrightError extends Error {
+  name: "LoopwrightError";
+  code: ErrorCode;
+  param: string;
+}
+"#;
 
 /// A JS `Error` whose message is the core error's sentence, with `name`
 /// `"LoopwrightError"` and the fields `code` and `param`.

@@ -1,0 +1,53 @@
+# loopwright: `make serve` builds and serves the page; `make test` runs every test.
+# Both install what is missing first (scripts/setup.sh).
+
+SHELL := /bin/bash
+PORT ?= 8080
+PY := $(HOME)/.cache/loopwright/venv/bin/python
+export CARGO_TERM_COLOR := never
+
+.PHONY: serve test bench bench-quick setup setup-page build single package test-native test-reference test-browser test-page test-package
+
+serve: setup-page build
+	node scripts/serve.mjs www $(PORT)
+
+setup-page:
+	LOOPWRIGHT_NEED_BROWSERS=0 ./scripts/setup.sh
+
+setup:
+	./scripts/setup.sh
+
+build:
+	./scripts/build-wasm.sh
+
+single: build
+	node scripts/build-single.mjs
+
+package:
+	./scripts/build-package.sh
+
+test: setup test-native test-reference test-browser single package bench-quick test-page test-package
+	@echo "make test: all suites passed"
+
+test-native:
+	cargo build --no-default-features
+	cargo test
+
+test-reference:
+	@for script in tests/reference/*.py; do $(PY) $$script --check || exit 1; done
+
+test-browser:
+	CHROMEDRIVER=/usr/bin/chromedriver cargo test --target wasm32-unknown-unknown --features wasm --test 'wasm_*'
+	GECKODRIVER=$$(command -v geckodriver) cargo test --target wasm32-unknown-unknown --features wasm --test 'wasm_*'
+
+test-page:
+	cd tests/js && GECKODRIVER=$$(command -v geckodriver) node --test format.test.mjs page.test.mjs firefox.test.mjs
+
+test-package:
+	cd tests/js && node --test package.test.mjs
+
+bench: setup single package
+	node bench/run.mjs
+
+bench-quick:
+	node bench/run.mjs --quick

@@ -1,0 +1,68 @@
+// Builds dist/loopwright.html: the page as one self-contained file, with the
+// scripts bundled (esbuild), the CSS and the wasm inlined, and a content security
+// policy that allows exactly the inlined script and style by their SHA-256 hashes
+// (no 'unsafe-inline', no 'unsafe-eval'; 'wasm-unsafe-eval' for the core).
+// Needs www/pkg (scripts/build-wasm.sh) and the npm packages of tests/js.
+// Usage: node scripts/build-single.mjs
+
+import { readFileSync, writeFileSync, mkdirSync } from 'node:fs';
+import { createHash } from 'node:crypto';
+import { createRequire } from 'node:module';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+const root = join(dirname(fileURLToPath(import.meta.url)), '..');
+const require = createRequire(join(root, 'tests', 'js', 'package.json'));
+const esbuild = require('esbuild');
+
+const wasm = readFileSync(join(root, 'www', 'pkg', 'loopwright_bg.wasm'));
+
+const inlineWasm = {
+  name: 'inline-wasm',
+  setup(build) {
+    build.onResolve({ filter: /wasm-source\.js$/ }, () => ({ path: 'wasm-source', namespace: 'inline-wasm' }));
+    build.onLoad({ filter: /.*/, namespace: 'inline-wasm' }, () => ({
+      contents: `const WASM_BASE64 = ${JSON.stringify(wasm.toString('base64'))};
+export function wasmSource() {
+  const text = atob(WASM_BASE64);
+  const bytes = new Uint8Array(text.length);
+  for (let i = 0; i < text.length; i++) bytes[i] = text.charCodeAt(i);
+  return bytes;
+}`,
+      loader: 'js',
+    }));
+  },
+};
+
+const bundle = await esbuild.build({
+  entryPoints: [join(root, 'www', 'js', 'main.js')],
+  bundle: true,
+  format: 'esm',
+  minify: true,
+  write: false,
+  legalComments: 'none',
+  plugins: [inlineWasm],
+  logLevel: 'error',
+});
+// A literal "</script" inside the inlined module would end the element early.
+const script = bundle.outputFiles[0].text.replace(/<\/script/gi, '<\\/script');
+const style = readFileSync(join(root, 'www', 'css', 'style.css'), 'utf8');
+const hash = (text) => `'sha256-${createHash('sha256').update(text, 'utf8').digest('base64')}'`;
+
+let html = readFileSync(join(root, 'www', 'index.html'), 'utf8');
+const replaceOnce = (from, to) => {
+  if (!html.includes(from)) throw new Error(`build-single: index.html no longer contains ${from}`);
+  html = html.replace(from, () => to);
+};
+const icon = readFileSync(join(root, 'www', 'favicon.svg')).toString('base64');
+replaceOnce('<link rel="icon" href="favicon.svg">', `<link rel="icon" href="data:image/svg+xml;base64,${icon}">`);
+replaceOnce('<link rel="stylesheet" href="css/style.css">', `<style>${style}</style>`);
+replaceOnce('<script type="module" src="js/main.js"></script>', `<script type="module">${script}</script>`);
+html = html.replace(
+  /<meta http-equiv="Content-Security-Policy" content="[^"]*">/,
+  () => `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; script-src ${hash(script)} 'wasm-unsafe-eval'; style-src ${hash(style)}; img-src data:; object-src 'none'; base-uri 'none'; form-action 'none'">`,
+);
+
+mkdirSync(join(root, 'dist'), { recursive: true });
+writeFileSync(join(root, 'dist', 'loopwright.html'), html);
+console.error(`build-single: dist/loopwright.html ${Buffer.byteLength(html)} bytes (wasm ${wasm.length} bytes inlined)`);

@@ -1,0 +1,11 @@
+// Must FAIL the type check: a result field that does not exist, and a string where
+// a number belongs. If tsc accepts this, the definitions are too loose (e.g. `any`).
+import { summarizeFeedback } from 'loopwright';
+
+const s = summarizeFeedback('series-shunt', 1e5, 0.01);
+const wrong: string = s.closedLoopGain;
+const missing: number = s.bandwidth;
+import { monteCarlo } from 'loopwright';
+const mc = monteCarlo('inverting', 1e4, 4.7e4, 0.01, 0.01, 5e4, 1e5, 2e5, 1e6, 75, 5, 'uniform', 3, 'uniform', 3, 'gain', 1000, 7, undefined, undefined, 10);
+const notThere: number = mc.stats.median;
+export { wrong, missing, notThere };

@@ -1,0 +1,116 @@
+// The npm package as a user gets it: the packed tarball installed into a fresh
+// temporary project with `npm install ./loopwright-<version>.tgz`, then used from
+// Node, type-checked with tsc, bundled with esbuild and run in headless Chromium,
+// and its batch tool run on a generated 100 000-row CSV.
+// Needs `scripts/build-package.sh` to have run (make test does).
+
+import { test, before, after } from 'node:test';
+import assert from 'node:assert/strict';
+import { execFileSync, spawnSync } from 'node:child_process';
+import { mkdtempSync, readdirSync, copyFileSync, writeFileSync, rmSync, createReadStream, mkdirSync } from 'node:fs';
+import { createInterface } from 'node:readline';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { ROOT, launch } from './browser.mjs';
+import { startServer } from '../../scripts/serve.mjs';
+
+const FIXTURES = join(ROOT, 'tests', 'js', 'package-fixtures');
+const BIN = join(ROOT, 'tests', 'js', 'node_modules', '.bin');
+let project;
+
+before(() => {
+  const tarball = readdirSync(join(ROOT, 'pkg')).find((f) => /^loopwright-.*\.tgz$/.test(f));
+  assert.ok(tarball, 'pkg/loopwright-*.tgz is missing: run scripts/build-package.sh');
+  project = mkdtempSync(join(tmpdir(), 'loopwright-consumer-'));
+  writeFileSync(join(project, 'package.json'), JSON.stringify({ name: 'consumer', private: true, type: 'module' }));
+  copyFileSync(join(ROOT, 'pkg', tarball), join(project, tarball));
+  execFileSync('npm', ['install', `./${tarball}`, '--no-audit', '--no-fund', '--loglevel=error'], { cwd: project, stdio: 'pipe' });
+  for (const f of readdirSync(FIXTURES)) copyFileSync(join(FIXTURES, f), join(project, f));
+});
+
+after(() => {
+  if (project) rmSync(project, { recursive: true, force: true });
+});
+
+test('Node: the installed package gives the reference values and typed errors', () => {
+  const out = execFileSync(process.execPath, ['consumer.mjs'], { cwd: project, encoding: 'utf8' });
+  assert.match(out, /all checks passed/);
+});
+
+test('TypeScript: the definitions type-check a consumer, and reject a wrong one', () => {
+  const args = ['--noEmit', '--strict', '--module', 'NodeNext', '--moduleResolution', 'NodeNext', '--target', 'ES2022'];
+  const good = spawnSync(join(BIN, 'tsc'), [...args, 'consumer.ts'], { cwd: project, encoding: 'utf8' });
+  assert.equal(good.status, 0, `tsc on consumer.ts: ${good.stdout}${good.stderr}`);
+  const bad = spawnSync(join(BIN, 'tsc'), [...args, 'bad-consumer.ts'], { cwd: project, encoding: 'utf8' });
+  assert.notEqual(bad.status, 0, 'tsc accepted bad-consumer.ts: the types are too loose');
+  assert.match(bad.stdout, /closedLoopGain|not assignable/);
+  assert.match(bad.stdout, /bandwidth/);
+  assert.match(bad.stdout, /median/);
+});
+
+test('esbuild bundle of an ES-module consumer runs in headless Chromium', async () => {
+  const dist = join(project, 'dist');
+  mkdirSync(dist, { recursive: true });
+  execFileSync(join(BIN, 'esbuild'), ['bundle-entry.mjs', '--bundle', '--format=esm', '--platform=browser', `--outfile=${join(dist, 'app.js')}`], { cwd: project, stdio: 'pipe' });
+  copyFileSync(join(project, 'node_modules', 'loopwright', 'web', 'loopwright_bg.wasm'), join(dist, 'loopwright_bg.wasm'));
+  writeFileSync(join(dist, 'index.html'), '<!doctype html><meta charset="utf-8"><title>loading</title><script type="module" src="app.js"></script>');
+  const { server, url } = await startServer(dist, 0);
+  const browser = await launch();
+  try {
+    const page = await browser.newPage();
+    const errors = [];
+    page.on('pageerror', (e) => errors.push(e.message));
+    await page.goto(url);
+    await page.waitForFunction(() => document.title !== 'loading', null, { timeout: 15000 });
+    // A = 10⁵, β = 0.00999: Af = 10⁵/1000 = 100; series-series gain unit A/V.
+    assert.equal(await page.title(), 'ok 100.000000 A/V');
+    assert.deepEqual(errors, []);
+  } finally {
+    await browser.close();
+    server.close();
+  }
+});
+
+test('batch tool: 100 000 rows streamed, bad rows reported by row number, nothing dropped', async () => {
+  const rows = 100_000;
+  const lines = ['topology,a,beta,zi,zo,target_gain'];
+  const bad = new Map();
+  for (let i = 1; i <= rows; i++) {
+    if (i % 25_000 === 0) { lines.push(`series-shunt,abc,0.01,1e6,75,10`); bad.set(i, 'a'); continue; }
+    if (i % 25_000 === 1) { lines.push(`parallel,1e5,0.01,1e6,75,10`); bad.set(i, 'topology'); continue; }
+    if (i === 777) { lines.push(`shunt-shunt,-100,0.01,1e3,1e3,`); bad.set(i, 'beta'); continue; }
+    const a = 1e4 * (1 + (i % 97));
+    lines.push(`${['series-shunt', 'shunt-series', 'series-series', 'shunt-shunt'][i % 4]},${a},0.01,1e6,75,50`);
+  }
+  writeFileSync(join(project, 'designs.csv'), `${lines.join('\n')}\n`);
+  const run = spawnSync('npx', ['--no-install', 'loopwright-batch', 'designs.csv', '-o', 'out.csv', '--progress'], { cwd: project, encoding: 'utf8' });
+  assert.equal(run.status, 0, run.stderr);
+  assert.match(run.stderr, new RegExp(`${rows} rows, ${bad.size} with errors\n$`));
+
+  const header = [];
+  let count = 0;
+  const errorsSeen = new Map();
+  for await (const line of createInterface({ input: createReadStream(join(project, 'out.csv')) })) {
+    if (header.length === 0) { header.push(...line.split(',')); continue; }
+    count++;
+    const f = line.split(',');
+    const row = Number(f[0]);
+    assert.equal(row, count, 'rows are numbered in order');
+    const error = f[header.indexOf('error')];
+    if (error) errorsSeen.set(row, error);
+    else if (row === 2) {
+      // Row 2: series-series, A = 3·10⁴, β = 0.01 → D = 301, Af = 3·10⁴/301.
+      const af = Number(f[header.indexOf('closed_loop_gain')]);
+      assert.ok(Math.abs(af - 3e4 / 301) < 1e-9, `row 2 Af ${af}`);
+    }
+  }
+  assert.equal(count, rows, 'every input row has an output row');
+  assert.deepEqual([...errorsSeen.keys()].sort((x, y) => x - y), [...bad.keys()].sort((x, y) => x - y));
+  for (const [row, param] of bad) assert.match(errorsSeen.get(row), new RegExp(`\\b${param}\\b`), `row ${row}: ${errorsSeen.get(row)}`);
+
+  const strict = spawnSync('npx', ['--no-install', 'loopwright-batch', 'designs.csv', '-o', 'out2.csv', '--strict'], { cwd: project, encoding: 'utf8' });
+  assert.equal(strict.status, 1, '--strict exits 1 when a row failed');
+  const missing = spawnSync('npx', ['--no-install', 'loopwright-batch', 'designs.csv', '--compute', 'spread'], { cwd: project, encoding: 'utf8' });
+  assert.equal(missing.status, 2);
+  assert.match(missing.stderr, /needs the column\(s\) a_min, a_max/);
+});

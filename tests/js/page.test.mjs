@@ -1,0 +1,210 @@
+// The page driven as a person would: typing into cells, reading results, errors in
+// place, keyboard focus, narrow screens. Expected figures are worked out by hand
+// from the closed forms named beside each check.
+
+import { test, before, after } from 'node:test';
+import assert from 'node:assert/strict';
+import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { launch, serveWww, openPage, ARTIFACTS, ROOT } from './browser.mjs';
+import { startServer } from '../../scripts/serve.mjs';
+
+let browser;
+let server;
+let url;
+
+before(async () => {
+  ({ server, url } = await serveWww());
+  browser = await launch();
+});
+
+after(async () => {
+  await browser?.close();
+  server?.close();
+});
+
+const result = (page, card, name) => page.locator(`#${card} dd[data-name="${name}"] output`).textContent();
+
+async function retype(page, selector, text) {
+  await page.click(selector);
+  await page.keyboard.press('Control+A');
+  await page.keyboard.type(text);
+}
+
+test('the stage card computes from typed engineering numbers', async () => {
+  const { context, page, problems, foreign } = await openPage(browser, url, { allowedOrigin: url });
+  // Defaults: A = 100k, β = 0.00999 → D = 1 + 999 = 1000, Af = 10⁵/1000 = 100.
+  assert.equal(await result(page, 'card-stage', 'af'), '100.0');
+  assert.equal(await result(page, 'card-stage', 'ddb'), '60');
+  // Sedra & Smith, Microelectronic Circuits, 7th ed., Example 10.1 (from memory):
+  // A = 10⁴ with β = 0.0999 gives Af = 10 and D = 1000 (60 dB).
+  await retype(page, '#card-stage-a', '10k');
+  await retype(page, '#card-stage-beta', '99.9m');
+  assert.equal(await result(page, 'card-stage', 'af'), '10.00');
+  assert.equal(await result(page, 'card-stage', 'd'), '1000');
+  // Series mixing, voltage sampling: Zif = 1 MΩ·1000 = 1 GΩ, Zof = 75 Ω/1000 = 75 mΩ.
+  assert.equal(await result(page, 'card-stage', 'zif'), '1.000G');
+  assert.equal(await result(page, 'card-stage', 'zof'), '75.00m');
+  // Shunt-shunt divides both (Sedra & Smith, 7th ed., Table 10.1, from memory).
+  await page.selectOption('#card-stage-topology', 'shunt-shunt');
+  assert.equal(await result(page, 'card-stage', 'zif'), '1.000k');
+  assert.equal((await page.locator('#card-stage label[for="card-stage-a"] .cell-unit').textContent()).trim(), 'V/A');
+  // IEC 60062 letter code: 4k7 = 4700.
+  await retype(page, '#card-stage-zi', '4k7');
+  assert.equal(await result(page, 'card-stage', 'zif'), '4.700');
+  await page.screenshot({ path: join(ARTIFACTS, 'page-desktop.png'), fullPage: true });
+  assert.deepEqual(problems, []);
+  assert.deepEqual(foreign, []);
+  await context.close();
+});
+
+test('bad input shows an error in place and keeps what was typed', async () => {
+  const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
+  await retype(page, '#card-stage-beta', 'ten');
+  assert.equal(await page.getAttribute('#card-stage-beta', 'aria-invalid'), 'true');
+  assert.match(await page.locator("#card-stage-beta-hint").textContent(), /must be a number/);
+  assert.equal(await page.inputValue('#card-stage-beta'), 'ten');
+  // A·β = −1: the oscillation condition is named on the β cell (100k · −10µ = −1).
+  await retype(page, '#card-stage-beta', '-10u');
+  assert.match(await page.locator('#card-stage-beta-hint').textContent(), /oscillates/);
+  assert.equal(await page.locator('#card-stage .card-message').getAttribute('data-code'), 'oscillation');
+  // A target above the open-loop gain cannot be reached with negative feedback.
+  await retype(page, '#card-inverse-target_gain', '1M');
+  assert.match(await page.locator('#card-inverse-target_gain-hint').textContent(), /cannot be reached/);
+  // Script-like text renders as text and runs nothing.
+  await retype(page, '#card-inverse-a', '<img src=x onerror=alert(1)>');
+  assert.equal(await page.locator('#card-inverse img').count(), 0);
+  assert.match(await page.locator("#card-inverse-a-hint").textContent(), /must be a number/);
+  await page.screenshot({ path: join(ARTIFACTS, 'page-errors.png'), fullPage: true });
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+test('the inverse and spread cards agree with the closed forms', async () => {
+  const { context, page } = await openPage(browser, url, { allowedOrigin: url });
+  // Defaults A = 100k, Af = 100: β = 1/100 − 1/10⁵ = 0.00999.
+  assert.equal(await result(page, 'card-inverse', 'beta'), '0.00999');
+  // ε = 0.1 m, β = 1/100: A_min = 0.9999/(10⁻⁴·10⁻²) = 999.9k.
+  assert.equal(await result(page, 'card-inverse', 'amin'), '999.9k');
+  // D_req = 1000: Af_max = 10⁵/1000 = 100.
+  assert.equal(await result(page, 'card-inverse', 'afmax'), '100.0');
+  // Spread, β = 0.01, A 50k…1M around 200k: Af = A/(1 + A/100).
+  const af = (a) => a / (1 + a * 0.01);
+  const spread = ((af(1e6) - af(5e4)) / af(2e5)) * 100;
+  assert.equal(await result(page, 'card-spread', 'spread'), spread.toPrecision(6).replace(/0+$/, ''));
+  await context.close();
+});
+
+test('keyboard only: Tab reaches every cell with a visible focus', async () => {
+  const { context, page } = await openPage(browser, url, { allowedOrigin: url });
+  const seen = new Set();
+  for (let i = 0; i < 20; i++) {
+    await page.keyboard.press('Tab');
+    const id = await page.evaluate(() => document.activeElement?.id);
+    if (id) seen.add(id);
+  }
+  for (const id of ['card-stage-topology', 'card-stage-a', 'card-stage-beta', 'card-inverse-a', 'card-spread-beta']) {
+    assert.ok(seen.has(id), `Tab did not reach #${id}`);
+  }
+  await page.focus('#card-stage-a');
+  const outline = await page.evaluate(() => getComputedStyle(document.activeElement).outlineStyle);
+  assert.notEqual(outline, 'none');
+  await context.close();
+});
+
+test('usable at phone width (390 px): nothing wider than the screen', async () => {
+  const { context, page, problems } = await openPage(browser, url, { width: 390, height: 844, allowedOrigin: url });
+  await page.screenshot({ path: join(ARTIFACTS, 'page-390px.png'), fullPage: true });
+  const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
+  assert.ok(overflow <= 0, `page is ${overflow}px wider than the viewport`);
+  // A = 2.5 MV/V, β = 0.00999: D = 1 + 24 975 = 24 976.
+  await retype(page, '#card-stage-a', '2.5M');
+  assert.equal(await result(page, 'card-stage', 'd'), '24976');
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+test('the cautions are on the page', async () => {
+  const { context, page } = await openPage(browser, url, { allowedOrigin: url });
+  const text = await page.locator('footer.cautions').textContent();
+  assert.match(text, /check every design on the bench/);
+  assert.match(text, /mains/);
+  assert.match(text, /licensed practice/);
+  await context.close();
+});
+
+test('the single-file build works from file:// with no request and no CSP violation', async () => {
+  const file = pathToFileURL(join(ROOT, 'dist', 'loopwright.html')).href;
+  const { context, page, problems, foreign } = await openPage(browser, file, { allowedOrigin: file });
+  // Same closed form as the served page: A = 100k, β = 0.00999 → Af = 100.
+  assert.equal(await result(page, 'card-stage', 'af'), '100.0');
+  await retype(page, '#card-stage-a', '10k');
+  await retype(page, '#card-stage-beta', '99.9m');
+  assert.equal(await result(page, 'card-stage', 'af'), '10.00');
+  const csp = await page.getAttribute('meta[http-equiv="Content-Security-Policy"]', 'content');
+  assert.doesNotMatch(csp, /'unsafe-inline'|'unsafe-eval'/);
+  assert.match(csp, /'sha256-[A-Za-z0-9+/=]+'/);
+  assert.deepEqual(foreign, []);
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+test('embedding: the custom element and the frame work under a strict CSP', async () => {
+  const { server: rootServer, url: rootUrl } = await startServer(ROOT, 0);
+  try {
+    const context = await browser.newContext({ viewport: { width: 1000, height: 1400 } });
+    const page = await context.newPage();
+    const problems = [];
+    page.on('console', (msg) => { if (msg.type() === 'error') problems.push(msg.text()); });
+    page.on('pageerror', (err) => problems.push(err.message));
+    await page.goto(`${rootUrl}tests/js/fixtures/embed.html`);
+    await page.waitForSelector('loopwright-panel[data-ready="true"]', { timeout: 15000 });
+    // Only the two requested cards, inside the shadow root.
+    assert.equal(await page.locator('loopwright-panel section.card').count(), 2);
+    // Default stage inputs: A = 100k, β = 0.00999 → Af = 100 (closed form).
+    assert.equal(await page.locator('loopwright-panel #card-stage dd[data-name="af"] output').textContent(), '100.0');
+    await page.locator('loopwright-panel #card-stage-a').fill('10k');
+    await page.locator('loopwright-panel #card-stage-beta').fill('99.9m');
+    assert.equal(await page.locator('loopwright-panel #card-stage dd[data-name="af"] output').textContent(), '10.00');
+    // No global names leaked by the element's script.
+    assert.deepEqual(await page.evaluate(() => Object.keys(window).filter((k) => /loopwright|wasm|wbg/i.test(k))), []);
+    const frame = page.frameLocator('iframe');
+    assert.equal(await frame.locator('#card-stage dd[data-name="af"] output').textContent(), '100.0');
+    await page.screenshot({ path: join(ARTIFACTS, 'embed.png'), fullPage: true });
+    assert.deepEqual(problems, []);
+    await context.close();
+  } finally {
+    rootServer.close();
+  }
+});
+
+test('every card computes its defaults, and the area cards show closed-form values', async () => {
+  const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
+  const cards = await page.locator('section.card').evaluateAll((els) => els.map((e) => e.id));
+  assert.ok(cards.length >= 9, `cards: ${cards}`);
+  for (const id of cards) {
+    assert.equal(await page.locator(`#${id} .card-message`).textContent(), '', `${id} shows an error`);
+    assert.ok(await page.locator(`#${id} dd`).count() > 0, `${id} shows no results`);
+  }
+  // Full-power bandwidth SR/(2π·Vp) = 20 V/µs / (2π · 10 V) = 318.3 kHz.
+  assert.equal(await result(page, 'card-slew', 'fpbw'), '318.3k');
+  // Largest peak at 100 kHz: 20e6/(2π·1e5) = 31.83 V.
+  assert.equal(await result(page, 'card-slew', 'vmax'), '31.83');
+  // Noise gain 1 + Rf/Rg = 1 + 9.09k/1k = 10.09.
+  assert.equal(await result(page, 'card-noise', 'ng'), '10.09');
+  // D = 1 + a1·β = 1 + 10k·0.01 = 101; HD2 falls by D²/D³ at equal output: 1/101.
+  assert.equal(await result(page, 'card-distortion', 'd'), '101');
+  assert.equal(await result(page, 'card-distortion', 'hd2ratio'), (1 / 101).toPrecision(6));
+  // Resistor pair: non-inverting 7.77 needs R2/R1 = 6.77.
+  assert.equal(await result(page, 'card-pairs', 'ideal'), '6.77');
+  // Worst case: the lowest gain is at R1 high, R2 low, A low (gain 1 + R2/R1 falls).
+  assert.equal(await result(page, 'card-worst', 'mincorner'), 'R1 high, R2 low, A low');
+  // Monte Carlo: a histogram is drawn with both spec limits.
+  assert.equal(await page.locator('#card-montecarlo svg .plot-marker-limit').count(), 2);
+  // A bad tolerance names the cell.
+  await retype(page, '#card-worst-tol', '-1%');
+  assert.equal(await page.getAttribute('#card-worst-tol', 'aria-invalid'), 'true');
+  await page.screenshot({ path: join(ARTIFACTS, 'page-all-cards.png'), fullPage: true });
+  assert.deepEqual(problems, []);
+  await context.close();
+});

@@ -1,0 +1,115 @@
+//! Worst case of an op-amp stage against (1) the first-order sum of analytic
+//! partial derivatives for small tolerances and (2) exact enumeration of the
+//! corners with the closed-form expressions written out here independently.
+#![cfg(not(target_arch = "wasm32"))]
+
+use loopwright::network::{worst_case, End, Stage, StageSpec};
+use proptest::prelude::*;
+
+fn stage(kind: Stage, tol: f64, a_spread: f64) -> StageSpec {
+    StageSpec {
+        stage: kind,
+        r1: 1.2e3,
+        r2: 33e3,
+        tol_r1: tol,
+        tol_r2: tol,
+        a_min: 1e5 * (1.0 - a_spread),
+        a_typ: 1e5,
+        a_max: 1e5 * (1.0 + a_spread),
+        ri: 2e6,
+        ro: 40.0,
+        pole_hz: 8.0,
+    }
+}
+
+/// Closed forms, differentiated by hand:
+/// non-inverting Af = A/(1 + Aβ), β = R1/(R1 + R2):
+///   ∂Af/∂A = 1/D², ∂Af/∂β = −A²/D², ∂β/∂R1 = R2/(R1+R2)², ∂β/∂R2 = −R1/(R1+R2)².
+/// inverting Af = −A·R2/(R1 + R2 + A·R1) = −A·R2/N:
+///   ∂Af/∂R1 = A·R2·(1 + A)/N², ∂Af/∂R2 = −A·(R1 + A·R1)/N², ∂Af/∂A = −R2·(R1 + R2)/N².
+fn gain_partials(s: &StageSpec) -> [f64; 3] {
+    let (r1, r2, a) = (s.r1, s.r2, s.a_typ);
+    match s.stage {
+        Stage::NonInverting => {
+            let beta = r1 / (r1 + r2);
+            let d = 1.0 + a * beta;
+            let daf_dbeta = -a * a / (d * d);
+            [daf_dbeta * r2 / ((r1 + r2) * (r1 + r2)), daf_dbeta * -r1 / ((r1 + r2) * (r1 + r2)), 1.0 / (d * d)]
+        }
+        Stage::Inverting => {
+            let n = r1 + r2 + a * r1;
+            [a * r2 * (1.0 + a) / (n * n), -a * (r1 + a * r1) / (n * n), -r2 * (r1 + r2) / (n * n)]
+        }
+    }
+}
+
+#[test]
+fn small_tolerances_match_the_first_order_sum() {
+    // Worst-case deviation ≈ Σ |∂Af/∂xᵢ|·Δxᵢ; the remainder is second order, so
+    // with tolerances of 1e-5 the two agree to about 1e-5 relative (bound 1e-4).
+    for kind in [Stage::NonInverting, Stage::Inverting] {
+        let s = stage(kind, 1e-5, 1e-5);
+        let w = worst_case(&s).unwrap();
+        let [d1, d2, da] = gain_partials(&s);
+        let first_order = d1.abs() * s.r1 * s.tol_r1 + d2.abs() * s.r2 * s.tol_r2 + da.abs() * (s.a_max - s.a_typ);
+        let up = w.gain.max - w.gain.nominal;
+        let down = w.gain.nominal - w.gain.min;
+        assert!((up / first_order - 1.0).abs() < 1e-4, "{kind:?}: up {up:e}, first order {first_order:e}");
+        assert!((down / first_order - 1.0).abs() < 1e-4, "{kind:?}: down {down:e}, first order {first_order:e}");
+        // The corner is where each partial pushes the gain up.
+        let side = |d: f64| if d > 0.0 { End::High } else { End::Low };
+        assert_eq!(
+            (w.gain.max_corner.r1, w.gain.max_corner.r2, w.gain.max_corner.open_loop_gain),
+            (side(d1), side(d2), side(da))
+        );
+    }
+}
+
+/// The four quantities by the textbook closed forms, written independently of
+/// the library (Sedra & Smith, 7th ed., ch. 2 and 10, from memory).
+fn direct(s: &StageSpec, r1: f64, r2: f64, a: f64) -> [f64; 4] {
+    let beta = r1 / (r1 + r2);
+    let d = 1.0 + a * beta;
+    let gain = match s.stage {
+        Stage::NonInverting => a / d,
+        Stage::Inverting => -a * r2 / (r1 + r2 + a * r1),
+    };
+    let zin = match s.stage {
+        Stage::NonInverting => s.ri * d,
+        Stage::Inverting => r1 + r2 / (1.0 + a),
+    };
+    [gain, zin, s.ro / d, s.pole_hz * d]
+}
+
+proptest! {
+    #![proptest_config(ProptestConfig { cases: 64, rng_seed: proptest::test_runner::RngSeed::Fixed(11), ..ProptestConfig::default() })]
+
+    /// Exact enumeration of the 8 corners gives the same extremes (relative 1e-12:
+    /// the library goes through crate::feedback, so the operations differ a little).
+    #[test]
+    fn extremes_equal_corner_enumeration(
+        inverting in any::<bool>(), r1 in 100.0f64..1e5, r2 in 100.0f64..1e6,
+        tol1 in 0.001f64..0.2, tol2 in 0.001f64..0.2, a_lo in 1e2f64..1e5, a_ratio in 1.0f64..20.0,
+    ) {
+        let kind = if inverting { Stage::Inverting } else { Stage::NonInverting };
+        let s = StageSpec { stage: kind, r1, r2, tol_r1: tol1, tol_r2: tol2, a_min: a_lo, a_typ: a_lo, a_max: a_lo * a_ratio, ri: 1e6, ro: 100.0, pole_hz: 10.0 };
+        let w = worst_case(&s).unwrap();
+        let mut lo = [f64::INFINITY; 4];
+        let mut hi = [f64::NEG_INFINITY; 4];
+        for x1 in [r1 * (1.0 - tol1), r1 * (1.0 + tol1)] {
+            for x2 in [r2 * (1.0 - tol2), r2 * (1.0 + tol2)] {
+                for a in [s.a_min, s.a_max] {
+                    for (i, v) in direct(&s, x1, x2, a).into_iter().enumerate() {
+                        lo[i] = lo[i].min(v);
+                        hi[i] = hi[i].max(v);
+                    }
+                }
+            }
+        }
+        let got = [w.gain, w.input_impedance, w.output_impedance, w.bandwidth_hz];
+        for i in 0..4 {
+            prop_assert!((got[i].min - lo[i]).abs() <= 1e-12 * lo[i].abs(), "quantity {} min {} vs {}", i, got[i].min, lo[i]);
+            prop_assert!((got[i].max - hi[i]).abs() <= 1e-12 * hi[i].abs(), "quantity {} max {} vs {}", i, got[i].max, hi[i]);
+        }
+    }
+}

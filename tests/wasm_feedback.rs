@@ -1,0 +1,92 @@
+//! The JS boundary of the feedback relations, run in a real browser (headless
+//! Chromium and Firefox through wasm-bindgen-test): numbers, structured results
+//! as plain objects, and thrown errors with `code` and `param`.
+#![cfg(target_arch = "wasm32")]
+
+use js_sys::Reflect;
+use loopwright::wasm::feedback as api;
+use wasm_bindgen::{JsCast, JsValue};
+use wasm_bindgen_test::*;
+
+wasm_bindgen_test_configure!(run_in_browser);
+
+fn field(obj: &JsValue, name: &str) -> JsValue {
+    Reflect::get(obj, &name.into()).unwrap()
+}
+
+fn num(obj: &JsValue, name: &str) -> f64 {
+    field(obj, name).as_f64().unwrap_or_else(|| panic!("{name} is not a number"))
+}
+
+fn text(obj: &JsValue, name: &str) -> String {
+    field(obj, name).as_string().unwrap_or_else(|| panic!("{name} is not a string"))
+}
+
+fn assert_thrown(r: Result<impl core::fmt::Debug, JsValue>, code: &str, param: &str) {
+    let e = r.expect_err("expected a thrown error");
+    assert!(e.is_instance_of::<js_sys::Error>(), "thrown value is a JS Error");
+    assert_eq!(text(&e, "code"), code);
+    assert_eq!(text(&e, "param"), param);
+    assert_eq!(text(&e, "name"), "LoopwrightError");
+    assert!(text(&e, "message").starts_with(&format!("{param}: ")));
+}
+
+#[wasm_bindgen_test]
+fn scalar_functions_return_numbers() {
+    // Sedra & Smith, Microelectronic Circuits, 7th ed., Example 10.1 (from memory):
+    // A = 10⁴, Af = 10 → β = 0.0999, D = 1000 (60 dB).
+    let beta = api::beta_for_gain(1e4, 10.0).unwrap();
+    assert!((beta - 0.0999).abs() < 1e-15);
+    assert!((api::closed_loop_gain(1e4, beta).unwrap() - 10.0).abs() < 1e-12);
+    assert!((api::loop_gain(1e4, beta).unwrap() - 999.0).abs() < 1e-9);
+    assert!((api::feedback_amount(1e4, beta).unwrap() - 1000.0).abs() < 1e-9);
+    assert!((api::feedback_amount_db(1e4, beta).unwrap() - 60.0).abs() < 1e-9);
+    assert!((api::gain_sensitivity(1e4, beta).unwrap() - 1e-3).abs() < 1e-15);
+    assert!((api::min_open_loop_gain(0.01, 0.001).unwrap() - 99_900.0).abs() < 1e-8);
+}
+
+#[wasm_bindgen_test]
+fn structured_results_are_plain_objects() {
+    let s = api::summarize_feedback("Voltage-Shunt", -1e5, -1e-3).unwrap();
+    assert_eq!(text(&s, "topology"), "shunt-shunt");
+    assert_eq!(text(&s, "gainUnit"), "V/A");
+    assert_eq!(text(&s, "betaUnit"), "A/V");
+    assert_eq!(text(&s, "sense"), "negative");
+    assert!((num(&s, "closedLoopGain") + 1e5 / 101.0).abs() < 1e-9);
+    assert!((num(&s, "idealGain") + 1e3).abs() < 1e-9);
+
+    let none = api::summarize_feedback("series-shunt", 10.0, 0.0).unwrap();
+    assert!(field(&none, "idealGain").is_null());
+
+    let z = api::impedances_with_feedback("series-shunt", 1e6, 0.0, 100.0, 0.0, 1e4, 0.0, 0.0999, 0.0).unwrap();
+    assert!((num(&field(&z, "input"), "re") - 1e9).abs() < 1e-3);
+    assert!((num(&field(&z, "output"), "magnitude") - 0.1).abs() < 1e-12);
+
+    let p = api::loop_phasors(0.0, -1000.0, 0.1, 0.0).unwrap();
+    let d = field(&p, "feedbackAmount");
+    assert!((num(&d, "re") - 1.0).abs() < 1e-12 && (num(&d, "im") + 100.0).abs() < 1e-12);
+
+    let c = api::max_closed_loop_gain(1e5, 100.0).unwrap();
+    assert!((num(&c, "closedLoopGain") - 1000.0).abs() < 1e-9);
+
+    let g = api::gain_spread(0.01, 5e4, 1e5, 2e5).unwrap();
+    assert_eq!(field(&g, "positiveFeedback").as_bool(), Some(false));
+    assert!((num(&g, "spreadPpm") - num(&g, "spreadPercent") * 1e4).abs() < 1e-6);
+
+    let t = api::topology_info("current-series").unwrap();
+    assert_eq!(text(&t, "name"), "series-series");
+    assert_eq!(text(&t, "mixing"), "series");
+    assert_eq!(text(&t, "sampling"), "current");
+}
+
+#[wasm_bindgen_test]
+fn bad_input_throws_typed_errors() {
+    assert_thrown(api::closed_loop_gain(f64::NAN, 0.1), "not_finite", "a");
+    assert_thrown(api::closed_loop_gain(0.0, 0.1), "out_of_domain", "a");
+    assert_thrown(api::closed_loop_gain(-10.0, 0.1), "oscillation", "beta");
+    assert_thrown(api::beta_for_gain(100.0, 1000.0), "unreachable", "target_gain");
+    assert_thrown(api::summarize_feedback("series-parallel", 1.0, 1.0), "unknown_name", "topology");
+    assert_thrown(api::impedances_with_feedback("shunt-shunt", -1.0, 0.0, 1.0, 0.0, 1.0, 0.0, 1.0, 0.0), "out_of_domain", "zi");
+    assert_thrown(api::min_open_loop_gain(0.1, 2.0), "out_of_domain", "gain_error");
+    assert_thrown(api::gain_spread(0.1, 3.0, 2.0, 1.0), "out_of_domain", "a_typ");
+}

@@ -1,0 +1,53 @@
+// Entry point of the page: load the wasm core once, mount the calculator cards and
+// the worksheet, and switch between them with the tabs.
+
+import init, * as api from '../pkg/loopwright.js';
+import { mountCard } from './card.js';
+import { FEEDBACK_CARDS } from './cards/feedback.js';
+import { NETWORK_CARDS } from './cards/network.js';
+import { DISTORTION_CARDS } from './cards/distortion.js';
+import { mountWorksheet } from './sheet/worksheet.js';
+import { wasmSource } from './wasm-source.js';
+
+function setUpTabs() {
+  const tabs = [...document.querySelectorAll('[role="tab"]')];
+  const select = (tab) => {
+    for (const t of tabs) {
+      const on = t === tab;
+      t.setAttribute('aria-selected', String(on));
+      t.tabIndex = on ? 0 : -1;
+      document.getElementById(t.getAttribute('aria-controls')).hidden = !on;
+    }
+  };
+  for (const tab of tabs) {
+    tab.addEventListener('click', () => select(tab));
+    tab.addEventListener('keydown', (e) => {
+      const i = tabs.indexOf(tab);
+      const next = e.key === 'ArrowRight' ? tabs[(i + 1) % tabs.length] : e.key === 'ArrowLeft' ? tabs[(i - 1 + tabs.length) % tabs.length] : null;
+      if (next) { e.preventDefault(); select(next); next.focus(); }
+    });
+  }
+  return select;
+}
+
+async function start() {
+  const status = document.getElementById('load-status');
+  const select = setUpTabs();
+  try {
+    await init({ module_or_path: wasmSource() });
+  } catch (err) {
+    status.textContent = `The calculation core could not be loaded: ${err.message}`;
+    status.dataset.state = 'failed';
+    return;
+  }
+  const host = document.getElementById('cards');
+  for (const def of [...FEEDBACK_CARDS, ...NETWORK_CARDS, ...DISTORTION_CARDS]) mountCard(host, def, api);
+  performance.mark('loopwright-first-result');
+  if (api.Worksheet) await mountWorksheet(document.getElementById('worksheet'), api);
+  if (location.search.includes('view=sheet')) select(document.getElementById('tab-sheet'));
+  status.textContent = `Core ${api.version()} loaded.`;
+  status.dataset.state = 'ready';
+  document.documentElement.dataset.ready = 'true';
+}
+
+start();

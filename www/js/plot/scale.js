@@ -1,0 +1,65 @@
+// Pure scale and tick helpers for the plots. No DOM here.
+
+/** A linear or base-10 log mapping from [d0, d1] onto [r0, r1]. */
+export function makeScale([d0, d1], [r0, r1], log = false) {
+  const f = log ? Math.log10 : (v) => v;
+  const a = f(d0);
+  const span = f(d1) - a || 1;
+  const map = (v) => r0 + ((f(v) - a) / span) * (r1 - r0);
+  map.domain = [d0, d1];
+  map.log = log;
+  return map;
+}
+
+/** Smallest and largest finite values of the arrays (for log, positive values only). */
+export function extent(arrays, log = false) {
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (const arr of arrays) {
+    for (const v of arr) {
+      if (!Number.isFinite(v) || (log && v <= 0)) continue;
+      if (v < lo) lo = v;
+      if (v > hi) hi = v;
+    }
+  }
+  if (lo === Infinity) return log ? [1, 10] : [0, 1];
+  if (lo === hi) return log ? [lo / 10, hi * 10] : [lo - 1, hi + 1];
+  return [lo, hi];
+}
+
+/** "Nice" linear ticks (steps of 1, 2 or 5 × 10ⁿ) covering [lo, hi]; about `count` of them. */
+export function linearTicks(lo, hi, count = 6) {
+  const raw = (hi - lo) / Math.max(1, count);
+  const mag = 10 ** Math.floor(Math.log10(raw));
+  const step = [1, 2, 5, 10].map((m) => m * mag).find((s) => s >= raw) ?? 10 * mag;
+  const first = Math.ceil(lo / step - 1e-9) * step;
+  const ticks = [];
+  for (let v = first; v <= hi + step * 1e-9; v += step) ticks.push(Math.abs(v) < step * 1e-9 ? 0 : v);
+  return { ticks, step };
+}
+
+/** Widen [lo, hi] to whole tick steps. */
+export function niceDomain(lo, hi, count = 6) {
+  const { step } = linearTicks(lo, hi, count);
+  return [Math.floor(lo / step) * step, Math.ceil(hi / step) * step];
+}
+
+/** Decade ticks 10ⁿ covering [lo, hi] (positive), with the domain widened to whole decades. */
+export function decadeTicks(lo, hi) {
+  const a = Math.floor(Math.log10(lo));
+  const b = Math.ceil(Math.log10(hi));
+  const ticks = [];
+  for (let e = a; e <= b; e++) ticks.push(10 ** e);
+  return { ticks, domain: [10 ** a, 10 ** b] };
+}
+
+const PREFIX = [[1e12, 'T'], [1e9, 'G'], [1e6, 'M'], [1e3, 'k'], [1, ''], [1e-3, 'm'], [1e-6, 'µ'], [1e-9, 'n'], [1e-12, 'p']];
+
+/** Short tick label with an SI prefix: 1k, 10M, 2.5, 100µ. */
+export function tickLabel(v) {
+  if (v === 0) return '0';
+  const mag = Math.abs(v);
+  const [scale, prefix] = PREFIX.find(([s]) => mag >= s * 0.999999) ?? PREFIX[PREFIX.length - 1];
+  const n = v / scale;
+  return `${Number(n.toPrecision(3))}${prefix}`;
+}
