@@ -4,6 +4,8 @@
 // same key. Each case: {key, area, what, make(lw) → fn, plainJs?: () → fn,
 // python?: true, target}.
 
+import { buildSheet } from './sheet_build.mjs';
+
 export const CASES = [
   {
     key: 'closed_loop_gain',
@@ -56,5 +58,25 @@ export const CASES = [
     what: 'best E192 resistor pair for gain 7.77 over three decades (1 kΩ … 1 MΩ)',
     make: (lw) => () => lw.bestPairs('non-inverting', 7.77, 'E192', 1e3, 1e6, undefined, undefined, 'none', 10),
     target: '< 2 ms',
+  },
+  {
+    key: 'sheet_recalculate',
+    area: 'worksheet',
+    what: 'full recalculation of a 10 000-cell sheet (chain, ranges, fan-out, catalog functions)',
+    make: (lw) => {
+      const ws = buildSheet(lw);
+      return () => ws.recalculate();
+    },
+    target: '< 20 ms',
+  },
+  {
+    key: 'sheet_edit_100',
+    area: 'worksheet',
+    what: 'one edit reaching 100 dependents in that sheet',
+    make: (lw) => {
+      const ws = buildSheet(lw);
+      return (i) => ws.setCell('F1', String(2 + (i % 7)));
+    },
+    target: '< 1 ms',
   },
 ];

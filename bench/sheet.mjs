@@ -7,34 +7,20 @@
 import { performance } from 'node:perf_hooks';
 import { pathToFileURL } from 'node:url';
 import { resolve } from 'node:path';
+import { buildSheet } from './sheet_build.mjs';
 
 const args = process.argv.slice(2);
 const quick = args.includes('--quick');
 const modPath = args.find((a) => !a.startsWith('--')) ?? 'pkg/node.mjs';
 const lw = await import(pathToFileURL(resolve(modPath)).href);
-const Worksheet = lw.Worksheet ?? lw.default?.Worksheet;
-
-const ROWS = 2000; // 5 columns × 2000 rows = 10 000 formula and constant cells
-
-function build() {
-  const ws = new Worksheet();
-  ws.setCell('F1', '1');
-  for (let n = 1; n <= ROWS; n++) {
-    ws.setCell(`A${n}`, `${n}k`);
-    ws.setCell(`B${n}`, n === 1 ? '=A1' : `=B${n - 1}*0.5 + A${n}`);
-    ws.setCell(`C${n}`, `=FB.GAIN(A${n}*100; 0.01)`);
-    ws.setCell(`D${n}`, `=SUM(A${Math.max(1, n - 9)}:A${n})`);
-    ws.setCell(`E${n}`, n <= 100 ? `=DB.VOLTAGE(C${n})*$F$1` : `=DB.VOLTAGE(C${n})`);
-  }
-  return ws;
-}
+const Worksheet = lw.Worksheet;
 
 function median(xs) {
   const s = [...xs].sort((a, b) => a - b);
   return s[Math.floor(s.length / 2)];
 }
 
-const ws = build();
+const ws = buildSheet(lw);
 const doc = ws.saveDocument();
 const full = [];
 for (let i = 0; i < (quick ? 2 : 9); i++) {
