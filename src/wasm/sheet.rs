@@ -11,6 +11,51 @@ use alloc::vec::Vec;
 use serde::Serialize;
 use wasm_bindgen::prelude::*;
 
+#[wasm_bindgen(typescript_custom_section)]
+const SHEET_TYPES: &str = r##"
+/** What a worksheet cell shows. */
+export interface CellValue {
+  /** Address such as "B3". */
+  address: string;
+  kind: "empty" | "number" | "text" | "boolean" | "error";
+  /** The value as the cell shows it: number with unit, TRUE/FALSE, error code. */
+  display: string;
+  number: number | null;
+  /** Unit symbol the number was written with: "Ω", "V", "A", "S", "Hz", "F", "H" or "dB". */
+  unit: string | null;
+  text: string | null;
+  boolean: boolean | null;
+  /** Error code such as "#DIV/0!", "#CYCLE!", "#BLOCKED!", "#SYNTAX!". */
+  error: string | null;
+  /** One-line explanation of the error value. */
+  message: string | null;
+  /** The cell's input, or null for an empty cell. */
+  input: string | null;
+  /** The range this cell spills into, such as "C1:D1", when it spills. */
+  spill: string | null;
+}
+/** An error value a cell can show. */
+export interface ErrorValueInfo { code: string; explanation: string; }
+/** One parameter of a worksheet function (from `functionCatalog()`). */
+export interface CatalogParam {
+  name: string; summary: string; unit: string; optional: boolean; default: number | null; range: string;
+}
+/** One worksheet function; `JSON.parse(functionCatalog()).functions` is an array of these. */
+export interface CatalogFunction {
+  name: string;
+  area: string;
+  summary: string;
+  params: CatalogParam[];
+  /** Whether the last parameter repeats. */
+  repeats: boolean;
+  resultUnit: string;
+  /** For several-valued results: what each spilled cell holds, left to right. */
+  spill: string[];
+  example: { formula: string; expected: number[] | boolean | string; source: string };
+}
+export interface FunctionCatalog { format: "loopwright-functions"; version: 1; functions: CatalogFunction[]; }
+"##;
+
 /// Most cells `values()` returns at once.
 const MAX_VIEW_CELLS: u64 = 100_000;
 
@@ -115,7 +160,7 @@ impl Worksheet {
 
     /// Set a cell's input (`"4k7"`, `"=FB.GAIN(A1; A2)"`, `""` to clear); returns
     /// the addresses whose shown value changed.
-    #[wasm_bindgen(js_name = setCell)]
+    #[wasm_bindgen(js_name = setCell, unchecked_return_type = "string[]")]
     pub fn set_cell(&mut self, address: &str, input: &str) -> Result<js_sys::Array, JsValue> {
         let c = cell(address)?;
         Ok(addresses(throw(self.sheet.set_cell(c, input))?))
@@ -123,13 +168,15 @@ impl Worksheet {
 
     /// What a cell shows: `{address, kind, display, number, unit, text, boolean,
     /// error, message, input, spill}`.
+    #[wasm_bindgen(unchecked_return_type = "CellValue")]
     pub fn value(&self, address: &str) -> Result<JsValue, JsValue> {
         to_js(&view(&self.sheet, cell(address)?))
     }
 
     /// What every cell of a range shows, as rows of the objects of `value`.
-    pub fn values(&self, range_text: &str) -> Result<JsValue, JsValue> {
-        let r = range(range_text)?;
+    #[wasm_bindgen(unchecked_return_type = "CellValue[][]")]
+    pub fn values(&self, cells: &str) -> Result<JsValue, JsValue> {
+        let r = range(cells)?;
         if r.area() > MAX_VIEW_CELLS {
             return Err(js_error(crate::Error::TooLarge { param: "range", limit: MAX_VIEW_CELLS }));
         }
@@ -140,6 +187,7 @@ impl Worksheet {
     }
 
     /// Re-evaluate every cell; returns the changed addresses (normally none).
+    #[wasm_bindgen(unchecked_return_type = "string[]")]
     pub fn recalculate(&mut self) -> js_sys::Array {
         addresses(self.sheet.recalculate_all())
     }
@@ -150,25 +198,26 @@ impl Worksheet {
     }
 
     /// The addresses whose shown value changed in the last edit.
-    #[wasm_bindgen(js_name = changedCells)]
+    #[wasm_bindgen(js_name = changedCells, unchecked_return_type = "string[]")]
     pub fn changed_cells(&self) -> js_sys::Array {
         addresses(self.sheet.changed())
     }
 
     /// Name a cell; returns the changed addresses.
-    #[wasm_bindgen(js_name = setName)]
+    #[wasm_bindgen(js_name = setName, unchecked_return_type = "string[]")]
     pub fn set_name(&mut self, name: &str, address: &str) -> Result<js_sys::Array, JsValue> {
         let c = cell(address)?;
         Ok(addresses(throw(self.sheet.set_name(name, c))?))
     }
 
     /// Remove a name; returns the changed addresses.
-    #[wasm_bindgen(js_name = removeName)]
+    #[wasm_bindgen(js_name = removeName, unchecked_return_type = "string[]")]
     pub fn remove_name(&mut self, name: &str) -> js_sys::Array {
         addresses(self.sheet.remove_name(name))
     }
 
     /// The names as an object `{name: address}`.
+    #[wasm_bindgen(unchecked_return_type = "Record<string, string>")]
     pub fn names(&self) -> Result<JsValue, JsValue> {
         let m: alloc::collections::BTreeMap<&str, String> = self.sheet.names().map(|(n, c)| (n, c.to_string())).collect();
         to_js(&m)
@@ -183,7 +232,7 @@ impl Worksheet {
     /// Replace the sheet by a document; throws (code `bad_document`) and leaves
     /// the sheet as it was when the document is refused. Returns the changed
     /// addresses.
-    #[wasm_bindgen(js_name = loadDocument)]
+    #[wasm_bindgen(js_name = loadDocument, unchecked_return_type = "string[]")]
     pub fn load_document(&mut self, text: &str) -> Result<js_sys::Array, JsValue> {
         self.sheet.load_document(text).map_err(document_error)?;
         Ok(addresses(self.sheet.changed()))
@@ -197,20 +246,19 @@ impl Worksheet {
 
     /// Shown values of a range, as TSV for the clipboard.
     #[wasm_bindgen(js_name = rangeToTsv)]
-    pub fn range_to_tsv(&self, range_text: &str) -> Result<String, JsValue> {
-        throw(range_to_tsv(&self.sheet, range(range_text)?))
+    pub fn range_to_tsv(&self, cells: &str) -> Result<String, JsValue> {
+        throw(range_to_tsv(&self.sheet, range(cells)?))
     }
 
     /// Paste TSV with its first field at `address`; returns the changed addresses.
-    #[wasm_bindgen(js_name = pasteTsv)]
+    #[wasm_bindgen(js_name = pasteTsv, unchecked_return_type = "string[]")]
     pub fn paste_tsv(&mut self, address: &str, text: &str) -> Result<js_sys::Array, JsValue> {
         let c = cell(address)?;
         Ok(addresses(throw(self.sheet.paste_tsv(c, text))?))
     }
 }
 
-/// The function catalog as JSON text (see the Rust docs of
-/// `sheet::functions::catalog_json` for its shape).
+/// The function catalog as JSON text: `JSON.parse` gives a `FunctionCatalog`.
 #[wasm_bindgen(js_name = functionCatalog)]
 pub fn function_catalog() -> String {
     catalog_json()
@@ -223,7 +271,7 @@ struct ErrorInfo {
 }
 
 /// The error values a cell can show: `[{code, explanation}]`.
-#[wasm_bindgen(js_name = errorValues)]
+#[wasm_bindgen(js_name = errorValues, unchecked_return_type = "ErrorValueInfo[]")]
 pub fn error_values() -> Result<JsValue, JsValue> {
     let list: Vec<ErrorInfo> =
         ErrorKind::ALL.iter().map(|k| ErrorInfo { code: k.code(), explanation: k.explanation() }).collect();
