@@ -341,7 +341,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
                 0.000_999_000_999_000_999,
                 0.0,
             ]),
-            source: "Af = A/(1 + A/100) at 50k, 100k, 200k, computed in double precision (Python, by hand)",
+            source: "Af = A/(1 + A/100) at 50k, 100k, 200k; tests/reference/sheet_catalog.py (mpmath, 40 digits)",
         },
         eval: spread,
     },

@@ -5,7 +5,8 @@
 //! and in which unit, how a several-valued result spills, a worked example with
 //! its stated value, and the Rust function that evaluates it. The page's help,
 //! the JS docs and the catalog JSON ([`catalog_json`]) are generated from these
-//! entries; a test evaluates every example.
+//! entries; a test evaluates every example, and `tests/reference/sheet_catalog.py`
+//! recomputes every numeric one with mpmath so the stated values have a source.
 //!
 //! Names: plain words in upper case; functions of a catalog area carry the area's
 //! prefix and a dot (`FB.GAIN`, `DB.VOLTAGE`); the common spreadsheet functions
