@@ -92,6 +92,8 @@ fn spills_names_and_ranges() {
     assert_eq!(text(&ws.value("C1").unwrap(), "spill"), "C1:D1");
     // A/D = 1000 and (D − 1)/A = 0.00099 with A = 100 000, D = 100.
     assert_eq!(num(&ws.value("D1").unwrap(), "number"), 0.00099);
+    assert_eq!(text(&ws.value("D1").unwrap(), "spilledFrom"), "C1");
+    assert!(field(&ws.value("C1").unwrap(), "spilledFrom").is_null());
     ws.set_cell("D1", "in the way").unwrap();
     assert_eq!(text(&ws.value("C1").unwrap(), "error"), "#BLOCKED!");
     let rows: Array = ws.values("C1:D1").unwrap().dyn_into().unwrap();

@@ -203,6 +203,12 @@ impl Sheet {
         self.spills.get(&c).copied()
     }
 
+    /// The formula cell whose results spill into `c`, when `c` is covered by a
+    /// spill (not for the formula's own cell).
+    pub fn spill_anchor(&self, c: CellRef) -> Option<CellRef> {
+        self.owner.get(&c).copied()
+    }
+
     /// The cells whose shown value changed in the last edit, in row order.
     pub fn changed(&self) -> &[CellRef] {
         &self.changed
@@ -742,6 +748,7 @@ mod tests {
         let mut s = Sheet::new();
         s.set("A1", "=FB.CEILING(100k; 100)").unwrap();
         assert_eq!(s.value("B1").unwrap(), Value::num(0.00099));
+        assert_eq!((s.spill_anchor(c("B1")), s.spill_anchor(c("A1"))), (Some(c("A1")), None));
         s.set("C1", "=B1*2").unwrap();
         assert_eq!(s.value("C1").unwrap(), Value::num(0.00198));
         let changed = s.set("B1", "x").unwrap().to_vec();

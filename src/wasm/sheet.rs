@@ -33,6 +33,8 @@ export interface CellValue {
   input: string | null;
   /** The range this cell spills into, such as "C1:D1", when it spills. */
   spill: string | null;
+  /** The cell whose results spill into this one, when one does. */
+  spilledFrom: string | null;
 }
 /** An error value a cell can show. */
 export interface ErrorValueInfo { code: string; explanation: string; }
@@ -93,6 +95,8 @@ struct CellView {
     input: Option<String>,
     /// The range this cell spills into, when it spills.
     spill: Option<String>,
+    /// The cell whose results spill into this one, when one does.
+    spilled_from: Option<String>,
 }
 
 fn view(sheet: &Sheet, c: CellRef) -> CellView {
@@ -109,6 +113,7 @@ fn view(sheet: &Sheet, c: CellRef) -> CellView {
         message: None,
         input: sheet.input(c).map(String::from),
         spill: sheet.spill_range(c).map(|r| r.to_string()),
+        spilled_from: sheet.spill_anchor(c).map(|a| a.to_string()),
     };
     match v {
         Value::Empty | Value::Array(_) => {}
@@ -167,7 +172,7 @@ impl Worksheet {
     }
 
     /// What a cell shows: `{address, kind, display, number, unit, text, boolean,
-    /// error, message, input, spill}`.
+    /// error, message, input, spill, spilledFrom}`.
     #[wasm_bindgen(unchecked_return_type = "CellValue")]
     pub fn value(&self, address: &str) -> Result<JsValue, JsValue> {
         to_js(&view(&self.sheet, cell(address)?))
