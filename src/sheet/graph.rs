@@ -161,6 +161,9 @@ pub fn order(n: usize, edges: impl Fn(usize, &mut Vec<usize>)) -> (Vec<usize>, V
             _ => &[],
         }
     };
+    // Every index below is a node number below n: roots come from 0..n and edge
+    // targets of n or more are skipped, so the vectors of length n are never
+    // indexed out of bounds.
     let mut index = alloc::vec![UNSEEN; n];
     let mut low = alloc::vec![0usize; n];
     let mut on_stack = alloc::vec![false; n];

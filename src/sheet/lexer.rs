@@ -6,6 +6,9 @@
 //! ([`super::literal`]) and `,` accepted beside `;` as the argument separator.
 //! Positions are 1-based character columns of the formula text.
 
+// Every slice below is taken at an offset produced by stepping over whole
+// characters (or ASCII bytes) of the source, so it cannot panic.
+
 use super::address::CellRef;
 use super::errors::ErrorKind;
 use super::literal;

@@ -16,6 +16,10 @@
 //! The value is formed by decimal string conversion (digits and a combined
 //! exponent), so `4k7` is exactly the f64 nearest 4700, not 4.7 × 1000.
 
+// Every slice below is taken at an offset this scan produced by stepping over
+// ASCII bytes or whole characters of `s`, so it lies on a character boundary
+// within the text and cannot panic (the proptest and the fuzz target agree).
+
 use super::value::Unit;
 use alloc::string::String;
 use core::fmt::Write;
