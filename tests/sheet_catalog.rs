@@ -58,12 +58,15 @@ fn catalog_json_lists_every_function_with_its_parts() {
     for (entry, f) in list.iter().zip(all()) {
         assert_eq!(entry["name"], f.name);
         assert_eq!(entry["params"].as_array().unwrap().len(), f.params.len());
-        assert_eq!(entry["example"]["formula"], f.example.formula);
+        assert_eq!(entry["examples"][0]["formula"], f.example.formula);
+        assert!(entry["result"].as_str().unwrap().contains(f.result_unit), "{}", f.name);
         assert_eq!(entry["resultUnit"], f.result_unit);
     }
     let round = list.iter().find(|e| e["name"] == "ROUND").unwrap();
     assert_eq!(round["params"][1]["default"], 0.0);
     assert_eq!(round["params"][1]["optional"], true);
+    let ceiling = list.iter().find(|e| e["name"] == "FB.CEILING").unwrap();
+    assert_eq!(ceiling["result"], "row of 2: closed-loop gain A/D; beta (D − 1)/A (as a; reciprocal of a's unit)");
 }
 
 #[test]

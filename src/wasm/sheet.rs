@@ -50,10 +50,12 @@ export interface CatalogFunction {
   params: CatalogParam[];
   /** Whether the last parameter repeats. */
   repeats: boolean;
+  /** What it gives, in words (unit; for several values what each spilled cell holds). */
+  result: string;
   resultUnit: string;
   /** For several-valued results: what each spilled cell holds, left to right. */
   spill: string[];
-  example: { formula: string; expected: number[] | boolean | string; source: string };
+  examples: { formula: string; expected: number[] | boolean | string; source: string }[];
 }
 export interface FunctionCatalog { format: "loopwright-functions"; version: 1; functions: CatalogFunction[]; }
 "##;

@@ -307,10 +307,29 @@ macro_rules! tri {
 }
 pub(crate) use tri;
 
+/// What a function gives, in words: the result unit, and for several values what
+/// each spilled cell holds (`"Ω"`, `"row of 2: closed-loop gain A/D; beta (D − 1)/A"`).
+pub fn result_text(f: &FunctionSpec) -> String {
+    if f.spill.is_empty() {
+        return String::from(f.result_unit);
+    }
+    let mut s = format!("row of {}: ", f.spill.len());
+    for (i, item) in f.spill.iter().enumerate() {
+        if i > 0 {
+            s.push_str("; ");
+        }
+        s.push_str(item);
+    }
+    s.push_str(" (");
+    s.push_str(f.result_unit);
+    s.push(')');
+    s
+}
+
 /// The whole catalog as JSON: `{"format": "loopwright-functions", "version": 1,
 /// "functions": [{name, area, summary, params: [{name, summary, unit, optional,
-/// default, range}], repeats, resultUnit, spill, example: {formula, expected,
-/// source}}]}`.
+/// default, range}], repeats, result, resultUnit, spill, examples: [{formula,
+/// expected, source}]}]}`.
 pub fn catalog_json() -> String {
     let mut w = JsonWriter::new();
     w.begin_object();
@@ -352,6 +371,8 @@ pub fn catalog_json() -> String {
         w.end_array();
         w.key("repeats");
         w.boolean(f.repeats);
+        w.key("result");
+        w.string(&result_text(f));
         w.key("resultUnit");
         w.string(f.result_unit);
         w.key("spill");
@@ -360,7 +381,8 @@ pub fn catalog_json() -> String {
             w.string(s);
         }
         w.end_array();
-        w.key("example");
+        w.key("examples");
+        w.begin_array();
         w.begin_object();
         w.key("formula");
         w.string(f.example.formula);
@@ -379,6 +401,7 @@ pub fn catalog_json() -> String {
         w.key("source");
         w.string(f.example.source);
         w.end_object();
+        w.end_array();
         w.end_object();
     }
     w.end_array();
