@@ -21,7 +21,7 @@
 //! the cells it left or covered are evaluated again in a further pass. When
 //! spills still change what they read after [`MAX_SPILL_PASSES`] passes, the
 //! cells involved get `#CYCLE!`. Two spills competing for the same cells: the
-//! one evaluated first wins, which can depend on the order of edits.
+//! formula earlier in row-then-column order wins, whatever the order of edits.
 
 use super::address::{CellRef, Range, MAX_COLS, MAX_ROWS};
 use super::errors::{CellError, ErrorKind};
@@ -549,10 +549,17 @@ impl Sheet {
                 };
                 // A cell without input still gives up the cells it spilled into.
                 let v = v.unwrap_or(Value::Empty);
-                if let Some((old, new)) = self.place(c, v, rc) {
-                    // Whoever reads a cell the spill left or now covers reads anew.
-                    let touched: BTreeSet<CellRef> =
-                        old.into_iter().chain(new).flat_map(Range::cells).filter(|x| *x != c).collect();
+                let (regions, displaced) = self.place(c, v, rc);
+                if !regions.is_empty() {
+                    // Whoever reads a cell that changed hands reads anew; displaced
+                    // formulas and formulas waiting for those cells try again.
+                    let touched: BTreeSet<CellRef> = regions.iter().flat_map(|r| r.cells()).filter(|x| *x != c).collect();
+                    for (a, want) in &self.blocked {
+                        if *a != c && regions.iter().any(|r| r.intersects(want)) {
+                            again.insert(*a);
+                        }
+                    }
+                    again.extend(displaced);
                     if !touched.is_empty() {
                         again.extend(self.closure(touched));
                     }
@@ -624,9 +631,14 @@ impl Sheet {
         None
     }
 
-    /// Store `v` as the value of `c`, spilling arrays; when the rectangle covered
-    /// by its spill changed, returns the old and the new one.
-    fn place(&mut self, c: CellRef, v: Value, rc: &mut Recalc) -> Option<(Option<Range>, Option<Range>)> {
+    /// Store `v` as the value of `c`, spilling arrays. Returns the rectangles whose
+    /// cells changed hands (the old and new spill of `c`, and the spills of later
+    /// formulas that `c` displaced) and the displaced formulas.
+    ///
+    /// Where two spills would overlap, the formula earlier in row-then-column order
+    /// keeps the cells and the later one shows `#BLOCKED!`, whatever the order of
+    /// evaluation, so the outcome does not depend on the order of edits.
+    fn place(&mut self, c: CellRef, v: Value, rc: &mut Recalc) -> (Vec<Range>, Vec<CellRef>) {
         self.record(rc, c);
         let old_spill = self.spills.remove(&c);
         self.blocked.remove(&c);
@@ -637,6 +649,7 @@ impl Sheet {
             }
         }
         let mut new_spill = None;
+        let mut displaced: Vec<(CellRef, Range)> = Vec::new();
         let v = match v {
             Value::Array(a) if a.rows() > 1 || a.cols() > 1 => {
                 let end = c.offset(a.rows() - 1, a.cols() - 1);
@@ -644,9 +657,9 @@ impl Sheet {
                     None => Value::error(ErrorKind::Blocked, format!("{c}: the results would spill past the edge of the sheet ({MAX_ROWS} rows, {MAX_COLS} columns)")),
                     Some(end) => {
                         let r = Range::new(c, end);
-                        let blocker = r
-                            .cells()
-                            .find(|x| *x != c && (self.cells.contains_key(x) || self.owner.get(x).is_some_and(|a| *a != c)));
+                        let blocker = r.cells().find(|x| {
+                            *x != c && (self.cells.contains_key(x) || self.owner.get(x).is_some_and(|a| *a < c))
+                        });
                         match (blocker, self.spill_reads_itself(c, r)) {
                             (Some(b), _) => {
                                 self.blocked.insert(c, r);
@@ -660,6 +673,23 @@ impl Sheet {
                                 )
                             }
                             (None, None) => {
+                                // Later formulas spilling here give way.
+                                let later: BTreeSet<CellRef> = r.cells().filter_map(|x| self.owner.get(&x).copied()).collect();
+                                for a in later {
+                                    if let Some(ar) = self.spills.remove(&a) {
+                                        self.record(rc, a);
+                                        for x in ar.cells().filter(|x| *x != a) {
+                                            self.record(rc, x);
+                                            self.owner.remove(&x);
+                                        }
+                                        self.blocked.insert(a, ar);
+                                        self.values.insert(
+                                            a,
+                                            Value::error(ErrorKind::Blocked, format!("the results would spill into cells that {c} fills")),
+                                        );
+                                        displaced.push((a, ar));
+                                    }
+                                }
                                 for x in r.cells().filter(|x| *x != c) {
                                     self.record(rc, x);
                                     self.owner.insert(x, c);
@@ -679,7 +709,13 @@ impl Sheet {
         } else {
             self.values.remove(&c);
         }
-        (old_spill != new_spill).then_some((old_spill, new_spill))
+        let mut regions: Vec<Range> = Vec::new();
+        if old_spill != new_spill {
+            regions.extend(old_spill);
+            regions.extend(new_spill);
+        }
+        regions.extend(displaced.iter().map(|(_, r)| *r));
+        (regions, displaced.into_iter().map(|(a, _)| a).collect())
     }
 
     fn finish(&mut self, rc: Recalc) {
@@ -785,6 +821,30 @@ mod tests {
         assert_eq!(s.value("C5").unwrap(), Value::num(0.0));
         s.set("C5", "1").unwrap();
         assert_eq!(s.value("A1").unwrap(), Value::num(1001.0 / 100.0));
+    }
+
+    #[test]
+    fn competing_spills_go_to_the_earlier_formula_whatever_the_edit_order() {
+        let blocked = |s: &Sheet, a: &str| matches!(s.value(a).unwrap(), Value::Error(e) if e.kind == ErrorKind::Blocked);
+        let mut s = Sheet::new();
+        for (a, v) in [("A4", "1"), ("B4", "2"), ("A5", "3"), ("B5", "4"), ("C4", "5"), ("C5", "6"), ("C6", "7")] {
+            s.set(a, v).unwrap();
+        }
+        // A2 spills into A2:B3; then B1 (earlier in row order) wants B1:B3.
+        s.set("A2", "=A4:B5").unwrap();
+        assert_eq!(s.value("B3").unwrap(), Value::num(4.0));
+        let changed = s.set("B1", "=C4:C6").unwrap().to_vec();
+        assert!(changed.contains(&c("A2")) && changed.contains(&c("B3")));
+        assert!(blocked(&s, "A2"));
+        assert_eq!(s.value("B3").unwrap(), Value::num(7.0));
+        let mut fresh = Sheet::new();
+        fresh.load_document(&s.save_document()).unwrap();
+        assert!(blocked(&fresh, "A2"));
+        assert_eq!(fresh.value("B3").unwrap(), Value::num(7.0));
+        // When B1 stops spilling, A2 takes its cells again.
+        s.set("B1", "0").unwrap();
+        assert_eq!(s.value("A2").unwrap(), Value::num(1.0));
+        assert_eq!(s.value("B3").unwrap(), Value::num(4.0));
     }
 
     #[test]
