@@ -5,6 +5,7 @@
 // python?: true, target}.
 
 import { CIRCUIT_CASES } from './circuit_cases.mjs';
+import { buildSheet } from './sheet_build.mjs';
 
 // The loop of the freq cases (bench/peers.py builds the same one).
 const FREQ_A = { gain: 1e5, polesHz: [10, 1e5, 1e6, 3e6, 1e7, 3e7], zerosHz: [2e6, 5e7] };
@@ -123,6 +124,26 @@ export const CASES = [
     what: 'best E192 resistor pair for gain 7.77 over three decades (1 kΩ … 1 MΩ)',
     make: (lw) => () => lw.bestPairs('non-inverting', 7.77, 'E192', 1e3, 1e6, undefined, undefined, 'none', 10),
     target: '< 2 ms',
+  },
+  {
+    key: 'sheet_recalculate',
+    area: 'worksheet',
+    what: 'full recalculation of a 10 000-cell sheet (chain, ranges, fan-out, catalog functions)',
+    make: (lw) => {
+      const ws = buildSheet(lw);
+      return () => ws.recalculate();
+    },
+    target: '< 20 ms',
+  },
+  {
+    key: 'sheet_edit_100',
+    area: 'worksheet',
+    what: 'one edit reaching 100 dependents in that sheet',
+    make: (lw) => {
+      const ws = buildSheet(lw);
+      return (i) => ws.setCell('F1', String(2 + (i % 7)));
+    },
+    target: '< 1 ms',
   },
   ...CIRCUIT_CASES,
 ];

@@ -35,6 +35,7 @@ pub mod network;
 pub mod noise;
 pub mod nonlinear;
 pub mod notation;
+pub mod sheet;
 
 #[cfg(feature = "wasm")]
 pub mod wasm;

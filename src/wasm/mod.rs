@@ -12,6 +12,7 @@ pub mod freq;
 pub mod network;
 pub mod noise;
 pub mod nonlinear;
+pub mod sheet;
 
 use crate::Error;
 use wasm_bindgen::prelude::*;
