@@ -153,7 +153,7 @@ fn declared_units_are_checked() {
 fn agrees_with_the_network_notation_parser() {
     // Two readers of the same notation (the network area's for part values, this
     // one for worksheet cells) must give the same f64 wherever both accept the text.
-    use loopwright::network::notation::parse_value;
+    use loopwright::notation::parse_value;
     for text in [
         "4k7", "2R2", "R47", "1M5", "4n7", "2p2", "p68", "4.7k", "10R", "470R", "100nF", "4.7 kΩ", "10 kohm", "1e-9",
         ".47", "-2.5", "3K3", "4u7", "2\u{b5}2", "33 V", "1G", "1T5",
