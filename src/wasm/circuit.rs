@@ -16,6 +16,28 @@ use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen(typescript_custom_section)]
 const CIRCUIT_TYPES: &str = r#"
+/** An element value: a number, or a schematic text such as "4k7", "100n" or "4.7 kΩ". */
+export type CircuitValue = number | string;
+/** What every element of a circuit document has; its current flows from nodes[0] through it to nodes[1]. */
+export interface CircuitElementBase { name: string; nodes: [string, string]; value: CircuitValue; }
+export interface TwoTerminalElement extends CircuitElementBase {
+  kind: "resistor" | "capacitor" | "inductor" | "voltage-source" | "current-source";
+}
+/** vcvs (V/V) or vccs (A/V), controlled by V(control[0]) − V(control[1]). */
+export interface VoltageControlledElement extends CircuitElementBase { kind: "vcvs" | "vccs"; control: [string, string]; }
+/** ccvs (V/A) or cccs (A/A), controlled by the current of `controlElement`. */
+export interface CurrentControlledElement extends CircuitElementBase { kind: "ccvs" | "cccs"; controlElement: string; }
+/** A fixed complex admittance value + j·valueIm, S. */
+export interface AdmittanceElement extends CircuitElementBase { kind: "admittance"; valueIm?: CircuitValue; }
+export type CircuitElement = TwoTerminalElement | VoltageControlledElement | CurrentControlledElement | AdmittanceElement;
+/** The circuit document (docs/circuit-format.md); the functions take and give its JSON text. */
+export interface CircuitDocument {
+  format: "loopwright-circuit";
+  version: 1;
+  /** Every node besides ground, when declared. */
+  nodes?: string[];
+  elements: CircuitElement[];
+}
 /** What a circuit function throws: a LoopwrightError that also names the node or element at fault ("" when none). */
 export interface CircuitError extends LoopwrightError { subject: string; }
 /** A complex value in rectangular form (V, A, Ω or a ratio, as the field says). */

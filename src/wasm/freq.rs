@@ -19,6 +19,8 @@ use wasm_bindgen::JsCast;
 const FREQ_TYPES: &str = r#"
 /** A complex pole or zero pair by its natural frequency (Hz) and Q. */
 export interface ComplexPairInput { freqHz: number; q: number; }
+/** A list of frequencies: a plain array or a Float64Array. */
+export type HzList = readonly number[] | Float64Array;
 /**
  * A transfer function as gain, poles and zeros (frequencies in Hz, delay in s).
  * Every field but `gain` may be left out; an unknown field is rejected.
@@ -26,16 +28,16 @@ export interface ComplexPairInput { freqHz: number; q: number; }
 export interface TransferModelInput {
   /** Midband (or DC) gain, signed. */
   gain: number;
-  polesHz?: readonly number[];
-  zerosHz?: readonly number[];
-  rhpZerosHz?: readonly number[];
-  rhpPolesHz?: readonly number[];
+  polesHz?: HzList;
+  zerosHz?: HzList;
+  rhpZerosHz?: HzList;
+  rhpPolesHz?: HzList;
   complexPoles?: readonly ComplexPairInput[];
   complexZeros?: readonly ComplexPairInput[];
   /** Integrators (poles at s = 0). */
   originPoles?: number;
   /** Low cuts: a zero at the origin with a pole at each frequency. */
-  lowCutsHz?: readonly number[];
+  lowCutsHz?: HzList;
   delayS?: number;
 }
 /** The amplifier A; it may also set the Padé order (1…10, default 6) used for a delay in the whole loop. */
