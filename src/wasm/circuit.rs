@@ -14,6 +14,81 @@ use num_complex::Complex64;
 use serde::Serialize;
 use wasm_bindgen::prelude::*;
 
+#[wasm_bindgen(typescript_custom_section)]
+const CIRCUIT_TYPES: &str = r#"
+/** An element value: a number, or a schematic text such as "4k7", "100n" or "4.7 kΩ". */
+export type CircuitValue = number | string;
+/** What every element of a circuit document has; its current flows from nodes[0] through it to nodes[1]. */
+export interface CircuitElementBase { name: string; nodes: [string, string]; value: CircuitValue; }
+export interface TwoTerminalElement extends CircuitElementBase {
+  kind: "resistor" | "capacitor" | "inductor" | "voltage-source" | "current-source";
+}
+/** vcvs (V/V) or vccs (A/V), controlled by V(control[0]) − V(control[1]). */
+export interface VoltageControlledElement extends CircuitElementBase { kind: "vcvs" | "vccs"; control: [string, string]; }
+/** ccvs (V/A) or cccs (A/A), controlled by the current of `controlElement`. */
+export interface CurrentControlledElement extends CircuitElementBase { kind: "ccvs" | "cccs"; controlElement: string; }
+/** A fixed complex admittance value + j·valueIm, S. */
+export interface AdmittanceElement extends CircuitElementBase { kind: "admittance"; valueIm?: CircuitValue; }
+export type CircuitElement = TwoTerminalElement | VoltageControlledElement | CurrentControlledElement | AdmittanceElement;
+/** The circuit document (docs/circuit-format.md); the functions take and give its JSON text. */
+export interface CircuitDocument {
+  format: "loopwright-circuit";
+  version: 1;
+  /** Every node besides ground, when declared. */
+  nodes?: string[];
+  elements: CircuitElement[];
+}
+/** What a circuit function throws: a LoopwrightError that also names the node or element at fault ("" when none). */
+export interface CircuitError extends LoopwrightError { subject: string; }
+/** A complex value in rectangular form (V, A, Ω or a ratio, as the field says). */
+export interface Complex { re: number; im: number; }
+/** A node voltage against ground (V) or an element current (A). */
+export interface NamedComplex { name: string; re: number; im: number; }
+export interface CircuitSolution {
+  frequencyHz: number;
+  /** Ground first, at 0. */
+  nodeVoltages: NamedComplex[];
+  /** From each element's node a through it to its node b. */
+  elementCurrents: NamedComplex[];
+}
+/** A transfer over frequency, one entry per requested frequency. */
+export interface ComplexSweep { re: Float64Array; im: Float64Array; }
+/** Which two-port parameter set the topology calls for. */
+export type TwoPortKind = "h" | "y" | "z" | "g";
+export interface TwoPortParameters { kind: TwoPortKind; p11: Complex; p12: Complex; p21: Complex; p22: Complex; }
+/** The two-port method's value beside the exact (MNA) one. */
+export interface MethodComparison { twoPort: Complex; exact: Complex; relativeError: number; }
+export interface TwoPortAnalysis {
+  topology: Topology;
+  frequencyHz: number;
+  gainUnit: "V/V" | "A/A" | "A/V" | "V/A";
+  parameters: TwoPortParameters;
+  a: Complex;
+  beta: Complex;
+  loopGain: Complex;
+  feedbackAmount: Complex;
+  /** Loaded basic amplifier, including Rs, Ω. */
+  ri: Complex;
+  /** Loaded basic amplifier, including Rl, Ω. */
+  ro: Complex;
+  af: MethodComparison;
+  rif: MethodComparison;
+  rof: MethodComparison;
+  /** Seen by the source, Ω. */
+  rin: MethodComparison;
+  /** Seen by the load, Ω. */
+  rout: MethodComparison;
+  /** 1/β. */
+  idealAf: Complex;
+  idealAfError: number;
+}
+/** Blackman's formula Z0·(1 + Tshort)/(1 + Topen) beside the port impedance solved directly, Ω. */
+export interface BlackmanImpedance { z0: Complex; tShort: Complex; tOpen: Complex; blackman: Complex; exact: Complex; relativeError: number; }
+/** The asymptotic-gain decomposition G∞·T/(1 + T) + G0/(1 + T) beside the transfer solved directly. */
+export interface AsymptoticGain { gInf: Complex; g0: Complex; t: Complex; af: Complex; exact: Complex; relativeError: number; }
+export interface StageViews { gain: AsymptoticGain; input: BlackmanImpedance; output: BlackmanImpedance; }
+"#;
+
 /// A JS error for a circuit error: message `subject: param: reason`, fields
 /// `code`, `param`, `subject`.
 fn circuit_error(e: CircuitError) -> JsValue {
@@ -85,7 +160,7 @@ pub fn circuit_normalize(json: &str) -> Result<String, JsValue> {
 #[wasm_bindgen(js_name = circuitTemplate)]
 #[allow(clippy::too_many_arguments)]
 pub fn circuit_template(
-    topology: &str,
+    #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology: &str,
     ri: f64,
     ro: f64,
     gain: f64,
@@ -103,21 +178,21 @@ pub fn circuit_template(
 
 /// Exact solution at one frequency: `{frequencyHz, nodeVoltages: [{name, re,
 /// im}], elementCurrents: [{name, re, im}]}` (V and A).
-#[wasm_bindgen(js_name = circuitSolve)]
+#[wasm_bindgen(js_name = circuitSolve, unchecked_return_type = "CircuitSolution")]
 pub fn circuit_solve(json: &str, frequency_hz: f64) -> Result<JsValue, JsValue> {
     to_js(&throw(core::solve(&circuit(json)?, frequency_hz))?)
 }
 
 /// Impedance between two nodes seen by a test source, independent sources
 /// zeroed: `{re, im}` in Ω.
-#[wasm_bindgen(js_name = circuitPortImpedance)]
+#[wasm_bindgen(js_name = circuitPortImpedance, unchecked_return_type = "Complex")]
 pub fn circuit_port_impedance(json: &str, plus: &str, minus: &str, frequency_hz: f64) -> Result<JsValue, JsValue> {
     to_js(&Cx::from(throw(core::port_impedance(&circuit(json)?, plus, minus, frequency_hz))?))
 }
 
 /// V(plus) − V(minus) per unit of `source` over `frequencies` (Hz):
 /// `{re: Float64Array, im: Float64Array}`.
-#[wasm_bindgen(js_name = circuitSweep)]
+#[wasm_bindgen(js_name = circuitSweep, unchecked_return_type = "ComplexSweep")]
 pub fn circuit_sweep(json: &str, source: &str, plus: &str, minus: &str, frequencies: &[f64]) -> Result<JsValue, JsValue> {
     let h = throw(core::voltage_transfer_sweep(&circuit(json)?, source, plus, minus, frequencies))?;
     let re: alloc::vec::Vec<f64> = h.iter().map(|z| z.re).collect();
@@ -130,14 +205,14 @@ pub fn circuit_sweep(json: &str, source: &str, plus: &str, minus: &str, frequenc
 
 /// The two-port method beside the exact solution and the ideal 1/β, for a
 /// template stage (arguments as [`circuit_template`]) at `frequencyHz`:
-/// `{topology, gainUnit, parameters: {kind, p11..p22}, a, beta, loopGain,
+/// `{topology, frequencyHz, gainUnit, parameters: {kind, p11..p22}, a, beta, loopGain,
 /// feedbackAmount, ri, ro, af, rif, rof, rin, rout, idealAf, idealAfError}`, where
 /// each of af…rout is `{twoPort, exact, relativeError}` and complex values are
 /// `{re, im}`.
-#[wasm_bindgen(js_name = circuitTwoPort)]
+#[wasm_bindgen(js_name = circuitTwoPort, unchecked_return_type = "TwoPortAnalysis")]
 #[allow(clippy::too_many_arguments)]
 pub fn circuit_two_port(
-    topology: &str,
+    #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology: &str,
     ri: f64,
     ro: f64,
     gain: f64,
@@ -157,10 +232,10 @@ pub fn circuit_two_port(
 /// Blackman's Rin and Rout and the asymptotic-gain Af of a template stage:
 /// `{gain: {gInf, g0, t, af, exact, relativeError}, input: {z0, tShort, tOpen,
 /// blackman, exact, relativeError}, output: {…}}`.
-#[wasm_bindgen(js_name = circuitStageViews)]
+#[wasm_bindgen(js_name = circuitStageViews, unchecked_return_type = "StageViews")]
 #[allow(clippy::too_many_arguments)]
 pub fn circuit_stage_views(
-    topology: &str,
+    #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology: &str,
     ri: f64,
     ro: f64,
     gain: f64,
@@ -179,14 +254,14 @@ pub fn circuit_stage_views(
 
 /// Blackman's formula at the port (plus, minus) of a circuit document, with
 /// respect to the controlled source `controlled`.
-#[wasm_bindgen(js_name = circuitBlackman)]
+#[wasm_bindgen(js_name = circuitBlackman, unchecked_return_type = "BlackmanImpedance")]
 pub fn circuit_blackman(json: &str, controlled: &str, plus: &str, minus: &str, frequency_hz: f64) -> Result<JsValue, JsValue> {
     to_js(&throw(blackman::blackman_impedance(&circuit(json)?, controlled, plus, minus, frequency_hz))?)
 }
 
 /// The asymptotic-gain decomposition of the transfer from `source` to the
 /// voltage V(plus) − V(minus), with respect to `controlled`.
-#[wasm_bindgen(js_name = circuitAsymptoticGain)]
+#[wasm_bindgen(js_name = circuitAsymptoticGain, unchecked_return_type = "AsymptoticGain")]
 pub fn circuit_asymptotic_gain(
     json: &str,
     controlled: &str,
@@ -200,7 +275,7 @@ pub fn circuit_asymptotic_gain(
 }
 
 /// The same, to the current of `element`.
-#[wasm_bindgen(js_name = circuitAsymptoticGainCurrent)]
+#[wasm_bindgen(js_name = circuitAsymptoticGainCurrent, unchecked_return_type = "AsymptoticGain")]
 pub fn circuit_asymptotic_gain_current(
     json: &str,
     controlled: &str,

@@ -15,6 +15,117 @@ use serde::Deserialize;
 use wasm_bindgen::prelude::*;
 use wasm_bindgen::JsCast;
 
+#[wasm_bindgen(typescript_custom_section)]
+const FREQ_TYPES: &str = r#"
+/** A complex pole or zero pair by its natural frequency (Hz) and Q. */
+export interface ComplexPairInput { freqHz: number; q: number; }
+/** A list of frequencies: a plain array or a Float64Array. */
+export type HzList = readonly number[] | Float64Array;
+/**
+ * A transfer function as gain, poles and zeros (frequencies in Hz, delay in s).
+ * Every field but `gain` may be left out; an unknown field is rejected.
+ */
+export interface TransferModelInput {
+  /** Midband (or DC) gain, signed. */
+  gain: number;
+  polesHz?: HzList;
+  zerosHz?: HzList;
+  rhpZerosHz?: HzList;
+  rhpPolesHz?: HzList;
+  complexPoles?: readonly ComplexPairInput[];
+  complexZeros?: readonly ComplexPairInput[];
+  /** Integrators (poles at s = 0). */
+  originPoles?: number;
+  /** Low cuts: a zero at the origin with a pole at each frequency. */
+  lowCutsHz?: HzList;
+  delayS?: number;
+}
+/** The amplifier A; it may also set the Padé order (1…10, default 6) used for a delay in the whole loop. */
+export interface AmplifierModelInput extends TransferModelInput { padeOrder?: number; }
+/** β: a frequency-independent number, or a transfer model (without `padeOrder`). */
+export type FeedbackInput = number | TransferModelInput;
+/** A log-spaced frequency sweep; phase continuous, in degrees. */
+export interface FrequencySweep { freqHz: Float64Array; magnitudeDb: Float64Array; phaseDeg: Float64Array; }
+/** Loop gain T and closed-loop gain Af at one frequency (principal phase). */
+export interface LoopPoint { loopGain: Phasor; closedLoopGain: Phasor; }
+/** Whether the margins decide stability for this loop. */
+export type MarginValidity = "meaningful" | "open-loop-unstable" | "positive-feedback";
+/** One crossover: phase margin (deg) at a unity-gain crossing, gain margin (dB) at a −180° crossing. */
+export interface MarginCrossing { freqHz: number; margin: number; rising: boolean; }
+export interface StabilityMargins {
+  /** Worst phase margin, deg; null when |T| never reaches 1. */
+  phaseMarginDeg: number | null;
+  crossoverHz: number | null;
+  /** Worst gain margin, dB; null when the phase never reaches −180°. */
+  gainMarginDb: number | null;
+  phaseCrossoverHz: number | null;
+  gainCrossings: MarginCrossing[];
+  phaseCrossings: MarginCrossing[];
+  validity: MarginValidity;
+}
+export type StabilityVerdict = "stable" | "marginal" | "unstable";
+/** A closed-loop pole in rad/s with its natural frequency (Hz), damping and Q (null for a real pole). */
+export interface ClosedLoopPole { re: number; im: number; naturalHz: number; zeta: number; q: number | null; }
+export interface ClosedLoopPoles {
+  poles: ClosedLoopPole[];
+  verdict: StabilityVerdict;
+  /** Least damping ratio among the poles, or null when there are none. */
+  minZeta: number | null;
+  padeOrder: number;
+}
+/** Af as a rational function of p = s/ωn, coefficients lowest power first. */
+export interface ClosedLoopTransfer { omegaN: number; numerator: number[]; denominator: number[]; }
+export interface ClosedLoopBandwidth {
+  midbandGain: number;
+  highHz: number | null;
+  lowHz: number | null;
+  bandwidthHz: number | null;
+  peakingDb: number;
+  peakHz: number | null;
+}
+/** Step metrics: times in s, overshoot in percent of the final value. */
+export interface StepMetrics {
+  finalValue: number;
+  overshootPercent: number;
+  peakTimeS: number | null;
+  undershootPercent: number;
+  riseTimeS: number;
+  settlingTimeS: number;
+  settleBand: number;
+}
+export interface StepWaveform { timeS: Float64Array; output: Float64Array; }
+export interface StepResponse extends StepMetrics, StepWaveform {}
+/** The step part of `analyzeLoop`: the waveform in plain arrays. */
+export interface LoopStep extends StepMetrics { waveform: { timeS: number[]; output: number[] }; }
+export interface LoopAnalysis {
+  margins: StabilityMargins;
+  poles: ClosedLoopPoles;
+  bandwidth: ClosedLoopBandwidth | null;
+  /** Why `bandwidth` is null. */
+  bandwidthNote: string | null;
+  step: LoopStep | null;
+  /** Why `step` is null. */
+  stepNote: string | null;
+}
+/** A compensation value (a pole in Hz, or β) and the loop it gives. */
+export interface CompensationResult {
+  value: number;
+  phaseMarginDeg: number | null;
+  crossoverHz: number | null;
+  closedLoopGain: number;
+}
+export interface TwoPoleResponse {
+  naturalHz: number;
+  q: number;
+  zeta: number;
+  peakingDb: number;
+  /** null when the response does not peak. */
+  peakHz: number | null;
+  overshootPercent: number;
+  maximallyFlatLoopGain: number;
+}
+"#;
+
 #[derive(Deserialize)]
 #[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct JsPair {
@@ -123,8 +234,10 @@ fn arrays(fields: &[(&str, &[f64])]) -> JsValue {
 
 /// Loop-gain sweep T = A·β: `{freqHz, magnitudeDb, phaseDeg}` as `Float64Array`s,
 /// phase continuous; at most 100 000 points.
-#[wasm_bindgen(js_name = loopGainSweep)]
-pub fn loop_gain_sweep(a: JsValue, beta: JsValue, start_hz: f64, stop_hz: f64, points: usize) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = loopGainSweep, unchecked_return_type = "FrequencySweep")]
+pub fn loop_gain_sweep(
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, start_hz: f64, stop_hz: f64, points: usize) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     let s = throw(fq::loop_gain_sweep(&l, start_hz, stop_hz, points))?;
     Ok(arrays(&[("freqHz", &s.freq_hz), ("magnitudeDb", &s.magnitude_db), ("phaseDeg", &s.phase_deg)]))
@@ -132,8 +245,10 @@ pub fn loop_gain_sweep(a: JsValue, beta: JsValue, start_hz: f64, stop_hz: f64, p
 
 /// Closed-loop sweep Af = A/(1 + Aβ): `{freqHz, magnitudeDb, phaseDeg}` as
 /// `Float64Array`s.
-#[wasm_bindgen(js_name = closedLoopSweep)]
-pub fn closed_loop_sweep(a: JsValue, beta: JsValue, start_hz: f64, stop_hz: f64, points: usize) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = closedLoopSweep, unchecked_return_type = "FrequencySweep")]
+pub fn closed_loop_sweep(
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, start_hz: f64, stop_hz: f64, points: usize) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     let s = throw(fq::closed_loop_sweep(&l, start_hz, stop_hz, points))?;
     Ok(arrays(&[("freqHz", &s.freq_hz), ("magnitudeDb", &s.magnitude_db), ("phaseDeg", &s.phase_deg)]))
@@ -150,8 +265,10 @@ struct Phasor {
 
 /// Loop gain and closed-loop gain at one frequency: `{loopGain, closedLoopGain}`,
 /// each `{re, im, magnitude, phaseDeg}` (principal phase).
-#[wasm_bindgen(js_name = loopAt)]
-pub fn loop_at(a: JsValue, beta: JsValue, f_hz: f64) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = loopAt, unchecked_return_type = "LoopPoint")]
+pub fn loop_at(
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, f_hz: f64) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     let t = throw(fq::loop_gain_at(&l, f_hz))?;
     let af = throw(fq::closed_loop_gain_at(&l, f_hz))?;
@@ -168,32 +285,44 @@ pub fn loop_at(a: JsValue, beta: JsValue, f_hz: f64) -> Result<JsValue, JsValue>
 /// Stability margins: `{phaseMarginDeg, crossoverHz, gainMarginDb,
 /// phaseCrossoverHz, gainCrossings, phaseCrossings, validity}`; a margin is
 /// `null` when unbounded (no crossover of that kind).
-#[wasm_bindgen(js_name = stabilityMargins)]
-pub fn stability_margins(a: JsValue, beta: JsValue) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = stabilityMargins, unchecked_return_type = "StabilityMargins")]
+pub fn stability_margins(
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
+) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     to_js(&throw(fq::stability_margins(&l))?)
 }
 
 /// Closed-loop poles: `{poles: [{re, im, naturalHz, zeta, q}], verdict, minZeta,
 /// padeOrder}`; `verdict` is `"stable"`, `"marginal"` or `"unstable"`.
-#[wasm_bindgen(js_name = closedLoopPoles)]
-pub fn closed_loop_poles(a: JsValue, beta: JsValue) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = closedLoopPoles, unchecked_return_type = "ClosedLoopPoles")]
+pub fn closed_loop_poles(
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
+) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     to_js(&throw(fq::closed_loop_poles(&l))?)
 }
 
 /// The closed-loop gain as a rational function of p = s/ωn: `{omegaN, numerator,
 /// denominator}`, coefficients lowest power first (a delay by its Padé approximant).
-#[wasm_bindgen(js_name = closedLoopTransfer)]
-pub fn closed_loop_transfer(a: JsValue, beta: JsValue) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = closedLoopTransfer, unchecked_return_type = "ClosedLoopTransfer")]
+pub fn closed_loop_transfer(
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
+) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     to_js(&throw(fq::closed_loop_transfer(&l))?)
 }
 
 /// Closed-loop −3 dB bandwidth and peaking: `{midbandGain, highHz, lowHz,
 /// bandwidthHz, peakingDb, peakHz}`.
-#[wasm_bindgen(js_name = closedLoopBandwidth)]
-pub fn closed_loop_bandwidth(a: JsValue, beta: JsValue) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = closedLoopBandwidth, unchecked_return_type = "ClosedLoopBandwidth")]
+pub fn closed_loop_bandwidth(
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
+) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     to_js(&throw(fq::closed_loop_bandwidth(&l))?)
 }
@@ -201,8 +330,10 @@ pub fn closed_loop_bandwidth(a: JsValue, beta: JsValue) -> Result<JsValue, JsVal
 /// Step response: `{finalValue, overshootPercent, peakTimeS, undershootPercent,
 /// riseTimeS, settlingTimeS, settleBand, timeS, output}` with `timeS` and
 /// `output` as `Float64Array`s of `points` samples.
-#[wasm_bindgen(js_name = stepResponse)]
-pub fn step_response(a: JsValue, beta: JsValue, settle_band: f64, points: usize) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = stepResponse, unchecked_return_type = "StepResponse")]
+pub fn step_response(
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, settle_band: f64, points: usize) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     let s = throw(fq::step_response(&l, settle_band, points))?;
     #[derive(serde::Serialize)]
@@ -235,16 +366,20 @@ pub fn step_response(a: JsValue, beta: JsValue, settle_band: f64, points: usize)
 /// `closedLoopBandwidth` and `stepResponse`, with the step waveform as
 /// `step.waveform = {timeS, output}` in plain arrays); a part that does not exist
 /// for this loop is `null` with its note.
-#[wasm_bindgen(js_name = analyzeLoop)]
-pub fn analyze_loop(a: JsValue, beta: JsValue, settle_band: f64, points: usize) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = analyzeLoop, unchecked_return_type = "LoopAnalysis")]
+pub fn analyze_loop(
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, settle_band: f64, points: usize) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     to_js(&throw(fq::analyze_loop(&l, settle_band, points))?)
 }
 
 /// Step waveform over a chosen duration (any loop): `{timeS, output}` as
 /// `Float64Array`s.
-#[wasm_bindgen(js_name = stepWaveform)]
-pub fn step_waveform(a: JsValue, beta: JsValue, duration_s: f64, points: usize) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = stepWaveform, unchecked_return_type = "StepWaveform")]
+pub fn step_waveform(
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, duration_s: f64, points: usize) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     let w = throw(fq::step_waveform(&l, duration_s, points))?;
     Ok(arrays(&[("timeS", &w.time_s), ("output", &w.output)]))
@@ -252,23 +387,27 @@ pub fn step_waveform(a: JsValue, beta: JsValue, duration_s: f64, points: usize) 
 
 /// The dominant pole (Hz) that gives a target phase margin at a constant β:
 /// `{value, phaseMarginDeg, crossoverHz, closedLoopGain}`.
-#[wasm_bindgen(js_name = dominantPoleForMargin)]
-pub fn dominant_pole_for_margin(a: JsValue, beta: f64, target_pm_deg: f64) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = dominantPoleForMargin, unchecked_return_type = "CompensationResult")]
+pub fn dominant_pole_for_margin(
+    #[wasm_bindgen(unchecked_param_type = "TransferModelInput")] a: JsValue,
+    beta: f64, target_pm_deg: f64) -> Result<JsValue, JsValue> {
     let (am, _) = model("a", &a)?;
     to_js(&throw(fq::dominant_pole_for_margin(&am, beta, target_pm_deg))?)
 }
 
 /// The largest constant β (up to `betaLimit`) that keeps a target phase margin:
 /// `{value, phaseMarginDeg, crossoverHz, closedLoopGain}`.
-#[wasm_bindgen(js_name = maxBetaForMargin)]
-pub fn max_beta_for_margin(a: JsValue, target_pm_deg: f64, beta_limit: f64) -> Result<JsValue, JsValue> {
+#[wasm_bindgen(js_name = maxBetaForMargin, unchecked_return_type = "CompensationResult")]
+pub fn max_beta_for_margin(
+    #[wasm_bindgen(unchecked_param_type = "TransferModelInput")] a: JsValue,
+    target_pm_deg: f64, beta_limit: f64) -> Result<JsValue, JsValue> {
     let (am, _) = model("a", &a)?;
     to_js(&throw(fq::max_beta_for_margin(&am, target_pm_deg, beta_limit))?)
 }
 
 /// Two-pole closed loop in closed form: `{naturalHz, q, zeta, peakingDb, peakHz,
 /// overshootPercent, maximallyFlatLoopGain}`.
-#[wasm_bindgen(js_name = twoPoleResponse)]
+#[wasm_bindgen(js_name = twoPoleResponse, unchecked_return_type = "TwoPoleResponse")]
 pub fn two_pole_response(f1: f64, f2: f64, t0: f64) -> Result<JsValue, JsValue> {
     to_js(&throw(fq::two_pole_response(f1, f2, t0))?)
 }

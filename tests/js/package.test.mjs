@@ -46,6 +46,8 @@ test('TypeScript: the definitions type-check a consumer, and reject a wrong one'
   assert.match(bad.stdout, /closedLoopGain|not assignable/);
   assert.match(bad.stdout, /bandwidth/);
   assert.match(bad.stdout, /median/);
+  assert.match(bad.stdout, /cutoffHz/);
+  assert.match(bad.stdout, /loopGainRe/);
 });
 
 test('esbuild bundle of an ES-module consumer runs in headless Chromium', async () => {

@@ -1,4 +1,4 @@
-// Must FAIL the type check: a result field that does not exist, and a string where
+// Must FAIL the type check: result fields that do not exist, and a string where
 // a number belongs. If tsc accepts this, the definitions are too loose (e.g. `any`).
 import { summarizeFeedback } from 'loopwright';
 
@@ -8,4 +8,9 @@ const missing: number = s.bandwidth;
 import { monteCarlo } from 'loopwright';
 const mc = monteCarlo('inverting', 1e4, 4.7e4, 0.01, 0.01, 5e4, 1e5, 2e5, 1e6, 75, 5, 'uniform', 3, 'uniform', 3, 'gain', 1000, 7, undefined, undefined, 10);
 const notThere: number = mc.stats.median;
-export { wrong, missing, notThere };
+import { closedLoopBandwidth, circuitTwoPort } from 'loopwright';
+const bw = closedLoopBandwidth({ gain: 1e5, polesHz: [10] }, 0.01);
+const cutoff: number = bw.cutoffHz;
+const tp = circuitTwoPort('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0);
+const loopGainRe: number = tp.loopGainRe;
+export { wrong, missing, notThere, cutoff, loopGainRe };

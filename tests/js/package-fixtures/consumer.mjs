@@ -67,6 +67,256 @@ throws(() => lw.thermalNoiseDensity(1e3, -1), 'out_of_domain', 'temperature_k');
 const sweep = lw.noiseDensitySweep('non-inverting', 9e3, 1e3, 0, 300, 4e-9, 10, 1e-12, 100, 10e6, new Float64Array(0), 1, 1e7, 50);
 assert.ok(sweep.frequencies instanceof Float64Array && sweep.frequencies.length === 50);
 
+// Frequency response and stability. A single-pole amplifier A(s) = A0/(1 + s/ωp) with
+// A0 = 10⁵, fp = 10 Hz, and β = 0.01: T0 = 1000, D = 1001, so the closed loop is a
+// single pole at fp·D = 10 010 Hz with Af0 = 10⁵/1001 (Af = A/(1 + Aβ) with A one pole;
+// common practice, no source).
+const one = { gain: 1e5, polesHz: [10] };
+const af0 = 1e5 / 1001;
+const near = (x, y, rel, what) => assert.ok(Math.abs(x - y) <= rel * Math.abs(y), `${what}: ${x} vs ${y}`);
+const bw = lw.closedLoopBandwidth(one, 0.01);
+near(bw.midbandGain, af0, 1e-12, 'midband gain');
+near(bw.highHz, 10010, 1e-9, 'upper −3 dB');
+assert.equal(bw.lowHz, null); // no low cut in the model
+near(lw.singlePoleHighCutoff(10, 1e5, 0.01), 10010, 1e-12, 'fH·(1 + A0β)');
+// |Af| at the −3 dB frequency is Af0/√2 at −45° (single pole at f = fH).
+const at = lw.loopAt(one, 0.01, 10010);
+near(at.closedLoopGain.magnitude, af0 / Math.SQRT2, 1e-12, '|Af(fH)|');
+near(at.closedLoopGain.phaseDeg, -45, 1e-12, '∠Af(fH)');
+// T(jf) = 1000/(1 + j·1001) there: |T| = 1000/√(1 + 1001²).
+near(at.loopGain.magnitude, 1000 / Math.hypot(1, 1001), 1e-12, '|T(fH)|');
+// Same model with the pole list as a Float64Array (accepted at runtime and by the types).
+near(lw.loopAt({ gain: 1e5, polesHz: new Float64Array([10]) }, 0.01, 10010).closedLoopGain.magnitude, af0 / Math.SQRT2, 1e-12, 'Float64Array poles');
+// Unity-gain crossover where 1000/√(1 + (f/10)²) = 1: f = 10·√(10⁶ − 1); PM = 180° − atan(f/10).
+const m1 = lw.stabilityMargins(one, 0.01);
+near(m1.crossoverHz, 10 * Math.sqrt(1e6 - 1), 1e-9, 'crossover');
+near(m1.phaseMarginDeg, 180 - Math.atan(Math.sqrt(1e6 - 1)) * 180 / Math.PI, 1e-9, 'phase margin');
+assert.equal(m1.gainMarginDb, null); // one pole never reaches −180°
+assert.equal(m1.validity, 'meaningful');
+// The closed-loop pole: s = −2π·10 010 rad/s, real, ζ = 1.
+const p1 = lw.closedLoopPoles(one, 0.01);
+assert.equal(p1.poles.length, 1);
+near(p1.poles[0].re, -2 * Math.PI * 10010, 1e-9, 'pole');
+assert.equal(p1.poles[0].q, null);
+assert.equal(p1.verdict, 'stable');
+assert.equal(p1.padeOrder, 0); // no delay in the loop
+// Af as a rational function: its DC value numerator[0]/denominator[0] is Af0.
+const tf = lw.closedLoopTransfer(one, 0.01);
+near(tf.numerator[0] / tf.denominator[0], af0, 1e-12, 'transfer at DC');
+// First-order step: final value Af0, no overshoot, 10–90 % rise ln 9·τ and 1 % settling
+// ln 100·τ with τ = 1/(2π·10 010) (exponential step, common practice, no source).
+const tau = 1 / (2 * Math.PI * 10010);
+const st = lw.stepResponse(one, 0.01, 0.01, 200);
+near(st.finalValue, af0, 1e-9, 'final value');
+assert.equal(st.overshootPercent, 0);
+assert.equal(st.peakTimeS, null);
+near(st.riseTimeS, Math.log(9) * tau, 1e-6, 'rise time');
+near(st.settlingTimeS, Math.log(100) * tau, 1e-6, 'settling time');
+assert.ok(st.timeS instanceof Float64Array && st.timeS.length === 200 && st.output instanceof Float64Array);
+const wf = lw.stepWaveform(one, 0.01, 5 * tau, 6);
+// y(t) = Af0·(1 − e^(−t/τ)) at t = τ (sample 1 of 0, τ, …, 5τ).
+near(wf.output[1], af0 * (1 - Math.exp(-1)), 1e-6, 'y(τ)');
+const an = lw.analyzeLoop(one, 0.01, 0.01, 50);
+near(an.bandwidth.highHz, 10010, 1e-9, 'analyzeLoop bandwidth');
+assert.ok(Array.isArray(an.step.waveform.output) && an.step.waveform.output.length === 50);
+assert.equal(an.bandwidthNote, null);
+const sw = lw.loopGainSweep(one, 0.01, 10, 1e6, 6); // 10 Hz … 1 MHz, one point per decade
+assert.ok(sw.freqHz instanceof Float64Array && sw.freqHz.length === 6);
+near(sw.freqHz[3], 1e4, 1e-12, 'log spacing');
+// |T| at fp = 10 Hz is T0/√2: 60 dB − 3.0103 dB.
+near(sw.magnitudeDb[0], 60 - 10 * Math.log10(2), 1e-12, '|T(fp)| dB');
+near(lw.closedLoopSweep(one, 0.01, 10, 1e6, 6).magnitudeDb[0], 20 * Math.log10(af0 / Math.hypot(1, 10 / 10010)), 1e-9, '|Af(10 Hz)| dB');
+// Three equal poles at 1 kHz: 1 + T0/(1 + s/ω)³ = 0 puts poles on the jω axis at ω·√3
+// when T0 = 8, so 8 is the marginal loop gain and the phase crossover is at √3 kHz
+// (common practice, no source). With T0 = 4 the gain margin is 20·log10(8/4) dB.
+const three = (gain) => ({ gain, polesHz: [1e3, 1e3, 1e3] });
+const p3 = lw.closedLoopPoles(three(8), 1);
+assert.equal(p3.verdict, 'marginal');
+near(p3.poles[0].naturalHz, 1e3 * Math.sqrt(3), 1e-9, 'marginal pole');
+near(p3.poles[2].naturalHz, 3e3, 1e-9, 'real pole at 3ω');
+const m3 = lw.stabilityMargins(three(4), 1);
+near(m3.gainMarginDb, 20 * Math.log10(2), 1e-9, 'gain margin');
+near(m3.phaseCrossoverHz, 1e3 * Math.sqrt(3), 1e-9, 'phase crossover');
+// Two equal poles at 1 kHz with T0 = 3: ωn = ω1·√(1 + T0) = 2 kHz, ζ = 1/√(1 + T0) = 0.5,
+// Q = 1; overshoot e^(−πζ/√(1−ζ²)), peaking Q/√(1 − 1/(4Q²)) at ωn·√(1 − 2ζ²); maximally
+// flat at T0 = 1 (second-order system; Ogata, Modern Control Engineering, 5th ed., ch. 5, from memory).
+const tp2 = lw.twoPoleResponse(1e3, 1e3, 3);
+near(tp2.naturalHz, 2000, 1e-12, 'ωn');
+near(tp2.zeta, 0.5, 1e-12, 'ζ');
+near(tp2.overshootPercent, 100 * Math.exp(-Math.PI / Math.sqrt(3)), 1e-9, 'overshoot');
+near(tp2.peakingDb, 20 * Math.log10(1 / Math.sqrt(0.75)), 1e-9, 'peaking');
+near(tp2.peakHz, 2000 * Math.SQRT1_2, 1e-9, 'peak frequency');
+near(tp2.maximallyFlatLoopGain, 1, 1e-12, 'maximally flat T0');
+// Compensation: whatever the pole or β found, the loop it describes must have the target
+// margin when analysed on its own, and Af = A0/(1 + A0β) (Af = A/(1 + Aβ)).
+const dom = lw.dominantPoleForMargin({ gain: 1e5, polesHz: [1e6, 1e7] }, 1, 60);
+near(dom.phaseMarginDeg, 60, 1e-6, 'dominant-pole margin');
+near(lw.stabilityMargins({ gain: 1e5, polesHz: [dom.value, 1e6, 1e7] }, 1).phaseMarginDeg, 60, 1e-6, 'margin of the compensated loop');
+near(dom.closedLoopGain, 1e5 / (1 + 1e5), 1e-12, 'follower Af');
+const mb = lw.maxBetaForMargin({ gain: 1e5, polesHz: [10, 1e6] }, 60, 1);
+near(lw.stabilityMargins({ gain: 1e5, polesHz: [10, 1e6] }, mb.value).phaseMarginDeg, 60, 1e-6, 'margin at the largest β');
+near(mb.closedLoopGain, 1e5 / (1 + 1e5 * mb.value), 1e-12, 'Af at the largest β');
+throws(() => lw.loopAt({ gain: 1, poleHz: [1] }, 1, 1), 'unknown_name', 'a'); // misspelt field
+throws(() => lw.loopAt({ gain: 1 }, { gain: 1, padeOrder: 3 }, 1), 'out_of_domain', 'beta');
+throws(() => lw.loopGainSweep(one, 0.01, 1, 1e6, 1e6), 'too_large', 'points');
+throws(() => lw.stepResponse(one, 0.01, 0.9, 10), 'out_of_domain', 'settle_band');
+throws(() => lw.twoPoleResponse(-1, 1e3, 3), 'out_of_domain', 'f1');
+throws(() => lw.dominantPoleForMargin(one, 1, 200), 'out_of_domain', 'target_pm_deg');
+throws(() => lw.singlePoleHighCutoff(0, 1e5, 0.01), 'out_of_domain', 'f_h');
+
+// Circuits. A 10 V source on a 1k/3k divider: I = 10/4k = 2.5 mA, V(mid) = 7.5 V, and
+// the divider seen from mid with the source zeroed is 1k ‖ 3k = 750 Ω (Ohm's law).
+const doc = (elements) => JSON.stringify({ format: 'loopwright-circuit', version: 1, elements });
+const divider = doc([
+  { name: 'Vs', kind: 'voltage-source', nodes: ['top', '0'], value: 10 },
+  { name: 'R1', kind: 'resistor', nodes: ['top', 'mid'], value: '1k' },
+  { name: 'R2', kind: 'resistor', nodes: ['mid', '0'], value: '3k' },
+]);
+const sol = lw.circuitSolve(divider, 0);
+near(sol.nodeVoltages.find((v) => v.name === 'mid').re, 7.5, 1e-12, 'V(mid)');
+near(sol.elementCurrents.find((v) => v.name === 'R2').re, 2.5e-3, 1e-12, 'I(R2)');
+near(lw.circuitPortImpedance(divider, 'mid', '0', 0).re, 750, 1e-12, 'Rth');
+// RC low pass with fc = 1/(2πRC) = 1 kHz: H(j·fc) = 1/(1 + j) = 0.5 − 0.5j; H(0) = 1.
+const rc = doc([
+  { name: 'Vs', kind: 'voltage-source', nodes: ['in', '0'], value: 1 },
+  { name: 'R', kind: 'resistor', nodes: ['in', 'out'], value: 1e3 },
+  { name: 'C', kind: 'capacitor', nodes: ['out', '0'], value: 1e-6 / (2 * Math.PI) },
+]);
+const h = lw.circuitSweep(rc, 'Vs', 'out', '0', new Float64Array([1e3, 0]));
+assert.ok(h.re instanceof Float64Array && h.im instanceof Float64Array);
+near(h.re[0], 0.5, 1e-12, 'Re H(fc)');
+near(h.im[0], -0.5, 1e-12, 'Im H(fc)');
+near(h.re[1], 1, 1e-12, 'H(0)');
+// A non-inverting template, Rf = 9k, Rg = 1k: the feedback network's h parameters are
+// h12 = β = Rg/(Rf + Rg) = 0.1, h11 = Rf ‖ Rg = 900 Ω, h22 = 1/(Rf + Rg); 1/β = 10 (divider
+// by Ohm's law). The method's Af must be A/(1 + Aβ) of its own A and β.
+const twoPort = lw.circuitTwoPort('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0);
+assert.equal(twoPort.parameters.kind, 'h');
+assert.equal(twoPort.gainUnit, 'V/V');
+near(twoPort.beta.re, 0.1, 1e-12, 'β');
+near(twoPort.parameters.p11.re, 900, 1e-9, 'h11');
+near(twoPort.parameters.p22.re, 1e-4, 1e-9, 'h22');
+near(twoPort.idealAf.re, 10, 1e-12, '1/β');
+near(twoPort.af.twoPort.re, twoPort.a.re / (1 + twoPort.a.re * twoPort.beta.re), 1e-12, 'Af = A/(1 + Aβ)');
+assert.ok(twoPort.af.relativeError < 1e-6, 'the two-port method is close for a stiff stage');
+// Blackman's formula and the asymptotic gain are exact (Blackman, "Effect of feedback on
+// impedance", Bell System Technical Journal, 1943, from memory): they agree with the solve.
+const views = lw.circuitStageViews('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0);
+near(views.gain.gInf.re, 10, 1e-12, 'G∞ = 1/β');
+assert.ok(views.gain.relativeError < 1e-12 && views.input.relativeError < 1e-9 && views.output.relativeError < 1e-9);
+// VCVS k = 1e3 with input resistance Ri = 10k between p and n, Rf = 9k (o–n), Rg = 1k (n–0):
+// nodal analysis with a test current I into p gives V(n) = I·(9k + 10⁷)/10 and
+// Zin = 1 010 900 Ω; Z0 (k = 0) = Ri + Rf ‖ Rg = 10 900 Ω; with p open no current flows in
+// Ri, so the return ratio with the port open is 0.
+const zin = doc([
+  { name: 'Ri', kind: 'resistor', nodes: ['p', 'n'], value: 1e4 },
+  { name: 'E', kind: 'vcvs', nodes: ['o', '0'], control: ['p', 'n'], value: 1e3 },
+  { name: 'Rf', kind: 'resistor', nodes: ['o', 'n'], value: 9e3 },
+  { name: 'Rg', kind: 'resistor', nodes: ['n', '0'], value: 1e3 },
+]);
+const bl = lw.circuitBlackman(zin, 'E', 'p', '0', 0);
+near(bl.exact.re, 1010900, 1e-12, 'Zin');
+near(bl.blackman.re, 1010900, 1e-12, 'Blackman Zin');
+near(bl.z0.re, 10900, 1e-12, 'Z0');
+assert.equal(Math.abs(bl.tOpen.re), 0);
+// An ideal VCVS of gain 99 with a 9k/1k divider: T = 99·0.1 = 9.9, G∞ = 1/β = 10, G0 = 0,
+// Af = 99/(1 + 9.9) (Af = A/(1 + Aβ)); the current of the 1k foot is V(n)/1k = 0.1·Af mA.
+const follower = doc([
+  { name: 'Vs', kind: 'voltage-source', nodes: ['p', '0'], value: 1 },
+  { name: 'E', kind: 'vcvs', nodes: ['o', '0'], control: ['p', 'n'], value: 99 },
+  { name: 'R1', kind: 'resistor', nodes: ['o', 'n'], value: 9e3 },
+  { name: 'R2', kind: 'resistor', nodes: ['n', '0'], value: 1e3 },
+]);
+const ag = lw.circuitAsymptoticGain(follower, 'E', 'Vs', 'o', '0', 0);
+near(ag.t.re, 9.9, 1e-12, 'T');
+near(ag.gInf.re, 10, 1e-12, 'G∞');
+assert.equal(ag.g0.re, 0);
+near(ag.af.re, 99 / 10.9, 1e-12, 'Af');
+near(lw.circuitAsymptoticGainCurrent(follower, 'E', 'Vs', 'R2', 0).af.re, 0.1 * (99 / 10.9) / 1e3, 1e-12, 'I(R2)');
+const circuitThrows = (fn, code, param, subject) => assert.throws(fn, (e) => {
+  assert.equal(e.name, 'LoopwrightError');
+  assert.deepEqual([e.code, e.param, e.subject], [code, param, subject]);
+  return true;
+});
+circuitThrows(() => lw.circuitSolve(divider.replace('"3k"', '"-3k"'), 0), 'out_of_domain', 'value', 'R2');
+circuitThrows(() => lw.circuitPortImpedance(divider, 'mid', 'nowhere', 0), 'unknown_name', 'node', 'nowhere');
+circuitThrows(() => lw.circuitSweep(rc, 'Vs', 'out', '0', new Float64Array([-1])), 'out_of_domain', 'frequency', '');
+circuitThrows(() => lw.circuitTemplate('parallel', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4), 'unknown_name', 'topology', '');
+circuitThrows(() => lw.circuitTwoPort('series-shunt', -1, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0), 'out_of_domain', 'ri', '');
+circuitThrows(() => lw.circuitStageViews('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 0, 1e4, 0), 'out_of_domain', 'rs', '');
+circuitThrows(() => lw.circuitBlackman(zin, 'Rf', 'p', '0', 0), 'out_of_domain', 'controlled', 'Rf');
+circuitThrows(() => lw.circuitAsymptoticGain(follower, 'E', 'R1', 'o', '0', 0), 'out_of_domain', 'source', 'R1');
+circuitThrows(() => lw.circuitAsymptoticGainCurrent(follower, 'E', 'Vs', 'Rx', 0), 'unknown_name', 'element', 'Rx');
+
+// Shapes: each result has exactly the keys its TypeScript interface lists (the lists below
+// are copied from the interfaces in src/wasm/freq.rs and src/wasm/circuit.rs), so the
+// hand-written types cannot drift from what the code returns.
+const keys = (o) => Object.keys(o).sort();
+const shape = (obj, expected, what) => assert.deepEqual(keys(obj), [...expected].sort(), `${what} keys`);
+const PHASOR = ['re', 'im', 'magnitude', 'phaseDeg'];
+const SWEEP = ['freqHz', 'magnitudeDb', 'phaseDeg'];
+const MARGINS = ['phaseMarginDeg', 'crossoverHz', 'gainMarginDb', 'phaseCrossoverHz', 'gainCrossings', 'phaseCrossings', 'validity'];
+const CROSSING = ['freqHz', 'margin', 'rising'];
+const POLES = ['poles', 'verdict', 'minZeta', 'padeOrder'];
+const POLE = ['re', 'im', 'naturalHz', 'zeta', 'q'];
+const BANDWIDTH = ['midbandGain', 'highHz', 'lowHz', 'bandwidthHz', 'peakingDb', 'peakHz'];
+const METRICS = ['finalValue', 'overshootPercent', 'peakTimeS', 'undershootPercent', 'riseTimeS', 'settlingTimeS', 'settleBand'];
+const WAVEFORM = ['timeS', 'output'];
+const COMPENSATION = ['value', 'phaseMarginDeg', 'crossoverHz', 'closedLoopGain'];
+shape(sw, SWEEP, 'loopGainSweep');
+shape(lw.closedLoopSweep(one, 0.01, 10, 1e6, 5), SWEEP, 'closedLoopSweep');
+shape(at, ['loopGain', 'closedLoopGain'], 'loopAt');
+shape(at.loopGain, PHASOR, 'loopAt.loopGain');
+shape(m3, MARGINS, 'stabilityMargins');
+shape(m3.gainCrossings[0], CROSSING, 'gainCrossings[0]');
+shape(m3.phaseCrossings[0], CROSSING, 'phaseCrossings[0]');
+shape(p3, POLES, 'closedLoopPoles');
+shape(p3.poles[0], POLE, 'poles[0]');
+shape(tf, ['omegaN', 'numerator', 'denominator'], 'closedLoopTransfer');
+assert.ok(Array.isArray(tf.numerator) && Array.isArray(tf.denominator));
+shape(bw, BANDWIDTH, 'closedLoopBandwidth');
+shape(st, [...METRICS, ...WAVEFORM], 'stepResponse');
+shape(an, ['margins', 'poles', 'bandwidth', 'bandwidthNote', 'step', 'stepNote'], 'analyzeLoop');
+shape(an.margins, MARGINS, 'analyzeLoop.margins');
+shape(an.poles, POLES, 'analyzeLoop.poles');
+shape(an.bandwidth, BANDWIDTH, 'analyzeLoop.bandwidth');
+shape(an.step, [...METRICS, 'waveform'], 'analyzeLoop.step');
+shape(an.step.waveform, WAVEFORM, 'analyzeLoop.step.waveform');
+shape(wf, WAVEFORM, 'stepWaveform');
+shape(dom, COMPENSATION, 'dominantPoleForMargin');
+shape(mb, COMPENSATION, 'maxBetaForMargin');
+shape(tp2, ['naturalHz', 'q', 'zeta', 'peakingDb', 'peakHz', 'overshootPercent', 'maximallyFlatLoopGain'], 'twoPoleResponse');
+const COMPLEX = ['re', 'im'];
+const COMPARISON = ['twoPort', 'exact', 'relativeError'];
+const BLACKMAN = ['z0', 'tShort', 'tOpen', 'blackman', 'exact', 'relativeError'];
+const ASYMPTOTIC = ['gInf', 'g0', 't', 'af', 'exact', 'relativeError'];
+shape(sol, ['frequencyHz', 'nodeVoltages', 'elementCurrents'], 'circuitSolve');
+shape(sol.nodeVoltages[0], ['name', 're', 'im'], 'nodeVoltages[0]');
+shape(sol.elementCurrents[0], ['name', 're', 'im'], 'elementCurrents[0]');
+shape(lw.circuitPortImpedance(divider, 'mid', '0', 0), COMPLEX, 'circuitPortImpedance');
+shape(h, COMPLEX, 'circuitSweep');
+shape(twoPort, ['topology', 'frequencyHz', 'gainUnit', 'parameters', 'a', 'beta', 'loopGain', 'feedbackAmount', 'ri', 'ro',
+  'af', 'rif', 'rof', 'rin', 'rout', 'idealAf', 'idealAfError'], 'circuitTwoPort');
+shape(twoPort.parameters, ['kind', 'p11', 'p12', 'p21', 'p22'], 'circuitTwoPort.parameters');
+for (const k of ['a', 'beta', 'loopGain', 'feedbackAmount', 'ri', 'ro', 'idealAf']) shape(twoPort[k], COMPLEX, `circuitTwoPort.${k}`);
+for (const k of ['af', 'rif', 'rof', 'rin', 'rout']) shape(twoPort[k], COMPARISON, `circuitTwoPort.${k}`);
+shape(twoPort.af.exact, COMPLEX, 'circuitTwoPort.af.exact');
+shape(views, ['gain', 'input', 'output'], 'circuitStageViews');
+shape(views.gain, ASYMPTOTIC, 'circuitStageViews.gain');
+shape(views.input, BLACKMAN, 'circuitStageViews.input');
+shape(views.output, BLACKMAN, 'circuitStageViews.output');
+shape(bl, BLACKMAN, 'circuitBlackman');
+shape(bl.tShort, COMPLEX, 'circuitBlackman.tShort');
+shape(ag, ASYMPTOTIC, 'circuitAsymptoticGain');
+shape(lw.circuitAsymptoticGainCurrent(follower, 'E', 'Vs', 'R2', 0), ASYMPTOTIC, 'circuitAsymptoticGainCurrent');
+// The circuit document written by circuitTemplate has the CircuitDocument shape.
+const tdoc = JSON.parse(lw.circuitTemplate('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4));
+shape(tdoc, 'nodes' in tdoc ? ['format', 'version', 'nodes', 'elements'] : ['format', 'version', 'elements'], 'circuitTemplate document');
+for (const e of tdoc.elements) {
+  const extra = { vcvs: ['control'], vccs: ['control'], ccvs: ['controlElement'], cccs: ['controlElement'], admittance: ['valueIm'] }[e.kind] ?? [];
+  shape(e, ['name', 'kind', 'nodes', 'value', ...extra], `template element ${e.name}`);
+}
+
 console.log('consumer: all checks passed');
 
 // Errors must leave the module healthy: a thrown error may not leak wasm stack or

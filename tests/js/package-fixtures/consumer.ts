@@ -2,6 +2,15 @@
 import init, { summarizeFeedback, gainSpread, impedancesWithFeedback, topologyInfo } from 'loopwright';
 import { bestPairs, integratedNoise, feedbackDistortion } from 'loopwright';
 import type { FeedbackSummary, GainSpread, LoopwrightError, Topology, PairResult, IntegratedNoise, FeedbackDistortion } from 'loopwright';
+import { stabilityMargins, closedLoopPoles, stepResponse, analyzeLoop, loopGainSweep, loopAt, dominantPoleForMargin } from 'loopwright';
+import type {
+  AmplifierModelInput, FeedbackInput, StabilityMargins, MarginValidity, ClosedLoopPoles, StabilityVerdict, StepResponse,
+  LoopAnalysis, FrequencySweep, LoopPoint, CompensationResult,
+} from 'loopwright';
+import { circuitTemplate, circuitSolve, circuitTwoPort, circuitSweep, circuitBlackman, circuitStageViews } from 'loopwright';
+import type {
+  CircuitDocument, CircuitSolution, TwoPortAnalysis, TwoPortKind, ComplexSweep, BlackmanImpedance, StageViews, Complex, CircuitError,
+} from 'loopwright';
 
 export async function run(): Promise<number> {
   await init();
@@ -23,4 +32,54 @@ export async function run(): Promise<number> {
   const hd: FeedbackDistortion = feedbackDistortion(1e4, 1e6, -2e10, 0.01, 1, 'output');
   const ratio: number | null = hd.hd2Ratio;
   return s.closedLoopGain + (ideal ?? 0) + spread.spreadPpm + zin + unit.length + r2 + noise.outputRms + (ratio ?? 0);
+}
+
+export function frequency(): number {
+  const a: AmplifierModelInput = { gain: 1e5, polesHz: [1e6], complexPoles: [{ freqHz: 1e7, q: 0.7 }], delayS: 1e-9, padeOrder: 4 };
+  const beta: FeedbackInput = { gain: 0.01, zerosHz: new Float64Array([1e8]) };
+  const m: StabilityMargins = stabilityMargins(a, beta);
+  const pm: number | null = m.phaseMarginDeg;
+  const validity: MarginValidity = m.validity;
+  const p: ClosedLoopPoles = closedLoopPoles(a, 0.01);
+  const verdict: StabilityVerdict = p.verdict;
+  const q: number | null = p.poles[0].q;
+  const st: StepResponse = stepResponse(a, beta, 0.01, 100);
+  const out: Float64Array = st.output;
+  const an: LoopAnalysis = analyzeLoop(a, 0.01, 0.01, 100);
+  const wave: number[] = an.step?.waveform.output ?? [];
+  const note: string | null = an.stepNote;
+  const sweep: FrequencySweep = loopGainSweep(a, beta, 1, 1e9, 200);
+  const at: LoopPoint = loopAt(a, 0.01, 1e6);
+  const comp: CompensationResult = dominantPoleForMargin({ gain: 1e5, polesHz: [1e6, 1e7] }, 1, 60);
+  return (pm ?? 0) + validity.length + verdict.length + (q ?? 0) + out[0] + wave.length + (note?.length ?? 0)
+    + sweep.phaseDeg[0] + at.closedLoopGain.phaseDeg + comp.value + (comp.crossoverHz ?? 0);
+}
+
+export function circuits(): number {
+  const doc: CircuitDocument = {
+    format: 'loopwright-circuit',
+    version: 1,
+    elements: [
+      { name: 'Vs', kind: 'voltage-source', nodes: ['top', '0'], value: 10 },
+      { name: 'R1', kind: 'resistor', nodes: ['top', 'mid'], value: '1k' },
+      { name: 'E', kind: 'vcvs', nodes: ['x', '0'], control: ['mid', '0'], value: 2 },
+      { name: 'Y', kind: 'admittance', nodes: ['x', '0'], value: 1e-3, valueIm: '1m' },
+    ],
+  };
+  const sol: CircuitSolution = circuitSolve(JSON.stringify(doc), 0);
+  const v: number = sol.nodeVoltages[0].re;
+  const template: CircuitDocument = JSON.parse(circuitTemplate('voltage-series', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4));
+  const tp: TwoPortAnalysis = circuitTwoPort('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0);
+  const kind: TwoPortKind = tp.parameters.kind;
+  const beta: Complex = tp.beta;
+  const h: ComplexSweep = circuitSweep(JSON.stringify(doc), 'Vs', 'x', '0', new Float64Array([1, 10]));
+  const z: BlackmanImpedance = circuitBlackman(JSON.stringify(doc), 'E', 'mid', '0', 0);
+  const views: StageViews = circuitStageViews('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0);
+  try {
+    circuitSolve('{}', 0);
+  } catch (e) {
+    const err = e as CircuitError;
+    if (err.code === 'out_of_domain') return err.subject.length;
+  }
+  return v + template.elements.length + kind.length + beta.re + h.im[0] + z.tShort.re + views.input.relativeError + tp.af.relativeError;
 }
