@@ -41,7 +41,7 @@ test-browser:
 	GECKODRIVER=$$(command -v geckodriver) cargo test --target wasm32-unknown-unknown --features wasm --test 'wasm_*'
 
 test-page:
-	cd tests/js && GECKODRIVER=$$(command -v geckodriver) node --test format.test.mjs page.test.mjs firefox.test.mjs
+	cd tests/js && GECKODRIVER=$$(command -v geckodriver) node --test format.test.mjs page.test.mjs sheet.test.mjs firefox.test.mjs
 
 test-package:
 	cd tests/js && node --test package.test.mjs

@@ -14,6 +14,8 @@ test('formatting keeps significant digits and SI prefixes', () => {
   assert.equal(formatEngineering(Number.NaN), '—');
   assert.equal(formatPlain(0.00999), '0.00999');
   assert.equal(formatPlain(1e-7), '1.00000e-7');
+  assert.equal(formatPlain(1e6), '1000000');
+  assert.equal(formatPlain(79972.79564730356), '79972.8');
 });
 
 test('plot ticks', () => {

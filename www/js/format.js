@@ -19,6 +19,7 @@ export function formatEngineering(value, digits = 4) {
 export function formatPlain(value, digits = 6) {
   if (!Number.isFinite(value)) return '—';
   const mag = Math.abs(value);
+  if (Number.isInteger(value) && mag < 1e15) return String(value);
   if (value !== 0 && (mag >= 1e9 || mag < 1e-4)) return value.toExponential(digits - 1);
   return trimZeros(value.toPrecision(digits));
 }

@@ -6,7 +6,19 @@
 // grid keeps no values of its own: it asks the engine what each cell shows.
 
 import { el } from '../dom.js';
+import { formatEngineering, formatPlain } from '../format.js';
 import { COLS, ROWS, addressOf, parseAddress, rectOf, rangeText, moved, addressesIn } from './address.js';
+
+/**
+ * What a cell shows: numbers to six significant digits (with an SI prefix when
+ * they carry a unit other than dB), everything else as the engine displays it.
+ */
+export function shownText(v) {
+  if (v.kind === 'empty') return '';
+  if (v.kind !== 'number') return v.display;
+  if (!v.unit) return formatPlain(v.number, 6);
+  return v.unit === 'dB' ? `${formatPlain(v.number, 6)} dB` : `${formatEngineering(v.number, 5)}${v.unit}`;
+}
 
 export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
   const nameBox = el('output', { class: 'sheet-namebox', 'aria-label': 'active cell' }, 'A1');
@@ -57,11 +69,22 @@ export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
   }
 
   function paint(td, v) {
-    td.textContent = v.kind === 'empty' ? '' : v.display;
-    td.className = `k-${v.kind}${v.spill ? ' spill-anchor' : ''}${v.input === undefined || v.input === null ? (v.kind !== 'empty' ? ' spilled' : '') : ''}`;
+    td.textContent = shownText(v);
+    // The full value stays available to a pointer and to assistive technology.
+    if (v.kind === 'number') td.dataset.value = String(v.number);
+    else delete td.dataset.value;
+    const typed = typeof v.input === 'string' && v.input !== '';
+    const classes = [`k-${v.kind}`];
+    if (v.spill) classes.push('spill-anchor');
+    if (!typed && v.kind !== 'empty') classes.push('spilled');
+    if (typed && v.kind === 'number' && !v.input.trimStart().startsWith('=')) classes.push('k-input');
+    td.className = classes.join(' ');
     if (v.kind === 'error') {
       td.title = `${v.error}: ${v.message}`;
       td.setAttribute('aria-description', `${v.error}: ${v.message}`);
+    } else if (v.kind === 'number') {
+      td.title = v.display;
+      td.removeAttribute('aria-description');
     } else {
       td.removeAttribute('title');
       td.removeAttribute('aria-description');
@@ -164,6 +187,14 @@ export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
   });
   bar.addEventListener('focus', () => { editing = true; });
   bar.addEventListener('blur', () => { editing = false; });
+
+  // Focus that arrives by other means (a screen reader, a script) makes that cell active.
+  table.addEventListener('focusin', (e) => {
+    const td = e.target.closest('td[role="gridcell"]');
+    if (!td) return;
+    const pos = { col: Number(td.dataset.col), row: Number(td.dataset.row) };
+    if (pos.col !== active.col || pos.row !== active.row) focusCell(pos);
+  });
 
   table.addEventListener('mousedown', (e) => {
     const td = e.target.closest('td[role="gridcell"]');

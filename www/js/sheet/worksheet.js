@@ -90,7 +90,7 @@ export async function mountWorksheet(host, api) {
     }
   } else {
     const saved = store.recovered();
-    if (saved && load(saved, 'The autosaved sheet')) note.textContent = 'Recovered your sheet from this browser.';
+    if (saved && load(saved, 'The autosaved sheet')) note.append(`${note.textContent ? ' ' : ''}Recovered your sheet from this browser.`);
   }
   grid.refresh();
   return { sheet, grid };
