@@ -38,7 +38,8 @@ test('Node: the installed package gives the reference values and typed errors', 
 });
 
 test('TypeScript: the definitions type-check a consumer, and reject a wrong one', () => {
-  const args = ['--noEmit', '--strict', '--module', 'NodeNext', '--moduleResolution', 'NodeNext', '--target', 'ES2022'];
+  // wasm-bindgen's classes declare [Symbol.dispose], typed in ESNext.Disposable (TS ≥ 5.2).
+  const args = ['--noEmit', '--strict', '--module', 'NodeNext', '--moduleResolution', 'NodeNext', '--target', 'ES2022', '--lib', 'ES2022,DOM,ESNext.Disposable'];
   const good = spawnSync(join(BIN, 'tsc'), [...args, 'consumer.ts'], { cwd: project, encoding: 'utf8' });
   assert.equal(good.status, 0, `tsc on consumer.ts: ${good.stdout}${good.stderr}`);
   const bad = spawnSync(join(BIN, 'tsc'), [...args, 'bad-consumer.ts'], { cwd: project, encoding: 'utf8' });

@@ -252,3 +252,29 @@ test('loaded stage card: exact, two-port and ideal side by side', async () => {
   assert.deepEqual(problems, []);
   await context.close();
 });
+
+test('text contrast meets WCAG 2.1 AA (axe-core color-contrast rule)', async () => {
+  // axe-core is injected as a script, which the page's own policy forbids; this
+  // context bypasses CSP for the audit only.
+  const { createRequire } = await import('node:module');
+  const axePath = createRequire(import.meta.url).resolve('axe-core/axe.min.js');
+  for (const width of [1280, 390]) {
+    const context = await browser.newContext({ bypassCSP: true, viewport: { width, height: 900 } });
+    const page = await context.newPage();
+    await page.goto(url);
+    await page.waitForSelector('html[data-ready="true"]');
+    await page.addScriptTag({ path: axePath });
+    const audit = async (what) => {
+      const r = await page.evaluate(() => globalThis.axe.run(document, { runOnly: ['color-contrast'], resultTypes: ['violations'] }));
+      const bad = r.violations.flatMap((v) => v.nodes.map((n) => `${n.target.join(' ')}: ${n.any.map((a) => a.message).join('; ')}`));
+      assert.deepEqual(bad, [], `${what} at ${width}px`);
+    };
+    await audit('calculators');
+    await page.click('#tab-sheet');
+    await page.click('#sheet-demo');
+    await retype(page, '#formula-bar', '=1/0');
+    await page.keyboard.press('Enter');
+    await audit('worksheet');
+    await context.close();
+  }
+});

@@ -317,6 +317,28 @@ for (const e of tdoc.elements) {
   shape(e, ['name', 'kind', 'nodes', 'value', ...extra], `template element ${e.name}`);
 }
 
+// Worksheet engine: a sheet built from JS, recalculated, saved and loaded.
+const ws = new lw.Worksheet();
+ws.setCell('A1', '100k');
+ws.setCell('A2', '0.01');
+const changed = ws.setCell('A3', '=FB.GAIN(A1; A2)');
+assert.ok(changed.includes('A3'));
+// Af = 10⁵/(1 + 10⁵·0.01) = 99.90 (closed form).
+assert.ok(Math.abs(ws.value('A3').number - 1e5 / 1001) < 1e-9);
+assert.deepEqual(ws.setCell('A1', '200k').sort(), ['A1', 'A3']);
+ws.setCell('B1', '=1/0');
+assert.equal(ws.value('B1').error, '#DIV/0!');
+const sheetDoc = ws.saveDocument();
+const ws2 = new lw.Worksheet();
+ws2.loadDocument(sheetDoc);
+assert.equal(ws2.saveDocument(), sheetDoc, 'save → load → save is byte-identical');
+throws(() => ws2.loadDocument('{"format":"loopwright-sheet","version":99,"cells":{}}'), 'bad_document', 'document');
+assert.equal(ws2.value('A3').number, ws.value('A3').number, 'nothing lost by the refused document');
+const catalog = JSON.parse(lw.functionCatalog());
+assert.ok(catalog.functions.some((f) => f.name === 'FB.GAIN'));
+ws.free();
+ws2.free();
+
 console.log('consumer: all checks passed');
 
 // Errors must leave the module healthy: a thrown error may not leak wasm stack or

@@ -1,6 +1,6 @@
 // Type check of the published definitions: this file must compile with tsc --noEmit.
 import init, { summarizeFeedback, gainSpread, impedancesWithFeedback, topologyInfo } from 'loopwright';
-import { bestPairs, integratedNoise, feedbackDistortion } from 'loopwright';
+import { bestPairs, integratedNoise, feedbackDistortion, Worksheet } from 'loopwright';
 import type { FeedbackSummary, GainSpread, LoopwrightError, Topology, PairResult, IntegratedNoise, FeedbackDistortion } from 'loopwright';
 import { stabilityMargins, closedLoopPoles, stepResponse, analyzeLoop, loopGainSweep, loopAt, dominantPoleForMargin } from 'loopwright';
 import type {
@@ -31,7 +31,11 @@ export async function run(): Promise<number> {
   const noise: IntegratedNoise = integratedNoise('inverting', 1e4, 1e3, 0, 300, 4e-9, 10, 1e-12, 100, 1e7, new Float64Array(0), 10, Infinity);
   const hd: FeedbackDistortion = feedbackDistortion(1e4, 1e6, -2e10, 0.01, 1, 'output');
   const ratio: number | null = hd.hd2Ratio;
-  return s.closedLoopGain + (ideal ?? 0) + spread.spreadPpm + zin + unit.length + r2 + noise.outputRms + (ratio ?? 0);
+  const sheet = new Worksheet();
+  const touched: string[] = sheet.setCell('A1', '=FB.GAIN(100k; 0.01)');
+  const saved: string = sheet.saveDocument();
+  sheet.free();
+  return touched.length + saved.length + s.closedLoopGain + (ideal ?? 0) + spread.spreadPpm + zin + unit.length + r2 + noise.outputRms + (ratio ?? 0);
 }
 
 export function frequency(): number {
