@@ -106,7 +106,7 @@ test('copy and paste of a range as TSV', async () => {
   await cell(page, 'A1').click();
   await page.keyboard.press('Shift+ArrowRight');
   await page.keyboard.press('Shift+ArrowDown');
-  assert.equal(await page.locator('.sheet-namebox').textContent(), 'A1:B2');
+  assert.equal(await page.inputValue('#sheet-namebox'), 'A1:B2');
   await page.keyboard.press('Control+C');
   const copied = await page.evaluate(() => navigator.clipboard.readText());
   assert.equal(copied.replace(/\r?\n$/, ''), '1\t10\n2\t20');
@@ -182,6 +182,28 @@ test('share link carries the sheet; autosave recovers after a reload', async () 
   assert.deepEqual(problems, []);
   assert.deepEqual(p3, []);
   await other.close();
+  await context.close();
+});
+
+test('naming a cell from the name box, and going to an address', async () => {
+  const context = await browser.newContext();
+  const { page, problems } = await openSheet(context);
+  await typeAt(page, 'B2', '250k');
+  await cell(page, 'B2').click();
+  await page.fill('#sheet-namebox', 'aol');
+  await page.press('#sheet-namebox', 'Enter');
+  await typeAt(page, 'C2', '=FB.GAIN(aol; 0.1)');
+  // Af = 250 000/(1 + 25 000) = 9.9996 (closed form).
+  assert.equal(await shown(page, 'C2'), '9.9996');
+  await page.fill('#sheet-namebox', 'Z200');
+  await page.press('#sheet-namebox', 'Enter');
+  assert.equal(await page.evaluate(() => document.activeElement.id), 'cell-Z200');
+  // A name that is not an identifier is refused, as text, running nothing.
+  await page.fill('#sheet-namebox', '<img src=x onerror=alert(1)>');
+  await page.press('#sheet-namebox', 'Enter');
+  assert.match(await page.locator('#sheet-explain').textContent(), /not set/);
+  assert.equal(await page.locator('.sheet-explain img').count(), 0);
+  assert.deepEqual(problems, []);
   await context.close();
 });
 

@@ -21,7 +21,12 @@ export function shownText(v) {
 }
 
 export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
-  const nameBox = el('output', { class: 'sheet-namebox', 'aria-label': 'active cell' }, 'A1');
+  // The name box shows the active cell or range; typing an address there moves to
+  // it, typing a name (e.g. gain) names the active cell.
+  const nameBox = el('input', {
+    class: 'sheet-namebox', id: 'sheet-namebox', value: 'A1', autocomplete: 'off', spellcheck: 'false',
+    'aria-label': 'active cell; type an address to go there or a name to name the cell',
+  });
   const bar = el('input', {
     class: 'sheet-formula', id: 'formula-bar', 'aria-label': 'cell input (formula bar)',
     autocomplete: 'off', spellcheck: 'false', placeholder: 'number, text or =formula',
@@ -102,7 +107,7 @@ export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
 
   function showActive() {
     const address = addressOf(active.col, active.row);
-    nameBox.textContent = rangeText(selection());
+    nameBox.value = rangeText(selection());
     if (!editing) bar.value = sheet.input(address) ?? '';
     const v = sheet.value(address);
     explain.textContent = v.kind === 'error' ? `${address} shows ${v.error}: ${v.message}` : '';
@@ -183,6 +188,24 @@ export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
       e.preventDefault();
       editing = false;
       focusCell(active);
+    }
+  });
+  nameBox.addEventListener('keydown', (e) => {
+    if (e.key === 'Escape') { e.preventDefault(); focusCell(active); return; }
+    if (e.key !== 'Enter') return;
+    e.preventDefault();
+    const text = nameBox.value.trim();
+    const target = parseAddress(text);
+    if (target) { focusCell(target); return; }
+    const address = addressOf(active.col, active.row);
+    try {
+      const changed = sheet.setName(text, address);
+      renderAll(changed);
+      onChange(changed);
+      explain.textContent = `${address} is now named ${text}.`;
+      focusCell(active);
+    } catch (err) {
+      explain.textContent = `Name "${text}" not set: ${err.message}`;
     }
   });
   bar.addEventListener('focus', () => { editing = true; });
