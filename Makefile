@@ -36,6 +36,7 @@ test-native:
 test-reference:
 	@for script in tests/reference/*.py; do $(PY) $$script --check || exit 1; done
 
+test-browser: export WASM_BINDGEN_TEST_TIMEOUT = 300
 test-browser:
 	CHROMEDRIVER=/usr/bin/chromedriver cargo test --target wasm32-unknown-unknown --features wasm --test 'wasm_*'
 	GECKODRIVER=$$(command -v geckodriver) cargo test --target wasm32-unknown-unknown --features wasm --test 'wasm_*'

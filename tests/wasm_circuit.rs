@@ -4,36 +4,23 @@
 //! arrays, and thrown errors with `code`, `param` and `subject`.
 #![cfg(target_arch = "wasm32")]
 
-use js_sys::Reflect;
 use loopwright::wasm::circuit as api;
 use wasm_bindgen::{JsCast, JsValue};
 use wasm_bindgen_test::*;
 
 wasm_bindgen_test_configure!(run_in_browser);
 
-fn field(obj: &JsValue, name: &str) -> JsValue {
-    Reflect::get(obj, &name.into()).unwrap()
-}
+#[path = "support/js.rs"]
+mod js;
+use js::{field, num, text};
 
-fn num(obj: &JsValue, name: &str) -> f64 {
-    field(obj, name).as_f64().unwrap_or_else(|| panic!("{name} is not a number"))
-}
-
-fn text(obj: &JsValue, name: &str) -> String {
-    field(obj, name).as_string().unwrap_or_else(|| panic!("{name} is not a string"))
+fn assert_thrown(r: Result<impl core::fmt::Debug, JsValue>, code: &str, param: &str, subject: &str) {
+    let e = js::assert_thrown(r, code, param);
+    assert_eq!(text(&e, "subject"), subject);
 }
 
 fn re(obj: &JsValue, name: &str) -> f64 {
     num(&field(obj, name), "re")
-}
-
-fn assert_thrown(r: Result<impl core::fmt::Debug, JsValue>, code: &str, param: &str, subject: &str) {
-    let e = r.expect_err("expected a thrown error");
-    assert!(e.is_instance_of::<js_sys::Error>(), "thrown value is a JS Error");
-    assert_eq!(text(&e, "name"), "LoopwrightError");
-    assert_eq!(text(&e, "code"), code);
-    assert_eq!(text(&e, "param"), param);
-    assert_eq!(text(&e, "subject"), subject);
 }
 
 const DIVIDER: &str = r#"{"format":"loopwright-circuit","version":1,"elements":[

@@ -3,33 +3,14 @@
 //! as plain objects, and thrown errors with `code` and `param`.
 #![cfg(target_arch = "wasm32")]
 
-use js_sys::Reflect;
 use loopwright::wasm::feedback as api;
-use wasm_bindgen::{JsCast, JsValue};
 use wasm_bindgen_test::*;
 
 wasm_bindgen_test_configure!(run_in_browser);
 
-fn field(obj: &JsValue, name: &str) -> JsValue {
-    Reflect::get(obj, &name.into()).unwrap()
-}
-
-fn num(obj: &JsValue, name: &str) -> f64 {
-    field(obj, name).as_f64().unwrap_or_else(|| panic!("{name} is not a number"))
-}
-
-fn text(obj: &JsValue, name: &str) -> String {
-    field(obj, name).as_string().unwrap_or_else(|| panic!("{name} is not a string"))
-}
-
-fn assert_thrown(r: Result<impl core::fmt::Debug, JsValue>, code: &str, param: &str) {
-    let e = r.expect_err("expected a thrown error");
-    assert!(e.is_instance_of::<js_sys::Error>(), "thrown value is a JS Error");
-    assert_eq!(text(&e, "code"), code);
-    assert_eq!(text(&e, "param"), param);
-    assert_eq!(text(&e, "name"), "LoopwrightError");
-    assert!(text(&e, "message").starts_with(&format!("{param}: ")));
-}
+#[path = "support/js.rs"]
+mod js;
+use js::{assert_thrown, field, num, text};
 
 #[wasm_bindgen_test]
 fn scalar_functions_return_numbers() {

@@ -3,41 +3,19 @@
 //! arrays and plain objects out, thrown errors with `code` and `param`.
 #![cfg(target_arch = "wasm32")]
 
-use js_sys::{Array, Float64Array, Reflect, JSON};
+use js_sys::{Array, JSON};
 use loopwright::wasm::freq as api;
-use wasm_bindgen::{JsCast, JsValue};
+use wasm_bindgen::JsValue;
 use wasm_bindgen_test::*;
 
 wasm_bindgen_test_configure!(run_in_browser);
 
+#[path = "support/js.rs"]
+mod js;
+use js::{assert_thrown, field, num, text, typed};
+
 fn obj(json: &str) -> JsValue {
     JSON::parse(json).unwrap()
-}
-
-fn field(o: &JsValue, name: &str) -> JsValue {
-    Reflect::get(o, &name.into()).unwrap()
-}
-
-fn num(o: &JsValue, name: &str) -> f64 {
-    field(o, name).as_f64().unwrap_or_else(|| panic!("{name} is not a number"))
-}
-
-fn text(o: &JsValue, name: &str) -> String {
-    field(o, name).as_string().unwrap_or_else(|| panic!("{name} is not a string"))
-}
-
-fn typed(o: &JsValue, name: &str) -> Vec<f64> {
-    let v = field(o, name);
-    assert!(v.is_instance_of::<Float64Array>(), "{name} is a Float64Array");
-    v.unchecked_into::<Float64Array>().to_vec()
-}
-
-fn assert_thrown(r: Result<impl core::fmt::Debug, JsValue>, code: &str, param: &str) {
-    let e = r.expect_err("expected a thrown error");
-    assert!(e.is_instance_of::<js_sys::Error>(), "thrown value is a JS Error");
-    assert_eq!(text(&e, "code"), code);
-    assert_eq!(text(&e, "param"), param);
-    assert_eq!(text(&e, "name"), "LoopwrightError");
 }
 
 fn three_equal_poles(t0: f64) -> JsValue {

@@ -4,34 +4,18 @@
 //! native build for the same seed.
 #![cfg(target_arch = "wasm32")]
 
-use js_sys::{Array, Float64Array, Reflect};
+use js_sys::{Array, Float64Array};
 use loopwright::wasm::network as api;
 use wasm_bindgen::{JsCast, JsValue};
 use wasm_bindgen_test::*;
 
 wasm_bindgen_test_configure!(run_in_browser);
 
+#[path = "support/js.rs"]
+mod js;
+use js::{assert_thrown, field, num, text};
+
 include!("fixtures/network_montecarlo.rs");
-
-fn field(obj: &JsValue, name: &str) -> JsValue {
-    Reflect::get(obj, &name.into()).unwrap()
-}
-
-fn num(obj: &JsValue, name: &str) -> f64 {
-    field(obj, name).as_f64().unwrap_or_else(|| panic!("{name} is not a number"))
-}
-
-fn text(obj: &JsValue, name: &str) -> String {
-    field(obj, name).as_string().unwrap_or_else(|| panic!("{name} is not a string"))
-}
-
-fn assert_thrown(r: Result<impl core::fmt::Debug, JsValue>, code: &str, param: &str) {
-    let e = r.expect_err("expected a thrown error");
-    assert!(e.is_instance_of::<js_sys::Error>(), "thrown value is a JS Error");
-    assert_eq!(text(&e, "code"), code);
-    assert_eq!(text(&e, "param"), param);
-    assert!(text(&e, "message").starts_with(&format!("{param}: ")));
-}
 
 #[wasm_bindgen_test]
 fn standard_values_and_notation() {

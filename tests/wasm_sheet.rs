@@ -3,35 +3,19 @@
 //! changed cells, spills, names, the document, CSV/TSV, the catalog.
 #![cfg(target_arch = "wasm32")]
 
-use js_sys::{Array, Reflect, JSON};
+use js_sys::{Array, JSON};
 use loopwright::wasm::sheet::{error_values, function_catalog, Worksheet};
-use wasm_bindgen::{JsCast, JsValue};
+use wasm_bindgen::JsCast;
 use wasm_bindgen_test::*;
 
 wasm_bindgen_test_configure!(run_in_browser);
 
-fn field(obj: &JsValue, name: &str) -> JsValue {
-    Reflect::get(obj, &name.into()).unwrap()
-}
-
-fn text(obj: &JsValue, name: &str) -> String {
-    field(obj, name).as_string().unwrap_or_else(|| panic!("{name} is not a string"))
-}
-
-fn num(obj: &JsValue, name: &str) -> f64 {
-    field(obj, name).as_f64().unwrap_or_else(|| panic!("{name} is not a number"))
-}
+#[path = "support/js.rs"]
+mod js;
+use js::{assert_thrown, field, num, text};
 
 fn strings(a: &Array) -> Vec<String> {
     a.iter().map(|v| v.as_string().unwrap()).collect()
-}
-
-fn assert_thrown(r: Result<impl core::fmt::Debug, JsValue>, code: &str, param: &str) {
-    let e = r.expect_err("expected a thrown error");
-    assert!(e.is_instance_of::<js_sys::Error>());
-    assert_eq!(text(&e, "code"), code);
-    assert_eq!(text(&e, "param"), param);
-    assert_eq!(text(&e, "name"), "LoopwrightError");
 }
 
 #[wasm_bindgen_test]

@@ -20,3 +20,15 @@ export function clear(node) {
   while (node.firstChild) node.firstChild.remove();
   return node;
 }
+
+/** Offer a Blob to the user as a file download. */
+export function downloadBlob(blob, name) {
+  const url = URL.createObjectURL(blob);
+  const a = document.createElement('a');
+  a.href = url;
+  a.download = name;
+  document.body.append(a);
+  a.click();
+  a.remove();
+  setTimeout(() => URL.revokeObjectURL(url), 1000);
+}

@@ -1,6 +1,8 @@
 // Save a plot as SVG or PNG. The SVG carries its colours inline at export time
 // (copied from the computed style), so the file looks the same outside the page.
 
+import { downloadBlob } from '../dom.js';
+
 const STYLE_PROPS = ['fill', 'stroke', 'stroke-width', 'stroke-dasharray', 'font-size', 'font-family', 'font-weight', 'opacity'];
 
 export function svgText(svgElement) {
@@ -18,19 +20,8 @@ export function svgText(svgElement) {
   return new XMLSerializer().serializeToString(copy);
 }
 
-function download(blob, name) {
-  const url = URL.createObjectURL(blob);
-  const a = document.createElement('a');
-  a.href = url;
-  a.download = name;
-  document.body.append(a);
-  a.click();
-  a.remove();
-  setTimeout(() => URL.revokeObjectURL(url), 1000);
-}
-
 export function saveSvg(svgElement, name) {
-  download(new Blob([svgText(svgElement)], { type: 'image/svg+xml' }), `${name}.svg`);
+  downloadBlob(new Blob([svgText(svgElement)], { type: 'image/svg+xml' }), `${name}.svg`);
 }
 
 export async function savePng(svgElement, name, scale = 2) {
@@ -46,5 +37,5 @@ export async function savePng(svgElement, name, scale = 2) {
   ctx.fillRect(0, 0, canvas.width, canvas.height);
   ctx.drawImage(img, 0, 0, canvas.width, canvas.height);
   const blob = await new Promise((ok) => canvas.toBlob(ok, 'image/png'));
-  download(blob, `${name}.png`);
+  downloadBlob(blob, `${name}.png`);
 }

@@ -3,6 +3,7 @@
 // share link. DOM-light: file pickers and downloads only.
 
 import { encodeFragment, decodeFragment } from './share.js';
+import { downloadBlob } from '../dom.js';
 
 export const AUTOSAVE_KEY = 'loopwright.sheet.autosave';
 export const BACKUP_KEY = 'loopwright.sheet.before-share-link';
@@ -44,14 +45,7 @@ export function backup() {
 }
 
 export function download(text, name, type) {
-  const url = URL.createObjectURL(new Blob([text], { type }));
-  const a = document.createElement('a');
-  a.href = url;
-  a.download = name;
-  document.body.append(a);
-  a.click();
-  a.remove();
-  setTimeout(() => URL.revokeObjectURL(url), 1000);
+  downloadBlob(new Blob([text], { type }), name);
 }
 
 export function saveFile(sheet) {
