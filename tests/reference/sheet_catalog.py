@@ -1,7 +1,7 @@
 #!/usr/bin/env python3
 """The worked examples of the worksheet function catalog, recomputed independently
-with mpmath at 40 significant digits (and Python's decimal module for ROUND), from
-the textbook formulas alone: Af = A/(1 + A*beta), T = A*beta, D = 1 + A*beta,
+with mpmath at 40 significant digits (and Python's decimal module for ROUND, the
+eseries package for the IEC 60063 tables), from the textbook formulas alone: Af = A/(1 + A*beta), T = A*beta, D = 1 + A*beta,
 impedances scaled by D per topology, dB = 20*log10|ratio| or 10*log10(ratio).
 
 Writes tests/reference/data/sheet_catalog.json, which tests/sheet_catalog.rs
@@ -16,6 +16,7 @@ import sys
 from decimal import ROUND_HALF_UP, Decimal
 from pathlib import Path
 
+import eseries
 import mpmath as mp
 
 mp.mp.dps = 40
@@ -184,6 +185,122 @@ CASES.update({
     "=LOOP.MAXBETA(1000; 60; 1; 1k; 100k)": max_beta_for_margin(M(1000), M(60), M(1000), M(10**5)),
 })
 
+# --- networks and tolerance (RES.): the eseries package (IEC 60063 tables), a
+# brute-force pair enumeration, corner evaluation and exact Monte Carlo moments
+
+
+def e_values(key, lo, hi):
+    """Every value of the series from lo to hi, from the eseries package."""
+    return [float(v) for v in eseries.erange(key, lo, hi)]
+
+
+def best_pairs_brute(target, key, total_min, total_max, count):
+    """Non-inverting gain 1 + R2/R1: for every standard R1 the best standard R2 with
+    R1 + R2 in range, ranked by |error|, then R1 + R2, then R1 (the ranking rule
+    of src/network/pairs.rs). Errors in double precision, as the engine computes
+    them, so ties rank identically."""
+    values = e_values(key, 1e-3, total_max)
+    rows = []
+    for r1 in values:
+        best = None
+        for r2 in values:
+            if not total_min <= r1 + r2 <= total_max:
+                continue
+            g = 1.0 + r2 / r1
+            cand = (abs(g / target - 1.0), r1 + r2, r1, r2, g, g / target - 1.0)
+            if best is None or cand[:3] < best[:3]:
+                best = cand
+        if best is not None:
+            rows.append(best)
+    rows.sort(key=lambda c: c[:3])
+    out = []
+    for _, _, r1, r2, g, err in rows[:count]:
+        out += [M(r1), M(r2), M(g), M(err)]
+    return out
+
+
+def non_inverting_gain(a, r1, r2):
+    return a / (1 + a * r1 / (r1 + r2))
+
+
+def worst_case_gain(r1, r2, tol, a_min, a_typ, a_max):
+    nominal = non_inverting_gain(a_typ, r1, r2)
+    corners = [non_inverting_gain(a, r1 * (1 + s1 * tol), r2 * (1 + s2 * tol))
+               for a in (a_min, a_max) for s1 in (-1, 1) for s2 in (-1, 1)]
+    lo, hi = min(corners), max(corners)
+    return [nominal, lo, hi, (lo - nominal) * 100 / nominal, (hi - nominal) * 100 / nominal]
+
+
+class UniformGain:
+    """Af = 1/(beta + 1/A), beta = R1/(R1 + R2), R1 = r1 (1 + t u1), R2 = r2 (1 + t u2),
+    u1, u2 independent uniform on [-1, 1]: exact moments by 2-D quadrature and the
+    exact CDF P(Af <= q) = 1/2 * integral over u1 of the share of u2 below the bound."""
+
+    def __init__(self, r1, r2, tol, a):
+        self.r1, self.r2, self.t, self.a = r1, r2, tol, a
+
+    def g(self, u1, u2):
+        R1, R2 = self.r1 * (1 + self.t * u1), self.r2 * (1 + self.t * u2)
+        return 1 / (R1 / (R1 + R2) + 1 / self.a)
+
+    def moment(self, f):
+        return mp.quad(lambda u1, u2: f(self.g(u1, u2)) / 4, [-1, 1], [-1, 1])
+
+    def cdf(self, q):
+        c = 1 / q - 1 / self.a  # Af <= q  <=>  beta >= c  <=>  R2 <= R1 (1 - c)/c
+
+        def share(u1):
+            w = (self.r1 * (1 + self.t * u1) * (1 - c) / c / self.r2 - 1) / self.t
+            return min(max((w + 1) / 2, M(0)), M(1))
+
+        # w(u1) is linear: split at the kinks where it leaves [-1, 1].
+        k = self.r1 * (1 - c) / c / self.r2
+        kinks = sorted(u for u in (((v + 1) * 1 / k - 1) / self.t for v in (-1, 1)) if -1 < u < 1)
+        return mp.quad(share, [-1] + kinks + [1]) / 2
+
+    def quantile(self, p, lo, hi):
+        return mp.findroot(lambda q: self.cdf(q) - p, (lo, hi), solver="anderson")
+
+
+MC_TRIALS = 200000
+MC = UniformGain(M(1000), M(9000), M("0.01"), M(10**5))
+MC_MEAN = MC.moment(lambda x: x)
+MC_SD = mp.sqrt(MC.moment(lambda x: (x - MC_MEAN) ** 2))
+MC_M4 = MC.moment(lambda x: (x - MC_MEAN) ** 4)
+MC_LO, MC_HI = MC.g(1, -1), MC.g(-1, 1)
+MC_PCT = [MC.quantile(M(p) / 100, MC_LO + (MC_HI - MC_LO) * M("1e-6"), MC_HI - (MC_HI - MC_LO) * M("1e-6"))
+          for p in ("0.1", "1", "5", "50", "95", "99", "99.9")]
+MC_YIELD = MC.cdf(M("10.05")) - MC.cdf(M("9.9"))
+
+
+def mc_tolerances():
+    """5 standard errors of each statistic of MC_TRIALS draws, relative to its value:
+    mean sd/sqrt(N); sd sqrt((m4 - sd^4)/(4 sd^2 N)); the p-quantile
+    sqrt(p(1 - p)/N)/f(q) with f the exact density (asymptotic normality of
+    sample quantiles)."""
+    n = MC_TRIALS
+    tols = [5 * MC_SD / mp.sqrt(n) / MC_MEAN, 5 * mp.sqrt((MC_M4 - MC_SD**4) / (4 * MC_SD**2 * n)) / MC_SD]
+    for p, q in zip(("0.1", "1", "5", "50", "95", "99", "99.9"), MC_PCT):
+        p = M(p) / 100
+        density = mp.diff(MC.cdf, q)
+        tols.append(5 * mp.sqrt(p * (1 - p) / n) / density / q)
+    return [float(t) for t in tols]
+
+
+CASES.update({
+    "=RES.NEAREST(5k; \"E12\")": [M(eseries.find_nearest(eseries.E12, 5000.0))],
+    "=RES.UP(12345; \"E96\")": [M(eseries.find_greater_than_or_equal(eseries.E96, 12345.0))],
+    "=RES.DOWN(12345; \"E96\")": [M(eseries.find_less_than_or_equal(eseries.E96, 12345.0))],
+    "=RES.TOLERANCE(\"E96\")": [M(eseries.tolerance(eseries.E96))],
+    "=RES.PAIR(\"non-inverting\"; 7.5; \"E12\"; 10k; 100k; 3)": best_pairs_brute(7.5, eseries.E12, 1e4, 1e5, 3),
+    "=RES.WORSTCASE(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 50k; 100k; 200k; 1M; 50; 10 Hz)": worst_case_gain(
+        M(1000), M(9000), M("0.01"), M(5 * 10**4), M(10**5), M(2 * 10**5)),
+    "=RES.MONTECARLO(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\")":
+        [MC_MEAN, MC_SD] + MC_PCT,
+    "=RES.YIELD(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\"; 9.9; 10.05)":
+        [MC_YIELD],
+})
+
 # Cases whose engine value comes from a numeric search or integration, so agrees
 # with the closed form only to the core's stated tolerance: (relative tolerance,
 # why). Every other case is held to the test's default (a few ulps).
@@ -196,6 +313,11 @@ TOLERANCES = {
     "=LOOP.POLES(1000; 0.1; 1k; 100k)": (1e-12, "polynomial roots by iteration"),
     "=LOOP.DOMINANT(100k; 1; 60; 1 MHz; 10 MHz)": (1e-8, "the core bisects the pole to SEARCH_REL_TOL = 1e-10"),
     "=LOOP.MAXBETA(1000; 60; 1; 1k; 100k)": (1e-8, "the core bisects beta to SEARCH_REL_TOL = 1e-10"),
+    "=RES.MONTECARLO(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\")": (
+        mc_tolerances(), "statistical: 5 standard errors of each statistic of 200000 seeded draws"),
+    "=RES.YIELD(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\"; 9.9; 10.05)": (
+        float(5 * mp.sqrt(MC_YIELD * (1 - MC_YIELD) / MC_TRIALS) / MC_YIELD),
+        "statistical: 5 standard errors sqrt(y(1 - y)/N) of a share of 200000 seeded draws"),
 }
 
 
