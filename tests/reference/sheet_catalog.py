@@ -301,6 +301,32 @@ CASES.update({
         [MC_YIELD],
 })
 
+# --- the loaded circuit (CKT.): the worked non-inverting case of the sympy
+# closed forms in tests/reference/data/circuit_sympy.json (tests/reference/circuit_sympy.py)
+
+CIRCUIT = json.loads((Path(__file__).parent / "data" / "circuit_sympy.json").read_text())
+NI = CIRCUIT["stages"]["noninverting"]["cases"][-1]
+assert (NI["a"], NI["ri"], NI["ro"], NI["r2"], NI["r1"], NI["rs"], NI["rl"]) == (1e4, 1e5, 1e3, 1e6, 1e3, 1e4, 2e3)
+
+
+def compared(exact, two_port):
+    exact, two_port = M(exact), M(two_port)
+    return [exact, two_port, abs(two_port - exact) / abs(exact)]
+
+
+CKT_STAGE = "(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)"
+IDEAL = 1 + M(10**6) / M(1000)
+CASES.update({
+    "=CKT.GAIN" + CKT_STAGE: compared(NI["af"], NI["tp_af"]),
+    "=CKT.RIN" + CKT_STAGE: compared(NI["rin"], NI["tp_rin"]),
+    "=CKT.ROUT" + CKT_STAGE: compared(NI["rout"], NI["tp_rout"]),
+    "=CKT.IDEAL" + CKT_STAGE: [IDEAL, abs(IDEAL - M(NI["af"])) / M(NI["af"])],
+})
+# The relative error of the two-port method is a difference of two values that
+# agree to 1e-10, each carried in the JSON to double precision: ~1e-6 relative.
+CKT_TOL = ([1e-10, 1e-10, 1e-5], "nodal solve against the sympy closed forms (1e-10, as tests/circuit_reference.rs); "
+           "the error item is a difference of two doubles that agree to 1e-10")
+
 # Cases whose engine value comes from a numeric search or integration, so agrees
 # with the closed form only to the core's stated tolerance: (relative tolerance,
 # why). Every other case is held to the test's default (a few ulps).
@@ -318,6 +344,10 @@ TOLERANCES = {
     "=RES.YIELD(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\"; 9.9; 10.05)": (
         float(5 * mp.sqrt(MC_YIELD * (1 - MC_YIELD) / MC_TRIALS) / MC_YIELD),
         "statistical: 5 standard errors sqrt(y(1 - y)/N) of a share of 200000 seeded draws"),
+    "=CKT.GAIN" + CKT_STAGE: CKT_TOL,
+    "=CKT.RIN" + CKT_STAGE: CKT_TOL,
+    "=CKT.ROUT" + CKT_STAGE: CKT_TOL,
+    "=CKT.IDEAL" + CKT_STAGE: ([1e-12, 1e-10], "Af from the sympy closed form, to 1e-10 as tests/circuit_reference.rs"),
 }
 
 

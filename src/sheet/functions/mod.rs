@@ -16,6 +16,7 @@
 //! add one [`FunctionSpec`] to that area's `FUNCTIONS` table. To add an area: a
 //! new file with a `FUNCTIONS` table and one line in [`AREAS`].
 
+pub mod circuit;
 pub mod decibel;
 pub mod feedback;
 pub mod logic;
@@ -135,6 +136,7 @@ pub static AREAS: &[&[FunctionSpec]] = &[
     feedback::FUNCTIONS,
     loops::FUNCTIONS,
     network::FUNCTIONS,
+    circuit::FUNCTIONS,
 ];
 
 /// Every function, area by area.
