@@ -327,6 +327,57 @@ CASES.update({
 CKT_TOL = ([1e-10, 1e-10, 1e-5], "nodal solve against the sympy closed forms (1e-10, as tests/circuit_reference.rs); "
            "the error item is a difference of two doubles that agree to 1e-10")
 
+# --- distortion and slew (DIST.), noise (NOISE.): closed forms
+
+
+def closed_series(a1, a2, a3, beta):
+    """Series reversion of y = a1 u + a2 u^2 + a3 u^3 with u = x - beta y, D = 1 + a1 beta."""
+    d = 1 + a1 * beta
+    return [a1 / d, a2 / d**3, (a3 * d - 2 * a2 * a2 * beta) / d**5]
+
+
+def hd(a1, a2, a3, y):
+    """HD2 = |a2| X/(2|a1|), HD3 = |a3| X^2/(4|a1|) at the output amplitude y = |a1| X."""
+    x = y / abs(a1)
+    return [abs(a2) * x / (2 * abs(a1)), abs(a3) * x * x / (4 * abs(a1))]
+
+
+K_B = M("1.380649e-23")  # Boltzmann constant, exact in the 2019 SI
+
+
+def stage_noise(rf, rg, rp, en, fce, i_n, fci, t, f):
+    """Output densities of a non-inverting stage at f, NG = 1 + Rf/Rg, 1/f corners e^2 (1 + fc/f)."""
+    ng = 1 + rf / rg
+    e2 = en * en * (1 + fce / f)
+    i2 = i_n * i_n * (1 + fci / f)
+    terms = [mp.sqrt(4 * K_B * t * rf), mp.sqrt(4 * K_B * t * rg) * rf / rg, mp.sqrt(4 * K_B * t * rp) * ng,
+             mp.sqrt(e2) * ng, mp.sqrt(i2) * rp * ng, mp.sqrt(i2) * rf]
+    total = mp.sqrt(mp.fsum(x * x for x in terms))
+    return [total, total / ng] + terms
+
+
+def white_total(rf, rg, en, t, gbw):
+    """White noise through one closed-loop pole at fc = GBW/NG: noise bandwidth pi/2 fc."""
+    ng = 1 + rf / rg
+    e_out = mp.sqrt(4 * K_B * t * (rf + rg * (rf / rg) ** 2) + (en * ng) ** 2)
+    nbw = mp.pi / 2 * gbw / ng
+    return [e_out * mp.sqrt(nbw), e_out * mp.sqrt(nbw) / ng, nbw]
+
+
+CASES.update({
+    "=DIST.SERIES(1000; 200; -50; 0.099)": closed_series(M(1000), M(200), M(-50), M("0.099")),
+    "=DIST.HD(1000; 200; -50; 0.099; 1 V; \"output\")": hd(M(1000), M(200), M(-50), M(1))
+        + hd(*closed_series(M(1000), M(200), M(-50), M("0.099")), M(1)),
+    "=DIST.FPBW(0.5e6; 10 V)": [M("0.5e6") / (2 * mp.pi * 10)],
+    "=DIST.MAXAMP(13e6; 100 kHz)": [M("13e6") / (2 * mp.pi * M(10**5))],
+    "=DIST.SLEWRATE(10 V; 20 kHz)": [2 * mp.pi * M(20000) * 10],
+    "=NOISE.THERMAL(1kΩ; 300)": [mp.sqrt(4 * K_B * 300 * 1000)],
+    "=NOISE.STAGE(\"non-inverting\"; 9k; 1k; 50; 4n; 10; 0.5p; 200; 300; 1 kHz)": stage_noise(
+        M(9000), M(1000), M(50), M("4e-9"), M(10), M("0.5e-12"), M(200), M(300), M(1000)),
+    "=NOISE.TOTAL(\"non-inverting\"; 9k; 1k; 0; 10n; 0; 0; 0; 300; 1 MHz; 0)": white_total(
+        M(9000), M(1000), M("10e-9"), M(300), M(10**6)),
+})
+
 # Cases whose engine value comes from a numeric search or integration, so agrees
 # with the closed form only to the core's stated tolerance: (relative tolerance,
 # why). Every other case is held to the test's default (a few ulps).
@@ -348,6 +399,8 @@ TOLERANCES = {
     "=CKT.RIN" + CKT_STAGE: CKT_TOL,
     "=CKT.ROUT" + CKT_STAGE: CKT_TOL,
     "=CKT.IDEAL" + CKT_STAGE: ([1e-12, 1e-10], "Af from the sympy closed form, to 1e-10 as tests/circuit_reference.rs"),
+    "=NOISE.TOTAL(\"non-inverting\"; 9k; 1k; 0; 10n; 0; 0; 0; 300; 1 MHz; 0)": (
+        [1e-9, 1e-9, 1e-12], "the core integrates the density numerically to REL_TOL = 1e-10"),
 }
 
 

@@ -18,11 +18,13 @@
 
 pub mod circuit;
 pub mod decibel;
+pub mod distortion;
 pub mod feedback;
 pub mod logic;
 pub mod loops;
 pub mod math;
 pub mod network;
+pub mod noise;
 
 use super::errors::{CellError, ErrorKind};
 use super::json::JsonWriter;
@@ -137,6 +139,8 @@ pub static AREAS: &[&[FunctionSpec]] = &[
     loops::FUNCTIONS,
     network::FUNCTIONS,
     circuit::FUNCTIONS,
+    distortion::FUNCTIONS,
+    noise::FUNCTIONS,
 ];
 
 /// Every function, area by area.
