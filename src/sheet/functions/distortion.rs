@@ -19,8 +19,11 @@ const A3: Param = req("a3", "third-order coefficient", "V/V³", "any finite");
 const BETA: Param = req("beta", "feedback factor", "V/V", "1 + a1·β > 0");
 const SLEW: Param = req("slew_rate", "slew rate in V/s (1 V/µs is 1e6)", "V/s", "> 0");
 
+/// Core parameter names that the worksheet spells differently.
+const NAMES: &[(&str, &str)] = &[("amplitude_at", "at"), ("frequency_hz", "frequency")];
+
 fn core_err(a: &Args<'_>, e: crate::Error) -> Value {
-    Value::Error(CellError::from_core(a.spec.name, e))
+    Value::Error(super::core_error(a.spec.name, e, NAMES))
 }
 
 fn with_unit(x: f64, unit: Option<Unit>) -> Value {
@@ -35,7 +38,7 @@ fn row(items: Vec<Value>) -> Value {
 }
 
 fn series(a: &Args<'_>) -> Result<PowerSeries, CellError> {
-    PowerSeries::new(a.number(0)?, a.number(1)?, a.number(2)?).map_err(|e| CellError::from_core(a.spec.name, e))
+    PowerSeries::new(a.number(0)?, a.number(1)?, a.number(2)?).map_err(|e| super::core_error(a.spec.name, e, NAMES))
 }
 
 fn closed_series(a: &Args<'_>) -> Value {
@@ -78,7 +81,10 @@ fn max_amplitude(a: &Args<'_>) -> Value {
 }
 
 fn slew_needed(a: &Args<'_>) -> Value {
-    a.core(nl::required_slew_rate(tri!(a.number(0)), tri!(a.number(1))))
+    match nl::required_slew_rate(tri!(a.number(0)), tri!(a.number(1))) {
+        Ok(x) => Value::num(x),
+        Err(e) => core_err(a, e),
+    }
 }
 
 /// The distortion area's table.

@@ -37,8 +37,16 @@ const LOOP: &[Param] = &[A0, BETA, POLES];
 /// `2π`, to turn rad/s into Hz.
 const TAU: f64 = core::f64::consts::TAU;
 
+/// Core parameter names that the worksheet spells differently.
+const NAMES: &[(&str, &str)] = &[
+    ("a.gain", "a0"),
+    ("a.poles_hz", "poles"),
+    ("beta.gain", "beta"),
+    ("target_pm_deg", "target_pm"),
+];
+
 fn core_err(a: &Args<'_>, e: crate::Error) -> Value {
-    Value::Error(CellError::from_core(a.spec.name, e))
+    Value::Error(super::core_error(a.spec.name, e, NAMES))
 }
 
 fn tagged(x: f64, unit: Unit) -> Value {
@@ -114,7 +122,7 @@ fn amplifier(a: &Args<'_>, first: usize) -> Result<TransferModel, CellError> {
 fn feedback_loop(a: &Args<'_>, first: usize) -> Result<FeedbackLoop, CellError> {
     let amp = amplifier(a, first)?;
     let beta = a.number(1)?;
-    FeedbackLoop::with_constant_beta(amp, beta).map_err(|e| CellError::from_core(a.spec.name, e))
+    FeedbackLoop::with_constant_beta(amp, beta).map_err(|e| super::core_error(a.spec.name, e, NAMES))
 }
 
 fn phase_margin(a: &Args<'_>) -> Value {

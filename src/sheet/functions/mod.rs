@@ -293,6 +293,20 @@ impl Args<'_> {
     }
 }
 
+/// A core error as an error value, with the core's parameter name replaced by the
+/// worksheet parameter's where they differ (`names` pairs core name → sheet name;
+/// `a.poles_hz` → `poles`, say), so the explanation names what the user typed.
+pub(crate) fn core_error(function: &str, e: crate::Error, names: &[(&str, &str)]) -> CellError {
+    let mut c = CellError::from_core(function, e);
+    if let Some((core, sheet)) = names.iter().find(|(core, _)| *core == e.param()) {
+        let prefix = format!("{function}: {core}: ");
+        if let Some(rest) = c.detail.strip_prefix(prefix.as_str()) {
+            c.detail = format!("{function}: {sheet}: {rest}");
+        }
+    }
+    c
+}
+
 /// Check an argument written with a unit against the parameter's declared unit.
 pub(crate) fn unit_mismatch(spec: &FunctionSpec, i: usize, v: &Value) -> Option<CellError> {
     let Value::Number(_, Some(given)) = v else { return None };

@@ -19,12 +19,15 @@ use crate::sheet::value::{Array, Unit, Value};
 use alloc::vec;
 use alloc::vec::Vec;
 
+/// Core parameter names that the worksheet spells differently.
+const NAMES: &[(&str, &str)] = &[("tol_r1", "tolerance"), ("tol_r2", "tolerance"), ("pole_hz", "pole")];
+
 fn core_err(a: &Args<'_>, e: crate::Error) -> Value {
-    Value::Error(CellError::from_core(a.spec.name, e))
+    Value::Error(super::core_error(a.spec.name, e, NAMES))
 }
 
 fn from_core<T>(a: &Args<'_>, r: crate::Result<T>) -> Result<T, CellError> {
-    r.map_err(|e| CellError::from_core(a.spec.name, e))
+    r.map_err(|e| super::core_error(a.spec.name, e, NAMES))
 }
 
 fn with_unit(x: f64, unit: Option<Unit>) -> Value {

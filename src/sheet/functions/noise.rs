@@ -26,12 +26,27 @@ const P_IN: Param = req("in", "amplifier white current noise density", "A/√Hz"
 const P_INC: Param = req("in_corner", "1/f corner of the current noise (0: none)", "Hz", ">= 0");
 const P_TEMP: Param = req("temperature", "resistor temperature", "K", "> 0");
 
+/// Core parameter names that the worksheet spells differently.
+const NAMES: &[(&str, &str)] = &[
+    ("r_feedback", "rf"),
+    ("r_gain", "rg"),
+    ("r_plus", "rp"),
+    ("voltage_density", "en"),
+    ("voltage_corner_hz", "en_corner"),
+    ("current_density", "in"),
+    ("current_corner_hz", "in_corner"),
+    ("temperature_k", "temperature"),
+    ("frequency_hz", "frequency"),
+    ("gbw_hz", "gbw"),
+    ("resistance_ohm", "r"),
+];
+
 fn core_err(a: &Args<'_>, e: crate::Error) -> Value {
-    Value::Error(CellError::from_core(a.spec.name, e))
+    Value::Error(super::core_error(a.spec.name, e, NAMES))
 }
 
 fn from_core<T>(a: &Args<'_>, r: crate::Result<T>) -> Result<T, CellError> {
-    r.map_err(|e| CellError::from_core(a.spec.name, e))
+    r.map_err(|e| super::core_error(a.spec.name, e, NAMES))
 }
 
 fn row(items: Vec<Value>) -> Value {
@@ -47,7 +62,10 @@ fn stage(a: &Args<'_>) -> Result<(Stage, AmplifierNoise), CellError> {
 }
 
 fn thermal(a: &Args<'_>) -> Value {
-    a.core(nz::thermal_noise_density(tri!(a.number(0)), tri!(a.number(1))))
+    match nz::thermal_noise_density(tri!(a.number(0)), tri!(a.number(1))) {
+        Ok(x) => Value::num(x),
+        Err(e) => core_err(a, e),
+    }
 }
 
 fn at_frequency(a: &Args<'_>) -> Value {
