@@ -104,6 +104,12 @@ fn the_required_functions_are_present() {
         "DB.VOLTAGE", "DB.POWER", "DB.VOLTAGERATIO", "DB.POWERRATIO", "FB.GAIN", "FB.LOOPGAIN", "FB.AMOUNT",
         "FB.AMOUNTDB", "FB.SENSITIVITY", "FB.BETA", "FB.MINGAIN", "FB.CEILING", "FB.SPREAD", "FB.ZIN", "FB.ZOUT",
         "FB.PHASOR", "FB.SUMMARY", "FB.IMPEDANCES", "FB.SENSE", "FB.GAINUNIT", "FB.BETAUNIT",
+        // The other catalog areas.
+        "LOOP.PM", "LOOP.GM", "LOOP.BANDWIDTH", "LOOP.PEAKING", "LOOP.STEP", "LOOP.POLES", "LOOP.EXTEND",
+        "LOOP.LOWCUT", "LOOP.GBW", "LOOP.TWOPOLE", "LOOP.DOMINANT", "LOOP.MAXBETA", "RES.NEAREST", "RES.UP",
+        "RES.DOWN", "RES.TOLERANCE", "RES.PAIR", "RES.WORSTCASE", "RES.MONTECARLO", "RES.YIELD", "CKT.GAIN",
+        "CKT.RIN", "CKT.ROUT", "CKT.IDEAL", "DIST.SERIES", "DIST.HD", "DIST.FPBW", "DIST.MAXAMP", "DIST.SLEWRATE",
+        "NOISE.THERMAL", "NOISE.STAGE", "NOISE.TOTAL",
     ] {
         assert!(all().any(|f| f.name == name), "{name}");
     }

@@ -509,3 +509,34 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: max_beta,
     },
 ];
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use alloc::string::String;
+
+    fn args<'a>(name: &str, values: &'a [Value]) -> Args<'a> {
+        let spec = FUNCTIONS.iter().find(|f| f.name == name).unwrap();
+        Args { spec, values }
+    }
+
+    #[test]
+    fn poles_come_from_numbers_and_ranges_with_empty_cells_skipped() {
+        let range = Value::Array(Array::new(3, 1, vec![Value::num(10.0), Value::Empty, Value::num(1e6)]).unwrap());
+        let values = [Value::num(1e5), Value::num(1.0), range, Value::num(2e7)];
+        assert_eq!(pole_list(&args("LOOP.PM", &values), 2).unwrap(), vec![10.0, 1e6, 2e7]);
+        let text = Value::Array(Array::row(vec![Value::num(10.0), Value::Text(String::from("x"))]).unwrap());
+        let values = [Value::num(1e5), Value::num(1.0), text];
+        let e = pole_list(&args("LOOP.PM", &values), 2).unwrap_err();
+        assert_eq!(e.kind, ErrorKind::Value);
+        assert!(e.detail.starts_with("LOOP.PM: poles:"), "{}", e.detail);
+    }
+
+    #[test]
+    fn the_loop_reads_a0_beta_and_the_poles_in_that_order() {
+        let values = [Value::num(1e5), Value::num(0.01), Value::num(10.0)];
+        let l = feedback_loop(&args("LOOP.BANDWIDTH", &values), 2).unwrap();
+        assert_eq!((l.amplifier().gain, l.feedback().gain), (1e5, 0.01));
+        assert_eq!(l.amplifier().poles_hz, vec![10.0]);
+    }
+}

@@ -456,6 +456,17 @@ mod tests {
     }
 
     #[test]
+    fn core_errors_take_the_worksheet_parameter_name() {
+        let names = [("a.poles_hz", "poles")];
+        let e = crate::Error::OutOfDomain { param: "a.poles_hz", requirement: "must be greater than zero" };
+        assert_eq!(core_error("LOOP.PM", e, &names).detail, "LOOP.PM: poles: must be greater than zero");
+        // A parameter not in the table keeps the core's name, and the kind follows from_core.
+        let e = crate::Error::UnknownName { param: "series", expected: "E3" };
+        let c = core_error("RES.UP", e, &names);
+        assert_eq!((c.kind, c.detail.as_str()), (ErrorKind::Value, "RES.UP: series: unknown name; expected one of E3"));
+    }
+
+    #[test]
     fn entries_are_complete() {
         for f in all() {
             assert!(!f.summary.is_empty() && !f.result_unit.is_empty() && !f.example.source.is_empty(), "{}", f.name);
