@@ -1,7 +1,7 @@
 //! Every catalog entry's worked example evaluates to its stated value, and the
 //! catalog JSON describes every entry.
 
-use loopwright::sheet::functions::{all, catalog_json, Expected};
+use loopwright::sheet::functions::{all, catalog_json, Expected, FunctionSpec};
 use loopwright::sheet::{CellRef, Sheet, Value};
 
 /// Relative tolerance for stated example values: they are written to 16
@@ -18,10 +18,17 @@ fn reference_cases() -> Vec<serde_json::Value> {
     data["cases"].as_array().unwrap().clone()
 }
 
-/// The case's stated tolerance for item `i`, or `default` (never below it).
-fn case_rtol(cases: &[serde_json::Value], formula: &str, i: usize, default: f64) -> f64 {
-    let case = cases.iter().find(|c| c["formula"] == formula);
-    let r = case.and_then(|c| c["rtol"].as_f64().or_else(|| c["rtol"].get(i).and_then(serde_json::Value::as_f64)));
+/// The reference case's tolerance for item `i`, if it states one.
+fn case_rtol(cases: &[serde_json::Value], formula: &str, i: usize) -> Option<f64> {
+    let case = cases.iter().find(|c| c["formula"] == formula)?;
+    case["rtol"].as_f64().or_else(|| case["rtol"].get(i).and_then(serde_json::Value::as_f64))
+}
+
+/// The catalog's stated tolerance for item `i` of an example, or `default` (never
+/// below it).
+fn stated_rtol(f: &FunctionSpec, i: usize, default: f64) -> f64 {
+    let t = f.example.tolerance;
+    let r = if t.len() == 1 { t.first() } else { t.get(i) };
     r.map_or(default, |r| r.max(default))
 }
 
@@ -41,7 +48,6 @@ fn as_number(v: &Value) -> Option<f64> {
 #[test]
 fn every_example_gives_its_stated_value() {
     let mut count = 0;
-    let cases = reference_cases();
     for f in all() {
         let mut s = Sheet::new();
         s.set("A1", f.example.formula).unwrap();
@@ -58,7 +64,7 @@ fn every_example_gives_its_stated_value() {
                     assert_eq!(f.spill.len(), cols, "{}: spill descriptions", f.name);
                 }
                 for (i, want) in xs.iter().enumerate() {
-                    let rtol = case_rtol(&cases, f.example.formula, i, EXAMPLE_RTOL);
+                    let rtol = stated_rtol(f, i, EXAMPLE_RTOL);
                     let c = item_cell(origin, i, cols);
                     let got = s.shown(c);
                     let got = as_number(&got).unwrap_or_else(|| panic!("{} item {i}: {got:?}", f.name));
@@ -89,6 +95,7 @@ fn catalog_json_lists_every_function_with_its_parts() {
         assert_eq!(entry["examples"][0]["formula"], f.example.formula);
         assert!(entry["result"].as_str().unwrap().contains(f.result_unit), "{}", f.name);
         assert_eq!(entry["resultUnit"], f.result_unit);
+        assert_eq!(entry["examples"][0]["tolerance"].as_array().unwrap().len(), f.example.tolerance.len());
     }
     let round = list.iter().find(|e| e["name"] == "ROUND").unwrap();
     assert_eq!(round["params"][1]["default"], 0.0);
@@ -165,7 +172,15 @@ fn stated_and_evaluated_values_match_the_mpmath_reference() {
         for (i, (want, said)) in reference.iter().zip(stated.iter()).enumerate() {
             // Stated values are the reference values, so they agree to rounding;
             // the engine agrees to the case's search or sampling tolerance.
-            let engine_rtol = case_rtol(&cases, f.example.formula, i, REFERENCE_RTOL);
+            let engine_rtol = stated_rtol(f, i, REFERENCE_RTOL);
+            // The catalog states the tolerance the reference script gives, and
+            // only where the script gives one.
+            let script = case_rtol(&cases, f.example.formula, i);
+            let catalog = (!f.example.tolerance.is_empty()).then(|| stated_rtol(f, i, 0.0));
+            assert_eq!(script.is_some(), catalog.is_some(), "{} item {i}: tolerance stated in one place only", f.name);
+            if let (Some(a), Some(b)) = (script, catalog) {
+                assert!((a - b).abs() <= 1e-12 * a, "{} item {i}: catalog tolerance {b:e}, reference {a:e}", f.name);
+            }
             let tol = REFERENCE_RTOL * if *want == 0.0 { scale } else { want.abs() };
             assert!((said - want).abs() <= tol, "{} item {i}: catalog states {said:e}, reference {want:e}", f.name);
             let got = as_number(&s.shown(item_cell(origin, i, cols))).unwrap();

@@ -156,7 +156,9 @@ fn the_catalog_is_json_with_examples() {
         let want = arr.get(0).as_f64().unwrap();
         ws.set_cell("A1", &text(&example, "formula")).unwrap();
         let got = num(&ws.value("A1").unwrap(), "number");
-        // Stated to 16 significant digits in the catalog.
-        assert!((got - want).abs() <= 1e-13 * want.abs(), "{}: {got} vs {want}", text(&f, "name"));
+        // Stated to 16 significant digits in the catalog; a value the core finds by
+        // a search or by sampling carries its own tolerance there.
+        let tol = Array::from(&field(&example, "tolerance")).get(0).as_f64().unwrap_or(0.0).max(1e-13);
+        assert!((got - want).abs() <= tol * want.abs(), "{}: {got} vs {want}", text(&f, "name"));
     }
 }

@@ -72,6 +72,11 @@ pub struct Example {
     pub expected: Expected,
     /// Where the stated value comes from (the arithmetic, or a source).
     pub source: &'static str,
+    /// Relative tolerance of the evaluated value against the stated one: empty
+    /// when they agree to rounding; one number for every item, or one per item,
+    /// when the core finds the value by a search, an integration or sampling
+    /// (the source says which). Stated values are the exact ones.
+    pub tolerance: &'static [f64],
 }
 
 /// A catalog entry.
@@ -358,7 +363,7 @@ pub fn result_text(f: &FunctionSpec) -> String {
 /// The whole catalog as JSON: `{"format": "loopwright-functions", "version": 1,
 /// "functions": [{name, area, summary, params: [{name, summary, unit, optional,
 /// default, range}], repeats, result, resultUnit, spill, examples: [{formula,
-/// expected, source}]}]}`.
+/// expected, source, tolerance}]}]}`.
 pub fn catalog_json() -> String {
     let mut w = JsonWriter::new();
     w.begin_object();
@@ -429,6 +434,12 @@ pub fn catalog_json() -> String {
         }
         w.key("source");
         w.string(f.example.source);
+        w.key("tolerance");
+        w.begin_array();
+        for t in f.example.tolerance {
+            w.number(*t);
+        }
+        w.end_array();
         w.end_object();
         w.end_array();
         w.end_object();
