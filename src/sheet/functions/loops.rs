@@ -6,7 +6,8 @@
 //! last, repeating arguments: `LOOP.PM(a0; beta; pole; pole; …)`. Each pole
 //! argument is a number or a range of cells (`B2:B4`, empty cells skipped), so
 //! `LOOP.PM(100k; 0.1; 10 Hz; 1 MHz)` and `LOOP.PM(A1; A2; B1:B6)` both work;
-//! every item must be a number. No pole at all is a frequency-flat amplifier. The model is A(s) = a0 / Π(1 + s/2πfₖ), the model of
+//! every item must be a number (a range with no numbers leaves a flat
+//! amplifier). The model is A(s) = a0/Π(1 + s/2πfₖ), the model of
 //! [`crate::freq::TransferModel`] with real poles only. Each function converts
 //! its arguments, calls the core and converts the result; the formulas, units and
 //! sources are documented on the core functions.
@@ -19,15 +20,10 @@ use alloc::format;
 use alloc::vec;
 use alloc::vec::Vec;
 
-const A0: Param = req(
-    "a0",
-    "open-loop DC gain",
-    "V/V",
-    "> 0 (the core's model checks)",
-);
+const A0: Param = req("a0", "open-loop DC gain", "V/V", "not 0 (with beta > 0, a negative a0 is positive feedback)");
 const POLES: Param = req(
     "poles",
-    "the amplifier's real pole frequencies: a range, an array or one number (empty cells skipped)",
+    "the amplifier's real pole frequencies, each argument a number or a range (empty cells skipped)",
     "Hz",
     "each > 0; at most 64 poles",
 );
@@ -347,7 +343,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             formula: "=LOOP.PEAKING(1000; 0.1; 1k; 100k)",
             expected: Expected::Numbers(&[1.2206742922089018, 70707.14249635606]),
             source: "second-order low-pass: Mp = Q/√(1 − 1/(4Q²)) at f0·√(1 − 1/(2Q²)) (closed form; tests/reference/sheet_catalog.py)",
-            tolerance: &[1e-06],
+            tolerance: &[1e-6],
         },
         eval: peaking,
     },
@@ -366,9 +362,9 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         spill: &["overshoot, %", "rise time 10–90 %, s", "settling time, s"],
         example: Example {
             formula: "=LOOP.STEP(100k; 0.01; 2%; 10 Hz)",
-            expected: Expected::Numbers(&[0.0, 3.493498027632965e-05, 6.219958030001018e-05]),
+            expected: Expected::Numbers(&[0.0, 3.493498027632965e-5, 6.219958030001018e-5]),
             source: "one closed-loop pole at 10·1001 Hz, τ = 1/(2π·10010 Hz): no overshoot, rise ln 9·τ, 2 % settling ln 50·τ (closed form; also tests/reference/data/freq_loops.json case \"one pole\")",
-            tolerance: &[1e-09],
+            tolerance: &[1e-9],
         },
         eval: step,
     },
@@ -494,7 +490,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             formula: "=LOOP.DOMINANT(100k; 1; 60; 1 MHz; 10 MHz)",
             expected: Expected::Numbers(&[5.748217922187234, 511163.10698197025]),
             source: "poles fd, 1 MHz, 10 MHz, T0 = 100000: the two equations |T(fc)| = 1 and Σ atan(fc/fk) = 120° in fd and fc, solved with mpmath findroot (tests/reference/sheet_catalog.py); the core bisects to 1e-10",
-            tolerance: &[1e-08],
+            tolerance: &[1e-8],
         },
         eval: dominant,
     },
@@ -515,7 +511,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             formula: "=LOOP.MAXBETA(1000; 60; 1; 1k; 100k)",
             expected: Expected::Numbers(&[0.06995107333338217, 14.09421948137752, 59979.61042445264]),
             source: "two poles: 60° at fc = tan(120° − atan(fc/f1))·f2, β = √((1 + fc²/f1²)(1 + fc²/f2²))/a0 (closed form; tests/reference/sheet_catalog.py); the core bisects to 1e-10",
-            tolerance: &[1e-08],
+            tolerance: &[1e-8],
         },
         eval: max_beta,
     },

@@ -378,7 +378,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             ]),
             source: "exact moments and quantiles of Af = 1/(β + 1/A), β = R1/(R1 + R2), for R1, R2 uniform over ±1 %, by mpmath quadrature (tests/reference/sheet_catalog.py); the seeded sample agrees within 5 standard errors",
             tolerance: &[
-                8.215276937426977e-05,
+                8.215276937426977e-5,
                 0.006615321509871733,
                 0.0001415899928813279,
                 0.0001414405886325451,
