@@ -162,3 +162,23 @@ fn the_catalog_is_json_with_examples() {
         assert!((got - want).abs() <= tol * want.abs(), "{}: {got} vs {want}", text(&f, "name"));
     }
 }
+
+#[wasm_bindgen_test]
+fn area_functions_spill_and_explain_errors() {
+    let mut ws = Worksheet::new();
+    ws.set_cell("A1", "1 kHz").unwrap();
+    ws.set_cell("A2", "100 kHz").unwrap();
+    ws.set_cell("C1", "=LOOP.POLES(1000; 0.1; A1:A2)").unwrap();
+    // Two closed-loop poles, four columns each.
+    assert_eq!(text(&ws.value("C1").unwrap(), "spill"), "C1:F2");
+    // σ/2π = −(f1 + f2)/2 for both poles of the pair (closed form).
+    // The roots come from an iteration: agreement to 1e-12.
+    let sigma = num(&ws.value("C2").unwrap(), "number");
+    assert!((sigma + 50_500.0).abs() <= 1e-12 * 50_500.0, "{sigma}");
+    assert_eq!(text(&ws.value("F2").unwrap(), "spilledFrom"), "C1");
+    ws.set_cell("B5", "-4k7").unwrap();
+    ws.set_cell("C5", "=NOISE.THERMAL(B5; 300)").unwrap();
+    let v = ws.value("C5").unwrap();
+    assert_eq!(text(&v, "error"), "#NUM!");
+    assert!(text(&v, "message").starts_with("NOISE.THERMAL: r: "), "{}", text(&v, "message"));
+}

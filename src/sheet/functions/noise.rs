@@ -49,6 +49,13 @@ fn from_core<T>(a: &Args<'_>, r: crate::Result<T>) -> Result<T, CellError> {
     r.map_err(|e| super::core_error(a.spec.name, e, NAMES))
 }
 
+fn with_unit(x: f64, unit: Unit) -> Value {
+    match Value::num(x) {
+        Value::Number(v, _) => Value::Number(v, Some(unit)),
+        other => other,
+    }
+}
+
 fn row(items: Vec<Value>) -> Value {
     Array::row(items).map_or_else(|| Value::error(ErrorKind::Value, "empty result"), Value::Array)
 }
@@ -97,12 +104,9 @@ fn integrated(a: &Args<'_>) -> Value {
     let h = tri!(from_core(a, ClosedLoopResponse::new(s.noise_gain(), gbw, &[])));
     match nz::integrated_output_noise(&s, &amp, &h, f_low, f_high) {
         Ok(n) => row(vec![
-            Value::num(n.output_rms),
-            Value::num(n.input_referred_rms),
-            match Value::num(n.noise_bandwidth_hz) {
-                Value::Number(x, _) => Value::Number(x, Some(Unit::Hertz)),
-                other => other,
-            },
+            with_unit(n.output_rms, Unit::Volt),
+            with_unit(n.input_referred_rms, Unit::Volt),
+            with_unit(n.noise_bandwidth_hz, Unit::Hertz),
         ]),
         Err(e) => core_err(a, e),
     }
