@@ -1,12 +1,41 @@
 //! Every catalog entry's worked example evaluates to its stated value, and the
 //! catalog JSON describes every entry.
 
-use loopwright::sheet::functions::{all, catalog_json, Expected};
+use loopwright::sheet::functions::{all, catalog_json, Expected, FunctionSpec};
 use loopwright::sheet::{CellRef, Sheet, Value};
 
 /// Relative tolerance for stated example values: they are written to 16
 /// significant digits (or exactly), so only the last-digit rounding may differ.
 const EXAMPLE_RTOL: f64 = 1e-13;
+
+/// The reference data: every numeric example's formula, its independently
+/// computed values and, for results the core finds by a numeric search,
+/// integration or sampling, the relative tolerance it is held to (`rtol`, one
+/// number or one per item, with the reason in `why`).
+fn reference_cases() -> Vec<serde_json::Value> {
+    let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/reference/data/sheet_catalog.json")).unwrap();
+    let data: serde_json::Value = serde_json::from_str(&text).unwrap();
+    data["cases"].as_array().unwrap().clone()
+}
+
+/// The reference case's tolerance for item `i`, if it states one.
+fn case_rtol(cases: &[serde_json::Value], formula: &str, i: usize) -> Option<f64> {
+    let case = cases.iter().find(|c| c["formula"] == formula)?;
+    case["rtol"].as_f64().or_else(|| case["rtol"].get(i).and_then(serde_json::Value::as_f64))
+}
+
+/// The catalog's stated tolerance for item `i` of an example, or `default` (never
+/// below it).
+fn stated_rtol(f: &FunctionSpec, i: usize, default: f64) -> f64 {
+    let t = f.example.tolerance;
+    let r = if t.len() == 1 { t.first() } else { t.get(i) };
+    r.map_or(default, |r| r.max(default))
+}
+
+/// Cell of item `i` of a result spilled `cols` wide, row by row.
+fn item_cell(origin: CellRef, i: usize, cols: usize) -> CellRef {
+    origin.offset((i / cols) as u32, (i % cols) as u32).unwrap()
+}
 
 fn as_number(v: &Value) -> Option<f64> {
     match v {
@@ -25,19 +54,24 @@ fn every_example_gives_its_stated_value() {
         let origin = CellRef::parse("A1").unwrap();
         match f.example.expected {
             Expected::Numbers(xs) => {
+                let mut cols = xs.len();
                 if xs.len() > 1 {
                     let r = s.spill_range(origin).unwrap_or_else(|| panic!("{}: no spill", f.name));
                     assert_eq!(r.area(), xs.len() as u64, "{}", f.name);
-                    assert_eq!(f.spill.len(), xs.len(), "{}: spill descriptions", f.name);
+                    // The spill descriptions name the columns: one per item of a
+                    // one-row result, one per column of a result of several rows.
+                    cols = r.cols() as usize;
+                    assert_eq!(f.spill.len(), cols, "{}: spill descriptions", f.name);
                 }
                 for (i, want) in xs.iter().enumerate() {
-                    let c = origin.offset(0, i as u32).unwrap();
+                    let rtol = stated_rtol(f, i, EXAMPLE_RTOL);
+                    let c = item_cell(origin, i, cols);
                     let got = s.shown(c);
                     let got = as_number(&got).unwrap_or_else(|| panic!("{} item {i}: {got:?}", f.name));
                     // Zero is stated for results that are exactly zero up to rounding
                     // of the other terms: compare it against the item scale instead.
                     let scale = xs.iter().fold(0.0f64, |m, x| m.max(x.abs()));
-                    let tol = EXAMPLE_RTOL * if *want == 0.0 { scale } else { want.abs() };
+                    let tol = rtol * if *want == 0.0 { scale } else { want.abs() };
                     assert!((got - want).abs() <= tol, "{} item {i}: got {got:e}, stated {want:e}", f.name);
                 }
             }
@@ -61,6 +95,7 @@ fn catalog_json_lists_every_function_with_its_parts() {
         assert_eq!(entry["examples"][0]["formula"], f.example.formula);
         assert!(entry["result"].as_str().unwrap().contains(f.result_unit), "{}", f.name);
         assert_eq!(entry["resultUnit"], f.result_unit);
+        assert_eq!(entry["examples"][0]["tolerance"].as_array().unwrap().len(), f.example.tolerance.len());
     }
     let round = list.iter().find(|e| e["name"] == "ROUND").unwrap();
     assert_eq!(round["params"][1]["default"], 0.0);
@@ -76,6 +111,12 @@ fn the_required_functions_are_present() {
         "DB.VOLTAGE", "DB.POWER", "DB.VOLTAGERATIO", "DB.POWERRATIO", "FB.GAIN", "FB.LOOPGAIN", "FB.AMOUNT",
         "FB.AMOUNTDB", "FB.SENSITIVITY", "FB.BETA", "FB.MINGAIN", "FB.CEILING", "FB.SPREAD", "FB.ZIN", "FB.ZOUT",
         "FB.PHASOR", "FB.SUMMARY", "FB.IMPEDANCES", "FB.SENSE", "FB.GAINUNIT", "FB.BETAUNIT",
+        // The other catalog areas.
+        "LOOP.PM", "LOOP.GM", "LOOP.BANDWIDTH", "LOOP.PEAKING", "LOOP.STEP", "LOOP.POLES", "LOOP.EXTEND",
+        "LOOP.LOWCUT", "LOOP.GBW", "LOOP.TWOPOLE", "LOOP.DOMINANT", "LOOP.MAXBETA", "RES.NEAREST", "RES.UP",
+        "RES.DOWN", "RES.TOLERANCE", "RES.PAIR", "RES.WORSTCASE", "RES.MONTECARLO", "RES.YIELD", "CKT.GAIN",
+        "CKT.RIN", "CKT.ROUT", "CKT.IDEAL", "DIST.SERIES", "DIST.HD", "DIST.FPBW", "DIST.MAXAMP", "DIST.SLEWRATE",
+        "NOISE.THERMAL", "NOISE.STAGE", "NOISE.TOTAL",
     ] {
         assert!(all().any(|f| f.name == name), "{name}");
     }
@@ -113,9 +154,7 @@ const REFERENCE_RTOL: f64 = 1e-12;
 fn stated_and_evaluated_values_match_the_mpmath_reference() {
     // tests/reference/sheet_catalog.py recomputes every numeric example with
     // mpmath at 40 digits from the textbook formulas.
-    let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/reference/data/sheet_catalog.json")).unwrap();
-    let data: serde_json::Value = serde_json::from_str(&text).unwrap();
-    let cases = data["cases"].as_array().unwrap();
+    let cases = reference_cases();
     let mut covered = 0;
     for f in all() {
         let Expected::Numbers(stated) = f.example.expected else { continue };
@@ -129,10 +168,23 @@ fn stated_and_evaluated_values_match_the_mpmath_reference() {
         let mut s = Sheet::new();
         s.set("A1", f.example.formula).unwrap();
         let origin = CellRef::parse("A1").unwrap();
+        let cols = s.spill_range(origin).map_or(1, |r| r.cols() as usize);
         for (i, (want, said)) in reference.iter().zip(stated.iter()).enumerate() {
+            // Stated values are the reference values, so they agree to rounding;
+            // the engine agrees to the case's search or sampling tolerance.
+            let engine_rtol = stated_rtol(f, i, REFERENCE_RTOL);
+            // The catalog states the tolerance the reference script gives, and
+            // only where the script gives one.
+            let script = case_rtol(&cases, f.example.formula, i);
+            let catalog = (!f.example.tolerance.is_empty()).then(|| stated_rtol(f, i, 0.0));
+            assert_eq!(script.is_some(), catalog.is_some(), "{} item {i}: tolerance stated in one place only", f.name);
+            if let (Some(a), Some(b)) = (script, catalog) {
+                assert!((a - b).abs() <= 1e-12 * a, "{} item {i}: catalog tolerance {b:e}, reference {a:e}", f.name);
+            }
             let tol = REFERENCE_RTOL * if *want == 0.0 { scale } else { want.abs() };
             assert!((said - want).abs() <= tol, "{} item {i}: catalog states {said:e}, reference {want:e}", f.name);
-            let got = as_number(&s.shown(origin.offset(0, i as u32).unwrap())).unwrap();
+            let got = as_number(&s.shown(item_cell(origin, i, cols))).unwrap();
+            let tol = engine_rtol * if *want == 0.0 { scale } else { want.abs() };
             assert!((got - want).abs() <= tol, "{} item {i}: engine gives {got:e}, reference {want:e}", f.name);
         }
         covered += 1;

@@ -18,6 +18,9 @@ const TOKENS: &[&str] = &[
     "A1", "B2", "$C$3", "A1:C3", "B1:B3", "XFD1048576", "A1:XFD1048576", "\"x\"", "\"\"", "#N/A", "#DIV/0!", "TRUE",
     "gain", "nosuch", "SUM(", "IF(", "ROUND(", "AND(", "FB.GAIN(", "FB.SPREAD(", "FB.SUMMARY(", "DB.VOLTAGE(",
     "FB.CEILING(", "SQRT(", "10 kHz", "1MΩ", " ", "NOSUCHFN(", "\"series-shunt\"", "PI()", "2^1024",
+    // The other areas' functions (a spill of several rows, ranked candidates, words).
+    "LOOP.PM(", "LOOP.POLES(", "LOOP.TWOPOLE(", "RES.NEAREST(", "RES.PAIR(", "CKT.GAIN(", "DIST.HD(", "NOISE.STAGE(",
+    "\"E24\"", "\"non-inverting\"", "\"output\"",
 ];
 
 fn check_values(s: &Sheet) {
@@ -146,6 +149,8 @@ const SPILLERS: &[&str] = &[
     "=A2:A3+1",
     "=FB.SUMMARY(\"series-shunt\"; 1000; B3)",
     "=FB.PHASOR(100; B2; 0.01; 0)",
+    "=LOOP.POLES(A2*1000+1000; 0.1; 1k; B3+1)",
+    "=RES.PAIR(\"non-inverting\"; B3+2; \"E12\"; 1k; 100k; 2)",
     "7",
     "",
 ];

@@ -50,7 +50,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "dB",
         spill: &[],
-        example: Example { formula: "=DB.VOLTAGE(10)", expected: Expected::Numbers(&[20.0]), source: "20·log10(10) = 20" },
+        example: Example { formula: "=DB.VOLTAGE(10)", expected: Expected::Numbers(&[20.0]), source: "20·log10(10) = 20", tolerance: &[] },
         eval: voltage,
     },
     FunctionSpec {
@@ -61,7 +61,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "dB",
         spill: &[],
-        example: Example { formula: "=DB.POWER(100)", expected: Expected::Numbers(&[20.0]), source: "10·log10(100) = 20" },
+        example: Example { formula: "=DB.POWER(100)", expected: Expected::Numbers(&[20.0]), source: "10·log10(100) = 20", tolerance: &[] },
         eval: power,
     },
     FunctionSpec {
@@ -72,7 +72,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "1",
         spill: &[],
-        example: Example { formula: "=DB.VOLTAGERATIO(40dB)", expected: Expected::Numbers(&[100.0]), source: "10^(40/20) = 100" },
+        example: Example { formula: "=DB.VOLTAGERATIO(40dB)", expected: Expected::Numbers(&[100.0]), source: "10^(40/20) = 100", tolerance: &[] },
         eval: voltage_ratio,
     },
     FunctionSpec {
@@ -83,7 +83,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "1",
         spill: &[],
-        example: Example { formula: "=DB.POWERRATIO(30 dB)", expected: Expected::Numbers(&[1000.0]), source: "10^(30/10) = 1000" },
+        example: Example { formula: "=DB.POWERRATIO(30 dB)", expected: Expected::Numbers(&[1000.0]), source: "10^(30/10) = 1000", tolerance: &[] },
         eval: power_ratio,
     },
 ];

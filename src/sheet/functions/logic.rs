@@ -71,6 +71,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             formula: "=IF(2 > 1; 10; 1/0)",
             expected: Expected::Numbers(&[10.0]),
             source: "the condition holds, so the unused branch 1/0 is not evaluated (OpenFormula §6.15 IF, from memory)",
+            tolerance: &[],
         },
         eval: if_,
     },
@@ -82,7 +83,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: true,
         result_unit: "TRUE/FALSE",
         spill: &[],
-        example: Example { formula: "=AND(TRUE; 1; 0)", expected: Expected::Bool(false), source: "0 is FALSE" },
+        example: Example { formula: "=AND(TRUE; 1; 0)", expected: Expected::Bool(false), source: "0 is FALSE", tolerance: &[] },
         eval: and,
     },
     FunctionSpec {
@@ -93,7 +94,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: true,
         result_unit: "TRUE/FALSE",
         spill: &[],
-        example: Example { formula: "=OR(FALSE; 0; 2)", expected: Expected::Bool(true), source: "2 is TRUE" },
+        example: Example { formula: "=OR(FALSE; 0; 2)", expected: Expected::Bool(true), source: "2 is TRUE", tolerance: &[] },
         eval: or,
     },
     FunctionSpec {
@@ -104,7 +105,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "TRUE/FALSE",
         spill: &[],
-        example: Example { formula: "=NOT(1 > 2)", expected: Expected::Bool(true), source: "1 > 2 is FALSE" },
+        example: Example { formula: "=NOT(1 > 2)", expected: Expected::Bool(true), source: "1 > 2 is FALSE", tolerance: &[] },
         eval: not,
     },
 ];

@@ -113,7 +113,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: true,
         result_unit: "as the values",
         spill: &[],
-        example: Example { formula: "=SUM(1; 2.5; 4k7)", expected: Expected::Numbers(&[4703.5]), source: "1 + 2.5 + 4700" },
+        example: Example { formula: "=SUM(1; 2.5; 4k7)", expected: Expected::Numbers(&[4703.5]), source: "1 + 2.5 + 4700", tolerance: &[] },
         eval: sum,
     },
     FunctionSpec {
@@ -124,7 +124,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: true,
         result_unit: "as the values",
         spill: &[],
-        example: Example { formula: "=MIN(3; -2; 7)", expected: Expected::Numbers(&[-2.0]), source: "by inspection" },
+        example: Example { formula: "=MIN(3; -2; 7)", expected: Expected::Numbers(&[-2.0]), source: "by inspection", tolerance: &[] },
         eval: min,
     },
     FunctionSpec {
@@ -135,7 +135,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: true,
         result_unit: "as the values",
         spill: &[],
-        example: Example { formula: "=MAX(3; -2; 7)", expected: Expected::Numbers(&[7.0]), source: "by inspection" },
+        example: Example { formula: "=MAX(3; -2; 7)", expected: Expected::Numbers(&[7.0]), source: "by inspection", tolerance: &[] },
         eval: max,
     },
     FunctionSpec {
@@ -146,7 +146,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: true,
         result_unit: "as the values",
         spill: &[],
-        example: Example { formula: "=AVERAGE(1; 2; 6)", expected: Expected::Numbers(&[3.0]), source: "(1 + 2 + 6)/3" },
+        example: Example { formula: "=AVERAGE(1; 2; 6)", expected: Expected::Numbers(&[3.0]), source: "(1 + 2 + 6)/3", tolerance: &[] },
         eval: average,
     },
     FunctionSpec {
@@ -157,7 +157,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "as x",
         spill: &[],
-        example: Example { formula: "=ABS(-2.5)", expected: Expected::Numbers(&[2.5]), source: "by definition" },
+        example: Example { formula: "=ABS(-2.5)", expected: Expected::Numbers(&[2.5]), source: "by definition", tolerance: &[] },
         eval: abs,
     },
     FunctionSpec {
@@ -172,6 +172,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             formula: "=SQRT(2)",
             expected: Expected::Numbers(&[core::f64::consts::SQRT_2]),
             source: "√2 = 1.41421356…",
+            tolerance: &[],
         },
         eval: sqrt,
     },
@@ -183,7 +184,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "1",
         spill: &[],
-        example: Example { formula: "=EXP(1)", expected: Expected::Numbers(&[core::f64::consts::E]), source: "e = 2.71828182…" },
+        example: Example { formula: "=EXP(1)", expected: Expected::Numbers(&[core::f64::consts::E]), source: "e = 2.71828182…", tolerance: &[] },
         eval: exp,
     },
     FunctionSpec {
@@ -194,7 +195,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "1",
         spill: &[],
-        example: Example { formula: "=LN(10)", expected: Expected::Numbers(&[core::f64::consts::LN_10]), source: "ln 10 = 2.30258509…" },
+        example: Example { formula: "=LN(10)", expected: Expected::Numbers(&[core::f64::consts::LN_10]), source: "ln 10 = 2.30258509…", tolerance: &[] },
         eval: ln,
     },
     FunctionSpec {
@@ -205,7 +206,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "1",
         spill: &[],
-        example: Example { formula: "=LOG10(1k)", expected: Expected::Numbers(&[3.0]), source: "log10(1000) = 3" },
+        example: Example { formula: "=LOG10(1k)", expected: Expected::Numbers(&[3.0]), source: "log10(1000) = 3", tolerance: &[] },
         eval: log10,
     },
     FunctionSpec {
@@ -216,7 +217,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "1",
         spill: &[],
-        example: Example { formula: "=PI()", expected: Expected::Numbers(&[core::f64::consts::PI]), source: "π = 3.14159265…" },
+        example: Example { formula: "=PI()", expected: Expected::Numbers(&[core::f64::consts::PI]), source: "π = 3.14159265…", tolerance: &[] },
         eval: pi,
     },
     FunctionSpec {
@@ -241,6 +242,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             formula: "=ROUND(2.675; 2)",
             expected: Expected::Numbers(&[2.68]),
             source: "OpenFormula ROUND rounds half away from zero (§6.16, from memory)",
+            tolerance: &[],
         },
         eval: round,
     },

@@ -16,10 +16,15 @@
 //! add one [`FunctionSpec`] to that area's `FUNCTIONS` table. To add an area: a
 //! new file with a `FUNCTIONS` table and one line in [`AREAS`].
 
+pub mod circuit;
 pub mod decibel;
+pub mod distortion;
 pub mod feedback;
 pub mod logic;
+pub mod loops;
 pub mod math;
+pub mod network;
+pub mod noise;
 
 use super::errors::{CellError, ErrorKind};
 use super::json::JsonWriter;
@@ -67,6 +72,11 @@ pub struct Example {
     pub expected: Expected,
     /// Where the stated value comes from (the arithmetic, or a source).
     pub source: &'static str,
+    /// Relative tolerance of the evaluated value against the stated one: empty
+    /// when they agree to rounding; one number for every item, or one per item,
+    /// when the core finds the value by a search, an integration or sampling
+    /// (the source says which). Stated values are the exact ones.
+    pub tolerance: &'static [f64],
 }
 
 /// A catalog entry.
@@ -126,7 +136,17 @@ impl FunctionSpec {
 }
 
 /// Every area's table. Add one line per new area.
-pub static AREAS: &[&[FunctionSpec]] = &[math::FUNCTIONS, logic::FUNCTIONS, decibel::FUNCTIONS, feedback::FUNCTIONS];
+pub static AREAS: &[&[FunctionSpec]] = &[
+    math::FUNCTIONS,
+    logic::FUNCTIONS,
+    decibel::FUNCTIONS,
+    feedback::FUNCTIONS,
+    loops::FUNCTIONS,
+    network::FUNCTIONS,
+    circuit::FUNCTIONS,
+    distortion::FUNCTIONS,
+    noise::FUNCTIONS,
+];
 
 /// Every function, area by area.
 pub fn all() -> impl Iterator<Item = &'static FunctionSpec> {
@@ -278,6 +298,20 @@ impl Args<'_> {
     }
 }
 
+/// A core error as an error value, with the core's parameter name replaced by the
+/// worksheet parameter's where they differ (`names` pairs core name → sheet name;
+/// `a.poles_hz` → `poles`, say), so the explanation names what the user typed.
+pub(crate) fn core_error(function: &str, e: crate::Error, names: &[(&str, &str)]) -> CellError {
+    let mut c = CellError::from_core(function, e);
+    if let Some((core, sheet)) = names.iter().find(|(core, _)| *core == e.param()) {
+        let prefix = format!("{function}: {core}: ");
+        if let Some(rest) = c.detail.strip_prefix(prefix.as_str()) {
+            c.detail = format!("{function}: {sheet}: {rest}");
+        }
+    }
+    c
+}
+
 /// Check an argument written with a unit against the parameter's declared unit.
 pub(crate) fn unit_mismatch(spec: &FunctionSpec, i: usize, v: &Value) -> Option<CellError> {
     let Value::Number(_, Some(given)) = v else { return None };
@@ -329,7 +363,7 @@ pub fn result_text(f: &FunctionSpec) -> String {
 /// The whole catalog as JSON: `{"format": "loopwright-functions", "version": 1,
 /// "functions": [{name, area, summary, params: [{name, summary, unit, optional,
 /// default, range}], repeats, result, resultUnit, spill, examples: [{formula,
-/// expected, source}]}]}`.
+/// expected, source, tolerance}]}]}`.
 pub fn catalog_json() -> String {
     let mut w = JsonWriter::new();
     w.begin_object();
@@ -400,6 +434,12 @@ pub fn catalog_json() -> String {
         }
         w.key("source");
         w.string(f.example.source);
+        w.key("tolerance");
+        w.begin_array();
+        for t in f.example.tolerance {
+            w.number(*t);
+        }
+        w.end_array();
         w.end_object();
         w.end_array();
         w.end_object();
@@ -424,6 +464,17 @@ mod tests {
         names.sort_unstable();
         names.dedup();
         assert_eq!(names.len(), count);
+    }
+
+    #[test]
+    fn core_errors_take_the_worksheet_parameter_name() {
+        let names = [("a.poles_hz", "poles")];
+        let e = crate::Error::OutOfDomain { param: "a.poles_hz", requirement: "must be greater than zero" };
+        assert_eq!(core_error("LOOP.PM", e, &names).detail, "LOOP.PM: poles: must be greater than zero");
+        // A parameter not in the table keeps the core's name, and the kind follows from_core.
+        let e = crate::Error::UnknownName { param: "series", expected: "E3" };
+        let c = core_error("RES.UP", e, &names);
+        assert_eq!((c.kind, c.detail.as_str()), (ErrorKind::Value, "RES.UP: series: unknown name; expected one of E3"));
     }
 
     #[test]

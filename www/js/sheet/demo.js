@@ -20,6 +20,14 @@ const CELLS = {
   A26: 'Driver output resistance', B26: '=FB.ZOUT("series-shunt"; 40 ohm; B23; B25)', C26: 'open-loop Ro 40 Ω',
   A27: 'Overall gain', B27: '=B8*FB.GAIN(B23; B25)', C27: 'V/V',
   A28: 'Overall gain in dB', B28: '=DB.VOLTAGE(B27)', C28: 'dB',
+  A30: 'Preamp op-amp poles', B30: '4 Hz', C30: '12 MHz',
+  A31: 'Preamp phase margin (°), crossover', B31: '=LOOP.PM(Atyp; B7; B30:C30)',
+  A32: 'Preamp closed-loop bandwidth', B32: '=LOOP.BANDWIDTH(Atyp; B7; B30:C30)',
+  A33: 'Step: overshoot %, rise s, 1 % settling s', B33: '=LOOP.STEP(Atyp; B7; 1%; B30:C30)',
+  A34: 'Gain resistors R1, R2 (E96, 10k…100k total)', B34: '=RES.PAIR("non-inverting"; Gtarget; "E96"; 10k; 100k; 3)',
+  A38: 'Preamp noise at 1 kHz (out, in, per source)', B38: '=NOISE.STAGE("non-inverting"; C34; B34; 1k; 3n; 5; 0.4p; 150; 300; 1 kHz)',
+  A39: 'Preamp noise 10 Hz…20 kHz (V rms out, in)', B39: '=NOISE.TOTAL("non-inverting"; C34; B34; 1k; 3n; 5; 0.4p; 150; 300; 1 MHz; 10; 20k)',
+  A40: 'Line driver full-power bandwidth, 10 V peak', B40: '=DIST.FPBW(20e6; 10 V)', C40: 'slew rate 20 V/µs',
 };
 
 const NAMES = { Atyp: 'B4', Gtarget: 'B6' };
