@@ -3,7 +3,7 @@
 
 SHELL := /bin/bash
 PORT ?= 8080
-PY := $(HOME)/.cache/loopwright/venv/bin/python
+PY := $(or $(LOOPWRIGHT_VENV),$(HOME)/.cache/loopwright/venv)/bin/python
 export CARGO_TERM_COLOR := never
 
 .PHONY: serve test bench bench-quick setup setup-page build single package test-native test-reference test-browser test-page test-package

@@ -17,7 +17,8 @@ const quick = process.argv.includes('--quick');
 const lw = await import(pathToFileURL(join(root, 'pkg', 'node.mjs')).href);
 
 function pythonPeers() {
-  const py = join(process.env.HOME ?? '', '.cache', 'loopwright', 'venv', 'bin', 'python');
+  const venv = process.env.LOOPWRIGHT_VENV ?? join(process.env.HOME ?? '', '.cache', 'loopwright', 'venv');
+  const py = join(venv, 'bin', 'python');
   if (!existsSync(py)) return { error: 'reference venv missing (run scripts/setup.sh)' };
   try {
     const out = execFileSync(py, [join(root, 'bench', 'peers.py'), ...(quick ? ['--quick'] : [])], {
