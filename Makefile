@@ -32,6 +32,7 @@ test: setup test-native test-reference test-browser single package bench-quick t
 test-native:
 	cargo build --no-default-features
 	cargo test
+	cargo test --bench core
 
 test-reference:
 	@for script in tests/reference/*.py; do $(PY) $$script --check || exit 1; done
@@ -48,6 +49,7 @@ test-package:
 	cd tests/js && node --test package.test.mjs
 
 bench: setup single package
+	cargo bench --bench core
 	node bench/run.mjs
 
 bench-quick:

@@ -1,0 +1,92 @@
+//! Native benchmarks of the core (divan): the same work as the wasm cases of
+//! `make bench`, without the JS boundary, so the two can be told apart.
+//! Run with `cargo bench --bench core` (part of `make bench`). Figures only.
+
+use divan::black_box;
+use loopwright::feedback::{closed_loop_gain, summarize, Topology};
+use loopwright::freq::{closed_loop_poles, loop_gain_sweep, stability_margins, FeedbackLoop, TransferModel};
+use loopwright::network::{
+    best_pairs, monte_carlo, Combine, Distribution, Metric, MonteCarloSpec, Network, PairSpec, Series, Stage, StageSpec,
+};
+
+fn main() {
+    divan::main();
+}
+
+/// The loop of the freq cases in bench/cases.mjs and bench/peers.py.
+fn freq_loop() -> FeedbackLoop {
+    let mut a = TransferModel::constant(1e5);
+    for p in [10.0, 1e5, 1e6, 3e6, 1e7, 3e7] {
+        a = a.pole(p);
+    }
+    for z in [2e6, 5e7] {
+        a = a.zero(z);
+    }
+    FeedbackLoop::with_constant_beta(a, 0.1).expect("a valid loop")
+}
+
+#[divan::bench]
+fn feedback_closed_loop_gain() -> f64 {
+    closed_loop_gain(black_box(1e5), black_box(0.00999)).unwrap_or(0.0)
+}
+
+#[divan::bench]
+fn feedback_summary() -> f64 {
+    summarize(Topology::SeriesShunt, black_box(1e5), black_box(0.00999)).map_or(0.0, |s| s.closed_loop_gain)
+}
+
+#[divan::bench]
+fn freq_sweep_10k(bencher: divan::Bencher) {
+    let l = freq_loop();
+    bencher.bench(|| loop_gain_sweep(black_box(&l), 1.0, 1e9, 10_000).map(|s| s.phase_deg.len()));
+}
+
+#[divan::bench]
+fn freq_margins_and_poles(bencher: divan::Bencher) {
+    let l = freq_loop();
+    bencher.bench(|| (stability_margins(black_box(&l)).is_ok(), closed_loop_poles(black_box(&l)).is_ok()));
+}
+
+#[divan::bench(sample_count = 10, sample_size = 1)]
+fn network_monte_carlo_1e6() -> bool {
+    let spec = MonteCarloSpec {
+        stage: StageSpec {
+            stage: Stage::Inverting,
+            r1: 10e3,
+            r2: 47e3,
+            tol_r1: 0.01,
+            tol_r2: 0.01,
+            a_min: 5e4,
+            a_typ: 1e5,
+            a_max: 2e5,
+            ri: 1e6,
+            ro: 75.0,
+            pole_hz: 5.0,
+        },
+        resistors: Distribution::Uniform,
+        open_loop_gain: Distribution::Uniform,
+        metric: Metric::Gain,
+        trials: 1_000_000,
+        seed: 42,
+        lower: Some(-4.72),
+        upper: Some(-4.68),
+        bins: 50,
+    };
+    monte_carlo(black_box(&spec)).is_ok()
+}
+
+#[divan::bench]
+fn network_best_pairs_e192() -> bool {
+    let spec = PairSpec {
+        network: Network::NonInverting,
+        target: 7.77,
+        series: Series::E192,
+        total_min: 1e3,
+        total_max: 1e6,
+        fixed_r1: None,
+        max_error: None,
+        combine: Combine::None,
+        count: 10,
+    };
+    best_pairs(black_box(&spec)).is_ok()
+}
