@@ -4,7 +4,7 @@
 //! Errors are thrown as JS `Error`s named `LoopwrightError` with `code`, `param`
 //! and `subject` (the node or element at fault, or `""`).
 
-use super::to_js;
+use super::{to_js, typed_arrays};
 use crate::circuit::blackman::{self, Output};
 use crate::circuit::json::{read_circuit, write_circuit};
 use crate::circuit::templates::{build, AmplifierModel, FeedbackNetwork, StageSpec};
@@ -197,10 +197,7 @@ pub fn circuit_sweep(json: &str, source: &str, plus: &str, minus: &str, frequenc
     let h = throw(core::voltage_transfer_sweep(&circuit(json)?, source, plus, minus, frequencies))?;
     let re: alloc::vec::Vec<f64> = h.iter().map(|z| z.re).collect();
     let im: alloc::vec::Vec<f64> = h.iter().map(|z| z.im).collect();
-    let obj = js_sys::Object::new();
-    let _ = js_sys::Reflect::set(&obj, &"re".into(), &js_sys::Float64Array::from(&re[..]).into());
-    let _ = js_sys::Reflect::set(&obj, &"im".into(), &js_sys::Float64Array::from(&im[..]).into());
-    Ok(obj.into())
+    Ok(typed_arrays(&[("re", &re), ("im", &im)]))
 }
 
 /// The two-port method beside the exact solution and the ideal 1/β, for a

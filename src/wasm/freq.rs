@@ -7,10 +7,10 @@
 //! either a number (a frequency-independent feedback factor) or such an object.
 //! Sweeps come back as objects of `Float64Array`s.
 
-use super::{throw, to_js};
+use super::{set_typed_arrays, throw, to_js, typed_arrays};
 use crate::error::Error;
 use crate::freq::{self as fq, ComplexPair, FeedbackLoop, TransferModel};
-use js_sys::{Float64Array, Object, Reflect};
+use js_sys::Object;
 use serde::Deserialize;
 use wasm_bindgen::prelude::*;
 use wasm_bindgen::JsCast;
@@ -223,15 +223,6 @@ fn feedback_loop(a: &JsValue, beta: &JsValue) -> Result<FeedbackLoop, JsValue> {
 }
 
 /// A plain object whose fields are `Float64Array`s.
-fn arrays(fields: &[(&str, &[f64])]) -> JsValue {
-    let obj = Object::new();
-    for (name, values) in fields {
-        // Reflect::set only fails on frozen or proxy objects; a fresh Object is neither.
-        let _ = Reflect::set(&obj, &(*name).into(), &Float64Array::from(*values).into());
-    }
-    obj.into()
-}
-
 /// Loop-gain sweep T = A·β: `{freqHz, magnitudeDb, phaseDeg}` as `Float64Array`s,
 /// phase continuous; at most 100 000 points.
 #[wasm_bindgen(js_name = loopGainSweep, unchecked_return_type = "FrequencySweep")]
@@ -240,7 +231,7 @@ pub fn loop_gain_sweep(
     #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, start_hz: f64, stop_hz: f64, points: usize) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     let s = throw(fq::loop_gain_sweep(&l, start_hz, stop_hz, points))?;
-    Ok(arrays(&[("freqHz", &s.freq_hz), ("magnitudeDb", &s.magnitude_db), ("phaseDeg", &s.phase_deg)]))
+    Ok(typed_arrays(&[("freqHz", &s.freq_hz), ("magnitudeDb", &s.magnitude_db), ("phaseDeg", &s.phase_deg)]))
 }
 
 /// Closed-loop sweep Af = A/(1 + Aβ): `{freqHz, magnitudeDb, phaseDeg}` as
@@ -251,7 +242,7 @@ pub fn closed_loop_sweep(
     #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, start_hz: f64, stop_hz: f64, points: usize) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     let s = throw(fq::closed_loop_sweep(&l, start_hz, stop_hz, points))?;
-    Ok(arrays(&[("freqHz", &s.freq_hz), ("magnitudeDb", &s.magnitude_db), ("phaseDeg", &s.phase_deg)]))
+    Ok(typed_arrays(&[("freqHz", &s.freq_hz), ("magnitudeDb", &s.magnitude_db), ("phaseDeg", &s.phase_deg)]))
 }
 
 #[derive(serde::Serialize)]
@@ -356,8 +347,7 @@ pub fn step_response(
         settling_time_s: s.settling_time_s,
         settle_band: s.settle_band,
     })?;
-    let _ = Reflect::set(&obj, &"timeS".into(), &Float64Array::from(&s.waveform.time_s[..]).into());
-    let _ = Reflect::set(&obj, &"output".into(), &Float64Array::from(&s.waveform.output[..]).into());
+    set_typed_arrays(&obj, &[("timeS", &s.waveform.time_s), ("output", &s.waveform.output)]);
     Ok(obj)
 }
 
@@ -382,7 +372,7 @@ pub fn step_waveform(
     #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, duration_s: f64, points: usize) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     let w = throw(fq::step_waveform(&l, duration_s, points))?;
-    Ok(arrays(&[("timeS", &w.time_s), ("output", &w.output)]))
+    Ok(typed_arrays(&[("timeS", &w.time_s), ("output", &w.output)]))
 }
 
 /// The dominant pole (Hz) that gives a target phase margin at a constant β:

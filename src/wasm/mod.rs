@@ -50,6 +50,22 @@ pub(crate) fn to_js<T: serde::Serialize>(value: &T) -> Result<JsValue, JsValue> 
     value.serialize(&ser).map_err(|e| JsValue::from(js_sys::Error::new(&alloc::format!("result: {e}"))))
 }
 
+/// Set each named field of `obj` to a `Float64Array` copy of the slice (how sweeps
+/// cross the boundary).
+pub(crate) fn set_typed_arrays(obj: &JsValue, fields: &[(&str, &[f64])]) {
+    for (name, values) in fields {
+        // Reflect::set only fails on frozen or proxy objects; ours are fresh.
+        let _ = js_sys::Reflect::set(obj, &(*name).into(), &js_sys::Float64Array::from(*values).into());
+    }
+}
+
+/// A fresh object whose named fields are `Float64Array`s.
+pub(crate) fn typed_arrays(fields: &[(&str, &[f64])]) -> JsValue {
+    let obj: JsValue = js_sys::Object::new().into();
+    set_typed_arrays(&obj, fields);
+    obj
+}
+
 /// Map a core result into a thrown JS error.
 pub(crate) fn throw<T>(r: crate::Result<T>) -> Result<T, JsValue> {
     r.map_err(js_error)

@@ -5,8 +5,7 @@
 //! `voltageDensity` (V/√Hz), `voltageCornerHz`, `currentDensity` (A/√Hz),
 //! `currentCornerHz`; the loop as `gbwHz` and `extraPolesHz` (0 to 2 values).
 
-use super::nonlinear::typed_arrays;
-use super::{throw, to_js};
+use super::{throw, to_js, typed_arrays};
 use crate::noise::{self as nz, AmplifierNoise, ClosedLoopResponse, Stage, StageKind};
 use wasm_bindgen::prelude::*;
 
@@ -121,6 +120,5 @@ pub fn noise_density_sweep(
         ("frequencies", &w.frequencies),
         ("outputDensity", &w.output_density),
         ("inputReferredDensity", &w.input_referred_density),
-    ])?
-    .into())
+    ]))
 }

@@ -3,7 +3,7 @@
 //! A power-series amplifier is passed as its three coefficients `a1, a2, a3`;
 //! amplitudes are peak values; `amplitudeAt` is `"input"` or `"output"`.
 
-use super::{throw, to_js};
+use super::{throw, to_js, typed_arrays};
 use crate::nonlinear::{self as nl, AmplitudeAt, PowerSeries};
 use wasm_bindgen::prelude::*;
 
@@ -33,15 +33,6 @@ fn series(a1: f64, a2: f64, a3: f64) -> Result<PowerSeries, JsValue> {
 
 fn amplitude_at(name: &str) -> Result<AmplitudeAt, JsValue> {
     throw(name.parse())
-}
-
-/// An object whose fields are Float64Arrays (and other plain values).
-pub(crate) fn typed_arrays(fields: &[(&str, &[f64])]) -> Result<js_sys::Object, JsValue> {
-    let obj = js_sys::Object::new();
-    for (name, values) in fields {
-        js_sys::Reflect::set(&obj, &(*name).into(), &js_sys::Float64Array::from(*values).into())?;
-    }
-    Ok(obj)
 }
 
 fn option_number(x: Option<f64>) -> JsValue {
@@ -153,7 +144,7 @@ pub fn series_validity_sweep(
         ("seriesHd3", &s.series_hd3),
         ("numericHd2", &s.numeric_hd2),
         ("numericHd3", &s.numeric_hd3),
-    ])?;
+    ]);
     js_sys::Reflect::set(&obj, &"foldAmplitude".into(), &option_number(s.fold_amplitude))?;
     js_sys::Reflect::set(&obj, &"hd3LimitAmplitude".into(), &option_number(s.hd3_limit_amplitude))?;
     js_sys::Reflect::set(&obj, &"hd3HoldsThroughout".into(), &s.hd3_holds_throughout.into())?;
