@@ -535,7 +535,8 @@ impl Sheet {
                     }
                 }
                 let mut ord = combined;
-                ord.sort_by_key(|&i| (component.get(i).copied().unwrap_or(0), rank.get(i).copied().unwrap_or(0)));
+                let key = |i: usize| (component.get(i).copied().unwrap_or(0), rank.get(i).copied().unwrap_or(0));
+                crate::sort::sort_by(&mut ord, |&i, &j| key(i).cmp(&key(j)));
                 ord
             };
             let mut again = BTreeSet::new();
