@@ -14,7 +14,8 @@
 //! Algorithm: bottom-up merge sort (Knuth, *The Art of Computer Programming*, vol. 3,
 //! 2nd ed., §5.2.4, from memory) over runs first sorted by straight insertion (§5.2.1),
 //! skipping the merge of two runs that are already in order. Time O(n log n)
-//! comparisons, O(n) for input that is already sorted; two `usize` buffers of length n.
+//! comparisons, O(n) for input that is already sorted; two `usize` buffers of length n
+//! on the heap, none for n ≤ 16.
 
 use alloc::vec::Vec;
 use core::cmp::Ordering;
@@ -28,14 +29,25 @@ pub(crate) fn sort_by<T>(v: &mut [T], mut cmp: impl FnMut(&T, &T) -> Ordering) {
     if v.len() < 2 {
         return;
     }
-    let perm = {
-        let items: &[T] = v;
-        order(items.len(), &mut |i, j| match (items.get(i), items.get(j)) {
-            (Some(a), Some(b)) => cmp(a, b),
-            _ => Ordering::Equal,
-        })
+    let n = v.len();
+    let items: &[T] = v;
+    let mut by = |i: usize, j: usize| match (items.get(i), items.get(j)) {
+        (Some(a), Some(b)) => cmp(a, b),
+        _ => Ordering::Equal,
     };
-    permute(v, perm);
+    if n <= RUN {
+        // Short lists (most of them) need no heap: one run, sorted by insertion.
+        let mut small = [0usize; RUN];
+        let Some(perm) = small.get_mut(..n) else { return };
+        for (k, p) in perm.iter_mut().enumerate() {
+            *p = k;
+        }
+        insertion(perm, &mut by);
+        permute(v, perm);
+    } else {
+        let mut perm = order(n, &mut by);
+        permute(v, &mut perm);
+    }
 }
 
 /// The positions `0..n` in stably sorted order of `cmp(i, j)`: entry k of the result
@@ -43,17 +55,7 @@ pub(crate) fn sort_by<T>(v: &mut [T], mut cmp: impl FnMut(&T, &T) -> Ordering) {
 fn order(n: usize, cmp: &mut dyn FnMut(usize, usize) -> Ordering) -> Vec<usize> {
     let mut from: Vec<usize> = (0..n).collect();
     for run in from.chunks_mut(RUN) {
-        for k in 1..run.len() {
-            let mut j = k;
-            while j > 0 {
-                let (Some(&prev), Some(&cur)) = (run.get(j - 1), run.get(j)) else { break };
-                if cmp(prev, cur) != Ordering::Greater {
-                    break;
-                }
-                run.swap(j - 1, j);
-                j -= 1;
-            }
-        }
+        insertion(run, cmp);
     }
     let mut to = alloc::vec![0usize; n];
     let mut width = RUN;
@@ -66,6 +68,21 @@ fn order(n: usize, cmp: &mut dyn FnMut(usize, usize) -> Ordering) -> Vec<usize> 
         width = width.saturating_mul(2);
     }
     from
+}
+
+/// Sort the positions in `run` stably by straight insertion.
+fn insertion(run: &mut [usize], cmp: &mut dyn FnMut(usize, usize) -> Ordering) {
+    for k in 1..run.len() {
+        let mut j = k;
+        while j > 0 {
+            let (Some(&prev), Some(&cur)) = (run.get(j - 1), run.get(j)) else { break };
+            if cmp(prev, cur) != Ordering::Greater {
+                break;
+            }
+            run.swap(j - 1, j);
+            j -= 1;
+        }
+    }
 }
 
 /// Merge the sorted `left` and `right` into `out` (of their combined length), taking
@@ -103,7 +120,7 @@ fn merge(left: &[usize], right: &[usize], out: &mut [usize], cmp: &mut dyn FnMut
 
 /// Move the elements of `v` so that position k holds the element that was at
 /// `perm[k]`, following each cycle of the permutation with swaps.
-fn permute<T>(v: &mut [T], mut perm: Vec<usize>) {
+fn permute<T>(v: &mut [T], perm: &mut [usize]) {
     for k in 0..perm.len() {
         let mut cur = k;
         loop {

@@ -404,7 +404,7 @@ impl Sheet {
             }
             _ => {}
         });
-        deps.sort_unstable();
+        crate::sort::sort_by(&mut deps, Dep::cmp);
         deps.dedup();
         deps
     }
@@ -500,7 +500,7 @@ impl Sheet {
             }
         }
         if let Some(mine) = out.get_mut(from..) {
-            mine.sort_unstable();
+            crate::sort::sort_by(mine, usize::cmp);
         }
         // Duplicates only repeat an edge; the ordering does not mind them.
     }
