@@ -124,8 +124,7 @@ fn merge(left: &[usize], right: &[usize], out: &mut [usize], cmp: &mut dyn FnMut
 fn permute<T>(v: &mut [T], perm: &mut [usize]) {
     for k in 0..perm.len() {
         let mut cur = k;
-        loop {
-            let Some(slot) = perm.get_mut(cur) else { break };
+        while let Some(slot) = perm.get_mut(cur) {
             // Mark the position done; a done position maps to itself.
             let src = core::mem::replace(slot, cur);
             if src == k || src >= v.len() {
