@@ -10,20 +10,20 @@ wasm_bindgen_test_configure!(run_in_browser);
 
 #[path = "support/js.rs"]
 mod js;
-use js::{assert_thrown, field, num, text};
+use js::{assert_thrown, checked, field, num, text};
 
 #[wasm_bindgen_test]
 fn scalar_functions_return_numbers() {
     // Sedra & Smith, Microelectronic Circuits, 7th ed., Example 10.1 (from memory):
     // A = 10⁴, Af = 10 → β = 0.0999, D = 1000 (60 dB).
-    let beta = api::beta_for_gain(1e4, 10.0).unwrap();
+    let beta = checked(api::beta_for_gain(1e4, 10.0)).unwrap();
     assert!((beta - 0.0999).abs() < 1e-15);
-    assert!((api::closed_loop_gain(1e4, beta).unwrap() - 10.0).abs() < 1e-12);
-    assert!((api::loop_gain(1e4, beta).unwrap() - 999.0).abs() < 1e-9);
-    assert!((api::feedback_amount(1e4, beta).unwrap() - 1000.0).abs() < 1e-9);
-    assert!((api::feedback_amount_db(1e4, beta).unwrap() - 60.0).abs() < 1e-9);
-    assert!((api::gain_sensitivity(1e4, beta).unwrap() - 1e-3).abs() < 1e-15);
-    assert!((api::min_open_loop_gain(0.01, 0.001).unwrap() - 99_900.0).abs() < 1e-8);
+    assert!((checked(api::closed_loop_gain(1e4, beta)).unwrap() - 10.0).abs() < 1e-12);
+    assert!((checked(api::loop_gain(1e4, beta)).unwrap() - 999.0).abs() < 1e-9);
+    assert!((checked(api::feedback_amount(1e4, beta)).unwrap() - 1000.0).abs() < 1e-9);
+    assert!((checked(api::feedback_amount_db(1e4, beta)).unwrap() - 60.0).abs() < 1e-9);
+    assert!((checked(api::gain_sensitivity(1e4, beta)).unwrap() - 1e-3).abs() < 1e-15);
+    assert!((checked(api::min_open_loop_gain(0.01, 0.001)).unwrap() - 99_900.0).abs() < 1e-8);
 }
 
 #[wasm_bindgen_test]
@@ -62,12 +62,33 @@ fn structured_results_are_plain_objects() {
 
 #[wasm_bindgen_test]
 fn bad_input_throws_typed_errors() {
-    assert_thrown(api::closed_loop_gain(f64::NAN, 0.1), "not_finite", "a");
-    assert_thrown(api::closed_loop_gain(0.0, 0.1), "out_of_domain", "a");
-    assert_thrown(api::closed_loop_gain(-10.0, 0.1), "oscillation", "beta");
-    assert_thrown(api::beta_for_gain(100.0, 1000.0), "unreachable", "target_gain");
+    assert_thrown(checked(api::closed_loop_gain(f64::NAN, 0.1)), "not_finite", "a");
+    assert_thrown(checked(api::closed_loop_gain(0.0, 0.1)), "out_of_domain", "a");
+    assert_thrown(checked(api::closed_loop_gain(-10.0, 0.1)), "oscillation", "beta");
+    assert_thrown(checked(api::beta_for_gain(100.0, 1000.0)), "unreachable", "target_gain");
     assert_thrown(api::summarize_feedback("series-parallel", 1.0, 1.0), "unknown_name", "topology");
     assert_thrown(api::impedances_with_feedback("shunt-shunt", -1.0, 0.0, 1.0, 0.0, 1.0, 0.0, 1.0, 0.0), "out_of_domain", "zi");
-    assert_thrown(api::min_open_loop_gain(0.1, 2.0), "out_of_domain", "gain_error");
+    assert_thrown(checked(api::min_open_loop_gain(0.1, 2.0)), "out_of_domain", "gain_error");
     assert_thrown(api::gain_spread(0.1, 3.0, 2.0, 1.0), "out_of_domain", "a_typ");
+}
+
+#[wasm_bindgen_test]
+fn a_failed_scalar_call_keeps_its_error_for_one_take() {
+    // The scalar exports return NaN on failure and keep the LoopwrightError for the
+    // entry module to throw (src/wasm/mod.rs `scalar`, facade/loopwright.js).
+    assert!(api::closed_loop_gain(-10.0, 0.1).is_nan());
+    let e = loopwright::wasm::take_error();
+    assert_eq!(text(&e, "code"), "oscillation");
+    assert_eq!(text(&e, "param"), "beta");
+    // Taken once: nothing stale is left for the next call.
+    assert!(loopwright::wasm::take_error().is_undefined());
+    // A success leaves nothing behind.
+    assert_eq!(api::closed_loop_gain(1e5, 0.0), 1e5);
+    assert!(loopwright::wasm::take_error().is_undefined());
+    // Many failures in a row keep the module healthy (nothing leaks per call).
+    for _ in 0..50_000 {
+        assert!(api::loop_gain(f64::INFINITY, 0.1).is_nan());
+    }
+    assert_eq!(text(&loopwright::wasm::take_error(), "code"), "not_finite");
+    assert_eq!(api::loop_gain(1e3, 0.1), 100.0);
 }

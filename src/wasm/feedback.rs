@@ -1,6 +1,6 @@
 //! JS bindings for the feedback relations (catalog area A).
 
-use super::{throw, to_js};
+use super::{scalar, throw, to_js};
 use crate::feedback::{self as fb, Topology};
 use num_complex::Complex64;
 use serde::Serialize;
@@ -79,32 +79,32 @@ impl From<Complex64> for Phasor {
 
 /// Closed-loop gain Af = A/(1 + Aβ).
 #[wasm_bindgen(js_name = closedLoopGain)]
-pub fn closed_loop_gain(a: f64, beta: f64) -> Result<f64, JsValue> {
-    throw(fb::closed_loop_gain(a, beta))
+pub fn closed_loop_gain(a: f64, beta: f64) -> f64 {
+    scalar(fb::closed_loop_gain(a, beta))
 }
 
 /// Loop gain T = Aβ.
 #[wasm_bindgen(js_name = loopGain)]
-pub fn loop_gain(a: f64, beta: f64) -> Result<f64, JsValue> {
-    throw(fb::loop_gain(a, beta))
+pub fn loop_gain(a: f64, beta: f64) -> f64 {
+    scalar(fb::loop_gain(a, beta))
 }
 
 /// Amount of feedback D = 1 + Aβ.
 #[wasm_bindgen(js_name = feedbackAmount)]
-pub fn feedback_amount(a: f64, beta: f64) -> Result<f64, JsValue> {
-    throw(fb::feedback_amount(a, beta))
+pub fn feedback_amount(a: f64, beta: f64) -> f64 {
+    scalar(fb::feedback_amount(a, beta))
 }
 
 /// Amount of feedback in dB, 20·log10|1 + Aβ|.
 #[wasm_bindgen(js_name = feedbackAmountDb)]
-pub fn feedback_amount_db(a: f64, beta: f64) -> Result<f64, JsValue> {
-    throw(fb::feedback_amount_db(a, beta))
+pub fn feedback_amount_db(a: f64, beta: f64) -> f64 {
+    scalar(fb::feedback_amount_db(a, beta))
 }
 
 /// Gain sensitivity 1/(1 + Aβ).
 #[wasm_bindgen(js_name = gainSensitivity)]
-pub fn gain_sensitivity(a: f64, beta: f64) -> Result<f64, JsValue> {
-    throw(fb::gain_sensitivity(a, beta))
+pub fn gain_sensitivity(a: f64, beta: f64) -> f64 {
+    scalar(fb::gain_sensitivity(a, beta))
 }
 
 /// All feedback relations of one stage: `{topology, gainUnit, betaUnit,
@@ -175,14 +175,14 @@ pub fn impedances_with_feedback(
 
 /// β for a target closed-loop gain: 1/Af − 1/A.
 #[wasm_bindgen(js_name = betaForGain)]
-pub fn beta_for_gain(a: f64, target_gain: f64) -> Result<f64, JsValue> {
-    throw(fb::beta_for_gain(a, target_gain))
+pub fn beta_for_gain(a: f64, target_gain: f64) -> f64 {
+    scalar(fb::beta_for_gain(a, target_gain))
 }
 
 /// Least open-loop gain for a gain error (fraction) against 1/β.
 #[wasm_bindgen(js_name = minOpenLoopGain)]
-pub fn min_open_loop_gain(beta: f64, gain_error: f64) -> Result<f64, JsValue> {
-    throw(fb::min_open_loop_gain(beta, gain_error))
+pub fn min_open_loop_gain(beta: f64, gain_error: f64) -> f64 {
+    scalar(fb::min_open_loop_gain(beta, gain_error))
 }
 
 /// Largest closed-loop gain with at least D of feedback: `{closedLoopGain, beta}`.

@@ -7,7 +7,8 @@
 import { test, before, after } from 'node:test';
 import assert from 'node:assert/strict';
 import { execFileSync, spawnSync } from 'node:child_process';
-import { mkdtempSync, readdirSync, copyFileSync, writeFileSync, rmSync, createReadStream, mkdirSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, copyFileSync, writeFileSync, rmSync, createReadStream, mkdirSync } from 'node:fs';
+import { pathToFileURL } from 'node:url';
 import { createInterface } from 'node:readline';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -35,6 +36,26 @@ after(() => {
 test('Node: the installed package gives the reference values and typed errors', () => {
   const out = execFileSync(process.execPath, ['consumer.mjs'], { cwd: project, encoding: 'utf8' });
   assert.match(out, /all checks passed/);
+});
+
+test('every number-returning export is checked: bad input throws a LoopwrightError, never NaN', async () => {
+  // The glue's scalar exports return NaN on failure (src/wasm/mod.rs `scalar`); the
+  // entry module (facade/loopwright.js) must wrap each one. Found from the glue's own
+  // declarations, so a new scalar function cannot slip through unwrapped.
+  const web = join(project, 'node_modules', 'loopwright', 'web');
+  const entry = await import(pathToFileURL(join(project, 'node_modules', 'loopwright', 'node.mjs')).href);
+  const glue = await import(pathToFileURL(join(web, 'loopwright_glue.js')).href);
+  const dts = readFileSync(join(web, 'loopwright_glue.d.ts'), 'utf8');
+  const scalars = [...dts.matchAll(/^export function (\w+)\(([^)]*)\): number;$/gm)];
+  assert.ok(scalars.length >= 19, `found ${scalars.length} scalar exports`);
+  for (const [, name, params] of scalars) {
+    assert.notEqual(entry[name], glue[name], `${name} is not wrapped by facade/loopwright.js`);
+    const args = params.split(',').map((p) => (p.includes(': string') ? '?' : Number.NaN));
+    assert.throws(() => entry[name](...args), (e) => e.name === 'LoopwrightError' && typeof e.param === 'string', name);
+    assert.equal(entry.takeError(), undefined, `${name} left an error behind`);
+  }
+  // A = 10⁵, β = 0.00999: Af = 10⁵/1000 = 100 (by hand).
+  assert.ok(Math.abs(entry.closedLoopGain(1e5, 0.00999) - 100) < 1e-9);
 });
 
 test('TypeScript: the definitions type-check a consumer, and reject a wrong one', () => {
