@@ -94,3 +94,44 @@ export function thermalNoiseCurrentDensity(resistanceOhm, temperatureK) {
 export function thermalNoiseDensity(resistanceOhm, temperatureK) {
   return checked(glue.thermalNoiseDensity(resistanceOhm, temperatureK));
 }
+
+export function topologyIndex(topologyName) {
+  return checked(glue.topologyIndex(topologyName));
+}
+
+// summarizeFeedback: the glue's version builds its object through serde-wasm-bindgen,
+// one boundary crossing per field (1.3 µs a call). Here the wasm returns the numbers
+// packed in one Float64Array and the object is built in JS, with the topology name
+// resolved once per distinct spelling and the label strings fetched once from the
+// wasm (serialised from the same Rust types). The package test checks that both
+// versions give deep-equal objects.
+let labels;
+const topologyIndexByName = new Map();
+
+export function summarizeFeedback(topologyName, a, beta) {
+  let index = topologyIndexByName.get(topologyName);
+  if (index === undefined) {
+    index = topologyIndex(topologyName);
+    if (typeof topologyName === 'string') {
+      if (topologyIndexByName.size >= 64) topologyIndexByName.clear();
+      topologyIndexByName.set(topologyName, index);
+    }
+  }
+  const v = glue.summarizeFeedbackPacked(index, a, beta);
+  if (v === undefined) throw glue.takeError();
+  labels ??= glue.feedbackLabels();
+  const t = labels.topologies[index];
+  return {
+    topology: t.topology,
+    gainUnit: t.gainUnit,
+    betaUnit: t.betaUnit,
+    closedLoopGain: v[0],
+    loopGain: v[1],
+    feedbackAmount: v[2],
+    feedbackAmountDb: v[3],
+    sensitivity: v[4],
+    idealGain: v[5] === v[5] ? v[5] : null,
+    gainError: v[6] === v[6] ? v[6] : null,
+    sense: labels.senses[v[7]],
+  };
+}

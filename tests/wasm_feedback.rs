@@ -4,6 +4,7 @@
 #![cfg(target_arch = "wasm32")]
 
 use loopwright::wasm::feedback as api;
+use wasm_bindgen::JsCast;
 use wasm_bindgen_test::*;
 
 wasm_bindgen_test_configure!(run_in_browser);
@@ -91,4 +92,28 @@ fn a_failed_scalar_call_keeps_its_error_for_one_take() {
     }
     assert_eq!(text(&loopwright::wasm::take_error(), "code"), "not_finite");
     assert_eq!(api::loop_gain(1e3, 0.1), 100.0);
+}
+
+#[wasm_bindgen_test]
+fn packed_summary_matches_the_object_and_keeps_its_errors() {
+    // The entry module builds summarizeFeedback from these (facade/loopwright.js).
+    let index = checked(api::topology_index("Voltage-Shunt")).unwrap();
+    assert_eq!(index, 3.0);
+    let packed: js_sys::Float64Array = api::summarize_feedback_packed(3, -1e5, -1e-3).dyn_into().unwrap();
+    let object = api::summarize_feedback("shunt-shunt", -1e5, -1e-3).unwrap();
+    let names = ["closedLoopGain", "loopGain", "feedbackAmount", "feedbackAmountDb", "sensitivity", "idealGain", "gainError"];
+    for (i, name) in names.iter().enumerate() {
+        assert_eq!(packed.get_index(i as u32), num(&object, name), "{name}");
+    }
+    let labels = api::feedback_labels().unwrap();
+    let senses: js_sys::Array = field(&labels, "senses").dyn_into().unwrap();
+    assert_eq!(senses.get(packed.get_index(7) as u32).as_string().unwrap(), text(&object, "sense"));
+    let shunt_shunt = js_sys::Array::from(&field(&labels, "topologies")).get(3);
+    assert_eq!(text(&shunt_shunt, "gainUnit"), "V/A");
+    // β = 0: no ideal gain, NaN in the packed form.
+    assert!(api::summarize_feedback_packed(0, 10.0, 0.0).dyn_into::<js_sys::Float64Array>().unwrap().get_index(5).is_nan());
+    assert!(api::summarize_feedback_packed(4, 10.0, 0.1).is_undefined());
+    let e = loopwright::wasm::take_error();
+    assert_eq!((text(&e, "code"), text(&e, "param")), ("out_of_domain".into(), "topology".into()));
+    assert_thrown(checked(api::topology_index("series-parallel")), "unknown_name", "topology");
 }

@@ -116,6 +116,75 @@ pub fn summarize_feedback(
     to_js(&throw(fb::summarize(topology(topology_name)?, a, beta))?)
 }
 
+/// The kinds of feedback in the order `summarizeFeedbackPacked` numbers them.
+const SENSES: [fb::FeedbackSense; 4] =
+    [fb::FeedbackSense::Negative, fb::FeedbackSense::Neutral, fb::FeedbackSense::Positive, fb::FeedbackSense::Oscillation];
+
+/// Internal, for the entry module's `summarizeFeedback`: the index of a topology
+/// name (either family, any case) in catalog order, or NaN with the error kept
+/// (see `scalar` in mod.rs).
+#[wasm_bindgen(js_name = topologyIndex)]
+pub fn topology_index(#[wasm_bindgen(unchecked_param_type = "TopologyName")] topology_name: &str) -> f64 {
+    scalar(topology_name.parse::<Topology>().map(|t| Topology::ALL.iter().position(|&x| x == t).unwrap_or(0) as f64))
+}
+
+/// Internal, for the entry module: the numbers of `summarizeFeedback` for the
+/// topology at `topologyIndex` (catalog order) as a Float64Array `[closedLoopGain,
+/// loopGain, feedbackAmount, feedbackAmountDb, sensitivity, idealGain, gainError,
+/// sense]` — NaN where the object has null, `sense` as an index into
+/// `feedbackLabels().senses` — or undefined with the error kept. The entry module
+/// builds the object in JS: serde-wasm-bindgen crosses the boundary once per field.
+#[wasm_bindgen(js_name = summarizeFeedbackPacked)]
+pub fn summarize_feedback_packed(topology_index: u32, a: f64, beta: f64) -> JsValue {
+    let topology = Topology::ALL.get(topology_index as usize).copied().ok_or(crate::Error::OutOfDomain {
+        param: "topology",
+        requirement: "must be an index of one of the four topologies (0 to 3)",
+    });
+    match topology.and_then(|t| fb::summarize(t, a, beta)) {
+        Ok(s) => {
+            let sense = SENSES.iter().position(|&x| x == s.sense).unwrap_or(0) as f64;
+            let packed = [
+                s.closed_loop_gain,
+                s.loop_gain,
+                s.feedback_amount,
+                s.feedback_amount_db,
+                s.sensitivity,
+                s.ideal_gain.unwrap_or(f64::NAN),
+                s.gain_error.unwrap_or(f64::NAN),
+                sense,
+            ];
+            js_sys::Float64Array::from(&packed[..]).into()
+        }
+        Err(e) => {
+            scalar(Err(e));
+            JsValue::UNDEFINED
+        }
+    }
+}
+
+#[derive(Serialize)]
+#[serde(rename_all = "camelCase")]
+struct TopologyLabels {
+    topology: Topology,
+    gain_unit: &'static str,
+    beta_unit: &'static str,
+}
+
+#[derive(Serialize)]
+struct FeedbackLabels {
+    topologies: [TopologyLabels; 4],
+    senses: [fb::FeedbackSense; 4],
+}
+
+/// Internal, for the entry module: the strings `summarizeFeedbackPacked` leaves
+/// out, `{topologies: [{topology, gainUnit, betaUnit}] (catalog order), senses}`,
+/// serialised from the same types as `summarizeFeedback`'s object.
+#[wasm_bindgen(js_name = feedbackLabels)]
+pub fn feedback_labels() -> Result<JsValue, JsValue> {
+    let topologies = Topology::ALL.map(|t| TopologyLabels { topology: t, gain_unit: t.gain_unit(), beta_unit: t.beta_unit() });
+    to_js(&FeedbackLabels { topologies, senses: SENSES })
+}
+
 #[derive(Serialize)]
 #[serde(rename_all = "camelCase")]
 struct PhasorResult {
