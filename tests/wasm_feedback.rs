@@ -4,26 +4,27 @@
 #![cfg(target_arch = "wasm32")]
 
 use loopwright::wasm::feedback as api;
+use wasm_bindgen::JsCast;
 use wasm_bindgen_test::*;
 
 wasm_bindgen_test_configure!(run_in_browser);
 
 #[path = "support/js.rs"]
 mod js;
-use js::{assert_thrown, field, num, text};
+use js::{assert_thrown, checked, field, num, text};
 
 #[wasm_bindgen_test]
 fn scalar_functions_return_numbers() {
     // Sedra & Smith, Microelectronic Circuits, 7th ed., Example 10.1 (from memory):
     // A = 10⁴, Af = 10 → β = 0.0999, D = 1000 (60 dB).
-    let beta = api::beta_for_gain(1e4, 10.0).unwrap();
+    let beta = checked(api::beta_for_gain(1e4, 10.0)).unwrap();
     assert!((beta - 0.0999).abs() < 1e-15);
-    assert!((api::closed_loop_gain(1e4, beta).unwrap() - 10.0).abs() < 1e-12);
-    assert!((api::loop_gain(1e4, beta).unwrap() - 999.0).abs() < 1e-9);
-    assert!((api::feedback_amount(1e4, beta).unwrap() - 1000.0).abs() < 1e-9);
-    assert!((api::feedback_amount_db(1e4, beta).unwrap() - 60.0).abs() < 1e-9);
-    assert!((api::gain_sensitivity(1e4, beta).unwrap() - 1e-3).abs() < 1e-15);
-    assert!((api::min_open_loop_gain(0.01, 0.001).unwrap() - 99_900.0).abs() < 1e-8);
+    assert!((checked(api::closed_loop_gain(1e4, beta)).unwrap() - 10.0).abs() < 1e-12);
+    assert!((checked(api::loop_gain(1e4, beta)).unwrap() - 999.0).abs() < 1e-9);
+    assert!((checked(api::feedback_amount(1e4, beta)).unwrap() - 1000.0).abs() < 1e-9);
+    assert!((checked(api::feedback_amount_db(1e4, beta)).unwrap() - 60.0).abs() < 1e-9);
+    assert!((checked(api::gain_sensitivity(1e4, beta)).unwrap() - 1e-3).abs() < 1e-15);
+    assert!((checked(api::min_open_loop_gain(0.01, 0.001)).unwrap() - 99_900.0).abs() < 1e-8);
 }
 
 #[wasm_bindgen_test]
@@ -62,12 +63,57 @@ fn structured_results_are_plain_objects() {
 
 #[wasm_bindgen_test]
 fn bad_input_throws_typed_errors() {
-    assert_thrown(api::closed_loop_gain(f64::NAN, 0.1), "not_finite", "a");
-    assert_thrown(api::closed_loop_gain(0.0, 0.1), "out_of_domain", "a");
-    assert_thrown(api::closed_loop_gain(-10.0, 0.1), "oscillation", "beta");
-    assert_thrown(api::beta_for_gain(100.0, 1000.0), "unreachable", "target_gain");
+    assert_thrown(checked(api::closed_loop_gain(f64::NAN, 0.1)), "not_finite", "a");
+    assert_thrown(checked(api::closed_loop_gain(0.0, 0.1)), "out_of_domain", "a");
+    assert_thrown(checked(api::closed_loop_gain(-10.0, 0.1)), "oscillation", "beta");
+    assert_thrown(checked(api::beta_for_gain(100.0, 1000.0)), "unreachable", "target_gain");
     assert_thrown(api::summarize_feedback("series-parallel", 1.0, 1.0), "unknown_name", "topology");
     assert_thrown(api::impedances_with_feedback("shunt-shunt", -1.0, 0.0, 1.0, 0.0, 1.0, 0.0, 1.0, 0.0), "out_of_domain", "zi");
-    assert_thrown(api::min_open_loop_gain(0.1, 2.0), "out_of_domain", "gain_error");
+    assert_thrown(checked(api::min_open_loop_gain(0.1, 2.0)), "out_of_domain", "gain_error");
     assert_thrown(api::gain_spread(0.1, 3.0, 2.0, 1.0), "out_of_domain", "a_typ");
+}
+
+#[wasm_bindgen_test]
+fn a_failed_scalar_call_keeps_its_error_for_one_take() {
+    // The scalar exports return NaN on failure and keep the LoopwrightError for the
+    // entry module to throw (src/wasm/mod.rs `scalar`, facade/loopwright.js).
+    assert!(api::closed_loop_gain(-10.0, 0.1).is_nan());
+    let e = loopwright::wasm::take_error();
+    assert_eq!(text(&e, "code"), "oscillation");
+    assert_eq!(text(&e, "param"), "beta");
+    // Taken once: nothing stale is left for the next call.
+    assert!(loopwright::wasm::take_error().is_undefined());
+    // A success leaves nothing behind.
+    assert_eq!(api::closed_loop_gain(1e5, 0.0), 1e5);
+    assert!(loopwright::wasm::take_error().is_undefined());
+    // Many failures in a row keep the module healthy (nothing leaks per call).
+    for _ in 0..50_000 {
+        assert!(api::loop_gain(f64::INFINITY, 0.1).is_nan());
+    }
+    assert_eq!(text(&loopwright::wasm::take_error(), "code"), "not_finite");
+    assert_eq!(api::loop_gain(1e3, 0.1), 100.0);
+}
+
+#[wasm_bindgen_test]
+fn packed_summary_matches_the_object_and_keeps_its_errors() {
+    // The entry module builds summarizeFeedback from these (facade/loopwright.js).
+    let index = checked(api::topology_index("Voltage-Shunt")).unwrap();
+    assert_eq!(index, 3.0);
+    let packed: js_sys::Float64Array = api::summarize_feedback_packed(3, -1e5, -1e-3).dyn_into().unwrap();
+    let object = api::summarize_feedback("shunt-shunt", -1e5, -1e-3).unwrap();
+    let names = ["closedLoopGain", "loopGain", "feedbackAmount", "feedbackAmountDb", "sensitivity", "idealGain", "gainError"];
+    for (i, name) in names.iter().enumerate() {
+        assert_eq!(packed.get_index(i as u32), num(&object, name), "{name}");
+    }
+    let labels = api::feedback_labels().unwrap();
+    let senses: js_sys::Array = field(&labels, "senses").dyn_into().unwrap();
+    assert_eq!(senses.get(packed.get_index(7) as u32).as_string().unwrap(), text(&object, "sense"));
+    let shunt_shunt = js_sys::Array::from(&field(&labels, "topologies")).get(3);
+    assert_eq!(text(&shunt_shunt, "gainUnit"), "V/A");
+    // β = 0: no ideal gain, NaN in the packed form.
+    assert!(api::summarize_feedback_packed(0, 10.0, 0.0).dyn_into::<js_sys::Float64Array>().unwrap().get_index(5).is_nan());
+    assert!(api::summarize_feedback_packed(4, 10.0, 0.1).is_undefined());
+    let e = loopwright::wasm::take_error();
+    assert_eq!((text(&e, "code"), text(&e, "param")), ("out_of_domain".into(), "topology".into()));
+    assert_thrown(checked(api::topology_index("series-parallel")), "unknown_name", "topology");
 }

@@ -2,20 +2,16 @@
 //! src/wasm/noise.rs): values, structured results, typed arrays and thrown errors.
 #![cfg(target_arch = "wasm32")]
 
-use js_sys::{Float64Array, Reflect};
+use js_sys::Float64Array;
 use loopwright::wasm::{noise, nonlinear};
 use wasm_bindgen::{JsCast, JsValue};
 use wasm_bindgen_test::*;
 
 wasm_bindgen_test_configure!(run_in_browser);
 
-fn field(obj: &JsValue, name: &str) -> JsValue {
-    Reflect::get(obj, &name.into()).unwrap()
-}
-
-fn num(obj: &JsValue, name: &str) -> f64 {
-    field(obj, name).as_f64().unwrap_or_else(|| panic!("{name} is not a number"))
-}
+#[path = "support/js.rs"]
+mod js;
+use js::{checked, field, num};
 
 fn error_code_param(e: JsValue) -> (String, String) {
     (field(&e, "code").as_string().unwrap(), field(&e, "param").as_string().unwrap())
@@ -44,7 +40,7 @@ fn numeric_path_agrees_with_the_series_at_small_amplitude() {
     let harmonics: js_sys::Array = field(&s, "harmonics").dyn_into().unwrap();
     assert_eq!(harmonics.length(), 5);
     assert!((harmonics.get(0).as_f64().unwrap() - 0.1).abs() < 1e-5);
-    let y = nonlinear::closed_loop_output(1000.0, 0.0, -1000.0, 0.01, 0.05).unwrap();
+    let y = checked(nonlinear::closed_loop_output(1000.0, 0.0, -1000.0, 0.01, 0.05)).unwrap();
     // The loop equation y = A(x − β·y) holds at the answer.
     let u = 0.05 - 0.01 * y;
     assert!((y - (1000.0 * u - 1000.0 * u * u * u)).abs() < 1e-12);
@@ -78,21 +74,21 @@ fn distortion_errors_are_thrown_with_code_and_param() {
 #[wasm_bindgen_test]
 fn slew_rate_limits() {
     // Common practice, no source: 0.5 V/µs at 10 V peak gives about 8 kHz.
-    let f = nonlinear::full_power_bandwidth(0.5e6, 10.0).unwrap();
+    let f = checked(nonlinear::full_power_bandwidth(0.5e6, 10.0)).unwrap();
     assert!((f - 7957.747).abs() < 1e-3);
-    let v = nonlinear::max_undistorted_amplitude(0.5e6, f).unwrap();
+    let v = checked(nonlinear::max_undistorted_amplitude(0.5e6, f)).unwrap();
     assert!((v - 10.0).abs() < 1e-12);
-    assert!((nonlinear::required_slew_rate(10.0, f).unwrap() - 0.5e6).abs() < 1e-6);
-    let e = nonlinear::full_power_bandwidth(0.5e6, -1.0).unwrap_err();
+    assert!((checked(nonlinear::required_slew_rate(10.0, f)).unwrap() - 0.5e6).abs() < 1e-6);
+    let e = checked(nonlinear::full_power_bandwidth(0.5e6, -1.0)).unwrap_err();
     assert_eq!(error_code_param(e), ("out_of_domain".into(), "v_peak".into()));
 }
 
 #[wasm_bindgen_test]
 fn thermal_noise_of_one_kilohm() {
     // Common practice, no source: 1 kΩ at 300 K ≈ 4.07 nV/√Hz.
-    let e = noise::thermal_noise_density(1e3, 300.0).unwrap();
+    let e = checked(noise::thermal_noise_density(1e3, 300.0)).unwrap();
     assert!((e * 1e9 - 4.07).abs() < 0.005);
-    let err = noise::thermal_noise_density(1e3, -1.0).unwrap_err();
+    let err = checked(noise::thermal_noise_density(1e3, -1.0)).unwrap_err();
     assert_eq!(error_code_param(err), ("out_of_domain".into(), "temperature_k".into()));
 }
 

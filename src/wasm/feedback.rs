@@ -1,6 +1,6 @@
 //! JS bindings for the feedback relations (catalog area A).
 
-use super::{throw, to_js};
+use super::{scalar, throw, to_js};
 use crate::feedback::{self as fb, Topology};
 use num_complex::Complex64;
 use serde::Serialize;
@@ -79,32 +79,32 @@ impl From<Complex64> for Phasor {
 
 /// Closed-loop gain Af = A/(1 + Aβ).
 #[wasm_bindgen(js_name = closedLoopGain)]
-pub fn closed_loop_gain(a: f64, beta: f64) -> Result<f64, JsValue> {
-    throw(fb::closed_loop_gain(a, beta))
+pub fn closed_loop_gain(a: f64, beta: f64) -> f64 {
+    scalar(fb::closed_loop_gain(a, beta))
 }
 
 /// Loop gain T = Aβ.
 #[wasm_bindgen(js_name = loopGain)]
-pub fn loop_gain(a: f64, beta: f64) -> Result<f64, JsValue> {
-    throw(fb::loop_gain(a, beta))
+pub fn loop_gain(a: f64, beta: f64) -> f64 {
+    scalar(fb::loop_gain(a, beta))
 }
 
 /// Amount of feedback D = 1 + Aβ.
 #[wasm_bindgen(js_name = feedbackAmount)]
-pub fn feedback_amount(a: f64, beta: f64) -> Result<f64, JsValue> {
-    throw(fb::feedback_amount(a, beta))
+pub fn feedback_amount(a: f64, beta: f64) -> f64 {
+    scalar(fb::feedback_amount(a, beta))
 }
 
 /// Amount of feedback in dB, 20·log10|1 + Aβ|.
 #[wasm_bindgen(js_name = feedbackAmountDb)]
-pub fn feedback_amount_db(a: f64, beta: f64) -> Result<f64, JsValue> {
-    throw(fb::feedback_amount_db(a, beta))
+pub fn feedback_amount_db(a: f64, beta: f64) -> f64 {
+    scalar(fb::feedback_amount_db(a, beta))
 }
 
 /// Gain sensitivity 1/(1 + Aβ).
 #[wasm_bindgen(js_name = gainSensitivity)]
-pub fn gain_sensitivity(a: f64, beta: f64) -> Result<f64, JsValue> {
-    throw(fb::gain_sensitivity(a, beta))
+pub fn gain_sensitivity(a: f64, beta: f64) -> f64 {
+    scalar(fb::gain_sensitivity(a, beta))
 }
 
 /// All feedback relations of one stage: `{topology, gainUnit, betaUnit,
@@ -114,6 +114,75 @@ pub fn gain_sensitivity(a: f64, beta: f64) -> Result<f64, JsValue> {
 pub fn summarize_feedback(
     #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology_name: &str, a: f64, beta: f64) -> Result<JsValue, JsValue> {
     to_js(&throw(fb::summarize(topology(topology_name)?, a, beta))?)
+}
+
+/// The kinds of feedback in the order `summarizeFeedbackPacked` numbers them.
+const SENSES: [fb::FeedbackSense; 4] =
+    [fb::FeedbackSense::Negative, fb::FeedbackSense::Neutral, fb::FeedbackSense::Positive, fb::FeedbackSense::Oscillation];
+
+/// Internal, for the entry module's `summarizeFeedback`: the index of a topology
+/// name (either family, any case) in catalog order, or NaN with the error kept
+/// (see `scalar` in mod.rs).
+#[wasm_bindgen(js_name = topologyIndex)]
+pub fn topology_index(#[wasm_bindgen(unchecked_param_type = "TopologyName")] topology_name: &str) -> f64 {
+    scalar(topology_name.parse::<Topology>().map(|t| Topology::ALL.iter().position(|&x| x == t).unwrap_or(0) as f64))
+}
+
+/// Internal, for the entry module: the numbers of `summarizeFeedback` for the
+/// topology at `topologyIndex` (catalog order) as a Float64Array `[closedLoopGain,
+/// loopGain, feedbackAmount, feedbackAmountDb, sensitivity, idealGain, gainError,
+/// sense]` — NaN where the object has null, `sense` as an index into
+/// `feedbackLabels().senses` — or undefined with the error kept. The entry module
+/// builds the object in JS: serde-wasm-bindgen crosses the boundary once per field.
+#[wasm_bindgen(js_name = summarizeFeedbackPacked)]
+pub fn summarize_feedback_packed(topology_index: u32, a: f64, beta: f64) -> JsValue {
+    let topology = Topology::ALL.get(topology_index as usize).copied().ok_or(crate::Error::OutOfDomain {
+        param: "topology",
+        requirement: "must be an index of one of the four topologies (0 to 3)",
+    });
+    match topology.and_then(|t| fb::summarize(t, a, beta)) {
+        Ok(s) => {
+            let sense = SENSES.iter().position(|&x| x == s.sense).unwrap_or(0) as f64;
+            let packed = [
+                s.closed_loop_gain,
+                s.loop_gain,
+                s.feedback_amount,
+                s.feedback_amount_db,
+                s.sensitivity,
+                s.ideal_gain.unwrap_or(f64::NAN),
+                s.gain_error.unwrap_or(f64::NAN),
+                sense,
+            ];
+            js_sys::Float64Array::from(&packed[..]).into()
+        }
+        Err(e) => {
+            scalar(Err(e));
+            JsValue::UNDEFINED
+        }
+    }
+}
+
+#[derive(Serialize)]
+#[serde(rename_all = "camelCase")]
+struct TopologyLabels {
+    topology: Topology,
+    gain_unit: &'static str,
+    beta_unit: &'static str,
+}
+
+#[derive(Serialize)]
+struct FeedbackLabels {
+    topologies: [TopologyLabels; 4],
+    senses: [fb::FeedbackSense; 4],
+}
+
+/// Internal, for the entry module: the strings `summarizeFeedbackPacked` leaves
+/// out, `{topologies: [{topology, gainUnit, betaUnit}] (catalog order), senses}`,
+/// serialised from the same types as `summarizeFeedback`'s object.
+#[wasm_bindgen(js_name = feedbackLabels)]
+pub fn feedback_labels() -> Result<JsValue, JsValue> {
+    let topologies = Topology::ALL.map(|t| TopologyLabels { topology: t, gain_unit: t.gain_unit(), beta_unit: t.beta_unit() });
+    to_js(&FeedbackLabels { topologies, senses: SENSES })
 }
 
 #[derive(Serialize)]
@@ -175,14 +244,14 @@ pub fn impedances_with_feedback(
 
 /// β for a target closed-loop gain: 1/Af − 1/A.
 #[wasm_bindgen(js_name = betaForGain)]
-pub fn beta_for_gain(a: f64, target_gain: f64) -> Result<f64, JsValue> {
-    throw(fb::beta_for_gain(a, target_gain))
+pub fn beta_for_gain(a: f64, target_gain: f64) -> f64 {
+    scalar(fb::beta_for_gain(a, target_gain))
 }
 
 /// Least open-loop gain for a gain error (fraction) against 1/β.
 #[wasm_bindgen(js_name = minOpenLoopGain)]
-pub fn min_open_loop_gain(beta: f64, gain_error: f64) -> Result<f64, JsValue> {
-    throw(fb::min_open_loop_gain(beta, gain_error))
+pub fn min_open_loop_gain(beta: f64, gain_error: f64) -> f64 {
+    scalar(fb::min_open_loop_gain(beta, gain_error))
 }
 
 /// Largest closed-loop gain with at least D of feedback: `{closedLoopGain, beta}`.

@@ -7,7 +7,7 @@
 //! either a number (a frequency-independent feedback factor) or such an object.
 //! Sweeps come back as objects of `Float64Array`s.
 
-use super::{set_typed_arrays, throw, to_js, typed_arrays};
+use super::{scalar, set_typed_arrays, throw, to_js, typed_arrays};
 use crate::error::Error;
 use crate::freq::{self as fq, ComplexPair, FeedbackLoop, TransferModel};
 use js_sys::Object;
@@ -404,18 +404,18 @@ pub fn two_pole_response(f1: f64, f2: f64, t0: f64) -> Result<JsValue, JsValue> 
 
 /// Single-pole closed-loop upper −3 dB frequency fH·(1 + A0·β), Hz.
 #[wasm_bindgen(js_name = singlePoleHighCutoff)]
-pub fn single_pole_high_cutoff(f_h: f64, a0: f64, beta: f64) -> Result<f64, JsValue> {
-    throw(fq::single_pole_high_cutoff(f_h, a0, beta))
+pub fn single_pole_high_cutoff(f_h: f64, a0: f64, beta: f64) -> f64 {
+    scalar(fq::single_pole_high_cutoff(f_h, a0, beta))
 }
 
 /// Single low cut closed-loop lower −3 dB frequency fL/(1 + AM·β), Hz.
 #[wasm_bindgen(js_name = singlePoleLowCutoff)]
-pub fn single_pole_low_cutoff(f_l: f64, am: f64, beta: f64) -> Result<f64, JsValue> {
-    throw(fq::single_pole_low_cutoff(f_l, am, beta))
+pub fn single_pole_low_cutoff(f_l: f64, am: f64, beta: f64) -> f64 {
+    scalar(fq::single_pole_low_cutoff(f_l, am, beta))
 }
 
 /// Gain–bandwidth product A0·fH.
 #[wasm_bindgen(js_name = gainBandwidth)]
-pub fn gain_bandwidth(a0: f64, f_h: f64) -> Result<f64, JsValue> {
-    throw(fq::gain_bandwidth(a0, f_h))
+pub fn gain_bandwidth(a0: f64, f_h: f64) -> f64 {
+    scalar(fq::gain_bandwidth(a0, f_h))
 }

@@ -5,6 +5,11 @@
 //! serde-wasm-bindgen, sweeps become typed arrays, and every [`crate::Error`] is
 //! thrown as a JS `Error` with `code` and `param` fields. JS names are camelCase.
 //! One file per catalog area.
+//!
+//! Scalar functions (one `f64` out) are the exception to "thrown by the glue": they
+//! return a bare `f64` — the answer, or NaN with the error kept aside — and the
+//! package's entry module (`facade/loopwright.js`) throws that kept error. See
+//! [`scalar`] for why.
 
 pub mod circuit;
 pub mod feedback;
@@ -64,6 +69,38 @@ pub(crate) fn typed_arrays(fields: &[(&str, &[f64])]) -> JsValue {
     let obj: JsValue = js_sys::Object::new().into();
     set_typed_arrays(&obj, fields);
     obj
+}
+
+std::thread_local! {
+    /// The error of the last scalar call that failed, until `takeError()` takes it.
+    static PENDING_ERROR: core::cell::RefCell<Option<JsValue>> = const { core::cell::RefCell::new(None) };
+}
+
+/// How a scalar result crosses the boundary: the value itself, or NaN with the error
+/// kept for [`take_error`].
+///
+/// NaN is free as a sentinel because no core function returns NaN as an answer
+/// (`check::result` turns any non-finite result into a typed error). The entry
+/// module `facade/loopwright.js` wraps every scalar export: on NaN it throws the kept
+/// `LoopwrightError`, so a JS caller sees the same contract as everywhere else.
+/// Why not `Result<f64, JsValue>`: its glue returns an array per call, which made a
+/// scalar call 4.5x slower than the same formula written inline in JS (bench/).
+pub(crate) fn scalar(r: crate::Result<f64>) -> f64 {
+    match r {
+        Ok(x) => x,
+        Err(e) => {
+            let err = js_error(e);
+            PENDING_ERROR.with(|slot| *slot.borrow_mut() = Some(err));
+            f64::NAN
+        }
+    }
+}
+
+/// Internal: the `LoopwrightError` of the last scalar call that returned NaN, or
+/// `undefined`; taking it clears it. Called by the package's entry module only.
+#[wasm_bindgen(js_name = takeError)]
+pub fn take_error() -> JsValue {
+    PENDING_ERROR.with(|slot| slot.borrow_mut().take()).unwrap_or(JsValue::UNDEFINED)
 }
 
 /// Map a core result into a thrown JS error.

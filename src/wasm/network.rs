@@ -1,6 +1,6 @@
 //! JS bindings for feedback-network synthesis and tolerance (catalog area C).
 
-use super::{throw, to_js};
+use super::{scalar, throw, to_js};
 use crate::network::montecarlo::count_from_number;
 use crate::network::{self as nw, Distribution, Metric, MonteCarloSpec, PairSpec, Stage, StageSpec};
 use wasm_bindgen::prelude::*;
@@ -42,8 +42,8 @@ pub fn series_values(series: &str, low: f64, high: f64) -> Result<Box<[f64]>, Js
 /// The standard value next to `value`; `rounding` is nearest, up, down, above
 /// or below.
 #[wasm_bindgen(js_name = standardValue)]
-pub fn standard_value(series: &str, value: f64, rounding: &str) -> Result<f64, JsValue> {
-    throw(nw::standard_value(throw(series.parse())?, value, throw(rounding.parse())?))
+pub fn standard_value(series: &str, value: f64, rounding: &str) -> f64 {
+    scalar(series.parse().and_then(|s| nw::standard_value(s, value, rounding.parse()?)))
 }
 
 /// `{series, down, up, nearest, error, tolerance}` around a value.
@@ -54,14 +54,14 @@ pub fn standard_neighbours(series: &str, value: f64) -> Result<JsValue, JsValue>
 
 /// The customary tolerance of a series, as a fraction.
 #[wasm_bindgen(js_name = seriesTolerance)]
-pub fn series_tolerance(series: &str) -> Result<f64, JsValue> {
-    Ok(throw(series.parse::<nw::Series>())?.tolerance())
+pub fn series_tolerance(series: &str) -> f64 {
+    scalar(series.parse::<nw::Series>().map(|s| s.tolerance()))
 }
 
 /// Parse `4k7`, `2R2`, `4.7 kΩ`, `100nF`… to a number.
 #[wasm_bindgen(js_name = parseValue)]
-pub fn parse_value(text: &str) -> Result<f64, JsValue> {
-    throw(nw::parse_value(text))
+pub fn parse_value(text: &str) -> f64 {
+    scalar(nw::parse_value(text))
 }
 
 /// A value with an SI prefix, e.g. `"4.7 k"`.

@@ -5,7 +5,7 @@
 //! `voltageDensity` (V/√Hz), `voltageCornerHz`, `currentDensity` (A/√Hz),
 //! `currentCornerHz`; the loop as `gbwHz` and `extraPolesHz` (0 to 2 values).
 
-use super::{throw, to_js, typed_arrays};
+use super::{scalar, throw, to_js, typed_arrays};
 use crate::noise::{self as nz, AmplifierNoise, ClosedLoopResponse, Stage, StageKind};
 use wasm_bindgen::prelude::*;
 
@@ -32,14 +32,14 @@ fn stage(kind: &str, r_feedback: f64, r_gain: f64, r_plus: f64, temperature_k: f
 
 /// Thermal noise density √(4kTR), V/√Hz.
 #[wasm_bindgen(js_name = thermalNoiseDensity)]
-pub fn thermal_noise_density(resistance_ohm: f64, temperature_k: f64) -> Result<f64, JsValue> {
-    throw(nz::thermal_noise_density(resistance_ohm, temperature_k))
+pub fn thermal_noise_density(resistance_ohm: f64, temperature_k: f64) -> f64 {
+    scalar(nz::thermal_noise_density(resistance_ohm, temperature_k))
 }
 
 /// Thermal noise current density √(4kT/R), A/√Hz.
 #[wasm_bindgen(js_name = thermalNoiseCurrentDensity)]
-pub fn thermal_noise_current_density(resistance_ohm: f64, temperature_k: f64) -> Result<f64, JsValue> {
-    throw(nz::thermal_noise_current_density(resistance_ohm, temperature_k))
+pub fn thermal_noise_current_density(resistance_ohm: f64, temperature_k: f64) -> f64 {
+    scalar(nz::thermal_noise_current_density(resistance_ohm, temperature_k))
 }
 
 /// Each source's output noise density at `frequencyHz` (flat part of the

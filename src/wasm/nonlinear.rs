@@ -3,7 +3,7 @@
 //! A power-series amplifier is passed as its three coefficients `a1, a2, a3`;
 //! amplitudes are peak values; `amplitudeAt` is `"input"` or `"output"`.
 
-use super::{throw, to_js, typed_arrays};
+use super::{scalar, throw, to_js, typed_arrays};
 use crate::nonlinear::{self as nl, AmplitudeAt, PowerSeries};
 use wasm_bindgen::prelude::*;
 
@@ -87,9 +87,8 @@ pub fn feedback_distortion(
 
 /// The closed-loop output y solving y = A(x − β·y) at input x.
 #[wasm_bindgen(js_name = closedLoopOutput)]
-pub fn closed_loop_output(a1: f64, a2: f64, a3: f64, beta: f64, x: f64) -> Result<f64, JsValue> {
-    let solver = throw(nl::LoopSolver::new(&series(a1, a2, a3)?, beta))?;
-    throw(solver.output(x))
+pub fn closed_loop_output(a1: f64, a2: f64, a3: f64, beta: f64, x: f64) -> f64 {
+    scalar(PowerSeries::new(a1, a2, a3).and_then(|s| nl::LoopSolver::new(&s, beta)).and_then(|solver| solver.output(x)))
 }
 
 /// Numeric spectrum of the closed loop for a cosine input of peak `amplitude`:
@@ -148,23 +147,23 @@ pub fn series_validity_sweep(
     js_sys::Reflect::set(&obj, &"foldAmplitude".into(), &option_number(s.fold_amplitude))?;
     js_sys::Reflect::set(&obj, &"hd3LimitAmplitude".into(), &option_number(s.hd3_limit_amplitude))?;
     js_sys::Reflect::set(&obj, &"hd3HoldsThroughout".into(), &s.hd3_holds_throughout.into())?;
-    Ok(obj.into())
+    Ok(obj)
 }
 
 /// Full-power bandwidth SR/(2π·Vpeak), Hz; slew rate in V/s.
 #[wasm_bindgen(js_name = fullPowerBandwidth)]
-pub fn full_power_bandwidth(slew_rate: f64, v_peak: f64) -> Result<f64, JsValue> {
-    throw(nl::full_power_bandwidth(slew_rate, v_peak))
+pub fn full_power_bandwidth(slew_rate: f64, v_peak: f64) -> f64 {
+    scalar(nl::full_power_bandwidth(slew_rate, v_peak))
 }
 
 /// Largest undistorted peak amplitude SR/(2π·f), V; slew rate in V/s.
 #[wasm_bindgen(js_name = maxUndistortedAmplitude)]
-pub fn max_undistorted_amplitude(slew_rate: f64, frequency_hz: f64) -> Result<f64, JsValue> {
-    throw(nl::max_undistorted_amplitude(slew_rate, frequency_hz))
+pub fn max_undistorted_amplitude(slew_rate: f64, frequency_hz: f64) -> f64 {
+    scalar(nl::max_undistorted_amplitude(slew_rate, frequency_hz))
 }
 
 /// Slew rate needed for a sine of peak `vPeak` at `frequencyHz`, V/s.
 #[wasm_bindgen(js_name = requiredSlewRate)]
-pub fn required_slew_rate(v_peak: f64, frequency_hz: f64) -> Result<f64, JsValue> {
-    throw(nl::required_slew_rate(v_peak, frequency_hz))
+pub fn required_slew_rate(v_peak: f64, frequency_hz: f64) -> f64 {
+    scalar(nl::required_slew_rate(v_peak, frequency_hz))
 }

@@ -7,7 +7,8 @@
 import { test, before, after } from 'node:test';
 import assert from 'node:assert/strict';
 import { execFileSync, spawnSync } from 'node:child_process';
-import { mkdtempSync, readdirSync, copyFileSync, writeFileSync, rmSync, createReadStream, mkdirSync } from 'node:fs';
+import { mkdtempSync, readdirSync, readFileSync, copyFileSync, writeFileSync, rmSync, createReadStream, mkdirSync } from 'node:fs';
+import { pathToFileURL } from 'node:url';
 import { createInterface } from 'node:readline';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -35,6 +36,52 @@ after(() => {
 test('Node: the installed package gives the reference values and typed errors', () => {
   const out = execFileSync(process.execPath, ['consumer.mjs'], { cwd: project, encoding: 'utf8' });
   assert.match(out, /all checks passed/);
+});
+
+test('every number-returning export is checked: bad input throws a LoopwrightError, never NaN', async () => {
+  // The glue's scalar exports return NaN on failure (src/wasm/mod.rs `scalar`); the
+  // entry module (facade/loopwright.js) must wrap each one. Found from the glue's own
+  // declarations, so a new scalar function cannot slip through unwrapped.
+  const web = join(project, 'node_modules', 'loopwright', 'web');
+  const entry = await import(pathToFileURL(join(project, 'node_modules', 'loopwright', 'node.mjs')).href);
+  const glue = await import(pathToFileURL(join(web, 'loopwright_glue.js')).href);
+  const dts = readFileSync(join(web, 'loopwright_glue.d.ts'), 'utf8');
+  const scalars = [...dts.matchAll(/^export function (\w+)\(([^)]*)\): number;$/gm)];
+  assert.ok(scalars.length >= 19, `found ${scalars.length} scalar exports`);
+  for (const [, name, params] of scalars) {
+    assert.notEqual(entry[name], glue[name], `${name} is not wrapped by facade/loopwright.js`);
+    const args = params.split(',').map((p) => (p.includes(': number') ? Number.NaN : '?'));
+    assert.throws(() => entry[name](...args), (e) => e.name === 'LoopwrightError' && typeof e.param === 'string', name);
+    assert.equal(entry.takeError(), undefined, `${name} left an error behind`);
+  }
+  // A = 10⁵, β = 0.00999: Af = 10⁵/1000 = 100 (by hand).
+  assert.ok(Math.abs(entry.closedLoopGain(1e5, 0.00999) - 100) < 1e-9);
+});
+
+test('summarizeFeedback built in JS equals the glue\'s serde-built object, errors included', async () => {
+  const entry = await import(pathToFileURL(join(project, 'node_modules', 'loopwright', 'node.mjs')).href);
+  const glue = await import(pathToFileURL(join(project, 'node_modules', 'loopwright', 'web', 'loopwright_glue.js')).href);
+  const names = ['series-shunt', 'shunt-series', 'series-series', 'shunt-shunt', 'Voltage-Series', 'CURRENT-SHUNT',
+    'current-series', 'voltage-shunt', 'voltage', 'current', 'transconductance', 'transresistance'];
+  // Negative, neutral (T = −2), positive feedback and β = 0 (null ideal gain and error).
+  const stages = [[1e5, 0.00999], [2, -1], [10, -0.05], [-1e5, -1e-3], [10, 0], [3.3e-2, 4.7e3]];
+  let compared = 0;
+  for (const name of names) {
+    for (const [a, beta] of stages) {
+      assert.deepStrictEqual(entry.summarizeFeedback(name, a, beta), glue.summarizeFeedback(name, a, beta), `${name} ${a} ${beta}`);
+      compared++;
+    }
+  }
+  assert.equal(compared, 72);
+  const senses = new Set(stages.map(([a, beta]) => entry.summarizeFeedback('voltage', a, beta).sense));
+  assert.deepStrictEqual([...senses].sort(), ['negative', 'neutral', 'positive']);
+  for (const [name, a, beta] of [['series-parallel', 1, 1], ['shunt-shunt', -10, 0.1], ['voltage', Number.NaN, 0.1], ['current', 1, Infinity]]) {
+    const thrown = (f) => { try { f(); } catch (e) { return e; } assert.fail(`${name} ${a} ${beta} did not throw`); };
+    const mine = thrown(() => entry.summarizeFeedback(name, a, beta));
+    const theirs = thrown(() => glue.summarizeFeedback(name, a, beta));
+    assert.equal(mine.name, 'LoopwrightError');
+    assert.deepStrictEqual([mine.code, mine.param, mine.message], [theirs.code, theirs.param, theirs.message]);
+  }
 });
 
 test('TypeScript: the definitions type-check a consumer, and reject a wrong one', () => {

@@ -36,3 +36,13 @@ pub fn assert_thrown(r: Result<impl core::fmt::Debug, JsValue>, code: &str, para
     assert!(text(&e, "message").contains(&format!("{param}: ")), "the message names {param}");
     e
 }
+
+/// What the entry module (facade/loopwright.js) does with a scalar export's number:
+/// NaN means the call failed and its LoopwrightError waits in `takeError()`.
+pub fn checked(x: f64) -> Result<f64, JsValue> {
+    if x.is_nan() {
+        Err(loopwright::wasm::take_error())
+    } else {
+        Ok(x)
+    }
+}
