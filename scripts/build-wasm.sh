@@ -7,9 +7,14 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 out=${1:-www/pkg}
 cargo rustc --quiet --lib --crate-type cdylib --release --target wasm32-unknown-unknown --features wasm
-wasm-bindgen --target web --out-dir "$out" --out-name loopwright \
+# The name and producers sections are debugging and telemetry only (about 70 KB of the
+# release file). To profile sizes, run twiggy on the file wasm-bindgen reads, which
+# keeps its names: target/wasm32-unknown-unknown/release/loopwright.wasm.
+wasm-bindgen --target web --remove-name-section --remove-producers-section \
+  --out-dir "$out" --out-name loopwright \
   target/wasm32-unknown-unknown/release/loopwright.wasm
 mv "$out/loopwright.js" "$out/loopwright_glue.js"
 mv "$out/loopwright.d.ts" "$out/loopwright_glue.d.ts"
 cp facade/loopwright.js facade/loopwright.d.ts "$out/"
-echo "build: $out/loopwright_bg.wasm $(wc -c < "$out/loopwright_bg.wasm") bytes" >&2
+echo "build: $out/loopwright_bg.wasm $(wc -c < "$out/loopwright_bg.wasm") bytes," \
+  "$(gzip -9 -c "$out/loopwright_bg.wasm" | wc -c) gzipped" >&2

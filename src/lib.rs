@@ -36,6 +36,7 @@ pub mod noise;
 pub mod nonlinear;
 pub mod notation;
 pub mod sheet;
+mod sort;
 
 #[cfg(feature = "wasm")]
 pub mod wasm;

@@ -91,6 +91,19 @@ fn spills_names_and_ranges() {
 }
 
 #[wasm_bindgen_test]
+fn names_object_lists_names_in_byte_order() {
+    let mut ws = Worksheet::new();
+    for (name, cell) in [("gain", "A1"), ("Rload", "B2"), ("beta", "A3"), ("Zout", "C4")] {
+        ws.set_name(name, cell).unwrap();
+    }
+    // Keys in byte order of the name as written (upper case before lower case), the
+    // order the object had when it was a serialized BTreeMap.
+    let json = JSON::stringify(&ws.names().unwrap()).unwrap();
+    assert_eq!(String::from(json), r#"{"Rload":"B2","Zout":"C4","beta":"A3","gain":"A1"}"#);
+    assert_eq!(String::from(JSON::stringify(&Worksheet::new().names().unwrap()).unwrap()), "{}");
+}
+
+#[wasm_bindgen_test]
 fn document_round_trip_and_refusal() {
     let mut ws = Worksheet::new();
     ws.set_cell("A1", "4k7Ω").unwrap();

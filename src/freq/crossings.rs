@@ -216,7 +216,7 @@ pub(crate) fn scan(l: &FeedbackLoop, ppd: u32) -> Result<Scan> {
             phases.push(refine(&h, fp, fi, pp - level, pi - level));
         }
         if let Some(tail) = phases.get_mut(first..) {
-            tail.sort_by(f64::total_cmp);
+            crate::sort::sort_by(tail, f64::total_cmp);
         }
     }
     Ok((gains, phases))

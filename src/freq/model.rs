@@ -414,7 +414,7 @@ impl FeedbackLoop {
         let mut c = Vec::new();
         self.a.corners_hz(&mut c);
         self.beta.corners_hz(&mut c);
-        c.sort_by(f64::total_cmp);
+        crate::sort::sort_by(&mut c, f64::total_cmp);
         c
     }
 

@@ -98,7 +98,7 @@ pub fn closed_loop_poles(l: &FeedbackLoop) -> Result<ClosedLoopPoles> {
         let q = if s.im != 0.0 && zeta > 0.0 { Some(1.0 / (2.0 * zeta)) } else { None };
         poles.push(Pole { re: s.re, im: s.im, natural_hz: mag / TAU, zeta, q });
     }
-    poles.sort_by(|a, b| a.natural_hz.total_cmp(&b.natural_hz).then(a.im.total_cmp(&b.im)));
+    crate::sort::sort_by(&mut poles, |a, b| a.natural_hz.total_cmp(&b.natural_hz).then(a.im.total_cmp(&b.im)));
     let verdict = verdict_of(&poles);
     let min_zeta = poles.iter().map(|p| p.zeta).min_by(f64::total_cmp);
     let has_delay = l.amplifier().delay_s > 0.0 || l.feedback().delay_s > 0.0;

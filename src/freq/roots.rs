@@ -357,7 +357,7 @@ fn finish(mut z: Vec<Complex64>) -> Result<Vec<Complex64>> {
             r.im = 0.0;
         }
     }
-    z.sort_by(|a, b| a.norm().total_cmp(&b.norm()).then(a.im.total_cmp(&b.im)));
+    crate::sort::sort_by(&mut z, |a, b| a.norm().total_cmp(&b.norm()).then(a.im.total_cmp(&b.im)));
     Ok(z)
 }
 

@@ -448,7 +448,7 @@ pub fn sample_stats(samples: &mut [f64], lower: Option<f64>, upper: Option<f64>,
             wanted.push(lo + 1);
         }
     }
-    wanted.sort_unstable();
+    crate::sort::sort_by(&mut wanted, usize::cmp);
     wanted.dedup();
     let mut found: Vec<(usize, f64)> = Vec::with_capacity(wanted.len());
     select_many(samples, 0, &wanted, &mut found);

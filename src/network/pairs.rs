@@ -424,7 +424,7 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
             let w_first = series.ceil_rank(clamp(total_min / (1.0 + q * s)));
             let w_last = series.floor_rank(clamp(total_max / (1.0 + q / s))).min(all_last);
             scan(w_first, w_last, &mut candidates);
-            candidates.sort_by(by_error);
+            crate::sort::sort_by(&mut candidates, by_error);
             let outside_bound = libm::fabs(error_of(1.0, q * s)).min(libm::fabs(error_of(1.0, q / s)));
             let settled = candidates.get(count - 1).is_some_and(|c| libm::fabs(c.error) <= outside_bound);
             if !settled {
@@ -438,7 +438,7 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
             (w_first..=w_last).map(|n| series.value_at(n)).collect()
         }
     };
-    candidates.sort_by(by_error);
+    crate::sort::sort_by(&mut candidates, by_error);
 
     let good_enough = |c: Option<&PairCandidate>| match (c, max_error) {
         (None, _) => false,
@@ -453,7 +453,7 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
                 candidates.push(make(r1, leg));
             }
         }
-        candidates.sort_by(by_error);
+        crate::sort::sort_by(&mut candidates, by_error);
     }
     candidates.truncate(count);
     let meets_max_error = good_enough(candidates.first());
@@ -515,7 +515,7 @@ pub fn single_resistor(
             }
         }
     }
-    out.sort_by(|a, b| libm::fabs(a.error).total_cmp(&libm::fabs(b.error)));
+    crate::sort::sort_by(&mut out, |a, b| libm::fabs(a.error).total_cmp(&libm::fabs(b.error)));
     Ok(out)
 }
 

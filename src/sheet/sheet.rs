@@ -404,7 +404,7 @@ impl Sheet {
             }
             _ => {}
         });
-        deps.sort_unstable();
+        crate::sort::sort_by(&mut deps, Dep::cmp);
         deps.dedup();
         deps
     }
@@ -500,7 +500,7 @@ impl Sheet {
             }
         }
         if let Some(mine) = out.get_mut(from..) {
-            mine.sort_unstable();
+            crate::sort::sort_by(mine, usize::cmp);
         }
         // Duplicates only repeat an edge; the ordering does not mind them.
     }
@@ -535,7 +535,8 @@ impl Sheet {
                     }
                 }
                 let mut ord = combined;
-                ord.sort_by_key(|&i| (component.get(i).copied().unwrap_or(0), rank.get(i).copied().unwrap_or(0)));
+                let key = |i: usize| (component.get(i).copied().unwrap_or(0), rank.get(i).copied().unwrap_or(0));
+                crate::sort::sort_by(&mut ord, |&i, &j| key(i).cmp(&key(j)));
                 ord
             };
             let mut again = BTreeSet::new();

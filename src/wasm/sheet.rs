@@ -226,8 +226,16 @@ impl Worksheet {
     /// The names as an object `{name: address}`.
     #[wasm_bindgen(unchecked_return_type = "Record<string, string>")]
     pub fn names(&self) -> Result<JsValue, JsValue> {
-        let m: alloc::collections::BTreeMap<&str, String> = self.sheet.names().map(|(n, c)| (n, c.to_string())).collect();
-        to_js(&m)
+        // Keys in byte order of the name, as a plain object; built directly rather than
+        // through a BTreeMap and serde, which compiled a sort and a serializer of their own.
+        let mut names: Vec<(&str, CellRef)> = self.sheet.names().collect();
+        crate::sort::sort_by(&mut names, |a, b| a.0.cmp(b.0));
+        let obj = js_sys::Object::new();
+        for (name, cell) in names {
+            // Reflect::set only fails on frozen or proxy objects; this one is fresh.
+            let _ = js_sys::Reflect::set(&obj, &name.into(), &cell.to_string().into());
+        }
+        Ok(obj.into())
     }
 
     /// The sheet as a document (JSON text, format `loopwright-sheet`, version 1).
