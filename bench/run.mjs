@@ -33,8 +33,12 @@ function pythonPeers() {
 }
 
 function sizes() {
-  const wasm = readFileSync(join(root, 'pkg', 'web', 'loopwright_bg.wasm'));
-  const rows = [['wasm core', wasm.length, gzipSync(wasm, { level: 9 }).length, '< 150 KB gzipped']];
+  const wasm = (...dir) => readFileSync(join(root, 'pkg', 'web', ...dir, 'loopwright_bg.wasm'));
+  const row = (name, bytes, target) => [name, bytes.length, gzipSync(bytes, { level: 9 }).length, target];
+  const rows = [
+    row('wasm, lite module (feedback, freq, network, distortion, noise; embedded panel, loopwright/lite)', wasm('lite'), '< 150 KB gzipped'),
+    row('wasm, full module (+ circuit solver and worksheet; the page, loopwright)', wasm(), ''),
+  ];
   const single = join(root, 'dist', 'loopwright.html');
   if (existsSync(single)) {
     const html = readFileSync(single);

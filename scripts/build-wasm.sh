@@ -1,20 +1,34 @@
 #!/usr/bin/env bash
-# Builds the wasm core (release) and its JS glue (wasm-bindgen --target web), then
-# puts the entry module facade/loopwright.js (+ .d.ts) in front of the glue, which is
-# renamed loopwright_glue.js: importers keep using <out-dir>/loopwright.js.
+# Builds the two wasm modules (release) and their JS glue (wasm-bindgen --target web):
+#   <out-dir>/       the full module (feature `wasm`): every area, the circuit solver
+#                    and the worksheet; used by the page and the package's main entry;
+#   <out-dir>/lite/  the lite module (feature `wasm-lite`): feedback, frequency and
+#                    stability, network, distortion, noise; used by the embeddable
+#                    panel and the package's `loopwright/lite` entry.
+# In each, the entry module facade/loopwright.js (+ .d.ts) is put in front of the glue,
+# which is renamed loopwright_glue.js: importers keep using loopwright.js.
 # Usage: scripts/build-wasm.sh [out-dir]   (default www/pkg, for the page)
 set -euo pipefail
 cd "$(dirname "$0")/.."
 out=${1:-www/pkg}
-cargo rustc --quiet --lib --crate-type cdylib --release --target wasm32-unknown-unknown --features wasm
-# The name and producers sections are debugging and telemetry only (about 70 KB of the
-# release file). To profile sizes, run twiggy on the file wasm-bindgen reads, which
-# keeps its names: target/wasm32-unknown-unknown/release/loopwright.wasm.
-wasm-bindgen --target web --remove-name-section --remove-producers-section \
-  --out-dir "$out" --out-name loopwright \
-  target/wasm32-unknown-unknown/release/loopwright.wasm
-mv "$out/loopwright.js" "$out/loopwright_glue.js"
-mv "$out/loopwright.d.ts" "$out/loopwright_glue.d.ts"
-cp facade/loopwright.js facade/loopwright.d.ts "$out/"
-echo "build: $out/loopwright_bg.wasm $(wc -c < "$out/loopwright_bg.wasm") bytes," \
-  "$(gzip -9 -c "$out/loopwright_bg.wasm" | wc -c) gzipped" >&2
+
+# build <features> <cargo target dir> <out dir>
+build() {
+  cargo rustc --quiet --lib --crate-type cdylib --release --target wasm32-unknown-unknown \
+    --features "$1" --target-dir "$2"
+  # The name and producers sections are debugging and telemetry only (about 70 KB of
+  # the release file). To profile sizes, run twiggy on the file wasm-bindgen reads,
+  # which keeps its names: <target dir>/wasm32-unknown-unknown/release/loopwright.wasm.
+  wasm-bindgen --target web --remove-name-section --remove-producers-section \
+    --out-dir "$3" --out-name loopwright \
+    "$2/wasm32-unknown-unknown/release/loopwright.wasm"
+  mv "$3/loopwright.js" "$3/loopwright_glue.js"
+  mv "$3/loopwright.d.ts" "$3/loopwright_glue.d.ts"
+  cp facade/loopwright.js facade/loopwright.d.ts "$3/"
+  echo "build: $3/loopwright_bg.wasm $(wc -c < "$3/loopwright_bg.wasm") bytes," \
+    "$(gzip -9 -c "$3/loopwright_bg.wasm" | wc -c) gzipped" >&2
+}
+
+build wasm target "$out"
+# A target dir of its own, so the two feature sets do not rebuild each other.
+build wasm-lite target/lite "$out/lite"

@@ -38,7 +38,7 @@ pub mod notation;
 pub mod sheet;
 mod sort;
 
-#[cfg(feature = "wasm")]
+#[cfg(feature = "wasm-lite")]
 pub mod wasm;
 
 pub use error::{Error, Result};

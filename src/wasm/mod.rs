@@ -11,12 +11,17 @@
 //! package's entry module (`facade/loopwright.js`) throws that kept error. See
 //! [`scalar`] for why.
 
+// The circuit solver and the worksheet are in the full module only (feature `wasm`);
+// without them the module is the "lite" one (feature `wasm-lite`), less than half
+// the size.
+#[cfg(feature = "wasm")]
 pub mod circuit;
 pub mod feedback;
 pub mod freq;
 pub mod network;
 pub mod noise;
 pub mod nonlinear;
+#[cfg(feature = "wasm")]
 pub mod sheet;
 
 use crate::Error;

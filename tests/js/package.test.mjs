@@ -41,19 +41,23 @@ test('Node: the installed package gives the reference values and typed errors', 
 test('every number-returning export is checked: bad input throws a LoopwrightError, never NaN', async () => {
   // The glue's scalar exports return NaN on failure (src/wasm/mod.rs `scalar`); the
   // entry module (facade/loopwright.js) must wrap each one. Found from the glue's own
-  // declarations, so a new scalar function cannot slip through unwrapped.
-  const web = join(project, 'node_modules', 'loopwright', 'web');
-  const entry = await import(pathToFileURL(join(project, 'node_modules', 'loopwright', 'node.mjs')).href);
-  const glue = await import(pathToFileURL(join(web, 'loopwright_glue.js')).href);
-  const dts = readFileSync(join(web, 'loopwright_glue.d.ts'), 'utf8');
-  const scalars = [...dts.matchAll(/^export function (\w+)\(([^)]*)\): number;$/gm)];
-  assert.ok(scalars.length >= 19, `found ${scalars.length} scalar exports`);
-  for (const [, name, params] of scalars) {
-    assert.notEqual(entry[name], glue[name], `${name} is not wrapped by facade/loopwright.js`);
-    const args = params.split(',').map((p) => (p.includes(': number') ? Number.NaN : '?'));
-    assert.throws(() => entry[name](...args), (e) => e.name === 'LoopwrightError' && typeof e.param === 'string', name);
-    assert.equal(entry.takeError(), undefined, `${name} left an error behind`);
+  // declarations, so a new scalar function cannot slip through unwrapped. Both the
+  // full module and the lite one.
+  const installed = join(project, 'node_modules', 'loopwright');
+  for (const [entryFile, web] of [['node.mjs', 'web'], ['lite.mjs', join('web', 'lite')]]) {
+    const entry = await import(pathToFileURL(join(installed, entryFile)).href);
+    const glue = await import(pathToFileURL(join(installed, web, 'loopwright_glue.js')).href);
+    const dts = readFileSync(join(installed, web, 'loopwright_glue.d.ts'), 'utf8');
+    const scalars = [...dts.matchAll(/^export function (\w+)\(([^)]*)\): number;$/gm)];
+    assert.ok(scalars.length >= 20, `${entryFile}: found ${scalars.length} scalar exports`);
+    for (const [, name, params] of scalars) {
+      assert.notEqual(entry[name], glue[name], `${entryFile}: ${name} is not wrapped by facade/loopwright.js`);
+      const args = params.split(',').map((p) => (p.includes(': number') ? Number.NaN : '?'));
+      assert.throws(() => entry[name](...args), (e) => e.name === 'LoopwrightError' && typeof e.param === 'string', name);
+      assert.equal(entry.takeError(), undefined, `${entryFile}: ${name} left an error behind`);
+    }
   }
+  const entry = await import(pathToFileURL(join(installed, 'node.mjs')).href);
   // A = 10⁵, β = 0.00999: Af = 10⁵/1000 = 100 (by hand).
   assert.ok(Math.abs(entry.closedLoopGain(1e5, 0.00999) - 100) < 1e-9);
 });
@@ -82,6 +86,32 @@ test('summarizeFeedback built in JS equals the glue\'s serde-built object, error
     assert.equal(mine.name, 'LoopwrightError');
     assert.deepStrictEqual([mine.code, mine.param, mine.message], [theirs.code, theirs.param, theirs.message]);
   }
+});
+
+test('loopwright/lite: the calculator areas without the circuit solver and the worksheet', async () => {
+  const out = execFileSync(process.execPath, ['--input-type=module', '-e', `
+    import * as lite from 'loopwright/lite';
+    import * as full from 'loopwright';
+    const a = { gain: 1e5, polesHz: [10, 1e6, 1e7] };
+    console.log(JSON.stringify({
+      gain: lite.closedLoopGain(1e5, 0.00999),
+      pm: lite.stabilityMargins(a, 0.01).phaseMarginDeg,
+      pmFull: full.stabilityMargins(a, 0.01).phaseMarginDeg,
+      summary: lite.summarizeFeedback('current', 20, 0.5),
+      summaryFull: full.summarizeFeedback('current', 20, 0.5),
+      mc: typeof lite.monteCarlo,
+      worksheet: typeof lite.Worksheet, circuit: typeof lite.circuitSolve, fullWorksheet: typeof full.Worksheet,
+    }));`], { cwd: project, encoding: 'utf8' });
+  const r = JSON.parse(out);
+  // A = 10⁵, β = 0.00999: Af = 10⁵/1000 = 100 (by hand).
+  assert.ok(Math.abs(r.gain - 100) < 1e-9);
+  assert.equal(r.pm, r.pmFull);
+  assert.ok(r.pm > 0 && r.pm < 90, `phase margin ${r.pm}`);
+  assert.deepStrictEqual(r.summary, r.summaryFull);
+  assert.equal(r.mc, 'function');
+  assert.deepStrictEqual([r.worksheet, r.circuit, r.fullWorksheet], ['undefined', 'undefined', 'function']);
+  const wasm = (dir) => readFileSync(join(project, 'node_modules', 'loopwright', ...dir, 'loopwright_bg.wasm')).length;
+  assert.ok(wasm(['web', 'lite']) < wasm(['web']) / 2, 'the lite wasm is less than half the full one');
 });
 
 test('TypeScript: the definitions type-check a consumer, and reject a wrong one', () => {

@@ -157,6 +157,8 @@ test('embedding: the custom element and the frame work under a strict CSP', asyn
     const problems = [];
     page.on('console', (msg) => { if (msg.type() === 'error') problems.push(msg.text()); });
     page.on('pageerror', (err) => problems.push(err.message));
+    const wasmFetched = [];
+    page.on('request', (req) => { if (req.url().endsWith('.wasm')) wasmFetched.push(new URL(req.url()).pathname); });
     await page.goto(`${rootUrl}tests/js/fixtures/embed.html`);
     await page.waitForSelector('loopwright-panel[data-ready="true"]', { timeout: 15000 });
     // Only the two requested cards, inside the shadow root.
@@ -170,6 +172,8 @@ test('embedding: the custom element and the frame work under a strict CSP', asyn
     assert.deepEqual(await page.evaluate(() => Object.keys(window).filter((k) => /loopwright|wasm|wbg/i.test(k))), []);
     const frame = page.frameLocator('iframe');
     assert.equal(await frame.locator('#card-stage dd[data-name="af"] output').textContent(), '100.0');
+    // The element loads the lite module; the framed page is the full one.
+    assert.ok(wasmFetched.includes('/www/pkg/lite/loopwright_bg.wasm'), `wasm fetched: ${wasmFetched}`);
     await page.screenshot({ path: join(ARTIFACTS, 'embed.png'), fullPage: true });
     assert.deepEqual(problems, []);
     await context.close();

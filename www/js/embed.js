@@ -8,7 +8,9 @@
 // security policy of script-src/style-src/connect-src <that origin> plus
 // 'wasm-unsafe-eval' is enough. See docs/embed.md.
 
-import init, * as api from '../pkg/loopwright.js';
+// The lite module: the feedback cards need no circuit solver or worksheet, and it is
+// less than half the size of the full one (see scripts/build-wasm.sh).
+import init, * as api from '../pkg/lite/loopwright.js';
 import { mountCard } from './card.js';
 import { el } from './dom.js';
 import { FEEDBACK_CARDS } from './cards/feedback.js';

@@ -8,12 +8,17 @@ import type {
   LoopAnalysis, FrequencySweep, LoopPoint, CompensationResult,
 } from 'loopwright';
 import { circuitTemplate, circuitSolve, circuitTwoPort, circuitSweep, circuitBlackman, circuitStageViews } from 'loopwright';
+import initLite, { closedLoopGain as liteGain, stabilityMargins as liteMargins } from 'loopwright/lite';
+import type { StabilityMargins as LiteMargins } from 'loopwright/lite';
 import type {
   CircuitDocument, CircuitSolution, TwoPortAnalysis, TwoPortKind, ComplexSweep, BlackmanImpedance, StageViews, Complex, CircuitError,
 } from 'loopwright';
 
 export async function run(): Promise<number> {
   await init();
+  await initLite();
+  const lm: LiteMargins = liteMargins({ gain: 1e5, polesHz: [10, 1e6] }, 0.01);
+  const lg: number = liteGain(1e5, 0.01) + (lm.phaseMarginDeg ?? 0);
   const s: FeedbackSummary = summarizeFeedback('series-shunt', 1e5, 0.01);
   const t: Topology = s.topology;
   const ideal: number | null = s.idealGain;
@@ -35,7 +40,7 @@ export async function run(): Promise<number> {
   const touched: string[] = sheet.setCell('A1', '=FB.GAIN(100k; 0.01)');
   const saved: string = sheet.saveDocument();
   sheet.free();
-  return touched.length + saved.length + s.closedLoopGain + (ideal ?? 0) + spread.spreadPpm + zin + unit.length + r2 + noise.outputRms + (ratio ?? 0);
+  return lg + touched.length + saved.length + s.closedLoopGain + (ideal ?? 0) + spread.spreadPpm + zin + unit.length + r2 + noise.outputRms + (ratio ?? 0);
 }
 
 export function frequency(): number {
