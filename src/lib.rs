@@ -27,6 +27,7 @@
 extern crate alloc;
 
 pub mod check;
+mod float;
 pub mod circuit;
 pub mod error;
 pub mod feedback;

@@ -186,7 +186,7 @@ fn check_digits(digits: u32) -> Result<usize> {
 /// as a multiple of 3) with the mantissa in [1, 1000) after rounding, and the
 /// mantissa's text with trailing zeros kept to show the significance.
 fn engineering(x: f64, digits: usize) -> (String, i32) {
-    let mut e3 = 3 * libm::floor(libm::log10(x) / 3.0) as i32;
+    let mut e3 = 3 * crate::float::floor(libm::log10(x) / 3.0) as i32;
     loop {
         let m = x / libm::pow(10.0, f64::from(e3));
         let int_digits = if m >= 100.0 {
@@ -286,7 +286,7 @@ pub fn letter_code(value: f64, digits: u32) -> Result<String> {
     let (m, e3) = engineering(x, digits);
     if e3 < 0 {
         // Below 1 Ω: R then the digits of the value, 0.47 → R47.
-        let decimals = (digits as i32 - 1 - libm::floor(libm::log10(x)) as i32).max(1) as usize;
+        let decimals = (digits as i32 - 1 - crate::float::floor(libm::log10(x)) as i32).max(1) as usize;
         let text = format!("{x:.decimals$}");
         let frac = text.strip_prefix("0.").unwrap_or(&text);
         if text.starts_with("1.") {

@@ -75,7 +75,7 @@ fn midband_hz(l: &FeedbackLoop, lo: f64) -> f64 {
     b.corners_hz(&mut others);
     let above = others.iter().copied().filter(|&f| f > cuts).fold(f64::INFINITY, f64::min);
     let top = if above.is_finite() { above } else { cuts * 1e6 };
-    libm::sqrt(cuts * top)
+    crate::float::sqrt(cuts * top)
 }
 
 /// Closed-loop −3 dB bandwidth and peaking.
@@ -217,11 +217,11 @@ mod tests {
         let (t0, f1, f2) = (999.0, 1e3, 1e6);
         let l = FeedbackLoop::with_constant_beta(TransferModel::constant(t0).pole(f1).pole(f2), 1.0).unwrap();
         let b = closed_loop_bandwidth(&l).unwrap();
-        let q = libm::sqrt((1.0 + t0) * f1 * f2) / (f1 + f2);
-        let mp = q / libm::sqrt(1.0 - 1.0 / (4.0 * q * q));
+        let q = crate::float::sqrt((1.0 + t0) * f1 * f2) / (f1 + f2);
+        let mp = q / crate::float::sqrt(1.0 - 1.0 / (4.0 * q * q));
         assert!((b.peaking_db - 20.0 * libm::log10(mp)).abs() < 1e-9);
-        let f0 = libm::sqrt((1.0 + t0) * f1 * f2);
-        let fp = f0 * libm::sqrt(1.0 - 1.0 / (2.0 * q * q));
+        let f0 = crate::float::sqrt((1.0 + t0) * f1 * f2);
+        let fp = f0 * crate::float::sqrt(1.0 - 1.0 / (2.0 * q * q));
         assert!((b.peak_hz.unwrap() / fp - 1.0).abs() < 1e-6);
     }
 

@@ -120,7 +120,7 @@ pub fn two_pole_response(f1: f64, f2: f64, t0: f64) -> Result<TwoPoleResponse> {
     if t0 <= -1.0 {
         return Err(Error::OutOfDomain { param: "t0", requirement: "must be greater than −1" });
     }
-    let f0 = check::result("natural_hz", libm::sqrt((1.0 + t0) * f1 * f2))?;
+    let f0 = check::result("natural_hz", crate::float::sqrt((1.0 + t0) * f1 * f2))?;
     let q = f0 / (f1 + f2);
     let (peaking_db, peak_hz) = peaking_from_q(q);
     let zeta = 1.0 / (2.0 * q);
@@ -152,8 +152,8 @@ pub fn peaking_from_q(q: f64) -> (f64, Option<f64>) {
     if q * q <= 0.5 * (1.0 + 8.0 * f64::EPSILON) {
         return (0.0, None);
     }
-    let mp = q / libm::sqrt(1.0 - 1.0 / (4.0 * q * q));
-    (20.0 * libm::log10(mp), Some(libm::sqrt(1.0 - 1.0 / (2.0 * q * q))))
+    let mp = q / crate::float::sqrt(1.0 - 1.0 / (4.0 * q * q));
+    (20.0 * libm::log10(mp), Some(crate::float::sqrt(1.0 - 1.0 / (2.0 * q * q))))
 }
 
 /// Step overshoot of a second-order system as a fraction: exp(−πζ/√(1 − ζ²)),
@@ -170,7 +170,7 @@ pub fn overshoot_from_zeta(zeta: f64) -> f64 {
     if zeta >= 1.0 {
         return 0.0;
     }
-    libm::exp(-PI * zeta / libm::sqrt(1.0 - zeta * zeta))
+    libm::exp(-PI * zeta / crate::float::sqrt(1.0 - zeta * zeta))
 }
 
 #[cfg(test)]
@@ -190,16 +190,16 @@ mod tests {
     fn max_flat_q_has_no_peaking_and_4_3_percent_overshoot() {
         // Common practice, no source: Q = 1/√2 is maximally flat (no peaking), and
         // its step overshoot is about 4.3 %.
-        let (db, f) = peaking_from_q(libm::sqrt(0.5));
+        let (db, f) = peaking_from_q(crate::float::sqrt(0.5));
         assert_eq!((db, f), (0.0, None));
-        assert!((overshoot_from_zeta(libm::sqrt(0.5)) * 100.0 - 4.32).abs() < 0.01);
+        assert!((overshoot_from_zeta(crate::float::sqrt(0.5)) * 100.0 - 4.32).abs() < 0.01);
     }
 
     #[test]
     fn q_of_one_peaks_by_1_25_db() {
         // Mp = 1/√(3/4) = 1.1547 → 1.249 dB (from the formula above).
         let (db, f) = peaking_from_q(1.0);
-        assert!((db - 20.0 * libm::log10(2.0 / libm::sqrt(3.0))).abs() < 1e-12);
-        assert!((f.unwrap() - libm::sqrt(0.5)).abs() < 1e-12);
+        assert!((db - 20.0 * libm::log10(2.0 / crate::float::sqrt(3.0))).abs() < 1e-12);
+        assert!((f.unwrap() - crate::float::sqrt(0.5)).abs() < 1e-12);
     }
 }

@@ -72,7 +72,7 @@ fn bisect(meets: &dyn Fn(f64) -> Result<bool>, mut lo: f64, mut hi: f64) -> Resu
         if hi / lo - 1.0 <= SEARCH_REL_TOL {
             break;
         }
-        let mid = libm::sqrt(lo * hi);
+        let mid = crate::float::sqrt(lo * hi);
         if meets(mid)? {
             lo = mid;
         } else {

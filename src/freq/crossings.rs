@@ -77,7 +77,7 @@ pub(crate) fn grid(l: &FeedbackLoop, ppd: u32) -> Result<Vec<f64>> {
         return Err(Error::OutOfDomain { param: "points_per_decade", requirement: "must be between 4 and 2000" });
     }
     let (lo, hi) = search_range(l);
-    let n = (libm::ceil(libm::log10(hi / lo) * f64::from(ppd)) as usize).max(2) + 1;
+    let n = (crate::float::ceil(libm::log10(hi / lo) * f64::from(ppd)) as usize).max(2) + 1;
     let (a, b) = (libm::log(lo), libm::log(hi));
     Ok((0..n).map(|i| libm::exp(a + (b - a) * i as f64 / (n - 1) as f64)).collect())
 }
@@ -204,8 +204,8 @@ pub(crate) fn scan(l: &FeedbackLoop, ppd: u32) -> Result<Scan> {
         let (pp, pi) = (ph[i - 1].to_degrees(), ph[i].to_degrees());
         // Every level −180° + 360°·m strictly inside (min, max] of the step.
         let (lo, hi) = if pp < pi { (pp, pi) } else { (pi, pp) };
-        let m_lo = libm::floor((lo + 180.0) / 360.0) as i64 + 1;
-        let m_hi = libm::floor((hi + 180.0) / 360.0) as i64;
+        let m_lo = crate::float::floor((lo + 180.0) / 360.0) as i64 + 1;
+        let m_hi = crate::float::floor((hi + 180.0) / 360.0) as i64;
         if m_hi - m_lo + 1 + phases.len() as i64 > MAX_PHASE_CROSSINGS as i64 {
             return Err(Error::TooLarge { param: "phase_crossings", limit: MAX_PHASE_CROSSINGS as u64 });
         }
@@ -275,7 +275,7 @@ mod tests {
         assert!(c.len() > 3);
         for &f in &c {
             let p = loop_log(&l, f).deg();
-            let k = libm::round((p + 180.0) / 360.0);
+            let k = crate::float::round((p + 180.0) / 360.0);
             assert!((p + 180.0 - 360.0 * k).abs() < 1e-12 * p.abs().max(360.0), "phase {p} at {f}");
         }
     }

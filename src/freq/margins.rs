@@ -78,7 +78,7 @@ pub struct Margins {
 
 /// Wrap an angle in degrees into (−180°, 180°].
 pub(crate) fn wrap_deg(x: f64) -> f64 {
-    let mut y = x - 360.0 * libm::round(x / 360.0);
+    let mut y = x - 360.0 * crate::float::round(x / 360.0);
     if y <= -180.0 {
         y += 360.0;
     }
@@ -185,8 +185,8 @@ mod tests {
         let (a, b) = (f1 * f1, f2 * f2);
         // (1 + x/a)(1 + x/b) = t0², x = fc².
         let (qa, qb, qc) = (1.0 / (a * b), 1.0 / a + 1.0 / b, 1.0 - t0 * t0);
-        let x = (-qb + libm::sqrt(qb * qb - 4.0 * qa * qc)) / (2.0 * qa);
-        let fc = libm::sqrt(x);
+        let x = (-qb + crate::float::sqrt(qb * qb - 4.0 * qa * qc)) / (2.0 * qa);
+        let fc = crate::float::sqrt(x);
         let pm = 180.0 - (libm::atan(fc / f1) + libm::atan(fc / f2)).to_degrees();
         assert!((m.crossover_hz.unwrap() / fc - 1.0).abs() < 1e-11);
         assert!((m.phase_margin_deg.unwrap() - pm).abs() < 1e-9);

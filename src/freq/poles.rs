@@ -153,7 +153,7 @@ mod tests {
         let (t0, f1, f2) = (999.0, 1e3, 1e6);
         let l = FeedbackLoop::with_constant_beta(TransferModel::constant(t0).pole(f1).pole(f2), 1.0).unwrap();
         let p = closed_loop_poles(&l).unwrap();
-        let q = libm::sqrt((1.0 + t0) * f1 * f2) / (f1 + f2);
+        let q = crate::float::sqrt((1.0 + t0) * f1 * f2) / (f1 + f2);
         assert!((p.poles[0].q.unwrap() - q).abs() < 1e-12 * q);
         assert_eq!(p.poles[0].re, p.poles[1].re);
     }

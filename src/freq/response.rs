@@ -339,7 +339,7 @@ pub fn unwrap_phase_deg(phase: &mut [f64]) {
         let raw = *p;
         if let Some(q) = prev {
             let d = raw + offset - q;
-            offset -= 360.0 * libm::round(d / 360.0);
+            offset -= 360.0 * crate::float::round(d / 360.0);
         }
         *p = raw + offset;
         prev = Some(*p);

@@ -123,7 +123,7 @@ impl Mat {
     fn expm(&self, t: f64) -> Mat {
         let m = self.scaled(t);
         let norm = m.norm1();
-        let s = if norm > 0.5 { libm::ceil(libm::log2(norm / 0.5)) as i32 } else { 0 };
+        let s = if norm > 0.5 { crate::float::ceil(libm::log2(norm / 0.5)) as i32 } else { 0 };
         let s = s.clamp(0, 1000);
         let m = m.scaled(libm::pow(2.0, -f64::from(s)));
         let mut sum = Mat::identity(self.n);

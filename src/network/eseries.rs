@@ -191,7 +191,7 @@ impl Series {
     /// [`MIN_VALUE`, `MAX_VALUE`].
     pub(crate) fn floor_rank(self, x: f64) -> i64 {
         let len = self.len() as i64;
-        let decade = libm::floor(libm::log10(x)) as i64;
+        let decade = crate::float::floor(libm::log10(x)) as i64;
         let shift = decade - i64::from(self.significant_digits()) + 1;
         let idx = self.mantissas().partition_point(|&m| scaled(m, shift) <= x) as i64;
         let mut n = decade * len + idx - 1;
@@ -439,7 +439,7 @@ mod tests {
             .iter()
             .enumerate()
             .filter(|&(i, &m)| {
-                let g = libm::round(10.0 * libm::pow(10.0, i as f64 / 24.0)) as u16;
+                let g = crate::float::round(10.0 * libm::pow(10.0, i as f64 / 24.0)) as u16;
                 g != m
             })
             .map(|(_, &m)| m)

@@ -18,8 +18,9 @@
 //! 53 bits; normal deviates by
 //! Marsaglia's polar form of the Box–Muller transform (G. Marsaglia & T. A. Bray,
 //! "A convenient method for generating normal variables", SIAM Review 6(3),
-//! 1964, from memory), with `libm::log` and `libm::sqrt`. Only IEEE-754 basic
-//! operations and libm (pure Rust, no platform maths) are used, and the sums run
+//! 1964, from memory), with `libm::log` and a correctly rounded square root
+//! (`crate::float`). Only IEEE-754 basic operations and libm (pure Rust, no
+//! platform maths) are used, and the sums run
 //! in trial order, so the same seed gives bit-identical results natively and in
 //! WebAssembly.
 //!
@@ -177,7 +178,7 @@ pub struct MonteCarloResult {
 /// ```
 pub fn seed_from_number(seed: f64) -> Result<u64> {
     let s = check::non_negative("seed", seed)?;
-    if s != libm::trunc(s) || s > MAX_NUMBER_SEED {
+    if s != crate::float::trunc(s) || s > MAX_NUMBER_SEED {
         return Err(Error::OutOfDomain { param: "seed", requirement: "must be a whole number from 0 to 2^53 - 1" });
     }
     Ok(s as u64)
@@ -197,7 +198,7 @@ pub fn seed_from_number(seed: f64) -> Result<u64> {
 /// ```
 pub fn count_from_number(param: &'static str, x: f64, limit: usize) -> Result<usize> {
     let x = check::non_negative(param, x)?;
-    if x != libm::trunc(x) {
+    if x != crate::float::trunc(x) {
         return Err(Error::OutOfDomain { param, requirement: "must be a whole number" });
     }
     if x > limit as f64 {
@@ -232,7 +233,7 @@ impl Draws {
             let v = 2.0 * self.unit() - 1.0;
             let s = u * u + v * v;
             if s > 0.0 && s < 1.0 {
-                let f = libm::sqrt(-2.0 * libm::log(s) / s);
+                let f = crate::float::sqrt(-2.0 * libm::log(s) / s);
                 self.spare = Some(v * f);
                 return u * f;
             }
@@ -425,14 +426,14 @@ pub fn sample_stats(samples: &mut [f64], lower: Option<f64>, upper: Option<f64>,
             inside += 1;
         }
     }
-    let sd = check::result("sd", libm::sqrt(ss / (n - 1) as f64))?;
+    let sd = check::result("sd", crate::float::sqrt(ss / (n - 1) as f64))?;
     let yield_fraction = (lower.is_some() || upper.is_some()).then(|| inside as f64 / n as f64);
 
     let width = (max - min) / bins as f64;
     let edges: Vec<f64> = (0..=bins).map(|i| if i == bins { max } else { min + width * i as f64 }).collect();
     let mut counts = alloc::vec![0u32; bins];
     for &x in samples.iter() {
-        let i = if width > 0.0 { libm::floor((x - min) / width) as usize } else { 0 };
+        let i = if width > 0.0 { crate::float::floor((x - min) / width) as usize } else { 0 };
         if let Some(c) = counts.get_mut(i.min(bins - 1)) {
             *c += 1;
         }
@@ -442,7 +443,7 @@ pub fn sample_stats(samples: &mut [f64], lower: Option<f64>, upper: Option<f64>,
     let positions = PERCENTILES.map(|p| (n - 1) as f64 * p / 100.0);
     let mut wanted: Vec<usize> = Vec::with_capacity(14);
     for h in positions {
-        let lo = libm::floor(h) as usize;
+        let lo = crate::float::floor(h) as usize;
         wanted.push(lo);
         if lo + 1 < n {
             wanted.push(lo + 1);
@@ -455,7 +456,7 @@ pub fn sample_stats(samples: &mut [f64], lower: Option<f64>, upper: Option<f64>,
     let stat = |k: usize| found.iter().find(|&&(i, _)| i == k).map_or(0.0, |&(_, v)| v);
     let percentiles = core::array::from_fn(|j| {
         let h = positions[j];
-        let lo = libm::floor(h) as usize;
+        let lo = crate::float::floor(h) as usize;
         let frac = h - lo as f64;
         let a = stat(lo);
         let value = if frac > 0.0 { a + frac * (stat(lo + 1) - a) } else { a };
@@ -613,18 +614,18 @@ mod tests {
         let mut d = Draws::new(31);
         let mut x: Vec<f64> = (0..n).map(|_| d.normal()).collect();
         let s = sample_stats(&mut x, Some(-1.0), Some(1.0), 10).unwrap();
-        let phi = |z: f64| libm::exp(-0.5 * z * z) / libm::sqrt(2.0 * core::f64::consts::PI);
+        let phi = |z: f64| libm::exp(-0.5 * z * z) / crate::float::sqrt(2.0 * core::f64::consts::PI);
         for (idx, p, z) in [(3, 0.5, 0.0), (4, 0.95, 1.644_854), (5, 0.99, 2.326_348), (6, 0.999, 3.090_232)] {
-            let se = libm::sqrt(p * (1.0 - p) / n as f64) / phi(z);
+            let se = crate::float::sqrt(p * (1.0 - p) / n as f64) / phi(z);
             assert!((s.percentiles[idx].value - z).abs() < 5.0 * se, "p{p}: {}", s.percentiles[idx].value);
             assert!((s.percentiles[6 - idx].value + z).abs() < 5.0 * se, "mirror of p{p}");
         }
         // Within ±1σ: 0.682689 (same table), binomial bound.
         let y = s.yield_fraction.unwrap();
-        assert!((y - 0.682_689).abs() < 5.0 * libm::sqrt(0.2167 / n as f64), "{y}");
+        assert!((y - 0.682_689).abs() < 5.0 * crate::float::sqrt(0.2167 / n as f64), "{y}");
         assert!(
-            libm::fabs(s.mean) < 5.0 / libm::sqrt(n as f64)
-                && libm::fabs(s.sd - 1.0) < 5.0 / libm::sqrt(2.0 * n as f64)
+            libm::fabs(s.mean) < 5.0 / crate::float::sqrt(n as f64)
+                && libm::fabs(s.sd - 1.0) < 5.0 / crate::float::sqrt(2.0 * n as f64)
         );
     }
 

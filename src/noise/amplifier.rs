@@ -85,12 +85,12 @@ impl AmplifierNoise {
 
     /// e_n(f) = e_n·√(1 + f_ce/f), V/√Hz.
     pub fn voltage_density_at(&self, f: f64) -> f64 {
-        libm::sqrt(self.voltage_psd_at(f))
+        crate::float::sqrt(self.voltage_psd_at(f))
     }
 
     /// i_n(f) = i_n·√(1 + f_ci/f), A/√Hz.
     pub fn current_density_at(&self, f: f64) -> f64 {
-        libm::sqrt(self.current_psd_at(f))
+        crate::float::sqrt(self.current_psd_at(f))
     }
 }
 

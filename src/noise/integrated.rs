@@ -58,7 +58,7 @@ pub fn output_noise_density(
     frequency_hz: f64,
 ) -> Result<f64> {
     let f = density_frequency(amp, frequency_hz)?;
-    check::result("output_noise_density", libm::sqrt(output_psd(stage, amp, f) * response.magnitude_squared(f)))
+    check::result("output_noise_density", crate::float::sqrt(output_psd(stage, amp, f) * response.magnitude_squared(f)))
 }
 
 /// Output and input-referred noise density over log-spaced frequencies.
@@ -120,8 +120,8 @@ pub fn output_noise_sweep(
         let f = a * libm::pow(b / a, i as f64 / (points - 1) as f64);
         let s0 = output_psd(stage, amp, f);
         out.frequencies.push(f);
-        out.output_density.push(check::result("output_density", libm::sqrt(s0 * response.magnitude_squared(f)))?);
-        out.input_referred_density.push(check::result("input_referred_density", libm::sqrt(s0) / gain)?);
+        out.output_density.push(check::result("output_density", crate::float::sqrt(s0 * response.magnitude_squared(f)))?);
+        out.input_referred_density.push(check::result("input_referred_density", crate::float::sqrt(s0) / gain)?);
     }
     Ok(out)
 }
@@ -306,7 +306,7 @@ pub fn integrated_output_noise(
     let (power, err) = integrate_band(&g, f_low, f_high, &breaks[..nb])?;
     let (nbw, _) =
         integrate_band(&|f: f64| response.magnitude_squared(f), 0.0, f64::INFINITY, &breaks[..shape_breaks])?;
-    let output_rms = check::result("output_rms", libm::sqrt(power))?;
+    let output_rms = check::result("output_rms", crate::float::sqrt(power))?;
     let signal_gain = stage.signal_gain();
     let white = AmplifierNoise { voltage_corner_hz: 0.0, current_corner_hz: 0.0, ..*amp };
     let single = response.single_pole_noise_bandwidth_hz();
@@ -323,7 +323,7 @@ pub fn integrated_output_noise(
         single_pole_noise_bandwidth_hz: single,
         single_pole_estimate_rms: check::result(
             "single_pole_estimate_rms",
-            libm::sqrt(output_psd(stage, &white, 1.0) * single),
+            crate::float::sqrt(output_psd(stage, &white, 1.0) * single),
         )?,
         relative_error: if power > 0.0 { 0.5 * err / power } else { 0.0 },
     })

@@ -202,18 +202,18 @@ pub(crate) fn density_frequency(amp: &AmplifierNoise, frequency_hz: f64) -> Resu
 pub fn noise_contributions(stage: &Stage, amp: &AmplifierNoise, frequency_hz: f64) -> Result<NoiseContributions> {
     let f = density_frequency(amp, frequency_hz)?;
     let t = output_psd_terms(stage, amp, f);
-    let total = libm::sqrt(t.iter().sum());
+    let total = crate::float::sqrt(t.iter().sum());
     let signal_gain = stage.signal_gain();
     Ok(NoiseContributions {
         frequency_hz: f,
         noise_gain: stage.noise_gain(),
         signal_gain,
-        r_feedback: libm::sqrt(t[0]),
-        r_gain: libm::sqrt(t[1]),
-        r_plus: libm::sqrt(t[2]),
-        amplifier_voltage: libm::sqrt(t[3]),
-        amplifier_current_plus: libm::sqrt(t[4]),
-        amplifier_current_minus: libm::sqrt(t[5]),
+        r_feedback: crate::float::sqrt(t[0]),
+        r_gain: crate::float::sqrt(t[1]),
+        r_plus: crate::float::sqrt(t[2]),
+        amplifier_voltage: crate::float::sqrt(t[3]),
+        amplifier_current_plus: crate::float::sqrt(t[4]),
+        amplifier_current_minus: crate::float::sqrt(t[5]),
         total: check::result("total", total)?,
         input_referred: check::result("input_referred", total / libm::fabs(signal_gain))?,
     })

@@ -33,7 +33,7 @@ pub const BOLTZMANN: f64 = 1.380_649e-23;
 pub fn thermal_noise_density(resistance_ohm: f64, temperature_k: f64) -> Result<f64> {
     let r = check::non_negative("resistance_ohm", resistance_ohm)?;
     let t = check::positive("temperature_k", temperature_k)?;
-    check::result("thermal_noise_density", libm::sqrt(4.0 * BOLTZMANN * t * r))
+    check::result("thermal_noise_density", crate::float::sqrt(4.0 * BOLTZMANN * t * r))
 }
 
 /// Thermal noise current density of a resistor, √(4·k·T/R), A/√Hz.
@@ -53,7 +53,7 @@ pub fn thermal_noise_density(resistance_ohm: f64, temperature_k: f64) -> Result<
 pub fn thermal_noise_current_density(resistance_ohm: f64, temperature_k: f64) -> Result<f64> {
     let r = check::positive("resistance_ohm", resistance_ohm)?;
     let t = check::positive("temperature_k", temperature_k)?;
-    check::result("thermal_noise_current_density", libm::sqrt(4.0 * BOLTZMANN * t / r))
+    check::result("thermal_noise_current_density", crate::float::sqrt(4.0 * BOLTZMANN * t / r))
 }
 
 #[cfg(test)]

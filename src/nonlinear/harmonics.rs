@@ -133,7 +133,7 @@ pub fn closed_loop_spectrum(open: &PowerSeries, beta: f64, amplitude: f64, sampl
         harmonics,
         hd2: harmonics[1] / fundamental,
         hd3: harmonics[2] / fundamental,
-        thd: libm::sqrt(sum) / fundamental,
+        thd: crate::float::sqrt(sum) / fundamental,
         samples: n,
     })
 }

@@ -66,7 +66,7 @@ fn positive_interval(c0: f64, c1: f64, c2: f64) -> (f64, f64) {
             return (-inf, inf);
         }
         // Stable pair of roots: q = −(c1 + sign(c1)·√disc)/2, r1 = q/c2, r2 = c0/q.
-        let s = libm::sqrt(disc);
+        let s = crate::float::sqrt(disc);
         let q = -0.5 * (c1 + if c1 >= 0.0 { s } else { -s });
         let (r1, r2) = if q == 0.0 { (0.0, 0.0) } else { (q / c2, c0 / q) };
         let (lo, hi) = if r1 < r2 { (r1, r2) } else { (r2, r1) };

@@ -144,7 +144,7 @@ pub fn from_document(text: &str) -> core::result::Result<Contents, DocumentError
             ("format", Json::String(f)) if f == FORMAT => format_ok = true,
             ("format", _) => return refuse(format!("\"format\" must be \"{FORMAT}\"; this is not a loopwright sheet")),
             ("version", Json::Number(v)) if *v == f64::from(VERSION) => version_ok = true,
-            ("version", Json::Number(v)) if *v > f64::from(VERSION) && libm::trunc(*v) == *v => {
+            ("version", Json::Number(v)) if *v > f64::from(VERSION) && crate::float::trunc(*v) == *v => {
                 return refuse(format!(
                     "it was written by a newer loopwright (document version {}); this one reads version {VERSION}",
                     super::value::format_number(*v)

@@ -251,7 +251,7 @@ fn binary_inner(op: BinOp, a: &Value, b: &Value, ev: &Eval<'_>) -> Result<Value,
             if x == 0.0 && y < 0.0 {
                 return Err(CellError::new(ErrorKind::DivZero, "zero raised to a negative power"));
             }
-            if x < 0.0 && libm::trunc(y) != y {
+            if x < 0.0 && crate::float::trunc(y) != y {
                 return Err(CellError::new(ErrorKind::Num, "a negative number raised to a fractional power"));
             }
             (libm::pow(x, y), None)

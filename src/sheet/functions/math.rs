@@ -51,7 +51,7 @@ fn sqrt(a: &Args<'_>) -> Value {
     if x < 0.0 {
         return Value::error(ErrorKind::Num, "SQRT: x: must be zero or greater");
     }
-    Value::num(libm::sqrt(x))
+    Value::num(crate::float::sqrt(x))
 }
 
 fn exp(a: &Args<'_>) -> Value {
@@ -87,7 +87,7 @@ pub fn round_half_away(x: f64, digits: i32) -> f64 {
     if !y.is_finite() {
         return x;
     }
-    let t = libm::trunc(y);
+    let t = crate::float::trunc(y);
     let frac = libm::fabs(y - t);
     let r = if frac + 8.0 * f64::EPSILON * libm::fabs(y) >= 0.5 { t + libm::copysign(1.0, y) } else { t };
     r / f
@@ -95,7 +95,7 @@ pub fn round_half_away(x: f64, digits: i32) -> f64 {
 
 fn round(a: &Args<'_>) -> Value {
     let x = tri!(a.number(0));
-    let d = libm::trunc(tri!(a.number(1)));
+    let d = crate::float::trunc(tri!(a.number(1)));
     if !(-15.0..=15.0).contains(&d) {
         return Value::error(ErrorKind::Num, "ROUND: digits: must be between -15 and 15");
     }
