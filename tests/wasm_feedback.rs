@@ -99,7 +99,8 @@ fn packed_summary_matches_the_object_and_keeps_its_errors() {
     // The entry module builds summarizeFeedback from these (facade/loopwright.js).
     let index = checked(api::topology_index("Voltage-Shunt")).unwrap();
     assert_eq!(index, 3.0);
-    let packed: js_sys::Float64Array = api::summarize_feedback_packed(3, -1e5, -1e-3).dyn_into().unwrap();
+    assert_eq!(checked(api::summarize_feedback_packed(3, -1e5, -1e-3)), Ok(0.0));
+    let packed = loopwright::wasm::scratch_view();
     let object = api::summarize_feedback("shunt-shunt", -1e5, -1e-3).unwrap();
     let names = ["closedLoopGain", "loopGain", "feedbackAmount", "feedbackAmountDb", "sensitivity", "idealGain", "gainError"];
     for (i, name) in names.iter().enumerate() {
@@ -111,9 +112,17 @@ fn packed_summary_matches_the_object_and_keeps_its_errors() {
     let shunt_shunt = js_sys::Array::from(&field(&labels, "topologies")).get(3);
     assert_eq!(text(&shunt_shunt, "gainUnit"), "V/A");
     // β = 0: no ideal gain, NaN in the packed form.
-    assert!(api::summarize_feedback_packed(0, 10.0, 0.0).dyn_into::<js_sys::Float64Array>().unwrap().get_index(5).is_nan());
-    assert!(api::summarize_feedback_packed(4, 10.0, 0.1).is_undefined());
-    let e = loopwright::wasm::take_error();
-    assert_eq!((text(&e, "code"), text(&e, "param")), ("out_of_domain".into(), "topology".into()));
+    assert_eq!(checked(api::summarize_feedback_packed(0, 10.0, 0.0)), Ok(0.0));
+    assert!(packed.get_index(5).is_nan());
+    assert_thrown(checked(api::summarize_feedback_packed(4, 10.0, 0.1)), "out_of_domain", "topology");
     assert_thrown(checked(api::topology_index("series-parallel")), "unknown_name", "topology");
+    // The view reads the module's memory in place: after the memory grows it is
+    // empty (its buffer detached) and a fresh one reads the same numbers.
+    let before = packed.get_index(0);
+    // More bytes than the whole memory holds now, so it must grow.
+    let size = packed.buffer().byte_length() as usize;
+    let big: Vec<u8> = vec![1; size + 1];
+    assert_eq!(big.len(), size + 1);
+    assert_eq!(packed.length(), 0, "the old view is detached by the growth");
+    assert_eq!(loopwright::wasm::scratch_view().get_index(0), before);
 }

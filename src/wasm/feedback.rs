@@ -1,6 +1,6 @@
 //! JS bindings for the feedback relations (catalog area A).
 
-use super::{scalar, throw, to_js};
+use super::{scalar, throw, to_js, write_scratch};
 use crate::feedback::{self as fb, Topology};
 use num_complex::Complex64;
 use serde::Serialize;
@@ -129,37 +129,32 @@ pub fn topology_index(#[wasm_bindgen(unchecked_param_type = "TopologyName")] top
 }
 
 /// Internal, for the entry module: the numbers of `summarizeFeedback` for the
-/// topology at `topologyIndex` (catalog order) as a Float64Array `[closedLoopGain,
-/// loopGain, feedbackAmount, feedbackAmountDb, sensitivity, idealGain, gainError,
-/// sense]` — NaN where the object has null, `sense` as an index into
-/// `feedbackLabels().senses` — or undefined with the error kept. The entry module
-/// builds the object in JS: serde-wasm-bindgen crosses the boundary once per field.
+/// topology at `topologyIndex` (catalog order), written to the scratch area
+/// (`scratchView()`) as `[closedLoopGain, loopGain, feedbackAmount, feedbackAmountDb,
+/// sensitivity, idealGain, gainError, sense]` — NaN where the object has null,
+/// `sense` as an index into `feedbackLabels().senses`. Returns 0, or NaN with the
+/// error kept (see `scalar`). The entry module builds the object in JS:
+/// serde-wasm-bindgen crosses the boundary once per field.
 #[wasm_bindgen(js_name = summarizeFeedbackPacked)]
-pub fn summarize_feedback_packed(topology_index: u32, a: f64, beta: f64) -> JsValue {
+pub fn summarize_feedback_packed(topology_index: u32, a: f64, beta: f64) -> f64 {
     let topology = Topology::ALL.get(topology_index as usize).copied().ok_or(crate::Error::OutOfDomain {
         param: "topology",
         requirement: "must be an index of one of the four topologies (0 to 3)",
     });
-    match topology.and_then(|t| fb::summarize(t, a, beta)) {
-        Ok(s) => {
-            let sense = SENSES.iter().position(|&x| x == s.sense).unwrap_or(0) as f64;
-            let packed = [
-                s.closed_loop_gain,
-                s.loop_gain,
-                s.feedback_amount,
-                s.feedback_amount_db,
-                s.sensitivity,
-                s.ideal_gain.unwrap_or(f64::NAN),
-                s.gain_error.unwrap_or(f64::NAN),
-                sense,
-            ];
-            js_sys::Float64Array::from(&packed[..]).into()
-        }
-        Err(e) => {
-            scalar(Err(e));
-            JsValue::UNDEFINED
-        }
-    }
+    scalar(topology.and_then(|t| fb::summarize(t, a, beta)).map(|s| {
+        let sense = SENSES.iter().position(|&x| x == s.sense).unwrap_or(0) as f64;
+        write_scratch(&[
+            s.closed_loop_gain,
+            s.loop_gain,
+            s.feedback_amount,
+            s.feedback_amount_db,
+            s.sensitivity,
+            s.ideal_gain.unwrap_or(f64::NAN),
+            s.gain_error.unwrap_or(f64::NAN),
+            sense,
+        ]);
+        0.0
+    }))
 }
 
 #[derive(Serialize)]

@@ -26,6 +26,7 @@ pub mod sheet;
 
 use crate::Error;
 use wasm_bindgen::prelude::*;
+use wasm_bindgen::JsCast;
 
 #[wasm_bindgen(typescript_custom_section)]
 const ERROR_TYPES: &str = r#"
@@ -106,6 +107,35 @@ pub(crate) fn scalar(r: crate::Result<f64>) -> f64 {
 #[wasm_bindgen(js_name = takeError)]
 pub fn take_error() -> JsValue {
     PENDING_ERROR.with(|slot| slot.borrow_mut().take()).unwrap_or(JsValue::UNDEFINED)
+}
+
+/// How many numbers the scratch area holds.
+pub(crate) const SCRATCH_LEN: usize = 16;
+
+std::thread_local! {
+    /// Numbers a call leaves for the entry module to read in place (see [`scratch_view`]).
+    static SCRATCH: core::cell::Cell<[f64; SCRATCH_LEN]> = const { core::cell::Cell::new([0.0; SCRATCH_LEN]) };
+}
+
+/// Put `values` at the start of the scratch area (at most [`SCRATCH_LEN`] of them).
+pub(crate) fn write_scratch(values: &[f64]) {
+    SCRATCH.with(|cell| {
+        let mut area = cell.get();
+        for (slot, v) in area.iter_mut().zip(values) {
+            *slot = *v;
+        }
+        cell.set(area);
+    });
+}
+
+/// Internal, for the entry module: a `Float64Array` over the scratch area in the
+/// module's memory, through which small fixed-size results are read without a new
+/// object per call. It goes stale (length 0) when the memory grows; ask again then.
+#[wasm_bindgen(js_name = scratchView)]
+pub fn scratch_view() -> js_sys::Float64Array {
+    let address = SCRATCH.with(|cell| cell.as_ptr() as usize as u32);
+    let memory: js_sys::WebAssembly::Memory = wasm_bindgen::memory().unchecked_into();
+    js_sys::Float64Array::new_with_byte_offset_and_length(&memory.buffer(), address, SCRATCH_LEN as u32)
 }
 
 /// Map a core result into a thrown JS error.

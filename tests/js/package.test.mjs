@@ -77,6 +77,15 @@ test('summarizeFeedback built in JS equals the glue\'s serde-built object, error
     }
   }
   assert.equal(compared, 72);
+  // The numbers are read in place from the wasm memory: after it grows (a long sweep
+  // here), the entry module must take a fresh view and still agree.
+  const memoryBytes = () => entry.scratchView().buffer.byteLength;
+  const before = memoryBytes();
+  entry.loopGainSweep({ gain: 1e5, polesHz: [10, 1e6] }, 0.01, 1, 1e9, 100_000);
+  assert.ok(memoryBytes() > before, 'the sweep grew the wasm memory');
+  for (const name of names) {
+    assert.deepStrictEqual(entry.summarizeFeedback(name, 1e5, 0.00999), glue.summarizeFeedback(name, 1e5, 0.00999), `${name} after growth`);
+  }
   const senses = new Set(stages.map(([a, beta]) => entry.summarizeFeedback('voltage', a, beta).sense));
   assert.deepStrictEqual([...senses].sort(), ['negative', 'neutral', 'positive']);
   for (const [name, a, beta] of [['series-parallel', 1, 1], ['shunt-shunt', -10, 0.1], ['voltage', Number.NaN, 0.1], ['current', 1, Infinity]]) {
