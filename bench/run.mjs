@@ -9,7 +9,7 @@ import { gzipSync } from 'node:zlib';
 import { cpus, totalmem, platform, release } from 'node:os';
 import { join, dirname } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
-import { timeIt, formatNs } from './harness.mjs';
+import { timeInterleaved, formatNs } from './harness.mjs';
 import { CASES } from './cases.mjs';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
@@ -81,9 +81,12 @@ say();
 say('| area | case | loopwright (wasm, Node) | peer | peer time | loopwright ÷ peer | target |');
 say('|---|---|---|---|---|---|---|');
 for (const c of CASES) {
-  const ours = timeIt(c.make(lw), { quick, ...(c.heavy ? { minSampleMs: 1, samples: quick ? 1 : 7 } : {}) });
+  const options = { quick, ...(c.heavy ? { minSampleMs: 1, samples: quick ? 1 : 7 } : {}) };
+  // loopwright and its plain-JS peer are sampled in turn, so that their ratio is not
+  // skewed by the machine's load changing between the two.
+  const [ours, plain] = timeInterleaved(c.plainJs ? [c.make(lw), c.plainJs()] : [c.make(lw)], options);
   const peers = [];
-  if (c.plainJs) peers.push(['plain JS', timeIt(c.plainJs(), { quick })]);
+  if (c.plainJs) peers.push(['plain JS', plain]);
   if (c.python) {
     const p = python[c.key];
     peers.push([c.pythonLabel ?? 'numpy/python', typeof p === 'number' ? p : NaN]);
