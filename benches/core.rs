@@ -4,9 +4,12 @@
 
 use divan::black_box;
 use loopwright::feedback::{closed_loop_gain, summarize, Topology};
-use loopwright::freq::{closed_loop_poles, loop_gain_sweep, stability_margins, FeedbackLoop, TransferModel};
+use loopwright::freq::{
+    closed_loop_poles, loop_gain_sweep, stability_margins, FeedbackLoop, TransferModel,
+};
 use loopwright::network::{
-    best_pairs, monte_carlo, Combine, Distribution, Metric, MonteCarloSpec, Network, PairSpec, Series, Stage, StageSpec,
+    best_pairs, monte_carlo, Combine, Distribution, Metric, MonteCarloSpec, Network, PairSpec,
+    Series, Stage, StageSpec,
 };
 
 fn main() {
@@ -32,7 +35,8 @@ fn feedback_closed_loop_gain() -> f64 {
 
 #[divan::bench]
 fn feedback_summary() -> f64 {
-    summarize(Topology::SeriesShunt, black_box(1e5), black_box(0.00999)).map_or(0.0, |s| s.closed_loop_gain)
+    summarize(Topology::SeriesShunt, black_box(1e5), black_box(0.00999))
+        .map_or(0.0, |s| s.closed_loop_gain)
 }
 
 #[divan::bench]
@@ -44,7 +48,12 @@ fn freq_sweep_10k(bencher: divan::Bencher) {
 #[divan::bench]
 fn freq_margins_and_poles(bencher: divan::Bencher) {
     let l = freq_loop();
-    bencher.bench(|| (stability_margins(black_box(&l)).is_ok(), closed_loop_poles(black_box(&l)).is_ok()));
+    bencher.bench(|| {
+        (
+            stability_margins(black_box(&l)).is_ok(),
+            closed_loop_poles(black_box(&l)).is_ok(),
+        )
+    });
 }
 
 #[divan::bench(sample_count = 10, sample_size = 1)]

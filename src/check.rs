@@ -20,7 +20,10 @@ pub fn finite(param: &'static str, x: f64) -> Result<f64> {
 /// A finite value that is not zero.
 pub fn nonzero(param: &'static str, x: f64) -> Result<f64> {
     if finite(param, x)? == 0.0 {
-        Err(Error::OutOfDomain { param, requirement: "must not be zero" })
+        Err(Error::OutOfDomain {
+            param,
+            requirement: "must not be zero",
+        })
     } else {
         Ok(x)
     }
@@ -31,7 +34,10 @@ pub fn positive(param: &'static str, x: f64) -> Result<f64> {
     if finite(param, x)? > 0.0 {
         Ok(x)
     } else {
-        Err(Error::OutOfDomain { param, requirement: "must be greater than zero" })
+        Err(Error::OutOfDomain {
+            param,
+            requirement: "must be greater than zero",
+        })
     }
 }
 
@@ -40,7 +46,10 @@ pub fn non_negative(param: &'static str, x: f64) -> Result<f64> {
     if finite(param, x)? >= 0.0 {
         Ok(x)
     } else {
-        Err(Error::OutOfDomain { param, requirement: "must be zero or greater" })
+        Err(Error::OutOfDomain {
+            param,
+            requirement: "must be zero or greater",
+        })
     }
 }
 
@@ -56,7 +65,10 @@ pub fn finite_complex(param: &'static str, z: Complex64) -> Result<Complex64> {
 /// A complex value with finite parts that is not zero.
 pub fn nonzero_complex(param: &'static str, z: Complex64) -> Result<Complex64> {
     if finite_complex(param, z)? == Complex64::new(0.0, 0.0) {
-        Err(Error::OutOfDomain { param, requirement: "must not be zero" })
+        Err(Error::OutOfDomain {
+            param,
+            requirement: "must not be zero",
+        })
     } else {
         Ok(z)
     }
@@ -66,7 +78,10 @@ pub fn nonzero_complex(param: &'static str, z: Complex64) -> Result<Complex64> {
 /// (a negative resistance is not a physical source or load impedance here).
 pub fn impedance(param: &'static str, z: Complex64) -> Result<Complex64> {
     if finite_complex(param, z)?.re < 0.0 {
-        Err(Error::OutOfDomain { param, requirement: "must have a resistive (real) part of zero or more" })
+        Err(Error::OutOfDomain {
+            param,
+            requirement: "must have a resistive (real) part of zero or more",
+        })
     } else {
         Ok(z)
     }
@@ -97,15 +112,34 @@ mod tests {
     #[test]
     fn rejects_each_bad_kind_with_the_parameter_name() {
         assert_eq!(finite("a", f64::NAN), Err(Error::NotFinite { param: "a" }));
-        assert_eq!(finite("a", f64::NEG_INFINITY), Err(Error::NotFinite { param: "a" }));
+        assert_eq!(
+            finite("a", f64::NEG_INFINITY),
+            Err(Error::NotFinite { param: "a" })
+        );
         assert_eq!(nonzero("a", 0.0).unwrap_err().param(), "a");
         assert_eq!(positive("r", -1.0).unwrap_err().code(), "out_of_domain");
         assert_eq!(positive("r", 0.0).unwrap_err().code(), "out_of_domain");
         assert_eq!(non_negative("r", -0.1).unwrap_err().code(), "out_of_domain");
         assert_eq!(non_negative("r", 0.0), Ok(0.0));
-        assert_eq!(impedance("zi", Complex64::new(-1.0, 5.0)).unwrap_err().param(), "zi");
-        assert_eq!(impedance("zi", Complex64::new(0.0, -5.0)), Ok(Complex64::new(0.0, -5.0)));
-        assert_eq!(result("af", f64::INFINITY), Err(Error::Overflow { param: "af" }));
-        assert_eq!(nonzero_complex("a", Complex64::new(0.0, 0.0)).unwrap_err().code(), "out_of_domain");
+        assert_eq!(
+            impedance("zi", Complex64::new(-1.0, 5.0))
+                .unwrap_err()
+                .param(),
+            "zi"
+        );
+        assert_eq!(
+            impedance("zi", Complex64::new(0.0, -5.0)),
+            Ok(Complex64::new(0.0, -5.0))
+        );
+        assert_eq!(
+            result("af", f64::INFINITY),
+            Err(Error::Overflow { param: "af" })
+        );
+        assert_eq!(
+            nonzero_complex("a", Complex64::new(0.0, 0.0))
+                .unwrap_err()
+                .code(),
+            "out_of_domain"
+        );
     }
 }

@@ -22,23 +22,38 @@ pub enum Error {
     NotFinite { param: &'static str },
     /// The value is finite but outside the range the formula is defined on;
     /// `requirement` states the range ("must be greater than zero").
-    OutOfDomain { param: &'static str, requirement: &'static str },
+    OutOfDomain {
+        param: &'static str,
+        requirement: &'static str,
+    },
     /// A design target that the given parts cannot reach; `reason` says why.
-    Unreachable { param: &'static str, reason: &'static str },
+    Unreachable {
+        param: &'static str,
+        reason: &'static str,
+    },
     /// The return difference D = 1 + Aβ is zero: the loop oscillates and the
     /// closed-loop quantity does not exist.
     Oscillation { param: &'static str },
     /// A name (topology, series, distribution…) that is not known; `expected`
     /// lists what is accepted.
-    UnknownName { param: &'static str, expected: &'static str },
+    UnknownName {
+        param: &'static str,
+        expected: &'static str,
+    },
     /// A count or size above the stated limit.
     TooLarge { param: &'static str, limit: u64 },
     /// The inputs are valid but the computed quantity overflows f64.
     Overflow { param: &'static str },
     /// An iteration did not converge; `reason` says which.
-    NoConvergence { param: &'static str, reason: &'static str },
+    NoConvergence {
+        param: &'static str,
+        reason: &'static str,
+    },
     /// A linear system or model is singular; `reason` says where.
-    Singular { param: &'static str, reason: &'static str },
+    Singular {
+        param: &'static str,
+        reason: &'static str,
+    },
 }
 
 impl Error {
@@ -64,14 +79,29 @@ impl Error {
     pub const fn with_param(self, name: &'static str) -> Error {
         match self {
             Error::NotFinite { .. } => Error::NotFinite { param: name },
-            Error::OutOfDomain { requirement, .. } => Error::OutOfDomain { param: name, requirement },
-            Error::Unreachable { reason, .. } => Error::Unreachable { param: name, reason },
+            Error::OutOfDomain { requirement, .. } => Error::OutOfDomain {
+                param: name,
+                requirement,
+            },
+            Error::Unreachable { reason, .. } => Error::Unreachable {
+                param: name,
+                reason,
+            },
             Error::Oscillation { .. } => Error::Oscillation { param: name },
-            Error::UnknownName { expected, .. } => Error::UnknownName { param: name, expected },
+            Error::UnknownName { expected, .. } => Error::UnknownName {
+                param: name,
+                expected,
+            },
             Error::TooLarge { limit, .. } => Error::TooLarge { param: name, limit },
             Error::Overflow { .. } => Error::Overflow { param: name },
-            Error::NoConvergence { reason, .. } => Error::NoConvergence { param: name, reason },
-            Error::Singular { reason, .. } => Error::Singular { param: name, reason },
+            Error::NoConvergence { reason, .. } => Error::NoConvergence {
+                param: name,
+                reason,
+            },
+            Error::Singular { reason, .. } => Error::Singular {
+                param: name,
+                reason,
+            },
         }
     }
 
@@ -120,7 +150,10 @@ mod tests {
 
     #[test]
     fn display_names_the_parameter_first() {
-        let e = Error::OutOfDomain { param: "beta", requirement: "must not be zero" };
+        let e = Error::OutOfDomain {
+            param: "beta",
+            requirement: "must not be zero",
+        };
         assert_eq!(e.to_string(), "beta: must not be zero");
         assert_eq!(e.code(), "out_of_domain");
         assert_eq!(e.param(), "beta");
@@ -130,14 +163,32 @@ mod tests {
     fn every_variant_has_code_and_param() {
         let all = [
             Error::NotFinite { param: "p" },
-            Error::OutOfDomain { param: "p", requirement: "r" },
-            Error::Unreachable { param: "p", reason: "r" },
+            Error::OutOfDomain {
+                param: "p",
+                requirement: "r",
+            },
+            Error::Unreachable {
+                param: "p",
+                reason: "r",
+            },
             Error::Oscillation { param: "p" },
-            Error::UnknownName { param: "p", expected: "x" },
-            Error::TooLarge { param: "p", limit: 3 },
+            Error::UnknownName {
+                param: "p",
+                expected: "x",
+            },
+            Error::TooLarge {
+                param: "p",
+                limit: 3,
+            },
             Error::Overflow { param: "p" },
-            Error::NoConvergence { param: "p", reason: "r" },
-            Error::Singular { param: "p", reason: "r" },
+            Error::NoConvergence {
+                param: "p",
+                reason: "r",
+            },
+            Error::Singular {
+                param: "p",
+                reason: "r",
+            },
         ];
         let mut codes: alloc::vec::Vec<&str> = all.iter().map(|e| e.code()).collect();
         codes.sort_unstable();

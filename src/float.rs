@@ -60,7 +60,20 @@ mod tests {
     /// negatives, signed zeros, subnormals and the extremes.
     #[test]
     fn same_bits_as_libm() {
-        let mut xs = alloc::vec![0.0, -0.0, 0.5, -0.5, 1.5, -2.5, 2.5, 1e-310, -1e-310, f64::MAX, f64::MIN_POSITIVE, 4503599627370495.5];
+        let mut xs = alloc::vec![
+            0.0,
+            -0.0,
+            0.5,
+            -0.5,
+            1.5,
+            -2.5,
+            2.5,
+            1e-310,
+            -1e-310,
+            f64::MAX,
+            f64::MIN_POSITIVE,
+            4503599627370495.5
+        ];
         let mut state = 0x9e37_79b9_7f4a_7c15_u64;
         for _ in 0..20_000 {
             state ^= state << 13;
@@ -73,7 +86,11 @@ mod tests {
             }
         }
         for &x in &xs {
-            assert_eq!(sqrt(x.abs()).to_bits(), libm::sqrt(x.abs()).to_bits(), "sqrt {x:e}");
+            assert_eq!(
+                sqrt(x.abs()).to_bits(),
+                libm::sqrt(x.abs()).to_bits(),
+                "sqrt {x:e}"
+            );
             assert_eq!(floor(x).to_bits(), libm::floor(x).to_bits(), "floor {x:e}");
             assert_eq!(ceil(x).to_bits(), libm::ceil(x).to_bits(), "ceil {x:e}");
             assert_eq!(trunc(x).to_bits(), libm::trunc(x).to_bits(), "trunc {x:e}");

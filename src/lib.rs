@@ -27,10 +27,10 @@
 extern crate alloc;
 
 pub mod check;
-mod float;
 pub mod circuit;
 pub mod error;
 pub mod feedback;
+mod float;
 pub mod freq;
 pub mod network;
 pub mod noise;

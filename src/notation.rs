@@ -26,7 +26,10 @@ pub const UNIT_WORDS: [&str; 11] = ["Ω", "ohm", "ohms", "F", "H", "Hz", "V", "A
 const SYNTAX: &str = "must be a number with an optional SI prefix or IEC 60062 letter code and unit, such as 4700, 4.7k, 4k7, 2R2, R47 or 100 nF";
 
 fn syntax_error() -> Error {
-    Error::OutOfDomain { param: "text", requirement: SYNTAX }
+    Error::OutOfDomain {
+        param: "text",
+        requirement: SYNTAX,
+    }
 }
 
 /// Power of ten of a prefix letter (`R` counts as 10⁰).
@@ -178,7 +181,10 @@ fn check_digits(digits: u32) -> Result<usize> {
     if (1..=15).contains(&digits) {
         Ok(digits as usize)
     } else {
-        Err(Error::OutOfDomain { param: "digits", requirement: "must be from 1 to 15 significant digits" })
+        Err(Error::OutOfDomain {
+            param: "digits",
+            requirement: "must be from 1 to 15 significant digits",
+        })
     }
 }
 
@@ -286,7 +292,8 @@ pub fn letter_code(value: f64, digits: u32) -> Result<String> {
     let (m, e3) = engineering(x, digits);
     if e3 < 0 {
         // Below 1 Ω: R then the digits of the value, 0.47 → R47.
-        let decimals = (digits as i32 - 1 - crate::float::floor(libm::log10(x)) as i32).max(1) as usize;
+        let decimals =
+            (digits as i32 - 1 - crate::float::floor(libm::log10(x)) as i32).max(1) as usize;
         let text = format!("{x:.decimals$}");
         let frac = text.strip_prefix("0.").unwrap_or(&text);
         if text.starts_with("1.") {
@@ -364,7 +371,21 @@ mod tests {
 
     #[test]
     fn malformed_text_is_rejected_naming_text() {
-        for bad in ["", "k", "4k7k", "4.7.1", "4,7", "1 x", "1  k", "e3", "4k7 furlongs", "--1", "1e", "R", "4 k 7"] {
+        for bad in [
+            "",
+            "k",
+            "4k7k",
+            "4.7.1",
+            "4,7",
+            "1 x",
+            "1  k",
+            "e3",
+            "4k7 furlongs",
+            "--1",
+            "1e",
+            "R",
+            "4 k 7",
+        ] {
             let e = parse_value(bad).unwrap_err();
             assert_eq!(e.param(), "text", "{bad:?}");
         }

@@ -39,7 +39,9 @@ pub(crate) fn sort_by<T>(v: &mut [T], mut cmp: impl FnMut(&T, &T) -> Ordering) {
     if n <= RUN {
         // Short lists (most of them) need no heap: one run, sorted by insertion.
         let mut small = [0usize; RUN];
-        let Some(perm) = small.get_mut(..n) else { return };
+        let Some(perm) = small.get_mut(..n) else {
+            return;
+        };
         for (k, p) in perm.iter_mut().enumerate() {
             *p = k;
         }
@@ -76,7 +78,9 @@ fn insertion(run: &mut [usize], cmp: &mut dyn FnMut(usize, usize) -> Ordering) {
     for k in 1..run.len() {
         let mut j = k;
         while j > 0 {
-            let (Some(&prev), Some(&cur)) = (run.get(j - 1), run.get(j)) else { break };
+            let (Some(&prev), Some(&cur)) = (run.get(j - 1), run.get(j)) else {
+                break;
+            };
             if cmp(prev, cur) != Ordering::Greater {
                 break;
             }
@@ -88,7 +92,12 @@ fn insertion(run: &mut [usize], cmp: &mut dyn FnMut(usize, usize) -> Ordering) {
 
 /// Merge the sorted `left` and `right` into `out` (of their combined length), taking
 /// from `left` on ties so that equal elements keep their order.
-fn merge(left: &[usize], right: &[usize], out: &mut [usize], cmp: &mut dyn FnMut(usize, usize) -> Ordering) {
+fn merge(
+    left: &[usize],
+    right: &[usize],
+    out: &mut [usize],
+    cmp: &mut dyn FnMut(usize, usize) -> Ordering,
+) {
     let in_order = match (left.last(), right.first()) {
         (Some(&l), Some(&r)) => cmp(l, r) != Ordering::Greater,
         _ => true,
@@ -166,12 +175,18 @@ mod tests {
     #[test]
     fn matches_the_standard_stable_sort_around_every_run_and_merge_boundary() {
         let by_key = |a: &(u64, usize), b: &(u64, usize)| a.0.cmp(&b.0);
-        for n in [0, 1, 2, 3, 15, 16, 17, 31, 32, 33, 47, 64, 65, 100, 255, 256, 257, 1000, 4099] {
+        for n in [
+            0, 1, 2, 3, 15, 16, 17, 31, 32, 33, 47, 64, 65, 100, 255, 256, 257, 1000, 4099,
+        ] {
             for (seed, keys) in [(1, 2), (7, 5), (42, 1000), (99, u64::MAX)] {
                 let v = tagged(seed, n, keys);
                 let mut ours = v.clone();
                 sort_by(&mut ours, by_key);
-                assert_eq!(ours, std_sorted(&v, by_key), "n = {n}, seed = {seed}, keys = {keys}");
+                assert_eq!(
+                    ours,
+                    std_sorted(&v, by_key),
+                    "n = {n}, seed = {seed}, keys = {keys}"
+                );
             }
         }
     }
@@ -193,7 +208,18 @@ mod tests {
 
     #[test]
     fn floats_by_total_order_including_signed_zeros_and_nan() {
-        let v = [3.5, -0.0, f64::NAN, 0.0, f64::NEG_INFINITY, -2.0, f64::INFINITY, 0.0, -0.0, 1e-300];
+        let v = [
+            3.5,
+            -0.0,
+            f64::NAN,
+            0.0,
+            f64::NEG_INFINITY,
+            -2.0,
+            f64::INFINITY,
+            0.0,
+            -0.0,
+            1e-300,
+        ];
         let mut ours = v.to_vec();
         sort_by(&mut ours, f64::total_cmp);
         let want = std_sorted(&v, f64::total_cmp);
@@ -204,10 +230,16 @@ mod tests {
     #[test]
     fn moves_elements_that_are_not_copy() {
         let v: Vec<alloc::string::String> =
-            ["pole", "zero", "gain", "loop", "beta", "gain", "band"].iter().map(|s| (*s).into()).collect();
+            ["pole", "zero", "gain", "loop", "beta", "gain", "band"]
+                .iter()
+                .map(|s| (*s).into())
+                .collect();
         let mut ours = v.clone();
         sort_by(&mut ours, |a, b| a.len().cmp(&b.len()).then(a.cmp(b)));
-        assert_eq!(ours, std_sorted(&v, |a, b| a.len().cmp(&b.len()).then(a.cmp(b))));
+        assert_eq!(
+            ours,
+            std_sorted(&v, |a, b| a.len().cmp(&b.len()).then(a.cmp(b)))
+        );
     }
 
     #[cfg(not(target_arch = "wasm32"))]

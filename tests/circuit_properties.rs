@@ -11,7 +11,13 @@ use proptest::test_runner::{Config, RngAlgorithm, TestRng, TestRunner};
 fn runner(cases: u32) -> TestRunner {
     // Explicit seed: the same cases on every run.
     let seed = [7u8; 32];
-    TestRunner::new_with_rng(Config { cases, ..Config::default() }, TestRng::from_seed(RngAlgorithm::ChaCha, &seed))
+    TestRunner::new_with_rng(
+        Config {
+            cases,
+            ..Config::default()
+        },
+        TestRng::from_seed(RngAlgorithm::ChaCha, &seed),
+    )
 }
 
 fn decade(lo: f64, hi: f64) -> impl Strategy<Value = f64> {
@@ -19,9 +25,21 @@ fn decade(lo: f64, hi: f64) -> impl Strategy<Value = f64> {
 }
 
 fn spec_strategy() -> impl Strategy<Value = StageSpec> {
-    (0usize..4, decade(1e2, 1e7), decade(1.0, 1e4), decade(1e1, 1e6), decade(1e2, 1e6), decade(1e2, 1e5))
+    (
+        0usize..4,
+        decade(1e2, 1e7),
+        decade(1.0, 1e4),
+        decade(1e1, 1e6),
+        decade(1e2, 1e6),
+        decade(1e2, 1e5),
+    )
         .prop_flat_map(|(ti, ri, ro, g, rf, rg)| {
-            (Just((ti, ri, ro, g, rf, rg)), decade(1.0, 1e4), decade(1e2, 1e5), decade(1e-13, 1e-10))
+            (
+                Just((ti, ri, ro, g, rf, rg)),
+                decade(1.0, 1e4),
+                decade(1e2, 1e5),
+                decade(1e-13, 1e-10),
+            )
         })
         .prop_map(|((ti, ri, ro, g, rf, rg), rs, rl, cap)| {
             let t = Topology::ALL[ti];
@@ -35,7 +53,13 @@ fn spec_strategy() -> impl Strategy<Value = StageSpec> {
             let rg = if t == Topology::ShuntShunt { 0.0 } else { rg };
             StageSpec {
                 topology: t,
-                amplifier: AmplifierModel { ri, ro, gain, ci: cap, co: cap },
+                amplifier: AmplifierModel {
+                    ri,
+                    ro,
+                    gain,
+                    ci: cap,
+                    co: cap,
+                },
                 network: FeedbackNetwork { rf, rg, cf: cap },
                 rs,
                 rl,
@@ -67,11 +91,21 @@ fn two_port_results_are_consistent_with_their_own_definitions() {
         .run(&(spec_strategy(), 0.0..1e7f64), |(spec, f)| {
             let r = analyze(&spec, f).map_err(|e| TestCaseError::fail(format!("{e}")))?;
             let d = r.feedback_amount;
-            let close = |a: num_complex::Complex64, b: num_complex::Complex64| (a - b).norm() <= 1e-9 * b.norm();
+            let close = |a: num_complex::Complex64, b: num_complex::Complex64| {
+                (a - b).norm() <= 1e-9 * b.norm()
+            };
             prop_assert!(close(r.af.two_port * d, r.a));
             let t = spec.topology;
-            let rif = if t.mixing() == Mixing::Series { r.ri * d } else { r.ri / d };
-            let rof = if t.sampling() == Sampling::Voltage { r.ro / d } else { r.ro * d };
+            let rif = if t.mixing() == Mixing::Series {
+                r.ri * d
+            } else {
+                r.ri / d
+            };
+            let rof = if t.sampling() == Sampling::Voltage {
+                r.ro / d
+            } else {
+                r.ro * d
+            };
             prop_assert!(close(r.rif.two_port, rif) && close(r.rof.two_port, rof));
             prop_assert!(r.af.exact.re.is_finite() && r.rout.exact.re.is_finite());
             Ok(())
@@ -86,19 +120,28 @@ fn passive_networks_are_reciprocal() {
     // Theory, ch. 16, from memory). Random ladders with cross links.
     // Values within six decades of the tree resistors, so the matrices stay well
     // conditioned and 1e-9 measures the solver, not the conditioning.
-    let strat = proptest::collection::vec((0usize..3, decade(1e-3, 1e3), 0usize..6, 0usize..6), 6..14);
+    let strat =
+        proptest::collection::vec((0usize..3, decade(1e-3, 1e3), 0usize..6, 0usize..6), 6..14);
     runner(40)
         .run(&(strat, 1.0..1e6f64), |(parts, f)| {
             let mut c = Circuit::new();
             for k in 1..=5 {
-                c.resistor(&format!("T{k}"), &format!("n{k}"), &format!("n{}", k - 1).replace("n0", "0"), 1e3 * k as f64)
-                    .unwrap();
+                c.resistor(
+                    &format!("T{k}"),
+                    &format!("n{k}"),
+                    &format!("n{}", k - 1).replace("n0", "0"),
+                    1e3 * k as f64,
+                )
+                .unwrap();
             }
             for (i, (kind, v, a, b)) in parts.into_iter().enumerate() {
                 if a == b {
                     continue;
                 }
-                let (a, b) = (format!("n{a}").replace("n0", "0"), format!("n{b}").replace("n0", "0"));
+                let (a, b) = (
+                    format!("n{a}").replace("n0", "0"),
+                    format!("n{b}").replace("n0", "0"),
+                );
                 let name = format!("X{i}");
                 match kind {
                     0 => c.resistor(&name, &a, &b, v * 1e3).unwrap(),
@@ -115,7 +158,10 @@ fn passive_networks_are_reciprocal() {
             let s2 = solve(&back, f).map_err(|e| TestCaseError::fail(format!("{e}")))?;
             let z41 = s1.voltage("n4").unwrap();
             let z14 = s2.voltage("n1").unwrap();
-            prop_assert!((z41 - z14).norm() <= 1e-9 * z41.norm().max(z14.norm()).max(1e-300), "{z41} vs {z14}");
+            prop_assert!(
+                (z41 - z14).norm() <= 1e-9 * z41.norm().max(z14.norm()).max(1e-300),
+                "{z41} vs {z14}"
+            );
             // A driving-point impedance of a passive network has Re ≥ 0.
             let z = port_impedance(&c, "n3", "0", f).unwrap();
             prop_assert!(z.re >= -1e-9 * z.norm());
@@ -137,7 +183,10 @@ fn malformed_input_never_panics() {
         {"name":"E1","kind":"vcvs","nodes":["x","0"],"control":["out","0"],"value":-2},
         {"name":"H1","kind":"ccvs","nodes":["y","0"],"controlElement":"V1","value":"1k"},
         {"name":"R2","kind":"resistor","nodes":["y","x"],"value":10}]}"#;
-    let edits = (0..DOC.len(), proptest::sample::select(b"{}[]\":,0123456789.-eEkRnux ".to_vec()));
+    let edits = (
+        0..DOC.len(),
+        proptest::sample::select(b"{}[]\":,0123456789.-eEkRnux ".to_vec()),
+    );
     runner(300)
         .run(&proptest::collection::vec(edits, 1..4), |edits| {
             let mut bytes = DOC.as_bytes().to_vec();
@@ -148,7 +197,10 @@ fn malformed_input_never_panics() {
                 if let Ok(c) = read_circuit(text) {
                     for f in [0.0, 1e3] {
                         if let Ok(s) = solve(&c, f) {
-                            prop_assert!(s.node_voltages.iter().all(|v| v.re.is_finite() && v.im.is_finite()));
+                            prop_assert!(s
+                                .node_voltages
+                                .iter()
+                                .all(|v| v.re.is_finite() && v.im.is_finite()));
                         }
                     }
                 }

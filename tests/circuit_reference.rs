@@ -86,7 +86,10 @@ fn assert_rel_c(what: &str, case: usize, got: Complex64, want: [f64; 2], rel: f6
     if let Ok(mut m) = WORST.lock() {
         *m = m.max(err);
     }
-    assert!(err <= rel, "{what}, case {case}: loopwright {got}, reference {w} (relative error {err:e})");
+    assert!(
+        err <= rel,
+        "{what}, case {case}: loopwright {got}, reference {w} (relative error {err:e})"
+    );
 }
 
 fn sympy() -> SympyRef {
@@ -100,14 +103,27 @@ fn assert_rel(what: &str, case: usize, got: Complex64, want: f64, rel: f64) {
     if let Ok(mut w) = WORST.lock() {
         *w = w.max(err);
     }
-    assert!(err <= rel, "{what}, case {case}: loopwright {got}, reference {want:e} (relative error {err:e})");
+    assert!(
+        err <= rel,
+        "{what}, case {case}: loopwright {got}, reference {want:e} (relative error {err:e})"
+    );
 }
 
 fn noninverting(c: &SympyCase) -> StageSpec {
     StageSpec {
         topology: Topology::SeriesShunt,
-        amplifier: AmplifierModel { ri: c.ri, ro: c.ro, gain: c.a, ci: 0.0, co: 0.0 },
-        network: FeedbackNetwork { rf: c.r2, rg: c.r1, cf: 0.0 },
+        amplifier: AmplifierModel {
+            ri: c.ri,
+            ro: c.ro,
+            gain: c.a,
+            ci: 0.0,
+            co: 0.0,
+        },
+        network: FeedbackNetwork {
+            rf: c.r2,
+            rg: c.r1,
+            cf: 0.0,
+        },
         rs: c.rs,
         rl: c.rl,
     }
@@ -119,8 +135,18 @@ fn noninverting(c: &SympyCase) -> StageSpec {
 fn inverting(c: &SympyCase) -> StageSpec {
     StageSpec {
         topology: Topology::ShuntShunt,
-        amplifier: AmplifierModel { ri: c.ri, ro: c.ro, gain: -c.a * c.ri, ci: 0.0, co: 0.0 },
-        network: FeedbackNetwork { rf: c.r2, rg: 0.0, cf: 0.0 },
+        amplifier: AmplifierModel {
+            ri: c.ri,
+            ro: c.ro,
+            gain: -c.a * c.ri,
+            ci: 0.0,
+            co: 0.0,
+        },
+        network: FeedbackNetwork {
+            rf: c.r2,
+            rg: 0.0,
+            cf: 0.0,
+        },
         rs: c.rs + c.r1,
         rl: c.rl,
     }
@@ -139,10 +165,25 @@ fn noninverting_stage_matches_sympy() {
         assert_rel("two-port a", i, t.a, c.tp_a, SYMPY_TWO_PORT_REL);
         assert_rel("beta", i, t.beta, c.beta, SYMPY_TWO_PORT_REL);
         assert_rel("two-port af", i, t.af.two_port, c.tp_af, SYMPY_TWO_PORT_REL);
-        assert_rel("two-port rin", i, t.rin.two_port, c.tp_rin, SYMPY_TWO_PORT_REL);
-        assert_rel("two-port rout", i, t.rout.two_port, c.tp_rout, SYMPY_TWO_PORT_REL);
+        assert_rel(
+            "two-port rin",
+            i,
+            t.rin.two_port,
+            c.tp_rin,
+            SYMPY_TWO_PORT_REL,
+        );
+        assert_rel(
+            "two-port rout",
+            i,
+            t.rout.two_port,
+            c.tp_rout,
+            SYMPY_TWO_PORT_REL,
+        );
     }
-    println!("worst relative difference against sympy so far: {:e}", WORST.lock().map(|w| *w).unwrap_or(0.0));
+    println!(
+        "worst relative difference against sympy so far: {:e}",
+        WORST.lock().map(|w| *w).unwrap_or(0.0)
+    );
 }
 
 #[test]
@@ -158,9 +199,27 @@ fn inverting_stage_matches_sympy_as_template_and_as_netlist() {
         assert_rel("exact rout", i, t.rout.exact, c.rout, SYMPY_EXACT_REL);
         assert_rel("two-port a", i, t.a, c.tp_a, SYMPY_TWO_PORT_REL);
         assert_rel("beta", i, t.beta, c.beta, SYMPY_TWO_PORT_REL);
-        assert_rel("two-port af", i, t.af.two_port / rsum, c.tp_af, SYMPY_TWO_PORT_REL);
-        assert_rel("two-port rin", i, t.rin.two_port + c.r1, c.tp_rin, SYMPY_TWO_PORT_REL);
-        assert_rel("two-port rout", i, t.rout.two_port, c.tp_rout, SYMPY_TWO_PORT_REL);
+        assert_rel(
+            "two-port af",
+            i,
+            t.af.two_port / rsum,
+            c.tp_af,
+            SYMPY_TWO_PORT_REL,
+        );
+        assert_rel(
+            "two-port rin",
+            i,
+            t.rin.two_port + c.r1,
+            c.tp_rin,
+            SYMPY_TWO_PORT_REL,
+        );
+        assert_rel(
+            "two-port rout",
+            i,
+            t.rout.two_port,
+            c.tp_rout,
+            SYMPY_TWO_PORT_REL,
+        );
         // The same stage drawn literally: op-amp as a VCVS with + grounded.
         let mut n = Circuit::new();
         n.voltage_source("Vs", "s", "0", 1.0).unwrap();
@@ -171,9 +230,18 @@ fn inverting_stage_matches_sympy_as_template_and_as_netlist() {
         n.resistor("Ro", "x", "out", c.ro).unwrap();
         n.resistor("R2", "out", "minus", c.r2).unwrap();
         n.resistor("RL", "out", "0", c.rl).unwrap();
-        assert_rel("netlist af", i, voltage_transfer(&n, "Vs", "out", "0", 0.0).unwrap(), c.af, SYMPY_EXACT_REL);
+        assert_rel(
+            "netlist af",
+            i,
+            voltage_transfer(&n, "Vs", "out", "0", 0.0).unwrap(),
+            c.af,
+            SYMPY_EXACT_REL,
+        );
     }
-    println!("worst relative difference against sympy so far: {:e}", WORST.lock().map(|w| *w).unwrap_or(0.0));
+    println!(
+        "worst relative difference against sympy so far: {:e}",
+        WORST.lock().map(|w| *w).unwrap_or(0.0)
+    );
 }
 
 /// The current-output templates, mapped one to one (see circuit_sympy.py):
@@ -182,8 +250,18 @@ fn inverting_stage_matches_sympy_as_template_and_as_netlist() {
 fn current_output(t: Topology, c: &SympyCase) -> StageSpec {
     StageSpec {
         topology: t,
-        amplifier: AmplifierModel { ri: c.ri, ro: c.ro, gain: c.a, ci: 0.0, co: 0.0 },
-        network: FeedbackNetwork { rf: c.r2, rg: c.r1, cf: 0.0 },
+        amplifier: AmplifierModel {
+            ri: c.ri,
+            ro: c.ro,
+            gain: c.a,
+            ci: 0.0,
+            co: 0.0,
+        },
+        network: FeedbackNetwork {
+            rf: c.r2,
+            rg: c.r1,
+            cf: 0.0,
+        },
         rs: c.rs,
         rl: c.rl,
     }
@@ -192,7 +270,10 @@ fn current_output(t: Topology, c: &SympyCase) -> StageSpec {
 #[test]
 fn current_output_stages_match_sympy() {
     let r = sympy();
-    for (key, t) in [("series_series", Topology::SeriesSeries), ("shunt_series", Topology::ShuntSeries)] {
+    for (key, t) in [
+        ("series_series", Topology::SeriesSeries),
+        ("shunt_series", Topology::ShuntSeries),
+    ] {
         let cases = &r.stages[key].cases;
         assert!(cases.len() >= 40, "{key}");
         for (i, c) in cases.iter().enumerate() {
@@ -200,15 +281,42 @@ fn current_output_stages_match_sympy() {
             let what = |q: &str| format!("{key} {q}");
             assert_rel(&what("exact af"), i, a.af.exact, c.af, SYMPY_EXACT_REL);
             assert_rel(&what("exact rin"), i, a.rin.exact, c.rin, SYMPY_EXACT_REL);
-            assert_rel(&what("exact rout"), i, a.rout.exact, c.rout, SYMPY_EXACT_REL);
+            assert_rel(
+                &what("exact rout"),
+                i,
+                a.rout.exact,
+                c.rout,
+                SYMPY_EXACT_REL,
+            );
             assert_rel(&what("two-port a"), i, a.a, c.tp_a, SYMPY_TWO_PORT_REL);
             assert_rel(&what("beta"), i, a.beta, c.beta, SYMPY_TWO_PORT_REL);
-            assert_rel(&what("two-port af"), i, a.af.two_port, c.tp_af, SYMPY_TWO_PORT_REL);
-            assert_rel(&what("two-port rin"), i, a.rin.two_port, c.tp_rin, SYMPY_TWO_PORT_REL);
-            assert_rel(&what("two-port rout"), i, a.rout.two_port, c.tp_rout, SYMPY_TWO_PORT_REL);
+            assert_rel(
+                &what("two-port af"),
+                i,
+                a.af.two_port,
+                c.tp_af,
+                SYMPY_TWO_PORT_REL,
+            );
+            assert_rel(
+                &what("two-port rin"),
+                i,
+                a.rin.two_port,
+                c.tp_rin,
+                SYMPY_TWO_PORT_REL,
+            );
+            assert_rel(
+                &what("two-port rout"),
+                i,
+                a.rout.two_port,
+                c.tp_rout,
+                SYMPY_TWO_PORT_REL,
+            );
         }
     }
-    println!("worst relative difference against sympy so far: {:e}", WORST.lock().map(|w| *w).unwrap_or(0.0));
+    println!(
+        "worst relative difference against sympy so far: {:e}",
+        WORST.lock().map(|w| *w).unwrap_or(0.0)
+    );
 }
 
 #[test]
@@ -219,8 +327,18 @@ fn noninverting_stage_with_feedback_capacitor_matches_sympy_at_frequency() {
     for (i, c) in r.noninverting_ac.iter().enumerate() {
         let spec = StageSpec {
             topology: Topology::SeriesShunt,
-            amplifier: AmplifierModel { ri: c.ri, ro: c.ro, gain: c.a, ci: 0.0, co: 0.0 },
-            network: FeedbackNetwork { rf: c.r2, rg: c.r1, cf: c.cf },
+            amplifier: AmplifierModel {
+                ri: c.ri,
+                ro: c.ro,
+                gain: c.a,
+                ci: 0.0,
+                co: 0.0,
+            },
+            network: FeedbackNetwork {
+                rf: c.r2,
+                rg: c.r1,
+                cf: c.cf,
+            },
             rs: c.rs,
             rl: c.rl,
         };
@@ -230,10 +348,25 @@ fn noninverting_stage_with_feedback_capacitor_matches_sympy_at_frequency() {
         assert_rel_c("exact rout", i, t.rout.exact, c.rout, SYMPY_EXACT_REL);
         assert_rel_c("beta", i, t.beta, c.beta, SYMPY_TWO_PORT_REL);
         assert_rel_c("two-port af", i, t.af.two_port, c.tp_af, SYMPY_TWO_PORT_REL);
-        assert_rel_c("two-port rin", i, t.rin.two_port, c.tp_rin, SYMPY_TWO_PORT_REL);
-        assert_rel_c("two-port rout", i, t.rout.two_port, c.tp_rout, SYMPY_TWO_PORT_REL);
+        assert_rel_c(
+            "two-port rin",
+            i,
+            t.rin.two_port,
+            c.tp_rin,
+            SYMPY_TWO_PORT_REL,
+        );
+        assert_rel_c(
+            "two-port rout",
+            i,
+            t.rout.two_port,
+            c.tp_rout,
+            SYMPY_TWO_PORT_REL,
+        );
     }
-    println!("worst relative difference against sympy so far: {:e}", WORST.lock().map(|w| *w).unwrap_or(0.0));
+    println!(
+        "worst relative difference against sympy so far: {:e}",
+        WORST.lock().map(|w| *w).unwrap_or(0.0)
+    );
 }
 
 #[test]
@@ -249,11 +382,25 @@ fn two_port_worked_example_series_shunt() {
     let t = analyze(&noninverting(c), 0.0).unwrap();
     assert!((t.a.re - 6002.0).abs() < 0.5, "A {}", t.a);
     assert!((t.beta.re - 1e-3).abs() < 1e-6, "β {}", t.beta);
-    assert!((t.af.two_port.re - 857.9).abs() < 0.05, "Af {}", t.af.two_port);
-    assert!((t.rin.two_port.re - 767e3).abs() < 1e3, "Rin {}", t.rin.two_port);
-    assert!((t.rout.two_port.re - 100.0).abs() < 0.1, "Rout {}", t.rout.two_port);
+    assert!(
+        (t.af.two_port.re - 857.9).abs() < 0.05,
+        "Af {}",
+        t.af.two_port
+    );
+    assert!(
+        (t.rin.two_port.re - 767e3).abs() < 1e3,
+        "Rin {}",
+        t.rin.two_port
+    );
+    assert!(
+        (t.rout.two_port.re - 100.0).abs() < 0.1,
+        "Rout {}",
+        t.rout.two_port
+    );
     // And the exact solution says how good the method is here: better than 1e-6.
-    assert!(t.af.relative_error < 1e-6 && t.rin.relative_error < 1e-6 && t.rout.relative_error < 1e-5);
+    assert!(
+        t.af.relative_error < 1e-6 && t.rin.relative_error < 1e-6 && t.rout.relative_error < 1e-5
+    );
     // The ideal 1/β = 1001 is 17 % off: loading and the small loop gain (T ≈ 6) matter.
     assert!((t.ideal_af.re - 1001.0).abs() < 1e-9 && (t.ideal_af_error - 0.1668).abs() < 1e-3);
 }
@@ -270,9 +417,21 @@ fn two_port_worked_example_shunt_shunt() {
     let rsum = c.rs + c.r1;
     let t = analyze(&inverting(c), 0.0).unwrap();
     assert_rel("β = −1/R2", 0, t.beta, -1e-5, 1e-15);
-    assert_rel("two-port vo/vs", 0, t.af.two_port / rsum, c.tp_af, SYMPY_TWO_PORT_REL);
+    assert_rel(
+        "two-port vo/vs",
+        0,
+        t.af.two_port / rsum,
+        c.tp_af,
+        SYMPY_TWO_PORT_REL,
+    );
     assert_rel("exact vo/vs", 0, t.af.exact / rsum, c.af, SYMPY_EXACT_REL);
-    assert_rel("two-port rout", 0, t.rout.two_port, c.tp_rout, SYMPY_TWO_PORT_REL);
+    assert_rel(
+        "two-port rout",
+        0,
+        t.rout.two_port,
+        c.tp_rout,
+        SYMPY_TWO_PORT_REL,
+    );
     // Ideal −R2/R1 with the source resistance: −R2/(Rs + R1) = −90.9 V/V.
     assert_rel("ideal vo/vs", 0, t.ideal_af / rsum, -c.r2 / rsum, 1e-15);
 }
@@ -293,7 +452,8 @@ struct NumpyRef {
 
 #[test]
 fn random_circuits_match_numpy_linalg_solve() {
-    let r: NumpyRef = serde_json::from_str(include_str!("reference/data/circuit_numpy.json")).unwrap();
+    let r: NumpyRef =
+        serde_json::from_str(include_str!("reference/data/circuit_numpy.json")).unwrap();
     assert!(r.cases.len() >= 30);
     assert!(r.tolerance >= NUMPY_REL);
     let mut worst = 0.0f64;
@@ -304,15 +464,26 @@ fn random_circuits_match_numpy_linalg_solve() {
             let scale = refs.values().map(|v| v[0].hypot(v[1])).fold(0.0, f64::max);
             for (name, v) in refs {
                 let want = Complex64::new(v[0], v[1]);
-                let got = if group == "voltage" { s.voltage(name) } else { s.current(name) }.unwrap();
+                let got = if group == "voltage" {
+                    s.voltage(name)
+                } else {
+                    s.current(name)
+                }
+                .unwrap();
                 let err = (got - want).norm() / want.norm().max(1e-3 * scale);
                 worst = worst.max(err);
-                assert!(err <= NUMPY_REL, "case {i} {group} {name}: loopwright {got}, numpy {want} ({err:e})");
+                assert!(
+                    err <= NUMPY_REL,
+                    "case {i} {group} {name}: loopwright {got}, numpy {want} ({err:e})"
+                );
             }
         }
     }
     // Say what was reached, for the record (cargo test -- --nocapture).
-    println!("worst relative difference against numpy over {} circuits: {worst:e}", r.cases.len());
+    println!(
+        "worst relative difference against numpy over {} circuits: {worst:e}",
+        r.cases.len()
+    );
 }
 
 #[test]
@@ -326,8 +497,18 @@ fn template_circuits_round_trip_through_json() {
         };
         let spec = StageSpec {
             topology: t,
-            amplifier: AmplifierModel { ri: 1e4, ro: 100.0, gain, ci: 1e-12, co: 2e-12 },
-            network: FeedbackNetwork { rf: 1e4, rg, cf: 1e-12 },
+            amplifier: AmplifierModel {
+                ri: 1e4,
+                ro: 100.0,
+                gain,
+                ci: 1e-12,
+                co: 2e-12,
+            },
+            network: FeedbackNetwork {
+                rf: 1e4,
+                rg,
+                cf: 1e-12,
+            },
             rs: 50.0,
             rl: 1e3,
         };

@@ -12,14 +12,18 @@ const REL: f64 = 1e-12;
 
 fn runner() -> TestRunner {
     TestRunner::new_with_rng(
-        Config { cases: 512, ..Config::default() },
+        Config {
+            cases: 512,
+            ..Config::default()
+        },
         TestRng::from_seed(RngAlgorithm::ChaCha, &[7u8; 32]),
     )
 }
 
 /// Open-loop gains from 1 to 10⁸ in magnitude, either sign.
 fn gain() -> impl Strategy<Value = f64> {
-    (0.0f64..8.0, prop::bool::ANY).prop_map(|(e, neg)| if neg { -(10f64.powf(e)) } else { 10f64.powf(e) })
+    (0.0f64..8.0, prop::bool::ANY)
+        .prop_map(|(e, neg)| if neg { -(10f64.powf(e)) } else { 10f64.powf(e) })
 }
 
 /// A positive loop gain T from 10⁻³ to 10⁶ (negative feedback).
@@ -60,14 +64,20 @@ fn sensitivity_is_one_over_d() {
 fn closed_loop_gain_approaches_one_over_beta() {
     // |Af·β − 1| = 1/(1 + T) exactly, so it falls as T grows.
     runner()
-        .run(&(prop::num::f64::POSITIVE.prop_filter("useful β", |b| *b > 1e-4 && *b < 1e2), 2.0f64..9.0), |(beta, e)| {
-            let a = 10f64.powf(e) / beta;
-            let err = (closed_loop_gain(a, beta).unwrap() * beta - 1.0).abs();
-            prop_assert!(close(err, 1.0 / (1.0 + a * beta), 1e-6), "err {err}");
-            let err10 = (closed_loop_gain(10.0 * a, beta).unwrap() * beta - 1.0).abs();
-            prop_assert!(err10 < err);
-            Ok(())
-        })
+        .run(
+            &(
+                prop::num::f64::POSITIVE.prop_filter("useful β", |b| *b > 1e-4 && *b < 1e2),
+                2.0f64..9.0,
+            ),
+            |(beta, e)| {
+                let a = 10f64.powf(e) / beta;
+                let err = (closed_loop_gain(a, beta).unwrap() * beta - 1.0).abs();
+                prop_assert!(close(err, 1.0 / (1.0 + a * beta), 1e-6), "err {err}");
+                let err10 = (closed_loop_gain(10.0 * a, beta).unwrap() * beta - 1.0).abs();
+                prop_assert!(err10 < err);
+                Ok(())
+            },
+        )
         .unwrap();
 }
 
@@ -83,7 +93,11 @@ fn inverse_design_round_trips() {
             let eps = fraction.clamp(1e-6, 0.5);
             let a_min = min_open_loop_gain(beta.abs().max(1e-9), eps).unwrap();
             let b = beta.abs().max(1e-9);
-            prop_assert!(close(1.0 - closed_loop_gain(a_min, b).unwrap() * b, eps, 1e-9));
+            prop_assert!(close(
+                1.0 - closed_loop_gain(a_min, b).unwrap() * b,
+                eps,
+                1e-9
+            ));
             // Gain ceiling for D_req = 1/fraction is the target itself.
             let c = max_closed_loop_gain(a, 1.0 / fraction).unwrap();
             prop_assert!(close(c.closed_loop_gain, target, 1e-12));
@@ -103,14 +117,19 @@ fn impedance_identities_per_topology() {
             let beta = Complex64::new(beta, 0.0);
             let d = Complex64::new(1.0, 0.0) + a * beta;
             for t in Topology::ALL {
-                let Ok(r) = impedances_with_feedback(t, zi, zo, a, beta) else { continue };
+                let Ok(r) = impedances_with_feedback(t, zi, zo, a, beta) else {
+                    continue;
+                };
                 let lhs = r.input * r.output;
                 let rhs = match t {
                     Topology::SeriesShunt | Topology::ShuntSeries => zi * zo,
                     Topology::SeriesSeries => zi * zo * d * d,
                     Topology::ShuntShunt => zi * zo / (d * d),
                 };
-                prop_assert!((lhs - rhs).norm() <= 1e-9 * rhs.norm().max(1e-300), "{t}: {lhs} vs {rhs}");
+                prop_assert!(
+                    (lhs - rhs).norm() <= 1e-9 * rhs.norm().max(1e-300),
+                    "{t}: {lhs} vs {rhs}"
+                );
             }
             Ok(())
         })
@@ -133,30 +152,46 @@ fn nothing_returned_is_nan_or_infinite() {
         -1e3f64..1e3,
     ];
     runner()
-        .run(&(any.clone(), any.clone(), any.clone(), any), |(a, b, c, d)| {
-            let finite = |r: loopwright::Result<f64>| r.map_or(true, |x| x.is_finite());
-            prop_assert!(finite(closed_loop_gain(a, b)));
-            prop_assert!(finite(loop_gain(a, b)));
-            prop_assert!(finite(feedback_amount(a, b)));
-            prop_assert!(finite(feedback_amount_db(a, b)));
-            prop_assert!(finite(gain_sensitivity(a, b)));
-            prop_assert!(finite(beta_for_gain(a, b)));
-            prop_assert!(finite(min_open_loop_gain(a, b)));
-            if let Ok(g) = max_closed_loop_gain(a, b) {
-                prop_assert!(g.closed_loop_gain.is_finite() && g.beta.is_finite());
-            }
-            if let Ok(s) = gain_spread(a, b, c, d) {
-                for x in [s.at_min, s.at_typ, s.at_max, s.spread_percent, s.spread_ppm, s.low_percent, s.high_percent, s.sensitivity] {
-                    prop_assert!(x.is_finite());
+        .run(
+            &(any.clone(), any.clone(), any.clone(), any),
+            |(a, b, c, d)| {
+                let finite = |r: loopwright::Result<f64>| r.map_or(true, |x| x.is_finite());
+                prop_assert!(finite(closed_loop_gain(a, b)));
+                prop_assert!(finite(loop_gain(a, b)));
+                prop_assert!(finite(feedback_amount(a, b)));
+                prop_assert!(finite(feedback_amount_db(a, b)));
+                prop_assert!(finite(gain_sensitivity(a, b)));
+                prop_assert!(finite(beta_for_gain(a, b)));
+                prop_assert!(finite(min_open_loop_gain(a, b)));
+                if let Ok(g) = max_closed_loop_gain(a, b) {
+                    prop_assert!(g.closed_loop_gain.is_finite() && g.beta.is_finite());
                 }
-            }
-            if let Ok(r) = resistances_with_feedback(Topology::SeriesSeries, a.abs(), b.abs(), c, d) {
-                prop_assert!(r.0.is_finite() && r.1.is_finite());
-            }
-            if let Ok(s) = summarize(Topology::ShuntShunt, a, b) {
-                prop_assert!(s.closed_loop_gain.is_finite() && s.feedback_amount_db.is_finite());
-            }
-            Ok(())
-        })
+                if let Ok(s) = gain_spread(a, b, c, d) {
+                    for x in [
+                        s.at_min,
+                        s.at_typ,
+                        s.at_max,
+                        s.spread_percent,
+                        s.spread_ppm,
+                        s.low_percent,
+                        s.high_percent,
+                        s.sensitivity,
+                    ] {
+                        prop_assert!(x.is_finite());
+                    }
+                }
+                if let Ok(r) =
+                    resistances_with_feedback(Topology::SeriesSeries, a.abs(), b.abs(), c, d)
+                {
+                    prop_assert!(r.0.is_finite() && r.1.is_finite());
+                }
+                if let Ok(s) = summarize(Topology::ShuntShunt, a, b) {
+                    prop_assert!(
+                        s.closed_loop_gain.is_finite() && s.feedback_amount_db.is_finite()
+                    );
+                }
+                Ok(())
+            },
+        )
         .unwrap();
 }

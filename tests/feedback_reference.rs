@@ -42,17 +42,53 @@ fn inverse_design_matches_sympy_closed_forms() {
     let reference: Reference = serde_json::from_str(text).unwrap();
     assert!(reference.cases.len() >= 8);
     for (i, c) in reference.cases.iter().enumerate() {
-        assert_rel("beta_for_gain", i, beta_for_gain(c.a, c.target_gain).unwrap(), c.beta_for_gain, SYMPY_REL);
-        assert_rel("min_open_loop_gain", i, min_open_loop_gain(c.beta, c.gain_error).unwrap(), c.min_open_loop_gain, SYMPY_REL);
+        assert_rel(
+            "beta_for_gain",
+            i,
+            beta_for_gain(c.a, c.target_gain).unwrap(),
+            c.beta_for_gain,
+            SYMPY_REL,
+        );
+        assert_rel(
+            "min_open_loop_gain",
+            i,
+            min_open_loop_gain(c.beta, c.gain_error).unwrap(),
+            c.min_open_loop_gain,
+            SYMPY_REL,
+        );
         let ceiling = max_closed_loop_gain(c.a, c.feedback_amount).unwrap();
-        assert_rel("max_closed_loop_gain", i, ceiling.closed_loop_gain, c.max_closed_loop_gain, SYMPY_REL);
+        assert_rel(
+            "max_closed_loop_gain",
+            i,
+            ceiling.closed_loop_gain,
+            c.max_closed_loop_gain,
+            SYMPY_REL,
+        );
         if c.beta_for_feedback_amount == 0.0 {
             assert_eq!(ceiling.beta, 0.0, "beta_for_feedback_amount, case {i}");
         } else {
-            assert_rel("beta_for_feedback_amount", i, ceiling.beta, c.beta_for_feedback_amount, SYMPY_REL);
+            assert_rel(
+                "beta_for_feedback_amount",
+                i,
+                ceiling.beta,
+                c.beta_for_feedback_amount,
+                SYMPY_REL,
+            );
         }
-        assert_rel("closed_loop_gain", i, closed_loop_gain(c.a, c.beta).unwrap(), c.closed_loop_gain, SYMPY_REL);
-        assert_rel("sensitivity", i, gain_sensitivity(c.a, c.beta).unwrap(), c.sensitivity, SYMPY_REL);
+        assert_rel(
+            "closed_loop_gain",
+            i,
+            closed_loop_gain(c.a, c.beta).unwrap(),
+            c.closed_loop_gain,
+            SYMPY_REL,
+        );
+        assert_rel(
+            "sensitivity",
+            i,
+            gain_sensitivity(c.a, c.beta).unwrap(),
+            c.sensitivity,
+            SYMPY_REL,
+        );
     }
 }
 
@@ -73,7 +109,11 @@ fn series_shunt_noninverting_op_amp_example() {
     assert!((beta * vo - 0.00999).abs() < 1e-15, "vf");
     assert!(((vs - beta * vo) - 1e-5).abs() < 1e-15, "vi");
     let drop = 1.0 - closed_loop_gain(0.8e4, beta).unwrap() / af;
-    assert!((drop * 100.0 - 0.025).abs() < 0.0005, "drop {}", drop * 100.0);
+    assert!(
+        (drop * 100.0 - 0.025).abs() < 0.0005,
+        "drop {}",
+        drop * 100.0
+    );
     // The same drop from the sensitivity 1/D to first order: 20 % / 1000 = 0.02 %
     // (the textbook quotes the first-order figure alongside the exact one).
     assert!((gain_sensitivity(1e4, beta).unwrap() * 20.0 - 0.02).abs() < 1e-12);

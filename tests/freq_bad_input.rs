@@ -2,9 +2,9 @@
 //! typed error naming the parameter, never a panic, NaN or infinity.
 
 use loopwright::freq::{
-    closed_loop_bandwidth, closed_loop_sweep, dominant_pole_for_margin, log_frequencies, loop_gain_sweep,
-    max_beta_for_margin, stability_margins, step_response, step_waveform, two_pole_response, FeedbackLoop,
-    TransferModel, MAX_SWEEP_POINTS,
+    closed_loop_bandwidth, closed_loop_sweep, dominant_pole_for_margin, log_frequencies,
+    loop_gain_sweep, max_beta_for_margin, stability_margins, step_response, step_waveform,
+    two_pole_response, FeedbackLoop, TransferModel, MAX_SWEEP_POINTS,
 };
 
 fn amp() -> TransferModel {
@@ -24,11 +24,26 @@ fn pair(c: &str, p: &str) -> (String, String) {
 fn pole_and_zero_frequencies_must_be_positive_except_explicit_origin_poles() {
     let b = TransferModel::constant(0.1);
     for f in [0.0, -10.0] {
-        assert_eq!(err(amp().pole(f), b.clone()), pair("out_of_domain", "a.poles_hz"));
-        assert_eq!(err(amp().zero(f), b.clone()), pair("out_of_domain", "a.zeros_hz"));
-        assert_eq!(err(amp().rhp_zero(f), b.clone()), pair("out_of_domain", "a.rhp_zeros_hz"));
-        assert_eq!(err(amp().low_cut(f), b.clone()), pair("out_of_domain", "a.low_cuts_hz"));
-        assert_eq!(err(amp(), b.clone().pole(f)), pair("out_of_domain", "beta.poles_hz"));
+        assert_eq!(
+            err(amp().pole(f), b.clone()),
+            pair("out_of_domain", "a.poles_hz")
+        );
+        assert_eq!(
+            err(amp().zero(f), b.clone()),
+            pair("out_of_domain", "a.zeros_hz")
+        );
+        assert_eq!(
+            err(amp().rhp_zero(f), b.clone()),
+            pair("out_of_domain", "a.rhp_zeros_hz")
+        );
+        assert_eq!(
+            err(amp().low_cut(f), b.clone()),
+            pair("out_of_domain", "a.low_cuts_hz")
+        );
+        assert_eq!(
+            err(amp(), b.clone().pole(f)),
+            pair("out_of_domain", "beta.poles_hz")
+        );
     }
     // The explicit way to put a pole at the origin is accepted.
     assert!(FeedbackLoop::new(amp().integrator(), b).is_ok());
@@ -38,15 +53,27 @@ fn pole_and_zero_frequencies_must_be_positive_except_explicit_origin_poles() {
 fn q_must_be_positive() {
     let b = TransferModel::constant(0.1);
     for q in [0.0, -0.7] {
-        assert_eq!(err(amp().complex_pole(1e5, q), b.clone()), pair("out_of_domain", "a.complex_poles"));
-        assert_eq!(err(amp().complex_zero(1e5, q), b.clone()), pair("out_of_domain", "a.complex_zeros"));
+        assert_eq!(
+            err(amp().complex_pole(1e5, q), b.clone()),
+            pair("out_of_domain", "a.complex_poles")
+        );
+        assert_eq!(
+            err(amp().complex_zero(1e5, q), b.clone()),
+            pair("out_of_domain", "a.complex_zeros")
+        );
     }
 }
 
 #[test]
 fn improper_models_are_refused() {
     // Three zeros over two poles in A, or a loop A·β with more zeros than poles.
-    assert_eq!(err(amp().zero(1.0).zero(2.0).zero(3.0), TransferModel::constant(0.1)), pair("out_of_domain", "a.zeros_hz"));
+    assert_eq!(
+        err(
+            amp().zero(1.0).zero(2.0).zero(3.0),
+            TransferModel::constant(0.1)
+        ),
+        pair("out_of_domain", "a.zeros_hz")
+    );
     let b = TransferModel::constant(0.1).zero(1e3).zero(1e4).zero(1e5);
     assert_eq!(err(amp(), b), pair("out_of_domain", "beta.zeros_hz"));
 }
@@ -54,16 +81,47 @@ fn improper_models_are_refused() {
 #[test]
 fn non_finite_numbers_are_refused_by_name() {
     let b = TransferModel::constant(0.1);
-    assert_eq!(err(TransferModel::constant(f64::NAN), b.clone()), pair("not_finite", "a.gain"));
-    assert_eq!(err(amp().pole(f64::INFINITY), b.clone()), pair("not_finite", "a.poles_hz"));
-    assert_eq!(err(amp().delay(f64::NAN), b.clone()), pair("not_finite", "a.delay_s"));
-    assert_eq!(err(amp(), TransferModel::constant(f64::NEG_INFINITY)), pair("not_finite", "beta.gain"));
+    assert_eq!(
+        err(TransferModel::constant(f64::NAN), b.clone()),
+        pair("not_finite", "a.gain")
+    );
+    assert_eq!(
+        err(amp().pole(f64::INFINITY), b.clone()),
+        pair("not_finite", "a.poles_hz")
+    );
+    assert_eq!(
+        err(amp().delay(f64::NAN), b.clone()),
+        pair("not_finite", "a.delay_s")
+    );
+    assert_eq!(
+        err(amp(), TransferModel::constant(f64::NEG_INFINITY)),
+        pair("not_finite", "beta.gain")
+    );
     let l = FeedbackLoop::new(amp(), b).unwrap();
-    assert_eq!(step_response(&l, f64::NAN, 100).unwrap_err().param(), "settle_band");
-    assert_eq!(step_waveform(&l, f64::INFINITY, 100).unwrap_err().param(), "duration_s");
-    assert_eq!(two_pole_response(f64::NAN, 1.0, 1.0).unwrap_err().param(), "f1");
-    assert_eq!(dominant_pole_for_margin(&amp(), 0.1, f64::NAN).unwrap_err().param(), "target_pm_deg");
-    assert_eq!(max_beta_for_margin(&amp(), 45.0, f64::NAN).unwrap_err().param(), "beta_limit");
+    assert_eq!(
+        step_response(&l, f64::NAN, 100).unwrap_err().param(),
+        "settle_band"
+    );
+    assert_eq!(
+        step_waveform(&l, f64::INFINITY, 100).unwrap_err().param(),
+        "duration_s"
+    );
+    assert_eq!(
+        two_pole_response(f64::NAN, 1.0, 1.0).unwrap_err().param(),
+        "f1"
+    );
+    assert_eq!(
+        dominant_pole_for_margin(&amp(), 0.1, f64::NAN)
+            .unwrap_err()
+            .param(),
+        "target_pm_deg"
+    );
+    assert_eq!(
+        max_beta_for_margin(&amp(), 45.0, f64::NAN)
+            .unwrap_err()
+            .param(),
+        "beta_limit"
+    );
 }
 
 #[test]
@@ -76,7 +134,10 @@ fn sweep_limits_are_stated_and_enforced() {
     assert_eq!((e.code(), e.param()), ("out_of_domain", "stop_hz"));
     let e = loop_gain_sweep(&l, 1.0, 1e6, MAX_SWEEP_POINTS + 1).unwrap_err();
     assert_eq!((e.code(), e.param()), ("too_large", "points"));
-    assert_eq!(log_frequencies(0.0, 1.0, 10).unwrap_err().param(), "start_hz");
+    assert_eq!(
+        log_frequencies(0.0, 1.0, 10).unwrap_err().param(),
+        "start_hz"
+    );
     assert!(loop_gain_sweep(&l, 1.0, 1e6, MAX_SWEEP_POINTS).is_ok());
 }
 
@@ -87,7 +148,10 @@ fn open_loop_unstable_models_flag_their_margins_and_the_poles_decide() {
     let a = TransferModel::constant(-10.0).rhp_pole(1e3).pole(1e5);
     let l = FeedbackLoop::with_constant_beta(a, 1.0).unwrap();
     let m = stability_margins(&l).unwrap();
-    assert_eq!(m.validity, loopwright::freq::MarginValidity::OpenLoopUnstable);
+    assert_eq!(
+        m.validity,
+        loopwright::freq::MarginValidity::OpenLoopUnstable
+    );
     let p = loopwright::freq::closed_loop_poles(&l).unwrap();
     assert_eq!(p.verdict, loopwright::freq::Verdict::Stable);
     // A bandwidth still exists; the results never hold NaN.
@@ -106,7 +170,11 @@ fn the_largest_models_are_handled() {
     for i in 0..8 {
         a = a.complex_pole(1e5 * (1.0 + i as f64), 0.5 + i as f64);
     }
-    let b = TransferModel::constant(1e-3).pole(1e6).pole(2e6).pole(3e6).pole(4e6);
+    let b = TransferModel::constant(1e-3)
+        .pole(1e6)
+        .pole(2e6)
+        .pole(3e6)
+        .pole(4e6);
     let l = FeedbackLoop::with_pade_order(a, b, 10).unwrap();
     let p = loopwright::freq::closed_loop_poles(&l).unwrap();
     assert_eq!(p.poles.len(), 62);
@@ -136,7 +204,10 @@ fn step_response_of_a_large_stable_loop() {
     // so do the poles.
     let m = stability_margins(&l).unwrap();
     assert!(m.phase_margin_deg.unwrap() > 0.0 && m.gain_margin_db.unwrap() > 0.0);
-    assert_eq!(loopwright::freq::closed_loop_poles(&l).unwrap().verdict, loopwright::freq::Verdict::Stable);
+    assert_eq!(
+        loopwright::freq::closed_loop_poles(&l).unwrap().verdict,
+        loopwright::freq::Verdict::Stable
+    );
     let s = step_response(&l, 0.01, 500).unwrap();
     assert!(s.settling_time_s > s.rise_time_s && s.overshoot_percent.is_finite());
     // Final value A0/(1 + A0·β), the feedback equation.

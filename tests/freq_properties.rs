@@ -12,15 +12,21 @@
 
 use loopwright::freq::roots::roots_laguerre;
 use loopwright::freq::{
-    characteristic_polynomial, closed_loop_gain_at, closed_loop_poles, loop_gain_at, margins_with_density,
-    polynomial_roots, FeedbackLoop, TransferModel, Verdict,
+    characteristic_polynomial, closed_loop_gain_at, closed_loop_poles, loop_gain_at,
+    margins_with_density, polynomial_roots, FeedbackLoop, TransferModel, Verdict,
 };
 use num_complex::Complex64;
 use proptest::prelude::*;
 use proptest::test_runner::{Config, RngAlgorithm, TestRng, TestRunner};
 
 fn runner(cases: u32, seed: u8) -> TestRunner {
-    TestRunner::new_with_rng(Config { cases, ..Config::default() }, TestRng::from_seed(RngAlgorithm::ChaCha, &[seed; 32]))
+    TestRunner::new_with_rng(
+        Config {
+            cases,
+            ..Config::default()
+        },
+        TestRng::from_seed(RngAlgorithm::ChaCha, &[seed; 32]),
+    )
 }
 
 /// log10 of a frequency in Hz, 0…8.
@@ -77,7 +83,9 @@ fn routh_stable(c: &[f64]) -> Option<bool> {
             return None;
         }
         first.push(lead);
-        let next: Vec<f64> = (0..r0.len() - 1).map(|i| r0[i + 1] - r0[0] / lead * r1[i + 1]).collect();
+        let next: Vec<f64> = (0..r0.len() - 1)
+            .map(|i| r0[i + 1] - r0[0] / lead * r1[i + 1])
+            .collect();
         r0 = r1;
         r1 = next;
         if r0.is_empty() {
@@ -117,7 +125,14 @@ fn poles_reproduce_the_characteristic_polynomial() {
             }
             for k in 0..=n {
                 let err = (prod[k] - cp.coeffs[k]).norm();
-                prop_assert!(err <= 1e-9 * bound[k], "coefficient {}: {} vs {} (bound {})", k, prod[k], cp.coeffs[k], bound[k]);
+                prop_assert!(
+                    err <= 1e-9 * bound[k],
+                    "coefficient {}: {} vs {} (bound {})",
+                    k,
+                    prod[k],
+                    cp.coeffs[k],
+                    bound[k]
+                );
             }
             Ok(())
         })
@@ -134,7 +149,11 @@ fn stable_verdict_iff_routh_hurwitz_iff_all_poles_in_the_lhp() {
             let p = closed_loop_poles(&l).unwrap();
             let all_lhp = p.poles.iter().all(|q| q.re < 0.0);
             // Near-marginal loops are left to the dedicated tests.
-            let closest = p.poles.iter().map(|q| (q.re / q.re.hypot(q.im)).abs()).fold(f64::INFINITY, f64::min);
+            let closest = p
+                .poles
+                .iter()
+                .map(|q| (q.re / q.re.hypot(q.im)).abs())
+                .fold(f64::INFINITY, f64::min);
             if closest < 1e-6 {
                 return Ok(());
             }
@@ -174,13 +193,21 @@ fn margins_do_not_depend_on_the_grid_density() {
             prop_assert!(close(coarse.phase_margin_deg, fine.phase_margin_deg, 1e-9));
             prop_assert!(close(coarse.crossover_hz, fine.crossover_hz, 1e-11));
             prop_assert!(close(coarse.gain_margin_db, fine.gain_margin_db, 1e-9));
-            prop_assert!(close(coarse.phase_crossover_hz, fine.phase_crossover_hz, 1e-11));
+            prop_assert!(close(
+                coarse.phase_crossover_hz,
+                fine.phase_crossover_hz,
+                1e-11
+            ));
             compared.set(compared.get() + 1);
             Ok(())
         })
         .unwrap();
     // Merged crossings are rare: nearly every case is compared.
-    assert!(compared.get() >= 54, "only {} of 60 compared", compared.get());
+    assert!(
+        compared.get() >= 54,
+        "only {} of 60 compared",
+        compared.get()
+    );
 }
 
 #[test]
@@ -193,7 +220,12 @@ fn closed_loop_times_return_difference_is_the_open_loop_gain() {
             let af = closed_loop_gain_at(&l, f).unwrap();
             let a_f = t / b;
             let lhs = af * (Complex64::new(1.0, 0.0) + t);
-            prop_assert!((lhs - a_f).norm() <= 1e-10 * a_f.norm(), "{} vs {}", lhs, a_f);
+            prop_assert!(
+                (lhs - a_f).norm() <= 1e-10 * a_f.norm(),
+                "{} vs {}",
+                lhs,
+                a_f
+            );
             Ok(())
         })
         .unwrap();
@@ -208,7 +240,10 @@ fn aberth_and_laguerre_agree() {
             let b = roots_laguerre(&c).unwrap();
             prop_assert_eq!(a.len(), b.len());
             for z in &a {
-                let d = b.iter().map(|w| (w - z).norm()).fold(f64::INFINITY, f64::min);
+                let d = b
+                    .iter()
+                    .map(|w| (w - z).norm())
+                    .fold(f64::INFINITY, f64::min);
                 prop_assert!(d <= 1e-7 * (1.0 + z.norm()), "{} has no partner ({})", z, d);
             }
             Ok(())
@@ -224,44 +259,57 @@ fn any_loop() -> impl Strategy<Value = Option<FeedbackLoop>> {
         prop::collection::vec(-2.0..10.0f64, 0..5),
         prop::collection::vec(-2.0..10.0f64, 0..3),
         prop::collection::vec((-2.0..10.0f64, -1.0..2.0f64), 0..3),
-        (0u32..2, prop::collection::vec(-2.0..4.0f64, 0..2), prop::option::weighted(0.1, -2.0..10.0f64)),
-        (prop::option::weighted(0.2, -10.0..-5.0f64), prop::collection::vec(-2.0..10.0f64, 0..2), -4.0..0.0f64),
+        (
+            0u32..2,
+            prop::collection::vec(-2.0..4.0f64, 0..2),
+            prop::option::weighted(0.1, -2.0..10.0f64),
+        ),
+        (
+            prop::option::weighted(0.2, -10.0..-5.0f64),
+            prop::collection::vec(-2.0..10.0f64, 0..2),
+            -4.0..0.0f64,
+        ),
     )
-        .prop_map(|((g, neg), poles, zeros, pairs, (ints, cuts, rhp_pole), (delay, beta_poles, b))| {
-            let mut a = TransferModel::constant(if neg { -1.0 } else { 1.0 } * 10f64.powf(g));
-            for p in poles {
-                a = a.pole(10f64.powf(p));
-            }
-            for (f, q) in pairs {
-                a = a.complex_pole(10f64.powf(f), 10f64.powf(q));
-            }
-            for _ in 0..ints {
-                a = a.integrator();
-            }
-            for c in cuts {
-                a = a.low_cut(10f64.powf(c));
-            }
-            if let Some(p) = rhp_pole {
-                a = a.rhp_pole(10f64.powf(p));
-            }
-            if let Some(d) = delay {
-                a = a.delay(10f64.powf(d));
-            }
-            for z in zeros {
-                a = a.zero(10f64.powf(z));
-            }
-            let mut beta = TransferModel::constant(10f64.powf(b));
-            for p in beta_poles {
-                beta = beta.pole(10f64.powf(p)).zero(10f64.powf(p - 1.0));
-            }
-            // Improper combinations are refused by the checks (tested elsewhere).
-            FeedbackLoop::new(a, beta).ok()
-        })
+        .prop_map(
+            |((g, neg), poles, zeros, pairs, (ints, cuts, rhp_pole), (delay, beta_poles, b))| {
+                let mut a = TransferModel::constant(if neg { -1.0 } else { 1.0 } * 10f64.powf(g));
+                for p in poles {
+                    a = a.pole(10f64.powf(p));
+                }
+                for (f, q) in pairs {
+                    a = a.complex_pole(10f64.powf(f), 10f64.powf(q));
+                }
+                for _ in 0..ints {
+                    a = a.integrator();
+                }
+                for c in cuts {
+                    a = a.low_cut(10f64.powf(c));
+                }
+                if let Some(p) = rhp_pole {
+                    a = a.rhp_pole(10f64.powf(p));
+                }
+                if let Some(d) = delay {
+                    a = a.delay(10f64.powf(d));
+                }
+                for z in zeros {
+                    a = a.zero(10f64.powf(z));
+                }
+                let mut beta = TransferModel::constant(10f64.powf(b));
+                for p in beta_poles {
+                    beta = beta.pole(10f64.powf(p)).zero(10f64.powf(p - 1.0));
+                }
+                // Improper combinations are refused by the checks (tested elsewhere).
+                FeedbackLoop::new(a, beta).ok()
+            },
+        )
 }
 
 #[test]
 fn every_entry_point_returns_finite_values_or_a_typed_error() {
-    use loopwright::freq::{analyze_loop, closed_loop_sweep, dominant_pole_for_margin, loop_gain_sweep, max_beta_for_margin};
+    use loopwright::freq::{
+        analyze_loop, closed_loop_sweep, dominant_pole_for_margin, loop_gain_sweep,
+        max_beta_for_margin,
+    };
     let finite = |x: f64| x.is_finite();
     let seen = std::cell::Cell::new((0u32, 0u32, 0u32));
     runner(120, 6)
@@ -271,30 +319,59 @@ fn every_entry_point_returns_finite_values_or_a_typed_error() {
             seen.set((n + 1, unstable, steps));
             let s = loop_gain_sweep(&l, 1e-3, 1e10, 300);
             if let Ok(s) = &s {
-                prop_assert!(s.magnitude_db.iter().chain(&s.phase_deg).copied().all(finite));
+                prop_assert!(s
+                    .magnitude_db
+                    .iter()
+                    .chain(&s.phase_deg)
+                    .copied()
+                    .all(finite));
             }
             if let Ok(s) = closed_loop_sweep(&l, 1e-3, 1e10, 300) {
-                prop_assert!(s.magnitude_db.iter().chain(&s.phase_deg).copied().all(finite));
+                prop_assert!(s
+                    .magnitude_db
+                    .iter()
+                    .chain(&s.phase_deg)
+                    .copied()
+                    .all(finite));
             }
             match analyze_loop(&l, 0.02, 200) {
                 Ok(r) => {
                     let (n, unstable, steps) = seen.get();
-                    seen.set((n, unstable + u32::from(r.poles.verdict == Verdict::Unstable), steps + u32::from(r.step.is_some())));
+                    seen.set((
+                        n,
+                        unstable + u32::from(r.poles.verdict == Verdict::Unstable),
+                        steps + u32::from(r.step.is_some()),
+                    ));
                     let m = &r.margins;
-                    prop_assert!(m.gain_crossings.iter().chain(&m.phase_crossings).all(|c| c.margin.is_finite() && c.freq_hz > 0.0));
-                    prop_assert!(r.poles.poles.iter().all(|p| p.re.is_finite() && p.im.is_finite() && p.zeta.is_finite()));
+                    prop_assert!(m
+                        .gain_crossings
+                        .iter()
+                        .chain(&m.phase_crossings)
+                        .all(|c| c.margin.is_finite() && c.freq_hz > 0.0));
+                    prop_assert!(r
+                        .poles
+                        .poles
+                        .iter()
+                        .all(|p| p.re.is_finite() && p.im.is_finite() && p.zeta.is_finite()));
                     if let Some(b) = r.bandwidth {
                         prop_assert!(b.midband_gain.is_finite() && b.peaking_db.is_finite());
                     }
                     if let Some(st) = r.step {
-                        prop_assert!(st.rise_time_s.is_finite() && st.settling_time_s.is_finite() && st.overshoot_percent.is_finite());
+                        prop_assert!(
+                            st.rise_time_s.is_finite()
+                                && st.settling_time_s.is_finite()
+                                && st.overshoot_percent.is_finite()
+                        );
                         prop_assert!(st.waveform.output.iter().copied().all(finite));
                     }
                 }
                 Err(e) => prop_assert!(!e.param().is_empty()),
             }
             let a = l.amplifier().clone();
-            for r in [dominant_pole_for_margin(&a, 0.1, 45.0), max_beta_for_margin(&a, 45.0, 1.0)] {
+            for r in [
+                dominant_pole_for_margin(&a, 0.1, 45.0),
+                max_beta_for_margin(&a, 45.0, 1.0),
+            ] {
                 match r {
                     Ok(c) => prop_assert!(c.value.is_finite() && c.closed_loop_gain.is_finite()),
                     Err(e) => prop_assert!(!e.param().is_empty()),
@@ -306,7 +383,10 @@ fn every_entry_point_returns_finite_values_or_a_typed_error() {
     // The generator reaches accepted, unstable and settling loops alike.
     let (n, unstable, steps) = seen.get();
     eprintln!("{n} loops accepted, {unstable} unstable, {steps} with step metrics");
-    assert!(n >= 60 && unstable >= 10 && steps >= 10, "{n} {unstable} {steps}");
+    assert!(
+        n >= 60 && unstable >= 10 && steps >= 10,
+        "{n} {unstable} {steps}"
+    );
 }
 
 #[test]
@@ -326,21 +406,42 @@ fn step_waveform_matches_the_residue_sum_for_simple_poles() {
             }
             // Close poles make the residues ill-conditioned; leave those to the
             // repeated-pole tests.
-            let close = roots.iter().enumerate().any(|(i, p)| roots.iter().skip(i + 1).any(|q| (p - q).norm() < 1e-2 * p.norm()));
+            let close = roots.iter().enumerate().any(|(i, p)| {
+                roots
+                    .iter()
+                    .skip(i + 1)
+                    .any(|q| (p - q).norm() < 1e-2 * p.norm())
+            });
             if close {
                 return Ok(());
             }
-            let eval = |c: &[f64], z: Complex64| c.iter().rev().fold(Complex64::new(0.0, 0.0), |acc, &x| acc * z + x);
-            let deriv: Vec<f64> = t.denominator.iter().enumerate().skip(1).map(|(k, x)| x * k as f64).collect();
+            let eval = |c: &[f64], z: Complex64| {
+                c.iter()
+                    .rev()
+                    .fold(Complex64::new(0.0, 0.0), |acc, &x| acc * z + x)
+            };
+            let deriv: Vec<f64> = t
+                .denominator
+                .iter()
+                .enumerate()
+                .skip(1)
+                .map(|(k, x)| x * k as f64)
+                .collect();
             let dc = t.numerator[0] / t.denominator[0];
             let slowest = roots.iter().map(|p| -p.re).fold(f64::INFINITY, f64::min);
             let duration = 3.0 / slowest / t.omega_n;
             let w = step_waveform(&l, duration, 7).unwrap();
             for (&ts, &y) in w.time_s.iter().zip(&w.output) {
                 let tau = ts * t.omega_n;
-                let sum: Complex64 = roots.iter().map(|&p| eval(&t.numerator, p) * (p * tau).exp() / (p * eval(&deriv, p))).sum();
+                let sum: Complex64 = roots
+                    .iter()
+                    .map(|&p| eval(&t.numerator, p) * (p * tau).exp() / (p * eval(&deriv, p)))
+                    .sum();
                 let want = dc + sum.re;
-                prop_assert!((y - want).abs() <= 1e-7 * dc.abs(), "t = {ts}: {y} vs {want}");
+                prop_assert!(
+                    (y - want).abs() <= 1e-7 * dc.abs(),
+                    "t = {ts}: {y} vs {want}"
+                );
             }
             checked.set(checked.get() + 1);
             Ok(())

@@ -8,8 +8,8 @@
 #![cfg(not(target_arch = "wasm32"))] // proptest and serde_json are native-only dev-dependencies
 
 use loopwright::freq::{
-    closed_loop_bandwidth, closed_loop_poles, stability_margins, step_response, ComplexPair, FeedbackLoop,
-    TransferModel, Verdict,
+    closed_loop_bandwidth, closed_loop_poles, stability_margins, step_response, ComplexPair,
+    FeedbackLoop, TransferModel, Verdict,
 };
 use serde_json::Value;
 use std::collections::BTreeMap;
@@ -37,14 +37,21 @@ const STEP_TIME_REL: f64 = 1e-6;
 const FINAL_REL: f64 = 1e-9;
 
 fn list(v: &Value) -> Vec<f64> {
-    v.as_array().unwrap().iter().map(|x| x.as_f64().unwrap()).collect()
+    v.as_array()
+        .unwrap()
+        .iter()
+        .map(|x| x.as_f64().unwrap())
+        .collect()
 }
 
 fn pairs(v: &Value) -> Vec<ComplexPair> {
     v.as_array()
         .unwrap()
         .iter()
-        .map(|p| ComplexPair { freq_hz: p["freqHz"].as_f64().unwrap(), q: p["q"].as_f64().unwrap() })
+        .map(|p| ComplexPair {
+            freq_hz: p["freqHz"].as_f64().unwrap(),
+            q: p["q"].as_f64().unwrap(),
+        })
         .collect()
 }
 
@@ -84,8 +91,11 @@ fn opt(v: &Value) -> Option<f64> {
 
 #[test]
 fn freq_engine_matches_python_control_and_scipy() {
-    let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/reference/data/freq_loops.json"))
-        .expect("reference data; run tests/reference/freq_loops.py");
+    let text = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/reference/data/freq_loops.json"
+    ))
+    .expect("reference data; run tests/reference/freq_loops.py");
     let data: Value = serde_json::from_str(&text).unwrap();
     let pade = data["pade_order"].as_u64().unwrap() as u32;
     let cases = data["cases"].as_array().unwrap();
@@ -100,10 +110,16 @@ fn freq_engine_matches_python_control_and_scipy() {
         let e = &c["margins"];
         match (m.phase_margin_deg, opt(&e["phase_margin_deg"])) {
             (Some(got), Some(want)) => {
-                assert!((got - want).abs() <= PM_TOL_DEG, "{name}: PM {got} vs {want}");
+                assert!(
+                    (got - want).abs() <= PM_TOL_DEG,
+                    "{name}: PM {got} vs {want}"
+                );
                 worst.note("phase margin (deg, abs)", (got - want).abs(), name);
                 let (gf, wf) = (m.crossover_hz.unwrap(), e["crossover_hz"].as_f64().unwrap());
-                assert!(rel(gf, wf) <= CROSSING_REL, "{name}: crossover {gf} vs {wf}");
+                assert!(
+                    rel(gf, wf) <= CROSSING_REL,
+                    "{name}: crossover {gf} vs {wf}"
+                );
                 worst.note("crossover (rel)", rel(gf, wf), name);
             }
             (None, None) => {}
@@ -111,10 +127,19 @@ fn freq_engine_matches_python_control_and_scipy() {
         }
         match (m.gain_margin_db, opt(&e["gain_margin_db"])) {
             (Some(got), Some(want)) => {
-                assert!((got - want).abs() <= GM_TOL_DB, "{name}: GM {got} vs {want}");
+                assert!(
+                    (got - want).abs() <= GM_TOL_DB,
+                    "{name}: GM {got} vs {want}"
+                );
                 worst.note("gain margin (dB, abs)", (got - want).abs(), name);
-                let (gf, wf) = (m.phase_crossover_hz.unwrap(), e["phase_crossover_hz"].as_f64().unwrap());
-                assert!(rel(gf, wf) <= CROSSING_REL, "{name}: phase crossover {gf} vs {wf}");
+                let (gf, wf) = (
+                    m.phase_crossover_hz.unwrap(),
+                    e["phase_crossover_hz"].as_f64().unwrap(),
+                );
+                assert!(
+                    rel(gf, wf) <= CROSSING_REL,
+                    "{name}: phase crossover {gf} vs {wf}"
+                );
                 worst.note("phase crossover (rel)", rel(gf, wf), name);
             }
             (None, None) => {}
@@ -123,23 +148,45 @@ fn freq_engine_matches_python_control_and_scipy() {
 
         // Closed-loop poles: each reference pole has a loopwright pole within tolerance.
         let p = closed_loop_poles(&l).unwrap();
-        let want_poles: Vec<(f64, f64)> =
-            c["poles"].as_array().unwrap().iter().map(|z| (z[0].as_f64().unwrap(), z[1].as_f64().unwrap())).collect();
+        let want_poles: Vec<(f64, f64)> = c["poles"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|z| (z[0].as_f64().unwrap(), z[1].as_f64().unwrap()))
+            .collect();
         assert_eq!(p.poles.len(), want_poles.len(), "{name}: pole count");
         for &(re, im) in &want_poles {
             let mag = re.hypot(im);
-            let d = p.poles.iter().map(|q| (q.re - re).hypot(q.im - im)).fold(f64::INFINITY, f64::min);
-            assert!(d <= POLE_REL * mag, "{name}: no pole near {re} + {im}j (closest {d})");
+            let d = p
+                .poles
+                .iter()
+                .map(|q| (q.re - re).hypot(q.im - im))
+                .fold(f64::INFINITY, f64::min);
+            assert!(
+                d <= POLE_REL * mag,
+                "{name}: no pole near {re} + {im}j (closest {d})"
+            );
             worst.note("closed-loop pole (rel)", d / mag, name);
         }
         let stable = c["stable"].as_bool().unwrap();
-        assert_eq!(p.verdict == Verdict::Stable, stable, "{name}: verdict {:?}", p.verdict);
+        assert_eq!(
+            p.verdict == Verdict::Stable,
+            stable,
+            "{name}: verdict {:?}",
+            p.verdict
+        );
 
         // Bandwidth and peaking.
         let b = closed_loop_bandwidth(&l).unwrap();
         let e = &c["bandwidth"];
-        assert!(rel(b.midband_gain, e["midband_gain"].as_f64().unwrap()) <= 1e-12, "{name}: midband gain");
-        for (what, got, want) in [("high −3 dB", b.high_hz, opt(&e["high_hz"])), ("low −3 dB", b.low_hz, opt(&e["low_hz"]))] {
+        assert!(
+            rel(b.midband_gain, e["midband_gain"].as_f64().unwrap()) <= 1e-12,
+            "{name}: midband gain"
+        );
+        for (what, got, want) in [
+            ("high −3 dB", b.high_hz, opt(&e["high_hz"])),
+            ("low −3 dB", b.low_hz, opt(&e["low_hz"])),
+        ] {
             match (got, want) {
                 (Some(g), Some(w)) => {
                     assert!(rel(g, w) <= BANDWIDTH_REL, "{name}: {what} {g} vs {w}");
@@ -150,7 +197,11 @@ fn freq_engine_matches_python_control_and_scipy() {
             }
         }
         let want_pk = e["peaking_db"].as_f64().unwrap();
-        assert!((b.peaking_db - want_pk).abs() <= PEAKING_TOL_DB, "{name}: peaking {} vs {want_pk}", b.peaking_db);
+        assert!(
+            (b.peaking_db - want_pk).abs() <= PEAKING_TOL_DB,
+            "{name}: peaking {} vs {want_pk}",
+            b.peaking_db
+        );
         worst.note("peaking (dB, abs)", (b.peaking_db - want_pk).abs(), name);
         match (b.peak_hz, opt(&e["peak_hz"])) {
             (Some(g), Some(w)) => {
@@ -164,19 +215,45 @@ fn freq_engine_matches_python_control_and_scipy() {
         // Step response (stable loops that pass DC).
         let s = step_response(&l, 0.02, 1000);
         match &c["step"] {
-            Value::Null => assert!(s.is_err(), "{name}: a step response where the reference has none"),
+            Value::Null => assert!(
+                s.is_err(),
+                "{name}: a step response where the reference has none"
+            ),
             e => {
                 let s = s.unwrap_or_else(|err| panic!("{name}: step {err}"));
-                assert!(rel(s.final_value, e["final_value"].as_f64().unwrap()) <= FINAL_REL, "{name}: final value");
+                assert!(
+                    rel(s.final_value, e["final_value"].as_f64().unwrap()) <= FINAL_REL,
+                    "{name}: final value"
+                );
                 let want_os = e["overshoot_percent"].as_f64().unwrap();
-                assert!((s.overshoot_percent - want_os).abs() <= OVERSHOOT_TOL, "{name}: overshoot {} vs {want_os}", s.overshoot_percent);
-                worst.note("overshoot (% points)", (s.overshoot_percent - want_os).abs(), name);
+                assert!(
+                    (s.overshoot_percent - want_os).abs() <= OVERSHOOT_TOL,
+                    "{name}: overshoot {} vs {want_os}",
+                    s.overshoot_percent
+                );
+                worst.note(
+                    "overshoot (% points)",
+                    (s.overshoot_percent - want_os).abs(),
+                    name,
+                );
                 let want_rise = e["rise_time_s"].as_f64().unwrap();
-                assert!(rel(s.rise_time_s, want_rise) <= STEP_TIME_REL, "{name}: rise {} vs {want_rise}", s.rise_time_s);
+                assert!(
+                    rel(s.rise_time_s, want_rise) <= STEP_TIME_REL,
+                    "{name}: rise {} vs {want_rise}",
+                    s.rise_time_s
+                );
                 worst.note("rise time (rel)", rel(s.rise_time_s, want_rise), name);
                 let want_settle = e["settling_time_s"].as_f64().unwrap();
-                assert!(rel(s.settling_time_s, want_settle) <= STEP_TIME_REL, "{name}: settling {} vs {want_settle}", s.settling_time_s);
-                worst.note("settling time (rel)", rel(s.settling_time_s, want_settle), name);
+                assert!(
+                    rel(s.settling_time_s, want_settle) <= STEP_TIME_REL,
+                    "{name}: settling {} vs {want_settle}",
+                    s.settling_time_s
+                );
+                worst.note(
+                    "settling time (rel)",
+                    rel(s.settling_time_s, want_settle),
+                    name,
+                );
             }
         }
     }

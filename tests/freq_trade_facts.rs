@@ -7,8 +7,9 @@
 use core::f64::consts::PI;
 use loopwright::freq::closed_forms::{overshoot_from_zeta, peaking_from_q};
 use loopwright::freq::{
-    closed_loop_bandwidth, closed_loop_gain_at, closed_loop_poles, gain_bandwidth, single_pole_high_cutoff,
-    stability_margins, step_response, two_pole_response, FeedbackLoop, TransferModel, Verdict,
+    closed_loop_bandwidth, closed_loop_gain_at, closed_loop_poles, gain_bandwidth,
+    single_pole_high_cutoff, stability_margins, step_response, two_pole_response, FeedbackLoop,
+    TransferModel, Verdict,
 };
 
 fn two_pole(t0: f64, f1: f64, f2: f64) -> FeedbackLoop {
@@ -20,11 +21,21 @@ fn three_equal_poles_go_unstable_at_a_loop_gain_of_8() {
     // Common practice, no source: three equal real poles, DC loop gain 8 is the
     // edge of stability, oscillating at √3 times the pole frequency.
     let l = |t0: f64| {
-        FeedbackLoop::with_constant_beta(TransferModel::constant(t0).pole(2e4).pole(2e4).pole(2e4), 1.0).unwrap()
+        FeedbackLoop::with_constant_beta(
+            TransferModel::constant(t0).pole(2e4).pole(2e4).pole(2e4),
+            1.0,
+        )
+        .unwrap()
     };
     assert_eq!(closed_loop_poles(&l(7.9)).unwrap().verdict, Verdict::Stable);
-    assert_eq!(closed_loop_poles(&l(8.0)).unwrap().verdict, Verdict::Marginal);
-    assert_eq!(closed_loop_poles(&l(8.1)).unwrap().verdict, Verdict::Unstable);
+    assert_eq!(
+        closed_loop_poles(&l(8.0)).unwrap().verdict,
+        Verdict::Marginal
+    );
+    assert_eq!(
+        closed_loop_poles(&l(8.1)).unwrap().verdict,
+        Verdict::Unstable
+    );
     let m = stability_margins(&l(8.0)).unwrap();
     assert!(m.gain_margin_db.unwrap().abs() < 1e-9);
     assert!((m.phase_crossover_hz.unwrap() / (2e4 * 3f64.sqrt()) - 1.0).abs() < 1e-11);
@@ -45,7 +56,11 @@ fn second_order_overshoot_is_exp_of_minus_pi_zeta_over_sqrt() {
         let t0 = ((f1 + f2) / (2.0 * zeta)).powi(2) / (f1 * f2) - 1.0;
         let s = step_response(&two_pole(t0, f1, f2), 0.02, 1000).unwrap();
         let want = 100.0 * (-PI * zeta / (1.0 - zeta * zeta).sqrt()).exp();
-        assert!((s.overshoot_percent - want).abs() < 1e-7 * want.max(1.0), "ζ = {zeta}: {} vs {want}", s.overshoot_percent);
+        assert!(
+            (s.overshoot_percent - want).abs() < 1e-7 * want.max(1.0),
+            "ζ = {zeta}: {} vs {want}",
+            s.overshoot_percent
+        );
         assert!((overshoot_from_zeta(zeta) * 100.0 - want).abs() < 1e-12);
     }
 }
@@ -104,33 +119,60 @@ fn gain_times_bandwidth_is_constant_for_a_single_pole() {
     let (a0, fh) = (2e5, 8.0);
     let gbw = gain_bandwidth(a0, fh).unwrap();
     for beta in [1e-4, 1e-3, 0.01, 0.1, 1.0] {
-        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(a0).pole(fh), beta).unwrap();
+        let l =
+            FeedbackLoop::with_constant_beta(TransferModel::constant(a0).pole(fh), beta).unwrap();
         let b = closed_loop_bandwidth(&l).unwrap();
         let product = b.midband_gain * b.high_hz.unwrap();
         assert!((product / gbw - 1.0).abs() < 1e-10, "β = {beta}");
-        assert!((b.high_hz.unwrap() / single_pole_high_cutoff(fh, a0, beta).unwrap() - 1.0).abs() < 1e-10);
+        assert!(
+            (b.high_hz.unwrap() / single_pole_high_cutoff(fh, a0, beta).unwrap() - 1.0).abs()
+                < 1e-10
+        );
     }
 }
 
 #[test]
 fn two_pole_closed_forms_agree_with_the_general_path() {
     // closed_forms::two_pole_response against roots, bandwidth search and step.
-    for &(t0, f1, f2) in &[(10.0, 1e3, 1e5), (99.0, 1e2, 1e6), (999.0, 1e3, 1e6), (3.0, 5e3, 5e3), (5e4, 10.0, 1e7)] {
+    for &(t0, f1, f2) in &[
+        (10.0, 1e3, 1e5),
+        (99.0, 1e2, 1e6),
+        (999.0, 1e3, 1e6),
+        (3.0, 5e3, 5e3),
+        (5e4, 10.0, 1e7),
+    ] {
         let r = two_pole_response(f1, f2, t0).unwrap();
         let l = two_pole(t0, f1, f2);
         let p = closed_loop_poles(&l).unwrap();
         // f0 = √(w1·w2) and Q = √(w1·w2)/(w1 + w2) hold for a real pair too.
         let (w1, w2) = (p.poles[0].natural_hz, p.poles[1].natural_hz);
-        assert!(((w1 * w2).sqrt() / r.natural_hz - 1.0).abs() < 1e-12, "f0 at T0 = {t0}");
-        let q = if p.poles[0].im != 0.0 { p.poles[0].q.unwrap() } else { (w1 * w2).sqrt() / (w1 + w2) };
-        assert!((q / r.q - 1.0).abs() < 1e-10, "Q at T0 = {t0}: {q} vs {}", r.q);
+        assert!(
+            ((w1 * w2).sqrt() / r.natural_hz - 1.0).abs() < 1e-12,
+            "f0 at T0 = {t0}"
+        );
+        let q = if p.poles[0].im != 0.0 {
+            p.poles[0].q.unwrap()
+        } else {
+            (w1 * w2).sqrt() / (w1 + w2)
+        };
+        assert!(
+            (q / r.q - 1.0).abs() < 1e-10,
+            "Q at T0 = {t0}: {q} vs {}",
+            r.q
+        );
         let b = closed_loop_bandwidth(&l).unwrap();
-        assert!((b.peaking_db - r.peaking_db).abs() < 1e-9, "peaking at T0 = {t0}");
+        assert!(
+            (b.peaking_db - r.peaking_db).abs() < 1e-9,
+            "peaking at T0 = {t0}"
+        );
         if let (Some(a), Some(bq)) = (b.peak_hz, r.peak_hz) {
             assert!((a / bq - 1.0).abs() < 1e-6);
         }
         let s = step_response(&l, 0.02, 500).unwrap();
-        assert!((s.overshoot_percent - r.overshoot_percent).abs() < 1e-7 * r.overshoot_percent.max(1.0), "overshoot at T0 = {t0}");
+        assert!(
+            (s.overshoot_percent - r.overshoot_percent).abs() < 1e-7 * r.overshoot_percent.max(1.0),
+            "overshoot at T0 = {t0}"
+        );
     }
     // And the pure formulas against each other: peaking from Q at Q = 1.
     let (db, _) = peaking_from_q(1.0);

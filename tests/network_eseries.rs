@@ -35,9 +35,11 @@ struct Reference {
 }
 
 fn reference() -> Reference {
-    let text =
-        std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/reference/data/network_eseries.json"))
-            .expect("run tests/reference/network_eseries.py to write the reference data");
+    let text = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/reference/data/network_eseries.json"
+    ))
+    .expect("run tests/reference/network_eseries.py to write the reference data");
     serde_json::from_str(&text).expect("reference JSON")
 }
 
@@ -71,11 +73,19 @@ fn lookups_match_the_reference() {
                 (Rounding::Below, c.below),
             ] {
                 let v = got(mode);
-                assert!(close(v, want), "{s} x = {:e} {mode:?}: got {v:e}, eseries {want:e}", c.x);
+                assert!(
+                    close(v, want),
+                    "{s} x = {:e} {mode:?}: got {v:e}, eseries {want:e}",
+                    c.x
+                );
                 checked += 1;
             }
             let n = neighbours(s, c.x).unwrap();
-            assert!(close(n.nearest, c.nearest) && close(n.down, c.down) && close(n.up, c.up), "{s} x = {:e}", c.x);
+            assert!(
+                close(n.nearest, c.nearest) && close(n.down, c.down) && close(n.up, c.up),
+                "{s} x = {:e}",
+                c.x
+            );
         }
     }
     assert!(checked > 10_000, "only {checked} lookups checked");

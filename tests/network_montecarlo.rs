@@ -22,7 +22,8 @@ fn spec_from(input: &McInput) -> MonteCarloSpec {
             pole_hz: input.pole_hz,
         },
         resistors: Distribution::from_name(input.resistor_distribution, input.k, "k").unwrap(),
-        open_loop_gain: Distribution::from_name(input.gain_distribution, input.k_gain, "k_gain").unwrap(),
+        open_loop_gain: Distribution::from_name(input.gain_distribution, input.k_gain, "k_gain")
+            .unwrap(),
         metric: input.metric.parse().unwrap(),
         trials: input.trials as usize,
         seed: input.seed,
@@ -38,8 +39,15 @@ fn print_expected() {
     println!("pub const EXPECTED: [McExpected; {}] = [", INPUTS.len());
     for input in &INPUTS {
         let r = monte_carlo(&spec_from(input)).unwrap();
-        let p: Vec<String> = r.stats.percentiles.iter().map(|p| format!("0x{:016x}", p.value.to_bits())).collect();
-        let y = r.stats.yield_fraction.map_or("None".to_string(), |y| format!("Some(0x{:016x})", y.to_bits()));
+        let p: Vec<String> = r
+            .stats
+            .percentiles
+            .iter()
+            .map(|p| format!("0x{:016x}", p.value.to_bits()))
+            .collect();
+        let y = r.stats.yield_fraction.map_or("None".to_string(), |y| {
+            format!("Some(0x{:016x})", y.to_bits())
+        });
         println!(
             "    McExpected {{ mean: 0x{:016x}, sd: 0x{:016x}, percentiles: [{}], yield_fraction: {}, first_bin: {} }},",
             r.stats.mean.to_bits(),
@@ -58,13 +66,30 @@ fn native_results_equal_the_committed_bits() {
     // browser test asserts the same bits.
     for (i, (input, want)) in INPUTS.iter().zip(&EXPECTED).enumerate() {
         let r = monte_carlo(&spec_from(input)).unwrap();
-        assert_eq!(r.stats.mean.to_bits(), want.mean, "case {i} mean {}", r.stats.mean);
+        assert_eq!(
+            r.stats.mean.to_bits(),
+            want.mean,
+            "case {i} mean {}",
+            r.stats.mean
+        );
         assert_eq!(r.stats.sd.to_bits(), want.sd, "case {i} sd {}", r.stats.sd);
         for (j, p) in r.stats.percentiles.iter().enumerate() {
-            assert_eq!(p.value.to_bits(), want.percentiles[j], "case {i} p{}", p.percent);
+            assert_eq!(
+                p.value.to_bits(),
+                want.percentiles[j],
+                "case {i} p{}",
+                p.percent
+            );
         }
-        assert_eq!(r.stats.yield_fraction.map(f64::to_bits), want.yield_fraction, "case {i} yield");
-        assert_eq!(r.stats.histogram.counts[0], want.first_bin, "case {i} first bin");
+        assert_eq!(
+            r.stats.yield_fraction.map(f64::to_bits),
+            want.yield_fraction,
+            "case {i} yield"
+        );
+        assert_eq!(
+            r.stats.histogram.counts[0], want.first_bin,
+            "case {i} first bin"
+        );
     }
 }
 
@@ -97,7 +122,11 @@ fn gain_partials(kind: Stage, r1: f64, r2: f64, a: f64) -> [f64; 3] {
         }
         Stage::Inverting => {
             let n = r1 + r2 + a * r1;
-            [a * r2 * (1.0 + a) / (n * n), -a * (r1 + a * r1) / (n * n), -r2 * (r1 + r2) / (n * n)]
+            [
+                a * r2 * (1.0 + a) / (n * n),
+                -a * (r1 + a * r1) / (n * n),
+                -r2 * (r1 + r2) / (n * n),
+            ]
         }
     }
 }
@@ -121,7 +150,10 @@ fn mean_and_sd_match_first_order_propagation() {
     for kind in [Stage::NonInverting, Stage::Inverting] {
         for (resistors, gain) in [
             (Distribution::Uniform, Distribution::Uniform),
-            (Distribution::Normal { k: 3.0 }, Distribution::Normal { k: 3.0 }),
+            (
+                Distribution::Normal { k: 3.0 },
+                Distribution::Normal { k: 3.0 },
+            ),
             (Distribution::Normal { k: 2.0 }, Distribution::Uniform),
         ] {
             let s = base(kind);
@@ -159,7 +191,11 @@ fn mean_and_sd_match_first_order_propagation() {
                 r.stats.mean
             );
             let sd_bound = 5.0 / (2.0 * n as f64).sqrt();
-            assert!((r.stats.sd / sd1 - 1.0).abs() <= sd_bound, "{kind:?} {resistors:?}: sd {} vs {sd1}", r.stats.sd);
+            assert!(
+                (r.stats.sd / sd1 - 1.0).abs() <= sd_bound,
+                "{kind:?} {resistors:?}: sd {} vs {sd1}",
+                r.stats.sd
+            );
         }
     }
 }
@@ -192,17 +228,32 @@ fn uniform_percentiles_and_yield_match_exact_values() {
     for p in r.stats.percentiles {
         let f = p.percent / 100.0;
         let bound = 5.0 * (f * (1.0 - f) / n as f64).sqrt() * (hi - lo);
-        assert!((p.value - q(f)).abs() <= bound, "p{}: {} vs exact {}", p.percent, p.value, q(f));
+        assert!(
+            (p.value - q(f)).abs() <= bound,
+            "p{}: {} vs exact {}",
+            p.percent,
+            p.value,
+            q(f)
+        );
     }
     // Yield within the quartiles: exactly 1/2, binomial standard error √(1/(4n)).
     let y = r.stats.yield_fraction.unwrap();
-    assert!((y - 0.5).abs() <= 5.0 * (0.25 / n as f64).sqrt(), "yield {y}");
+    assert!(
+        (y - 0.5).abs() <= 5.0 * (0.25 / n as f64).sqrt(),
+        "yield {y}"
+    );
     // Histogram of a uniform: every one of 20 bins holds n/20 ± 5·√(n·p(1 − p)).
     for &c in &r.stats.histogram.counts {
         let expect = n as f64 / 20.0;
-        assert!((f64::from(c) - expect).abs() <= 5.0 * (expect * 0.95).sqrt(), "bin count {c}");
+        assert!(
+            (f64::from(c) - expect).abs() <= 5.0 * (expect * 0.95).sqrt(),
+            "bin count {c}"
+        );
     }
     // Mean and sd of a uniform: (lo + hi)/2 and (hi − lo)/√12.
     assert!((r.stats.mean - 0.5 * (lo + hi)).abs() <= 5.0 * (hi - lo) / (12.0 * n as f64).sqrt());
-    assert!((r.stats.sd / ((hi - lo) / 12f64.sqrt()) - 1.0).abs() <= 5.0 * (0.8 / (4.0 * n as f64)).sqrt());
+    assert!(
+        (r.stats.sd / ((hi - lo) / 12f64.sqrt()) - 1.0).abs()
+            <= 5.0 * (0.8 / (4.0 * n as f64)).sqrt()
+    );
 }

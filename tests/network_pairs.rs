@@ -2,7 +2,9 @@
 //! and the two-resistor leg search against every combination.
 #![cfg(not(target_arch = "wasm32"))]
 
-use loopwright::network::{best_pairs, series_values, single_resistor, Combine, Joint, Network, PairSpec, Series};
+use loopwright::network::{
+    best_pairs, series_values, single_resistor, Combine, Joint, Network, PairSpec, Series,
+};
 use proptest::prelude::*;
 
 /// Brute force: all (R1, R2) of the series within [lo, hi] with R1 + R2 in the
@@ -32,7 +34,13 @@ fn network_strategy() -> impl Strategy<Value = (Network, f64)> {
 }
 
 fn series_strategy() -> impl Strategy<Value = Series> {
-    prop::sample::select(vec![Series::E6, Series::E12, Series::E24, Series::E48, Series::E96])
+    prop::sample::select(vec![
+        Series::E6,
+        Series::E12,
+        Series::E24,
+        Series::E48,
+        Series::E96,
+    ])
 }
 
 proptest! {

@@ -34,11 +34,19 @@ fn gain_partials(s: &StageSpec) -> [f64; 3] {
             let beta = r1 / (r1 + r2);
             let d = 1.0 + a * beta;
             let daf_dbeta = -a * a / (d * d);
-            [daf_dbeta * r2 / ((r1 + r2) * (r1 + r2)), daf_dbeta * -r1 / ((r1 + r2) * (r1 + r2)), 1.0 / (d * d)]
+            [
+                daf_dbeta * r2 / ((r1 + r2) * (r1 + r2)),
+                daf_dbeta * -r1 / ((r1 + r2) * (r1 + r2)),
+                1.0 / (d * d),
+            ]
         }
         Stage::Inverting => {
             let n = r1 + r2 + a * r1;
-            [a * r2 * (1.0 + a) / (n * n), -a * (r1 + a * r1) / (n * n), -r2 * (r1 + r2) / (n * n)]
+            [
+                a * r2 * (1.0 + a) / (n * n),
+                -a * (r1 + a * r1) / (n * n),
+                -r2 * (r1 + r2) / (n * n),
+            ]
         }
     }
 }
@@ -51,15 +59,27 @@ fn small_tolerances_match_the_first_order_sum() {
         let s = stage(kind, 1e-5, 1e-5);
         let w = worst_case(&s).unwrap();
         let [d1, d2, da] = gain_partials(&s);
-        let first_order = d1.abs() * s.r1 * s.tol_r1 + d2.abs() * s.r2 * s.tol_r2 + da.abs() * (s.a_max - s.a_typ);
+        let first_order = d1.abs() * s.r1 * s.tol_r1
+            + d2.abs() * s.r2 * s.tol_r2
+            + da.abs() * (s.a_max - s.a_typ);
         let up = w.gain.max - w.gain.nominal;
         let down = w.gain.nominal - w.gain.min;
-        assert!((up / first_order - 1.0).abs() < 1e-4, "{kind:?}: up {up:e}, first order {first_order:e}");
-        assert!((down / first_order - 1.0).abs() < 1e-4, "{kind:?}: down {down:e}, first order {first_order:e}");
+        assert!(
+            (up / first_order - 1.0).abs() < 1e-4,
+            "{kind:?}: up {up:e}, first order {first_order:e}"
+        );
+        assert!(
+            (down / first_order - 1.0).abs() < 1e-4,
+            "{kind:?}: down {down:e}, first order {first_order:e}"
+        );
         // The corner is where each partial pushes the gain up.
         let side = |d: f64| if d > 0.0 { End::High } else { End::Low };
         assert_eq!(
-            (w.gain.max_corner.r1, w.gain.max_corner.r2, w.gain.max_corner.open_loop_gain),
+            (
+                w.gain.max_corner.r1,
+                w.gain.max_corner.r2,
+                w.gain.max_corner.open_loop_gain
+            ),
             (side(d1), side(d2), side(da))
         );
     }

@@ -5,7 +5,8 @@
 #![cfg(not(target_arch = "wasm32"))]
 
 use loopwright::noise::{
-    integrated_output_noise, noise_contributions, output_noise_density, AmplifierNoise, ClosedLoopResponse, Stage,
+    integrated_output_noise, noise_contributions, output_noise_density, AmplifierNoise,
+    ClosedLoopResponse, Stage,
 };
 use serde::Deserialize;
 use std::collections::BTreeMap;
@@ -69,21 +70,46 @@ fn rel(a: f64, b: f64) -> f64 {
 
 #[test]
 fn stage_noise_matches_scipy() {
-    let path = format!("{}/tests/reference/data/nonlinear_noise.json", env!("CARGO_MANIFEST_DIR"));
+    let path = format!(
+        "{}/tests/reference/data/nonlinear_noise.json",
+        env!("CARGO_MANIFEST_DIR")
+    );
     let data: File = serde_json::from_str(&std::fs::read_to_string(path).unwrap()).unwrap();
     assert_eq!(data.cases.len(), 21);
     let mut unstable_seen = 0;
     for c in &data.cases {
         let n = &c.name;
-        let stage = Stage::new(c.kind.parse().unwrap(), c.r_feedback, c.r_gain, c.r_plus, c.temperature_k).unwrap();
-        assert!(rel(stage.noise_gain(), c.noise_gain) < DENSITY_REL, "{n}: noise gain");
-        assert!(rel(stage.signal_gain(), c.signal_gain) < DENSITY_REL, "{n}: signal gain");
-        let amp = AmplifierNoise::new(c.voltage_density, c.voltage_corner_hz, c.current_density, c.current_corner_hz)
-            .unwrap();
+        let stage = Stage::new(
+            c.kind.parse().unwrap(),
+            c.r_feedback,
+            c.r_gain,
+            c.r_plus,
+            c.temperature_k,
+        )
+        .unwrap();
+        assert!(
+            rel(stage.noise_gain(), c.noise_gain) < DENSITY_REL,
+            "{n}: noise gain"
+        );
+        assert!(
+            rel(stage.signal_gain(), c.signal_gain) < DENSITY_REL,
+            "{n}: signal gain"
+        );
+        let amp = AmplifierNoise::new(
+            c.voltage_density,
+            c.voltage_corner_hz,
+            c.current_density,
+            c.current_corner_hz,
+        )
+        .unwrap();
         let response = ClosedLoopResponse::new(stage.noise_gain(), c.gbw_hz, &c.extra_poles_hz);
         if c.unstable {
             let e = response.unwrap_err();
-            assert_eq!((e.code(), e.param()), ("oscillation", "extra_poles_hz"), "{n}");
+            assert_eq!(
+                (e.code(), e.param()),
+                ("oscillation", "extra_poles_hz"),
+                "{n}"
+            );
             unstable_seen += 1;
             continue;
         }
@@ -100,10 +126,16 @@ fn stage_noise_matches_scipy() {
                 ("amplifier_current_minus", d.amplifier_current_minus),
             ] {
                 let want = p.contributions[key];
-                assert!(rel(got, want) < DENSITY_REL, "{n} at {f} Hz: {key} = {got}, scipy script {want}");
+                assert!(
+                    rel(got, want) < DENSITY_REL,
+                    "{n} at {f} Hz: {key} = {got}, scipy script {want}"
+                );
             }
             assert!(rel(d.total, p.total) < DENSITY_REL, "{n} at {f} Hz: total");
-            assert!(rel(d.input_referred, p.input_referred) < DENSITY_REL, "{n} at {f} Hz: input-referred");
+            assert!(
+                rel(d.input_referred, p.input_referred) < DENSITY_REL,
+                "{n} at {f} Hz: input-referred"
+            );
             let od = output_noise_density(&stage, &amp, &h, f).unwrap();
             assert!(
                 rel(od, p.output_density) < DENSITY_REL,
@@ -111,19 +143,34 @@ fn stage_noise_matches_scipy() {
                 p.output_density
             );
         }
-        let r = integrated_output_noise(&stage, &amp, &h, c.f_low, c.f_high.unwrap_or(f64::INFINITY))
-            .unwrap_or_else(|e| panic!("{n}: {e}"));
+        let r =
+            integrated_output_noise(&stage, &amp, &h, c.f_low, c.f_high.unwrap_or(f64::INFINITY))
+                .unwrap_or_else(|e| panic!("{n}: {e}"));
         let want = c.output_rms.unwrap();
-        assert!(rel(r.output_rms, want) < INTEGRAL_REL, "{n}: output rms {} vs scipy {want}", r.output_rms);
-        assert!(rel(r.input_referred_rms, c.input_referred_rms.unwrap()) < INTEGRAL_REL, "{n}: input-referred rms");
-        assert!(rel(r.noise_bandwidth_hz, c.noise_bandwidth_hz.unwrap()) < INTEGRAL_REL, "{n}: noise bandwidth");
+        assert!(
+            rel(r.output_rms, want) < INTEGRAL_REL,
+            "{n}: output rms {} vs scipy {want}",
+            r.output_rms
+        );
+        assert!(
+            rel(r.input_referred_rms, c.input_referred_rms.unwrap()) < INTEGRAL_REL,
+            "{n}: input-referred rms"
+        );
+        assert!(
+            rel(r.noise_bandwidth_hz, c.noise_bandwidth_hz.unwrap()) < INTEGRAL_REL,
+            "{n}: noise bandwidth"
+        );
         assert!(
             rel(r.bandwidth_hz, c.bandwidth_hz.unwrap()) < BANDWIDTH_REL,
             "{n}: -3 dB bandwidth {} vs {:?}",
             r.bandwidth_hz,
             c.bandwidth_hz
         );
-        assert!(r.relative_error < INTEGRAL_REL, "{n}: error estimate {}", r.relative_error);
+        assert!(
+            r.relative_error < INTEGRAL_REL,
+            "{n}: error estimate {}",
+            r.relative_error
+        );
     }
     assert_eq!(unstable_seen, 1);
 }
@@ -140,7 +187,16 @@ fn single_pole_white_noise_uses_the_pi_over_2_noise_bandwidth() {
     let h = ClosedLoopResponse::new(10.0, 1e6, &[]).unwrap();
     let r = integrated_output_noise(&stage, &amp, &h, 0.0, f64::INFINITY).unwrap();
     let resistors = 4.0 * 1.380649e-23 * 300.0 * (9e3 + 1e3 * 81.0);
-    let expected = ((100e-9f64).powi(2) + resistors).sqrt() * (std::f64::consts::FRAC_PI_2 * 1e5).sqrt();
-    assert!(rel(r.output_rms, expected) < 1e-9, "{} vs {expected}", r.output_rms);
-    assert!((r.output_rms * 1e6 - 42.49).abs() < 0.005, "{}", r.output_rms);
+    let expected =
+        ((100e-9f64).powi(2) + resistors).sqrt() * (std::f64::consts::FRAC_PI_2 * 1e5).sqrt();
+    assert!(
+        rel(r.output_rms, expected) < 1e-9,
+        "{} vs {expected}",
+        r.output_rms
+    );
+    assert!(
+        (r.output_rms * 1e6 - 42.49).abs() < 0.005,
+        "{}",
+        r.output_rms
+    );
 }

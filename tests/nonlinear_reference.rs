@@ -8,7 +8,8 @@
 #![cfg(not(target_arch = "wasm32"))]
 
 use loopwright::nonlinear::{
-    closed_loop_series, closed_loop_spectrum, feedback_distortion, AmplitudeAt, LoopSolver, PowerSeries,
+    closed_loop_series, closed_loop_spectrum, feedback_distortion, AmplitudeAt, LoopSolver,
+    PowerSeries,
 };
 use serde::Deserialize;
 
@@ -81,7 +82,8 @@ fn rel(a: f64, b: f64) -> f64 {
 
 fn load<T: for<'de> Deserialize<'de>>(file: &str) -> T {
     let path = format!("{}/tests/reference/data/{file}", env!("CARGO_MANIFEST_DIR"));
-    serde_json::from_str(&std::fs::read_to_string(&path).expect("reference data present")).expect("valid JSON")
+    serde_json::from_str(&std::fs::read_to_string(&path).expect("reference data present"))
+        .expect("valid JSON")
 }
 
 #[test]
@@ -92,13 +94,27 @@ fn closed_loop_series_matches_sympy_reversion() {
         let amp = PowerSeries::new(c.a1, c.a2, c.a3).unwrap();
         let b = closed_loop_series(&amp, c.beta).unwrap();
         for (what, got, want) in [("b1", b.a1, c.b1), ("b2", b.a2, c.b2), ("b3", b.a3, c.b3)] {
-            assert!(rel(got, want) < SERIES_REL, "{}: {what} = {got}, sympy {want}", c.name);
+            assert!(
+                rel(got, want) < SERIES_REL,
+                "{}: {what} = {got}, sympy {want}",
+                c.name
+            );
         }
         let f = feedback_distortion(&amp, c.beta, 1.0, AmplitudeAt::Output).unwrap();
         let r2 = f.hd2_ratio.unwrap();
         let r3 = f.hd3_ratio.unwrap();
-        assert!(rel(r2, c.hd2_ratio_output.abs()) < SERIES_REL, "{}: hd2 ratio {r2} vs {}", c.name, c.hd2_ratio_output);
-        assert!(rel(r3, c.hd3_ratio_output.abs()) < SERIES_REL, "{}: hd3 ratio {r3} vs {}", c.name, c.hd3_ratio_output);
+        assert!(
+            rel(r2, c.hd2_ratio_output.abs()) < SERIES_REL,
+            "{}: hd2 ratio {r2} vs {}",
+            c.name,
+            c.hd2_ratio_output
+        );
+        assert!(
+            rel(r3, c.hd3_ratio_output.abs()) < SERIES_REL,
+            "{}: hd3 ratio {r3} vs {}",
+            c.name,
+            c.hd3_ratio_output
+        );
     }
 }
 
@@ -109,7 +125,11 @@ fn numeric_spectrum_matches_scipy_and_numpy() {
     for c in &data.cases {
         let amp = PowerSeries::new(c.a1, c.a2, c.a3).unwrap();
         let solver = LoopSolver::new(&amp, c.beta).unwrap();
-        assert!(rel(solver.max_input_amplitude(), c.fold_amplitude) < FOLD_REL, "{}: fold", c.name);
+        assert!(
+            rel(solver.max_input_amplitude(), c.fold_amplitude) < FOLD_REL,
+            "{}: fold",
+            c.name
+        );
         let s = closed_loop_spectrum(&amp, c.beta, c.amplitude, c.samples).unwrap();
         let scale = c.harmonics[0];
         for (h, (got, want)) in s.harmonics.iter().zip(&c.harmonics).enumerate() {
@@ -120,9 +140,27 @@ fn numeric_spectrum_matches_scipy_and_numpy() {
                 h + 1
             );
         }
-        assert!((s.dc - c.dc).abs() <= HARMONIC_REL_TO_FUNDAMENTAL * scale, "{}: dc {} vs {}", c.name, s.dc, c.dc);
-        assert!(rel(s.hd2, c.hd2) < HD_REL, "{}: hd2 {} vs {}", c.name, s.hd2, c.hd2);
-        assert!(rel(s.hd3, c.hd3) < HD_REL, "{}: hd3 {} vs {}", c.name, s.hd3, c.hd3);
+        assert!(
+            (s.dc - c.dc).abs() <= HARMONIC_REL_TO_FUNDAMENTAL * scale,
+            "{}: dc {} vs {}",
+            c.name,
+            s.dc,
+            c.dc
+        );
+        assert!(
+            rel(s.hd2, c.hd2) < HD_REL,
+            "{}: hd2 {} vs {}",
+            c.name,
+            s.hd2,
+            c.hd2
+        );
+        assert!(
+            rel(s.hd3, c.hd3) < HD_REL,
+            "{}: hd3 {} vs {}",
+            c.name,
+            s.hd3,
+            c.hd3
+        );
     }
 }
 
@@ -132,7 +170,12 @@ fn amplitudes_past_the_fold_are_refused() {
     for c in &data.refused {
         let amp = PowerSeries::new(c.a1, c.a2, c.a3).unwrap();
         let e = closed_loop_spectrum(&amp, c.beta, c.amplitude, 64).unwrap_err();
-        assert_eq!((e.code(), e.param()), ("no_convergence", "amplitude"), "{}", c.name);
+        assert_eq!(
+            (e.code(), e.param()),
+            ("no_convergence", "amplitude"),
+            "{}",
+            c.name
+        );
     }
 }
 
@@ -149,6 +192,10 @@ fn near_the_fold_the_series_no_longer_holds() {
         let d_small = rel(series_hd3(small.amplitude), small.hd3);
         let d_large = rel(series_hd3(large.amplitude), large.hd3);
         assert!(d_small < 0.01, "{}: {d_small}", small.name);
-        assert!(d_large > 10.0 * d_small, "{}: {d_large} vs {d_small}", large.name);
+        assert!(
+            d_large > 10.0 * d_small,
+            "{}: {d_large} vs {d_small}",
+            large.name
+        );
     }
 }

@@ -13,7 +13,11 @@ const EXAMPLE_RTOL: f64 = 1e-13;
 /// integration or sampling, the relative tolerance it is held to (`rtol`, one
 /// number or one per item, with the reason in `why`).
 fn reference_cases() -> Vec<serde_json::Value> {
-    let text = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/tests/reference/data/sheet_catalog.json")).unwrap();
+    let text = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/reference/data/sheet_catalog.json"
+    ))
+    .unwrap();
     let data: serde_json::Value = serde_json::from_str(&text).unwrap();
     data["cases"].as_array().unwrap().clone()
 }
@@ -21,7 +25,9 @@ fn reference_cases() -> Vec<serde_json::Value> {
 /// The reference case's tolerance for item `i`, if it states one.
 fn case_rtol(cases: &[serde_json::Value], formula: &str, i: usize) -> Option<f64> {
     let case = cases.iter().find(|c| c["formula"] == formula)?;
-    case["rtol"].as_f64().or_else(|| case["rtol"].get(i).and_then(serde_json::Value::as_f64))
+    case["rtol"]
+        .as_f64()
+        .or_else(|| case["rtol"].get(i).and_then(serde_json::Value::as_f64))
 }
 
 /// The catalog's stated tolerance for item `i` of an example, or `default` (never
@@ -56,7 +62,9 @@ fn every_example_gives_its_stated_value() {
             Expected::Numbers(xs) => {
                 let mut cols = xs.len();
                 if xs.len() > 1 {
-                    let r = s.spill_range(origin).unwrap_or_else(|| panic!("{}: no spill", f.name));
+                    let r = s
+                        .spill_range(origin)
+                        .unwrap_or_else(|| panic!("{}: no spill", f.name));
                     assert_eq!(r.area(), xs.len() as u64, "{}", f.name);
                     // The spill descriptions name the columns: one per item of a
                     // one-row result, one per column of a result of several rows.
@@ -67,12 +75,17 @@ fn every_example_gives_its_stated_value() {
                     let rtol = stated_rtol(f, i, EXAMPLE_RTOL);
                     let c = item_cell(origin, i, cols);
                     let got = s.shown(c);
-                    let got = as_number(&got).unwrap_or_else(|| panic!("{} item {i}: {got:?}", f.name));
+                    let got =
+                        as_number(&got).unwrap_or_else(|| panic!("{} item {i}: {got:?}", f.name));
                     // Zero is stated for results that are exactly zero up to rounding
                     // of the other terms: compare it against the item scale instead.
                     let scale = xs.iter().fold(0.0f64, |m, x| m.max(x.abs()));
                     let tol = rtol * if *want == 0.0 { scale } else { want.abs() };
-                    assert!((got - want).abs() <= tol, "{} item {i}: got {got:e}, stated {want:e}", f.name);
+                    assert!(
+                        (got - want).abs() <= tol,
+                        "{} item {i}: got {got:e}, stated {want:e}",
+                        f.name
+                    );
                 }
             }
             Expected::Bool(b) => assert_eq!(s.shown(origin), Value::Bool(b), "{}", f.name),
@@ -93,30 +106,99 @@ fn catalog_json_lists_every_function_with_its_parts() {
         assert_eq!(entry["name"], f.name);
         assert_eq!(entry["params"].as_array().unwrap().len(), f.params.len());
         assert_eq!(entry["examples"][0]["formula"], f.example.formula);
-        assert!(entry["result"].as_str().unwrap().contains(f.result_unit), "{}", f.name);
+        assert!(
+            entry["result"].as_str().unwrap().contains(f.result_unit),
+            "{}",
+            f.name
+        );
         assert_eq!(entry["resultUnit"], f.result_unit);
-        assert_eq!(entry["examples"][0]["tolerance"].as_array().unwrap().len(), f.example.tolerance.len());
+        assert_eq!(
+            entry["examples"][0]["tolerance"].as_array().unwrap().len(),
+            f.example.tolerance.len()
+        );
     }
     let round = list.iter().find(|e| e["name"] == "ROUND").unwrap();
     assert_eq!(round["params"][1]["default"], 0.0);
     assert_eq!(round["params"][1]["optional"], true);
     let ceiling = list.iter().find(|e| e["name"] == "FB.CEILING").unwrap();
-    assert_eq!(ceiling["result"], "row of 2: closed-loop gain A/D; beta (D − 1)/A (as a; reciprocal of a's unit)");
+    assert_eq!(
+        ceiling["result"],
+        "row of 2: closed-loop gain A/D; beta (D − 1)/A (as a; reciprocal of a's unit)"
+    );
 }
 
 #[test]
 fn the_required_functions_are_present() {
     for name in [
-        "SUM", "MIN", "MAX", "AVERAGE", "ABS", "SQRT", "EXP", "LN", "LOG10", "PI", "IF", "AND", "OR", "NOT", "ROUND",
-        "DB.VOLTAGE", "DB.POWER", "DB.VOLTAGERATIO", "DB.POWERRATIO", "FB.GAIN", "FB.LOOPGAIN", "FB.AMOUNT",
-        "FB.AMOUNTDB", "FB.SENSITIVITY", "FB.BETA", "FB.MINGAIN", "FB.CEILING", "FB.SPREAD", "FB.ZIN", "FB.ZOUT",
-        "FB.PHASOR", "FB.SUMMARY", "FB.IMPEDANCES", "FB.SENSE", "FB.GAINUNIT", "FB.BETAUNIT",
+        "SUM",
+        "MIN",
+        "MAX",
+        "AVERAGE",
+        "ABS",
+        "SQRT",
+        "EXP",
+        "LN",
+        "LOG10",
+        "PI",
+        "IF",
+        "AND",
+        "OR",
+        "NOT",
+        "ROUND",
+        "DB.VOLTAGE",
+        "DB.POWER",
+        "DB.VOLTAGERATIO",
+        "DB.POWERRATIO",
+        "FB.GAIN",
+        "FB.LOOPGAIN",
+        "FB.AMOUNT",
+        "FB.AMOUNTDB",
+        "FB.SENSITIVITY",
+        "FB.BETA",
+        "FB.MINGAIN",
+        "FB.CEILING",
+        "FB.SPREAD",
+        "FB.ZIN",
+        "FB.ZOUT",
+        "FB.PHASOR",
+        "FB.SUMMARY",
+        "FB.IMPEDANCES",
+        "FB.SENSE",
+        "FB.GAINUNIT",
+        "FB.BETAUNIT",
         // The other catalog areas.
-        "LOOP.PM", "LOOP.GM", "LOOP.BANDWIDTH", "LOOP.PEAKING", "LOOP.STEP", "LOOP.POLES", "LOOP.EXTEND",
-        "LOOP.LOWCUT", "LOOP.GBW", "LOOP.TWOPOLE", "LOOP.DOMINANT", "LOOP.MAXBETA", "RES.NEAREST", "RES.UP",
-        "RES.DOWN", "RES.TOLERANCE", "RES.PAIR", "RES.WORSTCASE", "RES.MONTECARLO", "RES.YIELD", "CKT.GAIN",
-        "CKT.RIN", "CKT.ROUT", "CKT.IDEAL", "DIST.SERIES", "DIST.HD", "DIST.FPBW", "DIST.MAXAMP", "DIST.SLEWRATE",
-        "NOISE.THERMAL", "NOISE.STAGE", "NOISE.TOTAL",
+        "LOOP.PM",
+        "LOOP.GM",
+        "LOOP.BANDWIDTH",
+        "LOOP.PEAKING",
+        "LOOP.STEP",
+        "LOOP.POLES",
+        "LOOP.EXTEND",
+        "LOOP.LOWCUT",
+        "LOOP.GBW",
+        "LOOP.TWOPOLE",
+        "LOOP.DOMINANT",
+        "LOOP.MAXBETA",
+        "RES.NEAREST",
+        "RES.UP",
+        "RES.DOWN",
+        "RES.TOLERANCE",
+        "RES.PAIR",
+        "RES.WORSTCASE",
+        "RES.MONTECARLO",
+        "RES.YIELD",
+        "CKT.GAIN",
+        "CKT.RIN",
+        "CKT.ROUT",
+        "CKT.IDEAL",
+        "DIST.SERIES",
+        "DIST.HD",
+        "DIST.FPBW",
+        "DIST.MAXAMP",
+        "DIST.SLEWRATE",
+        "NOISE.THERMAL",
+        "NOISE.STAGE",
+        "NOISE.TOTAL",
     ] {
         assert!(all().any(|f| f.name == name), "{name}");
     }
@@ -129,15 +211,27 @@ fn feedback_functions_agree_with_the_core() {
     let mut s = Sheet::new();
     s.set("A1", "=FB.GAIN(2e4; 0.05)").unwrap();
     s.set("A2", "=FB.BETA(-2e4; -10)").unwrap();
-    s.set("A3", "=FB.ZOUT(\"shunt-series\"; 50; 990; 0.1)").unwrap();
-    assert_eq!(as_number(&s.value("A1").unwrap()), Some(fb::closed_loop_gain(2e4, 0.05).unwrap()));
-    assert_eq!(as_number(&s.value("A2").unwrap()), Some(fb::beta_for_gain(-2e4, -10.0).unwrap()));
-    let (_, rout) = fb::resistances_with_feedback(fb::Topology::ShuntSeries, 0.0, 50.0, 990.0, 0.1).unwrap();
+    s.set("A3", "=FB.ZOUT(\"shunt-series\"; 50; 990; 0.1)")
+        .unwrap();
+    assert_eq!(
+        as_number(&s.value("A1").unwrap()),
+        Some(fb::closed_loop_gain(2e4, 0.05).unwrap())
+    );
+    assert_eq!(
+        as_number(&s.value("A2").unwrap()),
+        Some(fb::beta_for_gain(-2e4, -10.0).unwrap())
+    );
+    let (_, rout) =
+        fb::resistances_with_feedback(fb::Topology::ShuntSeries, 0.0, 50.0, 990.0, 0.1).unwrap();
     assert_eq!(as_number(&s.value("A3").unwrap()), Some(rout));
     // Core errors arrive as error values carrying the core's sentence.
     s.set("A4", "=FB.GAIN(-50; 0.02)").unwrap();
     match s.value("A4").unwrap() {
-        Value::Error(e) => assert!(e.detail.starts_with("FB.GAIN: beta: the return difference"), "{}", e.detail),
+        Value::Error(e) => assert!(
+            e.detail.starts_with("FB.GAIN: beta: the return difference"),
+            "{}",
+            e.detail
+        ),
         v => panic!("{v:?}"),
     }
     s.set("A5", "=FB.ZIN(\"sideways\"; 1; 2; 3)").unwrap();
@@ -157,12 +251,24 @@ fn stated_and_evaluated_values_match_the_mpmath_reference() {
     let cases = reference_cases();
     let mut covered = 0;
     for f in all() {
-        let Expected::Numbers(stated) = f.example.expected else { continue };
+        let Expected::Numbers(stated) = f.example.expected else {
+            continue;
+        };
         let case = cases
             .iter()
             .find(|c| c["formula"] == f.example.formula)
-            .unwrap_or_else(|| panic!("{}: example {} missing from the reference data", f.name, f.example.formula));
-        let reference: Vec<f64> = case["expected"].as_array().unwrap().iter().map(|v| v.as_f64().unwrap()).collect();
+            .unwrap_or_else(|| {
+                panic!(
+                    "{}: example {} missing from the reference data",
+                    f.name, f.example.formula
+                )
+            });
+        let reference: Vec<f64> = case["expected"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .map(|v| v.as_f64().unwrap())
+            .collect();
         assert_eq!(reference.len(), stated.len(), "{}", f.name);
         let scale = reference.iter().fold(0.0f64, |m, x| m.max(x.abs()));
         let mut s = Sheet::new();
@@ -177,17 +283,38 @@ fn stated_and_evaluated_values_match_the_mpmath_reference() {
             // only where the script gives one.
             let script = case_rtol(&cases, f.example.formula, i);
             let catalog = (!f.example.tolerance.is_empty()).then(|| stated_rtol(f, i, 0.0));
-            assert_eq!(script.is_some(), catalog.is_some(), "{} item {i}: tolerance stated in one place only", f.name);
+            assert_eq!(
+                script.is_some(),
+                catalog.is_some(),
+                "{} item {i}: tolerance stated in one place only",
+                f.name
+            );
             if let (Some(a), Some(b)) = (script, catalog) {
-                assert!((a - b).abs() <= 1e-12 * a, "{} item {i}: catalog tolerance {b:e}, reference {a:e}", f.name);
+                assert!(
+                    (a - b).abs() <= 1e-12 * a,
+                    "{} item {i}: catalog tolerance {b:e}, reference {a:e}",
+                    f.name
+                );
             }
             let tol = REFERENCE_RTOL * if *want == 0.0 { scale } else { want.abs() };
-            assert!((said - want).abs() <= tol, "{} item {i}: catalog states {said:e}, reference {want:e}", f.name);
+            assert!(
+                (said - want).abs() <= tol,
+                "{} item {i}: catalog states {said:e}, reference {want:e}",
+                f.name
+            );
             let got = as_number(&s.shown(item_cell(origin, i, cols))).unwrap();
             let tol = engine_rtol * if *want == 0.0 { scale } else { want.abs() };
-            assert!((got - want).abs() <= tol, "{} item {i}: engine gives {got:e}, reference {want:e}", f.name);
+            assert!(
+                (got - want).abs() <= tol,
+                "{} item {i}: engine gives {got:e}, reference {want:e}",
+                f.name
+            );
         }
         covered += 1;
     }
-    assert_eq!(covered, cases.len(), "every reference case belongs to a catalog example");
+    assert_eq!(
+        covered,
+        cases.len(),
+        "every reference case belongs to a catalog example"
+    );
 }

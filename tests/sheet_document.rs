@@ -68,7 +68,10 @@ fn save_load_save_is_byte_identical() {
     }
     assert_eq!(t.input(c("Q1")), None);
     // And nothing is lost: every input and name is there.
-    assert_eq!(s.inputs().collect::<Vec<_>>(), t.inputs().collect::<Vec<_>>());
+    assert_eq!(
+        s.inputs().collect::<Vec<_>>(),
+        t.inputs().collect::<Vec<_>>()
+    );
     assert_eq!(s.names().collect::<Vec<_>>(), t.names().collect::<Vec<_>>());
 }
 
@@ -93,7 +96,10 @@ fn the_features_evaluate_as_intended() {
     assert_eq!(s.shown(c("D5")), Value::Bool(true));
     // A1:A3*2 spills down three rows; A3 keeps its unit through * 2.
     assert_eq!(s.spill_range(c("B10")), Range::parse("B10:B12"));
-    assert_eq!(s.shown(c("B12")), Value::Number(9400.0, Some(loopwright::sheet::Unit::Ohm)));
+    assert_eq!(
+        s.shown(c("B12")),
+        Value::Number(9400.0, Some(loopwright::sheet::Unit::Ohm))
+    );
 }
 
 #[test]
@@ -114,7 +120,10 @@ fn refused_documents_leave_the_sheet_as_it_was() {
     let before = s.save_document();
     let newer = before.replace("\"version\": 1", "\"version\": 2");
     let e = s.load_document(&newer).unwrap_err();
-    assert!(e.message.contains("newer loopwright (document version 2)"), "{e}");
+    assert!(
+        e.message.contains("newer loopwright (document version 2)"),
+        "{e}"
+    );
     for bad in [
         String::from("not json"),
         before.replace("\"cells\"", "\"cels\""),
@@ -139,7 +148,10 @@ fn csv_of_values() {
     s.set("C2", "=1/0").unwrap();
     s.set("B3", "=1>0").unwrap();
     // RFC 4180 §2: CRLF line ends, fields with , or " quoted, " doubled.
-    assert_eq!(to_csv(&s), "4700,\"a,b\",\r\n\"say \"\"x\"\"\",,#DIV/0!\r\n,TRUE,\r\n");
+    assert_eq!(
+        to_csv(&s),
+        "4700,\"a,b\",\r\n\"say \"\"x\"\"\",,#DIV/0!\r\n,TRUE,\r\n"
+    );
     assert_eq!(to_csv(&Sheet::new()), "");
 }
 

@@ -39,19 +39,35 @@ fn a_negative_resistance_in_a_cell_is_an_error_value_naming_the_parameter() {
 
     // The same negative value as the load of a circuit stage, and as R2 of a stage
     // under tolerance: each explanation names the parameter the cell fills.
-    s.set("B2", "=CKT.RIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; A1)").unwrap();
+    s.set(
+        "B2",
+        "=CKT.RIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; A1)",
+    )
+    .unwrap();
     let (kind, detail) = error(&s, "B2");
     assert_eq!(kind, ErrorKind::Num);
     assert!(detail.starts_with("CKT.RIN: rl: "), "{detail}");
-    s.set("B3", "=RES.WORSTCASE(\"inverting\"; \"gain\"; 1k; A1; 1%; 50k; 100k; 200k; 1M; 50; 10)").unwrap();
+    s.set(
+        "B3",
+        "=RES.WORSTCASE(\"inverting\"; \"gain\"; 1k; A1; 1%; 50k; 100k; 200k; 1M; 50; 10)",
+    )
+    .unwrap();
     assert!(error(&s, "B3").1.starts_with("RES.WORSTCASE: r2: "));
-    s.set("B4", "=NOISE.STAGE(\"non-inverting\"; 9k; 1k; A1; 4n; 0; 0; 0; 300; 1k)").unwrap();
+    s.set(
+        "B4",
+        "=NOISE.STAGE(\"non-inverting\"; 9k; 1k; A1; 4n; 0; 0; 0; 300; 1k)",
+    )
+    .unwrap();
     assert!(error(&s, "B4").1.starts_with("NOISE.STAGE: rp: "));
 
     // Fixing the cell fixes every formula that read it: 4.7 kΩ at 300 K is
     // √(4kTR) = 8.824 nV/√Hz (Johnson–Nyquist, k = 1.380649e-23 J/K).
     s.set("A1", "4k7").unwrap();
-    assert!(close(num(&s, "B1"), (4.0 * 1.380_649e-23 * 300.0 * 4700.0f64).sqrt(), 1e-15));
+    assert!(close(
+        num(&s, "B1"),
+        (4.0 * 1.380_649e-23 * 300.0 * 4700.0f64).sqrt(),
+        1e-15
+    ));
     assert!(matches!(s.value("B2").unwrap(), Value::Number(..)));
 }
 
@@ -60,20 +76,36 @@ fn errors_name_the_worksheet_parameter_not_the_core_field() {
     let mut s = Sheet::new();
     // A negative pole frequency in the pole list (the core calls it a.poles_hz).
     s.set("A1", "=LOOP.PM(1000; 0.1; 1k; -100k)").unwrap();
-    assert_eq!(error(&s, "A1"), (ErrorKind::Num, "LOOP.PM: poles: must be greater than zero".into()));
+    assert_eq!(
+        error(&s, "A1"),
+        (
+            ErrorKind::Num,
+            "LOOP.PM: poles: must be greater than zero".into()
+        )
+    );
     // A target phase margin out of range (the core calls it target_pm_deg).
     s.set("A2", "=LOOP.DOMINANT(100k; 1; 200; 1 MHz)").unwrap();
     assert!(error(&s, "A2").1.starts_with("LOOP.DOMINANT: target_pm: "));
     // An unknown word is #VALUE! and lists the accepted ones.
-    s.set("A3", "=DIST.HD(1000; 200; -50; 0.099; 1; \"middle\")").unwrap();
+    s.set("A3", "=DIST.HD(1000; 200; -50; 0.099; 1; \"middle\")")
+        .unwrap();
     let (kind, detail) = error(&s, "A3");
     assert_eq!(kind, ErrorKind::Value);
-    assert!(detail.contains("at:") && detail.contains("input, output"), "{detail}");
+    assert!(
+        detail.contains("at:") && detail.contains("input, output"),
+        "{detail}"
+    );
     s.set("A4", "=RES.NEAREST(5k; \"E13\")").unwrap();
     assert_eq!(error(&s, "A4").0, ErrorKind::Value);
     // A value written in the wrong unit: a frequency given in volts.
     s.set("A5", "=LOOP.EXTEND(10 V; 100k; 0.01)").unwrap();
-    assert_eq!(error(&s, "A5"), (ErrorKind::Value, "LOOP.EXTEND: f_h: given in V but the parameter is in Hz".into()));
+    assert_eq!(
+        error(&s, "A5"),
+        (
+            ErrorKind::Value,
+            "LOOP.EXTEND: f_h: given in V but the parameter is in Hz".into()
+        )
+    );
     // An error value in an argument passes through unchanged.
     s.set("B1", "=1/0").unwrap();
     s.set("A6", "=DIST.FPBW(B1; 10)").unwrap();
@@ -112,7 +144,11 @@ fn closed_loop_poles_spill_one_row_per_pole_into_neighbouring_cells() {
     let changed = s.set("A3", "400 kHz").unwrap().to_vec();
     assert!(changed.contains(&cell("H1")), "{changed:?}");
     // |s| = √(101·1 kHz·400 kHz) now.
-    assert!(close(num(&s, "H1"), 2.0 * (101.0 * 1e3 * 4e5f64).sqrt(), 1e-12));
+    assert!(close(
+        num(&s, "H1"),
+        2.0 * (101.0 * 1e3 * 4e5f64).sqrt(),
+        1e-12
+    ));
     assert!(num(&s, "H1") > before);
 
     // A pole with Q below 1/2 splits into two real poles: ζ = 1 for both.
@@ -125,13 +161,23 @@ fn closed_loop_poles_spill_one_row_per_pole_into_neighbouring_cells() {
 #[test]
 fn ranked_pairs_spill_and_a_filled_cell_in_the_way_blocks_them() {
     let mut s = Sheet::new();
-    s.set("A1", "=RES.PAIR(\"non-inverting\"; 10; \"E24\"; 10k; 100k; 4)").unwrap();
+    s.set(
+        "A1",
+        "=RES.PAIR(\"non-inverting\"; 10; \"E24\"; 10k; 100k; 4)",
+    )
+    .unwrap();
     let r = s.spill_range(cell("A1")).unwrap();
     assert_eq!((r.rows(), r.cols()), (4, 4));
     // Gain 10 needs R2/R1 = 9: exact with E24 values 2.0 k/18 k and 3.0 k/27 k
     // (IEC 60063 E24 has 2.0, 3.0, 18 and 27), the smaller total first.
-    assert_eq!((num(&s, "A1"), num(&s, "B1"), num(&s, "C1"), num(&s, "D1")), (2000.0, 18_000.0, 10.0, 0.0));
-    assert_eq!((num(&s, "A2"), num(&s, "B2"), num(&s, "D2")), (3000.0, 27_000.0, 0.0));
+    assert_eq!(
+        (num(&s, "A1"), num(&s, "B1"), num(&s, "C1"), num(&s, "D1")),
+        (2000.0, 18_000.0, 10.0, 0.0)
+    );
+    assert_eq!(
+        (num(&s, "A2"), num(&s, "B2"), num(&s, "D2")),
+        (3000.0, 27_000.0, 0.0)
+    );
     // The rest are misses, ranked by |error|.
     assert!(num(&s, "D3").abs() > 0.0 && num(&s, "D3").abs() <= num(&s, "D4").abs());
 
@@ -169,10 +215,18 @@ fn several_results_of_each_area_land_in_order() {
     s.set("A4", "=DIST.SERIES(1000; 200; -50; 0.099)").unwrap();
     assert!(close(num(&s, "A4"), 10.0, 1e-15));
     assert!(close(num(&s, "B4"), 200.0 / 1e6, 1e-15));
-    assert!(close(num(&s, "C4"), (-50.0 * 100.0 - 2.0 * 200.0 * 200.0 * 0.099) / 1e10, 1e-14));
+    assert!(close(
+        num(&s, "C4"),
+        (-50.0 * 100.0 - 2.0 * 200.0 * 200.0 * 0.099) / 1e10,
+        1e-14
+    ));
 
     // The circuit: exact, two-port and their relative error, in that order.
-    s.set("A5", "=CKT.GAIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)").unwrap();
+    s.set(
+        "A5",
+        "=CKT.GAIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",
+    )
+    .unwrap();
     let (exact, two_port, err) = (num(&s, "A5"), num(&s, "B5"), num(&s, "C5"));
     // The error is a difference of two values that agree to 1e-10, so recomputing it
     // from the rounded cells agrees only to about 1e-6.
@@ -185,15 +239,20 @@ fn several_results_of_each_area_land_in_order() {
 fn monte_carlo_is_reproducible_from_its_seed() {
     let stage = "\"inverting\"; \"gain\"; 1k; 10k; 1%; 50k; 100k; 200k; 1M; 50; 10 Hz; 20000";
     let mut s = Sheet::new();
-    s.set("A1", &format!("=RES.MONTECARLO({stage}; 7; \"normal\")")).unwrap();
-    s.set("A2", &format!("=RES.MONTECARLO({stage}; 7; \"normal\")")).unwrap();
-    s.set("A3", &format!("=RES.MONTECARLO({stage}; 8; \"normal\")")).unwrap();
+    s.set("A1", &format!("=RES.MONTECARLO({stage}; 7; \"normal\")"))
+        .unwrap();
+    s.set("A2", &format!("=RES.MONTECARLO({stage}; 7; \"normal\")"))
+        .unwrap();
+    s.set("A3", &format!("=RES.MONTECARLO({stage}; 8; \"normal\")"))
+        .unwrap();
     let row = |r: u32| -> Vec<f64> {
         (0..9)
-            .map(|c| match s.shown(CellRef::parse("A1").unwrap().offset(r, c).unwrap()) {
-                Value::Number(x, _) => x,
-                v => panic!("{v:?}"),
-            })
+            .map(
+                |c| match s.shown(CellRef::parse("A1").unwrap().offset(r, c).unwrap()) {
+                    Value::Number(x, _) => x,
+                    v => panic!("{v:?}"),
+                },
+            )
             .collect()
     };
     let (a, b, c) = (row(0), row(1), row(2));
@@ -205,7 +264,11 @@ fn monte_carlo_is_reproducible_from_its_seed() {
     assert!(a[2..].windows(2).all(|w| w[0] <= w[1]), "{a:?}");
     assert!((a[0] + 10.0).abs() < 0.1, "{}", a[0]);
     // The yield of a window around the median is a fraction in (0, 1).
-    s.set("B10", &format!("=RES.YIELD({stage}; 7; \"normal\"; -10.05; -9.95)")).unwrap();
+    s.set(
+        "B10",
+        &format!("=RES.YIELD({stage}; 7; \"normal\"; -10.05; -9.95)"),
+    )
+    .unwrap();
     let y = num(&s, "B10");
     assert!(y > 0.0 && y < 1.0, "{y}");
 }
@@ -214,18 +277,31 @@ fn monte_carlo_is_reproducible_from_its_seed() {
 fn the_worksheet_gives_the_core_results_unchanged() {
     use loopwright::freq::{stability_margins, FeedbackLoop, TransferModel};
     use loopwright::network::{standard_value, Rounding, Series};
-    use loopwright::noise::{integrated_output_noise, AmplifierNoise, ClosedLoopResponse, Stage, StageKind};
+    use loopwright::noise::{
+        integrated_output_noise, AmplifierNoise, ClosedLoopResponse, Stage, StageKind,
+    };
     let mut s = Sheet::new();
     s.set("A1", "=LOOP.PM(2e5; 0.05; 5; 200k; 3 MHz)").unwrap();
-    let l = FeedbackLoop::with_constant_beta(TransferModel::constant(2e5).pole(5.0).pole(2e5).pole(3e6), 0.05).unwrap();
+    let l = FeedbackLoop::with_constant_beta(
+        TransferModel::constant(2e5).pole(5.0).pole(2e5).pole(3e6),
+        0.05,
+    )
+    .unwrap();
     let m = stability_margins(&l).unwrap();
     assert_eq!(num(&s, "A1"), m.phase_margin_deg.unwrap());
     assert_eq!(num(&s, "B1"), m.crossover_hz.unwrap());
 
     s.set("A2", "=RES.UP(4.99k; \"E24\")").unwrap();
-    assert_eq!(num(&s, "A2"), standard_value(Series::E24, 4990.0, Rounding::Up).unwrap());
+    assert_eq!(
+        num(&s, "A2"),
+        standard_value(Series::E24, 4990.0, Rounding::Up).unwrap()
+    );
 
-    s.set("A3", "=NOISE.TOTAL(\"inverting\"; 10k; 1k; 909; 8n; 5; 1p; 100; 310; 10 MHz; 10; 20k)").unwrap();
+    s.set(
+        "A3",
+        "=NOISE.TOTAL(\"inverting\"; 10k; 1k; 909; 8n; 5; 1p; 100; 310; 10 MHz; 10; 20k)",
+    )
+    .unwrap();
     let st = Stage::new(StageKind::Inverting, 1e4, 1e3, 909.0, 310.0).unwrap();
     let amp = AmplifierNoise::new(8e-9, 5.0, 1e-12, 100.0).unwrap();
     let h = ClosedLoopResponse::new(st.noise_gain(), 1e7, &[]).unwrap();
@@ -233,6 +309,10 @@ fn the_worksheet_gives_the_core_results_unchanged() {
     assert_eq!(num(&s, "A3"), n.output_rms);
     assert_eq!(num(&s, "B3"), n.input_referred_rms);
     // Left out, f_high is the whole band, which holds more noise than 10 Hz … 20 kHz.
-    s.set("A4", "=NOISE.TOTAL(\"inverting\"; 10k; 1k; 909; 8n; 5; 1p; 100; 310; 10 MHz; 10)").unwrap();
+    s.set(
+        "A4",
+        "=NOISE.TOTAL(\"inverting\"; 10k; 1k; 909; 8n; 5; 1p; 100; 310; 10 MHz; 10)",
+    )
+    .unwrap();
     assert!(num(&s, "A4") > num(&s, "A3"));
 }

@@ -8,19 +8,80 @@ use proptest::prelude::*;
 use proptest::test_runner::Config;
 
 fn config(cases: u32) -> Config {
-    Config { cases, failure_persistence: None, ..Config::default() }
+    Config {
+        cases,
+        failure_persistence: None,
+        ..Config::default()
+    }
 }
 
 const CELLS: [&str; 9] = ["A1", "A2", "A3", "B1", "B2", "B3", "C1", "C2", "C3"];
 
 const TOKENS: &[&str] = &[
-    "1", "0", "4k7", "2R2", "1e308", "-", "+", "*", "/", "^", "&", "%", "=", "<>", "<=", ">", "(", ")", ";", ",", ":",
-    "A1", "B2", "$C$3", "A1:C3", "B1:B3", "XFD1048576", "A1:XFD1048576", "\"x\"", "\"\"", "#N/A", "#DIV/0!", "TRUE",
-    "gain", "nosuch", "SUM(", "IF(", "ROUND(", "AND(", "FB.GAIN(", "FB.SPREAD(", "FB.SUMMARY(", "DB.VOLTAGE(",
-    "FB.CEILING(", "SQRT(", "10 kHz", "1MΩ", " ", "NOSUCHFN(", "\"series-shunt\"", "PI()", "2^1024",
+    "1",
+    "0",
+    "4k7",
+    "2R2",
+    "1e308",
+    "-",
+    "+",
+    "*",
+    "/",
+    "^",
+    "&",
+    "%",
+    "=",
+    "<>",
+    "<=",
+    ">",
+    "(",
+    ")",
+    ";",
+    ",",
+    ":",
+    "A1",
+    "B2",
+    "$C$3",
+    "A1:C3",
+    "B1:B3",
+    "XFD1048576",
+    "A1:XFD1048576",
+    "\"x\"",
+    "\"\"",
+    "#N/A",
+    "#DIV/0!",
+    "TRUE",
+    "gain",
+    "nosuch",
+    "SUM(",
+    "IF(",
+    "ROUND(",
+    "AND(",
+    "FB.GAIN(",
+    "FB.SPREAD(",
+    "FB.SUMMARY(",
+    "DB.VOLTAGE(",
+    "FB.CEILING(",
+    "SQRT(",
+    "10 kHz",
+    "1MΩ",
+    " ",
+    "NOSUCHFN(",
+    "\"series-shunt\"",
+    "PI()",
+    "2^1024",
     // The other areas' functions (a spill of several rows, ranked candidates, words).
-    "LOOP.PM(", "LOOP.POLES(", "LOOP.TWOPOLE(", "RES.NEAREST(", "RES.PAIR(", "CKT.GAIN(", "DIST.HD(", "NOISE.STAGE(",
-    "\"E24\"", "\"non-inverting\"", "\"output\"",
+    "LOOP.PM(",
+    "LOOP.POLES(",
+    "LOOP.TWOPOLE(",
+    "RES.NEAREST(",
+    "RES.PAIR(",
+    "CKT.GAIN(",
+    "DIST.HD(",
+    "NOISE.STAGE(",
+    "\"E24\"",
+    "\"non-inverting\"",
+    "\"output\"",
 ];
 
 fn check_values(s: &Sheet) {
@@ -78,7 +139,11 @@ fn formula() -> impl Strategy<Value = String> {
         Just("\"t\"".to_string()),
     ];
     leaf.prop_recursive(3, 12, 2, |inner| {
-        (inner.clone(), prop::sample::select(vec!["+", "-", "*", "/", "&", ">"]), inner)
+        (
+            inner.clone(),
+            prop::sample::select(vec!["+", "-", "*", "/", "&", ">"]),
+            inner,
+        )
             .prop_map(|(a, op, b)| format!("({a}{op}{b})"))
     })
 }
@@ -110,35 +175,53 @@ proptest! {
 #[test]
 fn deep_nesting_and_long_chains_are_bounded() {
     let mut s = Sheet::new();
-    s.set("A1", &format!("={}1{}", "(".repeat(3000), ")".repeat(3000))).unwrap();
-    assert!(matches!(s.shown(CellRef::parse("A1").unwrap()), Value::Error(e) if e.kind == ErrorKind::Syntax));
+    s.set("A1", &format!("={}1{}", "(".repeat(3000), ")".repeat(3000)))
+        .unwrap();
+    assert!(
+        matches!(s.shown(CellRef::parse("A1").unwrap()), Value::Error(e) if e.kind == ErrorKind::Syntax)
+    );
     s.set("A2", &format!("={}", "-".repeat(4000))).unwrap();
     s.set("A3", &"=1".repeat(3000)).unwrap();
     // A chain of 20 000 cells, each reading the one above: ordering is iterative.
     let n = 20_000u32;
     let edits: Vec<(CellRef, String)> = (1..n)
-        .map(|r| (CellRef::new(r, 1).unwrap(), format!("={}+1", CellRef::new(r - 1, 1).unwrap())))
+        .map(|r| {
+            (
+                CellRef::new(r, 1).unwrap(),
+                format!("={}+1", CellRef::new(r - 1, 1).unwrap()),
+            )
+        })
         .collect();
     let borrowed: Vec<(CellRef, &str)> = edits.iter().map(|(c, f)| (*c, f.as_str())).collect();
     s.set_many(&borrowed).unwrap();
     s.set("B1", "1").unwrap();
     assert_eq!(s.changed().len(), n as usize);
-    assert_eq!(s.shown(CellRef::new(n - 1, 1).unwrap()), Value::Number(f64::from(n), None));
+    assert_eq!(
+        s.shown(CellRef::new(n - 1, 1).unwrap()),
+        Value::Number(f64::from(n), None)
+    );
     // A cycle through the whole chain marks every cell.
-    s.set("B1", &format!("={}", CellRef::new(n - 1, 1).unwrap())).unwrap();
-    assert!(matches!(s.shown(CellRef::new(n / 2, 1).unwrap()), Value::Error(e) if e.kind == ErrorKind::Cycle));
+    s.set("B1", &format!("={}", CellRef::new(n - 1, 1).unwrap()))
+        .unwrap();
+    assert!(
+        matches!(s.shown(CellRef::new(n / 2, 1).unwrap()), Value::Error(e) if e.kind == ErrorKind::Cycle)
+    );
 }
 
 #[test]
 fn huge_ranges_and_spills_are_refused_not_computed() {
     let mut s = Sheet::new();
     s.set("A1", "=SUM(B1:XFD1048576)").unwrap();
-    assert!(matches!(s.shown(CellRef::parse("A1").unwrap()), Value::Error(e) if e.kind == ErrorKind::Ref));
+    assert!(
+        matches!(s.shown(CellRef::parse("A1").unwrap()), Value::Error(e) if e.kind == ErrorKind::Ref)
+    );
     s.set("A2", "=B1:XFD1048576").unwrap();
     assert!(s.shown(CellRef::parse("A2").unwrap()).is_error());
     // A spill that would pass the sheet's edge.
     s.set("XFD5", "=FB.CEILING(10; 2)").unwrap();
-    assert!(matches!(s.shown(CellRef::parse("XFD5").unwrap()), Value::Error(e) if e.kind == ErrorKind::Blocked));
+    assert!(
+        matches!(s.shown(CellRef::parse("XFD5").unwrap()), Value::Error(e) if e.kind == ErrorKind::Blocked)
+    );
 }
 
 /// Inputs that spill over neighbours in the 3×3 block (or are blocked by them, or

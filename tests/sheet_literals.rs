@@ -5,7 +5,9 @@ use loopwright::sheet::literal::{parse_cell_number, scan};
 use loopwright::sheet::{ErrorKind, Sheet, Unit, Value};
 
 fn cell(input: &str) -> f64 {
-    parse_cell_number(input).unwrap_or_else(|| panic!("{input} is not a number")).value
+    parse_cell_number(input)
+        .unwrap_or_else(|| panic!("{input} is not a number"))
+        .value
 }
 
 #[test]
@@ -91,7 +93,10 @@ fn letter_codes_inside_formulas() {
     // In a formula R47 is the cell R47, so the literal is written 0R47.
     s.set("A1", "=0R47 + 4k7 + 2R2").unwrap();
     // 0.47 + 4700 + 2.2 = 4702.67 (hand arithmetic, in f64 order of evaluation).
-    assert_eq!(s.value("A1").unwrap(), Value::Number(0.47 + 4700.0 + 2.2, None));
+    assert_eq!(
+        s.value("A1").unwrap(),
+        Value::Number(0.47 + 4700.0 + 2.2, None)
+    );
     s.set("R47", "5").unwrap();
     s.set("A2", "=R47*2").unwrap();
     assert_eq!(s.value("A2").unwrap(), Value::Number(10.0, None));
@@ -119,8 +124,13 @@ fn unit_words() {
 
 #[test]
 fn malformed_literals_are_refused_not_guessed() {
-    for bad in ["1Meg", "1kdB", "1k dB", "4k7k", "1x", "2.2.2", "1e", "1e99999"] {
-        assert!(!scan(bad).map(|(_, n)| n == bad.len()).unwrap_or(false), "{bad}");
+    for bad in [
+        "1Meg", "1kdB", "1k dB", "4k7k", "1x", "2.2.2", "1e", "1e99999",
+    ] {
+        assert!(
+            !scan(bad).map(|(_, n)| n == bad.len()).unwrap_or(false),
+            "{bad}"
+        );
         assert!(parse_cell_number(bad).is_none(), "{bad}");
     }
     let mut s = Sheet::new();
@@ -133,15 +143,25 @@ fn declared_units_are_checked() {
     let mut s = Sheet::new();
     s.set("A1", "1MΩ").unwrap();
     s.set("A2", "1 V").unwrap();
-    s.set("B1", "=FB.ZIN(\"series-shunt\"; A1; 100k; 0.01)").unwrap();
-    s.set("B2", "=FB.ZIN(\"series-shunt\"; A2; 100k; 0.01)").unwrap();
-    s.set("B3", "=FB.ZIN(\"series-shunt\"; 1000000; 100k; 0.01)").unwrap();
+    s.set("B1", "=FB.ZIN(\"series-shunt\"; A1; 100k; 0.01)")
+        .unwrap();
+    s.set("B2", "=FB.ZIN(\"series-shunt\"; A2; 100k; 0.01)")
+        .unwrap();
+    s.set("B3", "=FB.ZIN(\"series-shunt\"; 1000000; 100k; 0.01)")
+        .unwrap();
     // 1 MΩ · (1 + 100000·0.01) = 1.001 GΩ.
-    assert_eq!(s.value("B1").unwrap(), Value::Number(1.001e9, Some(Unit::Ohm)));
+    assert_eq!(
+        s.value("B1").unwrap(),
+        Value::Number(1.001e9, Some(Unit::Ohm))
+    );
     match s.value("B2").unwrap() {
         Value::Error(e) => {
             assert_eq!(e.kind, ErrorKind::Value);
-            assert!(e.detail.contains("given in V but the parameter is in Ω"), "{}", e.detail);
+            assert!(
+                e.detail.contains("given in V but the parameter is in Ω"),
+                "{}",
+                e.detail
+            );
         }
         v => panic!("{v:?}"),
     }
@@ -155,8 +175,8 @@ fn agrees_with_the_network_notation_parser() {
     // one for worksheet cells) must give the same f64 wherever both accept the text.
     use loopwright::notation::parse_value;
     for text in [
-        "4k7", "2R2", "R47", "1M5", "4n7", "2p2", "p68", "4.7k", "10R", "470R", "100nF", "4.7 kΩ", "10 kohm", "1e-9",
-        ".47", "-2.5", "3K3", "4u7", "2\u{b5}2", "33 V", "1G", "1T5",
+        "4k7", "2R2", "R47", "1M5", "4n7", "2p2", "p68", "4.7k", "10R", "470R", "100nF", "4.7 kΩ",
+        "10 kohm", "1e-9", ".47", "-2.5", "3K3", "4u7", "2\u{b5}2", "33 V", "1G", "1T5",
     ] {
         let network = parse_value(text).unwrap_or_else(|e| panic!("network refuses {text}: {e}"));
         assert_eq!(cell(text), network, "{text}");

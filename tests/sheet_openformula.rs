@@ -114,7 +114,10 @@ fn concatenation_converts_to_text() {
     // §6.3 infix "&" (from memory).
     assert_eq!(eval("=\"R\"&1&\"=\"&4k7"), Value::Text("R1=4700".into()));
     assert_eq!(eval("=TRUE&\"\""), Value::Text("TRUE".into()));
-    assert_eq!(eval("=0.1+0.2&\"\""), Value::Text("0.30000000000000004".into()));
+    assert_eq!(
+        eval("=0.1+0.2&\"\""),
+        Value::Text("0.30000000000000004".into())
+    );
 }
 
 #[test]

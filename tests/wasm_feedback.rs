@@ -40,7 +40,9 @@ fn structured_results_are_plain_objects() {
     let none = api::summarize_feedback("series-shunt", 10.0, 0.0).unwrap();
     assert!(field(&none, "idealGain").is_null());
 
-    let z = api::impedances_with_feedback("series-shunt", 1e6, 0.0, 100.0, 0.0, 1e4, 0.0, 0.0999, 0.0).unwrap();
+    let z =
+        api::impedances_with_feedback("series-shunt", 1e6, 0.0, 100.0, 0.0, 1e4, 0.0, 0.0999, 0.0)
+            .unwrap();
     assert!((num(&field(&z, "input"), "re") - 1e9).abs() < 1e-3);
     assert!((num(&field(&z, "output"), "magnitude") - 0.1).abs() < 1e-12);
 
@@ -63,14 +65,46 @@ fn structured_results_are_plain_objects() {
 
 #[wasm_bindgen_test]
 fn bad_input_throws_typed_errors() {
-    assert_thrown(checked(api::closed_loop_gain(f64::NAN, 0.1)), "not_finite", "a");
-    assert_thrown(checked(api::closed_loop_gain(0.0, 0.1)), "out_of_domain", "a");
-    assert_thrown(checked(api::closed_loop_gain(-10.0, 0.1)), "oscillation", "beta");
-    assert_thrown(checked(api::beta_for_gain(100.0, 1000.0)), "unreachable", "target_gain");
-    assert_thrown(api::summarize_feedback("series-parallel", 1.0, 1.0), "unknown_name", "topology");
-    assert_thrown(api::impedances_with_feedback("shunt-shunt", -1.0, 0.0, 1.0, 0.0, 1.0, 0.0, 1.0, 0.0), "out_of_domain", "zi");
-    assert_thrown(checked(api::min_open_loop_gain(0.1, 2.0)), "out_of_domain", "gain_error");
-    assert_thrown(api::gain_spread(0.1, 3.0, 2.0, 1.0), "out_of_domain", "a_typ");
+    assert_thrown(
+        checked(api::closed_loop_gain(f64::NAN, 0.1)),
+        "not_finite",
+        "a",
+    );
+    assert_thrown(
+        checked(api::closed_loop_gain(0.0, 0.1)),
+        "out_of_domain",
+        "a",
+    );
+    assert_thrown(
+        checked(api::closed_loop_gain(-10.0, 0.1)),
+        "oscillation",
+        "beta",
+    );
+    assert_thrown(
+        checked(api::beta_for_gain(100.0, 1000.0)),
+        "unreachable",
+        "target_gain",
+    );
+    assert_thrown(
+        api::summarize_feedback("series-parallel", 1.0, 1.0),
+        "unknown_name",
+        "topology",
+    );
+    assert_thrown(
+        api::impedances_with_feedback("shunt-shunt", -1.0, 0.0, 1.0, 0.0, 1.0, 0.0, 1.0, 0.0),
+        "out_of_domain",
+        "zi",
+    );
+    assert_thrown(
+        checked(api::min_open_loop_gain(0.1, 2.0)),
+        "out_of_domain",
+        "gain_error",
+    );
+    assert_thrown(
+        api::gain_spread(0.1, 3.0, 2.0, 1.0),
+        "out_of_domain",
+        "a_typ",
+    );
 }
 
 #[wasm_bindgen_test]
@@ -99,23 +133,48 @@ fn packed_summary_matches_the_object_and_keeps_its_errors() {
     // The entry module builds summarizeFeedback from these (facade/loopwright.js).
     let index = checked(api::topology_index("Voltage-Shunt")).unwrap();
     assert_eq!(index, 3.0);
-    assert_eq!(checked(api::summarize_feedback_packed(3, -1e5, -1e-3)), Ok(0.0));
+    assert_eq!(
+        checked(api::summarize_feedback_packed(3, -1e5, -1e-3)),
+        Ok(0.0)
+    );
     let packed = loopwright::wasm::scratch_view();
     let object = api::summarize_feedback("shunt-shunt", -1e5, -1e-3).unwrap();
-    let names = ["closedLoopGain", "loopGain", "feedbackAmount", "feedbackAmountDb", "sensitivity", "idealGain", "gainError"];
+    let names = [
+        "closedLoopGain",
+        "loopGain",
+        "feedbackAmount",
+        "feedbackAmountDb",
+        "sensitivity",
+        "idealGain",
+        "gainError",
+    ];
     for (i, name) in names.iter().enumerate() {
         assert_eq!(packed.get_index(i as u32), num(&object, name), "{name}");
     }
     let labels = api::feedback_labels().unwrap();
     let senses: js_sys::Array = field(&labels, "senses").dyn_into().unwrap();
-    assert_eq!(senses.get(packed.get_index(7) as u32).as_string().unwrap(), text(&object, "sense"));
+    assert_eq!(
+        senses.get(packed.get_index(7) as u32).as_string().unwrap(),
+        text(&object, "sense")
+    );
     let shunt_shunt = js_sys::Array::from(&field(&labels, "topologies")).get(3);
     assert_eq!(text(&shunt_shunt, "gainUnit"), "V/A");
     // β = 0: no ideal gain, NaN in the packed form.
-    assert_eq!(checked(api::summarize_feedback_packed(0, 10.0, 0.0)), Ok(0.0));
+    assert_eq!(
+        checked(api::summarize_feedback_packed(0, 10.0, 0.0)),
+        Ok(0.0)
+    );
     assert!(packed.get_index(5).is_nan());
-    assert_thrown(checked(api::summarize_feedback_packed(4, 10.0, 0.1)), "out_of_domain", "topology");
-    assert_thrown(checked(api::topology_index("series-parallel")), "unknown_name", "topology");
+    assert_thrown(
+        checked(api::summarize_feedback_packed(4, 10.0, 0.1)),
+        "out_of_domain",
+        "topology",
+    );
+    assert_thrown(
+        checked(api::topology_index("series-parallel")),
+        "unknown_name",
+        "topology",
+    );
     // The view reads the module's memory in place: after the memory grows it is
     // empty (its buffer detached) and a fresh one reads the same numbers.
     let before = packed.get_index(0);

@@ -19,7 +19,9 @@ fn obj(json: &str) -> JsValue {
 }
 
 fn three_equal_poles(t0: f64) -> JsValue {
-    obj(&format!(r#"{{"gain": {t0}, "polesHz": [1000, 1000, 1000]}}"#))
+    obj(&format!(
+        r#"{{"gain": {t0}, "polesHz": [1000, 1000, 1000]}}"#
+    ))
 }
 
 #[wasm_bindgen_test]
@@ -61,24 +63,33 @@ fn margins_poles_and_bandwidth_are_plain_objects() {
     assert_eq!(Array::from(&field(&p, "poles")).length(), 3);
 
     // One pole at 10 Hz, A0β = 1000: fHf = 10 Hz·1001 (single-pole closed form).
-    let b = api::closed_loop_bandwidth(obj(r#"{"gain": 1e5, "polesHz": [10]}"#), 0.01.into()).unwrap();
+    let b =
+        api::closed_loop_bandwidth(obj(r#"{"gain": 1e5, "polesHz": [10]}"#), 0.01.into()).unwrap();
     assert!((num(&b, "highHz") / 10_010.0 - 1.0).abs() < 1e-9);
     assert!(field(&b, "lowHz").is_null() && field(&b, "peakHz").is_null());
 
     // β as a model object (a feedback capacitor's zero) is accepted too.
     let beta = obj(r#"{"gain": 0.1, "zerosHz": [2e5], "polesHz": [2e6]}"#);
-    let m = api::stability_margins(obj(r#"{"gain": 1e5, "polesHz": [10, 1e6, 1e7]}"#), beta).unwrap();
+    let m =
+        api::stability_margins(obj(r#"{"gain": 1e5, "polesHz": [10, 1e6, 1e7]}"#), beta).unwrap();
     assert!(num(&m, "phaseMarginDeg") > 0.0);
 
     // No crossover: the margin is null (unbounded), not an error.
-    let small = api::stability_margins(obj(r#"{"gain": 0.5, "polesHz": [1e3]}"#), 1.0.into()).unwrap();
+    let small =
+        api::stability_margins(obj(r#"{"gain": 0.5, "polesHz": [1e3]}"#), 1.0.into()).unwrap();
     assert!(field(&small, "phaseMarginDeg").is_null());
 }
 
 #[wasm_bindgen_test]
 fn step_response_has_metrics_and_a_waveform() {
     // Single pole: 10–90 % rise = ln 9·τ with τ = 1/(2π·10 010 Hz), no overshoot.
-    let s = api::step_response(obj(r#"{"gain": 1e5, "polesHz": [10]}"#), 0.01.into(), 0.02, 300).unwrap();
+    let s = api::step_response(
+        obj(r#"{"gain": 1e5, "polesHz": [10]}"#),
+        0.01.into(),
+        0.02,
+        300,
+    )
+    .unwrap();
     let tau = 1.0 / (core::f64::consts::TAU * 10_010.0);
     assert!((num(&s, "riseTimeS") / (9f64.ln() * tau) - 1.0).abs() < 1e-8);
     assert_eq!(num(&s, "overshootPercent"), 0.0);
@@ -108,32 +119,91 @@ fn closed_forms_and_compensation() {
     let r = api::two_pole_response(1e3, 1e6, 999.0).unwrap();
     // Q = √((1+T0)·f1·f2)/(f1+f2) (two-pole closed form).
     assert!((num(&r, "q") - (1e3f64 * 1e3 * 1e6).sqrt() / 1.001e6).abs() < 1e-12);
-    assert!((checked(api::single_pole_high_cutoff(10.0, 1e5, 0.01)).unwrap() - 10_010.0).abs() < 1e-9);
+    assert!(
+        (checked(api::single_pole_high_cutoff(10.0, 1e5, 0.01)).unwrap() - 10_010.0).abs() < 1e-9
+    );
     assert!((checked(api::single_pole_low_cutoff(100.0, 1e3, 0.099)).unwrap() - 1.0).abs() < 1e-12);
     assert_eq!(checked(api::gain_bandwidth(1e5, 10.0)).unwrap(), 1e6);
-    let c = api::dominant_pole_for_margin(obj(r#"{"gain": 1e5, "polesHz": [1e6, 1e7]}"#), 1.0, 60.0).unwrap();
+    let c =
+        api::dominant_pole_for_margin(obj(r#"{"gain": 1e5, "polesHz": [1e6, 1e7]}"#), 1.0, 60.0)
+            .unwrap();
     assert!((num(&c, "phaseMarginDeg") - 60.0).abs() < 1e-6);
-    let c = api::max_beta_for_margin(obj(r#"{"gain": 1e4, "polesHz": [1e3, 1e5, 1e6]}"#), 45.0, 1.0).unwrap();
+    let c = api::max_beta_for_margin(
+        obj(r#"{"gain": 1e4, "polesHz": [1e3, 1e5, 1e6]}"#),
+        45.0,
+        1.0,
+    )
+    .unwrap();
     assert!((num(&c, "phaseMarginDeg") - 45.0).abs() < 1e-6);
 }
 
 #[wasm_bindgen_test]
 fn bad_input_throws_typed_errors() {
     let a = obj(r#"{"gain": 1e5, "polesHz": [10]}"#);
-    assert_thrown(api::loop_gain_sweep(a.clone(), 0.1.into(), 10.0, 1.0, 10), "out_of_domain", "stop_hz");
-    assert_thrown(api::loop_gain_sweep(a.clone(), 0.1.into(), 1.0, 10.0, 100_001), "too_large", "points");
-    assert_thrown(api::stability_margins(obj(r#"{"gain": 1e5, "polesHz": [-10]}"#), 0.1.into()), "out_of_domain", "a.poles_hz");
     assert_thrown(
-        api::stability_margins(obj(r#"{"gain": 1e5, "complexPoles": [{"freqHz": 1e3, "q": 0}]}"#), 0.1.into()),
+        api::loop_gain_sweep(a.clone(), 0.1.into(), 10.0, 1.0, 10),
+        "out_of_domain",
+        "stop_hz",
+    );
+    assert_thrown(
+        api::loop_gain_sweep(a.clone(), 0.1.into(), 1.0, 10.0, 100_001),
+        "too_large",
+        "points",
+    );
+    assert_thrown(
+        api::stability_margins(obj(r#"{"gain": 1e5, "polesHz": [-10]}"#), 0.1.into()),
+        "out_of_domain",
+        "a.poles_hz",
+    );
+    assert_thrown(
+        api::stability_margins(
+            obj(r#"{"gain": 1e5, "complexPoles": [{"freqHz": 1e3, "q": 0}]}"#),
+            0.1.into(),
+        ),
         "out_of_domain",
         "a.complex_poles",
     );
-    assert_thrown(api::stability_margins(obj(r#"{"gain": 1e5, "poles": [10]}"#), 0.1.into()), "unknown_name", "a");
-    assert_thrown(api::stability_margins(obj(r#"{"gain": "big"}"#), 0.1.into()), "out_of_domain", "a");
-    assert_thrown(api::closed_loop_poles(a.clone(), obj(r#"{"gain": 0.1, "zerosHz": [1, 2]}"#)), "out_of_domain", "beta.zeros_hz");
-    assert_thrown(api::step_response(three_equal_poles(12.0), 1.0.into(), 0.02, 100), "unreachable", "closed_loop");
-    assert_thrown(api::two_pole_response(1e3, 1e6, -1.0), "out_of_domain", "t0");
-    assert_thrown(api::closed_loop_poles(a.clone(), obj(r#"{"gain": 0.1, "padeOrder": 4}"#)), "out_of_domain", "beta");
-    assert_thrown(api::closed_loop_poles(obj(r#"{"gain": 10, "delayS": 1e-6, "padeOrder": 0}"#), 0.1.into()), "out_of_domain", "pade_order");
-    assert_thrown(api::closed_loop_bandwidth(a, JsValue::from(f64::NAN)), "not_finite", "beta.gain");
+    assert_thrown(
+        api::stability_margins(obj(r#"{"gain": 1e5, "poles": [10]}"#), 0.1.into()),
+        "unknown_name",
+        "a",
+    );
+    assert_thrown(
+        api::stability_margins(obj(r#"{"gain": "big"}"#), 0.1.into()),
+        "out_of_domain",
+        "a",
+    );
+    assert_thrown(
+        api::closed_loop_poles(a.clone(), obj(r#"{"gain": 0.1, "zerosHz": [1, 2]}"#)),
+        "out_of_domain",
+        "beta.zeros_hz",
+    );
+    assert_thrown(
+        api::step_response(three_equal_poles(12.0), 1.0.into(), 0.02, 100),
+        "unreachable",
+        "closed_loop",
+    );
+    assert_thrown(
+        api::two_pole_response(1e3, 1e6, -1.0),
+        "out_of_domain",
+        "t0",
+    );
+    assert_thrown(
+        api::closed_loop_poles(a.clone(), obj(r#"{"gain": 0.1, "padeOrder": 4}"#)),
+        "out_of_domain",
+        "beta",
+    );
+    assert_thrown(
+        api::closed_loop_poles(
+            obj(r#"{"gain": 10, "delayS": 1e-6, "padeOrder": 0}"#),
+            0.1.into(),
+        ),
+        "out_of_domain",
+        "pade_order",
+    );
+    assert_thrown(
+        api::closed_loop_bandwidth(a, JsValue::from(f64::NAN)),
+        "not_finite",
+        "beta.gain",
+    );
 }

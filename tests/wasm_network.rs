@@ -20,11 +20,20 @@ include!("fixtures/network_montecarlo.rs");
 #[wasm_bindgen_test]
 fn standard_values_and_notation() {
     // IEC 60063 E12 (from memory): 4.7 and 5.6 neighbour 5.0.
-    assert_eq!(checked(api::standard_value("E12", 5000.0, "nearest")).unwrap(), 4700.0);
-    assert_eq!(checked(api::standard_value("e12", 5000.0, "up")).unwrap(), 5600.0);
+    assert_eq!(
+        checked(api::standard_value("E12", 5000.0, "nearest")).unwrap(),
+        4700.0
+    );
+    assert_eq!(
+        checked(api::standard_value("e12", 5000.0, "up")).unwrap(),
+        5600.0
+    );
     assert_eq!(checked(api::series_tolerance("E96")).unwrap(), 0.01);
     let n = api::standard_neighbours("E24", 50.0).unwrap();
-    assert_eq!((num(&n, "down"), num(&n, "up"), num(&n, "nearest")), (47.0, 51.0, 51.0));
+    assert_eq!(
+        (num(&n, "down"), num(&n, "up"), num(&n, "nearest")),
+        (47.0, 51.0, 51.0)
+    );
     assert_eq!(text(&n, "series"), "E24");
     // IEC 60062 letter codes (from memory): 4K7 = 4.7 kΩ, R47 = 0.47 Ω.
     assert_eq!(checked(api::parse_value("4k7")).unwrap(), 4700.0);
@@ -44,7 +53,18 @@ fn series_values_are_a_float64_array() {
 #[wasm_bindgen_test]
 fn best_pairs_are_ranked_objects() {
     // Gain 10 = 1 + 9: E24 has exact pairs (18 k/2.0 k, 27 k/3.0 k…).
-    let r = api::best_pairs("non-inverting", 10.0, "E24", 1e4, 1e5, None, Some(1e-3), "none", 5.0).unwrap();
+    let r = api::best_pairs(
+        "non-inverting",
+        10.0,
+        "E24",
+        1e4,
+        1e5,
+        None,
+        Some(1e-3),
+        "none",
+        5.0,
+    )
+    .unwrap();
     assert_eq!(text(&r, "network"), "non-inverting");
     assert_eq!(field(&r, "meetsMaxError"), JsValue::TRUE);
     let c: Array = field(&r, "candidates").dyn_into().unwrap();
@@ -56,7 +76,18 @@ fn best_pairs_are_ranked_objects() {
     assert!(field(&r2, "second").is_null());
     assert_eq!(num(&r2, "value") / num(&first, "r1"), 9.0);
     // An unreachable error target is a result with the best miss, not a throw.
-    let miss = api::best_pairs("divider", 0.123_456, "E3", 1e3, 2e3, None, Some(1e-9), "none", 3.0).unwrap();
+    let miss = api::best_pairs(
+        "divider",
+        0.123_456,
+        "E3",
+        1e3,
+        2e3,
+        None,
+        Some(1e-9),
+        "none",
+        3.0,
+    )
+    .unwrap();
     assert_eq!(field(&miss, "meetsMaxError"), JsValue::FALSE);
     assert!(Array::from(&field(&miss, "candidates")).length() >= 1);
     let single = api::single_resistor(0.05, "E24", Some(0.005), "parallel").unwrap();
@@ -66,12 +97,29 @@ fn best_pairs_are_ranked_objects() {
 
 #[wasm_bindgen_test]
 fn worst_case_names_the_corners() {
-    let w = api::worst_case("inverting", 10e3, 47e3, 0.01, 0.01, 5e4, 1e5, 2e5, 1e6, 75.0, 5.0).unwrap();
+    let w = api::worst_case(
+        "inverting",
+        10e3,
+        47e3,
+        0.01,
+        0.01,
+        5e4,
+        1e5,
+        2e5,
+        1e6,
+        75.0,
+        5.0,
+    )
+    .unwrap();
     let g = field(&w, "gain");
     let corner = field(&g, "minCorner");
     // |Af| is largest with R1 low, R2 high, A high (monotonic, see worstcase.rs).
     assert_eq!(
-        (text(&corner, "r1"), text(&corner, "r2"), text(&corner, "openLoopGain")),
+        (
+            text(&corner, "r1"),
+            text(&corner, "r2"),
+            text(&corner, "openLoopGain")
+        ),
         ("low".into(), "high".into(), "high".into())
     );
     assert!(num(&g, "min") < num(&g, "nominal") && num(&g, "nominal") < num(&g, "max"));
@@ -116,26 +164,62 @@ fn monte_carlo_equals_the_native_bits() {
         let p = Array::from(&field(&s, "percentiles"));
         assert_eq!(p.length(), 7);
         for j in 0..7u32 {
-            assert_eq!(num(&p.get(j), "value").to_bits(), want.percentiles[j as usize], "case {i} percentile {j}");
+            assert_eq!(
+                num(&p.get(j), "value").to_bits(),
+                want.percentiles[j as usize],
+                "case {i} percentile {j}"
+            );
         }
         let y = field(&s, "yieldFraction");
-        assert_eq!(y.as_f64().map(f64::to_bits), want.yield_fraction, "case {i} yield");
+        assert_eq!(
+            y.as_f64().map(f64::to_bits),
+            want.yield_fraction,
+            "case {i} yield"
+        );
         let h = field(&s, "histogram");
         let counts = Array::from(&field(&h, "counts"));
         assert_eq!(counts.length(), c.bins);
-        assert_eq!(counts.get(0).as_f64(), Some(f64::from(want.first_bin)), "case {i} first bin");
+        assert_eq!(
+            counts.get(0).as_f64(),
+            Some(f64::from(want.first_bin)),
+            "case {i} first bin"
+        );
         assert_eq!(Array::from(&field(&h, "edges")).length(), c.bins + 1);
     }
 }
 
 #[wasm_bindgen_test]
 fn bad_input_throws_typed_errors() {
-    assert_thrown(checked(api::standard_value("E25", 1.0, "nearest")), "unknown_name", "series");
-    assert_thrown(checked(api::standard_value("E24", f64::NAN, "nearest")), "not_finite", "value");
-    assert_thrown(checked(api::parse_value("4k7k")), "out_of_domain", "text");
-    assert_thrown(api::best_pairs("divider", 1.2, "E24", 1e3, 1e5, None, None, "none", 5.0), "out_of_domain", "target");
     assert_thrown(
-        api::worst_case("inverting", 10e3, 47e3, 0.0, 0.01, 5e4, 1e5, 2e5, 1e6, 75.0, 5.0),
+        checked(api::standard_value("E25", 1.0, "nearest")),
+        "unknown_name",
+        "series",
+    );
+    assert_thrown(
+        checked(api::standard_value("E24", f64::NAN, "nearest")),
+        "not_finite",
+        "value",
+    );
+    assert_thrown(checked(api::parse_value("4k7k")), "out_of_domain", "text");
+    assert_thrown(
+        api::best_pairs("divider", 1.2, "E24", 1e3, 1e5, None, None, "none", 5.0),
+        "out_of_domain",
+        "target",
+    );
+    assert_thrown(
+        api::worst_case(
+            "inverting",
+            10e3,
+            47e3,
+            0.0,
+            0.01,
+            5e4,
+            1e5,
+            2e5,
+            1e6,
+            75.0,
+            5.0,
+        ),
         "out_of_domain",
         "tol_r1",
     );

@@ -14,7 +14,10 @@ mod js;
 use js::{checked, field, num};
 
 fn error_code_param(e: JsValue) -> (String, String) {
-    (field(&e, "code").as_string().unwrap(), field(&e, "param").as_string().unwrap())
+    (
+        field(&e, "code").as_string().unwrap(),
+        field(&e, "param").as_string().unwrap(),
+    )
 }
 
 #[wasm_bindgen_test]
@@ -40,7 +43,10 @@ fn numeric_path_agrees_with_the_series_at_small_amplitude() {
     let harmonics: js_sys::Array = field(&s, "harmonics").dyn_into().unwrap();
     assert_eq!(harmonics.length(), 5);
     assert!((harmonics.get(0).as_f64().unwrap() - 0.1).abs() < 1e-5);
-    let y = checked(nonlinear::closed_loop_output(1000.0, 0.0, -1000.0, 0.01, 0.05)).unwrap();
+    let y = checked(nonlinear::closed_loop_output(
+        1000.0, 0.0, -1000.0, 0.01, 0.05,
+    ))
+    .unwrap();
     // The loop equation y = A(x − β·y) holds at the answer.
     let u = 0.05 - 0.01 * y;
     assert!((y - (1000.0 * u - 1000.0 * u * u * u)).abs() < 1e-12);
@@ -48,7 +54,8 @@ fn numeric_path_agrees_with_the_series_at_small_amplitude() {
 
 #[wasm_bindgen_test]
 fn validity_sweep_returns_typed_arrays_and_the_fold() {
-    let s = nonlinear::series_validity_sweep(100.0, 0.0, -100.0, 0.1, 1e-3, 10.0, 30, 0.1, 64).unwrap();
+    let s =
+        nonlinear::series_validity_sweep(100.0, 0.0, -100.0, 0.1, 1e-3, 10.0, 30, 0.1, 64).unwrap();
     let amps: Float64Array = field(&s, "amplitudes").dyn_into().unwrap();
     let hd3: Float64Array = field(&s, "numericHd3").dyn_into().unwrap();
     assert!(amps.length() > 2 && amps.length() < 30);
@@ -62,9 +69,15 @@ fn validity_sweep_returns_typed_arrays_and_the_fold() {
 #[wasm_bindgen_test]
 fn distortion_errors_are_thrown_with_code_and_param() {
     let e = nonlinear::closed_loop_spectrum(100.0, 0.0, -100.0, 0.1, 5.0, 64).unwrap_err();
-    assert_eq!(error_code_param(e), ("no_convergence".into(), "amplitude".into()));
+    assert_eq!(
+        error_code_param(e),
+        ("no_convergence".into(), "amplitude".into())
+    );
     let e = nonlinear::feedback_distortion(100.0, 1.0, 1.0, 0.01, 1.0, "peak").unwrap_err();
-    assert_eq!(error_code_param(e), ("unknown_name".into(), "amplitude_at".into()));
+    assert_eq!(
+        error_code_param(e),
+        ("unknown_name".into(), "amplitude_at".into())
+    );
     let e = nonlinear::closed_loop_series(f64::NAN, 1.0, 1.0, 0.1).unwrap_err();
     assert_eq!(error_code_param(e), ("not_finite".into(), "a1".into()));
     let e = nonlinear::closed_loop_spectrum(100.0, 0.0, -100.0, 0.1, 0.1, 100_000).unwrap_err();
@@ -80,7 +93,10 @@ fn slew_rate_limits() {
     assert!((v - 10.0).abs() < 1e-12);
     assert!((checked(nonlinear::required_slew_rate(10.0, f)).unwrap() - 0.5e6).abs() < 1e-6);
     let e = checked(nonlinear::full_power_bandwidth(0.5e6, -1.0)).unwrap_err();
-    assert_eq!(error_code_param(e), ("out_of_domain".into(), "v_peak".into()));
+    assert_eq!(
+        error_code_param(e),
+        ("out_of_domain".into(), "v_peak".into())
+    );
 }
 
 #[wasm_bindgen_test]
@@ -89,7 +105,10 @@ fn thermal_noise_of_one_kilohm() {
     let e = checked(noise::thermal_noise_density(1e3, 300.0)).unwrap();
     assert!((e * 1e9 - 4.07).abs() < 0.005);
     let err = checked(noise::thermal_noise_density(1e3, -1.0)).unwrap_err();
-    assert_eq!(error_code_param(err), ("out_of_domain".into(), "temperature_k".into()));
+    assert_eq!(
+        error_code_param(err),
+        ("out_of_domain".into(), "temperature_k".into())
+    );
 }
 
 #[wasm_bindgen_test]
@@ -116,7 +135,19 @@ fn stage_noise_integrates_over_the_single_pole_noise_bandwidth() {
     assert!((num(&r, "outputRms") / num(&r, "singlePoleEstimateRms") - 1.0).abs() < 1e-9);
     assert!((num(&r, "noiseBandwidthHz") / (std::f64::consts::FRAC_PI_2 * 1e5) - 1.0).abs() < 1e-9);
     assert!(field(&r, "fHigh").is_null());
-    let c = noise::stage_noise_contributions("inverting", 10e3, 1e3, 0.0, 300.0, 5e-9, 0.0, 1e-12, 0.0, 1e3).unwrap();
+    let c = noise::stage_noise_contributions(
+        "inverting",
+        10e3,
+        1e3,
+        0.0,
+        300.0,
+        5e-9,
+        0.0,
+        1e-12,
+        0.0,
+        1e3,
+    )
+    .unwrap();
     assert_eq!(num(&c, "signalGain"), -10.0);
     assert!((num(&c, "amplifierCurrentMinus") - 1e-12 * 10e3).abs() < 1e-24);
 }
@@ -161,11 +192,45 @@ fn noise_sweep_and_errors() {
         f64::INFINITY,
     )
     .unwrap_err();
-    assert_eq!(error_code_param(e), ("oscillation".into(), "extra_poles_hz".into()));
-    let e = noise::integrated_noise("inverting", 1e3, 1e3, 0.0, 300.0, -5e-9, 0.0, 0.0, 0.0, 20e6, &[], 0.0, 1e3)
-        .unwrap_err();
-    assert_eq!(error_code_param(e), ("out_of_domain".into(), "voltage_density".into()));
-    let e =
-        noise::integrated_noise("buffer", 1e3, 1e3, 0.0, 300.0, 5e-9, 0.0, 0.0, 0.0, 20e6, &[], 0.0, 1e3).unwrap_err();
+    assert_eq!(
+        error_code_param(e),
+        ("oscillation".into(), "extra_poles_hz".into())
+    );
+    let e = noise::integrated_noise(
+        "inverting",
+        1e3,
+        1e3,
+        0.0,
+        300.0,
+        -5e-9,
+        0.0,
+        0.0,
+        0.0,
+        20e6,
+        &[],
+        0.0,
+        1e3,
+    )
+    .unwrap_err();
+    assert_eq!(
+        error_code_param(e),
+        ("out_of_domain".into(), "voltage_density".into())
+    );
+    let e = noise::integrated_noise(
+        "buffer",
+        1e3,
+        1e3,
+        0.0,
+        300.0,
+        5e-9,
+        0.0,
+        0.0,
+        0.0,
+        20e6,
+        &[],
+        0.0,
+        1e3,
+    )
+    .unwrap_err();
     assert_eq!(error_code_param(e), ("unknown_name".into(), "kind".into()));
 }

@@ -51,7 +51,13 @@ fn error_values_carry_their_explanation() {
     ws.set_cell("B3", "=1+(2").unwrap();
     ws.set_cell("B4", "=B5").unwrap();
     ws.set_cell("B5", "=B4").unwrap();
-    let cases = [("B1", "#DIV/0!"), ("B2", "#VALUE!"), ("B3", "#SYNTAX!"), ("B4", "#CYCLE!"), ("B5", "#CYCLE!")];
+    let cases = [
+        ("B1", "#DIV/0!"),
+        ("B2", "#VALUE!"),
+        ("B3", "#SYNTAX!"),
+        ("B4", "#CYCLE!"),
+        ("B5", "#CYCLE!"),
+    ];
     for (a, code) in cases {
         let v = ws.value(a).unwrap();
         assert_eq!(text(&v, "kind"), "error", "{a}");
@@ -93,14 +99,25 @@ fn spills_names_and_ranges() {
 #[wasm_bindgen_test]
 fn names_object_lists_names_in_byte_order() {
     let mut ws = Worksheet::new();
-    for (name, cell) in [("gain", "A1"), ("Rload", "B2"), ("beta", "A3"), ("Zout", "C4")] {
+    for (name, cell) in [
+        ("gain", "A1"),
+        ("Rload", "B2"),
+        ("beta", "A3"),
+        ("Zout", "C4"),
+    ] {
         ws.set_name(name, cell).unwrap();
     }
     // Keys in byte order of the name as written (upper case before lower case), the
     // order the object had when it was a serialized BTreeMap.
     let json = JSON::stringify(&ws.names().unwrap()).unwrap();
-    assert_eq!(String::from(json), r#"{"Rload":"B2","Zout":"C4","beta":"A3","gain":"A1"}"#);
-    assert_eq!(String::from(JSON::stringify(&Worksheet::new().names().unwrap()).unwrap()), "{}");
+    assert_eq!(
+        String::from(json),
+        r#"{"Rload":"B2","Zout":"C4","beta":"A3","gain":"A1"}"#
+    );
+    assert_eq!(
+        String::from(JSON::stringify(&Worksheet::new().names().unwrap()).unwrap()),
+        "{}"
+    );
 }
 
 #[wasm_bindgen_test]
@@ -128,7 +145,10 @@ fn document_round_trip_and_refusal() {
     assert_eq!(other.save_document(), doc);
 
     // RFC 4180 §2: a field holding quotes is quoted, its quotes doubled.
-    assert_eq!(other.to_csv(), "4700,\"text with \"\"quotes\"\"\"\r\n9400,\r\n");
+    assert_eq!(
+        other.to_csv(),
+        "4700,\"text with \"\"quotes\"\"\"\r\n9400,\r\n"
+    );
     let tsv = other.range_to_tsv("A1:A2").unwrap();
     assert_eq!(tsv, "4700\n9400\n");
     let pasted = strings(&other.paste_tsv("C1", &tsv).unwrap());
@@ -146,7 +166,9 @@ fn the_catalog_is_json_with_examples() {
     for f in list.iter() {
         let example = Array::from(&field(&f, "examples")).get(0);
         let expected = field(&example, "expected");
-        let Ok(arr) = expected.dyn_into::<Array>() else { continue };
+        let Ok(arr) = expected.dyn_into::<Array>() else {
+            continue;
+        };
         if arr.length() != 1 {
             continue;
         }
@@ -155,8 +177,16 @@ fn the_catalog_is_json_with_examples() {
         let got = num(&ws.value("A1").unwrap(), "number");
         // Stated to 16 significant digits in the catalog; a value the core finds by
         // a search or by sampling carries its own tolerance there.
-        let tol = Array::from(&field(&example, "tolerance")).get(0).as_f64().unwrap_or(0.0).max(1e-13);
-        assert!((got - want).abs() <= tol * want.abs(), "{}: {got} vs {want}", text(&f, "name"));
+        let tol = Array::from(&field(&example, "tolerance"))
+            .get(0)
+            .as_f64()
+            .unwrap_or(0.0)
+            .max(1e-13);
+        assert!(
+            (got - want).abs() <= tol * want.abs(),
+            "{}: {got} vs {want}",
+            text(&f, "name")
+        );
     }
 }
 
@@ -177,5 +207,9 @@ fn area_functions_spill_and_explain_errors() {
     ws.set_cell("C5", "=NOISE.THERMAL(B5; 300)").unwrap();
     let v = ws.value("C5").unwrap();
     assert_eq!(text(&v, "error"), "#NUM!");
-    assert!(text(&v, "message").starts_with("NOISE.THERMAL: r: "), "{}", text(&v, "message"));
+    assert!(
+        text(&v, "message").starts_with("NOISE.THERMAL: r: "),
+        "{}",
+        text(&v, "message")
+    );
 }

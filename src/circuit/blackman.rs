@@ -52,10 +52,19 @@ impl Output<'_> {
 /// The controlled source's index, gain and control.
 fn controlled(c: &Circuit, name: &str) -> CircuitResult<(usize, f64, Control)> {
     let i = c.element_index(name)?;
-    let e = c.elements().get(i).ok_or(CircuitError::from(Error::UnknownName { param: "controlled", expected: "" }))?;
+    let e = c
+        .elements()
+        .get(i)
+        .ok_or(CircuitError::from(Error::UnknownName {
+            param: "controlled",
+            expected: "",
+        }))?;
     if !e.kind().is_controlled() {
         return Err(CircuitError::new(
-            Error::OutOfDomain { param: "controlled", requirement: "must name a controlled source (vcvs, vccs, ccvs, cccs)" },
+            Error::OutOfDomain {
+                param: "controlled",
+                requirement: "must name a controlled source (vcvs, vccs, ccvs, cccs)",
+            },
             e.name(),
         ));
     }
@@ -68,7 +77,10 @@ fn control_value(c: &Circuit, control: Control, s: &Solution) -> CircuitResult<C
     match control {
         Control::Nodes([p, n]) => s.voltage_between(node(p), node(n)),
         Control::Element(name) => s.current(name.as_str()),
-        Control::None => Err(CircuitError::from(Error::OutOfDomain { param: "controlled", requirement: "has no control" })),
+        Control::None => Err(CircuitError::from(Error::OutOfDomain {
+            param: "controlled",
+            requirement: "has no control",
+        })),
     }
 }
 
@@ -109,7 +121,12 @@ fn solve_opened(
 /// assert!((t.re - 9.9).abs() < 1e-12);
 /// assert_eq!(return_ratio(&c, "R1", None, 0.0).unwrap_err().error.param(), "controlled");
 /// ```
-pub fn return_ratio(c: &Circuit, controlled_name: &str, short: Option<(&str, &str)>, frequency_hz: f64) -> CircuitResult<Complex64> {
+pub fn return_ratio(
+    c: &Circuit,
+    controlled_name: &str,
+    short: Option<(&str, &str)>,
+    frequency_hz: f64,
+) -> CircuitResult<Complex64> {
     let (i, k, control) = controlled(c, controlled_name)?;
     let mut c0 = c.clone();
     c0.zero_sources();
@@ -163,20 +180,41 @@ pub struct BlackmanImpedance {
 /// assert!(z.relative_error < 1e-12);
 /// assert!(blackman_impedance(&c, "E", "p", "nowhere", 0.0).is_err());
 /// ```
-pub fn blackman_impedance(c: &Circuit, controlled_name: &str, plus: &str, minus: &str, frequency_hz: f64) -> CircuitResult<BlackmanImpedance> {
+pub fn blackman_impedance(
+    c: &Circuit,
+    controlled_name: &str,
+    plus: &str,
+    minus: &str,
+    frequency_hz: f64,
+) -> CircuitResult<BlackmanImpedance> {
     let (i, _, _) = controlled(c, controlled_name)?;
     let exact = port_impedance(c, plus, minus, frequency_hz)?;
     let name = c.elements().get(i).map(|e| e.name()).unwrap_or(Name::EMPTY);
-    let z0 = port_impedance(&c.with_value(name.as_str(), 0.0)?, plus, minus, frequency_hz)?;
+    let z0 = port_impedance(
+        &c.with_value(name.as_str(), 0.0)?,
+        plus,
+        minus,
+        frequency_hz,
+    )?;
     let t_short = return_ratio(c, controlled_name, Some((plus, minus)), frequency_hz)?;
     let t_open = return_ratio(c, controlled_name, None, frequency_hz)?;
     let one = Complex64::new(1.0, 0.0);
     let d_open = one + t_open;
     if d_open.norm() <= 4.0 * f64::EPSILON * (1.0 + t_open.norm()) {
-        return Err(CircuitError::new(Error::Oscillation { param: "t_open" }, name));
+        return Err(CircuitError::new(
+            Error::Oscillation { param: "t_open" },
+            name,
+        ));
     }
     let blackman = check::result_complex("blackman", z0 * (one + t_short) / d_open)?;
-    Ok(BlackmanImpedance { z0, t_short, t_open, blackman, exact, relative_error: relative_error(blackman, exact)? })
+    Ok(BlackmanImpedance {
+        z0,
+        t_short,
+        t_open,
+        blackman,
+        exact,
+        relative_error: relative_error(blackman, exact)?,
+    })
 }
 
 /// The asymptotic-gain decomposition of a transfer, beside the direct solve.
@@ -224,7 +262,13 @@ pub struct AsymptoticGain {
 /// assert!(g.relative_error < 1e-12);
 /// assert!(asymptotic_gain(&c, "E", "R1", Output::Voltage("o", "0"), 0.0).is_err());
 /// ```
-pub fn asymptotic_gain(c: &Circuit, controlled_name: &str, source: &str, output: Output<'_>, frequency_hz: f64) -> CircuitResult<AsymptoticGain> {
+pub fn asymptotic_gain(
+    c: &Circuit,
+    controlled_name: &str,
+    source: &str,
+    output: Output<'_>,
+    frequency_hz: f64,
+) -> CircuitResult<AsymptoticGain> {
     let (i, k, control) = controlled(c, controlled_name)?;
     let name = c.elements().get(i).map(|e| e.name()).unwrap_or(Name::EMPTY);
     let (with_source, _) = unit_source(c, source)?;
@@ -240,7 +284,10 @@ pub fn asymptotic_gain(c: &Circuit, controlled_name: &str, source: &str, output:
     let t = check::result_complex("t", -(k * d))?;
     if d == Complex64::new(0.0, 0.0) {
         return Err(CircuitError::new(
-            Error::Unreachable { param: "t", reason: "the controlled source does not reach its own control, so there is no loop" },
+            Error::Unreachable {
+                param: "t",
+                reason: "the controlled source does not reach its own control, so there is no loop",
+            },
             name,
         ));
     }
@@ -251,7 +298,14 @@ pub fn asymptotic_gain(c: &Circuit, controlled_name: &str, source: &str, output:
         return Err(CircuitError::new(Error::Oscillation { param: "t" }, name));
     }
     let af = check::result_complex("af", g_inf * t / dd + a / dd)?;
-    Ok(AsymptoticGain { g_inf, g0: a, t, af, exact, relative_error: relative_error(af, exact)? })
+    Ok(AsymptoticGain {
+        g_inf,
+        g0: a,
+        t,
+        af,
+        exact,
+        relative_error: relative_error(af, exact)?,
+    })
 }
 
 /// Blackman and asymptotic-gain views of a template stage.
@@ -283,7 +337,11 @@ pub fn stage_views(spec: &StageSpec, frequency_hz: f64) -> CircuitResult<StageVi
     let input = blackman_impedance(&no_source, "A", "in", "0", frequency_hz)?;
     let (p, m) = stage.load_port;
     let output = blackman_impedance(&stage.circuit.without("Rl")?, "A", p, m, frequency_hz)?;
-    Ok(StageViews { gain, input, output })
+    Ok(StageViews {
+        gain,
+        input,
+        output,
+    })
 }
 
 #[cfg(test)]
@@ -305,16 +363,41 @@ mod tests {
             };
             let spec = StageSpec {
                 topology: t,
-                amplifier: AmplifierModel { ri, ro: 1e3, gain, ci: 10e-12, co: 5e-12 },
-                network: FeedbackNetwork { rf: 1e4, rg, cf: 2e-12 },
+                amplifier: AmplifierModel {
+                    ri,
+                    ro: 1e3,
+                    gain,
+                    ci: 10e-12,
+                    co: 5e-12,
+                },
+                network: FeedbackNetwork {
+                    rf: 1e4,
+                    rg,
+                    cf: 2e-12,
+                },
                 rs: 1e3,
                 rl: 2e3,
             };
             for f in [0.0, 1e6] {
                 let v = stage_views(&spec, f).unwrap();
-                assert!(v.gain.relative_error < 1e-10, "{} {f}: {}", t.name(), v.gain.relative_error);
-                assert!(v.input.relative_error < 1e-10, "{} {f}: {}", t.name(), v.input.relative_error);
-                assert!(v.output.relative_error < 1e-10, "{} {f}: {}", t.name(), v.output.relative_error);
+                assert!(
+                    v.gain.relative_error < 1e-10,
+                    "{} {f}: {}",
+                    t.name(),
+                    v.gain.relative_error
+                );
+                assert!(
+                    v.input.relative_error < 1e-10,
+                    "{} {f}: {}",
+                    t.name(),
+                    v.input.relative_error
+                );
+                assert!(
+                    v.output.relative_error < 1e-10,
+                    "{} {f}: {}",
+                    t.name(),
+                    v.output.relative_error
+                );
                 assert!(v.gain.t.re > 1.0, "{}", t.name());
             }
         }

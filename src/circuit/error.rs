@@ -29,7 +29,10 @@ pub struct Name {
 
 impl Name {
     /// The empty name, used when an error concerns no node or element.
-    pub const EMPTY: Name = Name { bytes: [0; MAX_NAME_LEN], len: 0 };
+    pub const EMPTY: Name = Name {
+        bytes: [0; MAX_NAME_LEN],
+        len: 0,
+    };
 
     /// A validated name.
     ///
@@ -40,12 +43,27 @@ impl Name {
     pub fn new(text: &str) -> Result<Name, CircuitError> {
         let shown = Name::truncated(text);
         if text.is_empty() {
-            return Err(CircuitError::new(Error::OutOfDomain { param: "name", requirement: "must not be empty" }, shown));
+            return Err(CircuitError::new(
+                Error::OutOfDomain {
+                    param: "name",
+                    requirement: "must not be empty",
+                },
+                shown,
+            ));
         }
         if text.len() > MAX_NAME_LEN {
-            return Err(CircuitError::new(Error::TooLarge { param: "name", limit: MAX_NAME_LEN as u64 }, shown));
+            return Err(CircuitError::new(
+                Error::TooLarge {
+                    param: "name",
+                    limit: MAX_NAME_LEN as u64,
+                },
+                shown,
+            ));
         }
-        if !text.bytes().all(|b| b.is_ascii_alphanumeric() || b"_.:+-/".contains(&b)) {
+        if !text
+            .bytes()
+            .all(|b| b.is_ascii_alphanumeric() || b"_.:+-/".contains(&b))
+        {
             return Err(CircuitError::new(
                 Error::OutOfDomain {
                     param: "name",
@@ -138,13 +156,19 @@ impl CircuitError {
 
     /// Pair an error with a name given as text (cut to [`MAX_NAME_LEN`]).
     pub fn named(error: Error, name: &str) -> CircuitError {
-        CircuitError { error, name: Name::truncated(name) }
+        CircuitError {
+            error,
+            name: Name::truncated(name),
+        }
     }
 }
 
 impl From<Error> for CircuitError {
     fn from(error: Error) -> Self {
-        CircuitError { error, name: Name::EMPTY }
+        CircuitError {
+            error,
+            name: Name::EMPTY,
+        }
     }
 }
 
@@ -201,10 +225,19 @@ mod tests {
 
     #[test]
     fn display_puts_the_name_first() {
-        let e = CircuitError::named(Error::OutOfDomain { param: "value", requirement: "must be greater than zero" }, "R3");
+        let e = CircuitError::named(
+            Error::OutOfDomain {
+                param: "value",
+                requirement: "must be greater than zero",
+            },
+            "R3",
+        );
         assert_eq!(e.to_string(), "R3: value: must be greater than zero");
         let plain: Error = e.into();
         assert_eq!(plain.param(), "value");
-        assert_eq!(CircuitError::from(Error::NotFinite { param: "f" }).to_string(), "f: must be a finite number, not NaN or infinity");
+        assert_eq!(
+            CircuitError::from(Error::NotFinite { param: "f" }).to_string(),
+            "f: must be a finite number, not NaN or infinity"
+        );
     }
 }

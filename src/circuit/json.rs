@@ -46,11 +46,27 @@ fn err(error: Error) -> CircuitError {
 }
 
 fn text<'a>(v: Option<&'a Value>, param: &'static str, name: Name) -> CircuitResult<&'a str> {
-    v.and_then(Value::as_str).ok_or(CircuitError::new(Error::OutOfDomain { param, requirement: "must be a text" }, name))
+    v.and_then(Value::as_str).ok_or(CircuitError::new(
+        Error::OutOfDomain {
+            param,
+            requirement: "must be a text",
+        },
+        name,
+    ))
 }
 
-fn pair<'a>(v: Option<&'a Value>, param: &'static str, name: Name) -> CircuitResult<(&'a str, &'a str)> {
-    let bad = CircuitError::new(Error::OutOfDomain { param, requirement: "must be a list of two node names" }, name);
+fn pair<'a>(
+    v: Option<&'a Value>,
+    param: &'static str,
+    name: Name,
+) -> CircuitResult<(&'a str, &'a str)> {
+    let bad = CircuitError::new(
+        Error::OutOfDomain {
+            param,
+            requirement: "must be a list of two node names",
+        },
+        name,
+    );
     match v.and_then(Value::as_array).map(Vec::as_slice) {
         Some([a, b]) => Ok((a.as_str().ok_or(bad)?, b.as_str().ok_or(bad)?)),
         _ => Err(bad),
@@ -64,7 +80,10 @@ fn number(v: Option<&Value>, param: &'static str, name: Name) -> CircuitResult<f
             .ok_or(CircuitError::new(Error::NotFinite { param }, name)),
         Some(Value::String(s)) => parse_value(param, s).named(name),
         _ => Err(CircuitError::new(
-            Error::OutOfDomain { param, requirement: "must be a number or a value text such as 4k7 or 100n" },
+            Error::OutOfDomain {
+                param,
+                requirement: "must be a number or a value text such as 4k7 or 100n",
+            },
             name,
         )),
     }
@@ -92,27 +111,42 @@ fn number(v: Option<&Value>, param: &'static str, name: Name) -> CircuitResult<f
 /// ```
 pub fn read_circuit(json: &str) -> CircuitResult<Circuit> {
     if json.len() > MAX_JSON_LEN {
-        return Err(err(Error::TooLarge { param: "json", limit: MAX_JSON_LEN as u64 }));
+        return Err(err(Error::TooLarge {
+            param: "json",
+            limit: MAX_JSON_LEN as u64,
+        }));
     }
     let doc: Value = serde_json::from_str(json).map_err(|e| {
         CircuitError::named(
-            Error::OutOfDomain { param: "json", requirement: "must be valid JSON text (the name gives line:column)" },
+            Error::OutOfDomain {
+                param: "json",
+                requirement: "must be valid JSON text (the name gives line:column)",
+            },
             &alloc::format!("{}:{}", e.line(), e.column()),
         )
     })?;
-    let obj = doc
-        .as_object()
-        .ok_or(err(Error::OutOfDomain { param: "json", requirement: "must be a JSON object" }))?;
-    reject_unknown(obj, &["format", "version", "nodes", "elements"], DOCUMENT_FIELDS)?;
+    let obj = doc.as_object().ok_or(err(Error::OutOfDomain {
+        param: "json",
+        requirement: "must be a JSON object",
+    }))?;
+    reject_unknown(
+        obj,
+        &["format", "version", "nodes", "elements"],
+        DOCUMENT_FIELDS,
+    )?;
     if obj.get("format").and_then(Value::as_str) != Some(FORMAT) {
-        return Err(err(Error::UnknownName { param: "format", expected: FORMAT }));
+        return Err(err(Error::UnknownName {
+            param: "format",
+            expected: FORMAT,
+        }));
     }
     match obj.get("version").and_then(Value::as_u64) {
         Some(VERSION) => {}
         _ => {
             return Err(err(Error::OutOfDomain {
                 param: "version",
-                requirement: "must be 1, the version of the loopwright-circuit format this reader knows",
+                requirement:
+                    "must be 1, the version of the loopwright-circuit format this reader knows",
             }))
         }
     }
@@ -124,21 +158,33 @@ pub fn read_circuit(json: &str) -> CircuitResult<Circuit> {
                 requirement: "must be a list of node names",
             }))?;
             if list.len() > MAX_NODES + 1 {
-                return Err(err(Error::TooLarge { param: "nodes", limit: MAX_NODES as u64 }));
+                return Err(err(Error::TooLarge {
+                    param: "nodes",
+                    limit: MAX_NODES as u64,
+                }));
             }
             let mut names: Vec<&str> = Vec::with_capacity(list.len());
             for v in list {
-                names.push(v.as_str().ok_or(err(Error::OutOfDomain { param: "nodes", requirement: "must be a list of node names" }))?);
+                names.push(v.as_str().ok_or(err(Error::OutOfDomain {
+                    param: "nodes",
+                    requirement: "must be a list of node names",
+                }))?);
             }
             Circuit::with_nodes(&names)?
         }
     };
-    let elements = obj
-        .get("elements")
-        .and_then(Value::as_array)
-        .ok_or(err(Error::OutOfDomain { param: "elements", requirement: "must be a list of elements" }))?;
+    let elements =
+        obj.get("elements")
+            .and_then(Value::as_array)
+            .ok_or(err(Error::OutOfDomain {
+                param: "elements",
+                requirement: "must be a list of elements",
+            }))?;
     if elements.len() > MAX_ELEMENTS {
-        return Err(err(Error::TooLarge { param: "elements", limit: MAX_ELEMENTS as u64 }));
+        return Err(err(Error::TooLarge {
+            param: "elements",
+            limit: MAX_ELEMENTS as u64,
+        }));
     }
     for (i, e) in elements.iter().enumerate() {
         read_element(&mut circuit, e, i)?;
@@ -146,10 +192,20 @@ pub fn read_circuit(json: &str) -> CircuitResult<Circuit> {
     Ok(circuit)
 }
 
-fn reject_unknown(obj: &Map<String, Value>, known: &[&str], expected: &'static str) -> CircuitResult<()> {
+fn reject_unknown(
+    obj: &Map<String, Value>,
+    known: &[&str],
+    expected: &'static str,
+) -> CircuitResult<()> {
     for key in obj.keys() {
         if !known.contains(&key.as_str()) {
-            return Err(CircuitError::named(Error::UnknownName { param: "field", expected }, key));
+            return Err(CircuitError::named(
+                Error::UnknownName {
+                    param: "field",
+                    expected,
+                },
+                key,
+            ));
         }
     }
     Ok(())
@@ -157,12 +213,28 @@ fn reject_unknown(obj: &Map<String, Value>, known: &[&str], expected: &'static s
 
 fn read_element(circuit: &mut Circuit, e: &Value, index: usize) -> CircuitResult<()> {
     let place = Name::truncated(&alloc::format!("elements[{index}]"));
-    let obj = e
-        .as_object()
-        .ok_or(CircuitError::new(Error::OutOfDomain { param: "element", requirement: "must be a JSON object" }, place))?;
+    let obj = e.as_object().ok_or(CircuitError::new(
+        Error::OutOfDomain {
+            param: "element",
+            requirement: "must be a JSON object",
+        },
+        place,
+    ))?;
     let name_text = text(obj.get("name"), "name", place)?;
     let name = Name::new(name_text)?;
-    reject_unknown(obj, &["name", "kind", "nodes", "value", "valueIm", "control", "controlElement"], ELEMENT_FIELDS)?;
+    reject_unknown(
+        obj,
+        &[
+            "name",
+            "kind",
+            "nodes",
+            "value",
+            "valueIm",
+            "control",
+            "controlElement",
+        ],
+        ELEMENT_FIELDS,
+    )?;
     let kind = ElementKind::from_name(text(obj.get("kind"), "kind", name)?).named(name)?;
     let (a, b) = pair(obj.get("nodes"), "nodes", name)?;
     let value = number(obj.get("value"), "value", name)?;
@@ -173,7 +245,10 @@ fn read_element(circuit: &mut Circuit, e: &Value, index: usize) -> CircuitResult
     let control = match (obj.get("control"), obj.get("controlElement")) {
         (Some(_), Some(_)) => {
             return Err(CircuitError::new(
-                Error::OutOfDomain { param: "control", requirement: "give either control or controlElement, not both" },
+                Error::OutOfDomain {
+                    param: "control",
+                    requirement: "give either control or controlElement, not both",
+                },
                 name,
             ))
         }
@@ -181,10 +256,15 @@ fn read_element(circuit: &mut Circuit, e: &Value, index: usize) -> CircuitResult
             let (p, n) = pair(Some(c), "control", name)?;
             Some(ControlSpec::Nodes(p, n))
         }
-        (None, Some(c)) => Some(ControlSpec::Element(c.as_str().ok_or(CircuitError::new(
-            Error::OutOfDomain { param: "controlElement", requirement: "must be an element name" },
-            name,
-        ))?)),
+        (None, Some(c)) => Some(ControlSpec::Element(c.as_str().ok_or(
+            CircuitError::new(
+                Error::OutOfDomain {
+                    param: "controlElement",
+                    requirement: "must be an element name",
+                },
+                name,
+            ),
+        )?)),
         (None, None) => None,
     };
     circuit.add_element(name_text, kind, a, b, control, value, value_im)
@@ -200,7 +280,16 @@ pub fn write_circuit(c: &Circuit) -> String {
     doc.insert("format".into(), Value::from(FORMAT));
     doc.insert("version".into(), Value::from(VERSION));
     if c.declares_nodes() {
-        doc.insert("nodes".into(), Value::Array(c.nodes().iter().skip(1).map(|n| Value::from(n.as_str())).collect()));
+        doc.insert(
+            "nodes".into(),
+            Value::Array(
+                c.nodes()
+                    .iter()
+                    .skip(1)
+                    .map(|n| Value::from(n.as_str()))
+                    .collect(),
+            ),
+        );
     }
     let mut list = Vec::with_capacity(c.elements().len());
     for e in c.elements() {
@@ -208,10 +297,16 @@ pub fn write_circuit(c: &Circuit) -> String {
         m.insert("name".into(), Value::from(e.name().as_str()));
         m.insert("kind".into(), Value::from(e.kind().name()));
         let [a, b] = e.nodes();
-        m.insert("nodes".into(), Value::Array(alloc::vec![node_name(a), node_name(b)]));
+        m.insert(
+            "nodes".into(),
+            Value::Array(alloc::vec![node_name(a), node_name(b)]),
+        );
         match e.control() {
             Control::Nodes([p, n]) => {
-                m.insert("control".into(), Value::Array(alloc::vec![node_name(p), node_name(n)]));
+                m.insert(
+                    "control".into(),
+                    Value::Array(alloc::vec![node_name(p), node_name(n)]),
+                );
             }
             Control::Element(n) => {
                 m.insert("controlElement".into(), Value::from(n.as_str()));
@@ -258,7 +353,11 @@ mod tests {
         assert_eq!(back, c);
         assert_eq!(write_circuit(&back), text);
         // Declared nodes survive the round trip too.
-        let strict = DOC.replacen("\"version\":1,", "\"version\":1,\"nodes\":[\"in\",\"out\",\"x\",\"y\"],", 1);
+        let strict = DOC.replacen(
+            "\"version\":1,",
+            "\"version\":1,\"nodes\":[\"in\",\"out\",\"x\",\"y\"],",
+            1,
+        );
         let c = read_circuit(&strict).unwrap();
         assert!(c.declares_nodes());
         assert_eq!(read_circuit(&write_circuit(&c)).unwrap(), c);
@@ -274,7 +373,10 @@ mod tests {
         assert_eq!(c.element("Rg").unwrap().value(), 4700.0);
         assert_eq!(c.element("Rs").unwrap().value(), 600.0);
         // A non-inverting stage of gain near 1 + 47k/4k7 = 11 at low frequency.
-        let v = crate::circuit::solve(&c, 10.0).unwrap().voltage("out").unwrap();
+        let v = crate::circuit::solve(&c, 10.0)
+            .unwrap()
+            .voltage("out")
+            .unwrap();
         assert!((v.norm() - 11.0).abs() < 0.01, "{v}");
     }
 
@@ -283,22 +385,36 @@ mod tests {
         let e = |doc: &str| read_circuit(doc).unwrap_err();
         assert_eq!(e("{").error.param(), "json");
         assert_eq!(e("[]").error.param(), "json");
-        assert_eq!(e(&DOC.replace("loopwright-circuit", "other")).error.param(), "format");
-        assert_eq!(e(&DOC.replace("\"version\":1", "\"version\":7")).error.param(), "version");
+        assert_eq!(
+            e(&DOC.replace("loopwright-circuit", "other")).error.param(),
+            "format"
+        );
+        assert_eq!(
+            e(&DOC.replace("\"version\":1", "\"version\":7"))
+                .error
+                .param(),
+            "version"
+        );
         let x = e(&DOC.replace("\"value\":\"4k7\"", "\"value\":\"-4k7\""));
         assert_eq!((x.name.as_str(), x.error.param()), ("R1", "value"));
         let x = e(&DOC.replace("\"name\":\"C1\"", "\"name\":\"R1\""));
         assert_eq!((x.name.as_str(), x.error.param()), ("R1", "name"));
         // Unknown control elements are found when the circuit is solved (the
         // control may be listed after the source that uses it).
-        let c = read_circuit(&DOC.replace("\"controlElement\":\"V1\"", "\"controlElement\":\"V9\"")).unwrap();
+        let c =
+            read_circuit(&DOC.replace("\"controlElement\":\"V1\"", "\"controlElement\":\"V9\""))
+                .unwrap();
         let x = crate::circuit::solve(&c, 1.0).unwrap_err();
         assert_eq!((x.name.as_str(), x.error.param()), ("V9", "controlElement"));
         let x = e(&DOC.replace("\"kind\":\"inductor\"", "\"kind\":\"coil\""));
         assert_eq!((x.name.as_str(), x.error.param()), ("L1", "kind"));
         let x = e(&DOC.replace("\"value\":1e5", "\"value\":1e5,\"gain\":2"));
         assert_eq!((x.name.as_str(), x.error.param()), ("gain", "field"));
-        let strict = DOC.replacen("\"version\":1,", "\"version\":1,\"nodes\":[\"in\",\"out\",\"x\"],", 1);
+        let strict = DOC.replacen(
+            "\"version\":1,",
+            "\"version\":1,\"nodes\":[\"in\",\"out\",\"x\"],",
+            1,
+        );
         let x = e(&strict);
         assert_eq!((x.name.as_str(), x.error.code()), ("y", "unknown_name"));
         let x = e(&DOC.replace("\"nodes\":[\"in\",\"out\"]", "\"nodes\":[\"in\"]"));

@@ -115,7 +115,13 @@ impl Lu {
                 }
             }
         }
-        Ok(Lu { n, a, perm, row_scale, col_scale })
+        Ok(Lu {
+            n,
+            a,
+            perm,
+            row_scale,
+            col_scale,
+        })
     }
 
     /// Solve A·x = b for one right-hand side (length n), returning x.
@@ -125,7 +131,10 @@ impl Lu {
         let mut x: Vec<Complex64> = self
             .perm
             .iter()
-            .map(|&p| b.get(p).copied().unwrap_or_default() * self.row_scale.get(p).copied().unwrap_or(1.0))
+            .map(|&p| {
+                b.get(p).copied().unwrap_or_default()
+                    * self.row_scale.get(p).copied().unwrap_or(1.0)
+            })
             .collect();
         let rows = self.a.chunks_exact(n);
         for (r, row) in rows.clone().enumerate() {
@@ -133,7 +142,11 @@ impl Lu {
             x[r] -= s;
         }
         for (r, row) in rows.enumerate().rev() {
-            let s: Complex64 = row[r + 1..].iter().zip(&x[r + 1..]).map(|(a, b)| a * b).sum();
+            let s: Complex64 = row[r + 1..]
+                .iter()
+                .zip(&x[r + 1..])
+                .map(|(a, b)| a * b)
+                .sum();
             x[r] = (x[r] - s) / row[r];
         }
         for (xi, &c) in x.iter_mut().zip(&self.col_scale) {
@@ -154,9 +167,21 @@ mod tests {
     #[test]
     fn solves_a_system_that_needs_pivoting() {
         // A has a zero in the (0,0) place, so elimination without row exchange fails.
-        let a = alloc::vec![c(0.0, 0.0), c(2.0, 1.0), c(1.0, 0.0), c(3.0, -1.0), c(1.0, 0.0), c(0.0, 2.0), c(1.0, 1.0), c(0.0, 0.0), c(4.0, 0.0)];
+        let a = alloc::vec![
+            c(0.0, 0.0),
+            c(2.0, 1.0),
+            c(1.0, 0.0),
+            c(3.0, -1.0),
+            c(1.0, 0.0),
+            c(0.0, 2.0),
+            c(1.0, 1.0),
+            c(0.0, 0.0),
+            c(4.0, 0.0)
+        ];
         let x_true = [c(1.0, -1.0), c(0.5, 2.0), c(-3.0, 0.25)];
-        let b: Vec<Complex64> = (0..3).map(|r| (0..3).map(|k| a[r * 3 + k] * x_true[k]).sum()).collect();
+        let b: Vec<Complex64> = (0..3)
+            .map(|r| (0..3).map(|k| a[r * 3 + k] * x_true[k]).sum())
+            .collect();
         let lu = Lu::factor(3, a).unwrap();
         let x = lu.solve(&b);
         for k in 0..3 {
@@ -170,6 +195,9 @@ mod tests {
         // Second column is twice the first: no pivot for column 1.
         let a = alloc::vec![c(1.0, 0.0), c(2.0, 0.0), c(3.0, 0.0), c(6.0, 0.0)];
         assert_eq!(Lu::factor(2, a).unwrap_err(), NoPivot { column: 1 });
-        assert_eq!(Lu::factor(2, alloc::vec![c(1.0, 0.0)]).unwrap_err(), NoPivot { column: 0 });
+        assert_eq!(
+            Lu::factor(2, alloc::vec![c(1.0, 0.0)]).unwrap_err(),
+            NoPivot { column: 0 }
+        );
     }
 }

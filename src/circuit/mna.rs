@@ -72,10 +72,17 @@ impl Solution {
         if n.is_ground() {
             return Ok(Complex64::new(0.0, 0.0));
         }
-        self.node_voltages.iter().find(|v| v.name == n).map(NamedValue::value).ok_or(CircuitError::new(
-            Error::UnknownName { param: "node", expected: "the name of a node of the circuit" },
-            n,
-        ))
+        self.node_voltages
+            .iter()
+            .find(|v| v.name == n)
+            .map(NamedValue::value)
+            .ok_or(CircuitError::new(
+                Error::UnknownName {
+                    param: "node",
+                    expected: "the name of a node of the circuit",
+                },
+                n,
+            ))
     }
 
     /// Voltage V(plus) − V(minus).
@@ -92,10 +99,17 @@ impl Solution {
     /// Unknown element name.
     pub fn current(&self, element: &str) -> CircuitResult<Complex64> {
         let n = Name::truncated(element);
-        self.element_currents.iter().find(|v| v.name == n).map(NamedValue::value).ok_or(CircuitError::new(
-            Error::UnknownName { param: "element", expected: "the name of an element of the circuit" },
-            n,
-        ))
+        self.element_currents
+            .iter()
+            .find(|v| v.name == n)
+            .map(NamedValue::value)
+            .ok_or(CircuitError::new(
+                Error::UnknownName {
+                    param: "element",
+                    expected: "the name of an element of the circuit",
+                },
+                n,
+            ))
     }
 }
 
@@ -149,7 +163,11 @@ fn control_element(c: &Circuit, name: Name, control: Name) -> CircuitResult<usiz
             e.name,
         )
     })?;
-    let kind = c.elements().get(j).map(|e| e.kind()).unwrap_or(ElementKind::Resistor);
+    let kind = c
+        .elements()
+        .get(j)
+        .map(|e| e.kind())
+        .unwrap_or(ElementKind::Resistor);
     if !kind.has_branch() {
         return Err(CircuitError::new(
             Error::OutOfDomain {
@@ -191,7 +209,12 @@ pub(crate) fn layout(c: &Circuit) -> CircuitResult<Layout> {
             _ => None,
         });
     }
-    Ok(Layout { nodes, branch, control, size: next })
+    Ok(Layout {
+        nodes,
+        branch,
+        control,
+        size: next,
+    })
 }
 
 /// Check for floating nodes and loops of voltage-defining elements.
@@ -260,17 +283,20 @@ pub(crate) fn assemble(c: &Circuit, lay: &Layout, w: f64) -> (Vec<Complex64>, Ve
         let [a, b] = e.nodes();
         let (ra, rb) = (idx(a), idx(b));
         let br = lay.branch.get(i).copied().flatten();
-        let admittance = |y: Complex64, add: &mut dyn FnMut(Option<usize>, Option<usize>, Complex64)| {
-            add(ra, ra, y);
-            add(rb, rb, y);
-            add(ra, rb, -y);
-            add(rb, ra, -y);
-        };
+        let admittance =
+            |y: Complex64, add: &mut dyn FnMut(Option<usize>, Option<usize>, Complex64)| {
+                add(ra, ra, y);
+                add(rb, rb, y);
+                add(ra, rb, -y);
+                add(rb, ra, -y);
+            };
         let k = Complex64::new(e.value(), 0.0);
         match e.kind() {
             ElementKind::Resistor => admittance(one / k, &mut add),
             ElementKind::Capacitor => admittance(s * k, &mut add),
-            ElementKind::Admittance => admittance(Complex64::new(e.value(), e.value_im()), &mut add),
+            ElementKind::Admittance => {
+                admittance(Complex64::new(e.value(), e.value_im()), &mut add)
+            }
             ElementKind::CurrentSource => {
                 // Current leaves a: −value on a's right side, +value on b's.
                 if let Some(r) = ra {
@@ -319,7 +345,12 @@ pub(crate) fn assemble(c: &Circuit, lay: &Layout, w: f64) -> (Vec<Complex64>, Ve
                         }
                     }
                     _ => {
-                        let cb = lay.control.get(i).copied().flatten().and_then(|j| lay.branch.get(j).copied().flatten());
+                        let cb = lay
+                            .control
+                            .get(i)
+                            .copied()
+                            .flatten()
+                            .and_then(|j| lay.branch.get(j).copied().flatten());
                         add(br, cb, -k);
                     }
                 }
@@ -355,14 +386,22 @@ pub fn solve(c: &Circuit, frequency_hz: f64) -> CircuitResult<Solution> {
     let w = omega(frequency_hz)?;
     let lay = layout(c)?;
     let x = solve_vector(c, &lay, w)?;
-    let v = |node: usize| node.checked_sub(1).and_then(|i| x.get(i).copied()).unwrap_or_default();
+    let v = |node: usize| {
+        node.checked_sub(1)
+            .and_then(|i| x.get(i).copied())
+            .unwrap_or_default()
+    };
     let node_voltages = c
         .nodes()
         .iter()
         .enumerate()
         .map(|(i, &name)| {
             let z = v(i);
-            NamedValue { name, re: z.re, im: z.im }
+            NamedValue {
+                name,
+                re: z.re,
+                im: z.im,
+            }
         })
         .collect();
     let s = Complex64::new(0.0, w);
@@ -371,7 +410,8 @@ pub fn solve(c: &Circuit, frequency_hz: f64) -> CircuitResult<Solution> {
         let [a, b] = e.nodes();
         let vab = v(a) - v(b);
         let k = Complex64::new(e.value(), 0.0);
-        let branch_current = |j: Option<usize>| j.and_then(|r| x.get(r).copied()).unwrap_or_default();
+        let branch_current =
+            |j: Option<usize>| j.and_then(|r| x.get(r).copied()).unwrap_or_default();
         let current = match e.kind() {
             ElementKind::Resistor => vab / k,
             ElementKind::Capacitor => vab * s * k,
@@ -382,15 +422,28 @@ pub fn solve(c: &Circuit, frequency_hz: f64) -> CircuitResult<Solution> {
                 _ => Complex64::default(),
             },
             ElementKind::Cccs => {
-                let j = lay.control.get(i).copied().flatten().and_then(|j| lay.branch.get(j).copied().flatten());
+                let j = lay
+                    .control
+                    .get(i)
+                    .copied()
+                    .flatten()
+                    .and_then(|j| lay.branch.get(j).copied().flatten());
                 k * branch_current(j)
             }
             _ => branch_current(lay.branch.get(i).copied().flatten()),
         };
         let current = check::result_complex("current", current).named(e.name())?;
-        element_currents.push(NamedValue { name: e.name(), re: current.re, im: current.im });
+        element_currents.push(NamedValue {
+            name: e.name(),
+            re: current.re,
+            im: current.im,
+        });
     }
-    Ok(Solution { frequency_hz, node_voltages, element_currents })
+    Ok(Solution {
+        frequency_hz,
+        node_voltages,
+        element_currents,
+    })
 }
 
 /// The raw unknown vector (node voltages, then branch currents) at angular
@@ -402,7 +455,12 @@ pub(crate) fn solve_vector(c: &Circuit, lay: &Layout, w: f64) -> CircuitResult<V
 }
 
 /// Factor, solve, refine once and check the unknowns of an assembled system.
-fn solve_matrix(c: &Circuit, lay: &Layout, m: Vec<Complex64>, rhs: &[Complex64]) -> CircuitResult<Vec<Complex64>> {
+fn solve_matrix(
+    c: &Circuit,
+    lay: &Layout,
+    m: Vec<Complex64>,
+    rhs: &[Complex64],
+) -> CircuitResult<Vec<Complex64>> {
     let lu = Lu::factor(lay.size, m.clone()).map_err(|p| {
         if p.column < lay.nodes {
             let name = c.nodes().get(p.column + 1).copied().unwrap_or(Name::EMPTY);
@@ -438,7 +496,8 @@ fn solve_matrix(c: &Circuit, lay: &Layout, m: Vec<Complex64>, rhs: &[Complex64])
     let residual: Vec<Complex64> = (0..n)
         .map(|r| {
             let row = m.get(r * n..(r + 1) * n).unwrap_or(&[]);
-            rhs.get(r).copied().unwrap_or_default() - row.iter().zip(&x).map(|(a, b)| a * b).sum::<Complex64>()
+            rhs.get(r).copied().unwrap_or_default()
+                - row.iter().zip(&x).map(|(a, b)| a * b).sum::<Complex64>()
         })
         .collect();
     let dx = lu.solve(&residual);
@@ -450,7 +509,10 @@ fn solve_matrix(c: &Circuit, lay: &Layout, m: Vec<Complex64>, rhs: &[Complex64])
     for (i, z) in x.iter().enumerate() {
         if !(z.re.is_finite() && z.im.is_finite()) {
             let name = c.nodes().get(i + 1).copied().unwrap_or(Name::EMPTY);
-            return Err(CircuitError::new(Error::Overflow { param: "solution" }, name));
+            return Err(CircuitError::new(
+                Error::Overflow { param: "solution" },
+                name,
+            ));
         }
     }
     Ok(x)
@@ -462,7 +524,13 @@ fn solve_matrix(c: &Circuit, lay: &Layout, m: Vec<Complex64>, rhs: &[Complex64])
 /// # Errors
 /// As [`solve`]; unknown names; `source` not an independent source or of value 0
 /// is fine (it is set to 1 for the solve).
-pub fn voltage_transfer(c: &Circuit, source: &str, plus: &str, minus: &str, frequency_hz: f64) -> CircuitResult<Complex64> {
+pub fn voltage_transfer(
+    c: &Circuit,
+    source: &str,
+    plus: &str,
+    minus: &str,
+    frequency_hz: f64,
+) -> CircuitResult<Complex64> {
     let (c1, _) = unit_source(c, source)?;
     solve(&c1, frequency_hz)?.voltage_between(plus, minus)
 }
@@ -472,7 +540,12 @@ pub fn voltage_transfer(c: &Circuit, source: &str, plus: &str, minus: &str, freq
 ///
 /// # Errors
 /// As [`voltage_transfer`].
-pub fn current_transfer(c: &Circuit, source: &str, element: &str, frequency_hz: f64) -> CircuitResult<Complex64> {
+pub fn current_transfer(
+    c: &Circuit,
+    source: &str,
+    element: &str,
+    frequency_hz: f64,
+) -> CircuitResult<Complex64> {
     let (c1, _) = unit_source(c, source)?;
     solve(&c1, frequency_hz)?.current(element)
 }
@@ -508,7 +581,10 @@ pub fn voltage_transfer_sweep(
     frequencies_hz: &[f64],
 ) -> CircuitResult<Vec<Complex64>> {
     if frequencies_hz.len() > MAX_SWEEP {
-        return Err(CircuitError::from(Error::TooLarge { param: "frequencies", limit: MAX_SWEEP as u64 }));
+        return Err(CircuitError::from(Error::TooLarge {
+            param: "frequencies",
+            limit: MAX_SWEEP as u64,
+        }));
     }
     let (c1, _) = unit_source(c, source)?;
     let (p, m) = (c1.node_index(plus)?, c1.node_index(minus)?);
@@ -523,14 +599,26 @@ pub fn voltage_transfer_sweep(
     let mut out = Vec::with_capacity(frequencies_hz.len());
     for &f in frequencies_hz {
         let w = omega(f)?;
-        let checked = if w == 0.0 { &mut dc_checked } else { &mut ac_checked };
+        let checked = if w == 0.0 {
+            &mut dc_checked
+        } else {
+            &mut ac_checked
+        };
         if !*checked {
             check_structure(&c1, w)?;
             *checked = true;
         }
-        let mw: Vec<Complex64> = m0.iter().zip(&m1).map(|(z, b)| Complex64::new(z.re, z.im + w * b)).collect();
+        let mw: Vec<Complex64> = m0
+            .iter()
+            .zip(&m1)
+            .map(|(z, b)| Complex64::new(z.re, z.im + w * b))
+            .collect();
         let x = solve_matrix(&c1, &lay, mw, &rhs)?;
-        let v = |k: usize| k.checked_sub(1).and_then(|i| x.get(i).copied()).unwrap_or_default();
+        let v = |k: usize| {
+            k.checked_sub(1)
+                .and_then(|i| x.get(i).copied())
+                .unwrap_or_default()
+        };
         out.push(v(p) - v(m));
     }
     Ok(out)
@@ -539,10 +627,17 @@ pub fn voltage_transfer_sweep(
 /// A copy with every independent source at zero except `source`, which is set to 1.
 pub(crate) fn unit_source(c: &Circuit, source: &str) -> CircuitResult<(Circuit, usize)> {
     let i = c.element_index(source)?;
-    let kind = c.elements().get(i).map(|e| e.kind()).unwrap_or(ElementKind::Resistor);
+    let kind = c
+        .elements()
+        .get(i)
+        .map(|e| e.kind())
+        .unwrap_or(ElementKind::Resistor);
     if !kind.is_independent() {
         return Err(CircuitError::named(
-            Error::OutOfDomain { param: "source", requirement: "must name an independent voltage or current source" },
+            Error::OutOfDomain {
+                param: "source",
+                requirement: "must name an independent voltage or current source",
+            },
             source,
         ));
     }
@@ -569,7 +664,12 @@ pub(crate) fn unit_source(c: &Circuit, source: &str) -> CircuitResult<(Circuit, 
 /// assert!((port_impedance(&c, "a", "0", 0.0).unwrap().re - 500.0).abs() < 1e-9);
 /// assert_eq!(port_impedance(&c, "a", "b", 0.0).unwrap_err().error.code(), "unknown_name");
 /// ```
-pub fn port_impedance(c: &Circuit, plus: &str, minus: &str, frequency_hz: f64) -> CircuitResult<Complex64> {
+pub fn port_impedance(
+    c: &Circuit,
+    plus: &str,
+    minus: &str,
+    frequency_hz: f64,
+) -> CircuitResult<Complex64> {
     c.node_index(plus)?;
     c.node_index(minus)?;
     let mut c1 = c.clone();
@@ -577,7 +677,10 @@ pub fn port_impedance(c: &Circuit, plus: &str, minus: &str, frequency_hz: f64) -
     // 1 A from minus through the test source to plus: it enters the circuit at plus.
     c1.add_internal("test", ElementKind::CurrentSource, minus, plus, 1.0)?;
     let s = solve(&c1, frequency_hz)?;
-    Ok(check::result_complex("impedance", s.voltage_between(plus, minus)?)?)
+    Ok(check::result_complex(
+        "impedance",
+        s.voltage_between(plus, minus)?,
+    )?)
 }
 
 #[cfg(test)]
@@ -600,7 +703,11 @@ mod tests {
         assert!(close(h, Complex64::new(0.5, -0.5), 1e-12), "{h}");
         // The source current leaves its + terminal into R1: I(V1) = −I(R1).
         let s = solve(&c, f).unwrap();
-        assert!(close(s.current("V1").unwrap(), -s.current("R1").unwrap(), 1e-12));
+        assert!(close(
+            s.current("V1").unwrap(),
+            -s.current("R1").unwrap(),
+            1e-12
+        ));
     }
 
     #[test]
@@ -609,12 +716,20 @@ mod tests {
         c.current_source("I1", "0", "a", 1.0).unwrap();
         c.inductor("L1", "a", "b", 1e-3).unwrap();
         c.resistor("R1", "b", "0", 10.0).unwrap();
-        assert!(close(port_impedance(&c, "a", "0", 0.0).unwrap(), Complex64::new(10.0, 0.0), 1e-12));
+        assert!(close(
+            port_impedance(&c, "a", "0", 0.0).unwrap(),
+            Complex64::new(10.0, 0.0),
+            1e-12
+        ));
         let f = 1e3;
         let want = Complex64::new(10.0, 2.0 * PI * f * 1e-3);
         assert!(close(port_impedance(&c, "a", "0", f).unwrap(), want, 1e-12));
         // I1 enters node a: V(a) = 10 V at DC.
-        assert!(close(solve(&c, 0.0).unwrap().voltage("a").unwrap(), Complex64::new(10.0, 0.0), 1e-12));
+        assert!(close(
+            solve(&c, 0.0).unwrap().voltage("a").unwrap(),
+            Complex64::new(10.0, 0.0),
+            1e-12
+        ));
     }
 
     #[test]
@@ -634,10 +749,21 @@ mod tests {
         c.resistor("Rf", "f", "0", 0.5).unwrap(); // V(f) = 3
         let s = solve(&c, 0.0).unwrap();
         for (node, want) in [("e", 6.0), ("h", 15.0), ("g", 4.0), ("f", 3.0)] {
-            assert!(close(s.voltage(node).unwrap(), Complex64::new(want, 0.0), 1e-12), "{node}");
+            assert!(
+                close(s.voltage(node).unwrap(), Complex64::new(want, 0.0), 1e-12),
+                "{node}"
+            );
         }
-        assert!(close(s.current("Vm").unwrap(), Complex64::new(3.0, 0.0), 1e-12));
-        assert!(close(s.current("F1").unwrap(), Complex64::new(6.0, 0.0), 1e-12));
+        assert!(close(
+            s.current("Vm").unwrap(),
+            Complex64::new(3.0, 0.0),
+            1e-12
+        ));
+        assert!(close(
+            s.current("F1").unwrap(),
+            Complex64::new(6.0, 0.0),
+            1e-12
+        ));
     }
 
     #[test]
@@ -659,7 +785,13 @@ mod tests {
             assert!(close(hf, direct, 1e-14), "{f} Hz: {hf} vs {direct}");
         }
         let too_many = alloc::vec![1.0; MAX_SWEEP + 1];
-        assert_eq!(voltage_transfer_sweep(&c, "V1", "o", "0", &too_many).unwrap_err().error.param(), "frequencies");
+        assert_eq!(
+            voltage_transfer_sweep(&c, "V1", "o", "0", &too_many)
+                .unwrap_err()
+                .error
+                .param(),
+            "frequencies"
+        );
     }
 
     #[test]
@@ -668,7 +800,10 @@ mod tests {
         c.voltage_source("V1", "a", "0", 1.0).unwrap();
         c.voltage_source("V2", "a", "0", 2.0).unwrap();
         let e = solve(&c, 1.0).unwrap_err();
-        assert_eq!((e.name.as_str(), e.error.param(), e.error.code()), ("V2", "element", "singular"));
+        assert_eq!(
+            (e.name.as_str(), e.error.param(), e.error.code()),
+            ("V2", "element", "singular")
+        );
 
         let mut c = Circuit::new();
         c.current_source("I1", "0", "a", 1.0).unwrap();

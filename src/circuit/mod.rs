@@ -44,8 +44,13 @@ pub mod twoport;
 pub mod value;
 
 pub use error::{CircuitError, CircuitResult, Name, MAX_NAME_LEN};
-pub use mna::{current_transfer, port_impedance, solve, voltage_transfer, voltage_transfer_sweep, NamedValue, Solution, MAX_SWEEP};
-pub use netlist::{Circuit, Control, ControlSpec, Element, ElementKind, MAX_BRANCHES, MAX_ELEMENTS, MAX_NODES};
+pub use mna::{
+    current_transfer, port_impedance, solve, voltage_transfer, voltage_transfer_sweep, NamedValue,
+    Solution, MAX_SWEEP,
+};
+pub use netlist::{
+    Circuit, Control, ControlSpec, Element, ElementKind, MAX_BRANCHES, MAX_ELEMENTS, MAX_NODES,
+};
 pub use value::parse_value;
 
 /// Serialize a complex number as `{re, im}` (for the JS results).

@@ -103,22 +103,37 @@ impl ElementKind {
         ];
         ALL.into_iter()
             .find(|k| k.name() == s)
-            .ok_or(Error::UnknownName { param: "kind", expected: KIND_NAMES })
+            .ok_or(Error::UnknownName {
+                param: "kind",
+                expected: KIND_NAMES,
+            })
     }
 
     /// True when the element adds its own current to the unknowns.
     pub const fn has_branch(self) -> bool {
-        matches!(self, ElementKind::VoltageSource | ElementKind::Inductor | ElementKind::Vcvs | ElementKind::Ccvs)
+        matches!(
+            self,
+            ElementKind::VoltageSource
+                | ElementKind::Inductor
+                | ElementKind::Vcvs
+                | ElementKind::Ccvs
+        )
     }
 
     /// True for the four controlled sources.
     pub const fn is_controlled(self) -> bool {
-        matches!(self, ElementKind::Vcvs | ElementKind::Vccs | ElementKind::Ccvs | ElementKind::Cccs)
+        matches!(
+            self,
+            ElementKind::Vcvs | ElementKind::Vccs | ElementKind::Ccvs | ElementKind::Cccs
+        )
     }
 
     /// True for independent sources.
     pub const fn is_independent(self) -> bool {
-        matches!(self, ElementKind::VoltageSource | ElementKind::CurrentSource)
+        matches!(
+            self,
+            ElementKind::VoltageSource | ElementKind::CurrentSource
+        )
     }
 }
 
@@ -205,7 +220,11 @@ fn ground_name() -> Name {
 impl Circuit {
     /// An empty circuit: only the ground node.
     pub fn new() -> Circuit {
-        Circuit { nodes: alloc::vec![ground_name()], elements: Vec::new(), strict_nodes: false }
+        Circuit {
+            nodes: alloc::vec![ground_name()],
+            elements: Vec::new(),
+            strict_nodes: false,
+        }
     }
 
     /// An empty circuit whose nodes are exactly `names` (plus ground): elements
@@ -222,7 +241,10 @@ impl Circuit {
             }
             if c.nodes.contains(&name) {
                 return Err(CircuitError::new(
-                    Error::OutOfDomain { param: "node", requirement: "is declared twice; node names must be unique" },
+                    Error::OutOfDomain {
+                        param: "node",
+                        requirement: "is declared twice; node names must be unique",
+                    },
                     name,
                 ));
             }
@@ -256,10 +278,16 @@ impl Circuit {
         if n.is_ground() {
             return Ok(0);
         }
-        self.nodes.iter().position(|&x| x == n).ok_or(CircuitError::new(
-            Error::UnknownName { param: "node", expected: "the name of a node of the circuit" },
-            n,
-        ))
+        self.nodes
+            .iter()
+            .position(|&x| x == n)
+            .ok_or(CircuitError::new(
+                Error::UnknownName {
+                    param: "node",
+                    expected: "the name of a node of the circuit",
+                },
+                n,
+            ))
     }
 
     /// Index of an element by name.
@@ -268,10 +296,16 @@ impl Circuit {
     /// [`Error::UnknownName`] with param `element`, naming it.
     pub fn element_index(&self, name: &str) -> CircuitResult<usize> {
         let n = Name::truncated(name);
-        self.elements.iter().position(|e| e.name == n).ok_or(CircuitError::new(
-            Error::UnknownName { param: "element", expected: "the name of an element of the circuit" },
-            n,
-        ))
+        self.elements
+            .iter()
+            .position(|e| e.name == n)
+            .ok_or(CircuitError::new(
+                Error::UnknownName {
+                    param: "element",
+                    expected: "the name of an element of the circuit",
+                },
+                n,
+            ))
     }
 
     /// The element with this name.
@@ -280,13 +314,28 @@ impl Circuit {
     /// As [`Circuit::element_index`].
     pub fn element(&self, name: &str) -> CircuitResult<&Element> {
         let i = self.element_index(name)?;
-        self.elements.get(i).ok_or(CircuitError::from(Error::UnknownName { param: "element", expected: "" }))
+        self.elements
+            .get(i)
+            .ok_or(CircuitError::from(Error::UnknownName {
+                param: "element",
+                expected: "",
+            }))
     }
 
     fn push_node(&mut self, name: Name, internal: bool) -> CircuitResult<usize> {
-        let limit = if internal { MAX_NODES + INTERNAL_SLACK } else { MAX_NODES };
+        let limit = if internal {
+            MAX_NODES + INTERNAL_SLACK
+        } else {
+            MAX_NODES
+        };
         if self.nodes.len() > limit {
-            return Err(CircuitError::new(Error::TooLarge { param: "nodes", limit: MAX_NODES as u64 }, name));
+            return Err(CircuitError::new(
+                Error::TooLarge {
+                    param: "nodes",
+                    limit: MAX_NODES as u64,
+                },
+                name,
+            ));
         }
         self.nodes.push(name);
         Ok(self.nodes.len() - 1)
@@ -301,7 +350,10 @@ impl Circuit {
         }
         if self.strict_nodes && !internal {
             return Err(CircuitError::new(
-                Error::UnknownName { param: "node", expected: "a node declared in the circuit's node list" },
+                Error::UnknownName {
+                    param: "node",
+                    expected: "a node declared in the circuit's node list",
+                },
                 name,
             ));
         }
@@ -332,16 +384,45 @@ impl Circuit {
         }
         let slack = if internal { INTERNAL_SLACK } else { 0 };
         if self.elements.len() >= MAX_ELEMENTS + slack {
-            return Err(named(Error::TooLarge { param: "elements", limit: MAX_ELEMENTS as u64 }));
+            return Err(named(Error::TooLarge {
+                param: "elements",
+                limit: MAX_ELEMENTS as u64,
+            }));
         }
-        if kind.has_branch() && self.elements.iter().filter(|e| e.kind.has_branch()).count() >= MAX_BRANCHES + slack {
-            return Err(named(Error::TooLarge { param: "branches", limit: MAX_BRANCHES as u64 }));
+        if kind.has_branch()
+            && self.elements.iter().filter(|e| e.kind.has_branch()).count() >= MAX_BRANCHES + slack
+        {
+            return Err(named(Error::TooLarge {
+                param: "branches",
+                limit: MAX_BRANCHES as u64,
+            }));
         }
         check_value(kind, value, value_im).map_err(named)?;
-        let na = self.node_or_add(Name::new(a).or_else(|e| if internal { Ok(Name::truncated(a)) } else { Err(e) })?, internal)?;
-        let nb = self.node_or_add(Name::new(b).or_else(|e| if internal { Ok(Name::truncated(b)) } else { Err(e) })?, internal)?;
+        let na = self.node_or_add(
+            Name::new(a).or_else(|e| {
+                if internal {
+                    Ok(Name::truncated(a))
+                } else {
+                    Err(e)
+                }
+            })?,
+            internal,
+        )?;
+        let nb = self.node_or_add(
+            Name::new(b).or_else(|e| {
+                if internal {
+                    Ok(Name::truncated(b))
+                } else {
+                    Err(e)
+                }
+            })?,
+            internal,
+        )?;
         if na == nb {
-            return Err(named(Error::OutOfDomain { param: "nodes", requirement: "must be two different nodes" }));
+            return Err(named(Error::OutOfDomain {
+                param: "nodes",
+                requirement: "must be two different nodes",
+            }));
         }
         let control = match (kind, control) {
             (ElementKind::Vcvs | ElementKind::Vccs, Some(ControlSpec::Nodes(cp, cn))) => {
@@ -376,11 +457,26 @@ impl Circuit {
                 }))
             }
         };
-        self.elements.push(Element { name, kind, nodes: [na, nb], control, value, value_im });
+        self.elements.push(Element {
+            name,
+            kind,
+            nodes: [na, nb],
+            control,
+            value,
+            value_im,
+        });
         Ok(())
     }
 
-    fn add_user(&mut self, name: &str, kind: ElementKind, a: &str, b: &str, control: Option<ControlSpec<'_>>, value: f64) -> CircuitResult<()> {
+    fn add_user(
+        &mut self,
+        name: &str,
+        kind: ElementKind,
+        a: &str,
+        b: &str,
+        control: Option<ControlSpec<'_>>,
+        value: f64,
+    ) -> CircuitResult<()> {
         let name = Name::new(name)?;
         self.add(name, kind, a, b, control, value, 0.0, false)
     }
@@ -406,37 +502,114 @@ impl Circuit {
 
     /// Add a voltage source: V(plus) − V(minus) = `volts`. Errors as [`Circuit::resistor`]
     /// (any finite value).
-    pub fn voltage_source(&mut self, name: &str, plus: &str, minus: &str, volts: f64) -> CircuitResult<()> {
+    pub fn voltage_source(
+        &mut self,
+        name: &str,
+        plus: &str,
+        minus: &str,
+        volts: f64,
+    ) -> CircuitResult<()> {
         self.add_user(name, ElementKind::VoltageSource, plus, minus, None, volts)
     }
 
     /// Add a current source: `amps` flow from `from` through the source to `to`.
-    pub fn current_source(&mut self, name: &str, from: &str, to: &str, amps: f64) -> CircuitResult<()> {
+    pub fn current_source(
+        &mut self,
+        name: &str,
+        from: &str,
+        to: &str,
+        amps: f64,
+    ) -> CircuitResult<()> {
         self.add_user(name, ElementKind::CurrentSource, from, to, None, amps)
     }
 
     /// Add a VCVS: V(a) − V(b) = gain·(V(cp) − V(cn)).
-    pub fn vcvs(&mut self, name: &str, a: &str, b: &str, cp: &str, cn: &str, gain: f64) -> CircuitResult<()> {
-        self.add_user(name, ElementKind::Vcvs, a, b, Some(ControlSpec::Nodes(cp, cn)), gain)
+    pub fn vcvs(
+        &mut self,
+        name: &str,
+        a: &str,
+        b: &str,
+        cp: &str,
+        cn: &str,
+        gain: f64,
+    ) -> CircuitResult<()> {
+        self.add_user(
+            name,
+            ElementKind::Vcvs,
+            a,
+            b,
+            Some(ControlSpec::Nodes(cp, cn)),
+            gain,
+        )
     }
 
     /// Add a VCCS: gm·(V(cp) − V(cn)) flows from `a` through the source to `b`.
-    pub fn vccs(&mut self, name: &str, a: &str, b: &str, cp: &str, cn: &str, gm: f64) -> CircuitResult<()> {
-        self.add_user(name, ElementKind::Vccs, a, b, Some(ControlSpec::Nodes(cp, cn)), gm)
+    pub fn vccs(
+        &mut self,
+        name: &str,
+        a: &str,
+        b: &str,
+        cp: &str,
+        cn: &str,
+        gm: f64,
+    ) -> CircuitResult<()> {
+        self.add_user(
+            name,
+            ElementKind::Vccs,
+            a,
+            b,
+            Some(ControlSpec::Nodes(cp, cn)),
+            gm,
+        )
     }
 
     /// Add a CCVS: V(a) − V(b) = rm·I(`control`).
-    pub fn ccvs(&mut self, name: &str, a: &str, b: &str, control: &str, rm: f64) -> CircuitResult<()> {
-        self.add_user(name, ElementKind::Ccvs, a, b, Some(ControlSpec::Element(control)), rm)
+    pub fn ccvs(
+        &mut self,
+        name: &str,
+        a: &str,
+        b: &str,
+        control: &str,
+        rm: f64,
+    ) -> CircuitResult<()> {
+        self.add_user(
+            name,
+            ElementKind::Ccvs,
+            a,
+            b,
+            Some(ControlSpec::Element(control)),
+            rm,
+        )
     }
 
     /// Add a CCCS: gain·I(`control`) flows from `a` through the source to `b`.
-    pub fn cccs(&mut self, name: &str, a: &str, b: &str, control: &str, gain: f64) -> CircuitResult<()> {
-        self.add_user(name, ElementKind::Cccs, a, b, Some(ControlSpec::Element(control)), gain)
+    pub fn cccs(
+        &mut self,
+        name: &str,
+        a: &str,
+        b: &str,
+        control: &str,
+        gain: f64,
+    ) -> CircuitResult<()> {
+        self.add_user(
+            name,
+            ElementKind::Cccs,
+            a,
+            b,
+            Some(ControlSpec::Element(control)),
+            gain,
+        )
     }
 
     /// Add a fixed complex admittance `re + j·im` siemens (re ≥ 0).
-    pub fn admittance(&mut self, name: &str, a: &str, b: &str, re: f64, im: f64) -> CircuitResult<()> {
+    pub fn admittance(
+        &mut self,
+        name: &str,
+        a: &str,
+        b: &str,
+        re: f64,
+        im: f64,
+    ) -> CircuitResult<()> {
         let name = Name::new(name)?;
         self.add(name, ElementKind::Admittance, a, b, None, re, im, false)
     }
@@ -519,7 +692,9 @@ impl Circuit {
     pub(crate) fn replace_with_source(&mut self, i: usize, value: f64) {
         if let Some(e) = self.elements.get_mut(i) {
             e.kind = match e.kind {
-                ElementKind::Vcvs | ElementKind::Ccvs | ElementKind::VoltageSource => ElementKind::VoltageSource,
+                ElementKind::Vcvs | ElementKind::Ccvs | ElementKind::VoltageSource => {
+                    ElementKind::VoltageSource
+                }
                 _ => ElementKind::CurrentSource,
             };
             e.control = Control::None;
@@ -537,7 +712,14 @@ impl Circuit {
     }
 
     /// Add an internal element whose name starts with `#` (never clashes).
-    pub(crate) fn add_internal(&mut self, tag: &str, kind: ElementKind, a: &str, b: &str, value: f64) -> CircuitResult<Name> {
+    pub(crate) fn add_internal(
+        &mut self,
+        tag: &str,
+        kind: ElementKind,
+        a: &str,
+        b: &str,
+        value: f64,
+    ) -> CircuitResult<Name> {
         let name = Name::internal(tag);
         self.add(name, kind, a, b, None, value, 0.0, true)?;
         Ok(name)
@@ -568,7 +750,10 @@ fn check_value(kind: ElementKind, value: f64, value_im: f64) -> crate::Result<()
         }
     }
     if kind != ElementKind::Admittance && value_im != 0.0 {
-        return Err(Error::OutOfDomain { param: "valueIm", requirement: "only an admittance has an imaginary part" });
+        return Err(Error::OutOfDomain {
+            param: "valueIm",
+            requirement: "only an admittance has an imaginary part",
+        });
     }
     Ok(())
 }
@@ -596,12 +781,33 @@ mod tests {
         assert_eq!((e.name.as_str(), e.error.param()), ("R1", "name"));
         let e = c.resistor("R2", "a", "0", -1.0).unwrap_err();
         assert_eq!((e.name.as_str(), e.error.code()), ("R2", "out_of_domain"));
-        assert_eq!(c.capacitor("C1", "a", "0", 0.0).unwrap_err().name.as_str(), "C1");
-        assert_eq!(c.resistor("R3", "a", "a", 1.0).unwrap_err().error.param(), "nodes");
-        assert_eq!(c.voltage_source("V1", "a", "0", f64::NAN).unwrap_err().error.code(), "not_finite");
+        assert_eq!(
+            c.capacitor("C1", "a", "0", 0.0).unwrap_err().name.as_str(),
+            "C1"
+        );
+        assert_eq!(
+            c.resistor("R3", "a", "a", 1.0).unwrap_err().error.param(),
+            "nodes"
+        );
+        assert_eq!(
+            c.voltage_source("V1", "a", "0", f64::NAN)
+                .unwrap_err()
+                .error
+                .code(),
+            "not_finite"
+        );
         assert_eq!(c.node_index("zz").unwrap_err().name.as_str(), "zz");
-        assert_eq!(c.element_index("R9").unwrap_err().error.code(), "unknown_name");
-        assert_eq!(c.admittance("Y1", "a", "0", -1.0, 0.0).unwrap_err().error.param(), "value");
+        assert_eq!(
+            c.element_index("R9").unwrap_err().error.code(),
+            "unknown_name"
+        );
+        assert_eq!(
+            c.admittance("Y1", "a", "0", -1.0, 0.0)
+                .unwrap_err()
+                .error
+                .param(),
+            "value"
+        );
     }
 
     #[test]
@@ -624,7 +830,10 @@ mod tests {
         c.resistor("R1", "in", "out", 1.0).unwrap();
         let e = c.resistor("R2", "out", "typo", 1.0).unwrap_err();
         assert_eq!((e.name.as_str(), e.error.code()), ("typo", "unknown_name"));
-        assert_eq!(Circuit::with_nodes(&["a", "a"]).unwrap_err().name.as_str(), "a");
+        assert_eq!(
+            Circuit::with_nodes(&["a", "a"]).unwrap_err().name.as_str(),
+            "a"
+        );
     }
 
     #[test]
@@ -641,11 +850,24 @@ mod tests {
                 break;
             }
         }
-        assert_eq!(err.map(|e| e.error), Some(Error::TooLarge { param: "nodes", limit: MAX_NODES as u64 }));
+        assert_eq!(
+            err.map(|e| e.error),
+            Some(Error::TooLarge {
+                param: "nodes",
+                limit: MAX_NODES as u64
+            })
+        );
         let mut c = Circuit::new();
         for i in 0..MAX_BRANCHES {
-            c.voltage_source(&alloc::format!("V{i}"), "a", "0", 0.0).unwrap();
+            c.voltage_source(&alloc::format!("V{i}"), "a", "0", 0.0)
+                .unwrap();
         }
-        assert_eq!(c.voltage_source("Vx", "a", "0", 0.0).unwrap_err().error.param(), "branches");
+        assert_eq!(
+            c.voltage_source("Vx", "a", "0", 0.0)
+                .unwrap_err()
+                .error
+                .param(),
+            "branches"
+        );
     }
 }

@@ -114,7 +114,10 @@ const FB_SHUNT_SHUNT: [&str; 2] = ["Rf", "Cf"];
 fn present(c: &Circuit, names: &'static [&'static str]) -> &'static [&'static str] {
     // Every list is ordered so that the optional parts come last; cut at the
     // first one missing from the circuit.
-    let n = names.iter().take_while(|n| c.element_index(n).is_ok()).count();
+    let n = names
+        .iter()
+        .take_while(|n| c.element_index(n).is_ok())
+        .count();
     names.get(..n).unwrap_or(names)
 }
 
@@ -146,7 +149,8 @@ impl StageSpec {
                 if check::finite("rg", n.rg)? != 0.0 {
                     return Err(Error::OutOfDomain {
                         param: "rg",
-                        requirement: "must be 0: the shunt-shunt network is Rf (with optional Cf) alone",
+                        requirement:
+                            "must be 0: the shunt-shunt network is Rf (with optional Cf) alone",
                     });
                 }
             }
@@ -201,9 +205,10 @@ fn build_with(spec: &StageSpec, loading: Option<Loading>) -> CircuitResult<Stage
     let n = spec.network;
     let t = spec.topology;
     let mut c = Circuit::new();
-    let mut add = |name: &str, kind: ElementKind, p: &str, m: &str, value: f64| -> CircuitResult<()> {
-        c.add_element(name, kind, p, m, None, value, 0.0)
-    };
+    let mut add =
+        |name: &str, kind: ElementKind, p: &str, m: &str, value: f64| -> CircuitResult<()> {
+            c.add_element(name, kind, p, m, None, value, 0.0)
+        };
     use ElementKind::*;
     // Source.
     let source = match t.mixing() {
@@ -235,25 +240,62 @@ fn build_with(spec: &StageSpec, loading: Option<Loading>) -> CircuitResult<Stage
         }
     }
     // Series-series with rf = 0: the amplifier's feedback input is the sense node.
-    let sense = if t == Topology::SeriesSeries && n.rf == 0.0 && loading.is_none() { "fb" } else { "ld" };
+    let sense = if t == Topology::SeriesSeries && n.rf == 0.0 && loading.is_none() {
+        "fb"
+    } else {
+        "ld"
+    };
     // Amplifier output and load.
     match t {
         Topology::SeriesShunt => {
-            c.add_element("A", Vcvs, "a", "0", Some(super::ControlSpec::Nodes("in", "fb")), a.gain, 0.0)?;
+            c.add_element(
+                "A",
+                Vcvs,
+                "a",
+                "0",
+                Some(super::ControlSpec::Nodes("in", "fb")),
+                a.gain,
+                0.0,
+            )?;
         }
         Topology::ShuntShunt => {
-            c.add_element("A", Ccvs, "a", "0", Some(super::ControlSpec::Element("Vi")), a.gain, 0.0)?;
+            c.add_element(
+                "A",
+                Ccvs,
+                "a",
+                "0",
+                Some(super::ControlSpec::Element("Vi")),
+                a.gain,
+                0.0,
+            )?;
         }
         Topology::SeriesSeries => {
-            c.add_element("A", Vccs, "0", "out", Some(super::ControlSpec::Nodes("in", "fb")), a.gain, 0.0)?;
+            c.add_element(
+                "A",
+                Vccs,
+                "0",
+                "out",
+                Some(super::ControlSpec::Nodes("in", "fb")),
+                a.gain,
+                0.0,
+            )?;
         }
         Topology::ShuntSeries => {
-            c.add_element("A", Cccs, "0", "out", Some(super::ControlSpec::Element("Vi")), a.gain, 0.0)?;
+            c.add_element(
+                "A",
+                Cccs,
+                "0",
+                "out",
+                Some(super::ControlSpec::Element("Vi")),
+                a.gain,
+                0.0,
+            )?;
         }
     }
-    let mut add = |name: &str, kind: ElementKind, p: &str, m: &str, value: f64| -> CircuitResult<()> {
-        c.add_element(name, kind, p, m, None, value, 0.0)
-    };
+    let mut add =
+        |name: &str, kind: ElementKind, p: &str, m: &str, value: f64| -> CircuitResult<()> {
+            c.add_element(name, kind, p, m, None, value, 0.0)
+        };
     match t.sampling() {
         Sampling::Voltage => {
             add("Ro", Resistor, "a", "out", a.ro)?;
@@ -268,12 +310,13 @@ fn build_with(spec: &StageSpec, loading: Option<Loading>) -> CircuitResult<Stage
         add("Co", Capacitor, "out", "0", a.co)?;
     }
     // Ports of the feedback network.
-    let (input_port, output_port): ((&'static str, &'static str), (&'static str, &'static str)) = match t {
-        Topology::SeriesShunt => (("fb", "0"), ("out", "0")),
-        Topology::ShuntShunt => (("in", "0"), ("out", "0")),
-        Topology::SeriesSeries => (("fb", "0"), (if sense == "fb" { "fb" } else { "ld" }, "0")),
-        Topology::ShuntSeries => (("in", "0"), ("ld", "0")),
-    };
+    let (input_port, output_port): ((&'static str, &'static str), (&'static str, &'static str)) =
+        match t {
+            Topology::SeriesShunt => (("fb", "0"), ("out", "0")),
+            Topology::ShuntShunt => (("in", "0"), ("out", "0")),
+            Topology::SeriesSeries => (("fb", "0"), (if sense == "fb" { "fb" } else { "ld" }, "0")),
+            Topology::ShuntSeries => (("in", "0"), ("ld", "0")),
+        };
     let load_port = match t.sampling() {
         Sampling::Voltage => ("out", "0"),
         Sampling::Current => ("out", output_port.0),
@@ -336,7 +379,14 @@ fn build_with(spec: &StageSpec, loading: Option<Loading>) -> CircuitResult<Stage
             }
         }
     };
-    Ok(Stage { circuit: c, source, feedback, input_port, output_port, load_port })
+    Ok(Stage {
+        circuit: c,
+        source,
+        feedback,
+        input_port,
+        output_port,
+        load_port,
+    })
 }
 
 #[cfg(test)]
@@ -354,8 +404,18 @@ mod tests {
         };
         StageSpec {
             topology: t,
-            amplifier: AmplifierModel { ri, ro: 1e3, gain, ci: 0.0, co: 0.0 },
-            network: FeedbackNetwork { rf: 1e4, rg, cf: 0.0 },
+            amplifier: AmplifierModel {
+                ri,
+                ro: 1e3,
+                gain,
+                ci: 0.0,
+                co: 0.0,
+            },
+            network: FeedbackNetwork {
+                rf: 1e4,
+                rg,
+                cf: 0.0,
+            },
             rs: 1e3,
             rl: 2e3,
         }
@@ -386,7 +446,14 @@ mod tests {
     fn loaded_variant_has_no_feedback_elements() {
         for t in Topology::ALL {
             let y = Complex64::new(1e-3, 0.0);
-            let stage = build_loaded(&spec(t), Loading { input: y, output: y }).unwrap();
+            let stage = build_loaded(
+                &spec(t),
+                Loading {
+                    input: y,
+                    output: y,
+                },
+            )
+            .unwrap();
             assert!(stage.circuit.element_index("Rf").is_err());
             assert!(stage.circuit.element_index("Y1").is_ok());
             assert!(solve(&stage.circuit, 0.0).is_ok(), "{}", t.name());
@@ -396,13 +463,43 @@ mod tests {
     #[test]
     fn rejects_bad_parts_by_name() {
         let s = spec(Topology::ShuntShunt);
-        let bad = StageSpec { network: FeedbackNetwork { rg: 5.0, ..s.network }, ..s };
+        let bad = StageSpec {
+            network: FeedbackNetwork {
+                rg: 5.0,
+                ..s.network
+            },
+            ..s
+        };
         assert_eq!(build(&bad).unwrap_err().error.param(), "rg");
-        let bad = StageSpec { amplifier: AmplifierModel { gain: 0.0, ..s.amplifier }, ..s };
+        let bad = StageSpec {
+            amplifier: AmplifierModel {
+                gain: 0.0,
+                ..s.amplifier
+            },
+            ..s
+        };
         assert_eq!(build(&bad).unwrap_err().error.param(), "gain");
-        let bad = StageSpec { amplifier: AmplifierModel { ri: f64::INFINITY, ..s.amplifier }, ..s };
+        let bad = StageSpec {
+            amplifier: AmplifierModel {
+                ri: f64::INFINITY,
+                ..s.amplifier
+            },
+            ..s
+        };
         assert_eq!(build(&bad).unwrap_err().error.code(), "not_finite");
         let y = Complex64::new(-1.0, 0.0);
-        assert_eq!(build_loaded(&s, Loading { input: y, output: y }).unwrap_err().error.param(), "value");
+        assert_eq!(
+            build_loaded(
+                &s,
+                Loading {
+                    input: y,
+                    output: y
+                }
+            )
+            .unwrap_err()
+            .error
+            .param(),
+            "value"
+        );
     }
 }

@@ -157,7 +157,13 @@ pub fn network_parameters(
     let mut sub = Circuit::new();
     for &name in elements {
         let e = c.element(name)?;
-        if !matches!(e.kind(), ElementKind::Resistor | ElementKind::Capacitor | ElementKind::Inductor | ElementKind::Admittance) {
+        if !matches!(
+            e.kind(),
+            ElementKind::Resistor
+                | ElementKind::Capacitor
+                | ElementKind::Inductor
+                | ElementKind::Admittance
+        ) {
             return Err(CircuitError::new(
                 Error::OutOfDomain {
                     param: "feedback",
@@ -168,7 +174,15 @@ pub fn network_parameters(
         }
         let node = |i: usize| c.nodes().get(i).map(|n| n.as_str()).unwrap_or("0");
         let [a, b] = e.nodes();
-        sub.add_element(name, e.kind(), node(a), node(b), None, e.value(), e.value_im())?;
+        sub.add_element(
+            name,
+            e.kind(),
+            node(a),
+            node(b),
+            None,
+            e.value(),
+            e.value_im(),
+        )?;
     }
     for n in [port1.0, port1.1, port2.0, port2.1] {
         c.node_index(n)?;
@@ -177,13 +191,16 @@ pub fn network_parameters(
     use Drive::*;
     let (p11, p21, p12, p22) = match kind {
         ParameterKind::H => {
-            let [(v1, _), (_, i2)] = drive(&sub, ports, [Current(1.0), Voltage(0.0)], frequency_hz)?;
+            let [(v1, _), (_, i2)] =
+                drive(&sub, ports, [Current(1.0), Voltage(0.0)], frequency_hz)?;
             let [(v1b, _), (_, i2b)] = drive(&sub, ports, [Open, Voltage(1.0)], frequency_hz)?;
             (v1, i2, v1b, i2b)
         }
         ParameterKind::Y => {
-            let [(_, i1), (_, i2)] = drive(&sub, ports, [Voltage(1.0), Voltage(0.0)], frequency_hz)?;
-            let [(_, i1b), (_, i2b)] = drive(&sub, ports, [Voltage(0.0), Voltage(1.0)], frequency_hz)?;
+            let [(_, i1), (_, i2)] =
+                drive(&sub, ports, [Voltage(1.0), Voltage(0.0)], frequency_hz)?;
+            let [(_, i1b), (_, i2b)] =
+                drive(&sub, ports, [Voltage(0.0), Voltage(1.0)], frequency_hz)?;
             (i1, i2, i1b, i2b)
         }
         ParameterKind::Z => {
@@ -193,11 +210,18 @@ pub fn network_parameters(
         }
         ParameterKind::G => {
             let [(_, i1), (v2, _)] = drive(&sub, ports, [Voltage(1.0), Open], frequency_hz)?;
-            let [(_, i1b), (v2b, _)] = drive(&sub, ports, [Voltage(0.0), Current(1.0)], frequency_hz)?;
+            let [(_, i1b), (v2b, _)] =
+                drive(&sub, ports, [Voltage(0.0), Current(1.0)], frequency_hz)?;
             (i1, v2, i1b, v2b)
         }
     };
-    Ok(TwoPortParameters { kind, p11, p12, p21, p22 })
+    Ok(TwoPortParameters {
+        kind,
+        p11,
+        p12,
+        p21,
+        p22,
+    })
 }
 
 /// An approximate value beside the exact one.
@@ -225,7 +249,11 @@ pub(crate) fn relative_error(approx: Complex64, exact: Complex64) -> CircuitResu
 }
 
 fn compared(two_port: Complex64, exact: Complex64) -> CircuitResult<Compared> {
-    Ok(Compared { two_port, exact, relative_error: relative_error(two_port, exact)? })
+    Ok(Compared {
+        two_port,
+        exact,
+        relative_error: relative_error(two_port, exact)?,
+    })
 }
 
 /// The two-port analysis of a stage, each closed-loop result beside the exact one.
@@ -291,7 +319,12 @@ pub(crate) fn output_of(t: Topology, s: &Solution) -> CircuitResult<Complex64> {
 
 /// Input impedance seen by the source (without Rs) and including Rs, each from a
 /// test-source solve at node `in` (no cancellation, unlike V(in)/I(Rs)).
-fn input_impedances(t: Topology, stage: &Stage, rs: f64, f: f64) -> CircuitResult<(Complex64, Complex64)> {
+fn input_impedances(
+    t: Topology,
+    stage: &Stage,
+    rs: f64,
+    f: f64,
+) -> CircuitResult<(Complex64, Complex64)> {
     let no_source = stage.circuit.without(stage.source)?;
     let rin = port_impedance(&no_source.without("Rs")?, "in", "0", f)?;
     let rif = match t.mixing() {
@@ -315,7 +348,10 @@ fn output_with_load(t: Topology, stage: &Stage, rl: f64, f: f64) -> CircuitResul
 fn parallel_removed(z: Complex64, r: f64) -> CircuitResult<Complex64> {
     // 1/Z' = 1/Z − 1/R.
     let one = Complex64::new(1.0, 0.0);
-    Ok(check::result_complex("impedance", one / (one / z - one / r))?)
+    Ok(check::result_complex(
+        "impedance",
+        one / (one / z - one / r),
+    )?)
 }
 
 /// Run the two-port method on a stage and compare it with the exact solution.
@@ -348,16 +384,38 @@ pub fn analyze(spec: &StageSpec, frequency_hz: f64) -> CircuitResult<TwoPortAnal
     super::mna::omega(f)?;
     let stage = build(spec)?;
     let kind = ParameterKind::for_topology(t);
-    let params = network_parameters(&stage.circuit, stage.feedback, stage.input_port, stage.output_port, kind, f)?;
+    let params = network_parameters(
+        &stage.circuit,
+        stage.feedback,
+        stage.input_port,
+        stage.output_port,
+        kind,
+        f,
+    )?;
     let one = Complex64::new(1.0, 0.0);
     let inv = |z: Complex64, what: &'static str| -> CircuitResult<Complex64> {
-        Ok(check::result_complex(what, one / check::nonzero_complex(what, z)?)?)
+        Ok(check::result_complex(
+            what,
+            one / check::nonzero_complex(what, z)?,
+        )?)
     };
     let loading = match kind {
-        ParameterKind::H => Loading { input: inv(params.p11, "h11")?, output: params.p22 },
-        ParameterKind::Y => Loading { input: params.p11, output: params.p22 },
-        ParameterKind::Z => Loading { input: inv(params.p11, "z11")?, output: inv(params.p22, "z22")? },
-        ParameterKind::G => Loading { input: params.p11, output: inv(params.p22, "g22")? },
+        ParameterKind::H => Loading {
+            input: inv(params.p11, "h11")?,
+            output: params.p22,
+        },
+        ParameterKind::Y => Loading {
+            input: params.p11,
+            output: params.p22,
+        },
+        ParameterKind::Z => Loading {
+            input: inv(params.p11, "z11")?,
+            output: inv(params.p22, "z22")?,
+        },
+        ParameterKind::G => Loading {
+            input: params.p11,
+            output: inv(params.p22, "g22")?,
+        },
     };
     // The loaded basic amplifier.
     let a_stage = build_loaded(spec, loading)?;
@@ -414,8 +472,18 @@ mod tests {
         let rg = if t == Topology::ShuntShunt { 0.0 } else { 1e3 };
         StageSpec {
             topology: t,
-            amplifier: AmplifierModel { ri, ro, gain, ci: 0.0, co: 0.0 },
-            network: FeedbackNetwork { rf: 1e4, rg, cf: 0.0 },
+            amplifier: AmplifierModel {
+                ri,
+                ro,
+                gain,
+                ci: 0.0,
+                co: 0.0,
+            },
+            network: FeedbackNetwork {
+                rf: 1e4,
+                rg,
+                cf: 0.0,
+            },
             rs: 1e3,
             rl: 2e3,
         }
@@ -427,7 +495,12 @@ mod tests {
         // Circuits, 7th ed., ch. 10, from memory): h of the divider, y of a
         // bridging Rf, z of a sense resistor, g of the Rf–Rg current divider.
         let (rf, rg) = (1e4, 1e3);
-        let cases = [Topology::SeriesShunt, Topology::ShuntShunt, Topology::SeriesSeries, Topology::ShuntSeries];
+        let cases = [
+            Topology::SeriesShunt,
+            Topology::ShuntShunt,
+            Topology::SeriesSeries,
+            Topology::ShuntSeries,
+        ];
         for t in cases {
             let stage = build(&spec(t, 1.0, 1e3, 1e3)).unwrap();
             let p = network_parameters(
@@ -440,15 +513,32 @@ mod tests {
             )
             .unwrap();
             let want = match t {
-                Topology::SeriesShunt => [rf * rg / (rf + rg), rg / (rf + rg), -rg / (rf + rg), 1.0 / (rf + rg)],
+                Topology::SeriesShunt => [
+                    rf * rg / (rf + rg),
+                    rg / (rf + rg),
+                    -rg / (rf + rg),
+                    1.0 / (rf + rg),
+                ],
                 Topology::ShuntShunt => [1.0 / rf, -1.0 / rf, -1.0 / rf, 1.0 / rf],
                 // Series-series with rf as the T leg to the amplifier input.
                 Topology::SeriesSeries => [rf + rg, rg, rg, rg],
-                Topology::ShuntSeries => [1.0 / (rf + rg), -rg / (rf + rg), rg / (rf + rg), rf * rg / (rf + rg)],
+                Topology::ShuntSeries => [
+                    1.0 / (rf + rg),
+                    -rg / (rf + rg),
+                    rg / (rf + rg),
+                    rf * rg / (rf + rg),
+                ],
             };
             let got = [p.p11, p.p12, p.p21, p.p22];
             for (k, (g, w)) in got.iter().zip(want).enumerate() {
-                assert!((g.re - w).abs() <= 1e-12 * w.abs() && g.im == 0.0, "{} p{}: {} vs {}", t.name(), k, g, w);
+                assert!(
+                    (g.re - w).abs() <= 1e-12 * w.abs() && g.im == 0.0,
+                    "{} p{}: {} vs {}",
+                    t.name(),
+                    k,
+                    g,
+                    w
+                );
             }
         }
     }
@@ -464,7 +554,12 @@ mod tests {
             let r = analyze(&spec(t, g, ri, 1e3), 0.0).unwrap();
             assert!(r.loop_gain.re > 1.0, "{}: T = {}", t.name(), r.loop_gain);
             // The method is an approximation, but a close one when T is large.
-            assert!(r.af.relative_error < 1e-2, "{}: {}", t.name(), r.af.relative_error);
+            assert!(
+                r.af.relative_error < 1e-2,
+                "{}: {}",
+                t.name(),
+                r.af.relative_error
+            );
         }
     }
 
@@ -490,7 +585,12 @@ mod tests {
                     Topology::ShuntSeries => -1e2 * s * 11.0,
                 };
                 let r = analyze(&spec(t, gain, ri, ro), 0.0).unwrap();
-                assert!(r.ideal_af_error < last, "{} step {k}: {} !< {last}", t.name(), r.ideal_af_error);
+                assert!(
+                    r.ideal_af_error < last,
+                    "{} step {k}: {} !< {last}",
+                    t.name(),
+                    r.ideal_af_error
+                );
                 last = r.ideal_af_error;
             }
             assert!(last < 1e-4, "{}: {last}", t.name());

@@ -27,7 +27,10 @@ pub const MAX_VALUE_LEN: usize = 40;
 /// ```
 pub fn parse_value(param: &'static str, text: &str) -> Result<f64> {
     if text.len() > MAX_VALUE_LEN {
-        return Err(Error::TooLarge { param, limit: MAX_VALUE_LEN as u64 });
+        return Err(Error::TooLarge {
+            param,
+            limit: MAX_VALUE_LEN as u64,
+        });
     }
     notation::parse_value(text).map_err(|e| e.with_param(param))
 }
@@ -66,7 +69,10 @@ mod tests {
         ];
         for &(text, want) in cases {
             let got = parse_value("value", text).unwrap_or_else(|e| panic!("{text}: {e}"));
-            assert!((got - want).abs() <= 1e-15 * want.abs(), "{text}: {got} != {want}");
+            assert!(
+                (got - want).abs() <= 1e-15 * want.abs(),
+                "{text}: {got} != {want}"
+            );
         }
         // The two spellings give the same f64 exactly.
         assert_eq!(parse_value("v", "4k7"), parse_value("v", "4.7k"));
@@ -75,11 +81,20 @@ mod tests {
 
     #[test]
     fn rejects_malformed_text_with_the_parameter() {
-        for bad in ["", "k", "R", "4k7k", "1..2", "1e", "e3", "4 k 7", "abc", "1x", "4k7Ω2", "--1", "1F5F", "inf", "NaN"] {
+        for bad in [
+            "", "k", "R", "4k7k", "1..2", "1e", "e3", "4 k 7", "abc", "1x", "4k7Ω2", "--1", "1F5F",
+            "inf", "NaN",
+        ] {
             let e = parse_value("value", bad).unwrap_err();
             assert_eq!(e.param(), "value", "{bad}");
         }
-        assert_eq!(parse_value("value", "1e999").unwrap_err().code(), "overflow");
-        assert_eq!(parse_value("value", &"1".repeat(50)).unwrap_err().code(), "too_large");
+        assert_eq!(
+            parse_value("value", "1e999").unwrap_err().code(),
+            "overflow"
+        );
+        assert_eq!(
+            parse_value("value", &"1".repeat(50)).unwrap_err().code(),
+            "too_large"
+        );
     }
 }

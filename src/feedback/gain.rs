@@ -191,23 +191,46 @@ mod tests {
 
     #[test]
     fn oscillation_is_an_error_not_infinity() {
-        assert_eq!(closed_loop_gain(-50.0, 0.02), Err(Error::Oscillation { param: "beta" }));
+        assert_eq!(
+            closed_loop_gain(-50.0, 0.02),
+            Err(Error::Oscillation { param: "beta" })
+        );
         // Rounding in 1 + Aβ still lands on the oscillation condition.
-        assert_eq!(closed_loop_gain(3.0, -1.0 / 3.0).unwrap_err().code(), "oscillation");
+        assert_eq!(
+            closed_loop_gain(3.0, -1.0 / 3.0).unwrap_err().code(),
+            "oscillation"
+        );
     }
 
     #[test]
     fn overflow_is_an_error() {
-        assert_eq!(loop_gain(1e300, 1e300), Err(Error::Overflow { param: "loop_gain" }));
-        assert_eq!(closed_loop_gain(1e300, 1e300).unwrap_err().code(), "overflow");
+        assert_eq!(
+            loop_gain(1e300, 1e300),
+            Err(Error::Overflow { param: "loop_gain" })
+        );
+        assert_eq!(
+            closed_loop_gain(1e300, 1e300).unwrap_err().code(),
+            "overflow"
+        );
     }
 
     #[test]
     fn bad_inputs_name_the_parameter() {
         assert_eq!(closed_loop_gain(0.0, 1.0).unwrap_err().param(), "a");
-        assert_eq!(closed_loop_gain(f64::INFINITY, 1.0).unwrap_err().param(), "a");
-        assert_eq!(closed_loop_gain(10.0, f64::NAN).unwrap_err().param(), "beta");
-        assert_eq!(loop_phasors(Complex64::new(1.0, f64::NAN), Complex64::new(1.0, 0.0)).unwrap_err().param(), "a");
+        assert_eq!(
+            closed_loop_gain(f64::INFINITY, 1.0).unwrap_err().param(),
+            "a"
+        );
+        assert_eq!(
+            closed_loop_gain(10.0, f64::NAN).unwrap_err().param(),
+            "beta"
+        );
+        assert_eq!(
+            loop_phasors(Complex64::new(1.0, f64::NAN), Complex64::new(1.0, 0.0))
+                .unwrap_err()
+                .param(),
+            "a"
+        );
     }
 
     #[test]

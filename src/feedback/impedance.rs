@@ -93,7 +93,13 @@ pub fn impedances_with_feedback(
 /// assert!((rif - 1e4 / 101.0).abs() < 1e-9 && (rof - 1e3 / 101.0).abs() < 1e-12);
 /// assert!(resistances_with_feedback(Topology::ShuntShunt, 1e4, f64::NAN, -1e5, -1e-3).is_err());
 /// ```
-pub fn resistances_with_feedback(topology: Topology, ri: f64, ro: f64, a: f64, beta: f64) -> Result<(f64, f64)> {
+pub fn resistances_with_feedback(
+    topology: Topology,
+    ri: f64,
+    ro: f64,
+    a: f64,
+    beta: f64,
+) -> Result<(f64, f64)> {
     let z = impedances_with_feedback(
         topology,
         Complex64::new(ri, 0.0),
@@ -116,7 +122,8 @@ mod tests {
     fn series_shunt_raises_input_and_lowers_output_by_the_same_factor() {
         // Common practice, no source: series mixing with voltage sampling multiplies
         // Zi and divides Zo by the same 1 + Aβ.
-        let (rif, rof) = resistances_with_feedback(Topology::SeriesShunt, 2e6, 75.0, 2e5, 0.01).unwrap();
+        let (rif, rof) =
+            resistances_with_feedback(Topology::SeriesShunt, 2e6, 75.0, 2e5, 0.01).unwrap();
         let d = 1.0 + 2e5 * 0.01;
         assert!((rif / 2e6 - d).abs() < 1e-9 && (75.0 / rof - d).abs() < 1e-9);
     }
@@ -140,8 +147,14 @@ mod tests {
     #[test]
     fn complex_impedance_with_complex_loop_gain() {
         // Zi = 1 kΩ − j1 kΩ, T = j (90° loop phase): D = 1 + j, Zif = Zi·D = 2 kΩ.
-        let z = impedances_with_feedback(Topology::SeriesSeries, c(1e3, -1e3), c(10.0, 0.0), c(0.0, 10.0), c(0.1, 0.0))
-            .unwrap();
+        let z = impedances_with_feedback(
+            Topology::SeriesSeries,
+            c(1e3, -1e3),
+            c(10.0, 0.0),
+            c(0.0, 10.0),
+            c(0.1, 0.0),
+        )
+        .unwrap();
         assert!((z.input - c(2e3, 0.0)).norm() < 1e-9);
         assert!((z.output - c(10.0, 10.0)).norm() < 1e-12);
     }
@@ -150,7 +163,17 @@ mod tests {
     fn zero_impedance_and_bad_values() {
         let z = resistances_with_feedback(Topology::SeriesShunt, 0.0, 0.0, 10.0, 0.1).unwrap();
         assert_eq!(z, (0.0, 0.0));
-        assert_eq!(resistances_with_feedback(Topology::SeriesShunt, 1.0, -1.0, 10.0, 0.1).unwrap_err().param(), "zo");
-        assert_eq!(resistances_with_feedback(Topology::SeriesShunt, 1.0, 1.0, -10.0, 0.1).unwrap_err().code(), "oscillation");
+        assert_eq!(
+            resistances_with_feedback(Topology::SeriesShunt, 1.0, -1.0, 10.0, 0.1)
+                .unwrap_err()
+                .param(),
+            "zo"
+        );
+        assert_eq!(
+            resistances_with_feedback(Topology::SeriesShunt, 1.0, 1.0, -10.0, 0.1)
+                .unwrap_err()
+                .code(),
+            "oscillation"
+        );
     }
 }

@@ -113,7 +113,10 @@ pub fn max_closed_loop_gain(a: f64, feedback_amount: f64) -> Result<GainCeiling>
             requirement: "must be 1 or more (0 dB or more); below 1 the feedback is positive",
         });
     }
-    Ok(GainCeiling { closed_loop_gain: a / d, beta: check::result("beta", (d - 1.0) / a)? })
+    Ok(GainCeiling {
+        closed_loop_gain: a / d,
+        beta: check::result("beta", (d - 1.0) / a)?,
+    })
 }
 
 #[cfg(test)]
@@ -125,16 +128,28 @@ mod tests {
     fn beta_for_gain_round_trips_through_closed_loop_gain() {
         for (a, af) in [(1e5, 100.0), (-2e4, -10.0), (50.0, 50.0), (1e9, 1.0)] {
             let beta = beta_for_gain(a, af).unwrap();
-            assert!((closed_loop_gain(a, beta).unwrap() / af - 1.0).abs() < 1e-12, "a={a} af={af}");
+            assert!(
+                (closed_loop_gain(a, beta).unwrap() / af - 1.0).abs() < 1e-12,
+                "a={a} af={af}"
+            );
         }
         assert_eq!(beta_for_gain(50.0, 50.0), Ok(0.0));
     }
 
     #[test]
     fn unreachable_targets() {
-        assert_eq!(beta_for_gain(100.0, -10.0).unwrap_err().code(), "unreachable");
-        assert_eq!(beta_for_gain(-100.0, -1000.0).unwrap_err().param(), "target_gain");
-        assert_eq!(beta_for_gain(100.0, 0.0).unwrap_err().code(), "out_of_domain");
+        assert_eq!(
+            beta_for_gain(100.0, -10.0).unwrap_err().code(),
+            "unreachable"
+        );
+        assert_eq!(
+            beta_for_gain(-100.0, -1000.0).unwrap_err().param(),
+            "target_gain"
+        );
+        assert_eq!(
+            beta_for_gain(100.0, 0.0).unwrap_err().code(),
+            "out_of_domain"
+        );
         assert_eq!(beta_for_gain(0.0, 1.0).unwrap_err().param(), "a");
     }
 
@@ -153,7 +168,13 @@ mod tests {
         assert!(min_open_loop_gain(0.1, 0.0).is_err());
         assert!(min_open_loop_gain(0.1, 1.0).is_err());
         assert!(min_open_loop_gain(0.0, 0.1).is_err());
-        assert_eq!(max_closed_loop_gain(1e3, 1.0).unwrap(), GainCeiling { closed_loop_gain: 1e3, beta: 0.0 });
+        assert_eq!(
+            max_closed_loop_gain(1e3, 1.0).unwrap(),
+            GainCeiling {
+                closed_loop_gain: 1e3,
+                beta: 0.0
+            }
+        );
         assert!(max_closed_loop_gain(1e3, f64::INFINITY).is_err());
     }
 }

@@ -15,8 +15,8 @@ pub mod summary;
 pub mod topology;
 
 pub use gain::{
-    closed_loop_gain, feedback_amount, feedback_amount_db, feedback_sense, loop_gain, loop_phasors, FeedbackSense,
-    LoopPhasors,
+    closed_loop_gain, feedback_amount, feedback_amount_db, feedback_sense, loop_gain, loop_phasors,
+    FeedbackSense, LoopPhasors,
 };
 pub use impedance::{impedances_with_feedback, resistances_with_feedback, FeedbackImpedances};
 pub use inverse::{beta_for_gain, max_closed_loop_gain, min_open_loop_gain, GainCeiling};

@@ -80,10 +80,16 @@ pub fn gain_spread(beta: f64, a_min: f64, a_typ: f64, a_max: f64) -> Result<Gain
     let a_typ = check::nonzero("a_typ", a_typ)?;
     let a_max = check::nonzero("a_max", a_max)?;
     if !(a_min <= a_typ && a_typ <= a_max) {
-        return Err(Error::OutOfDomain { param: "a_typ", requirement: "must lie between a_min and a_max" });
+        return Err(Error::OutOfDomain {
+            param: "a_typ",
+            requirement: "must lie between a_min and a_max",
+        });
     }
     if a_min.signum() != a_max.signum() {
-        return Err(Error::OutOfDomain { param: "a_min", requirement: "must have the same sign as a_max" });
+        return Err(Error::OutOfDomain {
+            param: "a_min",
+            requirement: "must have the same sign as a_max",
+        });
     }
     if beta != 0.0 {
         let pole = -1.0 / beta;
@@ -94,7 +100,11 @@ pub fn gain_spread(beta: f64, a_min: f64, a_typ: f64, a_max: f64) -> Result<Gain
     let at_min = closed_loop_gain(a_min, beta)?;
     let at_typ = closed_loop_gain(a_typ, beta)?;
     let at_max = closed_loop_gain(a_max, beta)?;
-    let (low, high) = if at_min <= at_max { (at_min, at_max) } else { (at_max, at_min) };
+    let (low, high) = if at_min <= at_max {
+        (at_min, at_max)
+    } else {
+        (at_max, at_min)
+    };
     let scale = 100.0 / at_typ.abs();
     let spread_percent = check::result("spread_percent", (high - low) * scale)?;
     // |D| is smallest where A·β is closest to −1; on a range without the pole
@@ -143,7 +153,10 @@ mod tests {
 
     #[test]
     fn range_through_the_oscillation_point_is_refused() {
-        assert_eq!(gain_spread(-0.01, 50.0, 100.0, 200.0).unwrap_err().code(), "oscillation");
+        assert_eq!(
+            gain_spread(-0.01, 50.0, 100.0, 200.0).unwrap_err().code(),
+            "oscillation"
+        );
     }
 
     #[test]
@@ -155,8 +168,17 @@ mod tests {
 
     #[test]
     fn mixed_signs_and_order_are_refused() {
-        assert_eq!(gain_spread(0.1, -10.0, 10.0, 20.0).unwrap_err().param(), "a_min");
-        assert_eq!(gain_spread(0.1, 10.0, 30.0, 20.0).unwrap_err().param(), "a_typ");
-        assert_eq!(gain_spread(0.1, 0.0, 30.0, 40.0).unwrap_err().param(), "a_min");
+        assert_eq!(
+            gain_spread(0.1, -10.0, 10.0, 20.0).unwrap_err().param(),
+            "a_min"
+        );
+        assert_eq!(
+            gain_spread(0.1, 10.0, 30.0, 20.0).unwrap_err().param(),
+            "a_typ"
+        );
+        assert_eq!(
+            gain_spread(0.1, 0.0, 30.0, 40.0).unwrap_err().param(),
+            "a_min"
+        );
     }
 }

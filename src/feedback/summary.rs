@@ -55,7 +55,11 @@ pub struct FeedbackSummary {
 pub fn summarize(topology: Topology, a: f64, beta: f64) -> Result<FeedbackSummary> {
     let p = loop_phasors(Complex64::new(a, 0.0), Complex64::new(beta, 0.0))?;
     let af = p.closed_loop_gain.re;
-    let (ideal_gain, gain_error) = if beta == 0.0 { (None, None) } else { (Some(1.0 / beta), Some(af * beta - 1.0)) };
+    let (ideal_gain, gain_error) = if beta == 0.0 {
+        (None, None)
+    } else {
+        (Some(1.0 / beta), Some(af * beta - 1.0))
+    };
     Ok(FeedbackSummary {
         topology,
         gain_unit: topology.gain_unit(),
@@ -85,7 +89,10 @@ mod tests {
     #[test]
     fn no_feedback_has_no_ideal_gain() {
         let s = summarize(Topology::ShuntShunt, -2e3, 0.0).unwrap();
-        assert_eq!((s.ideal_gain, s.gain_error, s.sense), (None, None, FeedbackSense::Neutral));
+        assert_eq!(
+            (s.ideal_gain, s.gain_error, s.sense),
+            (None, None, FeedbackSense::Neutral)
+        );
         assert_eq!(s.closed_loop_gain, -2e3);
     }
 }

@@ -74,8 +74,12 @@ transconductance, transresistance";
 
 impl Topology {
     /// All four, in catalog order.
-    pub const ALL: [Topology; 4] =
-        [Topology::SeriesShunt, Topology::ShuntSeries, Topology::SeriesSeries, Topology::ShuntShunt];
+    pub const ALL: [Topology; 4] = [
+        Topology::SeriesShunt,
+        Topology::ShuntSeries,
+        Topology::SeriesSeries,
+        Topology::ShuntShunt,
+    ];
 
     /// The mixing–sampling name, e.g. `"series-shunt"`.
     pub const fn name(self) -> &'static str {
@@ -186,7 +190,10 @@ impl FromStr for Topology {
             .iter()
             .find(|(name, _)| same_name(s, name))
             .map(|&(_, t)| t)
-            .ok_or(Error::UnknownName { param: "topology", expected: TOPOLOGY_NAMES })
+            .ok_or(Error::UnknownName {
+                param: "topology",
+                expected: TOPOLOGY_NAMES,
+            })
     }
 }
 
@@ -205,16 +212,37 @@ mod tests {
 
     #[test]
     fn parsing_ignores_case_separators_and_blanks() {
-        assert_eq!(" SERIES SHUNT ".parse::<Topology>(), Ok(Topology::SeriesShunt));
-        assert_eq!("Voltage_Shunt".parse::<Topology>(), Ok(Topology::ShuntShunt));
-        assert_eq!("current-SERIES".parse::<Topology>(), Ok(Topology::SeriesSeries));
+        assert_eq!(
+            " SERIES SHUNT ".parse::<Topology>(),
+            Ok(Topology::SeriesShunt)
+        );
+        assert_eq!(
+            "Voltage_Shunt".parse::<Topology>(),
+            Ok(Topology::ShuntShunt)
+        );
+        assert_eq!(
+            "current-SERIES".parse::<Topology>(),
+            Ok(Topology::SeriesSeries)
+        );
     }
 
     #[test]
     fn unknown_and_near_miss_names_are_rejected() {
-        for bad in ["", "-", "series", "series-shunt-x", "seriesshunt", "shunt–series", "voltage-voltage"] {
+        for bad in [
+            "",
+            "-",
+            "series",
+            "series-shunt-x",
+            "seriesshunt",
+            "shunt–series",
+            "voltage-voltage",
+        ] {
             let e = bad.parse::<Topology>().unwrap_err();
-            assert_eq!((e.code(), e.param()), ("unknown_name", "topology"), "input {bad:?}");
+            assert_eq!(
+                (e.code(), e.param()),
+                ("unknown_name", "topology"),
+                "input {bad:?}"
+            );
         }
     }
 

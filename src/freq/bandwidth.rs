@@ -62,7 +62,13 @@ pub(crate) fn midband_ln_gain(l: &FeedbackLoop) -> Result<f64> {
 
 /// Midband frequency, Hz, where the searches start.
 fn midband_hz(l: &FeedbackLoop, lo: f64) -> f64 {
-    let cuts = l.amplifier().low_cuts_hz.iter().chain(&l.feedback().low_cuts_hz).copied().fold(0.0, f64::max);
+    let cuts = l
+        .amplifier()
+        .low_cuts_hz
+        .iter()
+        .chain(&l.feedback().low_cuts_hz)
+        .copied()
+        .fold(0.0, f64::max);
     if cuts == 0.0 {
         return lo;
     }
@@ -73,7 +79,11 @@ fn midband_hz(l: &FeedbackLoop, lo: f64) -> f64 {
     b.low_cuts_hz.clear();
     a.corners_hz(&mut others);
     b.corners_hz(&mut others);
-    let above = others.iter().copied().filter(|&f| f > cuts).fold(f64::INFINITY, f64::min);
+    let above = others
+        .iter()
+        .copied()
+        .filter(|&f| f > cuts)
+        .fold(f64::INFINITY, f64::min);
     let top = if above.is_finite() { above } else { cuts * 1e6 };
     crate::float::sqrt(cuts * top)
 }
@@ -101,7 +111,12 @@ pub fn closed_loop_bandwidth(l: &FeedbackLoop) -> Result<Bandwidth> {
     let f = grid(l, DEFAULT_POINTS_PER_DECADE)?;
     let (lo, hi) = match (f.first(), f.last()) {
         (Some(&a), Some(&b)) => (a, b),
-        _ => return Err(Error::NoConvergence { param: "bandwidth", reason: "empty search grid" }),
+        _ => {
+            return Err(Error::NoConvergence {
+                param: "bandwidth",
+                reason: "empty search grid",
+            })
+        }
     };
     let fm = midband_hz(l, lo).clamp(lo, hi);
     // g(x) = ln|Af(e^x)| − ln|Af_mid| + ln√2: zero at the −3 dB points.
@@ -206,7 +221,10 @@ mod tests {
         assert!((b.midband_gain - 1e3 / d).abs() < 1e-9);
         // With the high pole four decades above, the corners interact by about
         // (fLf/fHf)·… ≲ 1e-6 relative.
-        assert!((b.low_hz.unwrap() / (100.0 / d) - 1.0).abs() < 1e-5, "{b:?}");
+        assert!(
+            (b.low_hz.unwrap() / (100.0 / d) - 1.0).abs() < 1e-5,
+            "{b:?}"
+        );
         assert!((b.high_hz.unwrap() / (1e6 * d) - 1.0).abs() < 1e-5);
     }
 
@@ -215,7 +233,9 @@ mod tests {
         // Closed loop is second order with Q = √((1+T0)f1f2)/(f1+f2);
         // peaking = Q/√(1 − 1/(4Q²)) for Q > 1/√2.
         let (t0, f1, f2) = (999.0, 1e3, 1e6);
-        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(t0).pole(f1).pole(f2), 1.0).unwrap();
+        let l =
+            FeedbackLoop::with_constant_beta(TransferModel::constant(t0).pole(f1).pole(f2), 1.0)
+                .unwrap();
         let b = closed_loop_bandwidth(&l).unwrap();
         let q = crate::float::sqrt((1.0 + t0) * f1 * f2) / (f1 + f2);
         let mp = q / crate::float::sqrt(1.0 - 1.0 / (4.0 * q * q));
@@ -227,7 +247,11 @@ mod tests {
 
     #[test]
     fn integrator_reference_is_one_over_beta() {
-        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(1e6).integrator().pole(1e7), 0.1).unwrap();
+        let l = FeedbackLoop::with_constant_beta(
+            TransferModel::constant(1e6).integrator().pole(1e7),
+            0.1,
+        )
+        .unwrap();
         let b = closed_loop_bandwidth(&l).unwrap();
         assert!((b.midband_gain - 10.0).abs() < 1e-12);
         assert_eq!(b.low_hz, None);

@@ -118,7 +118,10 @@ pub fn two_pole_response(f1: f64, f2: f64, t0: f64) -> Result<TwoPoleResponse> {
     let f2 = check::positive("f2", f2)?;
     let t0 = check::finite("t0", t0)?;
     if t0 <= -1.0 {
-        return Err(Error::OutOfDomain { param: "t0", requirement: "must be greater than −1" });
+        return Err(Error::OutOfDomain {
+            param: "t0",
+            requirement: "must be greater than −1",
+        });
     }
     let f0 = check::result("natural_hz", crate::float::sqrt((1.0 + t0) * f1 * f2))?;
     let q = f0 / (f1 + f2);
@@ -153,7 +156,10 @@ pub fn peaking_from_q(q: f64) -> (f64, Option<f64>) {
         return (0.0, None);
     }
     let mp = q / crate::float::sqrt(1.0 - 1.0 / (4.0 * q * q));
-    (20.0 * libm::log10(mp), Some(crate::float::sqrt(1.0 - 1.0 / (2.0 * q * q))))
+    (
+        20.0 * libm::log10(mp),
+        Some(crate::float::sqrt(1.0 - 1.0 / (2.0 * q * q))),
+    )
 }
 
 /// Step overshoot of a second-order system as a fraction: exp(−πζ/√(1 − ζ²)),

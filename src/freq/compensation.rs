@@ -42,7 +42,10 @@ pub struct Compensation {
 fn target(pm: f64) -> Result<f64> {
     let pm = check::finite("target_pm_deg", pm)?;
     if pm <= 0.0 || pm >= 180.0 {
-        return Err(Error::OutOfDomain { param: "target_pm_deg", requirement: "must be between 0° and 180°" });
+        return Err(Error::OutOfDomain {
+            param: "target_pm_deg",
+            requirement: "must be between 0° and 180°",
+        });
     }
     Ok(pm)
 }
@@ -57,7 +60,11 @@ fn result(l: &FeedbackLoop, value: f64) -> Result<Compensation> {
     let m = stability_margins(l)?;
     let a = l.amplifier().gain;
     let b = l.feedback().gain;
-    let gain = if l.amplifier().origin_poles > 0 { 1.0 / b } else { a / (1.0 + a * b) };
+    let gain = if l.amplifier().origin_poles > 0 {
+        1.0 / b
+    } else {
+        a / (1.0 + a * b)
+    };
     Ok(Compensation {
         value,
         phase_margin_deg: m.phase_margin_deg,
@@ -104,7 +111,11 @@ fn bisect(meets: &dyn Fn(f64) -> Result<bool>, mut lo: f64, mut hi: f64) -> Resu
 /// assert!(c.value < 10.0 && c.crossover_hz.unwrap() < 1e6);
 /// assert_eq!(dominant_pole_for_margin(&a, 1.0, 200.0).unwrap_err().param(), "target_pm_deg");
 /// ```
-pub fn dominant_pole_for_margin(amplifier: &TransferModel, beta: f64, target_pm_deg: f64) -> Result<Compensation> {
+pub fn dominant_pole_for_margin(
+    amplifier: &TransferModel,
+    beta: f64,
+    target_pm_deg: f64,
+) -> Result<Compensation> {
     let pm = target(target_pm_deg)?;
     let beta = check::nonzero("beta", beta)?;
     let with = |fd: f64| FeedbackLoop::with_constant_beta(amplifier.clone().pole(fd), beta);
@@ -147,7 +158,11 @@ pub fn dominant_pole_for_margin(amplifier: &TransferModel, beta: f64, target_pm_
 /// assert!((c.phase_margin_deg.unwrap() - 45.0).abs() < 1e-6 && c.value < 1.0);
 /// assert_eq!(max_beta_for_margin(&a, 45.0, 0.0).unwrap_err().param(), "beta_limit");
 /// ```
-pub fn max_beta_for_margin(amplifier: &TransferModel, target_pm_deg: f64, beta_limit: f64) -> Result<Compensation> {
+pub fn max_beta_for_margin(
+    amplifier: &TransferModel,
+    target_pm_deg: f64,
+    beta_limit: f64,
+) -> Result<Compensation> {
     let pm = target(target_pm_deg)?;
     let cap = check::positive("beta_limit", beta_limit)?;
     let with = |b: f64| FeedbackLoop::with_constant_beta(amplifier.clone(), b);

@@ -74,17 +74,29 @@ pub(crate) fn search_range(l: &FeedbackLoop) -> (f64, f64) {
 pub(crate) fn grid(l: &FeedbackLoop, ppd: u32) -> Result<Vec<f64>> {
     let (lo_ppd, hi_ppd) = POINTS_PER_DECADE_RANGE;
     if ppd < lo_ppd || ppd > hi_ppd {
-        return Err(Error::OutOfDomain { param: "points_per_decade", requirement: "must be between 4 and 2000" });
+        return Err(Error::OutOfDomain {
+            param: "points_per_decade",
+            requirement: "must be between 4 and 2000",
+        });
     }
     let (lo, hi) = search_range(l);
     let n = (crate::float::ceil(libm::log10(hi / lo) * f64::from(ppd)) as usize).max(2) + 1;
     let (a, b) = (libm::log(lo), libm::log(hi));
-    Ok((0..n).map(|i| libm::exp(a + (b - a) * i as f64 / (n - 1) as f64)).collect())
+    Ok((0..n)
+        .map(|i| libm::exp(a + (b - a) * i as f64 / (n - 1) as f64))
+        .collect())
 }
 
 /// Brent's zero finder for g on [a, b] in x, with g(a)·g(b) ≤ 0; stops when the
 /// bracket is below `tol` (absolute, in x).
-pub(crate) fn brent(g: &dyn Fn(f64) -> f64, mut a: f64, mut b: f64, mut fa: f64, mut fb: f64, tol: f64) -> f64 {
+pub(crate) fn brent(
+    g: &dyn Fn(f64) -> f64,
+    mut a: f64,
+    mut b: f64,
+    mut fa: f64,
+    mut fb: f64,
+    tol: f64,
+) -> f64 {
     if fa == 0.0 {
         return a;
     }
@@ -143,7 +155,13 @@ pub(crate) fn brent(g: &dyn Fn(f64) -> f64, mut a: f64, mut b: f64, mut fa: f64,
         }
         a = b;
         fa = fb;
-        b += if libm::fabs(d) > tol1 { d } else if xm > 0.0 { tol1 } else { -tol1 };
+        b += if libm::fabs(d) > tol1 {
+            d
+        } else if xm > 0.0 {
+            tol1
+        } else {
+            -tol1
+        };
         fb = g(b);
     }
     b
@@ -151,7 +169,14 @@ pub(crate) fn brent(g: &dyn Fn(f64) -> f64, mut a: f64, mut b: f64, mut fa: f64,
 
 /// Refine a sign change of `g` (a function of ln f) between grid frequencies.
 fn refine(g: &dyn Fn(f64) -> f64, f0: f64, f1: f64, g0: f64, g1: f64) -> f64 {
-    libm::exp(brent(g, libm::log(f0), libm::log(f1), g0, g1, CROSSING_REL_TOL))
+    libm::exp(brent(
+        g,
+        libm::log(f0),
+        libm::log(f1),
+        g0,
+        g1,
+        CROSSING_REL_TOL,
+    ))
 }
 
 /// Frequencies (Hz, ascending) where |T(j2πf)| = 1, at `ppd` grid points per decade.
@@ -207,7 +232,10 @@ pub(crate) fn scan(l: &FeedbackLoop, ppd: u32) -> Result<Scan> {
         let m_lo = crate::float::floor((lo + 180.0) / 360.0) as i64 + 1;
         let m_hi = crate::float::floor((hi + 180.0) / 360.0) as i64;
         if m_hi - m_lo + 1 + phases.len() as i64 > MAX_PHASE_CROSSINGS as i64 {
-            return Err(Error::TooLarge { param: "phase_crossings", limit: MAX_PHASE_CROSSINGS as u64 });
+            return Err(Error::TooLarge {
+                param: "phase_crossings",
+                limit: MAX_PHASE_CROSSINGS as u64,
+            });
         }
         let first = phases.len();
         for m in m_lo..=m_hi {
@@ -259,7 +287,8 @@ mod tests {
     #[test]
     fn integrator_crossing_is_found() {
         // T = 1000·(2π·1 Hz)/s → |T| = 1000/f = 1 at 1000 Hz exactly.
-        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(1e3).integrator(), 1.0).unwrap();
+        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(1e3).integrator(), 1.0)
+            .unwrap();
         let c = gain_crossings_hz(&l, 10).unwrap();
         assert_eq!(c.len(), 1);
         assert!((c[0] - 1e3).abs() < 1e-8);
@@ -276,7 +305,10 @@ mod tests {
         for &f in &c {
             let p = loop_log(&l, f).deg();
             let k = crate::float::round((p + 180.0) / 360.0);
-            assert!((p + 180.0 - 360.0 * k).abs() < 1e-12 * p.abs().max(360.0), "phase {p} at {f}");
+            assert!(
+                (p + 180.0 - 360.0 * k).abs() < 1e-12 * p.abs().max(360.0),
+                "phase {p} at {f}"
+            );
         }
     }
 
@@ -289,14 +321,20 @@ mod tests {
         let e = phase_crossings_hz(&l, 40).unwrap_err();
         assert_eq!((e.code(), e.param()), ("too_large", "phase_crossings"));
         // A delay whose turns happen where |T| is tiny is fine.
-        let m = TransferModel::constant(10.0).pole(1.0).pole(2.0).pole(3.0).delay(1e-9);
+        let m = TransferModel::constant(10.0)
+            .pole(1.0)
+            .pole(2.0)
+            .pole(3.0)
+            .delay(1e-9);
         let l = FeedbackLoop::with_constant_beta(m, 1.0).unwrap();
         assert!(phase_crossings_hz(&l, 40).unwrap().len() < 10);
     }
 
     #[test]
     fn no_crossover_when_the_loop_gain_stays_below_one() {
-        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(0.5).pole(1e3).pole(1e4), 1.0).unwrap();
+        let l =
+            FeedbackLoop::with_constant_beta(TransferModel::constant(0.5).pole(1e3).pole(1e4), 1.0)
+                .unwrap();
         assert!(gain_crossings_hz(&l, 40).unwrap().is_empty());
     }
 }

@@ -36,7 +36,11 @@ const LN_BIG: f64 = 400.0 * LN_2;
 /// by a float-to-integer conversion, which is one instruction in wasm.
 #[inline]
 fn nearest(x: f64) -> f64 {
-    (if x >= 0.0 { (x + 0.5) as i64 } else { (x - 0.5) as i64 }) as f64
+    (if x >= 0.0 {
+        (x + 0.5) as i64
+    } else {
+        (x - 0.5) as i64
+    }) as f64
 }
 
 /// Arctangent of x ≥ 0 to within [`ATAN_ERR`].
@@ -69,7 +73,11 @@ struct Product {
 }
 
 impl Product {
-    const ONE: Product = Product { re: 1.0, im: 0.0, ln_scale: 0.0 };
+    const ONE: Product = Product {
+        re: 1.0,
+        im: 0.0,
+        ln_scale: 0.0,
+    };
 
     /// Multiply by (1 + j·x).
     #[inline]
@@ -139,14 +147,18 @@ impl FastModel {
             m.phase0 -= FRAC_PI_2 * f64::from(t.origin_poles);
             m.delay += t.delay_s;
             m.zeros.extend(t.zeros_hz.iter().map(|f| (1.0 / f, 1.0)));
-            m.zeros.extend(t.rhp_zeros_hz.iter().map(|f| (1.0 / f, -1.0)));
+            m.zeros
+                .extend(t.rhp_zeros_hz.iter().map(|f| (1.0 / f, -1.0)));
             m.poles.extend(t.poles_hz.iter().map(|f| (1.0 / f, 1.0)));
-            m.poles.extend(t.rhp_poles_hz.iter().map(|f| (1.0 / f, -1.0)));
+            m.poles
+                .extend(t.rhp_poles_hz.iter().map(|f| (1.0 / f, -1.0)));
             m.poles.extend(t.low_cuts_hz.iter().map(|f| (1.0 / f, 1.0)));
             m.cuts.extend(t.low_cuts_hz.iter().map(|f| 1.0 / f));
             m.phase0 += FRAC_PI_2 * t.low_cuts_hz.len() as f64;
-            m.pair_zeros.extend(t.complex_zeros.iter().map(|p| (1.0 / p.freq_hz, 1.0 / p.q)));
-            m.pair_poles.extend(t.complex_poles.iter().map(|p| (1.0 / p.freq_hz, 1.0 / p.q)));
+            m.pair_zeros
+                .extend(t.complex_zeros.iter().map(|p| (1.0 / p.freq_hz, 1.0 / p.q)));
+            m.pair_poles
+                .extend(t.complex_poles.iter().map(|p| (1.0 / p.freq_hz, 1.0 / p.q)));
         }
         m
     }
@@ -155,7 +167,10 @@ impl FastModel {
     pub(crate) fn eval(&self, f: f64) -> (f64, f64) {
         let (ln_mag, principal, est) = self.product::<true>(f);
         let turns = nearest((est - principal) / TAU);
-        (ln_mag, principal + TAU * turns + self.phase0 - TAU * f * self.delay)
+        (
+            ln_mag,
+            principal + TAU * turns + self.phase0 - TAU * f * self.delay,
+        )
     }
 
     /// ln|H|, the principal phase of the factor product, and (when `EST`) the
@@ -205,7 +220,8 @@ impl FastModel {
         let wi = (num.im * den.re - num.re * den.im) * inv;
         // ln|w| from |w|² (w is a ratio of rescaled products, so |w|² is in range);
         // the low cuts' |j·x| parts were multiplied apart and are logged once.
-        let mut ln_mag = 0.5 * libm::log(wr * wr + wi * wi) + num.ln_scale - den.ln_scale + self.ln_gain;
+        let mut ln_mag =
+            0.5 * libm::log(wr * wr + wi * wi) + num.ln_scale - den.ln_scale + self.ln_gain;
         if !self.cuts.is_empty() {
             ln_mag += ln_of_product(cut_product, f, &self.cuts);
         }
@@ -221,7 +237,12 @@ impl FastModel {
     fn step_bound(&self, ratio: f64) -> f64 {
         let lr = libm::log(ratio);
         let first = 0.5 * lr * (self.zeros.len() + self.poles.len()) as f64;
-        let pairs: f64 = self.pair_zeros.iter().chain(&self.pair_poles).map(|&(_, iq)| (2.0 / iq).max(2.0) * lr).sum();
+        let pairs: f64 = self
+            .pair_zeros
+            .iter()
+            .chain(&self.pair_poles)
+            .map(|&(_, iq)| (2.0 / iq).max(2.0) * lr)
+            .sum();
         first + pairs
     }
 
@@ -296,9 +317,19 @@ mod tests {
                 .integrator()
                 .low_cut(0.5)
                 .delay(2e-8),
-            (0..32).fold(TransferModel::constant(1e6), |m, i| m.pole(libm::pow(10.0, i as f64 / 4.0))),
-            (0..16).fold(TransferModel::constant(1.0), |m, i| m.complex_pole(1e3 * (1.0 + i as f64 * 1e-3), 1e4)),
-            TransferModel::constant(5.0).integrator().integrator().integrator().integrator().zero(1e-3).zero(1e-2),
+            (0..32).fold(TransferModel::constant(1e6), |m, i| {
+                m.pole(libm::pow(10.0, i as f64 / 4.0))
+            }),
+            (0..16).fold(TransferModel::constant(1.0), |m, i| {
+                m.complex_pole(1e3 * (1.0 + i as f64 * 1e-3), 1e4)
+            }),
+            TransferModel::constant(5.0)
+                .integrator()
+                .integrator()
+                .integrator()
+                .integrator()
+                .zero(1e-3)
+                .zero(1e-2),
         ];
         for m in &models {
             let fast = FastModel::new(&[m]);
@@ -306,24 +337,43 @@ mod tests {
                 let f = libm::pow(10.0, -8.0 + 20.0 * i as f64 / 4000.0);
                 let (ln, ph) = fast.eval(f);
                 let want = model_log(m, f);
-                assert!((ln - want.ln_mag).abs() <= 1e-12 * want.ln_mag.abs().max(1.0), "f = {f}: {ln} vs {}", want.ln_mag);
-                assert!((ph - want.phase).abs() <= 1e-11 * want.phase.abs().max(1.0), "f = {f}: {ph} vs {}", want.phase);
+                assert!(
+                    (ln - want.ln_mag).abs() <= 1e-12 * want.ln_mag.abs().max(1.0),
+                    "f = {f}: {ln} vs {}",
+                    want.ln_mag
+                );
+                assert!(
+                    (ph - want.phase).abs() <= 1e-11 * want.phase.abs().max(1.0),
+                    "f = {f}: {ph} vs {}",
+                    want.phase
+                );
             }
         }
     }
 
     #[test]
     fn sweep_unwrapping_matches_point_by_point_evaluation() {
-        let m = TransferModel::constant(3e3).pole(50.0).complex_pole(2e5, 5.0).complex_pole(3e6, 0.6).zero(1e4).delay(1e-7);
+        let m = TransferModel::constant(3e3)
+            .pole(50.0)
+            .complex_pole(2e5, 5.0)
+            .complex_pole(3e6, 0.6)
+            .zero(1e4)
+            .delay(1e-7);
         let fast = FastModel::new(&[&m]);
         for n in [50usize, 2000] {
-            let f: Vec<f64> = (0..n).map(|i| libm::pow(10.0, 8.0 * i as f64 / (n - 1) as f64)).collect();
+            let f: Vec<f64> = (0..n)
+                .map(|i| libm::pow(10.0, 8.0 * i as f64 / (n - 1) as f64))
+                .collect();
             let (mut l, mut p) = (Vec::new(), Vec::new());
             fast.sweep(&f, &mut l, &mut p);
             for (i, &x) in f.iter().enumerate() {
                 let (lw, pw) = fast.eval(x);
                 assert_eq!(l[i], lw);
-                assert!((p[i] - pw).abs() < 1e-9, "n = {n}, f = {x}: {} vs {pw}", p[i]);
+                assert!(
+                    (p[i] - pw).abs() < 1e-9,
+                    "n = {n}, f = {x}: {} vs {pw}",
+                    p[i]
+                );
             }
         }
     }

@@ -130,18 +130,34 @@ pub fn margins_with_density(l: &FeedbackLoop, points_per_decade: u32) -> Result<
         .into_iter()
         .map(|(f, rising)| {
             let phase = loop_log(l, f).deg();
-            let margin = if rising { wrap_deg(180.0 - phase) } else { wrap_deg(180.0 + phase) };
-            Crossing { freq_hz: f, margin, rising }
+            let margin = if rising {
+                wrap_deg(180.0 - phase)
+            } else {
+                wrap_deg(180.0 + phase)
+            };
+            Crossing {
+                freq_hz: f,
+                margin,
+                rising,
+            }
         })
         .collect();
     let phases: Vec<Crossing> = phase_list
         .into_iter()
         .map(|f| {
             let g = loop_log(l, f);
-            Crossing { freq_hz: f, margin: -g.db(), rising: false }
+            Crossing {
+                freq_hz: f,
+                margin: -g.db(),
+                rising: false,
+            }
         })
         .collect();
-    let worst = |v: &[Crossing]| v.iter().copied().min_by(|a, b| a.margin.total_cmp(&b.margin));
+    let worst = |v: &[Crossing]| {
+        v.iter()
+            .copied()
+            .min_by(|a, b| a.margin.total_cmp(&b.margin))
+    };
     let pm = worst(&gains);
     let gm = worst(&phases);
     let validity = if l.open_loop_unstable() {
@@ -180,7 +196,9 @@ mod tests {
         // T = T0/((1+s/ω1)(1+s/ω2)): at crossover |T| = 1 solved in closed form
         // (quadratic in f²), PM = 180° − atan(fc/f1) − atan(fc/f2).
         let (t0, f1, f2) = (1e3, 1e2, 1e5);
-        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(t0).pole(f1).pole(f2), 1.0).unwrap();
+        let l =
+            FeedbackLoop::with_constant_beta(TransferModel::constant(t0).pole(f1).pole(f2), 1.0)
+                .unwrap();
         let m = stability_margins(&l).unwrap();
         let (a, b) = (f1 * f1, f2 * f2);
         // (1 + x/a)(1 + x/b) = t0², x = fc².
@@ -196,19 +214,35 @@ mod tests {
 
     #[test]
     fn unstable_open_loop_is_flagged() {
-        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(10.0).rhp_pole(1e3), 1.0).unwrap();
-        assert_eq!(stability_margins(&l).unwrap().validity, MarginValidity::OpenLoopUnstable);
-        let p = FeedbackLoop::with_constant_beta(TransferModel::constant(-10.0).pole(1e3), 1.0).unwrap();
-        assert_eq!(stability_margins(&p).unwrap().validity, MarginValidity::PositiveFeedback);
+        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(10.0).rhp_pole(1e3), 1.0)
+            .unwrap();
+        assert_eq!(
+            stability_margins(&l).unwrap().validity,
+            MarginValidity::OpenLoopUnstable
+        );
+        let p = FeedbackLoop::with_constant_beta(TransferModel::constant(-10.0).pole(1e3), 1.0)
+            .unwrap();
+        assert_eq!(
+            stability_margins(&p).unwrap().validity,
+            MarginValidity::PositiveFeedback
+        );
     }
 
     #[test]
     fn worst_of_several_crossings() {
         // A conditionally shaped loop: two crossovers of |T| through a resonant dip.
-        let a = TransferModel::constant(100.0).pole(10.0).complex_zero(1e4, 10.0).complex_pole(1e4, 0.5).pole(1e6);
+        let a = TransferModel::constant(100.0)
+            .pole(10.0)
+            .complex_zero(1e4, 10.0)
+            .complex_pole(1e4, 0.5)
+            .pole(1e6);
         let l = FeedbackLoop::with_constant_beta(a, 1.0).unwrap();
         let m = stability_margins(&l).unwrap();
-        let min = m.gain_crossings.iter().map(|c| c.margin).fold(f64::INFINITY, f64::min);
+        let min = m
+            .gain_crossings
+            .iter()
+            .map(|c| c.margin)
+            .fold(f64::INFINITY, f64::min);
         assert_eq!(m.phase_margin_deg, Some(min));
     }
 }

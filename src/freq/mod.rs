@@ -44,16 +44,21 @@ pub mod step;
 pub mod summary;
 
 pub use bandwidth::{closed_loop_bandwidth, Bandwidth};
-pub use closed_forms::{gain_bandwidth, single_pole_high_cutoff, single_pole_low_cutoff, two_pole_response, TwoPoleResponse};
+pub use closed_forms::{
+    gain_bandwidth, single_pole_high_cutoff, single_pole_low_cutoff, two_pole_response,
+    TwoPoleResponse,
+};
 pub use compensation::{dominant_pole_for_margin, max_beta_for_margin, Compensation};
 pub use crossings::{gain_crossings_hz, phase_crossings_hz, CROSSING_REL_TOL};
 pub use margins::{margins_with_density, stability_margins, Crossing, MarginValidity, Margins};
 pub use model::{ComplexPair, FeedbackLoop, TransferModel};
 pub use poles::{closed_loop_poles, ClosedLoopPoles, Pole, Verdict};
-pub use poly::{characteristic_polynomial, closed_loop_transfer, CharacteristicPolynomial, ClosedLoopTransfer};
+pub use poly::{
+    characteristic_polynomial, closed_loop_transfer, CharacteristicPolynomial, ClosedLoopTransfer,
+};
 pub use response::{
-    closed_loop_gain_at, closed_loop_sweep, log_frequencies, loop_gain_at, loop_gain_sweep, unwrap_phase_deg, Sweep,
-    MAX_SWEEP_POINTS,
+    closed_loop_gain_at, closed_loop_sweep, log_frequencies, loop_gain_at, loop_gain_sweep,
+    unwrap_phase_deg, Sweep, MAX_SWEEP_POINTS,
 };
 pub use roots::roots as polynomial_roots;
 pub use step::{step_response, step_waveform, StepResponse, StepWaveform};

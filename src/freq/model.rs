@@ -87,7 +87,10 @@ pub struct TransferModel {
 impl TransferModel {
     /// A frequency-independent gain (a resistive β, say).
     pub fn constant(gain: f64) -> Self {
-        TransferModel { gain, ..Default::default() }
+        TransferModel {
+            gain,
+            ..Default::default()
+        }
     }
     /// Add a real left-half-plane pole at `f_hz`.
     pub fn pole(mut self, f_hz: f64) -> Self {
@@ -148,7 +151,10 @@ impl TransferModel {
     /// Number of zeros (finite and at the origin), counting a pair as two and a
     /// low cut as one.
     pub fn zero_count(&self) -> usize {
-        self.zeros_hz.len() + self.rhp_zeros_hz.len() + 2 * self.complex_zeros.len() + self.low_cuts_hz.len()
+        self.zeros_hz.len()
+            + self.rhp_zeros_hz.len()
+            + 2 * self.complex_zeros.len()
+            + self.low_cuts_hz.len()
     }
 
     /// True when there is nothing but the gain.
@@ -187,19 +193,28 @@ impl TransferModel {
                 corner(param, f)?;
             }
         }
-        for (pairs, field) in [(&self.complex_poles, Field::ComplexPoles), (&self.complex_zeros, Field::ComplexZeros)] {
+        for (pairs, field) in [
+            (&self.complex_poles, Field::ComplexPoles),
+            (&self.complex_zeros, Field::ComplexZeros),
+        ] {
             let param = role.name(field);
             too_many(param, pairs.len())?;
             for p in pairs {
                 corner(param, p.freq_hz)?;
                 let q = check::positive(param, p.q)?;
                 if !(MIN_Q..=MAX_Q).contains(&q) {
-                    return Err(Error::OutOfDomain { param, requirement: "Q must be between 1e-6 and 1e6" });
+                    return Err(Error::OutOfDomain {
+                        param,
+                        requirement: "Q must be between 1e-6 and 1e6",
+                    });
                 }
             }
         }
         if self.origin_poles > MAX_ORIGIN_POLES {
-            return Err(Error::TooLarge { param: role.name(Field::OriginPoles), limit: MAX_ORIGIN_POLES as u64 });
+            return Err(Error::TooLarge {
+                param: role.name(Field::OriginPoles),
+                limit: MAX_ORIGIN_POLES as u64,
+            });
         }
         let delay = check::non_negative(role.name(Field::Delay), self.delay_s)?;
         if delay > 0.0 && !(MIN_HZ..=MAX_HZ).contains(&(1.0 / delay)) {
@@ -224,13 +239,19 @@ fn corner(param: &'static str, f: f64) -> Result<f64> {
     if (MIN_HZ..=MAX_HZ).contains(&f) {
         Ok(f)
     } else {
-        Err(Error::OutOfDomain { param, requirement: "each frequency must be between 1e-9 Hz and 1e12 Hz" })
+        Err(Error::OutOfDomain {
+            param,
+            requirement: "each frequency must be between 1e-9 Hz and 1e12 Hz",
+        })
     }
 }
 
 fn too_many(param: &'static str, n: usize) -> Result<()> {
     if n > MAX_FACTORS {
-        Err(Error::TooLarge { param, limit: MAX_FACTORS as u64 })
+        Err(Error::TooLarge {
+            param,
+            limit: MAX_FACTORS as u64,
+        })
     } else {
         Ok(())
     }
@@ -343,12 +364,16 @@ impl FeedbackLoop {
         a.validate(Role::A)?;
         beta.validate(Role::Beta)?;
         if pade_order == 0 || pade_order > MAX_PADE_ORDER {
-            return Err(Error::OutOfDomain { param: "pade_order", requirement: "must be between 1 and 10" });
+            return Err(Error::OutOfDomain {
+                param: "pade_order",
+                requirement: "must be between 1 and 10",
+            });
         }
         if beta.origin_poles > 0 {
             return Err(Error::OutOfDomain {
                 param: "beta.origin_poles",
-                requirement: "must be 0: a feedback network with an integrator has no closed-loop gain at DC",
+                requirement:
+                    "must be 0: a feedback network with an integrator has no closed-loop gain at DC",
             });
         }
         if a.zero_count() > a.pole_count() {
@@ -368,11 +393,20 @@ impl FeedbackLoop {
             + beta.pole_count().max(beta.zero_count())
             + (delays * pade_order) as usize;
         if order > MAX_ORDER {
-            return Err(Error::TooLarge { param: "beta", limit: MAX_ORDER as u64 });
+            return Err(Error::TooLarge {
+                param: "beta",
+                limit: MAX_ORDER as u64,
+            });
         }
         let fast_loop = FastModel::new(&[&a, &beta]);
         let fast_amp = FastModel::new(&[&a]);
-        Ok(FeedbackLoop { a, beta, pade_order, fast_loop, fast_amp })
+        Ok(FeedbackLoop {
+            a,
+            beta,
+            pade_order,
+            fast_loop,
+            fast_amp,
+        })
     }
 
     /// A loop with a frequency-independent β.
@@ -428,7 +462,8 @@ impl FeedbackLoop {
     /// Relative degree of T (poles minus zeros): |T| falls as f^−this at very high
     /// frequency.
     pub(crate) fn relative_degree(&self) -> i64 {
-        (self.a.pole_count() + self.beta.pole_count()) as i64 - (self.a.zero_count() + self.beta.zero_count()) as i64
+        (self.a.pole_count() + self.beta.pole_count()) as i64
+            - (self.a.zero_count() + self.beta.zero_count()) as i64
     }
 }
 
@@ -442,7 +477,12 @@ mod tests {
 
     #[test]
     fn builder_counts_factors() {
-        let m = a().zero(1e7).complex_pole(1e7, 0.7).integrator().low_cut(1.0).rhp_zero(1e8);
+        let m = a()
+            .zero(1e7)
+            .complex_pole(1e7, 0.7)
+            .integrator()
+            .low_cut(1.0)
+            .rhp_zero(1e8);
         assert_eq!(m.pole_count(), 2 + 2 + 1 + 1);
         assert_eq!(m.zero_count(), 1 + 1 + 1);
         assert!(!m.is_constant());
@@ -462,13 +502,33 @@ mod tests {
         assert_eq!(e(a().zero(1.0).zero(2.0).zero(3.0)).param(), "a.zeros_hz");
         let many = (0..33).fold(TransferModel::constant(1.0), |m, i| m.pole(1.0 + i as f64));
         assert_eq!(e(many).code(), "too_large");
-        assert_eq!(FeedbackLoop::new(a(), TransferModel::constant(0.0)).unwrap_err().param(), "beta.gain");
         assert_eq!(
-            FeedbackLoop::new(a(), TransferModel::constant(0.1).zero(1.0).zero(2.0).zero(3.0)).unwrap_err().param(),
+            FeedbackLoop::new(a(), TransferModel::constant(0.0))
+                .unwrap_err()
+                .param(),
+            "beta.gain"
+        );
+        assert_eq!(
+            FeedbackLoop::new(
+                a(),
+                TransferModel::constant(0.1).zero(1.0).zero(2.0).zero(3.0)
+            )
+            .unwrap_err()
+            .param(),
             "beta.zeros_hz"
         );
-        assert_eq!(FeedbackLoop::new(a(), TransferModel::constant(0.1).integrator()).unwrap_err().param(), "beta.origin_poles");
-        assert_eq!(FeedbackLoop::with_pade_order(a(), b, 0).unwrap_err().param(), "pade_order");
+        assert_eq!(
+            FeedbackLoop::new(a(), TransferModel::constant(0.1).integrator())
+                .unwrap_err()
+                .param(),
+            "beta.origin_poles"
+        );
+        assert_eq!(
+            FeedbackLoop::with_pade_order(a(), b, 0)
+                .unwrap_err()
+                .param(),
+            "pade_order"
+        );
     }
 
     #[test]

@@ -95,14 +95,33 @@ pub fn closed_loop_poles(l: &FeedbackLoop) -> Result<ClosedLoopPoles> {
         let s = z * wn;
         let mag = check::result("poles", s.norm())?;
         let zeta = if mag > 0.0 { -s.re / mag } else { 0.0 };
-        let q = if s.im != 0.0 && zeta > 0.0 { Some(1.0 / (2.0 * zeta)) } else { None };
-        poles.push(Pole { re: s.re, im: s.im, natural_hz: mag / TAU, zeta, q });
+        let q = if s.im != 0.0 && zeta > 0.0 {
+            Some(1.0 / (2.0 * zeta))
+        } else {
+            None
+        };
+        poles.push(Pole {
+            re: s.re,
+            im: s.im,
+            natural_hz: mag / TAU,
+            zeta,
+            q,
+        });
     }
-    crate::sort::sort_by(&mut poles, |a, b| a.natural_hz.total_cmp(&b.natural_hz).then(a.im.total_cmp(&b.im)));
+    crate::sort::sort_by(&mut poles, |a, b| {
+        a.natural_hz
+            .total_cmp(&b.natural_hz)
+            .then(a.im.total_cmp(&b.im))
+    });
     let verdict = verdict_of(&poles);
     let min_zeta = poles.iter().map(|p| p.zeta).min_by(f64::total_cmp);
     let has_delay = l.amplifier().delay_s > 0.0 || l.feedback().delay_s > 0.0;
-    Ok(ClosedLoopPoles { poles, verdict, min_zeta, pade_order: if has_delay { l.pade_order() } else { 0 } })
+    Ok(ClosedLoopPoles {
+        poles,
+        verdict,
+        min_zeta,
+        pade_order: if has_delay { l.pade_order() } else { 0 },
+    })
 }
 
 /// Verdict from a list of poles.
@@ -128,7 +147,8 @@ mod tests {
     #[test]
     fn single_pole_moves_out_by_the_feedback_amount() {
         // Pole at fH·(1 + A0β) = 10 Hz · 1001 (single-pole bandwidth extension).
-        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(1e5).pole(10.0), 0.01).unwrap();
+        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(1e5).pole(10.0), 0.01)
+            .unwrap();
         let p = closed_loop_poles(&l).unwrap();
         assert_eq!(p.poles.len(), 1);
         assert!((p.poles[0].natural_hz / 10_010.0 - 1.0).abs() < 1e-13);
@@ -151,7 +171,9 @@ mod tests {
     fn two_pole_loop_q_matches_the_closed_form() {
         // Q = √((1+T0)·ω1·ω2)/(ω1+ω2) (two-pole closed form).
         let (t0, f1, f2) = (999.0, 1e3, 1e6);
-        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(t0).pole(f1).pole(f2), 1.0).unwrap();
+        let l =
+            FeedbackLoop::with_constant_beta(TransferModel::constant(t0).pole(f1).pole(f2), 1.0)
+                .unwrap();
         let p = closed_loop_poles(&l).unwrap();
         let q = crate::float::sqrt((1.0 + t0) * f1 * f2) / (f1 + f2);
         assert!((p.poles[0].q.unwrap() - q).abs() < 1e-12 * q);
@@ -160,7 +182,10 @@ mod tests {
 
     #[test]
     fn integrator_with_low_cut_gives_a_pole_at_the_origin() {
-        let a = TransferModel::constant(100.0).integrator().low_cut(1.0).pole(1e4);
+        let a = TransferModel::constant(100.0)
+            .integrator()
+            .low_cut(1.0)
+            .pole(1e4);
         let p = closed_loop_poles(&FeedbackLoop::with_constant_beta(a, 1.0).unwrap()).unwrap();
         assert_eq!(p.verdict, Verdict::Marginal);
         assert!(p.poles.iter().any(|q| q.natural_hz == 0.0));

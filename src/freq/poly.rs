@@ -43,7 +43,9 @@ pub fn multiply(a: &[f64], b: &[f64]) -> Coeffs {
 /// Sum of two polynomials, the second scaled by `k`.
 fn add_scaled(a: &[f64], b: &[f64], k: f64) -> Coeffs {
     let n = a.len().max(b.len());
-    (0..n).map(|i| a.get(i).copied().unwrap_or(0.0) + k * b.get(i).copied().unwrap_or(0.0)).collect()
+    (0..n)
+        .map(|i| a.get(i).copied().unwrap_or(0.0) + k * b.get(i).copied().unwrap_or(0.0))
+        .collect()
 }
 
 /// Drop highest-power coefficients that are exactly zero.
@@ -56,7 +58,9 @@ pub fn trim(mut c: Coeffs) -> Coeffs {
 
 /// Evaluate at a complex point (Horner).
 pub fn eval(c: &[f64], z: num_complex::Complex64) -> num_complex::Complex64 {
-    c.iter().rev().fold(num_complex::Complex64::new(0.0, 0.0), |acc, &a| acc * z + a)
+    c.iter()
+        .rev()
+        .fold(num_complex::Complex64::new(0.0, 0.0), |acc, &a| acc * z + a)
 }
 
 /// Padé polynomial Pm(x) coefficients, lowest power first.
@@ -137,7 +141,8 @@ pub(crate) fn rational(m: &TransferModel, wn: f64, pade_order: u32) -> Rational 
 pub(crate) fn normalising_omega(l: &FeedbackLoop) -> f64 {
     let corners = l.corners_hz();
     if !corners.is_empty() {
-        let mean_ln = corners.iter().map(|&f| libm::log(TAU * f)).sum::<f64>() / corners.len() as f64;
+        let mean_ln =
+            corners.iter().map(|&f| libm::log(TAU * f)).sum::<f64>() / corners.len() as f64;
         return libm::exp(mean_ln);
     }
     let k = l.amplifier().origin_poles;
@@ -180,9 +185,16 @@ pub fn characteristic_polynomial(l: &FeedbackLoop) -> Result<CharacteristicPolyn
     let wn = normalising_omega(l);
     let a = rational(l.amplifier(), wn, l.pade_order());
     let b = rational(l.feedback(), wn, l.pade_order());
-    let c = trim(add_scaled(&multiply(&a.den, &b.den), &multiply(&a.num, &b.num), a.k * b.k));
+    let c = trim(add_scaled(
+        &multiply(&a.den, &b.den),
+        &multiply(&a.num, &b.num),
+        a.k * b.k,
+    ));
     check_coeffs("characteristic_polynomial", &c)?;
-    Ok(CharacteristicPolynomial { omega_n: wn, coeffs: c })
+    Ok(CharacteristicPolynomial {
+        omega_n: wn,
+        coeffs: c,
+    })
 }
 
 /// The closed-loop gain as a rational function in the normalised variable.
@@ -214,7 +226,11 @@ pub struct ClosedLoopTransfer {
 /// ```
 pub fn closed_loop_transfer(l: &FeedbackLoop) -> Result<ClosedLoopTransfer> {
     let (numerator, denominator, omega_n) = closed_loop_rational(l)?;
-    Ok(ClosedLoopTransfer { omega_n, numerator, denominator })
+    Ok(ClosedLoopTransfer {
+        omega_n,
+        numerator,
+        denominator,
+    })
 }
 
 /// Closed-loop Af(p) = kA·NA·Dβ / C(p): (numerator, denominator, ωn).
@@ -223,7 +239,10 @@ pub(crate) fn closed_loop_rational(l: &FeedbackLoop) -> Result<(Coeffs, Coeffs, 
     let wn = cp.omega_n;
     let a = rational(l.amplifier(), wn, l.pade_order());
     let b = rational(l.feedback(), wn, l.pade_order());
-    let num: Coeffs = multiply(&a.num, &b.den).into_iter().map(|x| x * a.k).collect();
+    let num: Coeffs = multiply(&a.num, &b.den)
+        .into_iter()
+        .map(|x| x * a.k)
+        .collect();
     check_coeffs("closed_loop_gain", &num)?;
     Ok((trim(num), cp.coeffs, wn))
 }
@@ -233,7 +252,10 @@ fn check_coeffs(what: &'static str, c: &[f64]) -> Result<()> {
         return Err(Error::Overflow { param: what });
     }
     if c.iter().all(|&x| x == 0.0) {
-        return Err(Error::Singular { param: what, reason: "1 + A·β is identically zero" });
+        return Err(Error::Singular {
+            param: what,
+            reason: "1 + A·β is identically zero",
+        });
     }
     Ok(())
 }

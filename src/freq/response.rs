@@ -37,7 +37,10 @@ pub(crate) struct LogPhasor {
 
 impl LogPhasor {
     pub(crate) fn sub(self, o: LogPhasor) -> LogPhasor {
-        LogPhasor { ln_mag: self.ln_mag - o.ln_mag, phase: self.phase - o.phase }
+        LogPhasor {
+            ln_mag: self.ln_mag - o.ln_mag,
+            phase: self.phase - o.phase,
+        }
     }
     pub(crate) fn complex(self) -> Complex64 {
         Complex64::from_polar(libm::exp(self.ln_mag), self.phase)
@@ -112,7 +115,10 @@ pub(crate) fn model_log(m: &TransferModel, f: f64) -> LogPhasor {
         ph += PI / 2.0 - a;
     }
     ph -= TAU * f * m.delay_s;
-    LogPhasor { ln_mag: ln, phase: ph }
+    LogPhasor {
+        ln_mag: ln,
+        phase: ph,
+    }
 }
 
 /// Loop gain T = A·β at f Hz as log magnitude and continuous phase.
@@ -124,16 +130,29 @@ pub(crate) fn loop_log(l: &FeedbackLoop, f: f64) -> LogPhasor {
 /// Closed-loop gain A/(1 + T) at f Hz as log magnitude and principal phase.
 pub(crate) fn closed_log(l: &FeedbackLoop, f: f64) -> LogPhasor {
     let (ln_a, ph_a) = l.fast_amp().eval(f);
-    let a = LogPhasor { ln_mag: ln_a, phase: ph_a };
+    let a = LogPhasor {
+        ln_mag: ln_a,
+        phase: ph_a,
+    };
     let t = loop_log(l, f);
     // 1 + T in log form: ln|1+T| = ln|T| + ln|1 + 1/T| is safer for large T.
     let d = if t.ln_mag > 0.0 {
-        let inv = LogPhasor { ln_mag: -t.ln_mag, phase: -t.phase }.complex();
+        let inv = LogPhasor {
+            ln_mag: -t.ln_mag,
+            phase: -t.phase,
+        }
+        .complex();
         let w = Complex64::new(1.0, 0.0) + inv;
-        LogPhasor { ln_mag: t.ln_mag + libm::log(w.norm()), phase: t.phase + w.arg() }
+        LogPhasor {
+            ln_mag: t.ln_mag + libm::log(w.norm()),
+            phase: t.phase + w.arg(),
+        }
     } else {
         let w = Complex64::new(1.0, 0.0) + t.complex();
-        LogPhasor { ln_mag: libm::log(w.norm()), phase: w.arg() }
+        LogPhasor {
+            ln_mag: libm::log(w.norm()),
+            phase: w.arg(),
+        }
     };
     a.sub(d)
 }
@@ -141,7 +160,10 @@ pub(crate) fn closed_log(l: &FeedbackLoop, f: f64) -> LogPhasor {
 fn frequency(f_hz: f64) -> Result<f64> {
     let f = check::positive("f_hz", f_hz)?;
     if !(MIN_SWEEP_HZ..=MAX_SWEEP_HZ).contains(&f) {
-        return Err(Error::OutOfDomain { param: "f_hz", requirement: "must be between 1e-12 Hz and 1e15 Hz" });
+        return Err(Error::OutOfDomain {
+            param: "f_hz",
+            requirement: "must be between 1e-12 Hz and 1e15 Hz",
+        });
     }
     Ok(f)
 }
@@ -220,19 +242,34 @@ pub fn log_frequencies(start_hz: f64, stop_hz: f64, points: usize) -> Result<Vec
     let a = check::positive("start_hz", start_hz)?;
     let b = check::positive("stop_hz", stop_hz)?;
     if !(MIN_SWEEP_HZ..=MAX_SWEEP_HZ).contains(&a) {
-        return Err(Error::OutOfDomain { param: "start_hz", requirement: range });
+        return Err(Error::OutOfDomain {
+            param: "start_hz",
+            requirement: range,
+        });
     }
     if !(MIN_SWEEP_HZ..=MAX_SWEEP_HZ).contains(&b) {
-        return Err(Error::OutOfDomain { param: "stop_hz", requirement: range });
+        return Err(Error::OutOfDomain {
+            param: "stop_hz",
+            requirement: range,
+        });
     }
     if a >= b {
-        return Err(Error::OutOfDomain { param: "stop_hz", requirement: "must be greater than start_hz" });
+        return Err(Error::OutOfDomain {
+            param: "stop_hz",
+            requirement: "must be greater than start_hz",
+        });
     }
     if points < 2 {
-        return Err(Error::OutOfDomain { param: "points", requirement: "must be at least 2" });
+        return Err(Error::OutOfDomain {
+            param: "points",
+            requirement: "must be at least 2",
+        });
     }
     if points > MAX_SWEEP_POINTS {
-        return Err(Error::TooLarge { param: "points", limit: MAX_SWEEP_POINTS as u64 });
+        return Err(Error::TooLarge {
+            param: "points",
+            limit: MAX_SWEEP_POINTS as u64,
+        });
     }
     let (la, lb) = (libm::log(a), libm::log(b));
     let step = (lb - la) / (points - 1) as f64;
@@ -259,12 +296,21 @@ pub fn log_frequencies(start_hz: f64, stop_hz: f64, points: usize) -> Result<Vec
     Ok(f)
 }
 
-fn finish(freq_hz: Vec<f64>, magnitude_db: Vec<f64>, phase_deg: Vec<f64>, what: &'static str) -> Result<Sweep> {
+fn finish(
+    freq_hz: Vec<f64>,
+    magnitude_db: Vec<f64>,
+    phase_deg: Vec<f64>,
+    what: &'static str,
+) -> Result<Sweep> {
     for (&m, &p) in magnitude_db.iter().zip(&phase_deg) {
         check::result(what, m)?;
         check::result(what, p)?;
     }
-    Ok(Sweep { freq_hz, magnitude_db, phase_deg })
+    Ok(Sweep {
+        freq_hz,
+        magnitude_db,
+        phase_deg,
+    })
 }
 
 /// Loop-gain sweep: |T| in dB and the continuous phase of T in degrees at
@@ -283,7 +329,12 @@ fn finish(freq_hz: Vec<f64>, magnitude_db: Vec<f64>, phase_deg: Vec<f64>, what: 
 /// assert!(*s.phase_deg.last().unwrap() < -269.0);
 /// assert_eq!(loop_gain_sweep(&l, 1.0, 1e9, 200_000).unwrap_err().code(), "too_large");
 /// ```
-pub fn loop_gain_sweep(l: &FeedbackLoop, start_hz: f64, stop_hz: f64, points: usize) -> Result<Sweep> {
+pub fn loop_gain_sweep(
+    l: &FeedbackLoop,
+    start_hz: f64,
+    stop_hz: f64,
+    points: usize,
+) -> Result<Sweep> {
     let f = log_frequencies(start_hz, stop_hz, points)?;
     let (mut m, mut p) = (Vec::with_capacity(f.len()), Vec::with_capacity(f.len()));
     l.fast_loop().sweep(&f, &mut m, &mut p);
@@ -309,7 +360,12 @@ pub fn loop_gain_sweep(l: &FeedbackLoop, start_hz: f64, stop_hz: f64, points: us
 /// assert!((s.magnitude_db[0] - 20.0 * (1e5f64 / 1001.0).log10()).abs() < 1e-6);
 /// assert_eq!(closed_loop_sweep(&l, 1.0, 1e7, 0).unwrap_err().param(), "points");
 /// ```
-pub fn closed_loop_sweep(l: &FeedbackLoop, start_hz: f64, stop_hz: f64, points: usize) -> Result<Sweep> {
+pub fn closed_loop_sweep(
+    l: &FeedbackLoop,
+    start_hz: f64,
+    stop_hz: f64,
+    points: usize,
+) -> Result<Sweep> {
     let f = log_frequencies(start_hz, stop_hz, points)?;
     let (mut m, mut p) = (Vec::with_capacity(f.len()), Vec::with_capacity(f.len()));
     for &fi in &f {
@@ -400,13 +456,20 @@ mod tests {
         for &f in &[0.01, 1.0, 333.0, 1.9e6, 2e6, 5e7] {
             let got = model_log(&m, f).complex();
             let want = direct(&m, f);
-            assert!((got - want).norm() <= 1e-12 * want.norm(), "f = {f}: {got} vs {want}");
+            assert!(
+                (got - want).norm() <= 1e-12 * want.norm(),
+                "f = {f}: {got} vs {want}"
+            );
         }
     }
 
     #[test]
     fn phase_is_continuous_through_a_sharp_pair() {
-        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(10.0).complex_pole(1e3, 50.0), 1.0).unwrap();
+        let l = FeedbackLoop::with_constant_beta(
+            TransferModel::constant(10.0).complex_pole(1e3, 50.0),
+            1.0,
+        )
+        .unwrap();
         let s = loop_gain_sweep(&l, 500.0, 2000.0, 2001).unwrap();
         for w in s.phase_deg.windows(2) {
             assert!(w[1] <= w[0] && w[0] - w[1] < 10.0);
@@ -416,7 +479,11 @@ mod tests {
 
     #[test]
     fn closed_loop_matches_the_feedback_formula() {
-        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(1e4).pole(100.0).pole(1e5), 0.01).unwrap();
+        let l = FeedbackLoop::with_constant_beta(
+            TransferModel::constant(1e4).pole(100.0).pole(1e5),
+            0.01,
+        )
+        .unwrap();
         for &f in &[1.0, 1e3, 1e5, 1e7] {
             let a = direct(l.amplifier(), f);
             let want = a / (Complex64::new(1.0, 0.0) + a * 0.01);
@@ -427,13 +494,35 @@ mod tests {
 
     #[test]
     fn sweep_limits_are_enforced() {
-        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(10.0).pole(1.0), 1.0).unwrap();
-        assert_eq!(loop_gain_sweep(&l, 1.0, 1.0, 10).unwrap_err().param(), "stop_hz");
-        assert_eq!(loop_gain_sweep(&l, -1.0, 1.0, 10).unwrap_err().param(), "start_hz");
-        assert_eq!(loop_gain_sweep(&l, 1.0, 2.0, 1).unwrap_err().param(), "points");
-        assert_eq!(loop_gain_sweep(&l, 1.0, 1e16, 10).unwrap_err().param(), "stop_hz");
-        assert_eq!(closed_loop_sweep(&l, 1.0, f64::NAN, 10).unwrap_err().code(), "not_finite");
-        assert_eq!(loop_gain_sweep(&l, 1.0, 2.0, MAX_SWEEP_POINTS).unwrap().freq_hz.len(), MAX_SWEEP_POINTS);
+        let l =
+            FeedbackLoop::with_constant_beta(TransferModel::constant(10.0).pole(1.0), 1.0).unwrap();
+        assert_eq!(
+            loop_gain_sweep(&l, 1.0, 1.0, 10).unwrap_err().param(),
+            "stop_hz"
+        );
+        assert_eq!(
+            loop_gain_sweep(&l, -1.0, 1.0, 10).unwrap_err().param(),
+            "start_hz"
+        );
+        assert_eq!(
+            loop_gain_sweep(&l, 1.0, 2.0, 1).unwrap_err().param(),
+            "points"
+        );
+        assert_eq!(
+            loop_gain_sweep(&l, 1.0, 1e16, 10).unwrap_err().param(),
+            "stop_hz"
+        );
+        assert_eq!(
+            closed_loop_sweep(&l, 1.0, f64::NAN, 10).unwrap_err().code(),
+            "not_finite"
+        );
+        assert_eq!(
+            loop_gain_sweep(&l, 1.0, 2.0, MAX_SWEEP_POINTS)
+                .unwrap()
+                .freq_hz
+                .len(),
+            MAX_SWEEP_POINTS
+        );
     }
 
     #[test]

@@ -63,14 +63,19 @@ fn newton_ratio(c: &[f64], z: Complex64) -> (Complex64, bool) {
 /// Start points from the upper convex hull of (k, ln|a_k|) (Bini 1996).
 fn start_points(c: &[f64]) -> Vec<Complex64> {
     let n = c.len() - 1;
-    let pts: Vec<(usize, f64)> =
-        c.iter().enumerate().filter(|(_, a)| **a != 0.0).map(|(k, a)| (k, libm::log(libm::fabs(*a)))).collect();
+    let pts: Vec<(usize, f64)> = c
+        .iter()
+        .enumerate()
+        .filter(|(_, a)| **a != 0.0)
+        .map(|(k, a)| (k, libm::log(libm::fabs(*a))))
+        .collect();
     // Upper hull, monotone chain.
     let mut hull: Vec<(usize, f64)> = Vec::new();
     for &p in &pts {
         while hull.len() >= 2 {
             let (a, b) = (hull[hull.len() - 2], hull[hull.len() - 1]);
-            let cross = (b.0 as f64 - a.0 as f64) * (p.1 - a.1) - (b.1 - a.1) * (p.0 as f64 - a.0 as f64);
+            let cross =
+                (b.0 as f64 - a.0 as f64) * (p.1 - a.1) - (b.1 - a.1) * (p.0 as f64 - a.0 as f64);
             if cross >= 0.0 {
                 hull.pop();
             } else {
@@ -87,7 +92,9 @@ fn start_points(c: &[f64]) -> Vec<Complex64> {
         let m = k1 - k0;
         let u = libm::exp((l0 - l1) / m as f64);
         for j in 0..m {
-            let ang = core::f64::consts::TAU * j as f64 / m as f64 + SIGMA * (k0 as f64 + 1.0) / n as f64 + 0.4;
+            let ang = core::f64::consts::TAU * j as f64 / m as f64
+                + SIGMA * (k0 as f64 + 1.0) / n as f64
+                + 0.4;
             z.push(Complex64::from_polar(u, ang));
         }
     }
@@ -95,7 +102,10 @@ fn start_points(c: &[f64]) -> Vec<Complex64> {
     // coefficient, kept for safety): fill on the unit circle.
     while z.len() < n {
         let j = z.len();
-        z.push(Complex64::from_polar(1.0, core::f64::consts::TAU * j as f64 / n as f64 + 0.4));
+        z.push(Complex64::from_polar(
+            1.0,
+            core::f64::consts::TAU * j as f64 / n as f64 + 0.4,
+        ));
     }
     z.truncate(n);
     z
@@ -137,7 +147,9 @@ fn aberth(c: &[f64]) -> Option<Vec<Complex64>> {
                 z[i] = zi - w;
                 // A simple root: at rounding level and the correction has
                 // stopped mattering.
-                if w.norm() <= 8.0 * f64::EPSILON * zi.norm() || (converged_before && w.norm() <= 1e-12 * zi.norm()) {
+                if w.norm() <= 8.0 * f64::EPSILON * zi.norm()
+                    || (converged_before && w.norm() <= 1e-12 * zi.norm())
+                {
                     done[i] = true;
                 }
             } else {
@@ -180,7 +192,10 @@ fn recentre_clusters(c: &[f64], z: &mut [Complex64]) {
             continue;
         }
         let centre = members.iter().map(|&i| z[i]).sum::<Complex64>() / m as f64;
-        let radius = members.iter().map(|&i| (z[i] - centre).norm()).fold(0.0, f64::max);
+        let radius = members
+            .iter()
+            .map(|&i| (z[i] - centre).norm())
+            .fold(0.0, f64::max);
         // Only a cluster that the arithmetic cannot resolve: P at its centre is at
         // rounding-error level. Well separated close roots are left alone.
         if !newton_ratio(c, centre).1 {
@@ -189,12 +204,22 @@ fn recentre_clusters(c: &[f64], z: &mut [Complex64]) {
         // (m−1)-th derivative, coefficients lowest power first.
         let mut d: Vec<f64> = c.to_vec();
         for _ in 0..m - 1 {
-            d = d.iter().enumerate().skip(1).map(|(k, a)| a * k as f64).collect();
+            d = d
+                .iter()
+                .enumerate()
+                .skip(1)
+                .map(|(k, a)| a * k as f64)
+                .collect();
         }
         if d.len() < 2 {
             continue;
         }
-        let dd: Vec<f64> = d.iter().enumerate().skip(1).map(|(k, a)| a * k as f64).collect();
+        let dd: Vec<f64> = d
+            .iter()
+            .enumerate()
+            .skip(1)
+            .map(|(k, a)| a * k as f64)
+            .collect();
         let mut x = centre;
         for _ in 0..30 {
             let step = super::poly::eval(&d, x) / super::poly::eval(&dd, x);
@@ -220,7 +245,11 @@ fn laguerre(c: &[Complex64], mut x: Complex64) -> Complex64 {
     let n = (c.len() - 1) as f64;
     const FRAC: [f64; 8] = [0.5, 0.25, 0.75, 0.13, 0.38, 0.62, 0.88, 1.0];
     for it in 1..=800 {
-        let (mut b, mut d, mut f) = (c[c.len() - 1], Complex64::new(0.0, 0.0), Complex64::new(0.0, 0.0));
+        let (mut b, mut d, mut f) = (
+            c[c.len() - 1],
+            Complex64::new(0.0, 0.0),
+            Complex64::new(0.0, 0.0),
+        );
         let mut err = b.norm();
         let abx = x.norm();
         for j in (0..c.len() - 1).rev() {
@@ -302,7 +331,10 @@ fn prepare(c: &[f64]) -> Result<Vec<f64>> {
         c.pop();
     }
     if c.is_empty() {
-        return Err(Error::Singular { param: "coeffs", reason: "the polynomial is identically zero" });
+        return Err(Error::Singular {
+            param: "coeffs",
+            reason: "the polynomial is identically zero",
+        });
     }
     Ok(c)
 }
@@ -310,7 +342,10 @@ fn prepare(c: &[f64]) -> Result<Vec<f64>> {
 /// Exact roots at zero (trailing zero coefficients) and the rest.
 fn split_zero_roots(c: &[f64]) -> (Vec<Complex64>, Vec<f64>) {
     let k = c.iter().take_while(|&&a| a == 0.0).count();
-    (vec![Complex64::new(0.0, 0.0); k], c.get(k..).map(|s| s.to_vec()).unwrap_or_default())
+    (
+        vec![Complex64::new(0.0, 0.0); k],
+        c.get(k..).map(|s| s.to_vec()).unwrap_or_default(),
+    )
 }
 
 /// Make near-real roots exactly real and pair conjugates, then sort by modulus
@@ -318,7 +353,10 @@ fn split_zero_roots(c: &[f64]) -> (Vec<Complex64>, Vec<f64>) {
 fn finish(mut z: Vec<Complex64>) -> Result<Vec<Complex64>> {
     for r in z.iter_mut() {
         if !(r.re.is_finite() && r.im.is_finite()) {
-            return Err(Error::NoConvergence { param: "coeffs", reason: "a root left the floating-point range" });
+            return Err(Error::NoConvergence {
+                param: "coeffs",
+                reason: "a root left the floating-point range",
+            });
         }
         if libm::fabs(r.im) <= 1e-12 * r.norm() {
             r.im = 0.0;
@@ -357,7 +395,9 @@ fn finish(mut z: Vec<Complex64>) -> Result<Vec<Complex64>> {
             r.im = 0.0;
         }
     }
-    crate::sort::sort_by(&mut z, |a, b| a.norm().total_cmp(&b.norm()).then(a.im.total_cmp(&b.im)));
+    crate::sort::sort_by(&mut z, |a, b| {
+        a.norm().total_cmp(&b.norm()).then(a.im.total_cmp(&b.im))
+    });
     Ok(z)
 }
 
@@ -407,7 +447,9 @@ mod tests {
     use super::*;
 
     fn from_roots(r: &[f64]) -> Vec<f64> {
-        r.iter().fold(vec![1.0], |acc, &x| super::super::poly::multiply(&acc, &[-x, 1.0]))
+        r.iter().fold(vec![1.0], |acc, &x| {
+            super::super::poly::multiply(&acc, &[-x, 1.0])
+        })
     }
 
     #[test]
@@ -472,7 +514,10 @@ mod tests {
         let a = roots(&c).unwrap();
         let b = roots_laguerre(&c).unwrap();
         for z in &a {
-            let nearest = b.iter().map(|w| (w - z).norm()).fold(f64::INFINITY, f64::min);
+            let nearest = b
+                .iter()
+                .map(|w| (w - z).norm())
+                .fold(f64::INFINITY, f64::min);
             assert!(nearest < 1e-10 * (1.0 + z.norm()), "{z}");
         }
     }

@@ -20,8 +20,8 @@
 //! exponential of a matrix, twenty-five years later", SIAM Review 45 (2003)
 //! (scaling and squaring; from memory).
 
-use super::crossings::brent;
 use super::bandwidth::golden_max;
+use super::crossings::brent;
 use super::model::FeedbackLoop;
 use super::poles::AXIS_TOL;
 use super::poly::closed_loop_rational;
@@ -83,7 +83,10 @@ struct Mat {
 
 impl Mat {
     fn zeros(n: usize) -> Mat {
-        Mat { n, a: vec![0.0; n * n] }
+        Mat {
+            n,
+            a: vec![0.0; n * n],
+        }
     }
     fn identity(n: usize) -> Mat {
         let mut m = Mat::zeros(n);
@@ -110,20 +113,31 @@ impl Mat {
     }
     fn norm1(&self) -> f64 {
         let n = self.n;
-        (0..n).map(|j| (0..n).map(|i| libm::fabs(self.a[i * n + j])).sum::<f64>()).fold(0.0, f64::max)
+        (0..n)
+            .map(|j| (0..n).map(|i| libm::fabs(self.a[i * n + j])).sum::<f64>())
+            .fold(0.0, f64::max)
     }
     fn scaled(&self, k: f64) -> Mat {
-        Mat { n: self.n, a: self.a.iter().map(|x| x * k).collect() }
+        Mat {
+            n: self.n,
+            a: self.a.iter().map(|x| x * k).collect(),
+        }
     }
     fn mul_vec(&self, v: &[f64]) -> Vec<f64> {
         let n = self.n;
-        (0..n).map(|i| (0..n).map(|j| self.a[i * n + j] * v[j]).sum()).collect()
+        (0..n)
+            .map(|i| (0..n).map(|j| self.a[i * n + j] * v[j]).sum())
+            .collect()
     }
     /// exp(self·t) by scaling and squaring.
     fn expm(&self, t: f64) -> Mat {
         let m = self.scaled(t);
         let norm = m.norm1();
-        let s = if norm > 0.5 { crate::float::ceil(libm::log2(norm / 0.5)) as i32 } else { 0 };
+        let s = if norm > 0.5 {
+            crate::float::ceil(libm::log2(norm / 0.5)) as i32
+        } else {
+            0
+        };
         let s = s.clamp(0, 1000);
         let m = m.scaled(libm::pow(2.0, -f64::from(s)));
         let mut sum = Mat::identity(self.n);
@@ -182,14 +196,30 @@ impl System {
         m.a[(n - 1) * w + n] = 1.0;
         let poles = roots(&den)?;
         let stable = poles.iter().all(|p| p.re < -AXIS_TOL * p.norm());
-        let sigma_min = if stable { poles.iter().map(|p| -p.re).min_by(f64::total_cmp) } else { None };
-        let final_value = if den[0] != 0.0 { num.first().copied().unwrap_or(0.0) / den[0] } else { 0.0 };
+        let sigma_min = if stable {
+            poles.iter().map(|p| -p.re).min_by(f64::total_cmp)
+        } else {
+            None
+        };
+        let final_value = if den[0] != 0.0 {
+            num.first().copied().unwrap_or(0.0) / den[0]
+        } else {
+            0.0
+        };
         let first_peak = poles
             .iter()
             .filter(|p| p.im > 0.0 && p.im >= 0.1 * -p.re)
             .map(|p| 1.5 * core::f64::consts::PI / p.im)
             .fold(0.0, f64::max);
-        Ok(System { m, c, d, wn, sigma_min, first_peak, final_value })
+        Ok(System {
+            m,
+            c,
+            d,
+            wn,
+            sigma_min,
+            first_peak,
+            final_value,
+        })
     }
 
     /// Output at normalised time τ from rest.
@@ -220,10 +250,16 @@ impl System {
 
 fn point_count(points: usize) -> Result<usize> {
     if points < 2 {
-        return Err(Error::OutOfDomain { param: "points", requirement: "must be at least 2" });
+        return Err(Error::OutOfDomain {
+            param: "points",
+            requirement: "must be at least 2",
+        });
     }
     if points > MAX_SWEEP_POINTS {
-        return Err(Error::TooLarge { param: "points", limit: MAX_SWEEP_POINTS as u64 });
+        return Err(Error::TooLarge {
+            param: "points",
+            limit: MAX_SWEEP_POINTS as u64,
+        });
     }
     Ok(points)
 }
@@ -255,7 +291,9 @@ pub fn step_waveform(l: &FeedbackLoop, duration_s: f64, points: usize) -> Result
     for &y in &output {
         check::result("step_output", y)?;
     }
-    let time_s = (0..points).map(|i| duration * i as f64 / (points - 1) as f64).collect();
+    let time_s = (0..points)
+        .map(|i| duration * i as f64 / (points - 1) as f64)
+        .collect();
     Ok(StepWaveform { time_s, output })
 }
 
@@ -285,7 +323,10 @@ pub fn step_waveform(l: &FeedbackLoop, duration_s: f64, points: usize) -> Result
 pub fn step_response(l: &FeedbackLoop, settle_band: f64, points: usize) -> Result<StepResponse> {
     let band = check::positive("settle_band", settle_band)?;
     if band >= 0.5 {
-        return Err(Error::OutOfDomain { param: "settle_band", requirement: "must be between 0 and 0.5" });
+        return Err(Error::OutOfDomain {
+            param: "settle_band",
+            requirement: "must be between 0 and 0.5",
+        });
     }
     let points = point_count(points)?;
     let sys = System::new(l)?;
@@ -300,17 +341,29 @@ pub fn step_response(l: &FeedbackLoop, settle_band: f64, points: usize) -> Resul
             reason: "the closed-loop gain at DC is zero (a low cut), so there is no final value to settle to",
         });
     }
-    let mut span = ((libm::log(1.0 / band) + 8.0) * 1.2 / sigma).max(sys.first_peak.min(200.0 / sigma));
+    let mut span =
+        ((libm::log(1.0 / band) + 8.0) * 1.2 / sigma).max(sys.first_peak.min(200.0 / sigma));
     let count = points.max(DETECT_SAMPLES);
     let yn = |tau: f64| sys.output_at(tau) / yf;
     for _ in 0..=MAX_EXTENSIONS {
-        let y: Vec<f64> = sys.samples(span, count).into_iter().map(|v| v / yf).collect();
+        let y: Vec<f64> = sys
+            .samples(span, count)
+            .into_iter()
+            .map(|v| v / yf)
+            .collect();
         let h = span / (count - 1) as f64;
         let t = |i: usize| h * i as f64;
         // Settling: last sample outside the band must not be the last one, and the
         // final tenth must be inside.
         let outside = y.iter().rposition(|v| libm::fabs(v - 1.0) > band);
-        let top = y.iter().copied().enumerate().fold((0, f64::NEG_INFINITY), |b, (i, v)| if v > b.1 { (i, v) } else { b });
+        let top = y
+            .iter()
+            .copied()
+            .enumerate()
+            .fold(
+                (0, f64::NEG_INFINITY),
+                |b, (i, v)| if v > b.1 { (i, v) } else { b },
+            );
         // Not settled yet, or still rising above the final value at the end.
         if outside.is_some_and(|k| k + count / 10 >= count) || (top.1 > 1.0 && top.0 + 1 >= count) {
             span *= 2.0;
@@ -338,17 +391,35 @@ pub fn step_response(l: &FeedbackLoop, settle_band: f64, points: usize) -> Resul
             }
         };
         let rise = first_at(0.9) - first_at(0.1);
-        let (kmax, vmax) = y.iter().copied().enumerate().fold((0, f64::NEG_INFINITY), |b, (i, v)| if v > b.1 { (i, v) } else { b });
+        let (kmax, vmax) =
+            y.iter()
+                .copied()
+                .enumerate()
+                .fold(
+                    (0, f64::NEG_INFINITY),
+                    |b, (i, v)| if v > b.1 { (i, v) } else { b },
+                );
         let (overshoot, peak_time) = if vmax > 1.0 && kmax + 1 < count {
             let (tp, vp) = golden_max(&yn, t(kmax.saturating_sub(1)), t(kmax + 1));
             ((vp.max(vmax) - 1.0) * 100.0, Some(tp / sys.wn))
         } else {
             (0.0, None)
         };
-        let (kmin, vmin) = y.iter().copied().enumerate().fold((0, f64::INFINITY), |b, (i, v)| if v < b.1 { (i, v) } else { b });
+        let (kmin, vmin) = y
+            .iter()
+            .copied()
+            .enumerate()
+            .fold(
+                (0, f64::INFINITY),
+                |b, (i, v)| if v < b.1 { (i, v) } else { b },
+            );
         let undershoot = if vmin < 0.0 {
             let neg = |tau: f64| -yn(tau);
-            let (_, v) = golden_max(&neg, t(kmin.saturating_sub(1)), t((kmin + 1).min(count - 1)));
+            let (_, v) = golden_max(
+                &neg,
+                t(kmin.saturating_sub(1)),
+                t((kmin + 1).min(count - 1)),
+            );
             v.max(-vmin) * 100.0
         } else {
             0.0
@@ -356,10 +427,15 @@ pub fn step_response(l: &FeedbackLoop, settle_band: f64, points: usize) -> Resul
         let duration = span / sys.wn;
         let waveform = if points == count {
             let time_s = (0..count).map(|i| t(i) / sys.wn).collect();
-            StepWaveform { time_s, output: y.iter().map(|v| v * yf).collect() }
+            StepWaveform {
+                time_s,
+                output: y.iter().map(|v| v * yf).collect(),
+            }
         } else {
             let output = sys.samples(span, points);
-            let time_s = (0..points).map(|i| duration * i as f64 / (points - 1) as f64).collect();
+            let time_s = (0..points)
+                .map(|i| duration * i as f64 / (points - 1) as f64)
+                .collect();
             StepWaveform { time_s, output }
         };
         return Ok(StepResponse {
@@ -373,7 +449,10 @@ pub fn step_response(l: &FeedbackLoop, settle_band: f64, points: usize) -> Resul
             waveform,
         });
     }
-    Err(Error::NoConvergence { param: "settling_time_s", reason: "the response did not settle within the simulated span" })
+    Err(Error::NoConvergence {
+        param: "settling_time_s",
+        reason: "the response did not settle within the simulated span",
+    })
 }
 
 #[cfg(test)]
@@ -384,7 +463,10 @@ mod tests {
     #[test]
     fn expm_of_a_rotation() {
         // exp([[0, 1], [−1, 0]]·t) = [[cos t, sin t], [−sin t, cos t]].
-        let m = Mat { n: 2, a: vec![0.0, 1.0, -1.0, 0.0] };
+        let m = Mat {
+            n: 2,
+            a: vec![0.0, 1.0, -1.0, 0.0],
+        };
         let e = m.expm(10.0);
         assert!((e.a[0] - libm::cos(10.0)).abs() < 1e-13);
         assert!((e.a[1] - libm::sin(10.0)).abs() < 1e-13);
@@ -398,10 +480,16 @@ mod tests {
         let zeta: f64 = 0.3;
         // ζ = (ω1+ω2)/(2√((1+T0)ω1ω2)) → 1+T0 = ((f1+f2)/(2ζ))²/(f1 f2).
         let t0 = ((f1 + f2) / (2.0 * zeta)).powi(2) / (f1 * f2) - 1.0;
-        let l = FeedbackLoop::with_constant_beta(TransferModel::constant(t0).pole(f1).pole(f2), 1.0).unwrap();
+        let l =
+            FeedbackLoop::with_constant_beta(TransferModel::constant(t0).pole(f1).pole(f2), 1.0)
+                .unwrap();
         let s = step_response(&l, 0.02, 500).unwrap();
         let os = 100.0 * (-core::f64::consts::PI * zeta / (1.0 - zeta * zeta).sqrt()).exp();
-        assert!((s.overshoot_percent - os).abs() < 1e-8, "{} vs {os}", s.overshoot_percent);
+        assert!(
+            (s.overshoot_percent - os).abs() < 1e-8,
+            "{} vs {os}",
+            s.overshoot_percent
+        );
         assert_eq!(s.waveform.output.len(), 500);
     }
 
@@ -420,12 +508,20 @@ mod tests {
             let (mut a, mut b) = (0.0, 20.0 / w0);
             for _ in 0..200 {
                 let m = 0.5 * (a + b);
-                if y(m) < lv { a = m } else { b = m }
+                if y(m) < lv {
+                    a = m
+                } else {
+                    b = m
+                }
             }
             a
         };
         let rise = solve(0.9) - solve(0.1);
-        assert!((s.rise_time_s / rise - 1.0).abs() < 1e-6, "{} vs {rise}", s.rise_time_s);
+        assert!(
+            (s.rise_time_s / rise - 1.0).abs() < 1e-6,
+            "{} vs {rise}",
+            s.rise_time_s
+        );
         assert!((s.settling_time_s / solve(0.98) - 1.0).abs() < 1e-6);
         assert_eq!(s.overshoot_percent, 0.0);
     }
@@ -434,10 +530,16 @@ mod tests {
     fn unstable_and_ac_coupled_loops_are_refused() {
         let a = TransferModel::constant(20.0).pole(1e3).pole(1e3).pole(1e3);
         let l = FeedbackLoop::with_constant_beta(a, 1.0).unwrap();
-        assert_eq!(step_response(&l, 0.02, 100).unwrap_err().param(), "closed_loop");
+        assert_eq!(
+            step_response(&l, 0.02, 100).unwrap_err().param(),
+            "closed_loop"
+        );
         let ac = TransferModel::constant(100.0).low_cut(10.0).pole(1e5);
         let l = FeedbackLoop::with_constant_beta(ac, 0.1).unwrap();
-        assert_eq!(step_response(&l, 0.02, 100).unwrap_err().code(), "unreachable");
+        assert_eq!(
+            step_response(&l, 0.02, 100).unwrap_err().code(),
+            "unreachable"
+        );
         // The waveform itself is still available.
         assert!(step_waveform(&l, 1e-3, 50).is_ok());
     }

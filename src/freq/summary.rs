@@ -62,17 +62,28 @@ pub fn analyze_loop(l: &FeedbackLoop, settle_band: f64, points: usize) -> Result
     let poles = closed_loop_poles(l)?;
     let (bandwidth, bandwidth_note) = match closed_loop_bandwidth(l) {
         Ok(b) => (Some(b), None),
-        Err(Error::Oscillation { .. }) => {
-            (None, Some("the midband return difference 1 + A·β is zero: the loop oscillates"))
-        }
+        Err(Error::Oscillation { .. }) => (
+            None,
+            Some("the midband return difference 1 + A·β is zero: the loop oscillates"),
+        ),
         Err(e) => return Err(e),
     };
     let (step, step_note) = match step_response(l, settle_band, points) {
         Ok(s) => (Some(s), None),
-        Err(Error::Unreachable { param: "closed_loop", reason }) => (None, Some(reason)),
+        Err(Error::Unreachable {
+            param: "closed_loop",
+            reason,
+        }) => (None, Some(reason)),
         Err(e) => return Err(e),
     };
-    Ok(LoopSummary { margins, poles, bandwidth, bandwidth_note, step, step_note })
+    Ok(LoopSummary {
+        margins,
+        poles,
+        bandwidth,
+        bandwidth_note,
+        step,
+        step_note,
+    })
 }
 
 #[cfg(test)]
@@ -95,7 +106,12 @@ mod tests {
     #[test]
     fn an_ac_coupled_loop_has_a_bandwidth_but_no_step_metrics() {
         let a = TransferModel::constant(1e3).low_cut(100.0).pole(1e5);
-        let s = analyze_loop(&FeedbackLoop::with_constant_beta(a, 0.1).unwrap(), 0.02, 100).unwrap();
+        let s = analyze_loop(
+            &FeedbackLoop::with_constant_beta(a, 0.1).unwrap(),
+            0.02,
+            100,
+        )
+        .unwrap();
         assert!(s.bandwidth.is_some_and(|b| b.low_hz.is_some()));
         assert!(s.step.is_none() && s.step_note.is_some_and(|n| n.contains("DC")));
     }

@@ -34,35 +34,40 @@ pub const MAX_LISTED_VALUES: usize = 2_000;
 const E3: [u16; 3] = [10, 22, 47];
 const E6: [u16; 6] = [10, 15, 22, 33, 47, 68];
 const E12: [u16; 12] = [10, 12, 15, 18, 22, 27, 33, 39, 47, 56, 68, 82];
-const E24: [u16; 24] = [10, 11, 12, 13, 15, 16, 18, 20, 22, 24, 27, 30, 33, 36, 39, 43, 47, 51, 56, 62, 68, 75, 82, 91];
+const E24: [u16; 24] = [
+    10, 11, 12, 13, 15, 16, 18, 20, 22, 24, 27, 30, 33, 36, 39, 43, 47, 51, 56, 62, 68, 75, 82, 91,
+];
 const E48: [u16; 48] = [
-    100, 105, 110, 115, 121, 127, 133, 140, 147, 154, 162, 169, 178, 187, 196, 205, 215, 226, 237, 249, 261, 274, 287,
-    301, 316, 332, 348, 365, 383, 402, 422, 442, 464, 487, 511, 536, 562, 590, 619, 649, 681, 715, 750, 787, 825, 866,
-    909, 953,
+    100, 105, 110, 115, 121, 127, 133, 140, 147, 154, 162, 169, 178, 187, 196, 205, 215, 226, 237,
+    249, 261, 274, 287, 301, 316, 332, 348, 365, 383, 402, 422, 442, 464, 487, 511, 536, 562, 590,
+    619, 649, 681, 715, 750, 787, 825, 866, 909, 953,
 ];
 const E96: [u16; 96] = [
-    100, 102, 105, 107, 110, 113, 115, 118, 121, 124, 127, 130, 133, 137, 140, 143, 147, 150, 154, 158, 162, 165, 169,
-    174, 178, 182, 187, 191, 196, 200, 205, 210, 215, 221, 226, 232, 237, 243, 249, 255, 261, 267, 274, 280, 287, 294,
-    301, 309, 316, 324, 332, 340, 348, 357, 365, 374, 383, 392, 402, 412, 422, 432, 442, 453, 464, 475, 487, 499, 511,
-    523, 536, 549, 562, 576, 590, 604, 619, 634, 649, 665, 681, 698, 715, 732, 750, 768, 787, 806, 825, 845, 866, 887,
-    909, 931, 953, 976,
+    100, 102, 105, 107, 110, 113, 115, 118, 121, 124, 127, 130, 133, 137, 140, 143, 147, 150, 154,
+    158, 162, 165, 169, 174, 178, 182, 187, 191, 196, 200, 205, 210, 215, 221, 226, 232, 237, 243,
+    249, 255, 261, 267, 274, 280, 287, 294, 301, 309, 316, 324, 332, 340, 348, 357, 365, 374, 383,
+    392, 402, 412, 422, 432, 442, 453, 464, 475, 487, 499, 511, 523, 536, 549, 562, 576, 590, 604,
+    619, 634, 649, 665, 681, 698, 715, 732, 750, 768, 787, 806, 825, 845, 866, 887, 909, 931, 953,
+    976,
 ];
 const E192: [u16; 192] = [
-    100, 101, 102, 104, 105, 106, 107, 109, 110, 111, 113, 114, 115, 117, 118, 120, 121, 123, 124, 126, 127, 129, 130,
-    132, 133, 135, 137, 138, 140, 142, 143, 145, 147, 149, 150, 152, 154, 156, 158, 160, 162, 164, 165, 167, 169, 172,
-    174, 176, 178, 180, 182, 184, 187, 189, 191, 193, 196, 198, 200, 203, 205, 208, 210, 213, 215, 218, 221, 223, 226,
-    229, 232, 234, 237, 240, 243, 246, 249, 252, 255, 258, 261, 264, 267, 271, 274, 277, 280, 284, 287, 291, 294, 298,
-    301, 305, 309, 312, 316, 320, 324, 328, 332, 336, 340, 344, 348, 352, 357, 361, 365, 370, 374, 379, 383, 388, 392,
-    397, 402, 407, 412, 417, 422, 427, 432, 437, 442, 448, 453, 459, 464, 470, 475, 481, 487, 493, 499, 505, 511, 517,
-    523, 530, 536, 542, 549, 556, 562, 569, 576, 583, 590, 597, 604, 612, 619, 626, 634, 642, 649, 657, 665, 673, 681,
-    690, 698, 706, 715, 723, 732, 741, 750, 759, 768, 777, 787, 796, 806, 816, 825, 835, 845, 856, 866, 876, 887, 898,
-    909, 920, 931, 942, 953, 965, 976, 988,
+    100, 101, 102, 104, 105, 106, 107, 109, 110, 111, 113, 114, 115, 117, 118, 120, 121, 123, 124,
+    126, 127, 129, 130, 132, 133, 135, 137, 138, 140, 142, 143, 145, 147, 149, 150, 152, 154, 156,
+    158, 160, 162, 164, 165, 167, 169, 172, 174, 176, 178, 180, 182, 184, 187, 189, 191, 193, 196,
+    198, 200, 203, 205, 208, 210, 213, 215, 218, 221, 223, 226, 229, 232, 234, 237, 240, 243, 246,
+    249, 252, 255, 258, 261, 264, 267, 271, 274, 277, 280, 284, 287, 291, 294, 298, 301, 305, 309,
+    312, 316, 320, 324, 328, 332, 336, 340, 344, 348, 352, 357, 361, 365, 370, 374, 379, 383, 388,
+    392, 397, 402, 407, 412, 417, 422, 427, 432, 437, 442, 448, 453, 459, 464, 470, 475, 481, 487,
+    493, 499, 505, 511, 517, 523, 530, 536, 542, 549, 556, 562, 569, 576, 583, 590, 597, 604, 612,
+    619, 626, 634, 642, 649, 657, 665, 673, 681, 690, 698, 706, 715, 723, 732, 741, 750, 759, 768,
+    777, 787, 796, 806, 816, 825, 835, 845, 856, 866, 876, 887, 898, 909, 920, 931, 942, 953, 965,
+    976, 988,
 ];
 
 /// Exact powers of ten 10⁰ … 10²² (every one is a double without rounding).
 const POW10: [f64; 23] = [
-    1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20,
-    1e21, 1e22,
+    1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16,
+    1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
 ];
 
 /// The accepted series names, for error messages and help text.
@@ -100,8 +105,15 @@ pub enum Series {
 
 impl Series {
     /// All seven, coarsest first.
-    pub const ALL: [Series; 7] =
-        [Series::E3, Series::E6, Series::E12, Series::E24, Series::E48, Series::E96, Series::E192];
+    pub const ALL: [Series; 7] = [
+        Series::E3,
+        Series::E6,
+        Series::E12,
+        Series::E24,
+        Series::E48,
+        Series::E96,
+        Series::E192,
+    ];
 
     /// The name, e.g. `"E24"`.
     pub const fn name(self) -> &'static str {
@@ -219,7 +231,10 @@ impl Series {
 /// m·10^k with an exact power of ten (|k| ≤ 22 in the accepted range).
 fn scaled(m: u16, k: i64) -> f64 {
     let m = f64::from(m);
-    let p = POW10.get(k.unsigned_abs() as usize).copied().unwrap_or(f64::INFINITY);
+    let p = POW10
+        .get(k.unsigned_abs() as usize)
+        .copied()
+        .unwrap_or(f64::INFINITY);
     if k >= 0 {
         m * p
     } else {
@@ -244,7 +259,10 @@ impl FromStr for Series {
             .iter()
             .copied()
             .find(|x| x.name().eq_ignore_ascii_case(t))
-            .ok_or(Error::UnknownName { param: "series", expected: SERIES_NAMES })
+            .ok_or(Error::UnknownName {
+                param: "series",
+                expected: SERIES_NAMES,
+            })
     }
 }
 
@@ -286,7 +304,10 @@ impl FromStr for Rounding {
             .iter()
             .find(|(n, _)| n.eq_ignore_ascii_case(t))
             .map(|&(_, r)| r)
-            .ok_or(Error::UnknownName { param: "rounding", expected: ROUNDING_NAMES })
+            .ok_or(Error::UnknownName {
+                param: "rounding",
+                expected: ROUNDING_NAMES,
+            })
     }
 }
 
@@ -296,7 +317,10 @@ pub(crate) fn in_range(param: &'static str, x: f64) -> Result<f64> {
     if (MIN_VALUE..=MAX_VALUE).contains(&x) {
         Ok(x)
     } else {
-        Err(Error::OutOfDomain { param, requirement: "must lie between 1e-15 and 1e15" })
+        Err(Error::OutOfDomain {
+            param,
+            requirement: "must lie between 1e-15 and 1e15",
+        })
     }
 }
 
@@ -372,7 +396,14 @@ pub fn neighbours(series: Series, value: f64) -> Result<Neighbours> {
     let down = series.value_at(series.floor_rank(x));
     let up = series.value_at(series.ceil_rank(x));
     let nearest = if up - x < x - down { up } else { down };
-    Ok(Neighbours { series, down, up, nearest, error: (nearest - x) / x, tolerance: series.tolerance() })
+    Ok(Neighbours {
+        series,
+        down,
+        up,
+        nearest,
+        error: (nearest - x) / x,
+        tolerance: series.tolerance(),
+    })
 }
 
 /// Every standard value of `series` from `low` to `high` inclusive, ascending.
@@ -392,13 +423,19 @@ pub fn series_values(series: Series, low: f64, high: f64) -> Result<Vec<f64>> {
     let low = in_range("low", low)?;
     let high = in_range("high", high)?;
     if high < low {
-        return Err(Error::OutOfDomain { param: "high", requirement: "must be at least low" });
+        return Err(Error::OutOfDomain {
+            param: "high",
+            requirement: "must be at least low",
+        });
     }
     let first = series.ceil_rank(low);
     let last = series.floor_rank(high);
     let count = (last - first + 1).max(0);
     if count > MAX_LISTED_VALUES as i64 {
-        return Err(Error::TooLarge { param: "high", limit: MAX_LISTED_VALUES as u64 });
+        return Err(Error::TooLarge {
+            param: "high",
+            limit: MAX_LISTED_VALUES as u64,
+        });
     }
     Ok((first..=last).map(|n| series.value_at(n)).collect())
 }
@@ -421,7 +458,11 @@ mod tests {
     #[test]
     fn coarser_series_are_subsets_of_finer_ones() {
         // IEC 60063: each series holds every other value of the next finer one.
-        let pairs = [(Series::E3, Series::E6), (Series::E6, Series::E12), (Series::E12, Series::E24)];
+        let pairs = [
+            (Series::E3, Series::E6),
+            (Series::E6, Series::E12),
+            (Series::E12, Series::E24),
+        ];
         for (c, f) in pairs {
             let every_other: Vec<u16> = f.mantissas().iter().step_by(2).copied().collect();
             assert_eq!(c.mantissas(), &every_other[..]);
@@ -478,11 +519,27 @@ mod tests {
 
     #[test]
     fn bad_values_and_names() {
-        assert_eq!(standard_value(Series::E6, 0.0, Rounding::Up).unwrap_err().code(), "out_of_domain");
-        assert_eq!(standard_value(Series::E6, 1e16, Rounding::Up).unwrap_err().param(), "value");
+        assert_eq!(
+            standard_value(Series::E6, 0.0, Rounding::Up)
+                .unwrap_err()
+                .code(),
+            "out_of_domain"
+        );
+        assert_eq!(
+            standard_value(Series::E6, 1e16, Rounding::Up)
+                .unwrap_err()
+                .param(),
+            "value"
+        );
         assert_eq!("E5".parse::<Series>().unwrap_err().param(), "series");
-        assert_eq!("sideways".parse::<Rounding>().unwrap_err().param(), "rounding");
-        assert_eq!(series_values(Series::E192, 1.0, 1e12).unwrap_err().code(), "too_large");
+        assert_eq!(
+            "sideways".parse::<Rounding>().unwrap_err().param(),
+            "rounding"
+        );
+        assert_eq!(
+            series_values(Series::E192, 1.0, 1e12).unwrap_err().code(),
+            "too_large"
+        );
     }
 
     #[test]

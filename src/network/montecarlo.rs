@@ -74,9 +74,14 @@ impl Distribution {
         if t.eq_ignore_ascii_case("uniform") {
             Ok(Distribution::Uniform)
         } else if t.eq_ignore_ascii_case("normal") {
-            Ok(Distribution::Normal { k: check::positive(k_param, k)? })
+            Ok(Distribution::Normal {
+                k: check::positive(k_param, k)?,
+            })
         } else {
-            Err(Error::UnknownName { param: "distribution", expected: "uniform, normal" })
+            Err(Error::UnknownName {
+                param: "distribution",
+                expected: "uniform, normal",
+            })
         }
     }
 }
@@ -179,7 +184,10 @@ pub struct MonteCarloResult {
 pub fn seed_from_number(seed: f64) -> Result<u64> {
     let s = check::non_negative("seed", seed)?;
     if s != crate::float::trunc(s) || s > MAX_NUMBER_SEED {
-        return Err(Error::OutOfDomain { param: "seed", requirement: "must be a whole number from 0 to 2^53 - 1" });
+        return Err(Error::OutOfDomain {
+            param: "seed",
+            requirement: "must be a whole number from 0 to 2^53 - 1",
+        });
     }
     Ok(s as u64)
 }
@@ -199,10 +207,16 @@ pub fn seed_from_number(seed: f64) -> Result<u64> {
 pub fn count_from_number(param: &'static str, x: f64, limit: usize) -> Result<usize> {
     let x = check::non_negative(param, x)?;
     if x != crate::float::trunc(x) {
-        return Err(Error::OutOfDomain { param, requirement: "must be a whole number" });
+        return Err(Error::OutOfDomain {
+            param,
+            requirement: "must be a whole number",
+        });
     }
     if x > limit as f64 {
-        return Err(Error::TooLarge { param, limit: limit as u64 });
+        return Err(Error::TooLarge {
+            param,
+            limit: limit as u64,
+        });
     }
     Ok(x as usize)
 }
@@ -215,7 +229,10 @@ struct Draws {
 
 impl Draws {
     fn new(seed: u64) -> Draws {
-        Draws { rng: Xoshiro256PlusPlus::seed_from_u64(seed), spare: None }
+        Draws {
+            rng: Xoshiro256PlusPlus::seed_from_u64(seed),
+            spare: None,
+        }
     }
 
     /// Uniform on [0, 1) with 53 random bits.
@@ -293,9 +310,15 @@ fn validate_distribution(param: &'static str, d: Distribution) -> Result<Distrib
 
 fn validate_trials(trials: usize) -> Result<usize> {
     if trials > MAX_TRIALS {
-        Err(Error::TooLarge { param: "trials", limit: MAX_TRIALS as u64 })
+        Err(Error::TooLarge {
+            param: "trials",
+            limit: MAX_TRIALS as u64,
+        })
     } else if trials < 2 {
-        Err(Error::OutOfDomain { param: "trials", requirement: "must be at least 2" })
+        Err(Error::OutOfDomain {
+            param: "trials",
+            requirement: "must be at least 2",
+        })
     } else {
         Ok(trials)
     }
@@ -306,7 +329,10 @@ fn validate_limits(lower: Option<f64>, upper: Option<f64>) -> Result<()> {
     let upper = upper.map(|x| check::finite("upper", x)).transpose()?;
     if let (Some(l), Some(u)) = (lower, upper) {
         if u < l {
-            return Err(Error::OutOfDomain { param: "upper", requirement: "must be at least lower" });
+            return Err(Error::OutOfDomain {
+                param: "upper",
+                requirement: "must be at least lower",
+            });
         }
     }
     Ok(())
@@ -314,9 +340,15 @@ fn validate_limits(lower: Option<f64>, upper: Option<f64>) -> Result<()> {
 
 fn validate_bins(bins: usize) -> Result<usize> {
     if bins > MAX_BINS {
-        Err(Error::TooLarge { param: "bins", limit: MAX_BINS as u64 })
+        Err(Error::TooLarge {
+            param: "bins",
+            limit: MAX_BINS as u64,
+        })
     } else if bins == 0 {
-        Err(Error::OutOfDomain { param: "bins", requirement: "must be at least 1" })
+        Err(Error::OutOfDomain {
+            param: "bins",
+            requirement: "must be at least 1",
+        })
     } else {
         Ok(bins)
     }
@@ -379,7 +411,12 @@ pub fn monte_carlo(spec: &MonteCarloSpec) -> Result<MonteCarloResult> {
     let stage = spec.stage;
     let nominal = stage_metric(&stage, spec.metric, stage.r1, stage.r2, stage.a_typ)?;
     let stats = sample_stats(&mut samples, spec.lower, spec.upper, bins)?;
-    Ok(MonteCarloResult { metric: spec.metric, seed: spec.seed, nominal, stats })
+    Ok(MonteCarloResult {
+        metric: spec.metric,
+        seed: spec.seed,
+        nominal,
+        stats,
+    })
 }
 
 /// Statistics of any sample (reordered in place): mean, sd, min, max,
@@ -397,15 +434,26 @@ pub fn monte_carlo(spec: &MonteCarloSpec) -> Result<MonteCarloResult> {
 /// assert_eq!((s.mean, s.percentiles[3].value, s.yield_fraction), (50.0, 50.0, Some(50.0 / 101.0)));
 /// assert_eq!(sample_stats(&mut [1.0], None, None, 10).unwrap_err().param(), "samples");
 /// ```
-pub fn sample_stats(samples: &mut [f64], lower: Option<f64>, upper: Option<f64>, bins: usize) -> Result<SampleStats> {
+pub fn sample_stats(
+    samples: &mut [f64],
+    lower: Option<f64>,
+    upper: Option<f64>,
+    bins: usize,
+) -> Result<SampleStats> {
     validate_limits(lower, upper)?;
     let bins = validate_bins(bins)?;
     let n = samples.len();
     if n > MAX_TRIALS {
-        return Err(Error::TooLarge { param: "samples", limit: MAX_TRIALS as u64 });
+        return Err(Error::TooLarge {
+            param: "samples",
+            limit: MAX_TRIALS as u64,
+        });
     }
     if n < 2 {
-        return Err(Error::OutOfDomain { param: "samples", requirement: "must hold at least 2 values" });
+        return Err(Error::OutOfDomain {
+            param: "samples",
+            requirement: "must hold at least 2 values",
+        });
     }
     let mut sum = 0.0;
     let mut min = f64::INFINITY;
@@ -430,10 +478,22 @@ pub fn sample_stats(samples: &mut [f64], lower: Option<f64>, upper: Option<f64>,
     let yield_fraction = (lower.is_some() || upper.is_some()).then(|| inside as f64 / n as f64);
 
     let width = (max - min) / bins as f64;
-    let edges: Vec<f64> = (0..=bins).map(|i| if i == bins { max } else { min + width * i as f64 }).collect();
+    let edges: Vec<f64> = (0..=bins)
+        .map(|i| {
+            if i == bins {
+                max
+            } else {
+                min + width * i as f64
+            }
+        })
+        .collect();
     let mut counts = alloc::vec![0u32; bins];
     for &x in samples.iter() {
-        let i = if width > 0.0 { crate::float::floor((x - min) / width) as usize } else { 0 };
+        let i = if width > 0.0 {
+            crate::float::floor((x - min) / width) as usize
+        } else {
+            0
+        };
         if let Some(c) = counts.get_mut(i.min(bins - 1)) {
             *c += 1;
         }
@@ -453,14 +513,26 @@ pub fn sample_stats(samples: &mut [f64], lower: Option<f64>, upper: Option<f64>,
     wanted.dedup();
     let mut found: Vec<(usize, f64)> = Vec::with_capacity(wanted.len());
     select_many(samples, 0, &wanted, &mut found);
-    let stat = |k: usize| found.iter().find(|&&(i, _)| i == k).map_or(0.0, |&(_, v)| v);
+    let stat = |k: usize| {
+        found
+            .iter()
+            .find(|&&(i, _)| i == k)
+            .map_or(0.0, |&(_, v)| v)
+    };
     let percentiles = core::array::from_fn(|j| {
         let h = positions[j];
         let lo = crate::float::floor(h) as usize;
         let frac = h - lo as f64;
         let a = stat(lo);
-        let value = if frac > 0.0 { a + frac * (stat(lo + 1) - a) } else { a };
-        Percentile { percent: PERCENTILES[j], value }
+        let value = if frac > 0.0 {
+            a + frac * (stat(lo + 1) - a)
+        } else {
+            a
+        };
+        Percentile {
+            percent: PERCENTILES[j],
+            value,
+        }
     });
     Ok(SampleStats {
         count: n,
@@ -479,7 +551,9 @@ pub fn sample_stats(samples: &mut [f64], lower: Option<f64>, upper: Option<f64>,
 fn select_many(data: &mut [f64], base: usize, ks: &[usize], out: &mut Vec<(usize, f64)>) {
     let mid = ks.len() / 2;
     let Some(&k) = ks.get(mid) else { return };
-    let Some(local) = k.checked_sub(base).filter(|&l| l < data.len()) else { return };
+    let Some(local) = k.checked_sub(base).filter(|&l| l < data.len()) else {
+        return;
+    };
     let (left, &mut v, right) = data.select_nth_unstable_by(local, f64::total_cmp);
     out.push((k, v));
     select_many(left, base, ks.get(..mid).unwrap_or(&[]), out);
@@ -539,10 +613,14 @@ mod tests {
         for p in stats.percentiles {
             let h = (sorted.len() - 1) as f64 * p.percent / 100.0;
             let lo = h.floor() as usize;
-            let want = sorted[lo] + (h - lo as f64) * (sorted[(lo + 1).min(sorted.len() - 1)] - sorted[lo]);
+            let want = sorted[lo]
+                + (h - lo as f64) * (sorted[(lo + 1).min(sorted.len() - 1)] - sorted[lo]);
             assert_eq!(p.value, want, "p{}", p.percent);
         }
-        assert_eq!(stats.histogram.counts.iter().sum::<u32>() as usize, raw.len());
+        assert_eq!(
+            stats.histogram.counts.iter().sum::<u32>() as usize,
+            raw.len()
+        );
         assert_eq!((stats.min, stats.max), (sorted[0], *sorted.last().unwrap()));
     }
 
@@ -568,7 +646,13 @@ mod tests {
     fn bad_inputs_are_named() {
         let mut s = spec();
         s.trials = MAX_TRIALS + 1;
-        assert_eq!(monte_carlo(&s).unwrap_err(), Error::TooLarge { param: "trials", limit: 1_000_000 });
+        assert_eq!(
+            monte_carlo(&s).unwrap_err(),
+            Error::TooLarge {
+                param: "trials",
+                limit: 1_000_000
+            }
+        );
         let mut s = spec();
         s.resistors = Distribution::Normal { k: 0.0 };
         assert_eq!(monte_carlo(&s).unwrap_err().param(), "k");
@@ -585,7 +669,10 @@ mod tests {
         s.bins = 0;
         assert_eq!(monte_carlo(&s).unwrap_err().param(), "bins");
         assert_eq!(seed_from_number(-1.0).unwrap_err().param(), "seed");
-        assert_eq!("lognormal".parse::<Distribution>().unwrap_err().param(), "distribution");
+        assert_eq!(
+            "lognormal".parse::<Distribution>().unwrap_err().param(),
+            "distribution"
+        );
     }
 
     #[test]
@@ -599,7 +686,11 @@ mod tests {
             let a = libm::pow(10.0, 1.0 + 6.0 * d.unit());
             for stage in [Stage::NonInverting, Stage::Inverting] {
                 let fast = gain_of_positive_parts(stage, r1, r2, a).unwrap();
-                assert_eq!(fast.to_bits(), stage_gain(stage, r1, r2, a).unwrap().to_bits(), "{r1} {r2} {a}");
+                assert_eq!(
+                    fast.to_bits(),
+                    stage_gain(stage, r1, r2, a).unwrap().to_bits(),
+                    "{r1} {r2} {a}"
+                );
             }
         }
     }
@@ -614,15 +705,31 @@ mod tests {
         let mut d = Draws::new(31);
         let mut x: Vec<f64> = (0..n).map(|_| d.normal()).collect();
         let s = sample_stats(&mut x, Some(-1.0), Some(1.0), 10).unwrap();
-        let phi = |z: f64| libm::exp(-0.5 * z * z) / crate::float::sqrt(2.0 * core::f64::consts::PI);
-        for (idx, p, z) in [(3, 0.5, 0.0), (4, 0.95, 1.644_854), (5, 0.99, 2.326_348), (6, 0.999, 3.090_232)] {
+        let phi =
+            |z: f64| libm::exp(-0.5 * z * z) / crate::float::sqrt(2.0 * core::f64::consts::PI);
+        for (idx, p, z) in [
+            (3, 0.5, 0.0),
+            (4, 0.95, 1.644_854),
+            (5, 0.99, 2.326_348),
+            (6, 0.999, 3.090_232),
+        ] {
             let se = crate::float::sqrt(p * (1.0 - p) / n as f64) / phi(z);
-            assert!((s.percentiles[idx].value - z).abs() < 5.0 * se, "p{p}: {}", s.percentiles[idx].value);
-            assert!((s.percentiles[6 - idx].value + z).abs() < 5.0 * se, "mirror of p{p}");
+            assert!(
+                (s.percentiles[idx].value - z).abs() < 5.0 * se,
+                "p{p}: {}",
+                s.percentiles[idx].value
+            );
+            assert!(
+                (s.percentiles[6 - idx].value + z).abs() < 5.0 * se,
+                "mirror of p{p}"
+            );
         }
         // Within ±1σ: 0.682689 (same table), binomial bound.
         let y = s.yield_fraction.unwrap();
-        assert!((y - 0.682_689).abs() < 5.0 * crate::float::sqrt(0.2167 / n as f64), "{y}");
+        assert!(
+            (y - 0.682_689).abs() < 5.0 * crate::float::sqrt(0.2167 / n as f64),
+            "{y}"
+        );
         assert!(
             libm::fabs(s.mean) < 5.0 / crate::float::sqrt(n as f64)
                 && libm::fabs(s.sd - 1.0) < 5.0 / crate::float::sqrt(2.0 * n as f64)

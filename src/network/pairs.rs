@@ -69,7 +69,10 @@ impl FromStr for Network {
         .iter()
         .find(|(n, _)| n.eq_ignore_ascii_case(t))
         .map(|&(_, n)| n)
-        .ok_or(Error::UnknownName { param: "network", expected: NETWORK_NAMES })
+        .ok_or(Error::UnknownName {
+            param: "network",
+            expected: NETWORK_NAMES,
+        })
     }
 }
 
@@ -79,15 +82,20 @@ impl Network {
         let t = check::finite("target", target)?;
         match self {
             Network::NonInverting if t >= 1.0 => Ok(t - 1.0),
-            Network::NonInverting => {
-                Err(Error::OutOfDomain { param: "target", requirement: "must be 1 or more: 1 + R2/R1 cannot be less" })
-            }
+            Network::NonInverting => Err(Error::OutOfDomain {
+                param: "target",
+                requirement: "must be 1 or more: 1 + R2/R1 cannot be less",
+            }),
             Network::Inverting if t != 0.0 => Ok(libm::fabs(t)),
-            Network::Inverting => Err(Error::OutOfDomain { param: "target", requirement: "must not be zero" }),
+            Network::Inverting => Err(Error::OutOfDomain {
+                param: "target",
+                requirement: "must not be zero",
+            }),
             Network::Divider if t > 0.0 && t < 1.0 => Ok((1.0 - t) / t),
             Network::Divider => Err(Error::OutOfDomain {
                 param: "target",
-                requirement: "must be greater than 0 and less than 1: R1/(R1 + R2) lies strictly between",
+                requirement:
+                    "must be greater than 0 and less than 1: R1/(R1 + R2) lies strictly between",
             }),
         }
     }
@@ -143,7 +151,10 @@ impl FromStr for Combine {
         .iter()
         .find(|(n, _)| n.eq_ignore_ascii_case(t))
         .map(|&(_, c)| c)
-        .ok_or(Error::UnknownName { param: "combine", expected: COMBINE_NAMES })
+        .ok_or(Error::UnknownName {
+            param: "combine",
+            expected: COMBINE_NAMES,
+        })
     }
 }
 
@@ -177,7 +188,12 @@ pub struct Leg {
 
 impl Leg {
     fn single(r: f64) -> Leg {
-        Leg { value: r, first: r, second: None, joint: Joint::Single }
+        Leg {
+            value: r,
+            first: r,
+            second: None,
+            joint: Joint::Single,
+        }
     }
 }
 
@@ -223,7 +239,13 @@ pub struct PairSpec {
 
 impl PairSpec {
     /// A spec with no fixed R1, no required error, single resistors and 10 candidates.
-    pub fn new(network: Network, target: f64, series: Series, total_min: f64, total_max: f64) -> PairSpec {
+    pub fn new(
+        network: Network,
+        target: f64,
+        series: Series,
+        total_min: f64,
+        total_max: f64,
+    ) -> PairSpec {
         PairSpec {
             network,
             target,
@@ -258,21 +280,32 @@ pub struct PairResult {
 }
 
 fn by_error(a: &PairCandidate, b: &PairCandidate) -> Ordering {
-    libm::fabs(a.error).total_cmp(&libm::fabs(b.error)).then(a.total.total_cmp(&b.total)).then(a.r1.total_cmp(&b.r1))
+    libm::fabs(a.error)
+        .total_cmp(&libm::fabs(b.error))
+        .then(a.total.total_cmp(&b.total))
+        .then(a.r1.total_cmp(&b.r1))
 }
 
 fn validate_count(count: usize) -> Result<usize> {
     if count == 0 {
-        Err(Error::OutOfDomain { param: "count", requirement: "must be at least 1" })
+        Err(Error::OutOfDomain {
+            param: "count",
+            requirement: "must be at least 1",
+        })
     } else if count > MAX_CANDIDATES {
-        Err(Error::TooLarge { param: "count", limit: MAX_CANDIDATES as u64 })
+        Err(Error::TooLarge {
+            param: "count",
+            limit: MAX_CANDIDATES as u64,
+        })
     } else {
         Ok(count)
     }
 }
 
 fn validate_max_error(max_error: Option<f64>) -> Result<Option<f64>> {
-    max_error.map(|e| check::positive("max_error", e)).transpose()
+    max_error
+        .map(|e| check::positive("max_error", e))
+        .transpose()
 }
 
 /// The standard values in [a, b] just below and just above t (either may be
@@ -321,9 +354,17 @@ fn best_combination(
             if !in_range(rest) {
                 continue;
             }
-            for ra in [series.value_at(series.floor_rank(rest)), series.value_at(series.ceil_rank(rest))] {
+            for ra in [
+                series.value_at(series.floor_rank(rest)),
+                series.value_at(series.ceil_rank(rest)),
+            ] {
                 if ra <= rb {
-                    consider(Leg { value: ra + rb, first: rb, second: Some(ra), joint: Joint::Series });
+                    consider(Leg {
+                        value: ra + rb,
+                        first: rb,
+                        second: Some(ra),
+                        joint: Joint::Series,
+                    });
                 }
             }
         }
@@ -337,9 +378,17 @@ fn best_combination(
             if !in_range(rest) {
                 continue;
             }
-            for rb in [series.value_at(series.floor_rank(rest)), series.value_at(series.ceil_rank(rest))] {
+            for rb in [
+                series.value_at(series.floor_rank(rest)),
+                series.value_at(series.ceil_rank(rest)),
+            ] {
                 if rb >= ra {
-                    consider(Leg { value: ra * rb / (ra + rb), first: ra, second: Some(rb), joint: Joint::Parallel });
+                    consider(Leg {
+                        value: ra * rb / (ra + rb),
+                        first: ra,
+                        second: Some(rb),
+                        joint: Joint::Parallel,
+                    });
                 }
             }
         }
@@ -377,11 +426,17 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
     let total_min = in_range("total_min", spec.total_min)?;
     let total_max = in_range("total_max", spec.total_max)?;
     if total_max < total_min {
-        return Err(Error::OutOfDomain { param: "total_max", requirement: "must be at least total_min" });
+        return Err(Error::OutOfDomain {
+            param: "total_max",
+            requirement: "must be at least total_min",
+        });
     }
     let fixed_r1 = spec.fixed_r1.map(|r| in_range("fixed_r1", r)).transpose()?;
     if fixed_r1.is_some_and(|r| r >= total_max) {
-        return Err(Error::OutOfDomain { param: "fixed_r1", requirement: "must be less than total_max" });
+        return Err(Error::OutOfDomain {
+            param: "fixed_r1",
+            requirement: "must be less than total_max",
+        });
     }
     let max_error = validate_max_error(spec.max_error)?;
     let count = validate_count(spec.count)?;
@@ -398,9 +453,14 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
     // The best single-resistor R2 for each R1 of a rank range.
     let scan = |first: i64, last: i64, out: &mut Vec<PairCandidate>| {
         for r1 in (first..=last).map(|n| series.value_at(n)) {
-            let Some((a, b)) = r2_interval(r1, total_min, total_max) else { continue };
-            let best =
-                around(series, q * r1, a, b).into_iter().flatten().map(|r2| make(r1, Leg::single(r2))).min_by(by_error);
+            let Some((a, b)) = r2_interval(r1, total_min, total_max) else {
+                continue;
+            };
+            let best = around(series, q * r1, a, b)
+                .into_iter()
+                .flatten()
+                .map(|r2| make(r1, Leg::single(r2)))
+                .min_by(by_error);
             out.extend(best);
         }
     };
@@ -412,21 +472,33 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
     let r1_window: Vec<f64> = match fixed_r1 {
         Some(r1) => {
             if let Some((a, b)) = r2_interval(r1, total_min, total_max) {
-                candidates
-                    .extend(around(series, q * r1, a, b).into_iter().flatten().map(|r2| make(r1, Leg::single(r2))));
+                candidates.extend(
+                    around(series, q * r1, a, b)
+                        .into_iter()
+                        .flatten()
+                        .map(|r2| make(r1, Leg::single(r2))),
+                );
             }
             alloc::vec![r1]
         }
         None => {
             let s = series.max_step();
             let clamp = |x: f64| x.clamp(MIN_VALUE, MAX_VALUE);
-            let (all_first, all_last) = (series.ceil_rank(MIN_VALUE), series.floor_rank(clamp(total_max)));
+            let (all_first, all_last) = (
+                series.ceil_rank(MIN_VALUE),
+                series.floor_rank(clamp(total_max)),
+            );
             let w_first = series.ceil_rank(clamp(total_min / (1.0 + q * s)));
-            let w_last = series.floor_rank(clamp(total_max / (1.0 + q / s))).min(all_last);
+            let w_last = series
+                .floor_rank(clamp(total_max / (1.0 + q / s)))
+                .min(all_last);
             scan(w_first, w_last, &mut candidates);
             crate::sort::sort_by(&mut candidates, by_error);
-            let outside_bound = libm::fabs(error_of(1.0, q * s)).min(libm::fabs(error_of(1.0, q / s)));
-            let settled = candidates.get(count - 1).is_some_and(|c| libm::fabs(c.error) <= outside_bound);
+            let outside_bound =
+                libm::fabs(error_of(1.0, q * s)).min(libm::fabs(error_of(1.0, q / s)));
+            let settled = candidates
+                .get(count - 1)
+                .is_some_and(|c| libm::fabs(c.error) <= outside_bound);
             if !settled {
                 if w_first > w_last {
                     scan(all_first, all_last, &mut candidates);
@@ -447,7 +519,9 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
     };
     if spec.combine != Combine::None && !good_enough(candidates.first()) {
         for &r1 in &r1_window {
-            let Some((a, b)) = r2_interval(r1, total_min, total_max) else { continue };
+            let Some((a, b)) = r2_interval(r1, total_min, total_max) else {
+                continue;
+            };
             let score = |r2: f64| libm::fabs(error_of(r1, r2));
             if let Some((leg, _)) = best_combination(series, q * r1, a, b, spec.combine, score) {
                 candidates.push(make(r1, leg));
@@ -457,7 +531,13 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
     }
     candidates.truncate(count);
     let meets_max_error = good_enough(candidates.first());
-    Ok(PairResult { network, target, ideal_ratio: q, candidates, meets_max_error })
+    Ok(PairResult {
+        network,
+        target,
+        ideal_ratio: q,
+        candidates,
+        meets_max_error,
+    })
 }
 
 /// A single resistance candidate.
@@ -502,20 +582,32 @@ pub fn single_resistor(
     let mut out: Vec<SingleCandidate> = around(series, t, MIN_VALUE, MAX_VALUE)
         .into_iter()
         .flatten()
-        .map(|v| SingleCandidate { leg: Leg::single(v), error: v / t - 1.0 })
+        .map(|v| SingleCandidate {
+            leg: Leg::single(v),
+            error: v / t - 1.0,
+        })
         .collect();
     out.dedup_by(|a, b| a.leg == b.leg);
-    let met = out.iter().any(|c| max_error.is_some_and(|m| libm::fabs(c.error) <= m));
+    let met = out
+        .iter()
+        .any(|c| max_error.is_some_and(|m| libm::fabs(c.error) <= m));
     if !met {
         for joint in [Combine::Series, Combine::Parallel] {
             if combine == joint || combine == Combine::Either {
-                if let Some((leg, _)) = best_combination(series, t, MIN_VALUE, MAX_VALUE, joint, score) {
-                    out.push(SingleCandidate { leg, error: leg.value / t - 1.0 });
+                if let Some((leg, _)) =
+                    best_combination(series, t, MIN_VALUE, MAX_VALUE, joint, score)
+                {
+                    out.push(SingleCandidate {
+                        leg,
+                        error: leg.value / t - 1.0,
+                    });
                 }
             }
         }
     }
-    crate::sort::sort_by(&mut out, |a, b| libm::fabs(a.error).total_cmp(&libm::fabs(b.error)));
+    crate::sort::sort_by(&mut out, |a, b| {
+        libm::fabs(a.error).total_cmp(&libm::fabs(b.error))
+    });
     Ok(out)
 }
 
@@ -545,14 +637,22 @@ mod tests {
 
     #[test]
     fn search_matches_brute_force_on_a_few_targets() {
-        for (network, target) in [(Network::NonInverting, 7.3), (Network::Inverting, -4.4), (Network::Divider, 0.123)] {
+        for (network, target) in [
+            (Network::NonInverting, 7.3),
+            (Network::Inverting, -4.4),
+            (Network::Divider, 0.123),
+        ] {
             for series in [Series::E12, Series::E24, Series::E96] {
                 let mut spec = PairSpec::new(network, target, series, 2e3, 2e5);
                 spec.count = 5;
                 let fast = best_pairs(&spec).unwrap();
                 let slow = brute(&spec, 1.0, 1e6);
                 for (i, c) in fast.candidates.iter().enumerate() {
-                    assert_eq!(libm::fabs(c.error), slow[i], "{network:?} {target} {series} #{i}");
+                    assert_eq!(
+                        libm::fabs(c.error),
+                        slow[i],
+                        "{network:?} {target} {series} #{i}"
+                    );
                     assert!((spec.total_min..=spec.total_max).contains(&c.total));
                 }
             }
@@ -616,7 +716,10 @@ mod tests {
         assert_eq!(e(&|s| s.total_max = 10.0), "total_max");
         assert_eq!(e(&|s| s.max_error = Some(0.0)), "max_error");
         assert_eq!(e(&|s| s.count = 101), "count");
-        assert_eq!("bridge".parse::<Network>().unwrap_err().code(), "unknown_name");
+        assert_eq!(
+            "bridge".parse::<Network>().unwrap_err().code(),
+            "unknown_name"
+        );
     }
 
     #[test]

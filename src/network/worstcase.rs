@@ -48,11 +48,18 @@ impl FromStr for Stage {
     /// [`Error::UnknownName`] with `param = "stage"`.
     fn from_str(s: &str) -> Result<Self> {
         let t = s.trim();
-        [("non-inverting", Stage::NonInverting), ("noninverting", Stage::NonInverting), ("inverting", Stage::Inverting)]
-            .iter()
-            .find(|(n, _)| n.eq_ignore_ascii_case(t))
-            .map(|&(_, v)| v)
-            .ok_or(Error::UnknownName { param: "stage", expected: STAGE_NAMES })
+        [
+            ("non-inverting", Stage::NonInverting),
+            ("noninverting", Stage::NonInverting),
+            ("inverting", Stage::Inverting),
+        ]
+        .iter()
+        .find(|(n, _)| n.eq_ignore_ascii_case(t))
+        .map(|&(_, v)| v)
+        .ok_or(Error::UnknownName {
+            param: "stage",
+            expected: STAGE_NAMES,
+        })
     }
 }
 
@@ -102,7 +109,10 @@ impl StageSpec {
         check::positive("a_typ", self.a_typ)?;
         check::positive("a_max", self.a_max)?;
         if !(self.a_min <= self.a_typ && self.a_typ <= self.a_max) {
-            return Err(Error::OutOfDomain { param: "a_typ", requirement: "must lie between a_min and a_max" });
+            return Err(Error::OutOfDomain {
+                param: "a_typ",
+                requirement: "must lie between a_min and a_max",
+            });
         }
         check::positive("ri", self.ri)?;
         check::non_negative("ro", self.ro)?;
@@ -160,7 +170,10 @@ impl FromStr for Metric {
         .iter()
         .find(|(n, _)| n.eq_ignore_ascii_case(t))
         .map(|&(_, v)| v)
-        .ok_or(Error::UnknownName { param: "metric", expected: METRIC_NAMES })
+        .ok_or(Error::UnknownName {
+            param: "metric",
+            expected: METRIC_NAMES,
+        })
     }
 }
 
@@ -188,16 +201,28 @@ pub(crate) fn stage_gain(stage: Stage, r1: f64, r2: f64, a: f64) -> Result<f64> 
 }
 
 /// One metric for one set of part values.
-pub(crate) fn stage_metric(spec: &StageSpec, metric: Metric, r1: f64, r2: f64, a: f64) -> Result<f64> {
+pub(crate) fn stage_metric(
+    spec: &StageSpec,
+    metric: Metric,
+    r1: f64,
+    r2: f64,
+    a: f64,
+) -> Result<f64> {
     let beta = r1 / (r1 + r2);
     match metric {
         Metric::Gain => stage_gain(spec.stage, r1, r2, a),
         Metric::InputImpedance => match spec.stage {
-            Stage::NonInverting => Ok(resistances_with_feedback(Topology::SeriesShunt, spec.ri, spec.ro, a, beta)?.0),
+            Stage::NonInverting => {
+                Ok(resistances_with_feedback(Topology::SeriesShunt, spec.ri, spec.ro, a, beta)?.0)
+            }
             Stage::Inverting => check::result("input_impedance", r1 + r2 / (1.0 + a)),
         },
-        Metric::OutputImpedance => Ok(resistances_with_feedback(Topology::SeriesShunt, spec.ri, spec.ro, a, beta)?.1),
-        Metric::Bandwidth => check::result("bandwidth_hz", spec.pole_hz * feedback_amount(a, beta)?),
+        Metric::OutputImpedance => {
+            Ok(resistances_with_feedback(Topology::SeriesShunt, spec.ri, spec.ro, a, beta)?.1)
+        }
+        Metric::Bandwidth => {
+            check::result("bandwidth_hz", spec.pole_hz * feedback_amount(a, beta)?)
+        }
     }
 }
 
@@ -292,14 +317,46 @@ pub struct WorstCase {
 pub const CORNERS: [Corner; 8] = {
     use End::{High as H, Low as L};
     [
-        Corner { r1: L, r2: L, open_loop_gain: L },
-        Corner { r1: L, r2: L, open_loop_gain: H },
-        Corner { r1: L, r2: H, open_loop_gain: L },
-        Corner { r1: L, r2: H, open_loop_gain: H },
-        Corner { r1: H, r2: L, open_loop_gain: L },
-        Corner { r1: H, r2: L, open_loop_gain: H },
-        Corner { r1: H, r2: H, open_loop_gain: L },
-        Corner { r1: H, r2: H, open_loop_gain: H },
+        Corner {
+            r1: L,
+            r2: L,
+            open_loop_gain: L,
+        },
+        Corner {
+            r1: L,
+            r2: L,
+            open_loop_gain: H,
+        },
+        Corner {
+            r1: L,
+            r2: H,
+            open_loop_gain: L,
+        },
+        Corner {
+            r1: L,
+            r2: H,
+            open_loop_gain: H,
+        },
+        Corner {
+            r1: H,
+            r2: L,
+            open_loop_gain: L,
+        },
+        Corner {
+            r1: H,
+            r2: L,
+            open_loop_gain: H,
+        },
+        Corner {
+            r1: H,
+            r2: H,
+            open_loop_gain: L,
+        },
+        Corner {
+            r1: H,
+            r2: H,
+            open_loop_gain: H,
+        },
     ]
 };
 
@@ -314,7 +371,11 @@ impl Corner {
             End::Low => spec.a_min,
             End::High => spec.a_max,
         };
-        (pick(self.r1, spec.r1, spec.tol_r1), pick(self.r2, spec.r2, spec.tol_r2), a)
+        (
+            pick(self.r1, spec.r1, spec.tol_r1),
+            pick(self.r2, spec.r2, spec.tol_r2),
+            a,
+        )
     }
 }
 
@@ -357,7 +418,11 @@ pub fn worst_case(spec: &StageSpec) -> Result<WorstCase> {
                 hi = (v, c);
             }
         }
-        let scale = if nominal == 0.0 { 0.0 } else { 100.0 / libm::fabs(nominal) };
+        let scale = if nominal == 0.0 {
+            0.0
+        } else {
+            100.0 / libm::fabs(nominal)
+        };
         Ok(Extremes {
             nominal,
             min: lo.0,
@@ -417,7 +482,10 @@ mod tests {
                             (v.bandwidth_hz, w.bandwidth_hz),
                         ] {
                             let slack = 1e-12 * (e.min.abs() + e.max.abs());
-                            assert!(x >= e.min - slack && x <= e.max + slack, "{stage:?} {i} {j} {k}");
+                            assert!(
+                                x >= e.min - slack && x <= e.max + slack,
+                                "{stage:?} {i} {j} {k}"
+                            );
                         }
                     }
                 }
@@ -429,8 +497,22 @@ mod tests {
     fn corners_of_the_inverting_gain() {
         // |Af| grows with R2/R1 and with A: most negative gain at R1 low, R2 high, A high.
         let w = worst_case(&spec(Stage::Inverting)).unwrap();
-        assert_eq!(w.gain.min_corner, Corner { r1: End::Low, r2: End::High, open_loop_gain: End::High });
-        assert_eq!(w.gain.max_corner, Corner { r1: End::High, r2: End::Low, open_loop_gain: End::Low });
+        assert_eq!(
+            w.gain.min_corner,
+            Corner {
+                r1: End::Low,
+                r2: End::High,
+                open_loop_gain: End::High
+            }
+        );
+        assert_eq!(
+            w.gain.max_corner,
+            Corner {
+                r1: End::High,
+                r2: End::Low,
+                open_loop_gain: End::Low
+            }
+        );
         assert!(w.gain.nominal < 0.0 && w.gain.low_percent < 0.0 && w.gain.high_percent > 0.0);
     }
 

@@ -118,8 +118,23 @@ mod tests {
 
     #[test]
     fn bad_inputs_are_named() {
-        assert_eq!(AmplifierNoise::new(1e-9, -1.0, 0.0, 0.0).unwrap_err().param(), "voltage_corner_hz");
-        assert_eq!(AmplifierNoise::new(1e-9, 0.0, f64::NAN, 0.0).unwrap_err().param(), "current_density");
-        assert_eq!(AmplifierNoise::new(1e-9, 0.0, 0.0, f64::INFINITY).unwrap_err().param(), "current_corner_hz");
+        assert_eq!(
+            AmplifierNoise::new(1e-9, -1.0, 0.0, 0.0)
+                .unwrap_err()
+                .param(),
+            "voltage_corner_hz"
+        );
+        assert_eq!(
+            AmplifierNoise::new(1e-9, 0.0, f64::NAN, 0.0)
+                .unwrap_err()
+                .param(),
+            "current_density"
+        );
+        assert_eq!(
+            AmplifierNoise::new(1e-9, 0.0, 0.0, f64::INFINITY)
+                .unwrap_err()
+                .param(),
+            "current_corner_hz"
+        );
     }
 }

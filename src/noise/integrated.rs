@@ -58,7 +58,10 @@ pub fn output_noise_density(
     frequency_hz: f64,
 ) -> Result<f64> {
     let f = density_frequency(amp, frequency_hz)?;
-    check::result("output_noise_density", crate::float::sqrt(output_psd(stage, amp, f) * response.magnitude_squared(f)))
+    check::result(
+        "output_noise_density",
+        crate::float::sqrt(output_psd(stage, amp, f) * response.magnitude_squared(f)),
+    )
 }
 
 /// Output and input-referred noise density over log-spaced frequencies.
@@ -102,13 +105,22 @@ pub fn output_noise_sweep(
     let a = check::positive("f_start", f_start)?;
     let b = check::positive("f_stop", f_stop)?;
     if b <= a {
-        return Err(Error::OutOfDomain { param: "f_stop", requirement: "must be greater than f_start" });
+        return Err(Error::OutOfDomain {
+            param: "f_stop",
+            requirement: "must be greater than f_start",
+        });
     }
     if points > MAX_SWEEP_POINTS {
-        return Err(Error::TooLarge { param: "points", limit: MAX_SWEEP_POINTS as u64 });
+        return Err(Error::TooLarge {
+            param: "points",
+            limit: MAX_SWEEP_POINTS as u64,
+        });
     }
     if points < 2 {
-        return Err(Error::OutOfDomain { param: "points", requirement: "must be at least 2" });
+        return Err(Error::OutOfDomain {
+            param: "points",
+            requirement: "must be at least 2",
+        });
     }
     let gain = libm::fabs(stage.signal_gain());
     let mut out = NoiseSweep {
@@ -120,8 +132,14 @@ pub fn output_noise_sweep(
         let f = a * libm::pow(b / a, i as f64 / (points - 1) as f64);
         let s0 = output_psd(stage, amp, f);
         out.frequencies.push(f);
-        out.output_density.push(check::result("output_density", crate::float::sqrt(s0 * response.magnitude_squared(f)))?);
-        out.input_referred_density.push(check::result("input_referred_density", crate::float::sqrt(s0) / gain)?);
+        out.output_density.push(check::result(
+            "output_density",
+            crate::float::sqrt(s0 * response.magnitude_squared(f)),
+        )?);
+        out.input_referred_density.push(check::result(
+            "input_referred_density",
+            crate::float::sqrt(s0) / gain,
+        )?);
     }
     Ok(out)
 }
@@ -158,7 +176,12 @@ pub struct IntegratedNoise {
 }
 
 /// ∫ g(f) df over [f_low, f_high] (f_high = +∞ allowed), split at `breaks`.
-fn integrate_band<G: Fn(f64) -> f64>(g: &G, f_low: f64, f_high: f64, breaks: &[f64]) -> Result<(f64, f64)> {
+fn integrate_band<G: Fn(f64) -> f64>(
+    g: &G,
+    f_low: f64,
+    f_high: f64,
+    breaks: &[f64],
+) -> Result<(f64, f64)> {
     let mut pts = [0.0f64; MAX_BREAKS + 2];
     let mut n = 0;
     pts[n] = f_low;
@@ -304,17 +327,32 @@ pub fn integrated_output_noise(
     }
     let g = |f: f64| output_psd(stage, amp, f) * response.magnitude_squared(f);
     let (power, err) = integrate_band(&g, f_low, f_high, &breaks[..nb])?;
-    let (nbw, _) =
-        integrate_band(&|f: f64| response.magnitude_squared(f), 0.0, f64::INFINITY, &breaks[..shape_breaks])?;
+    let (nbw, _) = integrate_band(
+        &|f: f64| response.magnitude_squared(f),
+        0.0,
+        f64::INFINITY,
+        &breaks[..shape_breaks],
+    )?;
     let output_rms = check::result("output_rms", crate::float::sqrt(power))?;
     let signal_gain = stage.signal_gain();
-    let white = AmplifierNoise { voltage_corner_hz: 0.0, current_corner_hz: 0.0, ..*amp };
+    let white = AmplifierNoise {
+        voltage_corner_hz: 0.0,
+        current_corner_hz: 0.0,
+        ..*amp
+    };
     let single = response.single_pole_noise_bandwidth_hz();
     Ok(IntegratedNoise {
         output_rms,
-        input_referred_rms: check::result("input_referred_rms", output_rms / libm::fabs(signal_gain))?,
+        input_referred_rms: check::result(
+            "input_referred_rms",
+            output_rms / libm::fabs(signal_gain),
+        )?,
         f_low,
-        f_high: if f_high.is_finite() { Some(f_high) } else { None },
+        f_high: if f_high.is_finite() {
+            Some(f_high)
+        } else {
+            None
+        },
         noise_gain: ng,
         signal_gain,
         loop_crossover_hz: fc,
@@ -395,11 +433,31 @@ mod tests {
     fn bad_bands_are_named() {
         let (s, amp) = white_stage();
         let h = ClosedLoopResponse::new(s.noise_gain(), 2e6, &[]).unwrap();
-        assert_eq!(integrated_output_noise(&s, &amp, &h, 10.0, 10.0).unwrap_err().param(), "f_high");
-        assert_eq!(integrated_output_noise(&s, &amp, &h, 0.0, f64::NAN).unwrap_err().param(), "f_high");
+        assert_eq!(
+            integrated_output_noise(&s, &amp, &h, 10.0, 10.0)
+                .unwrap_err()
+                .param(),
+            "f_high"
+        );
+        assert_eq!(
+            integrated_output_noise(&s, &amp, &h, 0.0, f64::NAN)
+                .unwrap_err()
+                .param(),
+            "f_high"
+        );
         let flick = AmplifierNoise::new(7e-9, 3.0, 0.0, 0.0).unwrap();
-        assert_eq!(integrated_output_noise(&s, &flick, &h, 0.0, 1e3).unwrap_err().param(), "f_low");
+        assert_eq!(
+            integrated_output_noise(&s, &flick, &h, 0.0, 1e3)
+                .unwrap_err()
+                .param(),
+            "f_low"
+        );
         let other = ClosedLoopResponse::new(3.0, 2e6, &[]).unwrap();
-        assert_eq!(integrated_output_noise(&s, &amp, &other, 1.0, 1e3).unwrap_err().param(), "noise_gain");
+        assert_eq!(
+            integrated_output_noise(&s, &amp, &other, 1.0, 1e3)
+                .unwrap_err()
+                .param(),
+            "noise_gain"
+        );
     }
 }

@@ -29,7 +29,9 @@ pub mod stage;
 pub mod thermal;
 
 pub use amplifier::AmplifierNoise;
-pub use integrated::{integrated_output_noise, output_noise_density, output_noise_sweep, IntegratedNoise, NoiseSweep};
+pub use integrated::{
+    integrated_output_noise, output_noise_density, output_noise_sweep, IntegratedNoise, NoiseSweep,
+};
 pub use response::{ClosedLoopResponse, MAX_EXTRA_POLES};
 pub use stage::{noise_contributions, NoiseContributions, Stage, StageKind};
 pub use thermal::{thermal_noise_current_density, thermal_noise_density, BOLTZMANN};

@@ -89,7 +89,13 @@ fn kronrod<F: FnMut(f64) -> f64>(f: &mut F, a: f64, b: f64) -> Result<(f64, f64)
 /// [`Error::Overflow`] on `integrand` when f returns a non-finite value;
 /// [`Error::NoConvergence`] on `integrand` when the tolerance is not met within
 /// [`MAX_INTERVALS`] subintervals.
-pub fn integrate<F: FnMut(f64) -> f64>(mut f: F, a: f64, b: f64, rel_tol: f64, abs_tol: f64) -> Result<Quadrature> {
+pub fn integrate<F: FnMut(f64) -> f64>(
+    mut f: F,
+    a: f64,
+    b: f64,
+    rel_tol: f64,
+    abs_tol: f64,
+) -> Result<Quadrature> {
     let mut lo = [0.0f64; MAX_INTERVALS];
     let mut hi = [0.0f64; MAX_INTERVALS];
     let mut val = [0.0f64; MAX_INTERVALS];
@@ -104,9 +110,17 @@ pub fn integrate<F: FnMut(f64) -> f64>(mut f: F, a: f64, b: f64, rel_tol: f64, a
     loop {
         let total: f64 = val[..n].iter().sum();
         let total_err: f64 = err[..n].iter().sum();
-        let target = if rel_tol * libm::fabs(total) > abs_tol { rel_tol * libm::fabs(total) } else { abs_tol };
+        let target = if rel_tol * libm::fabs(total) > abs_tol {
+            rel_tol * libm::fabs(total)
+        } else {
+            abs_tol
+        };
         if total_err <= target {
-            return Ok(Quadrature { value: total, error: total_err, evaluations });
+            return Ok(Quadrature {
+                value: total,
+                error: total_err,
+                evaluations,
+            });
         }
         if n == MAX_INTERVALS {
             return Err(Error::NoConvergence {
@@ -171,6 +185,11 @@ mod tests {
 
     #[test]
     fn non_finite_integrand_is_an_error() {
-        assert_eq!(integrate(|_| f64::NAN, 0.0, 1.0, 1e-8, 0.0).unwrap_err().param(), "integrand");
+        assert_eq!(
+            integrate(|_| f64::NAN, 0.0, 1.0, 1e-8, 0.0)
+                .unwrap_err()
+                .param(),
+            "integrand"
+        );
     }
 }

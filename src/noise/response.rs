@@ -71,13 +71,21 @@ impl ClosedLoopResponse {
         let noise_gain = check::positive("noise_gain", noise_gain)?;
         let gbw_hz = check::positive("gbw_hz", gbw_hz)?;
         if extra_poles_hz.len() > MAX_EXTRA_POLES {
-            return Err(Error::TooLarge { param: "extra_poles_hz", limit: MAX_EXTRA_POLES as u64 });
+            return Err(Error::TooLarge {
+                param: "extra_poles_hz",
+                limit: MAX_EXTRA_POLES as u64,
+            });
         }
         let mut poles = [0.0; MAX_EXTRA_POLES];
         for (slot, &p) in poles.iter_mut().zip(extra_poles_hz) {
             *slot = check::positive("extra_poles_hz", p)?;
         }
-        let h = ClosedLoopResponse { noise_gain, gbw_hz, poles, pole_count: extra_poles_hz.len() };
+        let h = ClosedLoopResponse {
+            noise_gain,
+            gbw_hz,
+            poles,
+            pole_count: extra_poles_hz.len(),
+        };
         let fc = h.loop_crossover_hz();
         if !fc.is_finite() || fc <= 0.0 {
             return Err(Error::OutOfDomain {
@@ -86,7 +94,9 @@ impl ClosedLoopResponse {
             });
         }
         if h.pole_count == MAX_EXTRA_POLES && poles[0] + poles[1] <= fc {
-            return Err(Error::Oscillation { param: "extra_poles_hz" });
+            return Err(Error::Oscillation {
+                param: "extra_poles_hz",
+            });
         }
         Ok(h)
     }
@@ -218,22 +228,47 @@ mod tests {
     fn routh_boundary_is_the_sum_of_the_extra_poles() {
         // Stable just above f2 + f3 = fc, refused at and below it.
         assert!(ClosedLoopResponse::new(1.0, 1e6, &[0.5e6, 0.5001e6]).is_ok());
-        assert_eq!(ClosedLoopResponse::new(1.0, 1e6, &[0.5e6, 0.5e6]).unwrap_err().param(), "extra_poles_hz");
+        assert_eq!(
+            ClosedLoopResponse::new(1.0, 1e6, &[0.5e6, 0.5e6])
+                .unwrap_err()
+                .param(),
+            "extra_poles_hz"
+        );
         // The marginal loop has a closed-loop pole on the jω axis at √(f2·f3):
         // 1 + 1/T vanishes there.
         let inv = |f: f64| {
             let jf = Complex64::new(0.0, f);
             Complex64::new(1.0, 0.0)
-                + jf / 1e6 * (Complex64::new(1.0, 0.0) + jf / 0.5e6) * (Complex64::new(1.0, 0.0) + jf / 0.5e6)
+                + jf / 1e6
+                    * (Complex64::new(1.0, 0.0) + jf / 0.5e6)
+                    * (Complex64::new(1.0, 0.0) + jf / 0.5e6)
         };
         assert!(inv(0.5e6).norm() < 1e-12);
     }
 
     #[test]
     fn bad_inputs_are_named() {
-        assert_eq!(ClosedLoopResponse::new(0.0, 1e6, &[]).unwrap_err().param(), "noise_gain");
-        assert_eq!(ClosedLoopResponse::new(1.0, f64::NAN, &[]).unwrap_err().param(), "gbw_hz");
-        assert_eq!(ClosedLoopResponse::new(1.0, 1e6, &[-1e6]).unwrap_err().param(), "extra_poles_hz");
-        assert_eq!(ClosedLoopResponse::new(1.0, 1e6, &[1e7, 1e7, 1e7]).unwrap_err().code(), "too_large");
+        assert_eq!(
+            ClosedLoopResponse::new(0.0, 1e6, &[]).unwrap_err().param(),
+            "noise_gain"
+        );
+        assert_eq!(
+            ClosedLoopResponse::new(1.0, f64::NAN, &[])
+                .unwrap_err()
+                .param(),
+            "gbw_hz"
+        );
+        assert_eq!(
+            ClosedLoopResponse::new(1.0, 1e6, &[-1e6])
+                .unwrap_err()
+                .param(),
+            "extra_poles_hz"
+        );
+        assert_eq!(
+            ClosedLoopResponse::new(1.0, 1e6, &[1e7, 1e7, 1e7])
+                .unwrap_err()
+                .code(),
+            "too_large"
+        );
     }
 }

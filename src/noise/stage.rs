@@ -52,7 +52,10 @@ impl core::str::FromStr for StageKind {
         } else if s.eq_ignore_ascii_case("inverting") {
             Ok(StageKind::Inverting)
         } else {
-            Err(Error::UnknownName { param: "kind", expected: "non-inverting, inverting" })
+            Err(Error::UnknownName {
+                param: "kind",
+                expected: "non-inverting, inverting",
+            })
         }
     }
 }
@@ -89,7 +92,13 @@ impl Stage {
     /// assert_eq!(s.noise_gain(), 10.0);
     /// assert_eq!(Stage::new(StageKind::Inverting, 0.0, 1e3, 0.0, 300.0).unwrap_err().param(), "r_feedback");
     /// ```
-    pub fn new(kind: StageKind, r_feedback: f64, r_gain: f64, r_plus: f64, temperature_k: f64) -> Result<Self> {
+    pub fn new(
+        kind: StageKind,
+        r_feedback: f64,
+        r_gain: f64,
+        r_plus: f64,
+        temperature_k: f64,
+    ) -> Result<Self> {
         let r_feedback = match kind {
             StageKind::NonInverting => check::non_negative("r_feedback", r_feedback)?,
             StageKind::Inverting => check::positive("r_feedback", r_feedback)?,
@@ -199,7 +208,11 @@ pub(crate) fn density_frequency(amp: &AmplifierNoise, frequency_hz: f64) -> Resu
 /// assert!((n.total - (n.r_feedback.powi(2) + n.r_gain.powi(2)).sqrt()).abs() < 1e-24);
 /// assert!(noise_contributions(&s, &AmplifierNoise::new(0.0, 0.0, 0.0, 0.0).unwrap(), -1.0).is_err());
 /// ```
-pub fn noise_contributions(stage: &Stage, amp: &AmplifierNoise, frequency_hz: f64) -> Result<NoiseContributions> {
+pub fn noise_contributions(
+    stage: &Stage,
+    amp: &AmplifierNoise,
+    frequency_hz: f64,
+) -> Result<NoiseContributions> {
     let f = density_frequency(amp, frequency_hz)?;
     let t = output_psd_terms(stage, amp, f);
     let total = crate::float::sqrt(t.iter().sum());
@@ -231,7 +244,8 @@ mod tests {
         let amp = AmplifierNoise::new(5e-9, 0.0, 1e-12, 0.0).unwrap();
         let n = noise_contributions(&s, &amp, 1e3).unwrap();
         assert_eq!((n.noise_gain, n.r_feedback, n.r_gain), (1.0, 0.0, 0.0));
-        let expected = (25e-18 + thermal_noise_density(1e3, 300.0).unwrap().powi(2) + 1e-24 * 1e6).sqrt();
+        let expected =
+            (25e-18 + thermal_noise_density(1e3, 300.0).unwrap().powi(2) + 1e-24 * 1e6).sqrt();
         assert!((n.total / expected - 1.0).abs() < 1e-14);
         assert!((n.input_referred - n.total).abs() < 1e-30);
     }
@@ -241,7 +255,10 @@ mod tests {
         // Same resistors: same noise circuit, signal gain −R_f/R_g instead of NG.
         let amp = AmplifierNoise::new(8e-9, 20.0, 0.4e-12, 100.0).unwrap();
         let ni = Stage::new(StageKind::NonInverting, 20e3, 2e3, 1e3, 295.0).unwrap();
-        let inv = Stage { kind: StageKind::Inverting, ..ni };
+        let inv = Stage {
+            kind: StageKind::Inverting,
+            ..ni
+        };
         let a = noise_contributions(&ni, &amp, 50.0).unwrap();
         let b = noise_contributions(&inv, &amp, 50.0).unwrap();
         assert_eq!(a.total, b.total);
@@ -264,12 +281,33 @@ mod tests {
 
     #[test]
     fn bad_inputs_are_named() {
-        assert_eq!(Stage::new(StageKind::NonInverting, 1e3, 0.0, 0.0, 300.0).unwrap_err().param(), "r_gain");
-        assert_eq!(Stage::new(StageKind::NonInverting, 1e3, 1e3, -1.0, 300.0).unwrap_err().param(), "r_plus");
-        assert_eq!(Stage::new(StageKind::NonInverting, 1e3, 1e3, 0.0, -3.0).unwrap_err().param(), "temperature_k");
-        assert_eq!("buffer".parse::<StageKind>().unwrap_err().code(), "unknown_name");
+        assert_eq!(
+            Stage::new(StageKind::NonInverting, 1e3, 0.0, 0.0, 300.0)
+                .unwrap_err()
+                .param(),
+            "r_gain"
+        );
+        assert_eq!(
+            Stage::new(StageKind::NonInverting, 1e3, 1e3, -1.0, 300.0)
+                .unwrap_err()
+                .param(),
+            "r_plus"
+        );
+        assert_eq!(
+            Stage::new(StageKind::NonInverting, 1e3, 1e3, 0.0, -3.0)
+                .unwrap_err()
+                .param(),
+            "temperature_k"
+        );
+        assert_eq!(
+            "buffer".parse::<StageKind>().unwrap_err().code(),
+            "unknown_name"
+        );
         let s = Stage::new(StageKind::NonInverting, 1e3, 1e3, 0.0, 300.0).unwrap();
         let amp = AmplifierNoise::new(1e-9, 10.0, 0.0, 0.0).unwrap();
-        assert_eq!(noise_contributions(&s, &amp, 0.0).unwrap_err().param(), "frequency_hz");
+        assert_eq!(
+            noise_contributions(&s, &amp, 0.0).unwrap_err().param(),
+            "frequency_hz"
+        );
     }
 }

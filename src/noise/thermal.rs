@@ -33,7 +33,10 @@ pub const BOLTZMANN: f64 = 1.380_649e-23;
 pub fn thermal_noise_density(resistance_ohm: f64, temperature_k: f64) -> Result<f64> {
     let r = check::non_negative("resistance_ohm", resistance_ohm)?;
     let t = check::positive("temperature_k", temperature_k)?;
-    check::result("thermal_noise_density", crate::float::sqrt(4.0 * BOLTZMANN * t * r))
+    check::result(
+        "thermal_noise_density",
+        crate::float::sqrt(4.0 * BOLTZMANN * t * r),
+    )
 }
 
 /// Thermal noise current density of a resistor, √(4·k·T/R), A/√Hz.
@@ -53,7 +56,10 @@ pub fn thermal_noise_density(resistance_ohm: f64, temperature_k: f64) -> Result<
 pub fn thermal_noise_current_density(resistance_ohm: f64, temperature_k: f64) -> Result<f64> {
     let r = check::positive("resistance_ohm", resistance_ohm)?;
     let t = check::positive("temperature_k", temperature_k)?;
-    check::result("thermal_noise_current_density", crate::float::sqrt(4.0 * BOLTZMANN * t / r))
+    check::result(
+        "thermal_noise_current_density",
+        crate::float::sqrt(4.0 * BOLTZMANN * t / r),
+    )
 }
 
 #[cfg(test)]
@@ -80,8 +86,17 @@ mod tests {
 
     #[test]
     fn bad_inputs_are_named() {
-        assert_eq!(thermal_noise_density(-1.0, 300.0).unwrap_err().param(), "resistance_ohm");
-        assert_eq!(thermal_noise_density(1.0, f64::NAN).unwrap_err().code(), "not_finite");
-        assert_eq!(thermal_noise_density(1.0, 0.0).unwrap_err().param(), "temperature_k");
+        assert_eq!(
+            thermal_noise_density(-1.0, 300.0).unwrap_err().param(),
+            "resistance_ohm"
+        );
+        assert_eq!(
+            thermal_noise_density(1.0, f64::NAN).unwrap_err().code(),
+            "not_finite"
+        );
+        assert_eq!(
+            thermal_noise_density(1.0, 0.0).unwrap_err().param(),
+            "temperature_k"
+        );
     }
 }

@@ -44,7 +44,10 @@ impl core::str::FromStr for AmplitudeAt {
         } else if s.eq_ignore_ascii_case("output") {
             Ok(AmplitudeAt::Output)
         } else {
-            Err(Error::UnknownName { param: "amplitude_at", expected: "input, output" })
+            Err(Error::UnknownName {
+                param: "amplitude_at",
+                expected: "input, output",
+            })
         }
     }
 }
@@ -89,7 +92,11 @@ fn input_amplitude(series: &PowerSeries, amplitude: f64, at: AmplitudeAt) -> Res
 /// assert!((d.hd2 - 0.001).abs() < 1e-15 && (d.hd3 - 1e-5).abs() < 1e-18);
 /// assert_eq!(harmonic_distortion(&amp, -1.0, AmplitudeAt::Input).unwrap_err().param(), "amplitude");
 /// ```
-pub fn harmonic_distortion(series: &PowerSeries, amplitude: f64, at: AmplitudeAt) -> Result<Distortion> {
+pub fn harmonic_distortion(
+    series: &PowerSeries,
+    amplitude: f64,
+    at: AmplitudeAt,
+) -> Result<Distortion> {
     let x = input_amplitude(series, amplitude, at)?;
     let a1 = libm::fabs(series.a1);
     Ok(Distortion {
@@ -119,13 +126,27 @@ pub fn harmonic_distortion(series: &PowerSeries, amplitude: f64, at: AmplitudeAt
 /// assert!((s.a2 - 2.0).abs() < 1e-12 && (s.a3 + 4.0).abs() < 1e-12);
 /// assert_eq!(series_from_distortion(10.0, f64::NAN, 0.0, 1.0, AmplitudeAt::Output).unwrap_err().param(), "hd2");
 /// ```
-pub fn series_from_distortion(a1: f64, hd2: f64, hd3: f64, amplitude: f64, at: AmplitudeAt) -> Result<PowerSeries> {
+pub fn series_from_distortion(
+    a1: f64,
+    hd2: f64,
+    hd3: f64,
+    amplitude: f64,
+    at: AmplitudeAt,
+) -> Result<PowerSeries> {
     let a1 = check::nonzero("a1", a1)?;
     let hd2 = check::finite("hd2", hd2)?;
     let hd3 = check::finite("hd3", hd3)?;
-    let linear = PowerSeries { a1, a2: 0.0, a3: 0.0 };
+    let linear = PowerSeries {
+        a1,
+        a2: 0.0,
+        a3: 0.0,
+    };
     let x = input_amplitude(&linear, amplitude, at)?;
-    PowerSeries::new(a1, check::result("a2", 2.0 * hd2 * a1 / x)?, check::result("a3", 4.0 * hd3 * a1 / (x * x))?)
+    PowerSeries::new(
+        a1,
+        check::result("a2", 2.0 * hd2 * a1 / x)?,
+        check::result("a3", 4.0 * hd3 * a1 / (x * x))?,
+    )
 }
 
 /// Open-loop and closed-loop distortion of one amplifier, and what feedback bought.
@@ -177,7 +198,13 @@ pub fn feedback_distortion(
     let closed_series = closed_loop_series(open, beta)?;
     let open_d = harmonic_distortion(open, amplitude, at)?;
     let closed = harmonic_distortion(&closed_series, amplitude, at)?;
-    let ratio = |c: f64, o: f64| if o > 0.0 { Some(c / o).filter(|r| r.is_finite()) } else { None };
+    let ratio = |c: f64, o: f64| {
+        if o > 0.0 {
+            Some(c / o).filter(|r| r.is_finite())
+        } else {
+            None
+        }
+    };
     Ok(FeedbackDistortion {
         closed_series,
         feedback_amount: d,
@@ -235,8 +262,16 @@ mod tests {
     #[test]
     fn names_parse_and_bad_names_are_typed() {
         assert_eq!("Output".parse::<AmplitudeAt>(), Ok(AmplitudeAt::Output));
-        assert_eq!("peak".parse::<AmplitudeAt>().unwrap_err().param(), "amplitude_at");
+        assert_eq!(
+            "peak".parse::<AmplitudeAt>().unwrap_err().param(),
+            "amplitude_at"
+        );
         let amp = PowerSeries::new(10.0, 1.0, 1.0).unwrap();
-        assert_eq!(harmonic_distortion(&amp, f64::INFINITY, AmplitudeAt::Output).unwrap_err().code(), "not_finite");
+        assert_eq!(
+            harmonic_distortion(&amp, f64::INFINITY, AmplitudeAt::Output)
+                .unwrap_err()
+                .code(),
+            "not_finite"
+        );
     }
 }

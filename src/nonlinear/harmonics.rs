@@ -64,10 +64,16 @@ where
     F: FnMut(usize) -> Result<f64>,
 {
     if n > MAX_SAMPLES {
-        return Err(Error::TooLarge { param: "samples", limit: MAX_SAMPLES as u64 });
+        return Err(Error::TooLarge {
+            param: "samples",
+            limit: MAX_SAMPLES as u64,
+        });
     }
     if n < MIN_SAMPLES {
-        return Err(Error::OutOfDomain { param: "samples", requirement: "must be at least 16" });
+        return Err(Error::OutOfDomain {
+            param: "samples",
+            requirement: "must be at least 16",
+        });
     }
     let mut re = [0.0f64; HARMONICS + 1];
     let mut im = [0.0f64; HARMONICS + 1];
@@ -105,7 +111,12 @@ where
 /// assert!((s.harmonics[0] - 0.1).abs() < 1e-5);
 /// assert_eq!(closed_loop_spectrum(&amp, 0.009, 10.0, 64).unwrap_err().param(), "amplitude");
 /// ```
-pub fn closed_loop_spectrum(open: &PowerSeries, beta: f64, amplitude: f64, samples: usize) -> Result<Spectrum> {
+pub fn closed_loop_spectrum(
+    open: &PowerSeries,
+    beta: f64,
+    amplitude: f64,
+    samples: usize,
+) -> Result<Spectrum> {
     let solver = LoopSolver::new(open, beta)?;
     let x_peak = check::positive("amplitude", amplitude)?;
     if x_peak >= solver.max_input_amplitude() {
@@ -121,7 +132,10 @@ pub fn closed_loop_spectrum(open: &PowerSeries, beta: f64, amplitude: f64, sampl
     })?;
     let fundamental = harmonics[0];
     if fundamental <= 0.0 {
-        return Err(Error::Singular { param: "amplitude", reason: "the output has no fundamental" });
+        return Err(Error::Singular {
+            param: "amplitude",
+            reason: "the output has no fundamental",
+        });
     }
     let mut sum = 0.0;
     for h in &harmonics[1..] {
@@ -161,7 +175,10 @@ mod tests {
     fn dft_of_a_pure_tone_lands_in_one_bin() {
         // Identity (orthogonality of the DFT basis): a tone at bin 3 of 50 with an
         // offset has its amplitude in bin 3, its offset in DC, nothing elsewhere.
-        let (dc, a) = short_dft(50, |k| Ok(0.3 + 2.0 * (2.0 * PI * 3.0 * k as f64 / 50.0 + 0.4).sin())).unwrap();
+        let (dc, a) = short_dft(50, |k| {
+            Ok(0.3 + 2.0 * (2.0 * PI * 3.0 * k as f64 / 50.0 + 0.4).sin())
+        })
+        .unwrap();
         assert!((dc - 0.3).abs() < 1e-14);
         assert!((a[2] - 2.0).abs() < 1e-13);
         assert!(a[0] < 1e-13 && a[1] < 1e-13 && a[3] < 1e-13 && a[4] < 1e-13);
@@ -170,7 +187,10 @@ mod tests {
     #[test]
     fn sample_count_is_bounded() {
         assert_eq!(short_dft(8, |_| Ok(0.0)).unwrap_err().param(), "samples");
-        assert_eq!(short_dft(MAX_SAMPLES + 1, |_| Ok(0.0)).unwrap_err().code(), "too_large");
+        assert_eq!(
+            short_dft(MAX_SAMPLES + 1, |_| Ok(0.0)).unwrap_err().code(),
+            "too_large"
+        );
     }
 
     #[test]

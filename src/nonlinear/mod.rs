@@ -33,12 +33,16 @@ pub mod slew;
 pub mod validity;
 
 pub use distortion::{
-    feedback_distortion, harmonic_distortion, series_from_distortion, AmplitudeAt, Distortion, FeedbackDistortion,
+    feedback_distortion, harmonic_distortion, series_from_distortion, AmplitudeAt, Distortion,
+    FeedbackDistortion,
 };
-pub use harmonics::{closed_loop_spectrum, short_dft, Spectrum, DEFAULT_SAMPLES, HARMONICS, MAX_SAMPLES, MIN_SAMPLES};
+pub use harmonics::{
+    closed_loop_spectrum, short_dft, Spectrum, DEFAULT_SAMPLES, HARMONICS, MAX_SAMPLES, MIN_SAMPLES,
+};
 pub use newton::LoopSolver;
 pub use series::{closed_loop_series, return_difference, PowerSeries};
 pub use slew::{full_power_bandwidth, max_undistorted_amplitude, required_slew_rate};
 pub use validity::{
-    relative_difference, series_check, series_validity_sweep, SeriesCheck, ValiditySweep, MAX_SWEEP_POINTS,
+    relative_difference, series_check, series_validity_sweep, SeriesCheck, ValiditySweep,
+    MAX_SWEEP_POINTS,
 };

@@ -68,7 +68,11 @@ fn positive_interval(c0: f64, c1: f64, c2: f64) -> (f64, f64) {
         // Stable pair of roots: q = −(c1 + sign(c1)·√disc)/2, r1 = q/c2, r2 = c0/q.
         let s = crate::float::sqrt(disc);
         let q = -0.5 * (c1 + if c1 >= 0.0 { s } else { -s });
-        let (r1, r2) = if q == 0.0 { (0.0, 0.0) } else { (q / c2, c0 / q) };
+        let (r1, r2) = if q == 0.0 {
+            (0.0, 0.0)
+        } else {
+            (q / c2, c0 / q)
+        };
         let (lo, hi) = if r1 < r2 { (r1, r2) } else { (r2, r1) };
         if c2 < 0.0 {
             // c0/c2 < 0: one root each side of zero.
@@ -101,7 +105,13 @@ impl LoopSolver {
     pub fn new(amp: &PowerSeries, beta: f64) -> Result<Self> {
         let d = return_difference(amp, beta)?;
         let (u_lo, u_hi) = positive_interval(d, 2.0 * beta * amp.a2, 3.0 * beta * amp.a3);
-        let fold = |u: f64| if u.is_finite() { u + beta * amp.output(u) } else { u };
+        let fold = |u: f64| {
+            if u.is_finite() {
+                u + beta * amp.output(u)
+            } else {
+                u
+            }
+        };
         let x_lo = fold(u_lo);
         let x_hi = fold(u_hi);
         Ok(LoopSolver {
@@ -118,7 +128,11 @@ impl LoopSolver {
     /// the branch through the origin: min(−x_lo, x_hi), +∞ when the curve never
     /// folds.
     pub fn max_input_amplitude(&self) -> f64 {
-        let m = if -self.x_lo < self.x_hi { -self.x_lo } else { self.x_hi };
+        let m = if -self.x_lo < self.x_hi {
+            -self.x_lo
+        } else {
+            self.x_hi
+        };
         if m.is_nan() {
             f64::INFINITY
         } else {
@@ -150,7 +164,11 @@ impl LoopSolver {
         }
         let d = 1.0 + self.amp.a1 * self.beta;
         // Bracket: g(0) = −x, so zero is one end; find the other inside (u_lo, u_hi).
-        let (mut lo, mut hi) = if x > 0.0 { (0.0, self.u_hi) } else { (self.u_lo, 0.0) };
+        let (mut lo, mut hi) = if x > 0.0 {
+            (0.0, self.u_hi)
+        } else {
+            (self.u_lo, 0.0)
+        };
         if !lo.is_finite() || !hi.is_finite() {
             // Expand from the linear estimate until g changes sign.
             let mut step = libm::fabs(x / d);
@@ -199,9 +217,16 @@ impl LoopSolver {
             }
             let slope = 1.0 + self.beta * self.amp.slope(u);
             let newton = u - gu / slope;
-            u = if slope > 0.0 && lo < newton && newton < hi { newton } else { 0.5 * (lo + hi) };
+            u = if slope > 0.0 && lo < newton && newton < hi {
+                newton
+            } else {
+                0.5 * (lo + hi)
+            };
         }
-        Err(Error::NoConvergence { param, reason: "the Newton iteration reached its limit of 400 steps" })
+        Err(Error::NoConvergence {
+            param,
+            reason: "the Newton iteration reached its limit of 400 steps",
+        })
     }
 
     /// The closed-loop output y at input x: y = A(u) with u from [`Self::error_signal`].
@@ -238,7 +263,10 @@ mod tests {
         let s = LoopSolver::new(&amp, beta).unwrap();
         for &x in &[-1.0, -0.3, -1e-6, 1e-9, 0.01, 0.4, 1.0] {
             let y = s.output(x).unwrap();
-            assert!(residual(&amp, beta, x, y).abs() < 1e-12 * (1.0 + y.abs()), "x={x}");
+            assert!(
+                residual(&amp, beta, x, y).abs() < 1e-12 * (1.0 + y.abs()),
+                "x={x}"
+            );
         }
     }
 

@@ -56,7 +56,11 @@ impl PowerSeries {
     /// assert_eq!(PowerSeries::new(0.0, 1.0, 1.0).unwrap_err().param(), "a1");
     /// ```
     pub fn new(a1: f64, a2: f64, a3: f64) -> Result<Self> {
-        Ok(PowerSeries { a1: check::nonzero("a1", a1)?, a2: check::finite("a2", a2)?, a3: check::finite("a3", a3)? })
+        Ok(PowerSeries {
+            a1: check::nonzero("a1", a1)?,
+            a2: check::finite("a2", a2)?,
+            a3: check::finite("a3", a3)?,
+        })
     }
 
     /// y = a1·x + a2·x² + a3·x³, by Horner's rule.
@@ -119,8 +123,15 @@ pub fn closed_loop_series(open: &PowerSeries, beta: f64) -> Result<PowerSeries> 
     let b2 = check::result("b2", open.a2 / d3)?;
     // (a3·D − 2·a2²·β)/D⁵ written as (a3 − 2·a2²·β/D)/D⁴ to keep the
     // intermediate products in range for large D.
-    let b3 = check::result("b3", (open.a3 - 2.0 * open.a2 * open.a2 * beta / d) / (d3 * d))?;
-    Ok(PowerSeries { a1: b1, a2: b2, a3: b3 })
+    let b3 = check::result(
+        "b3",
+        (open.a3 - 2.0 * open.a2 * open.a2 * beta / d) / (d3 * d),
+    )?;
+    Ok(PowerSeries {
+        a1: b1,
+        a2: b2,
+        a3: b3,
+    })
 }
 
 #[cfg(test)]
@@ -158,12 +169,32 @@ mod tests {
 
     #[test]
     fn bad_inputs_name_the_parameter() {
-        assert_eq!(PowerSeries::new(f64::NAN, 0.0, 0.0).unwrap_err().param(), "a1");
-        assert_eq!(PowerSeries::new(1.0, f64::INFINITY, 0.0).unwrap_err().param(), "a2");
-        assert_eq!(PowerSeries::new(1.0, 0.0, f64::NAN).unwrap_err().param(), "a3");
+        assert_eq!(
+            PowerSeries::new(f64::NAN, 0.0, 0.0).unwrap_err().param(),
+            "a1"
+        );
+        assert_eq!(
+            PowerSeries::new(1.0, f64::INFINITY, 0.0)
+                .unwrap_err()
+                .param(),
+            "a2"
+        );
+        assert_eq!(
+            PowerSeries::new(1.0, 0.0, f64::NAN).unwrap_err().param(),
+            "a3"
+        );
         let amp = PowerSeries::new(100.0, 1.0, 1.0).unwrap();
-        assert_eq!(closed_loop_series(&amp, f64::NAN).unwrap_err().param(), "beta");
-        assert_eq!(closed_loop_series(&amp, -0.01).unwrap_err().code(), "oscillation");
-        assert_eq!(closed_loop_series(&amp, -0.02).unwrap_err().code(), "out_of_domain");
+        assert_eq!(
+            closed_loop_series(&amp, f64::NAN).unwrap_err().param(),
+            "beta"
+        );
+        assert_eq!(
+            closed_loop_series(&amp, -0.01).unwrap_err().code(),
+            "oscillation"
+        );
+        assert_eq!(
+            closed_loop_series(&amp, -0.02).unwrap_err().code(),
+            "out_of_domain"
+        );
     }
 }

@@ -92,8 +92,19 @@ mod tests {
 
     #[test]
     fn bad_inputs_are_named() {
-        assert_eq!(full_power_bandwidth(f64::INFINITY, 1.0).unwrap_err().param(), "slew_rate");
-        assert_eq!(max_undistorted_amplitude(1e6, 0.0).unwrap_err().param(), "frequency_hz");
-        assert_eq!(required_slew_rate(1.0, -5.0).unwrap_err().param(), "frequency_hz");
+        assert_eq!(
+            full_power_bandwidth(f64::INFINITY, 1.0)
+                .unwrap_err()
+                .param(),
+            "slew_rate"
+        );
+        assert_eq!(
+            max_undistorted_amplitude(1e6, 0.0).unwrap_err().param(),
+            "frequency_hz"
+        );
+        assert_eq!(
+            required_slew_rate(1.0, -5.0).unwrap_err().param(),
+            "frequency_hz"
+        );
     }
 }

@@ -20,7 +20,11 @@ pub const MAX_SWEEP_POINTS: usize = 512;
 /// Relative difference |a − b| / max(|a|, |b|), 0 when both are 0; in [0, 1] for
 /// values of one sign.
 pub fn relative_difference(a: f64, b: f64) -> f64 {
-    let m = if libm::fabs(a) > libm::fabs(b) { libm::fabs(a) } else { libm::fabs(b) };
+    let m = if libm::fabs(a) > libm::fabs(b) {
+        libm::fabs(a)
+    } else {
+        libm::fabs(b)
+    };
     if m == 0.0 {
         0.0
     } else {
@@ -63,7 +67,12 @@ pub struct SeriesCheck {
 /// assert!(c.hd2_difference < 1e-3 && c.hd3_difference < 1e-3);
 /// assert_eq!(series_check(&amp, 0.009, f64::NAN, 64).unwrap_err().param(), "amplitude");
 /// ```
-pub fn series_check(open: &PowerSeries, beta: f64, amplitude: f64, samples: usize) -> Result<SeriesCheck> {
+pub fn series_check(
+    open: &PowerSeries,
+    beta: f64,
+    amplitude: f64,
+    samples: usize,
+) -> Result<SeriesCheck> {
     let closed = closed_loop_series(open, beta)?;
     let series = harmonic_distortion(&closed, amplitude, AmplitudeAt::Input)?;
     let numeric = closed_loop_spectrum(open, beta, amplitude, samples)?;
@@ -134,13 +143,22 @@ pub fn series_validity_sweep(
     let lo = check::positive("amplitude_min", amplitude_min)?;
     let hi = check::positive("amplitude_max", amplitude_max)?;
     if hi <= lo {
-        return Err(Error::OutOfDomain { param: "amplitude_max", requirement: "must be greater than amplitude_min" });
+        return Err(Error::OutOfDomain {
+            param: "amplitude_max",
+            requirement: "must be greater than amplitude_min",
+        });
     }
     if points > MAX_SWEEP_POINTS {
-        return Err(Error::TooLarge { param: "points", limit: MAX_SWEEP_POINTS as u64 });
+        return Err(Error::TooLarge {
+            param: "points",
+            limit: MAX_SWEEP_POINTS as u64,
+        });
     }
     if points < 2 {
-        return Err(Error::OutOfDomain { param: "points", requirement: "must be at least 2" });
+        return Err(Error::OutOfDomain {
+            param: "points",
+            requirement: "must be at least 2",
+        });
     }
     let tol = check::finite("tolerance", tolerance)?;
     if !(tol > 0.0 && tol < 1.0) {
@@ -222,8 +240,23 @@ mod tests {
     #[test]
     fn bad_sweep_arguments_are_named() {
         let amp = PowerSeries::new(100.0, 0.0, -100.0).unwrap();
-        assert_eq!(series_validity_sweep(&amp, 0.1, 1.0, 0.5, 10, 0.1, 64).unwrap_err().param(), "amplitude_max");
-        assert_eq!(series_validity_sweep(&amp, 0.1, 0.1, 0.5, 10_000, 0.1, 64).unwrap_err().code(), "too_large");
-        assert_eq!(series_validity_sweep(&amp, 0.1, 0.1, 0.5, 10, 1.5, 64).unwrap_err().param(), "tolerance");
+        assert_eq!(
+            series_validity_sweep(&amp, 0.1, 1.0, 0.5, 10, 0.1, 64)
+                .unwrap_err()
+                .param(),
+            "amplitude_max"
+        );
+        assert_eq!(
+            series_validity_sweep(&amp, 0.1, 0.1, 0.5, 10_000, 0.1, 64)
+                .unwrap_err()
+                .code(),
+            "too_large"
+        );
+        assert_eq!(
+            series_validity_sweep(&amp, 0.1, 0.1, 0.5, 10, 1.5, 64)
+                .unwrap_err()
+                .param(),
+            "tolerance"
+        );
     }
 }

@@ -82,10 +82,18 @@ impl CellRef {
         if i == row_start || b.get(row_start) == Some(&b'0') || row == 0 || row > MAX_ROWS {
             return None;
         }
-        if b.get(i).is_some_and(|c| c.is_ascii_alphanumeric() || *c == b'_' || *c == b'.') {
+        if b.get(i)
+            .is_some_and(|c| c.is_ascii_alphanumeric() || *c == b'_' || *c == b'.')
+        {
             return None;
         }
-        Some((CellRef { row: row - 1, col: col - 1 }, i))
+        Some((
+            CellRef {
+                row: row - 1,
+                col: col - 1,
+            },
+            i,
+        ))
     }
 }
 
@@ -131,15 +139,24 @@ impl Range {
     /// The rectangle spanned by two corners given in any order.
     pub fn new(a: CellRef, b: CellRef) -> Range {
         Range {
-            start: CellRef { row: a.row.min(b.row), col: a.col.min(b.col) },
-            end: CellRef { row: a.row.max(b.row), col: a.col.max(b.col) },
+            start: CellRef {
+                row: a.row.min(b.row),
+                col: a.col.min(b.col),
+            },
+            end: CellRef {
+                row: a.row.max(b.row),
+                col: a.col.max(b.col),
+            },
         }
     }
 
     /// Parse `A1:C4` or a single address (a one-cell range).
     pub fn parse(s: &str) -> Option<Range> {
         match s.split_once(':') {
-            Some((a, b)) => Some(Range::new(CellRef::parse(a.trim())?, CellRef::parse(b.trim())?)),
+            Some((a, b)) => Some(Range::new(
+                CellRef::parse(a.trim())?,
+                CellRef::parse(b.trim())?,
+            )),
             None => CellRef::parse(s.trim()).map(|c| Range::new(c, c)),
         }
     }
@@ -161,7 +178,10 @@ impl Range {
 
     /// Whether `c` lies inside.
     pub const fn contains(&self, c: CellRef) -> bool {
-        c.row >= self.start.row && c.row <= self.end.row && c.col >= self.start.col && c.col <= self.end.col
+        c.row >= self.start.row
+            && c.row <= self.end.row
+            && c.col >= self.start.col
+            && c.col <= self.end.col
     }
 
     /// Whether the two rectangles share a cell.
@@ -175,7 +195,8 @@ impl Range {
     /// The cells row by row.
     pub fn cells(self) -> impl Iterator<Item = CellRef> {
         let r = self;
-        (r.start.row..=r.end.row).flat_map(move |row| (r.start.col..=r.end.col).map(move |col| CellRef { row, col }))
+        (r.start.row..=r.end.row)
+            .flat_map(move |row| (r.start.col..=r.end.col).map(move |col| CellRef { row, col }))
     }
 }
 
@@ -192,7 +213,13 @@ mod tests {
 
     #[test]
     fn addresses_round_trip() {
-        for (s, row, col) in [("A1", 0, 0), ("Z9", 8, 25), ("AA10", 9, 26), ("XFD1048576", 1_048_575, 16_383), ("AZ3", 2, 51)] {
+        for (s, row, col) in [
+            ("A1", 0, 0),
+            ("Z9", 8, 25),
+            ("AA10", 9, 26),
+            ("XFD1048576", 1_048_575, 16_383),
+            ("AZ3", 2, 51),
+        ] {
             let c = CellRef::parse(s).unwrap();
             assert_eq!((c.row, c.col), (row, col), "{s}");
             assert_eq!(c.to_string(), s);
@@ -202,7 +229,9 @@ mod tests {
 
     #[test]
     fn bad_addresses() {
-        for s in ["", "A", "1", "A0", "A01", "XFE1", "A1048577", "AAAA1", "A1B", "A1.", "$", "A$", "1A"] {
+        for s in [
+            "", "A", "1", "A0", "A01", "XFE1", "A1048577", "AAAA1", "A1B", "A1.", "$", "A$", "1A",
+        ] {
             assert_eq!(CellRef::parse(s), None, "{s}");
         }
     }

@@ -106,7 +106,10 @@ pub struct Contents {
     pub names: Vec<(String, CellRef)>,
 }
 
-fn members<'a>(v: &'a Json, what: &str) -> core::result::Result<&'a [(String, Json)], DocumentError> {
+fn members<'a>(
+    v: &'a Json,
+    what: &str,
+) -> core::result::Result<&'a [(String, Json)], DocumentError> {
     match v {
         Json::Object(m) => Ok(m),
         _ => refuse(format!("{what} must be a JSON object")),
@@ -130,7 +133,9 @@ pub fn from_document(text: &str) -> core::result::Result<Contents, DocumentError
     if text.len() > MAX_DOCUMENT_BYTES {
         return refuse(format!("it is larger than {MAX_DOCUMENT_BYTES} bytes"));
     }
-    let root = json::parse(text).map_err(|e| DocumentError { message: format!("not valid JSON at {e}") })?;
+    let root = json::parse(text).map_err(|e| DocumentError {
+        message: format!("not valid JSON at {e}"),
+    })?;
     let top = members(&root, "the document")?;
     let mut seen = BTreeSet::new();
     let (mut format_ok, mut version_ok) = (false, false);
@@ -223,7 +228,10 @@ impl Sheet {
     /// [`DocumentError`] naming the first problem.
     pub fn load_document(&mut self, text: &str) -> core::result::Result<(), DocumentError> {
         let contents = from_document(text)?;
-        self.replace_all(&contents.cells, &contents.names).map_err(|e| DocumentError { message: format!("{e}") })
+        self.replace_all(&contents.cells, &contents.names)
+            .map_err(|e| DocumentError {
+                message: format!("{e}"),
+            })
     }
 
     /// The sheet as a version-1 document.
@@ -266,7 +274,9 @@ fn write_range(sheet: &Sheet, r: Range, sep: char, eol: &str) -> String {
 /// The shown values from A1 to the last used cell as CSV (RFC 4180); empty
 /// text for an empty sheet.
 pub fn to_csv(sheet: &Sheet) -> String {
-    sheet.used_range().map_or_else(String::new, |r| write_range(sheet, r, ',', "\r\n"))
+    sheet
+        .used_range()
+        .map_or_else(String::new, |r| write_range(sheet, r, ',', "\r\n"))
 }
 
 /// The shown values of a range as TSV.
@@ -275,7 +285,10 @@ pub fn to_csv(sheet: &Sheet) -> String {
 /// [`Error::TooLarge`] on `range` above [`MAX_PASTE_CELLS`] cells.
 pub fn range_to_tsv(sheet: &Sheet, r: Range) -> Result<String> {
     if r.area() > MAX_PASTE_CELLS as u64 {
-        return Err(Error::TooLarge { param: "range", limit: MAX_PASTE_CELLS as u64 });
+        return Err(Error::TooLarge {
+            param: "range",
+            limit: MAX_PASTE_CELLS as u64,
+        });
     }
     Ok(write_range(sheet, r, '\t', "\n"))
 }
@@ -343,7 +356,10 @@ impl Sheet {
         let rows = parse_tsv(text);
         let count: usize = rows.iter().map(Vec::len).sum();
         if count > MAX_PASTE_CELLS {
-            return Err(Error::TooLarge { param: "range", limit: MAX_PASTE_CELLS as u64 });
+            return Err(Error::TooLarge {
+                param: "range",
+                limit: MAX_PASTE_CELLS as u64,
+            });
         }
         let mut edits = Vec::with_capacity(count);
         for (i, row) in rows.iter().enumerate() {
@@ -352,7 +368,10 @@ impl Sheet {
                     .ok()
                     .zip(u32::try_from(j).ok())
                     .and_then(|(i, j)| top_left.offset(i, j))
-                    .ok_or(Error::OutOfDomain { param: "cell", requirement: "the pasted block must fit inside the sheet" })?;
+                    .ok_or(Error::OutOfDomain {
+                        param: "cell",
+                        requirement: "the pasted block must fit inside the sheet",
+                    })?;
                 edits.push((c, f.as_str()));
             }
         }
@@ -367,7 +386,14 @@ mod tests {
     #[test]
     fn tsv_fields_and_quotes() {
         let rows = parse_tsv("a\tb\n\"x\ty\"\t\"q\"\"q\"\r\n\t\n");
-        assert_eq!(rows, [alloc::vec!["a", "b"], alloc::vec!["x\ty", "q\"q"], alloc::vec!["", ""]]);
+        assert_eq!(
+            rows,
+            [
+                alloc::vec!["a", "b"],
+                alloc::vec!["x\ty", "q\"q"],
+                alloc::vec!["", ""]
+            ]
+        );
         assert!(parse_tsv("").is_empty());
         assert_eq!(parse_tsv("1"), [alloc::vec!["1"]]);
     }

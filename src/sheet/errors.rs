@@ -67,20 +67,29 @@ impl ErrorKind {
     pub const fn explanation(self) -> &'static str {
         match self {
             ErrorKind::DivZero => "a division by zero",
-            ErrorKind::Value => "an operand or argument of the wrong type or unit, such as text in arithmetic",
-            ErrorKind::Ref => "a reference outside the sheet, or a range larger than the stated limit",
+            ErrorKind::Value => {
+                "an operand or argument of the wrong type or unit, such as text in arithmetic"
+            }
+            ErrorKind::Ref => {
+                "a reference outside the sheet, or a range larger than the stated limit"
+            }
             ErrorKind::Name => "a function or cell name that is not defined",
             ErrorKind::Num => "a number outside the function's domain, or a result that overflows",
             ErrorKind::NotAvailable => "a value that is not available",
             ErrorKind::Cycle => "the cell is part of a circular reference, so it has no value",
-            ErrorKind::Blocked => "the formula gives several values but a cell they would spill into is not empty",
+            ErrorKind::Blocked => {
+                "the formula gives several values but a cell they would spill into is not empty"
+            }
             ErrorKind::Syntax => "the formula does not parse",
         }
     }
 
     /// The kind written as `code` (exact spelling, upper case), if any.
     pub fn from_code(code: &str) -> Option<ErrorKind> {
-        ErrorKind::ALL.iter().copied().find(|k| k.code().eq_ignore_ascii_case(code))
+        ErrorKind::ALL
+            .iter()
+            .copied()
+            .find(|k| k.code().eq_ignore_ascii_case(code))
     }
 }
 
@@ -103,7 +112,10 @@ pub struct CellError {
 impl CellError {
     /// An error value with a detail sentence.
     pub fn new(kind: ErrorKind, detail: impl Into<String>) -> CellError {
-        CellError { kind, detail: detail.into() }
+        CellError {
+            kind,
+            detail: detail.into(),
+        }
     }
 
     /// The one-line explanation: the detail when there is one, else the kind's.
@@ -159,8 +171,17 @@ mod tests {
         let e = CellError::from_core("FB.GAIN", Error::NotFinite { param: "beta" });
         assert_eq!(e.kind, ErrorKind::Num);
         assert!(e.message().starts_with("FB.GAIN: beta: "));
-        let u = CellError::from_core("FB.ZIN", Error::UnknownName { param: "topology", expected: "x" });
+        let u = CellError::from_core(
+            "FB.ZIN",
+            Error::UnknownName {
+                param: "topology",
+                expected: "x",
+            },
+        );
         assert_eq!(u.kind, ErrorKind::Value);
-        assert_eq!(CellError::new(ErrorKind::Ref, "").message(), ErrorKind::Ref.explanation());
+        assert_eq!(
+            CellError::new(ErrorKind::Ref, "").message(),
+            ErrorKind::Ref.explanation()
+        );
     }
 }

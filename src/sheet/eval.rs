@@ -55,7 +55,11 @@ pub trait Context {
 /// Evaluate a formula's tree: the value the cell holds. An empty result (a
 /// reference to an empty cell) is 0.
 pub fn evaluate(e: &Expr, ctx: &dyn Context) -> Value {
-    let ev = Eval { ctx, cells_read: core::cell::Cell::new(0), text_bytes: core::cell::Cell::new(0) };
+    let ev = Eval {
+        ctx,
+        cells_read: core::cell::Cell::new(0),
+        text_bytes: core::cell::Cell::new(0),
+    };
     match eval(e, &ev) {
         Value::Empty => Value::Number(0.0, None),
         Value::Array(a) if a.rows() == 1 && a.cols() == 1 => a.get(0, 0),
@@ -85,21 +89,30 @@ fn eval(e: &Expr, ev: &Eval<'_>) -> Value {
             lift2(a, b, |a, b| binary(*op, a, b, ev))
         }
         Expr::Call(spec, args) => call(spec, args, ev),
-        Expr::UnknownCall(name, _) => Value::error(ErrorKind::Name, format!("no function is named {name}")),
+        Expr::UnknownCall(name, _) => {
+            Value::error(ErrorKind::Name, format!("no function is named {name}"))
+        }
     }
 }
 
 fn range(r: Range, ev: &Eval<'_>) -> Value {
     if r.area() > MAX_RANGE_CELLS {
-        return Value::error(ErrorKind::Ref, format!("the range {r} has more than {MAX_RANGE_CELLS} cells"));
+        return Value::error(
+            ErrorKind::Ref,
+            format!("the range {r} has more than {MAX_RANGE_CELLS} cells"),
+        );
     }
     let used = ev.cells_read.get() + r.area();
     if used > MAX_RANGE_CELLS {
-        return Value::error(ErrorKind::Ref, format!("the formula reads more than {MAX_RANGE_CELLS} cells through ranges"));
+        return Value::error(
+            ErrorKind::Ref,
+            format!("the formula reads more than {MAX_RANGE_CELLS} cells through ranges"),
+        );
     }
     ev.cells_read.set(used);
     let items: Vec<Value> = r.cells().map(|c| ev.ctx.cell(c)).collect();
-    Array::new(r.rows(), r.cols(), items).map_or_else(|| Value::error(ErrorKind::Ref, "empty range"), Value::Array)
+    Array::new(r.rows(), r.cols(), items)
+        .map_or_else(|| Value::error(ErrorKind::Ref, "empty range"), Value::Array)
 }
 
 fn number(v: &Value) -> Result<(f64, Option<Unit>), CellError> {
@@ -108,10 +121,17 @@ fn number(v: &Value) -> Result<(f64, Option<Unit>), CellError> {
         Value::Bool(b) => Ok((f64::from(u8::from(*b)), None)),
         Value::Empty => Ok((0.0, None)),
         Value::Error(e) => Err(e.clone()),
-        Value::Text(t) => {
-            Err(CellError::new(ErrorKind::Value, format!("text \"{}\" in arithmetic", t.chars().take(40).collect::<String>())))
-        }
-        Value::Array(_) => Err(CellError::new(ErrorKind::Value, "an array where a single value is expected")),
+        Value::Text(t) => Err(CellError::new(
+            ErrorKind::Value,
+            format!(
+                "text \"{}\" in arithmetic",
+                t.chars().take(40).collect::<String>()
+            ),
+        )),
+        Value::Array(_) => Err(CellError::new(
+            ErrorKind::Value,
+            "an array where a single value is expected",
+        )),
     }
 }
 
@@ -135,7 +155,12 @@ fn lift2(a: Value, b: Value, f: impl Fn(&Value, &Value) -> Value) -> Value {
             if (x.rows(), x.cols()) != (y.rows(), y.cols()) {
                 return Value::error(ErrorKind::Value, "the two arrays differ in size");
             }
-            let items = x.items().iter().zip(y.items()).map(|(p, q)| f(p, q)).collect();
+            let items = x
+                .items()
+                .iter()
+                .zip(y.items())
+                .map(|(p, q)| f(p, q))
+                .collect();
             Array::new(x.rows(), x.cols(), items).map_or(Value::Empty, Value::Array)
         }
         (Value::Array(x), s) => {
@@ -154,7 +179,11 @@ fn same_units(op: &str, a: Option<Unit>, b: Option<Unit>) -> Result<Option<Unit>
     match (a, b) {
         (Some(x), Some(y)) if x != y => Err(CellError::new(
             ErrorKind::Value,
-            format!("{op} of a value in {} and a value in {}", x.symbol(), y.symbol()),
+            format!(
+                "{op} of a value in {} and a value in {}",
+                x.symbol(),
+                y.symbol()
+            ),
         )),
         _ => Ok(a.or(b)),
     }
@@ -164,7 +193,10 @@ fn text_of(v: &Value) -> Result<String, CellError> {
     match v {
         Value::Number(x, _) => Ok(format_number(*x)),
         Value::Error(e) => Err(e.clone()),
-        Value::Array(_) => Err(CellError::new(ErrorKind::Value, "an array where a single value is expected")),
+        Value::Array(_) => Err(CellError::new(
+            ErrorKind::Value,
+            "an array where a single value is expected",
+        )),
         v => Ok(v.display()),
     }
 }
@@ -197,9 +229,10 @@ fn compare(a: &Value, b: &Value) -> Result<Ordering, CellError> {
             same_units("comparison", *u, *w)?;
             Ok(x.partial_cmp(y).unwrap_or(Ordering::Equal))
         }
-        (Value::Text(x), Value::Text(y)) => {
-            Ok(x.chars().flat_map(char::to_lowercase).cmp(y.chars().flat_map(char::to_lowercase)))
-        }
+        (Value::Text(x), Value::Text(y)) => Ok(x
+            .chars()
+            .flat_map(char::to_lowercase)
+            .cmp(y.chars().flat_map(char::to_lowercase))),
         (Value::Bool(x), Value::Bool(y)) => Ok(x.cmp(y)),
         _ => Ok(type_rank(&a).cmp(&type_rank(&b))),
     }
@@ -224,11 +257,17 @@ fn binary_inner(op: BinOp, a: &Value, b: &Value, ev: &Eval<'_>) -> Result<Value,
         BinOp::Concat => {
             let (x, y) = (text_of(a)?, text_of(b)?);
             if x.len() + y.len() > MAX_TEXT_BYTES {
-                return Err(CellError::new(ErrorKind::Value, "the text would be longer than 32768 bytes"));
+                return Err(CellError::new(
+                    ErrorKind::Value,
+                    "the text would be longer than 32768 bytes",
+                ));
             }
             let total = ev.text_bytes.get() + x.len() + y.len();
             if total > MAX_TOTAL_TEXT_BYTES {
-                return Err(CellError::new(ErrorKind::Value, "the formula builds more than 1 MiB of text"));
+                return Err(CellError::new(
+                    ErrorKind::Value,
+                    "the formula builds more than 1 MiB of text",
+                ));
             }
             ev.text_bytes.set(total);
             return Ok(Value::Text(x + &y));
@@ -240,7 +279,14 @@ fn binary_inner(op: BinOp, a: &Value, b: &Value, ev: &Eval<'_>) -> Result<Value,
     let (r, unit) = match op {
         BinOp::Add => (x + y, same_units("sum", u, w)?),
         BinOp::Sub => (x - y, same_units("difference", u, w)?),
-        BinOp::Mul => (x * y, if u.is_some() && w.is_some() { None } else { u.or(w) }),
+        BinOp::Mul => (
+            x * y,
+            if u.is_some() && w.is_some() {
+                None
+            } else {
+                u.or(w)
+            },
+        ),
         BinOp::Div => {
             if y == 0.0 {
                 return Err(CellError::new(ErrorKind::DivZero, "division by zero"));
@@ -249,10 +295,16 @@ fn binary_inner(op: BinOp, a: &Value, b: &Value, ev: &Eval<'_>) -> Result<Value,
         }
         _ => {
             if x == 0.0 && y < 0.0 {
-                return Err(CellError::new(ErrorKind::DivZero, "zero raised to a negative power"));
+                return Err(CellError::new(
+                    ErrorKind::DivZero,
+                    "zero raised to a negative power",
+                ));
             }
             if x < 0.0 && crate::float::trunc(y) != y {
-                return Err(CellError::new(ErrorKind::Num, "a negative number raised to a fractional power"));
+                return Err(CellError::new(
+                    ErrorKind::Num,
+                    "a negative number raised to a fractional power",
+                ));
             }
             (libm::pow(x, y), None)
         }
@@ -273,7 +325,10 @@ fn call(spec: &'static FunctionSpec, args: &[Expr], ev: &Eval<'_>) -> Value {
         } else {
             format!("{} to {}", spec.required(), spec.params.len())
         };
-        return Value::error(ErrorKind::Value, format!("{} takes {count} arguments, not {n}", spec.name));
+        return Value::error(
+            ErrorKind::Value,
+            format!("{} takes {count} arguments, not {n}", spec.name),
+        );
     }
     if spec.name == "IF" {
         return lazy_if(spec, args, ev);
@@ -294,12 +349,20 @@ fn call(spec: &'static FunctionSpec, args: &[Expr], ev: &Eval<'_>) -> Value {
             values.push(Value::Number(d, None));
         }
     }
-    (spec.eval)(&Args { spec, values: &values })
+    (spec.eval)(&Args {
+        spec,
+        values: &values,
+    })
 }
 
 fn lazy_if(spec: &'static FunctionSpec, args: &[Expr], ev: &Eval<'_>) -> Value {
     let cond = [eval(args.first().unwrap_or(&Expr::Missing), ev)];
-    match (Args { spec, values: &cond }).boolean(0) {
+    match (Args {
+        spec,
+        values: &cond,
+    })
+    .boolean(0)
+    {
         Ok(true) => eval(args.get(1).unwrap_or(&Expr::Missing), ev),
         Ok(false) => match args.get(2) {
             Some(e) => eval(e, ev),
@@ -353,7 +416,10 @@ mod tests {
         assert_eq!(ev("2*1kΩ"), Value::Number(2000.0, Some(Unit::Ohm)));
         assert_eq!(ev("1V/1A"), Value::num(1.0));
         assert_eq!(kind("1V + 1A"), ErrorKind::Value);
-        assert_eq!(kind("FB.ZIN(\"series-shunt\"; 1V; 10; 0.1)"), ErrorKind::Value);
+        assert_eq!(
+            kind("FB.ZIN(\"series-shunt\"; 1V; 10; 0.1)"),
+            ErrorKind::Value
+        );
         assert_eq!(kind("DB.VOLTAGERATIO(3 Hz)"), ErrorKind::Value);
     }
 
@@ -380,14 +446,18 @@ mod tests {
                 None
             }
         }
-        let Value::Array(a) = evaluate(&parse("A1:A100&\"!\"").unwrap(), &Long) else { panic!() };
+        let Value::Array(a) = evaluate(&parse("A1:A100&\"!\"").unwrap(), &Long) else {
+            panic!()
+        };
         assert!(matches!(a.get(0, 0), Value::Text(t) if t.len() == 20_001));
         assert!(matches!(a.get(99, 0), Value::Error(e) if e.kind == ErrorKind::Value));
     }
 
     #[test]
     fn arrays_apply_item_by_item() {
-        let Value::Array(a) = evaluate(&parse("FB.CEILING(100k; 100) * 2").unwrap(), &Empty) else { panic!() };
+        let Value::Array(a) = evaluate(&parse("FB.CEILING(100k; 100) * 2").unwrap(), &Empty) else {
+            panic!()
+        };
         assert_eq!(a.get(0, 0), Value::num(2000.0));
         assert_eq!(a.get(0, 1), Value::num(0.00198));
     }

@@ -48,8 +48,9 @@ fn block_count(r: &Range) -> u64 {
 }
 
 fn blocks_of(r: Range) -> impl Iterator<Item = (u32, u32)> {
-    (r.start.col..=r.end.col)
-        .flat_map(move |col| (r.start.row / BLOCK_ROWS..=r.end.row / BLOCK_ROWS).map(move |b| (col, b)))
+    (r.start.col..=r.end.col).flat_map(move |col| {
+        (r.start.row / BLOCK_ROWS..=r.end.row / BLOCK_ROWS).map(move |b| (col, b))
+    })
 }
 
 impl Graph {
@@ -88,7 +89,9 @@ impl Graph {
 
     /// Forget what `cell` reads.
     pub fn remove(&mut self, cell: CellRef) {
-        let Some(deps) = self.precedents.remove(&cell) else { return };
+        let Some(deps) = self.precedents.remove(&cell) else {
+            return;
+        };
         for d in deps {
             if let Dep::Cell(c) = d {
                 if let Some(set) = self.readers.get_mut(&c) {
@@ -100,7 +103,10 @@ impl Graph {
             }
         }
         if let Some(ranges) = self.range_readers.remove(&cell) {
-            for r in ranges.iter().filter(|r| block_count(r) <= MAX_BLOCKS_PER_RANGE) {
+            for r in ranges
+                .iter()
+                .filter(|r| block_count(r) <= MAX_BLOCKS_PER_RANGE)
+            {
                 for key in blocks_of(*r) {
                     if let Some(list) = self.blocks.get_mut(&key) {
                         list.retain(|x| *x != cell);
@@ -129,11 +135,22 @@ impl Graph {
         if let Some(set) = self.readers.get(&cell) {
             set.iter().copied().for_each(&mut f);
         }
-        let reads = |reader: &CellRef| self.range_readers.get(reader).is_some_and(|rs| rs.iter().any(|r| r.contains(cell)));
+        let reads = |reader: &CellRef| {
+            self.range_readers
+                .get(reader)
+                .is_some_and(|rs| rs.iter().any(|r| r.contains(cell)))
+        };
         // A reader appears at most once per block list (see `set`).
-        let listed = self.blocks.get(&(cell.col, cell.row / BLOCK_ROWS)).map_or(&[][..], Vec::as_slice);
+        let listed = self
+            .blocks
+            .get(&(cell.col, cell.row / BLOCK_ROWS))
+            .map_or(&[][..], Vec::as_slice);
         listed.iter().filter(|r| reads(r)).copied().for_each(&mut f);
-        for reader in self.wide_readers.iter().filter(|r| reads(r) && !listed.contains(r)) {
+        for reader in self
+            .wide_readers
+            .iter()
+            .filter(|r| reads(r) && !listed.contains(r))
+        {
             f(*reader);
         }
     }
@@ -145,7 +162,10 @@ impl Graph {
 /// (indices), per node whether it lies on a circular reference, and per node the
 /// number of its strongly connected component (components are numbered in
 /// the order they appear in the returned order, which keeps each one together).
-pub fn order(n: usize, edges: impl Fn(usize, &mut Vec<usize>)) -> (Vec<usize>, Vec<bool>, Vec<usize>) {
+pub fn order(
+    n: usize,
+    edges: impl Fn(usize, &mut Vec<usize>),
+) -> (Vec<usize>, Vec<bool>, Vec<usize>) {
     const UNSEEN: usize = usize::MAX;
     // Adjacency in one flat buffer: the targets of i are targets[start[i]..start[i + 1]].
     let mut start = Vec::with_capacity(n + 1);
@@ -241,7 +261,13 @@ mod tests {
     #[test]
     fn readers_follow_set_and_remove() {
         let mut g = Graph::default();
-        g.set(c("B1"), alloc::vec![Dep::Cell(c("A1")), Dep::Range(Range::parse("A1:A9").unwrap())]);
+        g.set(
+            c("B1"),
+            alloc::vec![
+                Dep::Cell(c("A1")),
+                Dep::Range(Range::parse("A1:A9").unwrap())
+            ],
+        );
         g.set(c("C1"), alloc::vec![Dep::Cell(c("B1"))]);
         let mut seen = Vec::new();
         g.readers_of(c("A5"), |r| seen.push(r));
@@ -257,18 +283,39 @@ mod tests {
     fn block_index_matches_a_scan() {
         // Reference: the readers found by testing every range of every reader.
         let mut g = Graph::default();
-        let ranges = ["A1:A10", "A60:B70", "A1:A1048576", "C100:C100", "A1:XFD3", "B2:D200", "A63:A64"];
+        let ranges = [
+            "A1:A10",
+            "A60:B70",
+            "A1:A1048576",
+            "C100:C100",
+            "A1:XFD3",
+            "B2:D200",
+            "A63:A64",
+        ];
         for (i, r) in ranges.iter().enumerate() {
             let reader = CellRef::new(i as u32, 20).unwrap();
-            g.set(reader, alloc::vec![Dep::Range(Range::parse(r).unwrap()), Dep::Range(Range::parse("A5:A6").unwrap())]);
+            g.set(
+                reader,
+                alloc::vec![
+                    Dep::Range(Range::parse(r).unwrap()),
+                    Dep::Range(Range::parse("A5:A6").unwrap())
+                ],
+            );
         }
         g.set(CellRef::new(3, 20).unwrap(), alloc::vec![]);
-        for probe in ["A1", "A5", "A64", "A65", "B70", "C100", "D150", "Q2", "A1000000", "E5", "XFD1"] {
+        for probe in [
+            "A1", "A5", "A64", "A65", "B70", "C100", "D150", "Q2", "A1000000", "E5", "XFD1",
+        ] {
             let cell = c(probe);
             let mut fast = Vec::new();
             g.readers_of(cell, |r| fast.push(r));
             fast.sort_unstable();
-            let mut slow: Vec<CellRef> = g.range_readers.iter().filter(|(_, rs)| rs.iter().any(|r| r.contains(cell))).map(|(k, _)| *k).collect();
+            let mut slow: Vec<CellRef> = g
+                .range_readers
+                .iter()
+                .filter(|(_, rs)| rs.iter().any(|r| r.contains(cell)))
+                .map(|(k, _)| *k)
+                .collect();
             slow.sort_unstable();
             assert_eq!(fast, slow, "{probe}");
         }
@@ -277,7 +324,15 @@ mod tests {
     #[test]
     fn order_puts_precedents_first_and_finds_cycles() {
         // 0 reads 1, 1 reads 2, 3 reads 4 and 4 reads 3, 5 reads itself, 6 reads 3.
-        let reads = [alloc::vec![1], alloc::vec![2], alloc::vec![], alloc::vec![4], alloc::vec![3], alloc::vec![5], alloc::vec![3]];
+        let reads = [
+            alloc::vec![1],
+            alloc::vec![2],
+            alloc::vec![],
+            alloc::vec![4],
+            alloc::vec![3],
+            alloc::vec![5],
+            alloc::vec![3],
+        ];
         let (ord, cyc, comp) = order(reads.len(), |i, out| out.extend(&reads[i]));
         assert_eq!(comp[3], comp[4]);
         assert_ne!(comp[3], comp[6]);

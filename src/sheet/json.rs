@@ -32,12 +32,20 @@ impl Default for JsonWriter {
 impl JsonWriter {
     /// A compact writer.
     pub fn new() -> JsonWriter {
-        JsonWriter { out: String::new(), pretty: false, first: Vec::new(), after_key: false }
+        JsonWriter {
+            out: String::new(),
+            pretty: false,
+            first: Vec::new(),
+            after_key: false,
+        }
     }
 
     /// A writer that puts each member on its own line.
     pub fn pretty() -> JsonWriter {
-        JsonWriter { pretty: true, ..JsonWriter::new() }
+        JsonWriter {
+            pretty: true,
+            ..JsonWriter::new()
+        }
     }
 
     fn before_value(&mut self) {
@@ -191,7 +199,11 @@ pub struct JsonError {
 
 impl core::fmt::Display for JsonError {
     fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
-        write!(f, "line {}, column {}: {}", self.line, self.col, self.message)
+        write!(
+            f,
+            "line {}, column {}: {}",
+            self.line, self.col, self.message
+        )
     }
 }
 
@@ -213,7 +225,11 @@ impl Reader<'_> {
     }
 
     fn skip_ws(&mut self) {
-        let n = self.rest().bytes().take_while(|b| matches!(b, b' ' | b'\t' | b'\n' | b'\r')).count();
+        let n = self
+            .rest()
+            .bytes()
+            .take_while(|b| matches!(b, b' ' | b'\t' | b'\n' | b'\r'))
+            .count();
         self.i += n;
     }
 
@@ -297,13 +313,23 @@ impl Reader<'_> {
         let s = self.rest();
         let b = s.as_bytes();
         let mut j = usize::from(b.first() == Some(&b'-'));
-        let int = b.get(j..).unwrap_or(&[]).iter().take_while(|c| c.is_ascii_digit()).count();
+        let int = b
+            .get(j..)
+            .unwrap_or(&[])
+            .iter()
+            .take_while(|c| c.is_ascii_digit())
+            .count();
         if int == 0 || (int > 1 && b.get(j) == Some(&b'0')) {
             return self.fail("malformed number");
         }
         j += int;
         if b.get(j) == Some(&b'.') {
-            let n = b.get(j + 1..).unwrap_or(&[]).iter().take_while(|c| c.is_ascii_digit()).count();
+            let n = b
+                .get(j + 1..)
+                .unwrap_or(&[])
+                .iter()
+                .take_while(|c| c.is_ascii_digit())
+                .count();
             if n == 0 {
                 return self.fail("malformed number");
             }
@@ -314,13 +340,22 @@ impl Reader<'_> {
             if matches!(b.get(j), Some(b'+' | b'-')) {
                 j += 1;
             }
-            let n = b.get(j..).unwrap_or(&[]).iter().take_while(|c| c.is_ascii_digit()).count();
+            let n = b
+                .get(j..)
+                .unwrap_or(&[])
+                .iter()
+                .take_while(|c| c.is_ascii_digit())
+                .count();
             if n == 0 {
                 return self.fail("malformed number");
             }
             j += n;
         }
-        match s.get(..j).and_then(|t| t.parse::<f64>().ok()).filter(|x| x.is_finite()) {
+        match s
+            .get(..j)
+            .and_then(|t| t.parse::<f64>().ok())
+            .filter(|x| x.is_finite())
+        {
             Some(x) => {
                 self.i += j;
                 Ok(Json::Number(x))
@@ -330,7 +365,10 @@ impl Reader<'_> {
     }
 
     fn hex4(&mut self) -> Result<u32, JsonError> {
-        let h = self.rest().get(..4).filter(|h| h.bytes().all(|c| c.is_ascii_hexdigit()));
+        let h = self
+            .rest()
+            .get(..4)
+            .filter(|h| h.bytes().all(|c| c.is_ascii_hexdigit()));
         match h.and_then(|h| u32::from_str_radix(h, 16).ok()) {
             Some(v) => {
                 self.i += 4;
@@ -439,18 +477,47 @@ mod tests {
         let v = parse(&text).unwrap();
         let Json::Object(m) = v else { panic!() };
         assert_eq!(m[0], ("a\"b".into(), Json::String("x\ny\u{1}é".into())));
-        assert_eq!(m[1].1, Json::Array(alloc::vec![Json::Number(1.5), Json::Number(-2e-9), Json::Bool(true), Json::Null]));
+        assert_eq!(
+            m[1].1,
+            Json::Array(alloc::vec![
+                Json::Number(1.5),
+                Json::Number(-2e-9),
+                Json::Bool(true),
+                Json::Null
+            ])
+        );
         assert_eq!(m[2].1, Json::Object(alloc::vec![]));
     }
 
     #[test]
     fn strictness() {
-        for bad in ["", "{", "[1,]", "{\"a\":1,}", "01", "1.", "-", "\"\\x\"", "\"\\ud800\"", "nul", "[1] 2", "{a:1}", "1e999", "\"a\u{1}\""] {
+        for bad in [
+            "",
+            "{",
+            "[1,]",
+            "{\"a\":1,}",
+            "01",
+            "1.",
+            "-",
+            "\"\\x\"",
+            "\"\\ud800\"",
+            "nul",
+            "[1] 2",
+            "{a:1}",
+            "1e999",
+            "\"a\u{1}\"",
+        ] {
             assert!(parse(bad).is_err(), "{bad:?}");
         }
-        assert_eq!(parse("\"\\ud83d\\ude00\"").unwrap(), Json::String("😀".into()));
+        assert_eq!(
+            parse("\"\\ud83d\\ude00\"").unwrap(),
+            Json::String("😀".into())
+        );
         let deep = alloc::format!("{}{}", "[".repeat(40), "]".repeat(40));
-        assert_eq!(parse(&deep).unwrap_err().message, "nested deeper than 32 levels");
+        assert_eq!(
+            parse(&deep).unwrap_err().message,
+            "nested deeper than 32 levels"
+        );
         let e = parse("{\n  \"a\": x}").unwrap_err();
         assert_eq!((e.line, e.col), (2, 8));
     }

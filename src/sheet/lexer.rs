@@ -60,11 +60,15 @@ impl core::fmt::Display for ParseError {
     }
 }
 
-const OPS: [&str; 18] = ["<=", ">=", "<>", "+", "-", "*", "/", "^", "&", "%", "=", "<", ">", "(", ")", ";", ",", ":"];
+const OPS: [&str; 18] = [
+    "<=", ">=", "<>", "+", "-", "*", "/", "^", "&", "%", "=", "<", ">", "(", ")", ";", ",", ":",
+];
 
 fn ident_len(s: &str) -> usize {
     s.char_indices()
-        .find(|&(i, c)| !(c.is_ascii_alphabetic() || c == '_' || (i > 0 && (c.is_ascii_digit() || c == '.'))))
+        .find(|&(i, c)| {
+            !(c.is_ascii_alphabetic() || c == '_' || (i > 0 && (c.is_ascii_digit() || c == '.')))
+        })
         .map_or(s.len(), |(i, _)| i)
 }
 
@@ -75,7 +79,10 @@ fn ident_len(s: &str) -> usize {
 /// string, an unknown error literal, a malformed number or a stray character.
 pub fn tokenize(src: &str) -> Result<Vec<Spanned>, ParseError> {
     if src.len() > MAX_FORMULA_BYTES {
-        return Err(ParseError { pos: 1, message: "the formula is longer than 4096 bytes" });
+        return Err(ParseError {
+            pos: 1,
+            message: "the formula is longer than 4096 bytes",
+        });
     }
     let mut out = Vec::new();
     let mut i = 0;
@@ -89,8 +96,11 @@ pub fn tokenize(src: &str) -> Result<Vec<Spanned>, ParseError> {
             i += c.len_utf8();
             col += 1;
             continue;
-        } else if c.is_ascii_digit() || (c == '.' && rest[1..].starts_with(|d: char| d.is_ascii_digit())) {
-            let (q, used) = literal::scan(rest).map_err(|message| ParseError { pos: col, message })?;
+        } else if c.is_ascii_digit()
+            || (c == '.' && rest[1..].starts_with(|d: char| d.is_ascii_digit()))
+        {
+            let (q, used) =
+                literal::scan(rest).map_err(|message| ParseError { pos: col, message })?;
             len = used;
             token = Token::Number(q.value, q.unit);
         } else if c == '"' {
@@ -98,7 +108,10 @@ pub fn tokenize(src: &str) -> Result<Vec<Spanned>, ParseError> {
             let mut j = 1;
             loop {
                 let Some(ch) = rest[j..].chars().next() else {
-                    return Err(ParseError { pos: col, message: "a string is not closed with \"" });
+                    return Err(ParseError {
+                        pos: col,
+                        message: "a string is not closed with \"",
+                    });
                 };
                 j += ch.len_utf8();
                 if ch == '"' {
@@ -116,10 +129,15 @@ pub fn tokenize(src: &str) -> Result<Vec<Spanned>, ParseError> {
             token = Token::Text(text);
         } else if c == '#' {
             let kind = ErrorKind::ALL.iter().copied().find(|k| {
-                rest.get(..k.code().len()).is_some_and(|p| p.eq_ignore_ascii_case(k.code()))
+                rest.get(..k.code().len())
+                    .is_some_and(|p| p.eq_ignore_ascii_case(k.code()))
             });
             let Some(kind) = kind else {
-                return Err(ParseError { pos: col, message: "unknown error literal (known: #DIV/0! #VALUE! #REF! #NAME? #NUM! #N/A)" });
+                return Err(ParseError {
+                    pos: col,
+                    message:
+                        "unknown error literal (known: #DIV/0! #VALUE! #REF! #NAME? #NUM! #N/A)",
+                });
             };
             len = kind.code().len();
             token = Token::Error(kind);
@@ -133,7 +151,10 @@ pub fn tokenize(src: &str) -> Result<Vec<Spanned>, ParseError> {
                 _ => {
                     let n = ident_len(rest);
                     if n == 0 {
-                        return Err(ParseError { pos: col, message: "a $ must start a cell address such as $B$3" });
+                        return Err(ParseError {
+                            pos: col,
+                            message: "a $ must start a cell address such as $B$3",
+                        });
                     }
                     len = n;
                     token = Token::Ident(String::from(&rest[..n]));
@@ -143,11 +164,17 @@ pub fn tokenize(src: &str) -> Result<Vec<Spanned>, ParseError> {
             len = op.len();
             token = Token::Op(op);
         } else {
-            return Err(ParseError { pos: col, message: "a character that has no meaning in a formula" });
+            return Err(ParseError {
+                pos: col,
+                message: "a character that has no meaning in a formula",
+            });
         }
         col += rest[..len].chars().count();
         i += len;
-        out.push(Spanned { token, pos: start_col });
+        out.push(Spanned {
+            token,
+            pos: start_col,
+        });
     }
     Ok(out)
 }
@@ -176,7 +203,10 @@ mod tests {
     #[test]
     fn function_names_that_look_like_cells() {
         assert_eq!(kinds("LOG10(2)")[0], Token::Ident("LOG10".into()));
-        assert_eq!(kinds("LOG10")[0], Token::Cell(CellRef::parse("LOG10").unwrap()));
+        assert_eq!(
+            kinds("LOG10")[0],
+            Token::Cell(CellRef::parse("LOG10").unwrap())
+        );
         assert_eq!(kinds("FB.GAIN(1;2)")[0], Token::Ident("FB.GAIN".into()));
     }
 

@@ -276,18 +276,50 @@ mod tests {
 
     #[test]
     fn units_attached_or_spaced() {
-        assert_eq!(scan("10kΩ").unwrap().0, Quantity { value: 1e4, unit: Some(Unit::Ohm) });
-        assert_eq!(scan("10 kHz").unwrap(), (Quantity { value: 1e4, unit: Some(Unit::Hertz) }, 6));
+        assert_eq!(
+            scan("10kΩ").unwrap().0,
+            Quantity {
+                value: 1e4,
+                unit: Some(Unit::Ohm)
+            }
+        );
+        assert_eq!(
+            scan("10 kHz").unwrap(),
+            (
+                Quantity {
+                    value: 1e4,
+                    unit: Some(Unit::Hertz)
+                },
+                6
+            )
+        );
         assert_eq!(scan("10 k").map(|r| r.1), Ok(2));
         assert_eq!(scan("10k Hz").unwrap().0.unit, Some(Unit::Hertz));
         assert_eq!(scan("3dB").unwrap().0.unit, Some(Unit::Decibel));
-        assert_eq!(scan("3 A1"), Ok((Quantity { value: 3.0, unit: None }, 1)));
-        assert_eq!(scan("6F8").unwrap().0, Quantity { value: 6.8, unit: Some(Unit::Farad) });
+        assert_eq!(
+            scan("3 A1"),
+            Ok((
+                Quantity {
+                    value: 3.0,
+                    unit: None
+                },
+                1
+            ))
+        );
+        assert_eq!(
+            scan("6F8").unwrap().0,
+            Quantity {
+                value: 6.8,
+                unit: Some(Unit::Farad)
+            }
+        );
     }
 
     #[test]
     fn malformed() {
-        for bad in ["1Meg", "1kdB", "2A1", "1x", "1e", "1.2.3", "1e999999", "1e400"] {
+        for bad in [
+            "1Meg", "1kdB", "2A1", "1x", "1e", "1.2.3", "1e999999", "1e400",
+        ] {
             assert!(scan(bad).is_err(), "{bad}");
         }
         assert!(scan(".").is_err());

@@ -96,7 +96,9 @@ impl Expr {
                 a.visit_refs(f);
                 b.visit_refs(f);
             }
-            Expr::Call(_, args) | Expr::UnknownCall(_, args) => args.iter().for_each(|a| a.visit_refs(f)),
+            Expr::Call(_, args) | Expr::UnknownCall(_, args) => {
+                args.iter().for_each(|a| a.visit_refs(f))
+            }
             _ => {}
         }
     }
@@ -112,7 +114,10 @@ type Node = (Expr, u32);
 
 fn deeper(depth: u32, pos: usize) -> Result<u32, ParseError> {
     if depth >= MAX_DEPTH {
-        Err(ParseError { pos, message: "the formula is nested deeper than 128 levels" })
+        Err(ParseError {
+            pos,
+            message: "the formula is nested deeper than 128 levels",
+        })
     } else {
         Ok(depth + 1)
     }
@@ -135,7 +140,10 @@ impl Parser {
     }
 
     fn err<T>(&self, message: &'static str) -> Result<T, ParseError> {
-        Err(ParseError { pos: self.pos(), message })
+        Err(ParseError {
+            pos: self.pos(),
+            message,
+        })
     }
 
     fn binary_level(
@@ -145,7 +153,11 @@ impl Parser {
         sub: fn(&mut Parser, u32) -> Result<Node, ParseError>,
     ) -> Result<Node, ParseError> {
         let (mut left, mut depth) = sub(self, nesting)?;
-        while let Some(op) = self.peek_op().and_then(|o| ops.iter().find(|(s, _)| *s == o)).map(|(_, op)| *op) {
+        while let Some(op) = self
+            .peek_op()
+            .and_then(|o| ops.iter().find(|(s, _)| *s == o))
+            .map(|(_, op)| *op)
+        {
             let pos = self.pos();
             self.next += 1;
             let (right, rd) = sub(self, nesting)?;
@@ -156,8 +168,14 @@ impl Parser {
     }
 
     fn comparison(&mut self, n: u32) -> Result<Node, ParseError> {
-        const OPS: [(&str, BinOp); 6] =
-            [("=", BinOp::Eq), ("<>", BinOp::Ne), ("<", BinOp::Lt), ("<=", BinOp::Le), (">", BinOp::Gt), (">=", BinOp::Ge)];
+        const OPS: [(&str, BinOp); 6] = [
+            ("=", BinOp::Eq),
+            ("<>", BinOp::Ne),
+            ("<", BinOp::Lt),
+            ("<=", BinOp::Le),
+            (">", BinOp::Gt),
+            (">=", BinOp::Ge),
+        ];
         self.binary_level(n, &OPS, Parser::concat)
     }
 
@@ -166,7 +184,11 @@ impl Parser {
     }
 
     fn additive(&mut self, n: u32) -> Result<Node, ParseError> {
-        self.binary_level(n, &[("+", BinOp::Add), ("-", BinOp::Sub)], Parser::multiplicative)
+        self.binary_level(
+            n,
+            &[("+", BinOp::Add), ("-", BinOp::Sub)],
+            Parser::multiplicative,
+        )
     }
 
     fn multiplicative(&mut self, n: u32) -> Result<Node, ParseError> {
@@ -194,7 +216,11 @@ impl Parser {
                 let n = deeper(n, pos)?;
                 self.next += 1;
                 let (e, d) = self.prefix(n)?;
-                let e = if op == "-" { Expr::Neg(Box::new(e)) } else { Expr::Plus(Box::new(e)) };
+                let e = if op == "-" {
+                    Expr::Neg(Box::new(e))
+                } else {
+                    Expr::Plus(Box::new(e))
+                };
                 Ok((e, deeper(d, pos)?))
             }
             _ => self.range(n),
@@ -314,9 +340,16 @@ pub fn parse(src: &str) -> Result<Expr, ParseError> {
     let tokens = tokenize(src)?;
     let end_pos = src.chars().count() + 1;
     if tokens.is_empty() {
-        return Err(ParseError { pos: 1, message: "the formula is empty" });
+        return Err(ParseError {
+            pos: 1,
+            message: "the formula is empty",
+        });
     }
-    let mut p = Parser { tokens, next: 0, end_pos };
+    let mut p = Parser {
+        tokens,
+        next: 0,
+        end_pos,
+    };
     let (e, _) = p.comparison(0)?;
     if p.next < p.tokens.len() {
         return p.err("unexpected text after the end of the expression");
@@ -339,10 +372,22 @@ mod tests {
     #[test]
     fn precedence_shapes() {
         // OpenFormula §5.2 operator table (from memory): prefix minus binds tighter than ^.
-        assert_eq!(parse("-2^2").unwrap(), bin(BinOp::Pow, Expr::Neg(Box::new(n(2.0))), n(2.0)));
-        assert_eq!(parse("1+2*3").unwrap(), bin(BinOp::Add, n(1.0), bin(BinOp::Mul, n(2.0), n(3.0))));
-        assert_eq!(parse("2^3^2").unwrap(), bin(BinOp::Pow, bin(BinOp::Pow, n(2.0), n(3.0)), n(2.0)));
-        assert_eq!(parse("1&2=3").unwrap(), bin(BinOp::Eq, bin(BinOp::Concat, n(1.0), n(2.0)), n(3.0)));
+        assert_eq!(
+            parse("-2^2").unwrap(),
+            bin(BinOp::Pow, Expr::Neg(Box::new(n(2.0))), n(2.0))
+        );
+        assert_eq!(
+            parse("1+2*3").unwrap(),
+            bin(BinOp::Add, n(1.0), bin(BinOp::Mul, n(2.0), n(3.0)))
+        );
+        assert_eq!(
+            parse("2^3^2").unwrap(),
+            bin(BinOp::Pow, bin(BinOp::Pow, n(2.0), n(3.0)), n(2.0))
+        );
+        assert_eq!(
+            parse("1&2=3").unwrap(),
+            bin(BinOp::Eq, bin(BinOp::Concat, n(1.0), n(2.0)), n(3.0))
+        );
     }
 
     #[test]

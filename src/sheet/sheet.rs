@@ -82,7 +82,10 @@ pub struct Sheet {
 fn read_input(input: &str) -> Content {
     if let Some(formula) = input.strip_prefix('=') {
         // Columns count from the `=` the user typed.
-        return Content::Formula(parse(formula).map_err(|e| ParseError { pos: e.pos + 1, ..e }));
+        return Content::Formula(parse(formula).map_err(|e| ParseError {
+            pos: e.pos + 1,
+            ..e
+        }));
     }
     if let Some(text) = input.strip_prefix('\'') {
         return Content::Constant(Value::Text(String::from(text)));
@@ -108,7 +111,9 @@ fn read_input(input: &str) -> Content {
 /// or a function name.
 pub fn valid_name(name: &str) -> bool {
     let mut chars = name.chars();
-    let first_ok = chars.next().is_some_and(|c| c.is_ascii_alphabetic() || c == '_');
+    let first_ok = chars
+        .next()
+        .is_some_and(|c| c.is_ascii_alphabetic() || c == '_');
     first_ok
         && name.len() <= MAX_NAME_CHARS
         && chars.all(|c| c.is_ascii_alphanumeric() || c == '_' || c == '.')
@@ -119,7 +124,10 @@ pub fn valid_name(name: &str) -> bool {
 }
 
 fn bad_cell() -> Error {
-    Error::OutOfDomain { param: "cell", requirement: "must be a cell address from A1 to XFD1048576, such as B3" }
+    Error::OutOfDomain {
+        param: "cell",
+        requirement: "must be a cell address from A1 to XFD1048576, such as B3",
+    }
 }
 
 /// Parse a cell address for the API.
@@ -138,7 +146,9 @@ struct Recalc {
 
 impl Recalc {
     fn tracking() -> Recalc {
-        Recalc { old: Some(BTreeMap::new()) }
+        Recalc {
+            old: Some(BTreeMap::new()),
+        }
     }
 }
 
@@ -220,7 +230,10 @@ impl Sheet {
         let mut grow = |c: CellRef| {
             end = Some(match end {
                 None => c,
-                Some(e) => CellRef { row: e.row.max(c.row), col: e.col.max(c.col) },
+                Some(e) => CellRef {
+                    row: e.row.max(c.row),
+                    col: e.col.max(c.col),
+                },
             });
         };
         self.cells.keys().copied().for_each(&mut grow);
@@ -272,14 +285,20 @@ impl Sheet {
         let mut added = 0usize;
         for (c, input) in edits {
             if input.len() > MAX_INPUT_BYTES {
-                return Err(Error::TooLarge { param: "input", limit: MAX_INPUT_BYTES as u64 });
+                return Err(Error::TooLarge {
+                    param: "input",
+                    limit: MAX_INPUT_BYTES as u64,
+                });
             }
             if !input.trim().is_empty() && !self.cells.contains_key(c) {
                 added += 1;
             }
         }
         if self.cells.len() + added > MAX_CELLS {
-            return Err(Error::TooLarge { param: "cells", limit: MAX_CELLS as u64 });
+            return Err(Error::TooLarge {
+                param: "cells",
+                limit: MAX_CELLS as u64,
+            });
         }
         let mut rc = Recalc::tracking();
         let mut seeds = BTreeSet::new();
@@ -321,7 +340,10 @@ impl Sheet {
         }
         let key = name.to_ascii_uppercase();
         if !self.names.contains_key(&key) && self.names.len() >= MAX_NAMES {
-            return Err(Error::TooLarge { param: "names", limit: MAX_NAMES as u64 });
+            return Err(Error::TooLarge {
+                param: "names",
+                limit: MAX_NAMES as u64,
+            });
         }
         self.names.insert(key, (String::from(name), c));
         self.rebuild_all();
@@ -343,23 +365,41 @@ impl Sheet {
     ///
     /// # Errors
     /// As [`Sheet::set_many`] and [`Sheet::set_name`]; the sheet is unchanged on error.
-    pub fn replace_all(&mut self, inputs: &[(CellRef, String)], names: &[(String, CellRef)]) -> Result<()> {
+    pub fn replace_all(
+        &mut self,
+        inputs: &[(CellRef, String)],
+        names: &[(String, CellRef)],
+    ) -> Result<()> {
         let mut fresh = Sheet::new();
         if inputs.len() > MAX_CELLS {
-            return Err(Error::TooLarge { param: "cells", limit: MAX_CELLS as u64 });
+            return Err(Error::TooLarge {
+                param: "cells",
+                limit: MAX_CELLS as u64,
+            });
         }
         if names.len() > MAX_NAMES {
-            return Err(Error::TooLarge { param: "names", limit: MAX_NAMES as u64 });
+            return Err(Error::TooLarge {
+                param: "names",
+                limit: MAX_NAMES as u64,
+            });
         }
         for (name, c) in names {
             if !valid_name(name) {
-                return Err(Error::OutOfDomain { param: "name", requirement: "must be a valid cell name" });
+                return Err(Error::OutOfDomain {
+                    param: "name",
+                    requirement: "must be a valid cell name",
+                });
             }
-            fresh.names.insert(name.to_ascii_uppercase(), (name.clone(), *c));
+            fresh
+                .names
+                .insert(name.to_ascii_uppercase(), (name.clone(), *c));
         }
         for (c, input) in inputs {
             if input.len() > MAX_INPUT_BYTES {
-                return Err(Error::TooLarge { param: "input", limit: MAX_INPUT_BYTES as u64 });
+                return Err(Error::TooLarge {
+                    param: "input",
+                    limit: MAX_INPUT_BYTES as u64,
+                });
             }
             fresh.put_input(*c, input);
         }
@@ -423,7 +463,13 @@ impl Sheet {
             _ => Vec::new(),
         };
         self.graph.set(c, deps);
-        self.cells.insert(c, Cell { input: String::from(input), content });
+        self.cells.insert(
+            c,
+            Cell {
+                input: String::from(input),
+                content,
+            },
+        );
     }
 
     fn rebuild_all(&mut self) {
@@ -468,7 +514,13 @@ impl Sheet {
 
     /// The pending cells that `c` reads (directly, or as the anchor of a spill
     /// covering what it reads), as indices into `nodes`.
-    fn pending_precedents(&self, c: CellRef, nodes: &[CellRef], out: &mut Vec<usize>, spills: bool) {
+    fn pending_precedents(
+        &self,
+        c: CellRef,
+        nodes: &[CellRef],
+        out: &mut Vec<usize>,
+        spills: bool,
+    ) {
         let from = out.len();
         let see = |x: CellRef, out: &mut Vec<usize>| {
             if let Ok(i) = nodes.binary_search(&x) {
@@ -490,7 +542,9 @@ impl Sheet {
                     // Fewer pending cells than range cells: test each pending cell, and
                     // each pending anchor whose spill overlaps the range.
                     for (i, x) in nodes.iter().enumerate() {
-                        let covers = spills && *x != c && self.spills.get(x).is_some_and(|s| s.intersects(&r));
+                        let covers = spills
+                            && *x != c
+                            && self.spills.get(x).is_some_and(|s| s.intersects(&r));
                         if r.contains(*x) || covers {
                             out.push(i);
                         }
@@ -535,7 +589,12 @@ impl Sheet {
                     }
                 }
                 let mut ord = combined;
-                let key = |i: usize| (component.get(i).copied().unwrap_or(0), rank.get(i).copied().unwrap_or(0));
+                let key = |i: usize| {
+                    (
+                        component.get(i).copied().unwrap_or(0),
+                        rank.get(i).copied().unwrap_or(0),
+                    )
+                };
                 crate::sort::sort_by(&mut ord, |&i, &j| key(i).cmp(&key(j)));
                 ord
             };
@@ -544,7 +603,10 @@ impl Sheet {
                 let Some(&c) = nodes.get(i) else { continue };
                 let on_cycle = cyclic.get(i).copied().unwrap_or(false);
                 let v = if pass == MAX_SPILL_PASSES {
-                    Some(Value::error(ErrorKind::Cycle, "spilled results keep changing the cells they are computed from"))
+                    Some(Value::error(
+                        ErrorKind::Cycle,
+                        "spilled results keep changing the cells they are computed from",
+                    ))
                 } else {
                     self.compute(c, on_cycle)
                 };
@@ -554,7 +616,11 @@ impl Sheet {
                 if !regions.is_empty() {
                     // Whoever reads a cell that changed hands reads anew; displaced
                     // formulas and formulas waiting for those cells try again.
-                    let touched: BTreeSet<CellRef> = regions.iter().flat_map(|r| r.cells()).filter(|x| *x != c).collect();
+                    let touched: BTreeSet<CellRef> = regions
+                        .iter()
+                        .flat_map(|r| r.cells())
+                        .filter(|x| *x != c)
+                        .collect();
                     for (a, want) in &self.blocked {
                         if *a != c && regions.iter().any(|r| r.intersects(want)) {
                             again.insert(*a);
@@ -579,9 +645,10 @@ impl Sheet {
         Some(match &cell.content {
             Content::Constant(v) => v.clone(),
             Content::Formula(Err(e)) => Value::error(ErrorKind::Syntax, e.to_string()),
-            Content::Formula(Ok(_)) if on_cycle => {
-                Value::error(ErrorKind::Cycle, format!("{c} is part of a circular reference"))
-            }
+            Content::Formula(Ok(_)) if on_cycle => Value::error(
+                ErrorKind::Cycle,
+                format!("{c} is part of a circular reference"),
+            ),
             Content::Formula(Ok(e)) => evaluate(e, self),
         })
     }
@@ -603,15 +670,29 @@ impl Sheet {
                     Dep::Range(r) => {
                         let hit = if r.intersects(&region) {
                             let overlap = Range::new(
-                                CellRef { row: r.start.row.max(region.start.row), col: r.start.col.max(region.start.col) },
-                                CellRef { row: r.end.row.min(region.end.row), col: r.end.col.min(region.end.col) },
+                                CellRef {
+                                    row: r.start.row.max(region.start.row),
+                                    col: r.start.col.max(region.start.col),
+                                },
+                                CellRef {
+                                    row: r.end.row.min(region.end.row),
+                                    col: r.end.col.min(region.end.col),
+                                },
                             );
                             overlap.cells().find(|x| *x != anchor)
                         } else {
                             None
                         };
-                        let inputs = self.cells.range(r.start..=r.end).map(|(k, _)| *k).filter(|k| r.contains(*k));
-                        let covered = self.owner.range(r.start..=r.end).map(|(k, _)| *k).filter(|k| r.contains(*k));
+                        let inputs = self
+                            .cells
+                            .range(r.start..=r.end)
+                            .map(|(k, _)| *k)
+                            .filter(|k| r.contains(*k));
+                        let covered = self
+                            .owner
+                            .range(r.start..=r.end)
+                            .map(|(k, _)| *k)
+                            .filter(|k| r.contains(*k));
                         (hit, inputs.chain(covered).collect())
                     }
                 };
@@ -721,7 +802,11 @@ impl Sheet {
 
     fn finish(&mut self, rc: Recalc) {
         let old = rc.old.unwrap_or_default();
-        self.changed = old.into_iter().filter(|(c, old)| *old != self.shown(*c)).map(|(c, _)| c).collect();
+        self.changed = old
+            .into_iter()
+            .filter(|(c, old)| *old != self.shown(*c))
+            .map(|(c, _)| c)
+            .collect();
     }
 }
 
@@ -744,7 +829,9 @@ mod tests {
         assert_eq!(s.value("A1").unwrap(), Value::Number(4700.0, None));
         assert_eq!(s.value("A2").unwrap(), Value::Text("4k7".into()));
         assert_eq!(s.value("A3").unwrap(), Value::Bool(true));
-        assert!(matches!(s.value("A4").unwrap(), Value::Error(e) if e.kind == ErrorKind::NotAvailable));
+        assert!(
+            matches!(s.value("A4").unwrap(), Value::Error(e) if e.kind == ErrorKind::NotAvailable)
+        );
         assert_eq!(s.value("A5").unwrap(), Value::Text("hello".into()));
         assert!(s.set("A0", "1").is_err());
     }
@@ -771,7 +858,10 @@ mod tests {
         s.set("C1", "=A1").unwrap();
         s.set("D1", "=A1+1").unwrap();
         for a in ["A1", "B1", "C1"] {
-            assert!(matches!(s.value(a).unwrap(), Value::Error(e) if e.kind == ErrorKind::Cycle), "{a}");
+            assert!(
+                matches!(s.value(a).unwrap(), Value::Error(e) if e.kind == ErrorKind::Cycle),
+                "{a}"
+            );
         }
         assert!(matches!(s.value("D1").unwrap(), Value::Error(e) if e.kind == ErrorKind::Cycle));
         s.set("C1", "7").unwrap();
@@ -785,11 +875,16 @@ mod tests {
         let mut s = Sheet::new();
         s.set("A1", "=FB.CEILING(100k; 100)").unwrap();
         assert_eq!(s.value("B1").unwrap(), Value::num(0.00099));
-        assert_eq!((s.spill_anchor(c("B1")), s.spill_anchor(c("A1"))), (Some(c("A1")), None));
+        assert_eq!(
+            (s.spill_anchor(c("B1")), s.spill_anchor(c("A1"))),
+            (Some(c("A1")), None)
+        );
         s.set("C1", "=B1*2").unwrap();
         assert_eq!(s.value("C1").unwrap(), Value::num(0.00198));
         let changed = s.set("B1", "x").unwrap().to_vec();
-        assert!(changed.contains(&c("A1")) && changed.contains(&c("B1")) && changed.contains(&c("C1")));
+        assert!(
+            changed.contains(&c("A1")) && changed.contains(&c("B1")) && changed.contains(&c("C1"))
+        );
         assert!(matches!(s.value("A1").unwrap(), Value::Error(e) if e.kind == ErrorKind::Blocked));
         s.set("B1", "").unwrap();
         assert_eq!(s.value("A1").unwrap(), Value::num(1000.0));
@@ -812,7 +907,9 @@ mod tests {
         let mut s = Sheet::new();
         // B2:C3 doubled would spill into A1:B2, over B2 which it reads.
         s.set("A1", "=B2:C3*2").unwrap();
-        assert!(matches!(s.value("A1").unwrap(), Value::Error(e) if e.kind == ErrorKind::Cycle && e.detail.contains("B2")));
+        assert!(
+            matches!(s.value("A1").unwrap(), Value::Error(e) if e.kind == ErrorKind::Cycle && e.detail.contains("B2"))
+        );
         // Through another formula: A1 spills into B1, which C5 reads, which A1 reads.
         s.set("A1", "=FB.CEILING(1000 + C5; 100)").unwrap();
         // β = (D − 1)/A = 99/1000.
@@ -828,7 +925,15 @@ mod tests {
     fn competing_spills_go_to_the_earlier_formula_whatever_the_edit_order() {
         let blocked = |s: &Sheet, a: &str| matches!(s.value(a).unwrap(), Value::Error(e) if e.kind == ErrorKind::Blocked);
         let mut s = Sheet::new();
-        for (a, v) in [("A4", "1"), ("B4", "2"), ("A5", "3"), ("B5", "4"), ("C4", "5"), ("C5", "6"), ("C6", "7")] {
+        for (a, v) in [
+            ("A4", "1"),
+            ("B4", "2"),
+            ("A5", "3"),
+            ("B5", "4"),
+            ("C4", "5"),
+            ("C5", "6"),
+            ("C6", "7"),
+        ] {
             s.set(a, v).unwrap();
         }
         // A2 spills into A2:B3; then B1 (earlier in row order) wants B1:B3.

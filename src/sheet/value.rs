@@ -29,8 +29,16 @@ pub enum Unit {
 
 impl Unit {
     /// Every unit.
-    pub const ALL: [Unit; 8] =
-        [Unit::Ohm, Unit::Volt, Unit::Ampere, Unit::Siemens, Unit::Hertz, Unit::Farad, Unit::Henry, Unit::Decibel];
+    pub const ALL: [Unit; 8] = [
+        Unit::Ohm,
+        Unit::Volt,
+        Unit::Ampere,
+        Unit::Siemens,
+        Unit::Hertz,
+        Unit::Farad,
+        Unit::Henry,
+        Unit::Decibel,
+    ];
 
     /// The symbol as shown.
     pub const fn symbol(self) -> &'static str {
@@ -128,7 +136,10 @@ impl Value {
         if x.is_finite() {
             Value::Number(x, None)
         } else {
-            Value::error(ErrorKind::Num, "the result overflows the floating-point range")
+            Value::error(
+                ErrorKind::Num,
+                "the result overflows the floating-point range",
+            )
         }
     }
 
@@ -206,7 +217,15 @@ mod tests {
 
     #[test]
     fn numbers_display_in_shortest_round_trip_form() {
-        for x in [0.1, 4700.0, -2.5e-9, 1e300, 123456789012345.0, 1e15, 0.000001] {
+        for x in [
+            0.1,
+            4700.0,
+            -2.5e-9,
+            1e300,
+            123456789012345.0,
+            1e15,
+            0.000001,
+        ] {
             let s = format_number(x);
             assert_eq!(s.parse::<f64>().unwrap(), x, "{s}");
         }

@@ -139,7 +139,13 @@ fn spec(
     let t: Topology = throw(topology.parse().map_err(CircuitError::from))?;
     Ok(StageSpec {
         topology: t,
-        amplifier: AmplifierModel { ri, ro, gain, ci, co },
+        amplifier: AmplifierModel {
+            ri,
+            ro,
+            gain,
+            ci,
+            co,
+        },
         network: FeedbackNetwork { rf, rg, cf },
         rs,
         rl,
@@ -186,15 +192,37 @@ pub fn circuit_solve(json: &str, frequency_hz: f64) -> Result<JsValue, JsValue> 
 /// Impedance between two nodes seen by a test source, independent sources
 /// zeroed: `{re, im}` in Ω.
 #[wasm_bindgen(js_name = circuitPortImpedance, unchecked_return_type = "Complex")]
-pub fn circuit_port_impedance(json: &str, plus: &str, minus: &str, frequency_hz: f64) -> Result<JsValue, JsValue> {
-    to_js(&Cx::from(throw(core::port_impedance(&circuit(json)?, plus, minus, frequency_hz))?))
+pub fn circuit_port_impedance(
+    json: &str,
+    plus: &str,
+    minus: &str,
+    frequency_hz: f64,
+) -> Result<JsValue, JsValue> {
+    to_js(&Cx::from(throw(core::port_impedance(
+        &circuit(json)?,
+        plus,
+        minus,
+        frequency_hz,
+    ))?))
 }
 
 /// V(plus) − V(minus) per unit of `source` over `frequencies` (Hz):
 /// `{re: Float64Array, im: Float64Array}`.
 #[wasm_bindgen(js_name = circuitSweep, unchecked_return_type = "ComplexSweep")]
-pub fn circuit_sweep(json: &str, source: &str, plus: &str, minus: &str, frequencies: &[f64]) -> Result<JsValue, JsValue> {
-    let h = throw(core::voltage_transfer_sweep(&circuit(json)?, source, plus, minus, frequencies))?;
+pub fn circuit_sweep(
+    json: &str,
+    source: &str,
+    plus: &str,
+    minus: &str,
+    frequencies: &[f64],
+) -> Result<JsValue, JsValue> {
+    let h = throw(core::voltage_transfer_sweep(
+        &circuit(json)?,
+        source,
+        plus,
+        minus,
+        frequencies,
+    ))?;
     let re: alloc::vec::Vec<f64> = h.iter().map(|z| z.re).collect();
     let im: alloc::vec::Vec<f64> = h.iter().map(|z| z.im).collect();
     Ok(typed_arrays(&[("re", &re), ("im", &im)]))
@@ -252,8 +280,20 @@ pub fn circuit_stage_views(
 /// Blackman's formula at the port (plus, minus) of a circuit document, with
 /// respect to the controlled source `controlled`.
 #[wasm_bindgen(js_name = circuitBlackman, unchecked_return_type = "BlackmanImpedance")]
-pub fn circuit_blackman(json: &str, controlled: &str, plus: &str, minus: &str, frequency_hz: f64) -> Result<JsValue, JsValue> {
-    to_js(&throw(blackman::blackman_impedance(&circuit(json)?, controlled, plus, minus, frequency_hz))?)
+pub fn circuit_blackman(
+    json: &str,
+    controlled: &str,
+    plus: &str,
+    minus: &str,
+    frequency_hz: f64,
+) -> Result<JsValue, JsValue> {
+    to_js(&throw(blackman::blackman_impedance(
+        &circuit(json)?,
+        controlled,
+        plus,
+        minus,
+        frequency_hz,
+    ))?)
 }
 
 /// The asymptotic-gain decomposition of the transfer from `source` to the
@@ -268,7 +308,13 @@ pub fn circuit_asymptotic_gain(
     frequency_hz: f64,
 ) -> Result<JsValue, JsValue> {
     let out = Output::Voltage(plus, minus);
-    to_js(&throw(blackman::asymptotic_gain(&circuit(json)?, controlled, source, out, frequency_hz))?)
+    to_js(&throw(blackman::asymptotic_gain(
+        &circuit(json)?,
+        controlled,
+        source,
+        out,
+        frequency_hz,
+    ))?)
 }
 
 /// The same, to the current of `element`.
@@ -281,5 +327,11 @@ pub fn circuit_asymptotic_gain_current(
     frequency_hz: f64,
 ) -> Result<JsValue, JsValue> {
     let out = Output::Current(element);
-    to_js(&throw(blackman::asymptotic_gain(&circuit(json)?, controlled, source, out, frequency_hz))?)
+    to_js(&throw(blackman::asymptotic_gain(
+        &circuit(json)?,
+        controlled,
+        source,
+        out,
+        frequency_hz,
+    ))?)
 }

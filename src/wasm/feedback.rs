@@ -73,7 +73,12 @@ struct Phasor {
 
 impl From<Complex64> for Phasor {
     fn from(z: Complex64) -> Self {
-        Phasor { re: z.re, im: z.im, magnitude: z.norm(), phase_deg: z.arg().to_degrees() }
+        Phasor {
+            re: z.re,
+            im: z.im,
+            magnitude: z.norm(),
+            phase_deg: z.arg().to_degrees(),
+        }
     }
 }
 
@@ -112,20 +117,33 @@ pub fn gain_sensitivity(a: f64, beta: f64) -> f64 {
 /// idealGain, gainError, sense}`.
 #[wasm_bindgen(js_name = summarizeFeedback, unchecked_return_type = "FeedbackSummary")]
 pub fn summarize_feedback(
-    #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology_name: &str, a: f64, beta: f64) -> Result<JsValue, JsValue> {
+    #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology_name: &str,
+    a: f64,
+    beta: f64,
+) -> Result<JsValue, JsValue> {
     to_js(&throw(fb::summarize(topology(topology_name)?, a, beta))?)
 }
 
 /// The kinds of feedback in the order `summarizeFeedbackPacked` numbers them.
-const SENSES: [fb::FeedbackSense; 4] =
-    [fb::FeedbackSense::Negative, fb::FeedbackSense::Neutral, fb::FeedbackSense::Positive, fb::FeedbackSense::Oscillation];
+const SENSES: [fb::FeedbackSense; 4] = [
+    fb::FeedbackSense::Negative,
+    fb::FeedbackSense::Neutral,
+    fb::FeedbackSense::Positive,
+    fb::FeedbackSense::Oscillation,
+];
 
 /// Internal, for the entry module's `summarizeFeedback`: the index of a topology
 /// name (either family, any case) in catalog order, or NaN with the error kept
 /// (see `scalar` in mod.rs).
 #[wasm_bindgen(js_name = topologyIndex)]
-pub fn topology_index(#[wasm_bindgen(unchecked_param_type = "TopologyName")] topology_name: &str) -> f64 {
-    scalar(topology_name.parse::<Topology>().map(|t| Topology::ALL.iter().position(|&x| x == t).unwrap_or(0) as f64))
+pub fn topology_index(
+    #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology_name: &str,
+) -> f64 {
+    scalar(
+        topology_name
+            .parse::<Topology>()
+            .map(|t| Topology::ALL.iter().position(|&x| x == t).unwrap_or(0) as f64),
+    )
 }
 
 /// Internal, for the entry module: the numbers of `summarizeFeedback` for the
@@ -137,10 +155,14 @@ pub fn topology_index(#[wasm_bindgen(unchecked_param_type = "TopologyName")] top
 /// serde-wasm-bindgen crosses the boundary once per field.
 #[wasm_bindgen(js_name = summarizeFeedbackPacked)]
 pub fn summarize_feedback_packed(topology_index: u32, a: f64, beta: f64) -> f64 {
-    let topology = Topology::ALL.get(topology_index as usize).copied().ok_or(crate::Error::OutOfDomain {
-        param: "topology",
-        requirement: "must be an index of one of the four topologies (0 to 3)",
-    });
+    let topology =
+        Topology::ALL
+            .get(topology_index as usize)
+            .copied()
+            .ok_or(crate::Error::OutOfDomain {
+                param: "topology",
+                requirement: "must be an index of one of the four topologies (0 to 3)",
+            });
     scalar(topology.and_then(|t| fb::summarize(t, a, beta)).map(|s| {
         let sense = SENSES.iter().position(|&x| x == s.sense).unwrap_or(0) as f64;
         write_scratch(&[
@@ -176,8 +198,15 @@ struct FeedbackLabels {
 /// serialised from the same types as `summarizeFeedback`'s object.
 #[wasm_bindgen(js_name = feedbackLabels)]
 pub fn feedback_labels() -> Result<JsValue, JsValue> {
-    let topologies = Topology::ALL.map(|t| TopologyLabels { topology: t, gain_unit: t.gain_unit(), beta_unit: t.beta_unit() });
-    to_js(&FeedbackLabels { topologies, senses: SENSES })
+    let topologies = Topology::ALL.map(|t| TopologyLabels {
+        topology: t,
+        gain_unit: t.gain_unit(),
+        beta_unit: t.beta_unit(),
+    });
+    to_js(&FeedbackLabels {
+        topologies,
+        senses: SENSES,
+    })
 }
 
 #[derive(Serialize)]
@@ -194,7 +223,10 @@ struct PhasorResult {
 /// `{re, im, magnitude, phaseDeg}`, plus `feedbackAmountDb` and `sense`.
 #[wasm_bindgen(js_name = loopPhasors, unchecked_return_type = "LoopPhasorsResult")]
 pub fn loop_phasors(a_re: f64, a_im: f64, beta_re: f64, beta_im: f64) -> Result<JsValue, JsValue> {
-    let p = throw(fb::loop_phasors(Complex64::new(a_re, a_im), Complex64::new(beta_re, beta_im)))?;
+    let p = throw(fb::loop_phasors(
+        Complex64::new(a_re, a_im),
+        Complex64::new(beta_re, beta_im),
+    ))?;
     to_js(&PhasorResult {
         loop_gain: p.loop_gain.into(),
         feedback_amount: p.feedback_amount.into(),
@@ -234,7 +266,11 @@ pub fn impedances_with_feedback(
         Complex64::new(a_re, a_im),
         Complex64::new(beta_re, beta_im),
     ))?;
-    to_js(&ImpedanceResult { input: z.input.into(), output: z.output.into(), feedback_amount: z.feedback_amount.into() })
+    to_js(&ImpedanceResult {
+        input: z.input.into(),
+        output: z.output.into(),
+        feedback_amount: z.feedback_amount.into(),
+    })
 }
 
 /// β for a target closed-loop gain: 1/Af − 1/A.
@@ -278,7 +314,9 @@ struct TopologyInfo {
 /// What a topology name means: `{name, samplingMixingName, amplifierKind,
 /// mixing, sampling, gainUnit, betaUnit}`.
 #[wasm_bindgen(js_name = topologyInfo, unchecked_return_type = "TopologyInfo")]
-pub fn topology_info(#[wasm_bindgen(unchecked_param_type = "TopologyName")] topology_name: &str) -> Result<JsValue, JsValue> {
+pub fn topology_info(
+    #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology_name: &str,
+) -> Result<JsValue, JsValue> {
     let t = topology(topology_name)?;
     to_js(&TopologyInfo {
         name: t.name(),

@@ -149,11 +149,17 @@ struct JsModel {
     pade_order: Option<u32>,
 }
 
-const MODEL_SHAPE: &str = "must be a model object {gain, polesHz, zerosHz, rhpZerosHz, rhpPolesHz, complexPoles: \
+const MODEL_SHAPE: &str =
+    "must be a model object {gain, polesHz, zerosHz, rhpZerosHz, rhpPolesHz, complexPoles: \
 [{freqHz, q}], complexZeros, originPoles, lowCutsHz, delayS} with numbers and arrays of numbers";
 
 fn pairs(v: Vec<JsPair>) -> Vec<ComplexPair> {
-    v.into_iter().map(|p| ComplexPair { freq_hz: p.freq_hz, q: p.q }).collect()
+    v.into_iter()
+        .map(|p| ComplexPair {
+            freq_hz: p.freq_hz,
+            q: p.q,
+        })
+        .collect()
 }
 
 const MODEL_FIELDS: [&str; 11] = [
@@ -174,7 +180,9 @@ fn model(param: &'static str, v: &JsValue) -> Result<(TransferModel, Option<u32>
     // A misspelt field would otherwise be skipped silently.
     if let Some(o) = v.dyn_ref::<Object>() {
         for key in Object::keys(o).iter() {
-            let known = key.as_string().is_some_and(|k| MODEL_FIELDS.contains(&k.as_str()));
+            let known = key
+                .as_string()
+                .is_some_and(|k| MODEL_FIELDS.contains(&k.as_str()));
             if !known {
                 return Err(super::js_error(Error::UnknownName {
                     param,
@@ -184,8 +192,12 @@ originPoles, lowCutsHz, delayS, padeOrder",
             }
         }
     }
-    let m: JsModel = serde_wasm_bindgen::from_value(v.clone())
-        .map_err(|_| super::js_error(Error::OutOfDomain { param, requirement: MODEL_SHAPE }))?;
+    let m: JsModel = serde_wasm_bindgen::from_value(v.clone()).map_err(|_| {
+        super::js_error(Error::OutOfDomain {
+            param,
+            requirement: MODEL_SHAPE,
+        })
+    })?;
     Ok((
         TransferModel {
             gain: m.gain,
@@ -210,7 +222,8 @@ fn beta_model(beta: &JsValue) -> Result<TransferModel, JsValue> {
             (m, None) => Ok(m),
             (_, Some(_)) => Err(super::js_error(Error::OutOfDomain {
                 param: "beta",
-                requirement: "padeOrder belongs on the amplifier object, which sets it for the whole loop",
+                requirement:
+                    "padeOrder belongs on the amplifier object, which sets it for the whole loop",
             })),
         },
     }
@@ -219,7 +232,11 @@ fn beta_model(beta: &JsValue) -> Result<TransferModel, JsValue> {
 fn feedback_loop(a: &JsValue, beta: &JsValue) -> Result<FeedbackLoop, JsValue> {
     let (am, pade) = model("a", a)?;
     let bm = beta_model(beta)?;
-    throw(FeedbackLoop::with_pade_order(am, bm, pade.unwrap_or(crate::freq::model::DEFAULT_PADE_ORDER)))
+    throw(FeedbackLoop::with_pade_order(
+        am,
+        bm,
+        pade.unwrap_or(crate::freq::model::DEFAULT_PADE_ORDER),
+    ))
 }
 
 /// A plain object whose fields are `Float64Array`s.
@@ -228,10 +245,18 @@ fn feedback_loop(a: &JsValue, beta: &JsValue) -> Result<FeedbackLoop, JsValue> {
 #[wasm_bindgen(js_name = loopGainSweep, unchecked_return_type = "FrequencySweep")]
 pub fn loop_gain_sweep(
     #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
-    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, start_hz: f64, stop_hz: f64, points: usize) -> Result<JsValue, JsValue> {
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
+    start_hz: f64,
+    stop_hz: f64,
+    points: usize,
+) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     let s = throw(fq::loop_gain_sweep(&l, start_hz, stop_hz, points))?;
-    Ok(typed_arrays(&[("freqHz", &s.freq_hz), ("magnitudeDb", &s.magnitude_db), ("phaseDeg", &s.phase_deg)]))
+    Ok(typed_arrays(&[
+        ("freqHz", &s.freq_hz),
+        ("magnitudeDb", &s.magnitude_db),
+        ("phaseDeg", &s.phase_deg),
+    ]))
 }
 
 /// Closed-loop sweep Af = A/(1 + Aβ): `{freqHz, magnitudeDb, phaseDeg}` as
@@ -239,10 +264,18 @@ pub fn loop_gain_sweep(
 #[wasm_bindgen(js_name = closedLoopSweep, unchecked_return_type = "FrequencySweep")]
 pub fn closed_loop_sweep(
     #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
-    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, start_hz: f64, stop_hz: f64, points: usize) -> Result<JsValue, JsValue> {
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
+    start_hz: f64,
+    stop_hz: f64,
+    points: usize,
+) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     let s = throw(fq::closed_loop_sweep(&l, start_hz, stop_hz, points))?;
-    Ok(typed_arrays(&[("freqHz", &s.freq_hz), ("magnitudeDb", &s.magnitude_db), ("phaseDeg", &s.phase_deg)]))
+    Ok(typed_arrays(&[
+        ("freqHz", &s.freq_hz),
+        ("magnitudeDb", &s.magnitude_db),
+        ("phaseDeg", &s.phase_deg),
+    ]))
 }
 
 #[derive(serde::Serialize)]
@@ -259,7 +292,9 @@ struct Phasor {
 #[wasm_bindgen(js_name = loopAt, unchecked_return_type = "LoopPoint")]
 pub fn loop_at(
     #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
-    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, f_hz: f64) -> Result<JsValue, JsValue> {
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
+    f_hz: f64,
+) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     let t = throw(fq::loop_gain_at(&l, f_hz))?;
     let af = throw(fq::closed_loop_gain_at(&l, f_hz))?;
@@ -269,8 +304,16 @@ pub fn loop_at(
         loop_gain: Phasor,
         closed_loop_gain: Phasor,
     }
-    let p = |z: num_complex::Complex64| Phasor { re: z.re, im: z.im, magnitude: z.norm(), phase_deg: z.arg().to_degrees() };
-    to_js(&At { loop_gain: p(t), closed_loop_gain: p(af) })
+    let p = |z: num_complex::Complex64| Phasor {
+        re: z.re,
+        im: z.im,
+        magnitude: z.norm(),
+        phase_deg: z.arg().to_degrees(),
+    };
+    to_js(&At {
+        loop_gain: p(t),
+        closed_loop_gain: p(af),
+    })
 }
 
 /// Stability margins: `{phaseMarginDeg, crossoverHz, gainMarginDb,
@@ -324,7 +367,10 @@ pub fn closed_loop_bandwidth(
 #[wasm_bindgen(js_name = stepResponse, unchecked_return_type = "StepResponse")]
 pub fn step_response(
     #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
-    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, settle_band: f64, points: usize) -> Result<JsValue, JsValue> {
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
+    settle_band: f64,
+    points: usize,
+) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     let s = throw(fq::step_response(&l, settle_band, points))?;
     #[derive(serde::Serialize)]
@@ -347,7 +393,13 @@ pub fn step_response(
         settling_time_s: s.settling_time_s,
         settle_band: s.settle_band,
     })?;
-    set_typed_arrays(&obj, &[("timeS", &s.waveform.time_s), ("output", &s.waveform.output)]);
+    set_typed_arrays(
+        &obj,
+        &[
+            ("timeS", &s.waveform.time_s),
+            ("output", &s.waveform.output),
+        ],
+    );
     Ok(obj)
 }
 
@@ -359,7 +411,10 @@ pub fn step_response(
 #[wasm_bindgen(js_name = analyzeLoop, unchecked_return_type = "LoopAnalysis")]
 pub fn analyze_loop(
     #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
-    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, settle_band: f64, points: usize) -> Result<JsValue, JsValue> {
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
+    settle_band: f64,
+    points: usize,
+) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     to_js(&throw(fq::analyze_loop(&l, settle_band, points))?)
 }
@@ -369,7 +424,10 @@ pub fn analyze_loop(
 #[wasm_bindgen(js_name = stepWaveform, unchecked_return_type = "StepWaveform")]
 pub fn step_waveform(
     #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
-    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue, duration_s: f64, points: usize) -> Result<JsValue, JsValue> {
+    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
+    duration_s: f64,
+    points: usize,
+) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&a, &beta)?;
     let w = throw(fq::step_waveform(&l, duration_s, points))?;
     Ok(typed_arrays(&[("timeS", &w.time_s), ("output", &w.output)]))
@@ -380,9 +438,15 @@ pub fn step_waveform(
 #[wasm_bindgen(js_name = dominantPoleForMargin, unchecked_return_type = "CompensationResult")]
 pub fn dominant_pole_for_margin(
     #[wasm_bindgen(unchecked_param_type = "TransferModelInput")] a: JsValue,
-    beta: f64, target_pm_deg: f64) -> Result<JsValue, JsValue> {
+    beta: f64,
+    target_pm_deg: f64,
+) -> Result<JsValue, JsValue> {
     let (am, _) = model("a", &a)?;
-    to_js(&throw(fq::dominant_pole_for_margin(&am, beta, target_pm_deg))?)
+    to_js(&throw(fq::dominant_pole_for_margin(
+        &am,
+        beta,
+        target_pm_deg,
+    ))?)
 }
 
 /// The largest constant β (up to `betaLimit`) that keeps a target phase margin:
@@ -390,9 +454,15 @@ pub fn dominant_pole_for_margin(
 #[wasm_bindgen(js_name = maxBetaForMargin, unchecked_return_type = "CompensationResult")]
 pub fn max_beta_for_margin(
     #[wasm_bindgen(unchecked_param_type = "TransferModelInput")] a: JsValue,
-    target_pm_deg: f64, beta_limit: f64) -> Result<JsValue, JsValue> {
+    target_pm_deg: f64,
+    beta_limit: f64,
+) -> Result<JsValue, JsValue> {
     let (am, _) = model("a", &a)?;
-    to_js(&throw(fq::max_beta_for_margin(&am, target_pm_deg, beta_limit))?)
+    to_js(&throw(fq::max_beta_for_margin(
+        &am,
+        target_pm_deg,
+        beta_limit,
+    ))?)
 }
 
 /// Two-pole closed loop in closed form: `{naturalHz, q, zeta, peakingDb, peakHz,

@@ -57,8 +57,12 @@ pub(crate) fn js_error(e: Error) -> JsValue {
 /// Serialize a result struct into a plain JS object (maps as objects, `None` as
 /// `null`), or throw a serialization failure as an error on `result`.
 pub(crate) fn to_js<T: serde::Serialize>(value: &T) -> Result<JsValue, JsValue> {
-    let ser = serde_wasm_bindgen::Serializer::new().serialize_maps_as_objects(true).serialize_missing_as_null(true);
-    value.serialize(&ser).map_err(|e| JsValue::from(js_sys::Error::new(&alloc::format!("result: {e}"))))
+    let ser = serde_wasm_bindgen::Serializer::new()
+        .serialize_maps_as_objects(true)
+        .serialize_missing_as_null(true);
+    value
+        .serialize(&ser)
+        .map_err(|e| JsValue::from(js_sys::Error::new(&alloc::format!("result: {e}"))))
 }
 
 /// Set each named field of `obj` to a `Float64Array` copy of the slice (how sweeps
@@ -66,7 +70,11 @@ pub(crate) fn to_js<T: serde::Serialize>(value: &T) -> Result<JsValue, JsValue> 
 pub(crate) fn set_typed_arrays(obj: &JsValue, fields: &[(&str, &[f64])]) {
     for (name, values) in fields {
         // Reflect::set only fails on frozen or proxy objects; ours are fresh.
-        let _ = js_sys::Reflect::set(obj, &(*name).into(), &js_sys::Float64Array::from(*values).into());
+        let _ = js_sys::Reflect::set(
+            obj,
+            &(*name).into(),
+            &js_sys::Float64Array::from(*values).into(),
+        );
     }
 }
 
@@ -106,7 +114,9 @@ pub(crate) fn scalar(r: crate::Result<f64>) -> f64 {
 /// `undefined`; taking it clears it. Called by the package's entry module only.
 #[wasm_bindgen(js_name = takeError)]
 pub fn take_error() -> JsValue {
-    PENDING_ERROR.with(|slot| slot.borrow_mut().take()).unwrap_or(JsValue::UNDEFINED)
+    PENDING_ERROR
+        .with(|slot| slot.borrow_mut().take())
+        .unwrap_or(JsValue::UNDEFINED)
 }
 
 /// How many numbers the scratch area holds.
@@ -135,7 +145,11 @@ pub(crate) fn write_scratch(values: &[f64]) {
 pub fn scratch_view() -> js_sys::Float64Array {
     let address = SCRATCH.with(|cell| cell.as_ptr() as usize as u32);
     let memory: js_sys::WebAssembly::Memory = wasm_bindgen::memory().unchecked_into();
-    js_sys::Float64Array::new_with_byte_offset_and_length(&memory.buffer(), address, SCRATCH_LEN as u32)
+    js_sys::Float64Array::new_with_byte_offset_and_length(
+        &memory.buffer(),
+        address,
+        SCRATCH_LEN as u32,
+    )
 }
 
 /// Map a core result into a thrown JS error.

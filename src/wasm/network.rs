@@ -2,7 +2,9 @@
 
 use super::{scalar, throw, to_js};
 use crate::network::montecarlo::count_from_number;
-use crate::network::{self as nw, Distribution, Metric, MonteCarloSpec, PairSpec, Stage, StageSpec};
+use crate::network::{
+    self as nw, Distribution, Metric, MonteCarloSpec, PairSpec, Stage, StageSpec,
+};
 use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen(typescript_custom_section)]
@@ -43,7 +45,11 @@ pub fn series_values(series: &str, low: f64, high: f64) -> Result<Box<[f64]>, Js
 /// or below.
 #[wasm_bindgen(js_name = standardValue)]
 pub fn standard_value(series: &str, value: f64, rounding: &str) -> f64 {
-    scalar(series.parse().and_then(|s| nw::standard_value(s, value, rounding.parse()?)))
+    scalar(
+        series
+            .parse()
+            .and_then(|s| nw::standard_value(s, value, rounding.parse()?)),
+    )
 }
 
 /// `{series, down, up, nearest, error, tolerance}` around a value.
@@ -109,8 +115,18 @@ pub fn best_pairs(
 
 /// One resistance (transresistance or sense resistor): `[{leg, error}]`.
 #[wasm_bindgen(js_name = singleResistor, unchecked_return_type = "SingleCandidate[]")]
-pub fn single_resistor(target: f64, series: &str, max_error: Option<f64>, combine: &str) -> Result<JsValue, JsValue> {
-    to_js(&throw(nw::single_resistor(target, throw(series.parse())?, max_error, throw(combine.parse())?))?)
+pub fn single_resistor(
+    target: f64,
+    series: &str,
+    max_error: Option<f64>,
+    combine: &str,
+) -> Result<JsValue, JsValue> {
+    to_js(&throw(nw::single_resistor(
+        target,
+        throw(series.parse())?,
+        max_error,
+        throw(combine.parse())?,
+    ))?)
 }
 
 #[allow(clippy::too_many_arguments)]
@@ -128,7 +144,19 @@ fn stage_spec(
     pole_hz: f64,
 ) -> Result<StageSpec, JsValue> {
     let stage: Stage = throw(stage.parse())?;
-    Ok(StageSpec { stage, r1, r2, tol_r1, tol_r2, a_min, a_typ, a_max, ri, ro, pole_hz })
+    Ok(StageSpec {
+        stage,
+        r1,
+        r2,
+        tol_r1,
+        tol_r2,
+        a_min,
+        a_typ,
+        a_max,
+        ri,
+        ro,
+        pole_hz,
+    })
 }
 
 /// Worst case of an op-amp stage: `{gain, inputImpedance, outputImpedance,
@@ -149,7 +177,9 @@ pub fn worst_case(
     ro: f64,
     pole_hz: f64,
 ) -> Result<JsValue, JsValue> {
-    let spec = stage_spec(stage, r1, r2, tol_r1, tol_r2, a_min, a_typ, a_max, ri, ro, pole_hz)?;
+    let spec = stage_spec(
+        stage, r1, r2, tol_r1, tol_r2, a_min, a_typ, a_max, ri, ro, pole_hz,
+    )?;
     to_js(&throw(nw::worst_case(&spec))?)
 }
 
@@ -185,7 +215,9 @@ pub fn monte_carlo(
     bins: f64,
 ) -> Result<JsValue, JsValue> {
     let spec = MonteCarloSpec {
-        stage: stage_spec(stage, r1, r2, tol_r1, tol_r2, a_min, a_typ, a_max, ri, ro, pole_hz)?,
+        stage: stage_spec(
+            stage, r1, r2, tol_r1, tol_r2, a_min, a_typ, a_max, ri, ro, pole_hz,
+        )?,
         resistors: throw(Distribution::from_name(resistor_distribution, k, "k"))?,
         open_loop_gain: throw(Distribution::from_name(gain_distribution, k_gain, "k_gain"))?,
         metric: throw(metric.parse::<Metric>())?,

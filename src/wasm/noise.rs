@@ -25,7 +25,13 @@ export interface IntegratedNoise {
 export interface NoiseSweep { frequencies: Float64Array; outputDensity: Float64Array; inputReferredDensity: Float64Array; }
 "#;
 
-fn stage(kind: &str, r_feedback: f64, r_gain: f64, r_plus: f64, temperature_k: f64) -> Result<Stage, JsValue> {
+fn stage(
+    kind: &str,
+    r_feedback: f64,
+    r_gain: f64,
+    r_plus: f64,
+    temperature_k: f64,
+) -> Result<Stage, JsValue> {
     let kind: StageKind = throw(kind.parse())?;
     throw(Stage::new(kind, r_feedback, r_gain, r_plus, temperature_k))
 }
@@ -39,7 +45,10 @@ pub fn thermal_noise_density(resistance_ohm: f64, temperature_k: f64) -> f64 {
 /// Thermal noise current density √(4kT/R), A/√Hz.
 #[wasm_bindgen(js_name = thermalNoiseCurrentDensity)]
 pub fn thermal_noise_current_density(resistance_ohm: f64, temperature_k: f64) -> f64 {
-    scalar(nz::thermal_noise_current_density(resistance_ohm, temperature_k))
+    scalar(nz::thermal_noise_current_density(
+        resistance_ohm,
+        temperature_k,
+    ))
 }
 
 /// Each source's output noise density at `frequencyHz` (flat part of the
@@ -61,7 +70,12 @@ pub fn stage_noise_contributions(
     frequency_hz: f64,
 ) -> Result<JsValue, JsValue> {
     let s = stage(kind, r_feedback, r_gain, r_plus, temperature_k)?;
-    let amp = throw(AmplifierNoise::new(voltage_density, voltage_corner_hz, current_density, current_corner_hz))?;
+    let amp = throw(AmplifierNoise::new(
+        voltage_density,
+        voltage_corner_hz,
+        current_density,
+        current_corner_hz,
+    ))?;
     to_js(&throw(nz::noise_contributions(&s, &amp, frequency_hz))?)
 }
 
@@ -87,9 +101,20 @@ pub fn integrated_noise(
     f_high: f64,
 ) -> Result<JsValue, JsValue> {
     let s = stage(kind, r_feedback, r_gain, r_plus, temperature_k)?;
-    let amp = throw(AmplifierNoise::new(voltage_density, voltage_corner_hz, current_density, current_corner_hz))?;
-    let h = throw(ClosedLoopResponse::new(s.noise_gain(), gbw_hz, extra_poles_hz))?;
-    to_js(&throw(nz::integrated_output_noise(&s, &amp, &h, f_low, f_high))?)
+    let amp = throw(AmplifierNoise::new(
+        voltage_density,
+        voltage_corner_hz,
+        current_density,
+        current_corner_hz,
+    ))?;
+    let h = throw(ClosedLoopResponse::new(
+        s.noise_gain(),
+        gbw_hz,
+        extra_poles_hz,
+    ))?;
+    to_js(&throw(nz::integrated_output_noise(
+        &s, &amp, &h, f_low, f_high,
+    ))?)
 }
 
 /// Output and input-referred density over log-spaced frequencies: Float64Arrays
@@ -113,9 +138,25 @@ pub fn noise_density_sweep(
     points: u32,
 ) -> Result<JsValue, JsValue> {
     let s = stage(kind, r_feedback, r_gain, r_plus, temperature_k)?;
-    let amp = throw(AmplifierNoise::new(voltage_density, voltage_corner_hz, current_density, current_corner_hz))?;
-    let h = throw(ClosedLoopResponse::new(s.noise_gain(), gbw_hz, extra_poles_hz))?;
-    let w = throw(nz::output_noise_sweep(&s, &amp, &h, f_start, f_stop, points as usize))?;
+    let amp = throw(AmplifierNoise::new(
+        voltage_density,
+        voltage_corner_hz,
+        current_density,
+        current_corner_hz,
+    ))?;
+    let h = throw(ClosedLoopResponse::new(
+        s.noise_gain(),
+        gbw_hz,
+        extra_poles_hz,
+    ))?;
+    let w = throw(nz::output_noise_sweep(
+        &s,
+        &amp,
+        &h,
+        f_start,
+        f_stop,
+        points as usize,
+    ))?;
     Ok(typed_arrays(&[
         ("frequencies", &w.frequencies),
         ("outputDensity", &w.output_density),

@@ -55,7 +55,13 @@ pub fn series_from_distortion(
     amplitude: f64,
     amplitude_at_name: &str,
 ) -> Result<JsValue, JsValue> {
-    to_js(&throw(nl::series_from_distortion(a1, hd2, hd3, amplitude, amplitude_at(amplitude_at_name)?))?)
+    to_js(&throw(nl::series_from_distortion(
+        a1,
+        hd2,
+        hd3,
+        amplitude,
+        amplitude_at(amplitude_at_name)?,
+    ))?)
 }
 
 /// Leading-order distortion `{inputAmplitude, outputAmplitude, hd2, hd3}`.
@@ -67,7 +73,11 @@ pub fn harmonic_distortion(
     amplitude: f64,
     amplitude_at_name: &str,
 ) -> Result<JsValue, JsValue> {
-    to_js(&throw(nl::harmonic_distortion(&series(a1, a2, a3)?, amplitude, amplitude_at(amplitude_at_name)?))?)
+    to_js(&throw(nl::harmonic_distortion(
+        &series(a1, a2, a3)?,
+        amplitude,
+        amplitude_at(amplitude_at_name)?,
+    ))?)
 }
 
 /// Open and closed loop at the same amplitude: `{closedSeries, feedbackAmount,
@@ -82,13 +92,22 @@ pub fn feedback_distortion(
     amplitude: f64,
     amplitude_at_name: &str,
 ) -> Result<JsValue, JsValue> {
-    to_js(&throw(nl::feedback_distortion(&series(a1, a2, a3)?, beta, amplitude, amplitude_at(amplitude_at_name)?))?)
+    to_js(&throw(nl::feedback_distortion(
+        &series(a1, a2, a3)?,
+        beta,
+        amplitude,
+        amplitude_at(amplitude_at_name)?,
+    ))?)
 }
 
 /// The closed-loop output y solving y = A(x − β·y) at input x.
 #[wasm_bindgen(js_name = closedLoopOutput)]
 pub fn closed_loop_output(a1: f64, a2: f64, a3: f64, beta: f64, x: f64) -> f64 {
-    scalar(PowerSeries::new(a1, a2, a3).and_then(|s| nl::LoopSolver::new(&s, beta)).and_then(|solver| solver.output(x)))
+    scalar(
+        PowerSeries::new(a1, a2, a3)
+            .and_then(|s| nl::LoopSolver::new(&s, beta))
+            .and_then(|solver| solver.output(x)),
+    )
 }
 
 /// Numeric spectrum of the closed loop for a cosine input of peak `amplitude`:
@@ -102,14 +121,31 @@ pub fn closed_loop_spectrum(
     amplitude: f64,
     samples: u32,
 ) -> Result<JsValue, JsValue> {
-    to_js(&throw(nl::closed_loop_spectrum(&series(a1, a2, a3)?, beta, amplitude, samples as usize))?)
+    to_js(&throw(nl::closed_loop_spectrum(
+        &series(a1, a2, a3)?,
+        beta,
+        amplitude,
+        samples as usize,
+    ))?)
 }
 
 /// Series against numeric at one input amplitude: `{inputAmplitude, seriesHd2,
 /// seriesHd3, numericHd2, numericHd3, hd2Difference, hd3Difference}`.
 #[wasm_bindgen(js_name = seriesCheck, unchecked_return_type = "SeriesCheck")]
-pub fn series_check(a1: f64, a2: f64, a3: f64, beta: f64, amplitude: f64, samples: u32) -> Result<JsValue, JsValue> {
-    to_js(&throw(nl::series_check(&series(a1, a2, a3)?, beta, amplitude, samples as usize))?)
+pub fn series_check(
+    a1: f64,
+    a2: f64,
+    a3: f64,
+    beta: f64,
+    amplitude: f64,
+    samples: u32,
+) -> Result<JsValue, JsValue> {
+    to_js(&throw(nl::series_check(
+        &series(a1, a2, a3)?,
+        beta,
+        amplitude,
+        samples as usize,
+    ))?)
 }
 
 /// Series against numeric over log-spaced input amplitudes: Float64Arrays
@@ -144,9 +180,21 @@ pub fn series_validity_sweep(
         ("numericHd2", &s.numeric_hd2),
         ("numericHd3", &s.numeric_hd3),
     ]);
-    js_sys::Reflect::set(&obj, &"foldAmplitude".into(), &option_number(s.fold_amplitude))?;
-    js_sys::Reflect::set(&obj, &"hd3LimitAmplitude".into(), &option_number(s.hd3_limit_amplitude))?;
-    js_sys::Reflect::set(&obj, &"hd3HoldsThroughout".into(), &s.hd3_holds_throughout.into())?;
+    js_sys::Reflect::set(
+        &obj,
+        &"foldAmplitude".into(),
+        &option_number(s.fold_amplitude),
+    )?;
+    js_sys::Reflect::set(
+        &obj,
+        &"hd3LimitAmplitude".into(),
+        &option_number(s.hd3_limit_amplitude),
+    )?;
+    js_sys::Reflect::set(
+        &obj,
+        &"hd3HoldsThroughout".into(),
+        &s.hd3_holds_throughout.into(),
+    )?;
     Ok(obj)
 }
 

@@ -185,10 +185,17 @@ impl Worksheet {
     pub fn values(&self, cells: &str) -> Result<JsValue, JsValue> {
         let r = range(cells)?;
         if r.area() > MAX_VIEW_CELLS {
-            return Err(js_error(crate::Error::TooLarge { param: "range", limit: MAX_VIEW_CELLS }));
+            return Err(js_error(crate::Error::TooLarge {
+                param: "range",
+                limit: MAX_VIEW_CELLS,
+            }));
         }
         let rows: Vec<Vec<CellView>> = (r.start.row..=r.end.row)
-            .map(|row| (r.start.col..=r.end.col).map(|col| view(&self.sheet, CellRef { row, col })).collect())
+            .map(|row| {
+                (r.start.col..=r.end.col)
+                    .map(|col| view(&self.sheet, CellRef { row, col }))
+                    .collect()
+            })
             .collect();
         to_js(&rows)
     }
@@ -288,7 +295,12 @@ struct ErrorInfo {
 /// The error values a cell can show: `[{code, explanation}]`.
 #[wasm_bindgen(js_name = errorValues, unchecked_return_type = "ErrorValueInfo[]")]
 pub fn error_values() -> Result<JsValue, JsValue> {
-    let list: Vec<ErrorInfo> =
-        ErrorKind::ALL.iter().map(|k| ErrorInfo { code: k.code(), explanation: k.explanation() }).collect();
+    let list: Vec<ErrorInfo> = ErrorKind::ALL
+        .iter()
+        .map(|k| ErrorInfo {
+            code: k.code(),
+            explanation: k.explanation(),
+        })
+        .collect();
     to_js(&list)
 }

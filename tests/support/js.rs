@@ -11,29 +11,46 @@ pub fn field(obj: &JsValue, name: &str) -> JsValue {
 }
 
 pub fn num(obj: &JsValue, name: &str) -> f64 {
-    field(obj, name).as_f64().unwrap_or_else(|| panic!("{name} is not a number"))
+    field(obj, name)
+        .as_f64()
+        .unwrap_or_else(|| panic!("{name} is not a number"))
 }
 
 pub fn text(obj: &JsValue, name: &str) -> String {
-    field(obj, name).as_string().unwrap_or_else(|| panic!("{name} is not a string"))
+    field(obj, name)
+        .as_string()
+        .unwrap_or_else(|| panic!("{name} is not a string"))
 }
 
 /// A field that must be a Float64Array, as a Vec.
 pub fn typed(obj: &JsValue, name: &str) -> Vec<f64> {
     let v = field(obj, name);
-    assert!(v.is_instance_of::<Float64Array>(), "{name} is a Float64Array");
+    assert!(
+        v.is_instance_of::<Float64Array>(),
+        "{name} is a Float64Array"
+    );
     v.unchecked_into::<Float64Array>().to_vec()
 }
 
 /// The result is a thrown JS `Error` named LoopwrightError with this `code` and
 /// `param`, whose message names the parameter (`param: reason`).
-pub fn assert_thrown(r: Result<impl core::fmt::Debug, JsValue>, code: &str, param: &str) -> JsValue {
+pub fn assert_thrown(
+    r: Result<impl core::fmt::Debug, JsValue>,
+    code: &str,
+    param: &str,
+) -> JsValue {
     let e = r.expect_err("expected a thrown error");
-    assert!(e.is_instance_of::<js_sys::Error>(), "thrown value is a JS Error");
+    assert!(
+        e.is_instance_of::<js_sys::Error>(),
+        "thrown value is a JS Error"
+    );
     assert_eq!(text(&e, "name"), "LoopwrightError");
     assert_eq!(text(&e, "code"), code);
     assert_eq!(text(&e, "param"), param);
-    assert!(text(&e, "message").contains(&format!("{param}: ")), "the message names {param}");
+    assert!(
+        text(&e, "message").contains(&format!("{param}: ")),
+        "the message names {param}"
+    );
     e
 }
 

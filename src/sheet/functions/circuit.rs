@@ -27,11 +27,26 @@ const STAGE: &[Param] = &[
         "text",
         "series-shunt, shunt-series, series-series, shunt-shunt or their voltage-/current- names",
     ),
-    req("gain", "open-circuit gain of the basic amplifier, signed as it acts", "V/V, V/A, A/V or A/A by topology", "not 0; see the template table"),
+    req(
+        "gain",
+        "open-circuit gain of the basic amplifier, signed as it acts",
+        "V/V, V/A, A/V or A/A by topology",
+        "not 0; see the template table",
+    ),
     req("ri", "amplifier input resistance", "Ω", "> 0"),
     req("ro", "amplifier output resistance", "Ω", "> 0"),
-    req("rf", "feedback resistor returning the signal to the input", "Ω", "> 0 (0 allowed for series-series)"),
-    req("rg", "feedback network foot or current-sense resistor", "Ω", "> 0 (must be 0 for shunt-shunt)"),
+    req(
+        "rf",
+        "feedback resistor returning the signal to the input",
+        "Ω",
+        "> 0 (0 allowed for series-series)",
+    ),
+    req(
+        "rg",
+        "feedback network foot or current-sense resistor",
+        "Ω",
+        "> 0 (must be 0 for shunt-shunt)",
+    ),
     req("rs", "source resistance", "Ω", "> 0"),
     req("rl", "load resistance", "Ω", "> 0"),
 ];
@@ -39,11 +54,23 @@ const STAGE: &[Param] = &[
 /// The DC two-port analysis of the stage in arguments 0…7.
 fn analysis(a: &Args<'_>) -> Result<TwoPortAnalysis, CellError> {
     let name = a.text(0)?;
-    let topology = name.parse::<Topology>().map_err(|e| CellError::from_core(a.spec.name, e))?;
+    let topology = name
+        .parse::<Topology>()
+        .map_err(|e| CellError::from_core(a.spec.name, e))?;
     let spec = StageSpec {
         topology,
-        amplifier: AmplifierModel { ri: a.number(2)?, ro: a.number(3)?, gain: a.number(1)?, ci: 0.0, co: 0.0 },
-        network: FeedbackNetwork { rf: a.number(4)?, rg: a.number(5)?, cf: 0.0 },
+        amplifier: AmplifierModel {
+            ri: a.number(2)?,
+            ro: a.number(3)?,
+            gain: a.number(1)?,
+            ci: 0.0,
+            co: 0.0,
+        },
+        network: FeedbackNetwork {
+            rf: a.number(4)?,
+            rg: a.number(5)?,
+            cf: 0.0,
+        },
         rs: a.number(6)?,
         rl: a.number(7)?,
     };
@@ -69,9 +96,15 @@ fn with_unit(x: f64, unit: Option<Unit>) -> Value {
 
 /// Exact, two-port and relative error of a DC result (real at DC).
 fn compared(c: &Compared, unit: Option<Unit>) -> Value {
-    let items: Vec<Value> =
-        vec![with_unit(c.exact.re, unit), with_unit(c.two_port.re, unit), Value::num(c.relative_error)];
-    Array::row(items).map_or_else(|| Value::error(ErrorKind::Value, "empty result"), Value::Array)
+    let items: Vec<Value> = vec![
+        with_unit(c.exact.re, unit),
+        with_unit(c.two_port.re, unit),
+        Value::num(c.relative_error),
+    ];
+    Array::row(items).map_or_else(
+        || Value::error(ErrorKind::Value, "empty result"),
+        Value::Array,
+    )
 }
 
 fn gain(a: &Args<'_>) -> Value {
@@ -89,10 +122,17 @@ fn r_out(a: &Args<'_>) -> Value {
 fn ideal(a: &Args<'_>) -> Value {
     let r = tri!(analysis(a));
     let items = vec![Value::num(r.ideal_af.re), Value::num(r.ideal_af_error)];
-    Array::row(items).map_or_else(|| Value::error(ErrorKind::Value, "empty result"), Value::Array)
+    Array::row(items).map_or_else(
+        || Value::error(ErrorKind::Value, "empty result"),
+        Value::Array,
+    )
 }
 
-const COMPARED: &[&str] = &["exact (nodal solution)", "two-port method", "relative error |two-port − exact|/|exact|"];
+const COMPARED: &[&str] = &[
+    "exact (nodal solution)",
+    "two-port method",
+    "relative error |two-port − exact|/|exact|",
+];
 const WORKED: &str = "series-shunt stage a = 10⁴, Ri = 100 kΩ, Ro = 1 kΩ, Rf = 1 MΩ, Rg = 1 kΩ, Rs = 10 kΩ, RL = 2 kΩ: tests/reference/data/circuit_sympy.json (sympy closed forms from Kirchhoff's current law, worked non-inverting case)";
 
 /// The circuit area's table.

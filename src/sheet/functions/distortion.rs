@@ -17,7 +17,12 @@ const A1: Param = req("a1", "small-signal gain of the amplifier", "V/V", "not 0"
 const A2: Param = req("a2", "second-order coefficient", "V/V²", "any finite");
 const A3: Param = req("a3", "third-order coefficient", "V/V³", "any finite");
 const BETA: Param = req("beta", "feedback factor", "V/V", "1 + a1·β > 0");
-const SLEW: Param = req("slew_rate", "slew rate in V/s (1 V/µs is 1e6)", "V/s", "> 0");
+const SLEW: Param = req(
+    "slew_rate",
+    "slew rate in V/s (1 V/µs is 1e6)",
+    "V/s",
+    "> 0",
+);
 
 /// Core parameter names that the worksheet spells differently.
 const NAMES: &[(&str, &str)] = &[("amplitude_at", "at"), ("frequency_hz", "frequency")];
@@ -34,11 +39,15 @@ fn with_unit(x: f64, unit: Option<Unit>) -> Value {
 }
 
 fn row(items: Vec<Value>) -> Value {
-    Array::row(items).map_or_else(|| Value::error(ErrorKind::Value, "empty result"), Value::Array)
+    Array::row(items).map_or_else(
+        || Value::error(ErrorKind::Value, "empty result"),
+        Value::Array,
+    )
 }
 
 fn series(a: &Args<'_>) -> Result<PowerSeries, CellError> {
-    PowerSeries::new(a.number(0)?, a.number(1)?, a.number(2)?).map_err(|e| super::core_error(a.spec.name, e, NAMES))
+    PowerSeries::new(a.number(0)?, a.number(1)?, a.number(2)?)
+        .map_err(|e| super::core_error(a.spec.name, e, NAMES))
 }
 
 fn closed_series(a: &Args<'_>) -> Value {

@@ -10,8 +10,18 @@ use alloc::string::String;
 use alloc::vec;
 use num_complex::Complex64;
 
-const A: Param = req("a", "open-loop gain", "V/V, A/A, A/V or V/A by topology", "not 0");
-const BETA: Param = req("beta", "feedback factor", "reciprocal of a's unit", "any finite");
+const A: Param = req(
+    "a",
+    "open-loop gain",
+    "V/V, A/A, A/V or V/A by topology",
+    "not 0",
+);
+const BETA: Param = req(
+    "beta",
+    "feedback factor",
+    "reciprocal of a's unit",
+    "any finite",
+);
 const A_BETA: &[Param] = &[A, BETA];
 const TOPOLOGY: Param = req(
     "topology",
@@ -22,7 +32,8 @@ const TOPOLOGY: Param = req(
 
 fn topology(a: &Args<'_>, i: usize) -> Result<Topology, CellError> {
     let name = a.text(i)?;
-    name.parse::<Topology>().map_err(|e| CellError::from_core(a.spec.name, e))
+    name.parse::<Topology>()
+        .map_err(|e| CellError::from_core(a.spec.name, e))
 }
 
 fn core_err(a: &Args<'_>, e: crate::Error) -> Value {
@@ -37,7 +48,10 @@ fn ohms(x: f64) -> Value {
 }
 
 fn row(items: alloc::vec::Vec<Value>) -> Value {
-    Array::row(items).map_or_else(|| Value::error(ErrorKind::Value, "empty result"), Value::Array)
+    Array::row(items).map_or_else(
+        || Value::error(ErrorKind::Value, "empty result"),
+        Value::Array,
+    )
 }
 
 fn gain(a: &Args<'_>) -> Value {
@@ -95,7 +109,12 @@ fn ceiling(a: &Args<'_>) -> Value {
 }
 
 fn spread(a: &Args<'_>) -> Value {
-    let r = fb::gain_spread(tri!(a.number(0)), tri!(a.number(1)), tri!(a.number(2)), tri!(a.number(3)));
+    let r = fb::gain_spread(
+        tri!(a.number(0)),
+        tri!(a.number(1)),
+        tri!(a.number(2)),
+        tri!(a.number(3)),
+    );
     match r {
         Ok(s) => row(vec![
             Value::num(s.at_min),
@@ -114,7 +133,13 @@ fn spread(a: &Args<'_>) -> Value {
 
 fn z_in(a: &Args<'_>) -> Value {
     let t = tri!(topology(a, 0));
-    match fb::resistances_with_feedback(t, tri!(a.number(1)), 0.0, tri!(a.number(2)), tri!(a.number(3))) {
+    match fb::resistances_with_feedback(
+        t,
+        tri!(a.number(1)),
+        0.0,
+        tri!(a.number(2)),
+        tri!(a.number(3)),
+    ) {
         Ok((rin, _)) => ohms(rin),
         Err(e) => core_err(a, e),
     }
@@ -122,7 +147,13 @@ fn z_in(a: &Args<'_>) -> Value {
 
 fn z_out(a: &Args<'_>) -> Value {
     let t = tri!(topology(a, 0));
-    match fb::resistances_with_feedback(t, 0.0, tri!(a.number(1)), tri!(a.number(2)), tri!(a.number(3))) {
+    match fb::resistances_with_feedback(
+        t,
+        0.0,
+        tri!(a.number(1)),
+        tri!(a.number(2)),
+        tri!(a.number(3)),
+    ) {
         Ok((_, rout)) => ohms(rout),
         Err(e) => core_err(a, e),
     }
@@ -130,10 +161,17 @@ fn z_out(a: &Args<'_>) -> Value {
 
 fn impedances(a: &Args<'_>) -> Value {
     let t = tri!(topology(a, 0));
-    let c = |i: usize| -> Result<Complex64, CellError> { Ok(Complex64::new(a.number(i)?, a.number(i + 1)?)) };
+    let c = |i: usize| -> Result<Complex64, CellError> {
+        Ok(Complex64::new(a.number(i)?, a.number(i + 1)?))
+    };
     let (zi, zo, x, b) = (tri!(c(1)), tri!(c(3)), tri!(c(5)), tri!(c(7)));
     match fb::impedances_with_feedback(t, zi, zo, x, b) {
-        Ok(z) => row(vec![ohms(z.input.re), ohms(z.input.im), ohms(z.output.re), ohms(z.output.im)]),
+        Ok(z) => row(vec![
+            ohms(z.input.re),
+            ohms(z.input.im),
+            ohms(z.output.re),
+            ohms(z.output.im),
+        ]),
         Err(e) => core_err(a, e),
     }
 }
@@ -157,7 +195,12 @@ fn summary(a: &Args<'_>) -> Value {
     let t = tri!(topology(a, 0));
     match fb::summarize(t, tri!(a.number(1)), tri!(a.number(2))) {
         Ok(s) => {
-            let na = || Value::error(ErrorKind::NotAvailable, "FB.SUMMARY: no ideal gain without feedback (beta = 0)");
+            let na = || {
+                Value::error(
+                    ErrorKind::NotAvailable,
+                    "FB.SUMMARY: no ideal gain without feedback (beta = 0)",
+                )
+            };
             row(vec![
                 Value::num(s.closed_loop_gain),
                 Value::num(s.loop_gain),

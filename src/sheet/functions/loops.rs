@@ -20,7 +20,12 @@ use alloc::format;
 use alloc::vec;
 use alloc::vec::Vec;
 
-const A0: Param = req("a0", "open-loop DC gain", "V/V", "not 0 (with beta > 0, a negative a0 is positive feedback)");
+const A0: Param = req(
+    "a0",
+    "open-loop DC gain",
+    "V/V",
+    "not 0 (with beta > 0, a negative a0 is positive feedback)",
+);
 const POLES: Param = req(
     "poles",
     "the amplifier's real pole frequencies, each argument a number or a range (empty cells skipped)",
@@ -118,7 +123,8 @@ fn amplifier(a: &Args<'_>, first: usize) -> Result<TransferModel, CellError> {
 fn feedback_loop(a: &Args<'_>, first: usize) -> Result<FeedbackLoop, CellError> {
     let amp = amplifier(a, first)?;
     let beta = a.number(1)?;
-    FeedbackLoop::with_constant_beta(amp, beta).map_err(|e| super::core_error(a.spec.name, e, NAMES))
+    FeedbackLoop::with_constant_beta(amp, beta)
+        .map_err(|e| super::core_error(a.spec.name, e, NAMES))
 }
 
 fn phase_margin(a: &Args<'_>) -> Value {
@@ -529,10 +535,17 @@ mod tests {
 
     #[test]
     fn poles_come_from_numbers_and_ranges_with_empty_cells_skipped() {
-        let range = Value::Array(Array::new(3, 1, vec![Value::num(10.0), Value::Empty, Value::num(1e6)]).unwrap());
+        let range = Value::Array(
+            Array::new(3, 1, vec![Value::num(10.0), Value::Empty, Value::num(1e6)]).unwrap(),
+        );
         let values = [Value::num(1e5), Value::num(1.0), range, Value::num(2e7)];
-        assert_eq!(pole_list(&args("LOOP.PM", &values), 2).unwrap(), vec![10.0, 1e6, 2e7]);
-        let text = Value::Array(Array::row(vec![Value::num(10.0), Value::Text(String::from("x"))]).unwrap());
+        assert_eq!(
+            pole_list(&args("LOOP.PM", &values), 2).unwrap(),
+            vec![10.0, 1e6, 2e7]
+        );
+        let text = Value::Array(
+            Array::row(vec![Value::num(10.0), Value::Text(String::from("x"))]).unwrap(),
+        );
         let values = [Value::num(1e5), Value::num(1.0), text];
         let e = pole_list(&args("LOOP.PM", &values), 2).unwrap_err();
         assert_eq!(e.kind, ErrorKind::Value);

@@ -89,7 +89,11 @@ pub fn round_half_away(x: f64, digits: i32) -> f64 {
     }
     let t = crate::float::trunc(y);
     let frac = libm::fabs(y - t);
-    let r = if frac + 8.0 * f64::EPSILON * libm::fabs(y) >= 0.5 { t + libm::copysign(1.0, y) } else { t };
+    let r = if frac + 8.0 * f64::EPSILON * libm::fabs(y) >= 0.5 {
+        t + libm::copysign(1.0, y)
+    } else {
+        t
+    };
     r / f
 }
 
@@ -113,7 +117,12 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: true,
         result_unit: "as the values",
         spill: &[],
-        example: Example { formula: "=SUM(1; 2.5; 4k7)", expected: Expected::Numbers(&[4703.5]), source: "1 + 2.5 + 4700", tolerance: &[] },
+        example: Example {
+            formula: "=SUM(1; 2.5; 4k7)",
+            expected: Expected::Numbers(&[4703.5]),
+            source: "1 + 2.5 + 4700",
+            tolerance: &[],
+        },
         eval: sum,
     },
     FunctionSpec {
@@ -124,7 +133,12 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: true,
         result_unit: "as the values",
         spill: &[],
-        example: Example { formula: "=MIN(3; -2; 7)", expected: Expected::Numbers(&[-2.0]), source: "by inspection", tolerance: &[] },
+        example: Example {
+            formula: "=MIN(3; -2; 7)",
+            expected: Expected::Numbers(&[-2.0]),
+            source: "by inspection",
+            tolerance: &[],
+        },
         eval: min,
     },
     FunctionSpec {
@@ -135,7 +149,12 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: true,
         result_unit: "as the values",
         spill: &[],
-        example: Example { formula: "=MAX(3; -2; 7)", expected: Expected::Numbers(&[7.0]), source: "by inspection", tolerance: &[] },
+        example: Example {
+            formula: "=MAX(3; -2; 7)",
+            expected: Expected::Numbers(&[7.0]),
+            source: "by inspection",
+            tolerance: &[],
+        },
         eval: max,
     },
     FunctionSpec {
@@ -146,7 +165,12 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: true,
         result_unit: "as the values",
         spill: &[],
-        example: Example { formula: "=AVERAGE(1; 2; 6)", expected: Expected::Numbers(&[3.0]), source: "(1 + 2 + 6)/3", tolerance: &[] },
+        example: Example {
+            formula: "=AVERAGE(1; 2; 6)",
+            expected: Expected::Numbers(&[3.0]),
+            source: "(1 + 2 + 6)/3",
+            tolerance: &[],
+        },
         eval: average,
     },
     FunctionSpec {
@@ -157,7 +181,12 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "as x",
         spill: &[],
-        example: Example { formula: "=ABS(-2.5)", expected: Expected::Numbers(&[2.5]), source: "by definition", tolerance: &[] },
+        example: Example {
+            formula: "=ABS(-2.5)",
+            expected: Expected::Numbers(&[2.5]),
+            source: "by definition",
+            tolerance: &[],
+        },
         eval: abs,
     },
     FunctionSpec {
@@ -180,11 +209,21 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         name: "EXP",
         area: "math",
         summary: "e raised to x",
-        params: &[req("x", "exponent", "1", "any; overflow above about 709.78 gives #NUM!")],
+        params: &[req(
+            "x",
+            "exponent",
+            "1",
+            "any; overflow above about 709.78 gives #NUM!",
+        )],
         repeats: false,
         result_unit: "1",
         spill: &[],
-        example: Example { formula: "=EXP(1)", expected: Expected::Numbers(&[core::f64::consts::E]), source: "e = 2.71828182…", tolerance: &[] },
+        example: Example {
+            formula: "=EXP(1)",
+            expected: Expected::Numbers(&[core::f64::consts::E]),
+            source: "e = 2.71828182…",
+            tolerance: &[],
+        },
         eval: exp,
     },
     FunctionSpec {
@@ -195,7 +234,12 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "1",
         spill: &[],
-        example: Example { formula: "=LN(10)", expected: Expected::Numbers(&[core::f64::consts::LN_10]), source: "ln 10 = 2.30258509…", tolerance: &[] },
+        example: Example {
+            formula: "=LN(10)",
+            expected: Expected::Numbers(&[core::f64::consts::LN_10]),
+            source: "ln 10 = 2.30258509…",
+            tolerance: &[],
+        },
         eval: ln,
     },
     FunctionSpec {
@@ -206,7 +250,12 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "1",
         spill: &[],
-        example: Example { formula: "=LOG10(1k)", expected: Expected::Numbers(&[3.0]), source: "log10(1000) = 3", tolerance: &[] },
+        example: Example {
+            formula: "=LOG10(1k)",
+            expected: Expected::Numbers(&[3.0]),
+            source: "log10(1000) = 3",
+            tolerance: &[],
+        },
         eval: log10,
     },
     FunctionSpec {
@@ -217,13 +266,19 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         repeats: false,
         result_unit: "1",
         spill: &[],
-        example: Example { formula: "=PI()", expected: Expected::Numbers(&[core::f64::consts::PI]), source: "π = 3.14159265…", tolerance: &[] },
+        example: Example {
+            formula: "=PI()",
+            expected: Expected::Numbers(&[core::f64::consts::PI]),
+            source: "π = 3.14159265…",
+            tolerance: &[],
+        },
         eval: pi,
     },
     FunctionSpec {
         name: "ROUND",
         area: "math",
-        summary: "Round half away from zero to a number of decimals (negative: to tens, hundreds, …)",
+        summary:
+            "Round half away from zero to a number of decimals (negative: to tens, hundreds, …)",
         params: &[
             req("x", "the number to round", "any", "any"),
             Param {

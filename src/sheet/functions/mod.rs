@@ -131,7 +131,11 @@ impl FunctionSpec {
 
     /// The parameter that argument `i` fills.
     pub fn param(&self, i: usize) -> Option<&'static Param> {
-        self.params.get(i).or(if self.repeats { self.params.last() } else { None })
+        self.params.get(i).or(if self.repeats {
+            self.params.last()
+        } else {
+            None
+        })
     }
 }
 
@@ -180,7 +184,10 @@ impl Args<'_> {
     }
 
     fn fail(&self, kind: ErrorKind, i: usize, what: &str) -> CellError {
-        CellError::new(kind, format!("{}: {}: {}", self.spec.name, self.param_name(i), what))
+        CellError::new(
+            kind,
+            format!("{}: {}: {}", self.spec.name, self.param_name(i), what),
+        )
     }
 
     /// Argument `i`, or [`Value::Empty`] when absent.
@@ -209,8 +216,14 @@ impl Args<'_> {
             Value::Bool(b) => Ok(f64::from(u8::from(*b))),
             Value::Empty => Ok(0.0),
             Value::Error(e) => Err(e.clone()),
-            Value::Text(_) => Err(self.fail(ErrorKind::Value, i, "text where a number is expected")),
-            Value::Array(_) => Err(self.fail(ErrorKind::Value, i, "a range where a single number is expected")),
+            Value::Text(_) => {
+                Err(self.fail(ErrorKind::Value, i, "text where a number is expected"))
+            }
+            Value::Array(_) => Err(self.fail(
+                ErrorKind::Value,
+                i,
+                "a range where a single number is expected",
+            )),
         }
     }
 
@@ -221,7 +234,11 @@ impl Args<'_> {
     pub fn text(&self, i: usize) -> Result<String, CellError> {
         match self.get(i) {
             Value::Error(e) => Err(e.clone()),
-            Value::Array(_) => Err(self.fail(ErrorKind::Value, i, "a range where a single value is expected")),
+            Value::Array(_) => Err(self.fail(
+                ErrorKind::Value,
+                i,
+                "a range where a single value is expected",
+            )),
             v => Ok(v.display()),
         }
     }
@@ -239,8 +256,14 @@ impl Args<'_> {
             Value::Error(e) => Err(e.clone()),
             Value::Text(t) if t.eq_ignore_ascii_case("TRUE") => Ok(true),
             Value::Text(t) if t.eq_ignore_ascii_case("FALSE") => Ok(false),
-            Value::Text(_) => Err(self.fail(ErrorKind::Value, i, "text where TRUE or FALSE is expected")),
-            Value::Array(_) => Err(self.fail(ErrorKind::Value, i, "a range where a single value is expected")),
+            Value::Text(_) => {
+                Err(self.fail(ErrorKind::Value, i, "text where TRUE or FALSE is expected"))
+            }
+            Value::Array(_) => Err(self.fail(
+                ErrorKind::Value,
+                i,
+                "a range where a single value is expected",
+            )),
         }
     }
 
@@ -322,20 +345,40 @@ pub(crate) fn core_error(function: &str, e: crate::Error, names: &[(&str, &str)]
 
 /// Check an argument written with a unit against the parameter's declared unit.
 pub(crate) fn unit_mismatch(spec: &FunctionSpec, i: usize, v: &Value) -> Option<CellError> {
-    let Value::Number(_, Some(given)) = v else { return None };
+    let Value::Number(_, Some(given)) = v else {
+        return None;
+    };
     let p = spec.param(i)?;
     let declared = Unit::from_word(p.unit)?;
     (declared != *given).then(|| {
         CellError::new(
             ErrorKind::Value,
-            format!("{}: {}: given in {} but the parameter is in {}", spec.name, p.name, given.symbol(), declared.symbol()),
+            format!(
+                "{}: {}: given in {} but the parameter is in {}",
+                spec.name,
+                p.name,
+                given.symbol(),
+                declared.symbol()
+            ),
         )
     })
 }
 
 /// Shorthand for a required numeric parameter.
-pub(crate) const fn req(name: &'static str, summary: &'static str, unit: &'static str, range: &'static str) -> Param {
-    Param { name, summary, unit, optional: false, default: None, range }
+pub(crate) const fn req(
+    name: &'static str,
+    summary: &'static str,
+    unit: &'static str,
+    range: &'static str,
+) -> Param {
+    Param {
+        name,
+        summary,
+        unit,
+        optional: false,
+        default: None,
+        range,
+    }
 }
 
 /// Unwrap a helper's result into the cell value.
@@ -472,8 +515,15 @@ mod tests {
     fn names_are_unique_upper_case_and_well_formed() {
         let mut names: Vec<&str> = all().map(|f| f.name).collect();
         for n in &names {
-            assert!(n.chars().all(|c| c.is_ascii_uppercase() || c.is_ascii_digit() || c == '.'), "{n}");
-            assert!(super::super::address::CellRef::parse(n).is_none() || *n == "LOG10", "{n}");
+            assert!(
+                n.chars()
+                    .all(|c| c.is_ascii_uppercase() || c.is_ascii_digit() || c == '.'),
+                "{n}"
+            );
+            assert!(
+                super::super::address::CellRef::parse(n).is_none() || *n == "LOG10",
+                "{n}"
+            );
         }
         let count = names.len();
         names.sort_unstable();
@@ -484,23 +534,54 @@ mod tests {
     #[test]
     fn core_errors_take_the_worksheet_parameter_name() {
         let names = [("a.poles_hz", "poles")];
-        let e = crate::Error::OutOfDomain { param: "a.poles_hz", requirement: "must be greater than zero" };
-        assert_eq!(core_error("LOOP.PM", e, &names).detail, "LOOP.PM: poles: must be greater than zero");
+        let e = crate::Error::OutOfDomain {
+            param: "a.poles_hz",
+            requirement: "must be greater than zero",
+        };
+        assert_eq!(
+            core_error("LOOP.PM", e, &names).detail,
+            "LOOP.PM: poles: must be greater than zero"
+        );
         // A parameter not in the table keeps the core's name, and the kind follows from_core.
-        let e = crate::Error::UnknownName { param: "series", expected: "E3" };
+        let e = crate::Error::UnknownName {
+            param: "series",
+            expected: "E3",
+        };
         let c = core_error("RES.UP", e, &names);
-        assert_eq!((c.kind, c.detail.as_str()), (ErrorKind::Value, "RES.UP: series: unknown name; expected one of E3"));
+        assert_eq!(
+            (c.kind, c.detail.as_str()),
+            (
+                ErrorKind::Value,
+                "RES.UP: series: unknown name; expected one of E3"
+            )
+        );
     }
 
     #[test]
     fn entries_are_complete() {
         for f in all() {
-            assert!(!f.summary.is_empty() && !f.result_unit.is_empty() && !f.example.source.is_empty(), "{}", f.name);
+            assert!(
+                !f.summary.is_empty() && !f.result_unit.is_empty() && !f.example.source.is_empty(),
+                "{}",
+                f.name
+            );
             assert!(f.example.formula.starts_with('='), "{}", f.name);
-            let after_first_optional = f.params.iter().skip_while(|p| !p.optional).all(|p| p.optional);
-            assert!(after_first_optional, "{}: optional parameters come last", f.name);
+            let after_first_optional = f
+                .params
+                .iter()
+                .skip_while(|p| !p.optional)
+                .all(|p| p.optional);
+            assert!(
+                after_first_optional,
+                "{}: optional parameters come last",
+                f.name
+            );
             for p in f.params {
-                assert!(!p.name.is_empty() && !p.unit.is_empty() && !p.range.is_empty(), "{}", f.name);
+                assert!(
+                    !p.name.is_empty() && !p.unit.is_empty() && !p.range.is_empty(),
+                    "{}",
+                    f.name
+                );
             }
         }
         assert!(lookup("fb.gain").is_some());

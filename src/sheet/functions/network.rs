@@ -11,8 +11,8 @@
 
 use super::{req, tri, Args, Example, Expected, FunctionSpec, Param};
 use crate::network::{
-    self as net, best_pairs, monte_carlo, standard_value, Distribution, Metric, MonteCarloSpec, Network, PairSpec,
-    Rounding, Series, Stage, StageSpec,
+    self as net, best_pairs, monte_carlo, standard_value, Distribution, Metric, MonteCarloSpec,
+    Network, PairSpec, Rounding, Series, Stage, StageSpec,
 };
 use crate::sheet::errors::{CellError, ErrorKind};
 use crate::sheet::value::{Array, Unit, Value};
@@ -20,7 +20,11 @@ use alloc::vec;
 use alloc::vec::Vec;
 
 /// Core parameter names that the worksheet spells differently.
-const NAMES: &[(&str, &str)] = &[("tol_r1", "tolerance"), ("tol_r2", "tolerance"), ("pole_hz", "pole")];
+const NAMES: &[(&str, &str)] = &[
+    ("tol_r1", "tolerance"),
+    ("tol_r2", "tolerance"),
+    ("pole_hz", "pole"),
+];
 
 fn core_err(a: &Args<'_>, e: crate::Error) -> Value {
     Value::Error(super::core_error(a.spec.name, e, NAMES))
@@ -38,7 +42,10 @@ fn with_unit(x: f64, unit: Option<Unit>) -> Value {
 }
 
 fn row(items: Vec<Value>) -> Value {
-    Array::row(items).map_or_else(|| Value::error(ErrorKind::Value, "empty result"), Value::Array)
+    Array::row(items).map_or_else(
+        || Value::error(ErrorKind::Value, "empty result"),
+        Value::Array,
+    )
 }
 
 fn series(a: &Args<'_>, i: usize) -> Result<Series, CellError> {
@@ -80,10 +87,18 @@ fn tolerance(a: &Args<'_>) -> Value {
 
 fn pair(a: &Args<'_>) -> Value {
     let network = tri!(from_core(a, tri!(a.text(0)).parse::<Network>()));
-    let mut spec =
-        PairSpec::new(network, tri!(a.number(1)), tri!(series(a, 2)), tri!(a.number(3)), tri!(a.number(4)));
+    let mut spec = PairSpec::new(
+        network,
+        tri!(a.number(1)),
+        tri!(series(a, 2)),
+        tri!(a.number(3)),
+        tri!(a.number(4)),
+    );
     let count = tri!(a.number(5));
-    spec.count = tri!(from_core(a, net::montecarlo::count_from_number("count", count, net::MAX_CANDIDATES)));
+    spec.count = tri!(from_core(
+        a,
+        net::montecarlo::count_from_number("count", count, net::MAX_CANDIDATES)
+    ));
     match best_pairs(&spec) {
         Ok(r) => {
             let mut items = Vec::with_capacity(r.candidates.len() * 4);
@@ -95,7 +110,12 @@ fn pair(a: &Args<'_>) -> Value {
             }
             let rows = u32::try_from(r.candidates.len()).unwrap_or(u32::MAX);
             Array::new(rows, 4, items).map_or_else(
-                || Value::error(ErrorKind::NotAvailable, "RES.PAIR: no pair fits the total-resistance range"),
+                || {
+                    Value::error(
+                        ErrorKind::NotAvailable,
+                        "RES.PAIR: no pair fits the total-resistance range",
+                    )
+                },
                 Value::Array,
             )
         }
@@ -158,9 +178,16 @@ fn worst(a: &Args<'_>) -> Value {
 
 /// The Monte Carlo run of arguments 0…13 (the stage, trials, seed, distribution)
 /// with spec limits `lower`/`upper`.
-fn run(a: &Args<'_>, lower: Option<f64>, upper: Option<f64>) -> Result<(net::MonteCarloResult, Metric), CellError> {
+fn run(
+    a: &Args<'_>,
+    lower: Option<f64>,
+    upper: Option<f64>,
+) -> Result<(net::MonteCarloResult, Metric), CellError> {
     let (stage, metric) = stage(a)?;
-    let trials = from_core(a, net::montecarlo::count_from_number("trials", a.number(11)?, net::MAX_TRIALS))?;
+    let trials = from_core(
+        a,
+        net::montecarlo::count_from_number("trials", a.number(11)?, net::MAX_TRIALS),
+    )?;
     let seed = from_core(a, net::seed_from_number(a.number(12)?))?;
     let dist = from_core(a, Distribution::from_name(&a.text(13)?, 3.0, "k"))?;
     let spec = MonteCarloSpec {
@@ -188,29 +215,79 @@ fn montecarlo(a: &Args<'_>) -> Value {
 fn yield_fraction(a: &Args<'_>) -> Value {
     let (lower, upper) = (tri!(a.number(14)), tri!(a.number(15)));
     let (r, _) = tri!(run(a, Some(lower), Some(upper)));
-    r.stats.yield_fraction.map_or_else(|| Value::error(ErrorKind::NotAvailable, "RES.YIELD: no spec limits"), Value::num)
+    r.stats.yield_fraction.map_or_else(
+        || Value::error(ErrorKind::NotAvailable, "RES.YIELD: no spec limits"),
+        Value::num,
+    )
 }
 
-const VALUE: Param = req("value", "a resistance, capacitance or inductance", "any (kept on the result)", "1e-15 … 1e15");
-const SERIES: Param = req("series", "standard series name, e.g. \"E24\"", "text", "E3, E6, E12, E24, E48, E96, E192");
-const P_STAGE: Param = req("stage", "\"non-inverting\" or \"inverting\"", "text", "non-inverting, inverting");
-const P_METRIC: Param = req("metric", "which quantity", "text", "gain, input-impedance, output-impedance, bandwidth");
-const P_R1: Param = req("r1", "nominal R1 (to ground, or from the input)", "Ω", "> 0");
+const VALUE: Param = req(
+    "value",
+    "a resistance, capacitance or inductance",
+    "any (kept on the result)",
+    "1e-15 … 1e15",
+);
+const SERIES: Param = req(
+    "series",
+    "standard series name, e.g. \"E24\"",
+    "text",
+    "E3, E6, E12, E24, E48, E96, E192",
+);
+const P_STAGE: Param = req(
+    "stage",
+    "\"non-inverting\" or \"inverting\"",
+    "text",
+    "non-inverting, inverting",
+);
+const P_METRIC: Param = req(
+    "metric",
+    "which quantity",
+    "text",
+    "gain, input-impedance, output-impedance, bandwidth",
+);
+const P_R1: Param = req(
+    "r1",
+    "nominal R1 (to ground, or from the input)",
+    "Ω",
+    "> 0",
+);
 const P_R2: Param = req("r2", "nominal R2 (output to inverting input)", "Ω", "> 0");
-const P_TOL: Param = req("tolerance", "tolerance of R1 and R2 as a fraction (1% or 0.01)", "1", "0 < tol < 1");
+const P_TOL: Param = req(
+    "tolerance",
+    "tolerance of R1 and R2 as a fraction (1% or 0.01)",
+    "1",
+    "0 < tol < 1",
+);
 const P_AMIN: Param = req("a_min", "least open-loop gain", "V/V", "> 0");
-const P_ATYP: Param = req("a_typ", "typical open-loop gain", "V/V", "a_min <= a_typ <= a_max");
+const P_ATYP: Param = req(
+    "a_typ",
+    "typical open-loop gain",
+    "V/V",
+    "a_min <= a_typ <= a_max",
+);
 const P_AMAX: Param = req("a_max", "largest open-loop gain", "V/V", ">= a_typ");
 const P_RI: Param = req("ri", "amplifier input resistance", "Ω", "> 0");
 const P_RO: Param = req("ro", "amplifier output resistance", "Ω", ">= 0");
 const P_POLE: Param = req("pole", "open-loop dominant pole", "Hz", "> 0");
 const P_TRIALS: Param = req("trials", "number of trials", "1", "2 … 1000000");
-const P_SEED: Param = req("seed", "generator seed (same seed, same result)", "1", "whole number 0 … 2^53 − 1");
-const P_DIST: Param =
-    req("distribution", "\"uniform\" over the band, or \"normal\" with the band at 3 σ", "text", "uniform, normal");
-const STAGE: &[Param] = &[P_STAGE, P_METRIC, P_R1, P_R2, P_TOL, P_AMIN, P_ATYP, P_AMAX, P_RI, P_RO, P_POLE];
+const P_SEED: Param = req(
+    "seed",
+    "generator seed (same seed, same result)",
+    "1",
+    "whole number 0 … 2^53 − 1",
+);
+const P_DIST: Param = req(
+    "distribution",
+    "\"uniform\" over the band, or \"normal\" with the band at 3 σ",
+    "text",
+    "uniform, normal",
+);
+const STAGE: &[Param] = &[
+    P_STAGE, P_METRIC, P_R1, P_R2, P_TOL, P_AMIN, P_ATYP, P_AMAX, P_RI, P_RO, P_POLE,
+];
 const MC: &[Param] = &[
-    P_STAGE, P_METRIC, P_R1, P_R2, P_TOL, P_AMIN, P_ATYP, P_AMAX, P_RI, P_RO, P_POLE, P_TRIALS, P_SEED, P_DIST,
+    P_STAGE, P_METRIC, P_R1, P_R2, P_TOL, P_AMIN, P_ATYP, P_AMAX, P_RI, P_RO, P_POLE, P_TRIALS,
+    P_SEED, P_DIST,
 ];
 const YIELD: &[Param] = &[
     P_STAGE,
@@ -227,8 +304,18 @@ const YIELD: &[Param] = &[
     P_TRIALS,
     P_SEED,
     P_DIST,
-    req("lower", "lower spec limit, in the metric's unit", "as metric", "finite"),
-    req("upper", "upper spec limit, in the metric's unit", "as metric", ">= lower"),
+    req(
+        "lower",
+        "lower spec limit, in the metric's unit",
+        "as metric",
+        "finite",
+    ),
+    req(
+        "upper",
+        "upper spec limit, in the metric's unit",
+        "as metric",
+        ">= lower",
+    ),
 ];
 
 /// The network area's table.

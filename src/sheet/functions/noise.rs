@@ -16,14 +16,49 @@ use crate::sheet::value::{Array, Unit, Value};
 use alloc::vec;
 use alloc::vec::Vec;
 
-const P_KIND: Param = req("kind", "\"non-inverting\" or \"inverting\"", "text", "non-inverting, inverting");
-const P_RF: Param = req("rf", "feedback resistor, output to inverting input", "Ω", ">= 0 (> 0 for inverting)");
-const P_RG: Param = req("rg", "inverting input to ground (inverting: input resistor plus source)", "Ω", "> 0");
+const P_KIND: Param = req(
+    "kind",
+    "\"non-inverting\" or \"inverting\"",
+    "text",
+    "non-inverting, inverting",
+);
+const P_RF: Param = req(
+    "rf",
+    "feedback resistor, output to inverting input",
+    "Ω",
+    ">= 0 (> 0 for inverting)",
+);
+const P_RG: Param = req(
+    "rg",
+    "inverting input to ground (inverting: input resistor plus source)",
+    "Ω",
+    "> 0",
+);
 const P_RP: Param = req("rp", "resistance at the non-inverting input", "Ω", ">= 0");
-const P_EN: Param = req("en", "amplifier white voltage noise density", "V/√Hz", ">= 0");
-const P_ENC: Param = req("en_corner", "1/f corner of the voltage noise (0: none)", "Hz", ">= 0");
-const P_IN: Param = req("in", "amplifier white current noise density", "A/√Hz", ">= 0");
-const P_INC: Param = req("in_corner", "1/f corner of the current noise (0: none)", "Hz", ">= 0");
+const P_EN: Param = req(
+    "en",
+    "amplifier white voltage noise density",
+    "V/√Hz",
+    ">= 0",
+);
+const P_ENC: Param = req(
+    "en_corner",
+    "1/f corner of the voltage noise (0: none)",
+    "Hz",
+    ">= 0",
+);
+const P_IN: Param = req(
+    "in",
+    "amplifier white current noise density",
+    "A/√Hz",
+    ">= 0",
+);
+const P_INC: Param = req(
+    "in_corner",
+    "1/f corner of the current noise (0: none)",
+    "Hz",
+    ">= 0",
+);
 const P_TEMP: Param = req("temperature", "resistor temperature", "K", "> 0");
 
 /// Core parameter names that the worksheet spells differently.
@@ -57,14 +92,23 @@ fn with_unit(x: f64, unit: Unit) -> Value {
 }
 
 fn row(items: Vec<Value>) -> Value {
-    Array::row(items).map_or_else(|| Value::error(ErrorKind::Value, "empty result"), Value::Array)
+    Array::row(items).map_or_else(
+        || Value::error(ErrorKind::Value, "empty result"),
+        Value::Array,
+    )
 }
 
 /// The stage and amplifier of arguments 0…8.
 fn stage(a: &Args<'_>) -> Result<(Stage, AmplifierNoise), CellError> {
     let kind = from_core(a, a.text(0)?.parse::<StageKind>())?;
-    let stage = from_core(a, Stage::new(kind, a.number(1)?, a.number(2)?, a.number(3)?, a.number(8)?))?;
-    let amp = from_core(a, AmplifierNoise::new(a.number(4)?, a.number(5)?, a.number(6)?, a.number(7)?))?;
+    let stage = from_core(
+        a,
+        Stage::new(kind, a.number(1)?, a.number(2)?, a.number(3)?, a.number(8)?),
+    )?;
+    let amp = from_core(
+        a,
+        AmplifierNoise::new(a.number(4)?, a.number(5)?, a.number(6)?, a.number(7)?),
+    )?;
     Ok((stage, amp))
 }
 
@@ -101,7 +145,10 @@ fn integrated(a: &Args<'_>) -> Value {
         Value::Empty => f64::INFINITY,
         _ => tri!(a.number(11)),
     };
-    let h = tri!(from_core(a, ClosedLoopResponse::new(s.noise_gain(), gbw, &[])));
+    let h = tri!(from_core(
+        a,
+        ClosedLoopResponse::new(s.noise_gain(), gbw, &[])
+    ));
     match nz::integrated_output_noise(&s, &amp, &h, f_low, f_high) {
         Ok(n) => row(vec![
             with_unit(n.output_rms, Unit::Volt),
