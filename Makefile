@@ -6,7 +6,7 @@ PORT ?= 8080
 PY := $(or $(LOOPWRIGHT_VENV),$(HOME)/.cache/loopwright/venv)/bin/python
 export CARGO_TERM_COLOR := never
 
-.PHONY: serve test bench bench-quick setup setup-page build single package test-native test-reference test-browser test-page test-package
+.PHONY: serve test lint bench bench-quick setup setup-page build single package test-native test-reference test-browser test-page test-package
 
 serve: setup-page build
 	node scripts/serve.mjs www $(PORT)
@@ -26,8 +26,14 @@ single: build
 package:
 	./scripts/build-package.sh
 
-test: setup test-native test-reference test-browser single package bench-quick test-page test-package
+test: setup lint test-native test-reference test-browser single package bench-quick test-page test-package
 	@echo "make test: all suites passed"
+
+# Gates: the committed formatting (rustfmt.toml, biome.json) and lints with warnings denied.
+lint:
+	cargo fmt --check
+	cargo clippy --all-targets --features wasm -- -D warnings
+	tests/js/node_modules/.bin/biome check .
 
 test-native:
 	cargo build --no-default-features

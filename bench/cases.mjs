@@ -42,7 +42,7 @@ function plainJsSweep(points) {
       im = ni;
     }
     db[i] = 10 * Math.log10(re * re + im * im);
-    let p = (Math.atan2(im, re) * 180) / Math.PI;
+    const p = (Math.atan2(im, re) * 180) / Math.PI;
     if (i > 0) {
       while (p + turns - prev > 180) turns -= 360;
       while (p + turns - prev < -180) turns += 360;
@@ -81,9 +81,17 @@ export const CASES = [
       const d = 1 + t;
       const af = a / d;
       return {
-        topology: 'series-shunt', gainUnit: 'V/V', betaUnit: 'V/V', closedLoopGain: af, loopGain: t,
-        feedbackAmount: d, feedbackAmountDb: 20 * Math.log10(Math.abs(d)), sensitivity: 1 / d,
-        idealGain: 1 / beta, gainError: af * beta - 1, sense: Math.abs(d) > 1 ? 'negative' : 'positive',
+        topology: 'series-shunt',
+        gainUnit: 'V/V',
+        betaUnit: 'V/V',
+        closedLoopGain: af,
+        loopGain: t,
+        feedbackAmount: d,
+        feedbackAmountDb: 20 * Math.log10(Math.abs(d)),
+        sensitivity: 1 / d,
+        idealGain: 1 / beta,
+        gainError: af * beta - 1,
+        sense: Math.abs(d) > 1 ? 'negative' : 'positive',
       };
     },
     target: 'within 2x of inline plain JS',
@@ -102,7 +110,10 @@ export const CASES = [
     key: 'freq_margins_poles',
     area: 'freq',
     what: 'phase and gain margins (every crossing refined) + closed-loop poles',
-    make: (lw) => () => { lw.stabilityMargins(FREQ_A, FREQ_BETA); lw.closedLoopPoles(FREQ_A, FREQ_BETA); },
+    make: (lw) => () => {
+      lw.stabilityMargins(FREQ_A, FREQ_BETA);
+      lw.closedLoopPoles(FREQ_A, FREQ_BETA);
+    },
     python: true,
     pythonLabel: 'python-control',
     target: '< 0.2 ms',
@@ -111,8 +122,30 @@ export const CASES = [
     key: 'monte_carlo_1e6',
     area: 'network',
     what: 'Monte Carlo, 1 000 000 trials of Af (2 resistors 1 % + A spread), stats, percentiles, yield, histogram',
-    make: (lw) => () => lw.monteCarlo('inverting', 10e3, 47e3, 0.01, 0.01, 5e4, 1e5, 2e5, 1e6, 75, 5,
-      'uniform', 3, 'uniform', 3, 'gain', 1_000_000, 42, -4.72, -4.68, 50),
+    make: (lw) => () =>
+      lw.monteCarlo(
+        'inverting',
+        10e3,
+        47e3,
+        0.01,
+        0.01,
+        5e4,
+        1e5,
+        2e5,
+        1e6,
+        75,
+        5,
+        'uniform',
+        3,
+        'uniform',
+        3,
+        'gain',
+        1_000_000,
+        42,
+        -4.72,
+        -4.68,
+        50,
+      ),
     python: true,
     pythonLabel: 'numpy, vectorised',
     heavy: true,
@@ -122,7 +155,8 @@ export const CASES = [
     key: 'best_pairs_e192',
     area: 'network',
     what: 'best E192 resistor pair for gain 7.77 over three decades (1 kΩ … 1 MΩ)',
-    make: (lw) => () => lw.bestPairs('non-inverting', 7.77, 'E192', 1e3, 1e6, undefined, undefined, 'none', 10),
+    make: (lw) => () =>
+      lw.bestPairs('non-inverting', 7.77, 'E192', 1e3, 1e6, undefined, undefined, 'none', 10),
     target: '< 2 ms',
   },
   {

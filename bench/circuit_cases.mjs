@@ -39,7 +39,8 @@ export const CIRCUIT_CASES = [
     key: 'circuit_two_port',
     area: 'circuit',
     what: 'two-port method beside the exact solution, one series-shunt stage',
-    make: (lw) => (i) => lw.circuitTwoPort('series-shunt', 1e5, 1e3, 1e4 + i, 0, 0, 1e6, 1e3, 0, 1e4, 2e3, 0),
+    make: (lw) => (i) =>
+      lw.circuitTwoPort('series-shunt', 1e5, 1e3, 1e4 + i, 0, 0, 1e6, 1e3, 0, 1e4, 2e3, 0),
     target: '< 0.2 ms',
   },
 ];

@@ -21,7 +21,10 @@ function calibrate(fn, minSampleMs) {
  * alike: the ratios between them are what the table reports.
  * `quick` keeps the run short (the test suite uses it so the benches cannot rot).
  */
-export function timeInterleaved(fns, { quick = false, minSampleMs = quick ? 2 : 20, samples = quick ? 3 : 15 } = {}) {
+export function timeInterleaved(
+  fns,
+  { quick = false, minSampleMs = quick ? 2 : 20, samples = quick ? 3 : 15 } = {},
+) {
   const batches = fns.map((fn) => calibrate(fn, minSampleMs));
   const times = fns.map(() => []);
   for (let s = 0; s < samples; s++) {

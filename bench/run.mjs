@@ -17,7 +17,8 @@ const quick = process.argv.includes('--quick');
 const lw = await import(pathToFileURL(join(root, 'pkg', 'node.mjs')).href);
 
 function pythonPeers() {
-  const venv = process.env.LOOPWRIGHT_VENV ?? join(process.env.HOME ?? '', '.cache', 'loopwright', 'venv');
+  const venv =
+    process.env.LOOPWRIGHT_VENV ?? join(process.env.HOME ?? '', '.cache', 'loopwright', 'venv');
   const py = join(venv, 'bin', 'python');
   if (!existsSync(py)) return { error: 'reference venv missing (run scripts/setup.sh)' };
   try {
@@ -34,9 +35,18 @@ function pythonPeers() {
 
 function sizes() {
   const wasm = (...dir) => readFileSync(join(root, 'pkg', 'web', ...dir, 'loopwright_bg.wasm'));
-  const row = (name, bytes, target) => [name, bytes.length, gzipSync(bytes, { level: 9 }).length, target];
+  const row = (name, bytes, target) => [
+    name,
+    bytes.length,
+    gzipSync(bytes, { level: 9 }).length,
+    target,
+  ];
   const rows = [
-    row('wasm, lite module (feedback, freq, network, distortion, noise; embedded panel, loopwright/lite)', wasm('lite'), '< 150 KB gzipped'),
+    row(
+      'wasm, lite module (feedback, freq, network, distortion, noise; embedded panel, loopwright/lite)',
+      wasm('lite'),
+      '< 150 KB gzipped',
+    ),
     row('wasm, full module (+ circuit solver and worksheet; the page, loopwright)', wasm(), ''),
   ];
   const single = join(root, 'dist', 'loopwright.html');
@@ -59,7 +69,11 @@ async function coldStart() {
       const page = await context.newPage();
       await page.goto(pathToFileURL(single).href);
       await page.waitForSelector('html[data-ready="true"]');
-      times.push(await page.evaluate(() => performance.getEntriesByName('loopwright-first-result')[0]?.startTime ?? NaN));
+      times.push(
+        await page.evaluate(
+          () => performance.getEntriesByName('loopwright-first-result')[0]?.startTime ?? NaN,
+        ),
+      );
       await context.close();
     }
   } finally {
@@ -71,12 +85,19 @@ async function coldStart() {
 
 const python = pythonPeers();
 const lines = [];
-const say = (s = '') => { lines.push(s); console.log(s); };
+const say = (s = '') => {
+  lines.push(s);
+  console.log(s);
+};
 
 say(`## Benchmarks${quick ? ' (quick mode: too short to trust)' : ''}`);
 say();
-say(`Machine: ${cpus().length} × ${cpus()[0]?.model ?? 'unknown CPU'}, ${(totalmem() / 2 ** 30).toFixed(0)} GiB, ${platform()} ${release()}, Node ${process.version}.`);
-say('Median of repeated samples on a noisy shared machine: read the ratios, not the absolute times.');
+say(
+  `Machine: ${cpus().length} × ${cpus()[0]?.model ?? 'unknown CPU'}, ${(totalmem() / 2 ** 30).toFixed(0)} GiB, ${platform()} ${release()}, Node ${process.version}.`,
+);
+say(
+  'Median of repeated samples on a noisy shared machine: read the ratios, not the absolute times.',
+);
 say();
 say('| area | case | loopwright (wasm, Node) | peer | peer time | loopwright ÷ peer | target |');
 say('|---|---|---|---|---|---|---|');
@@ -84,7 +105,10 @@ for (const c of CASES) {
   const options = { quick, ...(c.heavy ? { minSampleMs: 1, samples: quick ? 1 : 7 } : {}) };
   // loopwright and its plain-JS peer are sampled in turn, so that their ratio is not
   // skewed by the machine's load changing between the two.
-  const [ours, plain] = timeInterleaved(c.plainJs ? [c.make(lw), c.plainJs()] : [c.make(lw)], options);
+  const [ours, plain] = timeInterleaved(
+    c.plainJs ? [c.make(lw), c.plainJs()] : [c.make(lw)],
+    options,
+  );
   const peers = [];
   if (c.plainJs) peers.push(['plain JS', plain]);
   if (c.python) {
@@ -94,7 +118,9 @@ for (const c of CASES) {
   if (peers.length === 0) peers.push(['—', NaN]);
   for (const [name, t] of peers) {
     const ratio = Number.isFinite(t) ? (ours / t).toFixed(2) : '—';
-    say(`| ${c.area} | ${c.what} | ${formatNs(ours)} | ${name} | ${formatNs(t)} | ${ratio} | ${c.target} |`);
+    say(
+      `| ${c.area} | ${c.what} | ${formatNs(ours)} | ${name} | ${formatNs(t)} | ${ratio} | ${c.target} |`,
+    );
   }
 }
 if (python.error) say(`\nPython peers not run: ${python.error}`);
@@ -105,6 +131,8 @@ for (const [name, raw, gz, target] of sizes()) say(`| ${name} | ${raw} | ${gz} |
 const cold = await coldStart();
 if (cold !== null) {
   say();
-  say(`Cold start of dist/loopwright.html in headless Chromium to the first computed result: ${cold.toFixed(0)} ms (median; target < 300 ms).`);
+  say(
+    `Cold start of dist/loopwright.html in headless Chromium to the first computed result: ${cold.toFixed(0)} ms (median; target < 300 ms).`,
+  );
 }
 if (!quick) writeFileSync(join(root, 'bench', 'RESULTS.md'), `${lines.join('\n')}\n`);

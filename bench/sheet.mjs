@@ -45,6 +45,12 @@ for (let i = 0; i < (quick ? 20 : 400); i++) {
   reached = changed.length;
 }
 const cells = doc.split('\n').length - 8;
-console.log(`full recalculation of ${cells} cells: median ${median(recalc).toFixed(2)} ms (target < 20 ms)`);
-console.log(`load document of ${cells} cells (parse every input, build the graph, evaluate): median ${median(full).toFixed(2)} ms`);
-console.log(`edit reaching ${reached - 1} dependents: median ${(median(edit) * 1000).toFixed(0)} µs (target < 1000 µs)`);
+console.log(
+  `full recalculation of ${cells} cells: median ${median(recalc).toFixed(2)} ms (target < 20 ms)`,
+);
+console.log(
+  `load document of ${cells} cells (parse every input, build the graph, evaluate): median ${median(full).toFixed(2)} ms`,
+);
+console.log(
+  `edit reaching ${reached - 1} dependents: median ${(median(edit) * 1000).toFixed(0)} µs (target < 1000 µs)`,
+);

@@ -15,6 +15,7 @@ export * from './loopwright_glue.js';
 export { default } from './loopwright_glue.js';
 
 function checked(x) {
+  // biome-ignore lint/suspicious/noSelfCompare: the fastest NaN test on the scalar hot path
   if (x === x) return x;
   throw glue.takeError() ?? new Error('loopwright: a scalar call failed without an error');
 }
@@ -141,8 +142,8 @@ export function summarizeFeedback(topologyName, a, beta) {
     feedbackAmount: v[2],
     feedbackAmountDb: v[3],
     sensitivity: v[4],
-    idealGain: v[5] === v[5] ? v[5] : null,
-    gainError: v[6] === v[6] ? v[6] : null,
+    idealGain: Number.isNaN(v[5]) ? null : v[5],
+    gainError: Number.isNaN(v[6]) ? null : v[6],
     sense: labels.senses[v[7]],
   };
 }

@@ -20,7 +20,10 @@ const wasm = readFileSync(join(root, 'www', 'pkg', 'loopwright_bg.wasm'));
 const inlineWasm = {
   name: 'inline-wasm',
   setup(build) {
-    build.onResolve({ filter: /wasm-source\.js$/ }, () => ({ path: 'wasm-source', namespace: 'inline-wasm' }));
+    build.onResolve({ filter: /wasm-source\.js$/ }, () => ({
+      path: 'wasm-source',
+      namespace: 'inline-wasm',
+    }));
     build.onLoad({ filter: /.*/, namespace: 'inline-wasm' }, () => ({
       contents: `const WASM_BASE64 = ${JSON.stringify(wasm.toString('base64'))};
 export function wasmSource() {
@@ -55,14 +58,23 @@ const replaceOnce = (from, to) => {
   html = html.replace(from, () => to);
 };
 const icon = readFileSync(join(root, 'www', 'favicon.svg')).toString('base64');
-replaceOnce('<link rel="icon" href="favicon.svg">', `<link rel="icon" href="data:image/svg+xml;base64,${icon}">`);
+replaceOnce(
+  '<link rel="icon" href="favicon.svg">',
+  `<link rel="icon" href="data:image/svg+xml;base64,${icon}">`,
+);
 replaceOnce('<link rel="stylesheet" href="css/style.css">', `<style>${style}</style>`);
-replaceOnce('<script type="module" src="js/main.js"></script>', `<script type="module">${script}</script>`);
+replaceOnce(
+  '<script type="module" src="js/main.js"></script>',
+  `<script type="module">${script}</script>`,
+);
 html = html.replace(
   /<meta http-equiv="Content-Security-Policy" content="[^"]*">/,
-  () => `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; script-src ${hash(script)} 'wasm-unsafe-eval'; style-src ${hash(style)}; img-src data:; object-src 'none'; base-uri 'none'; form-action 'none'">`,
+  () =>
+    `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; script-src ${hash(script)} 'wasm-unsafe-eval'; style-src ${hash(style)}; img-src data:; object-src 'none'; base-uri 'none'; form-action 'none'">`,
 );
 
 mkdirSync(join(root, 'dist'), { recursive: true });
 writeFileSync(join(root, 'dist', 'loopwright.html'), html);
-console.error(`build-single: dist/loopwright.html ${Buffer.byteLength(html)} bytes (wasm ${wasm.length} bytes inlined)`);
+console.error(
+  `build-single: dist/loopwright.html ${Buffer.byteLength(html)} bytes (wasm ${wasm.length} bytes inlined)`,
+);

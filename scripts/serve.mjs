@@ -24,7 +24,8 @@ export function startServer(root, port = 0) {
     try {
       const path = decodeURIComponent(new URL(req.url, 'http://localhost').pathname);
       let file = normalize(join(base, path));
-      if (file !== base && !file.startsWith(base + sep)) throw Object.assign(new Error('outside root'), { status: 403 });
+      if (file !== base && !file.startsWith(base + sep))
+        throw Object.assign(new Error('outside root'), { status: 403 });
       if ((await stat(file)).isDirectory()) file = join(file, 'index.html');
       const body = await readFile(file);
       res.writeHead(200, {
@@ -40,7 +41,9 @@ export function startServer(root, port = 0) {
   });
   return new Promise((ok, fail) => {
     server.once('error', fail);
-    server.listen(port, '127.0.0.1', () => ok({ server, url: `http://127.0.0.1:${server.address().port}/` }));
+    server.listen(port, '127.0.0.1', () =>
+      ok({ server, url: `http://127.0.0.1:${server.address().port}/` }),
+    );
   });
 }
 

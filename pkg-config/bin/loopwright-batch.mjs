@@ -23,7 +23,13 @@ Writes the input columns, then the results, then an "error" column.
 const STEPS = {
   stage: {
     needs: ['a', 'beta'],
-    columns: ['closed_loop_gain', 'loop_gain', 'feedback_amount', 'feedback_amount_db', 'sensitivity'],
+    columns: [
+      'closed_loop_gain',
+      'loop_gain',
+      'feedback_amount',
+      'feedback_amount_db',
+      'sensitivity',
+    ],
     run: (v) => {
       const s = lw.summarizeFeedback(v.topology ?? 'series-shunt', v.a, v.beta);
       return [s.closedLoopGain, s.loopGain, s.feedbackAmount, s.feedbackAmountDb, s.sensitivity];
@@ -33,7 +39,17 @@ const STEPS = {
     needs: ['a', 'beta', 'zi', 'zo'],
     columns: ['input_impedance', 'output_impedance'],
     run: (v) => {
-      const z = lw.impedancesWithFeedback(v.topology ?? 'series-shunt', v.zi, 0, v.zo, 0, v.a, 0, v.beta, 0);
+      const z = lw.impedancesWithFeedback(
+        v.topology ?? 'series-shunt',
+        v.zi,
+        0,
+        v.zo,
+        0,
+        v.a,
+        0,
+        v.beta,
+        0,
+      );
       return [z.input.re, z.output.re];
     },
   },
@@ -42,7 +58,8 @@ const STEPS = {
     columns: ['beta_for_target', 'min_open_loop_gain'],
     run: (v) => {
       const beta = lw.betaForGain(v.a, v.target_gain);
-      const aMin = v.gain_error === undefined ? '' : lw.minOpenLoopGain(1 / v.target_gain, v.gain_error);
+      const aMin =
+        v.gain_error === undefined ? '' : lw.minOpenLoopGain(1 / v.target_gain, v.gain_error);
       return [beta, aMin];
     },
   },
@@ -66,12 +83,16 @@ export function splitCsv(line) {
   for (let i = 0; i < line.length; i++) {
     const c = line[i];
     if (quoted) {
-      if (c === '"' && line[i + 1] === '"') { field += '"'; i++; }
-      else if (c === '"') quoted = false;
+      if (c === '"' && line[i + 1] === '"') {
+        field += '"';
+        i++;
+      } else if (c === '"') quoted = false;
       else field += c;
     } else if (c === '"') quoted = true;
-    else if (c === ',') { fields.push(field); field = ''; }
-    else field += c;
+    else if (c === ',') {
+      fields.push(field);
+      field = '';
+    } else field += c;
   }
   fields.push(field);
   return fields;
@@ -79,25 +100,40 @@ export function splitCsv(line) {
 
 /** Quote a field when it holds a comma, a quote or a line break. */
 export function csvField(value) {
-  const s = typeof value === 'number' ? (Number.isFinite(value) ? String(value) : '') : String(value ?? '');
+  const s =
+    typeof value === 'number' ? (Number.isFinite(value) ? String(value) : '') : String(value ?? '');
   return /[",\r\n]/.test(s) ? `"${s.replace(/"/g, '""')}"` : s;
 }
 
 function parseArgs(argv) {
-  const opts = { strict: false, progress: process.stderr.isTTY, out: null, compute: null, input: null };
+  const opts = {
+    strict: false,
+    progress: process.stderr.isTTY,
+    out: null,
+    compute: null,
+    input: null,
+  };
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
     if (a === '--strict') opts.strict = true;
     else if (a === '--progress') opts.progress = true;
     else if (a === '-o') opts.out = argv[++i];
-    else if (a === '--compute') opts.compute = (argv[++i] ?? '').split(',').map((s) => s.trim()).filter(Boolean);
-    else if (a === '-h' || a === '--help') { console.log(USAGE); process.exit(0); }
-    else if (a.startsWith('-')) throw new Error(`unknown option ${a}`);
+    else if (a === '--compute')
+      opts.compute = (argv[++i] ?? '')
+        .split(',')
+        .map((s) => s.trim())
+        .filter(Boolean);
+    else if (a === '-h' || a === '--help') {
+      console.log(USAGE);
+      process.exit(0);
+    } else if (a.startsWith('-')) throw new Error(`unknown option ${a}`);
     else if (opts.input === null) opts.input = a;
     else throw new Error(`more than one input file: ${a}`);
   }
   if (opts.input === null) throw new Error('no input file');
-  for (const step of opts.compute ?? []) if (!(step in STEPS)) throw new Error(`unknown --compute step "${step}"; known: ${Object.keys(STEPS).join(', ')}`);
+  for (const step of opts.compute ?? [])
+    if (!(step in STEPS))
+      throw new Error(`unknown --compute step "${step}"; known: ${Object.keys(STEPS).join(', ')}`);
   return opts;
 }
 
@@ -110,7 +146,9 @@ async function main() {
     process.exit(2);
   }
   const out = opts.out ? createWriteStream(opts.out) : process.stdout;
-  const write = async (text) => { if (!out.write(text)) await once(out, 'drain'); };
+  const write = async (text) => {
+    if (!out.write(text)) await once(out, 'drain');
+  };
   const lines = createInterface({ input: createReadStream(opts.input), crlfDelay: Infinity });
 
   let header = null;
@@ -127,16 +165,21 @@ async function main() {
     if (header === null) {
       header = splitCsv(line).map((h) => h.trim().toLowerCase());
       const have = new Set(header);
-      const chosen = opts.compute ?? Object.keys(STEPS).filter((k) => STEPS[k].needs.every((n) => have.has(n)));
+      const chosen =
+        opts.compute ?? Object.keys(STEPS).filter((k) => STEPS[k].needs.every((n) => have.has(n)));
       for (const k of chosen) {
         const missing = STEPS[k].needs.filter((n) => !have.has(n));
         if (missing.length) {
-          console.error(`loopwright-batch: --compute ${k} needs the column(s) ${missing.join(', ')}`);
+          console.error(
+            `loopwright-batch: --compute ${k} needs the column(s) ${missing.join(', ')}`,
+          );
           process.exit(2);
         }
       }
       steps = chosen.map((k) => STEPS[k]);
-      await write(`row,${header.map(csvField).join(',')},${steps.flatMap((s) => s.columns).join(',')},error\n`);
+      await write(
+        `row,${header.map(csvField).join(',')},${steps.flatMap((s) => s.columns).join(',')},error\n`,
+      );
       continue;
     }
     if (line.trim() === '') continue;
@@ -145,29 +188,51 @@ async function main() {
     const results = steps.map((s) => s.columns.map(() => ''));
     let error = '';
     try {
-      if (fields.length !== header.length) throw new Error(`row has ${fields.length} fields, the header has ${header.length}`);
+      if (fields.length !== header.length)
+        throw new Error(`row has ${fields.length} fields, the header has ${header.length}`);
       const values = {};
       header.forEach((name, i) => {
         const text = fields[i].trim();
         if (text === '') return;
-        if (!NUMERIC.has(name)) { values[name] = text; return; }
+        if (!NUMERIC.has(name)) {
+          values[name] = text;
+          return;
+        }
         const x = Number(text);
-        if (!Number.isFinite(x)) throw Object.assign(new Error(`"${text}" is not a number`), { param: name });
+        if (!Number.isFinite(x))
+          throw Object.assign(new Error(`"${text}" is not a number`), { param: name });
         values[name] = x;
       });
-      steps.forEach((s, i) => { results[i] = s.run(values); });
+      steps.forEach((s, i) => {
+        results[i] = s.run(values);
+      });
     } catch (err) {
       errors++;
-      error = err.param ? `${err.code ?? 'bad_value'} ${err.param}: ${err.message.replace(/^\S+: /, '')}` : err.message;
+      error = err.param
+        ? `${err.code ?? 'bad_value'} ${err.param}: ${err.message.replace(/^\S+: /, '')}`
+        : err.message;
     }
-    await write(`${rowNumber},${fields.map(csvField).join(',')},${results.flat().map(csvField).join(',')},${csvField(error)}\n`);
-    if (opts.progress && rowNumber % 10000 === 0) process.stderr.write(`loopwright-batch: ${rowNumber} rows, ${errors} with errors\r`);
+    await write(
+      `${rowNumber},${fields.map(csvField).join(',')},${results.flat().map(csvField).join(',')},${csvField(error)}\n`,
+    );
+    if (opts.progress && rowNumber % 10000 === 0)
+      process.stderr.write(`loopwright-batch: ${rowNumber} rows, ${errors} with errors\r`);
   }
-  if (opts.progress) process.stderr.write(`loopwright-batch: ${rowNumber} rows, ${errors} with errors\n`);
-  if (opts.out) { out.end(); await once(out, 'finish'); }
+  if (opts.progress)
+    process.stderr.write(`loopwright-batch: ${rowNumber} rows, ${errors} with errors\n`);
+  if (opts.out) {
+    out.end();
+    await once(out, 'finish');
+  }
   process.exitCode = opts.strict && errors > 0 ? 1 : 0;
 }
 
-if (import.meta.url === `file://${process.argv[1]}` || process.argv[1]?.endsWith('loopwright-batch')) {
-  main().catch((err) => { console.error(`loopwright-batch: ${err.message}`); process.exit(2); });
+if (
+  import.meta.url === `file://${process.argv[1]}` ||
+  process.argv[1]?.endsWith('loopwright-batch')
+) {
+  main().catch((err) => {
+    console.error(`loopwright-batch: ${err.message}`);
+    process.exit(2);
+  });
 }

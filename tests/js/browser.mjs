@@ -12,8 +12,14 @@ export const ROOT = join(here, '..', '..');
 export const ARTIFACTS = join(ROOT, 'tests', 'artifacts');
 
 const CHROMIUM_FLAGS = [
-  '--headless', '--no-sandbox', '--disable-gpu', '--no-first-run', '--disable-quic',
-  '--disable-background-networking', '--disable-component-update', '--disable-sync',
+  '--headless',
+  '--no-sandbox',
+  '--disable-gpu',
+  '--no-first-run',
+  '--disable-quic',
+  '--disable-background-networking',
+  '--disable-component-update',
+  '--disable-sync',
 ];
 
 export async function launch() {
@@ -38,7 +44,9 @@ export async function openPage(browser, url, { width = 1280, height = 900, allow
   const page = await context.newPage();
   const problems = [];
   const foreign = [];
-  page.on('console', (msg) => { if (msg.type() === 'error') problems.push(`console: ${msg.text()}`); });
+  page.on('console', (msg) => {
+    if (msg.type() === 'error') problems.push(`console: ${msg.text()}`);
+  });
   page.on('pageerror', (err) => problems.push(`pageerror: ${err.message}`));
   await context.route('**/*', (route) => {
     const u = route.request().url();

@@ -26,11 +26,16 @@ after(async () => {
 async function smoke(address) {
   await ff.go(address);
   await ff.waitFor("return document.documentElement.dataset.ready === 'true'");
-  assert.equal(await ff.run("return document.getElementById('load-status').dataset.state"), 'ready');
+  assert.equal(
+    await ff.run("return document.getElementById('load-status').dataset.state"),
+    'ready',
+  );
   // A = 10k, β = 99.9m: D = 1000, Af = 10 (Sedra & Smith, 7th ed., Example 10.1, from memory).
   await ff.clearAndType('#card-stage-a', '10k');
   await ff.clearAndType('#card-stage-beta', '99.9m');
-  await ff.waitFor(`return document.querySelector('#card-stage dd[data-name="af"] output')?.textContent === '10.00'`);
+  await ff.waitFor(
+    `return document.querySelector('#card-stage dd[data-name="af"] output')?.textContent === '10.00'`,
+  );
   assert.equal(await ff.text('#card-stage dd[data-name="d"] output'), '1000');
 }
 

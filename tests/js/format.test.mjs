@@ -20,7 +20,10 @@ test('formatting keeps significant digits and SI prefixes', () => {
 
 test('plot ticks', () => {
   assert.deepEqual(linearTicks(0, 10, 5).ticks, [0, 2, 4, 6, 8, 10]);
-  assert.deepEqual(linearTicks(-180, 0, 4).ticks, [-200, -150, -100, -50, 0].filter((t) => t >= -180));
+  assert.deepEqual(
+    linearTicks(-180, 0, 4).ticks,
+    [-200, -150, -100, -50, 0].filter((t) => t >= -180),
+  );
   const d = decadeTicks(3, 2e5);
   assert.deepEqual(d.domain, [1, 1e6]);
   assert.equal(d.ticks.length, 7);

@@ -7,7 +7,16 @@
 import { test, before, after } from 'node:test';
 import assert from 'node:assert/strict';
 import { execFileSync, spawnSync } from 'node:child_process';
-import { mkdtempSync, readdirSync, readFileSync, copyFileSync, writeFileSync, rmSync, createReadStream, mkdirSync } from 'node:fs';
+import {
+  mkdtempSync,
+  readdirSync,
+  readFileSync,
+  copyFileSync,
+  writeFileSync,
+  rmSync,
+  createReadStream,
+  mkdirSync,
+} from 'node:fs';
 import { pathToFileURL } from 'node:url';
 import { createInterface } from 'node:readline';
 import { tmpdir } from 'node:os';
@@ -23,9 +32,15 @@ before(() => {
   const tarball = readdirSync(join(ROOT, 'pkg')).find((f) => /^loopwright-.*\.tgz$/.test(f));
   assert.ok(tarball, 'pkg/loopwright-*.tgz is missing: run scripts/build-package.sh');
   project = mkdtempSync(join(tmpdir(), 'loopwright-consumer-'));
-  writeFileSync(join(project, 'package.json'), JSON.stringify({ name: 'consumer', private: true, type: 'module' }));
+  writeFileSync(
+    join(project, 'package.json'),
+    JSON.stringify({ name: 'consumer', private: true, type: 'module' }),
+  );
   copyFileSync(join(ROOT, 'pkg', tarball), join(project, tarball));
-  execFileSync('npm', ['install', `./${tarball}`, '--no-audit', '--no-fund', '--loglevel=error'], { cwd: project, stdio: 'pipe' });
+  execFileSync('npm', ['install', `./${tarball}`, '--no-audit', '--no-fund', '--loglevel=error'], {
+    cwd: project,
+    stdio: 'pipe',
+  });
   for (const f of readdirSync(FIXTURES)) copyFileSync(join(FIXTURES, f), join(project, f));
 });
 
@@ -44,16 +59,27 @@ test('every number-returning export is checked: bad input throws a LoopwrightErr
   // declarations, so a new scalar function cannot slip through unwrapped. Both the
   // full module and the lite one.
   const installed = join(project, 'node_modules', 'loopwright');
-  for (const [entryFile, web] of [['node.mjs', 'web'], ['lite.mjs', join('web', 'lite')]]) {
+  for (const [entryFile, web] of [
+    ['node.mjs', 'web'],
+    ['lite.mjs', join('web', 'lite')],
+  ]) {
     const entry = await import(pathToFileURL(join(installed, entryFile)).href);
     const glue = await import(pathToFileURL(join(installed, web, 'loopwright_glue.js')).href);
     const dts = readFileSync(join(installed, web, 'loopwright_glue.d.ts'), 'utf8');
     const scalars = [...dts.matchAll(/^export function (\w+)\(([^)]*)\): number;$/gm)];
     assert.ok(scalars.length >= 20, `${entryFile}: found ${scalars.length} scalar exports`);
     for (const [, name, params] of scalars) {
-      assert.notEqual(entry[name], glue[name], `${entryFile}: ${name} is not wrapped by facade/loopwright.js`);
+      assert.notEqual(
+        entry[name],
+        glue[name],
+        `${entryFile}: ${name} is not wrapped by facade/loopwright.js`,
+      );
       const args = params.split(',').map((p) => (p.includes(': number') ? Number.NaN : '?'));
-      assert.throws(() => entry[name](...args), (e) => e.name === 'LoopwrightError' && typeof e.param === 'string', name);
+      assert.throws(
+        () => entry[name](...args),
+        (e) => e.name === 'LoopwrightError' && typeof e.param === 'string',
+        name,
+      );
       assert.equal(entry.takeError(), undefined, `${entryFile}: ${name} left an error behind`);
     }
   }
@@ -62,17 +88,44 @@ test('every number-returning export is checked: bad input throws a LoopwrightErr
   assert.ok(Math.abs(entry.closedLoopGain(1e5, 0.00999) - 100) < 1e-9);
 });
 
-test('summarizeFeedback built in JS equals the glue\'s serde-built object, errors included', async () => {
-  const entry = await import(pathToFileURL(join(project, 'node_modules', 'loopwright', 'node.mjs')).href);
-  const glue = await import(pathToFileURL(join(project, 'node_modules', 'loopwright', 'web', 'loopwright_glue.js')).href);
-  const names = ['series-shunt', 'shunt-series', 'series-series', 'shunt-shunt', 'Voltage-Series', 'CURRENT-SHUNT',
-    'current-series', 'voltage-shunt', 'voltage', 'current', 'transconductance', 'transresistance'];
+test("summarizeFeedback built in JS equals the glue's serde-built object, errors included", async () => {
+  const entry = await import(
+    pathToFileURL(join(project, 'node_modules', 'loopwright', 'node.mjs')).href
+  );
+  const glue = await import(
+    pathToFileURL(join(project, 'node_modules', 'loopwright', 'web', 'loopwright_glue.js')).href
+  );
+  const names = [
+    'series-shunt',
+    'shunt-series',
+    'series-series',
+    'shunt-shunt',
+    'Voltage-Series',
+    'CURRENT-SHUNT',
+    'current-series',
+    'voltage-shunt',
+    'voltage',
+    'current',
+    'transconductance',
+    'transresistance',
+  ];
   // Negative, neutral (T = −2), positive feedback and β = 0 (null ideal gain and error).
-  const stages = [[1e5, 0.00999], [2, -1], [10, -0.05], [-1e5, -1e-3], [10, 0], [3.3e-2, 4.7e3]];
+  const stages = [
+    [1e5, 0.00999],
+    [2, -1],
+    [10, -0.05],
+    [-1e5, -1e-3],
+    [10, 0],
+    [3.3e-2, 4.7e3],
+  ];
   let compared = 0;
   for (const name of names) {
     for (const [a, beta] of stages) {
-      assert.deepStrictEqual(entry.summarizeFeedback(name, a, beta), glue.summarizeFeedback(name, a, beta), `${name} ${a} ${beta}`);
+      assert.deepStrictEqual(
+        entry.summarizeFeedback(name, a, beta),
+        glue.summarizeFeedback(name, a, beta),
+        `${name} ${a} ${beta}`,
+      );
       compared++;
     }
   }
@@ -84,21 +137,47 @@ test('summarizeFeedback built in JS equals the glue\'s serde-built object, error
   entry.loopGainSweep({ gain: 1e5, polesHz: [10, 1e6] }, 0.01, 1, 1e9, 100_000);
   assert.ok(memoryBytes() > before, 'the sweep grew the wasm memory');
   for (const name of names) {
-    assert.deepStrictEqual(entry.summarizeFeedback(name, 1e5, 0.00999), glue.summarizeFeedback(name, 1e5, 0.00999), `${name} after growth`);
+    assert.deepStrictEqual(
+      entry.summarizeFeedback(name, 1e5, 0.00999),
+      glue.summarizeFeedback(name, 1e5, 0.00999),
+      `${name} after growth`,
+    );
   }
-  const senses = new Set(stages.map(([a, beta]) => entry.summarizeFeedback('voltage', a, beta).sense));
+  const senses = new Set(
+    stages.map(([a, beta]) => entry.summarizeFeedback('voltage', a, beta).sense),
+  );
   assert.deepStrictEqual([...senses].sort(), ['negative', 'neutral', 'positive']);
-  for (const [name, a, beta] of [['series-parallel', 1, 1], ['shunt-shunt', -10, 0.1], ['voltage', Number.NaN, 0.1], ['current', 1, Infinity]]) {
-    const thrown = (f) => { try { f(); } catch (e) { return e; } assert.fail(`${name} ${a} ${beta} did not throw`); };
+  for (const [name, a, beta] of [
+    ['series-parallel', 1, 1],
+    ['shunt-shunt', -10, 0.1],
+    ['voltage', Number.NaN, 0.1],
+    ['current', 1, Infinity],
+  ]) {
+    const thrown = (f) => {
+      try {
+        f();
+      } catch (e) {
+        return e;
+      }
+      assert.fail(`${name} ${a} ${beta} did not throw`);
+    };
     const mine = thrown(() => entry.summarizeFeedback(name, a, beta));
     const theirs = thrown(() => glue.summarizeFeedback(name, a, beta));
     assert.equal(mine.name, 'LoopwrightError');
-    assert.deepStrictEqual([mine.code, mine.param, mine.message], [theirs.code, theirs.param, theirs.message]);
+    assert.deepStrictEqual(
+      [mine.code, mine.param, mine.message],
+      [theirs.code, theirs.param, theirs.message],
+    );
   }
 });
 
 test('loopwright/lite: the calculator areas without the circuit solver and the worksheet', async () => {
-  const out = execFileSync(process.execPath, ['--input-type=module', '-e', `
+  const out = execFileSync(
+    process.execPath,
+    [
+      '--input-type=module',
+      '-e',
+      `
     import * as lite from 'loopwright/lite';
     import * as full from 'loopwright';
     const a = { gain: 1e5, polesHz: [10, 1e6, 1e7] };
@@ -110,7 +189,10 @@ test('loopwright/lite: the calculator areas without the circuit solver and the w
       summaryFull: full.summarizeFeedback('current', 20, 0.5),
       mc: typeof lite.monteCarlo,
       worksheet: typeof lite.Worksheet, circuit: typeof lite.circuitSolve, fullWorksheet: typeof full.Worksheet,
-    }));`], { cwd: project, encoding: 'utf8' });
+    }));`,
+    ],
+    { cwd: project, encoding: 'utf8' },
+  );
   const r = JSON.parse(out);
   // A = 10⁵, β = 0.00999: Af = 10⁵/1000 = 100 (by hand).
   assert.ok(Math.abs(r.gain - 100) < 1e-9);
@@ -118,17 +200,41 @@ test('loopwright/lite: the calculator areas without the circuit solver and the w
   assert.ok(r.pm > 0 && r.pm < 90, `phase margin ${r.pm}`);
   assert.deepStrictEqual(r.summary, r.summaryFull);
   assert.equal(r.mc, 'function');
-  assert.deepStrictEqual([r.worksheet, r.circuit, r.fullWorksheet], ['undefined', 'undefined', 'function']);
-  const wasm = (dir) => readFileSync(join(project, 'node_modules', 'loopwright', ...dir, 'loopwright_bg.wasm')).length;
-  assert.ok(wasm(['web', 'lite']) < wasm(['web']) / 2, 'the lite wasm is less than half the full one');
+  assert.deepStrictEqual(
+    [r.worksheet, r.circuit, r.fullWorksheet],
+    ['undefined', 'undefined', 'function'],
+  );
+  const wasm = (dir) =>
+    readFileSync(join(project, 'node_modules', 'loopwright', ...dir, 'loopwright_bg.wasm')).length;
+  assert.ok(
+    wasm(['web', 'lite']) < wasm(['web']) / 2,
+    'the lite wasm is less than half the full one',
+  );
 });
 
 test('TypeScript: the definitions type-check a consumer, and reject a wrong one', () => {
   // wasm-bindgen's classes declare [Symbol.dispose], typed in ESNext.Disposable (TS ≥ 5.2).
-  const args = ['--noEmit', '--strict', '--module', 'NodeNext', '--moduleResolution', 'NodeNext', '--target', 'ES2022', '--lib', 'ES2022,DOM,ESNext.Disposable'];
-  const good = spawnSync(join(BIN, 'tsc'), [...args, 'consumer.ts'], { cwd: project, encoding: 'utf8' });
+  const args = [
+    '--noEmit',
+    '--strict',
+    '--module',
+    'NodeNext',
+    '--moduleResolution',
+    'NodeNext',
+    '--target',
+    'ES2022',
+    '--lib',
+    'ES2022,DOM,ESNext.Disposable',
+  ];
+  const good = spawnSync(join(BIN, 'tsc'), [...args, 'consumer.ts'], {
+    cwd: project,
+    encoding: 'utf8',
+  });
   assert.equal(good.status, 0, `tsc on consumer.ts: ${good.stdout}${good.stderr}`);
-  const bad = spawnSync(join(BIN, 'tsc'), [...args, 'bad-consumer.ts'], { cwd: project, encoding: 'utf8' });
+  const bad = spawnSync(join(BIN, 'tsc'), [...args, 'bad-consumer.ts'], {
+    cwd: project,
+    encoding: 'utf8',
+  });
   assert.notEqual(bad.status, 0, 'tsc accepted bad-consumer.ts: the types are too loose');
   assert.match(bad.stdout, /closedLoopGain|not assignable/);
   assert.match(bad.stdout, /bandwidth/);
@@ -140,9 +246,25 @@ test('TypeScript: the definitions type-check a consumer, and reject a wrong one'
 test('esbuild bundle of an ES-module consumer runs in headless Chromium', async () => {
   const dist = join(project, 'dist');
   mkdirSync(dist, { recursive: true });
-  execFileSync(join(BIN, 'esbuild'), ['bundle-entry.mjs', '--bundle', '--format=esm', '--platform=browser', `--outfile=${join(dist, 'app.js')}`], { cwd: project, stdio: 'pipe' });
-  copyFileSync(join(project, 'node_modules', 'loopwright', 'web', 'loopwright_bg.wasm'), join(dist, 'loopwright_bg.wasm'));
-  writeFileSync(join(dist, 'index.html'), '<!doctype html><meta charset="utf-8"><title>loading</title><script type="module" src="app.js"></script>');
+  execFileSync(
+    join(BIN, 'esbuild'),
+    [
+      'bundle-entry.mjs',
+      '--bundle',
+      '--format=esm',
+      '--platform=browser',
+      `--outfile=${join(dist, 'app.js')}`,
+    ],
+    { cwd: project, stdio: 'pipe' },
+  );
+  copyFileSync(
+    join(project, 'node_modules', 'loopwright', 'web', 'loopwright_bg.wasm'),
+    join(dist, 'loopwright_bg.wasm'),
+  );
+  writeFileSync(
+    join(dist, 'index.html'),
+    '<!doctype html><meta charset="utf-8"><title>loading</title><script type="module" src="app.js"></script>',
+  );
   const { server, url } = await startServer(dist, 0);
   const browser = await launch();
   try {
@@ -165,14 +287,32 @@ test('batch tool: 100 000 rows streamed, bad rows reported by row number, nothin
   const lines = ['topology,a,beta,zi,zo,target_gain'];
   const bad = new Map();
   for (let i = 1; i <= rows; i++) {
-    if (i % 25_000 === 0) { lines.push(`series-shunt,abc,0.01,1e6,75,10`); bad.set(i, 'a'); continue; }
-    if (i % 25_000 === 1) { lines.push(`parallel,1e5,0.01,1e6,75,10`); bad.set(i, 'topology'); continue; }
-    if (i === 777) { lines.push(`shunt-shunt,-100,0.01,1e3,1e3,`); bad.set(i, 'beta'); continue; }
+    if (i % 25_000 === 0) {
+      lines.push(`series-shunt,abc,0.01,1e6,75,10`);
+      bad.set(i, 'a');
+      continue;
+    }
+    if (i % 25_000 === 1) {
+      lines.push(`parallel,1e5,0.01,1e6,75,10`);
+      bad.set(i, 'topology');
+      continue;
+    }
+    if (i === 777) {
+      lines.push(`shunt-shunt,-100,0.01,1e3,1e3,`);
+      bad.set(i, 'beta');
+      continue;
+    }
     const a = 1e4 * (1 + (i % 97));
-    lines.push(`${['series-shunt', 'shunt-series', 'series-series', 'shunt-shunt'][i % 4]},${a},0.01,1e6,75,50`);
+    lines.push(
+      `${['series-shunt', 'shunt-series', 'series-series', 'shunt-shunt'][i % 4]},${a},0.01,1e6,75,50`,
+    );
   }
   writeFileSync(join(project, 'designs.csv'), `${lines.join('\n')}\n`);
-  const run = spawnSync('npx', ['--no-install', 'loopwright-batch', 'designs.csv', '-o', 'out.csv', '--progress'], { cwd: project, encoding: 'utf8' });
+  const run = spawnSync(
+    'npx',
+    ['--no-install', 'loopwright-batch', 'designs.csv', '-o', 'out.csv', '--progress'],
+    { cwd: project, encoding: 'utf8' },
+  );
   assert.equal(run.status, 0, run.stderr);
   assert.match(run.stderr, new RegExp(`${rows} rows, ${bad.size} with errors\n$`));
 
@@ -180,7 +320,10 @@ test('batch tool: 100 000 rows streamed, bad rows reported by row number, nothin
   let count = 0;
   const errorsSeen = new Map();
   for await (const line of createInterface({ input: createReadStream(join(project, 'out.csv')) })) {
-    if (header.length === 0) { header.push(...line.split(',')); continue; }
+    if (header.length === 0) {
+      header.push(...line.split(','));
+      continue;
+    }
     count++;
     const f = line.split(',');
     const row = Number(f[0]);
@@ -194,12 +337,28 @@ test('batch tool: 100 000 rows streamed, bad rows reported by row number, nothin
     }
   }
   assert.equal(count, rows, 'every input row has an output row');
-  assert.deepEqual([...errorsSeen.keys()].sort((x, y) => x - y), [...bad.keys()].sort((x, y) => x - y));
-  for (const [row, param] of bad) assert.match(errorsSeen.get(row), new RegExp(`\\b${param}\\b`), `row ${row}: ${errorsSeen.get(row)}`);
+  assert.deepEqual(
+    [...errorsSeen.keys()].sort((x, y) => x - y),
+    [...bad.keys()].sort((x, y) => x - y),
+  );
+  for (const [row, param] of bad)
+    assert.match(
+      errorsSeen.get(row),
+      new RegExp(`\\b${param}\\b`),
+      `row ${row}: ${errorsSeen.get(row)}`,
+    );
 
-  const strict = spawnSync('npx', ['--no-install', 'loopwright-batch', 'designs.csv', '-o', 'out2.csv', '--strict'], { cwd: project, encoding: 'utf8' });
+  const strict = spawnSync(
+    'npx',
+    ['--no-install', 'loopwright-batch', 'designs.csv', '-o', 'out2.csv', '--strict'],
+    { cwd: project, encoding: 'utf8' },
+  );
   assert.equal(strict.status, 1, '--strict exits 1 when a row failed');
-  const missing = spawnSync('npx', ['--no-install', 'loopwright-batch', 'designs.csv', '--compute', 'spread'], { cwd: project, encoding: 'utf8' });
+  const missing = spawnSync(
+    'npx',
+    ['--no-install', 'loopwright-batch', 'designs.csv', '--compute', 'spread'],
+    { cwd: project, encoding: 'utf8' },
+  );
   assert.equal(missing.status, 2);
   assert.match(missing.stderr, /needs the column\(s\) a_min, a_max/);
 });

@@ -23,7 +23,8 @@ after(async () => {
   server?.close();
 });
 
-const result = (page, card, name) => page.locator(`#${card} dd[data-name="${name}"] output`).textContent();
+const result = (page, card, name) =>
+  page.locator(`#${card} dd[data-name="${name}"] output`).textContent();
 
 async function retype(page, selector, text) {
   await page.click(selector);
@@ -48,7 +49,10 @@ test('the stage card computes from typed engineering numbers', async () => {
   // Shunt-shunt divides both (Sedra & Smith, 7th ed., Table 10.1, from memory).
   await page.selectOption('#card-stage-topology', 'shunt-shunt');
   assert.equal(await result(page, 'card-stage', 'zif'), '1.000k');
-  assert.equal((await page.locator('#card-stage label[for="card-stage-a"] .cell-unit').textContent()).trim(), 'V/A');
+  assert.equal(
+    (await page.locator('#card-stage label[for="card-stage-a"] .cell-unit').textContent()).trim(),
+    'V/A',
+  );
   // IEC 60062 letter code: 4k7 = 4700.
   await retype(page, '#card-stage-zi', '4k7');
   assert.equal(await result(page, 'card-stage', 'zif'), '4.700');
@@ -62,19 +66,25 @@ test('bad input shows an error in place and keeps what was typed', async () => {
   const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
   await retype(page, '#card-stage-beta', 'ten');
   assert.equal(await page.getAttribute('#card-stage-beta', 'aria-invalid'), 'true');
-  assert.match(await page.locator("#card-stage-beta-hint").textContent(), /must be a number/);
+  assert.match(await page.locator('#card-stage-beta-hint').textContent(), /must be a number/);
   assert.equal(await page.inputValue('#card-stage-beta'), 'ten');
   // A·β = −1: the oscillation condition is named on the β cell (100k · −10µ = −1).
   await retype(page, '#card-stage-beta', '-10u');
   assert.match(await page.locator('#card-stage-beta-hint').textContent(), /oscillates/);
-  assert.equal(await page.locator('#card-stage .card-message').getAttribute('data-code'), 'oscillation');
+  assert.equal(
+    await page.locator('#card-stage .card-message').getAttribute('data-code'),
+    'oscillation',
+  );
   // A target above the open-loop gain cannot be reached with negative feedback.
   await retype(page, '#card-inverse-target_gain', '1M');
-  assert.match(await page.locator('#card-inverse-target_gain-hint').textContent(), /cannot be reached/);
+  assert.match(
+    await page.locator('#card-inverse-target_gain-hint').textContent(),
+    /cannot be reached/,
+  );
   // Script-like text renders as text and runs nothing.
   await retype(page, '#card-inverse-a', '<img src=x onerror=alert(1)>');
   assert.equal(await page.locator('#card-inverse img').count(), 0);
-  assert.match(await page.locator("#card-inverse-a-hint").textContent(), /must be a number/);
+  assert.match(await page.locator('#card-inverse-a-hint').textContent(), /must be a number/);
   await page.screenshot({ path: join(ARTIFACTS, 'page-errors.png'), fullPage: true });
   assert.deepEqual(problems, []);
   await context.close();
@@ -91,7 +101,10 @@ test('the inverse and spread cards agree with the closed forms', async () => {
   // Spread, β = 0.01, A 50k…1M around 200k: Af = A/(1 + A/100).
   const af = (a) => a / (1 + a * 0.01);
   const spread = ((af(1e6) - af(5e4)) / af(2e5)) * 100;
-  assert.equal(await result(page, 'card-spread', 'spread'), spread.toPrecision(6).replace(/0+$/, ''));
+  assert.equal(
+    await result(page, 'card-spread', 'spread'),
+    spread.toPrecision(6).replace(/0+$/, ''),
+  );
   await context.close();
 });
 
@@ -103,7 +116,13 @@ test('keyboard only: Tab reaches every cell with a visible focus', async () => {
     const id = await page.evaluate(() => document.activeElement?.id);
     if (id) seen.add(id);
   }
-  for (const id of ['card-stage-topology', 'card-stage-a', 'card-stage-beta', 'card-inverse-a', 'card-spread-beta']) {
+  for (const id of [
+    'card-stage-topology',
+    'card-stage-a',
+    'card-stage-beta',
+    'card-inverse-a',
+    'card-spread-beta',
+  ]) {
     assert.ok(seen.has(id), `Tab did not reach #${id}`);
   }
   await page.focus('#card-stage-a');
@@ -113,9 +132,15 @@ test('keyboard only: Tab reaches every cell with a visible focus', async () => {
 });
 
 test('usable at phone width (390 px): nothing wider than the screen', async () => {
-  const { context, page, problems } = await openPage(browser, url, { width: 390, height: 844, allowedOrigin: url });
+  const { context, page, problems } = await openPage(browser, url, {
+    width: 390,
+    height: 844,
+    allowedOrigin: url,
+  });
   await page.screenshot({ path: join(ARTIFACTS, 'page-390px.png'), fullPage: true });
-  const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
+  const overflow = await page.evaluate(
+    () => document.documentElement.scrollWidth - window.innerWidth,
+  );
   assert.ok(overflow <= 0, `page is ${overflow}px wider than the viewport`);
   // A = 2.5 MV/V, β = 0.00999: D = 1 + 24 975 = 24 976.
   await retype(page, '#card-stage-a', '2.5M');
@@ -135,7 +160,9 @@ test('the cautions are on the page', async () => {
 
 test('the single-file build works from file:// with no request and no CSP violation', async () => {
   const file = pathToFileURL(join(ROOT, 'dist', 'loopwright.html')).href;
-  const { context, page, problems, foreign } = await openPage(browser, file, { allowedOrigin: file });
+  const { context, page, problems, foreign } = await openPage(browser, file, {
+    allowedOrigin: file,
+  });
   // Same closed form as the served page: A = 100k, β = 0.00999 → Af = 100.
   assert.equal(await result(page, 'card-stage', 'af'), '100.0');
   await retype(page, '#card-stage-a', '10k');
@@ -155,25 +182,44 @@ test('embedding: the custom element and the frame work under a strict CSP', asyn
     const context = await browser.newContext({ viewport: { width: 1000, height: 1400 } });
     const page = await context.newPage();
     const problems = [];
-    page.on('console', (msg) => { if (msg.type() === 'error') problems.push(msg.text()); });
+    page.on('console', (msg) => {
+      if (msg.type() === 'error') problems.push(msg.text());
+    });
     page.on('pageerror', (err) => problems.push(err.message));
     const wasmFetched = [];
-    page.on('request', (req) => { if (req.url().endsWith('.wasm')) wasmFetched.push(new URL(req.url()).pathname); });
+    page.on('request', (req) => {
+      if (req.url().endsWith('.wasm')) wasmFetched.push(new URL(req.url()).pathname);
+    });
     await page.goto(`${rootUrl}tests/js/fixtures/embed.html`);
     await page.waitForSelector('loopwright-panel[data-ready="true"]', { timeout: 15000 });
     // Only the two requested cards, inside the shadow root.
     assert.equal(await page.locator('loopwright-panel section.card').count(), 2);
     // Default stage inputs: A = 100k, β = 0.00999 → Af = 100 (closed form).
-    assert.equal(await page.locator('loopwright-panel #card-stage dd[data-name="af"] output').textContent(), '100.0');
+    assert.equal(
+      await page.locator('loopwright-panel #card-stage dd[data-name="af"] output').textContent(),
+      '100.0',
+    );
     await page.locator('loopwright-panel #card-stage-a').fill('10k');
     await page.locator('loopwright-panel #card-stage-beta').fill('99.9m');
-    assert.equal(await page.locator('loopwright-panel #card-stage dd[data-name="af"] output').textContent(), '10.00');
+    assert.equal(
+      await page.locator('loopwright-panel #card-stage dd[data-name="af"] output').textContent(),
+      '10.00',
+    );
     // No global names leaked by the element's script.
-    assert.deepEqual(await page.evaluate(() => Object.keys(window).filter((k) => /loopwright|wasm|wbg/i.test(k))), []);
+    assert.deepEqual(
+      await page.evaluate(() => Object.keys(window).filter((k) => /loopwright|wasm|wbg/i.test(k))),
+      [],
+    );
     const frame = page.frameLocator('iframe');
-    assert.equal(await frame.locator('#card-stage dd[data-name="af"] output').textContent(), '100.0');
+    assert.equal(
+      await frame.locator('#card-stage dd[data-name="af"] output').textContent(),
+      '100.0',
+    );
     // The element loads the lite module; the framed page is the full one.
-    assert.ok(wasmFetched.includes('/www/pkg/lite/loopwright_bg.wasm'), `wasm fetched: ${wasmFetched}`);
+    assert.ok(
+      wasmFetched.includes('/www/pkg/lite/loopwright_bg.wasm'),
+      `wasm fetched: ${wasmFetched}`,
+    );
     await page.screenshot({ path: join(ARTIFACTS, 'embed.png'), fullPage: true });
     assert.deepEqual(problems, []);
     await context.close();
@@ -187,8 +233,12 @@ test('every card computes its defaults, and the area cards show closed-form valu
   const cards = await page.locator('section.card').evaluateAll((els) => els.map((e) => e.id));
   assert.ok(cards.length >= 9, `cards: ${cards}`);
   for (const id of cards) {
-    assert.equal(await page.locator(`#${id} .card-message`).textContent(), '', `${id} shows an error`);
-    assert.ok(await page.locator(`#${id} dd`).count() > 0, `${id} shows no results`);
+    assert.equal(
+      await page.locator(`#${id} .card-message`).textContent(),
+      '',
+      `${id} shows an error`,
+    );
+    assert.ok((await page.locator(`#${id} dd`).count()) > 0, `${id} shows no results`);
   }
   // Full-power bandwidth SR/(2π·Vp) = 20 V/µs / (2π · 10 V) = 318.3 kHz.
   assert.equal(await result(page, 'card-slew', 'fpbw'), '318.3k');
@@ -269,8 +319,12 @@ test('text contrast meets WCAG 2.1 AA (axe-core color-contrast rule)', async () 
     await page.waitForSelector('html[data-ready="true"]');
     await page.addScriptTag({ path: axePath });
     const audit = async (what) => {
-      const r = await page.evaluate(() => globalThis.axe.run(document, { runOnly: ['color-contrast'], resultTypes: ['violations'] }));
-      const bad = r.violations.flatMap((v) => v.nodes.map((n) => `${n.target.join(' ')}: ${n.any.map((a) => a.message).join('; ')}`));
+      const r = await page.evaluate(() =>
+        globalThis.axe.run(document, { runOnly: ['color-contrast'], resultTypes: ['violations'] }),
+      );
+      const bad = r.violations.flatMap((v) =>
+        v.nodes.map((n) => `${n.target.join(' ')}: ${n.any.map((a) => a.message).join('; ')}`),
+      );
       assert.deepEqual(bad, [], `${what} at ${width}px`);
     };
     await audit('calculators');

@@ -26,7 +26,9 @@ after(async () => {
 async function openSheet(context, address = url) {
   const page = await context.newPage();
   const problems = [];
-  page.on('console', (msg) => { if (msg.type() === 'error') problems.push(msg.text()); });
+  page.on('console', (msg) => {
+    if (msg.type() === 'error') problems.push(msg.text());
+  });
   page.on('pageerror', (err) => problems.push(err.message));
   await page.goto(address);
   await page.waitForSelector('html[data-ready="true"]');
@@ -146,9 +148,14 @@ test('save to a file and open it again, nothing lost', async () => {
   assert.equal(readFileSync(await d2.path(), 'utf8'), saved);
   // A malformed file is refused whole, and the sheet keeps what it had.
   const bad = join(ARTIFACTS, 'bad.loopwright.json');
-  (await import('node:fs')).writeFileSync(bad, '{"format": "loopwright-sheet", "version": 99, "cells": {}}');
+  (await import('node:fs')).writeFileSync(
+    bad,
+    '{"format": "loopwright-sheet", "version": 99, "cells": {}}',
+  );
   await page2.setInputFiles('#sheet-file', bad);
-  await page2.waitForFunction(() => /not loaded/.test(document.querySelector('.sheet-note').textContent));
+  await page2.waitForFunction(() =>
+    /not loaded/.test(document.querySelector('.sheet-note').textContent),
+  );
   assert.equal(await shown(page2, 'A2'), '99.9001');
   assert.deepEqual(problems, []);
   await other.close();
@@ -173,7 +180,10 @@ test('share link carries the sheet; autosave recovers after a reload', async () 
   // The link opens in a fresh profile with the same sheet.
   const other = await browser.newContext();
   const { page: page2, problems } = await openSheet(other, link);
-  assert.equal(await page2.evaluate(() => document.querySelector('#cell-B4').title), await page.evaluate(() => document.querySelector('#cell-B4').title));
+  assert.equal(
+    await page2.evaluate(() => document.querySelector('#cell-B4').title),
+    await page.evaluate(() => document.querySelector('#cell-B4').title),
+  );
   assert.match(await page2.locator('.sheet-note').textContent(), /from the link/);
   assert.ok(!page2.url().includes('#sheet='), 'the fragment is dropped after opening');
   // A damaged link says so and leaves an empty, working sheet.
@@ -254,7 +264,9 @@ test('the worksheet at phone width', async () => {
   const context = await browser.newContext({ viewport: { width: 390, height: 844 } });
   const { page, problems } = await openSheet(context);
   await page.click('#sheet-demo');
-  const overflow = await page.evaluate(() => document.documentElement.scrollWidth - window.innerWidth);
+  const overflow = await page.evaluate(
+    () => document.documentElement.scrollWidth - window.innerWidth,
+  );
   assert.ok(overflow <= 0, `page is ${overflow}px wider than the viewport`);
   await page.screenshot({ path: join(ARTIFACTS, 'worksheet-390px.png'), fullPage: false });
   assert.deepEqual(problems, []);

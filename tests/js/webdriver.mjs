@@ -19,7 +19,10 @@ function freePort() {
   });
 }
 
-export async function startGecko({ driver = process.env.GECKODRIVER || 'geckodriver', binary = '/usr/bin/firefox-esr' } = {}) {
+export async function startGecko({
+  driver = process.env.GECKODRIVER || 'geckodriver',
+  binary = '/usr/bin/firefox-esr',
+} = {}) {
   const port = await freePort();
   const proc = spawn(driver, ['--host', '127.0.0.1', '--port', String(port)], { stdio: 'ignore' });
   const base = `http://127.0.0.1:${port}`;
@@ -38,24 +41,38 @@ export async function startGecko({ driver = process.env.GECKODRIVER || 'geckodri
       body: body === undefined ? undefined : JSON.stringify(body),
     });
     const json = await r.json();
-    if (!r.ok) throw new Error(`webdriver ${method} ${path}: ${json.value?.error} ${json.value?.message}`);
+    if (!r.ok)
+      throw new Error(`webdriver ${method} ${path}: ${json.value?.error} ${json.value?.message}`);
     return json.value;
   };
   const session = await call('POST', '/session', {
-    capabilities: { alwaysMatch: { browserName: 'firefox', 'moz:firefoxOptions': { binary, args: ['-headless'] } } },
+    capabilities: {
+      alwaysMatch: {
+        browserName: 'firefox',
+        'moz:firefoxOptions': { binary, args: ['-headless'] },
+      },
+    },
   });
   const sid = session.sessionId;
   const s = (method, path, body) => call(method, `/session/${sid}${path}`, body);
   return {
-    async go(url) { await s('POST', '/url', { url }); },
-    async run(script, ...args) { return s('POST', '/execute/sync', { script, args }); },
-    async find(css) { return (await s('POST', '/element', { using: 'css selector', value: css }))[ELEMENT]; },
+    async go(url) {
+      await s('POST', '/url', { url });
+    },
+    async run(script, ...args) {
+      return s('POST', '/execute/sync', { script, args });
+    },
+    async find(css) {
+      return (await s('POST', '/element', { using: 'css selector', value: css }))[ELEMENT];
+    },
     async clearAndType(css, text) {
       const id = await this.find(css);
       await s('POST', `/element/${id}/clear`, {});
       await s('POST', `/element/${id}/value`, { text });
     },
-    async text(css) { return s('GET', `/element/${await this.find(css)}/text`); },
+    async text(css) {
+      return s('GET', `/element/${await this.find(css)}/text`);
+    },
     async waitFor(script, timeoutMs = 20000) {
       const end = Date.now() + timeoutMs;
       while (Date.now() < end) {
@@ -65,7 +82,11 @@ export async function startGecko({ driver = process.env.GECKODRIVER || 'geckodri
       throw new Error(`timed out waiting for: ${script}`);
     },
     async quit() {
-      try { await s('DELETE', ''); } finally { proc.kill(); }
+      try {
+        await s('DELETE', '');
+      } finally {
+        proc.kill();
+      }
     },
   };
 }

@@ -26,7 +26,9 @@ export function parseNumber(text, api) {
 
 /** A list of numbers separated by commas, semicolons or spaces; empty text is an empty list. */
 export function parseList(text, api) {
-  const parts = String(text).split(/[,;\s]+/).filter(Boolean);
+  const parts = String(text)
+    .split(/[,;\s]+/)
+    .filter(Boolean);
   return parts.map((p) => parseNumber(p, api));
 }
 
@@ -41,31 +43,53 @@ export function mountCard(host, def, api) {
     const id = `${def.id}-${input.name}`;
     const hint = el('span', { class: CLASS.cellHint, id: `${id}-hint` });
     const control = input.choices
-      ? el('select', { id, name: input.name }, input.choices.map(([value, label]) =>
-          el('option', { value, selected: value === input.value }, label)))
+      ? el(
+          'select',
+          { id, name: input.name },
+          input.choices.map(([value, label]) =>
+            el('option', { value, selected: value === input.value }, label),
+          ),
+        )
       : el('input', {
-          id, name: input.name, value: input.value, inputmode: 'decimal', autocomplete: 'off',
-          spellcheck: 'false', 'aria-describedby': `${id}-hint`,
+          id,
+          name: input.name,
+          value: input.value,
+          inputmode: 'decimal',
+          autocomplete: 'off',
+          spellcheck: 'false',
+          'aria-describedby': `${id}-hint`,
         });
     control.addEventListener('input', recompute);
     control.addEventListener('change', recompute);
-    const unit = el('span', { class: CLASS.cellUnit }, typeof input.unit === 'string' ? input.unit : '');
+    const unit = el(
+      'span',
+      { class: CLASS.cellUnit },
+      typeof input.unit === 'string' ? input.unit : '',
+    );
     inputs.set(input.name, { def: input, control, hint, unit });
-    grid.append(el('label', { class: CLASS.cell, for: id },
-      el('span', { class: CLASS.cellName }, input.label),
-      control,
-      unit,
-      hint));
+    grid.append(
+      el(
+        'label',
+        { class: CLASS.cell, for: id },
+        el('span', { class: CLASS.cellName }, input.label),
+        control,
+        unit,
+        hint,
+      ),
+    );
   }
 
-  const card = el('section', { class: CLASS.card, id: def.id, 'aria-labelledby': `${def.id}-title` },
+  const card = el(
+    'section',
+    { class: CLASS.card, id: def.id, 'aria-labelledby': `${def.id}-title` },
     el('h2', { id: `${def.id}-title` }, def.title),
     def.blurb ? el('p', { class: CLASS.blurb }, def.blurb) : null,
     grid,
     el('pre', { class: CLASS.formula, 'aria-label': 'formula' }, def.formula),
     message,
     results,
-    figures);
+    figures,
+  );
   host.append(card);
 
   function recompute() {
@@ -88,7 +112,11 @@ export function mountCard(host, def, api) {
     }
     for (const { def: input, unit } of inputs.values()) {
       if (typeof input.unit === 'function') {
-        try { unit.textContent = input.unit(values, api); } catch { unit.textContent = ''; }
+        try {
+          unit.textContent = input.unit(values, api);
+        } catch {
+          unit.textContent = '';
+        }
       }
     }
     message.textContent = '';
@@ -102,17 +130,30 @@ export function mountCard(host, def, api) {
     try {
       const out = def.compute(values, api);
       const rows = Array.isArray(out) ? out : out.rows;
-      for (const fig of (Array.isArray(out) ? [] : out.figures ?? [])) {
-        figures.append(fig.svg, el('div', { class: 'plot-tools' },
-          el('button', { type: 'button', onclick: () => saveSvg(fig.svg, fig.name) }, 'SVG'),
-          el('button', { type: 'button', onclick: () => savePng(fig.svg, fig.name) }, 'PNG')));
+      for (const fig of Array.isArray(out) ? [] : (out.figures ?? [])) {
+        figures.append(
+          fig.svg,
+          el(
+            'div',
+            { class: 'plot-tools' },
+            el('button', { type: 'button', onclick: () => saveSvg(fig.svg, fig.name) }, 'SVG'),
+            el('button', { type: 'button', onclick: () => savePng(fig.svg, fig.name) }, 'PNG'),
+          ),
+        );
       }
       for (const row of rows) {
-        const text = row.text ?? (row.format === 'plain' ? formatPlain(row.value) : formatEngineering(row.value));
+        const text =
+          row.text ??
+          (row.format === 'plain' ? formatPlain(row.value) : formatEngineering(row.value));
         results.append(
           el('dt', {}, row.label),
-          el('dd', { 'data-name': row.name ?? row.label },
-            el('output', {}, text), row.unit ? el('span', { class: CLASS.cellUnit }, ` ${row.unit}`) : null));
+          el(
+            'dd',
+            { 'data-name': row.name ?? row.label },
+            el('output', {}, text),
+            row.unit ? el('span', { class: CLASS.cellUnit }, ` ${row.unit}`) : null,
+          ),
+        );
       }
     } catch (err) {
       const target = err && inputs.get(def.aliases?.[err.param] ?? err.param);
@@ -120,8 +161,8 @@ export function mountCard(host, def, api) {
         target.hint.textContent = err.message;
         target.control.setAttribute('aria-invalid', 'true');
       }
-      message.textContent = err && err.message ? err.message : String(err);
-      message.dataset.code = err && err.code ? err.code : 'error';
+      message.textContent = err?.message ? err.message : String(err);
+      message.dataset.code = err?.code ? err.code : 'error';
     }
   }
 

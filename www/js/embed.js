@@ -23,8 +23,14 @@ class LoopwrightPanel extends HTMLElement {
   async connectedCallback() {
     if (this.shadowRoot) return;
     const root = this.attachShadow({ mode: 'open' });
-    root.append(el('link', { rel: 'stylesheet', href: new URL('../css/style.css', import.meta.url).href }));
-    const status = el('p', { class: 'load-status', role: 'status' }, 'Loading the calculation core…');
+    root.append(
+      el('link', { rel: 'stylesheet', href: new URL('../css/style.css', import.meta.url).href }),
+    );
+    const status = el(
+      'p',
+      { class: 'load-status', role: 'status' },
+      'Loading the calculation core…',
+    );
     const host = el('div', { class: 'cards' });
     root.append(status, host);
     try {
@@ -36,7 +42,9 @@ class LoopwrightPanel extends HTMLElement {
       return;
     }
     const wanted = (this.getAttribute('cards') ?? '').split(/\s+/).filter(Boolean);
-    const defs = wanted.length ? wanted.map((n) => CARDS_BY_NAME.get(n)).filter(Boolean) : FEEDBACK_CARDS;
+    const defs = wanted.length
+      ? wanted.map((n) => CARDS_BY_NAME.get(n)).filter(Boolean)
+      : FEEDBACK_CARDS;
     for (const def of defs) mountCard(host, def, api);
     status.textContent = '';
     status.dataset.state = 'ready';

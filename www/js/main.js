@@ -25,8 +25,17 @@ function setUpTabs() {
     tab.addEventListener('click', () => select(tab));
     tab.addEventListener('keydown', (e) => {
       const i = tabs.indexOf(tab);
-      const next = e.key === 'ArrowRight' ? tabs[(i + 1) % tabs.length] : e.key === 'ArrowLeft' ? tabs[(i - 1 + tabs.length) % tabs.length] : null;
-      if (next) { e.preventDefault(); select(next); next.focus(); }
+      const next =
+        e.key === 'ArrowRight'
+          ? tabs[(i + 1) % tabs.length]
+          : e.key === 'ArrowLeft'
+            ? tabs[(i - 1 + tabs.length) % tabs.length]
+            : null;
+      if (next) {
+        e.preventDefault();
+        select(next);
+        next.focus();
+      }
     });
   }
   return select;
@@ -43,7 +52,13 @@ async function start() {
     return;
   }
   const host = document.getElementById('cards');
-  [...FEEDBACK_CARDS, ...STABILITY_CARDS, ...NETWORK_CARDS, ...CIRCUIT_CARDS, ...DISTORTION_CARDS].forEach((def, i) => {
+  [
+    ...FEEDBACK_CARDS,
+    ...STABILITY_CARDS,
+    ...NETWORK_CARDS,
+    ...CIRCUIT_CARDS,
+    ...DISTORTION_CARDS,
+  ].forEach((def, i) => {
     mountCard(host, def, api);
     if (i === 0) performance.mark('loopwright-first-result');
   });

@@ -30,18 +30,23 @@ const g = lw.gainSpread(0.01, 5e4, 1e5, 2e5);
 assert.equal(g.positiveFeedback, false);
 assert.ok(Math.abs(g.spreadPpm - g.spreadPercent * 1e4) < 1e-6);
 
-const throws = (fn, code, param) => assert.throws(fn, (e) => {
-  assert.ok(e instanceof Error);
-  assert.equal(e.name, 'LoopwrightError');
-  assert.equal(e.code, code);
-  assert.equal(e.param, param);
-  return true;
-});
+const throws = (fn, code, param) =>
+  assert.throws(fn, (e) => {
+    assert.ok(e instanceof Error);
+    assert.equal(e.name, 'LoopwrightError');
+    assert.equal(e.code, code);
+    assert.equal(e.param, param);
+    return true;
+  });
 throws(() => lw.closedLoopGain(Number.NaN, 1), 'not_finite', 'a');
 throws(() => lw.closedLoopGain(-100, 0.01), 'oscillation', 'beta');
 throws(() => lw.betaForGain(10, 100), 'unreachable', 'target_gain');
 throws(() => lw.summarizeFeedback('parallel-parallel', 1, 1), 'unknown_name', 'topology');
-throws(() => lw.impedancesWithFeedback('series-shunt', -1, 0, 1, 0, 1, 0, 1, 0), 'out_of_domain', 'zi');
+throws(
+  () => lw.impedancesWithFeedback('series-shunt', -1, 0, 1, 0, 1, 0, 1, 0),
+  'out_of_domain',
+  'zi',
+);
 
 // Network area. IEC 60063 E24 holds 4.7 and 5.1 next to each other: 4.8k is
 // nearest to 4.7k, 5.0k nearest to 5.1k, whether distance is taken linearly or by ratio.
@@ -53,8 +58,52 @@ const pairs = lw.bestPairs('non-inverting', 11, 'E24', 1e3, 1e6, undefined, unde
 assert.equal(pairs.idealRatio, 10); // 1 + R2/R1 = 11
 assert.ok(Math.abs(pairs.candidates[0].error) < 1e-12, 'E24 has exact decade ratios (e.g. 1k/10k)');
 throws(() => lw.standardValue('E7', 100, 'nearest'), 'unknown_name', 'series');
-const mc1 = lw.monteCarlo('inverting', 10e3, 47e3, 0.01, 0.01, 5e4, 1e5, 2e5, 1e6, 75, 5, 'uniform', 3, 'uniform', 3, 'gain', 1000, 7, undefined, undefined, 10);
-const mc2 = lw.monteCarlo('inverting', 10e3, 47e3, 0.01, 0.01, 5e4, 1e5, 2e5, 1e6, 75, 5, 'uniform', 3, 'uniform', 3, 'gain', 1000, 7, undefined, undefined, 10);
+const mc1 = lw.monteCarlo(
+  'inverting',
+  10e3,
+  47e3,
+  0.01,
+  0.01,
+  5e4,
+  1e5,
+  2e5,
+  1e6,
+  75,
+  5,
+  'uniform',
+  3,
+  'uniform',
+  3,
+  'gain',
+  1000,
+  7,
+  undefined,
+  undefined,
+  10,
+);
+const mc2 = lw.monteCarlo(
+  'inverting',
+  10e3,
+  47e3,
+  0.01,
+  0.01,
+  5e4,
+  1e5,
+  2e5,
+  1e6,
+  75,
+  5,
+  'uniform',
+  3,
+  'uniform',
+  3,
+  'gain',
+  1000,
+  7,
+  undefined,
+  undefined,
+  10,
+);
 assert.equal(mc1.stats.mean, mc2.stats.mean, 'same seed, same numbers');
 
 // Distortion and noise. 4kTR: 1 kΩ at 300 K ≈ 4.07 nV/√Hz (common practice, no source).
@@ -64,7 +113,22 @@ assert.ok(Math.abs(lw.fullPowerBandwidth(1e6, 10) - 1e6 / (2 * Math.PI * 10)) < 
 // Closed-loop series: b1 = a1/(1 + a1·β) (Gray, Hurst, Lewis & Meyer, 5th ed., ch. 8, from memory).
 assert.ok(Math.abs(lw.closedLoopSeries(1e4, 1e6, -2e10, 0.01).a1 - 1e4 / 101) < 1e-9);
 throws(() => lw.thermalNoiseDensity(1e3, -1), 'out_of_domain', 'temperature_k');
-const sweep = lw.noiseDensitySweep('non-inverting', 9e3, 1e3, 0, 300, 4e-9, 10, 1e-12, 100, 10e6, new Float64Array(0), 1, 1e7, 50);
+const sweep = lw.noiseDensitySweep(
+  'non-inverting',
+  9e3,
+  1e3,
+  0,
+  300,
+  4e-9,
+  10,
+  1e-12,
+  100,
+  10e6,
+  new Float64Array(0),
+  1,
+  1e7,
+  50,
+);
 assert.ok(sweep.frequencies instanceof Float64Array && sweep.frequencies.length === 50);
 
 // Frequency response and stability. A single-pole amplifier A(s) = A0/(1 + s/ωp) with
@@ -73,7 +137,8 @@ assert.ok(sweep.frequencies instanceof Float64Array && sweep.frequencies.length 
 // common practice, no source).
 const one = { gain: 1e5, polesHz: [10] };
 const af0 = 1e5 / 1001;
-const near = (x, y, rel, what) => assert.ok(Math.abs(x - y) <= rel * Math.abs(y), `${what}: ${x} vs ${y}`);
+const near = (x, y, rel, what) =>
+  assert.ok(Math.abs(x - y) <= rel * Math.abs(y), `${what}: ${x} vs ${y}`);
 const bw = lw.closedLoopBandwidth(one, 0.01);
 near(bw.midbandGain, af0, 1e-12, 'midband gain');
 near(bw.highHz, 10010, 1e-9, 'upper −3 dB');
@@ -86,11 +151,21 @@ near(at.closedLoopGain.phaseDeg, -45, 1e-12, '∠Af(fH)');
 // T(jf) = 1000/(1 + j·1001) there: |T| = 1000/√(1 + 1001²).
 near(at.loopGain.magnitude, 1000 / Math.hypot(1, 1001), 1e-12, '|T(fH)|');
 // Same model with the pole list as a Float64Array (accepted at runtime and by the types).
-near(lw.loopAt({ gain: 1e5, polesHz: new Float64Array([10]) }, 0.01, 10010).closedLoopGain.magnitude, af0 / Math.SQRT2, 1e-12, 'Float64Array poles');
+near(
+  lw.loopAt({ gain: 1e5, polesHz: new Float64Array([10]) }, 0.01, 10010).closedLoopGain.magnitude,
+  af0 / Math.SQRT2,
+  1e-12,
+  'Float64Array poles',
+);
 // Unity-gain crossover where 1000/√(1 + (f/10)²) = 1: f = 10·√(10⁶ − 1); PM = 180° − atan(f/10).
 const m1 = lw.stabilityMargins(one, 0.01);
 near(m1.crossoverHz, 10 * Math.sqrt(1e6 - 1), 1e-9, 'crossover');
-near(m1.phaseMarginDeg, 180 - Math.atan(Math.sqrt(1e6 - 1)) * 180 / Math.PI, 1e-9, 'phase margin');
+near(
+  m1.phaseMarginDeg,
+  180 - (Math.atan(Math.sqrt(1e6 - 1)) * 180) / Math.PI,
+  1e-9,
+  'phase margin',
+);
 assert.equal(m1.gainMarginDb, null); // one pole never reaches −180°
 assert.equal(m1.validity, 'meaningful');
 // The closed-loop pole: s = −2π·10 010 rad/s, real, ζ = 1.
@@ -112,7 +187,9 @@ assert.equal(st.overshootPercent, 0);
 assert.equal(st.peakTimeS, null);
 near(st.riseTimeS, Math.log(9) * tau, 1e-6, 'rise time');
 near(st.settlingTimeS, Math.log(100) * tau, 1e-6, 'settling time');
-assert.ok(st.timeS instanceof Float64Array && st.timeS.length === 200 && st.output instanceof Float64Array);
+assert.ok(
+  st.timeS instanceof Float64Array && st.timeS.length === 200 && st.output instanceof Float64Array,
+);
 const wf = lw.stepWaveform(one, 0.01, 5 * tau, 6);
 // y(t) = Af0·(1 − e^(−t/τ)) at t = τ (sample 1 of 0, τ, …, 5τ).
 near(wf.output[1], af0 * (1 - Math.exp(-1)), 1e-6, 'y(τ)');
@@ -125,7 +202,12 @@ assert.ok(sw.freqHz instanceof Float64Array && sw.freqHz.length === 6);
 near(sw.freqHz[3], 1e4, 1e-12, 'log spacing');
 // |T| at fp = 10 Hz is T0/√2: 60 dB − 3.0103 dB.
 near(sw.magnitudeDb[0], 60 - 10 * Math.log10(2), 1e-12, '|T(fp)| dB');
-near(lw.closedLoopSweep(one, 0.01, 10, 1e6, 6).magnitudeDb[0], 20 * Math.log10(af0 / Math.hypot(1, 10 / 10010)), 1e-9, '|Af(10 Hz)| dB');
+near(
+  lw.closedLoopSweep(one, 0.01, 10, 1e6, 6).magnitudeDb[0],
+  20 * Math.log10(af0 / Math.hypot(1, 10 / 10010)),
+  1e-9,
+  '|Af(10 Hz)| dB',
+);
 // Three equal poles at 1 kHz: 1 + T0/(1 + s/ω)³ = 0 puts poles on the jω axis at ω·√3
 // when T0 = 8, so 8 is the marginal loop gain and the phase crossover is at √3 kHz
 // (common practice, no source). With T0 = 4 the gain margin is 20·log10(8/4) dB.
@@ -151,10 +233,20 @@ near(tp2.maximallyFlatLoopGain, 1, 1e-12, 'maximally flat T0');
 // margin when analysed on its own, and Af = A0/(1 + A0β) (Af = A/(1 + Aβ)).
 const dom = lw.dominantPoleForMargin({ gain: 1e5, polesHz: [1e6, 1e7] }, 1, 60);
 near(dom.phaseMarginDeg, 60, 1e-6, 'dominant-pole margin');
-near(lw.stabilityMargins({ gain: 1e5, polesHz: [dom.value, 1e6, 1e7] }, 1).phaseMarginDeg, 60, 1e-6, 'margin of the compensated loop');
+near(
+  lw.stabilityMargins({ gain: 1e5, polesHz: [dom.value, 1e6, 1e7] }, 1).phaseMarginDeg,
+  60,
+  1e-6,
+  'margin of the compensated loop',
+);
 near(dom.closedLoopGain, 1e5 / (1 + 1e5), 1e-12, 'follower Af');
 const mb = lw.maxBetaForMargin({ gain: 1e5, polesHz: [10, 1e6] }, 60, 1);
-near(lw.stabilityMargins({ gain: 1e5, polesHz: [10, 1e6] }, mb.value).phaseMarginDeg, 60, 1e-6, 'margin at the largest β');
+near(
+  lw.stabilityMargins({ gain: 1e5, polesHz: [10, 1e6] }, mb.value).phaseMarginDeg,
+  60,
+  1e-6,
+  'margin at the largest β',
+);
 near(mb.closedLoopGain, 1e5 / (1 + 1e5 * mb.value), 1e-12, 'Af at the largest β');
 throws(() => lw.loopAt({ gain: 1, poleHz: [1] }, 1, 1), 'unknown_name', 'a'); // misspelt field
 throws(() => lw.loopAt({ gain: 1 }, { gain: 1, padeOrder: 3 }, 1), 'out_of_domain', 'beta');
@@ -197,13 +289,22 @@ near(twoPort.beta.re, 0.1, 1e-12, 'β');
 near(twoPort.parameters.p11.re, 900, 1e-9, 'h11');
 near(twoPort.parameters.p22.re, 1e-4, 1e-9, 'h22');
 near(twoPort.idealAf.re, 10, 1e-12, '1/β');
-near(twoPort.af.twoPort.re, twoPort.a.re / (1 + twoPort.a.re * twoPort.beta.re), 1e-12, 'Af = A/(1 + Aβ)');
+near(
+  twoPort.af.twoPort.re,
+  twoPort.a.re / (1 + twoPort.a.re * twoPort.beta.re),
+  1e-12,
+  'Af = A/(1 + Aβ)',
+);
 assert.ok(twoPort.af.relativeError < 1e-6, 'the two-port method is close for a stiff stage');
 // Blackman's formula and the asymptotic gain are exact (Blackman, "Effect of feedback on
 // impedance", Bell System Technical Journal, 1943, from memory): they agree with the solve.
 const views = lw.circuitStageViews('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0);
 near(views.gain.gInf.re, 10, 1e-12, 'G∞ = 1/β');
-assert.ok(views.gain.relativeError < 1e-12 && views.input.relativeError < 1e-9 && views.output.relativeError < 1e-9);
+assert.ok(
+  views.gain.relativeError < 1e-12 &&
+    views.input.relativeError < 1e-9 &&
+    views.output.relativeError < 1e-9,
+);
 // VCVS k = 1e3 with input resistance Ri = 10k between p and n, Rf = 9k (o–n), Rg = 1k (n–0):
 // nodal analysis with a test current I into p gives V(n) = I·(9k + 10⁷)/10 and
 // Zin = 1 010 900 Ω; Z0 (k = 0) = Ri + Rf ‖ Rg = 10 900 Ω; with p open no current flows in
@@ -232,35 +333,103 @@ near(ag.t.re, 9.9, 1e-12, 'T');
 near(ag.gInf.re, 10, 1e-12, 'G∞');
 assert.equal(ag.g0.re, 0);
 near(ag.af.re, 99 / 10.9, 1e-12, 'Af');
-near(lw.circuitAsymptoticGainCurrent(follower, 'E', 'Vs', 'R2', 0).af.re, 0.1 * (99 / 10.9) / 1e3, 1e-12, 'I(R2)');
-const circuitThrows = (fn, code, param, subject) => assert.throws(fn, (e) => {
-  assert.equal(e.name, 'LoopwrightError');
-  assert.deepEqual([e.code, e.param, e.subject], [code, param, subject]);
-  return true;
-});
-circuitThrows(() => lw.circuitSolve(divider.replace('"3k"', '"-3k"'), 0), 'out_of_domain', 'value', 'R2');
-circuitThrows(() => lw.circuitPortImpedance(divider, 'mid', 'nowhere', 0), 'unknown_name', 'node', 'nowhere');
-circuitThrows(() => lw.circuitSweep(rc, 'Vs', 'out', '0', new Float64Array([-1])), 'out_of_domain', 'frequency', '');
-circuitThrows(() => lw.circuitTemplate('parallel', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4), 'unknown_name', 'topology', '');
-circuitThrows(() => lw.circuitTwoPort('series-shunt', -1, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0), 'out_of_domain', 'ri', '');
-circuitThrows(() => lw.circuitStageViews('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 0, 1e4, 0), 'out_of_domain', 'rs', '');
-circuitThrows(() => lw.circuitBlackman(zin, 'Rf', 'p', '0', 0), 'out_of_domain', 'controlled', 'Rf');
-circuitThrows(() => lw.circuitAsymptoticGain(follower, 'E', 'R1', 'o', '0', 0), 'out_of_domain', 'source', 'R1');
-circuitThrows(() => lw.circuitAsymptoticGainCurrent(follower, 'E', 'Vs', 'Rx', 0), 'unknown_name', 'element', 'Rx');
+near(
+  lw.circuitAsymptoticGainCurrent(follower, 'E', 'Vs', 'R2', 0).af.re,
+  (0.1 * (99 / 10.9)) / 1e3,
+  1e-12,
+  'I(R2)',
+);
+const circuitThrows = (fn, code, param, subject) =>
+  assert.throws(fn, (e) => {
+    assert.equal(e.name, 'LoopwrightError');
+    assert.deepEqual([e.code, e.param, e.subject], [code, param, subject]);
+    return true;
+  });
+circuitThrows(
+  () => lw.circuitSolve(divider.replace('"3k"', '"-3k"'), 0),
+  'out_of_domain',
+  'value',
+  'R2',
+);
+circuitThrows(
+  () => lw.circuitPortImpedance(divider, 'mid', 'nowhere', 0),
+  'unknown_name',
+  'node',
+  'nowhere',
+);
+circuitThrows(
+  () => lw.circuitSweep(rc, 'Vs', 'out', '0', new Float64Array([-1])),
+  'out_of_domain',
+  'frequency',
+  '',
+);
+circuitThrows(
+  () => lw.circuitTemplate('parallel', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4),
+  'unknown_name',
+  'topology',
+  '',
+);
+circuitThrows(
+  () => lw.circuitTwoPort('series-shunt', -1, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0),
+  'out_of_domain',
+  'ri',
+  '',
+);
+circuitThrows(
+  () => lw.circuitStageViews('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 0, 1e4, 0),
+  'out_of_domain',
+  'rs',
+  '',
+);
+circuitThrows(
+  () => lw.circuitBlackman(zin, 'Rf', 'p', '0', 0),
+  'out_of_domain',
+  'controlled',
+  'Rf',
+);
+circuitThrows(
+  () => lw.circuitAsymptoticGain(follower, 'E', 'R1', 'o', '0', 0),
+  'out_of_domain',
+  'source',
+  'R1',
+);
+circuitThrows(
+  () => lw.circuitAsymptoticGainCurrent(follower, 'E', 'Vs', 'Rx', 0),
+  'unknown_name',
+  'element',
+  'Rx',
+);
 
 // Shapes: each result has exactly the keys its TypeScript interface lists (the lists below
 // are copied from the interfaces in src/wasm/freq.rs and src/wasm/circuit.rs), so the
 // hand-written types cannot drift from what the code returns.
 const keys = (o) => Object.keys(o).sort();
-const shape = (obj, expected, what) => assert.deepEqual(keys(obj), [...expected].sort(), `${what} keys`);
+const shape = (obj, expected, what) =>
+  assert.deepEqual(keys(obj), [...expected].sort(), `${what} keys`);
 const PHASOR = ['re', 'im', 'magnitude', 'phaseDeg'];
 const SWEEP = ['freqHz', 'magnitudeDb', 'phaseDeg'];
-const MARGINS = ['phaseMarginDeg', 'crossoverHz', 'gainMarginDb', 'phaseCrossoverHz', 'gainCrossings', 'phaseCrossings', 'validity'];
+const MARGINS = [
+  'phaseMarginDeg',
+  'crossoverHz',
+  'gainMarginDb',
+  'phaseCrossoverHz',
+  'gainCrossings',
+  'phaseCrossings',
+  'validity',
+];
 const CROSSING = ['freqHz', 'margin', 'rising'];
 const POLES = ['poles', 'verdict', 'minZeta', 'padeOrder'];
 const POLE = ['re', 'im', 'naturalHz', 'zeta', 'q'];
 const BANDWIDTH = ['midbandGain', 'highHz', 'lowHz', 'bandwidthHz', 'peakingDb', 'peakHz'];
-const METRICS = ['finalValue', 'overshootPercent', 'peakTimeS', 'undershootPercent', 'riseTimeS', 'settlingTimeS', 'settleBand'];
+const METRICS = [
+  'finalValue',
+  'overshootPercent',
+  'peakTimeS',
+  'undershootPercent',
+  'riseTimeS',
+  'settlingTimeS',
+  'settleBand',
+];
 const WAVEFORM = ['timeS', 'output'];
 const COMPENSATION = ['value', 'phaseMarginDeg', 'crossoverHz', 'closedLoopGain'];
 shape(sw, SWEEP, 'loopGainSweep');
@@ -285,7 +454,11 @@ shape(an.step.waveform, WAVEFORM, 'analyzeLoop.step.waveform');
 shape(wf, WAVEFORM, 'stepWaveform');
 shape(dom, COMPENSATION, 'dominantPoleForMargin');
 shape(mb, COMPENSATION, 'maxBetaForMargin');
-shape(tp2, ['naturalHz', 'q', 'zeta', 'peakingDb', 'peakHz', 'overshootPercent', 'maximallyFlatLoopGain'], 'twoPoleResponse');
+shape(
+  tp2,
+  ['naturalHz', 'q', 'zeta', 'peakingDb', 'peakHz', 'overshootPercent', 'maximallyFlatLoopGain'],
+  'twoPoleResponse',
+);
 const COMPLEX = ['re', 'im'];
 const COMPARISON = ['twoPort', 'exact', 'relativeError'];
 const BLACKMAN = ['z0', 'tShort', 'tOpen', 'blackman', 'exact', 'relativeError'];
@@ -295,11 +468,34 @@ shape(sol.nodeVoltages[0], ['name', 're', 'im'], 'nodeVoltages[0]');
 shape(sol.elementCurrents[0], ['name', 're', 'im'], 'elementCurrents[0]');
 shape(lw.circuitPortImpedance(divider, 'mid', '0', 0), COMPLEX, 'circuitPortImpedance');
 shape(h, COMPLEX, 'circuitSweep');
-shape(twoPort, ['topology', 'frequencyHz', 'gainUnit', 'parameters', 'a', 'beta', 'loopGain', 'feedbackAmount', 'ri', 'ro',
-  'af', 'rif', 'rof', 'rin', 'rout', 'idealAf', 'idealAfError'], 'circuitTwoPort');
+shape(
+  twoPort,
+  [
+    'topology',
+    'frequencyHz',
+    'gainUnit',
+    'parameters',
+    'a',
+    'beta',
+    'loopGain',
+    'feedbackAmount',
+    'ri',
+    'ro',
+    'af',
+    'rif',
+    'rof',
+    'rin',
+    'rout',
+    'idealAf',
+    'idealAfError',
+  ],
+  'circuitTwoPort',
+);
 shape(twoPort.parameters, ['kind', 'p11', 'p12', 'p21', 'p22'], 'circuitTwoPort.parameters');
-for (const k of ['a', 'beta', 'loopGain', 'feedbackAmount', 'ri', 'ro', 'idealAf']) shape(twoPort[k], COMPLEX, `circuitTwoPort.${k}`);
-for (const k of ['af', 'rif', 'rof', 'rin', 'rout']) shape(twoPort[k], COMPARISON, `circuitTwoPort.${k}`);
+for (const k of ['a', 'beta', 'loopGain', 'feedbackAmount', 'ri', 'ro', 'idealAf'])
+  shape(twoPort[k], COMPLEX, `circuitTwoPort.${k}`);
+for (const k of ['af', 'rif', 'rof', 'rin', 'rout'])
+  shape(twoPort[k], COMPARISON, `circuitTwoPort.${k}`);
 shape(twoPort.af.exact, COMPLEX, 'circuitTwoPort.af.exact');
 shape(views, ['gain', 'input', 'output'], 'circuitStageViews');
 shape(views.gain, ASYMPTOTIC, 'circuitStageViews.gain');
@@ -308,12 +504,29 @@ shape(views.output, BLACKMAN, 'circuitStageViews.output');
 shape(bl, BLACKMAN, 'circuitBlackman');
 shape(bl.tShort, COMPLEX, 'circuitBlackman.tShort');
 shape(ag, ASYMPTOTIC, 'circuitAsymptoticGain');
-shape(lw.circuitAsymptoticGainCurrent(follower, 'E', 'Vs', 'R2', 0), ASYMPTOTIC, 'circuitAsymptoticGainCurrent');
+shape(
+  lw.circuitAsymptoticGainCurrent(follower, 'E', 'Vs', 'R2', 0),
+  ASYMPTOTIC,
+  'circuitAsymptoticGainCurrent',
+);
 // The circuit document written by circuitTemplate has the CircuitDocument shape.
-const tdoc = JSON.parse(lw.circuitTemplate('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4));
-shape(tdoc, 'nodes' in tdoc ? ['format', 'version', 'nodes', 'elements'] : ['format', 'version', 'elements'], 'circuitTemplate document');
+const tdoc = JSON.parse(
+  lw.circuitTemplate('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4),
+);
+shape(
+  tdoc,
+  'nodes' in tdoc ? ['format', 'version', 'nodes', 'elements'] : ['format', 'version', 'elements'],
+  'circuitTemplate document',
+);
 for (const e of tdoc.elements) {
-  const extra = { vcvs: ['control'], vccs: ['control'], ccvs: ['controlElement'], cccs: ['controlElement'], admittance: ['valueIm'] }[e.kind] ?? [];
+  const extra =
+    {
+      vcvs: ['control'],
+      vccs: ['control'],
+      ccvs: ['controlElement'],
+      cccs: ['controlElement'],
+      admittance: ['valueIm'],
+    }[e.kind] ?? [];
   shape(e, ['name', 'kind', 'nodes', 'value', ...extra], `template element ${e.name}`);
 }
 
@@ -332,7 +545,11 @@ const sheetDoc = ws.saveDocument();
 const ws2 = new lw.Worksheet();
 ws2.loadDocument(sheetDoc);
 assert.equal(ws2.saveDocument(), sheetDoc, 'save → load → save is byte-identical');
-throws(() => ws2.loadDocument('{"format":"loopwright-sheet","version":99,"cells":{}}'), 'bad_document', 'document');
+throws(
+  () => ws2.loadDocument('{"format":"loopwright-sheet","version":99,"cells":{}}'),
+  'bad_document',
+  'document',
+);
 assert.equal(ws2.value('A3').number, ws.value('A3').number, 'nothing lost by the refused document');
 const catalog = JSON.parse(lw.functionCatalog());
 assert.ok(catalog.functions.some((f) => f.name === 'FB.GAIN'));
@@ -345,8 +562,16 @@ console.log('consumer: all checks passed');
 // heap (an earlier design that threw from inside wasm broke after 32 764 errors).
 let caught = 0;
 for (let i = 0; i < 100_000; i++) {
-  try { lw.closedLoopGain(-100, 0.01); } catch (e) { if (e.code === 'oscillation') caught++; }
-  try { lw.summarizeFeedback('nope', 1, 1); } catch (e) { if (e.code === 'unknown_name') caught++; }
+  try {
+    lw.closedLoopGain(-100, 0.01);
+  } catch (e) {
+    if (e.code === 'oscillation') caught++;
+  }
+  try {
+    lw.summarizeFeedback('nope', 1, 1);
+  } catch (e) {
+    if (e.code === 'unknown_name') caught++;
+  }
 }
 assert.equal(caught, 200_000);
 assert.ok(Math.abs(lw.summarizeFeedback('series-shunt', 1e5, 0.00999).closedLoopGain - 100) < 1e-9);

@@ -16,7 +16,8 @@ export const stageCard = {
   id: 'card-stage',
   title: 'Feedback stage',
   blurb: 'Closed-loop gain, loop gain, amount of feedback and port impedances from A and β.',
-  formula: 'T = A·β    D = 1 + A·β    Af = A / D    S = 1/D\nZif = Zi·D (series mixing) or Zi/D (shunt)    Zof = Zo/D (voltage sampling) or Zo·D (current)',
+  formula:
+    'T = A·β    D = 1 + A·β    Af = A / D    S = 1/D\nZif = Zi·D (series mixing) or Zi/D (shunt)    Zof = Zo/D (voltage sampling) or Zo·D (current)',
   inputs: [
     { name: 'topology', label: 'Topology', value: 'series-shunt', choices: TOPOLOGY_CHOICES },
     { name: 'a', label: 'Open-loop gain A', value: '100k', unit: gainUnit },
@@ -29,8 +30,21 @@ export const stageCard = {
     const z = api.impedancesWithFeedback(topology, zi, 0, zo, 0, a, 0, beta, 0);
     return [
       { name: 'af', label: 'Closed-loop gain Af', value: s.closedLoopGain, unit: s.gainUnit },
-      { name: 'ideal', label: 'Ideal gain 1/β', value: s.idealGain ?? NaN, unit: s.gainUnit, text: s.idealGain === null ? 'none (β = 0)' : undefined },
-      { name: 'error', label: 'Gain error vs 1/β', value: (s.gainError ?? NaN) * 100, unit: '%', format: 'plain', text: s.gainError === null ? '—' : undefined },
+      {
+        name: 'ideal',
+        label: 'Ideal gain 1/β',
+        value: s.idealGain ?? NaN,
+        unit: s.gainUnit,
+        text: s.idealGain === null ? 'none (β = 0)' : undefined,
+      },
+      {
+        name: 'error',
+        label: 'Gain error vs 1/β',
+        value: (s.gainError ?? NaN) * 100,
+        unit: '%',
+        format: 'plain',
+        text: s.gainError === null ? '—' : undefined,
+      },
       { name: 't', label: 'Loop gain T', value: s.loopGain, format: 'plain' },
       { name: 'd', label: 'Amount of feedback D', value: s.feedbackAmount, format: 'plain' },
       { name: 'ddb', label: 'D in dB', value: s.feedbackAmountDb, unit: 'dB', format: 'plain' },
@@ -45,7 +59,8 @@ export const stageCard = {
 export const inverseCard = {
   id: 'card-inverse',
   title: 'Inverse design',
-  blurb: 'Which β for a target gain, how much open-loop gain for a gain error, and the largest gain a required amount of feedback allows.',
+  blurb:
+    'Which β for a target gain, how much open-loop gain for a gain error, and the largest gain a required amount of feedback allows.',
   formula: 'β = 1/Af − 1/A    A_min = (1 − ε)/(ε·β)    Af_max = A / D_req,  β = (D_req − 1)/A',
   inputs: [
     { name: 'a', label: 'Open-loop gain A', value: '100k' },
@@ -86,8 +101,18 @@ export const spreadCard = {
       { name: 'atmax', label: 'Af at A max', value: s.atMax, format: 'plain' },
       { name: 'spread', label: 'Spread', value: s.spreadPercent, unit: '%', format: 'plain' },
       { name: 'ppm', label: 'Spread', value: s.spreadPpm, unit: 'ppm', format: 'plain' },
-      { name: 'range', label: 'Low / high', text: `${s.lowPercent.toFixed(4)} % / +${s.highPercent.toFixed(4)} %` },
-      { name: 'flag', label: 'Feedback', text: s.positiveFeedback ? 'POSITIVE feedback somewhere in the range' : 'negative over the whole range' },
+      {
+        name: 'range',
+        label: 'Low / high',
+        text: `${s.lowPercent.toFixed(4)} % / +${s.highPercent.toFixed(4)} %`,
+      },
+      {
+        name: 'flag',
+        label: 'Feedback',
+        text: s.positiveFeedback
+          ? 'POSITIVE feedback somewhere in the range'
+          : 'negative over the whole range',
+      },
     ];
   },
 };

@@ -4,33 +4,68 @@ import { histogramChart } from '../plot/histogram.js';
 import { formatEngineering, formatPlain } from '../format.js';
 
 const SERIES = ['E3', 'E6', 'E12', 'E24', 'E48', 'E96', 'E192'].map((s) => [s, s]);
-const STAGES = [['non-inverting', 'non-inverting (1 + R2/R1)'], ['inverting', 'inverting (−R2/R1)']];
+const STAGES = [
+  ['non-inverting', 'non-inverting (1 + R2/R1)'],
+  ['inverting', 'inverting (−R2/R1)'],
+];
 
-const leg = (l) => (l.second === null || l.second === undefined
-  ? formatEngineering(l.value)
-  : `${formatEngineering(l.first)} ${l.joint === 'parallel' ? '∥' : '+'} ${formatEngineering(l.second)}`);
+const leg = (l) =>
+  l.second === null || l.second === undefined
+    ? formatEngineering(l.value)
+    : `${formatEngineering(l.first)} ${l.joint === 'parallel' ? '∥' : '+'} ${formatEngineering(l.second)}`;
 
 export const pairCard = {
   id: 'card-pairs',
   title: 'Resistor pair',
-  blurb: 'Standard-value resistors (IEC 60063) for a gain or divider ratio, ranked by error, within a total-resistance range.',
-  formula: 'non-inverting: G = 1 + R2/R1    inverting: |G| = R2/R1    divider: k = R1/(R1 + R2)\nerror = achieved/target − 1',
+  blurb:
+    'Standard-value resistors (IEC 60063) for a gain or divider ratio, ranked by error, within a total-resistance range.',
+  formula:
+    'non-inverting: G = 1 + R2/R1    inverting: |G| = R2/R1    divider: k = R1/(R1 + R2)\nerror = achieved/target − 1',
   inputs: [
-    { name: 'network', label: 'Network', value: 'non-inverting', choices: [['non-inverting', 'non-inverting gain'], ['inverting', 'inverting gain'], ['divider', 'divider ratio']] },
+    {
+      name: 'network',
+      label: 'Network',
+      value: 'non-inverting',
+      choices: [
+        ['non-inverting', 'non-inverting gain'],
+        ['inverting', 'inverting gain'],
+        ['divider', 'divider ratio'],
+      ],
+    },
     { name: 'target', label: 'Target', value: '7.77' },
     { name: 'series', label: 'Series', value: 'E96', choices: SERIES },
     { name: 'total_min', label: 'R1 + R2 at least', value: '2k', unit: 'Ω' },
     { name: 'total_max', label: 'R1 + R2 at most', value: '200k', unit: 'Ω' },
-    { name: 'combine', label: 'Two-part R2', value: 'none', choices: [['none', 'single resistor'], ['either', 'series or parallel pair']] },
+    {
+      name: 'combine',
+      label: 'Two-part R2',
+      value: 'none',
+      choices: [
+        ['none', 'single resistor'],
+        ['either', 'series or parallel pair'],
+      ],
+    },
   ],
   compute({ network, target, series, total_min, total_max, combine }, api) {
-    const r = api.bestPairs(network, target, series, total_min, total_max, undefined, undefined, combine, 5);
+    const r = api.bestPairs(
+      network,
+      target,
+      series,
+      total_min,
+      total_max,
+      undefined,
+      undefined,
+      combine,
+      5,
+    );
     const rows = [{ name: 'ideal', label: 'Ideal R2/R1', value: r.idealRatio, format: 'plain' }];
-    r.candidates.forEach((c, i) => rows.push({
-      name: `pair${i + 1}`,
-      label: `#${i + 1}  R1 / R2`,
-      text: `${formatEngineering(c.r1)} / ${leg(c.r2)}   → ${formatPlain(c.achieved)} (${(c.error * 100).toFixed(4)} %)`,
-    }));
+    r.candidates.forEach((c, i) => {
+      rows.push({
+        name: `pair${i + 1}`,
+        label: `#${i + 1}  R1 / R2`,
+        text: `${formatEngineering(c.r1)} / ${leg(c.r2)}   → ${formatPlain(c.achieved)} (${(c.error * 100).toFixed(4)} %)`,
+      });
+    });
     return rows;
   },
 };
@@ -45,16 +80,28 @@ const stageInputs = [
   { name: 'a_max', label: 'A max', value: '1M' },
 ];
 
-
 export const worstCaseCard = {
   id: 'card-worst',
   title: 'Worst case',
-  blurb: 'Extremes of the closed-loop gain over every corner of resistor tolerance and open-loop gain (op-amp stage, 1 MΩ input, 75 Ω output, 10 Hz dominant pole).',
+  blurb:
+    'Extremes of the closed-loop gain over every corner of resistor tolerance and open-loop gain (op-amp stage, 1 MΩ input, 75 Ω output, 10 Hz dominant pole).',
   formula: 'corners: R1 ± tol, R2 ± tol, A ∈ {A min, A max}\nAf = A/(1 + A·β), β = R1/(R1 + R2)',
   inputs: stageInputs,
   aliases: { tol_r1: 'tol', tol_r2: 'tol' },
   compute(v, api) {
-    const w = api.worstCase(v.stage, v.r1, v.r2, v.tol, v.tol, v.a_min, v.a_typ, v.a_max, 1e6, 75, 10);
+    const w = api.worstCase(
+      v.stage,
+      v.r1,
+      v.r2,
+      v.tol,
+      v.tol,
+      v.a_min,
+      v.a_typ,
+      v.a_max,
+      1e6,
+      75,
+      10,
+    );
     const corner = (c) => `R1 ${c.r1}, R2 ${c.r2}, A ${c.openLoopGain}`;
     return [
       { name: 'nominal', label: 'Nominal gain', value: w.gain.nominal, format: 'plain' },
@@ -62,8 +109,17 @@ export const worstCaseCard = {
       { name: 'mincorner', label: '  at', text: corner(w.gain.minCorner) },
       { name: 'max', label: 'Highest gain', value: w.gain.max, format: 'plain' },
       { name: 'maxcorner', label: '  at', text: corner(w.gain.maxCorner) },
-      { name: 'range', label: 'Low / high', text: `${w.gain.lowPercent.toFixed(3)} % / +${w.gain.highPercent.toFixed(3)} %` },
-      { name: 'bw', label: 'Bandwidth range', text: `${formatEngineering(w.bandwidthHz.min)} … ${formatEngineering(w.bandwidthHz.max)}`, unit: 'Hz' },
+      {
+        name: 'range',
+        label: 'Low / high',
+        text: `${w.gain.lowPercent.toFixed(3)} % / +${w.gain.highPercent.toFixed(3)} %`,
+      },
+      {
+        name: 'bw',
+        label: 'Bandwidth range',
+        text: `${formatEngineering(w.bandwidthHz.min)} … ${formatEngineering(w.bandwidthHz.max)}`,
+        unit: 'Hz',
+      },
     ];
   },
 };
@@ -71,7 +127,8 @@ export const worstCaseCard = {
 export const monteCarloCard = {
   id: 'card-montecarlo',
   title: 'Monte Carlo',
-  blurb: 'Seeded random builds of the stage: resistors uniform within tolerance, open-loop gain uniform between min and max. The same seed gives the same numbers everywhere.',
+  blurb:
+    'Seeded random builds of the stage: resistors uniform within tolerance, open-loop gain uniform between min and max. The same seed gives the same numbers everywhere.',
   formula: 'Af = A/(1 + A·R1/(R1 + R2)) per trial; yield = share of trials inside the limits',
   inputs: [
     ...stageInputs,
@@ -82,21 +139,57 @@ export const monteCarloCard = {
   ],
   aliases: { tol_r1: 'tol', tol_r2: 'tol' },
   compute(v, api) {
-    const r = api.monteCarlo(v.stage, v.r1, v.r2, v.tol, v.tol, v.a_min, v.a_typ, v.a_max, 1e6, 75, 10,
-      'uniform', 3, 'uniform', 3, 'gain', v.trials, v.seed, v.lower, v.upper, 40);
+    const r = api.monteCarlo(
+      v.stage,
+      v.r1,
+      v.r2,
+      v.tol,
+      v.tol,
+      v.a_min,
+      v.a_typ,
+      v.a_max,
+      1e6,
+      75,
+      10,
+      'uniform',
+      3,
+      'uniform',
+      3,
+      'gain',
+      v.trials,
+      v.seed,
+      v.lower,
+      v.upper,
+      40,
+    );
     const s = r.stats;
     const p = Object.fromEntries(s.percentiles.map((x) => [x.percent, x.value]));
     const svg = histogramChart({
-      title: `Closed-loop gain, ${s.count} trials`, label: 'closed-loop gain',
-      edges: s.histogram.edges, counts: s.histogram.counts,
-      limits: [{ x: v.lower, label: 'low limit' }, { x: v.upper, label: 'high limit' }],
+      title: `Closed-loop gain, ${s.count} trials`,
+      label: 'closed-loop gain',
+      edges: s.histogram.edges,
+      counts: s.histogram.counts,
+      limits: [
+        { x: v.lower, label: 'low limit' },
+        { x: v.upper, label: 'high limit' },
+      ],
     });
     return {
       rows: [
         { name: 'mean', label: 'Mean', value: s.mean, format: 'plain' },
         { name: 'sd', label: 'Standard deviation', value: s.sd, format: 'plain' },
-        { name: 'p01', label: '0.1 % / 99.9 %', text: `${formatPlain(p[0.1])} / ${formatPlain(p[99.9])}` },
-        { name: 'yield', label: 'Yield', value: (s.yieldFraction ?? Number.NaN) * 100, unit: '%', format: 'plain' },
+        {
+          name: 'p01',
+          label: '0.1 % / 99.9 %',
+          text: `${formatPlain(p[0.1])} / ${formatPlain(p[99.9])}`,
+        },
+        {
+          name: 'yield',
+          label: 'Yield',
+          value: (s.yieldFraction ?? Number.NaN) * 100,
+          unit: '%',
+          format: 'plain',
+        },
       ],
       figures: [{ svg, name: 'monte-carlo-gain' }],
     };

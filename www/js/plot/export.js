@@ -3,7 +3,16 @@
 
 import { downloadBlob } from '../dom.js';
 
-const STYLE_PROPS = ['fill', 'stroke', 'stroke-width', 'stroke-dasharray', 'font-size', 'font-family', 'font-weight', 'opacity'];
+const STYLE_PROPS = [
+  'fill',
+  'stroke',
+  'stroke-width',
+  'stroke-dasharray',
+  'font-size',
+  'font-family',
+  'font-weight',
+  'opacity',
+];
 
 export function svgText(svgElement) {
   const copy = svgElement.cloneNode(true);

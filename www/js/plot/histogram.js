@@ -8,10 +8,29 @@ import { makeScale, linearTicks, niceDomain, tickLabel } from './scale.js';
 
 const MARGIN = { top: 26, right: 14, bottom: 40, left: 56 };
 
-export function histogramChart({ title, width = 640, height = 240, label, edges, counts, limits = [] }) {
-  const root = svg('svg', { xmlns: 'http://www.w3.org/2000/svg', viewBox: `0 0 ${width} ${height}`, class: 'plot', role: 'img', 'aria-label': title });
+export function histogramChart({
+  title,
+  width = 640,
+  height = 240,
+  label,
+  edges,
+  counts,
+  limits = [],
+}) {
+  const root = svg('svg', {
+    xmlns: 'http://www.w3.org/2000/svg',
+    viewBox: `0 0 ${width} ${height}`,
+    class: 'plot',
+    role: 'img',
+    'aria-label': title,
+  });
   root.append(svg('title', {}, title));
-  const inner = { x0: MARGIN.left, x1: width - MARGIN.right, y0: height - MARGIN.bottom, y1: MARGIN.top };
+  const inner = {
+    x0: MARGIN.left,
+    x1: width - MARGIN.right,
+    y0: height - MARGIN.bottom,
+    y1: MARGIN.top,
+  };
   const xs = [edges[0], edges[edges.length - 1], ...limits.map((l) => l.x)].filter(Number.isFinite);
   const xDomain = [Math.min(...xs), Math.max(...xs)];
   const pad = (xDomain[1] - xDomain[0]) * 0.04 || 1;
@@ -21,12 +40,24 @@ export function histogramChart({ title, width = 640, height = 240, label, edges,
 
   const grid = svg('g', { class: 'plot-grid' });
   for (const t of linearTicks(xDomain[0] - pad, xDomain[1] + pad, 6).ticks) {
-    grid.append(svg('text', { x: sx(t).toFixed(1), y: inner.y0 + 16, 'text-anchor': 'middle', class: 'plot-tick' }, tickLabel(t)));
+    grid.append(
+      svg(
+        'text',
+        { x: sx(t).toFixed(1), y: inner.y0 + 16, 'text-anchor': 'middle', class: 'plot-tick' },
+        tickLabel(t),
+      ),
+    );
   }
   for (const t of linearTicks(...yDomain, 4).ticks) {
     const py = sy(t).toFixed(1);
     grid.append(svg('line', { x1: inner.x0, x2: inner.x1, y1: py, y2: py }));
-    grid.append(svg('text', { x: inner.x0 - 6, y: Number(py) + 4, 'text-anchor': 'end', class: 'plot-tick' }, tickLabel(t)));
+    grid.append(
+      svg(
+        'text',
+        { x: inner.x0 - 6, y: Number(py) + 4, 'text-anchor': 'end', class: 'plot-tick' },
+        tickLabel(t),
+      ),
+    );
   }
   root.append(grid);
   const bars = svg('g', { class: 'plot-bars' });
@@ -34,7 +65,14 @@ export function histogramChart({ title, width = 640, height = 240, label, edges,
     const x0 = sx(edges[i]);
     const x1 = sx(edges[i + 1]);
     const y = sy(counts[i]);
-    bars.append(svg('rect', { x: x0.toFixed(1), y: y.toFixed(1), width: Math.max(0.5, x1 - x0 - 0.5).toFixed(1), height: (inner.y0 - y).toFixed(1) }));
+    bars.append(
+      svg('rect', {
+        x: x0.toFixed(1),
+        y: y.toFixed(1),
+        width: Math.max(0.5, x1 - x0 - 0.5).toFixed(1),
+        height: (inner.y0 - y).toFixed(1),
+      }),
+    );
   }
   root.append(bars);
   for (const l of limits) {
@@ -44,8 +82,27 @@ export function histogramChart({ title, width = 640, height = 240, label, edges,
     if (l.label) g.append(svg('text', { x: Number(px) + 4, y: inner.y1 + 12 }, l.label));
     root.append(g);
   }
-  root.append(svg('rect', { x: inner.x0, y: inner.y1, width: inner.x1 - inner.x0, height: inner.y0 - inner.y1, class: 'plot-frame' }));
-  root.append(svg('text', { x: (inner.x0 + inner.x1) / 2, y: height - 6, 'text-anchor': 'middle', class: 'plot-axis-label' }, label));
+  root.append(
+    svg('rect', {
+      x: inner.x0,
+      y: inner.y1,
+      width: inner.x1 - inner.x0,
+      height: inner.y0 - inner.y1,
+      class: 'plot-frame',
+    }),
+  );
+  root.append(
+    svg(
+      'text',
+      {
+        x: (inner.x0 + inner.x1) / 2,
+        y: height - 6,
+        'text-anchor': 'middle',
+        class: 'plot-axis-label',
+      },
+      label,
+    ),
+  );
   root.append(svg('text', { x: inner.x0, y: 16, class: 'plot-title' }, title));
   return root;
 }

@@ -34,7 +34,8 @@ export function linearTicks(lo, hi, count = 6) {
   const step = [1, 2, 5, 10].map((m) => m * mag).find((s) => s >= raw) ?? 10 * mag;
   const first = Math.ceil(lo / step - 1e-9) * step;
   const ticks = [];
-  for (let v = first; v <= hi + step * 1e-9; v += step) ticks.push(Math.abs(v) < step * 1e-9 ? 0 : v);
+  for (let v = first; v <= hi + step * 1e-9; v += step)
+    ticks.push(Math.abs(v) < step * 1e-9 ? 0 : v);
   return { ticks, step };
 }
 
@@ -53,7 +54,17 @@ export function decadeTicks(lo, hi) {
   return { ticks, domain: [10 ** a, 10 ** b] };
 }
 
-const PREFIX = [[1e12, 'T'], [1e9, 'G'], [1e6, 'M'], [1e3, 'k'], [1, ''], [1e-3, 'm'], [1e-6, 'µ'], [1e-9, 'n'], [1e-12, 'p']];
+const PREFIX = [
+  [1e12, 'T'],
+  [1e9, 'G'],
+  [1e6, 'M'],
+  [1e3, 'k'],
+  [1, ''],
+  [1e-3, 'm'],
+  [1e-6, 'µ'],
+  [1e-9, 'n'],
+  [1e-12, 'p'],
+];
 
 /** Short tick label with an SI prefix: 1k, 10M, 2.5, 100µ. */
 export function tickLabel(v) {

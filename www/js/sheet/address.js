@@ -19,7 +19,12 @@ export function parseAddress(text) {
 
 /** The rectangle spanned by two corners, as {c0, r0, c1, r1}. */
 export function rectOf(a, b) {
-  return { c0: Math.min(a.col, b.col), r0: Math.min(a.row, b.row), c1: Math.max(a.col, b.col), r1: Math.max(a.row, b.row) };
+  return {
+    c0: Math.min(a.col, b.col),
+    r0: Math.min(a.row, b.row),
+    c1: Math.max(a.col, b.col),
+    r1: Math.max(a.row, b.row),
+  };
 }
 
 /** "A1:C4" for a rectangle ("B2" when it is one cell). */
@@ -31,10 +36,14 @@ export function rangeText(rect) {
 
 /** Move a position by (dc, dr), clamped to the grid. */
 export function moved(pos, dc, dr) {
-  return { col: Math.min(COLS - 1, Math.max(0, pos.col + dc)), row: Math.min(ROWS - 1, Math.max(0, pos.row + dr)) };
+  return {
+    col: Math.min(COLS - 1, Math.max(0, pos.col + dc)),
+    row: Math.min(ROWS - 1, Math.max(0, pos.row + dr)),
+  };
 }
 
 /** Every address of a rectangle, row by row. */
 export function* addressesIn(rect) {
-  for (let r = rect.r0; r <= rect.r1; r++) for (let c = rect.c0; c <= rect.c1; c++) yield addressOf(c, r);
+  for (let r = rect.r0; r <= rect.r1; r++)
+    for (let c = rect.c0; c <= rect.c1; c++) yield addressOf(c, r);
 }

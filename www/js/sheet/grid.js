@@ -7,7 +7,16 @@
 
 import { el } from '../dom.js';
 import { formatEngineering, formatPlain } from '../format.js';
-import { COLS, ROWS, addressOf, parseAddress, rectOf, rangeText, moved, addressesIn } from './address.js';
+import {
+  COLS,
+  ROWS,
+  addressOf,
+  parseAddress,
+  rectOf,
+  rangeText,
+  moved,
+  addressesIn,
+} from './address.js';
 
 /**
  * What a cell shows: numbers to six significant digits (with an SI prefix when
@@ -17,33 +26,61 @@ export function shownText(v) {
   if (v.kind === 'empty') return '';
   if (v.kind !== 'number') return v.display;
   if (!v.unit) return formatPlain(v.number, 6);
-  return v.unit === 'dB' ? `${formatPlain(v.number, 6)} dB` : `${formatEngineering(v.number, 5)}${v.unit}`;
+  return v.unit === 'dB'
+    ? `${formatPlain(v.number, 6)} dB`
+    : `${formatEngineering(v.number, 5)}${v.unit}`;
 }
 
 export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
   // The name box shows the active cell or range; typing an address there moves to
   // it, typing a name (e.g. gain) names the active cell.
   const nameBox = el('input', {
-    class: 'sheet-namebox', id: 'sheet-namebox', value: 'A1', autocomplete: 'off', spellcheck: 'false',
+    class: 'sheet-namebox',
+    id: 'sheet-namebox',
+    value: 'A1',
+    autocomplete: 'off',
+    spellcheck: 'false',
     'aria-label': 'active cell; type an address to go there or a name to name the cell',
   });
   const bar = el('input', {
-    class: 'sheet-formula', id: 'formula-bar', 'aria-label': 'cell input (formula bar)',
-    autocomplete: 'off', spellcheck: 'false', placeholder: 'number, text or =formula',
+    class: 'sheet-formula',
+    id: 'formula-bar',
+    'aria-label': 'cell input (formula bar)',
+    autocomplete: 'off',
+    spellcheck: 'false',
+    placeholder: 'number, text or =formula',
   });
-  const explain = el('p', { class: 'sheet-explain', id: 'sheet-explain', role: 'status', 'aria-live': 'polite' });
-  const table = el('table', { class: 'sheet-grid', role: 'grid', 'aria-label': 'worksheet', 'aria-rowcount': ROWS, 'aria-colcount': COLS });
+  const explain = el('p', {
+    class: 'sheet-explain',
+    id: 'sheet-explain',
+    role: 'status',
+    'aria-live': 'polite',
+  });
+  const table = el('table', {
+    class: 'sheet-grid',
+    role: 'grid',
+    'aria-label': 'worksheet',
+    'aria-rowcount': ROWS,
+    'aria-colcount': COLS,
+  });
   const cells = [];
 
   const head = el('tr', {}, el('th', { class: 'sheet-corner' }));
-  for (let c = 0; c < COLS; c++) head.append(el('th', { scope: 'col' }, String.fromCharCode(65 + c)));
+  for (let c = 0; c < COLS; c++)
+    head.append(el('th', { scope: 'col' }, String.fromCharCode(65 + c)));
   table.append(el('thead', {}, head));
   const body = el('tbody');
   for (let r = 0; r < ROWS; r++) {
     const tr = el('tr', {}, el('th', { scope: 'row' }, String(r + 1)));
     const row = [];
     for (let c = 0; c < COLS; c++) {
-      const td = el('td', { role: 'gridcell', id: `cell-${addressOf(c, r)}`, tabindex: '-1', 'data-col': c, 'data-row': r });
+      const td = el('td', {
+        role: 'gridcell',
+        id: `cell-${addressOf(c, r)}`,
+        tabindex: '-1',
+        'data-col': c,
+        'data-row': r,
+      });
       row.push(td);
       tr.append(td);
     }
@@ -82,7 +119,8 @@ export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
     const classes = [`k-${v.kind}`];
     if (v.spill) classes.push('spill-anchor');
     if (!typed && v.kind !== 'empty') classes.push('spilled');
-    if (typed && v.kind === 'number' && !v.input.trimStart().startsWith('=')) classes.push('k-input');
+    if (typed && v.kind === 'number' && !v.input.trimStart().startsWith('='))
+      classes.push('k-input');
     td.className = classes.join(' ');
     if (v.kind === 'error') {
       td.title = `${v.error}: ${v.message}`;
@@ -156,7 +194,9 @@ export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
   }
 
   table.addEventListener('keydown', (e) => {
-    const step = { ArrowUp: [0, -1], ArrowDown: [0, 1], ArrowLeft: [-1, 0], ArrowRight: [1, 0] }[e.key];
+    const step = { ArrowUp: [0, -1], ArrowDown: [0, 1], ArrowLeft: [-1, 0], ArrowRight: [1, 0] }[
+      e.key
+    ];
     if (step) {
       e.preventDefault();
       focusCell(moved(active, ...step), { extend: e.shiftKey });
@@ -182,7 +222,14 @@ export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
     if (e.key === 'Enter' || e.key === 'Tab') {
       e.preventDefault();
       editing = false;
-      if (commit(bar.value)) focusCell(moved(active, e.key === 'Tab' ? (e.shiftKey ? -1 : 1) : 0, e.key === 'Enter' ? (e.shiftKey ? -1 : 1) : 0));
+      if (commit(bar.value))
+        focusCell(
+          moved(
+            active,
+            e.key === 'Tab' ? (e.shiftKey ? -1 : 1) : 0,
+            e.key === 'Enter' ? (e.shiftKey ? -1 : 1) : 0,
+          ),
+        );
       else bar.focus();
     } else if (e.key === 'Escape') {
       e.preventDefault();
@@ -191,12 +238,19 @@ export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
     }
   });
   nameBox.addEventListener('keydown', (e) => {
-    if (e.key === 'Escape') { e.preventDefault(); focusCell(active); return; }
+    if (e.key === 'Escape') {
+      e.preventDefault();
+      focusCell(active);
+      return;
+    }
     if (e.key !== 'Enter') return;
     e.preventDefault();
     const text = nameBox.value.trim();
     const target = parseAddress(text);
-    if (target) { focusCell(target); return; }
+    if (target) {
+      focusCell(target);
+      return;
+    }
     const address = addressOf(active.col, active.row);
     try {
       const changed = sheet.setName(text, address);
@@ -208,8 +262,12 @@ export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
       explain.textContent = `Name "${text}" not set: ${err.message}`;
     }
   });
-  bar.addEventListener('focus', () => { editing = true; });
-  bar.addEventListener('blur', () => { editing = false; });
+  bar.addEventListener('focus', () => {
+    editing = true;
+  });
+  bar.addEventListener('blur', () => {
+    editing = false;
+  });
 
   // Focus that arrives by other means (a screen reader, a script) makes that cell active.
   table.addEventListener('focusin', (e) => {
@@ -228,9 +286,12 @@ export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
   });
   table.addEventListener('mouseover', (e) => {
     const td = dragging && e.target.closest('td[role="gridcell"]');
-    if (td) focusCell({ col: Number(td.dataset.col), row: Number(td.dataset.row) }, { extend: true });
+    if (td)
+      focusCell({ col: Number(td.dataset.col), row: Number(td.dataset.row) }, { extend: true });
   });
-  window.addEventListener('mouseup', () => { dragging = false; });
+  window.addEventListener('mouseup', () => {
+    dragging = false;
+  });
   table.addEventListener('dblclick', () => startEditing());
 
   table.addEventListener('copy', (e) => {
@@ -269,7 +330,11 @@ export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
     /** Re-read every cell from the engine (after a load). */
     refresh() {
       const rows = sheet.values(`A1:${addressOf(COLS - 1, ROWS - 1)}`);
-      rows.forEach((row, r) => row.forEach((v, c) => paint(cells[r][c], v)));
+      rows.forEach((row, r) => {
+        row.forEach((v, c) => {
+          paint(cells[r][c], v);
+        });
+      });
       showActive();
     },
     renderAll,

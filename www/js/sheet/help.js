@@ -5,7 +5,12 @@ import { el, clear } from '../dom.js';
 
 export function mountHelp(host, catalogJson, { onUse = () => {} } = {}) {
   const catalog = JSON.parse(catalogJson);
-  const search = el('input', { type: 'search', class: 'help-search', placeholder: 'find a function (gain, noise, margin…)', 'aria-label': 'find a function' });
+  const search = el('input', {
+    type: 'search',
+    class: 'help-search',
+    placeholder: 'find a function (gain, noise, margin…)',
+    'aria-label': 'find a function',
+  });
   const list = el('div', { class: 'help-list' });
   host.append(el('h3', {}, 'Functions'), search, list);
 
@@ -28,19 +33,44 @@ export function mountHelp(host, catalogJson, { onUse = () => {} } = {}) {
     for (const [area, fns] of areas) {
       list.append(el('h4', {}, area));
       for (const f of fns) {
-        const params = el('ul', { class: 'help-params' }, f.params.map((p) =>
-          el('li', {}, el('code', {}, p.name), ` — ${p.summary}`,
-            p.unit && p.unit !== 'any' ? ` [${p.unit}]` : '',
-            p.range && p.range !== 'any' ? `, ${p.range}` : '',
-            p.default !== null && p.default !== undefined ? `, default ${p.default}` : '')));
+        const params = el(
+          'ul',
+          { class: 'help-params' },
+          f.params.map((p) =>
+            el(
+              'li',
+              {},
+              el('code', {}, p.name),
+              ` — ${p.summary}`,
+              p.unit && p.unit !== 'any' ? ` [${p.unit}]` : '',
+              p.range && p.range !== 'any' ? `, ${p.range}` : '',
+              p.default !== null && p.default !== undefined ? `, default ${p.default}` : '',
+            ),
+          ),
+        );
         const examples = (f.examples ?? []).map((x) =>
-          el('li', {}, el('code', {}, x.formula), ' ',
-            el('button', { type: 'button', class: 'button', onclick: () => onUse(x.formula) }, 'use')));
-        list.append(el('details', { class: 'help-fn' },
-          el('summary', {}, el('code', {}, signature(f)), ` — ${f.summary}`),
-          f.result ? el('p', {}, `Result: ${f.result}`) : null,
-          params,
-          examples.length ? el('ul', { class: 'help-examples' }, examples) : null));
+          el(
+            'li',
+            {},
+            el('code', {}, x.formula),
+            ' ',
+            el(
+              'button',
+              { type: 'button', class: 'button', onclick: () => onUse(x.formula) },
+              'use',
+            ),
+          ),
+        );
+        list.append(
+          el(
+            'details',
+            { class: 'help-fn' },
+            el('summary', {}, el('code', {}, signature(f)), ` — ${f.summary}`),
+            f.result ? el('p', {}, `Result: ${f.result}`) : null,
+            params,
+            examples.length ? el('ul', { class: 'help-examples' }, examples) : null,
+          ),
+        );
       }
     }
     if (!areas.size) list.append(el('p', {}, 'No function matches.'));

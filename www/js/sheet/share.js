@@ -5,7 +5,8 @@ const PREFIX = 'sheet=';
 
 function toBase64Url(bytes) {
   let bin = '';
-  for (let i = 0; i < bytes.length; i += 0x8000) bin += String.fromCharCode(...bytes.subarray(i, i + 0x8000));
+  for (let i = 0; i < bytes.length; i += 0x8000)
+    bin += String.fromCharCode(...bytes.subarray(i, i + 0x8000));
   return btoa(bin).replace(/\+/g, '-').replace(/\//g, '_').replace(/=+$/, '');
 }
 
@@ -24,7 +25,10 @@ async function pipe(bytes, stream) {
 
 /** Document text → "sheet=<deflated, base64url>". */
 export async function encodeFragment(documentText) {
-  const packed = await pipe(new TextEncoder().encode(documentText), new CompressionStream('deflate-raw'));
+  const packed = await pipe(
+    new TextEncoder().encode(documentText),
+    new CompressionStream('deflate-raw'),
+  );
   return PREFIX + toBase64Url(packed);
 }
 
@@ -39,7 +43,9 @@ export async function decodeFragment(hash) {
     throw new Error('the share link is damaged (not base64url)');
   }
   try {
-    return new TextDecoder('utf-8', { fatal: true }).decode(await pipe(bytes, new DecompressionStream('deflate-raw')));
+    return new TextDecoder('utf-8', { fatal: true }).decode(
+      await pipe(bytes, new DecompressionStream('deflate-raw')),
+    );
   } catch {
     throw new Error('the share link is damaged (it does not decompress)');
   }
