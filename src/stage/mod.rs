@@ -1,0 +1,15 @@
+//! One stage described once: the amplifier from its datasheet figures, the
+//! stage document that writes the full circuit, and the circuit's loop gain
+//! and closed-loop behaviour across frequency.
+//!
+//! - [`spread`]: a min/typ/max figure and the point an analysis uses;
+//! - [`density`]: a noise density with its 1/f corner;
+//! - [`amplifier`]: the amplifier model and its open-loop gain A(jω).
+
+pub mod amplifier;
+pub mod density;
+pub mod spread;
+
+pub use amplifier::{Amplifier, BandwidthRule, OutputSwing, GBW_MATCH_REL};
+pub use density::NoiseDensity;
+pub use spread::{Spread, SpreadPoint};
