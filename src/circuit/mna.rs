@@ -21,6 +21,7 @@
 //! (voltage sources, VCVS, CCVS, and inductors at 0 Hz). Whatever is still
 //! singular is found by the LU ([`super::lu`]) and named by its unknown.
 
+use super::amplifier_stamp::{self, Terminals};
 use super::error::{CircuitError, CircuitResult, Name, WithName};
 use super::lu::Lu;
 use super::netlist::{Circuit, Control, ElementKind};
@@ -188,6 +189,8 @@ pub(crate) struct Layout {
     pub branch: Vec<Option<usize>>,
     /// Controlling element per element, for CCVS and CCCS.
     pub control: Vec<Option<usize>>,
+    /// First internal unknown per element, for amplifiers (their states).
+    pub internal: Vec<Option<usize>>,
     /// Total unknowns.
     pub size: usize,
 }
@@ -209,10 +212,18 @@ pub(crate) fn layout(c: &Circuit) -> CircuitResult<Layout> {
             _ => None,
         });
     }
+    let mut internal = Vec::with_capacity(c.elements().len());
+    for e in c.elements() {
+        internal.push(e.amplifier().map(|part| {
+            next += amplifier_stamp::internal_unknowns(part);
+            next - amplifier_stamp::internal_unknowns(part)
+        }));
+    }
     Ok(Layout {
         nodes,
         branch,
         control,
+        internal,
         size: next,
     })
 }
@@ -224,6 +235,16 @@ fn check_structure(c: &Circuit, w: f64) -> CircuitResult<()> {
     let mut voltage = Sets::new(n);
     for e in c.elements() {
         let [a, b] = e.nodes();
+        if let (Some(part), Control::Nodes([p, n])) = (e.amplifier(), e.control()) {
+            let m = &part.model;
+            if m.rd.is_some() || (m.cd > 0.0 && w > 0.0) {
+                conducting.join(p, n);
+            }
+            if m.rcm.is_some() || (m.ccm > 0.0 && w > 0.0) {
+                conducting.join(p, 0);
+                conducting.join(n, 0);
+            }
+        }
         let conducts = match e.kind() {
             ElementKind::CurrentSource => false,
             ElementKind::Capacitor => w > 0.0,
@@ -235,6 +256,7 @@ fn check_structure(c: &Circuit, w: f64) -> CircuitResult<()> {
         }
         let defines_voltage = match e.kind() {
             ElementKind::VoltageSource | ElementKind::Vcvs | ElementKind::Ccvs => true,
+            ElementKind::Amplifier => e.amplifier().is_some_and(|p| p.model.ro == 0.0),
             ElementKind::Inductor => w == 0.0,
             _ => false,
         };
@@ -292,6 +314,20 @@ pub(crate) fn assemble(c: &Circuit, lay: &Layout, w: f64) -> (Vec<Complex64>, Ve
             };
         let k = Complex64::new(e.value(), 0.0);
         match e.kind() {
+            ElementKind::Amplifier => {
+                if let (Some(part), Control::Nodes([p, n]), Some(first)) = (
+                    e.amplifier(),
+                    e.control(),
+                    lay.internal.get(i).copied().flatten(),
+                ) {
+                    let t = Terminals {
+                        out: [ra, rb],
+                        inputs: [idx(p), idx(n)],
+                        first,
+                    };
+                    amplifier_stamp::stamp(part, &t, s, &mut add, &mut rhs);
+                }
+            }
             ElementKind::Resistor => admittance(one / k, &mut add),
             ElementKind::Capacitor => admittance(s * k, &mut add),
             ElementKind::Admittance => {
@@ -413,6 +449,14 @@ pub fn solve(c: &Circuit, frequency_hz: f64) -> CircuitResult<Solution> {
         let branch_current =
             |j: Option<usize>| j.and_then(|r| x.get(r).copied()).unwrap_or_default();
         let current = match e.kind() {
+            ElementKind::Amplifier => match (e.amplifier(), lay.internal.get(i).copied().flatten())
+            {
+                (Some(part), Some(first)) => match amplifier_stamp::branch_unknown(part, first) {
+                    Some(br) => branch_current(Some(br)),
+                    None => (vab - amplifier_stamp::output_signal(part, first, &x)) / part.model.ro,
+                },
+                _ => Complex64::default(),
+            },
             ElementKind::Resistor => vab / k,
             ElementKind::Capacitor => vab * s * k,
             ElementKind::Admittance => vab * Complex64::new(e.value(), e.value_im()),

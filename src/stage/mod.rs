@@ -4,9 +4,11 @@
 //!
 //! - [`spread`]: a min/typ/max figure and the point an analysis uses;
 //! - [`density`]: a noise density with its 1/f corner;
-//! - [`amplifier`]: the amplifier model and its open-loop gain A(jω).
+//! - [`amplifier`]: the amplifier model and its open-loop gain A(jω);
+//! - [`amplifier_json`]: the model as a JSON object (circuit and stage documents).
 
 pub mod amplifier;
+pub mod amplifier_json;
 pub mod density;
 pub mod spread;
 
