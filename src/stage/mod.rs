@@ -5,13 +5,19 @@
 //! - [`spread`]: a min/typ/max figure and the point an analysis uses;
 //! - [`density`]: a noise density with its 1/f corner;
 //! - [`amplifier`]: the amplifier model and its open-loop gain A(jω);
-//! - [`amplifier_json`]: the model as a JSON object (circuit and stage documents).
+//! - [`amplifier_json`]: the model as a JSON object (circuit and stage documents);
+//! - [`document`]: the common stages from their parts, and the circuit each writes;
+//! - [`document_json`]: the stage document (`docs/stage.md`).
 
 pub mod amplifier;
 pub mod amplifier_json;
 pub mod density;
+pub mod document;
+pub mod document_json;
 pub mod spread;
 
 pub use amplifier::{Amplifier, BandwidthRule, OutputSwing, GBW_MATCH_REL};
 pub use density::NoiseDensity;
+pub use document::{Stage, StageCircuit, StageKind, StageParts};
+pub use document_json::{read_stage, write_stage};
 pub use spread::{Spread, SpreadPoint};
