@@ -7,13 +7,19 @@
 //! - [`amplifier`]: the amplifier model and its open-loop gain A(jω);
 //! - [`amplifier_json`]: the model as a JSON object (circuit and stage documents);
 //! - [`document`]: the common stages from their parts, and the circuit each writes;
-//! - [`document_json`]: the stage document (`docs/stage.md`).
+//! - [`document_json`]: the stage document (`docs/stage.md`);
+//! - [`loop_gain`]: the return ratio at an amplifier or controlled source, swept;
+//! - [`asymptotic`]: Af = G∞·T/(1 + T) + G0/(1 + T) with the amplifier's A(jω);
+//! - [`closed_loop`]: gain to any node or element and port impedance, swept.
 
 pub mod amplifier;
 pub mod amplifier_json;
+pub mod asymptotic;
+pub mod closed_loop;
 pub mod density;
 pub mod document;
 pub mod document_json;
+pub mod loop_gain;
 pub mod spread;
 
 pub use amplifier::{Amplifier, BandwidthRule, OutputSwing, GBW_MATCH_REL};
