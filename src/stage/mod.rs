@@ -10,7 +10,9 @@
 //! - [`document_json`]: the stage document (`docs/stage.md`);
 //! - [`loop_gain`]: the return ratio at an amplifier or controlled source, swept;
 //! - [`asymptotic`]: Af = G∞·T/(1 + T) + G0/(1 + T) with the amplifier's A(jω);
-//! - [`closed_loop`]: gain to any node or element and port impedance, swept.
+//! - [`closed_loop`]: gain to any node or element and port impedance, swept;
+//! - [`poles`]: the circuit's poles from its nodal matrices, and the verdict;
+//! - [`eigen`]: eigenvalues of a real matrix (balance, Hessenberg, QR).
 
 pub mod amplifier;
 pub mod amplifier_json;
@@ -19,7 +21,9 @@ pub mod closed_loop;
 pub mod density;
 pub mod document;
 pub mod document_json;
+pub mod eigen;
 pub mod loop_gain;
+pub mod poles;
 pub mod spread;
 
 pub use amplifier::{Amplifier, BandwidthRule, OutputSwing, GBW_MATCH_REL};
