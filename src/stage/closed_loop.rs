@@ -4,10 +4,12 @@
 //! elements' A(jω) inside.
 
 use super::loop_gain::ResponseSweep;
+use crate::check;
 use crate::circuit::blackman::Output;
 use crate::circuit::mna::{node_voltage, unit_source, Sweeper, MAX_SWEEP};
 use crate::circuit::{solve, Circuit, CircuitError, CircuitResult, ElementKind};
 use crate::error::Error;
+use crate::freq::unwrap_phase_deg;
 use alloc::vec::Vec;
 use num_complex::Complex64;
 
@@ -75,6 +77,35 @@ pub fn gain_sweep(
     ResponseSweep::from_samples("gain", frequencies_hz, &h)
 }
 
+/// An impedance sampled over frequency. Its magnitude is in Ω, not dB: an
+/// ideal source's output impedance is exactly zero.
+#[derive(Debug, Clone, PartialEq, Default)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[cfg_attr(feature = "serde", serde(rename_all = "camelCase"))]
+pub struct ImpedanceSweep {
+    /// Frequencies, Hz, as given.
+    pub freq_hz: Vec<f64>,
+    /// |Z|, Ω.
+    pub magnitude_ohm: Vec<f64>,
+    /// ∠Z, degrees, continuous across the sweep.
+    pub phase_deg: Vec<f64>,
+    /// Re Z, Ω.
+    pub re: Vec<f64>,
+    /// Im Z, Ω.
+    pub im: Vec<f64>,
+}
+
+impl ImpedanceSweep {
+    /// The samples as complex numbers.
+    pub fn complex(&self) -> Vec<Complex64> {
+        self.re
+            .iter()
+            .zip(&self.im)
+            .map(|(&re, &im)| Complex64::new(re, im))
+            .collect()
+    }
+}
+
 /// The impedance between `plus` and `minus` over `frequencies_hz`, Ω: a 1 A
 /// test current into `plus` and out of `minus`, every independent source at
 /// zero (voltage sources shorted, current sources open), Z = V(plus) − V(minus).
@@ -88,17 +119,25 @@ pub fn impedance_sweep(
     plus: &str,
     minus: &str,
     frequencies_hz: &[f64],
-) -> CircuitResult<ResponseSweep> {
+) -> CircuitResult<ImpedanceSweep> {
     check_count(frequencies_hz)?;
     let (p, m) = (c.node_index(plus)?, c.node_index(minus)?);
     let mut c1 = c.clone();
     c1.zero_sources();
     c1.add_internal("test", ElementKind::CurrentSource, minus, plus, 1.0)?;
     let mut sweeper = Sweeper::new(&c1)?;
-    let mut z: Vec<Complex64> = Vec::with_capacity(frequencies_hz.len());
+    let mut out = ImpedanceSweep {
+        freq_hz: frequencies_hz.to_vec(),
+        ..ImpedanceSweep::default()
+    };
     for &f in frequencies_hz {
         let x = sweeper.solve_at(f)?;
-        z.push(node_voltage(&x, p) - node_voltage(&x, m));
+        let z = check::result_complex("impedance", node_voltage(&x, p) - node_voltage(&x, m))?;
+        out.magnitude_ohm.push(z.norm());
+        out.phase_deg.push(libm::atan2(z.im, z.re).to_degrees());
+        out.re.push(z.re);
+        out.im.push(z.im);
     }
-    ResponseSweep::from_samples("impedance", frequencies_hz, &z)
+    unwrap_phase_deg(&mut out.phase_deg);
+    Ok(out)
 }

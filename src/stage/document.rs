@@ -130,6 +130,24 @@ pub struct StageCircuit {
     pub gain_unit: &'static str,
 }
 
+impl StageCircuit {
+    /// The circuit whose impedance at [`StageCircuit::input`] is the stage's
+    /// input impedance: without the source, and without the series source
+    /// resistance of a voltage source (a transimpedance stage keeps its
+    /// sensor's `Cs` and `Rs`, which are part of what the input node sees).
+    ///
+    /// # Errors
+    /// None in practice (the names are the builder's own); an unknown name
+    /// would be reported as by [`Circuit::without`].
+    pub fn input_impedance_circuit(&self) -> CircuitResult<Circuit> {
+        let c = self.circuit.without(self.source)?;
+        if self.source == "Vs" && c.element_index("Rs").is_ok() {
+            return c.without("Rs");
+        }
+        Ok(c)
+    }
+}
+
 fn present(param: &'static str, v: Option<f64>) -> Result<Option<f64>> {
     v.map(|x| check::positive(param, x)).transpose()
 }
