@@ -99,7 +99,7 @@ impl Pencil {
     fn backward_error(&self, s: Complex64, v: &[Complex64]) -> f64 {
         let n = self.n.max(1);
         let vmax = v.iter().map(|z| z.norm()).fold(0.0, f64::max);
-        if !(vmax > 0.0) {
+        if vmax.is_nan() || vmax <= 0.0 {
             return f64::INFINITY;
         }
         let mut worst: f64 = 0.0;
