@@ -25,19 +25,19 @@
 //! assert!(c.hd2_difference < 2e-4 && c.hd3_difference < 2e-4);
 //! ```
 
-pub mod leading_order;
 pub mod harmonics;
+pub mod leading_order;
 pub mod newton;
 pub mod series;
 pub mod slew;
 pub mod validity;
 
+pub use harmonics::{
+    closed_loop_spectrum, short_dft, Spectrum, DEFAULT_SAMPLES, HARMONICS, MAX_SAMPLES, MIN_SAMPLES,
+};
 pub use leading_order::{
     feedback_distortion, harmonic_distortion, series_from_distortion, AmplitudeAt, Distortion,
     FeedbackDistortion,
-};
-pub use harmonics::{
-    closed_loop_spectrum, short_dft, Spectrum, DEFAULT_SAMPLES, HARMONICS, MAX_SAMPLES, MIN_SAMPLES,
 };
 pub use newton::LoopSolver;
 pub use series::{closed_loop_series, return_difference, PowerSeries};

@@ -6,8 +6,8 @@
 //! next terms of the closed-loop series); it grows with amplitude until the curve
 //! folds. Below about HD = 1e-12 the numeric path's rounding floor dominates.
 
-use super::leading_order::{harmonic_distortion, AmplitudeAt};
 use super::harmonics::closed_loop_spectrum;
+use super::leading_order::{harmonic_distortion, AmplitudeAt};
 use super::newton::LoopSolver;
 use super::series::{closed_loop_series, PowerSeries};
 use crate::check;
