@@ -1,4 +1,4 @@
-//! The circuit JSON document, version 1: read and write.
+//! The circuit JSON document, versions 1 and 2: read and write.
 //!
 //! ```json
 //! {
@@ -14,14 +14,18 @@
 //! }
 //! ```
 //! The full description, with every kind and its sign convention, is in
-//! `docs/circuit-format.md`. `nodes` is optional: when present, it is the complete
+//! `docs/circuit.md`. `nodes` is optional: when present, it is the complete
 //! list of nodes besides ground and an element naming any other node is an
 //! error; when absent, nodes are created as elements name them. Values are
 //! numbers or texts read by [`super::parse_value`]. Unknown fields are refused
 //! so that a typo does not pass silently. The writer emits numbers with the
 //! shortest text that reads back to the same f64, so `read(write(c)) == c`.
+//! Version 2 adds the `amplifier` element (its `model` read by
+//! [`crate::stage::amplifier_json`]) and `tolerance` and `tempco` on any
+//! element; a circuit without them is written as version 1.
 //!
-//! Parsing uses `serde_json` with default features off and `alloc` on (no_std).
+//! Parsing uses `serde_json` with default features off, `alloc` on (no_std) and
+//! `float_roundtrip` (numbers read back to the same f64).
 
 use super::error::{CircuitError, CircuitResult, Name, WithName};
 use super::netlist::{Circuit, Control, ControlSpec, ElementKind, MAX_ELEMENTS, MAX_NODES};
@@ -543,7 +547,7 @@ mod tests {
 
     #[test]
     fn the_documented_example_reads_and_solves() {
-        let doc = include_str!("../../docs/circuit-format.md");
+        let doc = include_str!("../../docs/circuit.md");
         let start = doc.find("```json").map(|i| i + 7).unwrap();
         let end = start + doc[start..].find("```").unwrap();
         let c = read_circuit(&doc[start..end]).unwrap();

@@ -11,7 +11,7 @@ this script reads with its own small parser. Circuits whose matrix is badly
 conditioned (cond > 1e8) are drawn again, so the comparison tests the solver and not
 rounding luck.
 
-Sign conventions (docs/circuit-format.md): an element's current flows from its
+Sign conventions (docs/circuit.md): an element's current flows from its
 first node through it to its second; V(a) - V(b) = value for voltage sources; a
 current source's value flows from a through the source to b; controlled sources as
 documented there.
