@@ -219,3 +219,51 @@ mod tests {
         }
     }
 }
+
+#[cfg(test)]
+mod current_output_tests {
+    use super::*;
+    use crate::stage::{Amplifier, Spread, SpreadPoint, Stage, StageKind, StageParts};
+
+    #[test]
+    fn current_output_stages_satisfy_the_identity_on_the_load_current() {
+        // Exact rearrangement (module docs): 1e-9 as for the voltage stages.
+        let amp = Amplifier::from_gbw(Spread::fixed(3e5), 1e7)
+            .with_pole(5e7)
+            .with_input(Some(1e6), 2e-12, None, 1e-12)
+            .with_ro(30.0);
+        let parts = StageParts {
+            rf: Some(4.7e3),
+            rg: Some(470.0),
+            rl: Some(220.0),
+            cl: Some(1e-9),
+            cf: Some(2e-12),
+            riso: Some(10.0),
+            ..StageParts::default()
+        };
+        for (kind, parts) in [
+            (StageKind::CurrentAmplifier, parts),
+            (
+                StageKind::Transconductance,
+                StageParts { rf: None, ..parts },
+            ),
+        ] {
+            let s = Stage {
+                kind,
+                amplifier: amp.clone(),
+                point: SpreadPoint::Typ,
+                parts,
+            };
+            let b = s.circuit().unwrap();
+            for f in [1.0, 1e4, 1e6, 1e7, 1e8] {
+                let g = asymptotic_gain_at(&b.circuit, "U1", b.source, Output::Current("Rl"), f)
+                    .unwrap();
+                assert!(
+                    g.relative_error < 1e-9,
+                    "{kind:?} {f}: {}",
+                    g.relative_error
+                );
+            }
+        }
+    }
+}

@@ -6,6 +6,12 @@
 //! | `non-inverting` | `Vs` (1 V) at `src`, `Rs` src→in, `Cs` in→0 | `Rf` F→fb (‖ `Cf`), `Rg` fb→0; no `rf` and no `rg`: a follower (fb is F) | V(out)/V(Vs), ≈ 1 + Rf/Rg |
 //! | `inverting` | `Vs` (1 V) at `src`, `Rs` src→in, `Cs` in→0, `Rg` in→fb | `Rf` F→fb (‖ `Cf`); + input grounded | ≈ −Rf/(Rs + Rg) |
 //! | `transimpedance` | `Is` (1 A) into `fb`, sensor capacitance `Cs` fb→0, shunt resistance `Rs` fb→0 | `Rf` F→fb (‖ `Cf`); + input grounded | V(out)/I(Is) in V/A, ≈ −Rf |
+//! | `transconductance` | as `non-inverting` | load `Rl` out→fb (‖ `Cl`) inside the loop, sense `Rg` fb→0 (‖ `Cf`) | I(Rl)/V(Vs) in A/V, ≈ 1/Rg |
+//! | `current-amplifier` | as `transimpedance` | load `Rl` out→ld (‖ `Cl`), sense `Rg` ld→0, `Rf` ld→fb (‖ `Cf`); + input grounded | I(Rl)/I(Is) in A/A, ≈ −(1 + Rf/Rg) |
+//!
+//! The five are the op-amp forms of the four feedback topologies:
+//! non-inverting is series-shunt, transimpedance (and inverting) shunt-shunt,
+//! transconductance series-series, current-amplifier shunt-series.
 //!
 //! The amplifier is `U1` (output F, reference `0`, inputs [`in`, `fb`] for
 //! the non-inverting stage and [`0`, `fb`] otherwise). F is its output pin:
@@ -19,7 +25,8 @@
 //! A part that is not there is left out; a part that is there is a value
 //! greater than zero. Required parts per kind: inverting `rf`, `rg`;
 //! transimpedance `rf` (no `rg`); non-inverting `rf` with `rg` (or neither,
-//! for a follower); `cf` needs `rf`.
+//! for a follower); transconductance `rg`, `rl` (no `rf`; `cf` across Rg);
+//! current-amplifier `rf`, `rg`, `rl`; elsewhere `cf` needs `rf`.
 
 use super::amplifier::Amplifier;
 use super::spread::SpreadPoint;
@@ -38,17 +45,26 @@ pub enum StageKind {
     Inverting,
     /// A current source (photodiode, sensor) at the − input; gain −Rf in V/A.
     Transimpedance,
+    /// Input at the + input, the load inside the loop over a sense resistor
+    /// Rg; output the load current, gain 1/Rg in A/V.
+    Transconductance,
+    /// A current source at the − input, the load current sensed by Rg and
+    /// fed back through Rf; gain −(1 + Rf/Rg) in A/A.
+    CurrentAmplifier,
 }
 
 /// The kind names of the stage document.
-pub const STAGE_KIND_NAMES: &str = "non-inverting, inverting, transimpedance";
+pub const STAGE_KIND_NAMES: &str =
+    "non-inverting, inverting, transimpedance, transconductance, current-amplifier";
 
 impl StageKind {
     /// All kinds.
-    pub const ALL: [StageKind; 3] = [
+    pub const ALL: [StageKind; 5] = [
         StageKind::NonInverting,
         StageKind::Inverting,
         StageKind::Transimpedance,
+        StageKind::Transconductance,
+        StageKind::CurrentAmplifier,
     ];
 
     /// The document name.
@@ -57,6 +73,8 @@ impl StageKind {
             StageKind::NonInverting => "non-inverting",
             StageKind::Inverting => "inverting",
             StageKind::Transimpedance => "transimpedance",
+            StageKind::Transconductance => "transconductance",
+            StageKind::CurrentAmplifier => "current-amplifier",
         }
     }
 
@@ -126,8 +144,11 @@ pub struct StageCircuit {
     pub output: &'static str,
     /// The node where the source meets the stage (`in`, or `fb` for transimpedance).
     pub input: &'static str,
-    /// The unit of V(out) per unit of the source: `V/V` or `V/A`.
+    /// The unit of the output per unit of the source: `V/V`, `V/A`, `A/V`, `A/A`.
     pub gain_unit: &'static str,
+    /// The element whose current is the output (`Rl`) for the current-output
+    /// stages; `None` when the output is V(out).
+    pub output_current: Option<&'static str>,
 }
 
 impl StageCircuit {
@@ -194,6 +215,38 @@ impl Stage {
                 required("rf", p.rf, "an inverting stage needs Rf")?;
                 required("rg", p.rg, "an inverting stage needs Rg")?;
             }
+            StageKind::Transconductance => {
+                required(
+                    "rg",
+                    p.rg,
+                    "a transconductance stage needs the sense resistor Rg",
+                )?;
+                required(
+                    "rl",
+                    p.rl,
+                    "a transconductance stage needs its load Rl (inside the loop)",
+                )?;
+                if p.rf.is_some() {
+                    return Err(Error::OutOfDomain {
+                        param: "rf",
+                        requirement:
+                            "a transconductance stage has no Rf (the load is the feedback path)",
+                    });
+                }
+            }
+            StageKind::CurrentAmplifier => {
+                required("rf", p.rf, "a current amplifier needs Rf")?;
+                required(
+                    "rg",
+                    p.rg,
+                    "a current amplifier needs the sense resistor Rg",
+                )?;
+                required(
+                    "rl",
+                    p.rl,
+                    "a current amplifier needs its load Rl (inside the loop)",
+                )?;
+            }
             StageKind::Transimpedance => {
                 required("rf", p.rf, "a transimpedance stage needs Rf")?;
                 if p.rg.is_some() {
@@ -204,7 +257,7 @@ impl Stage {
                 }
             }
         }
-        if p.cf.is_some() && p.rf.is_none() {
+        if p.cf.is_some() && p.rf.is_none() && self.kind != StageKind::Transconductance {
             return Err(Error::OutOfDomain {
                 param: "cf",
                 requirement: "Cf sits across Rf: give Rf too",
@@ -236,6 +289,12 @@ impl Stage {
     /// ```
     pub fn circuit(&self) -> CircuitResult<StageCircuit> {
         self.validate().map_err(CircuitError::from)?;
+        if matches!(
+            self.kind,
+            StageKind::Transconductance | StageKind::CurrentAmplifier
+        ) {
+            return self.current_output_circuit();
+        }
         let p = &self.parts;
         let mut c = Circuit::new();
         let pin = if p.riso.is_some() { "amp" } else { "out" };
@@ -279,6 +338,77 @@ impl Stage {
             output: "out",
             input,
             gain_unit,
+            output_current: None,
+        })
+    }
+
+    /// The two current-output stages: the load inside the loop.
+    fn current_output_circuit(&self) -> CircuitResult<StageCircuit> {
+        let p = &self.parts;
+        let mut c = Circuit::new();
+        let pin = if p.riso.is_some() { "amp" } else { "out" };
+        let current_in = self.kind == StageKind::CurrentAmplifier;
+        let (source, input) = if current_in {
+            c.current_source("Is", "0", "fb", 1.0)?;
+            if let Some(cs) = p.cs {
+                c.capacitor("Cs", "fb", "0", cs)?;
+            }
+            if let Some(rs) = p.rs {
+                c.resistor("Rs", "fb", "0", rs)?;
+            }
+            ("Is", "fb")
+        } else {
+            match p.rs {
+                Some(rs) => {
+                    c.voltage_source("Vs", "src", "0", 1.0)?;
+                    c.resistor("Rs", "src", "in", rs)?;
+                }
+                None => c.voltage_source("Vs", "in", "0", 1.0)?,
+            }
+            if let Some(cs) = p.cs {
+                c.capacitor("Cs", "in", "0", cs)?;
+            }
+            ("Vs", "in")
+        };
+        let plus = if current_in { "0" } else { "in" };
+        c.amplifier(
+            "U1",
+            pin,
+            "0",
+            plus,
+            "fb",
+            self.amplifier.clone(),
+            self.point,
+        )?;
+        if let Some(riso) = p.riso {
+            c.resistor("Riso", "amp", "out", riso)?;
+        }
+        // The sense node: fb itself (transconductance) or ld (current amplifier).
+        let sense = if current_in { "ld" } else { "fb" };
+        let (rl, rg) = (p.rl.unwrap_or(1.0), p.rg.unwrap_or(1.0));
+        c.resistor("Rl", "out", sense, rl)?;
+        if let Some(cl) = p.cl {
+            c.capacitor("Cl", "out", sense, cl)?;
+        }
+        c.resistor("Rg", sense, "0", rg)?;
+        if current_in {
+            if let Some(rf) = p.rf {
+                c.resistor("Rf", "ld", "fb", rf)?;
+            }
+            if let Some(cf) = p.cf {
+                c.capacitor("Cf", "ld", "fb", cf)?;
+            }
+        } else if let Some(cf) = p.cf {
+            c.capacitor("Cf", "fb", "0", cf)?;
+        }
+        Ok(StageCircuit {
+            circuit: c,
+            source,
+            amplifier: "U1",
+            output: "out",
+            input,
+            gain_unit: if current_in { "A/A" } else { "A/V" },
+            output_current: Some("Rl"),
         })
     }
 
@@ -325,6 +455,72 @@ mod tests {
             point: SpreadPoint::Typ,
             parts,
         }
+    }
+
+    #[test]
+    fn current_output_stages_give_their_ideal_gain() {
+        // Ideal gains of the op-amp transconductance and current amplifiers
+        // (e.g. Franco, Design with Operational Amplifiers and Analog Integrated
+        // Circuits, 4th ed., ch. 2, from memory): I(Rl)/Vs = 1/Rg and
+        // I(Rl)/Is = −(1 + Rf/Rg). A0 = 1e6 leaves a loop-gain error below 1e-4.
+        let gm = stage(
+            StageKind::Transconductance,
+            StageParts {
+                rg: Some(100.0),
+                rl: Some(1e3),
+                cl: Some(1e-9),
+                rs: Some(50.0),
+                ..StageParts::default()
+            },
+        );
+        let b = gm.circuit().unwrap();
+        assert_eq!((b.gain_unit, b.output_current), ("A/V", Some("Rl")));
+        let i = solve(&b.circuit, 0.1).unwrap().current("Rl").unwrap();
+        assert!((i.re / 0.01 - 1.0).abs() < 1e-3, "{i}");
+        let ai = stage(
+            StageKind::CurrentAmplifier,
+            StageParts {
+                rf: Some(9e3),
+                rg: Some(1e3),
+                rl: Some(100.0),
+                ..StageParts::default()
+            },
+        );
+        let b = ai.circuit().unwrap();
+        let i = solve(&b.circuit, 0.1).unwrap().current("Rl").unwrap();
+        assert!((i.re / -10.0 - 1.0).abs() < 1e-3, "{i}");
+        let e = |kind, parts| stage(kind, parts).circuit().unwrap_err().error.param();
+        let p = StageParts::default();
+        assert_eq!(
+            e(
+                StageKind::Transconductance,
+                StageParts { rl: Some(1.0), ..p }
+            ),
+            "rg"
+        );
+        assert_eq!(
+            e(
+                StageKind::CurrentAmplifier,
+                StageParts {
+                    rf: Some(1.0),
+                    rg: Some(1.0),
+                    ..p
+                }
+            ),
+            "rl"
+        );
+        assert_eq!(
+            e(
+                StageKind::Transconductance,
+                StageParts {
+                    rl: Some(1.0),
+                    rg: Some(1.0),
+                    rf: Some(1.0),
+                    ..p
+                }
+            ),
+            "rf"
+        );
     }
 
     #[test]
