@@ -308,6 +308,25 @@ mod tests {
     }
 
     #[test]
+    fn the_states_of_all_amplifiers_are_bounded() {
+        // 1 + 2·32 + 2·32 = 129 states: one over MAX_AMPLIFIER_STATES.
+        let mut a = Amplifier::from_gbw(Spread::fixed(1e5), 1e6);
+        for k in 0..32 {
+            let f = 1e7 * (1.0 + f64::from(k));
+            a = a.with_complex_pole(f, 0.7);
+            a.complex_zeros.push(ComplexPair { freq_hz: f, q: 3.0 });
+        }
+        let mut c = Circuit::new();
+        let e = c
+            .amplifier("U1", "o", "0", "p", "n", a, SpreadPoint::Typ)
+            .unwrap_err();
+        assert_eq!(
+            (e.error.code(), e.error.param(), e.name.as_str()),
+            ("too_large", "model", "U1")
+        );
+    }
+
+    #[test]
     fn an_input_without_a_dc_path_is_named() {
         // No Rd or Rcm: the + input driven only through a capacitor floats at 0 Hz.
         let mut c = Circuit::new();

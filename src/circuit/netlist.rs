@@ -37,6 +37,10 @@ pub const MAX_NODES: usize = 64;
 pub const MAX_ELEMENTS: usize = 256;
 /// Most elements with a branch current (V, L, VCVS, CCVS).
 pub const MAX_BRANCHES: usize = 64;
+/// Most internal unknowns of all amplifier elements together (their states:
+/// one per real pole or zero, two per complex pair; plus one when Ro = 0),
+/// which keeps the nodal matrix at most 256 × 256.
+pub const MAX_AMPLIFIER_STATES: usize = 128;
 /// Room kept above the limits for the test sources the analyses add.
 const INTERNAL_SLACK: usize = 4;
 
@@ -734,6 +738,28 @@ impl Circuit {
     ) -> CircuitResult<()> {
         let n = Name::new(name)?;
         model.validate().map_err(|e| CircuitError::new(e, n))?;
+        let part = AmplifierPart {
+            model,
+            point,
+            test_value: None,
+        };
+        let states: usize = self
+            .elements
+            .iter()
+            .filter_map(|e| e.amplifier())
+            .map(super::amplifier_stamp::internal_unknowns)
+            .sum::<usize>()
+            + super::amplifier_stamp::internal_unknowns(&part);
+        if states > MAX_AMPLIFIER_STATES {
+            return Err(CircuitError::new(
+                Error::TooLarge {
+                    param: "model",
+                    limit: MAX_AMPLIFIER_STATES as u64,
+                },
+                n,
+            ));
+        }
+        let model = &part.model;
         let gain = model.a0.at(point);
         self.add(
             n,
@@ -746,11 +772,7 @@ impl Circuit {
             false,
         )?;
         if let Some(e) = self.elements.last_mut() {
-            e.amplifier = Some(Box::new(AmplifierPart {
-                model,
-                point,
-                test_value: None,
-            }));
+            e.amplifier = Some(Box::new(part));
         }
         Ok(())
     }
