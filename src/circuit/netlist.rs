@@ -858,11 +858,22 @@ impl Circuit {
     /// A copy with the named element's value replaced (same checks as when adding).
     ///
     /// # Errors
-    /// Unknown element name; a value its kind does not accept.
+    /// Unknown element name; a value its kind does not accept; an amplifier
+    /// element (its gain is its model's).
     pub fn with_value(&self, name: &str, value: f64) -> CircuitResult<Circuit> {
         let i = self.element_index(name)?;
         let mut c = self.clone();
         if let Some(e) = c.elements.get_mut(i) {
+            if e.kind == ElementKind::Amplifier {
+                return Err(CircuitError::new(
+                    Error::OutOfDomain {
+                        param: "value",
+                        requirement:
+                            "an amplifier's gain is its model's a0; change the model instead",
+                    },
+                    e.name,
+                ));
+            }
             check_value(e.kind, value, e.value_im).map_err(|err| CircuitError::new(err, e.name))?;
             e.value = value;
         }

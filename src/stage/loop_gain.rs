@@ -24,7 +24,6 @@
 //! evaluated loop gain — the documented next step, once the pole-list margin
 //! engine of `crate::freq` takes sampled loops.
 
-use super::spread::SpreadPoint;
 use crate::check;
 use crate::circuit::mna::{node_voltage, Sweeper, MAX_SWEEP};
 use crate::circuit::{Circuit, CircuitError, CircuitResult, Control, ElementKind, Name};
@@ -239,9 +238,4 @@ pub fn loop_gain(
 ) -> CircuitResult<ResponseSweep> {
     let t = return_ratio_samples(c, controlled, frequencies_hz)?;
     ResponseSweep::from_samples("loopGain", frequencies_hz, &t)
-}
-
-/// The point of an amplifier element's spread (for reports); `None` for other elements.
-pub fn spread_point_of(c: &Circuit, element: &str) -> Option<SpreadPoint> {
-    c.element(element).ok()?.amplifier().map(|p| p.point)
 }
