@@ -605,6 +605,23 @@ mod tests {
     }
 
     #[test]
+    fn the_documented_version_2_example_reads_and_solves() {
+        let doc = include_str!("../../docs/circuit.md");
+        let v2 = &doc[doc.find("# Version 2").unwrap()..];
+        let start = v2.find("```json").map(|i| i + 7).unwrap();
+        let end = start + v2[start..].find("```").unwrap();
+        let c = read_circuit(&v2[start..end]).unwrap();
+        assert_eq!(c.element("U1").unwrap().amplifier().unwrap().model.ro, 60.0);
+        // Non-inverting, 1 + 9.09k/1k = 10.09 at low frequency (A0 = 2e5).
+        let v = crate::circuit::solve(&c, 1.0)
+            .unwrap()
+            .voltage("out")
+            .unwrap();
+        assert!((v.norm() - 10.09).abs() < 10.09 * 1e-3, "{v}");
+        assert_eq!(read_circuit(&write_circuit(&c)).unwrap(), c);
+    }
+
+    #[test]
     fn version_2_faults_name_the_element_and_field() {
         let e = |from: &str, to: &str| read_circuit(&V2.replace(from, to)).unwrap_err();
         let x = e("\"version\":2", "\"version\":1");
