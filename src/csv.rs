@@ -11,7 +11,9 @@
 //! the [`Problem`] named, so one malformed line never swallows the lines after it:
 //! - a `"` inside a field that did not begin with one (`12" woofer`): kept as data;
 //! - text after the closing quote of a quoted field (`"a"b`): kept as data;
-//! - a quoted field still open at the end of the input;
+//! - a quoted field that never closes (at the end of the input, or within
+//!   [`MAX_RECORD_BYTES`]): the record is its first line alone, and the lines after
+//!   it are read again as records of their own, so an unclosed quote costs one line;
 //! - bytes that are not UTF-8 (replaced by U+FFFD);
 //! - a record longer than [`MAX_RECORD_BYTES`] bytes or [`MAX_FIELDS`] fields: the
 //!   rest is dropped, so memory stays bounded whatever the input.
@@ -56,7 +58,8 @@ pub enum Problem {
     StrayQuote { column: usize },
     /// Text after the closing quote of a quoted field (section 2, rules 5 and 7).
     TextAfterQuote { column: usize },
-    /// A quoted field that the input ends inside (section 2, rule 6).
+    /// A quoted field that never closes (section 2, rule 6): reported on the
+    /// record's first line, the lines after it read again.
     UnclosedQuote { column: usize },
     /// Bytes that are not UTF-8 in this field.
     NotUtf8 { column: usize },
@@ -77,7 +80,7 @@ impl fmt::Display for Problem {
             ),
             Problem::UnclosedQuote { column } => write!(
                 f,
-                "field {column} opens a quote that is not closed before the end of the input"
+                "field {column} opens a quote that is not closed; the record is read as this line alone"
             ),
             Problem::NotUtf8 { column } => write!(f, "field {column} is not UTF-8 text"),
             Problem::TooLong => write!(
@@ -140,6 +143,11 @@ pub struct Reader {
     field: Vec<u8>,
     fields: Vec<String>,
     problem: Option<Problem>,
+    /// The current record's bytes as written (at most MAX_RECORD_BYTES + 1), kept
+    /// to read its lines again when a quote in it turns out never to close.
+    raw: Vec<u8>,
+    /// The byte being read was consumed by a re-read ([`Reader::recover`]).
+    reread: bool,
 }
 
 impl Reader {
@@ -156,6 +164,8 @@ impl Reader {
             field: Vec::new(),
             fields: Vec::new(),
             problem: None,
+            raw: Vec::new(),
+            reread: false,
         }
     }
 
@@ -171,7 +181,18 @@ impl Reader {
             // An LF right after a CR is the second half of a CRLF: no new line, and at
             // a record start no blank line either.
             let lf_of_crlf = b == b'\n' && self.after_cr;
+            if self.state != State::RecordStart || !is_break {
+                if self.state == State::RecordStart {
+                    self.raw.clear();
+                }
+                if self.raw.len() <= MAX_RECORD_BYTES {
+                    self.raw.push(b);
+                }
+            }
             self.step(b, is_break, lf_of_crlf, out);
+            if core::mem::take(&mut self.reread) {
+                continue;
+            }
             if b == b'\r' || (b == b'\n' && !lf_of_crlf) {
                 self.line += 1;
             }
@@ -203,13 +224,13 @@ impl Reader {
                     self.state = State::QuoteInQuoted;
                     self.count_byte();
                 } else {
-                    self.push(b);
+                    self.push(b, out);
                 }
             }
             State::QuoteInQuoted => {
                 if b == b'"' {
                     self.state = State::Quoted;
-                    self.push(b);
+                    self.push(b, out);
                 } else if b == self.separator || is_break {
                     self.unquoted(b, is_break, out);
                 } else {
@@ -217,7 +238,7 @@ impl Reader {
                         column: self.column(),
                     });
                     self.state = State::Unquoted;
-                    self.push(b);
+                    self.push(b, out);
                 }
             }
         }
@@ -247,7 +268,7 @@ impl Reader {
                     column: self.column(),
                 });
             }
-            self.push(b);
+            self.push(b, out);
         }
     }
 
@@ -256,6 +277,10 @@ impl Reader {
         match self.state {
             State::RecordStart => {}
             State::Quoted => {
+                if self.recover(out) {
+                    self.finish(out);
+                    return;
+                }
                 self.note(Problem::UnclosedQuote {
                     column: self.column(),
                 });
@@ -284,13 +309,51 @@ impl Reader {
         self.record_bytes += 1;
     }
 
-    fn push(&mut self, b: u8) {
+    fn push(&mut self, b: u8, out: &mut Vec<Record>) {
         self.record_bytes += 1;
-        if self.record_bytes > MAX_RECORD_BYTES {
-            self.note(Problem::TooLong);
-        } else {
+        if self.record_bytes <= MAX_RECORD_BYTES {
             self.field.push(b);
+        } else if self.state == State::Quoted && self.recover(out) {
+            // A quote open for more than MAX_RECORD_BYTES: its lines were read again.
+            self.reread = true;
+        } else {
+            self.note(Problem::TooLong);
         }
+    }
+
+    /// A quote that never closes (at the end of the input, or within
+    /// [`MAX_RECORD_BYTES`]) would make one record of every line after it. Instead,
+    /// the record is its first line alone, reported as [`Problem::UnclosedQuote`],
+    /// and the lines after it are read again as records of their own. Returns
+    /// false when the record has no line break (nothing to read again).
+    fn recover(&mut self, out: &mut Vec<Record>) -> bool {
+        if self.raw.len() != self.record_bytes {
+            // Cut at the limit earlier: the lines cannot all be read again.
+            return false;
+        }
+        let raw = core::mem::take(&mut self.raw);
+        let Some(brk) = raw.iter().position(|&b| b == b'\n' || b == b'\r') else {
+            self.raw = raw;
+            return false;
+        };
+        // The first line alone: its quote is open at its end.
+        let mut first = Reader::new(self.separator, self.blank_lines);
+        let mut records = Vec::new();
+        first.feed(&raw[..brk], &mut records);
+        first.finish(&mut records);
+        for mut r in records {
+            r.line = self.record_line;
+            out.push(r);
+        }
+        self.fields.clear();
+        self.field.clear();
+        self.problem = None;
+        self.state = State::RecordStart;
+        self.line = self.record_line + 1;
+        self.after_cr = false;
+        let crlf = raw[brk] == b'\r' && raw.get(brk + 1) == Some(&b'\n');
+        self.feed(&raw[brk + 1 + usize::from(crlf)..], out);
+        true
     }
 
     fn end_field(&mut self) {
@@ -429,7 +492,7 @@ mod tests {
         // Common practice, no source: a streaming reader must give the same records
         // whatever the chunk size, including chunks that split a CRLF, a doubled
         // quote or a UTF-8 sequence.
-        let text = "a,\"b\"\"c\",µ\r\n\"x\r\ny\",2\r\n\r\nlast,\"q\"";
+        let text = "a,\"b\"\"c\",µ\r\n\"x\r\ny\",2\r\n\r\nlast,\"q\"\n\"open\r\nz";
         let whole = read(text);
         for size in 1..text.len() {
             let mut r = Reader::new(b',', BlankLines::Skip);
@@ -440,8 +503,11 @@ mod tests {
             r.finish(&mut out);
             assert_eq!(out, whole, "chunk size {size}");
         }
-        assert_eq!(whole.len(), 3);
-        assert_eq!(whole.iter().map(|r| r.line).collect::<Vec<_>>(), [1, 2, 5]);
+        assert_eq!(
+            whole.iter().map(|r| r.line).collect::<Vec<_>>(),
+            [1, 2, 5, 6, 7]
+        );
+        assert_eq!(whole[3].problem, Some(Problem::UnclosedQuote { column: 1 }));
     }
 
     #[test]
@@ -484,9 +550,29 @@ mod tests {
         assert_eq!(r[0].problem, Some(Problem::TextAfterQuote { column: 1 }));
         assert_eq!(r[0].fields, ["ab", "c"]);
         // RFC 4180 section 2, rule 6: a quoted field must be closed.
-        let r = read("x\n\"open,y\nz\n");
+        // A quote never closed makes a record of its first line alone; the lines
+        // after it are read again (common practice, no source: nothing swallowed).
+        let r = read("x\n\"open,y\nz,w\n");
         assert_eq!(r[1].problem, Some(Problem::UnclosedQuote { column: 1 }));
-        assert_eq!(r[1].line, 2);
+        assert_eq!((r[1].line, r[1].fields.clone()), (2, vec!["open,y".into()]));
+        assert_eq!(
+            (r[2].line, r[2].fields.clone()),
+            (3, vec!["z".into(), "w".into()])
+        );
+        assert_eq!(r.len(), 3);
+        // The same within MAX_RECORD_BYTES when the input goes on.
+        let mut text = String::from("h\n\"open\r\n");
+        text.push_str(&"row,1\n".repeat(MAX_RECORD_BYTES / 6 + 10));
+        let r = read(&text);
+        assert_eq!(r.len(), 2 + MAX_RECORD_BYTES / 6 + 10);
+        assert_eq!(
+            (r[1].line, r[1].problem),
+            (2, Some(Problem::UnclosedQuote { column: 1 }))
+        );
+        assert!(r[2..]
+            .iter()
+            .all(|x| x.problem.is_none() && x.fields == ["row", "1"]));
+        assert_eq!(r.last().map(|x| x.line), Some(r.len() as u64));
         // Not UTF-8.
         let mut out = Vec::new();
         let mut rd = Reader::new(b',', BlankLines::Skip);

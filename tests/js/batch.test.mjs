@@ -106,6 +106,8 @@ test('200 000 rows with bad rows sprinkled: every record is written or reported,
     [120_000, ['series-shunt,1e5,0.01,1e6,75,10,0.001,x,extra', 'field_count']],
     [150_000, ['series-shunt,1e5,0.01,1e6,75,10,0.001,"two\nlines"', null]],
     [160_000, ['series-shunt,1e5,0.01,1e6,75,10,1.5,x', 'out_of_domain gain_error']],
+    // A quote that never closes: the rest of the file (over 1 MiB) must not vanish.
+    [170_000, ['series-shunt,1e5,0.01,1e6,75,10,0.001,"12 woofer', 'malformed_record']],
   ]);
   for (let i = 1; i <= ROWS; i++) {
     if (i === 50_000) {
@@ -168,6 +170,8 @@ test('200 000 rows with bad rows sprinkled: every record is written or reported,
   assert.equal(reported, bad.size, 'rows in = rows written + rows reported');
   assert.match(rows[100_000][col('error')], /line 100004: field 8 has a quote/);
   assert.equal(rows[100_001][col('note')], 'ok', 'the row after the stray quote is read');
+  assert.match(rows[169_999][col('error')], /line 170004: field 8 opens a quote that is not closed/);
+  assert.equal(rows[170_000][col('note')], 'ok', 'the row after the open quote is read');
 
   // Embedded quotes kept; a quoted line break kept; formula-like text neutralised,
   // numbers (negative ones too) kept as numbers.
