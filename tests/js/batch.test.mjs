@@ -170,7 +170,10 @@ test('200 000 rows with bad rows sprinkled: every record is written or reported,
   assert.equal(reported, bad.size, 'rows in = rows written + rows reported');
   assert.match(rows[100_000][col('error')], /line 100004: field 8 has a quote/);
   assert.equal(rows[100_001][col('note')], 'ok', 'the row after the stray quote is read');
-  assert.match(rows[169_999][col('error')], /line 170004: field 8 opens a quote that is not closed/);
+  assert.match(
+    rows[169_999][col('error')],
+    /line 170004: field 8 opens a quote that is not closed/,
+  );
   assert.equal(rows[170_000][col('note')], 'ok', 'the row after the open quote is read');
 
   // Embedded quotes kept; a quoted line break kept; formula-like text neutralised,
