@@ -52,7 +52,7 @@ test-page:
 	cd tests/js && GECKODRIVER=$$(command -v geckodriver) node --test format.test.mjs page.test.mjs sheet.test.mjs firefox.test.mjs
 
 test-package:
-	cd tests/js && node --test package.test.mjs
+	cd tests/js && node --test package.test.mjs batch.test.mjs paste.test.mjs
 
 bench: setup single package
 	cargo bench --bench core

@@ -26,8 +26,10 @@
 
 extern crate alloc;
 
+pub mod batch;
 pub mod check;
 pub mod circuit;
+pub mod csv;
 pub mod distortion;
 pub mod error;
 pub mod feedback;

@@ -5,7 +5,7 @@
 
 use js_sys::{Array, JSON};
 use loopwright::wasm::sheet::{error_values, function_catalog, Worksheet};
-use wasm_bindgen::JsCast;
+use wasm_bindgen::{JsCast, JsValue};
 use wasm_bindgen_test::*;
 
 wasm_bindgen_test_configure!(run_in_browser);
@@ -151,8 +151,18 @@ fn document_round_trip_and_refusal() {
     );
     let tsv = other.range_to_tsv("A1:A2").unwrap();
     assert_eq!(tsv, "4700\n9400\n");
-    let pasted = strings(&other.paste_tsv("C1", &tsv).unwrap());
+    let pasted = strings(&other.paste_tsv("C1", JsValue::from_str(&tsv)).unwrap());
     assert_eq!(pasted, ["C1", "C2"]);
+    // A paste above 16 MiB is refused on its JS length, and the sheet stays as it was.
+    let before = other.save_document();
+    let huge = JsValue::from_str(&"\t".repeat(16 * 1024 * 1024 + 1));
+    let e = other.paste_tsv("A3", huge).unwrap_err();
+    assert_eq!(
+        (text(&e, "code"), text(&e, "param")),
+        ("too_large".into(), "text".into())
+    );
+    assert_eq!(other.save_document(), before);
+    assert_eq!(num(&other.value("A2").unwrap(), "number"), 9400.0);
 }
 
 #[wasm_bindgen_test]

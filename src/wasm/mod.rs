@@ -15,6 +15,8 @@
 // without them the module is the "lite" one (feature `wasm-lite`), less than half
 // the size.
 #[cfg(feature = "wasm")]
+pub mod batch;
+#[cfg(feature = "wasm")]
 pub mod circuit;
 pub mod distortion;
 pub mod feedback;
