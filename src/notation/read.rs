@@ -79,6 +79,7 @@ const R_R_UNIT: &str = "R marks ohms: only Ω, ohm or ohms may follow";
 const R_F_UNIT: &str = "the letter code F marks farads: nothing may follow";
 const R_SPACES: &str = "one space at most between the number and its prefix or unit";
 const R_SPACED_UNIT: &str = "the prefix is written on the unit, without a space: 4.7 kΩ";
+const R_SECOND_POINT: &str = "a number has one decimal point at most";
 const R_TRAILING: &str = "unexpected text after the value";
 const R_COMMA: &str =
     "a comma is neither a decimal point nor a digit separator here: write 4.7 or 4700";
@@ -345,6 +346,7 @@ fn number<'a>(c: &mut Cursor<'a>, options: &ReadOptions, mode: Mode) -> Result<P
     // A whole text may open with the letter of a code below one: R47, p68, µ22.
     if let (Mode::Whole, Some(l), Some(d)) = (mode, c.peek(), c.peek2()) {
         if LEADING_CODE_LETTERS.contains(&l) && d.is_ascii_digit() {
+            parts.unit_at = c.i;
             c.bump();
             parts.frac = c.digits()?;
             return code(c, l, parts, options, mode);
@@ -363,6 +365,7 @@ fn number<'a>(c: &mut Cursor<'a>, options: &ReadOptions, mode: Mode) -> Result<P
         let is_code_letter = l == 'R' || l == 'F' || prefix_power(l).is_some();
         if is_code_letter && d.is_ascii_digit() {
             // IEC 60062: the letter stands where the decimal point would be.
+            parts.unit_at = c.i;
             c.bump();
             parts.frac = c.digits()?;
             return code(c, l, parts, options, mode);
@@ -433,8 +436,8 @@ fn code<'a>(
         return Err(c.error_at(c.i, R_CODE_POINT));
     }
     if letter == 'F' {
+        // parts.unit_at holds the letter's place.
         parts.unit = Some(Unit::Farad);
-        parts.unit_at = c.i;
         if c.peek().is_some_and(|ch| is_word_char(ch) || ch == '%') {
             return Err(c.error_at(c.i, R_F_UNIT));
         }
@@ -550,6 +553,8 @@ fn suffix(
         }
         let reason = if letter == 'M' && after.starts_with("eg") {
             R_MEG
+        } else if after.starts_with(|ch: char| ch.is_ascii_digit()) {
+            R_CODE_POINT
         } else {
             R_SUFFIX
         };
@@ -562,6 +567,8 @@ fn suffix(
     if let Some(ch) = c.peek().filter(|&ch| is_word_char(ch)) {
         let reason = if ch.is_ascii_digit() {
             R_TRAILING
+        } else if ch == '.' {
+            R_SECOND_POINT
         } else {
             R_SUFFIX
         };
