@@ -202,12 +202,7 @@ pub fn format_value(value: f64, unit: &str, digits: u32) -> Result<String> {
         out.push('-');
     }
     if unit_takes_no_prefix(unit) {
-        match positional(x, digits) {
-            Some(p) => out.push_str(&trim_zeros(p)),
-            None => push_exponent_form(&mut out, x, digits),
-        }
-        push_unit(&mut out, "", unit);
-        return Ok(out);
+        return format_plain(value, unit, digits as u32);
     }
     let (m, e3) = engineering(x, digits);
     match prefix_symbol(e3) {
@@ -221,6 +216,45 @@ pub fn format_value(value: f64, unit: &str, digits: u32) -> Result<String> {
         }
     }
     Ok(out)
+}
+
+/// The display without an SI prefix, for a value already in the unit shown (a
+/// ratio, or a unit that carries its own prefix, such as `nV/√Hz`): `digits`
+/// significant digits, trailing zeros dropped, positional from 10⁻⁶ up to 10¹⁵ and
+/// exponent form outside, the unit after a space.
+///
+/// # Errors
+/// As [`format_value`].
+///
+/// # Example
+/// ```
+/// use loopwright::notation::format_plain;
+/// assert_eq!(format_plain(99.900_099_9, "", 4).unwrap(), "99.9");
+/// assert_eq!(format_plain(4.12, "nV/√Hz", 3).unwrap(), "4.12 nV/√Hz");
+/// assert_eq!(format_plain(2e-9, "", 2).unwrap(), "2e-9");
+/// ```
+pub fn format_plain(value: f64, unit: &str, digits: u32) -> Result<String> {
+    let x = crate::check::finite("value", value)?;
+    let digits = check_digits(digits)?;
+    let unit = check_unit(unit)?;
+    let mut out = String::with_capacity(16 + unit.len());
+    push_unprefixed(&mut out, x, digits);
+    push_unit(&mut out, "", unit);
+    Ok(out)
+}
+
+fn push_unprefixed(out: &mut String, x: f64, digits: usize) {
+    if x == 0.0 {
+        out.push('0');
+        return;
+    }
+    if x < 0.0 {
+        out.push('-');
+    }
+    match positional(x, digits) {
+        Some(p) => out.push_str(&trim_zeros(p)),
+        None => push_exponent_form(out, x, digits),
+    }
 }
 
 /// `d.ddde±n` with trailing zeros of the mantissa dropped.

@@ -45,8 +45,8 @@ mod read;
 mod unit;
 
 pub use format::{
-    format_full, format_si, format_value, letter_code, unit_takes_no_prefix, write_full,
-    MAX_UNIT_LEN,
+    format_full, format_plain, format_si, format_value, letter_code, unit_takes_no_prefix,
+    write_full, MAX_UNIT_LEN,
 };
 pub use read::{read, read_list, scan, ReadOptions, Reading, MAX_DIGITS, MAX_LIST_ITEMS};
 pub use unit::Unit;

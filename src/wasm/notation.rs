@@ -65,3 +65,10 @@ pub fn format_value(value: f64, unit: &str, digits: u32) -> Result<String, JsVal
 pub fn format_full(value: f64, unit: &str) -> Result<String, JsValue> {
     throw(notation::format_full(value, unit))
 }
+
+/// The display without an SI prefix, for a value already in the unit shown
+/// (`"99.9"`, `"4.12 nV/√Hz"`).
+#[wasm_bindgen(js_name = formatPlain)]
+pub fn format_plain(value: f64, unit: &str, digits: u32) -> Result<String, JsValue> {
+    throw(notation::format_plain(value, unit, digits))
+}
