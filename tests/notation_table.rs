@@ -162,3 +162,59 @@ fn the_documentation_lists_the_table() {
         "docs/notation.md is out of date: run LOOPWRIGHT_WRITE_DOCS=1 cargo test --test notation_table"
     );
 }
+
+mod properties {
+    use loopwright::notation::{read, read_list, scan, ReadOptions};
+    use proptest::prelude::*;
+
+    /// Texts built from the characters the reader treats specially, so that
+    /// most draws come close to a value.
+    fn near_values() -> impl Strategy<Value = String> {
+        proptest::collection::vec(
+            prop::sample::select(vec![
+                "0", "1", "4", "7", "9", ".", "e", "E", "-", "+", "−", " ", " ", "k", "K", "M",
+                "m", "µ", "u", "n", "p", "f", "G", "T", "R", "F", "Ω", "Ω", "ohm", "s", "S", "Hz",
+                "H", "V", "A", "W", "dB", "%", ",", ";", "x", "eg", "\u{a0}",
+            ]),
+            0..12,
+        )
+        .prop_map(|parts| parts.concat())
+    }
+
+    proptest! {
+        #![proptest_config(ProptestConfig { cases: 4000, rng_seed: proptest::test_runner::RngSeed::Fixed(60062), ..ProptestConfig::default() })]
+
+        #[test]
+        fn never_panics_and_errors_point_inside_the_text(text in near_values()) {
+            let chars = text.chars().count() as u32;
+            for options in [ReadOptions::VALUE, ReadOptions::CELL] {
+                match read(&text, &options) {
+                    Ok(r) => prop_assert!(r.value.is_finite()),
+                    Err(e) => {
+                        if let Some(col) = e.column() {
+                            prop_assert!((1..=chars + 1).contains(&col), "{text:?} → {col}");
+                        }
+                    }
+                }
+                let _ = read_list(&text, &options);
+            }
+            if text.starts_with(|c: char| c.is_ascii_digit()) {
+                if let Ok((r, used)) = scan(&text, &ReadOptions::FORMULA) {
+                    prop_assert!(r.value.is_finite() && used <= text.len() && text.is_char_boundary(used));
+                }
+            }
+        }
+
+        #[test]
+        fn a_whole_text_that_reads_reads_the_same_inside_a_formula(text in near_values()) {
+            // A value that reads as a whole text without % reads the same as a
+            // formula literal, which then takes all of it.
+            if text.starts_with(|c: char| c.is_ascii_digit()) && !text.contains(['%', ' ', '\u{a0}']) {
+                if let Ok(r) = read(&text, &ReadOptions::FORMULA) {
+                    let (s, used) = scan(&text, &ReadOptions::FORMULA).unwrap();
+                    prop_assert_eq!((s.value, s.unit, used), (r.value, r.unit, text.len()));
+                }
+            }
+        }
+    }
+}

@@ -82,12 +82,16 @@ test('plot ticks', () => {
 });
 
 test('a tick label costs little: hundreds per plot', () => {
-  // Budget: 500 labels well under a frame (16 ms) on the shared machine; the
-  // measured cost is printed. Common practice, no source.
-  const BUDGET_MS = 50;
-  const t0 = performance.now();
-  for (let i = 0; i < 500; i++) tickLabel(10 ** ((i % 30) - 15) * 2.5);
-  const ms = performance.now() - t0;
-  console.log(`500 tick labels: ${ms.toFixed(2)} ms`);
-  assert.ok(ms < BUDGET_MS, `${ms} ms`);
+  // Budget: 500 labels in well under a frame (16 ms); the fastest of 10 rounds, as
+  // the machine is shared. Measured 0.76 µs a label (0.38 ms for 500) against
+  // 0.20 µs for the former JS formatter. Common practice, no source.
+  const BUDGET_MS = 16;
+  let best = Infinity;
+  for (let round = 0; round < 10; round++) {
+    const t0 = performance.now();
+    for (let i = 0; i < 500; i++) tickLabel(10 ** ((i % 30) - 15) * 2.5);
+    best = Math.min(best, performance.now() - t0);
+  }
+  console.log(`500 tick labels: ${best.toFixed(2)} ms`);
+  assert.ok(best < BUDGET_MS, `${best} ms`);
 });

@@ -198,13 +198,13 @@ test('embedding: the custom element and the frame work under a strict CSP', asyn
     // Default stage inputs: A = 100k, β = 0.00999 → Af = 100 (closed form).
     assert.equal(
       await page.locator('loopwright-panel #card-stage dd[data-name="af"] output').textContent(),
-      '100.0',
+      '100 V/V',
     );
     await page.locator('loopwright-panel #card-stage-a').fill('10k');
     await page.locator('loopwright-panel #card-stage-beta').fill('99.9m');
     assert.equal(
       await page.locator('loopwright-panel #card-stage dd[data-name="af"] output').textContent(),
-      '10.00',
+      '10 V/V',
     );
     // No global names leaked by the element's script.
     assert.deepEqual(
@@ -214,7 +214,7 @@ test('embedding: the custom element and the frame work under a strict CSP', asyn
     const frame = page.frameLocator('iframe');
     assert.equal(
       await frame.locator('#card-stage dd[data-name="af"] output').textContent(),
-      '100.0',
+      '100 V/V',
     );
     // The element loads the lite module; the framed page is the full one.
     assert.ok(
@@ -269,7 +269,10 @@ test('loop stability card: trade facts through the page', async () => {
   // Common practice, no source: three equal real poles go unstable at a DC loop
   // gain of 8 (the loop is marginal exactly there).
   await retype(page, '#card-loop-gain', '8');
+  // List items are separated by , or ; (docs/notation.md: a blank alone does not).
   await retype(page, '#card-loop-poles', '1k 1k 1k');
+  assert.match(await page.locator('#card-loop-poles-hint').textContent(), /separate list items/);
+  await retype(page, '#card-loop-poles', '1k, 1k; 1 kHz');
   await retype(page, '#card-loop-beta', '1');
   assert.match(await result(page, 'card-loop', 'verdict'), /MARGINAL/);
   await retype(page, '#card-loop-gain', '9');
