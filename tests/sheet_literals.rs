@@ -143,11 +143,11 @@ fn declared_units_are_checked() {
     let mut s = Sheet::new();
     s.set("A1", "1MΩ").unwrap();
     s.set("A2", "1 V").unwrap();
-    s.set("B1", "=FB.ZIN(\"series-shunt\"; A1; 100k; 0.01)")
+    s.set("B1", "=FEEDBACK.ZIN(\"series-shunt\"; A1; 100k; 0.01)")
         .unwrap();
-    s.set("B2", "=FB.ZIN(\"series-shunt\"; A2; 100k; 0.01)")
+    s.set("B2", "=FEEDBACK.ZIN(\"series-shunt\"; A2; 100k; 0.01)")
         .unwrap();
-    s.set("B3", "=FB.ZIN(\"series-shunt\"; 1000000; 100k; 0.01)")
+    s.set("B3", "=FEEDBACK.ZIN(\"series-shunt\"; 1000000; 100k; 0.01)")
         .unwrap();
     // 1 MΩ · (1 + 100000·0.01) = 1.001 GΩ.
     assert_eq!(
@@ -185,11 +185,11 @@ fn agrees_with_the_network_notation_parser() {
 
 #[test]
 fn function_results_carry_the_catalog_units() {
-    // The catalog states LOOP.STEP's result units as "%; s; s" and LOOP.GBW's as
+    // The catalog states FREQ.STEP's result units as "%; s; s" and FREQ.GBW's as
     // "Hz": the cells carry s and Hz (overshoot in % is a plain number).
     let mut s = Sheet::new();
-    s.set("A1", "=LOOP.STEP(100k; 0.01; 2%; 10 Hz)").unwrap();
-    s.set("A2", "=LOOP.GBW(100k; 10 Hz)").unwrap();
+    s.set("A1", "=FREQ.STEP(100k; 0.01; 2%; 10 Hz)").unwrap();
+    s.set("A2", "=FREQ.GBW(100k; 10 Hz)").unwrap();
     assert!(matches!(s.value("A1").unwrap(), Value::Number(_, None)));
     assert!(matches!(
         s.value("B1").unwrap(),
