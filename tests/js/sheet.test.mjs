@@ -252,7 +252,7 @@ test('the demo loads without error values; help comes from the catalog', async (
   await cell(page, 'H2').click();
   await page.locator('.help-fn').first().locator('summary').click();
   await page.locator('.help-fn').first().getByRole('button', { name: 'use' }).first().click();
-  assert.match(await page.inputValue('#formula-bar'), /^=FB\./);
+  assert.match(await page.inputValue('#formula-bar'), /^=FEEDBACK\./);
   await page.keyboard.press('Enter');
   assert.notEqual(await shown(page, 'H2'), '');
   await page.screenshot({ path: join(ARTIFACTS, 'worksheet-demo.png') });
