@@ -64,8 +64,64 @@ export function minOpenLoopGain(beta, gainError) {
   return checked(glue.minOpenLoopGain(beta, gainError));
 }
 
-export function parseValue(text) {
-  return checked(glue.parseValue(text));
+// The reader's options (src/notation): which extras a context allows besides a
+// number with SI prefix, IEC 60062 code and unit word. Passed to the wasm as flags
+// (1 percent, 2 dB) and a declared unit, so no JS object is read inside the module.
+const READ_OPTIONS = ['percent', 'decibels', 'unit'];
+
+function optionError(code, param, reason) {
+  const e = new Error(`${param}: ${reason}`);
+  e.name = 'LoopwrightError';
+  e.code = code;
+  e.param = param;
+  return e;
+}
+
+function readArguments(options) {
+  if (options === undefined || options === null) return [0, ''];
+  if (typeof options !== 'object') {
+    throw optionError('out_of_domain', 'options', 'must be an object {percent, decibels, unit}');
+  }
+  for (const key of Object.keys(options)) {
+    if (!READ_OPTIONS.includes(key)) {
+      throw optionError('unknown_name', key, 'unknown option; expected percent, decibels or unit');
+    }
+  }
+  const { percent = false, decibels = false, unit = '' } = options;
+  for (const [name, flag] of [
+    ['percent', percent],
+    ['decibels', decibels],
+  ]) {
+    if (typeof flag !== 'boolean')
+      throw optionError('out_of_domain', name, 'must be true or false');
+  }
+  if (unit !== null && typeof unit !== 'string') {
+    throw optionError('out_of_domain', 'unit', 'must be a unit symbol such as Ω, Hz or F');
+  }
+  return [(percent ? 1 : 0) | (decibels ? 2 : 0), unit ?? ''];
+}
+
+/**
+ * Read one typed value (`4k7`, `4.7 kΩ`, `100nF`, `R47`). Options (all optional):
+ * `percent` (default false) allows a trailing %, `decibels` (default false) allows
+ * dB, `unit` (default none) is the declared unit a written unit must match.
+ * Throws a LoopwrightError with `code` "syntax" and `column` for text that does
+ * not read exactly.
+ */
+export function parseValue(text, options) {
+  if (options === undefined) return checked(glue.parseValue(text));
+  const [flags, unit] = readArguments(options);
+  return checked(glue.readValue(text, flags, unit));
+}
+
+export function readValue(text, flags, unit) {
+  return checked(glue.readValue(text, flags, unit));
+}
+
+/** Read a list of values separated by `,` or `;` into a Float64Array; options as parseValue. */
+export function parseList(text, options) {
+  const [flags, unit] = readArguments(options);
+  return glue.readList(text, flags, unit);
 }
 
 export function requiredSlewRate(vPeak, frequencyHz) {

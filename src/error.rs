@@ -54,12 +54,19 @@ pub enum Error {
         param: &'static str,
         reason: &'static str,
     },
+    /// Typed text that does not read exactly as a value (see [`crate::notation`]);
+    /// `column` is the 1-based character position where reading stopped.
+    Syntax {
+        param: &'static str,
+        column: u32,
+        reason: &'static str,
+    },
 }
 
 impl Error {
     /// A stable, machine-readable code: `not_finite`, `out_of_domain`,
     /// `unreachable`, `oscillation`, `unknown_name`, `too_large`, `overflow`,
-    /// `no_convergence`, `singular`.
+    /// `no_convergence`, `singular`, `syntax`.
     pub const fn code(&self) -> &'static str {
         match self {
             Error::NotFinite { .. } => "not_finite",
@@ -71,6 +78,7 @@ impl Error {
             Error::Overflow { .. } => "overflow",
             Error::NoConvergence { .. } => "no_convergence",
             Error::Singular { .. } => "singular",
+            Error::Syntax { .. } => "syntax",
         }
     }
 
@@ -102,6 +110,20 @@ impl Error {
                 param: name,
                 reason,
             },
+            Error::Syntax { column, reason, .. } => Error::Syntax {
+                param: name,
+                column,
+                reason,
+            },
+        }
+    }
+
+    /// The 1-based character column of a [`Error::Syntax`] error, `None` for the
+    /// other kinds.
+    pub const fn column(&self) -> Option<u32> {
+        match *self {
+            Error::Syntax { column, .. } => Some(column),
+            _ => None,
         }
     }
 
@@ -116,7 +138,8 @@ impl Error {
             | Error::TooLarge { param, .. }
             | Error::Overflow { param }
             | Error::NoConvergence { param, .. }
-            | Error::Singular { param, .. } => param,
+            | Error::Singular { param, .. }
+            | Error::Syntax { param, .. } => param,
         }
     }
 }
@@ -136,6 +159,7 @@ impl fmt::Display for Error {
             Error::Overflow { param } => write!(f, "{param}: the result overflows the floating-point range"),
             Error::NoConvergence { param, reason } => write!(f, "{param}: did not converge: {reason}"),
             Error::Singular { param, reason } => write!(f, "{param}: singular: {reason}"),
+            Error::Syntax { param, column, reason } => write!(f, "{param}: column {column}: {reason}"),
         }
     }
 }
@@ -187,6 +211,11 @@ mod tests {
             },
             Error::Singular {
                 param: "p",
+                reason: "r",
+            },
+            Error::Syntax {
+                param: "p",
+                column: 2,
                 reason: "r",
             },
         ];

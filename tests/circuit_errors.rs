@@ -171,7 +171,7 @@ fn bad_values_are_named() {
         )),
         0.0,
     );
-    expect(e, "out_of_domain", "value", "R2");
+    expect(e, "syntax", "value", "R2");
     let e = fault(
         &doc(&format!(
             r#"{SRC},{{"name":"C2","kind":"capacitor","nodes":["b","0"],"value":0}}"#

@@ -30,8 +30,9 @@
 use super::error::{CircuitError, CircuitResult, Name, WithName};
 use super::netlist::{Circuit, Control, ControlSpec, ElementKind, MAX_ELEMENTS, MAX_NODES};
 use super::tolerance::{Tolerance, DISTRIBUTION_NAMES};
-use super::value::parse_value;
+use super::value::parse_value_in;
 use crate::error::Error;
+use crate::notation::Unit;
 use crate::stage::amplifier_json::{
     at_element, number as amp_number, read_amplifier, write_amplifier,
 };
@@ -98,12 +99,30 @@ fn pair<'a>(
     }
 }
 
-fn number(v: Option<&Value>, param: &'static str, name: Name) -> CircuitResult<f64> {
+/// The unit an element's value is declared in, for the reader's check.
+fn declared_unit(kind: ElementKind) -> Option<Unit> {
+    match kind {
+        ElementKind::Resistor => Some(Unit::Ohm),
+        ElementKind::Capacitor => Some(Unit::Farad),
+        ElementKind::Inductor => Some(Unit::Henry),
+        ElementKind::VoltageSource => Some(Unit::Volt),
+        ElementKind::CurrentSource => Some(Unit::Ampere),
+        ElementKind::Admittance => Some(Unit::Siemens),
+        _ => None,
+    }
+}
+
+fn number(
+    v: Option<&Value>,
+    param: &'static str,
+    name: Name,
+    unit: Option<Unit>,
+) -> CircuitResult<f64> {
     match v {
         Some(Value::Number(n)) => n
             .as_f64()
             .ok_or(CircuitError::new(Error::NotFinite { param }, name)),
-        Some(Value::String(s)) => parse_value(param, s).named(name),
+        Some(Value::String(s)) => parse_value_in(param, s, unit).named(name),
         _ => Err(CircuitError::new(
             Error::OutOfDomain {
                 param,
@@ -275,10 +294,10 @@ fn read_element(circuit: &mut Circuit, e: &Value, index: usize, version: u64) ->
             ));
         }
     }
-    let value = number(obj.get("value"), "value", name)?;
+    let value = number(obj.get("value"), "value", name, declared_unit(kind))?;
     let value_im = match obj.get("valueIm") {
         None => 0.0,
-        v => number(v, "valueIm", name)?,
+        v => number(v, "valueIm", name, declared_unit(kind))?,
     };
     let control = match (obj.get("control"), obj.get("controlElement")) {
         (Some(_), Some(_)) => {

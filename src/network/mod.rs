@@ -16,9 +16,7 @@ pub mod montecarlo;
 pub mod pairs;
 pub mod worstcase;
 
-pub use crate::notation::{
-    format_si, letter_code, parse_value, parse_value_with_unit, ParsedValue,
-};
+pub use crate::notation::{format_si, letter_code, parse_value, parse_value_with_unit, Reading};
 pub use eseries::{
     neighbours, series_values, standard_value, Neighbours, Rounding, Series, SERIES_NAMES,
 };

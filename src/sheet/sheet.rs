@@ -28,7 +28,7 @@ use super::errors::{CellError, ErrorKind};
 use super::eval::{evaluate, Context, MAX_RANGE_CELLS};
 use super::graph::{order, Dep, Graph};
 use super::lexer::ParseError;
-use super::literal::parse_cell_number;
+use super::literal::{read_cell, CellReading};
 use super::parser::{parse, Expr};
 use super::value::Value;
 use crate::error::{Error, Result};
@@ -100,9 +100,10 @@ fn read_input(input: &str) -> Content {
     if let Some(k) = ErrorKind::from_code(t) {
         return Content::Constant(Value::Error(CellError::new(k, "")));
     }
-    match parse_cell_number(t) {
-        Some(q) => Content::Constant(Value::Number(q.value, q.unit)),
-        None => Content::Constant(Value::Text(String::from(input))),
+    match read_cell(input) {
+        CellReading::Number(q) => Content::Constant(Value::Number(q.value, q.unit)),
+        CellReading::Error(detail) => Content::Constant(Value::error(ErrorKind::Syntax, detail)),
+        CellReading::Text => Content::Constant(Value::Text(String::from(input))),
     }
 }
 

@@ -23,6 +23,7 @@ pub mod feedback;
 pub mod freq;
 pub mod network;
 pub mod noise;
+pub mod notation;
 #[cfg(feature = "wasm")]
 pub mod sheet;
 
@@ -35,12 +36,14 @@ const ERROR_TYPES: &str = r#"
 /** Machine-readable reason of a thrown LoopwrightError. */
 export type ErrorCode =
   | "not_finite" | "out_of_domain" | "unreachable" | "oscillation" | "unknown_name"
-  | "too_large" | "overflow" | "no_convergence" | "singular";
+  | "too_large" | "overflow" | "no_convergence" | "singular" | "syntax";
 /** What every loopwright function throws on bad input: `param` names the argument at fault. */
 export interface LoopwrightError extends Error {
   name: "LoopwrightError";
   code: ErrorCode;
   param: string;
+  /** For `syntax`: the 1-based character column where the text stopped reading. */
+  column?: number;
 }
 "#;
 
@@ -53,6 +56,9 @@ pub(crate) fn js_error(e: Error) -> JsValue {
     // Reflect::set only fails on frozen or proxy objects; a fresh Error is neither.
     let _ = js_sys::Reflect::set(obj, &"code".into(), &e.code().into());
     let _ = js_sys::Reflect::set(obj, &"param".into(), &e.param().into());
+    if let Some(column) = e.column() {
+        let _ = js_sys::Reflect::set(obj, &"column".into(), &column.into());
+    }
     err.into()
 }
 

@@ -3,6 +3,7 @@
 
 import init, * as api from '../pkg/loopwright.js';
 import { mountCard } from './card.js';
+import { useCore } from './format.js';
 import { FEEDBACK_CARDS } from './cards/feedback.js';
 import { NETWORK_CARDS } from './cards/network.js';
 import { DISTORTION_CARDS } from './cards/distortion.js';
@@ -51,6 +52,7 @@ async function start() {
     status.dataset.state = 'failed';
     return;
   }
+  useCore(api);
   const host = document.getElementById('cards');
   [
     ...FEEDBACK_CARDS,

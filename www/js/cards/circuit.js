@@ -73,7 +73,7 @@ export const loadedCard = {
     const row = (name, label, c, unit) => ({
       name,
       label,
-      text: `exact ${formatEngineering(c.exact.re)}${unit}   two-port ${formatEngineering(c.twoPort.re)}${unit}   (${pct(c.relativeError)})`,
+      text: `exact ${formatEngineering(c.exact.re, 4, unit)}   two-port ${formatEngineering(c.twoPort.re, 4, unit)}   (${pct(c.relativeError)})`,
     });
     return [
       { name: 'a', label: 'Loaded A', value: r.a.re, unit: r.gainUnit },
@@ -90,7 +90,7 @@ export const loadedCard = {
       {
         name: 'blackman',
         label: 'Blackman Rin',
-        text: `${formatEngineering(mag(views.input.blackman))}Ω (vs exact: ${views.input.relativeError.toExponential(1)})`,
+        text: `${formatEngineering(mag(views.input.blackman), 4, 'Ω')} (vs exact: ${views.input.relativeError.toExponential(1)})`,
       },
       {
         name: 'asymptotic',

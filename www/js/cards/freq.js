@@ -11,7 +11,7 @@ const loopInputs = [
 ];
 
 const model = (v) => ({ gain: v.gain, polesHz: v.poles, zerosHz: v.zeros });
-const seconds = (t) => (t === null || t === undefined ? '—' : `${formatEngineering(t)}s`);
+const seconds = (t) => (t === null || t === undefined ? '—' : `${formatEngineering(t, 4, 's')}`);
 
 export const loopCard = {
   id: 'card-loop',
@@ -34,7 +34,7 @@ export const loopCard = {
     if (m.crossoverHz !== null)
       markers.push({
         x: m.crossoverHz,
-        label: `crossover ${formatEngineering(m.crossoverHz)}Hz`,
+        label: `crossover ${formatEngineering(m.crossoverHz, 4, 'Hz')}`,
         align: 'left',
       });
     const phaseMarkers = [{ y: -180, label: '−180°' }];
@@ -135,13 +135,13 @@ export const loopCard = {
           text:
             m.gainMarginDb === null
               ? 'unbounded (no −180° crossing)'
-              : `${m.gainMarginDb.toFixed(2)} dB at ${formatEngineering(m.phaseCrossoverHz)}Hz`,
+              : `${m.gainMarginDb.toFixed(2)} dB at ${formatEngineering(m.phaseCrossoverHz, 4, 'Hz')}`,
         },
         { name: 'poles', label: 'Closed-loop poles (Hz)', text: poles },
         {
           name: 'bw',
           label: 'Closed-loop −3 dB',
-          text: r.bandwidth ? `${formatEngineering(r.bandwidth.highHz)}Hz` : r.bandwidthNote,
+          text: r.bandwidth ? `${formatEngineering(r.bandwidth.highHz, 4, 'Hz')}` : r.bandwidthNote,
         },
         {
           name: 'peak',
