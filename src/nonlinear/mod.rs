@@ -4,6 +4,8 @@
 //!   coefficients b1, b2, b3 by series reversion;
 //! - [`distortion`]: leading-order HD2 and HD3 at an input or output amplitude,
 //!   open and closed loop, and their ratio; coefficients from measured HD2/HD3;
+//! - [`frequency`]: the same at a signal frequency, with the loop gain of a
+//!   dominant-pole amplifier taken at the fundamental and at each harmonic;
 //! - [`newton`]: the loop y = A(x − β·y) solved point by point (guarded Newton);
 //! - [`harmonics`]: the output spectrum from those solutions by a short DFT;
 //! - [`validity`]: series against numeric, and where the series stops holding;
@@ -26,6 +28,7 @@
 //! ```
 
 pub mod distortion;
+pub mod frequency;
 pub mod harmonics;
 pub mod newton;
 pub mod series;
@@ -36,6 +39,7 @@ pub use distortion::{
     feedback_distortion, harmonic_distortion, series_from_distortion, AmplitudeAt, Distortion,
     FeedbackDistortion,
 };
+pub use frequency::{feedback_distortion_at, FrequencyDistortion, LoopGainAt};
 pub use harmonics::{
     closed_loop_spectrum, short_dft, Spectrum, DEFAULT_SAMPLES, HARMONICS, MAX_SAMPLES, MIN_SAMPLES,
 };

@@ -215,7 +215,8 @@ def best_pairs_brute(target, key, total_min, total_max, count):
     rows.sort(key=lambda c: c[:3])
     out = []
     for _, _, r1, r2, g, err in rows[:count]:
-        out += [M(r1), M(r2), M(g), M(err)]
+        # Single R2: its first part is R2 itself, the second 0.
+        out += [M(r1), M(r2), M(g), M(err), M(r2), M(0)]
     return out
 
 
