@@ -368,7 +368,8 @@ def white_total(rf, rg, en, t, gbw):
 CASES.update({
     "=DIST.SERIES(1000; 200; -50; 0.099)": closed_series(M(1000), M(200), M(-50), M("0.099")),
     "=DIST.HD(1000; 200; -50; 0.099; 1 V; \"output\")": hd(M(1000), M(200), M(-50), M(1))
-        + hd(*closed_series(M(1000), M(200), M(-50), M("0.099")), M(1)),
+        + hd(*closed_series(M(1000), M(200), M(-50), M("0.099")), M(1))
+        + [M(1000) * M("0.099"), M(0)],  # the DC loop gain used, and its phase
     "=DIST.FPBW(0.5e6; 10 V)": [M("0.5e6") / (2 * mp.pi * 10)],
     "=DIST.MAXAMP(13e6; 100 kHz)": [M("13e6") / (2 * mp.pi * M(10**5))],
     "=DIST.SLEWRATE(10 V; 20 kHz)": [2 * mp.pi * M(20000) * 10],
