@@ -83,8 +83,6 @@ const mc1 = lw.monteCarlo(mcOptions);
 const mc2 = lw.monteCarlo({ ...mcOptions });
 assert.equal(mc1.stats.mean, mc2.stats.mean, 'same seed, same numbers');
 throws(() => lw.monteCarlo({ ...mcOptions, tolR1: 0 }), 'out_of_domain', 'tolR1');
-throws(() => lw.monteCarlo({ ...mcOptions, trails: 10 }), 'unknown_field', 'trails');
-throws(() => lw.worstCase({ ...mcOptions, trials: 10 }), 'unknown_field', 'trials');
 // The spread of A keeps GBW = aTyp·poleHz by default: at A = aMax the pole is at
 // 500 kHz/2e5 = 2.5 Hz, so the narrowest bandwidth is 2.5·(1 + 2e5·β) (closed form).
 const wc = lw.worstCase(stageOptions);
