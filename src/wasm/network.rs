@@ -1,4 +1,4 @@
-//! JS bindings for feedback-network synthesis and tolerance (catalog area C).
+//! JS bindings for feedback-network synthesis and tolerance.
 
 use super::options::{core_error, read};
 use super::{scalar, throw, to_js};

@@ -1,4 +1,4 @@
-//! JS bindings for the noise of op-amp stages (catalog area E).
+//! JS bindings for the noise of op-amp stages.
 //!
 //! The stage exports take one options object (`NoiseOptions` in the `.d.ts`): a
 //! stage as `kind` (`"non-inverting"` or `"inverting"`), resistors `rFeedback,

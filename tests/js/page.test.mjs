@@ -247,7 +247,7 @@ test('every card computes its defaults, and the area cards show closed-form valu
   // Noise gain 1 + Rf/Rg = 1 + 9.09k/1k = 10.09.
   assert.equal(await result(page, 'card-noise', 'ng'), '10.09');
   // Loop gain a1·β = 10k·0.01 = 100 at DC; with the 100 Hz pole, at equal output HD2
-  // falls by |1 + T(2f)| with T(2 kHz) = 100/(1 + j·20) (src/nonlinear/frequency.rs):
+  // falls by |1 + T(2f)| with T(2 kHz) = 100/(1 + j·20) (src/distortion/frequency.rs):
   // 1/|1 + (100 − j·2000)/401|.
   assert.equal(await result(page, 'card-distortion', 't0'), '100');
   const t2 = { re: 1 + 100 / 401, im: -2000 / 401 };

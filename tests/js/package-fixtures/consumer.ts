@@ -37,7 +37,7 @@ export async function run(): Promise<number> {
   const hd: FeedbackDistortion = feedbackDistortion({ a1: 1e4, a2: 1e6, a3: -2e10, beta: 0.01, amplitude: 1, amplitudeAt: 'output' });
   const ratio: number | null = hd.hd2Ratio;
   const sheet = new Worksheet();
-  const touched: string[] = sheet.setCell('A1', '=FB.GAIN(100k; 0.01)');
+  const touched: string[] = sheet.setCell('A1', '=FEEDBACK.GAIN(100k; 0.01)');
   const saved: string = sheet.saveDocument();
   sheet.free();
   return lg + touched.length + saved.length + s.closedLoopGain + (ideal ?? 0) + spread.spreadPpm + zin + unit.length + r2 + noise.outputRms + (ratio ?? 0);

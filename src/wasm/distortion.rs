@@ -1,4 +1,4 @@
-//! JS bindings for distortion under feedback and slew-rate limits (catalog area E).
+//! JS bindings for distortion under feedback and slew-rate limits.
 //!
 //! A power-series amplifier is given by its three coefficients `a1, a2, a3`;
 //! amplitudes are peak values; `amplitudeAt` is `"input"` or `"output"`. The
@@ -7,7 +7,7 @@
 
 use super::options::{core_error, read};
 use super::{scalar, throw, to_js, typed_arrays};
-use crate::nonlinear::{self as nl, AmplitudeAt, PowerSeries};
+use crate::distortion::{self as nl, AmplitudeAt, PowerSeries};
 use serde::Deserialize;
 use wasm_bindgen::prelude::*;
 

@@ -30,9 +30,9 @@
 //! Source: the harmonic-input (Volterra) treatment of a weakly nonlinear feedback
 //! loop, e.g. P. Wambacq & W. Sansen, *Distortion Analysis of Analog Integrated
 //! Circuits*, 1998, ch. 6–7 (from memory); checked against a time-domain solution
-//! of the loop by `tests/reference/nonlinear_frequency.py` (scipy).
+//! of the loop by `tests/reference/distortion_frequency.py` (scipy).
 
-use super::distortion::{AmplitudeAt, Distortion};
+use super::leading_order::{AmplitudeAt, Distortion};
 use super::series::{closed_loop_series, return_difference, PowerSeries};
 use crate::check;
 use crate::error::Result;
@@ -109,7 +109,7 @@ fn pole_section(f: f64, pole_hz: f64) -> Complex64 {
 ///
 /// # Example
 /// ```
-/// use loopwright::nonlinear::{feedback_distortion_at, AmplitudeAt, PowerSeries};
+/// use loopwright::distortion::{feedback_distortion_at, AmplitudeAt, PowerSeries};
 /// // a1 = 416.7k, β = 0.01: DC loop gain 4167, dominant pole 12 Hz.
 /// let amp = PowerSeries::new(4.167e5, 1e8, -2e12).unwrap();
 /// let r = feedback_distortion_at(&amp, 0.01, 12.0, 1e3, 1.0, AmplitudeAt::Output).unwrap();
@@ -193,7 +193,7 @@ pub fn feedback_distortion_at(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::nonlinear::feedback_distortion;
+    use crate::distortion::feedback_distortion;
 
     #[test]
     fn zero_frequency_is_the_static_series() {

@@ -1,5 +1,5 @@
 #!/usr/bin/env python3
-"""Oracle for distortion under feedback at a signal frequency (src/nonlinear/frequency.rs).
+"""Oracle for distortion under feedback at a signal frequency (src/distortion/frequency.rs).
 
 The loop, solved in time with scipy.integrate.solve_ivp (Radau), no series
 expansion: a dominant-pole section tau*dv/dt + v = e with tau = 1/(2*pi*f_p), the
@@ -14,7 +14,7 @@ formulas at the same input amplitude. The leading-order result differs from the
 exact one by terms of relative order HD (compression and higher harmonics mixing
 back), so the amplitudes are chosen to keep the closed-loop HD below about 1e-3.
 
-Writes tests/reference/data/nonlinear_frequency.json; `--check` recomputes and
+Writes tests/reference/data/distortion_frequency.json; `--check` recomputes and
 compares (rel. tol. 1e-6: the ODE is solved to rtol 1e-11).
 """
 import json
@@ -25,7 +25,7 @@ import sys
 import numpy as np
 from scipy.integrate import solve_ivp
 
-OUT = pathlib.Path(__file__).parent / "data" / "nonlinear_frequency.json"
+OUT = pathlib.Path(__file__).parent / "data" / "distortion_frequency.json"
 REL_TOL = 1e-6
 N = 128
 SETTLE = 4

@@ -1,9 +1,9 @@
-//! Browser tests of the distortion and noise JS API (src/wasm/nonlinear.rs,
+//! Browser tests of the distortion and noise JS API (src/wasm/distortion.rs,
 //! src/wasm/noise.rs): values, structured results, typed arrays and thrown errors.
 #![cfg(target_arch = "wasm32")]
 
 use js_sys::Float64Array;
-use loopwright::wasm::{noise, nonlinear};
+use loopwright::wasm::{distortion, noise};
 use wasm_bindgen::{JsCast, JsValue};
 use wasm_bindgen_test::*;
 
@@ -35,10 +35,10 @@ fn error_code_param(e: JsValue) -> (String, String) {
 #[wasm_bindgen_test]
 fn closed_loop_series_and_ratios() {
     // b1 = a1/D, b2 = a2/D³ (Gray, Hurst, Lewis & Meyer, 5th ed., ch. 8, from memory).
-    let b = nonlinear::closed_loop_series(1000.0, 200.0, -50.0, 0.099).unwrap();
+    let b = distortion::closed_loop_series(1000.0, 200.0, -50.0, 0.099).unwrap();
     assert!((num(&b, "a1") - 10.0).abs() < 1e-12);
     assert!((num(&b, "a2") - 2e-4).abs() < 1e-18);
-    let f = nonlinear::feedback_distortion(obj(
+    let f = distortion::feedback_distortion(obj(
         &[
             ("a1", 1000.0),
             ("a2", 0.0),
@@ -61,8 +61,8 @@ fn closed_loop_series_and_ratios() {
 fn distortion_at_a_signal_frequency_uses_the_loop_gain_there() {
     // Issue 15, item 11: a1·β = 4167 with a 12 Hz pole is |T| ≈ 50 at 1 kHz
     // (4167/√(1 + (1000/12)²) = 49.997, closed form); the time-domain oracle is in
-    // tests/nonlinear_reference.rs.
-    let r = nonlinear::distortion_at_frequency(obj(
+    // tests/distortion_reference.rs.
+    let r = distortion::distortion_at_frequency(obj(
         &[
             ("a1", 4.167e5),
             ("a2", 1e8),
@@ -82,7 +82,7 @@ fn distortion_at_a_signal_frequency_uses_the_loop_gain_there() {
     assert!((num(&t1, "magnitude") / want - 1.0).abs() < 1e-12);
     assert!((num(&t1, "phaseDeg") + (1000.0f64 / 12.0).atan().to_degrees()).abs() < 1e-9);
     assert!(num(&field(&r, "closed"), "hd2") > 40.0 * num(&field(&r, "closedAtDc"), "hd2"));
-    let e = nonlinear::distortion_at_frequency(obj(
+    let e = distortion::distortion_at_frequency(obj(
         &[
             ("a1", 1e3),
             ("a2", 0.0),
@@ -114,13 +114,13 @@ fn numeric_path_agrees_with_the_series_at_small_amplitude() {
             &[],
         )
     };
-    let c = nonlinear::series_check(loop_at(1e-3, 64.0)).unwrap();
+    let c = distortion::series_check(loop_at(1e-3, 64.0)).unwrap();
     assert!(num(&c, "hd2Difference") < 1e-3 && num(&c, "hd3Difference") < 1e-3);
-    let s = nonlinear::closed_loop_spectrum(loop_at(1e-3, 64.0)).unwrap();
+    let s = distortion::closed_loop_spectrum(loop_at(1e-3, 64.0)).unwrap();
     let harmonics: js_sys::Array = field(&s, "harmonics").dyn_into().unwrap();
     assert_eq!(harmonics.length(), 5);
     assert!((harmonics.get(0).as_f64().unwrap() - 0.1).abs() < 1e-5);
-    let y = checked(nonlinear::closed_loop_output(
+    let y = checked(distortion::closed_loop_output(
         1000.0, 0.0, -1000.0, 0.01, 0.05,
     ))
     .unwrap();
@@ -131,7 +131,7 @@ fn numeric_path_agrees_with_the_series_at_small_amplitude() {
 
 #[wasm_bindgen_test]
 fn validity_sweep_returns_typed_arrays_and_the_fold() {
-    let s = nonlinear::series_validity_sweep(obj(
+    let s = distortion::series_validity_sweep(obj(
         &[
             ("a1", 100.0),
             ("a2", 0.0),
@@ -159,7 +159,7 @@ fn validity_sweep_returns_typed_arrays_and_the_fold() {
 #[wasm_bindgen_test]
 fn distortion_errors_are_thrown_with_code_and_param() {
     let spectrum = |amplitude: f64, samples: f64| {
-        nonlinear::closed_loop_spectrum(obj(
+        distortion::closed_loop_spectrum(obj(
             &[
                 ("a1", 100.0),
                 ("a2", 0.0),
@@ -176,7 +176,7 @@ fn distortion_errors_are_thrown_with_code_and_param() {
         error_code_param(e),
         ("no_convergence".into(), "amplitude".into())
     );
-    let e = nonlinear::feedback_distortion(obj(
+    let e = distortion::feedback_distortion(obj(
         &[
             ("a1", 100.0),
             ("a2", 1.0),
@@ -192,7 +192,7 @@ fn distortion_errors_are_thrown_with_code_and_param() {
         ("unknown_name".into(), "amplitudeAt".into())
     );
     // Loop gain −10 (D = −9): latching, refused by the shared classification.
-    let e = nonlinear::feedback_distortion(obj(
+    let e = distortion::feedback_distortion(obj(
         &[
             ("a1", 1e5),
             ("a2", 1.0),
@@ -204,7 +204,7 @@ fn distortion_errors_are_thrown_with_code_and_param() {
     ))
     .unwrap_err();
     assert_eq!(error_code_param(e), ("out_of_domain".into(), "beta".into()));
-    let e = nonlinear::closed_loop_series(f64::NAN, 1.0, 1.0, 0.1).unwrap_err();
+    let e = distortion::closed_loop_series(f64::NAN, 1.0, 1.0, 0.1).unwrap_err();
     assert_eq!(error_code_param(e), ("not_finite".into(), "a1".into()));
     let e = spectrum(0.1, 100_000.0).unwrap_err();
     assert_eq!(error_code_param(e), ("too_large".into(), "samples".into()));
@@ -213,12 +213,12 @@ fn distortion_errors_are_thrown_with_code_and_param() {
 #[wasm_bindgen_test]
 fn slew_rate_limits() {
     // Common practice, no source: 0.5 V/µs at 10 V peak gives about 8 kHz.
-    let f = checked(nonlinear::full_power_bandwidth(0.5e6, 10.0)).unwrap();
+    let f = checked(distortion::full_power_bandwidth(0.5e6, 10.0)).unwrap();
     assert!((f - 7957.747).abs() < 1e-3);
-    let v = checked(nonlinear::max_undistorted_amplitude(0.5e6, f)).unwrap();
+    let v = checked(distortion::max_undistorted_amplitude(0.5e6, f)).unwrap();
     assert!((v - 10.0).abs() < 1e-12);
-    assert!((checked(nonlinear::required_slew_rate(10.0, f)).unwrap() - 0.5e6).abs() < 1e-6);
-    let e = checked(nonlinear::full_power_bandwidth(0.5e6, -1.0)).unwrap_err();
+    assert!((checked(distortion::required_slew_rate(10.0, f)).unwrap() - 0.5e6).abs() < 1e-6);
+    let e = checked(distortion::full_power_bandwidth(0.5e6, -1.0)).unwrap_err();
     assert_eq!(
         error_code_param(e),
         ("out_of_domain".into(), "v_peak".into())
