@@ -8,8 +8,8 @@ use loopwright::freq::{
     closed_loop_poles, loop_gain_sweep, stability_margins, FeedbackLoop, TransferModel,
 };
 use loopwright::network::{
-    best_pairs, monte_carlo, Combine, Distribution, Metric, MonteCarloSpec, Network, PairSpec,
-    Series, Stage, StageSpec,
+    best_pairs, monte_carlo, Combine, Distribution, GainDistribution, Hold, Metric, MonteCarloSpec,
+    Network, PairSpec, Series, Stage, StageSpec,
 };
 
 fn main() {
@@ -71,9 +71,10 @@ fn network_monte_carlo_1e6() -> bool {
             ri: 1e6,
             ro: 75.0,
             pole_hz: 5.0,
+            hold: Hold::GainBandwidth,
         },
         resistors: Distribution::Uniform,
-        open_loop_gain: Distribution::Uniform,
+        open_loop_gain: GainDistribution::Uniform,
         metric: Metric::Gain,
         trials: 1_000_000,
         seed: 42,

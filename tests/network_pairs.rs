@@ -112,3 +112,119 @@ fn gain_of_ten_from_e12_matches_brute_force() {
     assert_eq!(fast.candidates[0].error.abs(), slow[0]);
     assert!(fast.candidates[0].error != 0.0);
 }
+
+/// Every R2 leg of `values` up to `top`: each value alone and every unordered pair
+/// in series and in parallel, as (value, joint, smaller part, larger part),
+/// sorted by value.
+fn all_legs(values: &[f64], top: f64) -> Vec<(f64, Joint, f64, f64)> {
+    let mut out: Vec<(f64, Joint, f64, f64)> =
+        values.iter().map(|&v| (v, Joint::Single, v, v)).collect();
+    for (i, &a) in values.iter().enumerate() {
+        for &b in &values[i..] {
+            out.push((a + b, Joint::Series, a, b));
+            out.push((a * b / (a + b), Joint::Parallel, a, b));
+        }
+    }
+    out.retain(|l| l.0 <= top);
+    out.sort_by(|x, y| x.0.total_cmp(&y.0));
+    out
+}
+
+#[test]
+fn two_part_legs_are_searched_whenever_asked_for() {
+    // Issue 15, item 7: gain 48 from E96 (best single pair +0.677 %). Before, every
+    // `combine` returned the single pairs (no maximum error given). Oracle: brute
+    // force over every single and two-part E96 leg with parts from 1 Ω to 1 TΩ,
+    // and every E96 R1 from 10 Ω to 100 kΩ, R1 + R2 within 10 k … 100 kΩ: the best
+    // |error| per R1 (the error is monotonic in R2, so the best leg is one of the
+    // two enumerated legs around 47·R1 in value order) and overall, per joint.
+    // The search may use parts beyond 1 TΩ, so it must do at least as well, and
+    // exactly as well when its parts lie within the enumerated range.
+    const SAME: f64 = 4.0 * f64::EPSILON; // same formulas, summed in another order
+    let parts = series_values(Series::E96, 1.0, 1e12).unwrap();
+    let r1s = series_values(Series::E96, 10.0, 1e5).unwrap();
+    let legs = all_legs(&parts, 1e5);
+    let error = |r1: f64, r2: f64| (1.0 + r2 / r1) / 48.0 - 1.0;
+    let mut single = PairSpec::new(Network::NonInverting, 48.0, Series::E96, 1e4, 1e5);
+    single.count = 100;
+    let singles = best_pairs(&single).unwrap();
+    assert!((singles.candidates[0].error - 0.006_772_976_680_384_124).abs() < 1e-15);
+    for combine in [Combine::Series, Combine::Parallel, Combine::Either] {
+        let allowed = |j: Joint| match combine {
+            Combine::Series => j == Joint::Single || j == Joint::Series,
+            Combine::Parallel => j == Joint::Single || j == Joint::Parallel,
+            _ => true,
+        };
+        let ok: Vec<f64> = legs.iter().filter(|l| allowed(l.1)).map(|l| l.0).collect();
+        // Best |error| for one R1 over the legs with R1 + R2 in range.
+        let best_for = |r1: f64| {
+            let (lo, hi) = (1e4 - r1, 1e5 - r1);
+            let at = ok.partition_point(|&v| v < 47.0 * r1);
+            [at.checked_sub(1), Some(at)]
+                .into_iter()
+                .flatten()
+                .filter_map(|i| ok.get(i))
+                .chain(ok.iter().find(|&&v| v >= lo))
+                .chain(ok.iter().rev().find(|&&v| v <= hi))
+                .filter(|&&v| v >= lo && v <= hi)
+                .map(|&v| error(r1, v).abs())
+                .fold(f64::INFINITY, f64::min)
+        };
+        let spec = PairSpec { combine, ..single };
+        let got = best_pairs(&spec).unwrap();
+        let first = &got.candidates[0];
+        assert!(first.r2.joint != Joint::Single, "{combine:?}");
+        assert!(allowed(first.r2.joint));
+        let within = |c: &loopwright::network::PairCandidate| {
+            c.r2.second.map_or(true, |s| {
+                (1.0..=1e12).contains(&s) && (1.0..=1e12).contains(&c.r2.first)
+            })
+        };
+        let overall = r1s
+            .iter()
+            .map(|&r1| best_for(r1))
+            .fold(f64::INFINITY, f64::min);
+        assert!(
+            first.error.abs() <= overall + SAME,
+            "{combine:?}: {} vs {overall}",
+            first.error
+        );
+        if within(first) {
+            assert!((first.error.abs() - overall).abs() <= SAME, "{combine:?}");
+        }
+        // Each R1 listed has at least the brute-force best for it among its
+        // candidates, the same when its parts are in range.
+        for c in &got.candidates {
+            let of_r1 = got
+                .candidates
+                .iter()
+                .filter(|d| d.r1 == c.r1)
+                .map(|d| d.error.abs())
+                .fold(f64::INFINITY, f64::min);
+            let brute = best_for(c.r1);
+            assert!(of_r1 <= brute + SAME, "{combine:?} R1 {}", c.r1);
+            if got.candidates.iter().filter(|d| d.r1 == c.r1).all(within) {
+                assert!((of_r1 - brute).abs() <= SAME, "{combine:?} R1 {}", c.r1);
+            }
+        }
+        assert!(got
+            .candidates
+            .iter()
+            .all(|c| (1e4..=1e5).contains(&c.total)));
+    }
+}
+
+#[test]
+fn a_maximum_error_ranks_the_fewest_parts_first() {
+    // With 1 % allowed, the single E96 pairs (+0.68 %) meet it and come before the
+    // three-resistor legs that beat it further; at 0.1 % only two-part legs meet it.
+    let mut spec = PairSpec::new(Network::NonInverting, 48.0, Series::E96, 1e4, 1e5);
+    spec.combine = Combine::Either;
+    spec.max_error = Some(0.01);
+    let r = best_pairs(&spec).unwrap();
+    assert!(r.meets_max_error && r.candidates[0].r2.joint == Joint::Single);
+    spec.max_error = Some(0.001);
+    let r = best_pairs(&spec).unwrap();
+    assert!(r.meets_max_error && r.candidates[0].r2.joint != Joint::Single);
+    assert!(r.candidates[0].error.abs() <= 0.001);
+}

@@ -3,7 +3,8 @@
 //! corners with the closed-form expressions written out here independently.
 #![cfg(not(target_arch = "wasm32"))]
 
-use loopwright::network::{worst_case, End, Stage, StageSpec};
+use loopwright::network::{worst_case, End, Hold, Stage, StageSpec};
+use num_complex::Complex64;
 use proptest::prelude::*;
 
 fn stage(kind: Stage, tol: f64, a_spread: f64) -> StageSpec {
@@ -19,6 +20,7 @@ fn stage(kind: Stage, tol: f64, a_spread: f64) -> StageSpec {
         ri: 2e6,
         ro: 40.0,
         pole_hz: 8.0,
+        hold: Hold::GainBandwidth,
     }
 }
 
@@ -98,7 +100,12 @@ fn direct(s: &StageSpec, r1: f64, r2: f64, a: f64) -> [f64; 4] {
         Stage::NonInverting => s.ri * d,
         Stage::Inverting => r1 + r2 / (1.0 + a),
     };
-    [gain, zin, s.ro / d, s.pole_hz * d]
+    // The pole of an amplifier of gain a: fixed, or GBW/a with GBW = a_typ·pole.
+    let pole = match s.hold {
+        Hold::GainBandwidth => s.a_typ * s.pole_hz / a,
+        Hold::Pole => s.pole_hz,
+    };
+    [gain, zin, s.ro / d, pole * d]
 }
 
 proptest! {
@@ -108,11 +115,11 @@ proptest! {
     /// the library goes through crate::feedback, so the operations differ a little).
     #[test]
     fn extremes_equal_corner_enumeration(
-        inverting in any::<bool>(), r1 in 100.0f64..1e5, r2 in 100.0f64..1e6,
+        inverting in any::<bool>(), hold_pole in any::<bool>(), r1 in 100.0f64..1e5, r2 in 100.0f64..1e6,
         tol1 in 0.001f64..0.2, tol2 in 0.001f64..0.2, a_lo in 1e2f64..1e5, a_ratio in 1.0f64..20.0,
     ) {
         let kind = if inverting { Stage::Inverting } else { Stage::NonInverting };
-        let s = StageSpec { stage: kind, r1, r2, tol_r1: tol1, tol_r2: tol2, a_min: a_lo, a_typ: a_lo, a_max: a_lo * a_ratio, ri: 1e6, ro: 100.0, pole_hz: 10.0 };
+        let s = StageSpec { stage: kind, r1, r2, tol_r1: tol1, tol_r2: tol2, a_min: a_lo, a_typ: a_lo, a_max: a_lo * a_ratio, ri: 1e6, ro: 100.0, pole_hz: 10.0, hold: if hold_pole { Hold::Pole } else { Hold::GainBandwidth } };
         let w = worst_case(&s).unwrap();
         let mut lo = [f64::INFINITY; 4];
         let mut hi = [f64::NEG_INFINITY; 4];
@@ -132,4 +139,76 @@ proptest! {
             prop_assert!((got[i].max - hi[i]).abs() <= 1e-12 * hi[i].abs(), "quantity {} max {} vs {}", i, got[i].max, hi[i]);
         }
     }
+}
+
+/// The −3 dB frequency of the closed loop A(jf)/(1 + A(jf)·β) of a one-pole
+/// amplifier A(jf) = a0/(1 + j·f/pole), found by bisection on |Af(jf)|² = |Af(0)|²/2
+/// in complex arithmetic: no use of the bandwidth-extension formula.
+fn minus_3db_by_bisection(a0: f64, pole: f64, beta: f64) -> f64 {
+    let af = |f: f64| {
+        let a = Complex64::new(a0, 0.0) / Complex64::new(1.0, f / pole);
+        (a / (1.0 + a * beta)).norm_sqr()
+    };
+    let half = af(0.0) / 2.0;
+    let (mut lo, mut hi) = (0.0, 1e12);
+    for _ in 0..200 {
+        let mid = 0.5 * (lo + hi);
+        if af(mid) > half {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    0.5 * (lo + hi)
+}
+
+#[test]
+fn gain_spread_keeps_the_gain_bandwidth_product_by_default() {
+    // Issue 15, item 5: gain 100 (1 k / 99 k at 1 %), A0 from 1e4 to 1e6, typical
+    // 1e5 with its dominant pole at 50 Hz (GBW 5 MHz). Holding the pole, the
+    // bandwidth swung from 4.95 kHz to 510 kHz; holding GBW it stays near
+    // GBW·β ≈ 50 kHz. Oracle: the −3 dB point of the complex closed loop of each
+    // corner amplifier (pole at GBW/A0), by bisection.
+    const REL: f64 = 1e-9; // bisection to 2^-200 of the bracket; the closed form is exact
+    let s = StageSpec {
+        stage: Stage::NonInverting,
+        r1: 1e3,
+        r2: 99e3,
+        tol_r1: 0.01,
+        tol_r2: 0.01,
+        a_min: 1e4,
+        a_typ: 1e5,
+        a_max: 1e6,
+        ri: 1e6,
+        ro: 75.0,
+        pole_hz: 50.0,
+        hold: Hold::GainBandwidth,
+    };
+    let gbw = s.a_typ * s.pole_hz;
+    let w = worst_case(&s).unwrap();
+    let beta = |r1: f64, r2: f64| r1 / (r1 + r2);
+    // Widest: R1 high, R2 low (largest β), A low; narrowest: the opposite corner.
+    let widest = minus_3db_by_bisection(s.a_min, gbw / s.a_min, beta(1010.0, 98010.0));
+    let narrowest = minus_3db_by_bisection(s.a_max, gbw / s.a_max, beta(990.0, 99990.0));
+    assert!(
+        (w.bandwidth_hz.max / widest - 1.0).abs() < REL,
+        "{}",
+        w.bandwidth_hz.max
+    );
+    assert!(
+        (w.bandwidth_hz.min / narrowest - 1.0).abs() < REL,
+        "{}",
+        w.bandwidth_hz.min
+    );
+    assert!(w.bandwidth_hz.min > 45e3 && w.bandwidth_hz.max < 60e3);
+    // Holding the pole instead: the old, A-proportional spread.
+    let p = worst_case(&StageSpec {
+        hold: Hold::Pole,
+        ..s
+    })
+    .unwrap();
+    let narrowest = minus_3db_by_bisection(s.a_min, s.pole_hz, beta(990.0, 99990.0));
+    assert!((p.bandwidth_hz.min / narrowest - 1.0).abs() < REL);
+    // A ratio of 100 times a β ratio of 1.04: about 103.
+    assert!(p.bandwidth_hz.max / p.bandwidth_hz.min > 100.0);
 }

@@ -167,7 +167,9 @@ fn ranked_pairs_spill_and_a_filled_cell_in_the_way_blocks_them() {
     )
     .unwrap();
     let r = s.spill_range(cell("A1")).unwrap();
-    assert_eq!((r.rows(), r.cols()), (4, 4));
+    // R1, R2, achieved, error, and R2's two parts (R2 itself and 0 when single).
+    assert_eq!((r.rows(), r.cols()), (4, 6));
+    assert_eq!((num(&s, "E1"), num(&s, "F1")), (18_000.0, 0.0));
     // Gain 10 needs R2/R1 = 9: exact with E24 values 2.0 k/18 k and 3.0 k/27 k
     // (IEC 60063 E24 has 2.0, 3.0, 18 and 27), the smaller total first.
     assert_eq!(
@@ -188,6 +190,23 @@ fn ranked_pairs_spill_and_a_filled_cell_in_the_way_blocks_them() {
     // Cleared, the candidates spill again; each row's gain is 1 + R2/R1.
     s.set("C3", "").unwrap();
     assert_eq!(num(&s, "C3"), 1.0 + num(&s, "B3") / num(&s, "A3"));
+    // Gain 48 from E96 with two-part legs asked for (issue 15, item 7): the first
+    // row's R2 is two parts that sum to it (exact: brute force in
+    // tests/network_pairs.rs), and a 1 % maximum error puts a single pair first.
+    s.set(
+        "H1",
+        "=NETWORK.PAIR(\"non-inverting\"; 48; \"E96\"; 10k; 100k; 3; ; \"series\")",
+    )
+    .unwrap();
+    assert_eq!(num(&s, "K1"), 0.0);
+    assert_eq!(num(&s, "L1") + num(&s, "M1"), num(&s, "I1"));
+    s.set(
+        "H5",
+        "=NETWORK.PAIR(\"non-inverting\"; 48; \"E96\"; 10k; 100k; 3; 1%; \"either\")",
+    )
+    .unwrap();
+    assert_eq!(num(&s, "M5"), 0.0);
+    assert!(num(&s, "K5").abs() <= 0.01);
 }
 
 #[test]
@@ -325,4 +344,34 @@ fn the_worksheet_gives_the_core_results_unchanged() {
     )
     .unwrap();
     assert!(num(&s, "A4") > num(&s, "A3"));
+    // The noise bandwidth is that of the band integrated (issue 15, item 10):
+    // f_c = 10 MHz/11 ≈ 909 kHz, so 10 Hz … 20 kHz is about 20 kHz wide, and
+    // fc·(atan(20k/fc) − atan(10/fc)) exactly (the Lorentzian's integral).
+    let fc: f64 = 1e7 / 11.0;
+    let lorentz = fc * ((2e4 / fc).atan() - (10.0 / fc).atan());
+    assert!(close(num(&s, "C3"), lorentz, 1e-9), "{}", num(&s, "C3"));
+    assert_eq!(num(&s, "C3"), n.noise_bandwidth_hz);
+    assert!(num(&s, "C4") > 1e6);
+
+    // DISTORTION.HD at a signal frequency: the loop gain used is |T(1 kHz)| ≈ 50 for a
+    // DC loop gain of 4167 and a 12 Hz pole (4167/√(1 + (1000/12)²), closed form).
+    s.set(
+        "A6",
+        "=DISTORTION.HD(416.7k; 1e8; -2e12; 0.01; 1 V; \"output\"; 12; 1 kHz)",
+    )
+    .unwrap();
+    let t = 4167.0 / (1.0 + (1000.0f64 / 12.0).powi(2)).sqrt();
+    assert!(close(num(&s, "E6"), t, 1e-9), "{}", num(&s, "E6"));
+    assert!(close(
+        num(&s, "F6"),
+        -(1000.0f64 / 12.0).atan().to_degrees(),
+        1e-9
+    ));
+    // Loop gain −10: the shared classification calls it latching (issue 15, item 8).
+    s.set("A7", "=FEEDBACK.SENSE(100k; -1e-4)").unwrap();
+    assert_eq!(
+        s.value("A7").unwrap(),
+        Value::Text("latching".into()),
+        "D = 1 + A·β = −9 < 0"
+    );
 }

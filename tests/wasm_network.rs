@@ -17,6 +17,45 @@ use js::{assert_thrown, checked, field, num, text};
 
 include!("fixtures/network_montecarlo.rs");
 
+/// A plain JS object with the given fields (an options object).
+fn obj(fields: &[(&str, JsValue)]) -> JsValue {
+    let o = js_sys::Object::new();
+    for (k, v) in fields {
+        js_sys::Reflect::set(&o, &(*k).into(), v).unwrap();
+    }
+    o.into()
+}
+
+fn s(x: &str) -> JsValue {
+    x.into()
+}
+
+fn n(x: f64) -> JsValue {
+    x.into()
+}
+
+/// The inverting stage of the tests as `worstCase` options, with `extra` fields.
+fn stage(extra: &[(&str, JsValue)]) -> JsValue {
+    let mut f = vec![
+        ("stage", s("inverting")),
+        ("r1", n(10e3)),
+        ("r2", n(47e3)),
+        ("tolR1", n(0.01)),
+        ("tolR2", n(0.01)),
+        ("aMin", n(5e4)),
+        ("aTyp", n(1e5)),
+        ("aMax", n(2e5)),
+        ("ri", n(1e6)),
+        ("ro", n(75.0)),
+        ("poleHz", n(5.0)),
+    ];
+    for (k, v) in extra {
+        f.retain(|(x, _)| x != k);
+        f.push((k, v.clone()));
+    }
+    obj(&f)
+}
+
 #[wasm_bindgen_test]
 fn standard_values_and_notation() {
     // IEC 60063 E12 (from memory): 4.7 and 5.6 neighbour 5.0.
@@ -53,17 +92,15 @@ fn series_values_are_a_float64_array() {
 #[wasm_bindgen_test]
 fn best_pairs_are_ranked_objects() {
     // Gain 10 = 1 + 9: E24 has exact pairs (18 k/2.0 k, 27 k/3.0 k…).
-    let r = api::best_pairs(
-        "non-inverting",
-        10.0,
-        "E24",
-        1e4,
-        1e5,
-        None,
-        Some(1e-3),
-        "none",
-        5.0,
-    )
+    let r = api::best_pairs(obj(&[
+        ("network", s("non-inverting")),
+        ("target", n(10.0)),
+        ("series", s("E24")),
+        ("totalMin", n(1e4)),
+        ("totalMax", n(1e5)),
+        ("maxError", n(1e-3)),
+        ("count", n(5.0)),
+    ]))
     .unwrap();
     assert_eq!(text(&r, "network"), "non-inverting");
     assert_eq!(field(&r, "meetsMaxError"), JsValue::TRUE);
@@ -76,20 +113,33 @@ fn best_pairs_are_ranked_objects() {
     assert!(field(&r2, "second").is_null());
     assert_eq!(num(&r2, "value") / num(&first, "r1"), 9.0);
     // An unreachable error target is a result with the best miss, not a throw.
-    let miss = api::best_pairs(
-        "divider",
-        0.123_456,
-        "E3",
-        1e3,
-        2e3,
-        None,
-        Some(1e-9),
-        "none",
-        3.0,
-    )
+    let miss = api::best_pairs(obj(&[
+        ("network", s("divider")),
+        ("target", n(0.123_456)),
+        ("series", s("E3")),
+        ("totalMin", n(1e3)),
+        ("totalMax", n(2e3)),
+        ("maxError", n(1e-9)),
+        ("combine", s("none")),
+        ("count", n(3.0)),
+    ]))
     .unwrap();
     assert_eq!(field(&miss, "meetsMaxError"), JsValue::FALSE);
     assert!(Array::from(&field(&miss, "candidates")).length() >= 1);
+    // Gain 48 from E96 with two-part legs: the best has three parts (issue 15,
+    // item 7; brute force in tests/network_pairs.rs).
+    let two = api::best_pairs(obj(&[
+        ("network", s("non-inverting")),
+        ("target", n(48.0)),
+        ("series", s("E96")),
+        ("totalMin", n(1e4)),
+        ("totalMax", n(1e5)),
+        ("combine", s("either")),
+    ]))
+    .unwrap();
+    let c: Array = field(&two, "candidates").dyn_into().unwrap();
+    assert_eq!(c.length(), 10);
+    assert_ne!(text(&field(&c.get(0), "r2"), "joint"), "single");
     let single = api::single_resistor(0.05, "E24", Some(0.005), "parallel").unwrap();
     let best = Array::from(&single).get(0);
     assert_eq!(text(&field(&best, "leg"), "joint"), "parallel");
@@ -97,20 +147,7 @@ fn best_pairs_are_ranked_objects() {
 
 #[wasm_bindgen_test]
 fn worst_case_names_the_corners() {
-    let w = api::worst_case(
-        "inverting",
-        10e3,
-        47e3,
-        0.01,
-        0.01,
-        5e4,
-        1e5,
-        2e5,
-        1e6,
-        75.0,
-        5.0,
-    )
-    .unwrap();
+    let w = api::worst_case(stage(&[])).unwrap();
     let g = field(&w, "gain");
     let corner = field(&g, "minCorner");
     // |Af| is largest with R1 low, R2 high, A high (monotonic, see worstcase.rs).
@@ -127,6 +164,15 @@ fn worst_case_names_the_corners() {
         let e = field(&w, name);
         assert!(num(&e, "min") <= num(&e, "max"), "{name}");
     }
+    // GBW held by default: bandwidth = GBW·(1/A + β) at each corner; holding the
+    // pole, pole·(1 + A·β) (closed forms, module doc of worstcase.rs).
+    let held = field(&w, "bandwidthHz");
+    let gbw = 1e5 * 5.0;
+    let beta_lo = 9.9e3 / (9.9e3 + 47.47e3);
+    assert!((num(&held, "min") / (gbw * (1.0 / 2e5 + beta_lo)) - 1.0).abs() < 1e-12);
+    let pole = api::worst_case(stage(&[("hold", s("pole"))])).unwrap();
+    let p = field(&pole, "bandwidthHz");
+    assert!((num(&p, "min") / (5.0 * (1.0 + 5e4 * beta_lo)) - 1.0).abs() < 1e-12);
 }
 
 #[wasm_bindgen_test]
@@ -134,34 +180,34 @@ fn monte_carlo_equals_the_native_bits() {
     // Source: the native build (tests/fixtures/network_montecarlo.rs); the native
     // test asserts the same bits, so native == wasm for the same seed.
     for (i, (c, want)) in INPUTS.iter().zip(&EXPECTED).enumerate() {
-        let r = api::monte_carlo(
-            c.stage,
-            c.r1,
-            c.r2,
-            c.tol_r1,
-            c.tol_r2,
-            c.a_min,
-            c.a_typ,
-            c.a_max,
-            c.ri,
-            c.ro,
-            c.pole_hz,
-            c.resistor_distribution,
-            c.k,
-            c.gain_distribution,
-            c.k_gain,
-            c.metric,
-            f64::from(c.trials),
-            c.seed as f64,
-            c.lower,
-            c.upper,
-            f64::from(c.bins),
-        )
+        let r = api::monte_carlo(obj(&[
+            ("stage", s(c.stage)),
+            ("r1", n(c.r1)),
+            ("r2", n(c.r2)),
+            ("tolR1", n(c.tol_r1)),
+            ("tolR2", n(c.tol_r2)),
+            ("aMin", n(c.a_min)),
+            ("aTyp", n(c.a_typ)),
+            ("aMax", n(c.a_max)),
+            ("ri", n(c.ri)),
+            ("ro", n(c.ro)),
+            ("poleHz", n(c.pole_hz)),
+            ("resistorDistribution", s(c.resistor_distribution)),
+            ("k", n(c.k)),
+            ("gainDistribution", s(c.gain_distribution)),
+            ("kGain", n(c.k_gain)),
+            ("metric", s(c.metric)),
+            ("trials", n(f64::from(c.trials))),
+            ("seed", n(c.seed as f64)),
+            ("lower", c.lower.map_or(JsValue::UNDEFINED, n)),
+            ("upper", c.upper.map_or(JsValue::UNDEFINED, n)),
+            ("bins", n(f64::from(c.bins))),
+        ]))
         .unwrap();
-        let s = field(&r, "stats");
-        assert_eq!(num(&s, "mean").to_bits(), want.mean, "case {i} mean");
-        assert_eq!(num(&s, "sd").to_bits(), want.sd, "case {i} sd");
-        let p = Array::from(&field(&s, "percentiles"));
+        let st = field(&r, "stats");
+        assert_eq!(num(&st, "mean").to_bits(), want.mean, "case {i} mean");
+        assert_eq!(num(&st, "sd").to_bits(), want.sd, "case {i} sd");
+        let p = Array::from(&field(&st, "percentiles"));
         assert_eq!(p.length(), 7);
         for j in 0..7u32 {
             assert_eq!(
@@ -170,13 +216,13 @@ fn monte_carlo_equals_the_native_bits() {
                 "case {i} percentile {j}"
             );
         }
-        let y = field(&s, "yieldFraction");
+        let y = field(&st, "yieldFraction");
         assert_eq!(
             y.as_f64().map(f64::to_bits),
             want.yield_fraction,
             "case {i} yield"
         );
-        let h = field(&s, "histogram");
+        let h = field(&st, "histogram");
         let counts = Array::from(&field(&h, "counts"));
         assert_eq!(counts.length(), c.bins);
         assert_eq!(
@@ -202,53 +248,61 @@ fn bad_input_throws_typed_errors() {
     );
     assert_thrown(checked(api::parse_value("4k7k")), "syntax", "text");
     assert_thrown(
-        api::best_pairs("divider", 1.2, "E24", 1e3, 1e5, None, None, "none", 5.0),
+        api::best_pairs(obj(&[
+            ("network", s("divider")),
+            ("target", n(1.2)),
+            ("series", s("E24")),
+            ("totalMin", n(1e3)),
+            ("totalMax", n(1e5)),
+        ])),
         "out_of_domain",
         "target",
     );
+    // The caller's names: totalMax, not total_max.
     assert_thrown(
-        api::worst_case(
-            "inverting",
-            10e3,
-            47e3,
-            0.0,
-            0.01,
-            5e4,
-            1e5,
-            2e5,
-            1e6,
-            75.0,
-            5.0,
-        ),
+        api::best_pairs(obj(&[
+            ("network", s("divider")),
+            ("target", n(0.5)),
+            ("series", s("E24")),
+            ("totalMin", n(1e3)),
+            ("totalMax", n(10.0)),
+        ])),
         "out_of_domain",
-        "tol_r1",
+        "totalMax",
+    );
+    assert_thrown(
+        api::worst_case(stage(&[("tolR1", n(0.0))])),
+        "out_of_domain",
+        "tolR1",
+    );
+    assert_thrown(
+        api::worst_case(stage(&[("hold", s("gain"))])),
+        "unknown_name",
+        "hold",
     );
     let mc = |trials: f64, seed: f64, k: f64| {
-        api::monte_carlo(
-            "inverting",
-            10e3,
-            47e3,
-            0.01,
-            0.01,
-            5e4,
-            1e5,
-            2e5,
-            1e6,
-            75.0,
-            5.0,
-            "normal",
-            k,
-            "uniform",
-            3.0,
-            "gain",
-            trials,
-            seed,
-            None,
-            None,
-            10.0,
-        )
+        api::monte_carlo(stage(&[
+            ("resistorDistribution", s("normal")),
+            ("k", n(k)),
+            ("trials", n(trials)),
+            ("seed", n(seed)),
+            ("bins", n(10.0)),
+        ]))
     };
     assert_thrown(mc(1_000_001.0, 1.0, 3.0), "too_large", "trials");
     assert_thrown(mc(1000.0, 0.5, 3.0), "out_of_domain", "seed");
     assert_thrown(mc(1000.0, 1.0, -3.0), "out_of_domain", "k");
+    assert_thrown(
+        api::monte_carlo(stage(&[("gainDistribution", s("normal"))])),
+        "unknown_name",
+        "gainDistribution",
+    );
+    assert_thrown(
+        api::monte_carlo(stage(&[
+            ("gainDistribution", s("log-normal")),
+            ("kGain", n(0.0)),
+        ])),
+        "out_of_domain",
+        "kGain",
+    );
 }

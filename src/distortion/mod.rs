@@ -4,6 +4,8 @@
 //!   coefficients b1, b2, b3 by series reversion;
 //! - [`leading_order`]: leading-order HD2 and HD3 at an input or output amplitude,
 //!   open and closed loop, and their ratio; coefficients from measured HD2/HD3;
+//! - [`frequency`]: the same at a signal frequency, with the loop gain of a
+//!   dominant-pole amplifier taken at the fundamental and at each harmonic;
 //! - [`newton`]: the loop y = A(x − β·y) solved point by point (guarded Newton);
 //! - [`harmonics`]: the output spectrum from those solutions by a short DFT;
 //! - [`validity`]: series against numeric, and where the series stops holding;
@@ -25,6 +27,7 @@
 //! assert!(c.hd2_difference < 2e-4 && c.hd3_difference < 2e-4);
 //! ```
 
+pub mod frequency;
 pub mod harmonics;
 pub mod leading_order;
 pub mod newton;
@@ -32,6 +35,7 @@ pub mod series;
 pub mod slew;
 pub mod validity;
 
+pub use frequency::{feedback_distortion_at, FrequencyDistortion, LoopGainAt};
 pub use harmonics::{
     closed_loop_spectrum, short_dft, Spectrum, DEFAULT_SAMPLES, HARMONICS, MAX_SAMPLES, MIN_SAMPLES,
 };

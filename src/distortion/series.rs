@@ -20,10 +20,7 @@
 
 use crate::check;
 use crate::error::{Error, Result};
-
-/// Relative size below which D = 1 + a1·β counts as zero: |D| ≤ ZERO_D·(1 + |a1·β|),
-/// a few ulps of the terms that formed it.
-const ZERO_D: f64 = 4.0 * f64::EPSILON;
+use crate::feedback::{real_feedback_sense, FeedbackSense};
 
 /// The coefficients of y = a1·x + a2·x² + a3·x³.
 ///
@@ -74,27 +71,25 @@ impl PowerSeries {
     }
 }
 
-/// The return difference D = 1 + a1·β of the linearised loop, checked to be a
-/// negative-feedback (or weak positive-feedback) loop, D > 0.
+/// The return difference D = 1 + a1·β of the linearised loop, checked by the
+/// shared classification ([`crate::feedback::FeedbackSense`]) to be a negative,
+/// neutral or positive feedback loop, D > 0.
 ///
 /// # Errors
 /// `beta` not finite; [`Error::Oscillation`] when D = 0; [`Error::OutOfDomain`]
-/// on `beta` when D < 0 (the static loop latches and the closed-loop transfer
-/// curve has no branch through the origin to expand about).
+/// on `beta` when the loop is latching, D < 0 (the static loop latches and the
+/// closed-loop transfer curve has no branch through the origin to expand about).
 pub fn return_difference(open: &PowerSeries, beta: f64) -> Result<f64> {
     let beta = check::finite("beta", beta)?;
     let t = check::result("loop_gain", open.a1 * beta)?;
-    let d = 1.0 + t;
-    if libm::fabs(d) <= ZERO_D * (1.0 + libm::fabs(t)) {
-        return Err(Error::Oscillation { param: "beta" });
-    }
-    if d < 0.0 {
-        return Err(Error::OutOfDomain {
+    match real_feedback_sense(t) {
+        FeedbackSense::Oscillation => Err(Error::Oscillation { param: "beta" }),
+        FeedbackSense::Latching => Err(Error::OutOfDomain {
             param: "beta",
-            requirement: "must give 1 + a1·beta > 0; with 1 + a1·beta < 0 the loop latches",
-        });
+            requirement: "must give 1 + a1·beta > 0: with 1 + a1·beta < 0 (loop gain below −1) the loop is latching, not negative feedback",
+        }),
+        _ => Ok(1.0 + t),
     }
-    Ok(d)
 }
 
 /// The closed-loop series b1, b2, b3 of `open` under feedback factor `beta`.

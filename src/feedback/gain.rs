@@ -16,34 +16,93 @@ use num_complex::Complex64;
 /// A few ulps of the terms that were added to form D.
 const ZERO_D: f64 = 4.0 * f64::EPSILON;
 
-/// What kind of feedback the return difference D says this is.
+/// The sense of a loop, from its return difference D = 1 + T (T = A·β): the one
+/// classification every area uses (feedback summary, feedback card, distortion).
+///
+/// For a real loop gain (A and β real: the midband or DC loop):
+/// - D > 1 (T > 0): negative feedback, the gain is reduced by D;
+/// - D = 1 (T = 0, no loop): neutral;
+/// - 0 < D < 1 (−1 < T < 0): positive feedback, the gain is raised by 1/D;
+/// - D = 0 (T = −1): the oscillation condition (Barkhausen);
+/// - D < 0 (T < −1): latching. The loop gain is below −1: a static loop has a
+///   closed-loop transfer curve that folds back (it latches to a rail), and a loop
+///   with any dynamics has a real right-half-plane pole, so it is unstable. A/D
+///   is then a number with no stage behind it, and |D| > 1 is never read as
+///   negative feedback.
+///
+/// For a complex loop gain (a phasor at one frequency) the sign of D is not
+/// defined; |D| says whether the loop reduces (|D| > 1, `Negative`) or raises
+/// (|D| < 1, `Positive`) the gain at that frequency. Whether such a loop is stable
+/// is a question for its poles or its margins ([`crate::freq`]), not for one
+/// phasor.
+///
+/// Source: the return-difference reading of Bode, *Network Analysis and Feedback
+/// Amplifier Design*, 1945, ch. 4 (from memory); the latching case is the sign
+/// rule of a static loop (common practice, no source).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[cfg_attr(feature = "serde", serde(rename_all = "lowercase"))]
 pub enum FeedbackSense {
-    /// |D| > 1: the feedback reduces the gain (the usual design).
+    /// D > 1 (real), or |D| > 1 (phasor): the feedback reduces the gain.
     Negative,
-    /// |D| = 1: the loop neither reduces nor raises the gain (β = 0, or T = −2).
+    /// D = 1 (real), or |D| = 1 (phasor): the loop neither reduces nor raises the gain.
     Neutral,
-    /// 0 < |D| < 1: the feedback raises the gain.
+    /// 0 < D < 1 (real), or |D| < 1 (phasor): the feedback raises the gain.
     Positive,
-    /// D = 0: the oscillation condition (Barkhausen), Aβ = −1.
+    /// D = 0: the oscillation condition (Barkhausen), A·β = −1.
     Oscillation,
+    /// D < 0, a real loop gain below −1: latching, or unstable with dynamics.
+    Latching,
 }
 
-/// Classify a return difference D against the loop gain T that formed it.
+impl FeedbackSense {
+    /// A short description for people, with the condition that gave it.
+    pub fn description(self) -> &'static str {
+        match self {
+            FeedbackSense::Negative => "negative feedback (D > 1)",
+            FeedbackSense::Neutral => "no net feedback (D = 1)",
+            FeedbackSense::Positive => "positive feedback (0 < D < 1): gain raised",
+            FeedbackSense::Oscillation => "oscillation condition (D = 0)",
+            FeedbackSense::Latching => {
+                "latching or unstable (D < 0: loop gain below −1); not negative feedback"
+            }
+        }
+    }
+}
+
+/// Classify a return difference D against the loop gain T that formed it (see
+/// [`FeedbackSense`]). D counts as 0 or 1 within a few ulps of the terms that
+/// formed it, |D| ≤ ZERO_D·(1 + |T|).
 pub fn feedback_sense(d: Complex64, t: Complex64) -> FeedbackSense {
-    let mag = d.norm();
     let scale = 1.0 + t.norm();
-    if mag <= ZERO_D * scale {
-        FeedbackSense::Oscillation
-    } else if (mag - 1.0).abs() <= ZERO_D * scale {
+    if d.norm() <= ZERO_D * scale {
+        return FeedbackSense::Oscillation;
+    }
+    let real = d.im == 0.0 && t.im == 0.0;
+    // The size that decides: D itself for a real loop, |D| for a phasor.
+    let size = if real { d.re } else { d.norm() };
+    if real && size < 0.0 {
+        FeedbackSense::Latching
+    } else if (size - 1.0).abs() <= ZERO_D * scale {
         FeedbackSense::Neutral
-    } else if mag > 1.0 {
+    } else if size > 1.0 {
         FeedbackSense::Negative
     } else {
         FeedbackSense::Positive
     }
+}
+
+/// [`feedback_sense`] of a real loop gain T = A·β.
+///
+/// # Example
+/// ```
+/// use loopwright::feedback::{real_feedback_sense, FeedbackSense};
+/// assert_eq!(real_feedback_sense(10.0), FeedbackSense::Negative);
+/// // A = 100k, β = −1e-4: T = −10, D = −9: latching, not negative feedback.
+/// assert_eq!(real_feedback_sense(1e5 * -1e-4), FeedbackSense::Latching);
+/// ```
+pub fn real_feedback_sense(t: f64) -> FeedbackSense {
+    feedback_sense(Complex64::new(1.0 + t, 0.0), Complex64::new(t, 0.0))
 }
 
 fn inputs(a: f64, beta: f64) -> Result<(f64, f64)> {
@@ -240,8 +299,15 @@ mod tests {
         assert_eq!(c(0.0), FeedbackSense::Neutral);
         assert_eq!(c(-0.5), FeedbackSense::Positive);
         assert_eq!(c(-1.0), FeedbackSense::Oscillation);
-        assert_eq!(c(-2.0), FeedbackSense::Neutral);
-        assert_eq!(c(-3.0), FeedbackSense::Negative);
+        // D < 0 is a loop gain below −1: latching, never negative feedback (issue
+        // 15, item 8; before, |D| > 1 read T = −3 as negative feedback).
+        assert_eq!(c(-2.0), FeedbackSense::Latching);
+        assert_eq!(c(-3.0), FeedbackSense::Latching);
+        assert_eq!(c(-10.0), FeedbackSense::Latching);
+        // A phasor is judged by |D|: T = −2 + 0.1j reduces the gain a little.
+        let p = |t: Complex64| feedback_sense(t + 1.0, t);
+        assert_eq!(p(Complex64::new(-3.0, 0.1)), FeedbackSense::Negative);
+        assert_eq!(p(Complex64::new(-0.5, 0.1)), FeedbackSense::Positive);
     }
 
     #[test]

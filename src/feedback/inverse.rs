@@ -7,7 +7,7 @@
 //! - a required amount of feedback D ≥ D_req caps the closed-loop gain at
 //!   Af = A / D_req, reached with β = (D_req − 1)/A.
 //!
-//! Closed forms checked against sympy by `tests/reference/inverse_design_sympy.py`.
+//! Closed forms checked against sympy by `tests/reference/feedback_inverse_sympy.py`.
 
 use crate::check;
 use crate::error::{Error, Result};

@@ -16,7 +16,7 @@ pub mod topology;
 
 pub use gain::{
     closed_loop_gain, feedback_amount, feedback_amount_db, feedback_sense, loop_gain, loop_phasors,
-    FeedbackSense, LoopPhasors,
+    real_feedback_sense, FeedbackSense, LoopPhasors,
 };
 pub use impedance::{impedances_with_feedback, resistances_with_feedback, FeedbackImpedances};
 pub use inverse::{beta_for_gain, max_closed_loop_gain, min_open_loop_gain, GainCeiling};

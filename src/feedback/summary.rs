@@ -30,7 +30,9 @@ pub struct FeedbackSummary {
     pub ideal_gain: Option<f64>,
     /// Relative error of Af against 1/β, Af·β − 1 = −1/D; `None` when β = 0.
     pub gain_error: Option<f64>,
-    /// Kind of feedback by |D|.
+    /// The loop's sense by the shared classification ([`FeedbackSense`]): with
+    /// `Latching` (D < 0) the closed-loop figures above are formula values of a
+    /// stage that latches or is unstable, not of a working amplifier.
     pub sense: FeedbackSense,
 }
 
@@ -84,6 +86,15 @@ mod tests {
         let s = summarize(Topology::SeriesShunt, 1e4, 0.1).unwrap();
         assert!((s.gain_error.unwrap() + 1.0 / s.feedback_amount).abs() < 1e-15);
         assert!((s.sensitivity - 1.0 / s.feedback_amount).abs() < 1e-15);
+    }
+
+    #[test]
+    fn loop_gain_below_minus_one_is_latching() {
+        // Issue 15, item 8: A = 100k, β = −1e-4 gives T = −10, D = −9. Before,
+        // the sense was "negative" (|D| > 1); D < 0 is a latching loop.
+        let s = summarize(Topology::SeriesShunt, 1e5, -1e-4).unwrap();
+        assert_eq!((s.loop_gain, s.feedback_amount), (-10.0, -9.0));
+        assert_eq!(s.sense, FeedbackSense::Latching);
     }
 
     #[test]

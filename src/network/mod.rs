@@ -21,14 +21,15 @@ pub use eseries::{
     neighbours, series_values, standard_value, Neighbours, Rounding, Series, SERIES_NAMES,
 };
 pub use montecarlo::{
-    monte_carlo, monte_carlo_samples, sample_stats, seed_from_number, Distribution, Histogram,
-    MonteCarloResult, MonteCarloSpec, Percentile, SampleStats, MAX_BINS, MAX_TRIALS, PERCENTILES,
+    monte_carlo, monte_carlo_samples, sample_stats, seed_from_number, Distribution,
+    GainDistribution, Histogram, MonteCarloResult, MonteCarloSpec, Percentile, SampleStats,
+    GAIN_DISTRIBUTION_NAMES, MAX_BINS, MAX_TRIALS, PERCENTILES,
 };
 pub use pairs::{
     best_pairs, single_resistor, Combine, Joint, Leg, Network, PairCandidate, PairResult, PairSpec,
     SingleCandidate, MAX_CANDIDATES,
 };
 pub use worstcase::{
-    stage_values, worst_case, Corner, End, Extremes, Metric, Stage, StageSpec, StageValues,
-    WorstCase, CORNERS,
+    stage_values, worst_case, Corner, End, Extremes, Hold, Metric, Stage, StageSpec, StageValues,
+    WorstCase, CORNERS, HOLD_NAMES,
 };

@@ -3,13 +3,36 @@
 //!
 //! Each trial draws R1, R2 and A (in that order) and evaluates one quantity of
 //! the stage (formulas in [`super::worstcase`]):
-//! - uniform: R = R_nom·(1 + tol·u), u uniform on [−1, 1); A uniform on
-//!   [a_min, a_max);
+//! Resistors ([`Distribution`]):
+//! - uniform: R = R_nom·(1 + tol·u), u uniform on [−1, 1);
 //! - normal: R = R_nom·(1 + tol·z/k), z standard normal, so the tolerance is k
-//!   standard deviations (k = 3 is customary); A normal with mean
-//!   (a_min + a_max)/2 and σ = (a_max − a_min)/(2k). A draw that would make a
-//!   part zero or negative is drawn again (a truncation beyond k·(1/tol)
-//!   standard deviations, never reached for tolerances below 10 % and k ≥ 3).
+//!   standard deviations (k = 3 is customary). A draw that would make a part
+//!   zero or negative is drawn again (a truncation beyond k·(1/tol) standard
+//!   deviations, never reached for tolerances below 10 % and k ≥ 3).
+//!
+//! Open-loop gain ([`GainDistribution`]), from the data sheet's a_min, a_typ and
+//! a_max. Gains spread by ratios (data sheets quote them in dB), so the
+//! distributions live on x = ln A (l = ln a_min, m = ln a_typ, h = ln a_max):
+//! - log-normal (the default): a split normal on ln A with its median at ln a_typ,
+//!   x = m + σ·z with z standard normal truncated to |z| ≤ k (drawn again
+//!   outside), σ = (m − l)/k below the median and (h − m)/k above it. Typical is
+//!   read as the centre of production (half the parts below, half above) and min
+//!   and max as the screened limits, k standard deviations out on their own side
+//!   (k = 3 customary); an asymmetric data sheet (typical 2e4 between 1e4 and
+//!   1e6) keeps its asymmetry. It honours all three figures: never outside
+//!   min … max (which the worst case also treats as hard limits), median at
+//!   typical. Why the default: a data sheet's typical is a central value of
+//!   production, not a most-likely value or a midpoint (common practice, no
+//!   source);
+//! - log-triangular: ln A triangular from l to h with its mode at m, drawn by
+//!   inverting its distribution function: with u uniform on [0, 1),
+//!   x = l + √(u·(h − l)·(m − l)) for u·(h − l) < m − l, else
+//!   x = h − √((1 − u)·(h − l)·(h − m)). The three-point (least, most likely,
+//!   largest) estimate; its median lies toward the longer side;
+//! - log-uniform: ln A uniform from l to h (a_typ unused), for a data sheet
+//!   whose typical is not to be trusted;
+//! - uniform: A uniform on [a_min, a_max) (a_typ unused; the 0.1 behaviour,
+//!   whose mean follows (a_min + a_max)/2, kept for comparison).
 //!
 //! Generator: xoshiro256++ (D. Blackman & S. Vigna, "Scrambled linear
 //! pseudorandom number generators", ACM TOMS 47(4), 2021, from memory) from the
@@ -86,6 +109,71 @@ impl Distribution {
     }
 }
 
+/// How the open-loop gain is spread between a_min and a_max (module doc).
+#[derive(Debug, Clone, Copy, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[cfg_attr(feature = "serde", serde(rename_all = "kebab-case", tag = "kind"))]
+pub enum GainDistribution {
+    /// ln A a split normal with its median at ln a_typ and a_min, a_max k standard
+    /// deviations out on their sides, truncated there (the default, k = 3).
+    LogNormal {
+        /// Standard deviations from typical to each limit, > 0 (3 customary).
+        k: f64,
+    },
+    /// ln A triangular with its mode at ln a_typ.
+    LogTriangular,
+    /// ln A uniform between ln a_min and ln a_max.
+    LogUniform,
+    /// A uniform between a_min and a_max.
+    Uniform,
+}
+
+/// The accepted gain distribution names.
+pub const GAIN_DISTRIBUTION_NAMES: &str = "log-normal, log-triangular, log-uniform, uniform";
+
+impl Default for GainDistribution {
+    /// The log-normal with k = 3 (see the module doc for why).
+    fn default() -> Self {
+        GainDistribution::LogNormal { k: 3.0 }
+    }
+}
+
+impl GainDistribution {
+    /// Parse a name of [`GAIN_DISTRIBUTION_NAMES`] (the log-normal with the given
+    /// k, whose parameter name is `k_param` in errors).
+    ///
+    /// # Errors
+    /// [`Error::UnknownName`] on `gain_distribution`; `k` not finite or ≤ 0 for
+    /// log-normal.
+    ///
+    /// # Example
+    /// ```
+    /// use loopwright::network::GainDistribution;
+    /// assert_eq!(GainDistribution::from_name("log-triangular", 3.0, "k_gain").unwrap(), GainDistribution::LogTriangular);
+    /// assert_eq!(GainDistribution::from_name("normal", 3.0, "k_gain").unwrap_err().param(), "gain_distribution");
+    /// ```
+    pub fn from_name(name: &str, k: f64, k_param: &'static str) -> Result<GainDistribution> {
+        let t = name.trim();
+        let is = |n: &str| t.eq_ignore_ascii_case(n);
+        if is("log-triangular") {
+            Ok(GainDistribution::LogTriangular)
+        } else if is("log-uniform") {
+            Ok(GainDistribution::LogUniform)
+        } else if is("log-normal") {
+            Ok(GainDistribution::LogNormal {
+                k: check::positive(k_param, k)?,
+            })
+        } else if is("uniform") {
+            Ok(GainDistribution::Uniform)
+        } else {
+            Err(Error::UnknownName {
+                param: "gain_distribution",
+                expected: GAIN_DISTRIBUTION_NAMES,
+            })
+        }
+    }
+}
+
 /// A Monte Carlo run.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct MonteCarloSpec {
@@ -94,7 +182,7 @@ pub struct MonteCarloSpec {
     /// Spread of R1 and R2.
     pub resistors: Distribution,
     /// Spread of the open-loop gain.
-    pub open_loop_gain: Distribution,
+    pub open_loop_gain: GainDistribution,
     /// Which quantity to collect.
     pub metric: Metric,
     /// Trials, 2 … [`MAX_TRIALS`].
@@ -270,17 +358,33 @@ impl Draws {
         }
     }
 
-    /// A positive open-loop gain over [lo, hi].
-    fn gain(&mut self, dist: Distribution, lo: f64, hi: f64) -> f64 {
-        loop {
-            let x = match dist {
-                Distribution::Uniform => lo + (hi - lo) * self.unit(),
-                Distribution::Normal { k } => 0.5 * (lo + hi) + 0.5 * (hi - lo) * self.normal() / k,
-            };
-            if x > 0.0 {
-                return x;
+    /// An open-loop gain from a_min (`lo`), a_typ (`typ`) and a_max (`hi`),
+    /// 0 < lo ≤ typ ≤ hi, by `dist` (module doc). Always within [lo, hi].
+    fn gain(&mut self, dist: GainDistribution, lo: f64, typ: f64, hi: f64) -> f64 {
+        let (l, m, h) = (libm::log(lo), libm::log(typ), libm::log(hi));
+        let x = match dist {
+            GainDistribution::Uniform => return lo + (hi - lo) * self.unit(),
+            GainDistribution::LogUniform => l + (h - l) * self.unit(),
+            GainDistribution::LogTriangular => {
+                let u = self.unit();
+                if h <= l {
+                    l
+                } else if u * (h - l) < m - l {
+                    l + crate::float::sqrt(u * (h - l) * (m - l))
+                } else {
+                    h - crate::float::sqrt((1.0 - u) * (h - l) * (h - m))
+                }
             }
-        }
+            GainDistribution::LogNormal { k } => loop {
+                let z = self.normal();
+                if libm::fabs(z) <= k {
+                    let sigma = if z < 0.0 { (m - l) / k } else { (h - m) / k };
+                    break m + sigma * z;
+                }
+            },
+        };
+        // exp(ln lo) may round a hair outside the range: keep the draw inside.
+        libm::exp(x).clamp(lo, hi)
     }
 }
 
@@ -305,6 +409,15 @@ fn validate_distribution(param: &'static str, d: Distribution) -> Result<Distrib
     match d {
         Distribution::Uniform => Ok(d),
         Distribution::Normal { k } => check::positive(param, k).map(|k| Distribution::Normal { k }),
+    }
+}
+
+fn validate_gain_distribution(d: GainDistribution) -> Result<GainDistribution> {
+    match d {
+        GainDistribution::LogNormal { k } => {
+            check::positive("k_gain", k).map(|k| GainDistribution::LogNormal { k })
+        }
+        other => Ok(other),
     }
 }
 
@@ -361,14 +474,14 @@ fn validate_bins(bins: usize) -> Result<usize> {
 pub fn monte_carlo_samples(spec: &MonteCarloSpec) -> Result<Vec<f64>> {
     let stage = spec.stage.validated()?;
     let resistors = validate_distribution("k", spec.resistors)?;
-    let gain_dist = validate_distribution("k_gain", spec.open_loop_gain)?;
+    let gain_dist = validate_gain_distribution(spec.open_loop_gain)?;
     let trials = validate_trials(spec.trials)?;
     let mut draws = Draws::new(spec.seed);
     let mut out = Vec::with_capacity(trials);
     for _ in 0..trials {
         let r1 = draws.part(resistors, stage.r1, stage.tol_r1);
         let r2 = draws.part(resistors, stage.r2, stage.tol_r2);
-        let a = draws.gain(gain_dist, stage.a_min, stage.a_max);
+        let a = draws.gain(gain_dist, stage.a_min, stage.a_typ, stage.a_max);
         let v = if spec.metric == Metric::Gain {
             gain_of_positive_parts(stage.stage, r1, r2, a)?
         } else {
@@ -386,17 +499,20 @@ pub fn monte_carlo_samples(spec: &MonteCarloSpec) -> Result<Vec<f64>> {
 ///
 /// # Errors
 /// The stage fields as in [`super::worst_case`] (tolerances ≤ 0 rejected);
-/// `k` / `k_gain` (normal k of the resistors / of the gain) not finite or ≤ 0;
+/// `k` / `k_gain` (normal k of the resistors / log-normal k of the gain) not
+/// finite or ≤ 0;
 /// `trials` < 2 or above [`MAX_TRIALS`] ([`Error::TooLarge`]); `lower`/`upper`
 /// not finite or `upper` < `lower`; `bins` 0 or above [`MAX_BINS`].
 ///
 /// # Example
 /// ```
-/// use loopwright::network::{monte_carlo, Distribution, Metric, MonteCarloSpec, Stage, StageSpec};
+/// use loopwright::network::{monte_carlo, Distribution, GainDistribution, Hold, Metric,
+///     MonteCarloSpec, Stage, StageSpec};
 /// let stage = StageSpec { stage: Stage::NonInverting, r1: 1e3, r2: 9e3, tol_r1: 0.01, tol_r2: 0.01,
-///     a_min: 1e5, a_typ: 2e5, a_max: 1e6, ri: 1e6, ro: 100.0, pole_hz: 10.0 };
+///     a_min: 1e5, a_typ: 2e5, a_max: 1e6, ri: 1e6, ro: 100.0, pole_hz: 10.0,
+///     hold: Hold::GainBandwidth };
 /// let mut spec = MonteCarloSpec { stage, resistors: Distribution::Normal { k: 3.0 },
-///     open_loop_gain: Distribution::Uniform, metric: Metric::Gain, trials: 10_000, seed: 7,
+///     open_loop_gain: GainDistribution::LogTriangular, metric: Metric::Gain, trials: 10_000, seed: 7,
 ///     lower: Some(9.9), upper: Some(10.1), bins: 40 };
 /// let r = monte_carlo(&spec).unwrap();
 /// assert!((r.stats.mean - 10.0).abs() < 0.01 && r.stats.yield_fraction.unwrap() > 0.9);
@@ -590,9 +706,10 @@ mod tests {
                 ri: 1e6,
                 ro: 75.0,
                 pole_hz: 5.0,
+                hold: crate::network::Hold::GainBandwidth,
             },
             resistors: Distribution::Uniform,
-            open_loop_gain: Distribution::Uniform,
+            open_loop_gain: GainDistribution::Uniform,
             metric: Metric::Gain,
             trials: 20_000,
             seed: 1,
@@ -657,7 +774,7 @@ mod tests {
         s.resistors = Distribution::Normal { k: 0.0 };
         assert_eq!(monte_carlo(&s).unwrap_err().param(), "k");
         let mut s = spec();
-        s.open_loop_gain = Distribution::Normal { k: f64::NAN };
+        s.open_loop_gain = GainDistribution::LogNormal { k: f64::NAN };
         assert_eq!(monte_carlo(&s).unwrap_err().param(), "k_gain");
         let mut s = spec();
         s.stage.tol_r1 = 0.0;

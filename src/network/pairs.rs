@@ -18,10 +18,16 @@
 //! outside it every allowed R2 gives a ratio beyond q·s or q/s. The window is
 //! scanned first; the rest (at most 30 decades) only when the window's `count`-th
 //! candidate is not already better than that bound, so the ranking is exact.
-//! Two-resistor legs are tried for R1 in the window. A leg made of
-//! two resistors (series or parallel) is searched the same way: one part runs over
-//! its half-range ([T/2, T] for series, (T, 2T] for parallel) and the other is
-//! rounded down and up to complete T.
+//! When two-resistor legs are asked for, they are searched for every R1 of the
+//! window and every R1 whose exact R2 = q·R1 fits the total range, whatever the
+//! single pairs achieved, and ranked with them. A leg made of two resistors
+//! (series or parallel) is searched the same way: one part runs over its
+//! half-range ([T/2, T] for series, (T, 2T] for parallel) and the other is rounded
+//! down and up to complete T.
+//!
+//! Ranking: by |error| (then fewer parts, smaller total, smaller R1); with a
+//! maximum error, the candidates within it come first, fewest parts first, so a
+//! single pair that is good enough is not buried under three-resistor ones.
 //!
 //! The common practice this automates (choosing the nearest standard pair and
 //! trimming with a second resistor) is described in, e.g., Horowitz & Hill,
@@ -229,9 +235,11 @@ pub struct PairSpec {
     pub total_max: f64,
     /// R1 when it is already chosen (need not be a standard value), Ω.
     pub fixed_r1: Option<f64>,
-    /// Required |error| (fraction); when single values miss it, combinations are tried.
+    /// Required |error| (fraction): the candidates that meet it rank first, fewest
+    /// parts first among them, and `meets_max_error` reports on the first.
     pub max_error: Option<f64>,
-    /// Which combinations the R2 leg may use.
+    /// Which two-resistor R2 legs are searched as well (always, when not
+    /// [`Combine::None`]); they are ranked together with the single resistors.
     pub combine: Combine,
     /// How many candidates to return, 1 … [`MAX_CANDIDATES`].
     pub count: usize,
@@ -271,8 +279,9 @@ pub struct PairResult {
     pub target: f64,
     /// The exact R2/R1 the target needs.
     pub ideal_ratio: f64,
-    /// Candidates, smallest |error| first (one per R1, the best R2 for it).
-    /// Empty only when no pair at all fits the total-resistance range.
+    /// Candidates ranked as [`best_pairs`] says: per R1 the best single R2 and,
+    /// when asked for, the best two-resistor R2 leg. Empty only when no pair at
+    /// all fits the total-resistance range.
     pub candidates: Vec<PairCandidate>,
     /// True when the best candidate meets `max_error` (always true without one,
     /// unless there is no candidate). False: the first candidate is the best miss.
@@ -284,6 +293,68 @@ fn by_error(a: &PairCandidate, b: &PairCandidate) -> Ordering {
         .total_cmp(&libm::fabs(b.error))
         .then(a.total.total_cmp(&b.total))
         .then(a.r1.total_cmp(&b.r1))
+}
+
+/// Parts in a candidate: R1 plus one or two for R2.
+fn parts(c: &PairCandidate) -> usize {
+    if c.r2.joint == Joint::Single {
+        2
+    } else {
+        3
+    }
+}
+
+/// The ranking of the result: without `max_error`, smallest |error| first (then
+/// fewer parts, smaller total, smaller R1); with it, the candidates that meet it
+/// first, fewest parts first among them (a two-resistor pair that meets the
+/// requirement beats a three-resistor one that beats it further), then by
+/// [`by_error`]; the misses after them by [`by_error`].
+fn ranked(a: &PairCandidate, b: &PairCandidate, max_error: Option<f64>) -> Ordering {
+    match max_error {
+        None => libm::fabs(a.error)
+            .total_cmp(&libm::fabs(b.error))
+            .then(parts(a).cmp(&parts(b)))
+            .then(a.total.total_cmp(&b.total))
+            .then(a.r1.total_cmp(&b.r1)),
+        Some(m) => {
+            let meets = |c: &PairCandidate| libm::fabs(c.error) <= m;
+            meets(b)
+                .cmp(&meets(a))
+                .then_with(|| {
+                    if meets(a) {
+                        parts(a).cmp(&parts(b))
+                    } else {
+                        Ordering::Equal
+                    }
+                })
+                .then_with(|| ranked(a, b, None))
+        }
+    }
+}
+
+/// The R1 values whose R2 leg is searched as two resistors: the fixed R1; else
+/// the window of the single search and every standard R1 for which the exact
+/// ratio fits the total range, R1·(1 + q) in [total_min, total_max] (a two-part
+/// leg can land near q·R1 for any of them).
+fn combination_r1s(
+    series: Series,
+    window: &[f64],
+    fixed_r1: Option<f64>,
+    q: f64,
+    total_min: f64,
+    total_max: f64,
+) -> Vec<f64> {
+    if let Some(r1) = fixed_r1 {
+        return alloc::vec![r1];
+    }
+    let clamp = |x: f64| x.clamp(MIN_VALUE, MAX_VALUE);
+    let mut first = series.ceil_rank(clamp(total_min / (1.0 + q)));
+    let mut last = series.floor_rank(clamp(total_max / (1.0 + q)));
+    if let (Some(&lo), Some(&hi)) = (window.first(), window.last()) {
+        first = first.min(series.ceil_rank(lo));
+        last = last.max(series.floor_rank(hi));
+    }
+    (first..=last).map(|n| series.value_at(n)).collect()
 }
 
 fn validate_count(count: usize) -> Result<usize> {
@@ -512,13 +583,8 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
     };
     crate::sort::sort_by(&mut candidates, by_error);
 
-    let good_enough = |c: Option<&PairCandidate>| match (c, max_error) {
-        (None, _) => false,
-        (Some(_), None) => true,
-        (Some(c), Some(m)) => libm::fabs(c.error) <= m,
-    };
-    if spec.combine != Combine::None && !good_enough(candidates.first()) {
-        for &r1 in &r1_window {
+    if spec.combine != Combine::None {
+        for r1 in combination_r1s(series, &r1_window, fixed_r1, q, total_min, total_max) {
             let Some((a, b)) = r2_interval(r1, total_min, total_max) else {
                 continue;
             };
@@ -527,10 +593,14 @@ pub fn best_pairs(spec: &PairSpec) -> Result<PairResult> {
                 candidates.push(make(r1, leg));
             }
         }
-        crate::sort::sort_by(&mut candidates, by_error);
     }
+    crate::sort::sort_by(&mut candidates, |a, b| ranked(a, b, max_error));
     candidates.truncate(count);
-    let meets_max_error = good_enough(candidates.first());
+    let meets_max_error = match (candidates.first(), max_error) {
+        (None, _) => false,
+        (Some(_), None) => true,
+        (Some(c), Some(m)) => libm::fabs(c.error) <= m,
+    };
     Ok(PairResult {
         network,
         target,

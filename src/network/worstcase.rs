@@ -9,7 +9,21 @@
 //! - inverting: Af = −(R2/R1)·A·β/D = −A·R2/(R1 + R2 + A·R1),
 //!   Zin = R1 + R2/(1 + A) (the summing node is a virtual ground of
 //!   impedance R2/(1 + A); r_i taken as infinite there), Zout = r_o/D;
-//! - both: closed-loop bandwidth f_p·D (single-pole bandwidth extension).
+//! - both: closed-loop bandwidth f_p(A)·D (single-pole bandwidth extension),
+//!   where f_p(A) is the open-loop dominant pole of that amplifier.
+//!
+//! How the pole moves with A ([`Hold`]): `pole_hz` is the dominant pole of the
+//! typical amplifier (A = a_typ). By default ([`Hold::GainBandwidth`]) the spread of
+//! A keeps the gain–bandwidth product GBW = a_typ·f_p fixed, so an amplifier with
+//! gain A has its pole at GBW/A and the closed-loop bandwidth is
+//! GBW·(1/A + β) ≈ GBW·β. That is how an internally compensated op-amp spreads: its
+//! unity-gain frequency is set by the input-stage transconductance and the
+//! compensation capacitor (f_T = g_m/(2π·C_c)), while the DC gain also carries the
+//! output resistance of the gain stage, which varies much more from part to part
+//! (Gray, Hurst, Lewis & Meyer, *Analysis and Design of Analog Integrated
+//! Circuits*, 5th ed., ch. 9, from memory). [`Hold::Pole`] keeps f_p fixed instead
+//! (bandwidth f_p·(1 + A·β), which swings with A): for an amplifier whose pole is
+//! set by an external network that does not track its gain.
 //!
 //! Each quantity is monotonic in R1, in R2 and in A separately (the derivatives
 //! keep their sign over positive values), so its extremes over the tolerance box
@@ -63,6 +77,45 @@ impl FromStr for Stage {
     }
 }
 
+/// What the open-loop gain spread holds fixed (see the module doc).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[cfg_attr(feature = "serde", serde(rename_all = "kebab-case"))]
+pub enum Hold {
+    /// The gain–bandwidth product a_typ·f_p: the pole moves to GBW/A (default).
+    #[default]
+    GainBandwidth,
+    /// The dominant pole f_p, whatever A is.
+    Pole,
+}
+
+/// The accepted names of [`Hold`].
+pub const HOLD_NAMES: &str = "gbw, pole";
+
+impl FromStr for Hold {
+    type Err = Error;
+
+    /// `gbw` (or `gain-bandwidth`) or `pole`.
+    ///
+    /// # Errors
+    /// [`Error::UnknownName`] with `param = "hold"`.
+    fn from_str(s: &str) -> Result<Self> {
+        let t = s.trim();
+        [
+            ("gbw", Hold::GainBandwidth),
+            ("gain-bandwidth", Hold::GainBandwidth),
+            ("pole", Hold::Pole),
+        ]
+        .iter()
+        .find(|(n, _)| n.eq_ignore_ascii_case(t))
+        .map(|&(_, v)| v)
+        .ok_or(Error::UnknownName {
+            param: "hold",
+            expected: HOLD_NAMES,
+        })
+    }
+}
+
 /// A stage with its part tolerances.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct StageSpec {
@@ -86,8 +139,11 @@ pub struct StageSpec {
     pub ri: f64,
     /// Amplifier output resistance (open loop), Ω, ≥ 0.
     pub ro: f64,
-    /// Open-loop dominant pole, Hz, > 0.
+    /// Open-loop dominant pole of the typical amplifier (A = a_typ), Hz, > 0.
     pub pole_hz: f64,
+    /// What the spread of A holds fixed: the gain–bandwidth product (default) or
+    /// the pole.
+    pub hold: Hold,
 }
 
 impl StageSpec {
@@ -221,7 +277,11 @@ pub(crate) fn stage_metric(
             Ok(resistances_with_feedback(Topology::SeriesShunt, spec.ri, spec.ro, a, beta)?.1)
         }
         Metric::Bandwidth => {
-            check::result("bandwidth_hz", spec.pole_hz * feedback_amount(a, beta)?)
+            let pole = match spec.hold {
+                Hold::GainBandwidth => spec.pole_hz * (spec.a_typ / a),
+                Hold::Pole => spec.pole_hz,
+            };
+            check::result("bandwidth_hz", pole * feedback_amount(a, beta)?)
         }
     }
 }
@@ -233,9 +293,9 @@ pub(crate) fn stage_metric(
 ///
 /// # Example
 /// ```
-/// use loopwright::network::{stage_values, Stage, StageSpec};
+/// use loopwright::network::{stage_values, Hold, Stage, StageSpec};
 /// let s = StageSpec { stage: Stage::NonInverting, r1: 1e3, r2: 9e3, tol_r1: 0.01, tol_r2: 0.01,
-///     a_min: 1e5, a_typ: 2e5, a_max: 1e6, ri: 1e6, ro: 100.0, pole_hz: 10.0 };
+///     a_min: 1e5, a_typ: 2e5, a_max: 1e6, ri: 1e6, ro: 100.0, pole_hz: 10.0, hold: Hold::GainBandwidth };
 /// let v = stage_values(&s, 1e3, 9e3, 1e5).unwrap();
 /// assert!((v.gain - 1e5 / (1.0 + 1e4)).abs() < 1e-12);
 /// assert_eq!(stage_values(&s, 0.0, 9e3, 1e5).unwrap_err().param(), "r1");
@@ -391,10 +451,10 @@ impl Corner {
 ///
 /// # Example
 /// ```
-/// use loopwright::network::{worst_case, End, Stage, StageSpec};
+/// use loopwright::network::{worst_case, End, Hold, Stage, StageSpec};
 /// // Gain 10 from 1 k / 9 k at 1 %, A from 10⁵ to 10⁶.
 /// let mut s = StageSpec { stage: Stage::NonInverting, r1: 1e3, r2: 9e3, tol_r1: 0.01, tol_r2: 0.01,
-///     a_min: 1e5, a_typ: 2e5, a_max: 1e6, ri: 1e6, ro: 100.0, pole_hz: 10.0 };
+///     a_min: 1e5, a_typ: 2e5, a_max: 1e6, ri: 1e6, ro: 100.0, pole_hz: 10.0, hold: Hold::GainBandwidth };
 /// let w = worst_case(&s).unwrap();
 /// // Highest gain with R1 low, R2 high and A high.
 /// assert_eq!((w.gain.max_corner.r1, w.gain.max_corner.r2), (End::Low, End::High));
@@ -458,14 +518,22 @@ mod tests {
             ri: 1e6,
             ro: 50.0,
             pole_hz: 20.0,
+            hold: Hold::GainBandwidth,
         }
     }
 
     #[test]
     fn no_interior_point_beats_the_corners() {
         // Dense grid over the box (11³ points): every value within the corner extremes.
-        for stage in [Stage::NonInverting, Stage::Inverting] {
-            let s = spec(stage);
+        for (stage, hold) in [
+            (Stage::NonInverting, Hold::GainBandwidth),
+            (Stage::Inverting, Hold::GainBandwidth),
+            (Stage::NonInverting, Hold::Pole),
+        ] {
+            let s = StageSpec {
+                hold,
+                ..spec(stage)
+            };
             let w = worst_case(&s).unwrap();
             for i in 0..=10 {
                 for j in 0..=10 {

@@ -165,7 +165,8 @@ pub struct IntegratedNoise {
     pub loop_crossover_hz: f64,
     /// Closed-loop −3 dB bandwidth, Hz.
     pub bandwidth_hz: f64,
-    /// ∫₀^∞ |H|² df by the same quadrature, Hz.
+    /// ∫ |H|² df over the band integrated, f_low … f_high (∞ allowed), by the
+    /// same quadrature, Hz: the bandwidth a white density is integrated over.
     pub noise_bandwidth_hz: f64,
     /// π/2·f_c, the single-pole noise bandwidth, Hz.
     pub single_pole_noise_bandwidth_hz: f64,
@@ -329,8 +330,8 @@ pub fn integrated_output_noise(
     let (power, err) = integrate_band(&g, f_low, f_high, &breaks[..nb])?;
     let (nbw, _) = integrate_band(
         &|f: f64| response.magnitude_squared(f),
-        0.0,
-        f64::INFINITY,
+        f_low,
+        f_high,
         &breaks[..shape_breaks],
     )?;
     let output_rms = check::result("output_rms", crate::float::sqrt(power))?;
@@ -411,10 +412,15 @@ mod tests {
         let s0 = output_psd(&s, &amp, 1.0);
         let expected = (s0 * 2e5 * (0.5f64).atan()).sqrt();
         assert!((n.output_rms / expected - 1.0).abs() < 1e-9);
+        // The noise bandwidth is that of the band integrated: fc·atan(B/fc), not
+        // π/2·fc (issue 15, item 10: it was π/2·fc whatever f_high was).
+        assert!((n.noise_bandwidth_hz / (2e5 * (0.5f64).atan()) - 1.0).abs() < 1e-9);
         // Band from 1 kHz: subtract the arctangent at 1 kHz.
         let n = integrated_output_noise(&s, &amp, &h, 1e3, 1e5).unwrap();
         let expected = (s0 * 2e5 * ((0.5f64).atan() - (1e3f64 / 2e5).atan())).sqrt();
         assert!((n.output_rms / expected - 1.0).abs() < 1e-9);
+        let nbw = 2e5 * ((0.5f64).atan() - (1e3f64 / 2e5).atan());
+        assert!((n.noise_bandwidth_hz / nbw - 1.0).abs() < 1e-9);
     }
 
     #[test]

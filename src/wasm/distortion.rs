@@ -1,10 +1,14 @@
 //! JS bindings for distortion under feedback and slew-rate limits.
 //!
-//! A power-series amplifier is passed as its three coefficients `a1, a2, a3`;
-//! amplitudes are peak values; `amplitudeAt` is `"input"` or `"output"`.
+//! A power-series amplifier is given by its three coefficients `a1, a2, a3`;
+//! amplitudes are peak values; `amplitudeAt` is `"input"` or `"output"`. The
+//! exports with more than four inputs take one options object (camelCase fields,
+//! defaults in the `.d.ts`).
 
+use super::options::{core_error, read};
 use super::{scalar, throw, to_js, typed_arrays};
 use crate::distortion::{self as nl, AmplitudeAt, PowerSeries};
+use serde::Deserialize;
 use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen(typescript_custom_section)]
@@ -21,6 +25,54 @@ export interface SeriesCheck {
   inputAmplitude: number; seriesHd2: number; seriesHd3: number; numericHd2: number; numericHd3: number;
   hd2Difference: number; hd3Difference: number;
 }
+/** The amplifier y = a1·x + a2·x² + a3·x³ in a loop with feedback factor beta. */
+export interface LoopSeriesOptions { a1: number; a2: number; a3: number; beta: number; }
+/** Options of `feedbackDistortion` and `harmonicDistortion` (no beta). */
+export interface DistortionOptions {
+  a1: number; a2: number; a3: number; beta?: number;
+  /** Peak amplitude at the `amplitudeAt` port. */
+  amplitude: number;
+  /** Default "output". */
+  amplitudeAt?: "input" | "output";
+}
+/** Options of `distortionAtFrequency`: the amplifier's dominant pole and the signal frequency. */
+export interface FrequencyDistortionOptions extends LoopSeriesOptions {
+  amplitude: number;
+  /** Default "output". */
+  amplitudeAt?: "input" | "output";
+  /** Dominant pole of the amplifier, Hz. */
+  poleHz: number;
+  /** Signal frequency, Hz (0: the static result). */
+  frequencyHz: number;
+}
+export interface LoopGainAt { frequencyHz: number; magnitude: number; phaseDeg: number; }
+export interface FrequencyDistortion {
+  frequencyHz: number; poleHz: number; dcLoopGain: number;
+  /** The loop gain at f, 2f and 3f. */
+  loopGains: LoopGainAt[];
+  amplitudeAt: "input" | "output";
+  open: Distortion; closed: Distortion; closedAtDc: Distortion;
+  hd2Ratio: number | null; hd3Ratio: number | null;
+}
+/** Options of `seriesFromDistortion`: measured signed HD2, HD3 (fractions) at a peak amplitude. */
+export interface MeasuredDistortionOptions { a1: number; hd2: number; hd3: number; amplitude: number; amplitudeAt?: "input" | "output"; }
+/** Options of `closedLoopSpectrum` and `seriesCheck`. */
+export interface SpectrumOptions extends LoopSeriesOptions {
+  /** Peak input amplitude. */
+  amplitude: number;
+  /** Samples per period of the DFT. Default 64. */
+  samples?: number;
+}
+/** Options of `seriesValiditySweep`. */
+export interface ValiditySweepOptions extends LoopSeriesOptions {
+  amplitudeMin: number; amplitudeMax: number;
+  /** Default 60. */
+  points?: number;
+  /** Relative difference at which the series stops holding. Default 0.1. */
+  tolerance?: number;
+  /** Samples per period. Default 256. */
+  samples?: number;
+}
 export interface ValiditySweep {
   amplitudes: Float64Array; seriesHd2: Float64Array; seriesHd3: Float64Array; numericHd2: Float64Array; numericHd3: Float64Array;
   foldAmplitude: number | null; hd3LimitAmplitude: number | null; hd3HoldsThroughout: boolean;
@@ -29,10 +81,6 @@ export interface ValiditySweep {
 
 fn series(a1: f64, a2: f64, a3: f64) -> Result<PowerSeries, JsValue> {
     throw(PowerSeries::new(a1, a2, a3))
-}
-
-fn amplitude_at(name: &str) -> Result<AmplitudeAt, JsValue> {
-    throw(name.parse())
 }
 
 fn option_number(x: Option<f64>) -> JsValue {
@@ -45,59 +93,127 @@ pub fn closed_loop_series(a1: f64, a2: f64, a3: f64, beta: f64) -> Result<JsValu
     to_js(&throw(nl::closed_loop_series(&series(a1, a2, a3)?, beta))?)
 }
 
-/// Coefficients `{a1, a2, a3}` from signed HD2 and HD3 (fractions) measured at a
-/// peak amplitude at the `"input"` or `"output"`.
-#[wasm_bindgen(js_name = seriesFromDistortion, unchecked_return_type = "PowerSeries")]
-pub fn series_from_distortion(
+fn named(e: crate::Error) -> JsValue {
+    core_error(e, &[])
+}
+
+fn default_output() -> String {
+    "output".into()
+}
+
+/// Options of `seriesFromDistortion`.
+#[derive(Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct MeasuredOptions {
     a1: f64,
     hd2: f64,
     hd3: f64,
     amplitude: f64,
-    amplitude_at_name: &str,
-) -> Result<JsValue, JsValue> {
-    to_js(&throw(nl::series_from_distortion(
-        a1,
-        hd2,
-        hd3,
-        amplitude,
-        amplitude_at(amplitude_at_name)?,
-    ))?)
+    #[serde(default = "default_output")]
+    amplitude_at: String,
 }
 
-/// Leading-order distortion `{inputAmplitude, outputAmplitude, hd2, hd3}`.
-#[wasm_bindgen(js_name = harmonicDistortion, unchecked_return_type = "Distortion")]
-pub fn harmonic_distortion(
+/// Coefficients `{a1, a2, a3}` from signed HD2 and HD3 (fractions) measured at a
+/// peak amplitude at the `"input"` or `"output"`.
+#[wasm_bindgen(js_name = seriesFromDistortion, unchecked_return_type = "PowerSeries")]
+pub fn series_from_distortion(
+    #[wasm_bindgen(unchecked_param_type = "MeasuredDistortionOptions")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let o: MeasuredOptions = read("", &options)?;
+    let at: AmplitudeAt = o.amplitude_at.parse().map_err(named)?;
+    to_js(&nl::series_from_distortion(o.a1, o.hd2, o.hd3, o.amplitude, at).map_err(named)?)
+}
+
+/// Options of `harmonicDistortion` and `feedbackDistortion`.
+#[derive(Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct DistortionOptions {
     a1: f64,
     a2: f64,
     a3: f64,
+    #[serde(default)]
+    beta: Option<f64>,
     amplitude: f64,
-    amplitude_at_name: &str,
-) -> Result<JsValue, JsValue> {
-    to_js(&throw(nl::harmonic_distortion(
-        &series(a1, a2, a3)?,
-        amplitude,
-        amplitude_at(amplitude_at_name)?,
-    ))?)
+    #[serde(default = "default_output")]
+    amplitude_at: String,
 }
 
-/// Open and closed loop at the same amplitude: `{closedSeries, feedbackAmount,
-/// amplitudeAt, open, closed, hd2Ratio, hd3Ratio}` (ratios `null` when the open-loop
-/// figure is zero).
+impl DistortionOptions {
+    fn parts(&self) -> Result<(PowerSeries, AmplitudeAt), JsValue> {
+        Ok((
+            PowerSeries::new(self.a1, self.a2, self.a3).map_err(named)?,
+            self.amplitude_at.parse().map_err(named)?,
+        ))
+    }
+}
+
+/// Leading-order distortion `{inputAmplitude, outputAmplitude, hd2, hd3}` of the
+/// amplifier alone.
+#[wasm_bindgen(js_name = harmonicDistortion, unchecked_return_type = "Distortion")]
+pub fn harmonic_distortion(
+    #[wasm_bindgen(unchecked_param_type = "Omit<DistortionOptions, \"beta\">")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let o: DistortionOptions = read("", &options)?;
+    if o.beta.is_some() {
+        return Err(super::options::error_at(
+            "beta",
+            crate::Error::UnknownField {
+                param: "",
+                expected: "",
+            },
+            Some("beta: unknown field; harmonicDistortion is the amplifier alone".into()),
+        ));
+    }
+    let (amp, at) = o.parts()?;
+    to_js(&nl::harmonic_distortion(&amp, o.amplitude, at).map_err(named)?)
+}
+
+/// Open and closed loop at the same amplitude with the DC loop gain (valid below
+/// the amplifier's dominant pole; `distortionAtFrequency` takes the signal
+/// frequency): `{closedSeries, feedbackAmount, amplitudeAt, open, closed,
+/// hd2Ratio, hd3Ratio}` (ratios `null` when the open-loop figure is zero).
 #[wasm_bindgen(js_name = feedbackDistortion, unchecked_return_type = "FeedbackDistortion")]
 pub fn feedback_distortion(
+    #[wasm_bindgen(unchecked_param_type = "DistortionOptions & { beta: number }")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let o: DistortionOptions = read("", &options)?;
+    let (amp, at) = o.parts()?;
+    let beta = o
+        .beta
+        .ok_or_else(|| named(crate::Error::Missing { param: "beta" }))?;
+    to_js(&nl::feedback_distortion(&amp, beta, o.amplitude, at).map_err(named)?)
+}
+
+/// Options of `distortionAtFrequency`.
+#[derive(Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct FrequencyOptions {
     a1: f64,
     a2: f64,
     a3: f64,
     beta: f64,
     amplitude: f64,
-    amplitude_at_name: &str,
+    #[serde(default = "default_output")]
+    amplitude_at: String,
+    pole_hz: f64,
+    frequency_hz: f64,
+}
+
+/// Distortion under feedback at a signal frequency, with the loop gain of a
+/// dominant-pole amplifier taken at f, 2f and 3f: `{frequencyHz, poleHz,
+/// dcLoopGain, loopGains: [{frequencyHz, magnitude, phaseDeg}] (f, 2f, 3f),
+/// amplitudeAt, open, closed, closedAtDc, hd2Ratio, hd3Ratio}`.
+#[wasm_bindgen(js_name = distortionAtFrequency, unchecked_return_type = "FrequencyDistortion")]
+pub fn distortion_at_frequency(
+    #[wasm_bindgen(unchecked_param_type = "FrequencyDistortionOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    to_js(&throw(nl::feedback_distortion(
-        &series(a1, a2, a3)?,
-        beta,
-        amplitude,
-        amplitude_at(amplitude_at_name)?,
-    ))?)
+    let o: FrequencyOptions = read("", &options)?;
+    let amp = PowerSeries::new(o.a1, o.a2, o.a3).map_err(named)?;
+    let at: AmplitudeAt = o.amplitude_at.parse().map_err(named)?;
+    to_js(
+        &nl::feedback_distortion_at(&amp, o.beta, o.pole_hz, o.frequency_hz, o.amplitude, at)
+            .map_err(named)?,
+    )
 }
 
 /// The closed-loop output y solving y = A(x − β·y) at input x.
@@ -110,22 +226,40 @@ pub fn closed_loop_output(a1: f64, a2: f64, a3: f64, beta: f64, x: f64) -> f64 {
     )
 }
 
-/// Numeric spectrum of the closed loop for a cosine input of peak `amplitude`:
-/// `{inputAmplitude, dc, harmonics: [5], hd2, hd3, thd, samples}`.
-#[wasm_bindgen(js_name = closedLoopSpectrum, unchecked_return_type = "Spectrum")]
-pub fn closed_loop_spectrum(
+/// Options of `closedLoopSpectrum` and `seriesCheck`.
+#[derive(Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct SpectrumOptions {
     a1: f64,
     a2: f64,
     a3: f64,
     beta: f64,
     amplitude: f64,
-    samples: u32,
+    #[serde(default = "default_samples")]
+    samples: f64,
+}
+
+fn default_samples() -> f64 {
+    64.0
+}
+
+fn samples(x: f64) -> Result<usize, JsValue> {
+    crate::network::montecarlo::count_from_number("samples", x, nl::MAX_SAMPLES).map_err(named)
+}
+
+/// Numeric spectrum of the closed loop for a cosine input of peak `amplitude`:
+/// `{inputAmplitude, dc, harmonics: [5], hd2, hd3, thd, samples}`.
+#[wasm_bindgen(js_name = closedLoopSpectrum, unchecked_return_type = "Spectrum")]
+pub fn closed_loop_spectrum(
+    #[wasm_bindgen(unchecked_param_type = "SpectrumOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
+    let o: SpectrumOptions = read("", &options)?;
+    let amp = series(o.a1, o.a2, o.a3)?;
     to_js(&throw(nl::closed_loop_spectrum(
-        &series(a1, a2, a3)?,
-        beta,
-        amplitude,
-        samples as usize,
+        &amp,
+        o.beta,
+        o.amplitude,
+        samples(o.samples)?,
     ))?)
 }
 
@@ -133,46 +267,67 @@ pub fn closed_loop_spectrum(
 /// seriesHd3, numericHd2, numericHd3, hd2Difference, hd3Difference}`.
 #[wasm_bindgen(js_name = seriesCheck, unchecked_return_type = "SeriesCheck")]
 pub fn series_check(
-    a1: f64,
-    a2: f64,
-    a3: f64,
-    beta: f64,
-    amplitude: f64,
-    samples: u32,
+    #[wasm_bindgen(unchecked_param_type = "SpectrumOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
+    let o: SpectrumOptions = read("", &options)?;
+    let amp = series(o.a1, o.a2, o.a3)?;
     to_js(&throw(nl::series_check(
-        &series(a1, a2, a3)?,
-        beta,
-        amplitude,
-        samples as usize,
+        &amp,
+        o.beta,
+        o.amplitude,
+        samples(o.samples)?,
     ))?)
 }
 
-/// Series against numeric over log-spaced input amplitudes: Float64Arrays
-/// `amplitudes, seriesHd2, seriesHd3, numericHd2, numericHd3`, and `foldAmplitude`,
-/// `hd3LimitAmplitude` (numbers or `null`), `hd3HoldsThroughout`.
-#[wasm_bindgen(js_name = seriesValiditySweep, unchecked_return_type = "ValiditySweep")]
-#[allow(clippy::too_many_arguments)]
-pub fn series_validity_sweep(
+/// Options of `seriesValiditySweep`.
+#[derive(Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct SweepOptions {
     a1: f64,
     a2: f64,
     a3: f64,
     beta: f64,
     amplitude_min: f64,
     amplitude_max: f64,
-    points: u32,
+    #[serde(default = "default_points")]
+    points: f64,
+    #[serde(default = "default_tolerance")]
     tolerance: f64,
-    samples: u32,
+    #[serde(default = "default_sweep_samples")]
+    samples: f64,
+}
+
+fn default_points() -> f64 {
+    60.0
+}
+fn default_tolerance() -> f64 {
+    0.1
+}
+fn default_sweep_samples() -> f64 {
+    256.0
+}
+
+/// Series against numeric over log-spaced input amplitudes: Float64Arrays
+/// `amplitudes, seriesHd2, seriesHd3, numericHd2, numericHd3`, and `foldAmplitude`,
+/// `hd3LimitAmplitude` (numbers or `null`), `hd3HoldsThroughout`.
+#[wasm_bindgen(js_name = seriesValiditySweep, unchecked_return_type = "ValiditySweep")]
+pub fn series_validity_sweep(
+    #[wasm_bindgen(unchecked_param_type = "ValiditySweepOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let s = throw(nl::series_validity_sweep(
-        &series(a1, a2, a3)?,
-        beta,
-        amplitude_min,
-        amplitude_max,
-        points as usize,
-        tolerance,
-        samples as usize,
-    ))?;
+    let o: SweepOptions = read("", &options)?;
+    let points =
+        crate::network::montecarlo::count_from_number("points", o.points, nl::MAX_SWEEP_POINTS)
+            .map_err(named)?;
+    let s = nl::series_validity_sweep(
+        &series(o.a1, o.a2, o.a3)?,
+        o.beta,
+        o.amplitude_min,
+        o.amplitude_max,
+        points,
+        o.tolerance,
+        samples(o.samples)?,
+    )
+    .map_err(named)?;
     let obj = typed_arrays(&[
         ("amplitudes", &s.amplitudes),
         ("seriesHd2", &s.series_hd2),

@@ -13,7 +13,7 @@ export type TopologyName = string;
 /** The canonical mixing-sampling name. */
 export type Topology = "series-shunt" | "shunt-series" | "series-series" | "shunt-shunt";
 /** Kind of feedback by |D|. */
-export type FeedbackSense = "negative" | "neutral" | "positive" | "oscillation";
+export type FeedbackSense = "negative" | "neutral" | "positive" | "oscillation" | "latching";
 /** A complex value with its polar form; phase in degrees. */
 export interface Phasor { re: number; im: number; magnitude: number; phaseDeg: number; }
 export interface FeedbackSummary {
@@ -125,11 +125,12 @@ pub fn summarize_feedback(
 }
 
 /// The kinds of feedback in the order `summarizeFeedbackPacked` numbers them.
-const SENSES: [fb::FeedbackSense; 4] = [
+const SENSES: [fb::FeedbackSense; 5] = [
     fb::FeedbackSense::Negative,
     fb::FeedbackSense::Neutral,
     fb::FeedbackSense::Positive,
     fb::FeedbackSense::Oscillation,
+    fb::FeedbackSense::Latching,
 ];
 
 /// Internal, for the entry module's `summarizeFeedback`: the index of a topology
@@ -190,7 +191,7 @@ struct TopologyLabels {
 #[derive(Serialize)]
 struct FeedbackLabels {
     topologies: [TopologyLabels; 4],
-    senses: [fb::FeedbackSense; 4],
+    senses: [fb::FeedbackSense; 5],
 }
 
 /// Internal, for the entry module: the strings `summarizeFeedbackPacked` leaves

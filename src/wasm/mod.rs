@@ -24,6 +24,9 @@ pub mod freq;
 pub mod network;
 pub mod noise;
 pub mod notation;
+// Used by the exports that take an options object; until they are converted, some of it is not.
+#[allow(dead_code)]
+pub(crate) mod options;
 #[cfg(feature = "wasm")]
 pub mod sheet;
 
@@ -36,7 +39,8 @@ const ERROR_TYPES: &str = r#"
 /** Machine-readable reason of a thrown LoopwrightError. */
 export type ErrorCode =
   | "not_finite" | "out_of_domain" | "unreachable" | "oscillation" | "unknown_name"
-  | "too_large" | "overflow" | "no_convergence" | "singular" | "syntax";
+  | "too_large" | "overflow" | "no_convergence" | "singular" | "syntax"
+  | "wrong_type" | "missing" | "unknown_field";
 /** What every loopwright function throws on bad input: `param` names the argument at fault. */
 export interface LoopwrightError extends Error {
   name: "LoopwrightError";

@@ -1,10 +1,12 @@
 //! JS bindings for feedback-network synthesis and tolerance.
 
+use super::options::{core_error, read};
 use super::{scalar, throw, to_js};
 use crate::network::montecarlo::count_from_number;
 use crate::network::{
-    self as nw, Distribution, Metric, MonteCarloSpec, PairSpec, Stage, StageSpec,
+    self as nw, Distribution, GainDistribution, Metric, MonteCarloSpec, PairSpec, StageSpec,
 };
+use serde::Deserialize;
 use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen(typescript_custom_section)]
@@ -32,6 +34,60 @@ export interface SampleStats {
 export interface MonteCarloResult {
   metric: "gain" | "input-impedance" | "output-impedance" | "bandwidth";
   seed: number; nominal: number; stats: SampleStats;
+}
+/** Options of `bestPairs`. */
+export interface BestPairsOptions {
+  network: "non-inverting" | "inverting" | "divider";
+  /** Gain (V/V) or divider ratio. */
+  target: number;
+  series: SeriesName;
+  /** Least and largest R1 + R2, Ω. */
+  totalMin: number; totalMax: number;
+  /** R1 when already chosen, Ω. Default: none (searched). */
+  fixedR1?: number;
+  /** Largest acceptable |error| (fraction): candidates within it rank first, fewest parts first. Default: none. */
+  maxError?: number;
+  /** Two-resistor R2 legs searched as well, ranked with the single ones. Default "none". */
+  combine?: "none" | "series" | "parallel" | "either";
+  /** Candidates returned, 1 … 100. Default 10. */
+  count?: number;
+}
+/** An op-amp stage with its tolerances (`worstCase`, `monteCarlo`). */
+export interface StageOptions {
+  stage: "non-inverting" | "inverting";
+  /** Nominal R1 (to ground, or from the input) and R2 (feedback), Ω. */
+  r1: number; r2: number;
+  /** Tolerances as fractions (0.01 for 1 %), 0 < tol < 1. */
+  tolR1: number; tolR2: number;
+  /** Least, typical and largest open-loop gain, V/V. */
+  aMin: number; aTyp: number; aMax: number;
+  /** Amplifier input and output resistance, Ω. */
+  ri: number; ro: number;
+  /** Dominant pole of the typical amplifier (A = aTyp), Hz. */
+  poleHz: number;
+  /** What the spread of A holds: "gbw" (the gain-bandwidth product aTyp·poleHz, the pole moving to GBW/A) or "pole". Default "gbw". */
+  hold?: "gbw" | "pole";
+}
+/** Options of `monteCarlo`: a stage and how to draw it. */
+export interface MonteCarloOptions extends StageOptions {
+  /** Resistor spread. Default "uniform". */
+  resistorDistribution?: "uniform" | "normal";
+  /** Standard deviations per tolerance for "normal" resistors. Default 3. */
+  k?: number;
+  /** Open-loop gain spread between aMin and aMax. Default "log-normal" (median aTyp). */
+  gainDistribution?: "log-normal" | "log-triangular" | "log-uniform" | "uniform";
+  /** Standard deviations from aTyp to each limit for "log-normal". Default 3. */
+  kGain?: number;
+  /** Default "gain". */
+  metric?: "gain" | "input-impedance" | "output-impedance" | "bandwidth";
+  /** 2 … 1 000 000. Default 10 000. */
+  trials?: number;
+  /** Whole number 0 … 2^53 − 1. Default 1. */
+  seed?: number;
+  /** Spec limits for the yield, in the metric's unit. Default: none. */
+  lower?: number; upper?: number;
+  /** Histogram bins, 1 … 1000. Default 40. */
+  bins?: number;
 }
 "#;
 
@@ -82,35 +138,63 @@ pub fn letter_code(value: f64, digits: u32) -> Result<String, JsValue> {
     throw(nw::letter_code(value, digits))
 }
 
-/// Ranked resistor pairs: `{network, target, idealRatio, meetsMaxError,
-/// candidates: [{r1, r2: {value, first, second, joint}, achieved, error, total}]}`.
-/// `network` is non-inverting, inverting or divider; `combine` none, series,
-/// parallel or either; `fixedR1` and `maxError` may be undefined.
-#[wasm_bindgen(js_name = bestPairs, unchecked_return_type = "PairResult")]
-#[allow(clippy::too_many_arguments)]
-pub fn best_pairs(
-    network: &str,
+/// Options of `bestPairs` (defaults in the `.d.ts`).
+#[derive(Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct PairOptions {
+    network: String,
     target: f64,
-    series: &str,
+    series: String,
     total_min: f64,
     total_max: f64,
+    #[serde(default)]
     fixed_r1: Option<f64>,
+    #[serde(default)]
     max_error: Option<f64>,
-    combine: &str,
+    #[serde(default = "default_combine")]
+    combine: String,
+    #[serde(default = "default_count")]
     count: f64,
+}
+
+fn default_combine() -> String {
+    "none".into()
+}
+
+fn default_count() -> f64 {
+    10.0
+}
+
+/// Core names that the caller spells differently (beyond snake → camel case).
+const RENAMES: &[(&str, &str)] = &[
+    ("distribution", "resistorDistribution"),
+    ("fixed_r1", "fixedR1"),
+    ("tol_r1", "tolR1"),
+    ("tol_r2", "tolR2"),
+];
+
+/// Ranked resistor pairs for a gain or divider ratio: `{network, target,
+/// idealRatio, meetsMaxError, candidates: [{r1, r2: {value, first, second, joint},
+/// achieved, error, total}]}`. Two-part R2 legs are searched whenever `combine`
+/// asks for them and ranked with the single resistors.
+#[wasm_bindgen(js_name = bestPairs, unchecked_return_type = "PairResult")]
+pub fn best_pairs(
+    #[wasm_bindgen(unchecked_param_type = "BestPairsOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
+    let o: PairOptions = read("", &options)?;
+    let named = |e| core_error(e, RENAMES);
     let spec = PairSpec {
-        network: throw(network.parse())?,
-        target,
-        series: throw(series.parse())?,
-        total_min,
-        total_max,
-        fixed_r1,
-        max_error,
-        combine: throw(combine.parse())?,
-        count: throw(count_from_number("count", count, nw::MAX_CANDIDATES))?,
+        network: o.network.parse().map_err(named)?,
+        target: o.target,
+        series: o.series.parse().map_err(named)?,
+        total_min: o.total_min,
+        total_max: o.total_max,
+        fixed_r1: o.fixed_r1,
+        max_error: o.max_error,
+        combine: o.combine.parse().map_err(named)?,
+        count: count_from_number("count", o.count, nw::MAX_CANDIDATES).map_err(named)?,
     };
-    to_js(&throw(nw::best_pairs(&spec))?)
+    to_js(&nw::best_pairs(&spec).map_err(named)?)
 }
 
 /// One resistance (transresistance or sense resistor): `[{leg, error}]`.
@@ -129,12 +213,16 @@ pub fn single_resistor(
     ))?)
 }
 
-#[allow(clippy::too_many_arguments)]
-fn stage_spec(
-    stage: &str,
+/// The stage fields shared by `worstCase` and `monteCarlo` (defaults in the `.d.ts`).
+#[derive(Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct StageOptions {
+    stage: String,
     r1: f64,
     r2: f64,
+    #[serde(rename = "tolR1")]
     tol_r1: f64,
+    #[serde(rename = "tolR2")]
     tol_r2: f64,
     a_min: f64,
     a_typ: f64,
@@ -142,33 +230,56 @@ fn stage_spec(
     ri: f64,
     ro: f64,
     pole_hz: f64,
-) -> Result<StageSpec, JsValue> {
-    let stage: Stage = throw(stage.parse())?;
-    Ok(StageSpec {
-        stage,
-        r1,
-        r2,
-        tol_r1,
-        tol_r2,
-        a_min,
-        a_typ,
-        a_max,
-        ri,
-        ro,
-        pole_hz,
-    })
+    #[serde(default = "default_hold")]
+    hold: String,
+}
+
+fn default_hold() -> String {
+    "gbw".into()
+}
+
+impl StageOptions {
+    fn spec(&self) -> Result<StageSpec, JsValue> {
+        let named = |e| core_error(e, RENAMES);
+        Ok(StageSpec {
+            stage: self.stage.parse().map_err(named)?,
+            r1: self.r1,
+            r2: self.r2,
+            tol_r1: self.tol_r1,
+            tol_r2: self.tol_r2,
+            a_min: self.a_min,
+            a_typ: self.a_typ,
+            a_max: self.a_max,
+            ri: self.ri,
+            ro: self.ro,
+            pole_hz: self.pole_hz,
+            hold: self.hold.parse().map_err(named)?,
+        })
+    }
 }
 
 /// Worst case of an op-amp stage: `{gain, inputImpedance, outputImpedance,
 /// bandwidthHz}`, each `{nominal, min, max, minCorner, maxCorner, lowPercent,
-/// highPercent}` with corners `{r1, r2, openLoopGain}` of "low"/"high".
+/// highPercent}` with corners `{r1, r2, openLoopGain}` of "low"/"high". The spread
+/// of A holds the gain-bandwidth product unless `hold` is "pole".
 #[wasm_bindgen(js_name = worstCase, unchecked_return_type = "WorstCase")]
-#[allow(clippy::too_many_arguments)]
 pub fn worst_case(
-    stage: &str,
+    #[wasm_bindgen(unchecked_param_type = "StageOptions")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let o: StageOptions = read("", &options)?;
+    to_js(&nw::worst_case(&o.spec()?).map_err(|e| core_error(e, RENAMES))?)
+}
+
+/// Options of `monteCarlo`: the stage fields and the draw (defaults in the `.d.ts`).
+#[derive(Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct MonteCarloOptions {
+    stage: String,
     r1: f64,
     r2: f64,
+    #[serde(rename = "tolR1")]
     tol_r1: f64,
+    #[serde(rename = "tolR2")]
     tol_r2: f64,
     a_min: f64,
     a_typ: f64,
@@ -176,56 +287,90 @@ pub fn worst_case(
     ri: f64,
     ro: f64,
     pole_hz: f64,
-) -> Result<JsValue, JsValue> {
-    let spec = stage_spec(
-        stage, r1, r2, tol_r1, tol_r2, a_min, a_typ, a_max, ri, ro, pole_hz,
-    )?;
-    to_js(&throw(nw::worst_case(&spec))?)
+    #[serde(default = "default_hold")]
+    hold: String,
+    #[serde(default = "default_resistors")]
+    resistor_distribution: String,
+    #[serde(default = "default_k")]
+    k: f64,
+    #[serde(default = "default_gain_distribution")]
+    gain_distribution: String,
+    #[serde(default = "default_k")]
+    k_gain: f64,
+    #[serde(default = "default_metric")]
+    metric: String,
+    #[serde(default = "default_trials")]
+    trials: f64,
+    #[serde(default = "default_seed")]
+    seed: f64,
+    #[serde(default)]
+    lower: Option<f64>,
+    #[serde(default)]
+    upper: Option<f64>,
+    #[serde(default = "default_bins")]
+    bins: f64,
+}
+
+fn default_resistors() -> String {
+    "uniform".into()
+}
+fn default_k() -> f64 {
+    3.0
+}
+fn default_gain_distribution() -> String {
+    "log-normal".into()
+}
+fn default_metric() -> String {
+    "gain".into()
+}
+fn default_trials() -> f64 {
+    10_000.0
+}
+fn default_seed() -> f64 {
+    1.0
+}
+fn default_bins() -> f64 {
+    40.0
 }
 
 /// Monte Carlo of one quantity (`metric`: gain, input-impedance,
-/// output-impedance, bandwidth) of an op-amp stage. Distributions are "uniform"
-/// or "normal" (tolerance = k·σ; `k` for the resistors, `kGain` for the gain).
-/// `seed` is a whole number 0 … 2⁵³ − 1. Returns `{metric, seed, nominal, stats:
-/// {count, mean, sd, min, max, percentiles: [{percent, value}], yieldFraction,
-/// histogram: {edges, counts}}}`.
+/// output-impedance, bandwidth) of an op-amp stage, seeded and reproducible.
+/// Resistors "uniform" or "normal" (tolerance = k·σ); the open-loop gain
+/// "log-normal" (median aTyp, the limits kGain σ out on their sides), "log-triangular",
+/// "log-uniform" or "uniform". Returns `{metric, seed, nominal, stats: {count, mean,
+/// sd, min, max, percentiles: [{percent, value}], yieldFraction, histogram: {edges,
+/// counts}}}`.
 #[wasm_bindgen(js_name = monteCarlo, unchecked_return_type = "MonteCarloResult")]
-#[allow(clippy::too_many_arguments)]
 pub fn monte_carlo(
-    stage: &str,
-    r1: f64,
-    r2: f64,
-    tol_r1: f64,
-    tol_r2: f64,
-    a_min: f64,
-    a_typ: f64,
-    a_max: f64,
-    ri: f64,
-    ro: f64,
-    pole_hz: f64,
-    resistor_distribution: &str,
-    k: f64,
-    gain_distribution: &str,
-    k_gain: f64,
-    metric: &str,
-    trials: f64,
-    seed: f64,
-    lower: Option<f64>,
-    upper: Option<f64>,
-    bins: f64,
+    #[wasm_bindgen(unchecked_param_type = "MonteCarloOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let spec = MonteCarloSpec {
-        stage: stage_spec(
-            stage, r1, r2, tol_r1, tol_r2, a_min, a_typ, a_max, ri, ro, pole_hz,
-        )?,
-        resistors: throw(Distribution::from_name(resistor_distribution, k, "k"))?,
-        open_loop_gain: throw(Distribution::from_name(gain_distribution, k_gain, "k_gain"))?,
-        metric: throw(metric.parse::<Metric>())?,
-        trials: throw(count_from_number("trials", trials, nw::MAX_TRIALS))?,
-        seed: throw(nw::seed_from_number(seed))?,
-        lower,
-        upper,
-        bins: throw(count_from_number("bins", bins, nw::MAX_BINS))?,
+    let o: MonteCarloOptions = read("", &options)?;
+    let named = |e| core_error(e, RENAMES);
+    let stage = StageOptions {
+        stage: o.stage,
+        r1: o.r1,
+        r2: o.r2,
+        tol_r1: o.tol_r1,
+        tol_r2: o.tol_r2,
+        a_min: o.a_min,
+        a_typ: o.a_typ,
+        a_max: o.a_max,
+        ri: o.ri,
+        ro: o.ro,
+        pole_hz: o.pole_hz,
+        hold: o.hold,
     };
-    to_js(&throw(nw::monte_carlo(&spec))?)
+    let spec = MonteCarloSpec {
+        stage: stage.spec()?,
+        resistors: Distribution::from_name(&o.resistor_distribution, o.k, "k").map_err(named)?,
+        open_loop_gain: GainDistribution::from_name(&o.gain_distribution, o.k_gain, "k_gain")
+            .map_err(named)?,
+        metric: o.metric.parse::<Metric>().map_err(named)?,
+        trials: count_from_number("trials", o.trials, nw::MAX_TRIALS).map_err(named)?,
+        seed: nw::seed_from_number(o.seed).map_err(named)?,
+        lower: o.lower,
+        upper: o.upper,
+        bins: count_from_number("bins", o.bins, nw::MAX_BINS).map_err(named)?,
+    };
+    to_js(&nw::monte_carlo(&spec).map_err(named)?)
 }

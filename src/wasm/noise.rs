@@ -1,12 +1,16 @@
 //! JS bindings for the noise of op-amp stages.
 //!
-//! A stage is given as `kind` (`"non-inverting"` or `"inverting"`), resistors
-//! `rFeedback, rGain, rPlus` in Ω and `temperatureK`; the amplifier as
-//! `voltageDensity` (V/√Hz), `voltageCornerHz`, `currentDensity` (A/√Hz),
-//! `currentCornerHz`; the loop as `gbwHz` and `extraPolesHz` (0 to 2 values).
+//! The stage exports take one options object (`NoiseOptions` in the `.d.ts`): a
+//! stage as `kind` (`"non-inverting"` or `"inverting"`), resistors `rFeedback,
+//! rGain, rPlus` in Ω and `temperatureK`; the amplifier as `voltageDensity`
+//! (V/√Hz), `voltageCornerHz`, `currentDensity` (A/√Hz), `currentCornerHz`; the
+//! loop as `gbwHz` and `extraPolesHz` (0 to 2 values); and the band or frequency of
+//! the export.
 
-use super::{scalar, throw, to_js, typed_arrays};
+use super::options::{core_error, error_at, read};
+use super::{scalar, to_js, typed_arrays};
 use crate::noise::{self as nz, AmplifierNoise, ClosedLoopResponse, Stage, StageKind};
+use serde::Deserialize;
 use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen(typescript_custom_section)]
@@ -23,17 +27,138 @@ export interface IntegratedNoise {
   noiseBandwidthHz: number; singlePoleNoiseBandwidthHz: number; singlePoleEstimateRms: number; relativeError: number;
 }
 export interface NoiseSweep { frequencies: Float64Array; outputDensity: Float64Array; inputReferredDensity: Float64Array; }
+/** A stage, its amplifier's noise and its loop (`stageNoiseContributions`, `integratedNoise`, `noiseDensitySweep`). */
+export interface NoiseOptions {
+  kind: "non-inverting" | "inverting";
+  /** Feedback resistor, output to inverting input, Ω. */
+  rFeedback: number;
+  /** Inverting input to ground (inverting stage: input resistor plus source), Ω. */
+  rGain: number;
+  /** Resistance at the non-inverting input, Ω. Default 0. */
+  rPlus?: number;
+  /** Resistor temperature, K. Default 300. */
+  temperatureK?: number;
+  /** Amplifier white voltage noise, V/√Hz. */
+  voltageDensity: number;
+  /** 1/f corner of the voltage noise, Hz (0: none). Default 0. */
+  voltageCornerHz?: number;
+  /** Amplifier white current noise, A/√Hz. Default 0. */
+  currentDensity?: number;
+  /** 1/f corner of the current noise, Hz (0: none). Default 0. */
+  currentCornerHz?: number;
+  /** Gain-bandwidth product, Hz (integratedNoise, noiseDensitySweep). */
+  gbwHz?: number;
+  /** Up to two extra open-loop poles, Hz. Default []. */
+  extraPolesHz?: number[];
+  /** stageNoiseContributions: the frequency, Hz. */
+  frequencyHz?: number;
+  /** integratedNoise: the band, Hz; fHigh left out (or Infinity) for no upper edge. */
+  fLow?: number; fHigh?: number;
+  /** noiseDensitySweep: span, Hz, and points (2 … 2000, default 200). */
+  fStart?: number; fStop?: number; points?: number;
+}
 "#;
 
-fn stage(
-    kind: &str,
+/// A stage, its amplifier's noise and its loop, as the noise exports read them
+/// (defaults in the `.d.ts`).
+#[derive(Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct NoiseOptions {
+    kind: String,
     r_feedback: f64,
     r_gain: f64,
+    #[serde(default)]
     r_plus: f64,
+    #[serde(default = "default_temperature")]
     temperature_k: f64,
-) -> Result<Stage, JsValue> {
-    let kind: StageKind = throw(kind.parse())?;
-    throw(Stage::new(kind, r_feedback, r_gain, r_plus, temperature_k))
+    voltage_density: f64,
+    #[serde(default)]
+    voltage_corner_hz: f64,
+    #[serde(default)]
+    current_density: f64,
+    #[serde(default)]
+    current_corner_hz: f64,
+    /// Needed by the integrated noise and the sweep.
+    #[serde(default)]
+    gbw_hz: Option<f64>,
+    #[serde(default)]
+    extra_poles_hz: Vec<f64>,
+    /// `stageNoiseContributions`.
+    #[serde(default)]
+    frequency_hz: Option<f64>,
+    /// `integratedNoise`: the band.
+    #[serde(default)]
+    f_low: Option<f64>,
+    #[serde(default)]
+    f_high: Option<f64>,
+    /// `noiseDensitySweep`: the span and points.
+    #[serde(default)]
+    f_start: Option<f64>,
+    #[serde(default)]
+    f_stop: Option<f64>,
+    #[serde(default = "default_points")]
+    points: f64,
+}
+
+fn default_temperature() -> f64 {
+    300.0
+}
+
+fn default_points() -> f64 {
+    200.0
+}
+
+fn named(e: crate::Error) -> JsValue {
+    core_error(e, &[])
+}
+
+/// A field an export needs that the options left out.
+fn needed(value: Option<f64>, param: &'static str) -> Result<f64, JsValue> {
+    value.ok_or_else(|| core_error(crate::Error::Missing { param }, &[]))
+}
+
+/// Refuse a field of [`NoiseOptions`] that belongs to another export.
+fn not_here(fields: &[(bool, &str)], export: &str) -> Result<(), JsValue> {
+    match fields.iter().find(|(given, _)| *given) {
+        Some(&(_, name)) => Err(error_at(
+            name,
+            crate::Error::UnknownField {
+                param: "",
+                expected: "",
+            },
+            Some(alloc::format!(
+                "{name}: unknown field; {export} does not take it"
+            )),
+        )),
+        None => Ok(()),
+    }
+}
+
+impl NoiseOptions {
+    fn stage(&self) -> Result<(Stage, AmplifierNoise), JsValue> {
+        let kind: StageKind = self.kind.parse().map_err(named)?;
+        let stage = Stage::new(
+            kind,
+            self.r_feedback,
+            self.r_gain,
+            self.r_plus,
+            self.temperature_k,
+        )
+        .map_err(named)?;
+        let amp = AmplifierNoise::new(
+            self.voltage_density,
+            self.voltage_corner_hz,
+            self.current_density,
+            self.current_corner_hz,
+        )
+        .map_err(named)?;
+        Ok((stage, amp))
+    }
+
+    fn response(&self, stage: &Stage) -> Result<ClosedLoopResponse, JsValue> {
+        let gbw = needed(self.gbw_hz, "gbw_hz")?;
+        ClosedLoopResponse::new(stage.noise_gain(), gbw, &self.extra_poles_hz).map_err(named)
+    }
 }
 
 /// Thermal noise density √(4kTR), V/√Hz.
@@ -56,107 +181,90 @@ pub fn thermal_noise_current_density(resistance_ohm: f64, temperature_k: f64) ->
 /// amplifierVoltage, amplifierCurrentPlus, amplifierCurrentMinus, total,
 /// inputReferred}`, V/√Hz.
 #[wasm_bindgen(js_name = stageNoiseContributions, unchecked_return_type = "NoiseContributions")]
-#[allow(clippy::too_many_arguments)]
 pub fn stage_noise_contributions(
-    kind: &str,
-    r_feedback: f64,
-    r_gain: f64,
-    r_plus: f64,
-    temperature_k: f64,
-    voltage_density: f64,
-    voltage_corner_hz: f64,
-    current_density: f64,
-    current_corner_hz: f64,
-    frequency_hz: f64,
+    #[wasm_bindgen(unchecked_param_type = "NoiseOptions & { frequencyHz: number }")]
+    options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let s = stage(kind, r_feedback, r_gain, r_plus, temperature_k)?;
-    let amp = throw(AmplifierNoise::new(
-        voltage_density,
-        voltage_corner_hz,
-        current_density,
-        current_corner_hz,
-    ))?;
-    to_js(&throw(nz::noise_contributions(&s, &amp, frequency_hz))?)
+    let o: NoiseOptions = read("", &options)?;
+    not_here(
+        &[
+            (o.gbw_hz.is_some(), "gbwHz"),
+            (!o.extra_poles_hz.is_empty(), "extraPolesHz"),
+            (o.f_low.is_some(), "fLow"),
+            (o.f_high.is_some(), "fHigh"),
+            (o.f_start.is_some(), "fStart"),
+            (o.f_stop.is_some(), "fStop"),
+        ],
+        "stageNoiseContributions",
+    )?;
+    let (s, amp) = o.stage()?;
+    let f = needed(o.frequency_hz, "frequency_hz")?;
+    to_js(&nz::noise_contributions(&s, &amp, f).map_err(named)?)
 }
 
-/// rms noise over `fLow`…`fHigh` (Infinity allowed): `{outputRms, inputReferredRms,
-/// fLow, fHigh (null when unbounded), noiseGain, signalGain, loopCrossoverHz,
-/// bandwidthHz, noiseBandwidthHz, singlePoleNoiseBandwidthHz,
-/// singlePoleEstimateRms, relativeError}`.
+/// rms noise over the band `fLow` … `fHigh` (left out or Infinity: unbounded):
+/// `{outputRms, inputReferredRms, fLow, fHigh (null when unbounded), noiseGain,
+/// signalGain, loopCrossoverHz, bandwidthHz, noiseBandwidthHz (∫|H|² df over the
+/// same band), singlePoleNoiseBandwidthHz, singlePoleEstimateRms, relativeError}`.
 #[wasm_bindgen(js_name = integratedNoise, unchecked_return_type = "IntegratedNoise")]
-#[allow(clippy::too_many_arguments)]
 pub fn integrated_noise(
-    kind: &str,
-    r_feedback: f64,
-    r_gain: f64,
-    r_plus: f64,
-    temperature_k: f64,
-    voltage_density: f64,
-    voltage_corner_hz: f64,
-    current_density: f64,
-    current_corner_hz: f64,
-    gbw_hz: f64,
-    extra_poles_hz: &[f64],
-    f_low: f64,
-    f_high: f64,
+    #[wasm_bindgen(
+        unchecked_param_type = "NoiseOptions & { gbwHz: number; fLow: number; fHigh?: number }"
+    )]
+    options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let s = stage(kind, r_feedback, r_gain, r_plus, temperature_k)?;
-    let amp = throw(AmplifierNoise::new(
-        voltage_density,
-        voltage_corner_hz,
-        current_density,
-        current_corner_hz,
-    ))?;
-    let h = throw(ClosedLoopResponse::new(
-        s.noise_gain(),
-        gbw_hz,
-        extra_poles_hz,
-    ))?;
-    to_js(&throw(nz::integrated_output_noise(
-        &s, &amp, &h, f_low, f_high,
-    ))?)
+    let o: NoiseOptions = read("", &options)?;
+    not_here(
+        &[
+            (o.frequency_hz.is_some(), "frequencyHz"),
+            (o.f_start.is_some(), "fStart"),
+            (o.f_stop.is_some(), "fStop"),
+        ],
+        "integratedNoise",
+    )?;
+    let (s, amp) = o.stage()?;
+    let h = o.response(&s)?;
+    let f_low = needed(o.f_low, "f_low")?;
+    let f_high = o.f_high.unwrap_or(f64::INFINITY);
+    to_js(&nz::integrated_output_noise(&s, &amp, &h, f_low, f_high).map_err(named)?)
 }
 
-/// Output and input-referred density over log-spaced frequencies: Float64Arrays
-/// `frequencies, outputDensity, inputReferredDensity`.
+/// Output and input-referred density over `points` log-spaced frequencies from
+/// `fStart` to `fStop`: Float64Arrays `frequencies, outputDensity,
+/// inputReferredDensity`.
 #[wasm_bindgen(js_name = noiseDensitySweep, unchecked_return_type = "NoiseSweep")]
-#[allow(clippy::too_many_arguments)]
 pub fn noise_density_sweep(
-    kind: &str,
-    r_feedback: f64,
-    r_gain: f64,
-    r_plus: f64,
-    temperature_k: f64,
-    voltage_density: f64,
-    voltage_corner_hz: f64,
-    current_density: f64,
-    current_corner_hz: f64,
-    gbw_hz: f64,
-    extra_poles_hz: &[f64],
-    f_start: f64,
-    f_stop: f64,
-    points: u32,
+    #[wasm_bindgen(
+        unchecked_param_type = "NoiseOptions & { gbwHz: number; fStart: number; fStop: number }"
+    )]
+    options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let s = stage(kind, r_feedback, r_gain, r_plus, temperature_k)?;
-    let amp = throw(AmplifierNoise::new(
-        voltage_density,
-        voltage_corner_hz,
-        current_density,
-        current_corner_hz,
-    ))?;
-    let h = throw(ClosedLoopResponse::new(
-        s.noise_gain(),
-        gbw_hz,
-        extra_poles_hz,
-    ))?;
-    let w = throw(nz::output_noise_sweep(
+    let o: NoiseOptions = read("", &options)?;
+    not_here(
+        &[
+            (o.frequency_hz.is_some(), "frequencyHz"),
+            (o.f_low.is_some(), "fLow"),
+            (o.f_high.is_some(), "fHigh"),
+        ],
+        "noiseDensitySweep",
+    )?;
+    let (s, amp) = o.stage()?;
+    let h = o.response(&s)?;
+    let points = crate::network::montecarlo::count_from_number(
+        "points",
+        o.points,
+        nz::integrated::MAX_SWEEP_POINTS,
+    )
+    .map_err(named)?;
+    let w = nz::output_noise_sweep(
         &s,
         &amp,
         &h,
-        f_start,
-        f_stop,
-        points as usize,
-    ))?;
+        needed(o.f_start, "f_start")?,
+        needed(o.f_stop, "f_stop")?,
+        points,
+    )
+    .map_err(named)?;
     Ok(typed_arrays(&[
         ("frequencies", &w.frequencies),
         ("outputDensity", &w.output_density),

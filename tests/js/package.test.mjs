@@ -109,7 +109,8 @@ test("summarizeFeedback built in JS equals the glue's serde-built object, errors
     'transconductance',
     'transresistance',
   ];
-  // Negative, neutral (T = −2), positive feedback and β = 0 (null ideal gain and error).
+  // Negative, latching (T = −2, D = −1), positive feedback and β = 0 (neutral, null
+  // ideal gain and error).
   const stages = [
     [1e5, 0.00999],
     [2, -1],
@@ -146,7 +147,7 @@ test("summarizeFeedback built in JS equals the glue's serde-built object, errors
   const senses = new Set(
     stages.map(([a, beta]) => entry.summarizeFeedback('voltage', a, beta).sense),
   );
-  assert.deepStrictEqual([...senses].sort(), ['negative', 'neutral', 'positive']);
+  assert.deepStrictEqual([...senses].sort(), ['latching', 'negative', 'neutral', 'positive']);
   for (const [name, a, beta] of [
     ['series-parallel', 1, 1],
     ['shunt-shunt', -10, 0.1],

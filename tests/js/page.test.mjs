@@ -247,9 +247,17 @@ test('every card computes its defaults, and the area cards show closed-form valu
   assert.equal(await result(page, 'card-slew', 'vmax'), '31.83 V');
   // Noise gain 1 + Rf/Rg = 1 + 9.09k/1k = 10.09.
   assert.equal(await result(page, 'card-noise', 'ng'), '10.09');
-  // D = 1 + a1·β = 1 + 10k·0.01 = 101; HD2 falls by D²/D³ at equal output: 1/101.
-  assert.equal(await result(page, 'card-distortion', 'd'), '101');
-  assert.equal(await result(page, 'card-distortion', 'hd2ratio'), (1 / 101).toPrecision(6));
+  // Loop gain a1·β = 10k·0.01 = 100 at DC; with the 100 Hz pole, at equal output HD2
+  // falls by |1 + T(2f)| with T(2 kHz) = 100/(1 + j·20) (src/distortion/frequency.rs):
+  // 1/|1 + (100 − j·2000)/401|.
+  assert.equal(await result(page, 'card-distortion', 't0'), '100');
+  const t2 = { re: 1 + 100 / 401, im: -2000 / 401 };
+  assert.equal(
+    await result(page, 'card-distortion', 'hd2ratio'),
+    (1 / Math.hypot(t2.re, t2.im)).toPrecision(6),
+  );
+  // |T(1 kHz)| = 100/√(1 + 10²) = 9.950, phase −atan(10) = −84.3°.
+  assert.match(await result(page, 'card-distortion', 't1'), /^9\.95\d* ∠ -84\.3°$/);
   // Resistor pair: non-inverting 7.77 needs R2/R1 = 6.77.
   assert.equal(await result(page, 'card-pairs', 'ideal'), '6.77');
   // Worst case: the lowest gain is at R1 high, R2 low, A low (gain 1 + R2/R1 falls).
@@ -260,6 +268,43 @@ test('every card computes its defaults, and the area cards show closed-form valu
   await retype(page, '#card-worst-tol', '-1%');
   assert.equal(await page.getAttribute('#card-worst-tol', 'aria-invalid'), 'true');
   await page.screenshot({ path: join(ARTIFACTS, 'page-all-cards.png'), fullPage: true });
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+test('issue 15 through the page: latching loop, pole and GBW, band, pairs', async () => {
+  const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
+  // A = 100k, β = −1e-4: T = −10, D = −9 < 0: latching, never negative feedback.
+  await retype(page, '#card-stage-beta', '-0.1m');
+  assert.match(await result(page, 'card-stage', 'sense'), /^LATCHING/);
+  // Worst case, GBW held: gain 40 (1k/39k), A typ 250k with its pole at 10 Hz is
+  // GBW 2.5 MHz; the widest bandwidth is GBW·(1/A min + β max) at R1 high, R2 low.
+  const betaMax = 1010 / (1010 + 38610);
+  const widest = 2.5e6 * (1 / 60e3 + betaMax);
+  const text = await result(page, 'card-worst', 'bw');
+  assert.ok(text.includes(`${(widest / 1e3).toPrecision(4)}k`), `${text} vs ${widest}`);
+  // Holding the pole instead: 10 Hz·(1 + 1M·β max) at the top.
+  await page.selectOption('#card-worst-hold', 'pole');
+  const top = 10 * (1 + 1e6 * betaMax);
+  assert.ok((await result(page, 'card-worst', 'bw')).includes(`${(top / 1e3).toPrecision(4)}k`));
+  // A pole of 0 is refused on its own cell.
+  await retype(page, '#card-worst-pole', '0');
+  assert.equal(await page.getAttribute('#card-worst-pole', 'aria-invalid'), 'true');
+  // Noise band 10 Hz … 10 kHz: noise bandwidth fc·(atan(10k/fc) − atan(10/fc)),
+  // fc = 10 MHz/10.09 (the Lorentzian's integral).
+  await retype(page, '#card-noise-f_high', '10k');
+  const fc = 10e6 / 10.09;
+  const nbw = fc * (Math.atan(10e3 / fc) - Math.atan(10 / fc));
+  assert.equal(await result(page, 'card-noise', 'nbw'), `${(nbw / 1e3).toPrecision(4)}k`);
+  // Gain 48 from E96 with a series pair: the first candidate has a two-part R2.
+  await retype(page, '#card-pairs-target', '48');
+  await retype(page, '#card-pairs-total_min', '10k');
+  await retype(page, '#card-pairs-total_max', '100k');
+  await page.selectOption('#card-pairs-combine', 'series');
+  assert.match(await result(page, 'card-pairs', 'pair1'), / \+ .*\(0\.0000 %\)$/);
+  await retype(page, '#card-pairs-max_error', '1%');
+  assert.equal(await result(page, 'card-pairs', 'meets'), 'yes');
+  assert.doesNotMatch(await result(page, 'card-pairs', 'pair1'), / \+ /);
   assert.deepEqual(problems, []);
   await context.close();
 });

@@ -118,7 +118,8 @@ def evaluate(c):
     g = lambda f: sum(psd_terms(c, f).values()) * h2(c, f)
     out["output_rms"] = math.sqrt(integrate(g, c["f_low"], f_high))
     out["input_referred_rms"] = out["output_rms"] / abs(gain)
-    out["noise_bandwidth_hz"] = integrate(lambda f: h2(c, f), 0.0, math.inf)
+    # The noise bandwidth of the band integrated (issue 15, item 10), not of 0 … ∞.
+    out["noise_bandwidth_hz"] = integrate(lambda f: h2(c, f), c["f_low"], f_high)
     out["bandwidth_hz"] = bandwidth(c)
     out["density_points"] = []
     for f in c["density_frequencies"]:

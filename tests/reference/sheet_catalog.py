@@ -215,7 +215,8 @@ def best_pairs_brute(target, key, total_min, total_max, count):
     rows.sort(key=lambda c: c[:3])
     out = []
     for _, _, r1, r2, g, err in rows[:count]:
-        out += [M(r1), M(r2), M(g), M(err)]
+        # Single R2: its first part is R2 itself, the second 0.
+        out += [M(r1), M(r2), M(g), M(err), M(r2), M(0)]
     return out
 
 
@@ -367,7 +368,8 @@ def white_total(rf, rg, en, t, gbw):
 CASES.update({
     "=DISTORTION.SERIES(1000; 200; -50; 0.099)": closed_series(M(1000), M(200), M(-50), M("0.099")),
     "=DISTORTION.HD(1000; 200; -50; 0.099; 1 V; \"output\")": hd(M(1000), M(200), M(-50), M(1))
-        + hd(*closed_series(M(1000), M(200), M(-50), M("0.099")), M(1)),
+        + hd(*closed_series(M(1000), M(200), M(-50), M("0.099")), M(1))
+        + [M(1000) * M("0.099"), M(0)],  # the DC loop gain used, and its phase
     "=DISTORTION.FPBW(0.5e6; 10 V)": [M("0.5e6") / (2 * mp.pi * 10)],
     "=DISTORTION.MAXAMP(13e6; 100 kHz)": [M("13e6") / (2 * mp.pi * M(10**5))],
     "=DISTORTION.SLEWRATE(10 V; 20 kHz)": [2 * mp.pi * M(20000) * 10],

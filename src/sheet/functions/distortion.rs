@@ -24,7 +24,11 @@ const SLEW: Param = req(
 );
 
 /// Core parameter names that the worksheet spells differently.
-const NAMES: &[(&str, &str)] = &[("amplitude_at", "at"), ("frequency_hz", "frequency")];
+const NAMES: &[(&str, &str)] = &[
+    ("amplitude_at", "at"),
+    ("frequency_hz", "frequency"),
+    ("pole_hz", "pole"),
+];
 
 fn core_err(a: &Args<'_>, e: crate::Error) -> Value {
     Value::Error(super::core_error(a.spec.name, e, NAMES))
@@ -63,12 +67,34 @@ fn harmonics(a: &Args<'_>) -> Value {
         Ok(at) => at,
         Err(e) => return core_err(a, e),
     };
-    match nl::feedback_distortion(&open, tri!(a.number(3)), tri!(a.number(4)), at) {
-        Ok(d) => row(vec![
-            Value::num(d.open.hd2),
-            Value::num(d.open.hd3),
-            Value::num(d.closed.hd2),
-            Value::num(d.closed.hd3),
+    let (beta, amplitude) = (tri!(a.number(3)), tri!(a.number(4)));
+    // With a dominant pole and a signal frequency: the loop gain there (and at the
+    // harmonics); left out, the DC loop gain.
+    let dynamic = match (a.get(6), a.get(7)) {
+        (Value::Empty, Value::Empty) => None,
+        _ => Some((tri!(a.number(6)), tri!(a.number(7)))),
+    };
+    let result = match dynamic {
+        None => nl::feedback_distortion(&open, beta, amplitude, at).map(|d| {
+            let t = open.a1 * beta;
+            let phase = if t < 0.0 { 180.0 } else { 0.0 };
+            (d.open, d.closed, libm::fabs(t), phase)
+        }),
+        Some((pole, f)) => {
+            nl::feedback_distortion_at(&open, beta, pole, f, amplitude, at).map(|d| {
+                let t = d.loop_gains[0];
+                (d.open, d.closed, t.magnitude, t.phase_deg)
+            })
+        }
+    };
+    match result {
+        Ok((o, c, t, phase)) => row(vec![
+            Value::num(o.hd2),
+            Value::num(o.hd3),
+            Value::num(c.hd2),
+            Value::num(c.hd3),
+            Value::num(t),
+            Value::num(phase),
         ]),
         Err(e) => core_err(a, e),
     }
@@ -124,10 +150,26 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             BETA,
             req("amplitude", "peak amplitude, at the input or the output", "V", "> 0"),
             req("at", "where the amplitude is quoted: \"input\" or \"output\"", "text", "input, output"),
+            Param {
+                name: "pole",
+                summary: "the amplifier's dominant pole (with frequency); left out, the DC loop gain is used",
+                unit: "Hz",
+                optional: true,
+                default: None,
+                range: "> 0",
+            },
+            Param {
+                name: "frequency",
+                summary: "signal frequency: the loop gain is taken at it and at its harmonics (memoryless series after the pole, src/distortion/frequency.rs)",
+                unit: "Hz",
+                optional: true,
+                default: None,
+                range: ">= 0",
+            },
         ],
         repeats: false,
-        result_unit: "1",
-        spill: &["HD2 open loop", "HD3 open loop", "HD2 closed loop", "HD3 closed loop"],
+        result_unit: "1; 1; 1; 1; 1; °",
+        spill: &["HD2 open loop", "HD3 open loop", "HD2 closed loop", "HD3 closed loop", "|loop gain| used at the signal frequency", "phase of that loop gain, °"],
         example: Example {
             formula: "=DISTORTION.HD(1000; 200; -50; 0.099; 1 V; \"output\")",
             expected: Expected::Numbers(&[
@@ -135,6 +177,8 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
                 1.25e-8,
                 1e-6,
                 3.23e-10,
+                99.0,
+                0.0,
             ]),
             source: "HD2 = |a2|·X/(2|a1|), HD3 = |a3|·X²/(4|a1|) with X = Y/|a1|, of the open and the closed-loop series (closed form; tests/reference/sheet_catalog.py)",
             tolerance: &[],

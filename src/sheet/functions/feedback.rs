@@ -83,12 +83,12 @@ fn sense(a: &Args<'_>) -> Value {
         Ok(t) => t,
         Err(e) => return core_err(a, e),
     };
-    let s = fb::feedback_sense(Complex64::new(1.0 + t, 0.0), Complex64::new(t, 0.0));
-    let word = match s {
+    let word = match fb::real_feedback_sense(t) {
         FeedbackSense::Negative => "negative",
         FeedbackSense::Neutral => "neutral",
         FeedbackSense::Positive => "positive",
         FeedbackSense::Oscillation => "oscillation",
+        FeedbackSense::Latching => "latching",
     };
     Value::Text(String::from(word))
 }
@@ -298,7 +298,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
     FunctionSpec {
         name: "FEEDBACK.SENSE",
         area: "feedback",
-        summary: "Whether the feedback is negative, neutral, positive or at the oscillation point, from |1 + A·β|",
+        summary: "The loop's sense from D = 1 + A·β: negative (D > 1), neutral (D = 1), positive (0 < D < 1), oscillation (D = 0) or latching (D < 0, loop gain below −1)",
         params: A_BETA,
         repeats: false,
         result_unit: "text",
@@ -306,7 +306,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         example: Example {
             formula: "=FEEDBACK.SENSE(100; -0.005)",
             expected: Expected::Text("positive"),
-            source: "T = -0.5, so |D| = 0.5 < 1",
+            source: "T = -0.5, so D = 0.5, between 0 and 1",
             tolerance: &[],
         },
         eval: sense,

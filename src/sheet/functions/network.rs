@@ -6,12 +6,17 @@
 //!
 //! The stage of `NETWORK.WORSTCASE`, `NETWORK.MONTECARLO` and `NETWORK.YIELD` is written as
 //! `stage; metric; r1; r2; tolerance; a_min; a_typ; a_max; ri; ro; pole` (both
-//! resistors share the tolerance) — see [`crate::network::StageSpec`].
+//! resistors share the tolerance) — see [`crate::network::StageSpec`]; `pole` is
+//! the dominant pole of the typical amplifier, and the spread of A keeps the
+//! gain–bandwidth product a_typ·pole ([`crate::network::Hold::GainBandwidth`]).
+//! `NETWORK.MONTECARLO` and `NETWORK.YIELD` take the open-loop gain's distribution as an
+//! optional last argument (log-normal when left out, see
+//! [`crate::network::GainDistribution`]).
 
 use super::{req, tri, Args, Example, Expected, FunctionSpec, Param};
 use crate::network::{
-    self as net, best_pairs, monte_carlo, standard_value, Distribution, Metric, MonteCarloSpec,
-    Network, PairSpec, Rounding, Series, Stage, StageSpec,
+    self as net, best_pairs, monte_carlo, standard_value, Combine, Distribution, GainDistribution,
+    Hold, Joint, Metric, MonteCarloSpec, Network, PairSpec, Rounding, Series, Stage, StageSpec,
 };
 use crate::sheet::errors::{CellError, ErrorKind};
 use crate::sheet::value::{Array, Unit, Value};
@@ -98,17 +103,32 @@ fn pair(a: &Args<'_>) -> Value {
         a,
         net::montecarlo::count_from_number("count", count, net::MAX_CANDIDATES)
     ));
+    // Left out (or an empty cell): no maximum error, single resistors.
+    spec.max_error = match a.get(6) {
+        Value::Empty => None,
+        _ => Some(tri!(a.number(6))),
+    };
+    spec.combine = match a.get(7) {
+        Value::Empty => Combine::None,
+        _ => tri!(from_core(a, tri!(a.text(7)).parse::<Combine>())),
+    };
     match best_pairs(&spec) {
         Ok(r) => {
-            let mut items = Vec::with_capacity(r.candidates.len() * 4);
+            let mut items = Vec::with_capacity(r.candidates.len() * 6);
             for c in &r.candidates {
                 items.push(with_unit(c.r1, Some(Unit::Ohm)));
                 items.push(with_unit(c.r2.value, Some(Unit::Ohm)));
                 items.push(Value::num(c.achieved));
                 items.push(Value::num(c.error));
+                let (first, second) = match c.r2.joint {
+                    Joint::Single => (c.r2.value, 0.0),
+                    Joint::Series | Joint::Parallel => (c.r2.first, c.r2.second.unwrap_or(0.0)),
+                };
+                items.push(with_unit(first, Some(Unit::Ohm)));
+                items.push(with_unit(second, Some(Unit::Ohm)));
             }
             let rows = u32::try_from(r.candidates.len()).unwrap_or(u32::MAX);
-            Array::new(rows, 4, items).map_or_else(
+            Array::new(rows, 6, items).map_or_else(
                 || {
                     Value::error(
                         ErrorKind::NotAvailable,
@@ -140,6 +160,7 @@ fn stage(a: &Args<'_>) -> Result<(StageSpec, Metric), CellError> {
         ri: a.number(8)?,
         ro: a.number(9)?,
         pole_hz: a.number(10)?,
+        hold: Hold::GainBandwidth,
     };
     Ok((spec, metric))
 }
@@ -176,11 +197,13 @@ fn worst(a: &Args<'_>) -> Value {
 }
 
 /// The Monte Carlo run of arguments 0…13 (the stage, trials, seed, distribution)
-/// with spec limits `lower`/`upper`.
+/// with spec limits `lower`/`upper` and the gain distribution at argument
+/// `gain_at` (log-triangular when left out).
 fn run(
     a: &Args<'_>,
     lower: Option<f64>,
     upper: Option<f64>,
+    gain_at: usize,
 ) -> Result<(net::MonteCarloResult, Metric), CellError> {
     let (stage, metric) = stage(a)?;
     let trials = from_core(
@@ -189,10 +212,17 @@ fn run(
     )?;
     let seed = from_core(a, net::seed_from_number(a.number(12)?))?;
     let dist = from_core(a, Distribution::from_name(&a.text(13)?, 3.0, "k"))?;
+    let gain = match a.get(gain_at) {
+        Value::Empty => GainDistribution::default(),
+        _ => from_core(
+            a,
+            GainDistribution::from_name(&a.text(gain_at)?, 3.0, "k_gain"),
+        )?,
+    };
     let spec = MonteCarloSpec {
         stage,
         resistors: dist,
-        open_loop_gain: dist,
+        open_loop_gain: gain,
         metric,
         trials,
         seed,
@@ -204,7 +234,7 @@ fn run(
 }
 
 fn montecarlo(a: &Args<'_>) -> Value {
-    let (r, metric) = tri!(run(a, None, None));
+    let (r, metric) = tri!(run(a, None, None, 14));
     let u = metric_unit(metric);
     let mut items = vec![with_unit(r.stats.mean, u), with_unit(r.stats.sd, u)];
     items.extend(r.stats.percentiles.iter().map(|p| with_unit(p.value, u)));
@@ -213,7 +243,7 @@ fn montecarlo(a: &Args<'_>) -> Value {
 
 fn yield_fraction(a: &Args<'_>) -> Value {
     let (lower, upper) = (tri!(a.number(14)), tri!(a.number(15)));
-    let (r, _) = tri!(run(a, Some(lower), Some(upper)));
+    let (r, _) = tri!(run(a, Some(lower), Some(upper), 16));
     r.stats.yield_fraction.map_or_else(
         || Value::error(ErrorKind::NotAvailable, "NETWORK.YIELD: no spec limits"),
         Value::num,
@@ -267,7 +297,12 @@ const P_ATYP: Param = req(
 const P_AMAX: Param = req("a_max", "largest open-loop gain", "V/V", ">= a_typ");
 const P_RI: Param = req("ri", "amplifier input resistance", "Ω", "> 0");
 const P_RO: Param = req("ro", "amplifier output resistance", "Ω", ">= 0");
-const P_POLE: Param = req("pole", "open-loop dominant pole", "Hz", "> 0");
+const P_POLE: Param = req(
+    "pole",
+    "open-loop dominant pole at a_typ (the spread of A keeps a_typ·pole)",
+    "Hz",
+    "> 0",
+);
 const P_TRIALS: Param = req("trials", "number of trials", "1", "2 … 1000000");
 const P_SEED: Param = req(
     "seed",
@@ -277,16 +312,37 @@ const P_SEED: Param = req(
 );
 const P_DIST: Param = req(
     "distribution",
-    "\"uniform\" over the band, or \"normal\" with the band at 3 σ",
+    "resistors: \"uniform\" over the band, or \"normal\" with the band at 3 σ",
     "text",
     "uniform, normal",
 );
+const P_GAIN_DIST: Param = Param {
+    name: "gain_distribution",
+    summary: "open-loop gain between a_min and a_max: \"log-normal\" (median a_typ, a_min and a_max 3 σ out on their sides), \"log-triangular\" (mode at a_typ), \"log-uniform\" or \"uniform\"; left out, log-normal",
+    unit: "text",
+    optional: true,
+    default: None,
+    range: "log-normal, log-triangular, log-uniform, uniform",
+};
 const STAGE: &[Param] = &[
     P_STAGE, P_METRIC, P_R1, P_R2, P_TOL, P_AMIN, P_ATYP, P_AMAX, P_RI, P_RO, P_POLE,
 ];
 const MC: &[Param] = &[
-    P_STAGE, P_METRIC, P_R1, P_R2, P_TOL, P_AMIN, P_ATYP, P_AMAX, P_RI, P_RO, P_POLE, P_TRIALS,
-    P_SEED, P_DIST,
+    P_STAGE,
+    P_METRIC,
+    P_R1,
+    P_R2,
+    P_TOL,
+    P_AMIN,
+    P_ATYP,
+    P_AMAX,
+    P_RI,
+    P_RO,
+    P_POLE,
+    P_TRIALS,
+    P_SEED,
+    P_DIST,
+    P_GAIN_DIST,
 ];
 const YIELD: &[Param] = &[
     P_STAGE,
@@ -315,6 +371,7 @@ const YIELD: &[Param] = &[
         "as metric",
         ">= lower",
     ),
+    P_GAIN_DIST,
 ];
 
 /// The network area's table.
@@ -394,10 +451,26 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             req("total_min", "least R1 + R2", "Ω", "> 0"),
             req("total_max", "largest R1 + R2", "Ω", ">= total_min"),
             req("count", "how many candidates", "1", "1 … 100"),
+            Param {
+                name: "max_error",
+                summary: "largest acceptable |error| (1% or 0.01): candidates within it rank first, fewest parts first; left out, none",
+                unit: "1",
+                optional: true,
+                default: None,
+                range: "> 0",
+            },
+            Param {
+                name: "combine",
+                summary: "two-resistor R2 legs searched as well: \"series\", \"parallel\" or \"either\"; left out, \"none\"",
+                unit: "text",
+                optional: true,
+                default: None,
+                range: "none, series, parallel, either",
+            },
         ],
         repeats: false,
-        result_unit: "Ω; Ω; V/V; 1",
-        spill: &["R1, Ω", "R2, Ω", "gain or ratio achieved", "error achieved/target − 1"],
+        result_unit: "Ω; Ω; V/V; 1; Ω; Ω",
+        spill: &["R1, Ω", "R2, Ω", "gain or ratio achieved", "error achieved/target − 1", "R2 first part, Ω (R2 itself when single)", "R2 second part, Ω (0 when single)"],
         example: Example {
             formula: "=NETWORK.PAIR(\"non-inverting\"; 7.5; \"E12\"; 10k; 100k; 3)",
             expected: Expected::Numbers(&[
@@ -405,14 +478,20 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
                 10000.0,
                 7.666666666666667,
                 0.022222222222222365,
+                10000.0,
+                0.0,
                 1800.0,
                 12000.0,
                 7.666666666666667,
                 0.022222222222222365,
+                12000.0,
+                0.0,
                 2700.0,
                 18000.0,
                 7.666666666666667,
                 0.022222222222222365,
+                18000.0,
+                0.0,
             ]),
             source: "every E12 pair in range enumerated from the eseries package's E12 values, the best R2 for each R1, ranked by |error|, then R1 + R2, then R1 (tests/reference/sheet_catalog.py)",
             tolerance: &[],

@@ -6,7 +6,7 @@ const s = summarizeFeedback('series-shunt', 1e5, 0.01);
 const wrong: string = s.closedLoopGain;
 const missing: number = s.bandwidth;
 import { monteCarlo } from 'loopwright';
-const mc = monteCarlo('inverting', 1e4, 4.7e4, 0.01, 0.01, 5e4, 1e5, 2e5, 1e6, 75, 5, 'uniform', 3, 'uniform', 3, 'gain', 1000, 7, undefined, undefined, 10);
+const mc = monteCarlo({ stage: 'inverting', r1: 1e4, r2: 4.7e4, tolR1: 0.01, tolR2: 0.01, aMin: 5e4, aTyp: 1e5, aMax: 2e5, ri: 1e6, ro: 75, poleHz: 5, trials: 1000, seed: 7 });
 const notThere: number = mc.stats.median;
 import { closedLoopBandwidth, circuitTwoPort } from 'loopwright';
 const bw = closedLoopBandwidth({ gain: 1e5, polesHz: [10] }, 0.01);

@@ -59,57 +59,39 @@ assert.equal(lw.parseValue('50 %', { percent: true }), 0.5);
 assert.deepEqual(Array.from(lw.parseList('12 Hz, 4 MHz', { unit: 'Hz' })), [12, 4e6]);
 throws(() => lw.parseValue('4k7k'), 'syntax', 'text');
 assert.equal(lw.formatValue(4700, 'Ω', 4), '4.7 kΩ');
-const pairs = lw.bestPairs('non-inverting', 11, 'E24', 1e3, 1e6, undefined, undefined, 'none', 3);
+const pairs = lw.bestPairs({
+  network: 'non-inverting',
+  target: 11,
+  series: 'E24',
+  totalMin: 1e3,
+  totalMax: 1e6,
+  count: 3,
+});
 assert.equal(pairs.idealRatio, 10); // 1 + R2/R1 = 11
 assert.ok(Math.abs(pairs.candidates[0].error) < 1e-12, 'E24 has exact decade ratios (e.g. 1k/10k)');
 throws(() => lw.standardValue('E7', 100, 'nearest'), 'unknown_name', 'series');
-const mc1 = lw.monteCarlo(
-  'inverting',
-  10e3,
-  47e3,
-  0.01,
-  0.01,
-  5e4,
-  1e5,
-  2e5,
-  1e6,
-  75,
-  5,
-  'uniform',
-  3,
-  'uniform',
-  3,
-  'gain',
-  1000,
-  7,
-  undefined,
-  undefined,
-  10,
-);
-const mc2 = lw.monteCarlo(
-  'inverting',
-  10e3,
-  47e3,
-  0.01,
-  0.01,
-  5e4,
-  1e5,
-  2e5,
-  1e6,
-  75,
-  5,
-  'uniform',
-  3,
-  'uniform',
-  3,
-  'gain',
-  1000,
-  7,
-  undefined,
-  undefined,
-  10,
-);
+const stageOptions = {
+  stage: 'inverting',
+  r1: 10e3,
+  r2: 47e3,
+  tolR1: 0.01,
+  tolR2: 0.01,
+  aMin: 5e4,
+  aTyp: 1e5,
+  aMax: 2e5,
+  ri: 1e6,
+  ro: 75,
+  poleHz: 5,
+};
+const mcOptions = { ...stageOptions, trials: 1000, seed: 7, bins: 10 };
+const mc1 = lw.monteCarlo(mcOptions);
+const mc2 = lw.monteCarlo({ ...mcOptions });
 assert.equal(mc1.stats.mean, mc2.stats.mean, 'same seed, same numbers');
+throws(() => lw.monteCarlo({ ...mcOptions, tolR1: 0 }), 'out_of_domain', 'tolR1');
+// The spread of A keeps GBW = aTyp·poleHz by default: at A = aMax the pole is at
+// 500 kHz/2e5 = 2.5 Hz, so the narrowest bandwidth is 2.5·(1 + 2e5·β) (closed form).
+const wc = lw.worstCase(stageOptions);
+assert.ok(Math.abs(wc.bandwidthHz.min / (2.5 * (1 + 2e5 * (9.9e3 / 57.37e3))) - 1) < 1e-12);
 
 // Distortion and noise. 4kTR: 1 kΩ at 300 K ≈ 4.07 nV/√Hz (common practice, no source).
 assert.ok(Math.abs(lw.thermalNoiseDensity(1e3, 300) - 4.07e-9) < 0.01e-9);
@@ -118,23 +100,34 @@ assert.ok(Math.abs(lw.fullPowerBandwidth(1e6, 10) - 1e6 / (2 * Math.PI * 10)) < 
 // Closed-loop series: b1 = a1/(1 + a1·β) (Gray, Hurst, Lewis & Meyer, 5th ed., ch. 8, from memory).
 assert.ok(Math.abs(lw.closedLoopSeries(1e4, 1e6, -2e10, 0.01).a1 - 1e4 / 101) < 1e-9);
 throws(() => lw.thermalNoiseDensity(1e3, -1), 'out_of_domain', 'temperature_k');
-const sweep = lw.noiseDensitySweep(
-  'non-inverting',
-  9e3,
-  1e3,
-  0,
-  300,
-  4e-9,
-  10,
-  1e-12,
-  100,
-  10e6,
-  new Float64Array(0),
-  1,
-  1e7,
-  50,
-);
+const noiseStage = {
+  kind: 'non-inverting',
+  rFeedback: 9e3,
+  rGain: 1e3,
+  voltageDensity: 4e-9,
+  voltageCornerHz: 10,
+  currentDensity: 1e-12,
+  currentCornerHz: 100,
+  gbwHz: 10e6,
+};
+const sweep = lw.noiseDensitySweep({ ...noiseStage, fStart: 1, fStop: 1e7, points: 50 });
 assert.ok(sweep.frequencies instanceof Float64Array && sweep.frequencies.length === 50);
+// The noise bandwidth is that of the band integrated: below f_c = 1 MHz, about the
+// band's width (fc·(atan(fH/fc) − atan(fL/fc)), the Lorentzian's integral).
+const band = lw.integratedNoise({ ...noiseStage, fLow: 20, fHigh: 20e3 });
+const lorentz = 1e6 * (Math.atan(20e3 / 1e6) - Math.atan(20 / 1e6));
+assert.ok(Math.abs(band.noiseBandwidthHz / lorentz - 1) < 1e-9);
+throws(() => lw.integratedNoise({ ...noiseStage, fLow: -1 }), 'out_of_domain', 'fLow');
+const hd = lw.distortionAtFrequency({
+  a1: 4.167e5,
+  a2: 1e8,
+  a3: -2e12,
+  beta: 0.01,
+  amplitude: 1,
+  poleHz: 12,
+  frequencyHz: 1e3,
+});
+assert.ok(Math.abs(hd.loopGains[0].magnitude - 50) < 0.05, 'loop gain at 1 kHz ≈ 50');
 
 // Frequency response and stability. A single-pole amplifier A(s) = A0/(1 + s/ωp) with
 // A0 = 10⁵, fp = 10 Hz, and β = 0.01: T0 = 1000, D = 1001, so the closed loop is a

@@ -31,10 +31,10 @@ export async function run(): Promise<number> {
     const err = e as LoopwrightError;
     if (err.code === 'unknown_name') return err.param.length;
   }
-  const pairs: PairResult = bestPairs('non-inverting', 11, 'E24', 1e3, 1e6, undefined, undefined, 'none', 3);
+  const pairs: PairResult = bestPairs({ network: 'non-inverting', target: 11, series: 'E24', totalMin: 1e3, totalMax: 1e6, count: 3 });
   const r2: number = pairs.candidates[0].r2.value;
-  const noise: IntegratedNoise = integratedNoise('inverting', 1e4, 1e3, 0, 300, 4e-9, 10, 1e-12, 100, 1e7, new Float64Array(0), 10, Infinity);
-  const hd: FeedbackDistortion = feedbackDistortion(1e4, 1e6, -2e10, 0.01, 1, 'output');
+  const noise: IntegratedNoise = integratedNoise({ kind: 'inverting', rFeedback: 1e4, rGain: 1e3, voltageDensity: 4e-9, voltageCornerHz: 10, currentDensity: 1e-12, currentCornerHz: 100, gbwHz: 1e7, fLow: 10 });
+  const hd: FeedbackDistortion = feedbackDistortion({ a1: 1e4, a2: 1e6, a3: -2e10, beta: 0.01, amplitude: 1, amplitudeAt: 'output' });
   const ratio: number | null = hd.hd2Ratio;
   const sheet = new Worksheet();
   const touched: string[] = sheet.setCell('A1', '=FEEDBACK.GAIN(100k; 0.01)');

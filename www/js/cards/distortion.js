@@ -1,5 +1,6 @@
 // Calculator cards of distortion, noise and slew rate.
 
+import { formatEngineering, formatPlain } from '../format.js';
 import { lineChart } from '../plot/chart.js';
 
 const STAGE_KINDS = [
@@ -11,31 +12,58 @@ export const distortionCard = {
   id: 'card-distortion',
   title: 'Distortion under feedback',
   blurb:
-    'A weakly nonlinear amplifier y = a1·x + a2·x² + a3·x³ inside a loop with feedback β, compared with the open loop at the same output amplitude.',
+    'A weakly nonlinear amplifier y = a1·x + a2·x² + a3·x³ after a dominant pole, inside a loop with feedback β, compared with the open loop at the same output amplitude. The loop corrects each harmonic with its loop gain at that harmonic: above the pole far less than at DC.',
   formula:
-    'D = 1 + a1·β    b1 = a1/D    b2 = a2/D³    b3 = (a3·D − 2·a2²·β)/D⁵\nHD2 ≈ |b2|·X/(2·|b1|)    HD3 ≈ |b3|·X²/(4·|b1|)  (X: input peak)',
+    'T(f) = a1·β/(1 + j·f/fp)    HD2 ≈ |a2|·V/(2·|a1|·|1 + T(2f)|)\nHD3 ≈ V²·|a3/4 − a2²·β·L(2f)/(2·(1 + T(2f)))|/(|a1|·|1 + T(3f)|)    V = Y/|a1|, L = T/(a1·β)',
   inputs: [
     { name: 'a1', label: 'a1 (small-signal gain)', value: '10k' },
     { name: 'a2', label: 'a2', value: '1M', unit: '1/V' },
     { name: 'a3', label: 'a3', value: '-20G', unit: '1/V²' },
     { name: 'beta', label: 'Feedback factor β', value: '0.01' },
     { name: 'amplitude', label: 'Output peak', value: '1', unit: 'V' },
+    { name: 'pole', label: 'Dominant pole of the amplifier', value: '100', unit: 'Hz' },
+    { name: 'frequency', label: 'Signal frequency', value: '1k', unit: 'Hz' },
   ],
-  compute({ a1, a2, a3, beta, amplitude }, api) {
-    const r = api.feedbackDistortion(a1, a2, a3, beta, amplitude, 'output');
+  aliases: { poleHz: 'pole', frequencyHz: 'frequency' },
+  compute({ a1, a2, a3, beta, amplitude, pole, frequency }, api) {
+    const r = api.distortionAtFrequency({
+      a1,
+      a2,
+      a3,
+      beta,
+      amplitude,
+      amplitudeAt: 'output',
+      poleHz: pole,
+      frequencyHz: frequency,
+    });
     const top = r.closed.inputAmplitude * 10;
-    const sweep = api.seriesValiditySweep(a1, a2, a3, beta, top / 1000, top, 60, 0.1, 256);
+    const sweep = api.seriesValiditySweep({
+      a1,
+      a2,
+      a3,
+      beta,
+      amplitudeMin: top / 1000,
+      amplitudeMax: top,
+      points: 60,
+      tolerance: 0.1,
+      samples: 256,
+    });
+    const gain = (g) => `${formatPlain(g.magnitude)} ∠ ${g.phaseDeg.toFixed(1)}°`;
+    const pcts = (x, y) => `${(x * 100).toPrecision(4)} % / ${(y * 100).toPrecision(4)} %`;
     const rows = [
-      { name: 'd', label: 'Amount of feedback D', value: r.feedbackAmount, format: 'plain' },
+      { name: 't0', label: 'Loop gain at DC', value: r.dcLoopGain, format: 'plain' },
+      { name: 't1', label: 'Loop gain used at f', text: gain(r.loopGains[0]) },
       {
-        name: 'hd2open',
-        label: 'HD2 open / closed',
-        text: `${(r.open.hd2 * 100).toPrecision(4)} % / ${(r.closed.hd2 * 100).toPrecision(4)} %`,
+        name: 't23',
+        label: 'at 2f / 3f',
+        text: `${gain(r.loopGains[1])} / ${gain(r.loopGains[2])}`,
       },
+      { name: 'hd2open', label: 'HD2 open / closed', text: pcts(r.open.hd2, r.closed.hd2) },
+      { name: 'hd3open', label: 'HD3 open / closed', text: pcts(r.open.hd3, r.closed.hd3) },
       {
-        name: 'hd3open',
-        label: 'HD3 open / closed',
-        text: `${(r.open.hd3 * 100).toPrecision(4)} % / ${(r.closed.hd3 * 100).toPrecision(4)} %`,
+        name: 'dc',
+        label: 'Closed HD2 / HD3 with the DC loop gain',
+        text: pcts(r.closedAtDc.hd2, r.closedAtDc.hd3),
       },
       {
         name: 'hd2ratio',
@@ -46,7 +74,7 @@ export const distortionCard = {
       },
       {
         name: 'fold',
-        label: 'Loop folds at input peak',
+        label: 'Static loop folds at input peak',
         value: sweep.foldAmplitude ?? Number.NaN,
         unit: 'V',
         text: sweep.foldAmplitude === null ? 'beyond the sweep' : undefined,
@@ -61,7 +89,7 @@ export const distortionCard = {
     ];
     const pct = (arr) => Array.from(arr, (v) => 100 * Math.abs(v));
     const svg = lineChart({
-      title: 'Closed-loop HD3: series formula vs exact solution',
+      title: 'Closed-loop HD3 at DC: series formula vs exact solution',
       x: { label: 'input peak (V)', log: true },
       y: { label: 'HD3 (%)', log: true },
       series: [
@@ -90,6 +118,8 @@ const noiseInputs = [
   { name: 'in_corner', label: 'in 1/f corner', value: '100', unit: 'Hz' },
   { name: 'gbw', label: 'Gain-bandwidth', value: '10M', unit: 'Hz' },
   { name: 'temperature', label: 'Temperature', value: '300', unit: 'K' },
+  { name: 'f_low', label: 'Band from', value: '10', unit: 'Hz' },
+  { name: 'f_high', label: 'Band to (empty: no upper edge)', value: '', list: true, unit: 'Hz' },
 ];
 
 export const noiseCard = {
@@ -98,36 +128,53 @@ export const noiseCard = {
   blurb:
     'Output and input-referred noise of an op-amp stage: amplifier en and in with 1/f corners, 4kTR of every resistor, over the closed-loop response.',
   formula:
-    'noise gain NG = 1 + Rf/Rg    e_R = √(4kTR)    H(f) = 1/(1 + j·f·NG/GBW)\nv_out,rms = √∫ e_out²(f)·|H(f)|² df    single pole: NBW = π/2 · f−3dB',
+    'noise gain NG = 1 + Rf/Rg    e_R = √(4kTR)    H(f) = 1/(1 + j·f·NG/GBW)\nv_out,rms = √∫ e_out²(f)·|H(f)|² df from f_low to f_high    NBW = ∫ |H(f)|² df over the same band (single pole, 0 … ∞: π/2 · f−3dB)',
   inputs: noiseInputs,
+  aliases: {
+    rFeedback: 'r_feedback',
+    rGain: 'r_gain',
+    rPlus: 'r_plus',
+    voltageDensity: 'en',
+    voltageCornerHz: 'en_corner',
+    currentDensity: 'in',
+    currentCornerHz: 'in_corner',
+    gbwHz: 'gbw',
+    temperatureK: 'temperature',
+    fLow: 'f_low',
+    fHigh: 'f_high',
+  },
   compute(v, api) {
-    const args = [
-      v.kind,
-      v.r_feedback,
-      v.r_gain,
-      v.r_plus,
-      v.temperature,
-      v.en,
-      v.en_corner,
-      v.in,
-      v.in_corner,
-    ];
-    const at1k = api.stageNoiseContributions(...args, 1e3);
-    const total = api.integratedNoise(
-      ...args,
-      v.gbw,
-      new Float64Array(0),
-      10,
-      Number.POSITIVE_INFINITY,
-    );
-    const sweep = api.noiseDensitySweep(
-      ...args,
-      v.gbw,
-      new Float64Array(0),
-      1,
-      Math.max(10, total.bandwidthHz * 30),
-      200,
-    );
+    if (v.f_high.length > 1) throw new Error('give one upper band edge, or none');
+    const stage = {
+      kind: v.kind,
+      rFeedback: v.r_feedback,
+      rGain: v.r_gain,
+      rPlus: v.r_plus,
+      temperatureK: v.temperature,
+      voltageDensity: v.en,
+      voltageCornerHz: v.en_corner,
+      currentDensity: v.in,
+      currentCornerHz: v.in_corner,
+    };
+    const at1k = api.stageNoiseContributions({ ...stage, frequencyHz: 1e3 });
+    const total = api.integratedNoise({
+      ...stage,
+      gbwHz: v.gbw,
+      fLow: v.f_low,
+      fHigh: v.f_high[0],
+    });
+    const top = total.fHigh ?? total.bandwidthHz * 30;
+    const sweep = api.noiseDensitySweep({
+      ...stage,
+      gbwHz: v.gbw,
+      fStart: Math.min(1, v.f_low > 0 ? v.f_low : 1),
+      fStop: Math.max(10, top, total.bandwidthHz * 3),
+      points: 200,
+    });
+    const band =
+      total.fHigh === null
+        ? `${formatEngineering(total.fLow)}Hz up`
+        : `${formatEngineering(total.fLow)}Hz … ${formatEngineering(total.fHigh)}Hz`;
     const nv = (x) => Array.from(x, (d) => d * 1e9);
     const svg = lineChart({
       title: 'Noise density',
@@ -142,7 +189,10 @@ export const noiseCard = {
           kind: 'b',
         },
       ],
-      markers: [{ x: total.bandwidthHz, label: '−3 dB' }],
+      markers: [
+        { x: total.bandwidthHz, label: '−3 dB' },
+        ...(total.fHigh === null ? [] : [{ x: total.fHigh, label: 'band top', align: 'left' }]),
+      ],
     });
     return {
       rows: [
@@ -162,10 +212,15 @@ export const noiseCard = {
           format: 'plain',
         },
         { name: 'bw', label: 'Closed-loop −3 dB', value: total.bandwidthHz, unit: 'Hz' },
-        { name: 'nbw', label: 'Noise bandwidth', value: total.noiseBandwidthHz, unit: 'Hz' },
+        {
+          name: 'nbw',
+          label: 'Noise bandwidth of the band',
+          value: total.noiseBandwidthHz,
+          unit: 'Hz',
+        },
         {
           name: 'rms',
-          label: 'Output noise, 10 Hz up',
+          label: `Output noise, ${band}`,
           value: total.outputRms * 1e6,
           unit: 'µV rms',
           format: 'plain',

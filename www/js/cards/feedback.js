@@ -2,11 +2,14 @@
 
 import { TOPOLOGY_CHOICES } from '../constants.js';
 
+// The shared classification of the loop's sense (src/feedback/gain.rs, FeedbackSense).
 const SENSE_TEXT = {
-  negative: 'negative feedback (|D| > 1)',
-  neutral: 'no net feedback (|D| = 1)',
-  positive: 'POSITIVE feedback (|D| < 1): gain raised, stability at risk',
+  negative: 'negative feedback (D > 1)',
+  neutral: 'no net feedback (D = 1)',
+  positive: 'POSITIVE feedback (0 < D < 1): gain raised, stability at risk',
   oscillation: 'oscillation condition (D = 0)',
+  latching:
+    'LATCHING or unstable (D < 0: loop gain below −1): not negative feedback; Af, Zif and Zof are formula values with no working stage behind them',
 };
 
 const gainUnit = ({ topology }, api) => api.topologyInfo(topology).gainUnit;

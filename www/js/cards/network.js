@@ -42,23 +42,34 @@ export const pairCard = {
       value: 'none',
       choices: [
         ['none', 'single resistor'],
+        ['series', 'series pair'],
+        ['parallel', 'parallel pair'],
         ['either', 'series or parallel pair'],
       ],
     },
+    { name: 'max_error', label: 'Largest error (empty: none)', value: '', list: true, unit: '' },
   ],
-  compute({ network, target, series, total_min, total_max, combine }, api) {
-    const r = api.bestPairs(
+  aliases: { totalMin: 'total_min', totalMax: 'total_max', maxError: 'max_error' },
+  compute({ network, target, series, total_min, total_max, combine, max_error }, api) {
+    if (max_error.length > 1) throw new Error('give one largest error, or none');
+    const r = api.bestPairs({
       network,
       target,
       series,
-      total_min,
-      total_max,
-      undefined,
-      undefined,
+      totalMin: total_min,
+      totalMax: total_max,
+      maxError: max_error[0],
       combine,
-      5,
-    );
+      count: 5,
+    });
     const rows = [{ name: 'ideal', label: 'Ideal R2/R1', value: r.idealRatio, format: 'plain' }];
+    if (max_error.length === 1) {
+      rows.push({
+        name: 'meets',
+        label: 'Best meets the largest error',
+        text: r.meetsMaxError ? 'yes' : 'no: the first row is the best miss',
+      });
+    }
     r.candidates.forEach((c, i) => {
       rows.push({
         name: `pair${i + 1}`,
@@ -78,30 +89,57 @@ const stageInputs = [
   { name: 'a_min', label: 'A min', value: '60k' },
   { name: 'a_typ', label: 'A typ', value: '250k' },
   { name: 'a_max', label: 'A max', value: '1M' },
+  { name: 'pole', label: 'Dominant pole at A typ', value: '10', unit: 'Hz' },
+  {
+    name: 'hold',
+    label: 'A spread holds',
+    value: 'gbw',
+    choices: [
+      ['gbw', 'gain-bandwidth (pole moves)'],
+      ['pole', 'the pole'],
+    ],
+  },
+  { name: 'ri', label: 'Amplifier Ri', value: '1M', unit: 'Ω' },
+  { name: 'ro', label: 'Amplifier Ro', value: '75', unit: 'Ω' },
 ];
+
+/** The card input that an error's `param` (the option's name) points at. */
+const STAGE_ALIASES = {
+  tolR1: 'tol',
+  tolR2: 'tol',
+  aMin: 'a_min',
+  aTyp: 'a_typ',
+  aMax: 'a_max',
+  poleHz: 'pole',
+};
+
+/** The stage options of worstCase and monteCarlo from the card's values. */
+const stageOptions = (v) => ({
+  stage: v.stage,
+  r1: v.r1,
+  r2: v.r2,
+  tolR1: v.tol,
+  tolR2: v.tol,
+  aMin: v.a_min,
+  aTyp: v.a_typ,
+  aMax: v.a_max,
+  ri: v.ri,
+  ro: v.ro,
+  poleHz: v.pole,
+  hold: v.hold,
+});
 
 export const worstCaseCard = {
   id: 'card-worst',
   title: 'Worst case',
   blurb:
-    'Extremes of the closed-loop gain over every corner of resistor tolerance and open-loop gain (op-amp stage, 1 MΩ input, 75 Ω output, 10 Hz dominant pole).',
-  formula: 'corners: R1 ± tol, R2 ± tol, A ∈ {A min, A max}\nAf = A/(1 + A·β), β = R1/(R1 + R2)',
+    'Extremes of the closed-loop gain, impedances and bandwidth over every corner of resistor tolerance and open-loop gain. A real op-amp keeps its gain-bandwidth product as A spreads, so by default the dominant pole moves to GBW/A.',
+  formula:
+    'corners: R1 ± tol, R2 ± tol, A ∈ {A min, A max}\nAf = A/(1 + A·β), β = R1/(R1 + R2)    GBW = A typ · pole    f−3dB = (GBW/A)·(1 + A·β)',
   inputs: stageInputs,
-  aliases: { tol_r1: 'tol', tol_r2: 'tol' },
+  aliases: STAGE_ALIASES,
   compute(v, api) {
-    const w = api.worstCase(
-      v.stage,
-      v.r1,
-      v.r2,
-      v.tol,
-      v.tol,
-      v.a_min,
-      v.a_typ,
-      v.a_max,
-      1e6,
-      75,
-      10,
-    );
+    const w = api.worstCase(stageOptions(v));
     const corner = (c) => `R1 ${c.r1}, R2 ${c.r2}, A ${c.openLoopGain}`;
     return [
       { name: 'nominal', label: 'Nominal gain', value: w.gain.nominal, format: 'plain' },
@@ -120,6 +158,19 @@ export const worstCaseCard = {
         text: `${formatEngineering(w.bandwidthHz.min)} … ${formatEngineering(w.bandwidthHz.max)}`,
         unit: 'Hz',
       },
+      { name: 'gbw', label: 'GBW (A typ · pole)', value: v.a_typ * v.pole, unit: 'Hz' },
+      {
+        name: 'zin',
+        label: 'Input impedance range',
+        text: `${formatEngineering(w.inputImpedance.min)} … ${formatEngineering(w.inputImpedance.max)}`,
+        unit: 'Ω',
+      },
+      {
+        name: 'zout',
+        label: 'Output impedance range',
+        text: `${formatEngineering(w.outputImpedance.min)} … ${formatEngineering(w.outputImpedance.max)}`,
+        unit: 'Ω',
+      },
     ];
   },
 };
@@ -128,40 +179,39 @@ export const monteCarloCard = {
   id: 'card-montecarlo',
   title: 'Monte Carlo',
   blurb:
-    'Seeded random builds of the stage: resistors uniform within tolerance, open-loop gain uniform between min and max. The same seed gives the same numbers everywhere.',
+    'Seeded random builds of the stage: resistors uniform within tolerance, open-loop gain drawn between min and max around typical (default: log-normal with its median at A typ, min and max 3 σ out on their sides). The same seed gives the same numbers everywhere.',
   formula: 'Af = A/(1 + A·R1/(R1 + R2)) per trial; yield = share of trials inside the limits',
   inputs: [
     ...stageInputs,
+    {
+      name: 'gain_distribution',
+      label: 'A distribution',
+      value: 'log-normal',
+      choices: [
+        ['log-normal', 'log-normal, median at A typ'],
+        ['log-triangular', 'log-triangular, mode at A typ'],
+        ['log-uniform', 'log-uniform (A typ unused)'],
+        ['uniform', 'uniform (A typ unused)'],
+      ],
+    },
     { name: 'trials', label: 'Trials', value: '100k' },
     { name: 'seed', label: 'Seed', value: '1' },
     { name: 'lower', label: 'Spec low', value: '39.8' },
     { name: 'upper', label: 'Spec high', value: '40.2' },
   ],
-  aliases: { tol_r1: 'tol', tol_r2: 'tol' },
+  aliases: STAGE_ALIASES,
   compute(v, api) {
-    const r = api.monteCarlo(
-      v.stage,
-      v.r1,
-      v.r2,
-      v.tol,
-      v.tol,
-      v.a_min,
-      v.a_typ,
-      v.a_max,
-      1e6,
-      75,
-      10,
-      'uniform',
-      3,
-      'uniform',
-      3,
-      'gain',
-      v.trials,
-      v.seed,
-      v.lower,
-      v.upper,
-      40,
-    );
+    const r = api.monteCarlo({
+      ...stageOptions(v),
+      resistorDistribution: 'uniform',
+      gainDistribution: v.gain_distribution,
+      metric: 'gain',
+      trials: v.trials,
+      seed: v.seed,
+      lower: v.lower,
+      upper: v.upper,
+      bins: 40,
+    });
     const s = r.stats;
     const p = Object.fromEntries(s.percentiles.map((x) => [x.percent, x.value]));
     const svg = histogramChart({
@@ -176,6 +226,7 @@ export const monteCarloCard = {
     });
     return {
       rows: [
+        { name: 'nominal', label: 'Nominal (A typ)', value: r.nominal, format: 'plain' },
         { name: 'mean', label: 'Mean', value: s.mean, format: 'plain' },
         { name: 'sd', label: 'Standard deviation', value: s.sd, format: 'plain' },
         {
