@@ -1,15 +1,65 @@
 // The worksheet panel: toolbar (open, save, CSV, share link, demo), the grid, the
-// function help, and autosave with recovery after a reload.
+// function help, the autosave with recovery after a reload, and the list of
+// replaced sheets.
+//
+// Nothing the user typed is lost: every load that replaces the sheet (a share link,
+// a file, the demo, an earlier sheet) first succeeds on the engine, which leaves the
+// sheet as it was when it refuses a document, and only then keeps the sheet it
+// replaced in the list of replaced sheets, with an undo in the message. A failed
+// autosave is shown, with the offer to save to a file, until one succeeds.
 
-import { el } from '../dom.js';
+import { el, clear } from '../dom.js';
 import { mountGrid } from './grid.js';
 import { mountHelp } from './help.js';
 import * as store from './storage.js';
+import { createReplaced } from './replaced.js';
+import { mountReplacedView, whenText } from './replaced-view.js';
 import { DEMO_SHEET } from './demo.js';
+
+/** Delay between the last edit and its autosave, ms. */
+const AUTOSAVE_DELAY_MS = 300;
+
+const button = (id, label, onclick) =>
+  el('button', { type: 'button', class: 'button', id, onclick }, label);
+
+const megabytes = (bytes) => `${(bytes / 1e6).toFixed(1)} MB`;
+
+function toolbar(actions, fileInput) {
+  return el(
+    'div',
+    { class: 'sheet-toolbar', role: 'toolbar', 'aria-label': 'worksheet' },
+    button('sheet-open', 'Open…', () => fileInput.click()),
+    button('sheet-save', 'Save file', actions.save),
+    button('sheet-csv', 'Values as CSV', actions.csv),
+    button('sheet-share', 'Share link', actions.share),
+    button('sheet-demo', 'Load demo', actions.demo),
+    fileInput,
+  );
+}
+
+/** What the warning says when an autosave was not kept. */
+function unsavedText(outcome) {
+  return outcome.reason === 'full'
+    ? `Not kept in this browser: the sheet (${megabytes(outcome.bytes)}) does not fit in its storage, even compressed, so a reload would lose your latest edits. Save it to a file to keep it.`
+    : 'Not kept in this browser: it does not let this page store anything here, so a reload would lose the sheet. Save it to a file to keep it.';
+}
+
+/** What the share message says about who can open the link. */
+function shareScope() {
+  return location.protocol === 'file:'
+    ? 'It carries the whole sheet, but it points to the page file on this computer: it opens only where that file is at the same place. To share the sheet, send the page file with the sheet saved as a file.'
+    : 'It carries the whole sheet; anyone who opens it gets a copy.';
+}
 
 export async function mountWorksheet(host, api) {
   const sheet = new api.Worksheet();
   const note = el('p', { class: 'sheet-note', role: 'status', 'aria-live': 'polite' });
+  const warning = el('div', {
+    class: 'sheet-warning',
+    id: 'sheet-warning',
+    role: 'alert',
+    hidden: true,
+  });
   const fileInput = el('input', {
     type: 'file',
     accept: '.json,application/json',
@@ -23,59 +73,103 @@ export async function mountWorksheet(host, api) {
     'aria-label': 'share link',
     hidden: true,
   });
-  const toolbar = el(
-    'div',
-    { class: 'sheet-toolbar', role: 'toolbar', 'aria-label': 'worksheet' },
-    el(
-      'button',
-      { type: 'button', class: 'button', id: 'sheet-open', onclick: () => fileInput.click() },
-      'Open…',
-    ),
-    el(
-      'button',
-      { type: 'button', class: 'button', id: 'sheet-save', onclick: () => store.saveFile(sheet) },
-      'Save file',
-    ),
-    el(
-      'button',
-      { type: 'button', class: 'button', id: 'sheet-csv', onclick: () => store.exportCsv(sheet) },
-      'Values as CSV',
-    ),
-    el(
-      'button',
-      { type: 'button', class: 'button', id: 'sheet-share', onclick: share },
-      'Share link',
-    ),
-    el(
-      'button',
-      { type: 'button', class: 'button', id: 'sheet-demo', onclick: loadDemo },
-      'Load demo',
-    ),
-    fileInput,
-  );
   const gridHost = el('div', { class: 'sheet-main' });
   const helpHost = el('aside', { class: 'sheet-help', 'aria-label': 'function help' });
-  host.append(toolbar, note, shareOut, el('div', { class: 'sheet-layout' }, gridHost, helpHost));
+  host.append(
+    toolbar(
+      {
+        save: () => store.saveFile(sheet),
+        csv: () => store.exportCsv(sheet),
+        share,
+        demo: loadDemo,
+      },
+      fileInput,
+    ),
+    note,
+    warning,
+    shareOut,
+  );
+  const replaced = createReplaced();
+  const renderReplaced = mountReplacedView(host, { onRestore: restore });
+  host.append(el('div', { class: 'sheet-layout' }, gridHost, helpHost));
 
   let saveTimer = null;
   const grid = mountGrid(gridHost, sheet, {
     onChange() {
       clearTimeout(saveTimer);
-      saveTimer = setTimeout(() => store.autosave(sheet), 300);
+      saveTimer = setTimeout(saveNow, AUTOSAVE_DELAY_MS);
     },
   });
   mountHelp(helpHost, api.functionCatalog(), { onUse: (formula) => grid.propose(formula) });
 
-  function load(text, what) {
+  /** Autosave at once, and show or clear the warning of a failed one. */
+  async function saveNow() {
+    clearTimeout(saveTimer);
+    saveTimer = null;
+    const outcome = await store.autosave(sheet.saveDocument());
+    host.dataset.autosave = outcome.ok ? (outcome.packed ? 'packed' : 'plain') : 'failed';
+    clear(warning);
+    warning.hidden = outcome.ok;
+    if (!outcome.ok)
+      warning.append(
+        unsavedText(outcome),
+        ' ',
+        button('sheet-warning-save', 'Save to a file', () => store.saveFile(sheet)),
+      );
+    return outcome;
+  }
+
+  // The page is going away with an autosave pending: one last plain write.
+  window.addEventListener('pagehide', () => {
+    if (saveTimer === null) return;
+    clearTimeout(saveTimer);
+    saveTimer = null;
+    store.autosaveNow(sheet.saveDocument());
+  });
+
+  function undoButton(entry) {
+    return button('sheet-undo', 'Undo: put back the sheet it replaced', () => restore(entry));
+  }
+
+  /**
+   * Replace the sheet with `text`; on success keep the sheet it replaced (unless
+   * empty) as replaced `reason`. Resolves to `{entry}` on success, null when the
+   * engine refused the document (the sheet, the screen and the storage unchanged).
+   */
+  async function replaceWith(text, what, reason) {
+    const before = sheet.saveDocument();
     try {
       sheet.loadDocument(text);
     } catch (err) {
       note.textContent = `${what} was not loaded: ${err.message}. The sheet is as it was.`;
-      return false;
+      return null;
     }
     grid.refresh();
-    store.autosave(sheet);
-    return true;
+    const entry = await replaced.add(before, reason);
+    renderReplaced(replaced.list());
+    await saveNow();
+    return { entry };
+  }
+
+  /** Show `message`, with the undo of the replacement that `done` reports. */
+  function announce(done, message) {
+    note.textContent = message;
+    if (done.entry) note.append(' ', undoButton(done.entry));
+  }
+
+  async function restore(entry) {
+    let text;
+    try {
+      text = await replaced.text(entry);
+    } catch (err) {
+      note.textContent = `That sheet could not be put back: ${err.message}. The sheet is as it was.`;
+      return;
+    }
+    const done = await replaceWith(text, 'The earlier sheet', 'when an earlier sheet was put back');
+    if (!done) return;
+    replaced.remove(entry);
+    renderReplaced(replaced.list());
+    note.textContent = `The sheet replaced ${whenText(entry.at)} is back. The one it replaced is under Replaced sheets.`;
   }
 
   async function share() {
@@ -83,67 +177,97 @@ export async function mountWorksheet(host, api) {
     shareOut.hidden = false;
     shareOut.value = url;
     shareOut.select();
+    let copied = true;
     try {
       await navigator.clipboard.writeText(url);
-      note.textContent =
-        'Share link copied. It carries the whole sheet; anyone who opens it gets a copy.';
     } catch {
-      note.textContent = 'Share link ready below; copy it from the box.';
+      copied = false;
     }
+    note.textContent = `${copied ? 'Share link copied.' : 'Share link ready below; copy it from the box.'} ${shareScope()}`;
   }
 
-  function loadDemo() {
-    if (load(DEMO_SHEET, 'The demo'))
-      note.textContent =
-        'Demo loaded: a hydrophone preamplifier and its line driver. Change any blue input.';
+  async function loadDemo() {
+    const done = await replaceWith(DEMO_SHEET, 'The demo', 'by the demo');
+    if (done)
+      announce(
+        done,
+        'Demo loaded: a hydrophone preamplifier and its line driver. Change any blue input.',
+      );
   }
 
   fileInput.addEventListener('change', async () => {
     const file = fileInput.files?.[0];
     if (!file) return;
-    if (load(await store.readFile(file), `"${file.name}"`))
-      note.textContent = `Opened "${file.name}".`;
     fileInput.value = '';
+    const done = await replaceWith(
+      await store.readFile(file),
+      `"${file.name}"`,
+      `by the file "${file.name}"`,
+    );
+    if (done) announce(done, `Opened "${file.name}".`);
   });
 
-  // Start: a share link wins (the previous autosave is kept aside); otherwise the
-  // autosave of this browser is recovered.
-  let fromLink = null;
-  try {
-    fromLink = await store.decodeFragment(location.hash);
-  } catch (err) {
-    note.textContent = `The link's sheet could not be read: ${err.message}.`;
-  }
-  if (fromLink !== null) {
-    const hadSaved = store.backUpAutosave();
+  const openedFromLink = await start();
+  renderReplaced(replaced.list());
+  grid.refresh();
+  return { sheet, grid, openedFromLink };
+
+  /**
+   * Start: a share link wins when the engine takes its sheet, and the autosave it
+   * replaces joins the replaced sheets; a link that cannot be read or is refused
+   * leaves the autosave on screen and in storage. Resolves to true when the sheet
+   * came from a link.
+   */
+  async function start() {
+    let fromLink = null;
+    const messages = [];
+    try {
+      fromLink = await store.decodeFragment(location.hash);
+    } catch (err) {
+      messages.push(`The link's sheet could not be read: ${err.message}.`);
+    }
     // Drop the fragment so that a reload shows the autosave of later edits.
-    history.replaceState(null, '', location.href.replace(/#.*$/, ''));
-    if (load(fromLink, 'The shared sheet')) {
-      note.textContent = 'Opened the sheet from the link.';
-      if (hadSaved) {
-        note.append(
-          ' ',
-          el(
-            'button',
-            {
-              type: 'button',
-              class: 'button',
-              id: 'sheet-restore',
-              onclick: () => {
-                if (load(store.backup(), 'The previous sheet'))
-                  note.textContent = 'Your previous sheet is back.';
-              },
-            },
-            'Restore my previous sheet',
-          ),
-        );
+    if (/^#sheet=/.test(location.hash))
+      history.replaceState(null, '', location.href.replace(/#.*$/, ''));
+    let saved = null;
+    try {
+      saved = await store.recovered();
+    } catch (err) {
+      messages.push(`The sheet autosaved in this browser could not be read: ${err.message}.`);
+    }
+    await replaced.ready;
+    if (fromLink !== null) {
+      try {
+        sheet.loadDocument(fromLink);
+        const entry = saved ? await replaced.add(saved.text, 'by a share link') : null;
+        await saveNow();
+        announce({ entry }, 'Opened the sheet from the link.');
+        return true;
+      } catch (err) {
+        messages.push(`The link's sheet was not loaded: ${err.message}.`);
       }
     }
-  } else {
-    const saved = store.recovered();
-    if (saved && load(saved, 'The autosaved sheet'))
-      note.append(`${note.textContent ? ' ' : ''}Recovered your sheet from this browser.`);
+    if (saved) messages.push(await recover(saved, messages.length > 0));
+    note.textContent = messages.join(' ');
+    return false;
   }
-  grid.refresh();
-  return { sheet, grid };
+
+  /**
+   * Load the autosave; the sentence that says so. One the engine refuses joins the
+   * replaced sheets, so that the next edit's autosave does not take its only copy.
+   */
+  async function recover(saved, afterProblem) {
+    try {
+      sheet.loadDocument(saved.text);
+    } catch (err) {
+      await replaced.add(saved.text, 'when it could not be loaded on opening the page');
+      return `The sheet autosaved in this browser was not loaded: ${err.message}. Its text is kept under Replaced sheets.`;
+    }
+    const recovered = afterProblem
+      ? 'Your own sheet is shown as it was.'
+      : 'Recovered your sheet from this browser.';
+    return saved.behind
+      ? `${recovered} Edits made after ${whenText(saved.behind.at)} could not be kept (the sheet was ${megabytes(saved.behind.bytes)}).`
+      : recovered;
+  }
 }

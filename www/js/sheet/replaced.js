@@ -1,0 +1,75 @@
+// The sheets that loading a link, a file, the demo or an earlier sheet replaced:
+// the last few, newest first, each with when and why, kept in memory for this page
+// and in local storage (packed) for later visits, so that any of them can be put
+// back. Restoring one replaces the sheet too, so the one it replaces joins the list.
+
+import * as store from './storage.js';
+
+/** How many replaced sheets are kept. */
+export const REPLACED_KEPT = 5;
+
+/** Number of cells in a sheet document, or null when it is not a readable document. */
+export function cellCount(text) {
+  try {
+    const cells = JSON.parse(text)?.cells;
+    return cells && typeof cells === 'object' ? Object.keys(cells).length : null;
+  } catch {
+    return null;
+  }
+}
+
+/**
+ * The list of replaced sheets. Entries: `{at, reason, cells, packed, text, stored}`
+ * (`text` is filled when known; `stored` says whether a reload will still have it).
+ */
+export function createReplaced() {
+  let entries = store.readReplaced().map((e) => ({ ...e, text: null, stored: true }));
+  const legacy = store.takeLegacyBackup();
+  const ready = legacy
+    ? add(legacy, 'kept before a share link (earlier version of the page)')
+    : null;
+
+  function persist() {
+    const kept = store.writeReplaced(
+      entries.map(({ at, reason, cells, packed }) => ({ at, reason, cells, packed })),
+    );
+    entries.forEach((e, i) => {
+      e.stored = i < kept;
+    });
+  }
+
+  /**
+   * Keep `text` as replaced now because of `reason`. An empty sheet, or the same
+   * document as the newest entry, is not kept. Resolves to the entry or null.
+   */
+  async function add(text, reason, at = Date.now()) {
+    const cells = cellCount(text);
+    if (cells === 0) return null;
+    const packed = await store.storedForm(text, true);
+    if (entries[0]?.packed === packed) return null;
+    const entry = { at, reason, cells, packed, text, stored: false };
+    entries = [entry, ...entries].slice(0, REPLACED_KEPT);
+    persist();
+    return entry;
+  }
+
+  return {
+    /** Resolves when what an earlier version kept aside has joined the list. */
+    ready: ready ?? Promise.resolve(null),
+    add,
+    /** The entries, newest first (a copy). */
+    list() {
+      return entries.slice();
+    },
+    /** The document text of an entry. Throws when its stored copy is damaged. */
+    async text(entry) {
+      entry.text ??= await store.fromStoredForm(entry.packed);
+      return entry.text;
+    },
+    /** Take an entry out of the list (it has been put back). */
+    remove(entry) {
+      entries = entries.filter((e) => e !== entry);
+      persist();
+    },
+  };
+}
