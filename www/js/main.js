@@ -83,13 +83,15 @@ async function start() {
     if (i === 0) performance.mark('loopwright-first-result');
   });
   const sheetView = api.Worksheet
-    ? await mountWorksheet(document.getElementById('worksheet'), api)
+    ? await mountWorksheet(document.getElementById('worksheet'), api, {
+        onLink: () => select(document.getElementById('tab-sheet')),
+      })
     : null;
-  // The sheet's tab when a link brought a sheet, when asked for, or when it was
-  // open before a reload.
+  // The sheet's tab when the page came with a share link, when asked for, or when
+  // it was open before a reload.
   if (
     sheetView &&
-    (sheetView.openedFromLink ||
+    (sheetView.cameWithLink ||
       location.search.includes('view=sheet') ||
       rememberedView() === 'tab-sheet')
   )

@@ -11,11 +11,12 @@ export function whenText(at) {
 
 function line(entry, index, onRestore) {
   const cells = entry.cells === null ? '' : `, ${entry.cells} cell${entry.cells === 1 ? '' : 's'}`;
+  const first = entry.first ? ` starting “${entry.first}”` : '';
   const kept = entry.stored ? '' : ' (kept only until this page is closed: too large to store)';
   return el(
     'li',
     {},
-    `${whenText(entry.at)}: replaced ${entry.reason}${cells}${kept} `,
+    `${whenText(entry.at)}: replaced ${entry.reason}${cells}${first}${kept} `,
     el(
       'button',
       {

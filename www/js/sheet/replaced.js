@@ -8,18 +8,33 @@ import * as store from './storage.js';
 /** How many replaced sheets are kept. */
 export const REPLACED_KEPT = 5;
 
-/** Number of cells in a sheet document, or null when it is not a readable document. */
-export function cellCount(text) {
+/** Characters of the first cell shown to tell replaced sheets apart. */
+const PREVIEW_CHARS = 40;
+
+/**
+ * What tells a sheet document apart in the list: `{cells, first}`, the number of
+ * cells and the start of the first cell's input; both null when the text is not a
+ * readable document.
+ */
+export function describe(text) {
   try {
     const cells = JSON.parse(text)?.cells;
-    return cells && typeof cells === 'object' ? Object.keys(cells).length : null;
+    if (!cells || typeof cells !== 'object') return { cells: null, first: null };
+    const inputs = Object.values(cells).filter((v) => typeof v === 'string');
+    const first = inputs[0] ?? null;
+    return {
+      cells: Object.keys(cells).length,
+      first:
+        first && first.length > PREVIEW_CHARS ? `${first.slice(0, PREVIEW_CHARS - 1)}…` : first,
+    };
   } catch {
-    return null;
+    return { cells: null, first: null };
   }
 }
 
 /**
- * The list of replaced sheets. Entries: `{at, reason, cells, packed, text, stored}`
+ * The list of replaced sheets. Entries: `{at, reason, cells, first, packed, text,
+ * stored}`
  * (`text` is filled when known; `stored` says whether a reload will still have it).
  */
 export function createReplaced() {
@@ -31,7 +46,7 @@ export function createReplaced() {
 
   function persist() {
     const kept = store.writeReplaced(
-      entries.map(({ at, reason, cells, packed }) => ({ at, reason, cells, packed })),
+      entries.map(({ at, reason, cells, first, packed }) => ({ at, reason, cells, first, packed })),
     );
     entries.forEach((e, i) => {
       e.stored = i < kept;
@@ -43,11 +58,11 @@ export function createReplaced() {
    * document as the newest entry, is not kept. Resolves to the entry or null.
    */
   async function add(text, reason, at = Date.now()) {
-    const cells = cellCount(text);
+    const { cells, first } = describe(text);
     if (cells === 0) return null;
     const packed = await store.storedForm(text, true);
     if (entries[0]?.packed === packed) return null;
-    const entry = { at, reason, cells, packed, text, stored: false };
+    const entry = { at, reason, cells, first, packed, text, stored: false };
     entries = [entry, ...entries].slice(0, REPLACED_KEPT);
     persist();
     return entry;

@@ -14,7 +14,7 @@ import { downloadBlob } from '../dom.js';
 export const AUTOSAVE_KEY = 'loopwright.sheet.autosave';
 /** Set while the autosave is older than the sheet on screen: `{at, bytes}`. */
 export const BEHIND_KEY = 'loopwright.sheet.autosave-behind';
-/** The replaced sheets, newest first: `[{at, reason, cells, packed}]`. */
+/** The replaced sheets, newest first: `[{at, reason, cells, first, packed}]`. */
 export const REPLACED_KEY = 'loopwright.sheet.replaced';
 /** Where an earlier version kept the one sheet a share link replaced. */
 export const LEGACY_BACKUP_KEY = 'loopwright.sheet.before-share-link';
@@ -135,7 +135,7 @@ export function readReplaced() {
 }
 
 /**
- * Store the list of replaced sheets (each `{at, reason, cells, packed}`, newest
+ * Store the list of replaced sheets (each `{at, reason, cells, first, packed}`, newest
  * first). When it does not fit, the oldest are left out until it does; when not even
  * the newest fits, the stored list stays as it was. Returns how many of the list
  * are now stored (0 when storage is off).

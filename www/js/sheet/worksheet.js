@@ -51,7 +51,14 @@ function shareScope() {
     : 'It carries the whole sheet; anyone who opens it gets a copy.';
 }
 
-export async function mountWorksheet(host, api) {
+/**
+ * Mount the worksheet in `host`. `onLink()` is called when a share link pasted into
+ * this tab's address bar (a fragment change, no reload) was opened or refused.
+ * Resolves to `{sheet, grid, cameWithLink}`: `cameWithLink` is true when the page
+ * was opened with a share link, whether its sheet was loaded or refused (the
+ * worksheet says which).
+ */
+export async function mountWorksheet(host, api, { onLink = () => {} } = {}) {
   const sheet = new api.Worksheet();
   const note = el('p', { class: 'sheet-note', role: 'status', 'aria-live': 'polite' });
   const warning = el('div', {
@@ -207,16 +214,42 @@ export async function mountWorksheet(host, api) {
     if (done) announce(done, `Opened "${file.name}".`);
   });
 
-  const openedFromLink = await start();
+  // A link pasted into the address bar of this tab changes only the fragment.
+  window.addEventListener('hashchange', openLinkInPlace);
+
+  const cameWithLink = /^#sheet=/.test(location.hash);
+  await start();
   renderReplaced(replaced.list());
   grid.refresh();
-  return { sheet, grid, openedFromLink };
+  return { sheet, grid, cameWithLink };
+
+  async function openLinkInPlace() {
+    let text;
+    try {
+      text = await store.decodeFragment(location.hash);
+    } catch (err) {
+      dropFragment();
+      note.textContent = `The link's sheet could not be read: ${err.message}. The sheet is as it was.`;
+      onLink();
+      return;
+    }
+    if (text === null) return;
+    dropFragment();
+    const done = await replaceWith(text, "The link's sheet", 'by a share link');
+    if (done) announce(done, 'Opened the sheet from the link.');
+    onLink();
+  }
+
+  /** Drop a sheet fragment from the address, so that a reload shows the autosave. */
+  function dropFragment() {
+    if (/^#sheet=/.test(location.hash))
+      history.replaceState(null, '', location.href.replace(/#.*$/, ''));
+  }
 
   /**
    * Start: a share link wins when the engine takes its sheet, and the autosave it
    * replaces joins the replaced sheets; a link that cannot be read or is refused
-   * leaves the autosave on screen and in storage. Resolves to true when the sheet
-   * came from a link.
+   * leaves the autosave on screen and in storage.
    */
   async function start() {
     let fromLink = null;
@@ -226,9 +259,7 @@ export async function mountWorksheet(host, api) {
     } catch (err) {
       messages.push(`The link's sheet could not be read: ${err.message}.`);
     }
-    // Drop the fragment so that a reload shows the autosave of later edits.
-    if (/^#sheet=/.test(location.hash))
-      history.replaceState(null, '', location.href.replace(/#.*$/, ''));
+    dropFragment();
     let saved = null;
     try {
       saved = await store.recovered();
@@ -242,14 +273,13 @@ export async function mountWorksheet(host, api) {
         const entry = saved ? await replaced.add(saved.text, 'by a share link') : null;
         await saveNow();
         announce({ entry }, 'Opened the sheet from the link.');
-        return true;
+        return;
       } catch (err) {
         messages.push(`The link's sheet was not loaded: ${err.message}.`);
       }
     }
     if (saved) messages.push(await recover(saved, messages.length > 0));
     note.textContent = messages.join(' ');
-    return false;
   }
 
   /**
