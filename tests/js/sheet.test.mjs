@@ -193,6 +193,10 @@ test('naming a cell from the name box, and going to an address', async () => {
   await cell(page, 'B2').click();
   await page.fill('#sheet-namebox', 'aol');
   await page.press('#sheet-namebox', 'Enter');
+  // The confirmation stays on screen (it was cleared at once before).
+  assert.equal(await page.locator('#sheet-explain').textContent(), 'B2 is now named aol.');
+  // A name alone is autosaved: a reload keeps it.
+  await autosaveHas(page, '"aol"');
   await typeAt(page, 'C2', '=FB.GAIN(aol; 0.1)');
   // Af = 250 000/(1 + 25 000) = 9.9996 (closed form).
   assert.equal(await shown(page, 'C2'), '9.9996');
