@@ -14,6 +14,17 @@ const env = servedPageTests();
 const result = (page, card, name) =>
   page.locator(`#${card} dd[data-name="${name}"] output`).textContent();
 
+/** Relative rounding of two values each shown to four significant digits. */
+const SHOWN_DIGITS_REL = 1e-3;
+const SI_PREFIX = { p: 1e-12, n: 1e-9, µ: 1e-6, u: 1e-6, m: 1e-3, '': 1, k: 1e3, M: 1e6, G: 1e9 };
+
+/** A number as a card shows it ("12.34k", "1.2 MHz") back to a number. */
+function fromShown(text) {
+  const m = /^\s*(-?[\d.]+(?:e[-+]?\d+)?)\s*([pnµumkMG]?)/.exec(text);
+  assert.ok(m, `not a shown number: ${text}`);
+  return Number(m[1]) * SI_PREFIX[m[2]];
+}
+
 async function retype(page, selector, text) {
   await page.click(selector);
   await page.keyboard.press('Control+A');
@@ -281,6 +292,12 @@ test('loop stability card: trade facts through the page', async () => {
   assert.equal(await result(page, 'card-closedform', 'q'), q.toPrecision(6));
   // fHf = fH·(1 + A0·β) = 10·1001 = 10.01 kHz.
   assert.equal(await result(page, 'card-closedform', 'fhf'), '10.01k');
+  // Compensation: the gain–bandwidth then is A0·fd (GBW of a single-pole amplifier,
+  // Sedra & Smith, Microelectronic Circuits, 7th ed., Sec. 10.10, from memory), read
+  // within the four shown digits of each.
+  const fd = fromShown(await result(page, 'card-compensation', 'fd'));
+  const gbw = fromShown(await result(page, 'card-compensation', 'gbw'));
+  assert.ok(Math.abs(gbw / (100e3 * fd) - 1) < SHOWN_DIGITS_REL, `fd ${fd}, gbw ${gbw}`);
   await page.locator('#card-loop').screenshot({ path: join(ARTIFACTS, 'card-loop.png') });
   assert.deepEqual(problems, []);
   await context.close();
