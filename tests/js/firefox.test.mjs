@@ -34,3 +34,37 @@ test('Firefox: the served page loads and computes', async () => {
 test('Firefox: the single file loads from file:// and computes', async () => {
   await smoke(pathToFileURL(join(ROOT, 'dist', 'loopwright.html')).href);
 });
+
+test('Firefox: a pasted share link replaces the sheet, undo brings it back, packed autosave', async () => {
+  const ff = env.browser;
+  const cellText = (a) => `return document.getElementById('cell-${a}').textContent`;
+  await ff.go(env.url);
+  await ff.waitFor("return document.documentElement.dataset.ready === 'true'");
+  await ff.run("localStorage.clear(); document.getElementById('tab-sheet').click();");
+  // Typed into A1 through the formula bar; Enter (U+E007 in WebDriver) commits.
+  await ff.clearAndType('#formula-bar', 'own sheet\uE007');
+  await ff.waitFor(
+    "return (localStorage.getItem('loopwright.sheet.autosave') ?? '').includes('own sheet')",
+  );
+  const fragment = await ff.run(
+    `return import('./js/sheet/share.js').then((m) => m.encodeFragment(JSON.stringify({
+      format: 'loopwright-sheet', version: 1, cells: { A1: 'from the link' }, names: {} })));`,
+  );
+  await ff.go(`${env.url}#${fragment}`);
+  await ff.waitFor(`${cellText('A1')} === 'from the link'`);
+  await ff.run("document.getElementById('sheet-undo').click();");
+  await ff.waitFor(`${cellText('A1')} === 'own sheet'`);
+  // An autosave kept packed (as a sheet too large for plain storage is) is read back.
+  await ff.run(
+    `return import('./js/sheet/storage.js').then(async (m) => localStorage.setItem(
+      m.AUTOSAVE_KEY, await m.storedForm(JSON.stringify({
+        format: 'loopwright-sheet', version: 1, cells: { B2: 'packed in Firefox' }, names: {} }), true)));`,
+  );
+  await ff.go(env.url);
+  await ff.waitFor("return document.documentElement.dataset.ready === 'true'");
+  assert.equal(await ff.run(cellText('B2')), 'packed in Firefox');
+  assert.match(
+    await ff.run("return localStorage.getItem('loopwright.sheet.autosave')"),
+    /^deflate-raw:/,
+  );
+});
