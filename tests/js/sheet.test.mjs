@@ -517,3 +517,66 @@ test('the CSV export starts with a UTF-8 byte-order mark; the share message from
   assert.deepEqual(problems, []);
   await context.close();
 });
+
+test('the sheet on screen comes first: replaced sheets give up their storage to it', async () => {
+  const { randomBytes } = await import('node:crypto');
+  const { writeFileSync } = await import('node:fs');
+  // Two incompressible sheets of 2.7 MB: one fits in the 5 MiB of local storage
+  // (measured: 5 242 308 characters in one item in Chromium), two do not.
+  const chars = Math.ceil(2.7e6 / 5200);
+  const noisy = (tag) =>
+    bigDocument(
+      (a) =>
+        `${tag} ${a} ${randomBytes(chars)
+          .toString('base64')
+          .slice(0, chars - 10)}`,
+    );
+  const paths = ['first', 'second'].map((tag) => {
+    const path = join(ARTIFACTS, `noise-2.7mb-${tag}.loopwright.json`);
+    writeFileSync(path, noisy(tag));
+    return path;
+  });
+  const context = await env.browser.newContext();
+  const { page, problems } = await openSheet(context);
+  const storedEntries = async () => JSON.parse((await stored(page, REPLACED_KEY)) ?? '[]').length;
+  await page.setInputFiles('#sheet-file', paths[0]);
+  await page.waitForFunction(() =>
+    document.querySelector('#cell-A1').textContent.startsWith('first'),
+  );
+  // The demo replaces it: once the autosave has shrunk, the first sheet is stored.
+  await page.click('#sheet-demo');
+  await page.waitForFunction(() =>
+    document.querySelector('#cell-A1').textContent.startsWith('Hydrophone'),
+  );
+  await page.waitForFunction((k) => localStorage.getItem(k) !== null, REPLACED_KEY);
+  assert.equal(await storedEntries(), 1);
+  // The second sheet does not fit beside the first: the first gives up its storage.
+  await page.setInputFiles('#sheet-file', paths[1]);
+  await page.waitForFunction(() =>
+    document.querySelector('#cell-A1').textContent.startsWith('second'),
+  );
+  await page.waitForFunction(
+    () => document.querySelector('#worksheet').dataset.autosave === 'packed',
+  );
+  assert.ok(await page.locator('#sheet-warning').isHidden());
+  assert.equal(await storedEntries(), 1);
+  const lines = await page.locator('.sheet-replaced-list li').allTextContents();
+  assert.equal(lines.length, 2);
+  assert.match(lines[0], /by the file "noise-2\.7mb-second.*starting “Hydrophone/);
+  assert.match(lines[1], /starting “first A1.*kept only until this page is closed: no room/);
+  // Within this page it can still be put back.
+  await page.click('#sheet-replaced summary');
+  await page.click('#sheet-replaced-1');
+  await page.waitForFunction(() =>
+    document.querySelector('#cell-A1').textContent.startsWith('first'),
+  );
+  // After a reload the sheet on screen is there.
+  await page.waitForFunction(
+    () => document.querySelector('#worksheet').dataset.autosave !== 'failed',
+  );
+  await page.reload();
+  await page.waitForSelector('html[data-ready="true"]');
+  assert.match(await shown(page, 'A1'), /^first A1 /);
+  assert.deepEqual(problems, []);
+  await context.close();
+});

@@ -21,10 +21,13 @@ function unsavedText(outcome) {
 
 /**
  * The autosave of `sheet`. `host.dataset.autosave` tells the last outcome ('plain',
- * 'packed' or 'failed'); `warning` shows a failure. Returns `{soon, now}`; `now()`
- * resolves to the outcome of `store.autosave`.
+ * 'packed' or 'failed'); `warning` shows a failure. The sheet on screen comes before
+ * the replaced sheets: when it does not fit, `replaced` (replaced.js) gives up the
+ * storage of its oldest entries, and after a load it stores again what now fits;
+ * `onReplacedStored()` follows either. Returns `{soon, now}`; `now()` resolves to
+ * the outcome of `store.autosave`.
  */
-export function createAutosave(sheet, { host, warning }) {
+export function createAutosave(sheet, { host, warning, replaced, onReplacedStored }) {
   let timer = null;
   let writing = Promise.resolve();
 
@@ -50,13 +53,24 @@ export function createAutosave(sheet, { host, warning }) {
     return outcome;
   }
 
-  function now() {
+  /** Write at once; `retryReplaced` after a load, when the autosave may have shrunk. */
+  function now({ retryReplaced = false } = {}) {
     clearTimeout(timer);
     timer = null;
+    let moved = false;
+    const makeRoom = () => {
+      const freed = replaced.unstoreOldest();
+      moved ||= freed;
+      return freed;
+    };
     writing = writing
-      .then(() => store.autosave(sheet.saveDocument()))
+      .then(() => store.autosave(sheet.saveDocument(), { makeRoom }))
       .catch(() => ({ ok: false, bytes: 0, reason: 'unavailable' }))
-      .then(show);
+      .then((outcome) => {
+        if (outcome.ok && retryReplaced && !moved) moved = replaced.storeAgain();
+        if (moved) onReplacedStored();
+        return show(outcome);
+      });
     return writing;
   }
 
@@ -72,7 +86,7 @@ export function createAutosave(sheet, { host, warning }) {
     now,
     soon() {
       clearTimeout(timer);
-      timer = setTimeout(now, AUTOSAVE_DELAY_MS);
+      timer = setTimeout(() => now(), AUTOSAVE_DELAY_MS);
     },
   };
 }

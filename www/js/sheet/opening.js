@@ -72,7 +72,7 @@ export async function openAtStart(panel) {
     }
     if (!refusal) {
       const entry = saved ? await panel.replaced.add(saved.text, 'by a share link') : null;
-      await panel.autosave.now();
+      await panel.autosave.now({ retryReplaced: true });
       panel.announce({ entry }, 'Opened the sheet from the link.');
       return;
     }

@@ -12,7 +12,9 @@ export function whenText(at) {
 function line(entry, index, onRestore) {
   const cells = entry.cells === null ? '' : `, ${entry.cells} cell${entry.cells === 1 ? '' : 's'}`;
   const first = entry.first ? ` starting “${entry.first}”` : '';
-  const kept = entry.stored ? '' : ' (kept only until this page is closed: too large to store)';
+  const kept = entry.stored
+    ? ''
+    : ' (kept only until this page is closed: no room for it in this browser’s storage)';
   return el(
     'li',
     {},

@@ -44,9 +44,14 @@ export function createReplaced() {
     ? add(legacy, 'kept before a share link (earlier version of the page)')
     : null;
 
+  // How many entries may take storage: lowered when the autosave needs the room.
+  let storable = REPLACED_KEPT;
+
   function persist() {
     const kept = store.writeReplaced(
-      entries.map(({ at, reason, cells, first, packed }) => ({ at, reason, cells, first, packed })),
+      entries
+        .slice(0, storable)
+        .map(({ at, reason, cells, first, packed }) => ({ at, reason, cells, first, packed })),
     );
     entries.forEach((e, i) => {
       e.stored = i < kept;
@@ -64,6 +69,7 @@ export function createReplaced() {
     if (entries[0]?.packed === packed) return null;
     const entry = { at, reason, cells, first, packed, text, stored: false };
     entries = [entry, ...entries].slice(0, REPLACED_KEPT);
+    storable = REPLACED_KEPT;
     persist();
     return entry;
   }
@@ -80,6 +86,24 @@ export function createReplaced() {
     async text(entry) {
       entry.text ??= await store.fromStoredForm(entry.packed);
       return entry.text;
+    },
+    /**
+     * Give the storage of the oldest stored entry to the autosave (the entry stays
+     * in memory until the page is closed). False when none is stored.
+     */
+    unstoreOldest() {
+      const stored = entries.filter((e) => e.stored).length;
+      if (stored === 0) return false;
+      storable = stored - 1;
+      persist();
+      return true;
+    },
+    /** Store what did not fit before (after the autosave shrank). True when more is stored. */
+    storeAgain() {
+      const before = entries.filter((e) => e.stored).length;
+      if (before === Math.min(entries.length, storable)) return false;
+      persist();
+      return entries.filter((e) => e.stored).length > before;
     },
     /** Take an entry out of the list (it has been put back). */
     remove(entry) {

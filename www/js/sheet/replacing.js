@@ -30,7 +30,7 @@ export function createReplacing(panel) {
     grid.refresh();
     const entry = await replaced.add(before, reason);
     showReplaced();
-    await autosave.now();
+    await autosave.now({ retryReplaced: true });
     return { entry };
   }
 

@@ -77,17 +77,21 @@ export async function fromStoredForm(stored) {
 }
 
 /**
- * Keep `text` as the autosave: plain if it fits, else packed. Resolves to
- * `{ok: true, bytes, packed}` or `{ok: false, bytes, reason: 'full' | 'unavailable'}`;
- * on failure the previous autosave stays and is marked as behind the screen.
+ * Keep `text` as the autosave: plain if it fits, else packed; while the packed form
+ * does not fit either, `makeRoom()` may free space (it returns false when it has
+ * nothing left to free). Resolves to `{ok: true, bytes, packed}` or
+ * `{ok: false, bytes, reason: 'full' | 'unavailable'}`; on failure the previous
+ * autosave stays and is marked as behind the screen.
  */
-export async function autosave(text) {
+export async function autosave(text, { makeRoom = () => false } = {}) {
   const bytes = byteSize(text);
   let outcome = put(AUTOSAVE_KEY, text);
   let packed = false;
   if (outcome === 'full') {
     packed = true;
-    outcome = put(AUTOSAVE_KEY, await storedForm(text, true));
+    const form = await storedForm(text, true);
+    outcome = put(AUTOSAVE_KEY, form);
+    while (outcome === 'full' && makeRoom()) outcome = put(AUTOSAVE_KEY, form);
   }
   if (outcome === 'ok') {
     remove(BEHIND_KEY);

@@ -117,11 +117,17 @@ function fillToolbar(panel, parts) {
 export async function mountWorksheet(host, api, { onLink = () => {} } = {}) {
   const sheet = new api.Worksheet();
   const parts = buildPanel(host);
-  const autosave = createAutosave(sheet, { host, warning: parts.warning });
+  const replaced = createReplaced();
+  const panel = { sheet, note: parts.note, replaced };
+  const autosave = createAutosave(sheet, {
+    host,
+    warning: parts.warning,
+    replaced,
+    onReplacedStored: () => panel.showReplaced(),
+  });
   const grid = mountGrid(parts.gridHost, sheet, { onChange: autosave.soon });
   mountHelp(parts.helpHost, api.functionCatalog(), { onUse: (f) => grid.propose(f) });
-  const replaced = createReplaced();
-  const panel = { sheet, grid, note: parts.note, replaced, autosave };
+  Object.assign(panel, { grid, autosave });
   const render = mountReplacedView(parts.replacedHost, {
     onRestore: (entry) => panel.restore(entry),
   });
