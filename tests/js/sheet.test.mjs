@@ -258,7 +258,11 @@ test('the demo loads without error values; help comes from the catalog', async (
 test('the worksheet at phone width', async () => {
   const context = await env.browser.newContext({ viewport: { width: 390, height: 844 } });
   const { page, problems } = await openSheet(context);
+  // With a sheet of one's own, the demo brings its undo and the replaced list.
+  await typeAt(page, 'A1', 'mine');
   await page.click('#sheet-demo');
+  await page.waitForSelector('#sheet-undo');
+  await page.click('#sheet-replaced summary');
   const overflow = await page.evaluate(
     () => document.documentElement.scrollWidth - window.innerWidth,
   );
