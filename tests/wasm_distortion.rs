@@ -1,4 +1,4 @@
-//! Browser tests of the distortion and noise JS API (src/wasm/nonlinear.rs,
+//! Browser tests of the distortion and noise JS API (src/wasm/distortion.rs,
 //! src/wasm/noise.rs): values, structured results, typed arrays and thrown errors.
 #![cfg(target_arch = "wasm32")]
 
