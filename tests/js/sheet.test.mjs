@@ -584,3 +584,15 @@ test('the sheet on screen comes first: replaced sheets give up their storage to 
   assert.deepEqual(problems, []);
   await context.close();
 });
+
+test('packing (Node, no browser): round trip, and damaged text named', async () => {
+  const { pack, unpack } = await import('../../www/js/sheet/pack.js');
+  const text = '{"cells": {"A1": "Ω ≥ − ° µ 4k7"}}\n'.repeat(50);
+  const packed = await pack(text);
+  assert.match(packed, /^[A-Za-z0-9_-]+$/);
+  assert.ok(packed.length < text.length / 5, `${packed.length} of ${text.length}`);
+  assert.equal(await unpack(packed), text);
+  await assert.rejects(unpack('%%%'), /not base64url/);
+  // 0xFF… starts a deflate block of the reserved type 3 (RFC 1951, §3.2.3): invalid.
+  await assert.rejects(unpack('________'), /does not decompress/);
+});
