@@ -52,6 +52,8 @@ test('Firefox: a pasted share link replaces the sheet, undo brings it back, pack
   );
   await ff.go(`${env.url}#${fragment}`);
   await ff.waitFor(`${cellText('A1')} === 'from the link'`);
+  // The undo is offered once the replaced sheet is packed and kept.
+  await ff.waitFor("return document.getElementById('sheet-undo') !== null");
   await ff.run("document.getElementById('sheet-undo').click();");
   await ff.waitFor(`${cellText('A1')} === 'own sheet'`);
   // An autosave kept packed (as a sheet too large for plain storage is) is read back.

@@ -247,7 +247,7 @@ test('the demo loads without error values; help comes from the catalog', async (
   await cell(page, 'H2').click();
   await page.locator('.help-fn').first().locator('summary').click();
   await page.locator('.help-fn').first().getByRole('button', { name: 'use' }).first().click();
-  assert.match(await page.inputValue('#formula-bar'), /^=FB\./);
+  assert.match(await page.inputValue('#formula-bar'), /^=FEEDBACK\./);
   await page.keyboard.press('Enter');
   assert.notEqual(await shown(page, 'H2'), '');
   await page.screenshot({ path: join(ARTIFACTS, 'worksheet-demo.png') });
@@ -330,9 +330,17 @@ test('own sheet, then link A, then link B: both earlier sheets can be put back',
   assert.equal(await tabA.locator('#sheet-undo').count(), 1);
   // Link B pasted into the address bar of the same tab (only the fragment changes).
   await tabA.goto(linkB);
-  await tabA.waitForFunction(() => document.querySelector('#cell-A1').textContent === 'sheet B');
+  await tabA
+    .waitForFunction(() => document.querySelector('#cell-A1').textContent === 'sheet B')
+    .catch(async (err) => {
+      const note = await tabA.locator('.sheet-note').textContent();
+      throw new Error(`${err.message}; url ${tabA.url()}; note: ${note}; ${problems}`);
+    });
+  // The list is drawn once sheet A is packed and kept.
+  await tabA.waitForFunction(
+    () => document.querySelector('#sheet-replaced summary').textContent === 'Replaced sheets (2)',
+  );
   assert.ok(!tabA.url().includes('#sheet='), 'the fragment is dropped');
-  assert.equal(await tabA.locator('#sheet-replaced summary').textContent(), 'Replaced sheets (2)');
   const lines = await tabA.locator('.sheet-replaced-list li').allTextContents();
   assert.match(lines[0], /replaced by a share link, 1 cell starting “sheet A” /);
   assert.match(lines[1], /replaced by a share link, 2 cells starting “own sheet” /);
@@ -342,7 +350,9 @@ test('own sheet, then link A, then link B: both earlier sheets can be put back',
   await tabA.click('#sheet-replaced-1');
   await tabA.waitForFunction(() => document.querySelector('#cell-A1').textContent === 'own sheet');
   assert.equal(await shown(tabA, 'B1'), '42');
-  assert.match(await tabA.locator('.sheet-note').textContent(), /is back/);
+  await tabA.waitForFunction(() =>
+    /is back/.test(document.querySelector('.sheet-note').textContent),
+  );
   assert.equal(await tabA.locator('#sheet-replaced summary').textContent(), 'Replaced sheets (2)');
   await autosaveHas(tabA, 'own sheet');
   // A reload keeps the sheet, the worksheet tab and the list.
@@ -492,6 +502,9 @@ test('Load demo can be undone: the sheet it replaced comes back', async () => {
   assert.equal(await shown(page, 'B4'), '940');
   await autosaveHas(page, 'my stage');
   // The demo is now the replaced sheet, one click from coming back.
+  await page.waitForFunction(() =>
+    /is back/.test(document.querySelector('.sheet-note').textContent),
+  );
   assert.match(
     await page.locator('.sheet-replaced-list li').first().textContent(),
     /when an earlier sheet was put back/,
@@ -574,10 +587,11 @@ test('the sheet on screen comes first: replaced sheets give up their storage to 
   await page.waitForFunction(() =>
     document.querySelector('#cell-A1').textContent.startsWith('first'),
   );
-  // After a reload the sheet on screen is there.
-  await page.waitForFunction(
-    () => document.querySelector('#worksheet').dataset.autosave !== 'failed',
+  // After a reload the sheet on screen is there (the note follows its autosave).
+  await page.waitForFunction(() =>
+    /is back/.test(document.querySelector('.sheet-note').textContent),
   );
+  assert.notEqual(await page.getAttribute('#worksheet', 'data-autosave'), 'failed');
   await page.reload();
   await page.waitForSelector('html[data-ready="true"]');
   assert.match(await shown(page, 'A1'), /^first A1 /);
@@ -595,4 +609,28 @@ test('packing (Node, no browser): round trip, and damaged text named', async () 
   await assert.rejects(unpack('%%%'), /not base64url/);
   // 0xFF… starts a deflate block of the reserved type 3 (RFC 1951, §3.2.3): invalid.
   await assert.rejects(unpack('________'), /does not decompress/);
+});
+
+test('the sheet an earlier version kept aside before a share link joins the replaced sheets', async () => {
+  const context = await env.browser.newContext();
+  const { page, problems } = await openSheet(context);
+  const kept = JSON.stringify({
+    format: 'loopwright-sheet',
+    version: 1,
+    cells: { A1: 'kept aside' },
+  });
+  await page.evaluate((t) => localStorage.setItem('loopwright.sheet.before-share-link', t), kept);
+  await page.reload();
+  await page.waitForSelector('html[data-ready="true"]');
+  assert.equal(await stored(page, 'loopwright.sheet.before-share-link'), null);
+  assert.match(
+    await page.locator('.sheet-replaced-list li').first().textContent(),
+    /kept before a share link \(earlier version of the page\), 1 cell starting “kept aside”/,
+  );
+  await page.click('#tab-sheet');
+  await page.click('#sheet-replaced summary');
+  await page.click('#sheet-replaced-0');
+  await page.waitForFunction(() => document.querySelector('#cell-A1').textContent === 'kept aside');
+  assert.deepEqual(problems, []);
+  await context.close();
 });

@@ -48,13 +48,13 @@ export function createReplaced() {
   let storable = REPLACED_KEPT;
 
   function persist() {
-    const kept = store.writeReplaced(
+    const stored = store.writeReplaced(
       entries
         .slice(0, storable)
         .map(({ at, reason, cells, first, packed }) => ({ at, reason, cells, first, packed })),
     );
     entries.forEach((e, i) => {
-      e.stored = i < kept;
+      e.stored = stored[i] ?? false;
     });
   }
 
@@ -92,18 +92,19 @@ export function createReplaced() {
      * in memory until the page is closed). False when none is stored.
      */
     unstoreOldest() {
-      const stored = entries.filter((e) => e.stored).length;
-      if (stored === 0) return false;
-      storable = stored - 1;
+      const oldest = entries.findLastIndex((e) => e.stored);
+      if (oldest < 0) return false;
+      storable = oldest;
       persist();
       return true;
     },
     /** Store what did not fit before (after the autosave shrank). True when more is stored. */
     storeAgain() {
-      const before = entries.filter((e) => e.stored).length;
-      if (before === Math.min(entries.length, storable)) return false;
+      const count = () => entries.filter((e) => e.stored).length;
+      if (entries.slice(0, storable).every((e) => e.stored)) return false;
+      const before = count();
       persist();
-      return entries.filter((e) => e.stored).length > before;
+      return count() > before;
     },
     /** Take an entry out of the list (it has been put back). */
     remove(entry) {

@@ -139,22 +139,20 @@ export function readReplaced() {
 }
 
 /**
- * Store the list of replaced sheets (each `{at, reason, cells, first, packed}`, newest
- * first). When it does not fit, the oldest are left out until it does; when not even
- * the newest fits, the stored list stays as it was. Returns how many of the list
- * are now stored (0 when storage is off).
+ * Store the list of replaced sheets (each `{at, reason, cells, first, packed}`,
+ * newest first), newest first as far as they fit: one that does not fit beside the
+ * newer ones is left out. Returns, for each entry, whether it is now stored.
  */
 export function writeReplaced(list) {
-  if (list.length === 0) {
-    remove(REPLACED_KEY);
-    return 0;
-  }
-  for (let n = list.length; n > 0; n--) {
-    const outcome = put(REPLACED_KEY, JSON.stringify(list.slice(0, n)));
-    if (outcome === 'ok') return n;
-    if (outcome === 'unavailable') return 0;
-  }
-  return 0;
+  remove(REPLACED_KEY);
+  const kept = [];
+  const stored = list.map((entry) => {
+    // A write that does not fit leaves the item as the last one that did.
+    if (put(REPLACED_KEY, JSON.stringify([...kept, entry])) !== 'ok') return false;
+    kept.push(entry);
+    return true;
+  });
+  return stored;
 }
 
 /** The sheet an earlier version kept aside before a share link, taken out of storage. */
