@@ -52,6 +52,10 @@ export function gainSensitivity(a, beta) {
   return checked(glue.gainSensitivity(a, beta));
 }
 
+export function idealBeta(targetGain) {
+  return checked(glue.idealBeta(targetGain));
+}
+
 export function loopGain(a, beta) {
   return checked(glue.loopGain(a, beta));
 }

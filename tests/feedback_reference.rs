@@ -17,6 +17,7 @@ struct Case {
     feedback_amount: f64,
     beta: f64,
     beta_for_gain: f64,
+    ideal_beta: f64,
     min_open_loop_gain: f64,
     max_closed_loop_gain: f64,
     beta_for_feedback_amount: f64,
@@ -47,6 +48,13 @@ fn inverse_design_matches_sympy_closed_forms() {
             i,
             beta_for_gain(c.a, c.target_gain).unwrap(),
             c.beta_for_gain,
+            SYMPY_REL,
+        );
+        assert_rel(
+            "ideal_beta",
+            i,
+            ideal_beta(c.target_gain).unwrap(),
+            c.ideal_beta,
             SYMPY_REL,
         );
         assert_rel(

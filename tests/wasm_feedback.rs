@@ -25,6 +25,8 @@ fn scalar_functions_return_numbers() {
     assert!((checked(api::feedback_amount_db(1e4, beta)).unwrap() - 60.0).abs() < 1e-9);
     assert!((checked(api::gain_sensitivity(1e4, beta)).unwrap() - 1e-3).abs() < 1e-15);
     assert!((checked(api::min_open_loop_gain(0.01, 0.001)).unwrap() - 99_900.0).abs() < 1e-8);
+    // Ideal β = 1/Af (sympy limit, tests/reference/feedback_inverse_sympy.py): 1/10 = 0.1.
+    assert_eq!(checked(api::ideal_beta(10.0)).unwrap(), 0.1);
 }
 
 #[wasm_bindgen_test]
@@ -94,6 +96,11 @@ fn bad_input_throws_typed_errors() {
         api::impedances_with_feedback("shunt-shunt", -1.0, 0.0, 1.0, 0.0, 1.0, 0.0, 1.0, 0.0),
         "out_of_domain",
         "zi",
+    );
+    assert_thrown(
+        checked(api::ideal_beta(0.0)),
+        "out_of_domain",
+        "target_gain",
     );
     assert_thrown(
         checked(api::min_open_loop_gain(0.1, 2.0)),

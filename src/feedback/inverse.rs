@@ -1,6 +1,7 @@
 //! Inverse design: which β, how much open-loop gain, how much closed-loop gain.
 //!
 //! From Af = A / (1 + A·β):
+//! - the ideal β for a target gain (A → ∞, where Af → 1/β): β = 1/Af;
 //! - β for a target closed-loop gain: β = 1/Af − 1/A = (A − Af)/(A·Af);
 //! - with ideal gain 1/β, the relative gain error is ε = 1 − Af·β = 1/(1 + A·β), so the
 //!   least open-loop gain for |ε| ≤ ε_max is A = (1 − ε_max)/(ε_max·β);
@@ -45,6 +46,29 @@ pub fn beta_for_gain(a: f64, target_gain: f64) -> Result<f64> {
         });
     }
     check::result("beta", 1.0 / af - 1.0 / a)
+}
+
+/// The ideal feedback factor for a target closed-loop gain: the β whose ideal gain
+/// 1/β is the target, as with an infinite open-loop gain.
+///
+/// β = 1/Af (the limit of β = 1/Af − 1/A as A → ∞), in the reciprocal unit of Af.
+/// It is the β to pass to [`min_open_loop_gain`] when a gain is specified rather
+/// than a network.
+///
+/// # Errors
+/// `target_gain` zero or not finite; [`Error::Overflow`] when 1/Af is not finite
+/// (a target gain below about 1e-308 in magnitude).
+///
+/// # Example
+/// ```
+/// use loopwright::feedback::ideal_beta;
+/// // A gain of 100 wants β = 1/100 = 0.01.
+/// assert_eq!(ideal_beta(100.0).unwrap(), 0.01);
+/// assert_eq!(ideal_beta(0.0).unwrap_err().param(), "target_gain");
+/// ```
+pub fn ideal_beta(target_gain: f64) -> Result<f64> {
+    let af = check::nonzero("target_gain", target_gain)?;
+    check::result("beta", 1.0 / af)
 }
 
 /// Least open-loop gain A that keeps the gain error against 1/β within `gain_error`.
@@ -134,6 +158,23 @@ mod tests {
             );
         }
         assert_eq!(beta_for_gain(50.0, 50.0), Ok(0.0));
+    }
+
+    #[test]
+    fn ideal_beta_is_the_limit_of_beta_for_gain() {
+        // β = 1/Af − 1/A tends to 1/Af as A grows (closed form of the module doc);
+        // at A = 10¹²·Af the two differ by 1e-12 relative.
+        for af in [100.0, -47.0, 1e-3, 2.5e6] {
+            let ideal = ideal_beta(af).unwrap();
+            let near = beta_for_gain(af * 1e12, af).unwrap();
+            assert!((near / ideal - 1.0).abs() < 1e-11, "af={af}");
+        }
+        assert_eq!(ideal_beta(f64::NAN).unwrap_err().param(), "target_gain");
+        assert_eq!(
+            ideal_beta(f64::INFINITY).unwrap_err().param(),
+            "target_gain"
+        );
+        assert_eq!(ideal_beta(5e-324).unwrap_err().code(), "overflow");
     }
 
     #[test]

@@ -19,7 +19,9 @@ pub use gain::{
     real_feedback_sense, FeedbackSense, LoopPhasors,
 };
 pub use impedance::{impedances_with_feedback, resistances_with_feedback, FeedbackImpedances};
-pub use inverse::{beta_for_gain, max_closed_loop_gain, min_open_loop_gain, GainCeiling};
+pub use inverse::{
+    beta_for_gain, ideal_beta, max_closed_loop_gain, min_open_loop_gain, GainCeiling,
+};
 pub use spread::{gain_sensitivity, gain_spread, GainSpread};
 pub use summary::{summarize, FeedbackSummary};
 pub use topology::{Mixing, Sampling, Topology, TOPOLOGY_NAMES};

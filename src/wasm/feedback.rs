@@ -280,6 +280,12 @@ pub fn beta_for_gain(a: f64, target_gain: f64) -> f64 {
     scalar(fb::beta_for_gain(a, target_gain))
 }
 
+/// Ideal β for a target closed-loop gain: 1/Af.
+#[wasm_bindgen(js_name = idealBeta)]
+pub fn ideal_beta(target_gain: f64) -> f64 {
+    scalar(fb::ideal_beta(target_gain))
+}
+
 /// Least open-loop gain for a gain error (fraction) against 1/β.
 #[wasm_bindgen(js_name = minOpenLoopGain)]
 pub fn min_open_loop_gain(beta: f64, gain_error: f64) -> f64 {

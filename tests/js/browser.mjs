@@ -1,6 +1,7 @@
 // Shared set-up of the page tests: Debian's Chromium driven by playwright-core
 // (no browser download), and the project's own static server on 127.0.0.1.
 
+import { before, after } from 'node:test';
 import { chromium } from 'playwright-core';
 import { mkdirSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
@@ -59,4 +60,23 @@ export async function openPage(browser, url, { width = 1280, height = 900, allow
   await page.goto(url);
   await page.waitForSelector('html[data-ready="true"]', { timeout: 15000 });
   return { context, page, problems, foreign };
+}
+
+/**
+ * The set-up of a browser test file: before its tests, the project's server on
+ * 127.0.0.1 and a browser from `start` (Debian's Chromium by default); after them,
+ * both closed (`stop`). Returns an object whose `browser`, `server` and `url` are
+ * set by the time the tests run.
+ */
+export function servedPageTests({ start = launch, stop = (b) => b.close() } = {}) {
+  const env = { browser: null, server: null, url: null };
+  before(async () => {
+    ({ server: env.server, url: env.url } = await serveWww());
+    env.browser = await start();
+  });
+  after(async () => {
+    if (env.browser) await stop(env.browser);
+    env.server?.close();
+  });
+  return env;
 }

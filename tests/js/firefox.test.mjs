@@ -2,47 +2,71 @@
 // Firefox ESR over WebDriver. It loads, computes a card from typed input, and
 // reaches the ready state (which a script error on start-up would prevent).
 
-import { test, before, after } from 'node:test';
+import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { serveWww, ROOT } from './browser.mjs';
+import { servedPageTests, ROOT } from './browser.mjs';
 import { startGecko } from './webdriver.mjs';
 
-let ff;
-let server;
-let url;
-
-before(async () => {
-  ({ server, url } = await serveWww());
-  ff = await startGecko();
-});
-
-after(async () => {
-  await ff?.quit();
-  server?.close();
-});
+const env = servedPageTests({ start: startGecko, stop: (ff) => ff.quit() });
 
 async function smoke(address) {
-  await ff.go(address);
-  await ff.waitFor("return document.documentElement.dataset.ready === 'true'");
+  await env.browser.go(address);
+  await env.browser.waitFor("return document.documentElement.dataset.ready === 'true'");
   assert.equal(
-    await ff.run("return document.getElementById('load-status').dataset.state"),
+    await env.browser.run("return document.getElementById('load-status').dataset.state"),
     'ready',
   );
   // A = 10k, β = 99.9m: D = 1000, Af = 10 (Sedra & Smith, 7th ed., Example 10.1, from memory).
-  await ff.clearAndType('#card-stage-a', '10k');
-  await ff.clearAndType('#card-stage-beta', '99.9m');
-  await ff.waitFor(
+  await env.browser.clearAndType('#card-stage-a', '10k');
+  await env.browser.clearAndType('#card-stage-beta', '99.9m');
+  await env.browser.waitFor(
     `return document.querySelector('#card-stage dd[data-name="af"] output')?.textContent === '10.00'`,
   );
-  assert.equal(await ff.text('#card-stage dd[data-name="d"] output'), '1000');
+  assert.equal(await env.browser.text('#card-stage dd[data-name="d"] output'), '1000');
 }
 
 test('Firefox: the served page loads and computes', async () => {
-  await smoke(url);
+  await smoke(env.url);
 });
 
 test('Firefox: the single file loads from file:// and computes', async () => {
   await smoke(pathToFileURL(join(ROOT, 'dist', 'loopwright.html')).href);
+});
+
+test('Firefox: a pasted share link replaces the sheet, undo brings it back, packed autosave', async () => {
+  const ff = env.browser;
+  const cellText = (a) => `return document.getElementById('cell-${a}').textContent`;
+  await ff.go(env.url);
+  await ff.waitFor("return document.documentElement.dataset.ready === 'true'");
+  await ff.run("localStorage.clear(); document.getElementById('tab-sheet').click();");
+  // Typed into A1 through the formula bar; Enter (U+E007 in WebDriver) commits.
+  await ff.clearAndType('#formula-bar', 'own sheet\uE007');
+  await ff.waitFor(
+    "return (localStorage.getItem('loopwright.sheet.autosave') ?? '').includes('own sheet')",
+  );
+  const fragment = await ff.run(
+    `return import('./js/sheet/share.js').then((m) => m.encodeFragment(JSON.stringify({
+      format: 'loopwright-sheet', version: 1, cells: { A1: 'from the link' }, names: {} })));`,
+  );
+  await ff.go(`${env.url}#${fragment}`);
+  await ff.waitFor(`${cellText('A1')} === 'from the link'`);
+  // The undo is offered once the replaced sheet is packed and kept.
+  await ff.waitFor("return document.getElementById('sheet-undo') !== null");
+  await ff.run("document.getElementById('sheet-undo').click();");
+  await ff.waitFor(`${cellText('A1')} === 'own sheet'`);
+  // An autosave kept packed (as a sheet too large for plain storage is) is read back.
+  await ff.run(
+    `return import('./js/sheet/storage.js').then(async (m) => localStorage.setItem(
+      m.AUTOSAVE_KEY, await m.storedForm(JSON.stringify({
+        format: 'loopwright-sheet', version: 1, cells: { B2: 'packed in Firefox' }, names: {} }), true)));`,
+  );
+  await ff.go(env.url);
+  await ff.waitFor("return document.documentElement.dataset.ready === 'true'");
+  assert.equal(await ff.run(cellText('B2')), 'packed in Firefox');
+  assert.match(
+    await ff.run("return localStorage.getItem('loopwright.sheet.autosave')"),
+    /^deflate-raw:/,
+  );
 });

@@ -2,29 +2,28 @@
 // place, keyboard focus, narrow screens. Expected figures are worked out by hand
 // from the closed forms named beside each check.
 
-import { test, before, after } from 'node:test';
+import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { launch, serveWww, openPage, ARTIFACTS, ROOT } from './browser.mjs';
+import { servedPageTests, openPage, ARTIFACTS, ROOT } from './browser.mjs';
 import { startServer } from '../../scripts/serve.mjs';
 
-let browser;
-let server;
-let url;
-
-before(async () => {
-  ({ server, url } = await serveWww());
-  browser = await launch();
-});
-
-after(async () => {
-  await browser?.close();
-  server?.close();
-});
+const env = servedPageTests();
 
 const result = (page, card, name) =>
   page.locator(`#${card} dd[data-name="${name}"] output`).textContent();
+
+/** Relative rounding of two values each shown to four significant digits. */
+const SHOWN_DIGITS_REL = 1e-3;
+const SI_PREFIX = { p: 1e-12, n: 1e-9, µ: 1e-6, u: 1e-6, m: 1e-3, '': 1, k: 1e3, M: 1e6, G: 1e9 };
+
+/** A number as a card shows it ("12.34k", "1.2 MHz") back to a number. */
+function fromShown(text) {
+  const m = /^\s*(-?[\d.]+(?:e[-+]?\d+)?)\s*([pnµumkMG]?)/.exec(text);
+  assert.ok(m, `not a shown number: ${text}`);
+  return Number(m[1]) * SI_PREFIX[m[2]];
+}
 
 async function retype(page, selector, text) {
   await page.click(selector);
@@ -33,7 +32,9 @@ async function retype(page, selector, text) {
 }
 
 test('the stage card computes from typed engineering numbers', async () => {
-  const { context, page, problems, foreign } = await openPage(browser, url, { allowedOrigin: url });
+  const { context, page, problems, foreign } = await openPage(env.browser, env.url, {
+    allowedOrigin: env.url,
+  });
   // Defaults: A = 100k, β = 0.00999 → D = 1 + 999 = 1000, Af = 10⁵/1000 = 100.
   assert.equal(await result(page, 'card-stage', 'af'), '100 V/V');
   assert.equal(await result(page, 'card-stage', 'ddb'), '60 dB');
@@ -64,7 +65,9 @@ test('the stage card computes from typed engineering numbers', async () => {
 });
 
 test('bad input shows an error in place and keeps what was typed', async () => {
-  const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    allowedOrigin: env.url,
+  });
   await retype(page, '#card-stage-beta', 'ten');
   assert.equal(await page.getAttribute('#card-stage-beta', 'aria-invalid'), 'true');
   assert.match(await page.locator('#card-stage-beta-hint').textContent(), /expected a number/);
@@ -92,7 +95,7 @@ test('bad input shows an error in place and keeps what was typed', async () => {
 });
 
 test('the inverse and spread cards agree with the closed forms', async () => {
-  const { context, page } = await openPage(browser, url, { allowedOrigin: url });
+  const { context, page } = await openPage(env.browser, env.url, { allowedOrigin: env.url });
   // Defaults A = 100k, Af = 100: β = 1/100 − 1/10⁵ = 0.00999.
   assert.equal(await result(page, 'card-inverse', 'beta'), '0.00999');
   // ε = 0.1 m, β = 1/100: A_min = 0.9999/(10⁻⁴·10⁻²) = 999.9k.
@@ -110,7 +113,7 @@ test('the inverse and spread cards agree with the closed forms', async () => {
 });
 
 test('keyboard only: Tab reaches every cell with a visible focus', async () => {
-  const { context, page } = await openPage(browser, url, { allowedOrigin: url });
+  const { context, page } = await openPage(env.browser, env.url, { allowedOrigin: env.url });
   const seen = new Set();
   for (let i = 0; i < 20; i++) {
     await page.keyboard.press('Tab');
@@ -133,10 +136,10 @@ test('keyboard only: Tab reaches every cell with a visible focus', async () => {
 });
 
 test('usable at phone width (390 px): nothing wider than the screen', async () => {
-  const { context, page, problems } = await openPage(browser, url, {
+  const { context, page, problems } = await openPage(env.browser, env.url, {
     width: 390,
     height: 844,
-    allowedOrigin: url,
+    allowedOrigin: env.url,
   });
   await page.screenshot({ path: join(ARTIFACTS, 'page-390px.png'), fullPage: true });
   const overflow = await page.evaluate(
@@ -151,7 +154,7 @@ test('usable at phone width (390 px): nothing wider than the screen', async () =
 });
 
 test('the cautions are on the page', async () => {
-  const { context, page } = await openPage(browser, url, { allowedOrigin: url });
+  const { context, page } = await openPage(env.browser, env.url, { allowedOrigin: env.url });
   const text = await page.locator('footer.cautions').textContent();
   assert.match(text, /check every design on the bench/);
   assert.match(text, /mains/);
@@ -161,7 +164,7 @@ test('the cautions are on the page', async () => {
 
 test('the single-file build works from file:// with no request and no CSP violation', async () => {
   const file = pathToFileURL(join(ROOT, 'dist', 'loopwright.html')).href;
-  const { context, page, problems, foreign } = await openPage(browser, file, {
+  const { context, page, problems, foreign } = await openPage(env.browser, file, {
     allowedOrigin: file,
   });
   // Same closed form as the served page: A = 100k, β = 0.00999 → Af = 100.
@@ -180,7 +183,7 @@ test('the single-file build works from file:// with no request and no CSP violat
 test('embedding: the custom element and the frame work under a strict CSP', async () => {
   const { server: rootServer, url: rootUrl } = await startServer(ROOT, 0);
   try {
-    const context = await browser.newContext({ viewport: { width: 1000, height: 1400 } });
+    const context = await env.browser.newContext({ viewport: { width: 1000, height: 1400 } });
     const page = await context.newPage();
     const problems = [];
     page.on('console', (msg) => {
@@ -230,7 +233,9 @@ test('embedding: the custom element and the frame work under a strict CSP', asyn
 });
 
 test('every card computes its defaults, and the area cards show closed-form values', async () => {
-  const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    allowedOrigin: env.url,
+  });
   const cards = await page.locator('section.card').evaluateAll((els) => els.map((e) => e.id));
   assert.ok(cards.length >= 9, `cards: ${cards}`);
   for (const id of cards) {
@@ -310,7 +315,9 @@ test('issue 15 through the page: latching loop, pole and GBW, band, pairs', asyn
 });
 
 test('loop stability card: trade facts through the page', async () => {
-  const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    allowedOrigin: env.url,
+  });
   // Common practice, no source: three equal real poles go unstable at a DC loop
   // gain of 8 (the loop is marginal exactly there).
   await retype(page, '#card-loop-gain', '8');
@@ -334,13 +341,21 @@ test('loop stability card: trade facts through the page', async () => {
   assert.equal(await result(page, 'card-closedform', 'q'), q.toPrecision(6));
   // fHf = fH·(1 + A0·β) = 10·1001 = 10.01 kHz.
   assert.equal(await result(page, 'card-closedform', 'fhf'), '10.01 kHz');
+  // Compensation: the gain–bandwidth then is A0·fd (GBW of a single-pole amplifier,
+  // Sedra & Smith, Microelectronic Circuits, 7th ed., Sec. 10.10, from memory), read
+  // within the four shown digits of each.
+  const fd = fromShown(await result(page, 'card-compensation', 'fd'));
+  const gbw = fromShown(await result(page, 'card-compensation', 'gbw'));
+  assert.ok(Math.abs(gbw / (100e3 * fd) - 1) < SHOWN_DIGITS_REL, `fd ${fd}, gbw ${gbw}`);
   await page.locator('#card-loop').screenshot({ path: join(ARTIFACTS, 'card-loop.png') });
   assert.deepEqual(problems, []);
   await context.close();
 });
 
 test('loaded stage card: exact, two-port and ideal side by side', async () => {
-  const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    allowedOrigin: env.url,
+  });
   // Series-shunt, Rf = 9k, Rg = 1k: β = Rg/(Rf + Rg) = 0.1, ideal gain 1/β = 10.
   assert.equal(await result(page, 'card-loaded', 'beta'), '0.1');
   assert.match(await result(page, 'card-loaded', 'ideal'), /^10 /);
@@ -362,9 +377,12 @@ test('text contrast meets WCAG 2.1 AA (axe-core color-contrast rule)', async () 
   const { createRequire } = await import('node:module');
   const axePath = createRequire(import.meta.url).resolve('axe-core/axe.min.js');
   for (const width of [1280, 390]) {
-    const context = await browser.newContext({ bypassCSP: true, viewport: { width, height: 900 } });
+    const context = await env.browser.newContext({
+      bypassCSP: true,
+      viewport: { width, height: 900 },
+    });
     const page = await context.newPage();
-    await page.goto(url);
+    await page.goto(env.url);
     await page.waitForSelector('html[data-ready="true"]');
     await page.addScriptTag({ path: axePath });
     const audit = async (what) => {

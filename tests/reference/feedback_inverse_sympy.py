@@ -21,6 +21,8 @@ closed = A / (1 + A * beta)
 
 # beta for a target closed-loop gain: solve Af = A/(1 + A beta) for beta.
 (beta_sol,) = sp.solve(sp.Eq(Af, closed), beta)
+# Ideal beta for a target gain: the same beta as the open-loop gain grows without bound.
+ideal_beta_sol = sp.limit(beta_sol, A, sp.oo)
 # Least A for a gain error eps against 1/beta: eps = 1 - Af*beta, solve for A.
 (a_min_sol,) = sp.solve(sp.Eq(eps, sp.simplify(1 - closed * beta)), A)
 # Gain ceiling for a required D = 1 + A beta: beta from D, then Af.
@@ -31,6 +33,7 @@ sens = sp.simplify(sp.diff(closed, A) * A / closed)
 
 forms = {
     "beta_for_gain": beta_sol,
+    "ideal_beta": ideal_beta_sol,
     "min_open_loop_gain": a_min_sol,
     "max_closed_loop_gain": af_max,
     "beta_for_feedback_amount": beta_from_d,
@@ -56,6 +59,7 @@ def evaluate():
         sub = {A: a, Af: target, eps: e, D: d, beta: b}
         row = {"a": a, "target_gain": target, "gain_error": e, "feedback_amount": d, "beta": b}
         row["beta_for_gain"] = float(beta_sol.subs(sub))
+        row["ideal_beta"] = float(ideal_beta_sol.subs(sub))
         row["min_open_loop_gain"] = float(a_min_sol.subs(sub))
         row["max_closed_loop_gain"] = float(af_max.subs(sub))
         row["beta_for_feedback_amount"] = float(beta_from_d.subs(sub))

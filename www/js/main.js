@@ -12,9 +12,29 @@ import { CIRCUIT_CARDS } from './cards/circuit.js';
 import { mountWorksheet } from './sheet/worksheet.js';
 import { wasmSource } from './wasm-source.js';
 
+/** Where the open tab is remembered for a reload of this browser tab. */
+const VIEW_KEY = 'loopwright.view';
+
+function rememberView(id) {
+  try {
+    sessionStorage.setItem(VIEW_KEY, id);
+  } catch {
+    // storage off: a reload opens on the first tab
+  }
+}
+
+function rememberedView() {
+  try {
+    return sessionStorage.getItem(VIEW_KEY);
+  } catch {
+    return null;
+  }
+}
+
 function setUpTabs() {
   const tabs = [...document.querySelectorAll('[role="tab"]')];
   const select = (tab) => {
+    rememberView(tab.id);
     for (const t of tabs) {
       const on = t === tab;
       t.setAttribute('aria-selected', String(on));
@@ -64,8 +84,20 @@ async function start() {
     mountCard(host, def, api);
     if (i === 0) performance.mark('loopwright-first-result');
   });
-  if (api.Worksheet) await mountWorksheet(document.getElementById('worksheet'), api);
-  if (location.search.includes('view=sheet')) select(document.getElementById('tab-sheet'));
+  const sheetView = api.Worksheet
+    ? await mountWorksheet(document.getElementById('worksheet'), api, {
+        onLink: () => select(document.getElementById('tab-sheet')),
+      })
+    : null;
+  // The sheet's tab when the page came with a share link, when asked for, or when
+  // it was open before a reload.
+  if (
+    sheetView &&
+    (sheetView.cameWithLink ||
+      location.search.includes('view=sheet') ||
+      rememberedView() === 'tab-sheet')
+  )
+    select(document.getElementById('tab-sheet'));
   status.textContent = `Core ${api.version()} loaded.`;
   status.dataset.state = 'ready';
   document.documentElement.dataset.ready = 'true';

@@ -73,7 +73,7 @@ export const inverseCard = {
   ],
   compute({ a, target_gain, gain_error, feedback_amount }, api) {
     const beta = api.betaForGain(a, target_gain);
-    const aMin = api.minOpenLoopGain(1 / target_gain, gain_error);
+    const aMin = api.minOpenLoopGain(api.idealBeta(target_gain), gain_error);
     const ceiling = api.maxClosedLoopGain(a, feedback_amount);
     return [
       { name: 'beta', label: 'β for the target', value: beta, format: 'plain' },

@@ -190,7 +190,12 @@ export const compensationCard = {
     return [
       { name: 'fd', label: 'Dominant pole for the target', value: dom.value, unit: 'Hz' },
       { name: 'fc', label: 'Crossover then', value: dom.crossoverHz, unit: 'Hz' },
-      { name: 'gbw', label: 'Gain–bandwidth then', value: v.gain * dom.value, unit: 'Hz' },
+      {
+        name: 'gbw',
+        label: 'Gain–bandwidth then',
+        value: api.gainBandwidth(v.gain, dom.value),
+        unit: 'Hz',
+      },
       { name: 'betamax', label: 'Largest β with that pole', value: beta.value, format: 'plain' },
       {
         name: 'afmin',
@@ -216,7 +221,7 @@ export const closedFormCard = {
     { name: 'f2', label: 'Second pole', value: '5M', unit: 'Hz' },
   ],
   compute(v, api) {
-    const t0 = v.a0 * v.beta;
+    const t0 = api.loopGain(v.a0, v.beta);
     const two = api.twoPoleResponse(v.fh, v.f2, t0);
     return [
       {

@@ -1,151 +1,146 @@
 // The worksheet panel: toolbar (open, save, CSV, share link, demo), the grid, the
-// function help, and autosave with recovery after a reload.
+// function help, the autosave with recovery after a reload, and the list of
+// replaced sheets. Nothing the user typed is lost: see replacing.js (every load
+// that replaces the sheet can be undone), opening.js (a refused link leaves the
+// sheet as it was) and autosave.js (a failed autosave is shown, with the file).
 
 import { el } from '../dom.js';
 import { useCore } from '../format.js';
 import { mountGrid } from './grid.js';
 import { mountHelp } from './help.js';
 import * as store from './storage.js';
+import { createReplaced } from './replaced.js';
+import { mountReplacedView } from './replaced-view.js';
+import { createAutosave } from './autosave.js';
+import { createReplacing } from './replacing.js';
+import { openAtStart, watchLinks, hasSheetLink } from './opening.js';
 import { DEMO_SHEET } from './demo.js';
 
-export async function mountWorksheet(host, api) {
+const button = (id, label, onclick) =>
+  el('button', { type: 'button', class: 'button', id, onclick }, label);
+
+/** What the share message says about who can open the link. */
+function shareScope() {
+  return location.protocol === 'file:'
+    ? 'It carries the whole sheet, but it points to the page file on this computer: it opens only where that file is at the same place. To share the sheet, send the page file with the sheet saved as a file.'
+    : 'It carries the whole sheet; anyone who opens it gets a copy.';
+}
+
+/** The panel's elements, appended to `host` in their order (the grid and help last). */
+function buildPanel(host) {
+  const parts = {
+    fileInput: el('input', {
+      type: 'file',
+      accept: '.json,application/json',
+      class: 'visually-hidden',
+      id: 'sheet-file',
+      tabindex: '-1',
+    }),
+    toolbar: el('div', { class: 'sheet-toolbar', role: 'toolbar', 'aria-label': 'worksheet' }),
+    note: el('p', { class: 'sheet-note', role: 'status', 'aria-live': 'polite' }),
+    warning: el('div', {
+      class: 'sheet-warning',
+      id: 'sheet-warning',
+      role: 'alert',
+      hidden: true,
+    }),
+    shareOut: el('input', {
+      class: 'sheet-share',
+      readonly: true,
+      'aria-label': 'share link',
+      hidden: true,
+    }),
+    replacedHost: el('div'),
+    gridHost: el('div', { class: 'sheet-main' }),
+    helpHost: el('aside', { class: 'sheet-help', 'aria-label': 'function help' }),
+  };
+  host.append(
+    parts.toolbar,
+    parts.note,
+    parts.warning,
+    parts.shareOut,
+    parts.replacedHost,
+    el('div', { class: 'sheet-layout' }, parts.gridHost, parts.helpHost),
+  );
+  return parts;
+}
+
+async function share(sheet, { note, shareOut }) {
+  const url = await store.shareUrl(sheet);
+  shareOut.hidden = false;
+  shareOut.value = url;
+  shareOut.select();
+  let copied = true;
+  try {
+    await navigator.clipboard.writeText(url);
+  } catch {
+    copied = false;
+  }
+  note.textContent = `${copied ? 'Share link copied.' : 'Share link ready below; copy it from the box.'} ${shareScope()}`;
+}
+
+function fillToolbar(panel, parts) {
+  const { sheet } = panel;
+  const loadDemo = async () => {
+    const done = await panel.replaceWith(DEMO_SHEET, 'The demo', 'by the demo');
+    if (done)
+      panel.announce(
+        done,
+        'Demo loaded: a hydrophone preamplifier and its line driver. Change any blue input.',
+      );
+  };
+  const openFile = async () => {
+    const file = parts.fileInput.files?.[0];
+    if (!file) return;
+    parts.fileInput.value = '';
+    const text = await store.readFile(file);
+    const done = await panel.replaceWith(text, `"${file.name}"`, `by the file "${file.name}"`);
+    if (done) panel.announce(done, `Opened "${file.name}".`);
+  };
+  parts.fileInput.addEventListener('change', openFile);
+  parts.toolbar.append(
+    button('sheet-open', 'Open…', () => parts.fileInput.click()),
+    button('sheet-save', 'Save file', () => store.saveFile(sheet)),
+    button('sheet-csv', 'Values as CSV', () => store.exportCsv(sheet)),
+    button('sheet-share', 'Share link', () => share(sheet, parts)),
+    button('sheet-demo', 'Load demo', loadDemo),
+    parts.fileInput,
+  );
+}
+
+/**
+ * Mount the worksheet in `host`. `onLink()` is called when a share link pasted into
+ * this tab's address bar (a fragment change, no reload) was opened or refused.
+ * Resolves to `{sheet, grid, cameWithLink}`: `cameWithLink` is true when the page
+ * was opened with a share link, whether its sheet was loaded or refused (the
+ * worksheet says which).
+ */
+export async function mountWorksheet(host, api, { onLink = () => {} } = {}) {
   useCore(api);
   const sheet = new api.Worksheet();
-  const note = el('p', { class: 'sheet-note', role: 'status', 'aria-live': 'polite' });
-  const fileInput = el('input', {
-    type: 'file',
-    accept: '.json,application/json',
-    class: 'visually-hidden',
-    id: 'sheet-file',
-    tabindex: '-1',
+  const parts = buildPanel(host);
+  const replaced = createReplaced();
+  const panel = { sheet, note: parts.note, replaced };
+  const autosave = createAutosave(sheet, {
+    host,
+    warning: parts.warning,
+    replaced,
+    onReplacedStored: () => panel.showReplaced(),
   });
-  const shareOut = el('input', {
-    class: 'sheet-share',
-    readonly: true,
-    'aria-label': 'share link',
-    hidden: true,
+  const grid = mountGrid(parts.gridHost, sheet, { onChange: autosave.soon });
+  mountHelp(parts.helpHost, api.functionCatalog(), { onUse: (f) => grid.propose(f) });
+  Object.assign(panel, { grid, autosave });
+  const render = mountReplacedView(parts.replacedHost, {
+    onRestore: (entry) => panel.restore(entry),
   });
-  const toolbar = el(
-    'div',
-    { class: 'sheet-toolbar', role: 'toolbar', 'aria-label': 'worksheet' },
-    el(
-      'button',
-      { type: 'button', class: 'button', id: 'sheet-open', onclick: () => fileInput.click() },
-      'Open…',
-    ),
-    el(
-      'button',
-      { type: 'button', class: 'button', id: 'sheet-save', onclick: () => store.saveFile(sheet) },
-      'Save file',
-    ),
-    el(
-      'button',
-      { type: 'button', class: 'button', id: 'sheet-csv', onclick: () => store.exportCsv(sheet) },
-      'Values as CSV',
-    ),
-    el(
-      'button',
-      { type: 'button', class: 'button', id: 'sheet-share', onclick: share },
-      'Share link',
-    ),
-    el(
-      'button',
-      { type: 'button', class: 'button', id: 'sheet-demo', onclick: loadDemo },
-      'Load demo',
-    ),
-    fileInput,
-  );
-  const gridHost = el('div', { class: 'sheet-main' });
-  const helpHost = el('aside', { class: 'sheet-help', 'aria-label': 'function help' });
-  host.append(toolbar, note, shareOut, el('div', { class: 'sheet-layout' }, gridHost, helpHost));
+  panel.showReplaced = () => render(replaced.list());
+  Object.assign(panel, createReplacing(panel));
+  fillToolbar(panel, parts);
+  watchLinks(panel, onLink);
 
-  let saveTimer = null;
-  const grid = mountGrid(gridHost, sheet, {
-    onChange() {
-      clearTimeout(saveTimer);
-      saveTimer = setTimeout(() => store.autosave(sheet), 300);
-    },
-  });
-  mountHelp(helpHost, api.functionCatalog(), { onUse: (formula) => grid.propose(formula) });
-
-  function load(text, what) {
-    try {
-      sheet.loadDocument(text);
-    } catch (err) {
-      note.textContent = `${what} was not loaded: ${err.message}. The sheet is as it was.`;
-      return false;
-    }
-    grid.refresh();
-    store.autosave(sheet);
-    return true;
-  }
-
-  async function share() {
-    const url = await store.shareUrl(sheet);
-    shareOut.hidden = false;
-    shareOut.value = url;
-    shareOut.select();
-    try {
-      await navigator.clipboard.writeText(url);
-      note.textContent =
-        'Share link copied. It carries the whole sheet; anyone who opens it gets a copy.';
-    } catch {
-      note.textContent = 'Share link ready below; copy it from the box.';
-    }
-  }
-
-  function loadDemo() {
-    if (load(DEMO_SHEET, 'The demo'))
-      note.textContent =
-        'Demo loaded: a hydrophone preamplifier and its line driver. Change any blue input.';
-  }
-
-  fileInput.addEventListener('change', async () => {
-    const file = fileInput.files?.[0];
-    if (!file) return;
-    if (load(await store.readFile(file), `"${file.name}"`))
-      note.textContent = `Opened "${file.name}".`;
-    fileInput.value = '';
-  });
-
-  // Start: a share link wins (the previous autosave is kept aside); otherwise the
-  // autosave of this browser is recovered.
-  let fromLink = null;
-  try {
-    fromLink = await store.decodeFragment(location.hash);
-  } catch (err) {
-    note.textContent = `The link's sheet could not be read: ${err.message}.`;
-  }
-  if (fromLink !== null) {
-    const hadSaved = store.backUpAutosave();
-    // Drop the fragment so that a reload shows the autosave of later edits.
-    history.replaceState(null, '', location.href.replace(/#.*$/, ''));
-    if (load(fromLink, 'The shared sheet')) {
-      note.textContent = 'Opened the sheet from the link.';
-      if (hadSaved) {
-        note.append(
-          ' ',
-          el(
-            'button',
-            {
-              type: 'button',
-              class: 'button',
-              id: 'sheet-restore',
-              onclick: () => {
-                if (load(store.backup(), 'The previous sheet'))
-                  note.textContent = 'Your previous sheet is back.';
-              },
-            },
-            'Restore my previous sheet',
-          ),
-        );
-      }
-    }
-  } else {
-    const saved = store.recovered();
-    if (saved && load(saved, 'The autosaved sheet'))
-      note.append(`${note.textContent ? ' ' : ''}Recovered your sheet from this browser.`);
-  }
+  const cameWithLink = hasSheetLink();
+  await openAtStart(panel);
+  panel.showReplaced();
   grid.refresh();
-  return { sheet, grid };
+  return { sheet, grid, cameWithLink };
 }
