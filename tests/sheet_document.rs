@@ -1,7 +1,7 @@
 //! The sheet document: save → load → save byte-identical for a sheet using every
 //! feature; refusals leave the sheet untouched; CSV and TSV.
 
-use loopwright::sheet::document::{from_document, range_to_tsv, to_csv};
+use loopwright::sheet::{from_document, range_to_tsv, to_csv};
 use loopwright::sheet::{CellRef, ErrorKind, Range, Sheet, Value};
 
 fn c(s: &str) -> CellRef {
