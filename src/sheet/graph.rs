@@ -187,6 +187,71 @@ fn forget<K: Ord>(map: &mut BTreeMap<K, Vec<CellRef>>, key: K, cell: CellRef) {
     }
 }
 
+const UNSEEN: usize = usize::MAX;
+
+/// The state of Tarjan's search over `n` nodes. Every index used is a node
+/// number below `n`: roots come from `0..n` and edge targets of `n` or more are
+/// skipped, so the vectors of length `n` are never indexed out of bounds.
+struct Tarjan {
+    index: Vec<usize>,
+    low: Vec<usize>,
+    on_stack: Vec<bool>,
+    cyclic: Vec<bool>,
+    component_of: Vec<usize>,
+    components: usize,
+    stack: Vec<usize>,
+    out: Vec<usize>,
+    counter: usize,
+}
+
+impl Tarjan {
+    fn new(n: usize) -> Tarjan {
+        Tarjan {
+            index: alloc::vec![UNSEEN; n],
+            low: alloc::vec![0; n],
+            on_stack: alloc::vec![false; n],
+            cyclic: alloc::vec![false; n],
+            component_of: alloc::vec![0; n],
+            components: 0,
+            stack: Vec::new(),
+            out: Vec::with_capacity(n),
+            counter: 0,
+        }
+    }
+
+    /// Give `v` its index and put it on the stack.
+    fn enter(&mut self, v: usize) {
+        self.index[v] = self.counter;
+        self.low[v] = self.counter;
+        self.counter += 1;
+        self.stack.push(v);
+        self.on_stack[v] = true;
+    }
+
+    /// After `v`'s edges: if it roots a component, pop the component and emit it.
+    fn leave(&mut self, v: usize) {
+        if self.low[v] != self.index[v] {
+            return;
+        }
+        let mut component = Vec::new();
+        while let Some(w) = self.stack.pop() {
+            self.on_stack[w] = false;
+            component.push(w);
+            if w == v {
+                break;
+            }
+        }
+        if component.len() > 1 {
+            component.iter().for_each(|&w| self.cyclic[w] = true);
+        }
+        component
+            .iter()
+            .for_each(|&w| self.component_of[w] = self.components);
+        self.components += 1;
+        self.out.extend(component);
+    }
+}
+
 /// Evaluation order of `n` nodes given, for node `i`, the nodes it reads
 /// (`edges(i, out)` pushes their indices onto `out`): every node comes after the
 /// nodes it reads, except inside circular references. Returns the order
@@ -197,7 +262,6 @@ pub fn order(
     n: usize,
     edges: impl Fn(usize, &mut Vec<usize>),
 ) -> (Vec<usize>, Vec<bool>, Vec<usize>) {
-    const UNSEEN: usize = usize::MAX;
     // Adjacency in one flat buffer: the targets of i are targets[start[i]..start[i + 1]].
     let mut start = Vec::with_capacity(n + 1);
     let mut targets = Vec::new();
@@ -212,28 +276,14 @@ pub fn order(
             _ => &[],
         }
     };
-    // Every index below is a node number below n: roots come from 0..n and edge
-    // targets of n or more are skipped, so the vectors of length n are never
-    // indexed out of bounds.
-    let mut index = alloc::vec![UNSEEN; n];
-    let mut low = alloc::vec![0usize; n];
-    let mut on_stack = alloc::vec![false; n];
-    let mut cyclic = alloc::vec![false; n];
-    let mut component_of = alloc::vec![0usize; n];
-    let mut components = 0;
-    let mut stack: Vec<usize> = Vec::new();
-    let mut out = Vec::with_capacity(n);
-    let mut counter = 0;
+    let mut t = Tarjan::new(n);
+    // The explicit call stack: (node, next edge to follow).
     let mut calls: Vec<(usize, usize)> = Vec::new();
     for root in 0..n {
-        if index[root] != UNSEEN {
+        if t.index[root] != UNSEEN {
             continue;
         }
-        index[root] = counter;
-        low[root] = counter;
-        counter += 1;
-        stack.push(root);
-        on_stack[root] = true;
+        t.enter(root);
         calls.push((root, 0));
         while let Some(&mut (v, ref mut next_edge)) = calls.last_mut() {
             if let Some(&w) = adj(v).get(*next_edge) {
@@ -242,43 +292,24 @@ pub fn order(
                     continue;
                 }
                 if w == v {
-                    cyclic[v] = true;
+                    t.cyclic[v] = true;
                 }
-                if index[w] == UNSEEN {
-                    index[w] = counter;
-                    low[w] = counter;
-                    counter += 1;
-                    stack.push(w);
-                    on_stack[w] = true;
+                if t.index[w] == UNSEEN {
+                    t.enter(w);
                     calls.push((w, 0));
-                } else if on_stack[w] {
-                    low[v] = low[v].min(index[w]);
+                } else if t.on_stack[w] {
+                    t.low[v] = t.low[v].min(t.index[w]);
                 }
                 continue;
             }
             calls.pop();
             if let Some(&(parent, _)) = calls.last() {
-                low[parent] = low[parent].min(low[v]);
+                t.low[parent] = t.low[parent].min(t.low[v]);
             }
-            if low[v] == index[v] {
-                let mut component = Vec::new();
-                while let Some(w) = stack.pop() {
-                    on_stack[w] = false;
-                    component.push(w);
-                    if w == v {
-                        break;
-                    }
-                }
-                if component.len() > 1 {
-                    component.iter().for_each(|&w| cyclic[w] = true);
-                }
-                component.iter().for_each(|&w| component_of[w] = components);
-                components += 1;
-                out.extend(component);
-            }
+            t.leave(v);
         }
     }
-    (out, cyclic, component_of)
+    (t.out, t.cyclic, t.component_of)
 }
 
 #[cfg(test)]

@@ -131,10 +131,16 @@ impl Sheet {
             .map(|(c, _)| *c)
             .peekable();
         let mut looked = 0u64;
-        // Merge the two sorted key sequences (a covered cell has no input).
+        // Merge the two sorted key sequences. A cell is in both only for a
+        // moment, when it got an input and the spill covering it is not yet
+        // redone: it is taken once.
         loop {
             let next = match (inputs.peek(), covered.peek()) {
                 (Some(a), Some(b)) if b < a => covered.next(),
+                (Some(a), Some(b)) if a == b => {
+                    covered.next();
+                    inputs.next()
+                }
                 (Some(_), _) => inputs.next(),
                 (None, _) => covered.next(),
             };
