@@ -14,7 +14,7 @@
 //! }
 //! ```
 //! The full description, with every kind and its sign convention, is in
-//! `docs/circuit-format.md`. `nodes` is optional: when present, it is the complete
+//! `docs/circuit.md`. `nodes` is optional: when present, it is the complete
 //! list of nodes besides ground and an element naming any other node is an
 //! error; when absent, nodes are created as elements name them. Values are
 //! numbers or texts read by [`super::parse_value`]. Unknown fields are refused
@@ -365,7 +365,7 @@ mod tests {
 
     #[test]
     fn the_documented_example_reads_and_solves() {
-        let doc = include_str!("../../docs/circuit-format.md");
+        let doc = include_str!("../../docs/circuit.md");
         let start = doc.find("```json").map(|i| i + 7).unwrap();
         let end = start + doc[start..].find("```").unwrap();
         let c = read_circuit(&doc[start..end]).unwrap();

@@ -1,9 +1,9 @@
-//! Loading-aware analysis of real feedback circuits (catalog area D).
+//! Loading-aware analysis of real feedback circuits.
 //!
 //! - [`error`]: node and element names, and the error that carries one;
 //! - [`value`]: component values with SI prefixes and IEC 60062 codes;
 //! - [`netlist`]: the small-signal circuit description and its size limits;
-//! - [`json`]: the versioned JSON document (`docs/circuit-format.md`);
+//! - [`json`]: the versioned JSON document (`docs/circuit.md`);
 //! - [`lu`]: the dense complex LU with partial pivoting;
 //! - [`mna`]: the exact modified nodal solution, transfers and port impedances;
 //! - [`templates`]: the circuit of each topology from an amplifier model,
