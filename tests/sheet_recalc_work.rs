@@ -210,3 +210,16 @@ proptest! {
         }
     }
 }
+
+#[test]
+fn an_edit_reaches_formulas_reading_the_cell_directly() {
+    let mut s = Sheet::new();
+    s.set("F1", "1").unwrap();
+    s.set("C1", "=10").unwrap();
+    s.set("E1", "=C1*$F$1").unwrap();
+    s.set("E2", "=SUM(C1:C3)*F1").unwrap();
+    let changed = s.set("F1", "3").unwrap().len();
+    assert_eq!(number(&s, "E1"), 30.0);
+    assert_eq!(number(&s, "E2"), 30.0);
+    assert_eq!(changed, 3);
+}

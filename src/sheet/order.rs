@@ -1,7 +1,8 @@
 //! The evaluation order of the cells a recalculation visits.
 //!
 //! The pending cells form a graph: each cell points at the pending cells it
-//! reads. A range is one node of its own, shared by every formula reading it,
+//! reads. A range of more than [`SMALL_RANGE_CELLS`] cells is one node of its
+//! own, shared by every formula reading it,
 //! pointing at the pending cells inside it; a column block of
 //! [`BLOCK_ROWS`] rows that the range covers whole is again one node, shared by
 //! every range covering it. So a formula costs one edge per range it reads, and a
@@ -17,6 +18,10 @@ use super::graph::{order, Dep, BLOCK_ROWS};
 use super::sheet::Sheet;
 use alloc::collections::BTreeMap;
 use alloc::vec::Vec;
+
+/// Ranges of at most this many cells get an edge per cell instead of a node
+/// (the ten-cell sums of the benchmark sheet, say).
+const SMALL_RANGE_CELLS: u64 = 16;
 
 /// What the nodes of the pending graph are built from.
 struct Pending<'a> {
@@ -77,6 +82,10 @@ impl Pending<'_> {
         for d in self.sheet.graph.precedents(c) {
             match *d {
                 Dep::Cell(x) => self.cell_edges(c, x, &mut out),
+                // A small range: an edge per cell costs less than a node.
+                Dep::Range(r) if r.area() <= SMALL_RANGE_CELLS => {
+                    r.cells().for_each(|x| self.cell_edges(c, x, &mut out));
+                }
                 // A larger range is an error value, which reads nothing.
                 Dep::Range(r) if r.area() <= MAX_RANGE_CELLS => {
                     out.push(self.range_node(r, shared))

@@ -68,8 +68,13 @@ impl Work {
         self.used.get() > self.budget
     }
 
-    /// Cell values in `r` changed: results cached over them are stale.
+    /// Cell values in `r` changed: results cached over them are stale. (While
+    /// nothing is cached there is nothing to mark: only changes after a result
+    /// was kept make it stale.)
     fn touch(&mut self, r: Range) {
+        if self.cache.borrow().is_empty() {
+            return;
+        }
         self.clock += 1;
         for col in r.start.col..=r.end.col {
             for block in r.start.row / BLOCK_ROWS..=r.end.row / BLOCK_ROWS {
