@@ -38,6 +38,7 @@ pub mod noise;
 pub mod notation;
 pub mod sheet;
 mod sort;
+pub mod stage;
 
 #[cfg(feature = "wasm-lite")]
 pub mod wasm;
