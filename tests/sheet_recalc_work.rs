@@ -104,7 +104,7 @@ fn many_sums_of_one_range_see_every_change_inside_it() {
 fn a_recalculation_past_its_budget_marks_what_it_did_not_reach() {
     // 1 000 sums over different 500-cell windows of 1 500 numbers: at least
     // 500 000 cell reads, since no two read the same range, against a budget
-    // of 200 000 (the default, MAX_RECALC_WORK, is the same test 50 times larger;
+    // of 200 000 (the default, MAX_RECALC_WORK, is the same test 10 times larger;
     // the benchmark in bench/sheet.mjs runs that one).
     const BUDGET: u64 = 200_000;
     let (windows, width) = (1000u64, 500u64);

@@ -53,12 +53,14 @@ pub const MAX_NAMES: usize = 10_000;
 pub const MAX_NAME_CHARS: usize = 64;
 /// Recalculation passes allowed for spills that change what other formulas read.
 pub const MAX_SPILL_PASSES: usize = 32;
-/// Work one recalculation may do (see the module documentation): ten million
-/// cell reads, about a second in wasm on a laptop. The 10 000-cell benchmark
-/// sheet needs 30 000; a formula reads at most
+/// Work one recalculation may do (see the module documentation): two million
+/// cell reads. 20 000 sums over different 5 000-cell windows, which meet it,
+/// took 8–15 s per edit in wasm at ten million on the loaded shared machine,
+/// so two million is about 2–3 s there. The 10 000-cell benchmark sheet needs
+/// 30 000; a formula reads at most
 /// [`super::eval::MAX_RANGE_CELLS`], so a recalculation stops within that much
 /// past the budget.
-pub const MAX_RECALC_WORK: u64 = 10_000_000;
+pub const MAX_RECALC_WORK: u64 = 2_000_000;
 
 #[derive(Debug, Clone)]
 pub(super) enum Content {
