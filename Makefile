@@ -6,7 +6,7 @@ PORT ?= 8080
 PY := $(or $(LOOPWRIGHT_VENV),$(HOME)/.cache/loopwright/venv)/bin/python
 export CARGO_TERM_COLOR := never
 
-.PHONY: serve test lint bench bench-quick setup setup-page build single package test-native test-reference test-browser test-page test-package
+.PHONY: serve test lint bench bench-quick setup setup-page build single package test-native test-fuzz test-reference test-browser test-page test-package
 
 serve: setup-page build
 	node scripts/serve.mjs www $(PORT)
@@ -26,7 +26,7 @@ single: build
 package:
 	./scripts/build-package.sh
 
-test: setup lint test-native test-reference test-browser single package bench-quick test-page test-package
+test: setup lint test-native test-fuzz test-reference test-browser single package bench-quick test-page test-package
 	@echo "make test: all suites passed"
 
 # Gates: the committed formatting (rustfmt.toml, biome.json) and lints with warnings denied.
@@ -39,6 +39,17 @@ test-native:
 	cargo build --no-default-features
 	cargo test
 	cargo test --bench core
+
+# The worksheet's formula fuzz target (fuzz/fuzz_targets/formula.rs, nightly + cargo-fuzz)
+# for FUZZ_SECONDS, from the committed seeds in fuzz/corpus/formula; what it finds on
+# the way goes to a scratch corpus, so the committed one stays as it is. A long run:
+#   make test-fuzz FUZZ_SECONDS=3600
+FUZZ_SECONDS ?= 60
+test-fuzz:
+	scratch=$$(mktemp -d) && \
+	cargo +nightly fuzz run formula "$$scratch" fuzz/corpus/formula -- \
+	  -max_total_time=$(FUZZ_SECONDS) -timeout=10 -rss_limit_mb=2048 -print_final_stats=1; \
+	status=$$?; rm -rf "$$scratch"; exit $$status
 
 test-reference:
 	@for script in tests/reference/*.py; do $(PY) $$script --check || exit 1; done

@@ -2,7 +2,8 @@
 # Installs what building and testing loopwright needs and is missing on a fresh
 # Debian machine with rustup and Node: the wasm32 target, the wasm-bindgen CLI at
 # the exact version the crate pins, Chromium + chromedriver and Firefox ESR
-# (Debian packages), geckodriver (crates.io) and the npm packages of the tests.
+# (Debian packages), geckodriver (crates.io), cargo-fuzz (crates.io, for the nightly
+# fuzz run) and the npm packages of the tests.
 # Safe to run again: every step checks first.
 set -euo pipefail
 cd "$(dirname "$0")/.."
@@ -37,6 +38,19 @@ if [ "$need_browsers" = 1 ]; then
   if ! command -v geckodriver >/dev/null 2>&1; then
     say "installing geckodriver from crates.io (about 2 minutes)"
     cargo install geckodriver
+  fi
+fi
+
+# The fuzz run of make test: a nightly toolchain (in the machine image) and cargo-fuzz.
+CARGO_FUZZ_VERSION=0.13.2
+if [ "${LOOPWRIGHT_NEED_FUZZ:-$need_browsers}" = 1 ]; then
+  if ! rustup toolchain list | grep -q '^nightly'; then
+    say "installing the nightly toolchain (the fuzz run of make test needs it)"
+    rustup toolchain install nightly --profile minimal
+  fi
+  if ! cargo fuzz --version 2>/dev/null | grep -q " $CARGO_FUZZ_VERSION\$"; then
+    say "installing cargo-fuzz $CARGO_FUZZ_VERSION from crates.io (about 2 minutes)"
+    cargo install cargo-fuzz --version "$CARGO_FUZZ_VERSION" --locked
   fi
 fi
 

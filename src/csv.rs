@@ -471,7 +471,7 @@ pub fn write_text(out: &mut String, text: &str, separator: char) {
 /// (`100`, `-2.5`, `1e-7`); never quoted, never neutralised. Callers pass finite
 /// numbers only (the core's results are checked).
 pub fn write_number(out: &mut String, x: f64) {
-    crate::sheet::value::write_number(out, x);
+    crate::sheet::write_number(out, x);
 }
 
 #[cfg(test)]

@@ -1,7 +1,7 @@
 //! The sheet document: save → load → save byte-identical for a sheet using every
 //! feature; refusals leave the sheet untouched; CSV and TSV.
 
-use loopwright::sheet::document::{from_document, range_to_tsv, to_csv};
+use loopwright::sheet::{from_document, range_to_tsv, to_csv};
 use loopwright::sheet::{CellRef, ErrorKind, Range, Sheet, Value};
 
 fn c(s: &str) -> CellRef {
@@ -209,7 +209,7 @@ fn exports_neutralise_formula_injection_and_keep_numbers() {
 
 #[test]
 fn a_refused_paste_leaves_the_sheet_as_it_was() {
-    use loopwright::sheet::document::{MAX_PASTE_BYTES, MAX_PASTE_CELLS};
+    use loopwright::sheet::{MAX_PASTE_BYTES, MAX_PASTE_CELLS};
     let mut s = Sheet::new();
     s.set("A1", "4k7").unwrap();
     s.set("A2", "=A1*2").unwrap();

@@ -67,8 +67,9 @@ fn error_values_carry_their_explanation() {
     }
     assert!(text(&ws.value("B3").unwrap(), "message").contains("column 6"));
     let list: Array = error_values().unwrap().dyn_into().unwrap();
-    assert_eq!(list.length(), 9);
+    assert_eq!(list.length(), 10);
     assert_eq!(text(&list.get(0), "code"), "#DIV/0!");
+    assert_eq!(text(&list.get(9), "code"), "#BUDGET!");
     assert_thrown(ws.set_cell("A0", "1"), "out_of_domain", "cell");
     assert_thrown(ws.value("not a cell"), "out_of_domain", "cell");
 }

@@ -124,6 +124,74 @@ fn members<'a>(
     }
 }
 
+/// The `cells` member: inputs by address.
+fn read_cells(
+    v: &Json,
+    out: &mut Vec<(CellRef, String)>,
+) -> core::result::Result<(), DocumentError> {
+    let m = members(v, "\"cells\"")?;
+    if m.len() > MAX_CELLS {
+        return refuse(format!("it has more than {MAX_CELLS} cells"));
+    }
+    let mut cells_seen = BTreeSet::new();
+    for (addr, input) in m {
+        let Some(c) = CellRef::parse(addr) else {
+            return refuse(format!(
+                "\"{addr}\" in \"cells\" is not a cell address such as B3"
+            ));
+        };
+        if !cells_seen.insert(c) {
+            return refuse(format!("the cell {c} appears twice"));
+        }
+        let Json::String(input) = input else {
+            return refuse(format!("the input of {c} must be a string"));
+        };
+        if input.trim().is_empty() {
+            return refuse(format!("the input of {c} is empty; leave empty cells out"));
+        }
+        if input.len() > MAX_INPUT_BYTES {
+            return refuse(format!(
+                "the input of {c} is longer than {MAX_INPUT_BYTES} bytes"
+            ));
+        }
+        out.push((c, input.clone()));
+    }
+    Ok(())
+}
+
+/// The `names` member: cells by name.
+fn read_names(
+    v: &Json,
+    out: &mut Vec<(String, CellRef)>,
+) -> core::result::Result<(), DocumentError> {
+    let m = members(v, "\"names\"")?;
+    if m.len() > MAX_NAMES {
+        return refuse(format!("it has more than {MAX_NAMES} names"));
+    }
+    let mut names_seen = BTreeSet::new();
+    for (name, addr) in m {
+        if !valid_name(name) {
+            return refuse(format!("\"{name}\" is not a valid cell name"));
+        }
+        if !names_seen.insert(name.to_ascii_uppercase()) {
+            return refuse(format!(
+                "the name \"{name}\" appears twice (names ignore case)"
+            ));
+        }
+        let c = match addr {
+            Json::String(a) => CellRef::parse(a),
+            _ => None,
+        };
+        let Some(c) = c else {
+            return refuse(format!(
+                "the name \"{name}\" must refer to a cell address such as \"B3\""
+            ));
+        };
+        out.push((name.clone(), c));
+    }
+    Ok(())
+}
+
 /// Read a document without touching any sheet.
 ///
 /// # Errors
@@ -166,53 +234,9 @@ pub fn from_document(text: &str) -> core::result::Result<Contents, DocumentError
             ("version", _) => return refuse(format!("\"version\" must be the whole number {VERSION}")),
             ("cells", v) => {
                 have_cells = true;
-                let m = members(v, "\"cells\"")?;
-                if m.len() > MAX_CELLS {
-                    return refuse(format!("it has more than {MAX_CELLS} cells"));
-                }
-                let mut cells_seen = BTreeSet::new();
-                for (addr, input) in m {
-                    let Some(c) = CellRef::parse(addr) else {
-                        return refuse(format!("\"{addr}\" in \"cells\" is not a cell address such as B3"));
-                    };
-                    if !cells_seen.insert(c) {
-                        return refuse(format!("the cell {c} appears twice"));
-                    }
-                    let Json::String(input) = input else {
-                        return refuse(format!("the input of {c} must be a string"));
-                    };
-                    if input.trim().is_empty() {
-                        return refuse(format!("the input of {c} is empty; leave empty cells out"));
-                    }
-                    if input.len() > MAX_INPUT_BYTES {
-                        return refuse(format!("the input of {c} is longer than {MAX_INPUT_BYTES} bytes"));
-                    }
-                    out.cells.push((c, input.clone()));
-                }
+                read_cells(v, &mut out.cells)?;
             }
-            ("names", v) => {
-                let m = members(v, "\"names\"")?;
-                if m.len() > MAX_NAMES {
-                    return refuse(format!("it has more than {MAX_NAMES} names"));
-                }
-                let mut names_seen = BTreeSet::new();
-                for (name, addr) in m {
-                    if !valid_name(name) {
-                        return refuse(format!("\"{name}\" is not a valid cell name"));
-                    }
-                    if !names_seen.insert(name.to_ascii_uppercase()) {
-                        return refuse(format!("the name \"{name}\" appears twice (names ignore case)"));
-                    }
-                    let c = match addr {
-                        Json::String(a) => CellRef::parse(a),
-                        _ => None,
-                    };
-                    let Some(c) = c else {
-                        return refuse(format!("the name \"{name}\" must refer to a cell address such as \"B3\""));
-                    };
-                    out.names.push((name.clone(), c));
-                }
-            }
+            ("names", v) => read_names(v, &mut out.names)?,
             (other, _) => return refuse(format!("unknown member \"{other}\"; version {VERSION} has format, version, cells and names")),
         }
     }

@@ -1,9 +1,9 @@
 //! The error values a cell can hold.
 //!
 //! The six of OpenFormula (OASIS OpenDocument Formula, ODF 1.2 part 2, §5.12
-//! "Errors", from memory) plus three of our own for situations the standard leaves
-//! to the implementation: a circular reference, a spill that is blocked, and a
-//! formula that does not parse. Each kind has a one-line explanation; each
+//! "Errors", from memory) plus four of our own for situations the standard leaves
+//! to the implementation: a circular reference, a spill that is blocked, a
+//! formula that does not parse, and a recalculation that spent its work budget. Each kind has a one-line explanation; each
 //! occurrence also carries a detail sentence saying what exactly went wrong.
 
 use crate::error::Error;
@@ -32,11 +32,14 @@ pub enum ErrorKind {
     Blocked,
     /// `#SYNTAX!`: the formula does not parse.
     Syntax,
+    /// `#BUDGET!`: the recalculation spent its work budget before reaching this
+    /// formula, which was therefore not computed.
+    Budget,
 }
 
 impl ErrorKind {
     /// Every kind, in a fixed order.
-    pub const ALL: [ErrorKind; 9] = [
+    pub const ALL: [ErrorKind; 10] = [
         ErrorKind::DivZero,
         ErrorKind::Value,
         ErrorKind::Ref,
@@ -46,6 +49,7 @@ impl ErrorKind {
         ErrorKind::Cycle,
         ErrorKind::Blocked,
         ErrorKind::Syntax,
+        ErrorKind::Budget,
     ];
 
     /// How the error value is written in a cell and in formulas.
@@ -60,6 +64,7 @@ impl ErrorKind {
             ErrorKind::Cycle => "#CYCLE!",
             ErrorKind::Blocked => "#BLOCKED!",
             ErrorKind::Syntax => "#SYNTAX!",
+            ErrorKind::Budget => "#BUDGET!",
         }
     }
 
@@ -81,6 +86,9 @@ impl ErrorKind {
                 "the formula gives several values but a cell they would spill into is not empty"
             }
             ErrorKind::Syntax => "the formula does not parse",
+            ErrorKind::Budget => {
+                "the recalculation spent its work budget before reaching this formula, so it was not computed"
+            }
         }
     }
 

@@ -44,12 +44,39 @@ struct Eval<'a> {
     text_bytes: core::cell::Cell<usize>,
 }
 
+/// Functions whose result depends only on the non-empty items of a range
+/// argument, in row-then-column order (they read ranges through
+/// [`super::functions::Args::numbers`] or [`super::functions::Args::booleans`],
+/// which skip empty cells). Their range arguments are read sparsely
+/// ([`Context::occupied`]), and a call with one range argument is cached per
+/// recalculation ([`Context::cached`]).
+pub const SKIPS_EMPTY: &[&str] = &["SUM", "MIN", "MAX", "AVERAGE", "AND", "OR"];
+
 /// What evaluation needs from the sheet.
 pub trait Context {
     /// The single value shown in cell `c` (an empty cell is [`Value::Empty`]).
     fn cell(&self, c: CellRef) -> Value;
     /// The cell a name (upper case) refers to.
     fn name(&self, upper: &str) -> Option<CellRef>;
+    /// Count `cells` of work against the recalculation's budget.
+    fn charge(&self, _cells: u64) {}
+    /// Push the values of `r` that are not empty onto `out`, in row-then-column
+    /// order. The default reads every cell; a sheet reads only the cells it holds.
+    fn occupied(&self, r: Range, out: &mut Vec<Value>) {
+        self.charge(r.area());
+        out.extend(
+            r.cells()
+                .map(|c| self.cell(c))
+                .filter(|v| *v != Value::Empty),
+        );
+    }
+    /// The result of `function` called on the range `r` alone, if this
+    /// recalculation computed it already and nothing in `r` changed since.
+    fn cached(&self, _function: &'static str, _r: Range) -> Option<Value> {
+        None
+    }
+    /// Keep the result of `function` called on the range `r` alone.
+    fn remember(&self, _function: &'static str, _r: Range, _v: &Value) {}
 }
 
 /// Evaluate a formula's tree: the value the cell holds. An empty result (a
@@ -95,24 +122,64 @@ fn eval(e: &Expr, ev: &Eval<'_>) -> Value {
     }
 }
 
-fn range(r: Range, ev: &Eval<'_>) -> Value {
+/// Count `r` against the formula's range limit: the error value when the range,
+/// or all the formula's ranges together, exceed [`MAX_RANGE_CELLS`].
+fn count_range(r: Range, ev: &Eval<'_>) -> Option<Value> {
     if r.area() > MAX_RANGE_CELLS {
-        return Value::error(
+        return Some(Value::error(
             ErrorKind::Ref,
             format!("the range {r} has more than {MAX_RANGE_CELLS} cells"),
-        );
+        ));
     }
     let used = ev.cells_read.get() + r.area();
     if used > MAX_RANGE_CELLS {
-        return Value::error(
+        return Some(Value::error(
             ErrorKind::Ref,
             format!("the formula reads more than {MAX_RANGE_CELLS} cells through ranges"),
-        );
+        ));
     }
     ev.cells_read.set(used);
+    None
+}
+
+fn range(r: Range, ev: &Eval<'_>) -> Value {
+    if let Some(e) = count_range(r, ev) {
+        return e;
+    }
+    ev.ctx.charge(r.area());
     let items: Vec<Value> = r.cells().map(|c| ev.ctx.cell(c)).collect();
     Array::new(r.rows(), r.cols(), items)
         .map_or_else(|| Value::error(ErrorKind::Ref, "empty range"), Value::Array)
+}
+
+/// A range argument of a [`SKIPS_EMPTY`] function: its non-empty values as one
+/// row (or [`Value::Empty`] when there are none), which such a function reads
+/// exactly as it reads the whole range.
+fn occupied_range(r: Range, ev: &Eval<'_>) -> Value {
+    if let Some(e) = count_range(r, ev) {
+        return e;
+    }
+    let mut items = Vec::new();
+    ev.ctx.occupied(r, &mut items);
+    Array::row(items).map_or(Value::Empty, Value::Array)
+}
+
+/// A [`SKIPS_EMPTY`] function called on one range: cached per recalculation, so
+/// many formulas over the same large range read it once.
+fn aggregate(spec: &'static FunctionSpec, r: Range, ev: &Eval<'_>) -> Value {
+    if let Some(e) = count_range(r, ev) {
+        return e;
+    }
+    if let Some(v) = ev.ctx.cached(spec.name, r) {
+        ev.ctx.charge(1);
+        return v;
+    }
+    let mut items = Vec::new();
+    ev.ctx.occupied(r, &mut items);
+    let arg = [Array::row(items).map_or(Value::Empty, Value::Array)];
+    let v = (spec.eval)(&Args { spec, values: &arg });
+    ev.ctx.remember(spec.name, r, &v);
+    v
 }
 
 fn number(v: &Value) -> Result<(f64, Option<Unit>), CellError> {
@@ -333,10 +400,15 @@ fn call(spec: &'static FunctionSpec, args: &[Expr], ev: &Eval<'_>) -> Value {
     if spec.name == "IF" {
         return lazy_if(spec, args, ev);
     }
+    let sparse = SKIPS_EMPTY.contains(&spec.name);
+    if let (true, [Expr::Range(r)]) = (sparse, args) {
+        return aggregate(spec, *r, ev);
+    }
     let mut values = Vec::with_capacity(n.max(spec.params.len()));
     for (i, arg) in args.iter().enumerate() {
         let v = match (arg, spec.param(i).and_then(|p| p.default)) {
             (Expr::Missing, Some(d)) => Value::Number(d, None),
+            (Expr::Range(r), _) if sparse => occupied_range(*r, ev),
             _ => eval(arg, ev),
         };
         if let Some(e) = unit_mismatch(spec, i, &v) {

@@ -5,8 +5,10 @@
 //! their cells). The reverse index maps a cell to the formulas naming it
 //! directly, and each block of [`BLOCK_ROWS`] rows of one column to the formulas
 //! reading a range that overlaps it; a range covering more than
-//! [`MAX_BLOCKS_PER_RANGE`] blocks goes on a short list that is tested by
-//! containment instead, so a huge range costs no index entries. Ordering uses Tarjan's strongly
+//! [`MAX_BLOCKS_PER_RANGE`] blocks is listed under each of its columns instead
+//! when it spans at most [`MAX_WIDE_COLUMNS`] (`J1:J100000`), and otherwise on a
+//! short list tested by containment, so a huge range costs few index entries
+//! and a cell in another column never looks at it. Ordering uses Tarjan's strongly
 //! connected components (R. Tarjan, "Depth-first search and linear graph
 //! algorithms", SIAM J. Computing 1(2), 1972), written without recursion so
 //! that a long chain of cells cannot overflow the stack; a component of more
@@ -27,8 +29,11 @@ pub enum Dep {
 
 /// Rows per block of the range index.
 pub const BLOCK_ROWS: u32 = 64;
-/// Ranges covering more blocks than this are tested one by one instead.
+/// Ranges covering more blocks than this are listed by column instead.
 pub const MAX_BLOCKS_PER_RANGE: u64 = 256;
+/// Ranges too large for the block index and spanning more columns than this
+/// are tested one by one.
+pub const MAX_WIDE_COLUMNS: u32 = 64;
 
 /// Precedents of every formula cell and the reverse index.
 #[derive(Debug, Default, Clone)]
@@ -39,7 +44,10 @@ pub struct Graph {
     range_readers: BTreeMap<CellRef, Vec<Range>>,
     /// (column, row block) → readers of a range overlapping that block.
     blocks: BTreeMap<(u32, u32), Vec<CellRef>>,
-    /// Readers of a range too large for the block index.
+    /// Column → readers of a range too large for the block index that spans at
+    /// most [`MAX_WIDE_COLUMNS`] columns, this one among them.
+    wide_columns: BTreeMap<u32, Vec<CellRef>>,
+    /// Readers of a range too large for the block index and wider than that.
     wide_readers: BTreeSet<CellRef>,
 }
 
@@ -71,7 +79,16 @@ impl Graph {
         }
         for r in &ranges {
             if block_count(r) > MAX_BLOCKS_PER_RANGE {
-                self.wide_readers.insert(cell);
+                if r.cols() > MAX_WIDE_COLUMNS {
+                    self.wide_readers.insert(cell);
+                    continue;
+                }
+                for col in r.start.col..=r.end.col {
+                    let list = self.wide_columns.entry(col).or_default();
+                    if list.last() != Some(&cell) {
+                        list.push(cell);
+                    }
+                }
                 continue;
             }
             for key in blocks_of(*r) {
@@ -103,16 +120,14 @@ impl Graph {
             }
         }
         if let Some(ranges) = self.range_readers.remove(&cell) {
-            for r in ranges
-                .iter()
-                .filter(|r| block_count(r) <= MAX_BLOCKS_PER_RANGE)
-            {
-                for key in blocks_of(*r) {
-                    if let Some(list) = self.blocks.get_mut(&key) {
-                        list.retain(|x| *x != cell);
-                        if list.is_empty() {
-                            self.blocks.remove(&key);
-                        }
+            for r in &ranges {
+                if block_count(r) <= MAX_BLOCKS_PER_RANGE {
+                    for key in blocks_of(*r) {
+                        forget(&mut self.blocks, key, cell);
+                    }
+                } else if r.cols() <= MAX_WIDE_COLUMNS {
+                    for col in r.start.col..=r.end.col {
+                        forget(&mut self.wide_columns, col, cell);
                     }
                 }
             }
@@ -130,29 +145,110 @@ impl Graph {
         self.precedents.get(&cell).map_or(&[], Vec::as_slice)
     }
 
-    /// Call `f` with every formula that reads `cell` directly or through a range.
-    pub fn readers_of(&self, cell: CellRef, mut f: impl FnMut(CellRef)) {
-        if let Some(set) = self.readers.get(&cell) {
-            set.iter().copied().for_each(&mut f);
-        }
-        let reads = |reader: &CellRef| {
+    /// Call `f` once with every formula that reads `cell` directly or through a
+    /// range.
+    pub fn readers_of(&self, cell: CellRef, f: impl FnMut(CellRef)) {
+        let reads = |reader: &&CellRef| {
             self.range_readers
-                .get(reader)
+                .get(*reader)
                 .is_some_and(|rs| rs.iter().any(|r| r.contains(cell)))
         };
-        // A reader appears at most once per block list (see `set`).
-        let listed = self
+        // A reader appears at most once per list (see `set`), but may be in
+        // several lists through several ranges.
+        let in_block = self
             .blocks
             .get(&(cell.col, cell.row / BLOCK_ROWS))
             .map_or(&[][..], Vec::as_slice);
-        listed.iter().filter(|r| reads(r)).copied().for_each(&mut f);
-        for reader in self
-            .wide_readers
+        let in_column = self
+            .wide_columns
+            .get(&cell.col)
+            .map_or(&[][..], Vec::as_slice);
+        let mut found: Vec<CellRef> = in_block
             .iter()
-            .filter(|r| reads(r) && !listed.contains(r))
-        {
-            f(*reader);
+            .chain(in_column)
+            .chain(&self.wide_readers)
+            .filter(reads)
+            .chain(self.readers.get(&cell).into_iter().flatten())
+            .copied()
+            .collect();
+        crate::sort::sort_by(&mut found, CellRef::cmp);
+        found.dedup();
+        found.into_iter().for_each(f);
+    }
+}
+
+/// Remove `cell` from the list under `key`, and the list when it empties.
+fn forget<K: Ord>(map: &mut BTreeMap<K, Vec<CellRef>>, key: K, cell: CellRef) {
+    if let Some(list) = map.get_mut(&key) {
+        list.retain(|x| *x != cell);
+        if list.is_empty() {
+            map.remove(&key);
         }
+    }
+}
+
+const UNSEEN: usize = usize::MAX;
+
+/// The state of Tarjan's search over `n` nodes. Every index used is a node
+/// number below `n`: roots come from `0..n` and edge targets of `n` or more are
+/// skipped, so the vectors of length `n` are never indexed out of bounds.
+struct Tarjan {
+    index: Vec<usize>,
+    low: Vec<usize>,
+    on_stack: Vec<bool>,
+    cyclic: Vec<bool>,
+    component_of: Vec<usize>,
+    components: usize,
+    stack: Vec<usize>,
+    out: Vec<usize>,
+    counter: usize,
+}
+
+impl Tarjan {
+    fn new(n: usize) -> Tarjan {
+        Tarjan {
+            index: alloc::vec![UNSEEN; n],
+            low: alloc::vec![0; n],
+            on_stack: alloc::vec![false; n],
+            cyclic: alloc::vec![false; n],
+            component_of: alloc::vec![0; n],
+            components: 0,
+            stack: Vec::new(),
+            out: Vec::with_capacity(n),
+            counter: 0,
+        }
+    }
+
+    /// Give `v` its index and put it on the stack.
+    fn enter(&mut self, v: usize) {
+        self.index[v] = self.counter;
+        self.low[v] = self.counter;
+        self.counter += 1;
+        self.stack.push(v);
+        self.on_stack[v] = true;
+    }
+
+    /// After `v`'s edges: if it roots a component, pop the component and emit it.
+    fn leave(&mut self, v: usize) {
+        if self.low[v] != self.index[v] {
+            return;
+        }
+        let mut component = Vec::new();
+        while let Some(w) = self.stack.pop() {
+            self.on_stack[w] = false;
+            component.push(w);
+            if w == v {
+                break;
+            }
+        }
+        if component.len() > 1 {
+            component.iter().for_each(|&w| self.cyclic[w] = true);
+        }
+        component
+            .iter()
+            .for_each(|&w| self.component_of[w] = self.components);
+        self.components += 1;
+        self.out.extend(component);
     }
 }
 
@@ -166,7 +262,6 @@ pub fn order(
     n: usize,
     edges: impl Fn(usize, &mut Vec<usize>),
 ) -> (Vec<usize>, Vec<bool>, Vec<usize>) {
-    const UNSEEN: usize = usize::MAX;
     // Adjacency in one flat buffer: the targets of i are targets[start[i]..start[i + 1]].
     let mut start = Vec::with_capacity(n + 1);
     let mut targets = Vec::new();
@@ -181,28 +276,14 @@ pub fn order(
             _ => &[],
         }
     };
-    // Every index below is a node number below n: roots come from 0..n and edge
-    // targets of n or more are skipped, so the vectors of length n are never
-    // indexed out of bounds.
-    let mut index = alloc::vec![UNSEEN; n];
-    let mut low = alloc::vec![0usize; n];
-    let mut on_stack = alloc::vec![false; n];
-    let mut cyclic = alloc::vec![false; n];
-    let mut component_of = alloc::vec![0usize; n];
-    let mut components = 0;
-    let mut stack: Vec<usize> = Vec::new();
-    let mut out = Vec::with_capacity(n);
-    let mut counter = 0;
+    let mut t = Tarjan::new(n);
+    // The explicit call stack: (node, next edge to follow).
     let mut calls: Vec<(usize, usize)> = Vec::new();
     for root in 0..n {
-        if index[root] != UNSEEN {
+        if t.index[root] != UNSEEN {
             continue;
         }
-        index[root] = counter;
-        low[root] = counter;
-        counter += 1;
-        stack.push(root);
-        on_stack[root] = true;
+        t.enter(root);
         calls.push((root, 0));
         while let Some(&mut (v, ref mut next_edge)) = calls.last_mut() {
             if let Some(&w) = adj(v).get(*next_edge) {
@@ -211,43 +292,24 @@ pub fn order(
                     continue;
                 }
                 if w == v {
-                    cyclic[v] = true;
+                    t.cyclic[v] = true;
                 }
-                if index[w] == UNSEEN {
-                    index[w] = counter;
-                    low[w] = counter;
-                    counter += 1;
-                    stack.push(w);
-                    on_stack[w] = true;
+                if t.index[w] == UNSEEN {
+                    t.enter(w);
                     calls.push((w, 0));
-                } else if on_stack[w] {
-                    low[v] = low[v].min(index[w]);
+                } else if t.on_stack[w] {
+                    t.low[v] = t.low[v].min(t.index[w]);
                 }
                 continue;
             }
             calls.pop();
             if let Some(&(parent, _)) = calls.last() {
-                low[parent] = low[parent].min(low[v]);
+                t.low[parent] = t.low[parent].min(t.low[v]);
             }
-            if low[v] == index[v] {
-                let mut component = Vec::new();
-                while let Some(w) = stack.pop() {
-                    on_stack[w] = false;
-                    component.push(w);
-                    if w == v {
-                        break;
-                    }
-                }
-                if component.len() > 1 {
-                    component.iter().for_each(|&w| cyclic[w] = true);
-                }
-                component.iter().for_each(|&w| component_of[w] = components);
-                components += 1;
-                out.extend(component);
-            }
+            t.leave(v);
         }
     }
-    (out, cyclic, component_of)
+    (t.out, t.cyclic, t.component_of)
 }
 
 #[cfg(test)]
@@ -291,6 +353,8 @@ mod tests {
             "A1:XFD3",
             "B2:D200",
             "A63:A64",
+            "C1:E100000",
+            "D1:BZ90000",
         ];
         for (i, r) in ranges.iter().enumerate() {
             let reader = CellRef::new(i as u32, 20).unwrap();
@@ -305,6 +369,7 @@ mod tests {
         g.set(CellRef::new(3, 20).unwrap(), alloc::vec![]);
         for probe in [
             "A1", "A5", "A64", "A65", "B70", "C100", "D150", "Q2", "A1000000", "E5", "XFD1",
+            "E100000", "F100001", "BZ90000", "CA3",
         ] {
             let cell = c(probe);
             let mut fast = Vec::new();

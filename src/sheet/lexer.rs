@@ -72,6 +72,64 @@ fn ident_len(s: &str) -> usize {
         .map_or(s.len(), |(i, _)| i)
 }
 
+/// A string literal at the start of `rest` (which starts with `"`; `""` inside
+/// is one quote): the token and the bytes it used.
+fn string_token(rest: &str, col: usize) -> Result<(Token, usize), ParseError> {
+    let mut text = String::new();
+    let mut j = 1;
+    loop {
+        let Some(ch) = rest.get(j..).and_then(|r| r.chars().next()) else {
+            return Err(ParseError {
+                pos: col,
+                message: "a string is not closed with \"",
+            });
+        };
+        j += ch.len_utf8();
+        if ch != '"' {
+            text.push(ch);
+        } else if rest.get(j..).is_some_and(|r| r.starts_with('"')) {
+            text.push('"');
+            j += 1;
+        } else {
+            return Ok((Token::Text(text), j));
+        }
+    }
+}
+
+/// An error literal at the start of `rest` (which starts with `#`).
+fn error_token(rest: &str, col: usize) -> Result<(Token, usize), ParseError> {
+    let kind = ErrorKind::ALL.iter().copied().find(|k| {
+        rest.get(..k.code().len())
+            .is_some_and(|p| p.eq_ignore_ascii_case(k.code()))
+    });
+    match kind {
+        Some(kind) => Ok((Token::Error(kind), kind.code().len())),
+        None => Err(ParseError {
+            pos: col,
+            message: "unknown error literal (known: #DIV/0! #VALUE! #REF! #NAME? #NUM! #N/A)",
+        }),
+    }
+}
+
+/// A cell address or a name at the start of `rest` (which starts with `$`, a
+/// letter or `_`); an address followed by `(` is a function name.
+fn word_token(rest: &str, col: usize) -> Result<(Token, usize), ParseError> {
+    let next_is_paren = |used: usize| {
+        rest.get(used..)
+            .is_some_and(|r| r.trim_start().starts_with('('))
+    };
+    match CellRef::parse_prefix(rest) {
+        Some((cell, used)) if !next_is_paren(used) => Ok((Token::Cell(cell), used)),
+        _ => match ident_len(rest) {
+            0 => Err(ParseError {
+                pos: col,
+                message: "a $ must start a cell address such as $B$3",
+            }),
+            n => Ok((Token::Ident(String::from(rest.get(..n).unwrap_or(""))), n)),
+        },
+    }
+}
+
 /// Split formula text (without its leading `=`) into tokens.
 ///
 /// # Errors
@@ -89,94 +147,36 @@ pub fn tokenize(src: &str) -> Result<Vec<Spanned>, ParseError> {
     let mut col = 1;
     while let Some(c) = src[i..].chars().next() {
         let rest = &src[i..];
-        let start_col = col;
-        let len;
-        let token;
         if c.is_whitespace() {
             i += c.len_utf8();
             col += 1;
             continue;
-        } else if c.is_ascii_digit()
+        }
+        let (token, len) = if c.is_ascii_digit()
             || (c == '.' && rest[1..].starts_with(|d: char| d.is_ascii_digit()))
         {
             let (q, used) = literal::scan(rest).map_err(|(at, message)| ParseError {
                 pos: col + at as usize - 1,
                 message,
             })?;
-            len = used;
-            token = Token::Number(q.value, q.unit);
+            (Token::Number(q.value, q.unit), used)
         } else if c == '"' {
-            let mut text = String::new();
-            let mut j = 1;
-            loop {
-                let Some(ch) = rest[j..].chars().next() else {
-                    return Err(ParseError {
-                        pos: col,
-                        message: "a string is not closed with \"",
-                    });
-                };
-                j += ch.len_utf8();
-                if ch == '"' {
-                    if rest[j..].starts_with('"') {
-                        text.push('"');
-                        j += 1;
-                    } else {
-                        break;
-                    }
-                } else {
-                    text.push(ch);
-                }
-            }
-            len = j;
-            token = Token::Text(text);
+            string_token(rest, col)?
         } else if c == '#' {
-            let kind = ErrorKind::ALL.iter().copied().find(|k| {
-                rest.get(..k.code().len())
-                    .is_some_and(|p| p.eq_ignore_ascii_case(k.code()))
-            });
-            let Some(kind) = kind else {
-                return Err(ParseError {
-                    pos: col,
-                    message:
-                        "unknown error literal (known: #DIV/0! #VALUE! #REF! #NAME? #NUM! #N/A)",
-                });
-            };
-            len = kind.code().len();
-            token = Token::Error(kind);
+            error_token(rest, col)?
         } else if c == '$' || c.is_ascii_alphabetic() || c == '_' {
-            let next_is_paren = |used: usize| rest[used..].trim_start().starts_with('(');
-            match CellRef::parse_prefix(rest) {
-                Some((cell, used)) if !next_is_paren(used) => {
-                    len = used;
-                    token = Token::Cell(cell);
-                }
-                _ => {
-                    let n = ident_len(rest);
-                    if n == 0 {
-                        return Err(ParseError {
-                            pos: col,
-                            message: "a $ must start a cell address such as $B$3",
-                        });
-                    }
-                    len = n;
-                    token = Token::Ident(String::from(&rest[..n]));
-                }
-            }
+            word_token(rest, col)?
         } else if let Some(op) = OPS.iter().find(|op| rest.starts_with(**op)) {
-            len = op.len();
-            token = Token::Op(op);
+            (Token::Op(op), op.len())
         } else {
             return Err(ParseError {
                 pos: col,
                 message: "a character that has no meaning in a formula",
             });
-        }
+        };
+        out.push(Spanned { token, pos: col });
         col += rest[..len].chars().count();
         i += len;
-        out.push(Spanned {
-            token,
-            pos: start_col,
-        });
     }
     Ok(out)
 }

@@ -23,26 +23,44 @@
 //! assert_eq!(s.value("A4").unwrap().display(), "#DIV/0!");
 //! ```
 //!
-//! Files: [`lexer`], [`parser`], [`eval`], [`errors`], [`value`], [`literal`],
-//! [`functions`] (the catalog), [`graph`], [`sheet`], [`document`] (the JSON
-//! file and CSV/TSV), [`json`], [`address`].
+//! Files: `lexer`, `parser`, `eval` (a formula's value), `errors`, `value`,
+//! [`literal`] (numbers as typed), [`functions`] (the catalog), `graph` (who reads
+//! what), `sheet` (the state and what cells show), `input` (reading an input),
+//! `edit`, `recalc` and `order` (recalculation within a work budget), `spill`,
+//! `document` (the JSON file and CSV/TSV), `json`, `address`. Only the catalog
+//! and the literal reader are modules of the public API; everything a user
+//! needs from the others is re-exported here.
 
-pub mod address;
-pub mod document;
-pub mod errors;
-pub mod eval;
+mod address;
+mod document;
+mod edit;
+mod errors;
+mod eval;
 pub mod functions;
-pub mod graph;
-pub mod json;
-pub mod lexer;
+mod graph;
+mod input;
+mod json;
+mod lexer;
 pub mod literal;
-pub mod parser;
+mod order;
+mod parser;
+mod recalc;
 #[allow(clippy::module_inception)]
-pub mod sheet;
-pub mod value;
+mod sheet;
+mod spill;
+mod value;
 
-pub use address::{CellRef, Range};
-pub use document::{from_document, to_document, DocumentError};
+pub use address::{CellRef, Range, MAX_COLS, MAX_ROWS};
+pub use document::{
+    from_document, parse_tsv, range_to_tsv, to_csv, to_document, Contents, DocumentError, FORMAT,
+    MAX_DOCUMENT_BYTES, MAX_PASTE_BYTES, MAX_PASTE_CELLS, VERSION,
+};
 pub use errors::{CellError, ErrorKind};
-pub use sheet::Sheet;
-pub use value::{Unit, Value};
+pub use eval::{MAX_RANGE_CELLS, MAX_TEXT_BYTES, MAX_TOTAL_TEXT_BYTES};
+pub use input::{cell_ref, valid_name};
+pub use lexer::MAX_FORMULA_BYTES;
+pub use sheet::{
+    Sheet, MAX_CELLS, MAX_INPUT_BYTES, MAX_NAMES, MAX_NAME_CHARS, MAX_RECALC_WORK, MAX_SPILL_PASSES,
+};
+pub(crate) use value::write_number;
+pub use value::{format_number, Array, Unit, Value};

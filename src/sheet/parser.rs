@@ -329,13 +329,7 @@ impl Parser {
 /// # Errors
 /// [`ParseError`] with the column of the first problem.
 ///
-/// # Example
-/// ```
-/// use loopwright::sheet::parser::{parse, BinOp, Expr};
-/// assert!(matches!(parse("-2^2").unwrap(), Expr::Binary(BinOp::Pow, _, _)));
-/// let e = parse("SUM(1;").unwrap_err();
-/// assert_eq!((e.pos, e.message), (7, "the formula ends where a value was expected"));
-/// ```
+/// (Examples: the test `parse_example` below; the module is internal.)
 pub fn parse(src: &str) -> Result<Expr, ParseError> {
     let tokens = tokenize(src)?;
     let end_pos = src.chars().count() + 1;
@@ -360,6 +354,19 @@ pub fn parse(src: &str) -> Result<Expr, ParseError> {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn parse_example() {
+        assert!(matches!(
+            parse("-2^2").unwrap(),
+            Expr::Binary(BinOp::Pow, _, _)
+        ));
+        let e = parse("SUM(1;").unwrap_err();
+        assert_eq!(
+            (e.pos, e.message),
+            (7, "the formula ends where a value was expected")
+        );
+    }
 
     fn bin(op: BinOp, a: Expr, b: Expr) -> Expr {
         Expr::Binary(op, Box::new(a), Box::new(b))

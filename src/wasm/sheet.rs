@@ -2,10 +2,10 @@
 //! the function catalog and the list of error values.
 
 use super::{js_error, throw, to_js};
-use crate::sheet::document::{range_to_tsv, to_csv, MAX_PASTE_BYTES};
-use crate::sheet::errors::ErrorKind;
 use crate::sheet::functions::catalog_json;
-use crate::sheet::{CellRef, Range, Sheet, Value};
+use crate::sheet::{
+    range_to_tsv, to_csv, CellRef, ErrorKind, Range, Sheet, Value, MAX_PASTE_BYTES,
+};
 use alloc::string::{String, ToString};
 use alloc::vec::Vec;
 use serde::Serialize;
