@@ -28,16 +28,17 @@ extern crate alloc;
 
 pub mod check;
 pub mod circuit;
+pub mod distortion;
 pub mod error;
 pub mod feedback;
 mod float;
 pub mod freq;
 pub mod network;
 pub mod noise;
-pub mod nonlinear;
 pub mod notation;
 pub mod sheet;
 mod sort;
+pub mod stage;
 
 #[cfg(feature = "wasm-lite")]
 pub mod wasm;

@@ -143,11 +143,11 @@ fn declared_units_are_checked() {
     let mut s = Sheet::new();
     s.set("A1", "1MΩ").unwrap();
     s.set("A2", "1 V").unwrap();
-    s.set("B1", "=FB.ZIN(\"series-shunt\"; A1; 100k; 0.01)")
+    s.set("B1", "=FEEDBACK.ZIN(\"series-shunt\"; A1; 100k; 0.01)")
         .unwrap();
-    s.set("B2", "=FB.ZIN(\"series-shunt\"; A2; 100k; 0.01)")
+    s.set("B2", "=FEEDBACK.ZIN(\"series-shunt\"; A2; 100k; 0.01)")
         .unwrap();
-    s.set("B3", "=FB.ZIN(\"series-shunt\"; 1000000; 100k; 0.01)")
+    s.set("B3", "=FEEDBACK.ZIN(\"series-shunt\"; 1000000; 100k; 0.01)")
         .unwrap();
     // 1 MΩ · (1 + 100000·0.01) = 1.001 GΩ.
     assert_eq!(

@@ -1,4 +1,4 @@
-//! Feedback-network synthesis and tolerance (catalog area C).
+//! Feedback-network synthesis and tolerance.
 //!
 //! - [`eseries`]: the IEC 60063 series E3 … E192, nearest / next-up / next-down
 //!   standard values in any decade;

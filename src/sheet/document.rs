@@ -10,7 +10,7 @@
 //!   "version": 1,
 //!   "cells": {
 //!     "A1": "100k",
-//!     "B1": "=FB.GAIN(gain; 0.01)"
+//!     "B1": "=FEEDBACK.GAIN(gain; 0.01)"
 //!   },
 //!   "names": {
 //!     "gain": "A1"

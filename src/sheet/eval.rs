@@ -417,7 +417,7 @@ mod tests {
         assert_eq!(ev("1V/1A"), Value::num(1.0));
         assert_eq!(kind("1V + 1A"), ErrorKind::Value);
         assert_eq!(
-            kind("FB.ZIN(\"series-shunt\"; 1V; 10; 0.1)"),
+            kind("FEEDBACK.ZIN(\"series-shunt\"; 1V; 10; 0.1)"),
             ErrorKind::Value
         );
         assert_eq!(kind("DB.VOLTAGERATIO(3 Hz)"), ErrorKind::Value);
@@ -455,7 +455,8 @@ mod tests {
 
     #[test]
     fn arrays_apply_item_by_item() {
-        let Value::Array(a) = evaluate(&parse("FB.CEILING(100k; 100) * 2").unwrap(), &Empty) else {
+        let Value::Array(a) = evaluate(&parse("FEEDBACK.CEILING(100k; 100) * 2").unwrap(), &Empty)
+        else {
             panic!()
         };
         assert_eq!(a.get(0, 0), Value::num(2000.0));

@@ -207,7 +207,10 @@ mod tests {
             kinds("LOG10")[0],
             Token::Cell(CellRef::parse("LOG10").unwrap())
         );
-        assert_eq!(kinds("FB.GAIN(1;2)")[0], Token::Ident("FB.GAIN".into()));
+        assert_eq!(
+            kinds("FEEDBACK.GAIN(1;2)")[0],
+            Token::Ident("FEEDBACK.GAIN".into())
+        );
     }
 
     #[test]

@@ -4,7 +4,7 @@
 //! the result: numbers stay `f64`, structured results become plain JS objects via
 //! serde-wasm-bindgen, sweeps become typed arrays, and every [`crate::Error`] is
 //! thrown as a JS `Error` with `code` and `param` fields. JS names are camelCase.
-//! One file per catalog area.
+//! One file per area (the table in DEVELOPERS.md).
 //!
 //! Scalar functions (one `f64` out) are the exception to "thrown by the glue": they
 //! return a bare `f64` — the answer, or NaN with the error kept aside — and the
@@ -16,11 +16,11 @@
 // the size.
 #[cfg(feature = "wasm")]
 pub mod circuit;
+pub mod distortion;
 pub mod feedback;
 pub mod freq;
 pub mod network;
 pub mod noise;
-pub mod nonlinear;
 #[cfg(feature = "wasm")]
 pub mod sheet;
 

@@ -1,4 +1,4 @@
-//! JS bindings for the worksheet engine (catalog area F): a `Worksheet` class,
+//! JS bindings for the worksheet engine: a `Worksheet` class,
 //! the function catalog and the list of error values.
 
 use super::{js_error, throw, to_js};
@@ -165,7 +165,7 @@ impl Worksheet {
         Worksheet::default()
     }
 
-    /// Set a cell's input (`"4k7"`, `"=FB.GAIN(A1; A2)"`, `""` to clear); returns
+    /// Set a cell's input (`"4k7"`, `"=FEEDBACK.GAIN(A1; A2)"`, `""` to clear); returns
     /// the addresses whose shown value changed.
     #[wasm_bindgen(js_name = setCell, unchecked_return_type = "string[]")]
     pub fn set_cell(&mut self, address: &str, input: &str) -> Result<js_sys::Array, JsValue> {

@@ -128,7 +128,7 @@ test('save to a file and open it again, nothing lost', async () => {
   const context = await browser.newContext({ acceptDownloads: true });
   const { page } = await openSheet(context);
   await typeAt(page, 'A1', '100k');
-  await typeAt(page, 'A2', '=FB.GAIN(A1; 0.01)');
+  await typeAt(page, 'A2', '=FEEDBACK.GAIN(A1; 0.01)');
   await typeAt(page, 'A3', 'a note with ; and "quotes"');
   const [download] = await Promise.all([page.waitForEvent('download'), page.click('#sheet-save')]);
   const path = join(ARTIFACTS, 'saved.loopwright.json');
@@ -202,7 +202,7 @@ test('naming a cell from the name box, and going to an address', async () => {
   await cell(page, 'B2').click();
   await page.fill('#sheet-namebox', 'aol');
   await page.press('#sheet-namebox', 'Enter');
-  await typeAt(page, 'C2', '=FB.GAIN(aol; 0.1)');
+  await typeAt(page, 'C2', '=FEEDBACK.GAIN(aol; 0.1)');
   // Af = 250 000/(1 + 25 000) = 9.9996 (closed form).
   assert.equal(await shown(page, 'C2'), '9.9996');
   await page.fill('#sheet-namebox', 'Z200');

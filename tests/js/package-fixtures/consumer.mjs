@@ -535,7 +535,7 @@ for (const e of tdoc.elements) {
 const ws = new lw.Worksheet();
 ws.setCell('A1', '100k');
 ws.setCell('A2', '0.01');
-const changed = ws.setCell('A3', '=FB.GAIN(A1; A2)');
+const changed = ws.setCell('A3', '=FEEDBACK.GAIN(A1; A2)');
 assert.ok(changed.includes('A3'));
 // Af = 10⁵/(1 + 10⁵·0.01) = 99.90 (closed form).
 assert.ok(Math.abs(ws.value('A3').number - 1e5 / 1001) < 1e-9);
@@ -553,7 +553,7 @@ throws(
 );
 assert.equal(ws2.value('A3').number, ws.value('A3').number, 'nothing lost by the refused document');
 const catalog = JSON.parse(lw.functionCatalog());
-assert.ok(catalog.functions.some((f) => f.name === 'FB.GAIN'));
+assert.ok(catalog.functions.some((f) => f.name === 'FEEDBACK.GAIN'));
 ws.free();
 ws2.free();
 

@@ -1,4 +1,4 @@
-// Calculator card of the loading-aware analysis (catalog area D): the same stage
+// Calculator card of the loading-aware analysis: the same stage
 // solved exactly (nodal analysis), by the two-port method, and ideally (1/β).
 
 import { formatEngineering } from '../format.js';

@@ -3,7 +3,7 @@
 //! and identities of the closed-loop series.
 #![cfg(not(target_arch = "wasm32"))]
 
-use loopwright::nonlinear::{closed_loop_series, series_check, LoopSolver, PowerSeries};
+use loopwright::distortion::{closed_loop_series, series_check, LoopSolver, PowerSeries};
 use proptest::prelude::*;
 use proptest::test_runner::{Config, RngAlgorithm, TestRng, TestRunner};
 

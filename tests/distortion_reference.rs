@@ -1,13 +1,13 @@
 //! The nonlinear area against its committed reference data:
 //! - closed-loop series b1, b2, b3 and the equal-output distortion ratios against
-//!   sympy's order-by-order series reversion (tests/reference/nonlinear_series_sympy.py);
+//!   sympy's order-by-order series reversion (tests/reference/distortion_series_sympy.py);
 //! - the numeric closed-loop spectrum (guarded Newton + short DFT) against
-//!   scipy.optimize.brentq + numpy.fft (tests/reference/nonlinear_harmonics.py),
+//!   scipy.optimize.brentq + numpy.fft (tests/reference/distortion_harmonics.py),
 //!   including amplitudes near the fold where the series no longer holds, and
 //!   amplitudes past the fold that must be refused.
 #![cfg(not(target_arch = "wasm32"))]
 
-use loopwright::nonlinear::{
+use loopwright::distortion::{
     closed_loop_series, closed_loop_spectrum, feedback_distortion, AmplitudeAt, LoopSolver,
     PowerSeries,
 };
@@ -88,7 +88,7 @@ fn load<T: for<'de> Deserialize<'de>>(file: &str) -> T {
 
 #[test]
 fn closed_loop_series_matches_sympy_reversion() {
-    let data: SeriesFile = load("nonlinear_series.json");
+    let data: SeriesFile = load("distortion_series.json");
     assert_eq!(data.cases.len(), 40);
     for c in &data.cases {
         let amp = PowerSeries::new(c.a1, c.a2, c.a3).unwrap();
@@ -120,7 +120,7 @@ fn closed_loop_series_matches_sympy_reversion() {
 
 #[test]
 fn numeric_spectrum_matches_scipy_and_numpy() {
-    let data: HarmonicsFile = load("nonlinear_harmonics.json");
+    let data: HarmonicsFile = load("distortion_harmonics.json");
     assert_eq!(data.cases.len(), 24);
     for c in &data.cases {
         let amp = PowerSeries::new(c.a1, c.a2, c.a3).unwrap();
@@ -166,7 +166,7 @@ fn numeric_spectrum_matches_scipy_and_numpy() {
 
 #[test]
 fn amplitudes_past_the_fold_are_refused() {
-    let data: HarmonicsFile = load("nonlinear_harmonics.json");
+    let data: HarmonicsFile = load("distortion_harmonics.json");
     for c in &data.refused {
         let amp = PowerSeries::new(c.a1, c.a2, c.a3).unwrap();
         let e = closed_loop_spectrum(&amp, c.beta, c.amplitude, 64).unwrap_err();
@@ -183,7 +183,7 @@ fn amplitudes_past_the_fold_are_refused() {
 fn near_the_fold_the_series_no_longer_holds() {
     // The oracle's strongly nonlinear points (95 % of the fold amplitude) differ
     // from the leading-order series by far more than the small ones (1 %).
-    let data: HarmonicsFile = load("nonlinear_harmonics.json");
+    let data: HarmonicsFile = load("distortion_harmonics.json");
     for pair in data.cases.chunks(4) {
         let (small, large) = (&pair[0], &pair[3]);
         let amp = PowerSeries::new(small.a1, small.a2, small.a3).unwrap();

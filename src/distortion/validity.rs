@@ -6,8 +6,8 @@
 //! next terms of the closed-loop series); it grows with amplitude until the curve
 //! folds. Below about HD = 1e-12 the numeric path's rounding floor dominates.
 
-use super::distortion::{harmonic_distortion, AmplitudeAt};
 use super::harmonics::closed_loop_spectrum;
+use super::leading_order::{harmonic_distortion, AmplitudeAt};
 use super::newton::LoopSolver;
 use super::series::{closed_loop_series, PowerSeries};
 use crate::check;
@@ -61,7 +61,7 @@ pub struct SeriesCheck {
 ///
 /// # Example
 /// ```
-/// use loopwright::nonlinear::{series_check, PowerSeries};
+/// use loopwright::distortion::{series_check, PowerSeries};
 /// let amp = PowerSeries::new(1000.0, 100.0, -200.0).unwrap();
 /// let c = series_check(&amp, 0.009, 1e-3, 64).unwrap();
 /// assert!(c.hd2_difference < 1e-3 && c.hd3_difference < 1e-3);
@@ -125,7 +125,7 @@ pub struct ValiditySweep {
 ///
 /// # Example
 /// ```
-/// use loopwright::nonlinear::{series_validity_sweep, PowerSeries};
+/// use loopwright::distortion::{series_validity_sweep, PowerSeries};
 /// let amp = PowerSeries::new(100.0, 0.0, -100.0).unwrap();
 /// let s = series_validity_sweep(&amp, 0.1, 1e-3, 10.0, 30, 0.1, 64).unwrap();
 /// assert!(s.fold_amplitude.is_some() && s.hd3_limit_amplitude.is_some());

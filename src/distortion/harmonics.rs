@@ -1,5 +1,5 @@
 //! Harmonics of the closed loop by direct numeric solution and a short DFT: the
-//! check path for the series results of [`super::distortion`].
+//! check path for the series results of [`super::leading_order`].
 //!
 //! The input is one period of x_k = X·cos(2π·k/N), k = 0…N−1. Each sample's output
 //! y_k solves y = A(x − β·y) ([`super::LoopSolver`]). The harmonics come from a
@@ -104,7 +104,7 @@ where
 ///
 /// # Example
 /// ```
-/// use loopwright::nonlinear::{closed_loop_spectrum, PowerSeries};
+/// use loopwright::distortion::{closed_loop_spectrum, PowerSeries};
 /// let amp = PowerSeries::new(1000.0, 100.0, -200.0).unwrap();
 /// let s = closed_loop_spectrum(&amp, 0.009, 1e-3, 64).unwrap();
 /// // Gain ≈ 1000/10 = 100: the fundamental is about 0.1 V.

@@ -4,16 +4,16 @@
 Symbolic part (sympy): puts y = b1*x + b2*x**2 + b3*x**3 into the loop equation
 y = A(x - beta*y), A(u) = a1*u + a2*u**2 + a3*u**3, solves the coefficients of
 x, x**2, x**3 order by order, and checks that they equal the closed forms used in
-src/nonlinear/series.rs:
+src/distortion/series.rs:
     b1 = a1/D, b2 = a2/D**3, b3 = (a3*D - 2*a2**2*beta)/D**5, D = 1 + a1*beta.
 It also derives the distortion ratios at equal output amplitude.
 
 Numeric part: seeded random amplifiers and loops, with b1..b3 and the ratios
 evaluated from the *solved* sympy expressions (not from the closed forms), written
-to tests/reference/data/nonlinear_series.json.
+to tests/reference/data/distortion_series.json.
 
-Usage: nonlinear_series_sympy.py          write the JSON
-       nonlinear_series_sympy.py --check  recompute and compare (rel. tol. 1e-9)
+Usage: distortion_series_sympy.py          write the JSON
+       distortion_series_sympy.py --check  recompute and compare (rel. tol. 1e-9)
 """
 import json
 import math
@@ -23,7 +23,7 @@ import sys
 
 import sympy as sp
 
-OUT = pathlib.Path(__file__).parent / "data" / "nonlinear_series.json"
+OUT = pathlib.Path(__file__).parent / "data" / "distortion_series.json"
 SEED = 20260602
 CASES = 40
 REL_TOL = 1e-9
@@ -76,7 +76,7 @@ def make_cases():
         for key, fn in f.items():
             case[key] = float(fn(*args))
         cases.append(case)
-    return {"source": "sympy series reversion, tests/reference/nonlinear_series_sympy.py", "seed": SEED, "cases": cases}
+    return {"source": "sympy series reversion, tests/reference/distortion_series_sympy.py", "seed": SEED, "cases": cases}
 
 
 def main():

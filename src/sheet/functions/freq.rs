@@ -1,11 +1,10 @@
-//! Worksheet functions of frequency response and stability (catalog area B,
-//! `src/freq`), prefix `LOOP.`.
+//! Worksheet functions of frequency response and stability (`src/freq`), prefix `FREQ.`.
 //!
 //! A loop in a formula is written as its open-loop DC gain `a0`, a constant
 //! feedback factor `beta`, then the amplifier's real pole frequencies in Hz as the
-//! last, repeating arguments: `LOOP.PM(a0; beta; pole; pole; …)`. Each pole
+//! last, repeating arguments: `FREQ.PM(a0; beta; pole; pole; …)`. Each pole
 //! argument is a number or a range of cells (`B2:B4`, empty cells skipped), so
-//! `LOOP.PM(100k; 0.1; 10 Hz; 1 MHz)` and `LOOP.PM(A1; A2; B1:B6)` both work;
+//! `FREQ.PM(100k; 0.1; 10 Hz; 1 MHz)` and `FREQ.PM(A1; A2; B1:B6)` both work;
 //! every item must be a number (a range with no numbers leaves a flat
 //! amplifier). The model is A(s) = a0/Π(1 + s/2πfₖ), the model of
 //! [`crate::freq::TransferModel`] with real poles only. Each function converts
@@ -207,7 +206,7 @@ fn poles(a: &Args<'_>) -> Value {
             }
             let rows = u32::try_from(p.poles.len()).unwrap_or(u32::MAX);
             Array::new(rows, 4, items).map_or_else(
-                || Value::error(ErrorKind::Value, "LOOP.POLES: the closed loop has no poles"),
+                || Value::error(ErrorKind::Value, "FREQ.POLES: the closed loop has no poles"),
                 Value::Array,
             )
         }
@@ -290,15 +289,15 @@ const TARGET_PM: Param = req(
 /// The frequency area's table.
 pub static FUNCTIONS: &[FunctionSpec] = &[
     FunctionSpec {
-        name: "LOOP.PM",
-        area: "frequency",
+        name: "FREQ.PM",
+        area: "freq",
         summary: "Phase margin of the loop a0/Π(1 + jf/fₖ)·β and the crossover frequency where |T| = 1",
         params: LOOP,
         repeats: true,
         result_unit: "degrees; Hz",
         spill: &["phase margin 180° − |∠T|, degrees (worst crossover; negative when the closed loop is unstable)", "crossover frequency, Hz"],
         example: Example {
-            formula: "=LOOP.PM(1000; 0.1; 1 kHz; 100 kHz)",
+            formula: "=FREQ.PM(1000; 0.1; 1 kHz; 100 kHz)",
             expected: Expected::Numbers(&[52.55773904488178, 78610.53548759002]),
             source: "two poles, T0 = 100: fc² solves (1 + fc²/f1²)(1 + fc²/f2²) = T0², PM = 180° − atan(fc/f1) − atan(fc/f2) (closed form; tests/reference/sheet_catalog.py)",
             tolerance: &[1e-10],
@@ -306,15 +305,15 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: phase_margin,
     },
     FunctionSpec {
-        name: "LOOP.GM",
-        area: "frequency",
+        name: "FREQ.GM",
+        area: "freq",
         summary: "Gain margin of the loop (how far |T| is from 1 where its phase reaches −180°, worst crossing) and that frequency",
         params: LOOP,
         repeats: true,
         result_unit: "dB; Hz",
         spill: &["gain margin |20·log10|T||, dB (negative when the closed loop is unstable; #N/A without a −180° crossing)", "phase crossover frequency, Hz"],
         example: Example {
-            formula: "=LOOP.GM(4; 1; 1k; 1k; 1k)",
+            formula: "=FREQ.GM(4; 1; 1k; 1k; 1k)",
             expected: Expected::Numbers(&[6.020599913279624, 1732.0508075688772]),
             source: "three equal poles: −180° at f = √3·fp where |T| = T0/8, GM = 20·log10(8/4) (closed form; tests/reference/sheet_catalog.py)",
             tolerance: &[1e-10],
@@ -322,15 +321,15 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: gain_margin,
     },
     FunctionSpec {
-        name: "LOOP.BANDWIDTH",
-        area: "frequency",
+        name: "FREQ.BANDWIDTH",
+        area: "freq",
         summary: "Closed-loop upper −3 dB frequency (relative to the DC closed-loop gain)",
         params: LOOP,
         repeats: true,
         result_unit: "Hz",
         spill: &[],
         example: Example {
-            formula: "=LOOP.BANDWIDTH(1000; 0.1; 1k; 100k)",
+            formula: "=FREQ.BANDWIDTH(1000; 0.1; 1k; 100k)",
             expected: Expected::Numbers(&[127550.5763123802]),
             source: "second-order low-pass with f0 = √(101·f1·f2), Q = f0/(f1 + f2): f3dB = f0·√(1 − 1/(2Q²) + √((1 − 1/(2Q²))² + 1)) (closed form; tests/reference/sheet_catalog.py)",
             tolerance: &[1e-10],
@@ -338,15 +337,15 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: bandwidth,
     },
     FunctionSpec {
-        name: "LOOP.PEAKING",
-        area: "frequency",
+        name: "FREQ.PEAKING",
+        area: "freq",
         summary: "Closed-loop gain peaking above the DC value, and the frequency of the peak",
         params: LOOP,
         repeats: true,
         result_unit: "dB; Hz",
         spill: &["peaking, dB (0 without a peak)", "peak frequency, Hz (#N/A without a peak)"],
         example: Example {
-            formula: "=LOOP.PEAKING(1000; 0.1; 1k; 100k)",
+            formula: "=FREQ.PEAKING(1000; 0.1; 1k; 100k)",
             expected: Expected::Numbers(&[1.2206742922089018, 70707.14249635606]),
             source: "second-order low-pass: Mp = Q/√(1 − 1/(4Q²)) at f0·√(1 − 1/(2Q²)) (closed form; tests/reference/sheet_catalog.py)",
             tolerance: &[1e-6],
@@ -354,8 +353,8 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: peaking,
     },
     FunctionSpec {
-        name: "LOOP.STEP",
-        area: "frequency",
+        name: "FREQ.STEP",
+        area: "freq",
         summary: "Closed-loop step response: overshoot, 10–90 % rise time and settling time into a band",
         params: &[
             A0,
@@ -367,7 +366,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "%; s; s",
         spill: &["overshoot, %", "rise time 10–90 %, s", "settling time, s"],
         example: Example {
-            formula: "=LOOP.STEP(100k; 0.01; 2%; 10 Hz)",
+            formula: "=FREQ.STEP(100k; 0.01; 2%; 10 Hz)",
             expected: Expected::Numbers(&[0.0, 3.493498027632965e-5, 6.219958030001018e-5]),
             source: "one closed-loop pole at 10·1001 Hz, τ = 1/(2π·10010 Hz): no overshoot, rise ln 9·τ, 2 % settling ln 50·τ (closed form; also tests/reference/data/freq_loops.json case \"one pole\")",
             tolerance: &[1e-9],
@@ -375,15 +374,15 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: step,
     },
     FunctionSpec {
-        name: "LOOP.POLES",
-        area: "frequency",
+        name: "FREQ.POLES",
+        area: "freq",
         summary: "Closed-loop poles, one row each (sorted by natural frequency), in Hz: σ/2π, ω/2π, |s|/2π and ζ",
         params: LOOP,
         repeats: true,
         result_unit: "Hz; Hz; Hz; 1",
         spill: &["real part σ/2π, Hz", "imaginary part ω/2π, Hz", "natural frequency, Hz", "damping ratio ζ"],
         example: Example {
-            formula: "=LOOP.POLES(1000; 0.1; 1k; 100k)",
+            formula: "=FREQ.POLES(1000; 0.1; 1k; 100k)",
             expected: Expected::Numbers(&[
                 -50500.0,
                 -86889.29738466068,
@@ -400,8 +399,8 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: poles,
     },
     FunctionSpec {
-        name: "LOOP.EXTEND",
-        area: "frequency",
+        name: "FREQ.EXTEND",
+        area: "freq",
         summary: "Closed-loop upper cutoff of a single-pole amplifier: fH·(1 + A0·β)",
         params: &[
             req("f_h", "open-loop upper cutoff (the pole)", "Hz", "> 0"),
@@ -412,7 +411,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "Hz",
         spill: &[],
         example: Example {
-            formula: "=LOOP.EXTEND(10 Hz; 100k; 0.01)",
+            formula: "=FREQ.EXTEND(10 Hz; 100k; 0.01)",
             expected: Expected::Numbers(&[10010.0]),
             source: "10 Hz · (1 + 1000)",
             tolerance: &[],
@@ -420,8 +419,8 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: extend,
     },
     FunctionSpec {
-        name: "LOOP.LOWCUT",
-        area: "frequency",
+        name: "FREQ.LOWCUT",
+        area: "freq",
         summary: "Closed-loop lower cutoff of a single low cut: fL/(1 + AM·β)",
         params: &[
             req("f_l", "open-loop lower cutoff", "Hz", "> 0"),
@@ -432,7 +431,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "Hz",
         spill: &[],
         example: Example {
-            formula: "=LOOP.LOWCUT(100 Hz; 1000; 0.099)",
+            formula: "=FREQ.LOWCUT(100 Hz; 1000; 0.099)",
             expected: Expected::Numbers(&[1.0]),
             source: "100 Hz / (1 + 99)",
             tolerance: &[],
@@ -440,19 +439,19 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: low_cut,
     },
     FunctionSpec {
-        name: "LOOP.GBW",
-        area: "frequency",
+        name: "FREQ.GBW",
+        area: "freq",
         summary: "Gain–bandwidth product A0·fH of a single-pole amplifier",
         params: &[A0, req("f_h", "open-loop pole", "Hz", "> 0")],
         repeats: false,
         result_unit: "Hz",
         spill: &[],
-        example: Example { formula: "=LOOP.GBW(100k; 10 Hz)", expected: Expected::Numbers(&[1000000.0]), source: "100000 · 10 Hz", tolerance: &[] },
+        example: Example { formula: "=FREQ.GBW(100k; 10 Hz)", expected: Expected::Numbers(&[1000000.0]), source: "100000 · 10 Hz", tolerance: &[] },
         eval: gbw,
     },
     FunctionSpec {
-        name: "LOOP.TWOPOLE",
-        area: "frequency",
+        name: "FREQ.TWOPOLE",
+        area: "freq",
         summary: "Closed loop of a two-pole loop gain T0/((1 + jf/f1)(1 + jf/f2)): f0, Q, ζ, peaking, overshoot, maximally flat T0",
         params: &[
             req("f1", "first pole", "Hz", "> 0"),
@@ -470,7 +469,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             "loop gain T0 for Q = 1/√2",
         ],
         example: Example {
-            formula: "=LOOP.TWOPOLE(1k; 100k; 100)",
+            formula: "=FREQ.TWOPOLE(1k; 100k; 100)",
             expected: Expected::Numbers(&[
                 100498.7562112089,
                 0.9950371902099892,
@@ -485,15 +484,15 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: two_pole,
     },
     FunctionSpec {
-        name: "LOOP.DOMINANT",
-        area: "frequency",
+        name: "FREQ.DOMINANT",
+        area: "freq",
         summary: "Highest dominant-pole frequency that, added to the amplifier, gives a target phase margin",
         params: &[A0, BETA, TARGET_PM, POLES],
         repeats: true,
         result_unit: "Hz; Hz",
         spill: &["dominant pole, Hz", "crossover frequency, Hz"],
         example: Example {
-            formula: "=LOOP.DOMINANT(100k; 1; 60; 1 MHz; 10 MHz)",
+            formula: "=FREQ.DOMINANT(100k; 1; 60; 1 MHz; 10 MHz)",
             expected: Expected::Numbers(&[5.748217922187234, 511163.10698197025]),
             source: "poles fd, 1 MHz, 10 MHz, T0 = 100000: the two equations |T(fc)| = 1 and Σ atan(fc/fk) = 120° in fd and fc, solved with mpmath findroot (tests/reference/sheet_catalog.py); the core scans, then bisects to 1e-10",
             tolerance: &[1e-8],
@@ -501,8 +500,8 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: dominant,
     },
     FunctionSpec {
-        name: "LOOP.MAXBETA",
-        area: "frequency",
+        name: "FREQ.MAXBETA",
+        area: "freq",
         summary: "Largest constant feedback factor that keeps a target phase margin, with the closed-loop gain and crossover",
         params: &[
             A0,
@@ -514,7 +513,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "V/V; V/V; Hz",
         spill: &["largest beta", "closed-loop gain a0/(1 + a0·β)", "crossover frequency, Hz"],
         example: Example {
-            formula: "=LOOP.MAXBETA(1000; 60; 1; 1k; 100k)",
+            formula: "=FREQ.MAXBETA(1000; 60; 1; 1k; 100k)",
             expected: Expected::Numbers(&[0.06995107333338217, 14.09421948137752, 59979.61042445264]),
             source: "two poles: 60° at fc = tan(120° − atan(fc/f1))·f2, β = √((1 + fc²/f1²)(1 + fc²/f2²))/a0 (closed form; tests/reference/sheet_catalog.py); the core bisects to 1e-10",
             tolerance: &[1e-8],
@@ -540,22 +539,22 @@ mod tests {
         );
         let values = [Value::num(1e5), Value::num(1.0), range, Value::num(2e7)];
         assert_eq!(
-            pole_list(&args("LOOP.PM", &values), 2).unwrap(),
+            pole_list(&args("FREQ.PM", &values), 2).unwrap(),
             vec![10.0, 1e6, 2e7]
         );
         let text = Value::Array(
             Array::row(vec![Value::num(10.0), Value::Text(String::from("x"))]).unwrap(),
         );
         let values = [Value::num(1e5), Value::num(1.0), text];
-        let e = pole_list(&args("LOOP.PM", &values), 2).unwrap_err();
+        let e = pole_list(&args("FREQ.PM", &values), 2).unwrap_err();
         assert_eq!(e.kind, ErrorKind::Value);
-        assert!(e.detail.starts_with("LOOP.PM: poles:"), "{}", e.detail);
+        assert!(e.detail.starts_with("FREQ.PM: poles:"), "{}", e.detail);
     }
 
     #[test]
     fn the_loop_reads_a0_beta_and_the_poles_in_that_order() {
         let values = [Value::num(1e5), Value::num(0.01), Value::num(10.0)];
-        let l = feedback_loop(&args("LOOP.BANDWIDTH", &values), 2).unwrap();
+        let l = feedback_loop(&args("FREQ.BANDWIDTH", &values), 2).unwrap();
         assert_eq!((l.amplifier().gain, l.feedback().gain), (1e5, 0.01));
         assert_eq!(l.amplifier().poles_hz, vec![10.0]);
     }

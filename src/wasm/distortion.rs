@@ -1,10 +1,10 @@
-//! JS bindings for distortion under feedback and slew-rate limits (catalog area E).
+//! JS bindings for distortion under feedback and slew-rate limits.
 //!
 //! A power-series amplifier is passed as its three coefficients `a1, a2, a3`;
 //! amplitudes are peak values; `amplitudeAt` is `"input"` or `"output"`.
 
 use super::{scalar, throw, to_js, typed_arrays};
-use crate::nonlinear::{self as nl, AmplitudeAt, PowerSeries};
+use crate::distortion::{self as nl, AmplitudeAt, PowerSeries};
 use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen(typescript_custom_section)]

@@ -1,4 +1,4 @@
-// Calculator cards of frequency response and stability (catalog area B).
+// Calculator cards of frequency response and stability.
 
 import { lineChart } from '../plot/chart.js';
 import { formatEngineering, formatPlain } from '../format.js';
@@ -280,4 +280,4 @@ export const closedFormCard = {
   },
 };
 
-export const STABILITY_CARDS = [loopCard, compensationCard, closedFormCard];
+export const FREQ_CARDS = [loopCard, compensationCard, closedFormCard];

@@ -16,7 +16,7 @@
 //!
 //! Source: Gray, Hurst, Lewis & Meyer, *Analysis and Design of Analog Integrated
 //! Circuits*, 5th ed., ch. 8 (feedback), on the effect of feedback on distortion (from
-//! memory); checked symbolically by `tests/reference/nonlinear_series_sympy.py`.
+//! memory); checked symbolically by `tests/reference/distortion_series_sympy.py`.
 
 use crate::check;
 use crate::error::{Error, Result};
@@ -50,7 +50,7 @@ impl PowerSeries {
     ///
     /// # Example
     /// ```
-    /// use loopwright::nonlinear::PowerSeries;
+    /// use loopwright::distortion::PowerSeries;
     /// let amp = PowerSeries::new(1000.0, 50.0, -20.0).unwrap();
     /// assert_eq!(amp.output(0.001), 1000.0 * 0.001 + 50.0 * 1e-6 - 20.0 * 1e-9);
     /// assert_eq!(PowerSeries::new(0.0, 1.0, 1.0).unwrap_err().param(), "a1");
@@ -109,7 +109,7 @@ pub fn return_difference(open: &PowerSeries, beta: f64) -> Result<f64> {
 ///
 /// # Example
 /// ```
-/// use loopwright::nonlinear::{closed_loop_series, PowerSeries};
+/// use loopwright::distortion::{closed_loop_series, PowerSeries};
 /// // a1 = 1000, β = 0.099: D = 100, so b1 = 10, b2 = a2/10⁶.
 /// let amp = PowerSeries::new(1000.0, 200.0, -50.0).unwrap();
 /// let cl = closed_loop_series(&amp, 0.099).unwrap();

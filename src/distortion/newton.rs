@@ -93,7 +93,7 @@ impl LoopSolver {
     ///
     /// # Example
     /// ```
-    /// use loopwright::nonlinear::{LoopSolver, PowerSeries};
+    /// use loopwright::distortion::{LoopSolver, PowerSeries};
     /// let amp = PowerSeries::new(1000.0, 0.0, -1000.0).unwrap();
     /// let solver = LoopSolver::new(&amp, 0.01).unwrap();
     /// let y = solver.output(0.05).unwrap();

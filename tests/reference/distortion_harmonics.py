@@ -1,5 +1,5 @@
 #!/usr/bin/env python3
-"""Oracle for the numeric closed-loop spectrum (src/nonlinear/newton.rs and harmonics.rs).
+"""Oracle for the numeric closed-loop spectrum (src/distortion/newton.rs and harmonics.rs).
 
 For seeded random amplifiers y = a1*u + a2*u**2 + a3*u**3 in a loop u = x - beta*y,
 each sample of one period of x_k = X*cos(2*pi*k/N) is solved with
@@ -10,7 +10,7 @@ so the set covers both small signals and the strongly nonlinear region where the
 power series no longer holds. Amplitudes past the fold are listed as cases that
 must be refused.
 
-Writes tests/reference/data/nonlinear_harmonics.json;
+Writes tests/reference/data/distortion_harmonics.json;
 `--check` recomputes and compares (rel. tol. 1e-9).
 """
 import json
@@ -22,7 +22,7 @@ import sys
 import numpy as np
 from scipy.optimize import brentq
 
-OUT = pathlib.Path(__file__).parent / "data" / "nonlinear_harmonics.json"
+OUT = pathlib.Path(__file__).parent / "data" / "distortion_harmonics.json"
 SEED = 6060
 N = 64
 FRACTIONS = (0.01, 0.2, 0.6, 0.95)
@@ -89,7 +89,7 @@ def make_cases():
                 "hd3": harmonics[2] / harmonics[0],
             })
         refused.append({"name": f"amp{i}-past-fold", "a1": a1, "a2": a2, "a3": a3, "beta": beta, "amplitude": 1.05 * fold})
-    return {"source": "scipy.optimize.brentq + numpy.fft, tests/reference/nonlinear_harmonics.py", "seed": SEED, "cases": cases, "refused": refused}
+    return {"source": "scipy.optimize.brentq + numpy.fft, tests/reference/distortion_harmonics.py", "seed": SEED, "cases": cases, "refused": refused}
 
 
 def close(a, b):

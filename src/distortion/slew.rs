@@ -23,7 +23,7 @@ use core::f64::consts::PI;
 ///
 /// # Example
 /// ```
-/// use loopwright::nonlinear::full_power_bandwidth;
+/// use loopwright::distortion::full_power_bandwidth;
 /// // 0.5 V/µs at 10 V peak: 7.96 kHz.
 /// assert!((full_power_bandwidth(0.5e6, 10.0).unwrap() - 7957.747).abs() < 1e-3);
 /// assert_eq!(full_power_bandwidth(0.5e6, 0.0).unwrap_err().param(), "v_peak");
@@ -41,7 +41,7 @@ pub fn full_power_bandwidth(slew_rate: f64, v_peak: f64) -> Result<f64> {
 ///
 /// # Example
 /// ```
-/// use loopwright::nonlinear::max_undistorted_amplitude;
+/// use loopwright::distortion::max_undistorted_amplitude;
 /// // 13 V/µs at 100 kHz: 20.7 V peak.
 /// assert!((max_undistorted_amplitude(13e6, 1e5).unwrap() - 20.690_142).abs() < 1e-5);
 /// assert_eq!(max_undistorted_amplitude(-1.0, 1e5).unwrap_err().param(), "slew_rate");
@@ -59,7 +59,7 @@ pub fn max_undistorted_amplitude(slew_rate: f64, frequency_hz: f64) -> Result<f6
 ///
 /// # Example
 /// ```
-/// use loopwright::nonlinear::required_slew_rate;
+/// use loopwright::distortion::required_slew_rate;
 /// // 10 V peak at 20 kHz needs 1.257 V/µs.
 /// assert!((required_slew_rate(10.0, 2e4).unwrap() - 1.256_637e6).abs() < 1.0);
 /// assert!(required_slew_rate(f64::NAN, 2e4).is_err());

@@ -13,7 +13,7 @@ For seeded random non-inverting and inverting stages and a few fixed scenarios:
 - stability from numpy.roots of the characteristic polynomial (unstable cases
   are listed for the Rust side to refuse).
 
-Writes tests/reference/data/nonlinear_noise.json; `--check` recomputes and
+Writes tests/reference/data/noise_stage.json; `--check` recomputes and
 compares (rel. tol. 1e-9).
 """
 import json
@@ -26,7 +26,7 @@ import numpy as np
 from scipy.integrate import quad
 from scipy.optimize import brentq
 
-OUT = pathlib.Path(__file__).parent / "data" / "nonlinear_noise.json"
+OUT = pathlib.Path(__file__).parent / "data" / "noise_stage.json"
 SEED = 4242
 K_B = 1.380649e-23  # J/K, exact (SI 2019)
 REL_TOL = 1e-9
@@ -188,7 +188,7 @@ def random_cases(rng):
 def make():
     rng = random.Random(SEED)
     cases = [evaluate(c) for c in fixed_cases() + random_cases(rng)]
-    return {"source": "scipy.integrate.quad, tests/reference/nonlinear_noise.py", "seed": SEED, "cases": cases}
+    return {"source": "scipy.integrate.quad, tests/reference/noise_stage.py", "seed": SEED, "cases": cases}
 
 
 def compare(a, b, path, bad):

@@ -1,9 +1,9 @@
-//! Browser tests of the distortion and noise JS API (src/wasm/nonlinear.rs,
+//! Browser tests of the distortion and noise JS API (src/wasm/distortion.rs,
 //! src/wasm/noise.rs): values, structured results, typed arrays and thrown errors.
 #![cfg(target_arch = "wasm32")]
 
 use js_sys::Float64Array;
-use loopwright::wasm::{noise, nonlinear};
+use loopwright::wasm::{distortion, noise};
 use wasm_bindgen::{JsCast, JsValue};
 use wasm_bindgen_test::*;
 
@@ -23,10 +23,10 @@ fn error_code_param(e: JsValue) -> (String, String) {
 #[wasm_bindgen_test]
 fn closed_loop_series_and_ratios() {
     // b1 = a1/D, b2 = a2/D³ (Gray, Hurst, Lewis & Meyer, 5th ed., ch. 8, from memory).
-    let b = nonlinear::closed_loop_series(1000.0, 200.0, -50.0, 0.099).unwrap();
+    let b = distortion::closed_loop_series(1000.0, 200.0, -50.0, 0.099).unwrap();
     assert!((num(&b, "a1") - 10.0).abs() < 1e-12);
     assert!((num(&b, "a2") - 2e-4).abs() < 1e-18);
-    let f = nonlinear::feedback_distortion(1000.0, 0.0, -100.0, 0.099, 1.0, "output").unwrap();
+    let f = distortion::feedback_distortion(1000.0, 0.0, -100.0, 0.099, 1.0, "output").unwrap();
     assert!((num(&f, "hd3Ratio") - 0.01).abs() < 1e-15);
     assert!(field(&f, "hd2Ratio").is_null());
     assert_eq!(field(&f, "amplitudeAt").as_string().unwrap(), "output");
@@ -37,13 +37,13 @@ fn closed_loop_series_and_ratios() {
 
 #[wasm_bindgen_test]
 fn numeric_path_agrees_with_the_series_at_small_amplitude() {
-    let c = nonlinear::series_check(1000.0, 100.0, -200.0, 0.009, 1e-3, 64).unwrap();
+    let c = distortion::series_check(1000.0, 100.0, -200.0, 0.009, 1e-3, 64).unwrap();
     assert!(num(&c, "hd2Difference") < 1e-3 && num(&c, "hd3Difference") < 1e-3);
-    let s = nonlinear::closed_loop_spectrum(1000.0, 100.0, -200.0, 0.009, 1e-3, 64).unwrap();
+    let s = distortion::closed_loop_spectrum(1000.0, 100.0, -200.0, 0.009, 1e-3, 64).unwrap();
     let harmonics: js_sys::Array = field(&s, "harmonics").dyn_into().unwrap();
     assert_eq!(harmonics.length(), 5);
     assert!((harmonics.get(0).as_f64().unwrap() - 0.1).abs() < 1e-5);
-    let y = checked(nonlinear::closed_loop_output(
+    let y = checked(distortion::closed_loop_output(
         1000.0, 0.0, -1000.0, 0.01, 0.05,
     ))
     .unwrap();
@@ -54,8 +54,8 @@ fn numeric_path_agrees_with_the_series_at_small_amplitude() {
 
 #[wasm_bindgen_test]
 fn validity_sweep_returns_typed_arrays_and_the_fold() {
-    let s =
-        nonlinear::series_validity_sweep(100.0, 0.0, -100.0, 0.1, 1e-3, 10.0, 30, 0.1, 64).unwrap();
+    let s = distortion::series_validity_sweep(100.0, 0.0, -100.0, 0.1, 1e-3, 10.0, 30, 0.1, 64)
+        .unwrap();
     let amps: Float64Array = field(&s, "amplitudes").dyn_into().unwrap();
     let hd3: Float64Array = field(&s, "numericHd3").dyn_into().unwrap();
     assert!(amps.length() > 2 && amps.length() < 30);
@@ -68,31 +68,31 @@ fn validity_sweep_returns_typed_arrays_and_the_fold() {
 
 #[wasm_bindgen_test]
 fn distortion_errors_are_thrown_with_code_and_param() {
-    let e = nonlinear::closed_loop_spectrum(100.0, 0.0, -100.0, 0.1, 5.0, 64).unwrap_err();
+    let e = distortion::closed_loop_spectrum(100.0, 0.0, -100.0, 0.1, 5.0, 64).unwrap_err();
     assert_eq!(
         error_code_param(e),
         ("no_convergence".into(), "amplitude".into())
     );
-    let e = nonlinear::feedback_distortion(100.0, 1.0, 1.0, 0.01, 1.0, "peak").unwrap_err();
+    let e = distortion::feedback_distortion(100.0, 1.0, 1.0, 0.01, 1.0, "peak").unwrap_err();
     assert_eq!(
         error_code_param(e),
         ("unknown_name".into(), "amplitude_at".into())
     );
-    let e = nonlinear::closed_loop_series(f64::NAN, 1.0, 1.0, 0.1).unwrap_err();
+    let e = distortion::closed_loop_series(f64::NAN, 1.0, 1.0, 0.1).unwrap_err();
     assert_eq!(error_code_param(e), ("not_finite".into(), "a1".into()));
-    let e = nonlinear::closed_loop_spectrum(100.0, 0.0, -100.0, 0.1, 0.1, 100_000).unwrap_err();
+    let e = distortion::closed_loop_spectrum(100.0, 0.0, -100.0, 0.1, 0.1, 100_000).unwrap_err();
     assert_eq!(error_code_param(e), ("too_large".into(), "samples".into()));
 }
 
 #[wasm_bindgen_test]
 fn slew_rate_limits() {
     // Common practice, no source: 0.5 V/µs at 10 V peak gives about 8 kHz.
-    let f = checked(nonlinear::full_power_bandwidth(0.5e6, 10.0)).unwrap();
+    let f = checked(distortion::full_power_bandwidth(0.5e6, 10.0)).unwrap();
     assert!((f - 7957.747).abs() < 1e-3);
-    let v = checked(nonlinear::max_undistorted_amplitude(0.5e6, f)).unwrap();
+    let v = checked(distortion::max_undistorted_amplitude(0.5e6, f)).unwrap();
     assert!((v - 10.0).abs() < 1e-12);
-    assert!((checked(nonlinear::required_slew_rate(10.0, f)).unwrap() - 0.5e6).abs() < 1e-6);
-    let e = checked(nonlinear::full_power_bandwidth(0.5e6, -1.0)).unwrap_err();
+    assert!((checked(distortion::required_slew_rate(10.0, f)).unwrap() - 0.5e6).abs() < 1e-6);
+    let e = checked(distortion::full_power_bandwidth(0.5e6, -1.0)).unwrap_err();
     assert_eq!(
         error_code_param(e),
         ("out_of_domain".into(), "v_peak".into())

@@ -86,7 +86,7 @@ fn input_amplitude(series: &PowerSeries, amplitude: f64, at: AmplitudeAt) -> Res
 ///
 /// # Example
 /// ```
-/// use loopwright::nonlinear::{harmonic_distortion, AmplitudeAt, PowerSeries};
+/// use loopwright::distortion::{harmonic_distortion, AmplitudeAt, PowerSeries};
 /// let amp = PowerSeries::new(100.0, 20.0, -40.0).unwrap();
 /// let d = harmonic_distortion(&amp, 0.01, AmplitudeAt::Input).unwrap();
 /// assert!((d.hd2 - 0.001).abs() < 1e-15 && (d.hd3 - 1e-5).abs() < 1e-18);
@@ -120,7 +120,7 @@ pub fn harmonic_distortion(
 ///
 /// # Example
 /// ```
-/// use loopwright::nonlinear::{series_from_distortion, AmplitudeAt};
+/// use loopwright::distortion::{series_from_distortion, AmplitudeAt};
 /// // 1 % HD2 and −0.1 % HD3 at 1 V out of a gain of 10.
 /// let s = series_from_distortion(10.0, 0.01, -0.001, 1.0, AmplitudeAt::Output).unwrap();
 /// assert!((s.a2 - 2.0).abs() < 1e-12 && (s.a3 + 4.0).abs() < 1e-12);
@@ -181,7 +181,7 @@ pub struct FeedbackDistortion {
 ///
 /// # Example
 /// ```
-/// use loopwright::nonlinear::{feedback_distortion, AmplitudeAt, PowerSeries};
+/// use loopwright::distortion::{feedback_distortion, AmplitudeAt, PowerSeries};
 /// let amp = PowerSeries::new(1000.0, 0.0, -100.0).unwrap();
 /// // D = 100, a2 = 0: at the same output both ratios are 1/D.
 /// let f = feedback_distortion(&amp, 0.099, 1.0, AmplitudeAt::Output).unwrap();
