@@ -8,8 +8,8 @@
 #![cfg(not(target_arch = "wasm32"))] // proptest and serde_json are native-only dev-dependencies
 
 use loopwright::freq::{
-    closed_loop_bandwidth, closed_loop_poles, stability_margins, step_response, ComplexPair,
-    FeedbackLoop, TransferModel, Verdict,
+    closed_loop_bandwidth, closed_loop_poles, dominant_pole_for_margin, max_beta_for_margin,
+    stability_margins, step_response, ComplexPair, Crossing, FeedbackLoop, TransferModel, Verdict,
 };
 use serde_json::Value;
 use std::collections::BTreeMap;
@@ -35,6 +35,43 @@ const OVERSHOOT_TOL: f64 = 1e-6;
 const STEP_TIME_REL: f64 = 1e-6;
 /// Step final value (relative).
 const FINAL_REL: f64 = 1e-9;
+/// Compensation values (relative): both sides refine the interval ends to about
+/// 1e-10 (loopwright bisects to SEARCH_REL_TOL = 1e-10, the script's brentq to
+/// 1e-13), and the margins they bisect on agree to PM_TOL_DEG.
+const SEARCH_REL: f64 = 1e-8;
+/// Settling time and overshoot against the 30-digit residue sum (relative): the
+/// exit is refined by Brent to 1e-13 of the span on an exact response whose
+/// matrix exponential carries ~1e-13 of rounding.
+const SETTLE_REL: f64 = 1e-9;
+
+fn data() -> Value {
+    let text = std::fs::read_to_string(concat!(
+        env!("CARGO_MANIFEST_DIR"),
+        "/tests/reference/data/freq_loops.json"
+    ))
+    .expect("reference data; run tests/reference/freq_loops.py");
+    serde_json::from_str(&text).unwrap()
+}
+
+/// Every crossing of a kind, in order, against the reference list of
+/// [frequency, margin] (absent for loops with a delay).
+fn same_crossings(name: &str, what: &str, got: &[Crossing], want: &Value, tol: f64) {
+    let Some(want) = want.as_array() else { return };
+    assert_eq!(got.len(), want.len(), "{name}: {what} count {got:?}");
+    for (g, w) in got.iter().zip(want) {
+        let (wf, wm) = (w[0].as_f64().unwrap(), w[1].as_f64().unwrap());
+        assert!(
+            rel(g.freq_hz, wf) <= CROSSING_REL,
+            "{name}: {what} at {} vs {wf}",
+            g.freq_hz
+        );
+        assert!(
+            (g.margin - wm).abs() <= tol,
+            "{name}: {what} margin {} vs {wm}",
+            g.margin
+        );
+    }
+}
 
 fn list(v: &Value) -> Vec<f64> {
     v.as_array()
@@ -91,12 +128,7 @@ fn opt(v: &Value) -> Option<f64> {
 
 #[test]
 fn freq_engine_matches_python_control_and_scipy() {
-    let text = std::fs::read_to_string(concat!(
-        env!("CARGO_MANIFEST_DIR"),
-        "/tests/reference/data/freq_loops.json"
-    ))
-    .expect("reference data; run tests/reference/freq_loops.py");
-    let data: Value = serde_json::from_str(&text).unwrap();
+    let data = data();
     let pade = data["pade_order"].as_u64().unwrap() as u32;
     let cases = data["cases"].as_array().unwrap();
     assert!(cases.len() >= 20, "the issue asks for at least 20 cases");
@@ -108,6 +140,21 @@ fn freq_engine_matches_python_control_and_scipy() {
         // Margins.
         let m = stability_margins(&l).unwrap();
         let e = &c["margins"];
+        // Every crossing, read as the distance to −1 (docs/freq.md).
+        same_crossings(
+            name,
+            "unity-gain crossing",
+            &m.gain_crossings,
+            &e["gain_crossings"],
+            PM_TOL_DEG,
+        );
+        same_crossings(
+            name,
+            "phase crossing",
+            &m.phase_crossings,
+            &e["phase_crossings"],
+            GM_TOL_DB,
+        );
         match (m.phase_margin_deg, opt(&e["phase_margin_deg"])) {
             (Some(got), Some(want)) => {
                 assert!(
@@ -259,5 +306,98 @@ fn freq_engine_matches_python_control_and_scipy() {
     }
     for (what, (err, case)) in &worst.0 {
         println!("largest deviation, {what}: {err:.3e} ({case})");
+    }
+}
+
+/// The largest β for 60° where the margin dips and recovers with β (it holds for
+/// β in [0.2063, 0.5577] and again below 8.3e-4): python-control margins scanned
+/// by brute force in tests/reference/freq_loops.py.
+#[test]
+fn largest_beta_is_found_past_a_dip_in_the_margin() {
+    let e = &data()["max_beta"];
+    let a = model(&e["a"]);
+    let c = max_beta_for_margin(
+        &a,
+        e["target_pm_deg"].as_f64().unwrap(),
+        e["beta_limit"].as_f64().unwrap(),
+    )
+    .unwrap();
+    let (value, from) = (
+        e["value"].as_f64().unwrap(),
+        e["holds_from"].as_f64().unwrap(),
+    );
+    assert!(
+        rel(c.value, value) <= SEARCH_REL,
+        "β {} vs {value}",
+        c.value
+    );
+    assert!(
+        rel(c.holds_from, from) <= SEARCH_REL,
+        "from {} vs {from}",
+        c.holds_from
+    );
+}
+
+/// The highest dominant pole for 60° where the margin is not monotonic in the
+/// pole frequency: brute-force scan in tests/reference/freq_loops.py.
+#[test]
+fn dominant_pole_is_found_past_a_dip_in_the_margin() {
+    let e = &data()["dominant_pole"];
+    let a = model(&e["a"]);
+    let c = dominant_pole_for_margin(
+        &a,
+        e["beta"].as_f64().unwrap(),
+        e["target_pm_deg"].as_f64().unwrap(),
+    )
+    .unwrap();
+    let (value, from) = (
+        e["value"].as_f64().unwrap(),
+        e["holds_from"].as_f64().unwrap(),
+    );
+    assert!(
+        rel(c.value, value) <= SEARCH_REL,
+        "fd {} vs {value}",
+        c.value
+    );
+    assert!(
+        rel(c.holds_from, from) <= SEARCH_REL,
+        "from {} vs {from}",
+        c.holds_from
+    );
+}
+
+/// Three equal poles at a loop gain of 7.9 (critical: 8) ring for hundreds of
+/// periods; settling time and overshoot against the exact response by residues
+/// (mpmath, tests/reference/freq_loops.py), the same for any number of points.
+#[test]
+fn settling_of_a_lightly_damped_loop_matches_the_residue_sum() {
+    let e = &data()["settling"];
+    let l = FeedbackLoop::new(model(&e["a"]), model(&e["beta"])).unwrap();
+    let band = e["settle_band"].as_f64().unwrap();
+    let want_ts = e["settling_time_s"].as_f64().unwrap();
+    let want_os = e["overshoot_percent"].as_f64().unwrap();
+    let first = step_response(&l, band, 2).unwrap();
+    for points in [2, 100, 1000, 4000, 10_000, 100_000] {
+        let s = step_response(&l, band, points).unwrap();
+        assert!(
+            rel(s.settling_time_s, want_ts) <= SETTLE_REL,
+            "{points} points: settling {} vs {want_ts}",
+            s.settling_time_s
+        );
+        assert!(
+            rel(s.overshoot_percent, want_os) <= SETTLE_REL,
+            "{points} points: overshoot {} vs {want_os}",
+            s.overshoot_percent
+        );
+        // The metrics come from their own samples: bit for bit the same.
+        assert_eq!(
+            (s.settling_time_s, s.overshoot_percent, s.rise_time_s),
+            (
+                first.settling_time_s,
+                first.overshoot_percent,
+                first.rise_time_s
+            )
+        );
+        assert_eq!(s.waveform.output.len(), points);
     }
 }

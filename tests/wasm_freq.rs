@@ -138,6 +138,31 @@ fn closed_forms_and_compensation() {
 }
 
 #[wasm_bindgen_test]
+fn margins_read_every_crossing_as_its_distance_to_minus_one() {
+    // A resonance lifting |T| above 1 crosses twice, at ∠T = −28.5° (151.48°) and
+    // −148.6° (31.39°); the margin is the smaller, the loop stable. Reference:
+    // "resonance crossing unity twice, Q 20" in tests/reference/freq_loops.py
+    // (python-control crossings, read by the definition).
+    let a = obj(r#"{"gain": 0.1, "complexPoles": [{"freqHz": 1e6, "q": 20}]}"#);
+    let m = api::stability_margins(a, 1.0.into()).unwrap();
+    assert!((num(&m, "phaseMarginDeg") - 31.392871767382786).abs() < 1e-8);
+    assert_eq!(text(&m, "closedLoop"), "stable");
+    let crossings = Array::from(&field(&m, "gainCrossings"));
+    assert_eq!(crossings.length(), 2);
+    assert!((num(&crossings.get(0), "margin") - 151.4758135796598).abs() < 1e-8);
+    // The largest β where the margin dips and recovers (brute-force scan,
+    // "max_beta" in tests/reference/freq_loops.py).
+    let c = api::max_beta_for_margin(
+        obj(r#"{"gain": 1e5, "polesHz": [10, 1e3, 3e5, 3e5], "zerosHz": [1e4]}"#),
+        60.0,
+        1.0,
+    )
+    .unwrap();
+    assert!((num(&c, "value") / 0.557748041551195 - 1.0).abs() < 1e-8);
+    assert!((num(&c, "holdsFrom") / 0.20626568857002642 - 1.0).abs() < 1e-8);
+}
+
+#[wasm_bindgen_test]
 fn bad_input_throws_typed_errors() {
     let a = obj(r#"{"gain": 1e5, "polesHz": [10]}"#);
     assert_thrown(

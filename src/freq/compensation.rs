@@ -1,28 +1,45 @@
 //! Compensation: the dominant pole for a target phase margin, and the largest β
 //! that keeps a target phase margin.
 //!
-//! Both search one scalar by bisection in its logarithm on the worst phase margin
-//! of [`super::stability_margins`]:
+//! Both search one scalar x on the worst phase margin of
+//! [`super::stability_margins`] (negative when the closed loop is unstable):
 //! - dominant pole: a pole at fd is added to the amplifier (its gain and other
-//!   poles unchanged); lowering fd lowers the crossover and raises the margin.
-//!   The answer is the highest fd whose margin still reaches the target.
-//! - largest β: with the amplifier as it is and a constant β, raising β raises the
-//!   crossover and lowers the margin; the answer is the largest β whose margin
-//!   still reaches the target, i.e. the smallest closed-loop gain ≈ 1/β.
+//!   poles unchanged). The answer is the highest fd whose margin still reaches
+//!   the target.
+//! - largest β: with the amplifier as it is and a constant β, the answer is the
+//!   largest β ≤ the cap whose margin still reaches the target, i.e. the smallest
+//!   closed-loop gain ≈ 1/β.
 //!
-//! A loop with no crossover has an unbounded phase margin and meets any target.
-//! The bisection stops at a relative width of [`SEARCH_REL_TOL`].
+//! The margin need not be monotonic in x: a zero between poles, or a pole pair,
+//! can make it dip and recover (a loop that has 60° at β = 0.3 and 0.001 but not
+//! at 0.01). So neither search bisects over the whole range. Method: scan ln x at
+//! [`SCAN_POINTS_PER_DECADE`] points per decade, with extra points around every
+//! value of x that puts the crossover on a corner of the model (a factor 2 either
+//! side), evaluate the margin at each, take the highest scanned x that meets the
+//! target, and bisect in ln x between it and the next scanned x (which misses)
+//! to a relative width of [`SEARCH_REL_TOL`]. The lower end of the interval that
+//! holds the answer is refined the same way and reported as `holds_from`. An
+//! interval of x narrower than the scan step can be missed; the scan density and
+//! the corner neighbourhoods make that rare for models with real corners.
 //!
-//! Source: dominant-pole compensation as in Sedra & Smith, *Microelectronic
-//! Circuits*, 7th ed., section 10.12 (from memory).
+//! A loop with no crossover has an unbounded phase margin and meets any target,
+//! unless its closed loop is unstable.
 
 use super::margins::stability_margins;
 use super::model::{FeedbackLoop, TransferModel};
+use super::poles::Verdict;
+use super::response::loop_log;
 use crate::check;
 use crate::error::{Error, Result};
+use alloc::vec::Vec;
 
 /// Relative width at which the searches stop.
 pub const SEARCH_REL_TOL: f64 = 1e-10;
+/// Points per decade of the scan that precedes the refinement.
+pub const SCAN_POINTS_PER_DECADE: u32 = 16;
+/// The corner neighbourhoods: x·{1/NEIGHBOUR, 1, NEIGHBOUR} around each value of
+/// x that puts the crossover on a corner.
+const NEIGHBOUR: f64 = 2.0;
 
 /// A compensation result.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -37,6 +54,10 @@ pub struct Compensation {
     pub crossover_hz: Option<f64>,
     /// Closed-loop DC (or midband) gain A0/(1 + A0·β) with this value, unit of A.
     pub closed_loop_gain: f64,
+    /// Lower end of the interval of values, containing `value`, over which the
+    /// target holds; below it the margin misses the target again. The lower end
+    /// of the search (1e-9 Hz, or 1e-12·cap for β) when it holds all the way down.
+    pub holds_from: f64,
 }
 
 fn target(pm: f64) -> Result<f64> {
@@ -50,13 +71,18 @@ fn target(pm: f64) -> Result<f64> {
     Ok(pm)
 }
 
-/// Worst phase margin, +∞ when unbounded.
-fn pm_of(l: &FeedbackLoop) -> Result<(f64, Option<f64>)> {
+/// Worst phase margin, signed; without a crossover +∞, or −∞ when the closed
+/// loop is unstable all the same (an open-loop unstable amplifier).
+fn pm_of(l: &FeedbackLoop) -> Result<f64> {
     let m = stability_margins(l)?;
-    Ok((m.phase_margin_deg.unwrap_or(f64::INFINITY), m.crossover_hz))
+    Ok(match m.phase_margin_deg {
+        Some(pm) => pm,
+        None if m.closed_loop == Verdict::Unstable => f64::NEG_INFINITY,
+        None => f64::INFINITY,
+    })
 }
 
-fn result(l: &FeedbackLoop, value: f64) -> Result<Compensation> {
+fn result(l: &FeedbackLoop, value: f64, holds_from: f64) -> Result<Compensation> {
     let m = stability_margins(l)?;
     let a = l.amplifier().gain;
     let b = l.feedback().gain;
@@ -70,23 +96,89 @@ fn result(l: &FeedbackLoop, value: f64) -> Result<Compensation> {
         phase_margin_deg: m.phase_margin_deg,
         crossover_hz: m.crossover_hz,
         closed_loop_gain: check::result("closed_loop_gain", gain)?,
+        holds_from,
     })
 }
 
-/// Bisection on ln x between `lo` (meets the target) and `hi` (misses it).
-fn bisect(meets: &dyn Fn(f64) -> Result<bool>, mut lo: f64, mut hi: f64) -> Result<f64> {
+/// Bisection on ln x between `yes` (meets the target) and `no` (misses it), in
+/// either order; returns the last x known to meet it.
+fn bisect(meets: &dyn Fn(f64) -> Result<bool>, mut yes: f64, mut no: f64) -> Result<f64> {
     for _ in 0..200 {
-        if hi / lo - 1.0 <= SEARCH_REL_TOL {
+        if libm::fabs(no / yes - 1.0) <= SEARCH_REL_TOL {
             break;
         }
-        let mid = crate::float::sqrt(lo * hi);
+        let mid = crate::float::sqrt(yes * no);
         if meets(mid)? {
-            lo = mid;
+            yes = mid;
         } else {
-            hi = mid;
+            no = mid;
         }
     }
-    Ok(lo)
+    Ok(yes)
+}
+
+/// The scan points: a log grid over [lo, hi] at [`SCAN_POINTS_PER_DECADE`], and
+/// `extra` values within (lo, hi) with their neighbours, ascending.
+fn scan_points(lo: f64, hi: f64, extra: &[f64]) -> Vec<f64> {
+    let decades = libm::log10(hi / lo);
+    let n = (crate::float::ceil(decades * f64::from(SCAN_POINTS_PER_DECADE)) as usize).max(1);
+    let (a, b) = (libm::log(lo), libm::log(hi));
+    // The ends exactly, the inside from the exponential.
+    let mut x: Vec<f64> = (0..=n)
+        .map(|i| match i {
+            0 => lo,
+            i if i == n => hi,
+            i => libm::exp(a + (b - a) * i as f64 / n as f64),
+        })
+        .collect();
+    for &e in extra {
+        for v in [e / NEIGHBOUR, e, e * NEIGHBOUR] {
+            if v.is_finite() && v > lo && v < hi {
+                x.push(v);
+            }
+        }
+    }
+    crate::sort::sort_by(&mut x, f64::total_cmp);
+    x.dedup();
+    x
+}
+
+/// The highest x in [lo, hi] that meets the target and the lower end of its
+/// interval: scan `points` from the top, then bisect both brackets.
+/// `None` when no scanned point meets it.
+fn largest_meeting(
+    meets: &dyn Fn(f64) -> Result<bool>,
+    points: &[f64],
+) -> Result<Option<(f64, f64)>> {
+    let mut top = None;
+    for i in (0..points.len()).rev() {
+        if meets(points[i])? {
+            top = Some(i);
+            break;
+        }
+    }
+    let Some(i) = top else { return Ok(None) };
+    let value = match points.get(i + 1) {
+        Some(&miss) => bisect(meets, points[i], miss)?,
+        None => points[i],
+    };
+    let mut bottom = points[0];
+    for j in (0..i).rev() {
+        if !meets(points[j])? {
+            bottom = bisect(meets, points[j + 1], points[j])?;
+            break;
+        }
+    }
+    Ok(Some((value, bottom)))
+}
+
+/// |A(f)| at each corner of the amplifier.
+fn gain_at_corners(amplifier: &TransferModel) -> Result<Vec<(f64, f64)>> {
+    let l = FeedbackLoop::with_constant_beta(amplifier.clone(), 1.0)?;
+    Ok(l.corners_hz()
+        .into_iter()
+        .map(|f| (f, libm::exp(loop_log(&l, f).ln_mag)))
+        .collect())
 }
 
 /// The dominant-pole frequency that gives `target_pm_deg` of phase margin when
@@ -98,7 +190,7 @@ fn bisect(meets: &dyn Fn(f64) -> Result<bool>, mut lo: f64, mut hi: f64) -> Resu
 /// # Errors
 /// `target_pm_deg` outside (0°, 180°); `beta` zero or not finite; the model
 /// checks of [`FeedbackLoop::new`]; [`Error::Unreachable`] (`target_pm_deg`) when
-/// even a dominant pole at 1e-9 Hz does not reach the target (a delay or RHP
+/// no dominant pole scanned in 1e-9…1e12 Hz reaches the target (a delay or RHP
 /// zero too close, say).
 ///
 /// # Example
@@ -121,21 +213,22 @@ pub fn dominant_pole_for_margin(
     let with = |fd: f64| FeedbackLoop::with_constant_beta(amplifier.clone().pole(fd), beta);
     // The pole must fit the model limits; validate once with a harmless pole.
     let _ = with(1.0)?;
-    let meets = |fd: f64| -> Result<bool> { Ok(pm_of(&with(fd)?)?.0 >= pm) };
-    let lo = super::model::MIN_HZ;
-    if !meets(lo)? {
-        return Err(Error::Unreachable {
+    let meets = |fd: f64| -> Result<bool> { Ok(pm_of(&with(fd)?)? >= pm) };
+    // A dominant pole at fd puts the crossover near |A0·β|·fd: the values of fd
+    // that put it on a corner, and the corners themselves.
+    let t0 = libm::fabs(amplifier.gain * beta);
+    let extra: Vec<f64> = gain_at_corners(amplifier)?
+        .into_iter()
+        .flat_map(|(f, _)| [f, f / t0])
+        .collect();
+    let points = scan_points(super::model::MIN_HZ, super::model::MAX_HZ, &extra);
+    match largest_meeting(&meets, &points)? {
+        Some((fd, from)) => result(&with(fd)?, fd, from),
+        None => Err(Error::Unreachable {
             param: "target_pm_deg",
             reason: "no dominant pole reaches this phase margin with the other poles, zeros and delay as they are",
-        });
+        }),
     }
-    let hi = super::model::MAX_HZ;
-    if meets(hi)? {
-        // Even a pole at the top of the range keeps the margin: no compensation needed.
-        return result(&with(hi)?, hi);
-    }
-    let fd = bisect(&meets, lo, hi)?;
-    result(&with(fd)?, fd)
 }
 
 /// Largest constant β for which the amplifier still has `target_pm_deg` of phase
@@ -146,8 +239,8 @@ pub fn dominant_pole_for_margin(
 ///
 /// # Errors
 /// `target_pm_deg` outside (0°, 180°); `beta_limit` not > 0; the model checks of
-/// [`FeedbackLoop::new`]; [`Error::Unreachable`] (`target_pm_deg`) when even
-/// β = 1e-12·beta_limit misses the target.
+/// [`FeedbackLoop::new`]; [`Error::Unreachable`] (`target_pm_deg`) when no β
+/// scanned in 1e-12·beta_limit…beta_limit meets the target.
 ///
 /// # Example
 /// ```
@@ -166,20 +259,25 @@ pub fn max_beta_for_margin(
     let pm = target(target_pm_deg)?;
     let cap = check::positive("beta_limit", beta_limit)?;
     let with = |b: f64| FeedbackLoop::with_constant_beta(amplifier.clone(), b);
-    let meets = |b: f64| -> Result<bool> { Ok(pm_of(&with(b)?)?.0 >= pm) };
-    if meets(cap)? {
-        return result(&with(cap)?, cap);
-    }
-    let lo = cap * 1e-12;
-    if !meets(lo)? {
-        return Err(Error::Unreachable {
+    let _ = with(cap)?;
+    let meets = |b: f64| -> Result<bool> { Ok(pm_of(&with(b)?)? >= pm) };
+    // β = 1/|A(fk)| puts the crossover on the corner fk.
+    let extra: Vec<f64> = gain_at_corners(amplifier)?
+        .into_iter()
+        .map(|(_, g)| 1.0 / g)
+        .collect();
+    let points = scan_points(cap * MIN_BETA_FRACTION, cap, &extra);
+    match largest_meeting(&meets, &points)? {
+        Some((b, from)) => result(&with(b)?, b, from),
+        None => Err(Error::Unreachable {
             param: "target_pm_deg",
             reason: "the amplifier misses this phase margin even with very little feedback",
-        });
+        }),
     }
-    let b = bisect(&meets, lo, cap)?;
-    result(&with(b)?, b)
 }
+
+/// Smallest β searched, as a fraction of the cap.
+const MIN_BETA_FRACTION: f64 = 1e-12;
 
 #[cfg(test)]
 mod tests {

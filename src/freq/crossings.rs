@@ -2,16 +2,20 @@
 //!
 //! Method: sample ln|T| and the continuous phase of T on a log grid that spans
 //! every corner of the model with three decades to spare and reaches past the
-//! asymptotic crossings at both ends; every sign change of ln|T| (or of
+//! asymptotic crossings at both ends, with every corner frequency on it and, around
+//! each complex pair, a local grid of spacing set by its Q plus the peak (or notch)
+//! of |T| there, so a narrow resonance that lifts |T| just above 1 is not stepped
+//! over whatever the density of the log grid; every sign change of ln|T| (or of
 //! ∠T + 180° − m·360° for any whole m) between neighbours brackets one crossing,
 //! which Brent's method then refines in ln f to a relative frequency tolerance of
 //! [`CROSSING_REL_TOL`]. The answer does not depend on the grid density as long as
-//! neighbouring crossings are a grid step apart.
+//! neighbouring crossings are a grid step apart (a resonance step near its pair).
 //!
 //! Source: R. P. Brent, *Algorithms for Minimization without Derivatives*, 1973,
 //! ch. 4 (the zero finder; from memory).
 
-use super::model::FeedbackLoop;
+use super::bandwidth::golden_max;
+use super::model::{ComplexPair, FeedbackLoop};
 use super::response::loop_log;
 use crate::error::{Error, Result};
 use alloc::vec::Vec;
@@ -70,7 +74,11 @@ pub(crate) fn search_range(l: &FeedbackLoop) -> (f64, f64) {
     (lo, hi)
 }
 
-/// The log grid over the search range at `ppd` points per decade.
+/// The search grid: a log grid over the search range at `ppd` points per
+/// decade, with every corner frequency on it, and around each complex pair a
+/// local grid set by that pair's own Q (its resonance is f0/Q wide), with the
+/// extremum of |T| near the pair (a peak for a pole pair, a notch for a zero
+/// pair) located by golden section and put on the grid too. Ascending.
 pub(crate) fn grid(l: &FeedbackLoop, ppd: u32) -> Result<Vec<f64>> {
     let (lo_ppd, hi_ppd) = POINTS_PER_DECADE_RANGE;
     if ppd < lo_ppd || ppd > hi_ppd {
@@ -82,9 +90,62 @@ pub(crate) fn grid(l: &FeedbackLoop, ppd: u32) -> Result<Vec<f64>> {
     let (lo, hi) = search_range(l);
     let n = (crate::float::ceil(libm::log10(hi / lo) * f64::from(ppd)) as usize).max(2) + 1;
     let (a, b) = (libm::log(lo), libm::log(hi));
-    Ok((0..n)
+    let mut f: Vec<f64> = (0..n)
         .map(|i| libm::exp(a + (b - a) * i as f64 / (n - 1) as f64))
-        .collect())
+        .collect();
+    let inside = |x: f64| x > lo && x < hi;
+    f.extend(l.corners_hz().into_iter().filter(|&x| inside(x)));
+    for (pair, is_pole) in pairs(l) {
+        f.extend(resonance_points(l, pair, is_pole).filter(|&x| inside(x)));
+    }
+    crate::sort::sort_by(&mut f, f64::total_cmp);
+    f.dedup();
+    Ok(f)
+}
+
+/// Local grid points per resonance width f0/Q (in ln f, 1/Q).
+const POINTS_PER_RESONANCE_WIDTH: f64 = 8.0;
+/// Resonance widths covered by the local grid on each side of f0.
+const RESONANCE_WIDTHS: i32 = 4;
+/// Pairs with a Q below this get no local grid (no peak, a broad phase change
+/// that the log grid follows).
+const LOCAL_GRID_MIN_Q: f64 = 0.5;
+
+/// Every complex pair of A and β, with true for a pole pair.
+fn pairs(l: &FeedbackLoop) -> impl Iterator<Item = (ComplexPair, bool)> + '_ {
+    let (a, b) = (l.amplifier(), l.feedback());
+    let poles = a.complex_poles.iter().chain(&b.complex_poles);
+    let zeros = a.complex_zeros.iter().chain(&b.complex_zeros);
+    poles.map(|&p| (p, true)).chain(zeros.map(|&p| (p, false)))
+}
+
+/// The local grid of one pair: f0·exp(k/(8Q)) for |k| ≤ 32, the pair's own
+/// extremum f0·√(1 − 1/(2Q²)) (Q > 1/√2), and the extremum of ln|T| within a
+/// resonance width of f0, by golden section.
+fn resonance_points(
+    l: &FeedbackLoop,
+    pair: ComplexPair,
+    is_pole: bool,
+) -> impl Iterator<Item = f64> + '_ {
+    let (f0, q) = (pair.freq_hz, pair.q);
+    let local = q > LOCAL_GRID_MIN_Q;
+    let step = 1.0 / (POINTS_PER_RESONANCE_WIDTH * q);
+    let k = if local {
+        (POINTS_PER_RESONANCE_WIDTH as i32) * RESONANCE_WIDTHS
+    } else {
+        -1
+    };
+    let own = (q * q > 0.5).then(|| f0 * crate::float::sqrt(1.0 - 0.5 / (q * q)));
+    let extremum = local.then(|| {
+        let sign = if is_pole { 1.0 } else { -1.0 };
+        let h = move |x: f64| sign * loop_log(l, libm::exp(x)).ln_mag;
+        let x0 = libm::log(f0);
+        libm::exp(golden_max(&h, x0 - 1.0 / q, x0 + 1.0 / q).0)
+    });
+    (-k..=k)
+        .map(move |i| f0 * libm::exp(f64::from(i) * step))
+        .chain(own)
+        .chain(extremum)
 }
 
 /// Brent's zero finder for g on [a, b] in x, with g(a)·g(b) ≤ 0; stops when the

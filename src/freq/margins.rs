@@ -1,25 +1,38 @@
 //! Phase margin and gain margin of the loop gain T = A·β, with their frequencies.
 //!
-//! - At each unity-gain crossover fc (|T| = 1): phase margin PM = 180° + ∠T(fc),
-//!   wrapped into (−180°, 180°]; where |T| rises through 1 with frequency (below
-//!   the passband of a loop with a low cut) PM = 180° − ∠T(fc), the same reading
-//!   on the mirror-image branch of the Nyquist plot. The reported PM is the
-//!   smallest over all crossovers.
-//! - At each phase crossover f180 (∠T = −180° modulo 360°): gain margin
-//!   GM = −20·log10|T(f180)| dB. The reported GM is the smallest over all phase
-//!   crossovers; crossovers where |T| < −240 dB are not searched.
+//! Every crossing is read the same way: its margin is the smallest change that
+//! puts T on the critical point −1.
+//! - At each unity-gain crossover fc (|T| = 1), with ∠T wrapped into
+//!   (−180°, 180°]: PM(fc) = 180° − |∠T(fc)|, the smaller of the phase lag and
+//!   the phase lead that turn T onto −1. It lies in [0°, 180°] whether |T| falls
+//!   or rises through 1 there.
+//! - At each phase crossover f180 (∠T = −180° modulo 360°, so T = −|T|):
+//!   GM(f180) = |20·log10|T(f180)|| dB, the gain increase (where |T| < 1) or the
+//!   gain reduction (where |T| > 1, a conditionally stable loop) that puts T on −1.
+//!   Crossovers where |T| < −240 dB are not searched.
+//! - The reported phase margin and gain margin are the smallest over their
+//!   crossings, made negative when the closed loop is unstable, as decided by the
+//!   closed-loop poles ([`super::closed_loop_poles`]), never by a margin alone.
 //! - No crossover of a kind is a result: that margin is unbounded (`None`).
+//!
+//! For a loop whose phase falls through −180° once, negative feedback at low
+//! frequency and no low cut, this is the common reading PM = 180° + ∠T,
+//! GM = −20·log10|T| at ∠T = −180°. It differs where that reading misleads: a
+//! crossing where |T| rises through 1 (a low cut, a resonance) has phase lead
+//! there, and 180° + ∠T reports a stable loop as unstable (docs/freq.md).
 //!
 //! The Bode reading of margins assumes a loop gain without right-half-plane poles
 //! and with negative feedback at low frequency; otherwise the margins are still
 //! computed but [`MarginValidity`] says they are not meaningful and the closed-loop
-//! poles ([`super::closed_loop_poles`]) decide stability.
+//! poles decide stability.
 //!
 //! Source: the definitions in Franklin, Powell & Emami-Naeini, *Feedback Control of
-//! Dynamic Systems*, 7th ed., section 6.4 (from memory).
+//! Dynamic Systems*, 7th ed., section 6.4 (from memory), read as distances to −1
+//! at every crossing.
 
 use super::crossings::{scan, DEFAULT_POINTS_PER_DECADE};
 use super::model::FeedbackLoop;
+use super::poles::{closed_loop_poles, Verdict};
 use super::response::loop_log;
 use crate::error::Result;
 use alloc::vec::Vec;
@@ -45,13 +58,14 @@ pub enum MarginValidity {
 pub struct Crossing {
     /// Frequency, Hz.
     pub freq_hz: f64,
-    /// Phase margin (deg) at a unity-gain crossing, gain margin (dB) at a phase
-    /// crossing.
+    /// The distance to −1 at this crossing, ≥ 0: the phase margin
+    /// 180° − |∠T| (deg) at a unity-gain crossing, the gain margin
+    /// |20·log10|T|| (dB) at a phase crossing. Unsigned: the sign of the
+    /// reported worst margin comes from the closed-loop poles.
     pub margin: f64,
     /// At a unity-gain crossing: |T| rises through 1 as f rises (the low side of
-    /// a loop with a low cut). The phase margin there is read against phase lead,
-    /// 180° − ∠T, which is the usual reading on the mirror-image (negative
-    /// frequency) branch of the Nyquist plot. Always false at a phase crossing.
+    /// a loop with a low cut, the near side of a resonance). At a phase crossing:
+    /// |T| > 1 there, so the gain margin is a gain reduction.
     pub rising: bool,
 }
 
@@ -60,11 +74,15 @@ pub struct Crossing {
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]
 #[cfg_attr(feature = "serde", serde(rename_all = "camelCase"))]
 pub struct Margins {
-    /// Worst phase margin, degrees; `None` when |T| never reaches 1 (unbounded).
+    /// Worst phase margin, degrees: the smallest over the unity-gain crossings,
+    /// negative when the closed loop is unstable; `None` when |T| never reaches 1
+    /// (unbounded).
     pub phase_margin_deg: Option<f64>,
     /// Unity-gain crossover frequency of the worst phase margin, Hz.
     pub crossover_hz: Option<f64>,
-    /// Worst gain margin, dB; `None` when the phase never reaches −180° (unbounded).
+    /// Worst gain margin, dB: the smallest over the phase crossings, negative
+    /// when the closed loop is unstable; `None` when the phase never reaches −180°
+    /// (unbounded).
     pub gain_margin_db: Option<f64>,
     /// Phase crossover frequency of the worst gain margin, Hz.
     pub phase_crossover_hz: Option<f64>,
@@ -74,6 +92,8 @@ pub struct Margins {
     pub phase_crossings: Vec<Crossing>,
     /// Whether these margins decide stability for this loop.
     pub validity: MarginValidity,
+    /// The closed-loop verdict from the poles, which signs the worst margins.
+    pub closed_loop: Verdict,
 }
 
 /// Wrap an angle in degrees into (−180°, 180°].
@@ -113,7 +133,7 @@ pub fn stability_margins(l: &FeedbackLoop) -> Result<Margins> {
 /// `points_per_decade` outside 4…2000; [`crate::Error::TooLarge`]
 /// (`phase_crossings`) when a long delay turns the phase more than
 /// [`super::crossings::MAX_PHASE_CROSSINGS`] times while |T| is still above
-/// −240 dB.
+/// −240 dB; those of [`closed_loop_poles`], which sign the worst margins.
 ///
 /// # Example
 /// ```
@@ -128,28 +148,20 @@ pub fn margins_with_density(l: &FeedbackLoop, points_per_decade: u32) -> Result<
     let (gain_list, phase_list) = scan(l, points_per_decade)?;
     let gains: Vec<Crossing> = gain_list
         .into_iter()
-        .map(|(f, rising)| {
-            let phase = loop_log(l, f).deg();
-            let margin = if rising {
-                wrap_deg(180.0 - phase)
-            } else {
-                wrap_deg(180.0 + phase)
-            };
-            Crossing {
-                freq_hz: f,
-                margin,
-                rising,
-            }
+        .map(|(f, rising)| Crossing {
+            freq_hz: f,
+            margin: phase_distance_deg(loop_log(l, f).deg()),
+            rising,
         })
         .collect();
     let phases: Vec<Crossing> = phase_list
         .into_iter()
         .map(|f| {
-            let g = loop_log(l, f);
+            let db = loop_log(l, f).db();
             Crossing {
                 freq_hz: f,
-                margin: -g.db(),
-                rising: false,
+                margin: libm::fabs(db),
+                rising: db > 0.0,
             }
         })
         .collect();
@@ -157,6 +169,14 @@ pub fn margins_with_density(l: &FeedbackLoop, points_per_decade: u32) -> Result<
         v.iter()
             .copied()
             .min_by(|a, b| a.margin.total_cmp(&b.margin))
+    };
+    let closed_loop = closed_loop_poles(l)?.verdict;
+    let signed = |c: Crossing| {
+        if closed_loop == Verdict::Unstable {
+            -c.margin
+        } else {
+            c.margin
+        }
     };
     let pm = worst(&gains);
     let gm = worst(&phases);
@@ -168,14 +188,21 @@ pub fn margins_with_density(l: &FeedbackLoop, points_per_decade: u32) -> Result<
         MarginValidity::Meaningful
     };
     Ok(Margins {
-        phase_margin_deg: pm.map(|c| c.margin),
+        phase_margin_deg: pm.map(signed),
         crossover_hz: pm.map(|c| c.freq_hz),
-        gain_margin_db: gm.map(|c| c.margin),
+        gain_margin_db: gm.map(signed),
         phase_crossover_hz: gm.map(|c| c.freq_hz),
         gain_crossings: gains,
         phase_crossings: phases,
         validity,
+        closed_loop,
     })
+}
+
+/// The phase margin at one unity-gain crossing: the smallest phase change, lag
+/// or lead, that puts T on −1, 180° − |∠T| with ∠T wrapped into (−180°, 180°]; deg.
+pub(crate) fn phase_distance_deg(phase_deg: f64) -> f64 {
+    180.0 - libm::fabs(wrap_deg(phase_deg))
 }
 
 #[cfg(test)]
@@ -226,6 +253,29 @@ mod tests {
             stability_margins(&p).unwrap().validity,
             MarginValidity::PositiveFeedback
         );
+    }
+
+    #[test]
+    fn a_crossing_is_read_as_its_distance_to_minus_one() {
+        // 180° − |∠T| with ∠T in (−180°, 180°]: lag and lead count alike.
+        assert_eq!(phase_distance_deg(-30.0), 150.0);
+        assert_eq!(phase_distance_deg(30.0), 150.0);
+        assert_eq!(phase_distance_deg(-150.0), 30.0);
+        assert_eq!(phase_distance_deg(-200.0), 20.0);
+        assert_eq!(phase_distance_deg(-180.0), 0.0);
+        assert_eq!(phase_distance_deg(-390.0), 150.0);
+    }
+
+    #[test]
+    fn an_unstable_loop_gets_negative_margins() {
+        // Three equal poles, DC loop gain 12 > 8: unstable. GM = −20·log10(12/8)
+        // at √3·f_p (common practice, no source).
+        let a = TransferModel::constant(12.0).pole(1e3).pole(1e3).pole(1e3);
+        let m = stability_margins(&FeedbackLoop::with_constant_beta(a, 1.0).unwrap()).unwrap();
+        assert_eq!(m.closed_loop, Verdict::Unstable);
+        assert!((m.gain_margin_db.unwrap() + 20.0 * libm::log10(1.5)).abs() < 1e-9);
+        assert!(m.phase_margin_deg.unwrap() < 0.0);
+        assert!(m.gain_crossings.iter().all(|c| c.margin >= 0.0));
     }
 
     #[test]

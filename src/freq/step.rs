@@ -6,9 +6,17 @@
 //! space, augmented with the constant step input: z' = M·z, z(0) = (0, …, 0, 1).
 //! Then z(t) = exp(M·t)·z(0) exactly, for any pole pattern (repeated poles need no
 //! special case, unlike partial fractions). exp(M·t) is computed by scaling and
-//! squaring with a Taylor polynomial; samples step with one exp(M·h); each metric
-//! is then refined between samples with exact evaluations (Brent for crossings,
-//! golden section for the peak), so the metrics do not depend on the sampling.
+//! squaring with a Taylor polynomial; samples step with one exp(M·h).
+//!
+//! The metrics come from their own samples, not from the waveform's, so they do
+//! not depend on the number of points asked for: at least 4000 over the span,
+//! and at least 20 per period of the fastest oscillatory closed-loop mode while it
+//! is alive, so every peak of the ringing is seen. Each metric is then refined
+//! between samples on the exact response (Brent for crossings, golden section for
+//! peaks). For the settling time the last sample outside the band brackets an
+//! exit, and every later sampled peak of |y − 1| close to the band is maximised
+//! on the exact response, so a peak that leaves the band between two samples
+//! still counts.
 //!
 //! Metrics, with y normalised by the final value y(∞) = Af(0):
 //! - overshoot = (max y − 1)·100 % (0 when y never exceeds 1), and the peak time;
@@ -37,6 +45,18 @@ use alloc::vec::Vec;
 const TAYLOR_TERMS: usize = 16;
 /// Least number of samples used internally to locate the metrics.
 const DETECT_SAMPLES: usize = 4000;
+/// Detection samples per period of the fastest oscillation still alive: a
+/// sampled peak of a sinusoid is then within cos(π/20) = 0.988 of the true one.
+const SAMPLES_PER_PERIOD: f64 = 20.0;
+/// A sampled local maximum of |y − 1| above this fraction of the band is
+/// checked on the exact response for an excursion out of the band (below
+/// cos(π/20), with room for the envelope's decay over one sample).
+const PEAK_CHECK: f64 = 0.95;
+/// An oscillatory mode counts as alive while σ·t < MODE_LIFE (e^−40 ≈ 4e-18 of
+/// its start).
+const MODE_LIFE: f64 = 40.0;
+/// Most detection samples over the simulated span.
+const MAX_DETECT_SAMPLES: usize = 400_000;
 /// How many times the simulated span may double to reach settling.
 const MAX_EXTENSIONS: u32 = 6;
 
@@ -166,6 +186,9 @@ struct System {
     /// Latest first peak 1.5·π/ω_d among the oscillatory poles whose overshoot is
     /// above rounding level (ω_d ≥ σ/10), normalised time.
     first_peak: f64,
+    /// Decay rate σ and angular frequency ω_d of each oscillatory pole (one per
+    /// conjugate pair), normalised.
+    modes: Vec<(f64, f64)>,
     final_value: f64,
 }
 
@@ -206,6 +229,11 @@ impl System {
         } else {
             0.0
         };
+        let modes = poles
+            .iter()
+            .filter(|p| p.im > 0.0)
+            .map(|p| (-p.re, p.im))
+            .collect();
         let first_peak = poles
             .iter()
             .filter(|p| p.im > 0.0 && p.im >= 0.1 * -p.re)
@@ -218,6 +246,7 @@ impl System {
             wn,
             sigma_min,
             first_peak,
+            modes,
             final_value,
         })
     }
@@ -228,6 +257,69 @@ impl System {
         let e = self.m.expm(tau);
         let z: Vec<f64> = (0..n).map(|i| e.a[i * n + n - 1]).collect();
         self.c.iter().zip(&z).map(|(c, x)| c * x).sum::<f64>() + self.d
+    }
+
+    /// Samples from 0 to `span` (normalised) that find the metrics, divided by
+    /// `yf`: at least [`DETECT_SAMPLES`] over the span, and at least
+    /// [`SAMPLES_PER_PERIOD`] per period of the fastest oscillatory mode still
+    /// alive (σ·t < [`MODE_LIFE`]), so a fast mode that dies early does not set
+    /// the step for the whole span. Piecewise uniform; times and outputs.
+    ///
+    /// # Errors
+    /// [`Error::NoConvergence`] (`settling_time_s`) past [`MAX_DETECT_SAMPLES`]
+    /// (a mode that rings for tens of thousands of periods).
+    fn detection_samples(&self, span: f64, yf: f64) -> Result<(Vec<f64>, Vec<f64>)> {
+        let base = span / (DETECT_SAMPLES - 1) as f64;
+        let step_of = |w: f64| core::f64::consts::TAU / (SAMPLES_PER_PERIOD * w);
+        // Segment ends: the time each mode dies, and the span.
+        let mut ends: Vec<f64> = self
+            .modes
+            .iter()
+            .map(|&(sigma, _)| MODE_LIFE / sigma)
+            .filter(|&d| d < span)
+            .collect();
+        ends.push(span);
+        crate::sort::sort_by(&mut ends, f64::total_cmp);
+        let mut plan = Vec::new();
+        let (mut start, mut total) = (0.0, 0usize);
+        for &end in &ends {
+            if end <= start {
+                continue;
+            }
+            let h = self
+                .modes
+                .iter()
+                .filter(|&&(sigma, _)| MODE_LIFE / sigma > start)
+                .map(|&(_, w)| step_of(w))
+                .fold(base, f64::min);
+            let n = crate::float::ceil((end - start) / h) as usize;
+            total = total.saturating_add(n.max(1));
+            if total > MAX_DETECT_SAMPLES {
+                return Err(Error::NoConvergence {
+                    param: "settling_time_s",
+                    reason: "the response rings for too many periods to resolve its settling",
+                });
+            }
+            plan.push((start, end, n.max(1)));
+            start = end;
+        }
+        let n = self.m.n;
+        let mut z = vec![0.0; n];
+        if let Some(last) = z.last_mut() {
+            *last = 1.0;
+        }
+        let out = |z: &[f64]| (self.c.iter().zip(z).map(|(c, x)| c * x).sum::<f64>() + self.d) / yf;
+        let (mut t, mut y) = (vec![0.0], vec![out(&z)]);
+        for (a, b, count) in plan {
+            let h = (b - a) / count as f64;
+            let phi = self.m.expm(h);
+            for i in 1..=count {
+                z = phi.mul_vec(&z);
+                t.push(if i == count { b } else { a + h * i as f64 });
+                y.push(out(&z));
+            }
+        }
+        Ok((t, y))
     }
 
     /// `count` samples from 0 to `span` (normalised), by repeated exp(M·h).
@@ -343,108 +435,34 @@ pub fn step_response(l: &FeedbackLoop, settle_band: f64, points: usize) -> Resul
     }
     let mut span =
         ((libm::log(1.0 / band) + 8.0) * 1.2 / sigma).max(sys.first_peak.min(200.0 / sigma));
-    let count = points.max(DETECT_SAMPLES);
-    let yn = |tau: f64| sys.output_at(tau) / yf;
     for _ in 0..=MAX_EXTENSIONS {
-        let y: Vec<f64> = sys
-            .samples(span, count)
-            .into_iter()
-            .map(|v| v / yf)
-            .collect();
-        let h = span / (count - 1) as f64;
-        let t = |i: usize| h * i as f64;
-        // Settling: last sample outside the band must not be the last one, and the
-        // final tenth must be inside.
+        let (t, y) = sys.detection_samples(span, yf)?;
+        let last = t.len() - 1;
         let outside = y.iter().rposition(|v| libm::fabs(v - 1.0) > band);
-        let top = y
-            .iter()
-            .copied()
-            .enumerate()
-            .fold(
-                (0, f64::NEG_INFINITY),
-                |b, (i, v)| if v > b.1 { (i, v) } else { b },
-            );
-        // Not settled yet, or still rising above the final value at the end.
-        if outside.is_some_and(|k| k + count / 10 >= count) || (top.1 > 1.0 && top.0 + 1 >= count) {
+        let top = arg_best(&y, |a, b| a > b);
+        // Not settled in the first nine tenths, or still rising above the final
+        // value at the end: simulate longer.
+        if outside.is_some_and(|k| t[k] > 0.9 * span) || (y[top] > 1.0 && top == last) {
             span *= 2.0;
             continue;
         }
         for &v in &y {
             check::result("step_output", v)?;
         }
-        let settle = match outside {
-            None => 0.0,
-            Some(k) => {
-                let g = |tau: f64| libm::fabs(yn(tau) - 1.0) - band;
-                let (a, b) = (t(k), t(k + 1));
-                brent(&g, a, b, g(a), g(b), 1e-13 * span)
-            }
-        };
-        let first_at = |level: f64| -> f64 {
-            match y.iter().position(|&v| v >= level) {
-                None | Some(0) => 0.0,
-                Some(k) => {
-                    let g = |tau: f64| yn(tau) - level;
-                    let (a, b) = (t(k - 1), t(k));
-                    brent(&g, a, b, g(a), g(b), 1e-13 * span)
-                }
-            }
-        };
-        let rise = first_at(0.9) - first_at(0.1);
-        let (kmax, vmax) =
-            y.iter()
-                .copied()
-                .enumerate()
-                .fold(
-                    (0, f64::NEG_INFINITY),
-                    |b, (i, v)| if v > b.1 { (i, v) } else { b },
-                );
-        let (overshoot, peak_time) = if vmax > 1.0 && kmax + 1 < count {
-            let (tp, vp) = golden_max(&yn, t(kmax.saturating_sub(1)), t(kmax + 1));
-            ((vp.max(vmax) - 1.0) * 100.0, Some(tp / sys.wn))
-        } else {
-            (0.0, None)
-        };
-        let (kmin, vmin) = y
-            .iter()
-            .copied()
-            .enumerate()
-            .fold(
-                (0, f64::INFINITY),
-                |b, (i, v)| if v < b.1 { (i, v) } else { b },
-            );
-        let undershoot = if vmin < 0.0 {
-            let neg = |tau: f64| -yn(tau);
-            let (_, v) = golden_max(
-                &neg,
-                t(kmin.saturating_sub(1)),
-                t((kmin + 1).min(count - 1)),
-            );
-            v.max(-vmin) * 100.0
-        } else {
-            0.0
-        };
-        let duration = span / sys.wn;
-        let waveform = if points == count {
-            let time_s = (0..count).map(|i| t(i) / sys.wn).collect();
-            StepWaveform {
-                time_s,
-                output: y.iter().map(|v| v * yf).collect(),
-            }
-        } else {
-            let output = sys.samples(span, points);
-            let time_s = (0..points)
-                .map(|i| duration * i as f64 / (points - 1) as f64)
-                .collect();
-            StepWaveform { time_s, output }
+        let m = Metrics::of(&sys, yf, band, &t, &y, outside);
+        let waveform = StepWaveform {
+            time_s: (0..points)
+                .map(|i| span / sys.wn * i as f64 / (points - 1) as f64)
+                .collect(),
+            output: sys.samples(span, points),
         };
         return Ok(StepResponse {
             final_value: yf,
-            overshoot_percent: check::result("overshoot_percent", overshoot)?,
-            peak_time_s: peak_time,
-            undershoot_percent: check::result("undershoot_percent", undershoot)?,
-            rise_time_s: check::result("rise_time_s", rise / sys.wn)?,
-            settling_time_s: check::result("settling_time_s", settle / sys.wn)?,
+            overshoot_percent: check::result("overshoot_percent", m.overshoot)?,
+            peak_time_s: m.peak_time.map(|tp| tp / sys.wn),
+            undershoot_percent: check::result("undershoot_percent", m.undershoot)?,
+            rise_time_s: check::result("rise_time_s", m.rise / sys.wn)?,
+            settling_time_s: check::result("settling_time_s", m.settle / sys.wn)?,
             settle_band: band,
             waveform,
         });
@@ -453,6 +471,111 @@ pub fn step_response(l: &FeedbackLoop, settle_band: f64, points: usize) -> Resul
         param: "settling_time_s",
         reason: "the response did not settle within the simulated span",
     })
+}
+
+/// Index of the best sample by `better` (the first of equals).
+fn arg_best(y: &[f64], better: impl Fn(f64, f64) -> bool) -> usize {
+    let mut k = 0;
+    for (i, &v) in y.iter().enumerate() {
+        if better(v, y[k]) {
+            k = i;
+        }
+    }
+    k
+}
+
+/// The step metrics in normalised time, refined between detection samples on
+/// the exact response.
+struct Metrics {
+    overshoot: f64,
+    peak_time: Option<f64>,
+    undershoot: f64,
+    rise: f64,
+    settle: f64,
+}
+
+impl Metrics {
+    /// `t`, `y`: detection samples (y normalised by the final value `yf`);
+    /// `outside`: the last sample outside the band, if any.
+    fn of(
+        sys: &System,
+        yf: f64,
+        band: f64,
+        t: &[f64],
+        y: &[f64],
+        outside: Option<usize>,
+    ) -> Metrics {
+        let yn = |tau: f64| sys.output_at(tau) / yf;
+        let span = t[t.len() - 1];
+        let first_at = |level: f64| -> f64 {
+            match y.iter().position(|&v| v >= level) {
+                None | Some(0) => 0.0,
+                Some(k) => {
+                    let g = |tau: f64| yn(tau) - level;
+                    let (a, b) = (t[k - 1], t[k]);
+                    brent(&g, a, b, g(a), g(b), 1e-13 * span)
+                }
+            }
+        };
+        let rise = first_at(0.9) - first_at(0.1);
+        let last = t.len() - 1;
+        let kmax = arg_best(y, |a, b| a > b);
+        let (overshoot, peak_time) = if y[kmax] > 1.0 && kmax < last {
+            let (tp, vp) = golden_max(&yn, t[kmax.saturating_sub(1)], t[kmax + 1]);
+            ((vp.max(y[kmax]) - 1.0) * 100.0, Some(tp))
+        } else {
+            (0.0, None)
+        };
+        let kmin = arg_best(y, |a, b| a < b);
+        let undershoot = if y[kmin] < 0.0 {
+            let neg = |tau: f64| -yn(tau);
+            let (_, v) = golden_max(&neg, t[kmin.saturating_sub(1)], t[(kmin + 1).min(last)]);
+            v.max(-y[kmin]) * 100.0
+        } else {
+            0.0
+        };
+        Metrics {
+            overshoot,
+            peak_time,
+            undershoot,
+            rise,
+            settle: last_exit(&yn, band, t, y, outside),
+        }
+    }
+}
+
+/// The last time |y − 1| equals the band, after which it stays inside.
+///
+/// The last sample outside the band brackets an exit; but a peak of the ringing
+/// between two later samples may still leave the band. Every later local
+/// maximum of |y − 1| among the samples that comes within [`PEAK_CHECK`] of the
+/// band is therefore maximised on the exact response (golden section), latest
+/// first, and the exit after the latest true excursion is the settling time.
+fn last_exit(
+    yn: &dyn Fn(f64) -> f64,
+    band: f64,
+    t: &[f64],
+    y: &[f64],
+    outside: Option<usize>,
+) -> f64 {
+    let span = t[t.len() - 1];
+    let g = |tau: f64| libm::fabs(yn(tau) - 1.0) - band;
+    let exit_between = |a: f64, b: f64| brent(&g, a, b, g(a), g(b), 1e-13 * span);
+    let e = |i: usize| libm::fabs(y[i] - 1.0);
+    let from = outside.map_or(1, |k| k + 1);
+    for j in (from.max(1)..t.len() - 1).rev() {
+        if e(j) > PEAK_CHECK * band && e(j) >= e(j - 1) && e(j) >= e(j + 1) {
+            let dev = |tau: f64| libm::fabs(yn(tau) - 1.0);
+            let (tp, ep) = golden_max(&dev, t[j - 1], t[j + 1]);
+            if ep > band {
+                return exit_between(tp, t[j + 1]);
+            }
+        }
+    }
+    match outside {
+        None => 0.0,
+        Some(k) => exit_between(t[k], t[k + 1]),
+    }
 }
 
 #[cfg(test)]

@@ -50,18 +50,24 @@ export interface FrequencySweep { freqHz: Float64Array; magnitudeDb: Float64Arra
 export interface LoopPoint { loopGain: Phasor; closedLoopGain: Phasor; }
 /** Whether the margins decide stability for this loop. */
 export type MarginValidity = "meaningful" | "open-loop-unstable" | "positive-feedback";
-/** One crossover: phase margin (deg) at a unity-gain crossing, gain margin (dB) at a −180° crossing. */
+/**
+ * One crossover and its distance to −1, ≥ 0: phase margin 180° − |∠T| (deg) at a unity-gain
+ * crossing, gain margin |20·log10|T|| (dB) at a −180° crossing. `rising`: |T| rises through 1
+ * there (unity-gain crossing), or |T| > 1 there so the margin is a gain reduction (−180° crossing).
+ */
 export interface MarginCrossing { freqHz: number; margin: number; rising: boolean; }
 export interface StabilityMargins {
-  /** Worst phase margin, deg; null when |T| never reaches 1. */
+  /** Worst phase margin, deg, negative when the closed loop is unstable; null when |T| never reaches 1. */
   phaseMarginDeg: number | null;
   crossoverHz: number | null;
-  /** Worst gain margin, dB; null when the phase never reaches −180°. */
+  /** Worst gain margin, dB, negative when the closed loop is unstable; null when the phase never reaches −180°. */
   gainMarginDb: number | null;
   phaseCrossoverHz: number | null;
   gainCrossings: MarginCrossing[];
   phaseCrossings: MarginCrossing[];
   validity: MarginValidity;
+  /** The closed-loop verdict from the poles, which signs the worst margins. */
+  closedLoop: StabilityVerdict;
 }
 export type StabilityVerdict = "stable" | "marginal" | "unstable";
 /** A closed-loop pole in rad/s with its natural frequency (Hz), damping and Q (null for a real pole). */
@@ -113,6 +119,8 @@ export interface CompensationResult {
   phaseMarginDeg: number | null;
   crossoverHz: number | null;
   closedLoopGain: number;
+  /** Lower end of the interval, containing `value`, where the target holds (below it the margin misses again). */
+  holdsFrom: number;
 }
 export interface TwoPoleResponse {
   naturalHz: number;

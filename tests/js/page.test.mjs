@@ -352,6 +352,28 @@ test('loop stability card: trade facts through the page', async () => {
   await context.close();
 });
 
+test('compensation card: the largest β is for the poles as entered', async () => {
+  const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
+  // Defaults: A0 = 100k, poles at 2 MHz and 20 MHz, β = 1, 60°. Without the
+  // dominant pole the two-pole loop has 60° where atan(fc/2M) + atan(fc/20M)
+  // = 120°, and |A0·β| = √((1 + (fc/2M)²)(1 + (fc/20M)²)) there (two-pole closed
+  // form, solved here by bisection). The β typed (1) must not come back.
+  let lo = 2e6;
+  let hi = 2e8;
+  for (let i = 0; i < 200; i++) {
+    const mid = Math.sqrt(lo * hi);
+    if (Math.atan(mid / 2e6) + Math.atan(mid / 2e7) < (2 * Math.PI) / 3) lo = mid;
+    else hi = mid;
+  }
+  const want = Math.sqrt((1 + (lo / 2e6) ** 2) * (1 + (lo / 2e7) ** 2)) / 1e5;
+  const got = Number(await result(page, 'card-compensation', 'betamax'));
+  // The card prints 4 significant digits or more (format 'plain').
+  assert.ok(Math.abs(got / want - 1) < 1e-3, `largest β ${got} vs ${want}`);
+  assert.match(await result(page, 'card-compensation', 'betarange'), /^0 … /);
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
 test('loaded stage card: exact, two-port and ideal side by side', async () => {
   const { context, page, problems } = await openPage(env.browser, env.url, {
     allowedOrigin: env.url,

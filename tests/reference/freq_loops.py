@@ -13,10 +13,16 @@ exp(-s tau)) as python-control transfer functions in the time-scaled variable
 s' = s/ws (ws the geometric mean of the corners), so that the polynomials stay
 well-conditioned for numpy; frequencies and times are scaled back afterwards.
 
-- margins: control.stability_margins(returnall=True) on the loop gain, worst
-  (smallest) phase margin and worst gain margin in dB; for a delay, which a
-  transfer function cannot hold exactly, the exact response exp(-jw tau)·L(jw) is
-  bracketed on a dense grid and refined with scipy.optimize.brentq.
+- margins: every unity-gain and -180 degree crossing from
+  control.stability_margins(returnall=True) on the loop gain; for a delay, which
+  a transfer function cannot hold exactly, the exact response exp(-jw tau)·L(jw)
+  is bracketed on a dense grid and refined with scipy.optimize.brentq. At each
+  crossing the loop is evaluated afresh (numpy) and read by the definition in
+  docs/freq.md: the phase margin is the smallest phase change, lag or lead, that
+  puts L on -1, 180 - |angle L| with numpy.angle in (-180, 180]; the gain margin
+  is the smallest gain change, up or down, |20 log10 |L||. The worst (smallest)
+  of each is reported, negative when the closed loop is unstable by its poles
+  (numpy.roots below), never by a margin alone.
 - poles: numpy.roots of den_A·den_b + num_A·num_b, the polynomials of the
   python-control transfer functions; a delay through control.pade of the same
   order (6).
@@ -27,6 +33,15 @@ well-conditioned for numpy; frequencies and times are scaled back afterwards.
   each event; the exact output y(t) from the state space of control.ss and
   scipy.linalg.expm then refines the crossings (brentq) and the peak
   (minimize_scalar).
+
+Three searches beside the cases:
+- max_beta and dominant_pole: a brute-force scan of the phase margin above
+  (python-control crossings) over beta, or over an added dominant pole, at 100
+  points per decade; brentq on margin - target refines the ends of the interval
+  that holds the largest value meeting the target.
+- settling: the exact step response of three equal poles just below the critical
+  loop gain of 8, as a sum of residues (partial fractions) in mpmath at 30
+  digits: its extrema by findroot on y'(t), and the last exit from the band.
 
 Writes tests/reference/data/freq_loops.json, read by tests/freq_reference.rs.
 Run with --check to recompute and compare with the committed file (exit 1 on a
@@ -40,6 +55,7 @@ import sys
 from pathlib import Path
 
 import control
+import mpmath as mp
 import numpy as np
 from scipy import linalg, optimize
 
@@ -94,6 +110,14 @@ CASES = [
     ("three poles, 45 degrees", model(2e4, poles=[100.0, 2e5, 2e7]), const(0.02)),
     ("four poles with an LHP zero pair", model(5e4, poles=[20.0, 5e5, 5e6], complex_poles=[(5e7, 0.8)],
                                                complex_zeros=[(1e8, 1.0)]), const(0.1)),
+    # |L| rises through 1 at -28.5 degrees and falls through it at -148.6 degrees.
+    ("resonance crossing unity twice, Q 20", model(0.1, complex_poles=[(1e6, 20.0)]), const(1.0)),
+    ("resonance crossing unity twice, Q 200", model(0.1, complex_poles=[(1e6, 200.0)]), const(1.0)),
+    # An AC-coupled stage: phase lead at the low crossing, lag at the high one.
+    ("AC-coupled, two poles", model(100.0, low_cuts=[10.0], poles=[1e5, 1e5]), const(1.0)),
+    # |L| peaks 0.017 dB above 1 within a few hundred Hz of 1 MHz.
+    ("narrow resonance just above unity", model(0.00501, complex_poles=[(1e6, 200.0)], poles=[3.7], zeros=[3.7]),
+     const(1.0)),
 ]
 
 
@@ -180,9 +204,7 @@ def margins_exact(a, b):
         if mag[i] == 0 or (mag[i] > 0) != (mag[i + 1] > 0):
             x = optimize.brentq(lambda lx: math.log(abs(loop(math.exp(lx)))), math.log(f[i]), math.log(f[i + 1]),
                                 xtol=1e-15, rtol=1e-15)
-            fc = math.exp(x)
-            pm = math.degrees(np.angle(-loop(fc)))  # 180 + phase, wrapped to (-180, 180]
-            pms.append((mirror(a, b, pm, fc), fc))
+            pms.append(math.exp(x))
         for k in range(math.floor((min(ph[i], ph[i + 1]) + math.pi) / TAU) + 1,
                        math.floor((max(ph[i], ph[i + 1]) + math.pi) / TAU) + 1):
             level = -math.pi + TAU * k
@@ -194,36 +216,42 @@ def margins_exact(a, b):
                 return p - level
 
             x = optimize.brentq(g, math.log(f[i]), math.log(f[i + 1]), xtol=1e-15, rtol=1e-15)
-            fp = math.exp(x)
-            gms.append((-20 * math.log10(abs(loop(fp))), fp))
+            gms.append(math.exp(x))
     return pms, gms
 
 
-def mirror(a, b, pm, fc):
-    """Where |L| rises through 1 with frequency, loopwright reads the phase margin
-    on the mirror-image Nyquist branch: 180 - phase instead of 180 + phase, i.e.
-    the negative of python-control's value there (see src/freq/margins.rs)."""
-    rising = abs(exact(a, fc * 1.0001) * exact(b, fc * 1.0001)) > abs(exact(a, fc) * exact(b, fc))
-    return -pm if rising else pm
-
-
-def margins(a, b, ws):
+def crossing_frequencies(a, b, ws):
+    """Unity-gain and -180 degree crossing frequencies (Hz), ascending."""
     if a["delayS"] > 0 or b["delayS"] > 0:
         pms, gms = margins_exact(a, b)
     else:
         loop = scaled_tf(a, ws, False) * scaled_tf(b, ws, False)
-        gm, pm, _sm, wpc, wgc, _ws = control.stability_margins(loop, returnall=True)
-        pms = [(mirror(a, b, float(p), float(w) * ws / TAU), float(w) * ws / TAU) for p, w in zip(pm, wgc)]
-        gms = [(20 * math.log10(float(g)), float(w) * ws / TAU) for g, w in zip(gm, wpc) if g > 0 and w > 0]
+        gm, _pm, _sm, wpc, wgc, _ws = control.stability_margins(loop, returnall=True)
+        pms = [float(w) * ws / TAU for w in wgc if w > 0]
+        gms = [float(w) * ws / TAU for g, w in zip(gm, wpc) if g > 0 and w > 0]
+    return sorted(pms), sorted(gms)
+
+
+def margins(a, b, ws, stable):
+    """The margins by the definition in docs/freq.md, from the loop evaluated at
+    each crossing; the worst signed by the closed-loop poles."""
+    fcs, fps = crossing_frequencies(a, b, ws)
+    loop = lambda f: complex(exact(a, f) * exact(b, f))
+    pms = [(180 - abs(math.degrees(np.angle(loop(f)))), f) for f in fcs]
+    gms = [(abs(20 * math.log10(abs(loop(f)))), f) for f in fps]
+    sign = 1 if stable else -1
     out = {}
+    if a["delayS"] == 0 and b["delayS"] == 0:
+        # Every crossing with its margin (a delay's phase crossings go on for ever).
+        out.update(gain_crossings=[[f, m] for m, f in pms], phase_crossings=[[f, m] for m, f in gms])
     if pms:
         pm, fc = min(pms)
-        out.update(phase_margin_deg=pm, crossover_hz=fc)
+        out.update(phase_margin_deg=sign * pm, crossover_hz=fc)
     else:
         out.update(phase_margin_deg=None, crossover_hz=None)
     if gms:
         gmv, fp = min(gms)
-        out.update(gain_margin_db=gmv, phase_crossover_hz=fp)
+        out.update(gain_margin_db=sign * gmv, phase_crossover_hz=fp)
     else:
         out.update(gain_margin_db=None, phase_crossover_hz=None)
     return out
@@ -284,9 +312,13 @@ def bandwidth(a, b):
     k = int(np.argmax(h))
     if h[k] > 1e-12:
         lo, hi = math.log(f[max(k - 1, 0)]), math.log(f[min(k + 1, len(f) - 1)])
-        res = optimize.minimize_scalar(lambda lx: -math.log(abs(af(math.exp(lx))) / ref), bounds=(lo, hi),
-                                       method="bounded", options={"xatol": 1e-12})
-        peak_db, peak_hz = -res.fun * 20 / math.log(10), math.exp(res.x)
+        # In u = ln f - centre, so the method's relative stop (sqrt(eps)·|u|) does
+        # not limit a sharp peak (Q = 200) to about 2e-7 in ln f.
+        centre = math.log(f[k])
+        res = optimize.minimize_scalar(lambda u: -math.log(abs(af(math.exp(centre + u))) / ref),
+                                       bounds=(lo - centre, hi - centre), method="bounded",
+                                       options={"xatol": 1e-13})
+        peak_db, peak_hz = -res.fun * 20 / math.log(10), math.exp(centre + res.x)
     else:
         peak_db, peak_hz = 0.0, None
     return {"midband_gain": ref, "high_hz": high, "low_hz": low, "peaking_db": peak_db, "peak_hz": peak_hz}
@@ -301,9 +333,22 @@ def step(a, b, ws, pole_list):
     sys_cl = closed_loop(a, b, ws)
     yf = float(control.dcgain(sys_cl))
     t_end = 30.0 / sigma
-    t = np.linspace(0.0, t_end, 100001)
-    resp = control.forced_response(sys_cl, T=t, U=np.ones_like(t))
-    y = np.asarray(resp.outputs, dtype=float).ravel() / yf
+    # A fast, lightly damped mode (a narrow resonance) rings for many periods
+    # while it lives: sample it at 50 points per period until exp(-40) of its
+    # start, then go on at 100 001 samples to t_end, from the state reached.
+    ringing = [(-p[0] / ws, abs(p[1]) / ws) for p in pole_list if abs(p[1]) > 0]
+    sys_ss = control.ss(sys_cl)
+    t1 = min([t_end] + [40.0 / s_ for s_, _ in ringing])
+    n1 = max([100001] + [int(t1 * w / TAU * 50) + 1 for _, w in ringing])
+    t = np.linspace(0.0, t1, n1)
+    resp = control.forced_response(sys_ss, T=t, U=np.ones_like(t), return_x=True)
+    y = np.asarray(resp.outputs, dtype=float).ravel()
+    if t1 < t_end:
+        t2 = np.linspace(t1, t_end, 100001)
+        rest = control.forced_response(sys_ss, T=t2 - t1, U=np.ones_like(t2), X0=resp.states[:, -1])
+        t = np.concatenate([t, t2[1:]])
+        y = np.concatenate([y, np.asarray(rest.outputs, dtype=float).ravel()[1:]])
+    y = y / yf
 
     # Exact output at any time from the state space: z' = M z with the step input
     # as a constant state, y = C x + D (scipy.linalg.expm).
@@ -345,6 +390,99 @@ def step(a, b, ws, pole_list):
             "settling_time_s": settle / ws, "settle_band": SETTLE_BAND}
 
 
+def signed_pm(a, b):
+    """Worst phase margin by the definition above; +inf without a crossing."""
+    c = corners(a) + corners(b)
+    ws = math.exp(sum(math.log(TAU * x) for x in c) / len(c)) if c else TAU
+    stable = all(p[0] < -1e-9 * math.hypot(*p) for p in poles(a, b, ws))
+    pm = margins(a, b, ws, stable)["phase_margin_deg"]
+    return math.inf if pm is None else pm
+
+
+def interval_search(pm_of, lo, hi, target):
+    """Brute force: the margin on a 100-per-decade grid of x in [lo, hi]; the
+    largest x meeting the target and the lower end of its interval, each refined
+    by brentq on margin - target."""
+    xs = np.logspace(math.log10(lo), math.log10(hi), int(round(100 * math.log10(hi / lo))) + 1)
+    ok = [pm_of(x) >= target for x in xs]
+    top = max(i for i, v in enumerate(ok) if v)
+    g = lambda lx: pm_of(math.exp(lx)) - target
+    rtol = 1e-13
+    value = xs[top] if top == len(xs) - 1 else math.exp(
+        optimize.brentq(g, math.log(xs[top]), math.log(xs[top + 1]), xtol=1e-14, rtol=rtol))
+    below = [i for i in range(top) if not ok[i]]
+    start = xs[0] if not below else math.exp(
+        optimize.brentq(g, math.log(xs[below[-1]]), math.log(xs[below[-1] + 1]), xtol=1e-14, rtol=rtol))
+    return {"value": value, "holds_from": start}
+
+
+# The margin dips and recovers with beta: a zero between the poles. The margin
+# is >= 60 degrees for small beta, misses it around 0.01, and meets it again in
+# [0.2063, 0.5577].
+MAX_BETA_AMP = model(1e5, poles=[10.0, 1e3, 3e5, 3e5], zeros=[1e4])
+# The same amplifier without its 10 Hz pole, beta = 0.4: the margin against the
+# dominant pole added is high far down, dips near 0.1 Hz and meets 60 degrees
+# again between about 5 and 14 Hz.
+DOMINANT_AMP = model(1e5, poles=[1e3, 3e5, 3e5], zeros=[1e4])
+DOMINANT_BETA = 0.4
+TARGET_PM = 60.0
+
+
+def max_beta():
+    r = interval_search(lambda beta: signed_pm(MAX_BETA_AMP, const(beta)), 1e-4, 1.0, TARGET_PM)
+    return {"a": MAX_BETA_AMP, "target_pm_deg": TARGET_PM, "beta_limit": 1.0, **r}
+
+
+def dominant_pole():
+    def pm_of(fd):
+        a = dict(DOMINANT_AMP, polesHz=[fd] + DOMINANT_AMP["polesHz"])
+        return signed_pm(a, const(DOMINANT_BETA))
+
+    r = interval_search(pm_of, 1e-3, 1e3, TARGET_PM)
+    return {"a": DOMINANT_AMP, "beta": DOMINANT_BETA, "target_pm_deg": TARGET_PM, **r}
+
+
+# Three equal poles at 1 kHz; the loop oscillates at a DC loop gain of 8 (common
+# practice, no source), so 7.9 rings for hundreds of periods.
+SETTLE_T0 = 7.9
+SETTLE_POLE_HZ = 1e3
+
+
+def settling():
+    """Exact step response of T0/((1 + s/w)^3 + T0) by residues at 30 digits."""
+    mp.mp.dps = 30
+    t0, w = mp.mpf(SETTLE_T0), 2 * mp.pi * SETTLE_POLE_HZ
+    band = mp.mpf(SETTLE_BAND)
+    # Characteristic polynomial in x = s/w: (1 + x)^3 + T0.
+    roots = mp.polyroots([1, 3, 3, 1 + t0], maxsteps=200, extraprec=60)
+    yf = t0 / (1 + t0)
+    # y(t)/yf - 1 = sum over the roots of c_k exp(r_k w t), c_k = T0/(yf r_k D'(r_k)).
+    c = [t0 / (yf * r * 3 * (1 + r) ** 2) for r in roots]
+    dev = lambda t: mp.re(sum(ck * mp.exp(r * w * t) for ck, r in zip(c, roots)))
+    slope = lambda t: mp.re(sum(ck * r * w * mp.exp(r * w * t) for ck, r in zip(c, roots)))
+    # Past t_end the envelope sum |c_k| exp(Re r_k w t) is below band/2.
+    t_end = max(mp.log(2 * len(c) * abs(ck) / band) / (-mp.re(r) * w) for ck, r in zip(c, roots))
+    period = 2 * mp.pi / (max(abs(mp.im(r)) for r in roots) * w)
+    n = int(mp.ceil(t_end / period * 200))
+    ts = [t_end * i / n for i in range(n + 1)]
+    ds = [slope(t) for t in ts]
+    extrema = []
+    for i in range(1, n + 1):
+        if (ds[i - 1] > 0) != (ds[i] > 0):
+            tp = mp.findroot(slope, (ts[i - 1], ts[i]), solver="anderson")
+            extrema.append((tp, dev(tp)))
+    overshoot = max(d for _, d in extrema) * 100
+    k = max(i for i, (_, d) in enumerate(extrema) if abs(d) > band)
+    tp = extrema[k][0]
+    # |dev| falls from above the band to 0 between this extremum and the next
+    # zero of dev; the exit is the root of |dev| - band there.
+    t_zero = mp.findroot(dev, (tp, extrema[k + 1][0]), solver="anderson")
+    exit_t = mp.findroot(lambda t: abs(dev(t)) - band, (tp, t_zero), solver="anderson")
+    return {"a": model(SETTLE_T0, poles=[SETTLE_POLE_HZ] * 3), "beta": const(1.0), "settle_band": SETTLE_BAND,
+            "settling_time_s": float(exit_t), "overshoot_percent": float(overshoot),
+            "final_value": float(yf)}
+
+
 def evaluate():
     out = {"pade_order": PADE_ORDER, "cases": []}
     for name, a, b in CASES:
@@ -352,12 +490,15 @@ def evaluate():
         ws = math.exp(sum(math.log(TAU * x) for x in c) / len(c)) if c else TAU
         pl = poles(a, b, ws)
         row = {"name": name, "a": a, "beta": b}
-        row["margins"] = margins(a, b, ws)
-        row["poles"] = pl
         row["stable"] = all(p[0] < -1e-9 * math.hypot(*p) for p in pl)
+        row["margins"] = margins(a, b, ws, row["stable"])
+        row["poles"] = pl
         row["bandwidth"] = bandwidth(a, b)
         row["step"] = step(a, b, ws, pl)
         out["cases"].append(row)
+    out["max_beta"] = max_beta()
+    out["dominant_pole"] = dominant_pole()
+    out["settling"] = settling()
     return out
 
 
@@ -387,6 +528,8 @@ def main():
             bad.append("case count differs")
         for new, old in zip(result["cases"], committed["cases"]):
             compare(new, old, new["name"], bad)
+        for key in ("max_beta", "dominant_pole", "settling"):
+            compare(result[key], committed.get(key), key, bad)
         for line in bad:
             print("freq_loops:", line)
         print(f"freq_loops: {len(result['cases'])} cases, {len(bad)} mismatches")

@@ -295,7 +295,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         params: LOOP,
         repeats: true,
         result_unit: "degrees; Hz",
-        spill: &["phase margin, degrees (worst crossover)", "crossover frequency, Hz"],
+        spill: &["phase margin 180° − |∠T|, degrees (worst crossover; negative when the closed loop is unstable)", "crossover frequency, Hz"],
         example: Example {
             formula: "=FREQ.PM(1000; 0.1; 1 kHz; 100 kHz)",
             expected: Expected::Numbers(&[52.55773904488178, 78610.53548759002]),
@@ -307,11 +307,11 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
     FunctionSpec {
         name: "FREQ.GM",
         area: "freq",
-        summary: "Gain margin of the loop (how far |T| is below 1 where its phase reaches −180°) and that frequency",
+        summary: "Gain margin of the loop (how far |T| is from 1 where its phase reaches −180°, worst crossing) and that frequency",
         params: LOOP,
         repeats: true,
         result_unit: "dB; Hz",
-        spill: &["gain margin, dB (#N/A without a −180° crossing)", "phase crossover frequency, Hz"],
+        spill: &["gain margin |20·log10|T||, dB (negative when the closed loop is unstable; #N/A without a −180° crossing)", "phase crossover frequency, Hz"],
         example: Example {
             formula: "=FREQ.GM(4; 1; 1k; 1k; 1k)",
             expected: Expected::Numbers(&[6.020599913279624, 1732.0508075688772]),
@@ -494,7 +494,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         example: Example {
             formula: "=FREQ.DOMINANT(100k; 1; 60; 1 MHz; 10 MHz)",
             expected: Expected::Numbers(&[5.748217922187234, 511163.10698197025]),
-            source: "poles fd, 1 MHz, 10 MHz, T0 = 100000: the two equations |T(fc)| = 1 and Σ atan(fc/fk) = 120° in fd and fc, solved with mpmath findroot (tests/reference/sheet_catalog.py); the core bisects to 1e-10",
+            source: "poles fd, 1 MHz, 10 MHz, T0 = 100000: the two equations |T(fc)| = 1 and Σ atan(fc/fk) = 120° in fd and fc, solved with mpmath findroot (tests/reference/sheet_catalog.py); the core scans, then bisects to 1e-10",
             tolerance: &[1e-8],
         },
         eval: dominant,

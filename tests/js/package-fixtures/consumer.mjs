@@ -414,6 +414,7 @@ const MARGINS = [
   'gainCrossings',
   'phaseCrossings',
   'validity',
+  'closedLoop',
 ];
 const CROSSING = ['freqHz', 'margin', 'rising'];
 const POLES = ['poles', 'verdict', 'minZeta', 'padeOrder'];
@@ -429,7 +430,7 @@ const METRICS = [
   'settleBand',
 ];
 const WAVEFORM = ['timeS', 'output'];
-const COMPENSATION = ['value', 'phaseMarginDeg', 'crossoverHz', 'closedLoopGain'];
+const COMPENSATION = ['value', 'phaseMarginDeg', 'crossoverHz', 'closedLoopGain', 'holdsFrom'];
 shape(sw, SWEEP, 'loopGainSweep');
 shape(lw.closedLoopSweep(one, 0.01, 10, 1e6, 5), SWEEP, 'closedLoopSweep');
 shape(at, ['loopGain', 'closedLoopGain'], 'loopAt');

@@ -11,6 +11,16 @@ const loopInputs = [
 ];
 
 const model = (v) => ({ gain: v.gain, polesHz: v.poles, zerosHz: v.zeros });
+
+/** The swept phase (continuous, deg) at the sample nearest `fHz` in log frequency. */
+function phaseNear(sweep, fHz) {
+  let best = 0;
+  for (let i = 1; i < sweep.freqHz.length; i++) {
+    if (Math.abs(Math.log(sweep.freqHz[i] / fHz)) < Math.abs(Math.log(sweep.freqHz[best] / fHz)))
+      best = i;
+  }
+  return sweep.phaseDeg[best];
+}
 const seconds = (t) => (t === null || t === undefined ? '—' : `${formatEngineering(t, 4, 's')}`);
 
 export const loopCard = {
@@ -19,7 +29,7 @@ export const loopCard = {
   blurb:
     'The open-loop amplifier you have (DC gain, poles, zeros) inside a feedback loop: margins, closed-loop poles, bandwidth, peaking and step response.',
   formula:
-    'T(jω) = A(jω)·β    PM = 180° + ∠T at |T| = 1    GM = −20·log10|T| at ∠T = −180°\nclosed-loop poles: roots of 1 + A(s)·β = 0    Af(jω) = A/(1 + T)',
+    'T(jω) = A(jω)·β    PM = 180° − |∠T| at each |T| = 1    GM = |20·log10|T|| at each ∠T = −180°\nworst of each, negative when the closed-loop poles say unstable    poles: roots of 1 + A(s)·β = 0    Af = A/(1 + T)',
   inputs: [...loopInputs, { name: 'band', label: 'Settling band', value: '1%' }],
   aliases: { 'a.gain': 'gain', 'a.poles_hz': 'poles', 'a.zeros_hz': 'zeros' },
   compute(v, api) {
@@ -39,10 +49,16 @@ export const loopCard = {
       });
     const phaseMarkers = [{ y: -180, label: '−180°' }];
     if (m.crossoverHz !== null && m.phaseMarginDeg !== null) {
+      // The bar runs from the phase at the crossover (exact, on the plotted
+      // branch) to the nearest odd multiple of 180° (lag or lead, whichever is
+      // closer): its length is the margin.
+      const exact = api.loopAt(a, v.beta, m.crossoverHz).loopGain.phaseDeg;
+      const near = phaseNear(sweep, m.crossoverHz);
+      const at = exact + 360 * Math.round((near - exact) / 360);
       phaseMarkers.push({
         x: m.crossoverHz,
-        y0: -180,
-        y1: m.phaseMarginDeg - 180,
+        y0: 360 * Math.round((at - 180) / 360) + 180,
+        y1: at,
         label: `PM ${m.phaseMarginDeg.toFixed(1)}°`,
       });
     }
@@ -173,8 +189,9 @@ export const compensationCard = {
   id: 'card-compensation',
   title: 'Compensation',
   blurb:
-    'How far to pull the dominant pole down for a target phase margin at this β, or how much feedback the loop takes as it is.',
-  formula: 'find f_d with PM(f_d, β) = target    find the largest β ≤ 1 with PM(β) ≥ target',
+    'How far to pull the dominant pole down for a target phase margin at this β, or how much feedback the loop takes as it is, without that pole.',
+  formula:
+    'highest f_d with PM(f_d, β) ≥ target    largest β ≤ 1 with PM(β) ≥ target (poles as entered)\nboth scanned, then refined: the margin need not fall steadily',
   inputs: [
     { name: 'gain', label: 'DC open-loop gain A0', value: '100k' },
     { name: 'poles', label: 'Other poles', value: '2M, 20M', unit: 'Hz', list: true },
@@ -185,8 +202,13 @@ export const compensationCard = {
   compute(v, api) {
     const a = { gain: v.gain, polesHz: v.poles };
     const dom = api.dominantPoleForMargin(a, v.beta, v.pm);
-    const withDominant = { gain: v.gain, polesHz: [dom.value, ...v.poles] };
-    const beta = api.maxBetaForMargin(withDominant, v.pm, 1);
+    // How much feedback the amplifier takes as it is: the poles as entered, not
+    // the dominant pole just placed above (which was sized for the β typed).
+    const beta = api.maxBetaForMargin(a, v.pm, 1);
+    // A margin that dips and recovers with β holds the target only on an
+    // interval: say so when it does not reach down to the least β searched
+    // (1e-12 of the cap).
+    const interval = beta.holdsFrom > 1e-11;
     return [
       { name: 'fd', label: 'Dominant pole for the target', value: dom.value, unit: 'Hz' },
       { name: 'fc', label: 'Crossover then', value: dom.crossoverHz, unit: 'Hz' },
@@ -196,7 +218,19 @@ export const compensationCard = {
         value: api.gainBandwidth(v.gain, dom.value),
         unit: 'Hz',
       },
-      { name: 'betamax', label: 'Largest β with that pole', value: beta.value, format: 'plain' },
+      {
+        name: 'betamax',
+        label: 'Largest β without the dominant pole',
+        value: beta.value,
+        format: 'plain',
+      },
+      {
+        name: 'betarange',
+        label: 'Target held for β in',
+        text: interval
+          ? `${formatPlain(beta.holdsFrom, 4)} … ${formatPlain(beta.value, 4)} only`
+          : `0 … ${formatPlain(beta.value, 4)}`,
+      },
       {
         name: 'afmin',
         label: 'Smallest closed-loop gain',
