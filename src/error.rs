@@ -54,12 +54,27 @@ pub enum Error {
         param: &'static str,
         reason: &'static str,
     },
+    /// A value of the wrong kind (a string where a number is expected, a number
+    /// where a list is expected, …); `expected` says what is ("a number").
+    WrongType {
+        param: &'static str,
+        expected: &'static str,
+    },
+    /// A required field of an options object is left out.
+    Missing { param: &'static str },
+    /// A field that the options object of this function does not have (a
+    /// misspelling would otherwise be skipped silently); `expected` lists the fields.
+    UnknownField {
+        param: &'static str,
+        expected: &'static str,
+    },
 }
 
 impl Error {
     /// A stable, machine-readable code: `not_finite`, `out_of_domain`,
     /// `unreachable`, `oscillation`, `unknown_name`, `too_large`, `overflow`,
-    /// `no_convergence`, `singular`.
+    /// `no_convergence`, `singular`, `wrong_type`, `missing`, `unknown_field`
+    /// (all of them, in this order, in [`Error::CODES`]).
     pub const fn code(&self) -> &'static str {
         match self {
             Error::NotFinite { .. } => "not_finite",
@@ -71,8 +86,28 @@ impl Error {
             Error::Overflow { .. } => "overflow",
             Error::NoConvergence { .. } => "no_convergence",
             Error::Singular { .. } => "singular",
+            Error::WrongType { .. } => "wrong_type",
+            Error::Missing { .. } => "missing",
+            Error::UnknownField { .. } => "unknown_field",
         }
     }
+
+    /// Every code [`Error::code`] can give, for bindings that list them (the
+    /// TypeScript `ErrorCode` type is checked against this list).
+    pub const CODES: [&'static str; 12] = [
+        "not_finite",
+        "out_of_domain",
+        "unreachable",
+        "oscillation",
+        "unknown_name",
+        "too_large",
+        "overflow",
+        "no_convergence",
+        "singular",
+        "wrong_type",
+        "missing",
+        "unknown_field",
+    ];
 
     /// The same error about another parameter: a helper that validates a value for
     /// a caller reports it under the caller's parameter name.
@@ -102,6 +137,15 @@ impl Error {
                 param: name,
                 reason,
             },
+            Error::WrongType { expected, .. } => Error::WrongType {
+                param: name,
+                expected,
+            },
+            Error::Missing { .. } => Error::Missing { param: name },
+            Error::UnknownField { expected, .. } => Error::UnknownField {
+                param: name,
+                expected,
+            },
         }
     }
 
@@ -116,27 +160,49 @@ impl Error {
             | Error::TooLarge { param, .. }
             | Error::Overflow { param }
             | Error::NoConvergence { param, .. }
-            | Error::Singular { param, .. } => param,
+            | Error::Singular { param, .. }
+            | Error::WrongType { param, .. }
+            | Error::Missing { param }
+            | Error::UnknownField { param, .. } => param,
+        }
+    }
+
+    /// The sentence without the parameter's name: what [`Display`](fmt::Display)
+    /// writes after `"{param}: "`. Bindings that name the parameter otherwise (a
+    /// field path such as `amplifier.polesHz[2]`) put their own name before it.
+    pub const fn reason(&self) -> Reason<'_> {
+        Reason(self)
+    }
+}
+
+/// The sentence of an [`Error`] without its parameter name (see [`Error::reason`]).
+#[derive(Debug, Clone, Copy)]
+pub struct Reason<'a>(&'a Error);
+
+impl fmt::Display for Reason<'_> {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        match *self.0 {
+            Error::NotFinite { .. } => f.write_str("must be a finite number, not NaN or infinity"),
+            Error::OutOfDomain { requirement, .. } => f.write_str(requirement),
+            Error::Unreachable { reason, .. } => write!(f, "cannot be reached: {reason}"),
+            Error::Oscillation { .. } => f.write_str(
+                "the return difference 1 + A·β is zero, so the loop oscillates and no closed-loop value exists",
+            ),
+            Error::UnknownName { expected, .. } => write!(f, "unknown name; expected one of {expected}"),
+            Error::TooLarge { limit, .. } => write!(f, "too large; the limit is {limit}"),
+            Error::Overflow { .. } => f.write_str("the result overflows the floating-point range"),
+            Error::NoConvergence { reason, .. } => write!(f, "did not converge: {reason}"),
+            Error::Singular { reason, .. } => write!(f, "singular: {reason}"),
+            Error::WrongType { expected, .. } => write!(f, "must be {expected}"),
+            Error::Missing { .. } => f.write_str("is required but missing"),
+            Error::UnknownField { expected, .. } => write!(f, "unknown field; expected one of {expected}"),
         }
     }
 }
 
 impl fmt::Display for Error {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        match *self {
-            Error::NotFinite { param } => write!(f, "{param}: must be a finite number, not NaN or infinity"),
-            Error::OutOfDomain { param, requirement } => write!(f, "{param}: {requirement}"),
-            Error::Unreachable { param, reason } => write!(f, "{param}: cannot be reached: {reason}"),
-            Error::Oscillation { param } => write!(
-                f,
-                "{param}: the return difference 1 + A·β is zero, so the loop oscillates and no closed-loop value exists"
-            ),
-            Error::UnknownName { param, expected } => write!(f, "{param}: unknown name; expected one of {expected}"),
-            Error::TooLarge { param, limit } => write!(f, "{param}: too large; the limit is {limit}"),
-            Error::Overflow { param } => write!(f, "{param}: the result overflows the floating-point range"),
-            Error::NoConvergence { param, reason } => write!(f, "{param}: did not converge: {reason}"),
-            Error::Singular { param, reason } => write!(f, "{param}: singular: {reason}"),
-        }
+        write!(f, "{}: {}", self.param(), self.reason())
     }
 }
 
@@ -189,11 +255,23 @@ mod tests {
                 param: "p",
                 reason: "r",
             },
+            Error::WrongType {
+                param: "p",
+                expected: "a number",
+            },
+            Error::Missing { param: "p" },
+            Error::UnknownField {
+                param: "p",
+                expected: "x",
+            },
         ];
         let mut codes: alloc::vec::Vec<&str> = all.iter().map(|e| e.code()).collect();
         codes.sort_unstable();
         codes.dedup();
         assert_eq!(codes.len(), all.len());
+        let mut listed = Error::CODES.to_vec();
+        listed.sort_unstable();
+        assert_eq!(codes, listed, "Error::CODES lists every code once");
         for e in all {
             assert_eq!(e.param(), "p");
             assert!(e.to_string().starts_with("p: "));

@@ -21,6 +21,9 @@ pub mod freq;
 pub mod network;
 pub mod noise;
 pub mod nonlinear;
+// Used by the exports that take an options object; until they are converted, some of it is not.
+#[allow(dead_code)]
+pub(crate) mod options;
 #[cfg(feature = "wasm")]
 pub mod sheet;
 
