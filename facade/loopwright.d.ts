@@ -1,4 +1,22 @@
-// Types of the entry module (loopwright.js): the same names and signatures as the
-// generated glue, whose declarations (with their doc comments) are re-exported.
-export * from './loopwright_glue.js';
-export { default } from './loopwright_glue.js';
+// Types of the entry module (loopwright.js): the calculator areas of lite.js, the
+// circuit solver and the worksheet, declared by the generated glue
+// (loopwright_glue.d.ts, with its doc comments), and every type the glue declares.
+// The glue's internal functions are not exported.
+export type * from './loopwright_glue.js';
+export * from './lite.js';
+export { default, initSync } from './loopwright_glue.js';
+export {
+  circuitNormalize,
+  circuitTemplate,
+  circuitSolve,
+  circuitPortImpedance,
+  circuitSweep,
+  circuitTwoPort,
+  circuitStageViews,
+  circuitBlackman,
+  circuitAsymptoticGain,
+  circuitAsymptoticGainCurrent,
+  functionCatalog,
+  errorValues,
+  Worksheet,
+} from './loopwright_glue.js';

@@ -194,7 +194,13 @@ fn check_digits(digits: u32) -> Result<usize> {
 fn engineering(x: f64, digits: usize) -> (String, i32) {
     let mut e3 = 3 * crate::float::floor(libm::log10(x) / 3.0) as i32;
     loop {
-        let m = x / libm::pow(10.0, f64::from(e3));
+        // 10^e3 underflows to 0 below 1e-308 (subnormal x): scale in two steps there,
+        // or m would be infinite and the search would never end.
+        let m = if e3 < -300 {
+            (x * 1e300) / libm::pow(10.0, f64::from(e3 + 300))
+        } else {
+            x / libm::pow(10.0, f64::from(e3))
+        };
         let int_digits = if m >= 100.0 {
             3
         } else if m >= 10.0 {
@@ -390,6 +396,10 @@ mod tests {
             assert_eq!(e.param(), "text", "{bad:?}");
         }
         assert_eq!(parse_value("1e400").unwrap_err().code(), "overflow");
+        // Subnormal magnitudes end (they hung: 10^e3 underflowed to 0).
+        assert_eq!(format_si(5e-324, 3).unwrap(), "4.94e-324");
+        // Engineering form: the exponent a multiple of 3, 1e-310 = 100·10⁻³¹².
+        assert_eq!(format_si(-1e-310, 2).unwrap(), "-100e-312");
     }
 
     #[test]

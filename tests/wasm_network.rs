@@ -221,7 +221,7 @@ fn bad_input_throws_typed_errors() {
             5.0,
         ),
         "out_of_domain",
-        "tol_r1",
+        "tolR1",
     );
     let mc = |trials: f64, seed: f64, k: f64| {
         api::monte_carlo(

@@ -76,7 +76,7 @@ fn distortion_errors_are_thrown_with_code_and_param() {
     let e = nonlinear::feedback_distortion(100.0, 1.0, 1.0, 0.01, 1.0, "peak").unwrap_err();
     assert_eq!(
         error_code_param(e),
-        ("unknown_name".into(), "amplitude_at".into())
+        ("unknown_name".into(), "amplitudeAt".into())
     );
     let e = nonlinear::closed_loop_series(f64::NAN, 1.0, 1.0, 0.1).unwrap_err();
     assert_eq!(error_code_param(e), ("not_finite".into(), "a1".into()));
@@ -95,7 +95,7 @@ fn slew_rate_limits() {
     let e = checked(nonlinear::full_power_bandwidth(0.5e6, -1.0)).unwrap_err();
     assert_eq!(
         error_code_param(e),
-        ("out_of_domain".into(), "v_peak".into())
+        ("out_of_domain".into(), "vPeak".into())
     );
 }
 
@@ -107,7 +107,7 @@ fn thermal_noise_of_one_kilohm() {
     let err = checked(noise::thermal_noise_density(1e3, -1.0)).unwrap_err();
     assert_eq!(
         error_code_param(err),
-        ("out_of_domain".into(), "temperature_k".into())
+        ("out_of_domain".into(), "temperatureK".into())
     );
 }
 
@@ -194,7 +194,7 @@ fn noise_sweep_and_errors() {
     .unwrap_err();
     assert_eq!(
         error_code_param(e),
-        ("oscillation".into(), "extra_poles_hz".into())
+        ("oscillation".into(), "extraPolesHz".into())
     );
     let e = noise::integrated_noise(
         "inverting",
@@ -214,7 +214,7 @@ fn noise_sweep_and_errors() {
     .unwrap_err();
     assert_eq!(
         error_code_param(e),
-        ("out_of_domain".into(), "voltage_density".into())
+        ("out_of_domain".into(), "voltageDensity".into())
     );
     let e = noise::integrated_noise(
         "buffer",

@@ -39,17 +39,13 @@ const STEPS = {
     needs: ['a', 'beta', 'zi', 'zo'],
     columns: ['input_impedance', 'output_impedance'],
     run: (v) => {
-      const z = lw.impedancesWithFeedback(
-        v.topology ?? 'series-shunt',
-        v.zi,
-        0,
-        v.zo,
-        0,
-        v.a,
-        0,
-        v.beta,
-        0,
-      );
+      const z = lw.impedancesWithFeedback({
+        topology: v.topology ?? 'series-shunt',
+        ziRe: v.zi,
+        zoRe: v.zo,
+        aRe: v.a,
+        betaRe: v.beta,
+      });
       return [z.input.re, z.output.re];
     },
   },

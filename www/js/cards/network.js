@@ -74,7 +74,7 @@ const stageInputs = [
   { name: 'stage', label: 'Stage', value: 'non-inverting', choices: STAGES },
   { name: 'r1', label: 'R1', value: '1k', unit: 'Ω' },
   { name: 'r2', label: 'R2', value: '39k', unit: 'Ω' },
-  { name: 'tol', label: 'Resistor tolerance', value: '1%', unit: '' },
+  { name: 'tol', field: ['tolR1', 'tolR2'], label: 'Resistor tolerance', value: '1%', unit: '' },
   { name: 'a_min', label: 'A min', value: '60k' },
   { name: 'a_typ', label: 'A typ', value: '250k' },
   { name: 'a_max', label: 'A max', value: '1M' },
@@ -87,7 +87,6 @@ export const worstCaseCard = {
     'Extremes of the closed-loop gain over every corner of resistor tolerance and open-loop gain (op-amp stage, 1 MΩ input, 75 Ω output, 10 Hz dominant pole).',
   formula: 'corners: R1 ± tol, R2 ± tol, A ∈ {A min, A max}\nAf = A/(1 + A·β), β = R1/(R1 + R2)',
   inputs: stageInputs,
-  aliases: { tol_r1: 'tol', tol_r2: 'tol' },
   compute(v, api) {
     const w = api.worstCase(
       v.stage,
@@ -137,7 +136,6 @@ export const monteCarloCard = {
     { name: 'lower', label: 'Spec low', value: '39.8' },
     { name: 'upper', label: 'Spec high', value: '40.2' },
   ],
-  aliases: { tol_r1: 'tol', tol_r2: 'tol' },
   compute(v, api) {
     const r = api.monteCarlo(
       v.stage,
