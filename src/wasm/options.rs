@@ -242,8 +242,11 @@ fn refusal(path: &str, message: &str) -> JsValue {
     }
     if message.starts_with("unknown field") {
         let field = quoted(message).unwrap_or("");
+        // serde_path_to_error has already walked into the unknown key.
         let mut full = String::from(path);
-        push_key(&mut full, field);
+        if !(full == field || full.ends_with(&alloc::format!(".{field}"))) {
+            push_key(&mut full, field);
+        }
         let expected = detail.split_once(", ").map_or("", |(_, rest)| rest);
         let sentence = alloc::format!("{full}: unknown field; {expected}");
         return error_at(
