@@ -99,3 +99,46 @@ fn network_best_pairs_e192() -> bool {
     };
     best_pairs(black_box(&spec)).is_ok()
 }
+
+/// A transimpedance front end of our own: a 20 MHz amplifier with a further
+/// pole, input capacitances and Ro; Rf = 100 kΩ ‖ 1.5 pF, a 20 pF photodiode,
+/// an isolation resistor into a 1 nF load (11 elements, 5 nodes, 2 states).
+fn stage_circuit() -> loopwright::circuit::Circuit {
+    use loopwright::stage::{Amplifier, Spread, SpreadPoint, StageKind, StageParts};
+    loopwright::stage::Stage {
+        kind: StageKind::Transimpedance,
+        amplifier: Amplifier::from_gbw(Spread::fixed(1e6), 2e7)
+            .with_pole(8e7)
+            .with_input(Some(1e12), 4e-12, Some(1e12), 3e-12)
+            .with_ro(40.0),
+        point: SpreadPoint::Typ,
+        parts: StageParts {
+            rf: Some(1e5),
+            cf: Some(1.5e-12),
+            cs: Some(20e-12),
+            rs: Some(1e9),
+            rl: Some(2e3),
+            cl: Some(1e-9),
+            riso: Some(20.0),
+            ..StageParts::default()
+        },
+    }
+    .circuit()
+    .expect("a valid stage")
+    .circuit
+}
+
+#[divan::bench]
+fn stage_loop_gain_1000(bencher: divan::Bencher) {
+    let c = stage_circuit();
+    let f = loopwright::freq::log_frequencies(1.0, 1e9, 1000).expect("valid frequencies");
+    bencher.bench(|| {
+        loopwright::stage::loop_gain::loop_gain(black_box(&c), "U1", &f).map(|t| t.re.len())
+    });
+}
+
+#[divan::bench]
+fn stage_circuit_poles(bencher: divan::Bencher) {
+    let c = stage_circuit();
+    bencher.bench(|| loopwright::stage::poles::circuit_poles(black_box(&c)).map(|p| p.poles.len()));
+}

@@ -177,9 +177,80 @@ export const standardNeighbours = checkedCall(glue.standardNeighbours, [
 export function seriesTolerance(series) {
   return checked(glue.seriesTolerance(string(series, 'series')));
 }
-export function parseValue(text) {
-  return checked(glue.parseValue(string(text, 'text')));
+// The reader's options (src/notation): which extras a context allows besides a
+// number with SI prefix, IEC 60062 code and unit word. Passed to the wasm as flags
+// (1 percent, 2 dB) and a declared unit, so no JS object is read inside the module.
+const READ_OPTIONS = ['percent', 'decibels', 'unit'];
+
+function readArguments(options) {
+  if (options === undefined || options === null) return [0, ''];
+  if (typeof options !== 'object') {
+    throw refusal('wrong_type', 'options', 'must be an object {percent, decibels, unit}');
+  }
+  let keys;
+  let o;
+  try {
+    keys = Object.keys(options);
+    o = { percent: options.percent, decibels: options.decibels, unit: options.unit };
+  } catch (e) {
+    throw refusal('wrong_type', 'options', 'could not be read: reading it threw', e);
+  }
+  for (const key of keys) {
+    if (!READ_OPTIONS.includes(key)) {
+      throw refusal('unknown_field', key, 'unknown field; expected percent, decibels or unit');
+    }
+  }
+  const { percent = false, decibels = false, unit = '' } = o;
+  for (const [name, flag] of [
+    ['percent', percent],
+    ['decibels', decibels],
+  ]) {
+    if (typeof flag !== 'boolean') throw refusal('wrong_type', name, 'must be true or false');
+  }
+  if (unit !== null && typeof unit !== 'string') {
+    throw refusal('wrong_type', 'unit', 'must be a unit symbol such as Ω, Hz or F');
+  }
+  return [(percent ? 1 : 0) | (decibels ? 2 : 0), string(unit ?? '', 'unit')];
 }
+
+/**
+ * Read one typed value (`4k7`, `4.7 kΩ`, `100nF`, `R47`). Options (all optional):
+ * `percent` (default false) allows a trailing %, `decibels` (default false) allows
+ * dB, `unit` (default none) is the declared unit a written unit must match.
+ * Throws a LoopwrightError with `code` "syntax" and `column` for text that does
+ * not read exactly.
+ */
+export function parseValue(text, options) {
+  string(text, 'text');
+  if (options === undefined) return checked(glue.parseValue(text));
+  const [flags, unit] = readArguments(options);
+  return checked(glue.readValue(text, flags, unit));
+}
+
+export function readValue(text, flags, unit) {
+  return checked(glue.readValue(string(text, 'text'), count(flags, 'flags'), string(unit, 'unit')));
+}
+
+/** Read a list of values separated by `,` or `;` into a Float64Array; options as parseValue. */
+export function parseList(text, options) {
+  string(text, 'text');
+  const [flags, unit] = readArguments(options);
+  return finite(glue.readList(text, flags, unit), 'result');
+}
+export const formatValue = checkedCall(glue.formatValue, [
+  ['value', N],
+  ['unit', S],
+  ['digits', C],
+]);
+export const formatFull = checkedCall(glue.formatFull, [
+  ['value', N],
+  ['unit', S],
+]);
+export const formatPlain = checkedCall(glue.formatPlain, [
+  ['value', N],
+  ['unit', S],
+  ['digits', C],
+]);
 export const formatSi = checkedCall(glue.formatSi, [
   ['value', N],
   ['digits', C],

@@ -6,7 +6,7 @@
 // glue (renamed loopwright_glue.js).
 
 import * as glue from './loopwright_glue.js';
-import { finite, number, options, refusal, string } from './guard.js';
+import { finite, MAX_TEXT, number, options, refusal, string } from './guard.js';
 
 export * from './lite.js';
 export { default, initSync } from './loopwright_glue.js';
@@ -40,6 +40,26 @@ export const circuitAsymptoticGain = call(glue.circuitAsymptoticGain, [['', opti
 export const circuitAsymptoticGainCurrent = call(glue.circuitAsymptoticGainCurrent, [
   ['', options],
 ]);
+
+/**
+ * The batch tool's reader and writer (src/batch): CSV chunks in, result CSV out.
+ * `compute` is a string or undefined; each chunk a Uint8Array of at most 16 MiB.
+ */
+export class BatchRun extends glue.BatchRun {
+  constructor(compute) {
+    if (compute !== undefined && compute !== null) string(compute, 'compute');
+    super(compute ?? undefined);
+  }
+  feed(chunk) {
+    if (!(chunk instanceof Uint8Array)) {
+      throw refusal('wrong_type', 'chunk', 'must be a Uint8Array');
+    }
+    if (chunk.length > MAX_TEXT) {
+      throw refusal('too_large', 'chunk', `too large; the limit is ${MAX_TEXT}`);
+    }
+    return super.feed(chunk);
+  }
+}
 
 /** The function catalog as JSON text: `JSON.parse` gives a `FunctionCatalog`. */
 export function functionCatalog() {

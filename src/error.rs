@@ -54,6 +54,13 @@ pub enum Error {
         param: &'static str,
         reason: &'static str,
     },
+    /// Typed text that does not read exactly as a value (see [`crate::notation`]);
+    /// `column` is the 1-based character position where reading stopped.
+    Syntax {
+        param: &'static str,
+        column: u32,
+        reason: &'static str,
+    },
     /// A value of the wrong kind (a string where a number is expected, a number
     /// where a list is expected, …); `expected` says what is ("a number").
     WrongType {
@@ -73,7 +80,7 @@ pub enum Error {
 impl Error {
     /// A stable, machine-readable code: `not_finite`, `out_of_domain`,
     /// `unreachable`, `oscillation`, `unknown_name`, `too_large`, `overflow`,
-    /// `no_convergence`, `singular`, `wrong_type`, `missing`, `unknown_field`
+    /// `no_convergence`, `singular`, `syntax`, `wrong_type`, `missing`, `unknown_field`
     /// (all of them, in this order, in [`Error::CODES`]).
     pub const fn code(&self) -> &'static str {
         match self {
@@ -86,6 +93,7 @@ impl Error {
             Error::Overflow { .. } => "overflow",
             Error::NoConvergence { .. } => "no_convergence",
             Error::Singular { .. } => "singular",
+            Error::Syntax { .. } => "syntax",
             Error::WrongType { .. } => "wrong_type",
             Error::Missing { .. } => "missing",
             Error::UnknownField { .. } => "unknown_field",
@@ -94,7 +102,7 @@ impl Error {
 
     /// Every code [`Error::code`] can give, for bindings that list them (the
     /// TypeScript `ErrorCode` type is checked against this list).
-    pub const CODES: [&'static str; 12] = [
+    pub const CODES: [&'static str; 13] = [
         "not_finite",
         "out_of_domain",
         "unreachable",
@@ -104,6 +112,7 @@ impl Error {
         "overflow",
         "no_convergence",
         "singular",
+        "syntax",
         "wrong_type",
         "missing",
         "unknown_field",
@@ -137,6 +146,11 @@ impl Error {
                 param: name,
                 reason,
             },
+            Error::Syntax { column, reason, .. } => Error::Syntax {
+                param: name,
+                column,
+                reason,
+            },
             Error::WrongType { expected, .. } => Error::WrongType {
                 param: name,
                 expected,
@@ -146,6 +160,15 @@ impl Error {
                 param: name,
                 expected,
             },
+        }
+    }
+
+    /// The 1-based character column of a [`Error::Syntax`] error, `None` for the
+    /// other kinds.
+    pub const fn column(&self) -> Option<u32> {
+        match *self {
+            Error::Syntax { column, .. } => Some(column),
+            _ => None,
         }
     }
 
@@ -161,6 +184,7 @@ impl Error {
             | Error::Overflow { param }
             | Error::NoConvergence { param, .. }
             | Error::Singular { param, .. }
+            | Error::Syntax { param, .. }
             | Error::WrongType { param, .. }
             | Error::Missing { param }
             | Error::UnknownField { param, .. } => param,
@@ -193,6 +217,7 @@ impl fmt::Display for Reason<'_> {
             Error::Overflow { .. } => f.write_str("the result overflows the floating-point range"),
             Error::NoConvergence { reason, .. } => write!(f, "did not converge: {reason}"),
             Error::Singular { reason, .. } => write!(f, "singular: {reason}"),
+            Error::Syntax { column, reason, .. } => write!(f, "column {column}: {reason}"),
             Error::WrongType { expected, .. } => write!(f, "must be {expected}"),
             Error::Missing { .. } => f.write_str("is required but missing"),
             Error::UnknownField { expected, .. } => write!(f, "unknown field; expected one of {expected}"),
@@ -253,6 +278,11 @@ mod tests {
             },
             Error::Singular {
                 param: "p",
+                reason: "r",
+            },
+            Error::Syntax {
+                param: "p",
+                column: 1,
                 reason: "r",
             },
             Error::WrongType {

@@ -26,18 +26,21 @@
 
 extern crate alloc;
 
+pub mod batch;
 pub mod check;
 pub mod circuit;
+pub mod csv;
+pub mod distortion;
 pub mod error;
 pub mod feedback;
 mod float;
 pub mod freq;
 pub mod network;
 pub mod noise;
-pub mod nonlinear;
 pub mod notation;
 pub mod sheet;
 mod sort;
+pub mod stage;
 
 #[cfg(feature = "wasm-lite")]
 pub mod wasm;

@@ -104,7 +104,7 @@ fn closed_loop_gain_at_crossover_is_about_1_3_at_45_and_1_0_at_60_degrees() {
 
 #[test]
 fn forty_five_degrees_of_margin_peaks_by_about_2_4_db() {
-    // Common practice, no source (DESIGN.md section 5 quotes it): 45° of phase
+    // Common practice, no source (a trade figure quoted widely): 45° of phase
     // margin gives about 2.4 dB of closed-loop peaking in a two-pole loop with a
     // large loop gain.
     let a = TransferModel::constant(1e5).pole(10.0).pole(1e5);

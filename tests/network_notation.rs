@@ -36,6 +36,6 @@ proptest! {
         let text = format!("{value} k{unit}");
         let p = parse_value_with_unit(&text).unwrap();
         prop_assert_eq!(p.value, f64::from(value) * 1e3);
-        prop_assert_eq!(p.unit, unit);
+        prop_assert_eq!(p.unit, loopwright::notation::Unit::from_word(unit));
     }
 }

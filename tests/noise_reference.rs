@@ -1,4 +1,4 @@
-//! The noise area against scipy (tests/reference/nonlinear_noise.py): source
+//! The noise area against scipy (tests/reference/noise_stage.py): source
 //! densities, output density after the closed-loop roll-off, rms output and
 //! input-referred noise by scipy.integrate.quad, the noise bandwidth, the −3 dB
 //! bandwidth, and refusal of the loops numpy.roots finds unstable.
@@ -71,7 +71,7 @@ fn rel(a: f64, b: f64) -> f64 {
 #[test]
 fn stage_noise_matches_scipy() {
     let path = format!(
-        "{}/tests/reference/data/nonlinear_noise.json",
+        "{}/tests/reference/data/noise_stage.json",
         env!("CARGO_MANIFEST_DIR")
     );
     let data: File = serde_json::from_str(&std::fs::read_to_string(path).unwrap()).unwrap();

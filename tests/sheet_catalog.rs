@@ -120,7 +120,10 @@ fn catalog_json_lists_every_function_with_its_parts() {
     let round = list.iter().find(|e| e["name"] == "ROUND").unwrap();
     assert_eq!(round["params"][1]["default"], 0.0);
     assert_eq!(round["params"][1]["optional"], true);
-    let ceiling = list.iter().find(|e| e["name"] == "FB.CEILING").unwrap();
+    let ceiling = list
+        .iter()
+        .find(|e| e["name"] == "FEEDBACK.CEILING")
+        .unwrap();
     assert_eq!(
         ceiling["result"],
         "row of 2: closed-loop gain A/D; beta (D − 1)/A (as a; reciprocal of a's unit)"
@@ -149,53 +152,53 @@ fn the_required_functions_are_present() {
         "DB.POWER",
         "DB.VOLTAGERATIO",
         "DB.POWERRATIO",
-        "FB.GAIN",
-        "FB.LOOPGAIN",
-        "FB.AMOUNT",
-        "FB.AMOUNTDB",
-        "FB.SENSITIVITY",
-        "FB.BETA",
-        "FB.MINGAIN",
-        "FB.CEILING",
-        "FB.SPREAD",
-        "FB.ZIN",
-        "FB.ZOUT",
-        "FB.PHASOR",
-        "FB.SUMMARY",
-        "FB.IMPEDANCES",
-        "FB.SENSE",
-        "FB.GAINUNIT",
-        "FB.BETAUNIT",
-        // The other catalog areas.
-        "LOOP.PM",
-        "LOOP.GM",
-        "LOOP.BANDWIDTH",
-        "LOOP.PEAKING",
-        "LOOP.STEP",
-        "LOOP.POLES",
-        "LOOP.EXTEND",
-        "LOOP.LOWCUT",
-        "LOOP.GBW",
-        "LOOP.TWOPOLE",
-        "LOOP.DOMINANT",
-        "LOOP.MAXBETA",
-        "RES.NEAREST",
-        "RES.UP",
-        "RES.DOWN",
-        "RES.TOLERANCE",
-        "RES.PAIR",
-        "RES.WORSTCASE",
-        "RES.MONTECARLO",
-        "RES.YIELD",
-        "CKT.GAIN",
-        "CKT.RIN",
-        "CKT.ROUT",
-        "CKT.IDEAL",
-        "DIST.SERIES",
-        "DIST.HD",
-        "DIST.FPBW",
-        "DIST.MAXAMP",
-        "DIST.SLEWRATE",
+        "FEEDBACK.GAIN",
+        "FEEDBACK.LOOPGAIN",
+        "FEEDBACK.AMOUNT",
+        "FEEDBACK.AMOUNTDB",
+        "FEEDBACK.SENSITIVITY",
+        "FEEDBACK.BETA",
+        "FEEDBACK.MINGAIN",
+        "FEEDBACK.CEILING",
+        "FEEDBACK.SPREAD",
+        "FEEDBACK.ZIN",
+        "FEEDBACK.ZOUT",
+        "FEEDBACK.PHASOR",
+        "FEEDBACK.SUMMARY",
+        "FEEDBACK.IMPEDANCES",
+        "FEEDBACK.SENSE",
+        "FEEDBACK.GAINUNIT",
+        "FEEDBACK.BETAUNIT",
+        // The other areas.
+        "FREQ.PM",
+        "FREQ.GM",
+        "FREQ.BANDWIDTH",
+        "FREQ.PEAKING",
+        "FREQ.STEP",
+        "FREQ.POLES",
+        "FREQ.EXTEND",
+        "FREQ.LOWCUT",
+        "FREQ.GBW",
+        "FREQ.TWOPOLE",
+        "FREQ.DOMINANT",
+        "FREQ.MAXBETA",
+        "NETWORK.NEAREST",
+        "NETWORK.UP",
+        "NETWORK.DOWN",
+        "NETWORK.TOLERANCE",
+        "NETWORK.PAIR",
+        "NETWORK.WORSTCASE",
+        "NETWORK.MONTECARLO",
+        "NETWORK.YIELD",
+        "CIRCUIT.GAIN",
+        "CIRCUIT.RIN",
+        "CIRCUIT.ROUT",
+        "CIRCUIT.IDEAL",
+        "DISTORTION.SERIES",
+        "DISTORTION.HD",
+        "DISTORTION.FPBW",
+        "DISTORTION.MAXAMP",
+        "DISTORTION.SLEWRATE",
         "NOISE.THERMAL",
         "NOISE.STAGE",
         "NOISE.TOTAL",
@@ -209,9 +212,9 @@ fn feedback_functions_agree_with_the_core() {
     // The worksheet is a thin layer: the same inputs give the same f64 as the core.
     use loopwright::feedback as fb;
     let mut s = Sheet::new();
-    s.set("A1", "=FB.GAIN(2e4; 0.05)").unwrap();
-    s.set("A2", "=FB.BETA(-2e4; -10)").unwrap();
-    s.set("A3", "=FB.ZOUT(\"shunt-series\"; 50; 990; 0.1)")
+    s.set("A1", "=FEEDBACK.GAIN(2e4; 0.05)").unwrap();
+    s.set("A2", "=FEEDBACK.BETA(-2e4; -10)").unwrap();
+    s.set("A3", "=FEEDBACK.ZOUT(\"shunt-series\"; 50; 990; 0.1)")
         .unwrap();
     assert_eq!(
         as_number(&s.value("A1").unwrap()),
@@ -225,18 +228,20 @@ fn feedback_functions_agree_with_the_core() {
         fb::resistances_with_feedback(fb::Topology::ShuntSeries, 0.0, 50.0, 990.0, 0.1).unwrap();
     assert_eq!(as_number(&s.value("A3").unwrap()), Some(rout));
     // Core errors arrive as error values carrying the core's sentence.
-    s.set("A4", "=FB.GAIN(-50; 0.02)").unwrap();
+    s.set("A4", "=FEEDBACK.GAIN(-50; 0.02)").unwrap();
     match s.value("A4").unwrap() {
         Value::Error(e) => assert!(
-            e.detail.starts_with("FB.GAIN: beta: the return difference"),
+            e.detail
+                .starts_with("FEEDBACK.GAIN: beta: the return difference"),
             "{}",
             e.detail
         ),
         v => panic!("{v:?}"),
     }
-    s.set("A5", "=FB.ZIN(\"sideways\"; 1; 2; 3)").unwrap();
+    s.set("A5", "=FEEDBACK.ZIN(\"sideways\"; 1; 2; 3)").unwrap();
     assert_eq!(s.value("A5").unwrap().display(), "#VALUE!");
-    s.set("A6", "=FB.SUMMARY(\"voltage\"; 1000; 0)").unwrap();
+    s.set("A6", "=FEEDBACK.SUMMARY(\"voltage\"; 1000; 0)")
+        .unwrap();
     assert_eq!(s.shown(CellRef::parse("F6").unwrap()).display(), "#N/A");
 }
 

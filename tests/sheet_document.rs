@@ -23,9 +23,9 @@ fn every_feature() -> Sheet {
         ("A6", "10 kHz"),
         ("A7", "-3 dB"),
         ("A8", "50%"),
-        ("B1", "=FB.GAIN(gain; beta)"),
-        ("B2", "=FB.CEILING(A1; 100)"),
-        ("B3", "=FB.SPREAD(beta; 50k; 100k; 200k)"),
+        ("B1", "=FEEDBACK.GAIN(gain; beta)"),
+        ("B2", "=FEEDBACK.CEILING(A1; 100)"),
+        ("B3", "=FEEDBACK.SPREAD(beta; 50k; 100k; 200k)"),
         ("C3", "blocks the spill of B3"),
         ("B4", "=SUM($A$1:A2; A3) & \" Ω\""),
         ("B5", "=IF(A2>0.005; \"enough\"; \"low\")"),
@@ -174,4 +174,55 @@ fn tsv_round_trip_between_ranges() {
     let before = s.save_document();
     assert!(s.paste_tsv(c("XFD1"), "1\t2").is_err());
     assert_eq!(s.save_document(), before);
+}
+
+#[test]
+fn exports_neutralise_formula_injection_and_keep_numbers() {
+    // Formula injection (common practice, no source): text beginning with =, +, -,
+    // @, tab or CR is written with an apostrophe in front; numbers, negative ones
+    // too, stay numbers. RFC 4180 section 2, rule 7: quotes inside are doubled.
+    let mut s = Sheet::new();
+    s.set("A1", "'=HYPERLINK(\"http://x\";\"y\")").unwrap();
+    s.set("B1", "-2.5").unwrap();
+    s.set("C1", "'-2+3").unwrap();
+    s.set("D1", "'@SUM(A1)").unwrap();
+    s.set("E1", "=-1/4").unwrap();
+    assert_eq!(
+        to_csv(&s),
+        "\"'=HYPERLINK(\"\"http://x\"\";\"\"y\"\")\",-2.5,'-2+3,'@SUM(A1),-0.25\r\n"
+    );
+    let tsv = range_to_tsv(&s, Range::parse("A1:E1").unwrap()).unwrap();
+    assert_eq!(
+        tsv,
+        "\"'=HYPERLINK(\"\"http://x\"\";\"\"y\"\")\"\t-2.5\t'-2+3\t'@SUM(A1)\t-0.25\n"
+    );
+    // Pasted back into a sheet, the apostrophe makes the same text cells again.
+    s.paste_tsv(c("A3"), &tsv).unwrap();
+    for col in ["A", "C", "D"] {
+        assert_eq!(
+            s.shown(c(&format!("{col}3"))),
+            s.shown(c(&format!("{col}1")))
+        );
+    }
+    assert_eq!(s.shown(c("B3")), Value::Number(-2.5, None));
+}
+
+#[test]
+fn a_refused_paste_leaves_the_sheet_as_it_was() {
+    use loopwright::sheet::document::{MAX_PASTE_BYTES, MAX_PASTE_CELLS};
+    let mut s = Sheet::new();
+    s.set("A1", "4k7").unwrap();
+    s.set("A2", "=A1*2").unwrap();
+    let before = s.save_document();
+    for (text, param) in [
+        ("\t".repeat(MAX_PASTE_BYTES + 1), "text"),
+        // One row of 100 001 fields: longer than a row may be (csv::MAX_FIELDS).
+        ("\t".repeat(MAX_PASTE_CELLS), "text"),
+        ("1\n".repeat(MAX_PASTE_CELLS + 1), "range"),
+    ] {
+        let e = s.paste_tsv(c("A3"), &text).unwrap_err();
+        assert_eq!((e.code(), e.param()), ("too_large", param));
+        assert_eq!(s.save_document(), before);
+        assert_eq!(s.shown(c("A2")), Value::Number(9400.0, None));
+    }
 }

@@ -1,5 +1,5 @@
-//! The worksheet functions of the frequency (LOOP.), network (RES.), circuit
-//! (CKT.), distortion (DIST.) and noise (NOISE.) areas used the way a sheet uses
+//! The worksheet functions of the frequency (FREQ.), network (NETWORK.), circuit
+//! (CIRCUIT.), distortion (DISTORTION.) and noise (NOISE.) areas used the way a sheet uses
 //! them: arguments from other cells and ranges, errors in cells, several results
 //! spilling into neighbouring cells, and recalculation after an edit.
 
@@ -41,18 +41,18 @@ fn a_negative_resistance_in_a_cell_is_an_error_value_naming_the_parameter() {
     // under tolerance: each explanation names the parameter the cell fills.
     s.set(
         "B2",
-        "=CKT.RIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; A1)",
+        "=CIRCUIT.RIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; A1)",
     )
     .unwrap();
     let (kind, detail) = error(&s, "B2");
     assert_eq!(kind, ErrorKind::Num);
-    assert!(detail.starts_with("CKT.RIN: rl: "), "{detail}");
+    assert!(detail.starts_with("CIRCUIT.RIN: rl: "), "{detail}");
     s.set(
         "B3",
-        "=RES.WORSTCASE(\"inverting\"; \"gain\"; 1k; A1; 1%; 50k; 100k; 200k; 1M; 50; 10)",
+        "=NETWORK.WORSTCASE(\"inverting\"; \"gain\"; 1k; A1; 1%; 50k; 100k; 200k; 1M; 50; 10)",
     )
     .unwrap();
-    assert!(error(&s, "B3").1.starts_with("RES.WORSTCASE: r2: "));
+    assert!(error(&s, "B3").1.starts_with("NETWORK.WORSTCASE: r2: "));
     s.set(
         "B4",
         "=NOISE.STAGE(\"non-inverting\"; 9k; 1k; A1; 4n; 0; 0; 0; 300; 1k)",
@@ -75,19 +75,19 @@ fn a_negative_resistance_in_a_cell_is_an_error_value_naming_the_parameter() {
 fn errors_name_the_worksheet_parameter_not_the_core_field() {
     let mut s = Sheet::new();
     // A negative pole frequency in the pole list (the core calls it a.poles_hz).
-    s.set("A1", "=LOOP.PM(1000; 0.1; 1k; -100k)").unwrap();
+    s.set("A1", "=FREQ.PM(1000; 0.1; 1k; -100k)").unwrap();
     assert_eq!(
         error(&s, "A1"),
         (
             ErrorKind::Num,
-            "LOOP.PM: poles: must be greater than zero".into()
+            "FREQ.PM: poles: must be greater than zero".into()
         )
     );
     // A target phase margin out of range (the core calls it target_pm_deg).
-    s.set("A2", "=LOOP.DOMINANT(100k; 1; 200; 1 MHz)").unwrap();
-    assert!(error(&s, "A2").1.starts_with("LOOP.DOMINANT: target_pm: "));
+    s.set("A2", "=FREQ.DOMINANT(100k; 1; 200; 1 MHz)").unwrap();
+    assert!(error(&s, "A2").1.starts_with("FREQ.DOMINANT: target_pm: "));
     // An unknown word is #VALUE! and lists the accepted ones.
-    s.set("A3", "=DIST.HD(1000; 200; -50; 0.099; 1; \"middle\")")
+    s.set("A3", "=DISTORTION.HD(1000; 200; -50; 0.099; 1; \"middle\")")
         .unwrap();
     let (kind, detail) = error(&s, "A3");
     assert_eq!(kind, ErrorKind::Value);
@@ -95,24 +95,24 @@ fn errors_name_the_worksheet_parameter_not_the_core_field() {
         detail.contains("at:") && detail.contains("input, output"),
         "{detail}"
     );
-    s.set("A4", "=RES.NEAREST(5k; \"E13\")").unwrap();
+    s.set("A4", "=NETWORK.NEAREST(5k; \"E13\")").unwrap();
     assert_eq!(error(&s, "A4").0, ErrorKind::Value);
     // A value written in the wrong unit: a frequency given in volts.
-    s.set("A5", "=LOOP.EXTEND(10 V; 100k; 0.01)").unwrap();
+    s.set("A5", "=FREQ.EXTEND(10 V; 100k; 0.01)").unwrap();
     assert_eq!(
         error(&s, "A5"),
         (
             ErrorKind::Value,
-            "LOOP.EXTEND: f_h: given in V but the parameter is in Hz".into()
+            "FREQ.EXTEND: f_h: given in V but the parameter is in Hz".into()
         )
     );
     // An error value in an argument passes through unchanged.
     s.set("B1", "=1/0").unwrap();
-    s.set("A6", "=DIST.FPBW(B1; 10)").unwrap();
+    s.set("A6", "=DISTORTION.FPBW(B1; 10)").unwrap();
     assert_eq!(error(&s, "A6").0, ErrorKind::DivZero);
     // Text among the poles of a range.
     s.set("C1", "'ten").unwrap();
-    s.set("A7", "=LOOP.BANDWIDTH(1000; 0.1; C1:C2)").unwrap();
+    s.set("A7", "=FREQ.BANDWIDTH(1000; 0.1; C1:C2)").unwrap();
     assert_eq!(error(&s, "A7").0, ErrorKind::Value);
 }
 
@@ -122,7 +122,7 @@ fn closed_loop_poles_spill_one_row_per_pole_into_neighbouring_cells() {
     // Poles in a column with an empty cell between them (skipped).
     s.set("A1", "1 kHz").unwrap();
     s.set("A3", "100 kHz").unwrap();
-    s.set("C1", "=LOOP.POLES(1000; 0.1; A1:A3)").unwrap();
+    s.set("C1", "=FREQ.POLES(1000; 0.1; A1:A3)").unwrap();
     let r = s.spill_range(cell("C1")).expect("the poles spill");
     assert_eq!((r.rows(), r.cols()), (2, 4));
     // s² + (f1 + f2)s + (1 + T0)f1f2 = 0 in Hz: σ = −(f1 + f2)/2 = −50.5 kHz for
@@ -153,7 +153,7 @@ fn closed_loop_poles_spill_one_row_per_pole_into_neighbouring_cells() {
 
     // A pole with Q below 1/2 splits into two real poles: ζ = 1 for both.
     s.set("A1", "1 kHz").unwrap();
-    s.set("C4", "=LOOP.POLES(1; 1; 1k; 100k)").unwrap();
+    s.set("C4", "=FREQ.POLES(1; 1; 1k; 100k)").unwrap();
     assert_eq!(num(&s, "F4"), 1.0);
     assert_eq!(num(&s, "F5"), 1.0);
 }
@@ -163,7 +163,7 @@ fn ranked_pairs_spill_and_a_filled_cell_in_the_way_blocks_them() {
     let mut s = Sheet::new();
     s.set(
         "A1",
-        "=RES.PAIR(\"non-inverting\"; 10; \"E24\"; 10k; 100k; 4)",
+        "=NETWORK.PAIR(\"non-inverting\"; 10; \"E24\"; 10k; 100k; 4)",
     )
     .unwrap();
     let r = s.spill_range(cell("A1")).unwrap();
@@ -195,7 +195,7 @@ fn several_results_of_each_area_land_in_order() {
     let mut s = Sheet::new();
     // Margins, two poles, T0 = 100 (closed form in tests/reference/sheet_catalog.py):
     // the crossover cell holds Hz and the phase cell degrees; reading them back.
-    s.set("A1", "=LOOP.PM(1000; 0.1; 1k; 100k)").unwrap();
+    s.set("A1", "=FREQ.PM(1000; 0.1; 1k; 100k)").unwrap();
     let fc = num(&s, "B1");
     // |T(fc)| = 1 at the crossover, by definition.
     let t = 100.0 / ((1.0 + (fc / 1e3).powi(2)) * (1.0 + (fc / 1e5).powi(2))).sqrt();
@@ -205,14 +205,15 @@ fn several_results_of_each_area_land_in_order() {
     assert!(close(num(&s, "A1"), pm, 1e-10));
 
     // Without a −180° crossing (one pole) there is no gain margin: #N/A, not a number.
-    s.set("A2", "=LOOP.GM(100k; 0.01; 10 Hz)").unwrap();
+    s.set("A2", "=FREQ.GM(100k; 0.01; 10 Hz)").unwrap();
     assert_eq!(error(&s, "A2").0, ErrorKind::NotAvailable);
     // A loop gain below 1 everywhere has no crossover: no phase margin.
-    s.set("A3", "=LOOP.PM(0.5; 1; 1k)").unwrap();
+    s.set("A3", "=FREQ.PM(0.5; 1; 1k)").unwrap();
     assert_eq!(error(&s, "A3").0, ErrorKind::NotAvailable);
 
     // The closed-loop series: b1 = a1/D, b2 = a2/D³, b3 = (a3·D − 2·a2²·β)/D⁵, D = 100.
-    s.set("A4", "=DIST.SERIES(1000; 200; -50; 0.099)").unwrap();
+    s.set("A4", "=DISTORTION.SERIES(1000; 200; -50; 0.099)")
+        .unwrap();
     assert!(close(num(&s, "A4"), 10.0, 1e-15));
     assert!(close(num(&s, "B4"), 200.0 / 1e6, 1e-15));
     assert!(close(
@@ -224,7 +225,7 @@ fn several_results_of_each_area_land_in_order() {
     // The circuit: exact, two-port and their relative error, in that order.
     s.set(
         "A5",
-        "=CKT.GAIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",
+        "=CIRCUIT.GAIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",
     )
     .unwrap();
     let (exact, two_port, err) = (num(&s, "A5"), num(&s, "B5"), num(&s, "C5"));
@@ -239,12 +240,21 @@ fn several_results_of_each_area_land_in_order() {
 fn monte_carlo_is_reproducible_from_its_seed() {
     let stage = "\"inverting\"; \"gain\"; 1k; 10k; 1%; 50k; 100k; 200k; 1M; 50; 10 Hz; 20000";
     let mut s = Sheet::new();
-    s.set("A1", &format!("=RES.MONTECARLO({stage}; 7; \"normal\")"))
-        .unwrap();
-    s.set("A2", &format!("=RES.MONTECARLO({stage}; 7; \"normal\")"))
-        .unwrap();
-    s.set("A3", &format!("=RES.MONTECARLO({stage}; 8; \"normal\")"))
-        .unwrap();
+    s.set(
+        "A1",
+        &format!("=NETWORK.MONTECARLO({stage}; 7; \"normal\")"),
+    )
+    .unwrap();
+    s.set(
+        "A2",
+        &format!("=NETWORK.MONTECARLO({stage}; 7; \"normal\")"),
+    )
+    .unwrap();
+    s.set(
+        "A3",
+        &format!("=NETWORK.MONTECARLO({stage}; 8; \"normal\")"),
+    )
+    .unwrap();
     let row = |r: u32| -> Vec<f64> {
         (0..9)
             .map(
@@ -266,7 +276,7 @@ fn monte_carlo_is_reproducible_from_its_seed() {
     // The yield of a window around the median is a fraction in (0, 1).
     s.set(
         "B10",
-        &format!("=RES.YIELD({stage}; 7; \"normal\"; -10.05; -9.95)"),
+        &format!("=NETWORK.YIELD({stage}; 7; \"normal\"; -10.05; -9.95)"),
     )
     .unwrap();
     let y = num(&s, "B10");
@@ -281,7 +291,7 @@ fn the_worksheet_gives_the_core_results_unchanged() {
         integrated_output_noise, AmplifierNoise, ClosedLoopResponse, Stage, StageKind,
     };
     let mut s = Sheet::new();
-    s.set("A1", "=LOOP.PM(2e5; 0.05; 5; 200k; 3 MHz)").unwrap();
+    s.set("A1", "=FREQ.PM(2e5; 0.05; 5; 200k; 3 MHz)").unwrap();
     let l = FeedbackLoop::with_constant_beta(
         TransferModel::constant(2e5).pole(5.0).pole(2e5).pole(3e6),
         0.05,
@@ -291,7 +301,7 @@ fn the_worksheet_gives_the_core_results_unchanged() {
     assert_eq!(num(&s, "A1"), m.phase_margin_deg.unwrap());
     assert_eq!(num(&s, "B1"), m.crossover_hz.unwrap());
 
-    s.set("A2", "=RES.UP(4.99k; \"E24\")").unwrap();
+    s.set("A2", "=NETWORK.UP(4.99k; \"E24\")").unwrap();
     assert_eq!(
         num(&s, "A2"),
         standard_value(Series::E24, 4990.0, Rounding::Up).unwrap()

@@ -57,11 +57,11 @@ const TOKENS: &[&str] = &[
     "IF(",
     "ROUND(",
     "AND(",
-    "FB.GAIN(",
-    "FB.SPREAD(",
-    "FB.SUMMARY(",
+    "FEEDBACK.GAIN(",
+    "FEEDBACK.SPREAD(",
+    "FEEDBACK.SUMMARY(",
     "DB.VOLTAGE(",
-    "FB.CEILING(",
+    "FEEDBACK.CEILING(",
     "SQRT(",
     "10 kHz",
     "1MΩ",
@@ -71,13 +71,13 @@ const TOKENS: &[&str] = &[
     "PI()",
     "2^1024",
     // The other areas' functions (a spill of several rows, ranked candidates, words).
-    "LOOP.PM(",
-    "LOOP.POLES(",
-    "LOOP.TWOPOLE(",
-    "RES.NEAREST(",
-    "RES.PAIR(",
-    "CKT.GAIN(",
-    "DIST.HD(",
+    "FREQ.PM(",
+    "FREQ.POLES(",
+    "FREQ.TWOPOLE(",
+    "NETWORK.NEAREST(",
+    "NETWORK.PAIR(",
+    "CIRCUIT.GAIN(",
+    "DISTORTION.HD(",
     "NOISE.STAGE(",
     "\"E24\"",
     "\"non-inverting\"",
@@ -218,7 +218,7 @@ fn huge_ranges_and_spills_are_refused_not_computed() {
     s.set("A2", "=B1:XFD1048576").unwrap();
     assert!(s.shown(CellRef::parse("A2").unwrap()).is_error());
     // A spill that would pass the sheet's edge.
-    s.set("XFD5", "=FB.CEILING(10; 2)").unwrap();
+    s.set("XFD5", "=FEEDBACK.CEILING(10; 2)").unwrap();
     assert!(
         matches!(s.shown(CellRef::parse("XFD5").unwrap()), Value::Error(e) if e.kind == ErrorKind::Blocked)
     );
@@ -227,13 +227,13 @@ fn huge_ranges_and_spills_are_refused_not_computed() {
 /// Inputs that spill over neighbours in the 3×3 block (or are blocked by them, or
 /// read what they cover). Placed in A1, A2, B1 or B2, so spills also compete.
 const SPILLERS: &[&str] = &[
-    "=FB.CEILING(A2*1000+1000; 100)",
+    "=FEEDBACK.CEILING(A2*1000+1000; 100)",
     "=B2:C3*2",
     "=A2:A3+1",
-    "=FB.SUMMARY(\"series-shunt\"; 1000; B3)",
-    "=FB.PHASOR(100; B2; 0.01; 0)",
-    "=LOOP.POLES(A2*1000+1000; 0.1; 1k; B3+1)",
-    "=RES.PAIR(\"non-inverting\"; B3+2; \"E12\"; 1k; 100k; 2)",
+    "=FEEDBACK.SUMMARY(\"series-shunt\"; 1000; B3)",
+    "=FEEDBACK.PHASOR(100; B2; 0.01; 0)",
+    "=FREQ.POLES(A2*1000+1000; 0.1; 1k; B3+1)",
+    "=NETWORK.PAIR(\"non-inverting\"; B3+2; \"E12\"; 1k; 100k; 2)",
     "7",
     "",
 ];

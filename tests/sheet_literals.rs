@@ -143,11 +143,11 @@ fn declared_units_are_checked() {
     let mut s = Sheet::new();
     s.set("A1", "1MΩ").unwrap();
     s.set("A2", "1 V").unwrap();
-    s.set("B1", "=FB.ZIN(\"series-shunt\"; A1; 100k; 0.01)")
+    s.set("B1", "=FEEDBACK.ZIN(\"series-shunt\"; A1; 100k; 0.01)")
         .unwrap();
-    s.set("B2", "=FB.ZIN(\"series-shunt\"; A2; 100k; 0.01)")
+    s.set("B2", "=FEEDBACK.ZIN(\"series-shunt\"; A2; 100k; 0.01)")
         .unwrap();
-    s.set("B3", "=FB.ZIN(\"series-shunt\"; 1000000; 100k; 0.01)")
+    s.set("B3", "=FEEDBACK.ZIN(\"series-shunt\"; 1000000; 100k; 0.01)")
         .unwrap();
     // 1 MΩ · (1 + 100000·0.01) = 1.001 GΩ.
     assert_eq!(
@@ -181,4 +181,44 @@ fn agrees_with_the_network_notation_parser() {
         let network = parse_value(text).unwrap_or_else(|e| panic!("network refuses {text}: {e}"));
         assert_eq!(cell(text), network, "{text}");
     }
+}
+
+#[test]
+fn function_results_carry_the_catalog_units() {
+    // The catalog states FREQ.STEP's result units as "%; s; s" and FREQ.GBW's as
+    // "Hz": the cells carry s and Hz (overshoot in % is a plain number).
+    let mut s = Sheet::new();
+    s.set("A1", "=FREQ.STEP(100k; 0.01; 2%; 10 Hz)").unwrap();
+    s.set("A2", "=FREQ.GBW(100k; 10 Hz)").unwrap();
+    assert!(matches!(s.value("A1").unwrap(), Value::Number(_, None)));
+    assert!(matches!(
+        s.value("B1").unwrap(),
+        Value::Number(_, Some(Unit::Second))
+    ));
+    assert!(matches!(
+        s.value("C1").unwrap(),
+        Value::Number(_, Some(Unit::Second))
+    ));
+    assert!(matches!(
+        s.value("A2").unwrap(),
+        Value::Number(_, Some(Unit::Hertz))
+    ));
+}
+
+#[test]
+fn a_cell_that_begins_like_a_number_must_read_as_one() {
+    // docs/notation.md: 4k7k is an error with its column, not text; words stay text.
+    let mut s = Sheet::new();
+    s.set("A1", "4k7k").unwrap();
+    s.set("A2", "gain").unwrap();
+    s.set("A3", "'4k7k").unwrap();
+    match s.value("A1").unwrap() {
+        Value::Error(e) => {
+            assert_eq!(e.kind, ErrorKind::Syntax);
+            assert!(e.detail.starts_with("column 4:"), "{}", e.detail);
+        }
+        v => panic!("{v:?}"),
+    }
+    assert_eq!(s.value("A2").unwrap(), Value::Text("gain".into()));
+    assert_eq!(s.value("A3").unwrap(), Value::Text("4k7k".into()));
 }

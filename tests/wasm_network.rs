@@ -200,7 +200,7 @@ fn bad_input_throws_typed_errors() {
         "not_finite",
         "value",
     );
-    assert_thrown(checked(api::parse_value("4k7k")), "out_of_domain", "text");
+    assert_thrown(checked(api::parse_value("4k7k")), "syntax", "text");
     assert_thrown(
         api::best_pairs("divider", 1.2, "E24", 1e3, 1e5, None, None, "none", 5.0),
         "out_of_domain",

@@ -5,7 +5,7 @@
 
 use js_sys::{Array, JSON};
 use loopwright::wasm::sheet::{error_values, function_catalog, Worksheet};
-use wasm_bindgen::JsCast;
+use wasm_bindgen::{JsCast, JsValue};
 use wasm_bindgen_test::*;
 
 wasm_bindgen_test_configure!(run_in_browser);
@@ -22,14 +22,14 @@ fn strings(a: &Array) -> Vec<String> {
 fn a_design_follows_one_edit() {
     let mut ws = Worksheet::new();
     ws.set_cell("A1", "100k").unwrap();
-    ws.set_cell("A2", "=FB.BETA(A1; 100)").unwrap();
-    ws.set_cell("A3", "=FB.GAIN(A1; A2)").unwrap();
-    ws.set_cell("A4", "=FB.AMOUNTDB(A1; A2)").unwrap();
+    ws.set_cell("A2", "=FEEDBACK.BETA(A1; 100)").unwrap();
+    ws.set_cell("A3", "=FEEDBACK.GAIN(A1; A2)").unwrap();
+    ws.set_cell("A4", "=FEEDBACK.AMOUNTDB(A1; A2)").unwrap();
     let a3 = ws.value("A3").unwrap();
     assert_eq!(text(&a3, "kind"), "number");
     // β = 1/100 − 1/100000 gives Af = 100 back (inverse design identity).
     assert!((num(&a3, "number") - 100.0).abs() < 1e-9);
-    assert_eq!(text(&a3, "input"), "=FB.GAIN(A1; A2)");
+    assert_eq!(text(&a3, "input"), "=FEEDBACK.GAIN(A1; A2)");
     let a4 = ws.value("A4").unwrap();
     assert_eq!(text(&a4, "unit"), "dB");
     // 20·log10(1000) = 60 dB: D = A/Af = 1000.
@@ -78,7 +78,7 @@ fn spills_names_and_ranges() {
     let mut ws = Worksheet::new();
     ws.set_cell("A1", "100k").unwrap();
     ws.set_name("gain", "A1").unwrap();
-    ws.set_cell("C1", "=FB.CEILING(gain; 100)").unwrap();
+    ws.set_cell("C1", "=FEEDBACK.CEILING(gain; 100)").unwrap();
     assert_eq!(text(&ws.value("C1").unwrap(), "spill"), "C1:D1");
     // A/D = 1000 and (D − 1)/A = 0.00099 with A = 100 000, D = 100.
     assert_eq!(num(&ws.value("D1").unwrap(), "number"), 0.00099);
@@ -151,8 +151,18 @@ fn document_round_trip_and_refusal() {
     );
     let tsv = other.range_to_tsv("A1:A2").unwrap();
     assert_eq!(tsv, "4700\n9400\n");
-    let pasted = strings(&other.paste_tsv("C1", &tsv).unwrap());
+    let pasted = strings(&other.paste_tsv("C1", JsValue::from_str(&tsv)).unwrap());
     assert_eq!(pasted, ["C1", "C2"]);
+    // A paste above 16 MiB is refused on its JS length, and the sheet stays as it was.
+    let before = other.save_document();
+    let huge = JsValue::from_str(&"\t".repeat(16 * 1024 * 1024 + 1));
+    let e = other.paste_tsv("A3", huge).unwrap_err();
+    assert_eq!(
+        (text(&e, "code"), text(&e, "param")),
+        ("too_large".into(), "text".into())
+    );
+    assert_eq!(other.save_document(), before);
+    assert_eq!(num(&other.value("A2").unwrap(), "number"), 9400.0);
 }
 
 #[wasm_bindgen_test]
@@ -195,7 +205,7 @@ fn area_functions_spill_and_explain_errors() {
     let mut ws = Worksheet::new();
     ws.set_cell("A1", "1 kHz").unwrap();
     ws.set_cell("A2", "100 kHz").unwrap();
-    ws.set_cell("C1", "=LOOP.POLES(1000; 0.1; A1:A2)").unwrap();
+    ws.set_cell("C1", "=FREQ.POLES(1000; 0.1; A1:A2)").unwrap();
     // Two closed-loop poles, four columns each.
     assert_eq!(text(&ws.value("C1").unwrap(), "spill"), "C1:F2");
     // σ/2π = −(f1 + f2)/2 for both poles of the pair (closed form).

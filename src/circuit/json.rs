@@ -1,4 +1,4 @@
-//! The circuit JSON document, version 1: read and write.
+//! The circuit JSON document, versions 1 and 2: read and write.
 //!
 //! ```json
 //! {
@@ -14,31 +14,57 @@
 //! }
 //! ```
 //! The full description, with every kind and its sign convention, is in
-//! `docs/circuit-format.md`. `nodes` is optional: when present, it is the complete
+//! `docs/circuit.md`. `nodes` is optional: when present, it is the complete
 //! list of nodes besides ground and an element naming any other node is an
 //! error; when absent, nodes are created as elements name them. Values are
 //! numbers or texts read by [`super::parse_value`]. Unknown fields are refused
 //! so that a typo does not pass silently. The writer emits numbers with the
 //! shortest text that reads back to the same f64, so `read(write(c)) == c`.
+//! Version 2 adds the `amplifier` element (its `model` read by
+//! [`crate::stage::amplifier_json`]) and `tolerance` and `tempco` on any
+//! element; a circuit without them is written as version 1.
 //!
-//! Parsing uses `serde_json` with default features off and `alloc` on (no_std).
+//! Parsing uses `serde_json` with default features off, `alloc` on (no_std) and
+//! `float_roundtrip` (numbers read back to the same f64).
 
 use super::error::{CircuitError, CircuitResult, Name, WithName};
 use super::netlist::{Circuit, Control, ControlSpec, ElementKind, MAX_ELEMENTS, MAX_NODES};
-use super::value::parse_value;
+use super::tolerance::{Tolerance, DISTRIBUTION_NAMES};
+use super::value::parse_value_in;
 use crate::error::Error;
+use crate::notation::Unit;
+use crate::stage::amplifier_json::{
+    at_element, number as amp_number, read_amplifier, write_amplifier,
+};
+use crate::stage::SpreadPoint;
 use alloc::string::String;
 use alloc::vec::Vec;
 use serde_json::{Map, Value};
 
 /// The `format` field's value.
 pub const FORMAT: &str = "loopwright-circuit";
-/// The one version this reader reads and writes.
-pub const VERSION: u64 = 1;
+/// The newest version this reader reads and its writer writes (version 1
+/// documents still read, and a circuit without version-2 features is written as 1).
+pub const VERSION: u64 = 2;
 /// Longest document accepted, in bytes.
 pub const MAX_JSON_LEN: usize = 256 * 1024;
 
-const ELEMENT_FIELDS: &str = "name, kind, nodes, value, valueIm, control, controlElement";
+const ELEMENT_FIELDS: &str = "name, kind, nodes, value, valueIm, control, controlElement, and in version 2 model, spreadPoint, tolerance, tempco";
+const ELEMENT_KEYS: [&str; 11] = [
+    "name",
+    "kind",
+    "nodes",
+    "value",
+    "valueIm",
+    "control",
+    "controlElement",
+    "model",
+    "spreadPoint",
+    "tolerance",
+    "tempco",
+];
+/// Element fields that need version 2.
+const V2_KEYS: [&str; 4] = ["model", "spreadPoint", "tolerance", "tempco"];
 const DOCUMENT_FIELDS: &str = "format, version, nodes, elements";
 
 fn err(error: Error) -> CircuitError {
@@ -73,12 +99,30 @@ fn pair<'a>(
     }
 }
 
-fn number(v: Option<&Value>, param: &'static str, name: Name) -> CircuitResult<f64> {
+/// The unit an element's value is declared in, for the reader's check.
+fn declared_unit(kind: ElementKind) -> Option<Unit> {
+    match kind {
+        ElementKind::Resistor => Some(Unit::Ohm),
+        ElementKind::Capacitor => Some(Unit::Farad),
+        ElementKind::Inductor => Some(Unit::Henry),
+        ElementKind::VoltageSource => Some(Unit::Volt),
+        ElementKind::CurrentSource => Some(Unit::Ampere),
+        ElementKind::Admittance => Some(Unit::Siemens),
+        _ => None,
+    }
+}
+
+fn number(
+    v: Option<&Value>,
+    param: &'static str,
+    name: Name,
+    unit: Option<Unit>,
+) -> CircuitResult<f64> {
     match v {
         Some(Value::Number(n)) => n
             .as_f64()
             .ok_or(CircuitError::new(Error::NotFinite { param }, name)),
-        Some(Value::String(s)) => parse_value(param, s).named(name),
+        Some(Value::String(s)) => parse_value_in(param, s, unit).named(name),
         _ => Err(CircuitError::new(
             Error::OutOfDomain {
                 param,
@@ -106,8 +150,8 @@ fn number(v: Option<&Value>, param: &'static str, name: Name) -> CircuitResult<f
 /// let c = read_circuit(doc).unwrap();
 /// assert_eq!(c.element("R1").unwrap().value(), 4700.0);
 /// assert_eq!(read_circuit(&write_circuit(&c)).unwrap(), c);
-/// let v2 = doc.replace("\"version\":1", "\"version\":2");
-/// assert_eq!(read_circuit(&v2).unwrap_err().error.param(), "version");
+/// let v3 = doc.replace("\"version\":1", "\"version\":3");
+/// assert_eq!(read_circuit(&v3).unwrap_err().error.param(), "version");
 /// ```
 pub fn read_circuit(json: &str) -> CircuitResult<Circuit> {
     if json.len() > MAX_JSON_LEN {
@@ -140,16 +184,14 @@ pub fn read_circuit(json: &str) -> CircuitResult<Circuit> {
             expected: FORMAT,
         }));
     }
-    match obj.get("version").and_then(Value::as_u64) {
-        Some(VERSION) => {}
-        _ => {
-            return Err(err(Error::OutOfDomain {
-                param: "version",
-                requirement:
-                    "must be 1, the version of the loopwright-circuit format this reader knows",
-            }))
-        }
-    }
+    let version = match obj.get("version").and_then(Value::as_u64) {
+        Some(v @ 1..=VERSION) => v,
+        _ => return Err(err(Error::OutOfDomain {
+            param: "version",
+            requirement:
+                "must be 1 or 2, the versions of the loopwright-circuit format this reader knows",
+        })),
+    };
     let mut circuit = match obj.get("nodes") {
         None => Circuit::new(),
         Some(list) => {
@@ -187,7 +229,7 @@ pub fn read_circuit(json: &str) -> CircuitResult<Circuit> {
         }));
     }
     for (i, e) in elements.iter().enumerate() {
-        read_element(&mut circuit, e, i)?;
+        read_element(&mut circuit, e, i, version)?;
     }
     Ok(circuit)
 }
@@ -211,7 +253,7 @@ fn reject_unknown(
     Ok(())
 }
 
-fn read_element(circuit: &mut Circuit, e: &Value, index: usize) -> CircuitResult<()> {
+fn read_element(circuit: &mut Circuit, e: &Value, index: usize, version: u64) -> CircuitResult<()> {
     let place = Name::truncated(&alloc::format!("elements[{index}]"));
     let obj = e.as_object().ok_or(CircuitError::new(
         Error::OutOfDomain {
@@ -222,25 +264,40 @@ fn read_element(circuit: &mut Circuit, e: &Value, index: usize) -> CircuitResult
     ))?;
     let name_text = text(obj.get("name"), "name", place)?;
     let name = Name::new(name_text)?;
-    reject_unknown(
-        obj,
-        &[
-            "name",
-            "kind",
-            "nodes",
-            "value",
-            "valueIm",
-            "control",
-            "controlElement",
-        ],
-        ELEMENT_FIELDS,
-    )?;
+    reject_unknown(obj, &ELEMENT_KEYS, ELEMENT_FIELDS)?;
     let kind = ElementKind::from_name(text(obj.get("kind"), "kind", name)?).named(name)?;
+    if version < 2
+        && (kind == ElementKind::Amplifier || V2_KEYS.iter().any(|k| obj.contains_key(*k)))
+    {
+        return Err(CircuitError::new(
+            Error::OutOfDomain {
+                param: "version",
+                requirement:
+                    "amplifier elements, model, spreadPoint, tolerance and tempco need version 2",
+            },
+            name,
+        ));
+    }
     let (a, b) = pair(obj.get("nodes"), "nodes", name)?;
-    let value = number(obj.get("value"), "value", name)?;
+    if kind == ElementKind::Amplifier {
+        read_amplifier_element(circuit, obj, name, (a, b))?;
+        return read_spread(circuit, obj, name);
+    }
+    for key in ["model", "spreadPoint"] {
+        if obj.contains_key(key) {
+            return Err(CircuitError::new(
+                Error::OutOfDomain {
+                    param: "model",
+                    requirement: "model and spreadPoint belong to amplifier elements only",
+                },
+                name,
+            ));
+        }
+    }
+    let value = number(obj.get("value"), "value", name, declared_unit(kind))?;
     let value_im = match obj.get("valueIm") {
         None => 0.0,
-        v => number(v, "valueIm", name)?,
+        v => number(v, "valueIm", name, declared_unit(kind))?,
     };
     let control = match (obj.get("control"), obj.get("controlElement")) {
         (Some(_), Some(_)) => {
@@ -267,7 +324,115 @@ fn read_element(circuit: &mut Circuit, e: &Value, index: usize) -> CircuitResult
         )?)),
         (None, None) => None,
     };
-    circuit.add_element(name_text, kind, a, b, control, value, value_im)
+    circuit.add_element(name_text, kind, a, b, control, value, value_im)?;
+    read_spread(circuit, obj, name)
+}
+
+fn read_amplifier_element(
+    circuit: &mut Circuit,
+    obj: &Map<String, Value>,
+    name: Name,
+    (out, reference): (&str, &str),
+) -> CircuitResult<()> {
+    for key in ["value", "valueIm", "controlElement"] {
+        if obj.contains_key(key) {
+            return Err(CircuitError::new(
+                Error::OutOfDomain {
+                    param: "value",
+                    requirement: "an amplifier takes its gain from model.a0; give no value, valueIm or controlElement",
+                },
+                name,
+            ));
+        }
+    }
+    let (plus, minus) = pair(obj.get("control"), "control", name)?;
+    let model = obj.get("model").ok_or(CircuitError::new(
+        Error::OutOfDomain {
+            param: "model",
+            requirement: "an amplifier needs its model",
+        },
+        name,
+    ))?;
+    let model = read_amplifier(model).map_err(|e| at_element(e, name))?;
+    let point = match obj.get("spreadPoint") {
+        None => SpreadPoint::Typ,
+        Some(p) => SpreadPoint::from_name("spreadPoint", p.as_str().unwrap_or("")).named(name)?,
+    };
+    circuit.amplifier(name.as_str(), out, reference, plus, minus, model, point)
+}
+
+fn read_spread(circuit: &mut Circuit, obj: &Map<String, Value>, name: Name) -> CircuitResult<()> {
+    let tolerance = obj
+        .get("tolerance")
+        .map(|t| {
+            let value = circuit.element(name.as_str())?.value();
+            read_tolerance(t, value).map_err(|e| at_element(e, name))
+        })
+        .transpose()?;
+    let tempco = obj
+        .get("tempco")
+        .map(|t| amp_number(t, "tempco").named(name))
+        .transpose()?;
+    if tolerance.is_some() || tempco.is_some() {
+        circuit.set_spread(name.as_str(), tolerance, tempco)?;
+    }
+    Ok(())
+}
+
+/// `{"distribution": "uniform", "percent": p}`, `{"distribution": "normal",
+/// "percent": p, "sigmas": k}` or `{"distribution": "limits", "min", "typ"?, "max"}`.
+fn read_tolerance(v: &Value, value: f64) -> CircuitResult<Tolerance> {
+    const P: &str = "tolerance";
+    let o = v.as_object().ok_or(Error::OutOfDomain {
+        param: P,
+        requirement: "must be an object with a distribution",
+    })?;
+    let field = |k: &str| -> CircuitResult<f64> {
+        Ok(o.get(k)
+            .map(|x| amp_number(x, P))
+            .transpose()?
+            .ok_or(Error::OutOfDomain {
+                param: P,
+                requirement:
+                    "is missing a field its distribution needs (percent; sigmas; min and max)",
+            })?)
+    };
+    let dist = o.get("distribution").and_then(Value::as_str).unwrap_or("");
+    let (t, keys): (Tolerance, &[&str]) = match dist {
+        "uniform" => (
+            Tolerance::Uniform {
+                percent: field("percent")?,
+            },
+            &["distribution", "percent"],
+        ),
+        "normal" => (
+            Tolerance::Normal {
+                percent: field("percent")?,
+                sigmas: field("sigmas")?,
+            },
+            &["distribution", "percent", "sigmas"],
+        ),
+        "limits" => {
+            let (min, max) = (field("min")?, field("max")?);
+            let typ = if o.contains_key("typ") {
+                field("typ")?
+            } else {
+                value
+            };
+            (
+                Tolerance::Limits { min, typ, max },
+                &["distribution", "min", "typ", "max"],
+            )
+        }
+        _ => {
+            return Err(CircuitError::from(Error::UnknownName {
+                param: P,
+                expected: DISTRIBUTION_NAMES,
+            }))
+        }
+    };
+    reject_unknown(o, keys, "distribution, percent, sigmas, min, typ, max")?;
+    Ok(t)
 }
 
 /// Write a circuit as a version-1 document (compact JSON, elements in order).
@@ -278,7 +443,11 @@ pub fn write_circuit(c: &Circuit) -> String {
     let node_name = |i: usize| Value::from(c.nodes().get(i).map(|n| n.as_str()).unwrap_or("0"));
     let mut doc = Map::new();
     doc.insert("format".into(), Value::from(FORMAT));
-    doc.insert("version".into(), Value::from(VERSION));
+    let v2 = c
+        .elements()
+        .iter()
+        .any(|e| e.amplifier().is_some() || e.tolerance().is_some() || e.tempco_ppm().is_some());
+    doc.insert("version".into(), Value::from(if v2 { VERSION } else { 1 }));
     if c.declares_nodes() {
         doc.insert(
             "nodes".into(),
@@ -313,9 +482,20 @@ pub fn write_circuit(c: &Circuit) -> String {
             }
             Control::None => {}
         }
-        m.insert("value".into(), Value::from(e.value()));
+        if let Some(part) = e.amplifier() {
+            m.insert("model".into(), write_amplifier(&part.model));
+            m.insert("spreadPoint".into(), Value::from(part.point.name()));
+        } else {
+            m.insert("value".into(), Value::from(e.value()));
+        }
         if e.kind() == ElementKind::Admittance {
             m.insert("valueIm".into(), Value::from(e.value_im()));
+        }
+        if let Some(t) = e.tolerance() {
+            m.insert("tolerance".into(), write_tolerance(t));
+        }
+        if let Some(tc) = e.tempco_ppm() {
+            m.insert("tempco".into(), Value::from(tc));
         }
         list.push(Value::Object(m));
     }
@@ -324,9 +504,30 @@ pub fn write_circuit(c: &Circuit) -> String {
     serde_json::to_string(&Value::Object(doc)).unwrap_or_default()
 }
 
+fn write_tolerance(t: Tolerance) -> Value {
+    let mut o = Map::new();
+    o.insert("distribution".into(), Value::from(t.name()));
+    match t {
+        Tolerance::Uniform { percent } => {
+            o.insert("percent".into(), Value::from(percent));
+        }
+        Tolerance::Normal { percent, sigmas } => {
+            o.insert("percent".into(), Value::from(percent));
+            o.insert("sigmas".into(), Value::from(sigmas));
+        }
+        Tolerance::Limits { min, typ, max } => {
+            o.insert("min".into(), Value::from(min));
+            o.insert("typ".into(), Value::from(typ));
+            o.insert("max".into(), Value::from(max));
+        }
+    }
+    Value::Object(o)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::circuit::tolerance::Tolerance;
 
     const DOC: &str = r#"{"format":"loopwright-circuit","version":1,"elements":[
         {"name":"V1","kind":"voltage-source","nodes":["in","0"],"value":1},
@@ -365,7 +566,7 @@ mod tests {
 
     #[test]
     fn the_documented_example_reads_and_solves() {
-        let doc = include_str!("../../docs/circuit-format.md");
+        let doc = include_str!("../../docs/circuit.md");
         let start = doc.find("```json").map(|i| i + 7).unwrap();
         let end = start + doc[start..].find("```").unwrap();
         let c = read_circuit(&doc[start..end]).unwrap();
@@ -378,6 +579,93 @@ mod tests {
             .voltage("out")
             .unwrap();
         assert!((v.norm() - 11.0).abs() < 0.01, "{v}");
+    }
+
+    const V2: &str = r#"{"format":"loopwright-circuit","version":2,"elements":[
+        {"name":"Vs","kind":"voltage-source","nodes":["in","0"],"value":1,
+         "tolerance":{"distribution":"normal","percent":0.1,"sigmas":3}},
+        {"name":"U1","kind":"amplifier","nodes":["out","0"],"control":["in","fb"],
+         "model":{"a0":{"min":5e4,"typ":2e5},"gbwHz":"10M","polesHz":["30M"],"rd":"1M","ro":60},
+         "spreadPoint":"min"},
+        {"name":"Rf","kind":"resistor","nodes":["out","fb"],"value":"9k",
+         "tolerance":{"distribution":"uniform","percent":1},"tempco":25},
+        {"name":"Rg","kind":"resistor","nodes":["fb","0"],"value":"1k",
+         "tolerance":{"distribution":"limits","min":990,"max":1010},"tempco":-50}
+    ]}"#;
+
+    #[test]
+    fn version_2_reads_amplifiers_and_spreads_and_writes_them_back() {
+        let c = read_circuit(V2).unwrap();
+        let u1 = c.element("U1").unwrap();
+        let part = u1.amplifier().unwrap();
+        assert_eq!((part.point, part.model.a0.max), (SpreadPoint::Min, 2e5));
+        assert_eq!(u1.value(), 5e4); // the gain at the chosen point
+        assert_eq!(
+            c.element("Rg").unwrap().tolerance(),
+            Some(Tolerance::Limits {
+                min: 990.0,
+                typ: 1000.0,
+                max: 1010.0
+            })
+        );
+        assert_eq!(c.element("Rf").unwrap().tempco_ppm(), Some(25.0));
+        let text = write_circuit(&c);
+        assert!(text.contains("\"version\":2"));
+        assert_eq!(read_circuit(&text).unwrap(), c);
+        // A non-inverting gain of 10 at low frequency (1 + 9k/1k, A0 = 5e4).
+        let v = crate::circuit::solve(&c, 1.0)
+            .unwrap()
+            .voltage("out")
+            .unwrap();
+        assert!((v.norm() - 10.0).abs() < 10.0 * 11.0 / 5e4, "{v}");
+        // A circuit without version-2 features is still written as version 1.
+        let plain = read_circuit(DOC).unwrap();
+        assert!(write_circuit(&plain).contains("\"version\":1"));
+    }
+
+    #[test]
+    fn the_documented_version_2_example_reads_and_solves() {
+        let doc = include_str!("../../docs/circuit.md");
+        let v2 = &doc[doc.find("# Version 2").unwrap()..];
+        let start = v2.find("```json").map(|i| i + 7).unwrap();
+        let end = start + v2[start..].find("```").unwrap();
+        let c = read_circuit(&v2[start..end]).unwrap();
+        assert_eq!(c.element("U1").unwrap().amplifier().unwrap().model.ro, 60.0);
+        // Non-inverting, 1 + 9.09k/1k = 10.09 at low frequency (A0 = 2e5).
+        let v = crate::circuit::solve(&c, 1.0)
+            .unwrap()
+            .voltage("out")
+            .unwrap();
+        assert!((v.norm() - 10.09).abs() < 10.09 * 1e-3, "{v}");
+        assert_eq!(read_circuit(&write_circuit(&c)).unwrap(), c);
+    }
+
+    #[test]
+    fn version_2_faults_name_the_element_and_field() {
+        let e = |from: &str, to: &str| read_circuit(&V2.replace(from, to)).unwrap_err();
+        let x = e("\"version\":2", "\"version\":1");
+        assert_eq!((x.name.as_str(), x.error.param()), ("Vs", "version"));
+        let x = e("\"percent\":1}", "\"percent\":-1}");
+        assert_eq!((x.name.as_str(), x.error.param()), ("Rf", "tolerance"));
+        let x = e("\"tempco\":25", "\"tempco\":\"x\"");
+        assert_eq!((x.name.as_str(), x.error.param()), ("Rf", "tempco"));
+        let x = e("\"gbwHz\":\"10M\"", "\"gbwHz\":\"-10M\"");
+        assert_eq!((x.name.as_str(), x.error.param()), ("U1", "gbwHz"));
+        let x = e("\"spreadPoint\":\"min\"", "\"spreadPoint\":\"low\"");
+        assert_eq!((x.name.as_str(), x.error.param()), ("U1", "spreadPoint"));
+        let x = e("\"control\":[\"in\",\"fb\"],", "");
+        assert_eq!((x.name.as_str(), x.error.param()), ("U1", "control"));
+        let x = e(
+            "\"spreadPoint\":\"min\"",
+            "\"spreadPoint\":\"min\",\"value\":3",
+        );
+        assert_eq!((x.name.as_str(), x.error.param()), ("U1", "value"));
+        let x = e("\"distribution\":\"uniform\"", "\"distribution\":\"flat\"");
+        assert_eq!((x.name.as_str(), x.error.param()), ("Rf", "tolerance"));
+        let x = e("\"min\":990", "\"min\":1001");
+        assert_eq!((x.name.as_str(), x.error.param()), ("Rg", "tolerance"));
+        let x = e(",\"tempco\":25", ",\"model\":{}");
+        assert_eq!((x.name.as_str(), x.error.param()), ("Rf", "model"));
     }
 
     #[test]

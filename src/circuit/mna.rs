@@ -21,6 +21,7 @@
 //! (voltage sources, VCVS, CCVS, and inductors at 0 Hz). Whatever is still
 //! singular is found by the LU ([`super::lu`]) and named by its unknown.
 
+use super::amplifier_stamp::{self, Terminals};
 use super::error::{CircuitError, CircuitResult, Name, WithName};
 use super::lu::Lu;
 use super::netlist::{Circuit, Control, ElementKind};
@@ -188,6 +189,8 @@ pub(crate) struct Layout {
     pub branch: Vec<Option<usize>>,
     /// Controlling element per element, for CCVS and CCCS.
     pub control: Vec<Option<usize>>,
+    /// First internal unknown per element, for amplifiers (their states).
+    pub internal: Vec<Option<usize>>,
     /// Total unknowns.
     pub size: usize,
 }
@@ -209,10 +212,18 @@ pub(crate) fn layout(c: &Circuit) -> CircuitResult<Layout> {
             _ => None,
         });
     }
+    let mut internal = Vec::with_capacity(c.elements().len());
+    for e in c.elements() {
+        internal.push(e.amplifier().map(|part| {
+            next += amplifier_stamp::internal_unknowns(part);
+            next - amplifier_stamp::internal_unknowns(part)
+        }));
+    }
     Ok(Layout {
         nodes,
         branch,
         control,
+        internal,
         size: next,
     })
 }
@@ -224,6 +235,16 @@ fn check_structure(c: &Circuit, w: f64) -> CircuitResult<()> {
     let mut voltage = Sets::new(n);
     for e in c.elements() {
         let [a, b] = e.nodes();
+        if let (Some(part), Control::Nodes([p, n])) = (e.amplifier(), e.control()) {
+            let m = &part.model;
+            if m.rd.is_some() || (m.cd > 0.0 && w > 0.0) {
+                conducting.join(p, n);
+            }
+            if m.rcm.is_some() || (m.ccm > 0.0 && w > 0.0) {
+                conducting.join(p, 0);
+                conducting.join(n, 0);
+            }
+        }
         let conducts = match e.kind() {
             ElementKind::CurrentSource => false,
             ElementKind::Capacitor => w > 0.0,
@@ -235,6 +256,7 @@ fn check_structure(c: &Circuit, w: f64) -> CircuitResult<()> {
         }
         let defines_voltage = match e.kind() {
             ElementKind::VoltageSource | ElementKind::Vcvs | ElementKind::Ccvs => true,
+            ElementKind::Amplifier => e.amplifier().is_some_and(|p| p.model.ro == 0.0),
             ElementKind::Inductor => w == 0.0,
             _ => false,
         };
@@ -292,6 +314,20 @@ pub(crate) fn assemble(c: &Circuit, lay: &Layout, w: f64) -> (Vec<Complex64>, Ve
             };
         let k = Complex64::new(e.value(), 0.0);
         match e.kind() {
+            ElementKind::Amplifier => {
+                if let (Some(part), Control::Nodes([p, n]), Some(first)) = (
+                    e.amplifier(),
+                    e.control(),
+                    lay.internal.get(i).copied().flatten(),
+                ) {
+                    let t = Terminals {
+                        out: [ra, rb],
+                        inputs: [idx(p), idx(n)],
+                        first,
+                    };
+                    amplifier_stamp::stamp(part, &t, s, &mut add, &mut rhs);
+                }
+            }
             ElementKind::Resistor => admittance(one / k, &mut add),
             ElementKind::Capacitor => admittance(s * k, &mut add),
             ElementKind::Admittance => {
@@ -413,6 +449,14 @@ pub fn solve(c: &Circuit, frequency_hz: f64) -> CircuitResult<Solution> {
         let branch_current =
             |j: Option<usize>| j.and_then(|r| x.get(r).copied()).unwrap_or_default();
         let current = match e.kind() {
+            ElementKind::Amplifier => match (e.amplifier(), lay.internal.get(i).copied().flatten())
+            {
+                (Some(part), Some(first)) => match amplifier_stamp::branch_unknown(part, first) {
+                    Some(br) => branch_current(Some(br)),
+                    None => (vab - amplifier_stamp::output_signal(part, first, &x)) / part.model.ro,
+                },
+                _ => Complex64::default(),
+            },
             ElementKind::Resistor => vab / k,
             ElementKind::Capacitor => vab * s * k,
             ElementKind::Admittance => vab * Complex64::new(e.value(), e.value_im()),
@@ -588,40 +632,76 @@ pub fn voltage_transfer_sweep(
     }
     let (c1, _) = unit_source(c, source)?;
     let (p, m) = (c1.node_index(plus)?, c1.node_index(minus)?);
-    let lay = layout(&c1)?;
-    // Every stamp is constant or proportional to s = jω, so M(ω) = M0 + jω·M1:
-    // assemble both once, and check the structure once per kind of frequency
-    // (0 Hz, where capacitors are open and inductors short, or above).
-    let (m0, rhs) = assemble(&c1, &lay, 0.0);
-    let (unit, _) = assemble(&c1, &lay, 1.0);
-    let m1: Vec<f64> = unit.iter().zip(&m0).map(|(u, z)| u.im - z.im).collect();
-    let (mut dc_checked, mut ac_checked) = (false, false);
+    let mut sweeper = Sweeper::new(&c1)?;
     let mut out = Vec::with_capacity(frequencies_hz.len());
     for &f in frequencies_hz {
-        let w = omega(f)?;
-        let checked = if w == 0.0 {
-            &mut dc_checked
-        } else {
-            &mut ac_checked
-        };
-        if !*checked {
-            check_structure(&c1, w)?;
-            *checked = true;
-        }
-        let mw: Vec<Complex64> = m0
-            .iter()
-            .zip(&m1)
-            .map(|(z, b)| Complex64::new(z.re, z.im + w * b))
-            .collect();
-        let x = solve_matrix(&c1, &lay, mw, &rhs)?;
-        let v = |k: usize| {
-            k.checked_sub(1)
-                .and_then(|i| x.get(i).copied())
-                .unwrap_or_default()
-        };
-        out.push(v(p) - v(m));
+        let x = sweeper.solve_at(f)?;
+        out.push(node_voltage(&x, p) - node_voltage(&x, m));
     }
     Ok(out)
+}
+
+/// The voltage of node `k` (0 = ground) in an unknown vector.
+pub(crate) fn node_voltage(x: &[Complex64], k: usize) -> Complex64 {
+    k.checked_sub(1)
+        .and_then(|i| x.get(i).copied())
+        .unwrap_or_default()
+}
+
+/// One circuit solved at many frequencies. Every stamp is constant or
+/// proportional to s = jω, so M(ω) = G + jω·C: both are assembled once, and
+/// the structure is checked once per kind of frequency (0 Hz, where capacitors
+/// are open and inductors short, or above).
+pub(crate) struct Sweeper<'a> {
+    pub circuit: &'a Circuit,
+    pub lay: Layout,
+    /// G (the real part may be complex for a fixed admittance).
+    pub g: Vec<Complex64>,
+    /// C: the coefficient of s.
+    pub cap: Vec<f64>,
+    pub rhs: Vec<Complex64>,
+    dc_checked: bool,
+    ac_checked: bool,
+}
+
+impl<'a> Sweeper<'a> {
+    /// Lay out and assemble.
+    pub fn new(circuit: &'a Circuit) -> CircuitResult<Sweeper<'a>> {
+        let lay = layout(circuit)?;
+        let (g, rhs) = assemble(circuit, &lay, 0.0);
+        let (unit, _) = assemble(circuit, &lay, 1.0);
+        let cap = unit.iter().zip(&g).map(|(u, z)| u.im - z.im).collect();
+        Ok(Sweeper {
+            circuit,
+            lay,
+            g,
+            cap,
+            rhs,
+            dc_checked: false,
+            ac_checked: false,
+        })
+    }
+
+    /// The unknown vector at `frequency_hz`.
+    pub fn solve_at(&mut self, frequency_hz: f64) -> CircuitResult<Vec<Complex64>> {
+        let w = omega(frequency_hz)?;
+        let checked = if w == 0.0 {
+            &mut self.dc_checked
+        } else {
+            &mut self.ac_checked
+        };
+        if !*checked {
+            check_structure(self.circuit, w)?;
+            *checked = true;
+        }
+        let mw: Vec<Complex64> = self
+            .g
+            .iter()
+            .zip(&self.cap)
+            .map(|(z, b)| Complex64::new(z.re, z.im + w * b))
+            .collect();
+        solve_matrix(self.circuit, &self.lay, mw, &self.rhs)
+    }
 }
 
 /// A copy with every independent source at zero except `source`, which is set to 1.

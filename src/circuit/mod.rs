@@ -1,9 +1,9 @@
-//! Loading-aware analysis of real feedback circuits (catalog area D).
+//! Loading-aware analysis of real feedback circuits.
 //!
 //! - [`error`]: node and element names, and the error that carries one;
 //! - [`value`]: component values with SI prefixes and IEC 60062 codes;
 //! - [`netlist`]: the small-signal circuit description and its size limits;
-//! - [`json`]: the versioned JSON document (`docs/circuit-format.md`);
+//! - [`json`]: the versioned JSON document (`docs/circuit.md`);
 //! - [`lu`]: the dense complex LU with partial pivoting;
 //! - [`mna`]: the exact modified nodal solution, transfers and port impedances;
 //! - [`templates`]: the circuit of each topology from an amplifier model,
@@ -33,6 +33,7 @@
 //! assert!(r.ideal_af_error > r.af.relative_error);  // the ideal answer is worse
 //! ```
 
+mod amplifier_stamp;
 pub mod blackman;
 pub mod error;
 pub mod json;
@@ -40,6 +41,7 @@ pub mod lu;
 pub mod mna;
 pub mod netlist;
 pub mod templates;
+pub mod tolerance;
 pub mod twoport;
 pub mod value;
 
@@ -49,7 +51,8 @@ pub use mna::{
     Solution, MAX_SWEEP,
 };
 pub use netlist::{
-    Circuit, Control, ControlSpec, Element, ElementKind, MAX_BRANCHES, MAX_ELEMENTS, MAX_NODES,
+    AmplifierPart, Circuit, Control, ControlSpec, Element, ElementKind, MAX_BRANCHES, MAX_ELEMENTS,
+    MAX_NODES,
 };
 pub use value::parse_value;
 

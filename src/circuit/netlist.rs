@@ -25,7 +25,10 @@
 //! inductors, VCVS, CCVS), which bounds the nodal matrix at 128 × 128.
 
 use super::error::{CircuitError, CircuitResult, Name};
+use super::tolerance::{validate_tempco, Tolerance};
 use crate::error::Error;
+use crate::stage::{Amplifier, SpreadPoint};
+use alloc::boxed::Box;
 use alloc::vec::Vec;
 
 /// Most nodes besides ground.
@@ -34,6 +37,10 @@ pub const MAX_NODES: usize = 64;
 pub const MAX_ELEMENTS: usize = 256;
 /// Most elements with a branch current (V, L, VCVS, CCVS).
 pub const MAX_BRANCHES: usize = 64;
+/// Most internal unknowns of all amplifier elements together (their states:
+/// one per real pole or zero, two per complex pair; plus one when Ro = 0),
+/// which keeps the nodal matrix at most 256 × 256.
+pub const MAX_AMPLIFIER_STATES: usize = 128;
 /// Room kept above the limits for the test sources the analyses add.
 const INTERNAL_SLACK: usize = 4;
 
@@ -62,10 +69,14 @@ pub enum ElementKind {
     Cccs,
     /// Fixed complex admittance, S.
     Admittance,
+    /// An amplifier from its datasheet model (document version 2): a voltage
+    /// source of frequency-dependent gain A(jω) behind its output resistance,
+    /// with its input parts between and from its control nodes.
+    Amplifier,
 }
 
 /// The kind names of the JSON document.
-pub const KIND_NAMES: &str = "resistor, capacitor, inductor, voltage-source, current-source, vcvs, vccs, ccvs, cccs, admittance";
+pub const KIND_NAMES: &str = "resistor, capacitor, inductor, voltage-source, current-source, vcvs, vccs, ccvs, cccs, admittance, amplifier";
 
 impl ElementKind {
     /// The name used in the JSON document, e.g. `"voltage-source"`.
@@ -81,6 +92,7 @@ impl ElementKind {
             ElementKind::Ccvs => "ccvs",
             ElementKind::Cccs => "cccs",
             ElementKind::Admittance => "admittance",
+            ElementKind::Amplifier => "amplifier",
         }
     }
 
@@ -89,7 +101,7 @@ impl ElementKind {
     /// # Errors
     /// [`Error::UnknownName`] with param `kind`.
     pub fn from_name(s: &str) -> crate::Result<ElementKind> {
-        const ALL: [ElementKind; 10] = [
+        const ALL: [ElementKind; 11] = [
             ElementKind::Resistor,
             ElementKind::Capacitor,
             ElementKind::Inductor,
@@ -100,6 +112,7 @@ impl ElementKind {
             ElementKind::Ccvs,
             ElementKind::Cccs,
             ElementKind::Admittance,
+            ElementKind::Amplifier,
         ];
         ALL.into_iter()
             .find(|k| k.name() == s)
@@ -148,8 +161,22 @@ pub enum Control {
     Element(Name),
 }
 
-/// One element: name, kind, terminal nodes, control, value.
-#[derive(Debug, Clone, Copy, PartialEq)]
+/// An amplifier element's model and the point of its A0 spread in use.
+#[derive(Debug, Clone, PartialEq)]
+pub struct AmplifierPart {
+    /// The datasheet model (validated when added).
+    pub model: Amplifier,
+    /// Which point of the A0 spread the circuit uses.
+    pub point: SpreadPoint,
+    /// When set, the controlled source is replaced by an independent source of
+    /// this value, V (the return-ratio analyses); the input parts and the
+    /// output resistance stay.
+    pub(crate) test_value: Option<f64>,
+}
+
+/// One element: name, kind, terminal nodes, control, value, and (version 2)
+/// an amplifier model, a tolerance and a temperature coefficient.
+#[derive(Debug, Clone, PartialEq)]
 pub struct Element {
     pub(crate) name: Name,
     pub(crate) kind: ElementKind,
@@ -157,6 +184,9 @@ pub struct Element {
     pub(crate) control: Control,
     pub(crate) value: f64,
     pub(crate) value_im: f64,
+    pub(crate) amplifier: Option<Box<AmplifierPart>>,
+    pub(crate) tolerance: Option<Tolerance>,
+    pub(crate) tempco_ppm: Option<f64>,
 }
 
 impl Element {
@@ -183,6 +213,18 @@ impl Element {
     /// The imaginary part of an admittance's value (0 for every other kind).
     pub fn value_im(&self) -> f64 {
         self.value_im
+    }
+    /// The model of an amplifier element (`None` for every other kind).
+    pub fn amplifier(&self) -> Option<&AmplifierPart> {
+        self.amplifier.as_deref()
+    }
+    /// The value's tolerance, if one was given.
+    pub fn tolerance(&self) -> Option<Tolerance> {
+        self.tolerance
+    }
+    /// The temperature coefficient, ppm/K, if one was given.
+    pub fn tempco_ppm(&self) -> Option<f64> {
+        self.tempco_ppm
     }
 }
 
@@ -449,6 +491,23 @@ impl Circuit {
                     requirement: "a current-controlled source needs the name of the element whose current controls it",
                 }))
             }
+            (ElementKind::Amplifier, Some(ControlSpec::Nodes(cp, cn))) => {
+                let p = self.node_or_add(Name::new(cp)?, internal)?;
+                let n = self.node_or_add(Name::new(cn)?, internal)?;
+                if p == n {
+                    return Err(named(Error::OutOfDomain {
+                        param: "control",
+                        requirement: "must be two different nodes",
+                    }));
+                }
+                Control::Nodes([p, n])
+            }
+            (ElementKind::Amplifier, _) => {
+                return Err(named(Error::OutOfDomain {
+                    param: "control",
+                    requirement: "an amplifier needs its two input nodes [+, −] as control",
+                }))
+            }
             (_, None) => Control::None,
             (_, Some(_)) => {
                 return Err(named(Error::OutOfDomain {
@@ -464,6 +523,9 @@ impl Circuit {
             control,
             value,
             value_im,
+            amplifier: None,
+            tolerance: None,
+            tempco_ppm: None,
         });
         Ok(())
     }
@@ -627,7 +689,127 @@ impl Circuit {
         value_im: f64,
     ) -> CircuitResult<()> {
         let name = Name::new(name)?;
+        if kind == ElementKind::Amplifier {
+            return Err(CircuitError::new(
+                Error::OutOfDomain {
+                    param: "kind",
+                    requirement: "an amplifier is added with its model (Circuit::amplifier)",
+                },
+                name,
+            ));
+        }
         self.add(name, kind, a, b, control, value, value_im, false)
+    }
+
+    /// Add an amplifier: V(out) − V(reference) = A(jω)·(V(plus) − V(minus))
+    /// behind the model's output resistance, with Rd and Cd between `plus` and
+    /// `minus` and Rcm and Ccm from each of them to ground; `point` chooses the
+    /// point of the A0 spread. Its current is the current flowing into its
+    /// `out` terminal (through the output resistance to `reference`).
+    ///
+    /// # Errors
+    /// The model's own errors ([`Amplifier::validate`], naming the field and
+    /// this element); as [`Circuit::resistor`] for names and nodes.
+    ///
+    /// # Example
+    /// ```
+    /// use loopwright::circuit::{solve, Circuit};
+    /// use loopwright::stage::{Amplifier, Spread, SpreadPoint};
+    /// let opamp = Amplifier::from_gbw(Spread::fixed(1e5), 1e6).with_input(Some(1e6), 0.0, None, 0.0);
+    /// let mut c = Circuit::new();
+    /// c.voltage_source("Vs", "in", "0", 1.0).unwrap();
+    /// c.amplifier("U1", "out", "0", "in", "out", opamp.clone(), SpreadPoint::Typ).unwrap();
+    /// // A follower: V(out) = A/(1 + A) at low frequency.
+    /// let v = solve(&c, 0.01).unwrap().voltage("out").unwrap();
+    /// assert!((v.norm() - 1e5 / (1.0 + 1e5)).abs() < 1e-9);
+    /// let e = c.amplifier("U2", "x", "0", "in", "out", opamp.with_ro(-1.0), SpreadPoint::Typ);
+    /// assert_eq!(e.unwrap_err().error.param(), "ro");
+    /// ```
+    #[allow(clippy::too_many_arguments)]
+    pub fn amplifier(
+        &mut self,
+        name: &str,
+        out: &str,
+        reference: &str,
+        plus: &str,
+        minus: &str,
+        model: Amplifier,
+        point: SpreadPoint,
+    ) -> CircuitResult<()> {
+        let n = Name::new(name)?;
+        model.validate().map_err(|e| CircuitError::new(e, n))?;
+        let part = AmplifierPart {
+            model,
+            point,
+            test_value: None,
+        };
+        let states: usize = self
+            .elements
+            .iter()
+            .filter_map(|e| e.amplifier())
+            .map(super::amplifier_stamp::internal_unknowns)
+            .sum::<usize>()
+            + super::amplifier_stamp::internal_unknowns(&part);
+        if states > MAX_AMPLIFIER_STATES {
+            return Err(CircuitError::new(
+                Error::TooLarge {
+                    param: "model",
+                    limit: MAX_AMPLIFIER_STATES as u64,
+                },
+                n,
+            ));
+        }
+        let model = &part.model;
+        let gain = model.a0.at(point);
+        self.add(
+            n,
+            ElementKind::Amplifier,
+            out,
+            reference,
+            Some(ControlSpec::Nodes(plus, minus)),
+            gain,
+            0.0,
+            false,
+        )?;
+        if let Some(e) = self.elements.last_mut() {
+            e.amplifier = Some(Box::new(part));
+        }
+        Ok(())
+    }
+
+    /// Give the named element a tolerance and a temperature coefficient
+    /// (ppm/K); `None` leaves that one unset.
+    ///
+    /// # Errors
+    /// Unknown element; a tolerance or tempco that does not validate (params
+    /// `tolerance`, `tempco`, naming the element); a tolerance on an amplifier
+    /// (its spread is in its model's A0 min/typ/max).
+    pub fn set_spread(
+        &mut self,
+        name: &str,
+        tolerance: Option<Tolerance>,
+        tempco_ppm: Option<f64>,
+    ) -> CircuitResult<()> {
+        let i = self.element_index(name)?;
+        if let Some(e) = self.elements.get_mut(i) {
+            let named = |err: Error| CircuitError::new(err, e.name);
+            if let Some(t) = tolerance {
+                if e.kind == ElementKind::Amplifier {
+                    return Err(named(Error::OutOfDomain {
+                        param: "tolerance",
+                        requirement:
+                            "an amplifier's spread is its model's a0 min/typ/max, not a tolerance",
+                    }));
+                }
+                t.validate(e.value).map_err(named)?;
+            }
+            if let Some(tc) = tempco_ppm {
+                validate_tempco(tc).map_err(named)?;
+            }
+            e.tolerance = tolerance;
+            e.tempco_ppm = tempco_ppm;
+        }
+        Ok(())
     }
 
     /// A copy without the named element; nodes that no remaining element uses
@@ -676,11 +858,22 @@ impl Circuit {
     /// A copy with the named element's value replaced (same checks as when adding).
     ///
     /// # Errors
-    /// Unknown element name; a value its kind does not accept.
+    /// Unknown element name; a value its kind does not accept; an amplifier
+    /// element (its gain is its model's).
     pub fn with_value(&self, name: &str, value: f64) -> CircuitResult<Circuit> {
         let i = self.element_index(name)?;
         let mut c = self.clone();
         if let Some(e) = c.elements.get_mut(i) {
+            if e.kind == ElementKind::Amplifier {
+                return Err(CircuitError::new(
+                    Error::OutOfDomain {
+                        param: "value",
+                        requirement:
+                            "an amplifier's gain is its model's a0; change the model instead",
+                    },
+                    e.name,
+                ));
+            }
             check_value(e.kind, value, e.value_im).map_err(|err| CircuitError::new(err, e.name))?;
             e.value = value;
         }
@@ -691,6 +884,10 @@ impl Circuit {
     /// value `value`, keeping name and nodes (used by the return-ratio analyses).
     pub(crate) fn replace_with_source(&mut self, i: usize, value: f64) {
         if let Some(e) = self.elements.get_mut(i) {
+            if let Some(part) = e.amplifier.as_mut() {
+                part.test_value = Some(value);
+                return;
+            }
             e.kind = match e.kind {
                 ElementKind::Vcvs | ElementKind::Ccvs | ElementKind::VoltageSource => {
                     ElementKind::VoltageSource
@@ -744,6 +941,9 @@ fn check_value(kind: ElementKind, value: f64, value_im: f64) -> crate::Result<()
         ElementKind::Admittance => {
             check::non_negative("value", value)?;
             check::finite("valueIm", value_im)?;
+        }
+        ElementKind::Amplifier => {
+            check::positive("value", value)?;
         }
         _ => {
             check::finite("value", value)?;

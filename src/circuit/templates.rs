@@ -201,183 +201,28 @@ pub fn build_loaded(spec: &StageSpec, loading: Loading) -> CircuitResult<Stage> 
 
 fn build_with(spec: &StageSpec, loading: Option<Loading>) -> CircuitResult<Stage> {
     spec.validate()?;
-    let a = spec.amplifier;
-    let n = spec.network;
     let t = spec.topology;
     let mut c = Circuit::new();
-    let mut add =
-        |name: &str, kind: ElementKind, p: &str, m: &str, value: f64| -> CircuitResult<()> {
-            c.add_element(name, kind, p, m, None, value, 0.0)
-        };
-    use ElementKind::*;
-    // Source.
-    let source = match t.mixing() {
-        Mixing::Series => {
-            add("Vs", VoltageSource, "src", "0", 1.0)?;
-            add("Rs", Resistor, "src", "in", spec.rs)?;
-            "Vs"
-        }
-        Mixing::Shunt => {
-            add("Is", CurrentSource, "0", "in", 1.0)?;
-            add("Rs", Resistor, "in", "0", spec.rs)?;
-            "Is"
-        }
-    };
-    // Amplifier input.
-    match t.mixing() {
-        Mixing::Series => {
-            add("Ri", Resistor, "in", "fb", a.ri)?;
-            if a.ci > 0.0 {
-                add("Ci", Capacitor, "in", "fb", a.ci)?;
-            }
-        }
-        Mixing::Shunt => {
-            add("Vi", VoltageSource, "in", "x", 0.0)?;
-            add("Ri", Resistor, "x", "0", a.ri)?;
-            if a.ci > 0.0 {
-                add("Ci", Capacitor, "in", "0", a.ci)?;
-            }
-        }
-    }
+    let source = add_source(&mut c, t, spec.rs)?;
+    add_amplifier_input(&mut c, t, &spec.amplifier)?;
     // Series-series with rf = 0: the amplifier's feedback input is the sense node.
-    let sense = if t == Topology::SeriesSeries && n.rf == 0.0 && loading.is_none() {
+    let sense = if t == Topology::SeriesSeries && spec.network.rf == 0.0 && loading.is_none() {
         "fb"
     } else {
         "ld"
     };
-    // Amplifier output and load.
-    match t {
-        Topology::SeriesShunt => {
-            c.add_element(
-                "A",
-                Vcvs,
-                "a",
-                "0",
-                Some(super::ControlSpec::Nodes("in", "fb")),
-                a.gain,
-                0.0,
-            )?;
-        }
-        Topology::ShuntShunt => {
-            c.add_element(
-                "A",
-                Ccvs,
-                "a",
-                "0",
-                Some(super::ControlSpec::Element("Vi")),
-                a.gain,
-                0.0,
-            )?;
-        }
-        Topology::SeriesSeries => {
-            c.add_element(
-                "A",
-                Vccs,
-                "0",
-                "out",
-                Some(super::ControlSpec::Nodes("in", "fb")),
-                a.gain,
-                0.0,
-            )?;
-        }
-        Topology::ShuntSeries => {
-            c.add_element(
-                "A",
-                Cccs,
-                "0",
-                "out",
-                Some(super::ControlSpec::Element("Vi")),
-                a.gain,
-                0.0,
-            )?;
-        }
-    }
-    let mut add =
-        |name: &str, kind: ElementKind, p: &str, m: &str, value: f64| -> CircuitResult<()> {
-            c.add_element(name, kind, p, m, None, value, 0.0)
-        };
-    match t.sampling() {
-        Sampling::Voltage => {
-            add("Ro", Resistor, "a", "out", a.ro)?;
-            add("Rl", Resistor, "out", "0", spec.rl)?;
-        }
-        Sampling::Current => {
-            add("Ro", Resistor, "out", "0", a.ro)?;
-            add("Rl", Resistor, "out", sense, spec.rl)?;
-        }
-    }
-    if a.co > 0.0 {
-        add("Co", Capacitor, "out", "0", a.co)?;
-    }
-    // Ports of the feedback network.
-    let (input_port, output_port): ((&'static str, &'static str), (&'static str, &'static str)) =
-        match t {
-            Topology::SeriesShunt => (("fb", "0"), ("out", "0")),
-            Topology::ShuntShunt => (("in", "0"), ("out", "0")),
-            Topology::SeriesSeries => (("fb", "0"), (if sense == "fb" { "fb" } else { "ld" }, "0")),
-            Topology::ShuntSeries => (("in", "0"), ("ld", "0")),
-        };
-    let load_port = match t.sampling() {
-        Sampling::Voltage => ("out", "0"),
-        Sampling::Current => ("out", output_port.0),
-    };
-    let feedback: &'static [&'static str] = match loading {
+    add_controlled_source(&mut c, t, spec.amplifier.gain)?;
+    add_output_and_load(&mut c, t, &spec.amplifier, spec.rl, sense)?;
+    let (input_port, output_port, load_port) = ports(t, sense);
+    let feedback = match loading {
         Some(l) => {
             for (tag, (p, m), y) in [("Y1", input_port, l.input), ("Y2", output_port, l.output)] {
                 check::finite_complex("loading", y).map_err(CircuitError::from)?;
-                c.add_element(tag, Admittance, p, m, None, y.re, y.im)?;
+                c.add_element(tag, ElementKind::Admittance, p, m, None, y.re, y.im)?;
             }
-            &[]
+            &[][..]
         }
-        None => {
-            match t {
-                Topology::SeriesShunt => {
-                    add("Rf", Resistor, "out", "fb", n.rf)?;
-                    add("Rg", Resistor, "fb", "0", n.rg)?;
-                    if n.cf > 0.0 {
-                        add("Cf", Capacitor, "out", "fb", n.cf)?;
-                    }
-                }
-                Topology::ShuntShunt => {
-                    add("Rf", Resistor, "out", "in", n.rf)?;
-                    if n.cf > 0.0 {
-                        add("Cf", Capacitor, "out", "in", n.cf)?;
-                    }
-                }
-                Topology::SeriesSeries => {
-                    add("Rg", Resistor, sense, "0", n.rg)?;
-                    if n.cf > 0.0 {
-                        add("Cf", Capacitor, sense, "0", n.cf)?;
-                    }
-                    if n.rf > 0.0 {
-                        add("Rf", Resistor, "ld", "fb", n.rf)?;
-                    }
-                }
-                Topology::ShuntSeries => {
-                    add("Rf", Resistor, "ld", "in", n.rf)?;
-                    add("Rg", Resistor, "ld", "0", n.rg)?;
-                    if n.cf > 0.0 {
-                        add("Cf", Capacitor, "ld", "in", n.cf)?;
-                    }
-                }
-            }
-            // The element names present, in the order the list below expects.
-            match t {
-                Topology::SeriesShunt | Topology::ShuntSeries => present(&c, &FB_SERIES_SHUNT),
-                Topology::ShuntShunt => present(&c, &FB_SHUNT_SHUNT),
-                Topology::SeriesSeries => {
-                    if n.rf > 0.0 && n.cf > 0.0 {
-                        &["Rg", "Cf", "Rf"]
-                    } else if n.rf > 0.0 {
-                        &["Rg", "Rf"]
-                    } else if n.cf > 0.0 {
-                        &["Rg", "Cf"]
-                    } else {
-                        &["Rg"]
-                    }
-                }
-            }
-        }
+        None => add_feedback_network(&mut c, t, &spec.network, sense)?,
     };
     Ok(Stage {
         circuit: c,
@@ -386,6 +231,169 @@ fn build_with(spec: &StageSpec, loading: Option<Loading>) -> CircuitResult<Stage
         input_port,
         output_port,
         load_port,
+    })
+}
+
+/// Add a two-terminal element with no controlling quantity.
+fn add(
+    c: &mut Circuit,
+    name: &str,
+    kind: ElementKind,
+    p: &str,
+    m: &str,
+    value: f64,
+) -> CircuitResult<()> {
+    c.add_element(name, kind, p, m, None, value, 0.0)
+}
+
+/// The signal source with its resistance: a voltage source in series for series
+/// mixing, a current source in parallel for shunt mixing. Returns the source's name.
+fn add_source(c: &mut Circuit, t: Topology, rs: f64) -> CircuitResult<&'static str> {
+    use ElementKind::*;
+    match t.mixing() {
+        Mixing::Series => {
+            add(c, "Vs", VoltageSource, "src", "0", 1.0)?;
+            add(c, "Rs", Resistor, "src", "in", rs)?;
+            Ok("Vs")
+        }
+        Mixing::Shunt => {
+            add(c, "Is", CurrentSource, "0", "in", 1.0)?;
+            add(c, "Rs", Resistor, "in", "0", rs)?;
+            Ok("Is")
+        }
+    }
+}
+
+/// The amplifier's input resistance (and capacitance): between the inputs for series
+/// mixing; to ground through a zero-volt sense source `Vi` for shunt mixing.
+fn add_amplifier_input(c: &mut Circuit, t: Topology, a: &AmplifierModel) -> CircuitResult<()> {
+    use ElementKind::*;
+    match t.mixing() {
+        Mixing::Series => {
+            add(c, "Ri", Resistor, "in", "fb", a.ri)?;
+            if a.ci > 0.0 {
+                add(c, "Ci", Capacitor, "in", "fb", a.ci)?;
+            }
+        }
+        Mixing::Shunt => {
+            add(c, "Vi", VoltageSource, "in", "x", 0.0)?;
+            add(c, "Ri", Resistor, "x", "0", a.ri)?;
+            if a.ci > 0.0 {
+                add(c, "Ci", Capacitor, "in", "0", a.ci)?;
+            }
+        }
+    }
+    Ok(())
+}
+
+/// The amplifier `A` as the controlled source the topology needs: voltage- or
+/// current-controlled by the input, voltage or current out.
+fn add_controlled_source(c: &mut Circuit, t: Topology, gain: f64) -> CircuitResult<()> {
+    use super::ControlSpec::{Element, Nodes};
+    use ElementKind::*;
+    let (kind, p, m, control) = match t {
+        Topology::SeriesShunt => (Vcvs, "a", "0", Nodes("in", "fb")),
+        Topology::ShuntShunt => (Ccvs, "a", "0", Element("Vi")),
+        Topology::SeriesSeries => (Vccs, "0", "out", Nodes("in", "fb")),
+        Topology::ShuntSeries => (Cccs, "0", "out", Element("Vi")),
+    };
+    c.add_element("A", kind, p, m, Some(control), gain, 0.0)
+}
+
+/// The amplifier's output resistance (and capacitance) and the load: in series to the
+/// output node for voltage sampling; in parallel, with the load in series to the sense
+/// node, for current sampling.
+fn add_output_and_load(
+    c: &mut Circuit,
+    t: Topology,
+    a: &AmplifierModel,
+    rl: f64,
+    sense: &str,
+) -> CircuitResult<()> {
+    use ElementKind::*;
+    match t.sampling() {
+        Sampling::Voltage => {
+            add(c, "Ro", Resistor, "a", "out", a.ro)?;
+            add(c, "Rl", Resistor, "out", "0", rl)?;
+        }
+        Sampling::Current => {
+            add(c, "Ro", Resistor, "out", "0", a.ro)?;
+            add(c, "Rl", Resistor, "out", sense, rl)?;
+        }
+    }
+    if a.co > 0.0 {
+        add(c, "Co", Capacitor, "out", "0", a.co)?;
+    }
+    Ok(())
+}
+
+/// A pair of nodes (positive, negative).
+type Port = (&'static str, &'static str);
+
+/// The feedback network's input and output ports and the load's port.
+fn ports(t: Topology, sense: &'static str) -> (Port, Port, Port) {
+    let (input_port, output_port) = match t {
+        Topology::SeriesShunt => (("fb", "0"), ("out", "0")),
+        Topology::ShuntShunt => (("in", "0"), ("out", "0")),
+        Topology::SeriesSeries => (("fb", "0"), (sense, "0")),
+        Topology::ShuntSeries => (("in", "0"), ("ld", "0")),
+    };
+    let load_port = match t.sampling() {
+        Sampling::Voltage => ("out", "0"),
+        Sampling::Current => ("out", output_port.0),
+    };
+    (input_port, output_port, load_port)
+}
+
+/// The resistive (optionally R‖C) feedback network of the topology. Returns the names
+/// of its elements in the order the two-port extraction expects.
+fn add_feedback_network(
+    c: &mut Circuit,
+    t: Topology,
+    n: &FeedbackNetwork,
+    sense: &str,
+) -> CircuitResult<&'static [&'static str]> {
+    use ElementKind::*;
+    match t {
+        Topology::SeriesShunt => {
+            add(c, "Rf", Resistor, "out", "fb", n.rf)?;
+            add(c, "Rg", Resistor, "fb", "0", n.rg)?;
+            if n.cf > 0.0 {
+                add(c, "Cf", Capacitor, "out", "fb", n.cf)?;
+            }
+        }
+        Topology::ShuntShunt => {
+            add(c, "Rf", Resistor, "out", "in", n.rf)?;
+            if n.cf > 0.0 {
+                add(c, "Cf", Capacitor, "out", "in", n.cf)?;
+            }
+        }
+        Topology::SeriesSeries => {
+            add(c, "Rg", Resistor, sense, "0", n.rg)?;
+            if n.cf > 0.0 {
+                add(c, "Cf", Capacitor, sense, "0", n.cf)?;
+            }
+            if n.rf > 0.0 {
+                add(c, "Rf", Resistor, "ld", "fb", n.rf)?;
+            }
+        }
+        Topology::ShuntSeries => {
+            add(c, "Rf", Resistor, "ld", "in", n.rf)?;
+            add(c, "Rg", Resistor, "ld", "0", n.rg)?;
+            if n.cf > 0.0 {
+                add(c, "Cf", Capacitor, "ld", "in", n.cf)?;
+            }
+        }
+    }
+    Ok(match t {
+        Topology::SeriesShunt | Topology::ShuntSeries => present(c, &FB_SERIES_SHUNT),
+        Topology::ShuntShunt => present(c, &FB_SHUNT_SHUNT),
+        Topology::SeriesSeries => match (n.rf > 0.0, n.cf > 0.0) {
+            (true, true) => &["Rg", "Cf", "Rf"],
+            (true, false) => &["Rg", "Rf"],
+            (false, true) => &["Rg", "Cf"],
+            (false, false) => &["Rg"],
+        },
     })
 }
 

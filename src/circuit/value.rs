@@ -1,10 +1,11 @@
 //! Component values in the circuit document: numbers, or text as engineers write
 //! it (`4k7`, `4.7k`, `100nF`, `2R2`), read by the crate's one value parser,
 //! [`crate::notation`] (SI prefixes per the SI Brochure, 9th ed.; IEC 60062 letter
-//! codes), with a length limit and errors named after the document field.
+//! codes), with a length limit, the unit checked against the element's, and
+//! errors named after the document field.
 
 use crate::error::{Error, Result};
-use crate::notation;
+use crate::notation::{self, ReadOptions, Unit};
 
 /// Longest value text accepted, in bytes.
 pub const MAX_VALUE_LEN: usize = 40;
@@ -26,13 +27,37 @@ pub const MAX_VALUE_LEN: usize = 40;
 /// assert_eq!(parse_value("value", "4,7k").unwrap_err().param(), "value");
 /// ```
 pub fn parse_value(param: &'static str, text: &str) -> Result<f64> {
+    parse_value_in(param, text, None)
+}
+
+/// [`parse_value`] for a value declared in `unit` (a resistor's in Ω, a
+/// capacitor's in F…): a value written in another unit is refused.
+///
+/// # Errors
+/// As [`parse_value`]; a unit word other than `unit` is an [`Error::Syntax`] at
+/// the unit's column.
+///
+/// # Example
+/// ```
+/// use loopwright::circuit::value::parse_value_in;
+/// use loopwright::notation::Unit;
+/// assert_eq!(parse_value_in("value", "100 nF", Some(Unit::Farad)).unwrap(), 1e-7);
+/// assert_eq!(parse_value_in("value", "100 nH", Some(Unit::Farad)).unwrap_err().code(), "syntax");
+/// ```
+pub fn parse_value_in(param: &'static str, text: &str, unit: Option<Unit>) -> Result<f64> {
     if text.len() > MAX_VALUE_LEN {
         return Err(Error::TooLarge {
             param,
             limit: MAX_VALUE_LEN as u64,
         });
     }
-    notation::parse_value(text).map_err(|e| e.with_param(param))
+    let options = ReadOptions {
+        unit,
+        ..ReadOptions::VALUE
+    };
+    notation::read(text, &options)
+        .map(|r| r.value)
+        .map_err(|e| e.with_param(param))
 }
 
 #[cfg(test)]

@@ -1,4 +1,4 @@
-//! Feedback relations for all four topologies (catalog area A).
+//! Feedback relations for all four topologies.
 //!
 //! - [`topology`]: the four topologies, their names and units;
 //! - [`gain`]: closed-loop gain, loop gain, amount of feedback, phasor forms;

@@ -1,4 +1,4 @@
-//! Frequency response, bandwidth and stability of a feedback loop (catalog area B).
+//! Frequency response, bandwidth and stability of a feedback loop.
 //!
 //! Enter the open-loop amplifier A(s) you have (gain, poles, zeros, complex
 //! pairs, integrators, low cuts, a delay) and the feedback network β(s); get the

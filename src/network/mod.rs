@@ -1,4 +1,4 @@
-//! Feedback-network synthesis and tolerance (catalog area C).
+//! Feedback-network synthesis and tolerance.
 //!
 //! - [`eseries`]: the IEC 60063 series E3 … E192, nearest / next-up / next-down
 //!   standard values in any decade;
@@ -16,9 +16,7 @@ pub mod montecarlo;
 pub mod pairs;
 pub mod worstcase;
 
-pub use crate::notation::{
-    format_si, letter_code, parse_value, parse_value_with_unit, ParsedValue,
-};
+pub use crate::notation::{format_si, letter_code, parse_value, parse_value_with_unit, Reading};
 pub use eseries::{
     neighbours, series_values, standard_value, Neighbours, Rounding, Series, SERIES_NAMES,
 };

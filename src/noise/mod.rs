@@ -1,4 +1,4 @@
-//! Noise of op-amp feedback stages (catalog area E, second half).
+//! Noise of op-amp feedback stages.
 //!
 //! - [`thermal`]: 4kTR thermal noise, Boltzmann constant per the 2019 SI;
 //! - [`amplifier`]: op-amp voltage and current noise with 1/f corners;

@@ -10,7 +10,7 @@
 //!   "version": 1,
 //!   "cells": {
 //!     "A1": "100k",
-//!     "B1": "=FB.GAIN(gain; 0.01)"
+//!     "B1": "=FEEDBACK.GAIN(gain; 0.01)"
 //!   },
 //!   "names": {
 //!     "gain": "A1"
@@ -29,12 +29,16 @@
 //! CSV (RFC 4180: comma separated, CRLF line ends, fields with `,` `"` or line
 //! breaks quoted with `"` doubled) and TSV (tab separated, LF line ends, the same
 //! quoting for fields with tabs, quotes or line breaks) carry shown values:
-//! numbers in shortest round-trip form without unit, TRUE/FALSE, error codes.
+//! numbers in shortest round-trip form without unit, TRUE/FALSE, error codes. Both
+//! are read and written by [`crate::csv`], which also neutralises formula injection:
+//! text beginning with `=`, `+`, `-`, `@`, a tab or a carriage return gets an
+//! apostrophe in front (`'=A1`), unless it is a plain decimal number.
 
 use super::address::{CellRef, Range};
 use super::json::{self, Json, JsonWriter};
 use super::sheet::{valid_name, Sheet, MAX_CELLS, MAX_INPUT_BYTES, MAX_NAMES};
-use super::value::{write_number, Value};
+use super::value::Value;
+use crate::csv;
 use crate::error::{Error, Result};
 use alloc::collections::BTreeSet;
 use alloc::format;
@@ -50,6 +54,10 @@ pub const VERSION: u32 = 1;
 pub const MAX_DOCUMENT_BYTES: usize = 16 * 1024 * 1024;
 /// Most cells one TSV paste may set.
 pub const MAX_PASTE_CELLS: usize = 100_000;
+/// Longest TSV text one paste may bring, in UTF-8 bytes (the document limit).
+pub const MAX_PASTE_BYTES: usize = MAX_DOCUMENT_BYTES;
+/// Bytes read between two checks of the pasted field count.
+const PASTE_CHUNK: usize = 4096;
 
 /// Why a document was refused.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -240,20 +248,13 @@ impl Sheet {
     }
 }
 
+/// One shown value as a CSV/TSV field: numbers as numbers (full precision, no unit),
+/// everything else as text through [`csv::write_text`] (quoted when needed, and an
+/// apostrophe in front of text a spreadsheet program would run as a formula).
 fn field(out: &mut String, v: &Value, sep: char) {
-    let text = match v {
-        Value::Number(x, _) => {
-            write_number(out, *x);
-            return;
-        }
-        v => v.display(),
-    };
-    if text.contains([sep, '"', '\n', '\r']) {
-        out.push('"');
-        out.push_str(&text.replace('"', "\"\""));
-        out.push('"');
-    } else {
-        out.push_str(&text);
+    match v {
+        Value::Number(x, _) => csv::write_number(out, *x),
+        v => csv::write_text(out, &v.display(), sep),
     }
 }
 
@@ -293,55 +294,56 @@ pub fn range_to_tsv(sheet: &Sheet, r: Range) -> Result<String> {
     Ok(write_range(sheet, r, '\t', "\n"))
 }
 
-/// Split TSV text into rows of fields (quoted fields may hold tabs, quotes and
-/// line breaks; a final line break does not start a new row).
-pub fn parse_tsv(text: &str) -> Vec<Vec<String>> {
-    let mut rows = Vec::new();
-    let mut row = Vec::new();
-    let mut cur = String::new();
-    let mut chars = text.chars().peekable();
-    let mut at_field_start = true;
-    let mut in_quotes = false;
-    while let Some(ch) = chars.next() {
-        if in_quotes {
-            if ch == '"' {
-                if chars.peek() == Some(&'"') {
-                    cur.push('"');
-                    chars.next();
-                } else {
-                    in_quotes = false;
-                }
-            } else {
-                cur.push(ch);
-            }
-            continue;
-        }
-        match ch {
-            '"' if at_field_start => {
-                in_quotes = true;
-                at_field_start = false;
-            }
-            '\t' => {
-                row.push(core::mem::take(&mut cur));
-                at_field_start = true;
-            }
-            '\r' if chars.peek() == Some(&'\n') => {}
-            '\n' | '\r' => {
-                row.push(core::mem::take(&mut cur));
-                rows.push(core::mem::take(&mut row));
-                at_field_start = true;
-            }
-            c => {
-                cur.push(c);
-                at_field_start = false;
-            }
-        }
+/// Split TSV text into rows of fields with the project's one reader
+/// ([`csv::Reader`], tab-separated, RFC 4180 quoting): quoted fields may hold tabs,
+/// quotes written twice and line breaks; an empty line is a row of one empty field;
+/// a final line break does not start a new row. A field that breaks the quoting
+/// rules (`12" woofer`) is taken as written, as a pasted cell should be.
+///
+/// # Errors
+/// [`Error::TooLarge`] on `text` above [`MAX_PASTE_BYTES`] bytes or with a row
+/// longer than [`csv::MAX_RECORD_BYTES`] bytes or [`csv::MAX_FIELDS`] fields, and on `range`
+/// as soon as more than [`MAX_PASTE_CELLS`] fields have been read (the text is read
+/// in small chunks, so no more than that is ever allocated).
+pub fn parse_tsv(text: &str) -> Result<Vec<Vec<String>>> {
+    if text.len() > MAX_PASTE_BYTES {
+        return Err(Error::TooLarge {
+            param: "text",
+            limit: MAX_PASTE_BYTES as u64,
+        });
     }
-    if !cur.is_empty() || !row.is_empty() || (!at_field_start && !in_quotes) {
-        row.push(cur);
-        rows.push(row);
+    let too_many = Error::TooLarge {
+        param: "range",
+        limit: MAX_PASTE_CELLS as u64,
+    };
+    let mut reader = csv::Reader::new(b'\t', csv::BlankLines::Keep);
+    let mut records = Vec::new();
+    let mut cells = 0usize;
+    let mut count = |records: &[csv::Record], from: usize| -> Result<()> {
+        for r in &records[from..] {
+            if r.problem == Some(csv::Problem::TooLong) {
+                return Err(Error::TooLarge {
+                    param: "text",
+                    limit: csv::MAX_RECORD_BYTES as u64,
+                });
+            }
+            cells += r.fields.len();
+        }
+        if cells > MAX_PASTE_CELLS {
+            return Err(too_many);
+        }
+        Ok(())
+    };
+    // One chunk adds at most PASTE_CHUNK fields before the count is checked.
+    for chunk in text.as_bytes().chunks(PASTE_CHUNK) {
+        let from = records.len();
+        reader.feed(chunk, &mut records);
+        count(&records, from)?;
     }
-    rows
+    let from = records.len();
+    reader.finish(&mut records);
+    count(&records, from)?;
+    Ok(records.into_iter().map(|r| r.fields).collect())
 }
 
 impl Sheet {
@@ -349,18 +351,13 @@ impl Sheet {
     /// that cell's input (an empty field clears the cell); one recalculation.
     ///
     /// # Errors
-    /// [`Error::TooLarge`] above [`MAX_PASTE_CELLS`] fields;
+    /// As [`parse_tsv`] (too large a text or too many fields, refused before the
+    /// sheet is touched);
     /// [`Error::OutOfDomain`] on `cell` when the block would pass the sheet's
     /// edge; as [`Sheet::set_many`] otherwise. Nothing is set on error.
     pub fn paste_tsv(&mut self, top_left: CellRef, text: &str) -> Result<&[CellRef]> {
-        let rows = parse_tsv(text);
+        let rows = parse_tsv(text)?;
         let count: usize = rows.iter().map(Vec::len).sum();
-        if count > MAX_PASTE_CELLS {
-            return Err(Error::TooLarge {
-                param: "range",
-                limit: MAX_PASTE_CELLS as u64,
-            });
-        }
         let mut edits = Vec::with_capacity(count);
         for (i, row) in rows.iter().enumerate() {
             for (j, f) in row.iter().enumerate() {
@@ -385,7 +382,7 @@ mod tests {
 
     #[test]
     fn tsv_fields_and_quotes() {
-        let rows = parse_tsv("a\tb\n\"x\ty\"\t\"q\"\"q\"\r\n\t\n");
+        let rows = parse_tsv("a\tb\n\"x\ty\"\t\"q\"\"q\"\r\n\t\n").unwrap();
         assert_eq!(
             rows,
             [
@@ -394,8 +391,45 @@ mod tests {
                 alloc::vec!["", ""]
             ]
         );
-        assert!(parse_tsv("").is_empty());
-        assert_eq!(parse_tsv("1"), [alloc::vec!["1"]]);
+        assert!(parse_tsv("").unwrap().is_empty());
+        assert_eq!(parse_tsv("1").unwrap(), [alloc::vec!["1"]]);
+        // An inch mark in a pasted cell is kept as written; an empty line is an
+        // empty cell.
+        assert_eq!(
+            parse_tsv("12\" woofer\t2\n\nx").unwrap(),
+            [
+                alloc::vec!["12\" woofer", "2"],
+                alloc::vec![""],
+                alloc::vec!["x"]
+            ]
+        );
+    }
+
+    #[test]
+    fn tsv_sizes_are_refused_before_reading() {
+        let refused = |text: &str| match parse_tsv(text) {
+            Ok(rows) => panic!("accepted {} rows", rows.len()),
+            Err(e) => (e.code(), e.param()),
+        };
+        assert_eq!(
+            refused(&"\t".repeat(MAX_PASTE_BYTES + 1)),
+            ("too_large", "text")
+        );
+        // One row longer than the reader keeps whole.
+        assert_eq!(
+            refused(&"\t".repeat(csv::MAX_FIELDS)),
+            ("too_large", "text")
+        );
+        // 10 001 rows of 10 fields.
+        let row = "1\t".repeat(9) + "1\n";
+        assert_eq!(
+            refused(&row.repeat(MAX_PASTE_CELLS / 10 + 1)),
+            ("too_large", "range")
+        );
+        assert_eq!(
+            parse_tsv(&row.repeat(MAX_PASTE_CELLS / 10)).unwrap().len(),
+            MAX_PASTE_CELLS / 10
+        );
     }
 
     #[test]

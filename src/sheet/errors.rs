@@ -104,7 +104,7 @@ impl fmt::Display for ErrorKind {
 pub struct CellError {
     /// The kind, shown in the cell.
     pub kind: ErrorKind,
-    /// What went wrong here, e.g. `"FB.GAIN: beta: must be a finite number"`;
+    /// What went wrong here, e.g. `"FEEDBACK.GAIN: beta: must be a finite number"`;
     /// empty when an error literal was typed.
     pub detail: String,
 }
@@ -168,11 +168,11 @@ mod tests {
 
     #[test]
     fn core_errors_keep_their_sentence() {
-        let e = CellError::from_core("FB.GAIN", Error::NotFinite { param: "beta" });
+        let e = CellError::from_core("FEEDBACK.GAIN", Error::NotFinite { param: "beta" });
         assert_eq!(e.kind, ErrorKind::Num);
-        assert!(e.message().starts_with("FB.GAIN: beta: "));
+        assert!(e.message().starts_with("FEEDBACK.GAIN: beta: "));
         let u = CellError::from_core(
-            "FB.ZIN",
+            "FEEDBACK.ZIN",
             Error::UnknownName {
                 param: "topology",
                 expected: "x",

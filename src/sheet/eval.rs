@@ -349,10 +349,45 @@ fn call(spec: &'static FunctionSpec, args: &[Expr], ev: &Eval<'_>) -> Value {
             values.push(Value::Number(d, None));
         }
     }
-    (spec.eval)(&Args {
+    with_result_units(
         spec,
-        values: &values,
-    })
+        (spec.eval)(&Args {
+            spec,
+            values: &values,
+        }),
+    )
+}
+
+/// Tag the numbers of a catalog function's result with the units its catalog entry
+/// states (`result_unit`, one per spilled column, separated by `; `), where a
+/// number has none and the stated unit is a unit word (`Hz`, `s`, `Ω`…), so that a
+/// cell shows `6.88771 µs`, not a bare number. Units the reader does not know
+/// (`V/V`, `%`, `as a`) leave the number as it is.
+fn with_result_units(spec: &FunctionSpec, v: Value) -> Value {
+    let unit_at = |col: usize| {
+        let n = spec.result_unit.split("; ").count();
+        spec.result_unit
+            .split("; ")
+            .nth(col % n.max(1))
+            .and_then(Unit::from_word)
+    };
+    match v {
+        Value::Number(x, None) => Value::Number(x, unit_at(0)),
+        Value::Array(a) => {
+            let cols = a.cols() as usize;
+            let items = a
+                .items()
+                .iter()
+                .enumerate()
+                .map(|(i, item)| match item {
+                    Value::Number(x, None) => Value::Number(*x, unit_at(i % cols.max(1))),
+                    other => other.clone(),
+                })
+                .collect();
+            Array::new(a.rows(), a.cols(), items).map_or(Value::Array(a), Value::Array)
+        }
+        v => v,
+    }
 }
 
 fn lazy_if(spec: &'static FunctionSpec, args: &[Expr], ev: &Eval<'_>) -> Value {
@@ -417,7 +452,7 @@ mod tests {
         assert_eq!(ev("1V/1A"), Value::num(1.0));
         assert_eq!(kind("1V + 1A"), ErrorKind::Value);
         assert_eq!(
-            kind("FB.ZIN(\"series-shunt\"; 1V; 10; 0.1)"),
+            kind("FEEDBACK.ZIN(\"series-shunt\"; 1V; 10; 0.1)"),
             ErrorKind::Value
         );
         assert_eq!(kind("DB.VOLTAGERATIO(3 Hz)"), ErrorKind::Value);
@@ -455,7 +490,8 @@ mod tests {
 
     #[test]
     fn arrays_apply_item_by_item() {
-        let Value::Array(a) = evaluate(&parse("FB.CEILING(100k; 100) * 2").unwrap(), &Empty) else {
+        let Value::Array(a) = evaluate(&parse("FEEDBACK.CEILING(100k; 100) * 2").unwrap(), &Empty)
+        else {
             panic!()
         };
         assert_eq!(a.get(0, 0), Value::num(2000.0));

@@ -99,8 +99,10 @@ pub fn tokenize(src: &str) -> Result<Vec<Spanned>, ParseError> {
         } else if c.is_ascii_digit()
             || (c == '.' && rest[1..].starts_with(|d: char| d.is_ascii_digit()))
         {
-            let (q, used) =
-                literal::scan(rest).map_err(|message| ParseError { pos: col, message })?;
+            let (q, used) = literal::scan(rest).map_err(|(at, message)| ParseError {
+                pos: col + at as usize - 1,
+                message,
+            })?;
             len = used;
             token = Token::Number(q.value, q.unit);
         } else if c == '"' {
@@ -207,7 +209,10 @@ mod tests {
             kinds("LOG10")[0],
             Token::Cell(CellRef::parse("LOG10").unwrap())
         );
-        assert_eq!(kinds("FB.GAIN(1;2)")[0], Token::Ident("FB.GAIN".into()));
+        assert_eq!(
+            kinds("FEEDBACK.GAIN(1;2)")[0],
+            Token::Ident("FEEDBACK.GAIN".into())
+        );
     }
 
     #[test]
@@ -216,7 +221,8 @@ mod tests {
         assert_eq!(tokenize("µ + 1 ? 2").unwrap_err().pos, 1);
         assert_eq!(tokenize("1 + 2 ? 2").unwrap_err().pos, 7);
         assert_eq!(tokenize("#BAD").unwrap_err().pos, 1);
-        assert_eq!(tokenize("1 + 3x").unwrap_err().pos, 5);
+        // The column of the first character that does not read: the x.
+        assert_eq!(tokenize("1 + 3x").unwrap_err().pos, 6);
         let long = "1+".repeat(3000);
         assert!(tokenize(&long).is_err());
     }

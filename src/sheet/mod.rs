@@ -1,4 +1,4 @@
-//! The worksheet formula engine (catalog area F).
+//! The worksheet formula engine.
 //!
 //! Cells hold numbers (with engineering notation and units), text, truth values
 //! or formulas after the OpenFormula standard; formulas call the common
@@ -12,8 +12,8 @@
 //!
 //! let mut s = Sheet::new();
 //! s.set("A1", "100k").unwrap();           // open-loop gain
-//! s.set("A2", "=FB.BETA(A1; 100)").unwrap(); // β for a gain of 100
-//! s.set("A3", "=FB.GAIN(A1; A2)").unwrap();
+//! s.set("A2", "=FEEDBACK.BETA(A1; 100)").unwrap(); // β for a gain of 100
+//! s.set("A3", "=FEEDBACK.GAIN(A1; A2)").unwrap();
 //! assert!(matches!(s.value("A3").unwrap(), Value::Number(x, None) if (x - 100.0).abs() < 1e-9));
 //! // Edit one number and everything follows; the edit reports what changed.
 //! let changed = s.set("A1", "200k").unwrap();

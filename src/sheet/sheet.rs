@@ -28,7 +28,7 @@ use super::errors::{CellError, ErrorKind};
 use super::eval::{evaluate, Context, MAX_RANGE_CELLS};
 use super::graph::{order, Dep, Graph};
 use super::lexer::ParseError;
-use super::literal::parse_cell_number;
+use super::literal::{read_cell, CellReading};
 use super::parser::{parse, Expr};
 use super::value::Value;
 use crate::error::{Error, Result};
@@ -100,9 +100,10 @@ fn read_input(input: &str) -> Content {
     if let Some(k) = ErrorKind::from_code(t) {
         return Content::Constant(Value::Error(CellError::new(k, "")));
     }
-    match parse_cell_number(t) {
-        Some(q) => Content::Constant(Value::Number(q.value, q.unit)),
-        None => Content::Constant(Value::Text(String::from(input))),
+    match read_cell(input) {
+        CellReading::Number(q) => Content::Constant(Value::Number(q.value, q.unit)),
+        CellReading::Error(detail) => Content::Constant(Value::error(ErrorKind::Syntax, detail)),
+        CellReading::Text => Content::Constant(Value::Text(String::from(input))),
     }
 }
 
@@ -873,7 +874,7 @@ mod tests {
     #[test]
     fn spills_block_and_unblock() {
         let mut s = Sheet::new();
-        s.set("A1", "=FB.CEILING(100k; 100)").unwrap();
+        s.set("A1", "=FEEDBACK.CEILING(100k; 100)").unwrap();
         assert_eq!(s.value("B1").unwrap(), Value::num(0.00099));
         assert_eq!(
             (s.spill_anchor(c("B1")), s.spill_anchor(c("A1"))),
@@ -896,7 +897,7 @@ mod tests {
         s.set("B0", "").unwrap_err();
         // B1 is free for another spill: A2 spills [A/D, (D − 1)/A] = [10⁴, 9·10⁻⁵]
         // into A2:B2, and A1 copies that row into A1:B1.
-        s.set("A2", "=FB.CEILING(100k; 10)").unwrap();
+        s.set("A2", "=FEEDBACK.CEILING(100k; 10)").unwrap();
         s.set("A1", "=A2:B2").unwrap();
         assert_eq!(s.value("B1").unwrap(), Value::num(9e-5));
         assert_eq!(s.value("C1").unwrap(), Value::num(9e-5 * 2.0));
@@ -911,7 +912,7 @@ mod tests {
             matches!(s.value("A1").unwrap(), Value::Error(e) if e.kind == ErrorKind::Cycle && e.detail.contains("B2"))
         );
         // Through another formula: A1 spills into B1, which C5 reads, which A1 reads.
-        s.set("A1", "=FB.CEILING(1000 + C5; 100)").unwrap();
+        s.set("A1", "=FEEDBACK.CEILING(1000 + C5; 100)").unwrap();
         // β = (D − 1)/A = 99/1000.
         assert_eq!(s.value("B1").unwrap(), Value::num(0.099));
         s.set("C5", "=B1*0").unwrap();
@@ -960,7 +961,7 @@ mod tests {
         s.set("A2", "0.01").unwrap();
         s.set_name("gain", c("A1")).unwrap();
         s.set_name("Beta", c("A2")).unwrap();
-        s.set("B1", "=FB.GAIN(gain; beta)").unwrap();
+        s.set("B1", "=FEEDBACK.GAIN(gain; beta)").unwrap();
         assert_eq!(s.value("B1").unwrap(), Value::num(1e5 / 1001.0));
         s.set("A2", "0.1").unwrap();
         assert_eq!(s.value("B1").unwrap(), Value::num(1e5 / 10001.0));

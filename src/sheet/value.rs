@@ -4,64 +4,11 @@
 use super::errors::{CellError, ErrorKind};
 use alloc::string::String;
 use alloc::vec::Vec;
-use core::fmt::{self, Write};
+use core::fmt;
 
-/// The unit words a literal may carry (`10kΩ`, `2.2 uF`, `3 dB`).
-#[derive(Debug, Clone, Copy, PartialEq, Eq, Hash, PartialOrd, Ord)]
-pub enum Unit {
-    /// Ω, also written `ohm`.
-    Ohm,
-    /// V.
-    Volt,
-    /// A.
-    Ampere,
-    /// S.
-    Siemens,
-    /// Hz.
-    Hertz,
-    /// F.
-    Farad,
-    /// H.
-    Henry,
-    /// dB (takes no SI prefix).
-    Decibel,
-}
-
-impl Unit {
-    /// Every unit.
-    pub const ALL: [Unit; 8] = [
-        Unit::Ohm,
-        Unit::Volt,
-        Unit::Ampere,
-        Unit::Siemens,
-        Unit::Hertz,
-        Unit::Farad,
-        Unit::Henry,
-        Unit::Decibel,
-    ];
-
-    /// The symbol as shown.
-    pub const fn symbol(self) -> &'static str {
-        match self {
-            Unit::Ohm => "Ω",
-            Unit::Volt => "V",
-            Unit::Ampere => "A",
-            Unit::Siemens => "S",
-            Unit::Hertz => "Hz",
-            Unit::Farad => "F",
-            Unit::Henry => "H",
-            Unit::Decibel => "dB",
-        }
-    }
-
-    /// The unit spelled exactly `s`: a symbol, `ohm`, or the Ohm sign U+2126.
-    pub fn from_word(s: &str) -> Option<Unit> {
-        match s {
-            "ohm" | "Ω" => Some(Unit::Ohm),
-            _ => Unit::ALL.iter().copied().find(|u| u.symbol() == s),
-        }
-    }
-}
+/// The unit words a literal may carry (`10kΩ`, `2.2 uF`, `3 dB`): the crate's one
+/// list, [`crate::notation::Unit`].
+pub use crate::notation::Unit;
 
 /// A rectangular block of scalar values, row by row.
 #[derive(Debug, Clone, PartialEq)]
@@ -185,17 +132,10 @@ impl Value {
 }
 
 /// Write a finite number in the shortest form that reads back to the same f64:
-/// plain digits between 10⁻⁶ and 10¹⁵, exponent form outside.
+/// plain digits between 10⁻⁶ and 10¹⁵, exponent form outside (the full-precision
+/// form of [`crate::notation::write_full`]).
 pub fn write_number(out: &mut String, x: f64) {
-    let a = libm::fabs(x);
-    // Writing to a String cannot fail.
-    let _ = if a == 0.0 {
-        out.write_str("0")
-    } else if (1e-6..1e15).contains(&a) {
-        write!(out, "{x}")
-    } else {
-        write!(out, "{x:e}")
-    };
+    crate::notation::write_full(out, x);
 }
 
 /// [`write_number`] into a new string.

@@ -1,6 +1,6 @@
-//! JS bindings for loading-aware circuit analysis (catalog area D).
+//! JS bindings for loading-aware circuit analysis.
 //!
-//! Circuits cross the boundary as the JSON text of `docs/circuit-format.md`.
+//! Circuits cross the boundary as the JSON text of `docs/circuit.md`.
 //! Errors are thrown as JS `Error`s named `LoopwrightError` with `code`, `param`
 //! and `subject` (the node or element at fault, or `""`).
 
@@ -30,7 +30,7 @@ export interface CurrentControlledElement extends CircuitElementBase { kind: "cc
 /** A fixed complex admittance value + j·valueIm, S. */
 export interface AdmittanceElement extends CircuitElementBase { kind: "admittance"; valueIm?: CircuitValue; }
 export type CircuitElement = TwoTerminalElement | VoltageControlledElement | CurrentControlledElement | AdmittanceElement;
-/** The circuit document (docs/circuit-format.md); the functions take and give its JSON text. */
+/** The circuit document (docs/circuit.md); the functions take and give its JSON text. */
 export interface CircuitDocument {
   format: "loopwright-circuit";
   version: 1;

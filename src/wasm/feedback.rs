@@ -1,4 +1,4 @@
-//! JS bindings for the feedback relations (catalog area A).
+//! JS bindings for the feedback relations.
 
 use super::{scalar, throw, to_js, write_scratch};
 use crate::feedback::{self as fb, Topology};

@@ -1,4 +1,4 @@
-//! JS bindings for frequency response, bandwidth and stability (catalog area B).
+//! JS bindings for frequency response, bandwidth and stability.
 //!
 //! A model is a plain object `{gain, polesHz, zerosHz, rhpZerosHz, rhpPolesHz,
 //! complexPoles: [{freqHz, q}], complexZeros, originPoles, lowCutsHz, delayS}`;

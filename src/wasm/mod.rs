@@ -4,7 +4,7 @@
 //! the result: numbers stay `f64`, structured results become plain JS objects via
 //! serde-wasm-bindgen, sweeps become typed arrays, and every [`crate::Error`] is
 //! thrown as a JS `Error` with `code` and `param` fields. JS names are camelCase.
-//! One file per catalog area.
+//! One file per area (the table in DEVELOPERS.md).
 //!
 //! Scalar functions (one `f64` out) are the exception to "thrown by the glue": they
 //! return a bare `f64` — the answer, or NaN with the error kept aside — and the
@@ -15,12 +15,15 @@
 // without them the module is the "lite" one (feature `wasm-lite`), less than half
 // the size.
 #[cfg(feature = "wasm")]
+pub mod batch;
+#[cfg(feature = "wasm")]
 pub mod circuit;
+pub mod distortion;
 pub mod feedback;
 pub mod freq;
 pub mod network;
 pub mod noise;
-pub mod nonlinear;
+pub mod notation;
 pub(crate) mod options;
 #[cfg(feature = "wasm")]
 pub mod sheet;
@@ -34,7 +37,7 @@ const ERROR_TYPES: &str = r#"
 /** Machine-readable reason of a thrown LoopwrightError. */
 export type ErrorCode =
   | "not_finite" | "out_of_domain" | "unreachable" | "oscillation" | "unknown_name"
-  | "too_large" | "overflow" | "no_convergence" | "singular"
+  | "too_large" | "overflow" | "no_convergence" | "singular" | "syntax"
   | "wrong_type" | "missing" | "unknown_field"
   | "bad_document";
 /**
@@ -45,6 +48,8 @@ export interface LoopwrightError extends Error {
   name: "LoopwrightError";
   code: ErrorCode;
   param: string;
+  /** For `syntax`: the 1-based character column where the text stopped reading. */
+  column?: number;
 }
 /**
  * What `Worksheet.loadDocument` throws for a refused document (the sheet stays as it

@@ -1,4 +1,4 @@
-//! JS bindings for feedback-network synthesis and tolerance (catalog area C).
+//! JS bindings for feedback-network synthesis and tolerance.
 
 use super::{scalar, throw, to_js};
 use crate::network::montecarlo::count_from_number;

@@ -1,4 +1,4 @@
-//! JS bindings for the noise of op-amp stages (catalog area E).
+//! JS bindings for the noise of op-amp stages.
 //!
 //! A stage is given as `kind` (`"non-inverting"` or `"inverting"`), resistors
 //! `rFeedback, rGain, rPlus` in Ω and `temperatureK`; the amplifier as

@@ -323,6 +323,9 @@ pub(crate) fn error_at(param: &str, e: Error, sentence: Option<String>) -> JsVal
     // Reflect::set only fails on frozen or proxy objects; a fresh Error is neither.
     let _ = js_sys::Reflect::set(obj, &"code".into(), &e.code().into());
     let _ = js_sys::Reflect::set(obj, &"param".into(), &param.into());
+    if let Some(column) = e.column() {
+        let _ = js_sys::Reflect::set(obj, &"column".into(), &column.into());
+    }
     err.into()
 }
 

@@ -1,8 +1,8 @@
-//! JS bindings for the worksheet engine (catalog area F): a `Worksheet` class,
+//! JS bindings for the worksheet engine: a `Worksheet` class,
 //! the function catalog and the list of error values.
 
 use super::{js_error, throw, to_js};
-use crate::sheet::document::{range_to_tsv, to_csv};
+use crate::sheet::document::{range_to_tsv, to_csv, MAX_PASTE_BYTES};
 use crate::sheet::errors::ErrorKind;
 use crate::sheet::functions::catalog_json;
 use crate::sheet::{CellRef, Range, Sheet, Value};
@@ -10,6 +10,7 @@ use alloc::string::{String, ToString};
 use alloc::vec::Vec;
 use serde::Serialize;
 use wasm_bindgen::prelude::*;
+use wasm_bindgen::JsCast;
 
 #[wasm_bindgen(typescript_custom_section)]
 const SHEET_TYPES: &str = r##"
@@ -72,6 +73,26 @@ fn range(text: &str) -> Result<Range, JsValue> {
         param: "range",
         requirement: "must be a range such as A1:C4 or a single cell address",
     }))
+}
+
+/// The pasted text as a Rust string, refused by its JS length before it is copied:
+/// a UTF-16 length above the byte limit is certainly above it in UTF-8 (each code
+/// unit takes at least one byte), and nothing is allocated for it.
+fn pasted_text(text: &JsValue) -> Result<String, JsValue> {
+    let too_large = crate::Error::TooLarge {
+        param: "text",
+        limit: MAX_PASTE_BYTES as u64,
+    };
+    let Some(js) = text.dyn_ref::<js_sys::JsString>() else {
+        return Err(js_error(crate::Error::OutOfDomain {
+            param: "text",
+            requirement: "must be a string of tab-separated values",
+        }));
+    };
+    if js.length() as usize > MAX_PASTE_BYTES {
+        return Err(js_error(too_large));
+    }
+    Ok(String::from(js))
 }
 
 fn addresses(cells: &[CellRef]) -> js_sys::Array {
@@ -166,7 +187,7 @@ impl Worksheet {
         Worksheet::default()
     }
 
-    /// Set a cell's input (`"4k7"`, `"=FB.GAIN(A1; A2)"`, `""` to clear); returns
+    /// Set a cell's input (`"4k7"`, `"=FEEDBACK.GAIN(A1; A2)"`, `""` to clear); returns
     /// the addresses whose shown value changed.
     #[wasm_bindgen(js_name = setCell, unchecked_return_type = "string[]")]
     pub fn set_cell(&mut self, address: &str, input: &str) -> Result<js_sys::Array, JsValue> {
@@ -276,10 +297,18 @@ impl Worksheet {
     }
 
     /// Paste TSV with its first field at `address`; returns the changed addresses.
+    /// Throws `too_large` on `text` above 16 MiB (checked on the JS string's length
+    /// before it is copied into the module) and on `range` above 100 000 fields; a
+    /// refused paste leaves the sheet as it was.
     #[wasm_bindgen(js_name = pasteTsv, unchecked_return_type = "string[]")]
-    pub fn paste_tsv(&mut self, address: &str, text: &str) -> Result<js_sys::Array, JsValue> {
+    pub fn paste_tsv(
+        &mut self,
+        address: &str,
+        #[wasm_bindgen(unchecked_param_type = "string")] text: JsValue,
+    ) -> Result<js_sys::Array, JsValue> {
         let c = cell(address)?;
-        Ok(addresses(throw(self.sheet.paste_tsv(c, text))?))
+        let text = pasted_text(&text)?;
+        Ok(addresses(throw(self.sheet.paste_tsv(c, &text))?))
     }
 }
 

@@ -64,9 +64,9 @@ test('keyboard entry, formulas, navigation and error values', async () => {
   await page.keyboard.type('=A1*2');
   await page.keyboard.press('Enter');
   assert.equal(await page.evaluate(() => document.activeElement.id), 'cell-A3');
-  // IEC 60062: 4k7 = 4700; doubled 9400.
-  assert.equal(await shown(page, 'A1'), '4700');
-  assert.equal(await shown(page, 'A2'), '9400');
+  // IEC 60062: 4k7 = 4700; doubled 9400; shown by the one display (docs/notation.md).
+  assert.equal(await shown(page, 'A1'), '4.7 k');
+  assert.equal(await shown(page, 'A2'), '9.4 k');
   // Arrow keys move; Tab moves right.
   await page.keyboard.press('ArrowUp');
   await page.keyboard.press('Tab');
@@ -87,7 +87,7 @@ test('keyboard entry, formulas, navigation and error values', async () => {
   assert.match(await shown(page, 'C2'), /^#/);
   // Editing an input changes its dependents.
   await typeAt(page, 'A1', '1k');
-  assert.equal(await shown(page, 'A2'), '2000');
+  assert.equal(await shown(page, 'A2'), '2 k');
   // Delete clears the selected cell; its dependent follows.
   await cell(page, 'A1').click();
   await page.keyboard.press('Delete');
@@ -117,7 +117,7 @@ test('copy and paste of a range as TSV', async () => {
   await cell(page, 'D5').click();
   await page.keyboard.press('Control+V');
   assert.equal(await shown(page, 'D5'), '3.3');
-  assert.equal(await shown(page, 'E5'), '4700');
+  assert.equal(await shown(page, 'E5'), '4.7 k');
   assert.equal(await shown(page, 'D6'), '6.6');
   assert.equal(await shown(page, 'E6'), 'text');
   assert.deepEqual(problems, []);
@@ -128,7 +128,7 @@ test('save to a file and open it again, nothing lost', async () => {
   const context = await browser.newContext({ acceptDownloads: true });
   const { page } = await openSheet(context);
   await typeAt(page, 'A1', '100k');
-  await typeAt(page, 'A2', '=FB.GAIN(A1; 0.01)');
+  await typeAt(page, 'A2', '=FEEDBACK.GAIN(A1; 0.01)');
   await typeAt(page, 'A3', 'a note with ; and "quotes"');
   const [download] = await Promise.all([page.waitForEvent('download'), page.click('#sheet-save')]);
   const path = join(ARTIFACTS, 'saved.loopwright.json');
@@ -174,8 +174,8 @@ test('share link carries the sheet; autosave recovers after a reload', async () 
   await page.reload();
   await page.waitForSelector('html[data-ready="true"]');
   assert.match(await page.locator('.sheet-note').textContent(), /Recovered/);
-  // 2.2n·1000 = 2.2µ, shown to six digits in exponent form below 1e-4.
-  assert.equal(await shown(page, 'B4'), '2.20000e-6');
+  // 2.2n·1000 = 2.2µ, shown with its SI prefix; the tooltip keeps full precision.
+  assert.equal(await shown(page, 'B4'), '2.2 µ');
   assert.equal(await page.evaluate(() => document.querySelector('#cell-B3').title), '2.2e-9');
   // The link opens in a fresh profile with the same sheet.
   const other = await browser.newContext();
@@ -202,7 +202,7 @@ test('naming a cell from the name box, and going to an address', async () => {
   await cell(page, 'B2').click();
   await page.fill('#sheet-namebox', 'aol');
   await page.press('#sheet-namebox', 'Enter');
-  await typeAt(page, 'C2', '=FB.GAIN(aol; 0.1)');
+  await typeAt(page, 'C2', '=FEEDBACK.GAIN(aol; 0.1)');
   // Af = 250 000/(1 + 25 000) = 9.9996 (closed form).
   assert.equal(await shown(page, 'C2'), '9.9996');
   await page.fill('#sheet-namebox', 'Z200');
@@ -242,7 +242,7 @@ test('the demo loads without error values; help comes from the catalog', async (
   await page.waitForFunction(() => document.querySelector('#cell-B8').textContent.trim() !== '');
   assert.equal(await page.locator('.sheet-grid td.k-error').count(), 0);
   // β for Af = 40 with A = 250 000: 1/40 − 1/250000 = 0.024996 (closed form).
-  assert.equal(await shown(page, 'B7'), '0.024996');
+  assert.equal(await shown(page, 'B7'), '24.996 m');
   // The help panel lists the catalog and filters it.
   const all = await page.locator('.help-fn').count();
   assert.ok(all >= 30, `${all} functions in the help`);
@@ -252,7 +252,7 @@ test('the demo loads without error values; help comes from the catalog', async (
   await cell(page, 'H2').click();
   await page.locator('.help-fn').first().locator('summary').click();
   await page.locator('.help-fn').first().getByRole('button', { name: 'use' }).first().click();
-  assert.match(await page.inputValue('#formula-bar'), /^=FB\./);
+  assert.match(await page.inputValue('#formula-bar'), /^=FEEDBACK\./);
   await page.keyboard.press('Enter');
   assert.notEqual(await shown(page, 'H2'), '');
   await page.screenshot({ path: join(ARTIFACTS, 'worksheet-demo.png') });

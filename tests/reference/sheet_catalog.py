@@ -78,26 +78,26 @@ CASES = {
     "=DB.POWER(100)": [10 * mp.log10(100)],
     "=DB.VOLTAGERATIO(40dB)": [mp.power(10, M(40) / 20)],
     "=DB.POWERRATIO(30 dB)": [mp.power(10, M(30) / 10)],
-    "=FB.GAIN(100k; 0.01)": [gain(M(10**5), M("0.01"))],
-    "=FB.LOOPGAIN(100k; 0.01)": [M(10**5) * M("0.01")],
-    "=FB.AMOUNT(100k; 0.01)": [1 + M(10**5) * M("0.01")],
-    "=FB.AMOUNTDB(100k; 0.01)": [20 * mp.log10(1 + M(10**5) * M("0.01"))],
-    "=FB.SENSITIVITY(100k; 0.01)": [1 / (1 + M(10**5) * M("0.01"))],
-    "=FB.BETA(100k; 100)": [1 / M(100) - 1 / M(10**5)],
-    "=FB.MINGAIN(0.01; 0.1%)": [(1 - M("0.001")) / (M("0.001") * M("0.01"))],
-    "=FB.CEILING(100k; 100)": [M(10**5) / 100, (M(100) - 1) / M(10**5)],
-    "=FB.SPREAD(0.01; 50k; 100k; 200k)": spread(M("0.01"), M(5 * 10**4), M(10**5), M(2 * 10**5)),
-    "=FB.ZIN(\"series-shunt\"; 1MΩ; 100k; 0.01)": [M(10**6) * (1 + M(10**5) * M("0.01"))],
-    "=FB.ZOUT(\"voltage-series\"; 75 ohm; 100k; 0.01)": [M(75) / (1 + M(10**5) * M("0.01"))],
-    "=FB.IMPEDANCES(\"series-series\"; 1k; -1k; 10; 0; 0; 10; 0.1; 0)": impedances_series_series(
+    "=FEEDBACK.GAIN(100k; 0.01)": [gain(M(10**5), M("0.01"))],
+    "=FEEDBACK.LOOPGAIN(100k; 0.01)": [M(10**5) * M("0.01")],
+    "=FEEDBACK.AMOUNT(100k; 0.01)": [1 + M(10**5) * M("0.01")],
+    "=FEEDBACK.AMOUNTDB(100k; 0.01)": [20 * mp.log10(1 + M(10**5) * M("0.01"))],
+    "=FEEDBACK.SENSITIVITY(100k; 0.01)": [1 / (1 + M(10**5) * M("0.01"))],
+    "=FEEDBACK.BETA(100k; 100)": [1 / M(100) - 1 / M(10**5)],
+    "=FEEDBACK.MINGAIN(0.01; 0.1%)": [(1 - M("0.001")) / (M("0.001") * M("0.01"))],
+    "=FEEDBACK.CEILING(100k; 100)": [M(10**5) / 100, (M(100) - 1) / M(10**5)],
+    "=FEEDBACK.SPREAD(0.01; 50k; 100k; 200k)": spread(M("0.01"), M(5 * 10**4), M(10**5), M(2 * 10**5)),
+    "=FEEDBACK.ZIN(\"series-shunt\"; 1MΩ; 100k; 0.01)": [M(10**6) * (1 + M(10**5) * M("0.01"))],
+    "=FEEDBACK.ZOUT(\"voltage-series\"; 75 ohm; 100k; 0.01)": [M(75) / (1 + M(10**5) * M("0.01"))],
+    "=FEEDBACK.IMPEDANCES(\"series-series\"; 1k; -1k; 10; 0; 0; 10; 0.1; 0)": impedances_series_series(
         mp.mpc(1000, -1000), mp.mpc(10, 0), mp.mpc(0, 10), mp.mpc("0.1", 0)
     ),
-    "=FB.PHASOR(0; 100; 0.01; 0)": phasor(mp.mpc(0, 100), mp.mpc("0.01", 0)),
-    "=FB.SUMMARY(\"series-shunt\"; 100k; 0.01)": summary(M(10**5), M("0.01")),
+    "=FEEDBACK.PHASOR(0; 100; 0.01; 0)": phasor(mp.mpc(0, 100), mp.mpc("0.01", 0)),
+    "=FEEDBACK.SUMMARY(\"series-shunt\"; 100k; 0.01)": summary(M(10**5), M("0.01")),
 }
 
 
-# --- frequency and stability (LOOP.), closed forms of one-, two- and three-pole loops
+# --- frequency and stability (FREQ.), closed forms of one-, two- and three-pole loops
 
 
 def two_pole_closed(f1, f2, t0):
@@ -169,23 +169,23 @@ F0, Q2, Z2 = two_pole_closed(M(1000), M(10**5), M(100))
 TAU_ONE = 1 / (2 * mp.pi * M(10) * (1 + M(10**5) * M("0.01")))
 
 CASES.update({
-    "=LOOP.PM(1000; 0.1; 1 kHz; 100 kHz)": two_pole_pm(M(100), M(1000), M(10**5)),
-    "=LOOP.GM(4; 1; 1k; 1k; 1k)": three_equal_gm(M(4), M(1000)),
-    "=LOOP.BANDWIDTH(1000; 0.1; 1k; 100k)": [F0 * f3db(Q2)],
-    "=LOOP.PEAKING(1000; 0.1; 1k; 100k)": [peaking(Q2)[0], F0 * peaking(Q2)[1]],
-    "=LOOP.STEP(100k; 0.01; 2%; 10 Hz)": [M(0), mp.log(9) * TAU_ONE, mp.log(50) * TAU_ONE],
-    "=LOOP.POLES(1000; 0.1; 1k; 100k)": loop_poles(M(100), M(1000), M(10**5)),
-    "=LOOP.EXTEND(10 Hz; 100k; 0.01)": [M(10) * (1 + M(10**5) * M("0.01"))],
-    "=LOOP.LOWCUT(100 Hz; 1000; 0.099)": [M(100) / (1 + M(1000) * M("0.099"))],
-    "=LOOP.GBW(100k; 10 Hz)": [M(10**5) * 10],
-    "=LOOP.TWOPOLE(1k; 100k; 100)": [
+    "=FREQ.PM(1000; 0.1; 1 kHz; 100 kHz)": two_pole_pm(M(100), M(1000), M(10**5)),
+    "=FREQ.GM(4; 1; 1k; 1k; 1k)": three_equal_gm(M(4), M(1000)),
+    "=FREQ.BANDWIDTH(1000; 0.1; 1k; 100k)": [F0 * f3db(Q2)],
+    "=FREQ.PEAKING(1000; 0.1; 1k; 100k)": [peaking(Q2)[0], F0 * peaking(Q2)[1]],
+    "=FREQ.STEP(100k; 0.01; 2%; 10 Hz)": [M(0), mp.log(9) * TAU_ONE, mp.log(50) * TAU_ONE],
+    "=FREQ.POLES(1000; 0.1; 1k; 100k)": loop_poles(M(100), M(1000), M(10**5)),
+    "=FREQ.EXTEND(10 Hz; 100k; 0.01)": [M(10) * (1 + M(10**5) * M("0.01"))],
+    "=FREQ.LOWCUT(100 Hz; 1000; 0.099)": [M(100) / (1 + M(1000) * M("0.099"))],
+    "=FREQ.GBW(100k; 10 Hz)": [M(10**5) * 10],
+    "=FREQ.TWOPOLE(1k; 100k; 100)": [
         F0, Q2, Z2, peaking(Q2)[0], overshoot_percent(Z2), (M(1000) + M(10**5)) ** 2 / (2 * M(1000) * M(10**5)) - 1,
     ],
-    "=LOOP.DOMINANT(100k; 1; 60; 1 MHz; 10 MHz)": dominant_for_margin(M(10**5), M(1), M(60), [M(10**6), M(10**7)]),
-    "=LOOP.MAXBETA(1000; 60; 1; 1k; 100k)": max_beta_for_margin(M(1000), M(60), M(1000), M(10**5)),
+    "=FREQ.DOMINANT(100k; 1; 60; 1 MHz; 10 MHz)": dominant_for_margin(M(10**5), M(1), M(60), [M(10**6), M(10**7)]),
+    "=FREQ.MAXBETA(1000; 60; 1; 1k; 100k)": max_beta_for_margin(M(1000), M(60), M(1000), M(10**5)),
 })
 
-# --- networks and tolerance (RES.): the eseries package (IEC 60063 tables), a
+# --- networks and tolerance (NETWORK.): the eseries package (IEC 60063 tables), a
 # brute-force pair enumeration, corner evaluation and exact Monte Carlo moments
 
 
@@ -288,20 +288,20 @@ def mc_tolerances():
 
 
 CASES.update({
-    "=RES.NEAREST(5k; \"E12\")": [M(eseries.find_nearest(eseries.E12, 5000.0))],
-    "=RES.UP(12345; \"E96\")": [M(eseries.find_greater_than_or_equal(eseries.E96, 12345.0))],
-    "=RES.DOWN(12345; \"E96\")": [M(eseries.find_less_than_or_equal(eseries.E96, 12345.0))],
-    "=RES.TOLERANCE(\"E96\")": [M(eseries.tolerance(eseries.E96))],
-    "=RES.PAIR(\"non-inverting\"; 7.5; \"E12\"; 10k; 100k; 3)": best_pairs_brute(7.5, eseries.E12, 1e4, 1e5, 3),
-    "=RES.WORSTCASE(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 50k; 100k; 200k; 1M; 50; 10 Hz)": worst_case_gain(
+    "=NETWORK.NEAREST(5k; \"E12\")": [M(eseries.find_nearest(eseries.E12, 5000.0))],
+    "=NETWORK.UP(12345; \"E96\")": [M(eseries.find_greater_than_or_equal(eseries.E96, 12345.0))],
+    "=NETWORK.DOWN(12345; \"E96\")": [M(eseries.find_less_than_or_equal(eseries.E96, 12345.0))],
+    "=NETWORK.TOLERANCE(\"E96\")": [M(eseries.tolerance(eseries.E96))],
+    "=NETWORK.PAIR(\"non-inverting\"; 7.5; \"E12\"; 10k; 100k; 3)": best_pairs_brute(7.5, eseries.E12, 1e4, 1e5, 3),
+    "=NETWORK.WORSTCASE(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 50k; 100k; 200k; 1M; 50; 10 Hz)": worst_case_gain(
         M(1000), M(9000), M("0.01"), M(5 * 10**4), M(10**5), M(2 * 10**5)),
-    "=RES.MONTECARLO(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\")":
+    "=NETWORK.MONTECARLO(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\")":
         [MC_MEAN, MC_SD] + MC_PCT,
-    "=RES.YIELD(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\"; 9.9; 10.05)":
+    "=NETWORK.YIELD(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\"; 9.9; 10.05)":
         [MC_YIELD],
 })
 
-# --- the loaded circuit (CKT.): the worked non-inverting case of the sympy
+# --- the loaded circuit (CIRCUIT.): the worked non-inverting case of the sympy
 # closed forms in tests/reference/data/circuit_sympy.json (tests/reference/circuit_sympy.py)
 
 CIRCUIT = json.loads((Path(__file__).parent / "data" / "circuit_sympy.json").read_text())
@@ -317,17 +317,17 @@ def compared(exact, two_port):
 CKT_STAGE = "(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)"
 IDEAL = 1 + M(10**6) / M(1000)
 CASES.update({
-    "=CKT.GAIN" + CKT_STAGE: compared(NI["af"], NI["tp_af"]),
-    "=CKT.RIN" + CKT_STAGE: compared(NI["rin"], NI["tp_rin"]),
-    "=CKT.ROUT" + CKT_STAGE: compared(NI["rout"], NI["tp_rout"]),
-    "=CKT.IDEAL" + CKT_STAGE: [IDEAL, abs(IDEAL - M(NI["af"])) / M(NI["af"])],
+    "=CIRCUIT.GAIN" + CKT_STAGE: compared(NI["af"], NI["tp_af"]),
+    "=CIRCUIT.RIN" + CKT_STAGE: compared(NI["rin"], NI["tp_rin"]),
+    "=CIRCUIT.ROUT" + CKT_STAGE: compared(NI["rout"], NI["tp_rout"]),
+    "=CIRCUIT.IDEAL" + CKT_STAGE: [IDEAL, abs(IDEAL - M(NI["af"])) / M(NI["af"])],
 })
 # The relative error of the two-port method is a difference of two values that
 # agree to 1e-10, each carried in the JSON to double precision: ~1e-6 relative.
 CKT_TOL = ([1e-10, 1e-10, 1e-5], "nodal solve against the sympy closed forms (1e-10, as tests/circuit_reference.rs); "
            "the error item is a difference of two doubles that agree to 1e-10")
 
-# --- distortion and slew (DIST.), noise (NOISE.): closed forms
+# --- distortion and slew (DISTORTION.), noise (NOISE.): closed forms
 
 
 def closed_series(a1, a2, a3, beta):
@@ -365,12 +365,12 @@ def white_total(rf, rg, en, t, gbw):
 
 
 CASES.update({
-    "=DIST.SERIES(1000; 200; -50; 0.099)": closed_series(M(1000), M(200), M(-50), M("0.099")),
-    "=DIST.HD(1000; 200; -50; 0.099; 1 V; \"output\")": hd(M(1000), M(200), M(-50), M(1))
+    "=DISTORTION.SERIES(1000; 200; -50; 0.099)": closed_series(M(1000), M(200), M(-50), M("0.099")),
+    "=DISTORTION.HD(1000; 200; -50; 0.099; 1 V; \"output\")": hd(M(1000), M(200), M(-50), M(1))
         + hd(*closed_series(M(1000), M(200), M(-50), M("0.099")), M(1)),
-    "=DIST.FPBW(0.5e6; 10 V)": [M("0.5e6") / (2 * mp.pi * 10)],
-    "=DIST.MAXAMP(13e6; 100 kHz)": [M("13e6") / (2 * mp.pi * M(10**5))],
-    "=DIST.SLEWRATE(10 V; 20 kHz)": [2 * mp.pi * M(20000) * 10],
+    "=DISTORTION.FPBW(0.5e6; 10 V)": [M("0.5e6") / (2 * mp.pi * 10)],
+    "=DISTORTION.MAXAMP(13e6; 100 kHz)": [M("13e6") / (2 * mp.pi * M(10**5))],
+    "=DISTORTION.SLEWRATE(10 V; 20 kHz)": [2 * mp.pi * M(20000) * 10],
     "=NOISE.THERMAL(1kΩ; 300)": [mp.sqrt(4 * K_B * 300 * 1000)],
     "=NOISE.STAGE(\"non-inverting\"; 9k; 1k; 50; 4n; 10; 0.5p; 200; 300; 1 kHz)": stage_noise(
         M(9000), M(1000), M(50), M("4e-9"), M(10), M("0.5e-12"), M(200), M(300), M(1000)),
@@ -382,23 +382,23 @@ CASES.update({
 # with the closed form only to the core's stated tolerance: (relative tolerance,
 # why). Every other case is held to the test's default (a few ulps).
 TOLERANCES = {
-    "=LOOP.PM(1000; 0.1; 1 kHz; 100 kHz)": (1e-10, "crossover refined by the core to CROSSING_REL_TOL = 1e-12"),
-    "=LOOP.GM(4; 1; 1k; 1k; 1k)": (1e-10, "phase crossing refined by the core to CROSSING_REL_TOL = 1e-12"),
-    "=LOOP.BANDWIDTH(1000; 0.1; 1k; 100k)": (1e-10, "-3 dB point found by a bracketing search"),
-    "=LOOP.PEAKING(1000; 0.1; 1k; 100k)": (1e-6, "peak located by a 1-D maximum search; the frequency is flat at the peak"),
-    "=LOOP.STEP(100k; 0.01; 2%; 10 Hz)": (1e-9, "crossing times refined numerically on the exact step"),
-    "=LOOP.POLES(1000; 0.1; 1k; 100k)": (1e-12, "polynomial roots by iteration"),
-    "=LOOP.DOMINANT(100k; 1; 60; 1 MHz; 10 MHz)": (1e-8, "the core bisects the pole to SEARCH_REL_TOL = 1e-10"),
-    "=LOOP.MAXBETA(1000; 60; 1; 1k; 100k)": (1e-8, "the core bisects beta to SEARCH_REL_TOL = 1e-10"),
-    "=RES.MONTECARLO(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\")": (
+    "=FREQ.PM(1000; 0.1; 1 kHz; 100 kHz)": (1e-10, "crossover refined by the core to CROSSING_REL_TOL = 1e-12"),
+    "=FREQ.GM(4; 1; 1k; 1k; 1k)": (1e-10, "phase crossing refined by the core to CROSSING_REL_TOL = 1e-12"),
+    "=FREQ.BANDWIDTH(1000; 0.1; 1k; 100k)": (1e-10, "-3 dB point found by a bracketing search"),
+    "=FREQ.PEAKING(1000; 0.1; 1k; 100k)": (1e-6, "peak located by a 1-D maximum search; the frequency is flat at the peak"),
+    "=FREQ.STEP(100k; 0.01; 2%; 10 Hz)": (1e-9, "crossing times refined numerically on the exact step"),
+    "=FREQ.POLES(1000; 0.1; 1k; 100k)": (1e-12, "polynomial roots by iteration"),
+    "=FREQ.DOMINANT(100k; 1; 60; 1 MHz; 10 MHz)": (1e-8, "the core bisects the pole to SEARCH_REL_TOL = 1e-10"),
+    "=FREQ.MAXBETA(1000; 60; 1; 1k; 100k)": (1e-8, "the core bisects beta to SEARCH_REL_TOL = 1e-10"),
+    "=NETWORK.MONTECARLO(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\")": (
         mc_tolerances(), "statistical: 5 standard errors of each statistic of 200000 seeded draws"),
-    "=RES.YIELD(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\"; 9.9; 10.05)": (
+    "=NETWORK.YIELD(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\"; 9.9; 10.05)": (
         float(5 * mp.sqrt(MC_YIELD * (1 - MC_YIELD) / MC_TRIALS) / MC_YIELD),
         "statistical: 5 standard errors sqrt(y(1 - y)/N) of a share of 200000 seeded draws"),
-    "=CKT.GAIN" + CKT_STAGE: CKT_TOL,
-    "=CKT.RIN" + CKT_STAGE: CKT_TOL,
-    "=CKT.ROUT" + CKT_STAGE: CKT_TOL,
-    "=CKT.IDEAL" + CKT_STAGE: ([1e-12, 1e-10], "Af from the sympy closed form, to 1e-10 as tests/circuit_reference.rs"),
+    "=CIRCUIT.GAIN" + CKT_STAGE: CKT_TOL,
+    "=CIRCUIT.RIN" + CKT_STAGE: CKT_TOL,
+    "=CIRCUIT.ROUT" + CKT_STAGE: CKT_TOL,
+    "=CIRCUIT.IDEAL" + CKT_STAGE: ([1e-12, 1e-10], "Af from the sympy closed form, to 1e-10 as tests/circuit_reference.rs"),
     "=NOISE.TOTAL(\"non-inverting\"; 9k; 1k; 0; 10n; 0; 0; 0; 300; 1 MHz; 0)": (
         [1e-9, 1e-9, 1e-12], "the core integrates the density numerically to REL_TOL = 1e-10"),
 }

@@ -12,7 +12,7 @@
 //   fault).
 
 import { el, clear } from './dom.js';
-import { formatEngineering, formatPlain } from './format.js';
+import { formatEngineering, formatPlain, useCore } from './format.js';
 import { CLASS } from './constants.js';
 import { saveSvg, savePng } from './plot/export.js';
 
@@ -43,24 +43,29 @@ function inputForParam(inputs, param) {
   );
 }
 
-/**
- * A number as typed in a cell, read by the core's parser (SI prefixes, IEC 60062
- * letter codes, unit words); a trailing % divides by 100.
- */
-export function parseNumber(text, api) {
-  const t = String(text).trim();
-  return t.endsWith('%') ? api.parseValue(t.slice(0, -1)) / 100 : api.parseValue(t);
+// The unit words the core's reader checks a typed value against (docs/notation.md).
+const READER_UNITS = new Set(['Ω', 'V', 'A', 'W', 'S', 'Hz', 'F', 'H', 's']);
+
+/** The reader's options for an input: % allowed, its unit declared when the core knows it. */
+function readOptions(unit) {
+  return { percent: true, unit: typeof unit === 'string' && READER_UNITS.has(unit) ? unit : null };
 }
 
-/** A list of numbers separated by commas, semicolons or spaces; empty text is an empty list. */
-export function parseList(text, api) {
-  const parts = String(text)
-    .split(/[,;\s]+/)
-    .filter(Boolean);
-  return parts.map((p) => parseNumber(p, api));
+/**
+ * A number as typed in a cell, read by the core's one reader (SI prefixes, IEC
+ * 60062 letter codes, unit words checked against the input's unit, a trailing %).
+ */
+export function parseNumber(text, api, unit) {
+  return api.parseValue(String(text), readOptions(unit));
+}
+
+/** A list of numbers separated by commas or semicolons, read by the core; empty text is an empty list. */
+export function parseList(text, api, unit) {
+  return Array.from(api.parseList(String(text), readOptions(unit)));
 }
 
 export function mountCard(host, def, api) {
+  useCore(api);
   const inputs = new Map();
   const results = el('dl', { class: CLASS.results, 'aria-live': 'polite' });
   const message = el('p', { class: CLASS.cardMessage, role: 'status' });
@@ -125,15 +130,19 @@ export function mountCard(host, def, api) {
     let bad = false;
     for (const [name, { def: input, control, hint }] of inputs) {
       hint.textContent = '';
+      delete hint.dataset.column;
       control.removeAttribute('aria-invalid');
       if (input.choices) {
         values[name] = control.value;
         continue;
       }
       try {
-        values[name] = input.list ? parseList(control.value, api) : parseNumber(control.value, api);
+        values[name] = input.list
+          ? parseList(control.value, api, input.unit)
+          : parseNumber(control.value, api, input.unit);
       } catch (err) {
         hint.textContent = `"${control.value.trim()}" ${err.message.replace(/^text: /, '')}`;
+        if (err?.column) hint.dataset.column = String(err.column);
         control.setAttribute('aria-invalid', 'true');
         bad = true;
       }
@@ -170,17 +179,17 @@ export function mountCard(host, def, api) {
         );
       }
       for (const row of rows) {
+        // One display (the core's): the unit after a space, an SI prefix on it
+        // unless the row is plain (a ratio, or a unit that carries its prefix).
+        const unit = row.unit ?? '';
         const text =
           row.text ??
-          (row.format === 'plain' ? formatPlain(row.value) : formatEngineering(row.value));
+          (row.format === 'plain'
+            ? formatPlain(row.value, 6, unit)
+            : formatEngineering(row.value, 4, unit));
         results.append(
           el('dt', {}, row.label),
-          el(
-            'dd',
-            { 'data-name': row.name ?? row.label },
-            el('output', {}, text),
-            row.unit ? el('span', { class: CLASS.cellUnit }, ` ${row.unit}`) : null,
-          ),
+          el('dd', { 'data-name': row.name ?? row.label }, el('output', {}, text)),
         );
       }
     } catch (err) {

@@ -1,38 +1,37 @@
-// Pure helpers for writing engineering numbers. No DOM here. (Reading them is the
-// core's job: api.parseValue, SI prefixes and IEC 60062 codes.)
+// Writing numbers for people: a thin caller of the core's one display
+// (src/notation/format.rs, docs/notation.md). No DOM here. main.js hands the
+// loaded core over once with useCore(api); reading typed values is the core's too
+// (api.parseValue, api.parseList).
 
-const PREFIXES = [
-  [1e12, 'T'],
-  [1e9, 'G'],
-  [1e6, 'M'],
-  [1e3, 'k'],
-  [1, ''],
-  [1e-3, 'm'],
-  [1e-6, 'µ'],
-  [1e-9, 'n'],
-  [1e-12, 'p'],
-];
+let core = null;
 
-/** Format with an SI prefix and `digits` significant digits: 1.234k, 99.90, 12.0µ. */
-export function formatEngineering(value, digits = 4) {
-  if (!Number.isFinite(value)) return '—';
-  if (value === 0) return '0';
-  const mag = Math.abs(value);
-  if (mag >= 1e15 || mag < 1e-13) return value.toExponential(digits - 1);
-  const [scale, prefix] =
-    PREFIXES.find(([s]) => mag >= s * 0.9999999) ?? PREFIXES[PREFIXES.length - 1];
-  return `${(value / scale).toPrecision(digits)}${prefix}`;
+/** Use the loaded core module's formatValue, formatPlain and formatFull. */
+export function useCore(api) {
+  core = api;
 }
 
-/** Plain number with `digits` significant digits, exponent form for extremes. */
-export function formatPlain(value, digits = 6) {
-  if (!Number.isFinite(value)) return '—';
-  const mag = Math.abs(value);
-  if (Number.isInteger(value) && mag < 1e15) return String(value);
-  if (value !== 0 && (mag >= 1e9 || mag < 1e-4)) return value.toExponential(digits - 1);
-  return trimZeros(value.toPrecision(digits));
+function ready() {
+  if (!core) throw new Error('format.js: useCore(api) has not been called');
+  return core;
 }
 
-function trimZeros(s) {
-  return s.includes('.') && !s.includes('e') ? s.replace(/\.?0+$/, '') : s;
+/**
+ * Display with an SI prefix on the unit and `digits` significant digits, the unit
+ * after a space: 4.7 kΩ, 50.76 kHz, 80 k; no prefix on %, ppm, dB or degrees.
+ */
+export function formatEngineering(value, digits = 4, unit = '') {
+  if (!Number.isFinite(value)) return '—';
+  return ready().formatValue(value, unit, digits);
+}
+
+/** Display without a prefix, for values already in the unit shown: 99.9, 4.12 nV/√Hz. */
+export function formatPlain(value, digits = 6, unit = '') {
+  if (!Number.isFinite(value)) return '—';
+  return ready().formatPlain(value, unit, digits);
+}
+
+/** Full precision, for CSV and the clipboard: the shortest text that reads back the same. */
+export function formatFull(value, unit = '') {
+  if (!Number.isFinite(value)) return '';
+  return ready().formatFull(value, unit);
 }

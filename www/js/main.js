@@ -3,10 +3,11 @@
 
 import init, * as api from '../pkg/loopwright.js';
 import { mountCard } from './card.js';
+import { useCore } from './format.js';
 import { FEEDBACK_CARDS } from './cards/feedback.js';
 import { NETWORK_CARDS } from './cards/network.js';
 import { DISTORTION_CARDS } from './cards/distortion.js';
-import { STABILITY_CARDS } from './cards/stability.js';
+import { FREQ_CARDS } from './cards/freq.js';
 import { CIRCUIT_CARDS } from './cards/circuit.js';
 import { mountWorksheet } from './sheet/worksheet.js';
 import { wasmSource } from './wasm-source.js';
@@ -51,10 +52,11 @@ async function start() {
     status.dataset.state = 'failed';
     return;
   }
+  useCore(api);
   const host = document.getElementById('cards');
   [
     ...FEEDBACK_CARDS,
-    ...STABILITY_CARDS,
+    ...FREQ_CARDS,
     ...NETWORK_CARDS,
     ...CIRCUIT_CARDS,
     ...DISTORTION_CARDS,

@@ -1,9 +1,8 @@
-//! Worksheet functions of the loaded feedback circuit (catalog area D,
-//! `src/circuit`), prefix `CKT.`: the two-port method beside the exact (nodal)
+//! Worksheet functions of the loaded feedback circuit (`src/circuit`), prefix `CIRCUIT.`: the two-port method beside the exact (nodal)
 //! solution of a template stage at DC.
 //!
 //! A stage is written `topology; gain; ri; ro; rf; rg; rs; rl`: the topology name
-//! (as for `FB.` functions), the basic amplifier's open-circuit gain in the
+//! (as for `FEEDBACK.` functions), the basic amplifier's open-circuit gain in the
 //! topology's unit with the sign that gives negative feedback, its input and
 //! output resistance, the feedback network's return resistor `rf` and foot
 //! resistor `rg`, the source and the load resistance — the template of
@@ -138,7 +137,7 @@ const WORKED: &str = "series-shunt stage a = 10⁴, Ri = 100 kΩ, Ro = 1 kΩ, Rf
 /// The circuit area's table.
 pub static FUNCTIONS: &[FunctionSpec] = &[
     FunctionSpec {
-        name: "CKT.GAIN",
+        name: "CIRCUIT.GAIN",
         area: "circuit",
         summary: "Closed-loop gain of a loaded template stage at DC: exact, by the two-port method, and their difference",
         params: STAGE,
@@ -146,7 +145,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "the topology's gain unit; 1",
         spill: COMPARED,
         example: Example {
-            formula: "=CKT.GAIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",
+            formula: "=CIRCUIT.GAIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",
             expected: Expected::Numbers(&[857.9196015344847, 857.9196014119784, 1.4279464102746882e-10]),
             source: WORKED,
             tolerance: &[1e-10, 1e-10, 1e-5],
@@ -154,7 +153,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: gain,
     },
     FunctionSpec {
-        name: "CKT.RIN",
+        name: "CIRCUIT.RIN",
         area: "circuit",
         summary: "Input resistance the source sees (after Rs) at DC: exact, by the two-port method, and their difference",
         params: STAGE,
@@ -162,7 +161,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "Ω; 1",
         spill: COMPARED,
         example: Example {
-            formula: "=CKT.RIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",
+            formula: "=CIRCUIT.RIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",
             expected: Expected::Numbers(&[766556.4059900166, 766556.4053251242, 8.673758184346108e-10]),
             source: WORKED,
             tolerance: &[1e-10, 1e-10, 1e-5],
@@ -170,7 +169,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: r_in,
     },
     FunctionSpec {
-        name: "CKT.ROUT",
+        name: "CIRCUIT.ROUT",
         area: "circuit",
         summary: "Output resistance the load sees at DC: exact, by the two-port method, and their difference",
         params: STAGE,
@@ -178,7 +177,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "Ω; 1",
         spill: COMPARED,
         example: Example {
-            formula: "=CKT.ROUT(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",
+            formula: "=CIRCUIT.ROUT(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",
             expected: Expected::Numbers(&[99.9891110769145, 99.9891111668059, 8.990119026093292e-10]),
             source: WORKED,
             tolerance: &[1e-10, 1e-10, 1e-5],
@@ -186,7 +185,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: r_out,
     },
     FunctionSpec {
-        name: "CKT.IDEAL",
+        name: "CIRCUIT.IDEAL",
         area: "circuit",
         summary: "Ideal closed-loop gain 1/β of the stage's feedback network, and how far the exact gain is from it",
         params: STAGE,
@@ -194,7 +193,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "the topology's gain unit; 1",
         spill: &["ideal gain 1/β", "relative error |1/β − Af|/|Af|"],
         example: Example {
-            formula: "=CKT.IDEAL(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",
+            formula: "=CIRCUIT.IDEAL(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",
             expected: Expected::Numbers(&[1001.0, 0.16677599883438965]),
             source: "1/β = 1 + Rf/Rg = 1001; Af from tests/reference/data/circuit_sympy.json (worked non-inverting case)",
             tolerance: &[1e-12, 1e-10],

@@ -1,13 +1,12 @@
-//! Worksheet functions of distortion and slew limits (catalog area E,
-//! `src/nonlinear`), prefix `DIST.`.
+//! Worksheet functions of distortion and slew limits (`src/distortion`), prefix `DISTORTION.`.
 //!
 //! The amplifier is the power series y = a1·x + a2·x² + a3·x³ of
-//! [`crate::nonlinear::PowerSeries`], in a loop with a linear feedback factor β.
+//! [`crate::distortion::PowerSeries`], in a loop with a linear feedback factor β.
 //! Each function converts its arguments, calls the core and converts the result;
 //! formulas, units and sources are documented on the core functions.
 
 use super::{req, tri, Args, Example, Expected, FunctionSpec, Param};
-use crate::nonlinear::{self as nl, AmplitudeAt, PowerSeries};
+use crate::distortion::{self as nl, AmplitudeAt, PowerSeries};
 use crate::sheet::errors::{CellError, ErrorKind};
 use crate::sheet::value::{Array, Unit, Value};
 use alloc::vec;
@@ -99,7 +98,7 @@ fn slew_needed(a: &Args<'_>) -> Value {
 /// The distortion area's table.
 pub static FUNCTIONS: &[FunctionSpec] = &[
     FunctionSpec {
-        name: "DIST.SERIES",
+        name: "DISTORTION.SERIES",
         area: "distortion",
         summary: "Closed-loop power series b1, b2, b3 of an amplifier a1·x + a2·x² + a3·x³ under feedback β",
         params: &[A1, A2, A3, BETA],
@@ -107,15 +106,15 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "V/V; V/V²; V/V³",
         spill: &["b1 = a1/D", "b2 = a2/D³", "b3 = (a3·D − 2·a2²·β)/D⁵"],
         example: Example {
-            formula: "=DIST.SERIES(1000; 200; -50; 0.099)",
+            formula: "=DISTORTION.SERIES(1000; 200; -50; 0.099)",
             expected: Expected::Numbers(&[10.0, 0.0002, -1.292e-6]),
-            source: "series reversion of y = a1·u + a2·u² + a3·u³, u = x − β·y, D = 100 (closed form; tests/reference/data/nonlinear_series.json checks it symbolically; tests/reference/sheet_catalog.py)",
+            source: "series reversion of y = a1·u + a2·u² + a3·u³, u = x − β·y, D = 100 (closed form; tests/reference/data/distortion_series.json checks it symbolically; tests/reference/sheet_catalog.py)",
             tolerance: &[],
         },
         eval: closed_series,
     },
     FunctionSpec {
-        name: "DIST.HD",
+        name: "DISTORTION.HD",
         area: "distortion",
         summary: "Second and third harmonic distortion without and with feedback at one amplitude (fractions)",
         params: &[
@@ -130,7 +129,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "1",
         spill: &["HD2 open loop", "HD3 open loop", "HD2 closed loop", "HD3 closed loop"],
         example: Example {
-            formula: "=DIST.HD(1000; 200; -50; 0.099; 1 V; \"output\")",
+            formula: "=DISTORTION.HD(1000; 200; -50; 0.099; 1 V; \"output\")",
             expected: Expected::Numbers(&[
                 0.0001,
                 1.25e-8,
@@ -143,7 +142,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: harmonics,
     },
     FunctionSpec {
-        name: "DIST.FPBW",
+        name: "DISTORTION.FPBW",
         area: "distortion",
         summary: "Full-power bandwidth SR/(2π·V_peak): the highest frequency a sine of that peak passes without slewing",
         params: &[SLEW, req("v_peak", "rated peak output", "V", "> 0")],
@@ -151,7 +150,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "Hz",
         spill: &[],
         example: Example {
-            formula: "=DIST.FPBW(0.5e6; 10 V)",
+            formula: "=DISTORTION.FPBW(0.5e6; 10 V)",
             expected: Expected::Numbers(&[7957.7471545947665]),
             source: "0.5 V/µs / (2π·10 V) = 7.958 kHz (closed form)",
             tolerance: &[],
@@ -159,7 +158,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: full_power,
     },
     FunctionSpec {
-        name: "DIST.MAXAMP",
+        name: "DISTORTION.MAXAMP",
         area: "distortion",
         summary: "Largest peak amplitude a sine at a frequency has before it slews: SR/(2π·f)",
         params: &[SLEW, req("frequency", "signal frequency", "Hz", "> 0")],
@@ -167,7 +166,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "V",
         spill: &[],
         example: Example {
-            formula: "=DIST.MAXAMP(13e6; 100 kHz)",
+            formula: "=DISTORTION.MAXAMP(13e6; 100 kHz)",
             expected: Expected::Numbers(&[20.690142601946395]),
             source: "13 V/µs / (2π·100 kHz) = 20.69 V (closed form)",
             tolerance: &[],
@@ -175,7 +174,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: max_amplitude,
     },
     FunctionSpec {
-        name: "DIST.SLEWRATE",
+        name: "DISTORTION.SLEWRATE",
         area: "distortion",
         summary: "Slew rate a sine of a peak amplitude at a frequency needs: 2π·f·V_peak",
         params: &[req("v_peak", "peak amplitude", "V", "> 0"), req("frequency", "signal frequency", "Hz", "> 0")],
@@ -183,7 +182,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "V/s",
         spill: &[],
         example: Example {
-            formula: "=DIST.SLEWRATE(10 V; 20 kHz)",
+            formula: "=DISTORTION.SLEWRATE(10 V; 20 kHz)",
             expected: Expected::Numbers(&[1256637.0614359174]),
             source: "2π·20 kHz·10 V = 1.2566 V/µs (closed form)",
             tolerance: &[],

@@ -1,4 +1,4 @@
-//! Worksheet functions of the feedback relations (catalog area A, `src/feedback`).
+//! Worksheet functions of the feedback relations (`src/feedback`).
 //! Each one converts its arguments, calls the core function and converts the
 //! result; the formulas, units and sources are documented on the core functions.
 
@@ -198,7 +198,7 @@ fn summary(a: &Args<'_>) -> Value {
             let na = || {
                 Value::error(
                     ErrorKind::NotAvailable,
-                    "FB.SUMMARY: no ideal gain without feedback (beta = 0)",
+                    "FEEDBACK.SUMMARY: no ideal gain without feedback (beta = 0)",
                 )
             };
             row(vec![
@@ -226,7 +226,7 @@ fn beta_unit(a: &Args<'_>) -> Value {
 /// The feedback area's table.
 pub static FUNCTIONS: &[FunctionSpec] = &[
     FunctionSpec {
-        name: "FB.GAIN",
+        name: "FEEDBACK.GAIN",
         area: "feedback",
         summary: "Closed-loop gain Af = A/(1 + A·β)",
         params: A_BETA,
@@ -234,7 +234,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "as a",
         spill: &[],
         example: Example {
-            formula: "=FB.GAIN(100k; 0.01)",
+            formula: "=FEEDBACK.GAIN(100k; 0.01)",
             expected: Expected::Numbers(&[99.900_099_900_099_9]),
             source: "100000/(1 + 1000) = 99.9000999…",
             tolerance: &[],
@@ -242,29 +242,29 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: gain,
     },
     FunctionSpec {
-        name: "FB.LOOPGAIN",
+        name: "FEEDBACK.LOOPGAIN",
         area: "feedback",
         summary: "Loop gain T = A·β",
         params: A_BETA,
         repeats: false,
         result_unit: "1",
         spill: &[],
-        example: Example { formula: "=FB.LOOPGAIN(100k; 0.01)", expected: Expected::Numbers(&[1000.0]), source: "100000·0.01", tolerance: &[] },
+        example: Example { formula: "=FEEDBACK.LOOPGAIN(100k; 0.01)", expected: Expected::Numbers(&[1000.0]), source: "100000·0.01", tolerance: &[] },
         eval: loop_gain,
     },
     FunctionSpec {
-        name: "FB.AMOUNT",
+        name: "FEEDBACK.AMOUNT",
         area: "feedback",
         summary: "Amount of feedback (return difference) D = 1 + A·β",
         params: A_BETA,
         repeats: false,
         result_unit: "1",
         spill: &[],
-        example: Example { formula: "=FB.AMOUNT(100k; 0.01)", expected: Expected::Numbers(&[1001.0]), source: "1 + 1000", tolerance: &[] },
+        example: Example { formula: "=FEEDBACK.AMOUNT(100k; 0.01)", expected: Expected::Numbers(&[1001.0]), source: "1 + 1000", tolerance: &[] },
         eval: amount,
     },
     FunctionSpec {
-        name: "FB.AMOUNTDB",
+        name: "FEEDBACK.AMOUNTDB",
         area: "feedback",
         summary: "Amount of feedback in dB, 20·log10|1 + A·β|",
         params: A_BETA,
@@ -272,7 +272,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "dB",
         spill: &[],
         example: Example {
-            formula: "=FB.AMOUNTDB(100k; 0.01)",
+            formula: "=FEEDBACK.AMOUNTDB(100k; 0.01)",
             expected: Expected::Numbers(&[60.008_681_549_586_38]),
             source: "20·log10(1001) = 60.00868…",
             tolerance: &[],
@@ -280,7 +280,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: amount_db,
     },
     FunctionSpec {
-        name: "FB.SENSITIVITY",
+        name: "FEEDBACK.SENSITIVITY",
         area: "feedback",
         summary: "Gain sensitivity (dAf/Af)/(dA/A) = 1/(1 + A·β)",
         params: A_BETA,
@@ -288,7 +288,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "1",
         spill: &[],
         example: Example {
-            formula: "=FB.SENSITIVITY(100k; 0.01)",
+            formula: "=FEEDBACK.SENSITIVITY(100k; 0.01)",
             expected: Expected::Numbers(&[0.000_999_000_999_000_999]),
             source: "1/1001",
             tolerance: &[],
@@ -296,7 +296,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: sensitivity,
     },
     FunctionSpec {
-        name: "FB.SENSE",
+        name: "FEEDBACK.SENSE",
         area: "feedback",
         summary: "Whether the feedback is negative, neutral, positive or at the oscillation point, from |1 + A·β|",
         params: A_BETA,
@@ -304,7 +304,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "text",
         spill: &[],
         example: Example {
-            formula: "=FB.SENSE(100; -0.005)",
+            formula: "=FEEDBACK.SENSE(100; -0.005)",
             expected: Expected::Text("positive"),
             source: "T = -0.5, so |D| = 0.5 < 1",
             tolerance: &[],
@@ -312,18 +312,18 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: sense,
     },
     FunctionSpec {
-        name: "FB.BETA",
+        name: "FEEDBACK.BETA",
         area: "feedback",
         summary: "Feedback factor for a target closed-loop gain: β = 1/Af − 1/A",
         params: &[A, req("target_gain", "closed-loop gain wanted", "as a", "same sign as a, |target| <= |a|, not 0")],
         repeats: false,
         result_unit: "reciprocal of a's unit",
         spill: &[],
-        example: Example { formula: "=FB.BETA(100k; 100)", expected: Expected::Numbers(&[0.00999]), source: "1/100 − 1/100000", tolerance: &[] },
+        example: Example { formula: "=FEEDBACK.BETA(100k; 100)", expected: Expected::Numbers(&[0.00999]), source: "1/100 − 1/100000", tolerance: &[] },
         eval: beta,
     },
     FunctionSpec {
-        name: "FB.MINGAIN",
+        name: "FEEDBACK.MINGAIN",
         area: "feedback",
         summary: "Least open-loop gain keeping the gain error against 1/β within a fraction: A = (1 − ε)/(ε·β)",
         params: &[BETA, req("gain_error", "allowed gain error as a fraction (0.001 for 0.1 %)", "1", "0 < ε < 1")],
@@ -331,7 +331,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "reciprocal of beta's unit",
         spill: &[],
         example: Example {
-            formula: "=FB.MINGAIN(0.01; 0.1%)",
+            formula: "=FEEDBACK.MINGAIN(0.01; 0.1%)",
             expected: Expected::Numbers(&[99_899.999_999_999_99]),
             source: "(1 − 0.001)/(0.001·0.01) = 99900 (to rounding)",
             tolerance: &[],
@@ -339,7 +339,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: min_gain,
     },
     FunctionSpec {
-        name: "FB.CEILING",
+        name: "FEEDBACK.CEILING",
         area: "feedback",
         summary: "Largest closed-loop gain that still has a required amount of feedback D, and the β giving it",
         params: &[A, req("feedback_amount", "required D = 1 + A·β", "1", ">= 1")],
@@ -347,7 +347,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "as a; reciprocal of a's unit",
         spill: &["closed-loop gain A/D", "beta (D − 1)/A"],
         example: Example {
-            formula: "=FB.CEILING(100k; 100)",
+            formula: "=FEEDBACK.CEILING(100k; 100)",
             expected: Expected::Numbers(&[1000.0, 0.00099]),
             source: "100000/100 and 99/100000",
             tolerance: &[],
@@ -355,7 +355,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: ceiling,
     },
     FunctionSpec {
-        name: "FB.SPREAD",
+        name: "FEEDBACK.SPREAD",
         area: "feedback",
         summary: "Closed-loop gain over an open-loop gain range (min, typ, max) and its spread",
         params: &[
@@ -378,7 +378,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             "positive feedback anywhere in the range",
         ],
         example: Example {
-            formula: "=FB.SPREAD(0.01; 50k; 100k; 200k)",
+            formula: "=FEEDBACK.SPREAD(0.01; 50k; 100k; 200k)",
             expected: Expected::Numbers(&[
                 99.800_399_201_596_8,
                 99.900_099_900_099_9,
@@ -396,7 +396,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: spread,
     },
     FunctionSpec {
-        name: "FB.ZIN",
+        name: "FEEDBACK.ZIN",
         area: "feedback",
         summary: "Input resistance with feedback: multiplied by D for series mixing, divided for shunt mixing",
         params: &[TOPOLOGY, req("zi", "input resistance of the loaded open-loop circuit", "Ω", ">= 0"), A, BETA],
@@ -404,7 +404,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "Ω",
         spill: &[],
         example: Example {
-            formula: "=FB.ZIN(\"series-shunt\"; 1MΩ; 100k; 0.01)",
+            formula: "=FEEDBACK.ZIN(\"series-shunt\"; 1MΩ; 100k; 0.01)",
             expected: Expected::Numbers(&[1.001e9]),
             source: "1 MΩ · 1001",
             tolerance: &[],
@@ -412,7 +412,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: z_in,
     },
     FunctionSpec {
-        name: "FB.ZOUT",
+        name: "FEEDBACK.ZOUT",
         area: "feedback",
         summary: "Output resistance with feedback: divided by D for voltage sampling, multiplied for current sampling",
         params: &[TOPOLOGY, req("zo", "output resistance of the loaded open-loop circuit", "Ω", ">= 0"), A, BETA],
@@ -420,7 +420,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "Ω",
         spill: &[],
         example: Example {
-            formula: "=FB.ZOUT(\"voltage-series\"; 75 ohm; 100k; 0.01)",
+            formula: "=FEEDBACK.ZOUT(\"voltage-series\"; 75 ohm; 100k; 0.01)",
             expected: Expected::Numbers(&[0.074_925_074_925_074_93]),
             source: "75 Ω / 1001",
             tolerance: &[],
@@ -428,7 +428,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: z_out,
     },
     FunctionSpec {
-        name: "FB.IMPEDANCES",
+        name: "FEEDBACK.IMPEDANCES",
         area: "feedback",
         summary: "Complex input and output impedance with feedback, for complex A and β at one frequency",
         params: &[
@@ -446,7 +446,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "Ω",
         spill: &["Re Zin", "Im Zin", "Re Zout", "Im Zout"],
         example: Example {
-            formula: "=FB.IMPEDANCES(\"series-series\"; 1k; -1k; 10; 0; 0; 10; 0.1; 0)",
+            formula: "=FEEDBACK.IMPEDANCES(\"series-series\"; 1k; -1k; 10; 0; 0; 10; 0.1; 0)",
             expected: Expected::Numbers(&[2000.0, 0.0, 10.0, 10.0]),
             source: "T = j, D = 1 + j: Zin = (1k − j1k)(1 + j) = 2 kΩ, Zout = 10(1 + j) Ω (hand calculation)",
             tolerance: &[],
@@ -454,7 +454,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: impedances,
     },
     FunctionSpec {
-        name: "FB.PHASOR",
+        name: "FEEDBACK.PHASOR",
         area: "feedback",
         summary: "Closed-loop gain, loop gain and amount of feedback for complex A and β",
         params: &[
@@ -467,7 +467,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "as a; degrees; 1; degrees; dB",
         spill: &["|Af|", "phase of Af, degrees", "|T|", "phase of T, degrees", "|D| in dB"],
         example: Example {
-            formula: "=FB.PHASOR(0; 100; 0.01; 0)",
+            formula: "=FEEDBACK.PHASOR(0; 100; 0.01; 0)",
             expected: Expected::Numbers(&[70.710_678_118_654_76, 45.0, 1.0, 90.0, 3.010_299_956_639_812]),
             source: "T = j, D = 1 + j, Af = 100j/(1 + j) = 50 + 50j: |Af| = 50√2, 45°; |D| = √2 = 3.0103 dB",
             tolerance: &[],
@@ -475,7 +475,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: phasor,
     },
     FunctionSpec {
-        name: "FB.SUMMARY",
+        name: "FEEDBACK.SUMMARY",
         area: "feedback",
         summary: "Every feedback relation of one stage at once",
         params: &[TOPOLOGY, A, BETA],
@@ -491,7 +491,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             "gain error Af·β − 1 (#N/A when β = 0)",
         ],
         example: Example {
-            formula: "=FB.SUMMARY(\"series-shunt\"; 100k; 0.01)",
+            formula: "=FEEDBACK.SUMMARY(\"series-shunt\"; 100k; 0.01)",
             expected: Expected::Numbers(&[
                 99.900_099_900_099_9,
                 1000.0,
@@ -501,13 +501,13 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
                 100.0,
                 -0.000_999_000_999_000_999,
             ]),
-            source: "as FB.GAIN, FB.LOOPGAIN, FB.AMOUNT, FB.AMOUNTDB, FB.SENSITIVITY; 1/0.01; −1/1001",
+            source: "as FEEDBACK.GAIN, FEEDBACK.LOOPGAIN, FEEDBACK.AMOUNT, FEEDBACK.AMOUNTDB, FEEDBACK.SENSITIVITY; 1/0.01; −1/1001",
             tolerance: &[],
         },
         eval: summary,
     },
     FunctionSpec {
-        name: "FB.GAINUNIT",
+        name: "FEEDBACK.GAINUNIT",
         area: "feedback",
         summary: "The unit of the open-loop and closed-loop gain of a topology",
         params: &[TOPOLOGY],
@@ -515,7 +515,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "text",
         spill: &[],
         example: Example {
-            formula: "=FB.GAINUNIT(\"shunt-shunt\")",
+            formula: "=FEEDBACK.GAINUNIT(\"shunt-shunt\")",
             expected: Expected::Text("V/A"),
             source: "a transresistance amplifier (common practice, no source)",
             tolerance: &[],
@@ -523,7 +523,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: gain_unit,
     },
     FunctionSpec {
-        name: "FB.BETAUNIT",
+        name: "FEEDBACK.BETAUNIT",
         area: "feedback",
         summary: "The unit of the feedback factor of a topology",
         params: &[TOPOLOGY],
@@ -531,7 +531,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "text",
         spill: &[],
         example: Example {
-            formula: "=FB.BETAUNIT(\"current-series\")",
+            formula: "=FEEDBACK.BETAUNIT(\"current-series\")",
             expected: Expected::Text("V/A"),
             source: "series-series feedback senses current and returns a voltage (common practice, no source)",
             tolerance: &[],

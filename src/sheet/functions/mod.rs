@@ -8,8 +8,8 @@
 //! entries; a test evaluates every example, and `tests/reference/sheet_catalog.py`
 //! recomputes every numeric one with mpmath so the stated values have a source.
 //!
-//! Names: plain words in upper case; functions of a catalog area carry the area's
-//! prefix and a dot (`FB.GAIN`, `DB.VOLTAGE`); the common spreadsheet functions
+//! Names: plain words in upper case; functions of an area carry the area's
+//! prefix and a dot (`FEEDBACK.GAIN`, `DB.VOLTAGE`); the common spreadsheet functions
 //! (`SUM`, `IF`, …) keep their usual names.
 //!
 //! To add a function: write its evaluation function beside its area's others and
@@ -20,8 +20,8 @@ pub mod circuit;
 pub mod decibel;
 pub mod distortion;
 pub mod feedback;
+pub mod freq;
 pub mod logic;
-pub mod loops;
 pub mod math;
 pub mod network;
 pub mod noise;
@@ -83,7 +83,7 @@ pub struct Example {
 pub struct FunctionSpec {
     /// Upper-case name.
     pub name: &'static str,
-    /// Catalog area (`math`, `logic`, `decibel`, `feedback`, …).
+    /// Area (`math`, `logic`, `decibel`, `feedback`, …).
     pub area: &'static str,
     /// One-line summary.
     pub summary: &'static str,
@@ -145,7 +145,7 @@ pub static AREAS: &[&[FunctionSpec]] = &[
     logic::FUNCTIONS,
     decibel::FUNCTIONS,
     feedback::FUNCTIONS,
-    loops::FUNCTIONS,
+    freq::FUNCTIONS,
     network::FUNCTIONS,
     circuit::FUNCTIONS,
     distortion::FUNCTIONS,
@@ -157,9 +157,40 @@ pub fn all() -> impl Iterator<Item = &'static FunctionSpec> {
     AREAS.iter().flat_map(|a| a.iter())
 }
 
-/// The function called `name` (any case).
+/// The function called `name` (any case), also under the prefix its area had before
+/// the areas were given one name each ([`OLD_PREFIXES`]).
 pub fn lookup(name: &str) -> Option<&'static FunctionSpec> {
-    AREAS.iter().find_map(|area| lookup_in(area, name))
+    AREAS
+        .iter()
+        .find_map(|area| lookup_in(area, name))
+        .or_else(|| lookup_old_spelling(name))
+}
+
+/// Prefixes the area functions carried in worksheets written before package version
+/// 0.2, with the area names that replaced them. A formula written with an old prefix
+/// still evaluates (the cell keeps the text as typed); the catalog, the help and the
+/// docs list the new names only.
+pub const OLD_PREFIXES: &[(&str, &str)] = &[
+    ("FB.", "FEEDBACK."),
+    ("LOOP.", "FREQ."),
+    ("RES.", "NETWORK."),
+    ("CKT.", "CIRCUIT."),
+    ("DIST.", "DISTORTION."),
+];
+
+/// The function `name` names under an old prefix, if any.
+fn lookup_old_spelling(name: &str) -> Option<&'static FunctionSpec> {
+    let (old, new) = OLD_PREFIXES.iter().find(|(old, _)| {
+        name.len() > old.len()
+            && name.is_char_boundary(old.len())
+            && name[..old.len()].eq_ignore_ascii_case(old)
+    })?;
+    let rest = &name[old.len()..];
+    all().find(|f| {
+        f.name.len() == new.len() + rest.len()
+            && f.name.starts_with(new)
+            && f.name[new.len()..].eq_ignore_ascii_case(rest)
+    })
 }
 
 /// [`lookup`] within one area's table. Kept out of line: inlined, the search was
@@ -539,20 +570,20 @@ mod tests {
             requirement: "must be greater than zero",
         };
         assert_eq!(
-            core_error("LOOP.PM", e, &names).detail,
-            "LOOP.PM: poles: must be greater than zero"
+            core_error("FREQ.PM", e, &names).detail,
+            "FREQ.PM: poles: must be greater than zero"
         );
         // A parameter not in the table keeps the core's name, and the kind follows from_core.
         let e = crate::Error::UnknownName {
             param: "series",
             expected: "E3",
         };
-        let c = core_error("RES.UP", e, &names);
+        let c = core_error("NETWORK.UP", e, &names);
         assert_eq!(
             (c.kind, c.detail.as_str()),
             (
                 ErrorKind::Value,
-                "RES.UP: series: unknown name; expected one of E3"
+                "NETWORK.UP: series: unknown name; expected one of E3"
             )
         );
     }
@@ -584,7 +615,21 @@ mod tests {
                 );
             }
         }
-        assert!(lookup("fb.gain").is_some());
+        assert!(lookup("feedback.gain").is_some());
         assert!(lookup("nosuch").is_none());
+    }
+
+    #[test]
+    fn old_prefixes_still_find_their_function() {
+        assert_eq!(lookup("fb.gain").map(|f| f.name), Some("FEEDBACK.GAIN"));
+        assert_eq!(lookup("LOOP.PM").map(|f| f.name), Some("FREQ.PM"));
+        assert_eq!(
+            lookup("Res.Nearest").map(|f| f.name),
+            Some("NETWORK.NEAREST")
+        );
+        assert_eq!(lookup("CKT.GAIN").map(|f| f.name), Some("CIRCUIT.GAIN"));
+        assert_eq!(lookup("DIST.HD").map(|f| f.name), Some("DISTORTION.HD"));
+        assert!(lookup("FB.").is_none());
+        assert!(lookup("FB.NOSUCH").is_none());
     }
 }

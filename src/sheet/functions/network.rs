@@ -1,11 +1,10 @@
-//! Worksheet functions of feedback networks and tolerances (catalog area C,
-//! `src/network`), prefix `RES.`: standard values of the IEC 60063 series, the
+//! Worksheet functions of feedback networks and tolerances (`src/network`), prefix `NETWORK.`: standard values of the IEC 60063 series, the
 //! best resistor pairs for a gain or ratio, and the worst case and Monte Carlo
 //! spread of an op-amp stage. Each function converts its arguments, calls the
 //! core and converts the result; formulas, units and sources are documented on
 //! the core functions.
 //!
-//! The stage of `RES.WORSTCASE`, `RES.MONTECARLO` and `RES.YIELD` is written as
+//! The stage of `NETWORK.WORSTCASE`, `NETWORK.MONTECARLO` and `NETWORK.YIELD` is written as
 //! `stage; metric; r1; r2; tolerance; a_min; a_typ; a_max; ri; ro; pole` (both
 //! resistors share the tolerance) — see [`crate::network::StageSpec`].
 
@@ -113,7 +112,7 @@ fn pair(a: &Args<'_>) -> Value {
                 || {
                     Value::error(
                         ErrorKind::NotAvailable,
-                        "RES.PAIR: no pair fits the total-resistance range",
+                        "NETWORK.PAIR: no pair fits the total-resistance range",
                     )
                 },
                 Value::Array,
@@ -216,7 +215,7 @@ fn yield_fraction(a: &Args<'_>) -> Value {
     let (lower, upper) = (tri!(a.number(14)), tri!(a.number(15)));
     let (r, _) = tri!(run(a, Some(lower), Some(upper)));
     r.stats.yield_fraction.map_or_else(
-        || Value::error(ErrorKind::NotAvailable, "RES.YIELD: no spec limits"),
+        || Value::error(ErrorKind::NotAvailable, "NETWORK.YIELD: no spec limits"),
         Value::num,
     )
 }
@@ -321,7 +320,7 @@ const YIELD: &[Param] = &[
 /// The network area's table.
 pub static FUNCTIONS: &[FunctionSpec] = &[
     FunctionSpec {
-        name: "RES.NEAREST",
+        name: "NETWORK.NEAREST",
         area: "network",
         summary: "Nearest standard value of a series (the lower one on a tie, compared linearly)",
         params: &[VALUE, SERIES],
@@ -329,7 +328,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "as value",
         spill: &[],
         example: Example {
-            formula: "=RES.NEAREST(5k; \"E12\")",
+            formula: "=NETWORK.NEAREST(5k; \"E12\")",
             expected: Expected::Numbers(&[4700.0]),
             source: "E12 decade 1.0 1.2 1.5 1.8 2.2 2.7 3.3 3.9 4.7 5.6 6.8 8.2 (IEC 60063): 5000 − 4700 < 5600 − 5000",
             tolerance: &[],
@@ -337,7 +336,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: nearest,
     },
     FunctionSpec {
-        name: "RES.UP",
+        name: "NETWORK.UP",
         area: "network",
         summary: "Smallest standard value of a series at or above a value",
         params: &[VALUE, SERIES],
@@ -345,7 +344,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "as value",
         spill: &[],
         example: Example {
-            formula: "=RES.UP(12345; \"E96\")",
+            formula: "=NETWORK.UP(12345; \"E96\")",
             expected: Expected::Numbers(&[12400.0]),
             source: "E96 (IEC 60063) has 121 and 124 around 123.45; also tests/reference/data/network_eseries.json (eseries package)",
             tolerance: &[],
@@ -353,7 +352,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: up,
     },
     FunctionSpec {
-        name: "RES.DOWN",
+        name: "NETWORK.DOWN",
         area: "network",
         summary: "Largest standard value of a series at or below a value",
         params: &[VALUE, SERIES],
@@ -361,7 +360,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "as value",
         spill: &[],
         example: Example {
-            formula: "=RES.DOWN(12345; \"E96\")",
+            formula: "=NETWORK.DOWN(12345; \"E96\")",
             expected: Expected::Numbers(&[12100.0]),
             source: "E96 (IEC 60063) has 121 and 124 around 123.45; also tests/reference/data/network_eseries.json (eseries package)",
             tolerance: &[],
@@ -369,7 +368,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: down,
     },
     FunctionSpec {
-        name: "RES.TOLERANCE",
+        name: "NETWORK.TOLERANCE",
         area: "network",
         summary: "The customary tolerance of a standard series, as a fraction",
         params: &[SERIES],
@@ -377,7 +376,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "1",
         spill: &[],
         example: Example {
-            formula: "=RES.TOLERANCE(\"E96\")",
+            formula: "=NETWORK.TOLERANCE(\"E96\")",
             expected: Expected::Numbers(&[0.01]),
             source: "E96 is the 1 % series (IEC 60063, from memory)",
             tolerance: &[],
@@ -385,7 +384,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: tolerance,
     },
     FunctionSpec {
-        name: "RES.PAIR",
+        name: "NETWORK.PAIR",
         area: "network",
         summary: "Best standard-value pairs R1, R2 for a gain or divider ratio, one row per candidate, smallest error first",
         params: &[
@@ -400,7 +399,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "Ω; Ω; V/V; 1",
         spill: &["R1, Ω", "R2, Ω", "gain or ratio achieved", "error achieved/target − 1"],
         example: Example {
-            formula: "=RES.PAIR(\"non-inverting\"; 7.5; \"E12\"; 10k; 100k; 3)",
+            formula: "=NETWORK.PAIR(\"non-inverting\"; 7.5; \"E12\"; 10k; 100k; 3)",
             expected: Expected::Numbers(&[
                 1500.0,
                 10000.0,
@@ -421,7 +420,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: pair,
     },
     FunctionSpec {
-        name: "RES.WORSTCASE",
+        name: "NETWORK.WORSTCASE",
         area: "network",
         summary: "Nominal and extreme values of a stage quantity over the resistor tolerance and the open-loop gain range",
         params: STAGE,
@@ -429,7 +428,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "as metric; %",
         spill: &["nominal", "minimum", "maximum", "minimum relative to nominal, %", "maximum relative to nominal, %"],
         example: Example {
-            formula: "=RES.WORSTCASE(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 50k; 100k; 200k; 1M; 50; 10 Hz)",
+            formula: "=NETWORK.WORSTCASE(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 50k; 100k; 200k; 1M; 50; 10 Hz)",
             expected: Expected::Numbers(&[
                 9.99900009999,
                 9.819853209032997,
@@ -443,7 +442,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: worst,
     },
     FunctionSpec {
-        name: "RES.MONTECARLO",
+        name: "NETWORK.MONTECARLO",
         area: "network",
         summary: "Seeded Monte Carlo of a stage quantity: mean, standard deviation and the 0.1 … 99.9 % percentiles",
         params: MC,
@@ -451,7 +450,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "as metric",
         spill: &["mean", "standard deviation", "0.1 %", "1 %", "5 %", "50 %", "95 %", "99 %", "99.9 %"],
         example: Example {
-            formula: "=RES.MONTECARLO(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\")",
+            formula: "=NETWORK.MONTECARLO(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\")",
             expected: Expected::Numbers(&[
                 9.999300004005326,
                 0.07347452719677093,
@@ -479,7 +478,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         eval: montecarlo,
     },
     FunctionSpec {
-        name: "RES.YIELD",
+        name: "NETWORK.YIELD",
         area: "network",
         summary: "Seeded Monte Carlo yield: the share of trials with the stage quantity within spec limits",
         params: YIELD,
@@ -487,7 +486,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         result_unit: "1",
         spill: &[],
         example: Example {
-            formula: "=RES.YIELD(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\"; 9.9; 10.05)",
+            formula: "=NETWORK.YIELD(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\"; 9.9; 10.05)",
             expected: Expected::Numbers(&[0.6428192969979213]),
             source: "exact P(9.9 <= Af <= 10.05) for R1, R2 uniform over ±1 %, by mpmath quadrature (tests/reference/sheet_catalog.py); the seeded sample agrees within 5 standard errors",
             tolerance: &[0.00833402017772508],

@@ -1,4 +1,4 @@
-//! Worksheet functions of noise (catalog area E, `src/noise`), prefix `NOISE.`.
+//! Worksheet functions of noise (`src/noise`), prefix `NOISE.`.
 //!
 //! A stage is written `kind; rf; rg; rp; en; en_corner; in; in_corner;
 //! temperature`: non-inverting or inverting, the feedback resistor, the resistor

@@ -61,6 +61,11 @@ assert.equal(lw.standardValue('E24', 4800, 'nearest'), 4700);
 assert.equal(lw.standardValue('E24', 5000, 'nearest'), 5100);
 assert.equal(lw.standardValue('E24', 4800, 'up'), 5100);
 assert.equal(lw.parseValue('4k7'), 4700); // IEC 60062 letter code
+// The one reader and display (docs/notation.md; SI Brochure, 9th ed., §5.4.3).
+assert.equal(lw.parseValue('50 %', { percent: true }), 0.5);
+assert.deepEqual(Array.from(lw.parseList('12 Hz, 4 MHz', { unit: 'Hz' })), [12, 4e6]);
+throws(() => lw.parseValue('4k7k'), 'syntax', 'text');
+assert.equal(lw.formatValue(4700, 'Ω', 4), '4.7 kΩ');
 const pairs = lw.bestPairs('non-inverting', 11, 'E24', 1e3, 1e6, undefined, undefined, 'none', 3);
 assert.equal(pairs.idealRatio, 10); // 1 + R2/R1 = 11
 assert.ok(Math.abs(pairs.candidates[0].error) < 1e-12, 'E24 has exact decade ratios (e.g. 1k/10k)');
@@ -653,7 +658,7 @@ for (const e of tdoc.elements) {
 const ws = new lw.Worksheet();
 ws.setCell('A1', '100k');
 ws.setCell('A2', '0.01');
-const changed = ws.setCell('A3', '=FB.GAIN(A1; A2)');
+const changed = ws.setCell('A3', '=FEEDBACK.GAIN(A1; A2)');
 assert.ok(changed.includes('A3'));
 // Af = 10⁵/(1 + 10⁵·0.01) = 99.90 (closed form).
 assert.ok(Math.abs(ws.value('A3').number - 1e5 / 1001) < 1e-9);
@@ -671,7 +676,7 @@ throws(
 );
 assert.equal(ws2.value('A3').number, ws.value('A3').number, 'nothing lost by the refused document');
 const catalog = JSON.parse(lw.functionCatalog());
-assert.ok(catalog.functions.some((f) => f.name === 'FB.GAIN'));
+assert.ok(catalog.functions.some((f) => f.name === 'FEEDBACK.GAIN'));
 ws.free();
 ws2.free();
 

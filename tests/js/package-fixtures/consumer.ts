@@ -37,7 +37,7 @@ export async function run(): Promise<number> {
   const hd: FeedbackDistortion = feedbackDistortion(1e4, 1e6, -2e10, 0.01, 1, 'output');
   const ratio: number | null = hd.hd2Ratio;
   const sheet = new Worksheet();
-  const touched: string[] = sheet.setCell('A1', '=FB.GAIN(100k; 0.01)');
+  const touched: string[] = sheet.setCell('A1', '=FEEDBACK.GAIN(100k; 0.01)');
   const saved: string = sheet.saveDocument();
   sheet.free();
   return lg + touched.length + saved.length + s.closedLoopGain + (ideal ?? 0) + spread.spreadPpm + zin + unit.length + r2 + noise.outputRms + (ratio ?? 0);

@@ -1,4 +1,4 @@
-// Calculator card of the loading-aware analysis (catalog area D): the same stage
+// Calculator card of the loading-aware analysis: the same stage
 // solved exactly (nodal analysis), by the two-port method, and ideally (1/β).
 
 import { formatEngineering } from '../format.js';
@@ -57,7 +57,7 @@ export const loadedCard = {
     const row = (name, label, c, unit) => ({
       name,
       label,
-      text: `exact ${formatEngineering(c.exact.re)}${unit}   two-port ${formatEngineering(c.twoPort.re)}${unit}   (${pct(c.relativeError)})`,
+      text: `exact ${formatEngineering(c.exact.re, 4, unit)}   two-port ${formatEngineering(c.twoPort.re, 4, unit)}   (${pct(c.relativeError)})`,
     });
     return [
       { name: 'a', label: 'Loaded A', value: r.a.re, unit: r.gainUnit },
@@ -74,7 +74,7 @@ export const loadedCard = {
       {
         name: 'blackman',
         label: 'Blackman Rin',
-        text: `${formatEngineering(mag(views.input.blackman))}Ω (vs exact: ${views.input.relativeError.toExponential(1)})`,
+        text: `${formatEngineering(mag(views.input.blackman), 4, 'Ω')} (vs exact: ${views.input.relativeError.toExponential(1)})`,
       },
       {
         name: 'asymptotic',

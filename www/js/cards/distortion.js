@@ -1,4 +1,4 @@
-// Calculator cards of distortion, noise and slew rate (catalog area E).
+// Calculator cards of distortion, noise and slew rate.
 
 import { lineChart } from '../plot/chart.js';
 

@@ -1,4 +1,4 @@
-// Calculator cards of the feedback relations (catalog area A).
+// Calculator cards of the feedback relations.
 
 import { TOPOLOGY_CHOICES } from '../constants.js';
 

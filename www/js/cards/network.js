@@ -1,4 +1,4 @@
-// Calculator cards of network synthesis and tolerance (catalog area C).
+// Calculator cards of network synthesis and tolerance.
 
 import { histogramChart } from '../plot/histogram.js';
 import { formatEngineering, formatPlain } from '../format.js';

@@ -7,7 +7,15 @@
 // returns an <svg> element. Series and markers are styled by CSS classes
 // (plot-series-<kind>, plot-marker-<kind>), so the look stays in the stylesheet.
 
-import { makeScale, extent, linearTicks, niceDomain, decadeTicks, tickLabel } from './scale.js';
+import {
+  makeScale,
+  extent,
+  linearTicks,
+  niceDomain,
+  decadeTicks,
+  tickLabel,
+  plainAxis,
+} from './scale.js';
 
 const NS = 'http://www.w3.org/2000/svg';
 const MARGIN = { top: 26, right: 14, bottom: 40, left: 56 };
@@ -71,7 +79,7 @@ export function lineChart({ title, width = 640, height = 260, x, y, series, mark
       svg(
         'text',
         { x: px, y: inner.y0 + 16, 'text-anchor': 'middle', class: 'plot-tick' },
-        tickLabel(t),
+        tickLabel(t, plainAxis(x)),
       ),
     );
   }
@@ -82,7 +90,7 @@ export function lineChart({ title, width = 640, height = 260, x, y, series, mark
       svg(
         'text',
         { x: inner.x0 - 6, y: Number(py) + 4, 'text-anchor': 'end', class: 'plot-tick' },
-        tickLabel(t),
+        tickLabel(t, plainAxis(y)),
       ),
     );
   }

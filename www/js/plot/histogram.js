@@ -4,7 +4,7 @@
 // `edges` has counts.length + 1 entries.
 
 import { svg } from './chart.js';
-import { makeScale, linearTicks, niceDomain, tickLabel } from './scale.js';
+import { makeScale, linearTicks, niceDomain, tickLabel, plainAxis } from './scale.js';
 
 const MARGIN = { top: 26, right: 14, bottom: 40, left: 56 };
 
@@ -44,7 +44,7 @@ export function histogramChart({
       svg(
         'text',
         { x: sx(t).toFixed(1), y: inner.y0 + 16, 'text-anchor': 'middle', class: 'plot-tick' },
-        tickLabel(t),
+        tickLabel(t, plainAxis({ label })),
       ),
     );
   }

@@ -1,4 +1,7 @@
-// Pure scale and tick helpers for the plots. No DOM here.
+// Pure scale and tick helpers for the plots. No DOM here; tick labels come from
+// the core's one display (format.js).
+
+import { formatEngineering, formatPlain } from '../format.js';
 
 /** A linear or base-10 log mapping from [d0, d1] onto [r0, r1]. */
 export function makeScale([d0, d1], [r0, r1], log = false) {
@@ -54,23 +57,16 @@ export function decadeTicks(lo, hi) {
   return { ticks, domain: [10 ** a, 10 ** b] };
 }
 
-const PREFIX = [
-  [1e12, 'T'],
-  [1e9, 'G'],
-  [1e6, 'M'],
-  [1e3, 'k'],
-  [1, ''],
-  [1e-3, 'm'],
-  [1e-6, 'µ'],
-  [1e-9, 'n'],
-  [1e-12, 'p'],
-];
+/**
+ * Whether an axis shows its numbers without an SI prefix: percentages, levels in
+ * dB and angles (`HD3 (%)`, `dB`, `degrees`), or when the axis says so (`plain`).
+ */
+export function plainAxis(axis = {}) {
+  if (axis.plain !== undefined) return Boolean(axis.plain);
+  return /\((%|dB|°|ppm)\)$|^(dB|degrees|%)$/.test(axis.label ?? '');
+}
 
-/** Short tick label with an SI prefix: 1k, 10M, 2.5, 100µ. */
-export function tickLabel(v) {
-  if (v === 0) return '0';
-  const mag = Math.abs(v);
-  const [scale, prefix] = PREFIX.find(([s]) => mag >= s * 0.999999) ?? PREFIX[PREFIX.length - 1];
-  const n = v / scale;
-  return `${Number(n.toPrecision(3))}${prefix}`;
+/** Short tick label through the core's display, three significant digits: 10 k, 2.5 µ, 0.0001. */
+export function tickLabel(v, plain = false) {
+  return plain ? formatPlain(v, 3) : formatEngineering(v, 3);
 }

@@ -6,7 +6,7 @@
 // grid keeps no values of its own: it asks the engine what each cell shows.
 
 import { el } from '../dom.js';
-import { formatEngineering, formatPlain } from '../format.js';
+import { formatEngineering } from '../format.js';
 import {
   COLS,
   ROWS,
@@ -19,16 +19,15 @@ import {
 } from './address.js';
 
 /**
- * What a cell shows: numbers to six significant digits (with an SI prefix when
- * they carry a unit other than dB), everything else as the engine displays it.
+ * What a cell shows: numbers through the core's one display, six significant
+ * digits with an SI prefix on the unit (none on dB), the unit after a space;
+ * everything else as the engine displays it. The full-precision form stays in the
+ * cell's tooltip and in copies.
  */
 export function shownText(v) {
   if (v.kind === 'empty') return '';
   if (v.kind !== 'number') return v.display;
-  if (!v.unit) return formatPlain(v.number, 6);
-  return v.unit === 'dB'
-    ? `${formatPlain(v.number, 6)} dB`
-    : `${formatEngineering(v.number, 5)}${v.unit}`;
+  return formatEngineering(v.number, 6, v.unit ?? '');
 }
 
 export function mountGrid(host, sheet, { onChange = () => {} } = {}) {

@@ -2,12 +2,14 @@
 // function help, and autosave with recovery after a reload.
 
 import { el } from '../dom.js';
+import { useCore } from '../format.js';
 import { mountGrid } from './grid.js';
 import { mountHelp } from './help.js';
 import * as store from './storage.js';
 import { DEMO_SHEET } from './demo.js';
 
 export async function mountWorksheet(host, api) {
+  useCore(api);
   const sheet = new api.Worksheet();
   const note = el('p', { class: 'sheet-note', role: 'status', 'aria-live': 'polite' });
   const fileInput = el('input', {

@@ -1,0 +1,369 @@
+//! The amplifier model as a JSON object: the `model` of a circuit document's
+//! `amplifier` element (version 2) and the `amplifier` of a stage document.
+//!
+//! ```json
+//! { "a0": { "min": 5e4, "typ": 2e5, "max": 1e6 }, "gbwHz": "10M", "hold": "hold-gbw",
+//!   "polesHz": ["40M"], "complexPoles": [{ "freqHz": "120M", "q": 0.7 }],
+//!   "rd": "2M", "cd": "3p", "rcm": "1G", "ccm": "4p", "ro": 60,
+//!   "slewRate": "10M", "swing": { "lowV": -13, "highV": 13 },
+//!   "voltageNoise": { "density": "8n", "cornerHz": 20 },
+//!   "currentNoise": { "density": "0.5p", "cornerHz": 100 } }
+//! ```
+//! `a0` is a number (no spread) or an object with `typ` and optional `min` and
+//! `max` (each defaulting to `typ`). Values are numbers or value texts
+//! ([`crate::circuit::parse_value`]). Unknown fields are refused, naming them.
+
+use super::amplifier::{Amplifier, BandwidthRule, OutputSwing};
+use super::density::NoiseDensity;
+use super::spread::Spread;
+use crate::circuit::error::{CircuitError, CircuitResult, Name};
+use crate::circuit::value::parse_value;
+use crate::error::Error;
+use crate::freq::ComplexPair;
+use alloc::vec::Vec;
+use serde_json::{Map, Value};
+
+/// The fields of the model object.
+pub const MODEL_FIELDS: &str = "a0, gbwHz, dominantPoleHz, hold, polesHz, zerosHz, rhpZerosHz, complexPoles, complexZeros, rd, cd, rcm, ccm, ro, slewRate, swing, voltageNoise, currentNoise";
+const MODEL_KEYS: [&str; 18] = [
+    "a0",
+    "gbwHz",
+    "dominantPoleHz",
+    "hold",
+    "polesHz",
+    "zerosHz",
+    "rhpZerosHz",
+    "complexPoles",
+    "complexZeros",
+    "rd",
+    "cd",
+    "rcm",
+    "ccm",
+    "ro",
+    "slewRate",
+    "swing",
+    "voltageNoise",
+    "currentNoise",
+];
+
+/// Refuse any key not in `known`, naming it (param `field`).
+pub(crate) fn reject_unknown(
+    obj: &Map<alloc::string::String, Value>,
+    known: &[&str],
+    expected: &'static str,
+) -> CircuitResult<()> {
+    match obj.keys().find(|k| !known.contains(&k.as_str())) {
+        Some(key) => Err(CircuitError::named(
+            Error::UnknownName {
+                param: "field",
+                expected,
+            },
+            key,
+        )),
+        None => Ok(()),
+    }
+}
+
+/// A number or a value text.
+pub(crate) fn number(v: &Value, param: &'static str) -> crate::Result<f64> {
+    match v {
+        Value::Number(n) => n.as_f64().ok_or(Error::NotFinite { param }),
+        Value::String(s) => parse_value(param, s),
+        _ => Err(Error::OutOfDomain {
+            param,
+            requirement: "must be a number or a value text such as 4k7 or 10M",
+        }),
+    }
+}
+
+fn opt_number(
+    obj: &Map<alloc::string::String, Value>,
+    key: &'static str,
+) -> crate::Result<Option<f64>> {
+    obj.get(key).map(|v| number(v, key)).transpose()
+}
+
+fn object<'a>(
+    v: &'a Value,
+    param: &'static str,
+) -> crate::Result<&'a Map<alloc::string::String, Value>> {
+    v.as_object().ok_or(Error::OutOfDomain {
+        param,
+        requirement: "must be a JSON object",
+    })
+}
+
+fn list<'a>(v: Option<&'a Value>, param: &'static str) -> crate::Result<&'a [Value]> {
+    match v {
+        None => Ok(&[]),
+        Some(v) => v.as_array().map(Vec::as_slice).ok_or(Error::OutOfDomain {
+            param,
+            requirement: "must be a list",
+        }),
+    }
+}
+
+fn spread(v: &Value) -> CircuitResult<Spread> {
+    if let Value::Object(o) = v {
+        reject_unknown(o, &["min", "typ", "max"], "min, typ, max")?;
+        let typ = o
+            .get("typ")
+            .map(|t| number(t, "a0"))
+            .transpose()?
+            .ok_or(Error::OutOfDomain {
+                param: "a0",
+                requirement: "needs typ (min and max default to typ)",
+            })?;
+        Ok(Spread {
+            min: opt_number(o, "min")
+                .map_err(|e| e.with_param("a0"))?
+                .unwrap_or(typ),
+            typ,
+            max: opt_number(o, "max")
+                .map_err(|e| e.with_param("a0"))?
+                .unwrap_or(typ),
+        })
+    } else {
+        Ok(Spread::fixed(number(v, "a0")?))
+    }
+}
+
+fn pairs(v: Option<&Value>, param: &'static str) -> CircuitResult<Vec<ComplexPair>> {
+    let mut out = Vec::new();
+    for p in list(v, param)? {
+        let o = object(p, param)?;
+        reject_unknown(o, &["freqHz", "q"], "freqHz, q")?;
+        let get = |k: &str| {
+            o.get(k)
+                .map(|x| number(x, param))
+                .transpose()?
+                .ok_or(Error::OutOfDomain {
+                    param,
+                    requirement: "each pair needs freqHz and q",
+                })
+        };
+        out.push(ComplexPair {
+            freq_hz: get("freqHz")?,
+            q: get("q")?,
+        });
+    }
+    Ok(out)
+}
+
+fn density(v: Option<&Value>, param: &'static str) -> CircuitResult<Option<NoiseDensity>> {
+    let Some(v) = v else { return Ok(None) };
+    let o = object(v, param)?;
+    reject_unknown(o, &["density", "cornerHz"], "density, cornerHz")?;
+    let d = o
+        .get("density")
+        .map(|x| number(x, param))
+        .transpose()?
+        .ok_or(Error::OutOfDomain {
+            param,
+            requirement: "needs density",
+        })?;
+    let fc = opt_number(o, "cornerHz")
+        .map_err(|e| e.with_param(param))?
+        .unwrap_or(0.0);
+    Ok(Some(NoiseDensity {
+        density: d,
+        corner_hz: fc,
+    }))
+}
+
+fn swing(v: Option<&Value>) -> CircuitResult<Option<OutputSwing>> {
+    let Some(v) = v else { return Ok(None) };
+    let o = object(v, "swing")?;
+    reject_unknown(o, &["lowV", "highV"], "lowV, highV")?;
+    let get = |k: &str| {
+        o.get(k)
+            .map(|x| number(x, "swing"))
+            .transpose()?
+            .ok_or(Error::OutOfDomain {
+                param: "swing",
+                requirement: "needs lowV and highV",
+            })
+    };
+    Ok(Some(OutputSwing {
+        low_v: get("lowV")?,
+        high_v: get("highV")?,
+    }))
+}
+
+fn numbers(v: Option<&Value>, param: &'static str) -> crate::Result<Vec<f64>> {
+    list(v, param)?.iter().map(|x| number(x, param)).collect()
+}
+
+/// Read and validate an amplifier model object.
+///
+/// # Errors
+/// A field that is not of its type or does not read (param: the field); an
+/// unknown field (param `field`, the name is the field); every error of
+/// [`Amplifier::validate`].
+pub fn read_amplifier(v: &Value) -> CircuitResult<Amplifier> {
+    let o = object(v, "model")?;
+    reject_unknown(o, &MODEL_KEYS, MODEL_FIELDS)?;
+    let a0 = spread(o.get("a0").ok_or(Error::OutOfDomain {
+        param: "a0",
+        requirement: "the open-loop gain a0 is required",
+    })?)?;
+    let hold = match o.get("hold") {
+        None => BandwidthRule::HoldGbw,
+        Some(h) => BandwidthRule::from_name(h.as_str().unwrap_or(""))?,
+    };
+    let a = Amplifier {
+        a0,
+        gbw_hz: opt_number(o, "gbwHz")?,
+        dominant_pole_hz: opt_number(o, "dominantPoleHz")?,
+        hold,
+        poles_hz: numbers(o.get("polesHz"), "polesHz")?,
+        zeros_hz: numbers(o.get("zerosHz"), "zerosHz")?,
+        rhp_zeros_hz: numbers(o.get("rhpZerosHz"), "rhpZerosHz")?,
+        complex_poles: pairs(o.get("complexPoles"), "complexPoles")?,
+        complex_zeros: pairs(o.get("complexZeros"), "complexZeros")?,
+        rd: opt_number(o, "rd")?,
+        cd: opt_number(o, "cd")?.unwrap_or(0.0),
+        rcm: opt_number(o, "rcm")?,
+        ccm: opt_number(o, "ccm")?.unwrap_or(0.0),
+        ro: opt_number(o, "ro")?.unwrap_or(0.0),
+        slew_rate: opt_number(o, "slewRate")?,
+        swing: swing(o.get("swing"))?,
+        voltage_noise: density(o.get("voltageNoise"), "voltageNoise")?,
+        current_noise: density(o.get("currentNoise"), "currentNoise")?,
+    };
+    a.validate()?;
+    Ok(a)
+}
+
+/// Write an amplifier model object (numbers; empty lists and unset figures left out),
+/// so that [`read_amplifier`] gives back an equal model.
+pub fn write_amplifier(a: &Amplifier) -> Value {
+    let mut m = Map::new();
+    let mut put = |k: &str, v: Value| {
+        m.insert(k.into(), v);
+    };
+    let s = a.a0;
+    let mut a0 = Map::new();
+    a0.insert("min".into(), Value::from(s.min));
+    a0.insert("typ".into(), Value::from(s.typ));
+    a0.insert("max".into(), Value::from(s.max));
+    put("a0", Value::Object(a0));
+    let opt = |v: Option<f64>| v.map(Value::from);
+    if let Some(v) = opt(a.gbw_hz) {
+        put("gbwHz", v);
+    }
+    if let Some(v) = opt(a.dominant_pole_hz) {
+        put("dominantPoleHz", v);
+    }
+    put("hold", Value::from(a.hold.name()));
+    for (k, l) in [
+        ("polesHz", &a.poles_hz),
+        ("zerosHz", &a.zeros_hz),
+        ("rhpZerosHz", &a.rhp_zeros_hz),
+    ] {
+        if !l.is_empty() {
+            put(k, Value::Array(l.iter().map(|&x| Value::from(x)).collect()));
+        }
+    }
+    for (k, l) in [
+        ("complexPoles", &a.complex_poles),
+        ("complexZeros", &a.complex_zeros),
+    ] {
+        if !l.is_empty() {
+            let items = l
+                .iter()
+                .map(|p| {
+                    let mut o = Map::new();
+                    o.insert("freqHz".into(), Value::from(p.freq_hz));
+                    o.insert("q".into(), Value::from(p.q));
+                    Value::Object(o)
+                })
+                .collect();
+            put(k, Value::Array(items));
+        }
+    }
+    for (k, v) in [("rd", a.rd), ("rcm", a.rcm), ("slewRate", a.slew_rate)] {
+        if let Some(v) = v {
+            put(k, Value::from(v));
+        }
+    }
+    for (k, v) in [("cd", a.cd), ("ccm", a.ccm), ("ro", a.ro)] {
+        put(k, Value::from(v));
+    }
+    if let Some(s) = a.swing {
+        let mut o = Map::new();
+        o.insert("lowV".into(), Value::from(s.low_v));
+        o.insert("highV".into(), Value::from(s.high_v));
+        put("swing", Value::Object(o));
+    }
+    for (k, d) in [
+        ("voltageNoise", a.voltage_noise),
+        ("currentNoise", a.current_noise),
+    ] {
+        if let Some(d) = d {
+            let mut o = Map::new();
+            o.insert("density".into(), Value::from(d.density));
+            o.insert("cornerHz".into(), Value::from(d.corner_hz));
+            put(k, Value::Object(o));
+        }
+    }
+    Value::Object(m)
+}
+
+/// The name-less error of a model field, attached to the element `name`.
+pub(crate) fn at_element(e: CircuitError, name: Name) -> CircuitError {
+    if e.name.is_empty() {
+        CircuitError::new(e.error, name)
+    } else {
+        e
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const MODEL: &str = r#"{ "a0": { "min": 5e4, "typ": 2e5, "max": 1e6 }, "gbwHz": "10M",
+      "polesHz": ["40M"], "zerosHz": [3e8], "rhpZerosHz": ["1G"],
+      "complexPoles": [{ "freqHz": "120M", "q": 0.7 }],
+      "complexZeros": [{ "freqHz": "500M", "q": 3 }],
+      "rd": "2M", "cd": "3p", "rcm": "1G", "ccm": "4p", "ro": 60,
+      "slewRate": "10M", "swing": { "lowV": -13, "highV": 13 },
+      "voltageNoise": { "density": "8n", "cornerHz": 20 },
+      "currentNoise": { "density": "0.5p" } }"#;
+
+    #[test]
+    fn reads_and_writes_back_every_field() {
+        let v: Value = serde_json::from_str(MODEL).unwrap();
+        let a = read_amplifier(&v).unwrap();
+        assert_eq!(a.gbw_hz, Some(10e6));
+        assert_eq!(a.cd, 3e-12);
+        assert_eq!(a.current_noise.unwrap().corner_hz, 0.0);
+        assert_eq!(a.complex_poles[0].q, 0.7);
+        assert_eq!(read_amplifier(&write_amplifier(&a)).unwrap(), a);
+    }
+
+    #[test]
+    fn bad_models_name_the_field() {
+        let bad = |from: &str, to: &str| {
+            let v: Value = serde_json::from_str(&MODEL.replace(from, to)).unwrap();
+            read_amplifier(&v).unwrap_err()
+        };
+        assert_eq!(bad("\"q\": 0.7", "\"q\": 0").error.param(), "complexPoles");
+        assert_eq!(bad("\"ro\": 60", "\"ro\": \"x\"").error.param(), "ro");
+        let e = bad("\"ro\": 60", "\"roo\": 60");
+        assert_eq!((e.error.param(), e.name.as_str()), ("field", "roo"));
+        assert_eq!(bad("\"typ\": 2e5", "\"typ\": 2e4").error.param(), "a0");
+        assert_eq!(bad("\"gbwHz\": \"10M\",", "").error.param(), "gbwHz");
+        assert_eq!(
+            bad(
+                "\"gbwHz\": \"10M\"",
+                "\"gbwHz\": \"10M\", \"dominantPoleHz\": 5"
+            )
+            .error
+            .param(),
+            "dominantPoleHz"
+        );
+        assert_eq!(bad("\"lowV\": -13", "\"lowV\": 14").error.param(), "swing");
+    }
+}
