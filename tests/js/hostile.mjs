@@ -203,7 +203,7 @@ export function goodCalls() {
     standardNeighbours: ['E24', 4800],
     seriesTolerance: ['E96'],
     parseValue: ['4k7'],
-    parseList: ['10, 1M; 4k7', { unit: 'Hz' }],
+    parseList: ['10, 1M, 4k7', { unit: 'Hz' }],
     readValue: ['4.7 kΩ', 0, 'Ω'],
     formatValue: [4700, 'Ω', 3],
     formatFull: [4700, 'Ω'],
