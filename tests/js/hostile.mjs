@@ -32,6 +32,7 @@ export const CODES = new Set([
   'overflow',
   'no_convergence',
   'singular',
+  'syntax',
   'wrong_type',
   'missing',
   'unknown_field',
