@@ -62,8 +62,10 @@ test-browser:
 test-page:
 	cd tests/js && GECKODRIVER=$$(command -v geckodriver) node --test format.test.mjs page.test.mjs sheet.test.mjs firefox.test.mjs
 
+# package.test.mjs: the packed package as a user installs it; hostile.test.mjs: the
+# hostile-call campaign over every export (LOOPWRIGHT_HOSTILE_LONG=1 for the long run).
 test-package:
-	cd tests/js && node --test package.test.mjs batch.test.mjs paste.test.mjs
+	cd tests/js && node --test package.test.mjs batch.test.mjs paste.test.mjs hostile.test.mjs
 
 bench: setup single package
 	cargo bench --bench core

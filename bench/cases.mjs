@@ -100,7 +100,14 @@ export const CASES = [
     key: 'freq_sweep_10k',
     area: 'freq',
     what: '10 000-point loop-gain sweep of a 6-pole, 2-zero loop (dB, continuous phase)',
-    make: (lw) => () => lw.loopGainSweep(FREQ_A, FREQ_BETA, 1, 1e9, 10_000),
+    make: (lw) => () =>
+      lw.loopGainSweep({
+        amplifier: FREQ_A,
+        beta: FREQ_BETA,
+        startHz: 1,
+        stopHz: 1e9,
+        points: 10_000,
+      }),
     plainJs: () => () => plainJsSweep(10_000),
     python: true,
     pythonLabel: 'python-control',

@@ -31,7 +31,14 @@ export const CIRCUIT_CASES = [
     make: (lw) => {
       const json = ladder();
       const freqs = new Float64Array(1000).map((_, i) => 10 ** (1 + (6 * i) / 999));
-      return () => lw.circuitSweep(json, 'Vs', 'n7', '0', freqs);
+      return () =>
+        lw.circuitSweep({
+          circuit: json,
+          source: 'Vs',
+          plus: 'n7',
+          minus: '0',
+          frequencies: freqs,
+        });
     },
     target: '< 5 ms',
   },
@@ -40,7 +47,16 @@ export const CIRCUIT_CASES = [
     area: 'circuit',
     what: 'two-port method beside the exact solution, one series-shunt stage',
     make: (lw) => (i) =>
-      lw.circuitTwoPort('series-shunt', 1e5, 1e3, 1e4 + i, 0, 0, 1e6, 1e3, 0, 1e4, 2e3, 0),
+      lw.circuitTwoPort({
+        topology: 'series-shunt',
+        ri: 1e5,
+        ro: 1e3,
+        gain: 1e4 + i,
+        rf: 1e6,
+        rg: 1e3,
+        rs: 1e4,
+        rl: 2e3,
+      }),
     target: '< 0.2 ms',
   },
 ];

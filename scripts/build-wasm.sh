@@ -5,14 +5,17 @@
 #   <out-dir>/lite/  the lite module (feature `wasm-lite`): feedback, frequency and
 #                    stability, network, distortion, noise; used by the embeddable
 #                    panel and the package's `loopwright/lite` entry.
-# In each, the entry module facade/loopwright.js (+ .d.ts) is put in front of the glue,
-# which is renamed loopwright_glue.js: importers keep using loopwright.js.
+# In each, the entry module is put in front of the glue, which is renamed
+# loopwright_glue.js: importers keep using loopwright.js. The full module's entry is
+# facade/loopwright.js (which re-exports facade/lite.js); the lite module's entry is
+# facade/lite.js itself; both use facade/guard.js. The glue's declarations get their
+# parameter names in camelCase (wasm-bindgen writes the Rust names).
 # Usage: scripts/build-wasm.sh [out-dir]   (default www/pkg, for the page)
 set -euo pipefail
 cd "$(dirname "$0")/.."
 out=${1:-www/pkg}
 
-# build <features> <cargo target dir> <out dir>
+# build <features> <cargo target dir> <out dir> <full|lite>
 build() {
   cargo rustc --quiet --lib --crate-type cdylib --release --target wasm32-unknown-unknown \
     --features "$1" --target-dir "$2"
@@ -23,12 +26,22 @@ build() {
     --out-dir "$3" --out-name loopwright \
     "$2/wasm32-unknown-unknown/release/loopwright.wasm"
   mv "$3/loopwright.js" "$3/loopwright_glue.js"
-  mv "$3/loopwright.d.ts" "$3/loopwright_glue.d.ts"
-  cp facade/loopwright.js facade/loopwright.d.ts "$3/"
+  # snake_case parameter names (`target_gain: number`) → camelCase (`targetGain: number`).
+  perl -pe 's/([(,] ?)([a-z][a-z0-9]*(?:_[a-z0-9]+)+)(\??: )/$1 . camel($2) . $3/ge;
+    sub camel { my $n = shift; $n =~ s{_([a-z0-9])}{\u$1}g; return $n }' \
+    "$3/loopwright.d.ts" > "$3/loopwright_glue.d.ts"
+  rm "$3/loopwright.d.ts"
+  cp facade/guard.js "$3/"
+  if [ "$4" = full ]; then
+    cp facade/loopwright.js facade/loopwright.d.ts facade/lite.js facade/lite.d.ts "$3/"
+  else
+    cp facade/lite.js "$3/loopwright.js"
+    cp facade/lite.d.ts "$3/loopwright.d.ts"
+  fi
   echo "build: $3/loopwright_bg.wasm $(wc -c < "$3/loopwright_bg.wasm") bytes," \
     "$(gzip -9 -c "$3/loopwright_bg.wasm" | wc -c) gzipped" >&2
 }
 
-build wasm target "$out"
+build wasm target "$out" full
 # A target dir of its own, so the two feature sets do not rebuild each other.
-build wasm-lite target/lite "$out/lite"
+build wasm-lite target/lite "$out/lite" lite

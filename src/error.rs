@@ -282,7 +282,7 @@ mod tests {
             },
             Error::Syntax {
                 param: "p",
-                column: 2,
+                column: 1,
                 reason: "r",
             },
             Error::WrongType {

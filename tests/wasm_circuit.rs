@@ -24,6 +24,37 @@ fn assert_thrown(
     assert_eq!(text(&e, "subject"), subject);
 }
 
+/// The options object of a template stage: topology, ri, ro, gain, ci, co, rf, rg,
+/// cf, rs, rl and, when given, frequencyHz.
+fn template(topology: &str, v: impl IntoIterator<Item = f64>) -> JsValue {
+    const NAMES: [&str; 11] = [
+        "ri",
+        "ro",
+        "gain",
+        "ci",
+        "co",
+        "rf",
+        "rg",
+        "cf",
+        "rs",
+        "rl",
+        "frequencyHz",
+    ];
+    let mut fields = vec![("topology", JsValue::from(topology))];
+    fields.extend(NAMES.iter().zip(v).map(|(n, x)| (*n, JsValue::from(x))));
+    js::object(&fields)
+}
+
+/// The options object of a function that probes a circuit document.
+fn probe(texts: &[(&str, &str)], frequencies: Option<&[f64]>) -> JsValue {
+    let mut fields: Vec<(&str, JsValue)> =
+        texts.iter().map(|(n, t)| (*n, JsValue::from(*t))).collect();
+    if let Some(f) = frequencies {
+        fields.push(("frequencies", js_sys::Float64Array::from(f).into()));
+    }
+    js::object(&fields)
+}
+
 fn re(obj: &JsValue, name: &str) -> f64 {
     num(&field(obj, name), "re")
 }
@@ -70,7 +101,16 @@ fn sweep_returns_typed_arrays() {
         r#""kind":"capacitor","nodes":["out","0"],"value":"1u""#,
     );
     let freqs = [0.0, 1.0 / (2.0 * core::f64::consts::PI * 3e-3), 1e6];
-    let h = api::circuit_sweep(&rc, "V1", "out", "0", &freqs).unwrap();
+    let h = api::circuit_sweep(probe(
+        &[
+            ("circuit", rc.as_str()),
+            ("source", "V1"),
+            ("plus", "out"),
+            ("minus", "0"),
+        ],
+        Some(&freqs),
+    ))
+    .unwrap();
     let re: js_sys::Float64Array = field(&h, "re").dyn_into().unwrap();
     let im: js_sys::Float64Array = field(&h, "im").dyn_into().unwrap();
     assert_eq!(re.length(), 3);
@@ -78,7 +118,15 @@ fn sweep_returns_typed_arrays() {
     assert!((re.get_index(0) - 1.0).abs() < 1e-12);
     assert!((re.get_index(1) - 0.5).abs() < 1e-12 && (im.get_index(1) + 0.5).abs() < 1e-12);
     assert_thrown(
-        api::circuit_sweep(&rc, "R1", "out", "0", &freqs),
+        api::circuit_sweep(probe(
+            &[
+                ("circuit", rc.as_str()),
+                ("source", "R1"),
+                ("plus", "out"),
+                ("minus", "0"),
+            ],
+            Some(&freqs),
+        )),
         "out_of_domain",
         "source",
         "R1",
@@ -96,8 +144,11 @@ const STAGES: [(&str, f64, f64, f64, f64, f64, f64); 4] = [
 #[wasm_bindgen_test]
 fn exact_two_port_and_ideal_side_by_side_for_all_four_topologies() {
     for (name, ri, ro, gain, rf, rg, ideal) in STAGES {
-        let r = api::circuit_two_port(name, ri, ro, gain, 0.0, 0.0, rf, rg, 0.0, 1e3, 2e3, 0.0)
-            .unwrap();
+        let r = api::circuit_two_port(template(
+            name,
+            [ri, ro, gain, 0.0, 0.0, rf, rg, 0.0, 1e3, 2e3, 0.0],
+        ))
+        .unwrap();
         assert_eq!(text(&r, "topology"), name);
         // Ideal 1/β of each network (Sedra & Smith, Microelectronic Circuits, 7th ed.,
         // ch. 10, from memory): 1 + Rf/Rg, −Rf, 1/Rsense, −(1 + Rf/Rg).
@@ -130,8 +181,11 @@ fn exact_two_port_and_ideal_side_by_side_for_all_four_topologies() {
             ["h", "y", "z", "g"][STAGES.iter().position(|s| s.0 == name).unwrap()]
         );
         // The template's JSON goes back in and solves to the same exact gain.
-        let json =
-            api::circuit_template(name, ri, ro, gain, 0.0, 0.0, rf, rg, 0.0, 1e3, 2e3).unwrap();
+        let json = api::circuit_template(template(
+            name,
+            [ri, ro, gain, 0.0, 0.0, rf, rg, 0.0, 1e3, 2e3],
+        ))
+        .unwrap();
         let s = api::circuit_solve(&json, 0.0).unwrap();
         let (list, key) = if name.ends_with("shunt") {
             ("nodeVoltages", "out")
@@ -151,9 +205,10 @@ fn exact_two_port_and_ideal_side_by_side_for_all_four_topologies() {
 fn blackman_and_asymptotic_gain_agree_with_the_solve() {
     for (name, ri, ro, gain, rf, rg, _) in STAGES {
         // Exact rearrangements: agreement to rounding, here with capacitances at 1 MHz.
-        let v = api::circuit_stage_views(
-            name, ri, ro, gain, 1e-12, 1e-12, rf, rg, 1e-12, 1e3, 2e3, 1e6,
-        )
+        let v = api::circuit_stage_views(template(
+            name,
+            [ri, ro, gain, 1e-12, 1e-12, rf, rg, 1e-12, 1e3, 2e3, 1e6],
+        ))
         .unwrap();
         for part in ["gain", "input", "output"] {
             assert!(
@@ -162,29 +217,56 @@ fn blackman_and_asymptotic_gain_agree_with_the_solve() {
             );
         }
     }
-    let json = api::circuit_template(
+    let json = api::circuit_template(template(
         "series-shunt",
-        1e5,
-        1e3,
-        1e4,
-        0.0,
-        0.0,
-        9e3,
-        1e3,
-        0.0,
-        1e3,
-        2e3,
-    )
+        [1e5, 1e3, 1e4, 0.0, 0.0, 9e3, 1e3, 0.0, 1e3, 2e3],
+    ))
     .unwrap();
-    let g = api::circuit_asymptotic_gain(&json, "A", "Vs", "out", "0", 0.0).unwrap();
+    let g = api::circuit_asymptotic_gain(probe(
+        &[
+            ("circuit", json.as_str()),
+            ("controlled", "A"),
+            ("source", "Vs"),
+            ("plus", "out"),
+            ("minus", "0"),
+        ],
+        None,
+    ))
+    .unwrap();
     // G∞ = 1 + Rf/Rg = 10 (the null of the amplifier input forces the divider ratio).
     assert!((re(&g, "gInf") - 10.0).abs() < 1e-9);
-    let b = api::circuit_blackman(&json, "A", "out", "0", 0.0).unwrap();
+    let b = api::circuit_blackman(probe(
+        &[
+            ("circuit", json.as_str()),
+            ("controlled", "A"),
+            ("plus", "out"),
+            ("minus", "0"),
+        ],
+        None,
+    ))
+    .unwrap();
     assert!(num(&b, "relativeError") < 1e-9);
-    let gi = api::circuit_asymptotic_gain_current(&json, "A", "Vs", "Rl", 0.0).unwrap();
+    let gi = api::circuit_asymptotic_gain_current(probe(
+        &[
+            ("circuit", json.as_str()),
+            ("controlled", "A"),
+            ("source", "Vs"),
+            ("element", "Rl"),
+        ],
+        None,
+    ))
+    .unwrap();
     assert!((re(&gi, "exact") * 2e3 - re(&g, "exact")).abs() < 1e-9);
     assert_thrown(
-        api::circuit_blackman(&json, "Rf", "out", "0", 0.0),
+        api::circuit_blackman(probe(
+            &[
+                ("circuit", json.as_str()),
+                ("controlled", "Rf"),
+                ("plus", "out"),
+                ("minus", "0"),
+            ],
+            None,
+        )),
         "out_of_domain",
         "controlled",
         "Rf",
@@ -224,28 +306,19 @@ fn bad_input_throws_named_errors() {
     let floating = DIVIDER.replace(r#""nodes":["out","0"]"#, r#""nodes":["x","y"]"#);
     assert_thrown(api::circuit_solve(&floating, 0.0), "singular", "node", "x");
     assert_thrown(
-        api::circuit_two_port(
-            "sideways", 1.0, 1.0, 1.0, 0.0, 0.0, 1.0, 1.0, 0.0, 1.0, 1.0, 0.0,
-        ),
+        api::circuit_two_port(template(
+            "sideways",
+            [1.0, 1.0, 1.0, 0.0, 0.0, 1.0, 1.0, 0.0, 1.0, 1.0, 0.0],
+        )),
         "unknown_name",
         "topology",
         "",
     );
     assert_thrown(
-        api::circuit_two_port(
+        api::circuit_two_port(template(
             "series-shunt",
-            -1.0,
-            1.0,
-            1.0,
-            0.0,
-            0.0,
-            1.0,
-            1.0,
-            0.0,
-            1.0,
-            1.0,
-            0.0,
-        ),
+            [-1.0, 1.0, 1.0, 0.0, 0.0, 1.0, 1.0, 0.0, 1.0, 1.0, 0.0],
+        )),
         "out_of_domain",
         "ri",
         "",

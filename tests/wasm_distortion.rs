@@ -221,7 +221,7 @@ fn slew_rate_limits() {
     let e = checked(distortion::full_power_bandwidth(0.5e6, -1.0)).unwrap_err();
     assert_eq!(
         error_code_param(e),
-        ("out_of_domain".into(), "v_peak".into())
+        ("out_of_domain".into(), "vPeak".into())
     );
 }
 
@@ -233,7 +233,7 @@ fn thermal_noise_of_one_kilohm() {
     let err = checked(noise::thermal_noise_density(1e3, -1.0)).unwrap_err();
     assert_eq!(
         error_code_param(err),
-        ("out_of_domain".into(), "temperature_k".into())
+        ("out_of_domain".into(), "temperatureK".into())
     );
 }
 

@@ -11,7 +11,19 @@ wasm_bindgen_test_configure!(run_in_browser);
 
 #[path = "support/js.rs"]
 mod js;
-use js::{assert_thrown, checked, field, num, text};
+use js::{assert_thrown, checked, field, num, object, text};
+use wasm_bindgen::JsValue;
+
+/// The options of `impedancesWithFeedback` with real impedances and gains.
+fn impedance_options(topology: &str, zi: f64, zo: f64, a: f64, beta: f64) -> JsValue {
+    object(&[
+        ("topology", topology.into()),
+        ("ziRe", zi.into()),
+        ("zoRe", zo.into()),
+        ("aRe", a.into()),
+        ("betaRe", beta.into()),
+    ])
+}
 
 #[wasm_bindgen_test]
 fn scalar_functions_return_numbers() {
@@ -43,7 +55,7 @@ fn structured_results_are_plain_objects() {
     assert!(field(&none, "idealGain").is_null());
 
     let z =
-        api::impedances_with_feedback("series-shunt", 1e6, 0.0, 100.0, 0.0, 1e4, 0.0, 0.0999, 0.0)
+        api::impedances_with_feedback(impedance_options("series-shunt", 1e6, 100.0, 1e4, 0.0999))
             .unwrap();
     assert!((num(&field(&z, "input"), "re") - 1e9).abs() < 1e-3);
     assert!((num(&field(&z, "output"), "magnitude") - 0.1).abs() < 1e-12);
@@ -85,7 +97,7 @@ fn bad_input_throws_typed_errors() {
     assert_thrown(
         checked(api::beta_for_gain(100.0, 1000.0)),
         "unreachable",
-        "target_gain",
+        "targetGain",
     );
     assert_thrown(
         api::summarize_feedback("series-parallel", 1.0, 1.0),
@@ -93,9 +105,48 @@ fn bad_input_throws_typed_errors() {
         "topology",
     );
     assert_thrown(
-        api::impedances_with_feedback("shunt-shunt", -1.0, 0.0, 1.0, 0.0, 1.0, 0.0, 1.0, 0.0),
+        api::impedances_with_feedback(impedance_options("shunt-shunt", -1.0, 1.0, 1.0, 1.0)),
         "out_of_domain",
-        "zi",
+        "ziRe",
+    );
+    // The options object: a misspelt field, a missing one, a wrong type, by name.
+    assert_thrown(
+        api::impedances_with_feedback(object(&[
+            ("topology", "series-shunt".into()),
+            ("ziRe", 1e6.into()),
+            ("zoRe", 100.0.into()),
+            ("aRe", 1e4.into()),
+            ("betaRe", 0.1.into()),
+            ("zoIM", 0.0.into()),
+        ])),
+        "unknown_field",
+        "zoIM",
+    );
+    assert_thrown(
+        api::impedances_with_feedback(object(&[
+            ("topology", "series-shunt".into()),
+            ("ziRe", 1e6.into()),
+            ("aRe", 1e4.into()),
+            ("betaRe", 0.1.into()),
+        ])),
+        "missing",
+        "zoRe",
+    );
+    assert_thrown(
+        api::impedances_with_feedback(object(&[
+            ("topology", "series-shunt".into()),
+            ("ziRe", "1e6".into()),
+            ("zoRe", 100.0.into()),
+            ("aRe", 1e4.into()),
+            ("betaRe", 0.1.into()),
+        ])),
+        "wrong_type",
+        "ziRe",
+    );
+    assert_thrown(
+        api::impedances_with_feedback(JsValue::from(3.0)),
+        "wrong_type",
+        "options",
     );
     assert_thrown(
         checked(api::ideal_beta(0.0)),
@@ -105,12 +156,12 @@ fn bad_input_throws_typed_errors() {
     assert_thrown(
         checked(api::min_open_loop_gain(0.1, 2.0)),
         "out_of_domain",
-        "gain_error",
+        "gainError",
     );
     assert_thrown(
         api::gain_spread(0.1, 3.0, 2.0, 1.0),
         "out_of_domain",
-        "a_typ",
+        "aTyp",
     );
 }
 

@@ -18,6 +18,17 @@ fn obj(json: &str) -> JsValue {
     JSON::parse(json).unwrap()
 }
 
+/// The options object of a sweep.
+fn sweep(a: &JsValue, beta: JsValue, start_hz: f64, stop_hz: f64, points: u32) -> JsValue {
+    js::object(&[
+        ("amplifier", a.clone()),
+        ("beta", beta),
+        ("startHz", start_hz.into()),
+        ("stopHz", stop_hz.into()),
+        ("points", points.into()),
+    ])
+}
+
 fn three_equal_poles(t0: f64) -> JsValue {
     obj(&format!(
         r#"{{"gain": {t0}, "polesHz": [1000, 1000, 1000]}}"#
@@ -27,7 +38,7 @@ fn three_equal_poles(t0: f64) -> JsValue {
 #[wasm_bindgen_test]
 fn sweeps_are_typed_arrays_with_continuous_phase() {
     let a = three_equal_poles(4.0);
-    let s = api::loop_gain_sweep(a.clone(), 1.0.into(), 1.0, 1e7, 701).unwrap();
+    let s = api::loop_gain_sweep(sweep(&a, 1.0.into(), 1.0, 1e7, 701)).unwrap();
     let f = typed(&s, "freqHz");
     let m = typed(&s, "magnitudeDb");
     let p = typed(&s, "phaseDeg");
@@ -37,7 +48,7 @@ fn sweeps_are_typed_arrays_with_continuous_phase() {
     // (At 1 Hz the poles take 1.3e-5 dB.)
     assert!((m[0] - 20.0 * 4f64.log10()).abs() < 1e-4);
     assert!(p[700] < -269.0 && p.windows(2).all(|w| w[1] <= w[0]));
-    let c = api::closed_loop_sweep(a, 1.0.into(), 1.0, 1e7, 101).unwrap();
+    let c = api::closed_loop_sweep(sweep(&a, 1.0.into(), 1.0, 1e7, 101)).unwrap();
     // Af(DC) = 4/5 → −1.94 dB.
     assert!((typed(&c, "magnitudeDb")[0] - 20.0 * 0.8f64.log10()).abs() < 1e-4);
 }
@@ -166,19 +177,19 @@ fn margins_read_every_crossing_as_its_distance_to_minus_one() {
 fn bad_input_throws_typed_errors() {
     let a = obj(r#"{"gain": 1e5, "polesHz": [10]}"#);
     assert_thrown(
-        api::loop_gain_sweep(a.clone(), 0.1.into(), 10.0, 1.0, 10),
+        api::loop_gain_sweep(sweep(&a, 0.1.into(), 10.0, 1.0, 10)),
         "out_of_domain",
-        "stop_hz",
+        "stopHz",
     );
     assert_thrown(
-        api::loop_gain_sweep(a.clone(), 0.1.into(), 1.0, 10.0, 100_001),
+        api::loop_gain_sweep(sweep(&a, 0.1.into(), 1.0, 10.0, 100_001)),
         "too_large",
         "points",
     );
     assert_thrown(
         api::stability_margins(obj(r#"{"gain": 1e5, "polesHz": [-10]}"#), 0.1.into()),
         "out_of_domain",
-        "a.poles_hz",
+        "amplifier.polesHz",
     );
     assert_thrown(
         api::stability_margins(
@@ -186,27 +197,53 @@ fn bad_input_throws_typed_errors() {
             0.1.into(),
         ),
         "out_of_domain",
-        "a.complex_poles",
+        "amplifier.complexPoles",
     );
     assert_thrown(
         api::stability_margins(obj(r#"{"gain": 1e5, "poles": [10]}"#), 0.1.into()),
-        "unknown_name",
-        "a",
+        "unknown_field",
+        "amplifier.poles",
     );
     assert_thrown(
         api::stability_margins(obj(r#"{"gain": "big"}"#), 0.1.into()),
-        "out_of_domain",
-        "a",
+        "wrong_type",
+        "amplifier.gain",
+    );
+    // The path of a wrong element, and a missing gain.
+    assert_thrown(
+        api::stability_margins(
+            obj(r#"{"gain": 1e5, "polesHz": [10, 20, "3"]}"#),
+            0.1.into(),
+        ),
+        "wrong_type",
+        "amplifier.polesHz[2]",
+    );
+    assert_thrown(
+        api::stability_margins(obj(r#"{"polesHz": [10]}"#), 0.1.into()),
+        "missing",
+        "amplifier.gain",
+    );
+    assert_thrown(
+        api::stability_margins(obj(r#"{"gain": 1e5, "polesHz": "10"}"#), 0.1.into()),
+        "wrong_type",
+        "amplifier.polesHz",
+    );
+    assert_thrown(
+        api::closed_loop_sweep(obj(
+            r#"{"amplifier": {"gain": 1e5}, "beta": 0.1, "startHz": 1}"#,
+        )),
+        "missing",
+        "stopHz",
     );
     assert_thrown(
         api::closed_loop_poles(a.clone(), obj(r#"{"gain": 0.1, "zerosHz": [1, 2]}"#)),
         "out_of_domain",
-        "beta.zeros_hz",
+        "beta.zerosHz",
     );
     assert_thrown(
         api::step_response(three_equal_poles(12.0), 1.0.into(), 0.02, 100),
         "unreachable",
-        "closed_loop",
+        "closedLoop",
     );
     assert_thrown(
         api::two_pole_response(1e3, 1e6, -1.0),
@@ -216,7 +253,7 @@ fn bad_input_throws_typed_errors() {
     assert_thrown(
         api::closed_loop_poles(a.clone(), obj(r#"{"gain": 0.1, "padeOrder": 4}"#)),
         "out_of_domain",
-        "beta",
+        "beta.padeOrder",
     );
     assert_thrown(
         api::closed_loop_poles(
@@ -224,7 +261,7 @@ fn bad_input_throws_typed_errors() {
             0.1.into(),
         ),
         "out_of_domain",
-        "pade_order",
+        "amplifier.padeOrder",
     );
     assert_thrown(
         api::closed_loop_bandwidth(a, JsValue::from(f64::NAN)),

@@ -86,6 +86,50 @@ export interface TwoPortAnalysis {
 export interface BlackmanImpedance { z0: Complex; tShort: Complex; tOpen: Complex; blackman: Complex; exact: Complex; relativeError: number; }
 /** The asymptotic-gain decomposition G∞·T/(1 + T) + G0/(1 + T) beside the transfer solved directly. */
 export interface AsymptoticGain { gInf: Complex; g0: Complex; t: Complex; af: Complex; exact: Complex; relativeError: number; }
+/** A template stage (options of `circuitTemplate`): resistances in Ω, capacitances in F. */
+export interface TemplateOptions {
+  topology: TopologyName;
+  ri: number; ro: number;
+  /** Amplifier gain of the topology's kind (V/V, V/A, A/V, A/A), signed. */
+  gain: number;
+  /** Default 0 (none). */
+  ci?: number;
+  /** Default 0 (none). */
+  co?: number;
+  rf: number; rg: number;
+  /** Default 0 (none). */
+  cf?: number;
+  rs: number; rl: number;
+}
+/** A template stage at a frequency (options of `circuitTwoPort` and `circuitStageViews`). */
+export interface TemplateAtOptions extends TemplateOptions {
+  /** Hz; default 0 (the midband/DC solution). */
+  frequencyHz?: number;
+}
+/** Options of `circuitSweep`: V(plus) − V(minus) per unit of `source`. */
+export interface CircuitSweepOptions {
+  /** The circuit document's JSON text. */
+  circuit: string; source: string; plus: string; minus: string;
+  frequencies: readonly number[] | Float64Array;
+}
+/** Options of `circuitBlackman`. */
+export interface CircuitBlackmanOptions {
+  circuit: string; controlled: string; plus: string; minus: string;
+  /** Hz; default 0. */
+  frequencyHz?: number;
+}
+/** Options of `circuitAsymptoticGain`. */
+export interface CircuitAsymptoticGainOptions {
+  circuit: string; controlled: string; source: string; plus: string; minus: string;
+  /** Hz; default 0. */
+  frequencyHz?: number;
+}
+/** Options of `circuitAsymptoticGainCurrent`. */
+export interface CircuitAsymptoticGainCurrentOptions {
+  circuit: string; controlled: string; source: string; element: string;
+  /** Hz; default 0. */
+  frequencyHz?: number;
+}
 export interface StageViews { gain: AsymptoticGain; input: BlackmanImpedance; output: BlackmanImpedance; }
 "#;
 
@@ -97,7 +141,8 @@ fn circuit_error(e: CircuitError) -> JsValue {
     let obj: &js_sys::Object = err.as_ref();
     // Reflect::set only fails on frozen or proxy objects; a fresh Error is neither.
     let _ = js_sys::Reflect::set(obj, &"code".into(), &e.error.code().into());
-    let _ = js_sys::Reflect::set(obj, &"param".into(), &e.error.param().into());
+    let param = super::options::caller_name(e.error.param(), &[]);
+    let _ = js_sys::Reflect::set(obj, &"param".into(), &param.as_str().into());
     let _ = js_sys::Reflect::set(obj, &"subject".into(), &e.name.as_str().into());
     err.into()
 }
@@ -122,34 +167,153 @@ impl From<Complex64> for Cx {
     }
 }
 
-#[allow(clippy::too_many_arguments)]
-fn spec(
-    topology: &str,
+/// The options of `circuitTemplate`: a template stage (see the templates table in
+/// the Rust docs). `topology` by either naming family; `ri`, `ro`, `rf`, `rg`, `rs`,
+/// `rl` in Ω; `gain` of the topology's kind (V/V, V/A, A/V, A/A, signed); `ci`,
+/// `co`, `cf` in F (default 0 = none).
+#[derive(serde::Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct TemplateOptions {
+    topology: alloc::string::String,
     ri: f64,
     ro: f64,
     gain: f64,
+    #[serde(default)]
     ci: f64,
+    #[serde(default)]
     co: f64,
     rf: f64,
     rg: f64,
+    #[serde(default)]
     cf: f64,
     rs: f64,
     rl: f64,
-) -> Result<StageSpec, JsValue> {
-    let t: Topology = throw(topology.parse().map_err(CircuitError::from))?;
+}
+
+/// The options of `circuitTwoPort` and `circuitStageViews`: a template stage and the
+/// frequency (Hz, default 0 = the midband/DC solution).
+#[derive(serde::Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct TemplateAtOptions {
+    topology: alloc::string::String,
+    ri: f64,
+    ro: f64,
+    gain: f64,
+    #[serde(default)]
+    ci: f64,
+    #[serde(default)]
+    co: f64,
+    rf: f64,
+    rg: f64,
+    #[serde(default)]
+    cf: f64,
+    rs: f64,
+    rl: f64,
+    #[serde(default)]
+    frequency_hz: f64,
+}
+
+impl TemplateAtOptions {
+    fn split(self) -> (TemplateOptions, f64) {
+        let t = TemplateOptions {
+            topology: self.topology,
+            ri: self.ri,
+            ro: self.ro,
+            gain: self.gain,
+            ci: self.ci,
+            co: self.co,
+            rf: self.rf,
+            rg: self.rg,
+            cf: self.cf,
+            rs: self.rs,
+            rl: self.rl,
+        };
+        (t, self.frequency_hz)
+    }
+}
+
+fn spec(o: &TemplateOptions) -> Result<StageSpec, JsValue> {
+    let t: Topology = throw(o.topology.parse().map_err(CircuitError::from))?;
     Ok(StageSpec {
         topology: t,
         amplifier: AmplifierModel {
-            ri,
-            ro,
-            gain,
-            ci,
-            co,
+            ri: o.ri,
+            ro: o.ro,
+            gain: o.gain,
+            ci: o.ci,
+            co: o.co,
         },
-        network: FeedbackNetwork { rf, rg, cf },
-        rs,
-        rl,
+        network: FeedbackNetwork {
+            rf: o.rf,
+            rg: o.rg,
+            cf: o.cf,
+        },
+        rs: o.rs,
+        rl: o.rl,
     })
+}
+
+/// The stage spec and frequency of a `TemplateAtOptions` object.
+fn spec_at(options: &JsValue) -> Result<(StageSpec, f64), JsValue> {
+    let (t, f) = super::options::read::<TemplateAtOptions>("", options)?.split();
+    Ok((spec(&t)?, f))
+}
+
+/// The options of the functions that probe a port of a circuit document.
+#[derive(serde::Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct ProbeOptions {
+    circuit: alloc::string::String,
+    #[serde(default)]
+    controlled: Option<alloc::string::String>,
+    #[serde(default)]
+    source: Option<alloc::string::String>,
+    #[serde(default)]
+    plus: Option<alloc::string::String>,
+    #[serde(default)]
+    minus: Option<alloc::string::String>,
+    #[serde(default)]
+    element: Option<alloc::string::String>,
+    #[serde(default)]
+    frequency_hz: f64,
+    #[serde(default)]
+    frequencies: Option<alloc::vec::Vec<f64>>,
+}
+
+/// A required text field of a probe: a JS `missing` error naming it when absent.
+fn field<'a>(value: &'a Option<alloc::string::String>, name: &str) -> Result<&'a str, JsValue> {
+    value
+        .as_deref()
+        .ok_or_else(|| super::options::error_at(name, crate::Error::Missing { param: "" }, None))
+}
+
+/// A probe's options, with the fields a function does not use refused by name.
+fn probe(options: &JsValue, unused: &[&str]) -> Result<ProbeOptions, JsValue> {
+    let o: ProbeOptions = super::options::read("", options)?;
+    let given = [
+        ("controlled", o.controlled.is_some()),
+        ("source", o.source.is_some()),
+        ("plus", o.plus.is_some()),
+        ("minus", o.minus.is_some()),
+        ("element", o.element.is_some()),
+        ("frequencyHz", o.frequency_hz != 0.0),
+        ("frequencies", o.frequencies.is_some()),
+    ];
+    for (name, present) in given {
+        if present && unused.contains(&name) {
+            return Err(super::options::error_at(
+                name,
+                crate::Error::UnknownField {
+                    param: "",
+                    expected: "",
+                },
+                Some(alloc::format!(
+                    "{name}: unknown field; this function does not take it"
+                )),
+            ));
+        }
+    }
+    Ok(o)
 }
 
 /// Read a circuit document and write it back in canonical form (values as
@@ -159,27 +323,14 @@ pub fn circuit_normalize(json: &str) -> Result<String, JsValue> {
     Ok(write_circuit(&circuit(json)?))
 }
 
-/// The circuit document of a template stage (see the templates table in the
-/// Rust docs): `topology` by either naming family; `ri`, `ro`, `rf`, `rg`, `rs`,
-/// `rl` in Ω; `gain` of the topology's kind (V/V, V/A, A/V, A/A, signed);
-/// `ci`, `co`, `cf` in F (0 = none).
+/// The circuit document of a template stage, from `{topology, ri, ro, gain, ci, co,
+/// rf, rg, cf, rs, rl}` (see `TemplateOptions`).
 #[wasm_bindgen(js_name = circuitTemplate)]
-#[allow(clippy::too_many_arguments)]
 pub fn circuit_template(
-    #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology: &str,
-    ri: f64,
-    ro: f64,
-    gain: f64,
-    ci: f64,
-    co: f64,
-    rf: f64,
-    rg: f64,
-    cf: f64,
-    rs: f64,
-    rl: f64,
+    #[wasm_bindgen(unchecked_param_type = "TemplateOptions")] options: JsValue,
 ) -> Result<String, JsValue> {
-    let s = spec(topology, ri, ro, gain, ci, co, rf, rg, cf, rs, rl)?;
-    Ok(write_circuit(&throw(build(&s))?.circuit))
+    let o: TemplateOptions = super::options::read("", &options)?;
+    Ok(write_circuit(&throw(build(&spec(&o)?))?.circuit))
 }
 
 /// Exact solution at one frequency: `{frequencyHz, nodeVoltages: [{name, re,
@@ -206,21 +357,21 @@ pub fn circuit_port_impedance(
     ))?))
 }
 
-/// V(plus) − V(minus) per unit of `source` over `frequencies` (Hz):
-/// `{re: Float64Array, im: Float64Array}`.
+/// V(plus) − V(minus) per unit of `source` over `frequencies` (Hz), from `{circuit,
+/// source, plus, minus, frequencies}`: `{re: Float64Array, im: Float64Array}`.
 #[wasm_bindgen(js_name = circuitSweep, unchecked_return_type = "ComplexSweep")]
 pub fn circuit_sweep(
-    json: &str,
-    source: &str,
-    plus: &str,
-    minus: &str,
-    frequencies: &[f64],
+    #[wasm_bindgen(unchecked_param_type = "CircuitSweepOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
+    let o = probe(&options, &["controlled", "element", "frequencyHz"])?;
+    let frequencies = o.frequencies.as_deref().ok_or_else(|| {
+        super::options::error_at("frequencies", crate::Error::Missing { param: "" }, None)
+    })?;
     let h = throw(core::voltage_transfer_sweep(
-        &circuit(json)?,
-        source,
-        plus,
-        minus,
+        &circuit(&o.circuit)?,
+        field(&o.source, "source")?,
+        field(&o.plus, "plus")?,
+        field(&o.minus, "minus")?,
         frequencies,
     ))?;
     let re: alloc::vec::Vec<f64> = h.iter().map(|z| z.re).collect();
@@ -229,109 +380,78 @@ pub fn circuit_sweep(
 }
 
 /// The two-port method beside the exact solution and the ideal 1/β, for a
-/// template stage (arguments as [`circuit_template`]) at `frequencyHz`:
+/// template stage at a frequency (`TemplateAtOptions`):
 /// `{topology, frequencyHz, gainUnit, parameters: {kind, p11..p22}, a, beta, loopGain,
 /// feedbackAmount, ri, ro, af, rif, rof, rin, rout, idealAf, idealAfError}`, where
 /// each of af…rout is `{twoPort, exact, relativeError}` and complex values are
 /// `{re, im}`.
 #[wasm_bindgen(js_name = circuitTwoPort, unchecked_return_type = "TwoPortAnalysis")]
-#[allow(clippy::too_many_arguments)]
 pub fn circuit_two_port(
-    #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology: &str,
-    ri: f64,
-    ro: f64,
-    gain: f64,
-    ci: f64,
-    co: f64,
-    rf: f64,
-    rg: f64,
-    cf: f64,
-    rs: f64,
-    rl: f64,
-    frequency_hz: f64,
+    #[wasm_bindgen(unchecked_param_type = "TemplateAtOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let s = spec(topology, ri, ro, gain, ci, co, rf, rg, cf, rs, rl)?;
+    let (s, frequency_hz) = spec_at(&options)?;
     to_js(&throw(twoport::analyze(&s, frequency_hz))?)
 }
 
-/// Blackman's Rin and Rout and the asymptotic-gain Af of a template stage:
-/// `{gain: {gInf, g0, t, af, exact, relativeError}, input: {z0, tShort, tOpen,
-/// blackman, exact, relativeError}, output: {…}}`.
+/// Blackman's Rin and Rout and the asymptotic-gain Af of a template stage at a
+/// frequency (`TemplateAtOptions`): `{gain: {gInf, g0, t, af, exact, relativeError},
+/// input: {z0, tShort, tOpen, blackman, exact, relativeError}, output: {…}}`.
 #[wasm_bindgen(js_name = circuitStageViews, unchecked_return_type = "StageViews")]
-#[allow(clippy::too_many_arguments)]
 pub fn circuit_stage_views(
-    #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology: &str,
-    ri: f64,
-    ro: f64,
-    gain: f64,
-    ci: f64,
-    co: f64,
-    rf: f64,
-    rg: f64,
-    cf: f64,
-    rs: f64,
-    rl: f64,
-    frequency_hz: f64,
+    #[wasm_bindgen(unchecked_param_type = "TemplateAtOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let s = spec(topology, ri, ro, gain, ci, co, rf, rg, cf, rs, rl)?;
+    let (s, frequency_hz) = spec_at(&options)?;
     to_js(&throw(blackman::stage_views(&s, frequency_hz))?)
 }
 
 /// Blackman's formula at the port (plus, minus) of a circuit document, with
-/// respect to the controlled source `controlled`.
+/// respect to the controlled source `controlled`: `{circuit, controlled, plus, minus,
+/// frequencyHz}`.
 #[wasm_bindgen(js_name = circuitBlackman, unchecked_return_type = "BlackmanImpedance")]
 pub fn circuit_blackman(
-    json: &str,
-    controlled: &str,
-    plus: &str,
-    minus: &str,
-    frequency_hz: f64,
+    #[wasm_bindgen(unchecked_param_type = "CircuitBlackmanOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
+    let o = probe(&options, &["source", "element", "frequencies"])?;
     to_js(&throw(blackman::blackman_impedance(
-        &circuit(json)?,
-        controlled,
-        plus,
-        minus,
-        frequency_hz,
+        &circuit(&o.circuit)?,
+        field(&o.controlled, "controlled")?,
+        field(&o.plus, "plus")?,
+        field(&o.minus, "minus")?,
+        o.frequency_hz,
     ))?)
 }
 
 /// The asymptotic-gain decomposition of the transfer from `source` to the
-/// voltage V(plus) − V(minus), with respect to `controlled`.
+/// voltage V(plus) − V(minus), with respect to `controlled`: `{circuit, controlled,
+/// source, plus, minus, frequencyHz}`.
 #[wasm_bindgen(js_name = circuitAsymptoticGain, unchecked_return_type = "AsymptoticGain")]
 pub fn circuit_asymptotic_gain(
-    json: &str,
-    controlled: &str,
-    source: &str,
-    plus: &str,
-    minus: &str,
-    frequency_hz: f64,
+    #[wasm_bindgen(unchecked_param_type = "CircuitAsymptoticGainOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let out = Output::Voltage(plus, minus);
+    let o = probe(&options, &["element", "frequencies"])?;
+    let out = Output::Voltage(field(&o.plus, "plus")?, field(&o.minus, "minus")?);
     to_js(&throw(blackman::asymptotic_gain(
-        &circuit(json)?,
-        controlled,
-        source,
+        &circuit(&o.circuit)?,
+        field(&o.controlled, "controlled")?,
+        field(&o.source, "source")?,
         out,
-        frequency_hz,
+        o.frequency_hz,
     ))?)
 }
 
-/// The same, to the current of `element`.
+/// The same, to the current of `element`: `{circuit, controlled, source, element,
+/// frequencyHz}`.
 #[wasm_bindgen(js_name = circuitAsymptoticGainCurrent, unchecked_return_type = "AsymptoticGain")]
 pub fn circuit_asymptotic_gain_current(
-    json: &str,
-    controlled: &str,
-    source: &str,
-    element: &str,
-    frequency_hz: f64,
+    #[wasm_bindgen(unchecked_param_type = "CircuitAsymptoticGainCurrentOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let out = Output::Current(element);
+    let o = probe(&options, &["plus", "minus", "frequencies"])?;
+    let out = Output::Current(field(&o.element, "element")?);
     to_js(&throw(blackman::asymptotic_gain(
-        &circuit(json)?,
-        controlled,
-        source,
+        &circuit(&o.circuit)?,
+        field(&o.controlled, "controlled")?,
+        field(&o.source, "source")?,
         out,
-        frequency_hz,
+        o.frequency_hz,
     ))?)
 }

@@ -216,8 +216,9 @@ pub fn distortion_at_frequency(
     )
 }
 
-/// The closed-loop output y solving y = A(x − β·y) at input x.
-#[wasm_bindgen(js_name = closedLoopOutput)]
+/// Internal, for the entry module (which exports `closedLoopOutput({a1, a2, a3, beta, x})`):
+/// the closed-loop output y solving y = A(x − β·y) at input x, as a bare f64 (see `scalar` in `src/wasm/mod.rs`).
+#[wasm_bindgen(js_name = closedLoopOutputAt)]
 pub fn closed_loop_output(a1: f64, a2: f64, a3: f64, beta: f64, x: f64) -> f64 {
     scalar(
         PowerSeries::new(a1, a2, a3)

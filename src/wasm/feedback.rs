@@ -2,6 +2,7 @@
 
 use super::{scalar, throw, to_js, write_scratch};
 use crate::feedback::{self as fb, Topology};
+use alloc::string::String;
 use num_complex::Complex64;
 use serde::Serialize;
 use wasm_bindgen::prelude::*;
@@ -37,6 +38,26 @@ export interface LoopPhasorsResult {
   closedLoopGain: Phasor;
   feedbackAmountDb: number;
   sense: FeedbackSense;
+}
+/** Options of `impedancesWithFeedback`: impedances in Ω; gains of the topology's kind. */
+export interface ImpedanceOptions {
+  topology: TopologyName;
+  /** Input impedance without feedback, real part, Ω. */
+  ziRe: number;
+  /** Default 0. */
+  ziIm?: number;
+  /** Output impedance without feedback, real part, Ω. */
+  zoRe: number;
+  /** Default 0. */
+  zoIm?: number;
+  /** Open-loop gain A, real part. */
+  aRe: number;
+  /** Default 0. */
+  aIm?: number;
+  /** Feedback factor β, real part. */
+  betaRe: number;
+  /** Default 0. */
+  betaIm?: number;
 }
 export interface FeedbackImpedances { input: Phasor; output: Phasor; feedbackAmount: Phasor; }
 export interface GainCeiling { closedLoopGain: number; beta: number; }
@@ -245,28 +266,49 @@ struct ImpedanceResult {
     feedback_amount: Phasor,
 }
 
-/// Input and output impedance with feedback: `{input, output, feedbackAmount}`
-/// each as `{re, im, magnitude, phaseDeg}`; impedances in Ω.
-#[wasm_bindgen(js_name = impedancesWithFeedback, unchecked_return_type = "FeedbackImpedances")]
-#[allow(clippy::too_many_arguments)]
-pub fn impedances_with_feedback(
-    #[wasm_bindgen(unchecked_param_type = "TopologyName")] topology_name: &str,
+/// The options of `impedancesWithFeedback`: impedances in Ω, the gains of the
+/// topology's kind; imaginary parts default to 0.
+#[derive(serde::Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct ImpedanceOptions {
+    topology: String,
     zi_re: f64,
+    #[serde(default)]
     zi_im: f64,
     zo_re: f64,
+    #[serde(default)]
     zo_im: f64,
     a_re: f64,
+    #[serde(default)]
     a_im: f64,
     beta_re: f64,
+    #[serde(default)]
     beta_im: f64,
+}
+
+/// Input and output impedance with feedback, from one options object `{topology,
+/// ziRe, ziIm, zoRe, zoIm, aRe, aIm, betaRe, betaIm}`: `{input, output,
+/// feedbackAmount}` each as `{re, im, magnitude, phaseDeg}`; impedances in Ω.
+#[wasm_bindgen(js_name = impedancesWithFeedback, unchecked_return_type = "FeedbackImpedances")]
+pub fn impedances_with_feedback(
+    #[wasm_bindgen(unchecked_param_type = "ImpedanceOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let z = throw(fb::impedances_with_feedback(
-        topology(topology_name)?,
-        Complex64::new(zi_re, zi_im),
-        Complex64::new(zo_re, zo_im),
-        Complex64::new(a_re, a_im),
-        Complex64::new(beta_re, beta_im),
-    ))?;
+    let o: ImpedanceOptions = super::options::read("", &options)?;
+    // The core names a complex input by its letter; the caller wrote its parts.
+    const RENAMES: [(&str, &str); 4] = [
+        ("zi", "ziRe"),
+        ("zo", "zoRe"),
+        ("a", "aRe"),
+        ("beta", "betaRe"),
+    ];
+    let z = fb::impedances_with_feedback(
+        topology(&o.topology)?,
+        Complex64::new(o.zi_re, o.zi_im),
+        Complex64::new(o.zo_re, o.zo_im),
+        Complex64::new(o.a_re, o.a_im),
+        Complex64::new(o.beta_re, o.beta_im),
+    )
+    .map_err(|e| super::options::core_error(e, &RENAMES))?;
     to_js(&ImpedanceResult {
         input: z.input.into(),
         output: z.output.into(),

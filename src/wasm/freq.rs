@@ -7,13 +7,11 @@
 //! either a number (a frequency-independent feedback factor) or such an object.
 //! Sweeps come back as objects of `Float64Array`s.
 
-use super::{scalar, set_typed_arrays, throw, to_js, typed_arrays};
+use super::{scalar, set_typed_arrays, to_js, typed_arrays};
 use crate::error::Error;
 use crate::freq::{self as fq, ComplexPair, FeedbackLoop, TransferModel};
-use js_sys::Object;
 use serde::Deserialize;
 use wasm_bindgen::prelude::*;
-use wasm_bindgen::JsCast;
 
 #[wasm_bindgen(typescript_custom_section)]
 const FREQ_TYPES: &str = r#"
@@ -44,6 +42,15 @@ export interface TransferModelInput {
 export interface AmplifierModelInput extends TransferModelInput { padeOrder?: number; }
 /** β: a frequency-independent number, or a transfer model (without `padeOrder`). */
 export type FeedbackInput = number | TransferModelInput;
+/** Options of `loopGainSweep` and `closedLoopSweep`: log-spaced from `startHz` to `stopHz`. */
+export interface SweepOptions {
+  amplifier: AmplifierModelInput;
+  beta: FeedbackInput;
+  startHz: number;
+  stopHz: number;
+  /** Number of frequencies, 2 … 100 000; default 200. */
+  points?: number;
+}
 /** A log-spaced frequency sweep; phase continuous, in degrees. */
 export interface FrequencySweep { freqHz: Float64Array; magnitudeDb: Float64Array; phaseDeg: Float64Array; }
 /** Loop gain T and closed-loop gain Af at one frequency (principal phase). */
@@ -141,25 +148,31 @@ struct JsPair {
     q: f64,
 }
 
-#[derive(Deserialize, Default)]
-#[serde(rename_all = "camelCase", default, deny_unknown_fields)]
+/// A transfer model as the caller writes it; every field but `gain` may be left out.
+#[derive(Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct JsModel {
     gain: f64,
+    #[serde(default)]
     poles_hz: Vec<f64>,
+    #[serde(default)]
     zeros_hz: Vec<f64>,
+    #[serde(default)]
     rhp_zeros_hz: Vec<f64>,
+    #[serde(default)]
     rhp_poles_hz: Vec<f64>,
+    #[serde(default)]
     complex_poles: Vec<JsPair>,
+    #[serde(default)]
     complex_zeros: Vec<JsPair>,
+    #[serde(default)]
     origin_poles: u32,
+    #[serde(default)]
     low_cuts_hz: Vec<f64>,
+    #[serde(default)]
     delay_s: f64,
     pade_order: Option<u32>,
 }
-
-const MODEL_SHAPE: &str =
-    "must be a model object {gain, polesHz, zerosHz, rhpZerosHz, rhpPolesHz, complexPoles: \
-[{freqHz, q}], complexZeros, originPoles, lowCutsHz, delayS} with numbers and arrays of numbers";
 
 fn pairs(v: Vec<JsPair>) -> Vec<ComplexPair> {
     v.into_iter()
@@ -170,76 +183,81 @@ fn pairs(v: Vec<JsPair>) -> Vec<ComplexPair> {
         .collect()
 }
 
-const MODEL_FIELDS: [&str; 11] = [
-    "gain",
-    "polesHz",
-    "zerosHz",
-    "rhpZerosHz",
-    "rhpPolesHz",
-    "complexPoles",
-    "complexZeros",
-    "originPoles",
-    "lowCutsHz",
-    "delayS",
-    "padeOrder",
-];
+/// The core names the amplifier `a`; the JS caller calls it `amplifier`, which also
+/// carries the loop's Padé order.
+const RENAMES: [(&str, &str); 2] = [("a", "amplifier"), ("pade_order", "amplifier.padeOrder")];
 
-fn model(param: &'static str, v: &JsValue) -> Result<(TransferModel, Option<u32>), JsValue> {
-    // A misspelt field would otherwise be skipped silently.
-    if let Some(o) = v.dyn_ref::<Object>() {
-        for key in Object::keys(o).iter() {
-            let known = key
-                .as_string()
-                .is_some_and(|k| MODEL_FIELDS.contains(&k.as_str()));
-            if !known {
-                return Err(super::js_error(Error::UnknownName {
-                    param,
-                    expected: "gain, polesHz, zerosHz, rhpZerosHz, rhpPolesHz, complexPoles, complexZeros, \
-originPoles, lowCutsHz, delayS, padeOrder",
-                }));
+/// A core error under the caller's names (`a.poles_hz` → `amplifier.polesHz`).
+fn throw<T>(r: crate::Result<T>) -> Result<T, JsValue> {
+    r.map_err(|e| super::options::core_error(e, &RENAMES))
+}
+
+impl JsModel {
+    /// The core's model, and the Padé order it asks for.
+    fn into_core(self) -> (TransferModel, Option<u32>) {
+        (
+            TransferModel {
+                gain: self.gain,
+                poles_hz: self.poles_hz,
+                zeros_hz: self.zeros_hz,
+                rhp_zeros_hz: self.rhp_zeros_hz,
+                rhp_poles_hz: self.rhp_poles_hz,
+                complex_poles: pairs(self.complex_poles),
+                complex_zeros: pairs(self.complex_zeros),
+                origin_poles: self.origin_poles,
+                low_cuts_hz: self.low_cuts_hz,
+                delay_s: self.delay_s,
+            },
+            self.pade_order,
+        )
+    }
+}
+
+/// β as the caller gives it: a number, or a transfer model object.
+enum JsBeta {
+    Constant(f64),
+    Model(JsModel),
+}
+
+impl<'de> Deserialize<'de> for JsBeta {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        struct Either;
+        impl<'de> serde::de::Visitor<'de> for Either {
+            type Value = JsBeta;
+            fn expecting(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
+                f.write_str("a number or a model object")
+            }
+            fn visit_f64<E>(self, x: f64) -> Result<JsBeta, E> {
+                Ok(JsBeta::Constant(x))
+            }
+            fn visit_u64<E>(self, x: u64) -> Result<JsBeta, E> {
+                Ok(JsBeta::Constant(x as f64))
+            }
+            fn visit_map<A: serde::de::MapAccess<'de>>(self, map: A) -> Result<JsBeta, A::Error> {
+                JsModel::deserialize(serde::de::value::MapAccessDeserializer::new(map))
+                    .map(JsBeta::Model)
             }
         }
-    }
-    let m: JsModel = serde_wasm_bindgen::from_value(v.clone()).map_err(|_| {
-        super::js_error(Error::OutOfDomain {
-            param,
-            requirement: MODEL_SHAPE,
-        })
-    })?;
-    Ok((
-        TransferModel {
-            gain: m.gain,
-            poles_hz: m.poles_hz,
-            zeros_hz: m.zeros_hz,
-            rhp_zeros_hz: m.rhp_zeros_hz,
-            rhp_poles_hz: m.rhp_poles_hz,
-            complex_poles: pairs(m.complex_poles),
-            complex_zeros: pairs(m.complex_zeros),
-            origin_poles: m.origin_poles,
-            low_cuts_hz: m.low_cuts_hz,
-            delay_s: m.delay_s,
-        },
-        m.pade_order,
-    ))
-}
-
-fn beta_model(beta: &JsValue) -> Result<TransferModel, JsValue> {
-    match beta.as_f64() {
-        Some(b) => Ok(TransferModel::constant(b)),
-        None => match model("beta", beta)? {
-            (m, None) => Ok(m),
-            (_, Some(_)) => Err(super::js_error(Error::OutOfDomain {
-                param: "beta",
-                requirement:
-                    "padeOrder belongs on the amplifier object, which sets it for the whole loop",
-            })),
-        },
+        d.deserialize_any(Either)
     }
 }
 
-fn feedback_loop(a: &JsValue, beta: &JsValue) -> Result<FeedbackLoop, JsValue> {
-    let (am, pade) = model("a", a)?;
-    let bm = beta_model(beta)?;
+/// The loop of an amplifier model and β, the Padé order from the amplifier.
+fn loop_of(amplifier: JsModel, beta: JsBeta) -> Result<FeedbackLoop, JsValue> {
+    let (am, pade) = amplifier.into_core();
+    let bm = match beta {
+        JsBeta::Constant(b) => TransferModel::constant(b),
+        JsBeta::Model(m) => match m.into_core() {
+            (m, None) => m,
+            (_, Some(_)) => {
+                return Err(super::js_error(Error::OutOfDomain {
+                    param: "beta.pade_order",
+                    requirement:
+                        "belongs on the amplifier object, which sets it for the whole loop",
+                }))
+            }
+        },
+    };
     throw(FeedbackLoop::with_pade_order(
         am,
         bm,
@@ -247,18 +265,61 @@ fn feedback_loop(a: &JsValue, beta: &JsValue) -> Result<FeedbackLoop, JsValue> {
     ))
 }
 
-/// A plain object whose fields are `Float64Array`s.
-/// Loop-gain sweep T = A·β: `{freqHz, magnitudeDb, phaseDeg}` as `Float64Array`s,
-/// phase continuous; at most 100 000 points.
-#[wasm_bindgen(js_name = loopGainSweep, unchecked_return_type = "FrequencySweep")]
-pub fn loop_gain_sweep(
-    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
-    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
+/// Read a model object named `param` (`amplifier`) through the options reader: a
+/// missing `gain`, an unknown field or a value of the wrong kind is an error whose
+/// `param` is the field's path (`amplifier.polesHz[2]`).
+fn model(param: &str, v: &JsValue) -> Result<(TransferModel, Option<u32>), JsValue> {
+    Ok(super::options::read::<JsModel>(param, v)?.into_core())
+}
+
+/// The loop of the positional `amplifier` and `beta` arguments.
+fn feedback_loop(a: &JsValue, beta: &JsValue) -> Result<FeedbackLoop, JsValue> {
+    let amplifier: JsModel = super::options::read("amplifier", a)?;
+    let beta: JsBeta = match beta.as_f64() {
+        Some(b) => JsBeta::Constant(b),
+        None => super::options::read("beta", beta)?,
+    };
+    loop_of(amplifier, beta)
+}
+
+/// The options of `loopGainSweep` and `closedLoopSweep`.
+#[derive(Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct SweepOptions {
+    amplifier: JsModel,
+    beta: JsBeta,
     start_hz: f64,
     stop_hz: f64,
-    points: usize,
+    #[serde(default = "default_points")]
+    points: u32,
+}
+
+/// Points of a sweep when `points` is left out.
+const DEFAULT_SWEEP_POINTS: u32 = 200;
+
+fn default_points() -> u32 {
+    DEFAULT_SWEEP_POINTS
+}
+
+/// The loop and the range of a sweep's options.
+fn sweep_options(options: &JsValue) -> Result<(FeedbackLoop, f64, f64, usize), JsValue> {
+    let o: SweepOptions = super::options::read("", options)?;
+    Ok((
+        loop_of(o.amplifier, o.beta)?,
+        o.start_hz,
+        o.stop_hz,
+        o.points as usize,
+    ))
+}
+
+/// Loop-gain sweep T = A·β from `{amplifier, beta, startHz, stopHz, points}`:
+/// `{freqHz, magnitudeDb, phaseDeg}` as `Float64Array`s, phase continuous; at most
+/// 100 000 points (default 200).
+#[wasm_bindgen(js_name = loopGainSweep, unchecked_return_type = "FrequencySweep")]
+pub fn loop_gain_sweep(
+    #[wasm_bindgen(unchecked_param_type = "SweepOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let l = feedback_loop(&a, &beta)?;
+    let (l, start_hz, stop_hz, points) = sweep_options(&options)?;
     let s = throw(fq::loop_gain_sweep(&l, start_hz, stop_hz, points))?;
     Ok(typed_arrays(&[
         ("freqHz", &s.freq_hz),
@@ -267,17 +328,13 @@ pub fn loop_gain_sweep(
     ]))
 }
 
-/// Closed-loop sweep Af = A/(1 + Aβ): `{freqHz, magnitudeDb, phaseDeg}` as
-/// `Float64Array`s.
+/// Closed-loop sweep Af = A/(1 + Aβ) from the options of `loopGainSweep`:
+/// `{freqHz, magnitudeDb, phaseDeg}` as `Float64Array`s.
 #[wasm_bindgen(js_name = closedLoopSweep, unchecked_return_type = "FrequencySweep")]
 pub fn closed_loop_sweep(
-    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
-    #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
-    start_hz: f64,
-    stop_hz: f64,
-    points: usize,
+    #[wasm_bindgen(unchecked_param_type = "SweepOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let l = feedback_loop(&a, &beta)?;
+    let (l, start_hz, stop_hz, points) = sweep_options(&options)?;
     let s = throw(fq::closed_loop_sweep(&l, start_hz, stop_hz, points))?;
     Ok(typed_arrays(&[
         ("freqHz", &s.freq_hz),
@@ -299,11 +356,11 @@ struct Phasor {
 /// each `{re, im, magnitude, phaseDeg}` (principal phase).
 #[wasm_bindgen(js_name = loopAt, unchecked_return_type = "LoopPoint")]
 pub fn loop_at(
-    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] amplifier: JsValue,
     #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
     f_hz: f64,
 ) -> Result<JsValue, JsValue> {
-    let l = feedback_loop(&a, &beta)?;
+    let l = feedback_loop(&amplifier, &beta)?;
     let t = throw(fq::loop_gain_at(&l, f_hz))?;
     let af = throw(fq::closed_loop_gain_at(&l, f_hz))?;
     #[derive(serde::Serialize)]
@@ -329,10 +386,10 @@ pub fn loop_at(
 /// `null` when unbounded (no crossover of that kind).
 #[wasm_bindgen(js_name = stabilityMargins, unchecked_return_type = "StabilityMargins")]
 pub fn stability_margins(
-    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] amplifier: JsValue,
     #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let l = feedback_loop(&a, &beta)?;
+    let l = feedback_loop(&amplifier, &beta)?;
     to_js(&throw(fq::stability_margins(&l))?)
 }
 
@@ -340,10 +397,10 @@ pub fn stability_margins(
 /// padeOrder}`; `verdict` is `"stable"`, `"marginal"` or `"unstable"`.
 #[wasm_bindgen(js_name = closedLoopPoles, unchecked_return_type = "ClosedLoopPoles")]
 pub fn closed_loop_poles(
-    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] amplifier: JsValue,
     #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let l = feedback_loop(&a, &beta)?;
+    let l = feedback_loop(&amplifier, &beta)?;
     to_js(&throw(fq::closed_loop_poles(&l))?)
 }
 
@@ -351,10 +408,10 @@ pub fn closed_loop_poles(
 /// denominator}`, coefficients lowest power first (a delay by its Padé approximant).
 #[wasm_bindgen(js_name = closedLoopTransfer, unchecked_return_type = "ClosedLoopTransfer")]
 pub fn closed_loop_transfer(
-    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] amplifier: JsValue,
     #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let l = feedback_loop(&a, &beta)?;
+    let l = feedback_loop(&amplifier, &beta)?;
     to_js(&throw(fq::closed_loop_transfer(&l))?)
 }
 
@@ -362,10 +419,10 @@ pub fn closed_loop_transfer(
 /// bandwidthHz, peakingDb, peakHz}`.
 #[wasm_bindgen(js_name = closedLoopBandwidth, unchecked_return_type = "ClosedLoopBandwidth")]
 pub fn closed_loop_bandwidth(
-    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] amplifier: JsValue,
     #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let l = feedback_loop(&a, &beta)?;
+    let l = feedback_loop(&amplifier, &beta)?;
     to_js(&throw(fq::closed_loop_bandwidth(&l))?)
 }
 
@@ -374,12 +431,12 @@ pub fn closed_loop_bandwidth(
 /// `output` as `Float64Array`s of `points` samples.
 #[wasm_bindgen(js_name = stepResponse, unchecked_return_type = "StepResponse")]
 pub fn step_response(
-    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] amplifier: JsValue,
     #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
     settle_band: f64,
     points: usize,
 ) -> Result<JsValue, JsValue> {
-    let l = feedback_loop(&a, &beta)?;
+    let l = feedback_loop(&amplifier, &beta)?;
     let s = throw(fq::step_response(&l, settle_band, points))?;
     #[derive(serde::Serialize)]
     #[serde(rename_all = "camelCase")]
@@ -418,12 +475,12 @@ pub fn step_response(
 /// for this loop is `null` with its note.
 #[wasm_bindgen(js_name = analyzeLoop, unchecked_return_type = "LoopAnalysis")]
 pub fn analyze_loop(
-    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] amplifier: JsValue,
     #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
     settle_band: f64,
     points: usize,
 ) -> Result<JsValue, JsValue> {
-    let l = feedback_loop(&a, &beta)?;
+    let l = feedback_loop(&amplifier, &beta)?;
     to_js(&throw(fq::analyze_loop(&l, settle_band, points))?)
 }
 
@@ -431,12 +488,12 @@ pub fn analyze_loop(
 /// `Float64Array`s.
 #[wasm_bindgen(js_name = stepWaveform, unchecked_return_type = "StepWaveform")]
 pub fn step_waveform(
-    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] amplifier: JsValue,
     #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
     duration_s: f64,
     points: usize,
 ) -> Result<JsValue, JsValue> {
-    let l = feedback_loop(&a, &beta)?;
+    let l = feedback_loop(&amplifier, &beta)?;
     let w = throw(fq::step_waveform(&l, duration_s, points))?;
     Ok(typed_arrays(&[("timeS", &w.time_s), ("output", &w.output)]))
 }
@@ -445,11 +502,11 @@ pub fn step_waveform(
 /// `{value, phaseMarginDeg, crossoverHz, closedLoopGain}`.
 #[wasm_bindgen(js_name = dominantPoleForMargin, unchecked_return_type = "CompensationResult")]
 pub fn dominant_pole_for_margin(
-    #[wasm_bindgen(unchecked_param_type = "TransferModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "TransferModelInput")] amplifier: JsValue,
     beta: f64,
     target_pm_deg: f64,
 ) -> Result<JsValue, JsValue> {
-    let (am, _) = model("a", &a)?;
+    let (am, _) = model("amplifier", &amplifier)?;
     to_js(&throw(fq::dominant_pole_for_margin(
         &am,
         beta,
@@ -461,11 +518,11 @@ pub fn dominant_pole_for_margin(
 /// `{value, phaseMarginDeg, crossoverHz, closedLoopGain}`.
 #[wasm_bindgen(js_name = maxBetaForMargin, unchecked_return_type = "CompensationResult")]
 pub fn max_beta_for_margin(
-    #[wasm_bindgen(unchecked_param_type = "TransferModelInput")] a: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "TransferModelInput")] amplifier: JsValue,
     target_pm_deg: f64,
     beta_limit: f64,
 ) -> Result<JsValue, JsValue> {
-    let (am, _) = model("a", &a)?;
+    let (am, _) = model("amplifier", &amplifier)?;
     to_js(&throw(fq::max_beta_for_margin(
         &am,
         target_pm_deg,

@@ -24,8 +24,6 @@ pub mod freq;
 pub mod network;
 pub mod noise;
 pub mod notation;
-// Used by the exports that take an options object; until they are converted, some of it is not.
-#[allow(dead_code)]
 pub(crate) mod options;
 #[cfg(feature = "wasm")]
 pub mod sheet;
@@ -40,8 +38,12 @@ const ERROR_TYPES: &str = r#"
 export type ErrorCode =
   | "not_finite" | "out_of_domain" | "unreachable" | "oscillation" | "unknown_name"
   | "too_large" | "overflow" | "no_convergence" | "singular" | "syntax"
-  | "wrong_type" | "missing" | "unknown_field";
-/** What every loopwright function throws on bad input: `param` names the argument at fault. */
+  | "wrong_type" | "missing" | "unknown_field"
+  | "bad_document";
+/**
+ * What every loopwright function throws on bad input: `param` names the argument or
+ * options field at fault as the caller wrote it (`targetGain`, `amplifier.polesHz[2]`).
+ */
 export interface LoopwrightError extends Error {
   name: "LoopwrightError";
   code: ErrorCode;
@@ -49,21 +51,27 @@ export interface LoopwrightError extends Error {
   /** For `syntax`: the 1-based character column where the text stopped reading. */
   column?: number;
 }
+/**
+ * What `Worksheet.loadDocument` throws for a refused document (the sheet stays as it
+ * was): `param` is "document"; `reason` is the sentence that names the place in the
+ * document and the problem ("the input of B3 must be a string"), without the prefix
+ * of `message`.
+ */
+export interface DocumentError extends LoopwrightError {
+  code: "bad_document";
+  param: "document";
+  reason: string;
+}
 "#;
 
 /// A JS `Error` whose message is the core error's sentence, with `name`
 /// `"LoopwrightError"` and the fields `code` and `param`.
+///
+/// `param` is the name the JS caller uses: the core's snake_case name in camelCase
+/// (`target_gain` → `targetGain`, `a.poles_hz` → `a.polesHz`); see
+/// [`options::core_error`] for exports whose names differ by more than case.
 pub(crate) fn js_error(e: Error) -> JsValue {
-    let err = js_sys::Error::new(&alloc::format!("{e}"));
-    err.set_name("LoopwrightError");
-    let obj: &js_sys::Object = err.as_ref();
-    // Reflect::set only fails on frozen or proxy objects; a fresh Error is neither.
-    let _ = js_sys::Reflect::set(obj, &"code".into(), &e.code().into());
-    let _ = js_sys::Reflect::set(obj, &"param".into(), &e.param().into());
-    if let Some(column) = e.column() {
-        let _ = js_sys::Reflect::set(obj, &"column".into(), &column.into());
-    }
-    err.into()
+    options::core_error(e, &[])
 }
 
 /// Serialize a result struct into a plain JS object (maps as objects, `None` as

@@ -168,6 +168,7 @@ fn document_error(e: crate::sheet::DocumentError) -> JsValue {
     let obj: &js_sys::Object = err.as_ref();
     let _ = js_sys::Reflect::set(obj, &"code".into(), &"bad_document".into());
     let _ = js_sys::Reflect::set(obj, &"param".into(), &"document".into());
+    let _ = js_sys::Reflect::set(obj, &"reason".into(), &e.message.as_str().into());
     err.into()
 }
 
@@ -272,10 +273,12 @@ impl Worksheet {
         self.sheet.save_document()
     }
 
-    /// Replace the sheet by a document; throws (code `bad_document`) and leaves
+    /// Replace the sheet by a document; throws a `DocumentError` (code
+    /// `bad_document`, `reason` the sentence) and leaves
     /// the sheet as it was when the document is refused. Returns the changed
     /// addresses.
     #[wasm_bindgen(js_name = loadDocument, unchecked_return_type = "string[]")]
+    // The error's shape is `DocumentError` in the TypeScript types (src/wasm/mod.rs).
     pub fn load_document(&mut self, text: &str) -> Result<js_sys::Array, JsValue> {
         self.sheet.load_document(text).map_err(document_error)?;
         Ok(addresses(self.sheet.changed()))

@@ -63,3 +63,12 @@ pub fn checked(x: f64) -> Result<f64, JsValue> {
         Ok(x)
     }
 }
+
+/// A plain JS object with these fields (an options object for an export that takes one).
+pub fn object(fields: &[(&str, JsValue)]) -> JsValue {
+    let o = js_sys::Object::new();
+    for (name, value) in fields {
+        Reflect::set(&o, &(*name).into(), value).unwrap();
+    }
+    o.into()
+}

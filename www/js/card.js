@@ -1,19 +1,47 @@
 // A calculator card: named input cells, the formula as text, result cells.
 //
-// A card definition is {id, title, blurb, formula, inputs, compute, aliases?}:
-// - inputs: [{name, label, unit, value, choices?, list?}]; `list` reads several
-//   numbers ("10, 1M, 30M"); `unit` is text or a function
-//   (values, api) => text; `name` is the core's parameter
-//   name, so a thrown error's `param` points at the cell that caused it;
+// A card definition is {id, title, blurb, formula, inputs, compute}:
+// - inputs: [{name, label, unit, value, choices?, list?, field?}]; `list` reads
+//   several numbers ("10, 1M, 30M"); `unit` is text or a function
+//   (values, api) => text; `name` is the JS API's parameter name, or `field` names
+//   the API field(s) the cell feeds when the cell's name is shorter (`polesHz`), so
+//   a thrown error's `param` points at the cell that caused it;
 // - compute(values, api): returns rows [{name, label, value, unit, format?, text?}]
-//   or {rows, figures: [{svg, name}]}, or throws (a LoopwrightError's `param`
-//   marks the input cell at fault; `aliases` maps a core parameter name to the
-//   input that feeds it when the names differ).
+//   or {rows, figures: [{svg, name}]}, or throws (a LoopwrightError's `param`, the
+//   name the caller used, such as `amplifier.polesHz[2]`, marks the input cell at
+//   fault).
 
 import { el, clear } from './dom.js';
 import { formatEngineering, formatPlain, useCore } from './format.js';
 import { CLASS } from './constants.js';
 import { saveSvg, savePng } from './plot/export.js';
+
+/**
+ * The input cell a LoopwrightError's `param` names: by the cell's name or its
+ * `field`, then without a list index (`polesHz[2]`), then inside the amplifier
+ * model (`amplifier.polesHz` → `polesHz`), then by the first part (`beta.gain` →
+ * `beta`), then as a cell named in snake_case (`aMin` → `a_min`).
+ */
+function inputForParam(inputs, param) {
+  if (typeof param !== 'string') return undefined;
+  const find = (name) => {
+    for (const [key, cell] of inputs) {
+      const field = cell.def.field;
+      if (key === name || field === name || (Array.isArray(field) && field.includes(name))) {
+        return cell;
+      }
+    }
+    return undefined;
+  };
+  const plain = param.replace(/\[\d+\]$/, '');
+  return (
+    find(param) ??
+    find(plain) ??
+    (plain.startsWith('amplifier.') ? find(plain.slice('amplifier.'.length)) : undefined) ??
+    find(plain.split('.')[0]) ??
+    find(plain.replace(/[A-Z]/g, (c) => `_${c.toLowerCase()}`))
+  );
+}
 
 // The unit words the core's reader checks a typed value against (docs/notation.md).
 const READER_UNITS = new Set(['Ω', 'V', 'A', 'W', 'S', 'Hz', 'F', 'H', 's']);
@@ -165,7 +193,7 @@ export function mountCard(host, def, api) {
         );
       }
     } catch (err) {
-      const target = err && inputs.get(def.aliases?.[err.param] ?? err.param);
+      const target = err && inputForParam(inputs, err.param);
       if (target) {
         target.hint.textContent = err.message;
         target.control.setAttribute('aria-invalid', 'true');

@@ -23,7 +23,13 @@ assert.equal(s.gainUnit, 'V/A');
 assert.ok(Math.abs(s.closedLoopGain + 1e5 / 101) < 1e-9);
 
 // Shunt mixing divides Zi, voltage sampling divides Zo (Sedra & Smith, 7th ed., Table 10.1, from memory).
-const z = lw.impedancesWithFeedback('shunt-shunt', 1e5, 0, 1e3, 0, 1e4, 0, 0.0999, 0);
+const z = lw.impedancesWithFeedback({
+  topology: 'shunt-shunt',
+  ziRe: 1e5,
+  zoRe: 1e3,
+  aRe: 1e4,
+  betaRe: 0.0999,
+});
 assert.ok(Math.abs(z.input.re - 100) < 1e-9 && Math.abs(z.output.re - 1) < 1e-12);
 
 const g = lw.gainSpread(0.01, 5e4, 1e5, 2e5);
@@ -40,12 +46,13 @@ const throws = (fn, code, param) =>
   });
 throws(() => lw.closedLoopGain(Number.NaN, 1), 'not_finite', 'a');
 throws(() => lw.closedLoopGain(-100, 0.01), 'oscillation', 'beta');
-throws(() => lw.betaForGain(10, 100), 'unreachable', 'target_gain');
+throws(() => lw.betaForGain(10, 100), 'unreachable', 'targetGain');
 throws(() => lw.summarizeFeedback('parallel-parallel', 1, 1), 'unknown_name', 'topology');
 throws(
-  () => lw.impedancesWithFeedback('series-shunt', -1, 0, 1, 0, 1, 0, 1, 0),
+  () =>
+    lw.impedancesWithFeedback({ topology: 'series-shunt', ziRe: -1, zoRe: 1, aRe: 1, betaRe: 1 }),
   'out_of_domain',
-  'zi',
+  'ziRe',
 );
 
 // Network area. IEC 60063 E24 holds 4.7 and 5.1 next to each other: 4.8k is
@@ -99,7 +106,7 @@ assert.ok(Math.abs(lw.thermalNoiseDensity(1e3, 300) - 4.07e-9) < 0.01e-9);
 assert.ok(Math.abs(lw.fullPowerBandwidth(1e6, 10) - 1e6 / (2 * Math.PI * 10)) < 1e-9);
 // Closed-loop series: b1 = a1/(1 + a1·β) (Gray, Hurst, Lewis & Meyer, 5th ed., ch. 8, from memory).
 assert.ok(Math.abs(lw.closedLoopSeries(1e4, 1e6, -2e10, 0.01).a1 - 1e4 / 101) < 1e-9);
-throws(() => lw.thermalNoiseDensity(1e3, -1), 'out_of_domain', 'temperature_k');
+throws(() => lw.thermalNoiseDensity(1e3, -1), 'out_of_domain', 'temperatureK');
 const noiseStage = {
   kind: 'non-inverting',
   rFeedback: 9e3,
@@ -195,13 +202,14 @@ const an = lw.analyzeLoop(one, 0.01, 0.01, 50);
 near(an.bandwidth.highHz, 10010, 1e-9, 'analyzeLoop bandwidth');
 assert.ok(Array.isArray(an.step.waveform.output) && an.step.waveform.output.length === 50);
 assert.equal(an.bandwidthNote, null);
-const sw = lw.loopGainSweep(one, 0.01, 10, 1e6, 6); // 10 Hz … 1 MHz, one point per decade
+const sw = lw.loopGainSweep({ amplifier: one, beta: 0.01, startHz: 10, stopHz: 1e6, points: 6 }); // 10 Hz … 1 MHz, one point per decade
 assert.ok(sw.freqHz instanceof Float64Array && sw.freqHz.length === 6);
 near(sw.freqHz[3], 1e4, 1e-12, 'log spacing');
 // |T| at fp = 10 Hz is T0/√2: 60 dB − 3.0103 dB.
 near(sw.magnitudeDb[0], 60 - 10 * Math.log10(2), 1e-12, '|T(fp)| dB');
 near(
-  lw.closedLoopSweep(one, 0.01, 10, 1e6, 6).magnitudeDb[0],
+  lw.closedLoopSweep({ amplifier: one, beta: 0.01, startHz: 10, stopHz: 1e6, points: 6 })
+    .magnitudeDb[0],
   20 * Math.log10(af0 / Math.hypot(1, 10 / 10010)),
   1e-9,
   '|Af(10 Hz)| dB',
@@ -246,13 +254,21 @@ near(
   'margin at the largest β',
 );
 near(mb.closedLoopGain, 1e5 / (1 + 1e5 * mb.value), 1e-12, 'Af at the largest β');
-throws(() => lw.loopAt({ gain: 1, poleHz: [1] }, 1, 1), 'unknown_name', 'a'); // misspelt field
-throws(() => lw.loopAt({ gain: 1 }, { gain: 1, padeOrder: 3 }, 1), 'out_of_domain', 'beta');
-throws(() => lw.loopGainSweep(one, 0.01, 1, 1e6, 1e6), 'too_large', 'points');
-throws(() => lw.stepResponse(one, 0.01, 0.9, 10), 'out_of_domain', 'settle_band');
+throws(() => lw.loopAt({ gain: 1, poleHz: [1] }, 1, 1), 'unknown_field', 'amplifier.poleHz'); // misspelt field
+throws(
+  () => lw.loopAt({ gain: 1 }, { gain: 1, padeOrder: 3 }, 1),
+  'out_of_domain',
+  'beta.padeOrder',
+);
+throws(
+  () => lw.loopGainSweep({ amplifier: one, beta: 0.01, startHz: 1, stopHz: 1e6, points: 1e6 }),
+  'too_large',
+  'points',
+);
+throws(() => lw.stepResponse(one, 0.01, 0.9, 10), 'out_of_domain', 'settleBand');
 throws(() => lw.twoPoleResponse(-1, 1e3, 3), 'out_of_domain', 'f1');
-throws(() => lw.dominantPoleForMargin(one, 1, 200), 'out_of_domain', 'target_pm_deg');
-throws(() => lw.singlePoleHighCutoff(0, 1e5, 0.01), 'out_of_domain', 'f_h');
+throws(() => lw.dominantPoleForMargin(one, 1, 200), 'out_of_domain', 'targetPmDeg');
+throws(() => lw.singlePoleHighCutoff(0, 1e5, 0.01), 'out_of_domain', 'fH');
 
 // Circuits. A 10 V source on a 1k/3k divider: I = 10/4k = 2.5 mA, V(mid) = 7.5 V, and
 // the divider seen from mid with the source zeroed is 1k ‖ 3k = 750 Ω (Ohm's law).
@@ -272,7 +288,13 @@ const rc = doc([
   { name: 'R', kind: 'resistor', nodes: ['in', 'out'], value: 1e3 },
   { name: 'C', kind: 'capacitor', nodes: ['out', '0'], value: 1e-6 / (2 * Math.PI) },
 ]);
-const h = lw.circuitSweep(rc, 'Vs', 'out', '0', new Float64Array([1e3, 0]));
+const h = lw.circuitSweep({
+  circuit: rc,
+  source: 'Vs',
+  plus: 'out',
+  minus: '0',
+  frequencies: new Float64Array([1e3, 0]),
+});
 assert.ok(h.re instanceof Float64Array && h.im instanceof Float64Array);
 near(h.re[0], 0.5, 1e-12, 'Re H(fc)');
 near(h.im[0], -0.5, 1e-12, 'Im H(fc)');
@@ -280,7 +302,16 @@ near(h.re[1], 1, 1e-12, 'H(0)');
 // A non-inverting template, Rf = 9k, Rg = 1k: the feedback network's h parameters are
 // h12 = β = Rg/(Rf + Rg) = 0.1, h11 = Rf ‖ Rg = 900 Ω, h22 = 1/(Rf + Rg); 1/β = 10 (divider
 // by Ohm's law). The method's Af must be A/(1 + Aβ) of its own A and β.
-const twoPort = lw.circuitTwoPort('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0);
+const twoPort = lw.circuitTwoPort({
+  topology: 'series-shunt',
+  ri: 1e5,
+  ro: 100,
+  gain: 1e4,
+  rf: 9e3,
+  rg: 1e3,
+  rs: 1e3,
+  rl: 1e4,
+});
 assert.equal(twoPort.parameters.kind, 'h');
 assert.equal(twoPort.gainUnit, 'V/V');
 near(twoPort.beta.re, 0.1, 1e-12, 'β');
@@ -296,7 +327,16 @@ near(
 assert.ok(twoPort.af.relativeError < 1e-6, 'the two-port method is close for a stiff stage');
 // Blackman's formula and the asymptotic gain are exact (Blackman, "Effect of feedback on
 // impedance", Bell System Technical Journal, 1943, from memory): they agree with the solve.
-const views = lw.circuitStageViews('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0);
+const views = lw.circuitStageViews({
+  topology: 'series-shunt',
+  ri: 1e5,
+  ro: 100,
+  gain: 1e4,
+  rf: 9e3,
+  rg: 1e3,
+  rs: 1e3,
+  rl: 1e4,
+});
 near(views.gain.gInf.re, 10, 1e-12, 'G∞ = 1/β');
 assert.ok(
   views.gain.relativeError < 1e-12 &&
@@ -313,7 +353,7 @@ const zin = doc([
   { name: 'Rf', kind: 'resistor', nodes: ['o', 'n'], value: 9e3 },
   { name: 'Rg', kind: 'resistor', nodes: ['n', '0'], value: 1e3 },
 ]);
-const bl = lw.circuitBlackman(zin, 'E', 'p', '0', 0);
+const bl = lw.circuitBlackman({ circuit: zin, controlled: 'E', plus: 'p', minus: '0' });
 near(bl.exact.re, 1010900, 1e-12, 'Zin');
 near(bl.blackman.re, 1010900, 1e-12, 'Blackman Zin');
 near(bl.z0.re, 10900, 1e-12, 'Z0');
@@ -326,13 +366,24 @@ const follower = doc([
   { name: 'R1', kind: 'resistor', nodes: ['o', 'n'], value: 9e3 },
   { name: 'R2', kind: 'resistor', nodes: ['n', '0'], value: 1e3 },
 ]);
-const ag = lw.circuitAsymptoticGain(follower, 'E', 'Vs', 'o', '0', 0);
+const ag = lw.circuitAsymptoticGain({
+  circuit: follower,
+  controlled: 'E',
+  source: 'Vs',
+  plus: 'o',
+  minus: '0',
+});
 near(ag.t.re, 9.9, 1e-12, 'T');
 near(ag.gInf.re, 10, 1e-12, 'G∞');
 assert.equal(ag.g0.re, 0);
 near(ag.af.re, 99 / 10.9, 1e-12, 'Af');
 near(
-  lw.circuitAsymptoticGainCurrent(follower, 'E', 'Vs', 'R2', 0).af.re,
+  lw.circuitAsymptoticGainCurrent({
+    circuit: follower,
+    controlled: 'E',
+    source: 'Vs',
+    element: 'R2',
+  }).af.re,
   (0.1 * (99 / 10.9)) / 1e3,
   1e-12,
   'I(R2)',
@@ -356,43 +407,93 @@ circuitThrows(
   'nowhere',
 );
 circuitThrows(
-  () => lw.circuitSweep(rc, 'Vs', 'out', '0', new Float64Array([-1])),
+  () =>
+    lw.circuitSweep({
+      circuit: rc,
+      source: 'Vs',
+      plus: 'out',
+      minus: '0',
+      frequencies: new Float64Array([-1]),
+    }),
   'out_of_domain',
   'frequency',
   '',
 );
 circuitThrows(
-  () => lw.circuitTemplate('parallel', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4),
+  () =>
+    lw.circuitTemplate({
+      topology: 'parallel',
+      ri: 1e5,
+      ro: 100,
+      gain: 1e4,
+      rf: 9e3,
+      rg: 1e3,
+      rs: 1e3,
+      rl: 1e4,
+    }),
   'unknown_name',
   'topology',
   '',
 );
 circuitThrows(
-  () => lw.circuitTwoPort('series-shunt', -1, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0),
+  () =>
+    lw.circuitTwoPort({
+      topology: 'series-shunt',
+      ri: -1,
+      ro: 100,
+      gain: 1e4,
+      rf: 9e3,
+      rg: 1e3,
+      rs: 1e3,
+      rl: 1e4,
+    }),
   'out_of_domain',
   'ri',
   '',
 );
 circuitThrows(
-  () => lw.circuitStageViews('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 0, 1e4, 0),
+  () =>
+    lw.circuitStageViews({
+      topology: 'series-shunt',
+      ri: 1e5,
+      ro: 100,
+      gain: 1e4,
+      rf: 9e3,
+      rg: 1e3,
+      rs: 0,
+      rl: 1e4,
+    }),
   'out_of_domain',
   'rs',
   '',
 );
 circuitThrows(
-  () => lw.circuitBlackman(zin, 'Rf', 'p', '0', 0),
+  () => lw.circuitBlackman({ circuit: zin, controlled: 'Rf', plus: 'p', minus: '0' }),
   'out_of_domain',
   'controlled',
   'Rf',
 );
 circuitThrows(
-  () => lw.circuitAsymptoticGain(follower, 'E', 'R1', 'o', '0', 0),
+  () =>
+    lw.circuitAsymptoticGain({
+      circuit: follower,
+      controlled: 'E',
+      source: 'R1',
+      plus: 'o',
+      minus: '0',
+    }),
   'out_of_domain',
   'source',
   'R1',
 );
 circuitThrows(
-  () => lw.circuitAsymptoticGainCurrent(follower, 'E', 'Vs', 'Rx', 0),
+  () =>
+    lw.circuitAsymptoticGainCurrent({
+      circuit: follower,
+      controlled: 'E',
+      source: 'Vs',
+      element: 'Rx',
+    }),
   'unknown_name',
   'element',
   'Rx',
@@ -432,7 +533,11 @@ const METRICS = [
 const WAVEFORM = ['timeS', 'output'];
 const COMPENSATION = ['value', 'phaseMarginDeg', 'crossoverHz', 'closedLoopGain', 'holdsFrom'];
 shape(sw, SWEEP, 'loopGainSweep');
-shape(lw.closedLoopSweep(one, 0.01, 10, 1e6, 5), SWEEP, 'closedLoopSweep');
+shape(
+  lw.closedLoopSweep({ amplifier: one, beta: 0.01, startHz: 10, stopHz: 1e6, points: 5 }),
+  SWEEP,
+  'closedLoopSweep',
+);
 shape(at, ['loopGain', 'closedLoopGain'], 'loopAt');
 shape(at.loopGain, PHASOR, 'loopAt.loopGain');
 shape(m3, MARGINS, 'stabilityMargins');
@@ -504,13 +609,27 @@ shape(bl, BLACKMAN, 'circuitBlackman');
 shape(bl.tShort, COMPLEX, 'circuitBlackman.tShort');
 shape(ag, ASYMPTOTIC, 'circuitAsymptoticGain');
 shape(
-  lw.circuitAsymptoticGainCurrent(follower, 'E', 'Vs', 'R2', 0),
+  lw.circuitAsymptoticGainCurrent({
+    circuit: follower,
+    controlled: 'E',
+    source: 'Vs',
+    element: 'R2',
+  }),
   ASYMPTOTIC,
   'circuitAsymptoticGainCurrent',
 );
 // The circuit document written by circuitTemplate has the CircuitDocument shape.
 const tdoc = JSON.parse(
-  lw.circuitTemplate('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4),
+  lw.circuitTemplate({
+    topology: 'series-shunt',
+    ri: 1e5,
+    ro: 100,
+    gain: 1e4,
+    rf: 9e3,
+    rg: 1e3,
+    rs: 1e3,
+    rl: 1e4,
+  }),
 );
 shape(
   tdoc,

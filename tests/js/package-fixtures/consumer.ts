@@ -23,7 +23,7 @@ export async function run(): Promise<number> {
   const t: Topology = s.topology;
   const ideal: number | null = s.idealGain;
   const spread: GainSpread = gainSpread(0.01, 5e4, 1e5, 2e5);
-  const zin: number = impedancesWithFeedback(t, 1e6, 0, 75, 0, 1e5, 0, 0.01, 0).input.magnitude;
+  const zin: number = impedancesWithFeedback({ topology: t, ziRe: 1e6, zoRe: 75, aRe: 1e5, betaRe: 0.01 }).input.magnitude;
   const unit: string = topologyInfo('current-shunt').gainUnit;
   try {
     summarizeFeedback('nonsense', 1, 1);
@@ -57,7 +57,7 @@ export function frequency(): number {
   const an: LoopAnalysis = analyzeLoop(a, 0.01, 0.01, 100);
   const wave: number[] = an.step?.waveform.output ?? [];
   const note: string | null = an.stepNote;
-  const sweep: FrequencySweep = loopGainSweep(a, beta, 1, 1e9, 200);
+  const sweep: FrequencySweep = loopGainSweep({ amplifier: a, beta, startHz: 1, stopHz: 1e9, points: 200 });
   const at: LoopPoint = loopAt(a, 0.01, 1e6);
   const comp: CompensationResult = dominantPoleForMargin({ gain: 1e5, polesHz: [1e6, 1e7] }, 1, 60);
   return (pm ?? 0) + validity.length + verdict.length + (q ?? 0) + out[0] + wave.length + (note?.length ?? 0)
@@ -77,13 +77,13 @@ export function circuits(): number {
   };
   const sol: CircuitSolution = circuitSolve(JSON.stringify(doc), 0);
   const v: number = sol.nodeVoltages[0].re;
-  const template: CircuitDocument = JSON.parse(circuitTemplate('voltage-series', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4));
-  const tp: TwoPortAnalysis = circuitTwoPort('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0);
+  const template: CircuitDocument = JSON.parse(circuitTemplate({ topology: 'voltage-series', ri: 1e5, ro: 100, gain: 1e4, rf: 9e3, rg: 1e3, rs: 1e3, rl: 1e4 }));
+  const tp: TwoPortAnalysis = circuitTwoPort({ topology: 'series-shunt', ri: 1e5, ro: 100, gain: 1e4, rf: 9e3, rg: 1e3, rs: 1e3, rl: 1e4 });
   const kind: TwoPortKind = tp.parameters.kind;
   const beta: Complex = tp.beta;
-  const h: ComplexSweep = circuitSweep(JSON.stringify(doc), 'Vs', 'x', '0', new Float64Array([1, 10]));
-  const z: BlackmanImpedance = circuitBlackman(JSON.stringify(doc), 'E', 'mid', '0', 0);
-  const views: StageViews = circuitStageViews('series-shunt', 1e5, 100, 1e4, 0, 0, 9e3, 1e3, 0, 1e3, 1e4, 0);
+  const h: ComplexSweep = circuitSweep({ circuit: JSON.stringify(doc), source: 'Vs', plus: 'x', minus: '0', frequencies: new Float64Array([1, 10]) });
+  const z: BlackmanImpedance = circuitBlackman({ circuit: JSON.stringify(doc), controlled: 'E', plus: 'mid', minus: '0' });
+  const views: StageViews = circuitStageViews({ topology: 'series-shunt', ri: 1e5, ro: 100, gain: 1e4, rf: 9e3, rg: 1e3, rs: 1e3, rl: 1e4 });
   try {
     circuitSolve('{}', 0);
   } catch (e) {

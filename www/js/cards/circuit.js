@@ -42,34 +42,18 @@ export const loadedCard = {
     { name: 'rl', label: 'Load RL', value: '2k', unit: 'Ω' },
   ],
   compute(v, api) {
-    const r = api.circuitTwoPort(
-      v.topology,
-      v.ri,
-      v.ro,
-      v.gain,
-      0,
-      0,
-      v.rf,
-      v.rg,
-      0,
-      v.rs,
-      v.rl,
-      0,
-    );
-    const views = api.circuitStageViews(
-      v.topology,
-      v.ri,
-      v.ro,
-      v.gain,
-      0,
-      0,
-      v.rf,
-      v.rg,
-      0,
-      v.rs,
-      v.rl,
-      0,
-    );
+    const stage = {
+      topology: v.topology,
+      ri: v.ri,
+      ro: v.ro,
+      gain: v.gain,
+      rf: v.rf,
+      rg: v.rg,
+      rs: v.rs,
+      rl: v.rl,
+    };
+    const r = api.circuitTwoPort(stage);
+    const views = api.circuitStageViews(stage);
     const row = (name, label, c, unit) => ({
       name,
       label,

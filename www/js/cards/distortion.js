@@ -21,10 +21,15 @@ export const distortionCard = {
     { name: 'a3', label: 'a3', value: '-20G', unit: '1/V²' },
     { name: 'beta', label: 'Feedback factor β', value: '0.01' },
     { name: 'amplitude', label: 'Output peak', value: '1', unit: 'V' },
-    { name: 'pole', label: 'Dominant pole of the amplifier', value: '100', unit: 'Hz' },
-    { name: 'frequency', label: 'Signal frequency', value: '1k', unit: 'Hz' },
+    {
+      name: 'pole',
+      field: 'poleHz',
+      label: 'Dominant pole of the amplifier',
+      value: '100',
+      unit: 'Hz',
+    },
+    { name: 'frequency', field: 'frequencyHz', label: 'Signal frequency', value: '1k', unit: 'Hz' },
   ],
-  aliases: { poleHz: 'pole', frequencyHz: 'frequency' },
   compute({ a1, a2, a3, beta, amplitude, pole, frequency }, api) {
     const r = api.distortionAtFrequency({
       a1,
@@ -112,12 +117,12 @@ const noiseInputs = [
   { name: 'r_feedback', label: 'Rf', value: '9k09', unit: 'Ω' },
   { name: 'r_gain', label: 'Rg', value: '1k', unit: 'Ω' },
   { name: 'r_plus', label: 'R at + input', value: '100', unit: 'Ω' },
-  { name: 'en', label: 'Op-amp en', value: '4n', unit: 'V/√Hz' },
-  { name: 'en_corner', label: 'en 1/f corner', value: '10', unit: 'Hz' },
-  { name: 'in', label: 'Op-amp in', value: '1p', unit: 'A/√Hz' },
-  { name: 'in_corner', label: 'in 1/f corner', value: '100', unit: 'Hz' },
-  { name: 'gbw', label: 'Gain-bandwidth', value: '10M', unit: 'Hz' },
-  { name: 'temperature', label: 'Temperature', value: '300', unit: 'K' },
+  { name: 'en', field: 'voltageDensity', label: 'Op-amp en', value: '4n', unit: 'V/√Hz' },
+  { name: 'en_corner', field: 'voltageCornerHz', label: 'en 1/f corner', value: '10', unit: 'Hz' },
+  { name: 'in', field: 'currentDensity', label: 'Op-amp in', value: '1p', unit: 'A/√Hz' },
+  { name: 'in_corner', field: 'currentCornerHz', label: 'in 1/f corner', value: '100', unit: 'Hz' },
+  { name: 'gbw', field: 'gbwHz', label: 'Gain-bandwidth', value: '10M', unit: 'Hz' },
+  { name: 'temperature', field: 'temperatureK', label: 'Temperature', value: '300', unit: 'K' },
   { name: 'f_low', label: 'Band from', value: '10', unit: 'Hz' },
   { name: 'f_high', label: 'Band to (empty: no upper edge)', value: '', list: true, unit: 'Hz' },
 ];
@@ -130,19 +135,6 @@ export const noiseCard = {
   formula:
     'noise gain NG = 1 + Rf/Rg    e_R = √(4kTR)    H(f) = 1/(1 + j·f·NG/GBW)\nv_out,rms = √∫ e_out²(f)·|H(f)|² df from f_low to f_high    NBW = ∫ |H(f)|² df over the same band (single pole, 0 … ∞: π/2 · f−3dB)',
   inputs: noiseInputs,
-  aliases: {
-    rFeedback: 'r_feedback',
-    rGain: 'r_gain',
-    rPlus: 'r_plus',
-    voltageDensity: 'en',
-    voltageCornerHz: 'en_corner',
-    currentDensity: 'in',
-    currentCornerHz: 'in_corner',
-    gbwHz: 'gbw',
-    temperatureK: 'temperature',
-    fLow: 'f_low',
-    fHigh: 'f_high',
-  },
   compute(v, api) {
     if (v.f_high.length > 1) throw new Error('give one upper band edge, or none');
     const stage = {

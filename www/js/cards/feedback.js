@@ -30,7 +30,7 @@ export const stageCard = {
   ],
   compute({ topology, a, beta, zi, zo }, api) {
     const s = api.summarizeFeedback(topology, a, beta);
-    const z = api.impedancesWithFeedback(topology, zi, 0, zo, 0, a, 0, beta, 0);
+    const z = api.impedancesWithFeedback({ topology, ziRe: zi, zoRe: zo, aRe: a, betaRe: beta });
     return [
       { name: 'af', label: 'Closed-loop gain Af', value: s.closedLoopGain, unit: s.gainUnit },
       {

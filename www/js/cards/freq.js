@@ -5,8 +5,15 @@ import { formatEngineering, formatPlain } from '../format.js';
 
 const loopInputs = [
   { name: 'gain', label: 'DC open-loop gain A0', value: '100k' },
-  { name: 'poles', label: 'Poles', value: '10, 1M, 20M', unit: 'Hz', list: true },
-  { name: 'zeros', label: 'Zeros (left half plane)', value: '', unit: 'Hz', list: true },
+  { name: 'poles', field: 'polesHz', label: 'Poles', value: '10, 1M, 20M', unit: 'Hz', list: true },
+  {
+    name: 'zeros',
+    field: 'zerosHz',
+    label: 'Zeros (left half plane)',
+    value: '',
+    unit: 'Hz',
+    list: true,
+  },
   { name: 'beta', label: 'Feedback factor β', value: '1' },
 ];
 
@@ -31,15 +38,26 @@ export const loopCard = {
   formula:
     'T(jω) = A(jω)·β    PM = 180° − |∠T| at each |T| = 1    GM = |20·log10|T|| at each ∠T = −180°\nworst of each, negative when the closed-loop poles say unstable    poles: roots of 1 + A(s)·β = 0    Af = A/(1 + T)',
   inputs: [...loopInputs, { name: 'band', label: 'Settling band', value: '1%' }],
-  aliases: { 'a.gain': 'gain', 'a.poles_hz': 'poles', 'a.zeros_hz': 'zeros' },
   compute(v, api) {
     const a = model(v);
     const r = api.analyzeLoop(a, v.beta, v.band, 400);
     const m = r.margins;
     const lo = Math.max(1e-3, Math.min(...v.poles, ...v.zeros, 1) / 100);
     const hi = Math.max(...v.poles, ...v.zeros, 1) * 100;
-    const sweep = api.loopGainSweep(a, v.beta, lo, hi, 600);
-    const closed = api.closedLoopSweep(a, v.beta, lo, hi, 600);
+    const sweep = api.loopGainSweep({
+      amplifier: a,
+      beta: v.beta,
+      startHz: lo,
+      stopHz: hi,
+      points: 600,
+    });
+    const closed = api.closedLoopSweep({
+      amplifier: a,
+      beta: v.beta,
+      startHz: lo,
+      stopHz: hi,
+      points: 600,
+    });
     const markers = [];
     if (m.crossoverHz !== null)
       markers.push({
@@ -194,11 +212,17 @@ export const compensationCard = {
     'highest f_d with PM(f_d, β) ≥ target    largest β ≤ 1 with PM(β) ≥ target (poles as entered)\nboth scanned, then refined: the margin need not fall steadily',
   inputs: [
     { name: 'gain', label: 'DC open-loop gain A0', value: '100k' },
-    { name: 'poles', label: 'Other poles', value: '2M, 20M', unit: 'Hz', list: true },
+    {
+      name: 'poles',
+      field: 'polesHz',
+      label: 'Other poles',
+      value: '2M, 20M',
+      unit: 'Hz',
+      list: true,
+    },
     { name: 'beta', label: 'Feedback factor β', value: '1' },
-    { name: 'pm', label: 'Target phase margin', value: '60', unit: '°' },
+    { name: 'pm', field: 'targetPmDeg', label: 'Target phase margin', value: '60', unit: '°' },
   ],
-  aliases: { target_pm_deg: 'pm' },
   compute(v, api) {
     const a = { gain: v.gain, polesHz: v.poles };
     const dom = api.dominantPoleForMargin(a, v.beta, v.pm);

@@ -49,7 +49,6 @@ export const pairCard = {
     },
     { name: 'max_error', label: 'Largest error (empty: none)', value: '', list: true, unit: '' },
   ],
-  aliases: { totalMin: 'total_min', totalMax: 'total_max', maxError: 'max_error' },
   compute({ network, target, series, total_min, total_max, combine, max_error }, api) {
     if (max_error.length > 1) throw new Error('give one largest error, or none');
     const r = api.bestPairs({
@@ -85,11 +84,11 @@ const stageInputs = [
   { name: 'stage', label: 'Stage', value: 'non-inverting', choices: STAGES },
   { name: 'r1', label: 'R1', value: '1k', unit: 'Ω' },
   { name: 'r2', label: 'R2', value: '39k', unit: 'Ω' },
-  { name: 'tol', label: 'Resistor tolerance', value: '1%', unit: '' },
+  { name: 'tol', field: ['tolR1', 'tolR2'], label: 'Resistor tolerance', value: '1%', unit: '' },
   { name: 'a_min', label: 'A min', value: '60k' },
   { name: 'a_typ', label: 'A typ', value: '250k' },
   { name: 'a_max', label: 'A max', value: '1M' },
-  { name: 'pole', label: 'Dominant pole at A typ', value: '10', unit: 'Hz' },
+  { name: 'pole', field: 'poleHz', label: 'Dominant pole at A typ', value: '10', unit: 'Hz' },
   {
     name: 'hold',
     label: 'A spread holds',
@@ -104,15 +103,6 @@ const stageInputs = [
 ];
 
 /** The card input that an error's `param` (the option's name) points at. */
-const STAGE_ALIASES = {
-  tolR1: 'tol',
-  tolR2: 'tol',
-  aMin: 'a_min',
-  aTyp: 'a_typ',
-  aMax: 'a_max',
-  poleHz: 'pole',
-};
-
 /** The stage options of worstCase and monteCarlo from the card's values. */
 const stageOptions = (v) => ({
   stage: v.stage,
@@ -137,7 +127,6 @@ export const worstCaseCard = {
   formula:
     'corners: R1 ± tol, R2 ± tol, A ∈ {A min, A max}\nAf = A/(1 + A·β), β = R1/(R1 + R2)    GBW = A typ · pole    f−3dB = (GBW/A)·(1 + A·β)',
   inputs: stageInputs,
-  aliases: STAGE_ALIASES,
   compute(v, api) {
     const w = api.worstCase(stageOptions(v));
     const corner = (c) => `R1 ${c.r1}, R2 ${c.r2}, A ${c.openLoopGain}`;
@@ -199,7 +188,6 @@ export const monteCarloCard = {
     { name: 'lower', label: 'Spec low', value: '39.8' },
     { name: 'upper', label: 'Spec high', value: '40.2' },
   ],
-  aliases: STAGE_ALIASES,
   compute(v, api) {
     const r = api.monteCarlo({
       ...stageOptions(v),

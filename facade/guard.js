@@ -1,0 +1,211 @@
+// The checks of the entry module (loopwright.js): every JS input is validated and
+// copied into plain data here, in JS, before the wasm is entered, and every result is
+// checked on the way out.
+//
+// Why in JS: a caller's getter, Proxy trap, toString or valueOf that runs inside a
+// wasm call and throws unwinds through the module's frames and leaves its stack
+// pointer or a borrow flag behind (the module broke after about 600 such calls).
+// Here it runs outside the module; its exception becomes a LoopwrightError. A value
+// of the wrong kind is refused with its name (a string where a number is expected is
+// an error, never converted), and a size is refused before anything is allocated
+// for it.
+
+/** Longest string passed into the module (UTF-16 units): the sheet document limit. */
+export const MAX_TEXT = 16 * 1024 * 1024;
+/** Most numbers in one list argument or in all the lists of one options object. */
+export const MAX_LIST = 1_000_000;
+/** Most fields of one options object, and deepest nesting. */
+const MAX_FIELDS = 64;
+const MAX_DEPTH = 8;
+/** Largest whole-number argument (points, digits, samples: u32 in the module). */
+const MAX_U32 = 4_294_967_295;
+
+/** A LoopwrightError like the ones the module throws: `code`, `param`, a sentence. */
+export function refusal(code, param, reason, cause) {
+  const err = new Error(`${param}: ${reason}`, cause === undefined ? undefined : { cause });
+  err.name = 'LoopwrightError';
+  err.code = code;
+  err.param = param;
+  return err;
+}
+
+function kindOf(x) {
+  if (x === null) return 'null';
+  if (Array.isArray(x)) return 'a list';
+  return typeof x === 'object' ? 'an object' : `a ${typeof x}`;
+}
+
+function wrongType(param, expected, x) {
+  return refusal('wrong_type', param, `must be ${expected}, not ${kindOf(x)}`);
+}
+
+/** A caller's getter or trap threw while its value was read: a LoopwrightError. */
+function unreadable(param, e) {
+  if (e?.name === 'LoopwrightError') return e;
+  return refusal('wrong_type', param, 'could not be read: reading it threw', e);
+}
+
+/** A number (NaN and ±Infinity pass: the module names them `not_finite`). */
+export function number(x, param) {
+  if (typeof x !== 'number') throw wrongType(param, 'a number', x);
+  return x;
+}
+
+/** A number, or null/undefined for "not given". */
+export function optionalNumber(x, param) {
+  if (x === null || x === undefined) return x;
+  if (typeof x !== 'number') throw wrongType(param, 'a number, null or undefined', x);
+  return x;
+}
+
+/** A whole number 0 … 2³² − 1 (the module's counts); the module checks its own limit. */
+export function count(x, param) {
+  if (typeof x !== 'number') throw wrongType(param, 'a whole number', x);
+  if (!Number.isInteger(x) || x < 0) {
+    throw refusal('out_of_domain', param, 'must be a whole number, 0 or more');
+  }
+  if (x > MAX_U32) throw refusal('too_large', param, `too large; the limit is ${MAX_U32}`);
+  return x;
+}
+
+/** A string, at most MAX_TEXT units long (refused before it is copied into the module). */
+export function string(x, param) {
+  if (typeof x !== 'string') throw wrongType(param, 'a string', x);
+  if (x.length > MAX_TEXT) throw refusal('too_large', param, `too large; the limit is ${MAX_TEXT}`);
+  return x;
+}
+
+/** A list of numbers (array, typed array) copied into a fresh Float64Array. */
+export function numbers(x, param) {
+  if (typeof x !== 'object' || x === null) throw wrongType(param, 'a list of numbers', x);
+  let i = -1;
+  try {
+    if (!Array.isArray(x) && !(ArrayBuffer.isView(x) && !(x instanceof DataView))) {
+      throw wrongType(param, 'a list of numbers', x);
+    }
+    const n = x.length;
+    if (typeof n !== 'number' || !Number.isInteger(n) || n < 0) {
+      throw wrongType(param, 'a list of numbers', x);
+    }
+    if (n > MAX_LIST) throw refusal('too_large', param, `too large; the limit is ${MAX_LIST}`);
+    const out = new Float64Array(n);
+    for (i = 0; i < n; i++) {
+      const v = x[i];
+      if (typeof v !== 'number') throw wrongType(`${param}[${i}]`, 'a number', v);
+      out[i] = v;
+    }
+    return out;
+  } catch (e) {
+    throw unreadable(i < 0 ? param : `${param}[${i}]`, e);
+  }
+}
+
+/**
+ * An options object (or a model object) copied into plain data: fresh objects
+ * without prototype, plain arrays, numbers, strings, booleans, null; a field set to
+ * undefined is left out. Names, types and unknown fields are the module's to check
+ * (src/wasm/options.rs), with the same paths.
+ */
+export function plain(x, param) {
+  const budget = { numbers: 0 };
+  return copy(x, param, 0, budget);
+}
+
+function copy(x, path, depth, budget) {
+  switch (typeof x) {
+    case 'number':
+    case 'boolean':
+    case 'undefined':
+      return x;
+    case 'string':
+      return string(x, path);
+    case 'object':
+      break;
+    default:
+      throw wrongType(path, 'a number, string, list or object', x);
+  }
+  if (x === null) return null;
+  if (depth >= MAX_DEPTH)
+    throw refusal('too_large', path, `nested too deep; the limit is ${MAX_DEPTH}`);
+  let at = path;
+  try {
+    if (Array.isArray(x) || (ArrayBuffer.isView(x) && !(x instanceof DataView))) {
+      const n = x.length;
+      if (typeof n !== 'number' || !Number.isInteger(n) || n < 0)
+        throw wrongType(path, 'a list', x);
+      budget.numbers += n;
+      if (budget.numbers > MAX_LIST) {
+        throw refusal('too_large', path, `too large; the limit is ${MAX_LIST} values`);
+      }
+      const out = new Array(n);
+      for (let i = 0; i < n; i++) {
+        at = `${path}[${i}]`;
+        out[i] = copy(x[i], at, depth + 1, budget);
+      }
+      return out;
+    }
+    const keys = Object.keys(x);
+    if (keys.length > MAX_FIELDS) {
+      throw refusal('too_large', path || 'options', `too many fields; the limit is ${MAX_FIELDS}`);
+    }
+    const out = Object.create(null);
+    for (const key of keys) {
+      at = path ? `${path}.${key}` : key;
+      const v = copy(x[key], at, depth + 1, budget);
+      if (v !== undefined) out[key] = v;
+    }
+    return out;
+  } catch (e) {
+    throw unreadable(at || 'options', e);
+  }
+}
+
+/** An options object: a non-null, non-array object, copied by `plain`. */
+export function options(x, param) {
+  if (typeof x !== 'object' || x === null || Array.isArray(x)) {
+    throw wrongType(param || 'options', 'an options object', x);
+  }
+  return plain(x, param);
+}
+
+/** β of the frequency functions: a number, or a transfer-model object. */
+export function numberOrModel(x, param) {
+  if (typeof x === 'number') return x;
+  return options(x, param);
+}
+
+/**
+ * Throw if a returned value holds NaN or ±Infinity anywhere (a number, a field, an
+ * array element): the module's own checks should make this unreachable; this is the
+ * last guard, so that no such number ever reaches a caller.
+ */
+export function finite(value, name) {
+  const bad = findNonFinite(value, '', 0);
+  if (bad !== null) {
+    throw refusal('overflow', bad || name, 'the result overflows the floating-point range');
+  }
+  return value;
+}
+
+function findNonFinite(v, path, depth) {
+  if (typeof v === 'number') return v - v === 0 ? null : path;
+  if (typeof v !== 'object' || v === null || depth > 16) return null;
+  if (ArrayBuffer.isView(v)) {
+    for (let i = 0; i < v.length; i++) {
+      if (v[i] - v[i] !== 0) return `${path}[${i}]`;
+    }
+    return null;
+  }
+  if (Array.isArray(v)) {
+    for (let i = 0; i < v.length; i++) {
+      const bad = findNonFinite(v[i], `${path}[${i}]`, depth + 1);
+      if (bad !== null) return bad;
+    }
+    return null;
+  }
+  for (const key of Object.keys(v)) {
+    const bad = findNonFinite(v[key], path ? `${path}.${key}` : key, depth + 1);
+    if (bad !== null) return bad;
+  }
+  return null;
+}

@@ -1,0 +1,91 @@
+// The hostile-call campaign (hostile.mjs) against the built package (pkg/, from
+// scripts/build-package.sh): at least 20 000 calls over every export and Worksheet
+// method, then 100 000 failing calls for the memory check. LOOPWRIGHT_HOSTILE_LONG=1
+// runs 1 000 000 of each; LOOPWRIGHT_HOSTILE_SEED picks another seed (default 1).
+
+import { test } from 'node:test';
+import assert from 'node:assert/strict';
+import { join } from 'node:path';
+import { ROOT } from './browser.mjs';
+import { campaign, goodCalls, healthy, leak, load } from './hostile.mjs';
+
+const LONG = process.env.LOOPWRIGHT_HOSTILE_LONG === '1';
+const CALLS = LONG ? 1_000_000 : 24_000;
+const LEAK_CALLS = LONG ? 1_000_000 : 100_000;
+const SEED = Number(process.env.LOOPWRIGHT_HOSTILE_SEED ?? 1);
+
+test(`${CALLS} hostile calls: no trap, no NaN or ∞, every refusal typed, module healthy`, async () => {
+  const { lw } = await load(join(ROOT, 'pkg'));
+  const r = campaign(lw, { calls: CALLS, seed: SEED });
+  assert.deepEqual(r.missing, [], 'every export and method has a working call in the table');
+  assert.equal(r.figures.calls, CALLS);
+  assert.ok(Object.keys(goodCalls()).length >= 70, 'the table covers the exports');
+  assert.equal(r.figures.traps, 0, `traps: ${r.examples.join('; ')}`);
+  assert.equal(r.figures.nonFinite, 0, `non-finite results: ${r.examples.join('; ')}`);
+  assert.equal(r.figures.untyped, 0, `untyped refusals: ${r.examples.join('; ')}`);
+  // Most hostile calls are refused, and some mutations leave a valid call.
+  assert.ok(r.figures.refused > CALLS / 2, `refused ${r.figures.refused}`);
+  assert.ok(r.figures.answered > 0, `answered ${r.figures.answered}`);
+  assert.ok(r.healthy, 'known-good calls give their right answers afterwards');
+});
+
+test(`memory flat over ${LEAK_CALLS} failing calls (the error paths leak nothing)`, async () => {
+  const { lw, memoryBytes } = await load(join(ROOT, 'pkg'));
+  const l = leak(lw, memoryBytes, LEAK_CALLS);
+  assert.equal(l.errors, LEAK_CALLS, 'every call of the leak run fails');
+  // Before the fix: 10.3 MiB per million calls of loopAt({gain: 1e5, polesHz: '10'}).
+  assert.equal(l.after - l.before, 0, `memory grew ${l.before} → ${l.after} bytes`);
+  assert.ok(healthy(lw));
+});
+
+test('the issue reproducers: typed errors, never NaN or ∞', async () => {
+  const { lw } = await load(join(ROOT, 'pkg'));
+  const refused = (f, code, param) =>
+    assert.throws(f, (e) => e.name === 'LoopwrightError' && e.code === code && e.param === param);
+  // A string where a number is expected is an error, not converted.
+  refused(() => lw.closedLoopGain('1e4', '0.0999'), 'wrong_type', 'a');
+  refused(() => lw.parseValue(4700), 'wrong_type', 'text');
+  refused(() => lw.parseValue({ length: 2 ** 31 }), 'wrong_type', 'text');
+  refused(() => lw.topologyInfo(true), 'wrong_type', 'topologyName');
+  refused(() => new lw.Worksheet().setCell('A1', 5), 'wrong_type', 'input');
+  refused(() => lw.closedLoopGain(1n, 1), 'wrong_type', 'a');
+  refused(
+    () => lw.loopAt({ gain: 1e5, polesHz: '10' }, 0.01, 1),
+    'wrong_type',
+    'amplifier.polesHz',
+  );
+  refused(
+    () => lw.loopAt({ gain: 1e5, polesHz: [10, 20, '3'] }, 0.01, 1),
+    'wrong_type',
+    'amplifier.polesHz[2]',
+  );
+  refused(
+    () =>
+      lw.loopAt(
+        {
+          get gain() {
+            throw new Error('x');
+          },
+        },
+        0.01,
+        1,
+      ),
+    'wrong_type',
+    'amplifier.gain',
+  );
+  // Sizes refused before allocation.
+  refused(() => new lw.Worksheet().pasteTsv('A3', '\t'.repeat(3e7)), 'too_large', 'text');
+  // Results that would be ±Infinity or NaN: the same refusal as the worksheet's #NUM!.
+  refused(() => lw.summarizeFeedback('series-shunt', 1e5, 5e-324), 'overflow', 'idealGain');
+  for (const args of [
+    [1e-308, 1e3, 3],
+    [1e-300, 1e-300, 1e-300],
+  ]) {
+    assert.throws(
+      () => lw.twoPoleResponse(...args),
+      (e) => e.name === 'LoopwrightError' && typeof e.code === 'string',
+    );
+  }
+  // The module answers right afterwards.
+  assert.ok(healthy(lw));
+});
