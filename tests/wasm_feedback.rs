@@ -151,7 +151,7 @@ fn bad_input_throws_typed_errors() {
     assert_thrown(
         checked(api::ideal_beta(0.0)),
         "out_of_domain",
-        "target_gain",
+        "targetGain",
     );
     assert_thrown(
         checked(api::min_open_loop_gain(0.1, 2.0)),
