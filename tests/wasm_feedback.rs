@@ -148,11 +148,7 @@ fn bad_input_throws_typed_errors() {
         "wrong_type",
         "options",
     );
-    assert_thrown(
-        checked(api::ideal_beta(0.0)),
-        "out_of_domain",
-        "targetGain",
-    );
+    assert_thrown(checked(api::ideal_beta(0.0)), "out_of_domain", "targetGain");
     assert_thrown(
         checked(api::min_open_loop_gain(0.1, 2.0)),
         "out_of_domain",
