@@ -22,7 +22,7 @@ async function smoke(address) {
   await env.browser.clearAndType('#card-stage-a', '10k');
   await env.browser.clearAndType('#card-stage-beta', '99.9m');
   await env.browser.waitFor(
-    `return document.querySelector('#card-stage dd[data-name="af"] output')?.textContent === '10.00'`,
+    `return document.querySelector('#card-stage dd[data-name="af"] output')?.textContent === '10 V/V'`,
   );
   assert.equal(await env.browser.text('#card-stage dd[data-name="d"] output'), '1000');
 }

@@ -53,7 +53,7 @@ test('the reader is reached through the JS API with options', () => {
   );
   assert.throws(
     () => api.parseValue('1', { percnt: true }),
-    (e) => e.name === 'LoopwrightError' && e.code === 'unknown_name' && e.param === 'percnt',
+    (e) => e.name === 'LoopwrightError' && e.code === 'unknown_field' && e.param === 'percnt',
   );
   assert.throws(
     () => api.parseList('1, , 2'),

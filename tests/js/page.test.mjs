@@ -278,7 +278,7 @@ test('every card computes its defaults, and the area cards show closed-form valu
 });
 
 test('issue 15 through the page: latching loop, pole and GBW, band, pairs', async () => {
-  const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
+  const { context, page, problems } = await openPage(env.browser, env.url, { allowedOrigin: env.url });
   // A = 100k, β = −1e-4: T = −10, D = −9 < 0: latching, never negative feedback.
   await retype(page, '#card-stage-beta', '-0.1m');
   assert.match(await result(page, 'card-stage', 'sense'), /^LATCHING/);
@@ -353,7 +353,7 @@ test('loop stability card: trade facts through the page', async () => {
 });
 
 test('compensation card: the largest β is for the poles as entered', async () => {
-  const { context, page, problems } = await openPage(browser, url, { allowedOrigin: url });
+  const { context, page, problems } = await openPage(env.browser, env.url, { allowedOrigin: env.url });
   // Defaults: A0 = 100k, poles at 2 MHz and 20 MHz, β = 1, 60°. Without the
   // dominant pole the two-pole loop has 60° where atan(fc/2M) + atan(fc/20M)
   // = 120°, and |A0·β| = √((1 + (fc/2M)²)(1 + (fc/20M)²)) there (two-pole closed
