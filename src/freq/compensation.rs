@@ -120,6 +120,13 @@ fn bisect(meets: &dyn Fn(f64) -> Result<bool>, mut yes: f64, mut no: f64) -> Res
 /// The scan points: a log grid over [lo, hi] at [`SCAN_POINTS_PER_DECADE`], and
 /// `extra` values within (lo, hi) with their neighbours, ascending.
 fn scan_points(lo: f64, hi: f64, extra: &[f64]) -> Vec<f64> {
+    // A cap near the bottom of the float range (a subnormal β limit) puts `lo` at 0 and
+    // the decade count at infinity: scan from the smallest normal number instead, and
+    // where even that is above the cap, the cap alone.
+    let lo = lo.max(f64::MIN_POSITIVE);
+    if !(hi > lo) {
+        return alloc::vec![hi];
+    }
     let decades = libm::log10(hi / lo);
     let n = (crate::float::ceil(decades * f64::from(SCAN_POINTS_PER_DECADE)) as usize).max(1);
     let (a, b) = (libm::log(lo), libm::log(hi));
@@ -282,6 +289,21 @@ const MIN_BETA_FRACTION: f64 = 1e-12;
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn a_subnormal_beta_limit_is_answered_not_a_runaway_scan() {
+        // Found by the hostile-call campaign (tests/js/hostile.mjs): a β limit of
+        // 5e-324 made the scan's decade count infinite and its allocation abort.
+        let a = TransferModel::constant(1e5).pole(10.0).pole(1e6);
+        // With so little feedback |T| never reaches 1: the cap itself meets the target,
+        // with no crossover, and Af is A itself (1e5 / (1 + 1e5·5e-324) rounds to 1e5).
+        let r = max_beta_for_margin(&a, 60.0, 5e-324).unwrap();
+        assert_eq!(r.value, 5e-324);
+        assert_eq!(r.crossover_hz, None);
+        assert_eq!(r.closed_loop_gain, 1e5);
+        assert_eq!(scan_points(0.0, 5e-324, &[]), alloc::vec![5e-324]);
+        assert!(scan_points(5e-312, 1.0, &[]).len() < 16 * 320);
+    }
 
     #[test]
     fn dominant_pole_for_45_degrees_puts_crossover_near_the_second_pole() {

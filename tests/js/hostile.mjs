@@ -365,19 +365,19 @@ export async function load(pkgDir) {
   return { lw, memoryBytes: () => wasm.memory.buffer.byteLength };
 }
 
-function classify(call, figures, examples) {
+function classify(call, figures, examples, name = '') {
   try {
     const result = call();
     const bad = nonFinite(result);
     if (bad !== null) {
       figures.nonFinite++;
-      if (examples.length < 20) examples.push(`non-finite ${bad}`);
+      if (examples.length < 20) examples.push(`non-finite ${bad} from ${name}`);
     }
     figures.answered++;
   } catch (e) {
     if (e instanceof WebAssembly.RuntimeError) {
       figures.traps++;
-      if (examples.length < 20) examples.push(`trap: ${e.message}`);
+      if (examples.length < 20) examples.push(`trap in ${name}: ${e.message}`);
     } else if (
       e?.name === 'LoopwrightError' &&
       CODES.has(e.code) &&
@@ -468,7 +468,7 @@ export function campaign(lw, { calls, seed, skip = [], huge = true }) {
     figures.calls++;
     // LOOPWRIGHT_HOSTILE_TRACE=1: each call's number and target on stderr (to find a hang).
     if (TRACE) process.stderr.write(`${i} ${targets[i % targets.length][0]}\n`);
-    classify(() => call(args), figures, examples);
+    classify(() => call(args), figures, examples, targets[i % targets.length][0]);
   }
   sheet.free();
   return { figures, examples, missing, healthy: healthy(lw) };

@@ -39,7 +39,7 @@ test('too many fields, a row too long, or a non-string are refused; the sheet is
   const row = `${'1\t'.repeat(9)}1\n`;
   assert.throws(() => ws.pasteTsv('A3', row.repeat(10_001)), refused('too_large', 'range'));
   assert.throws(() => ws.pasteTsv('A3', '\t'.repeat(70_000)), refused('too_large', 'text'));
-  assert.throws(() => ws.pasteTsv('A3', 5), refused('out_of_domain', 'text'));
+  assert.throws(() => ws.pasteTsv('A3', 5), refused('wrong_type', 'text'));
   assert.equal(ws.saveDocument(), before);
   assert.equal(ws.value('A2').number, 9400);
   // Within the limits the same rows go in: 1 000 rows of 10 fields.
