@@ -124,7 +124,7 @@ fn scan_points(lo: f64, hi: f64, extra: &[f64]) -> Vec<f64> {
     // the decade count at infinity: scan from the smallest normal number instead, and
     // where even that is above the cap, the cap alone.
     let lo = lo.max(f64::MIN_POSITIVE);
-    if !(hi > lo) {
+    if hi <= lo {
         return alloc::vec![hi];
     }
     let decades = libm::log10(hi / lo);
