@@ -530,7 +530,7 @@ test('the CSV export starts with a UTF-8 byte-order mark; the share message from
   await local.waitForFunction(() => document.querySelector('.sheet-share').value !== '');
   const message = await local.locator('.sheet-note').textContent();
   assert.doesNotMatch(message, /anyone/);
-  assert.match(message, /opens only where that file is/);
+  assert.match(message, /opens only on a computer that has that file at the same place/);
   assert.deepEqual(problems, []);
   await context.close();
 });
