@@ -45,8 +45,8 @@ pub mod summary;
 
 pub use bandwidth::{closed_loop_bandwidth, Bandwidth};
 pub use closed_forms::{
-    gain_bandwidth, single_pole_high_cutoff, single_pole_low_cutoff, two_pole_response,
-    TwoPoleResponse,
+    gain_bandwidth, pole_for_gbw, single_pole_high_cutoff, single_pole_low_cutoff,
+    two_pole_response, TwoPoleResponse,
 };
 pub use compensation::{dominant_pole_for_margin, max_beta_for_margin, Compensation};
 pub use crossings::{gain_crossings_hz, phase_crossings_hz, CROSSING_REL_TOL};
