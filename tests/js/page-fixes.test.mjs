@@ -296,3 +296,172 @@ test("a name's confirmation stays while the cursor moves on", async () => {
   assert.deepEqual(problems, []);
   await context.close();
 });
+
+/** A number as a card shows it ("39.203", "1.27 kΩ", "-0.05 %") back to a number. */
+function fromShown(text) {
+  const prefixes = { p: 1e-12, n: 1e-9, µ: 1e-6, m: 1e-3, '': 1, k: 1e3, M: 1e6, G: 1e9 };
+  const m = /(-?[\d.]+(?:e[-+]?\d+)?)\s*([pnµmkMG]?)/.exec(text);
+  assert.ok(m, `not a shown number: ${text}`);
+  return Number(m[1]) * prefixes[m[2]];
+}
+
+/** Relative rounding of a value shown to four or five significant digits. */
+const SHOWN_DIGITS_REL = 1e-3;
+
+async function retype(page, selector, text) {
+  await page.click(selector);
+  await page.keyboard.press('Control+A');
+  await page.keyboard.type(text);
+}
+
+const cardResult = (page, card, name) =>
+  page.locator(`#${card} dd[data-name="${name}"] output`).textContent();
+
+test('resistor pairs: per-resistor limits, a table judged against the spec', async () => {
+  for (const width of [1366, 390]) {
+    const context = await env.browser.newContext({ viewport: { width, height: 900 } });
+    const page = await context.newPage();
+    const problems = [];
+    page.on('pageerror', (err) => problems.push(err.message));
+    await page.goto(env.url);
+    await page.waitForSelector('html[data-ready="true"]');
+    // The gain-48 ± 0.5 % front end of the trial, E96 parts of 0.1 %.
+    await retype(page, '#card-pairs-target', '48');
+    await retype(page, '#card-pairs-r1_min', '2k');
+    await retype(page, '#card-pairs-r1_max', '5k');
+    await retype(page, '#card-pairs-r2_min', '100k');
+    await retype(page, '#card-pairs-r2_max', '200k');
+    await retype(page, '#card-pairs-tol', '0.1%');
+    await retype(page, '#card-pairs-spec_low', '47.76');
+    await retype(page, '#card-pairs-spec_high', '48.24');
+    const rows = page.locator('#card-pairs .result-table tbody tr');
+    await page.waitForFunction(
+      () => document.querySelectorAll('#card-pairs .result-table tbody tr').length > 0,
+    );
+    const table = await rows.evaluateAll((trs) =>
+      trs.map((tr) => [...tr.querySelectorAll('td')].map((td) => td.textContent)),
+    );
+    assert.ok(table.length >= 3, `${table.length} candidates`);
+    let lastError = 0;
+    for (const [, r1, r2, achieved, error, range, verdict, yieldText] of table) {
+      const [a, b] = [fromShown(r1), fromShown(r2)];
+      // Each resistor within its own limits, as typed.
+      assert.ok(a >= 2e3 && a <= 5e3, `R1 ${r1}`);
+      assert.ok(b >= 100e3 && b <= 200e3, `R2 ${r2}`);
+      // G = 1 + R2/R1 (non-inverting, closed form) from the shown values.
+      assert.ok(Math.abs((1 + b / a) / Number(achieved) - 1) < SHOWN_DIGITS_REL, achieved);
+      // Ranked by the size of the nominal error.
+      assert.ok(Math.abs(fromShown(error)) >= lastError - 1e-9);
+      lastError = Math.abs(fromShown(error));
+      // The worst case brackets the achieved gain, and is judged against the spec.
+      const [low, high] = range.split('…').map(fromShown);
+      assert.ok(low < Number(achieved) && Number(achieved) < high, range);
+      assert.equal(verdict, low >= 47.76 && high <= 48.24 ? 'meets' : 'misses');
+      const y = fromShown(yieldText);
+      assert.ok(y >= 0 && y <= 100, yieldText);
+    }
+    await page
+      .locator('#card-pairs')
+      .screenshot({ path: join(ARTIFACTS, `card-pairs-table-${width}.png`) });
+    assert.deepEqual(problems, []);
+    await context.close();
+  }
+});
+
+test('worst case against the spec, the amplifier by its GBW, Monte Carlo with normal resistors', async () => {
+  const context = await env.browser.newContext();
+  const page = await context.newPage();
+  await page.goto(env.url);
+  await page.waitForSelector('html[data-ready="true"]');
+  // The default stage: 1 + 39k/1k = 40 with 1 % parts, spec 39.8 … 40.2. Its lowest
+  // corner R1 high, R2 low, A min: β = 1010/(1010 + 38 610), Af = A/(1 + A·β)
+  // = 60 000/(1 + 60 000·β) = 39.20 (closed form), under 39.8: the spec is missed.
+  const beta = 1010 / (1010 + 38610);
+  const lowest = 60e3 / (1 + 60e3 * beta);
+  const spec = await cardResult(page, 'card-worst', 'spec');
+  assert.match(spec, /^misses the spec: lowest /);
+  assert.ok(Math.abs(fromShown(spec) / lowest - 1) < SHOWN_DIGITS_REL, `${spec} vs ${lowest}`);
+  // With 0.1 % parts: lowest 60 000/(1 + 60 000·1001/39 962) = 39.92, highest
+  // 1e6/(1 + 1e6·999/40 038) = 40.08 (closed form): within 39.8 … 40.2.
+  await retype(page, '#card-worst-tol', '0.1%');
+  assert.equal(await cardResult(page, 'card-worst', 'spec'), 'meets the spec at every corner');
+  // The amplifier by GBW: 2.5 MHz at A typ 250k is the 10 Hz pole (GBW = A0·fH,
+  // closed form): the bandwidth range is the same text.
+  const byPole = await cardResult(page, 'card-worst', 'bw');
+  await page.selectOption('#card-worst-amp_by', 'gbw');
+  await retype(page, '#card-worst-gbw', '2.5M');
+  assert.equal(await cardResult(page, 'card-worst', 'bw'), byPole);
+  assert.equal(await cardResult(page, 'card-worst', 'gbw'), '2.5 MHz');
+  // Monte Carlo: a normal spread with tolerance = 3 σ has σ = t/3, a uniform one on
+  // ±t has σ = t/√3 (variance (b − a)²/12, common knowledge): the gain's standard
+  // deviation falls by about √3 when the resistors dominate (A's spread adds little).
+  await retype(page, '#card-montecarlo-trials', '20k');
+  const sdUniform = fromShown(await cardResult(page, 'card-montecarlo', 'sd'));
+  await page.selectOption('#card-montecarlo-resistor_distribution', 'normal');
+  const sdNormal = fromShown(await cardResult(page, 'card-montecarlo', 'sd'));
+  assert.ok(
+    sdNormal < 0.75 * sdUniform && sdNormal > 0.45 * sdUniform,
+    `${sdNormal} vs ${sdUniform}`,
+  );
+  assert.match(await cardResult(page, 'card-montecarlo', 'spec'), /^39\.8 … 40\.2$/);
+  await context.close();
+});
+
+test('plots: margins as bands, the final value as a tab, the numeric floor left out', async () => {
+  for (const width of [1366, 390]) {
+    const context = await env.browser.newContext({ viewport: { width, height: 900 } });
+    const page = await context.newPage();
+    await page.goto(env.url);
+    await page.waitForSelector('html[data-ready="true"]');
+    // Both margins of the default loop, each a band with its value beside it.
+    const bands = page.locator('#card-loop svg .plot-marker-margin');
+    assert.equal(await bands.count(), 2);
+    assert.match(await bands.nth(0).textContent(), /^GM \d/);
+    assert.match(await bands.nth(1).textContent(), /^PM \d/);
+    assert.equal(await page.locator('#card-loop svg .plot-span').count(), 0);
+    // The step plot's final value: a tab and its label, no line across.
+    const level = page.locator('#card-loop svg .plot-marker-level');
+    assert.equal(await level.count(), 1);
+    assert.equal(await level.locator('line').count(), 0);
+    // Every marker label lies inside its drawing.
+    const outside = await page.evaluate(() => {
+      const bad = [];
+      for (const svgEl of document.querySelectorAll('svg.plot')) {
+        const box = svgEl.viewBox.baseVal;
+        for (const t of svgEl.querySelectorAll('.plot-marker text, .plot-tick')) {
+          const b = t.getBBox();
+          if (b.x < -0.5 || b.x + b.width > box.width + 0.5) bad.push(t.textContent);
+        }
+      }
+      return bad;
+    });
+    assert.deepEqual(outside, []);
+    // Tick labels keep a readable size on screen (at least 10 px high at 390 px).
+    const tickPx = await page.evaluate(() => {
+      const t = document.querySelector('#card-loop svg .plot-tick');
+      return t.getBoundingClientRect().height;
+    });
+    assert.ok(tickPx >= 10, `tick labels ${tickPx.toFixed(1)} px high`);
+    // A percentage axis (the y axis, HD3 in %) has no SI prefix.
+    const ticks = await page
+      .locator('#card-distortion svg .plot-tick[text-anchor="end"]')
+      .allTextContents();
+    assert.ok(ticks.length >= 3);
+    assert.ok(
+      ticks.every((t) => !/\d\s?[pnµm]$/.test(t)),
+      ticks.join(' | '),
+    );
+    // With a3 = 0 the exact HD3 is far smaller; what falls under the core's floor
+    // (1e-12 of the fundamental, numericFloor) is left out and the plot says so.
+    await retype(page, '#card-distortion-a3', '0');
+    const note = await page.locator('#card-distortion svg .plot-note').textContent();
+    assert.match(note, /rounding noise, not drawn/);
+    await page
+      .locator('#card-loop')
+      .screenshot({ path: join(ARTIFACTS, `card-loop-margins-${width}.png`) });
+    await page
+      .locator('#card-distortion')
+      .screenshot({ path: join(ARTIFACTS, `card-distortion-floor-${width}.png`) });
+    await context.close();
+  }
+});
