@@ -456,6 +456,13 @@ test('plots: margins as bands, the final value as a tab, the numeric floor left 
     await retype(page, '#card-distortion-a3', '0');
     const note = await page.locator('#card-distortion svg .plot-note').textContent();
     assert.match(note, /rounding noise, not drawn/);
+    const exactPath = () => page.locator('#card-distortion svg .plot-series-c').getAttribute('d');
+    assert.notEqual(await exactPath(), 'M0,0');
+    // With a2 = 0 too the amplifier is linear: it has no harmonics at all (closed
+    // form), so every numeric HD3 is rounding noise and nothing of it is drawn.
+    await retype(page, '#card-distortion-a2', '0');
+    assert.equal(await page.locator('#card-distortion .card-message').textContent(), '');
+    assert.equal(await exactPath(), 'M0,0');
     await page
       .locator('#card-loop')
       .screenshot({ path: join(ARTIFACTS, `card-loop-margins-${width}.png`) });
