@@ -53,7 +53,8 @@ function pairsWithinLimits(v, api) {
       totalMax: r1 + v.r2_max,
       fixedR1: r1,
       combine: v.combine,
-      count: 2,
+      // As many per R1 as are shown: the merged top is then exactly the best.
+      count: PAIRS_SHOWN,
     });
     ideal = r.idealRatio;
     found.push(...r.candidates);
