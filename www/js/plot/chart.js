@@ -88,7 +88,34 @@ function gridAndTicks(x, y, { sx, sy, xTicks, yTicks, inner }) {
   return grid;
 }
 
-function frameAndLabels(root, { x, y, title, inner, height }) {
+/** Approximate width of the 12 px bold title font, px per character. */
+const TITLE_CHAR_PX = 7.2;
+
+/** `text` broken at spaces into lines of at most `width` px (`charPx` per character). */
+function wrapped(text, width, charPx) {
+  const lines = [];
+  let line = '';
+  for (const word of String(text).split(' ')) {
+    const next = line ? `${line} ${word}` : word;
+    if (line && next.length * charPx > width) {
+      lines.push(line);
+      line = word;
+    } else line = next;
+  }
+  if (line) lines.push(line);
+  return lines;
+}
+
+/** A text element of several lines (tspans), `step` px apart. */
+function multiline(attrs, lines, step) {
+  const t = svg('text', attrs);
+  lines.forEach((line, i) => {
+    t.append(svg('tspan', { x: attrs.x, dy: i === 0 ? 0 : step }, line));
+  });
+  return t;
+}
+
+function frameAndLabels(root, { x, y, titleLines, inner, height }) {
   root.append(
     svg('rect', {
       x: inner.x0,
@@ -121,7 +148,7 @@ function frameAndLabels(root, { x, y, title, inner, height }) {
       },
       y.label,
     ),
-    svg('text', { x: 8, y: 16, class: 'plot-title' }, title),
+    multiline({ x: 8, y: 16, class: 'plot-title' }, titleLines, 14),
   );
 }
 
@@ -177,13 +204,18 @@ export function lineChart({
     40,
     26 + Math.max(...yt.ticks.map((t) => textWidth(tickLabel(t, plainAxis(y))))),
   );
-  const twoLines = textWidth(title) * 1.1 + legendWidth(series) + 24 > width;
-  const top = twoLines ? MARGIN.top + 14 : MARGIN.top;
+  // The title wraps when it is wider than the drawing; the legend goes on a line
+  // of its own when it does not fit beside the title's last line.
+  const titleLines = wrapped(title, width - 16, TITLE_CHAR_PX);
+  const lastLine = titleLines.at(-1) ?? '';
+  const ownLine = lastLine.length * TITLE_CHAR_PX + legendWidth(series) + 24 > width;
+  const legendY = 16 + 14 * (titleLines.length - 1) + (ownLine ? 14 : 0);
+  const top = MARGIN.top + (legendY - 16);
   const inner = { x0: left, x1: width - MARGIN.right, y0: height - MARGIN.bottom, y1: top };
   const sx = makeScale(xt.domain, [inner.x0, inner.x1], x.log);
   const sy = makeScale(yt.domain, [inner.y0, inner.y1], y.log);
   root.append(gridAndTicks(x, y, { sx, sy, xTicks: xt.ticks, yTicks: yt.ticks, inner }));
-  frameAndLabels(root, { x, y, title, inner, height });
+  frameAndLabels(root, { x, y, titleLines, inner, height });
 
   const clipId = `clip-${Math.random().toString(36).slice(2, 10)}`;
   const defs = svg('defs');
@@ -210,9 +242,12 @@ export function lineChart({
   // reaches past the axis range inside too.
   plotArea.append(...drawMarkers(markers, sx, sy, inner));
   root.append(plotArea);
-  if (note)
-    root.append(svg('text', { x: inner.x0 + 4, y: inner.y0 - 5, class: 'plot-note' }, note));
-  root.append(legendOf(series, { x1: inner.x1, y: twoLines ? 30 : 16 }));
+  if (note) {
+    const lines = wrapped(note, inner.x1 - inner.x0 - 8, 5.6);
+    const y0 = inner.y0 - 5 - 12 * (lines.length - 1);
+    root.append(multiline({ x: inner.x0 + 4, y: y0, class: 'plot-note' }, lines, 12));
+  }
+  root.append(legendOf(series, { x1: inner.x1, y: legendY }));
   return root;
 }
 
