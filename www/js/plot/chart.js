@@ -110,7 +110,9 @@ function wrapped(text, width, charPx) {
 function multiline(attrs, lines, step) {
   const t = svg('text', attrs);
   lines.forEach((line, i) => {
-    t.append(svg('tspan', { x: attrs.x, dy: i === 0 ? 0 : step }, line));
+    // A space kept at each break, so that the element's text reads as written.
+    const text = i < lines.length - 1 ? `${line} ` : line;
+    t.append(svg('tspan', { x: attrs.x, dy: i === 0 ? 0 : step }, text));
   });
   return t;
 }
