@@ -137,6 +137,15 @@ test('history is bounded by steps and by characters (Node, no browser)', () => {
   assert.equal(doc[0], '4');
   // A change that leaves the document as it was is not a step.
   assert.equal(h.record('nothing'), false);
+  // States each larger than the whole bound: the last change can still be undone.
+  doc = 'x'.repeat(HISTORY_CHARS + 1);
+  h.record('huge 1');
+  doc = 'y'.repeat(HISTORY_CHARS + 1);
+  h.record('huge 2');
+  assert.equal(h.kept.steps, 2);
+  assert.ok(h.undo());
+  assert.equal(doc[0], 'x');
+  assert.equal(h.undo(), false);
 });
 
 test('the grid is one tab stop: Tab leaves it, arrows move inside, Escape leaves editing', async () => {

@@ -11,8 +11,8 @@ export const HISTORY_STEPS = 100;
 
 /**
  * Characters all kept states may hold together (UTF-16 strings: about twice this in
- * bytes). A single state larger than this is still kept as the current one, so
- * that the state before a very large load can always be undone once.
+ * bytes). The current state and the one before it are kept whatever their size,
+ * so that the last change (a very large load, say) can always be undone.
  */
 export const HISTORY_CHARS = 8_000_000;
 
@@ -29,7 +29,8 @@ export function createHistory(sheet, { apply = () => {}, onState = () => {} } = 
   const size = () => states.reduce((n, s) => n + s.text.length, 0);
 
   function trim() {
-    while (states.length - 1 > HISTORY_STEPS || (size() > HISTORY_CHARS && at > 0)) {
+    // The current state and the one before it always stay, whatever their size.
+    while (states.length - 1 > HISTORY_STEPS || (size() > HISTORY_CHARS && at > 1)) {
       states.shift();
       at -= 1;
     }
