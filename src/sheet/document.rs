@@ -35,11 +35,11 @@
 //! apostrophe in front (`'=A1`), unless it is a plain decimal number.
 
 use super::address::{CellRef, Range};
-use super::json::{self, Json, JsonWriter};
 use super::sheet::{valid_name, Sheet, MAX_CELLS, MAX_INPUT_BYTES, MAX_NAMES};
 use super::value::Value;
 use crate::csv;
 use crate::error::{Error, Result};
+use crate::json::{self, Json, JsonWriter};
 use alloc::collections::BTreeSet;
 use alloc::format;
 use alloc::string::String;
@@ -224,11 +224,11 @@ pub fn from_document(text: &str) -> core::result::Result<Contents, DocumentError
         match (key.as_str(), value) {
             ("format", Json::String(f)) if f == FORMAT => format_ok = true,
             ("format", _) => return refuse(format!("\"format\" must be \"{FORMAT}\"; this is not a loopwright sheet")),
-            ("version", Json::Number(v)) if *v == f64::from(VERSION) => version_ok = true,
-            ("version", Json::Number(v)) if *v > f64::from(VERSION) && crate::float::trunc(*v) == *v => {
+            ("version", Json::Number(n)) if n.value == f64::from(VERSION) => version_ok = true,
+            ("version", Json::Number(n)) if n.value > f64::from(VERSION) && crate::float::trunc(n.value) == n.value => {
                 return refuse(format!(
                     "it was written by a newer loopwright (document version {}); this one reads version {VERSION}",
-                    super::value::format_number(*v)
+                    super::value::format_number(n.value)
                 ))
             }
             ("version", _) => return refuse(format!("\"version\" must be the whole number {VERSION}")),
