@@ -107,7 +107,10 @@ pub trait Members {
     fn has(&self, key: &str) -> bool {
         self.field(key).is_some()
     }
-    /// The name of the first member that appears a second time.
+    /// The name of the first member that appears a second time. Quadratic in
+    /// the number of distinct names before the first repeat: meant for objects
+    /// whose names were first checked against a short list of known ones (the
+    /// circuit and stage readers), not for open-ended maps such as a sheet's cells.
     fn repeated(&self) -> Option<&str>;
 }
 
