@@ -61,11 +61,11 @@ impl JsonError {
 
 impl core::fmt::Display for JsonError {
     fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
-        write!(
-            f,
-            "line {}, column {}: {}",
-            self.line, self.col, self.message
-        )
+        write!(f, "line {}, column {}", self.line, self.col)?;
+        if !self.path.is_empty() {
+            write!(f, " (in {})", self.path)?;
+        }
+        write!(f, ": {}", self.message)
     }
 }
 

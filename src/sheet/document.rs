@@ -471,6 +471,8 @@ mod tests {
             ("{\"format\":\"loopwright-sheet\",\"version\":1,\"cells\":{},\"names\":{\"B2\":\"A1\"}}", "not a valid cell name"),
             ("{\"format\":\"loopwright-sheet\",\"version\":1,\"cells\":{},\"names\":{\"g\":\"x\"}}", "must refer to a cell"),
             ("{\"format\":\"loopwright-sheet\",\"version\":1,\"cells\":{}", "not valid JSON at line 1"),
+            // The path of the value being read when the text broke.
+            ("{\"format\":\"loopwright-sheet\",\"version\":1,\"cells\":{\"B2\":\"=1\n\"}}", "line 1, column 59 (in cells.B2): a control character inside a string"),
         ];
         for (text, needle) in cases {
             let e = from_document(text).unwrap_err();
