@@ -28,8 +28,8 @@ pub mod noise;
 mod words;
 
 use super::errors::{CellError, ErrorKind};
-use super::json::JsonWriter;
 use super::value::{Unit, Value};
+use crate::json::JsonWriter;
 use alloc::format;
 use alloc::string::String;
 use alloc::vec::Vec;
