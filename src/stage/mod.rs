@@ -8,6 +8,7 @@
 //! - [`amplifier_json`]: the model as a JSON object (circuit and stage documents);
 //! - [`document`]: the common stages from their parts, and the circuit each writes;
 //! - [`document_json`]: the stage document (`docs/stage.md`);
+//! - [`open_loop`]: the amplifier's open-loop gain A(jω) swept;
 //! - [`loop_gain`]: the return ratio at an amplifier or controlled source, swept;
 //! - [`asymptotic`]: Af = G∞·T/(1 + T) + G0/(1 + T) with the amplifier's A(jω);
 //! - [`closed_loop`]: gain to any node or element and port impedance, swept;
@@ -23,6 +24,7 @@ pub mod document;
 pub mod document_json;
 pub mod eigen;
 pub mod loop_gain;
+pub mod open_loop;
 pub mod poles;
 pub mod spread;
 
