@@ -143,3 +143,31 @@ fn stage_circuit_poles(bencher: divan::Bencher) {
     let c = stage_circuit();
     bencher.bench(|| loopwright::stage::poles::circuit_poles(black_box(&c)).map(|p| p.poles.len()));
 }
+
+/// The ladder of the circuit_sweep_1000 case of bench/circuit_cases.mjs (an
+/// op-amp as a VCVS with Ri and Ro driving six RC sections, Rf/Rg fed back from
+/// the end: 11 nodes, 13 unknowns), swept at 1 000 log-spaced frequencies.
+#[divan::bench]
+fn circuit_sweep_1000(bencher: divan::Bencher) {
+    let mut c = loopwright::circuit::Circuit::new();
+    let ok = [
+        c.voltage_source("Vs", "s", "0", 1.0),
+        c.resistor("Rs", "s", "in", 1e3),
+        c.resistor("Ri", "in", "fb", 1e6),
+        c.vcvs("A", "a", "0", "in", "fb", 1e5),
+        c.resistor("Ro", "a", "n1", 75.0),
+        c.resistor("Rf", "n7", "fb", 9e3),
+        c.resistor("Rg", "fb", "0", 1e3),
+    ];
+    assert!(ok.iter().all(Result::is_ok));
+    for k in 1..=6 {
+        let (a, b) = (format!("n{k}"), format!("n{}", k + 1));
+        assert!(c.resistor(&format!("R{k}"), &a, &b, 1e3).is_ok());
+        assert!(c.capacitor(&format!("C{k}"), &b, "0", 1e-9).is_ok());
+    }
+    let f = loopwright::freq::log_frequencies(10.0, 1e7, 1000).expect("valid frequencies");
+    bencher.bench(|| {
+        loopwright::circuit::voltage_transfer_sweep(black_box(&c), "Vs", "n7", "0", &f)
+            .map(|h| h.len())
+    });
+}
