@@ -9,6 +9,8 @@
 //! - [`document`]: the common stages from their parts, and the circuit each writes;
 //! - [`document_json`]: the stage document (`docs/stage.md`);
 //! - [`loop_gain`]: the return ratio at an amplifier or controlled source, swept;
+//! - [`margins`]: margins of a circuit's loop, through the freq engine;
+//! - [`nyquist`]: its Nyquist curve, least distance from −1, encirclements;
 //! - [`asymptotic`]: Af = G∞·T/(1 + T) + G0/(1 + T) with the amplifier's A(jω);
 //! - [`closed_loop`]: gain to any node or element and port impedance, swept;
 //! - [`poles`]: the circuit's poles from its nodal matrices, and the verdict;
@@ -23,6 +25,8 @@ pub mod document;
 pub mod document_json;
 pub mod eigen;
 pub mod loop_gain;
+pub mod margins;
+pub mod nyquist;
 pub mod poles;
 pub mod spread;
 
