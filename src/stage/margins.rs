@@ -37,19 +37,15 @@ pub(crate) struct CircuitLoop<'a> {
 }
 
 impl<'a> CircuitLoop<'a> {
-    /// The loop at `opened` (made from `original` by [`open_at`] with its
-    /// sources zeroed), with grid hints from `pole_sets`.
-    pub(crate) fn new(
-        original: &'a Circuit,
-        opened: &'a Opened,
-        pole_sets: &[&CircuitPoles],
-    ) -> CircuitResult<CircuitLoop<'a>> {
+    /// The loop of `original` opened in `s` ([`setup`]), with grid hints
+    /// from both pole sets.
+    pub(crate) fn new(original: &'a Circuit, s: &'a LoopSetup) -> CircuitResult<CircuitLoop<'a>> {
         Ok(CircuitLoop {
             original,
-            index: opened.index,
-            sweeper: RefCell::new(Sweeper::new(&opened.circuit)?),
+            index: s.opened.index,
+            sweeper: RefCell::new(Sweeper::new(&s.opened.circuit)?),
             error: RefCell::new(None),
-            hints: hints(original, pole_sets),
+            hints: hints(original, &s.open, &s.closed),
         })
     }
 
@@ -97,8 +93,11 @@ impl EvaluatedLoop for CircuitLoop<'_> {
     }
 }
 
-/// Corners and pairs from every amplifier model and from the given poles.
-fn hints(c: &Circuit, pole_sets: &[&CircuitPoles]) -> GridHints {
+/// Corners and pairs from every amplifier model, the poles of T (`open`:
+/// the opened circuit's, each complex pair with its local grid) and the
+/// closed circuit's poles (`closed`: corners only — T is smooth there, the
+/// curve only passes near −1).
+fn hints(c: &Circuit, open: &CircuitPoles, closed: &CircuitPoles) -> GridHints {
     let mut h = GridHints::default();
     for e in c
         .elements()
@@ -112,24 +111,29 @@ fn hints(c: &Circuit, pole_sets: &[&CircuitPoles]) -> GridHints {
             h.pairs.extend(m.complex_zeros.iter().map(|&p| (p, false)));
         }
     }
-    for set in pole_sets {
-        for p in set.poles.iter().filter(|p| p.natural_hz > 0.0) {
-            h.corners_hz.push(p.natural_hz);
-            if p.im > 0.0 {
-                let zeta = libm::fabs(p.zeta);
-                let q = if zeta > 0.5 / MAX_HINT_Q {
-                    0.5 / zeta
-                } else {
-                    MAX_HINT_Q
-                };
-                let pair = ComplexPair {
-                    freq_hz: p.natural_hz,
-                    q,
-                };
-                h.pairs.push((pair, true));
-            }
+    for p in open.poles.iter().filter(|p| p.natural_hz > 0.0) {
+        h.corners_hz.push(p.natural_hz);
+        if p.im > 0.0 {
+            let zeta = libm::fabs(p.zeta);
+            let q = if zeta > 0.5 / MAX_HINT_Q {
+                0.5 / zeta
+            } else {
+                MAX_HINT_Q
+            };
+            let pair = ComplexPair {
+                freq_hz: p.natural_hz,
+                q,
+            };
+            h.pairs.push((pair, true));
         }
     }
+    h.corners_hz.extend(
+        closed
+            .poles
+            .iter()
+            .filter(|p| p.natural_hz > 0.0 && p.im >= 0.0)
+            .map(|p| p.natural_hz),
+    );
     h
 }
 
@@ -204,7 +208,7 @@ pub fn circuit_margins_with_density(
     points_per_decade: u32,
 ) -> CircuitResult<Margins> {
     let s = setup(c, controlled)?;
-    let l = CircuitLoop::new(c, &s.opened, &[&s.open, &s.closed])?;
+    let l = CircuitLoop::new(c, &s)?;
     let validity = if rhp_count(&s.open) > 0 {
         MarginValidity::OpenLoopUnstable
     } else if l.at(l.search_range().0).re < 0.0 {

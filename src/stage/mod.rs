@@ -9,6 +9,7 @@
 //! - [`document`]: the common stages from their parts, and the circuit each writes;
 //! - [`document_json`]: the stage document (`docs/stage.md`);
 //! - [`loop_gain`]: the return ratio at an amplifier or controlled source, swept;
+//! - [`design`]: the part value for a target phase margin (Cf, Riso, Cl, dominant pole, β);
 //! - [`margins`]: margins of a circuit's loop, through the freq engine;
 //! - [`nyquist`]: its Nyquist curve, least distance from −1, encirclements;
 //! - [`asymptotic`]: Af = G∞·T/(1 + T) + G0/(1 + T) with the amplifier's A(jω);
@@ -21,6 +22,7 @@ pub mod amplifier_json;
 pub mod asymptotic;
 pub mod closed_loop;
 pub mod density;
+pub mod design;
 pub mod document;
 pub mod document_json;
 pub mod eigen;

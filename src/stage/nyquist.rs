@@ -52,7 +52,7 @@ pub fn circuit_nyquist_with_density(
     points_per_decade: u32,
 ) -> CircuitResult<Nyquist> {
     let s = setup(c, controlled)?;
-    let l = CircuitLoop::new(c, &s.opened, &[&s.open, &s.closed])?;
+    let l = CircuitLoop::new(c, &s)?;
     let r = nyquist_of(&l, points_per_decade, rhp_count(&s.open));
     l.finish(r)
 }
