@@ -10,6 +10,7 @@
 //! - [`document_json`]: the stage document (`docs/stage.md`);
 //! - [`loop_gain`]: the return ratio at an amplifier or controlled source, swept;
 //! - [`design`]: the part value for a target phase margin (Cf, Riso, Cl, dominant pole, β);
+//! - [`measured`]: a loop gain measured on the bench (CSV), through the same engine;
 //! - [`margins`]: margins of a circuit's loop, through the freq engine;
 //! - [`nyquist`]: its Nyquist curve, least distance from −1, encirclements;
 //! - [`asymptotic`]: Af = G∞·T/(1 + T) + G0/(1 + T) with the amplifier's A(jω);
@@ -28,6 +29,7 @@ pub mod document_json;
 pub mod eigen;
 pub mod loop_gain;
 pub mod margins;
+pub mod measured;
 pub mod nyquist;
 pub mod poles;
 pub mod spread;
