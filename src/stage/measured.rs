@@ -171,7 +171,7 @@ impl MeasuredLoop {
     /// use loopwright::stage::measured::{MagnitudeScale, MeasuredLoop};
     /// let ok = MeasuredLoop::from_csv("f,mag,phase\n1k,40,-90\n10k,20,-95\n100k,0,-120\n", MagnitudeScale::Decibels).unwrap();
     /// assert_eq!(ok.len(), 3);
-    /// let bad = MeasuredLoop::from_csv("1k,40,-90\n10k,x,-95\n5k,0,-120\n", MagnitudeScale::Decibels).unwrap_err();
+    /// let bad = MeasuredLoop::from_csv("1k,40,-90\n10k,x,-95\n500,0,-120\n", MagnitudeScale::Decibels).unwrap_err();
     /// assert_eq!(bad.rows.iter().map(|r| (r.line, r.error.param())).collect::<Vec<_>>(),
     ///            [(2, "magnitude"), (3, "frequency")]);
     /// ```
