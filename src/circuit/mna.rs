@@ -759,6 +759,14 @@ impl<'a> Sweeper<'a> {
         })
     }
 
+    /// The unknown vector at `frequency_hz` (a fresh vector; see
+    /// [`Sweeper::solve_into`] for the sweep without allocation).
+    pub fn solve_at(&mut self, frequency_hz: f64) -> CircuitResult<Vec<Complex64>> {
+        let mut x = alloc::vec![Complex64::new(0.0, 0.0); self.lay.size];
+        self.solve_into(frequency_hz, &mut x)?;
+        Ok(x)
+    }
+
     /// The unknown vector at `frequency_hz` into `x` (length: the unknowns),
     /// without allocating: M = G + jω·C refilled, factored and solved in the
     /// sweeper's own storage.
