@@ -25,6 +25,7 @@ pub mod logic;
 pub mod math;
 pub mod network;
 pub mod noise;
+pub mod stage;
 
 use super::errors::{CellError, ErrorKind};
 use super::json::JsonWriter;
@@ -150,6 +151,7 @@ pub static AREAS: &[&[FunctionSpec]] = &[
     circuit::FUNCTIONS,
     distortion::FUNCTIONS,
     noise::FUNCTIONS,
+    stage::FUNCTIONS,
 ];
 
 /// Every function, area by area.
