@@ -50,6 +50,9 @@ export const circuitLoopGain = call(glue.circuitLoopGain, [['', options]]);
 export const circuitGain = call(glue.circuitGain, [['', options]]);
 export const circuitImpedance = call(glue.circuitImpedance, [['', options]]);
 export const circuitPoles = call(glue.circuitPoles, [['', options]]);
+export const circuitMargins = call(glue.circuitMargins, [['', options]]);
+export const circuitNyquist = call(glue.circuitNyquist, [['', options]]);
+export const stageDesign = call(glue.stageDesign, [['', options]]);
 
 /**
  * The batch tool's reader and writer (src/batch): CSV chunks in, result CSV out.

@@ -245,3 +245,77 @@ fn errors_name_the_callers_field_with_its_path() {
         "circuit",
     );
 }
+
+/// Margins against python-control polished on sympy's exact loop gain
+/// (tests/reference/stage_loop.py → data/stage_loop.json): 1e-6° and 1e-9
+/// relative in frequency, as tests/stage_loop_reference.rs holds them.
+const MARGIN_ABS: f64 = 1e-6;
+const CROSSOVER_REL: f64 = 1e-9;
+
+#[wasm_bindgen_test]
+fn margins_and_nyquist_of_a_stage_match_python_control() {
+    let all: Value = serde_json::from_str(include_str!("reference/data/stage_loop.json")).unwrap();
+    for label in ["transimpedance with photodiode", "unstable follower"] {
+        let c = all["cases"]
+            .as_array()
+            .unwrap()
+            .iter()
+            .find(|c| c["label"].as_str().unwrap().starts_with(label))
+            .unwrap();
+        let m =
+            api::circuit_margins_js(options(serde_json::json!({ "circuit": c["stage"] }))).unwrap();
+        let pm = c["phase_margin_deg"].as_f64().unwrap();
+        let fc = c["crossover_hz"].as_f64().unwrap();
+        assert!(
+            (num(&m, "phaseMarginDeg") - pm).abs() < MARGIN_ABS,
+            "{label}"
+        );
+        assert!(
+            (num(&m, "crossoverHz") / fc - 1.0).abs() < CROSSOVER_REL,
+            "{label}"
+        );
+        let n =
+            api::circuit_nyquist_js(options(serde_json::json!({ "circuit": c["stage"] }))).unwrap();
+        let enc = field(&n, "encirclements");
+        // stage_loop.json: brute-force encirclement count and the verdict.
+        assert_eq!(
+            num(&enc, "clockwise") as i64,
+            c["clockwise"].as_i64().unwrap(),
+            "{label}"
+        );
+        let stable = c["stable"].as_bool().unwrap();
+        assert_eq!(text(&enc, "verdict") == "stable", stable, "{label}");
+    }
+}
+
+#[wasm_bindgen_test]
+fn design_helpers_match_the_reference_scan() {
+    // tests/reference/stage_design.py (an independent scan + brentq) →
+    // data/stage_design.json; loopwright refines to VALUE_REL_TOL = 1e-6 in
+    // ln(value): twice that, as tests/stage_design.rs.
+    let all: Value =
+        serde_json::from_str(include_str!("reference/data/stage_design.json")).unwrap();
+    for q in all["questions"].as_array().unwrap().iter().take(3) {
+        let part = q["part"].as_str().unwrap();
+        let r = api::stage_design(options(serde_json::json!({
+            "stage": q["stage"], "part": part,
+            "targetPhaseMarginDeg": q["target_pm_deg"],
+        })))
+        .unwrap();
+        let want = q["value"].as_f64().unwrap();
+        assert!(
+            (num(&r, "value") / want - 1.0).abs() < 2e-6,
+            "{part}: {}",
+            num(&r, "value")
+        );
+        assert_eq!(text(&r, "part"), part);
+    }
+    let q = &all["questions"][0];
+    js::assert_thrown(
+        api::stage_design(options(serde_json::json!({
+            "stage": q["stage"], "part": "rx", "targetPhaseMarginDeg": 45,
+        }))),
+        "unknown_name",
+        "part",
+    );
+}

@@ -23,11 +23,17 @@ use crate::circuit::{Circuit, CircuitError, ElementKind};
 use crate::error::Error;
 use crate::stage::amplifier_json::read_amplifier;
 use crate::stage::closed_loop::{gain_sweep, impedance_sweep, ImpedanceSweep};
+use crate::stage::design::{
+    dominant_pole_for_margin, feedback_capacitor_for_margin, isolation_resistor_for_margin,
+    max_beta_for_margin, max_load_capacitance_for_margin,
+};
 use crate::stage::document_json::read_stage;
 use crate::stage::loop_gain::{loop_gain, ResponseSweep};
+use crate::stage::margins::circuit_margins_with_density;
+use crate::stage::nyquist::circuit_nyquist_with_density;
 use crate::stage::open_loop::open_loop_sweep;
 use crate::stage::poles::circuit_poles;
-use crate::stage::{SpreadPoint, StageCircuit};
+use crate::stage::{SpreadPoint, Stage, StageCircuit};
 use alloc::string::String;
 use alloc::vec::Vec;
 use serde::Serialize;
@@ -192,6 +198,59 @@ export interface CircuitImpedanceOptions {
   frequenciesHz: readonly number[] | Float64Array;
   spreadPoint?: SpreadPointName;
 }
+/** Options of `circuitMargins` and `circuitNyquist`: the loop broken at `controlled`. */
+export interface CircuitLoopOptions {
+  circuit: CircuitInput;
+  /** Default: the stage's "U1", or a circuit's only amplifier element. */
+  controlled?: string;
+  /** Search-grid density, points per decade, 4 … 2000; default 40. */
+  pointsPerDecade?: number;
+  spreadPoint?: SpreadPointName;
+}
+/** The Nyquist reading of a loop gain: the curve (ω ≥ 0), the least |1 + T| and the encirclements of −1. */
+export interface NyquistData {
+  curve: { freqHz: number[]; re: number[]; im: number[] };
+  leastDistance: { distance: number; freqHz: number };
+  encirclements: {
+    /** N: clockwise encirclements of −1 (negative: counter-clockwise). */
+    clockwise: number;
+    /** P: poles of T in the right half plane. */
+    openLoopRhpPoles: number;
+    /** Poles of T at the origin, passed on the right. */
+    originPoles: number;
+    /** Z = N + P. */
+    closedLoopRhpPoles: number;
+    verdict: "stable" | "marginal" | "unstable";
+  };
+}
+/** Which part `stageDesign` chooses. */
+export type DesignPartName = "cf" | "riso" | "cl" | "dominantPoleHz" | "rg";
+/** Options of `stageDesign`: the part value that gives a target phase margin. */
+export interface StageDesignOptions {
+  /** A stage document (object or JSON text). */
+  stage: StageDocument | string;
+  /** "cf": feedback capacitor; "riso": isolation resistor (for the load `cl`); "cl": largest load capacitance; "dominantPoleHz": highest dominant pole; "rg": largest β (smallest noise gain). */
+  part: DesignPartName;
+  /** Degrees, 0 < target < 180. */
+  targetPhaseMarginDeg: number;
+  /** For "riso": the load capacitance, F (default: the stage's `cl`). */
+  cl?: number;
+  spreadPoint?: SpreadPointName;
+}
+/** What a design helper found: the value, the margin and crossover it gives, every feasible interval. */
+export interface StageDesign {
+  part: "cf" | "riso" | "cl" | "dominantPoleHz" | "rg";
+  /** F, Ω or Hz. */
+  value: number;
+  phaseMarginDeg: number;
+  crossoverHz: number | null;
+  /** For "rg": the β that results. */
+  beta: number | null;
+  /** The intervals of the searched range where the target is met. */
+  feasible: [number, number][];
+  /** The answer is at the end of the searched range. */
+  atRangeEnd: boolean;
+}
 /** Options of `circuitPoles`. */
 export interface CircuitPolesOptions { circuit: CircuitInput; spreadPoint?: SpreadPointName; }
 "#;
@@ -307,21 +366,21 @@ fn model_error(e: CircuitError, base: &str, doc: &Value, sections: bool) -> JsVa
 /// A circuit given to an analysis: the circuit itself, or the stage's.
 enum Document {
     Circuit(Circuit),
-    Stage(StageCircuit),
+    Stage(StageCircuit, alloc::boxed::Box<Stage>),
 }
 
 impl Document {
     fn circuit(&self) -> &Circuit {
         match self {
             Document::Circuit(c) => c,
-            Document::Stage(s) => &s.circuit,
+            Document::Stage(s, _) => &s.circuit,
         }
     }
 
     fn stage(&self) -> Option<&StageCircuit> {
         match self {
             Document::Circuit(_) => None,
-            Document::Stage(s) => Some(s),
+            Document::Stage(s, _) => Some(s),
         }
     }
 }
@@ -365,7 +424,7 @@ fn document(v: Value, field: &str, point: Option<&str>) -> Result<Document, JsVa
         let sc = stage
             .circuit()
             .map_err(|e| model_error(e, field, &doc, true))?;
-        return Ok(Document::Stage(sc));
+        return Ok(Document::Stage(sc, alloc::boxed::Box::new(stage)));
     }
     if point.is_some() {
         let error = Error::OutOfDomain {
@@ -453,7 +512,7 @@ pub fn stage_circuit(
         };
         return Err(thrown("stage", error, "", None));
     }
-    let Document::Stage(sc) = document(v, "", None)? else {
+    let Document::Stage(sc, _) = document(v, "", None)? else {
         let error = Error::UnknownName {
             param: "",
             expected: "loopwright-stage",
@@ -635,4 +694,115 @@ pub fn circuit_poles_js(
     let o: PolesOptions = options::read("", &options)?;
     let d = document(o.circuit, "circuit", o.spread_point.as_deref())?;
     to_js(&circuit_poles(d.circuit()).map_err(analysis_error)?)
+}
+
+#[derive(serde::Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct LoopOptions {
+    circuit: Value,
+    #[serde(default)]
+    controlled: Option<String>,
+    #[serde(default = "default_density")]
+    points_per_decade: u32,
+    #[serde(default)]
+    spread_point: Option<String>,
+}
+
+/// The margin engine's grid density when `pointsPerDecade` is left out.
+fn default_density() -> u32 {
+    crate::freq::crossings::DEFAULT_POINTS_PER_DECADE
+}
+
+/// The circuit and the element to break of a `LoopOptions` object.
+fn opened_loop(options: &JsValue) -> Result<(Document, String, u32), JsValue> {
+    let o: LoopOptions = options::read("", options)?;
+    let d = document(o.circuit, "circuit", o.spread_point.as_deref())?;
+    let only = only_amplifier(d.circuit());
+    let default = d.stage().map(|s| s.amplifier).or(only.as_deref());
+    let controlled = String::from(name_or(&o.controlled, default, "controlled")?);
+    Ok((d, controlled, o.points_per_decade))
+}
+
+/// The stability margins of a circuit's (or stage's) loop through the margin
+/// engine of the pole-list loops, from `{circuit, controlled, pointsPerDecade,
+/// spreadPoint}`: `{phaseMarginDeg, crossoverHz, gainMarginDb, phaseCrossoverHz,
+/// gainCrossings, phaseCrossings, validity, closedLoop}`.
+#[wasm_bindgen(js_name = circuitMargins, unchecked_return_type = "StabilityMargins")]
+pub fn circuit_margins_js(
+    #[wasm_bindgen(unchecked_param_type = "CircuitLoopOptions")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let (d, controlled, density) = opened_loop(&options)?;
+    let m =
+        circuit_margins_with_density(d.circuit(), &controlled, density).map_err(analysis_error)?;
+    to_js(&m)
+}
+
+/// The Nyquist reading of a circuit's (or stage's) loop gain, from the options of
+/// `circuitMargins`: `{curve: {freqHz, re, im}, leastDistance: {distance, freqHz},
+/// encirclements: {clockwise, openLoopRhpPoles, originPoles, closedLoopRhpPoles,
+/// verdict}}`.
+#[wasm_bindgen(js_name = circuitNyquist, unchecked_return_type = "NyquistData")]
+pub fn circuit_nyquist_js(
+    #[wasm_bindgen(unchecked_param_type = "CircuitLoopOptions")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let (d, controlled, density) = opened_loop(&options)?;
+    let n =
+        circuit_nyquist_with_density(d.circuit(), &controlled, density).map_err(analysis_error)?;
+    to_js(&n)
+}
+
+#[derive(serde::Deserialize)]
+#[serde(rename_all = "camelCase", deny_unknown_fields)]
+struct DesignOptions {
+    stage: Value,
+    part: String,
+    target_phase_margin_deg: f64,
+    #[serde(default)]
+    cl: Option<f64>,
+    #[serde(default)]
+    spread_point: Option<String>,
+}
+
+/// The part value of a stage that gives a target phase margin, from `{stage, part,
+/// targetPhaseMarginDeg, cl, spreadPoint}`: `{part, value, phaseMarginDeg,
+/// crossoverHz, beta, feasible, atRangeEnd}`. Each helper scans the part's range and
+/// refines every boundary (the margin need not be monotonic in the part).
+#[wasm_bindgen(js_name = stageDesign, unchecked_return_type = "StageDesign")]
+pub fn stage_design(
+    #[wasm_bindgen(unchecked_param_type = "StageDesignOptions")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let o: DesignOptions = options::read("", &options)?;
+    let Document::Stage(_, stage) = document(o.stage, "stage", o.spread_point.as_deref())? else {
+        let error = Error::UnknownName {
+            param: "",
+            expected: "loopwright-stage",
+        };
+        return Err(thrown("stage.format", error, "", None));
+    };
+    let target = o.target_phase_margin_deg;
+    let renames = [("target_pm_deg", "targetPhaseMarginDeg")];
+    let design = match o.part.as_str() {
+        "cf" => feedback_capacitor_for_margin(&stage, target),
+        "riso" => {
+            let cl =
+                o.cl.or(stage.parts.cl)
+                    .ok_or_else(|| thrown("cl", Error::Missing { param: "" }, "", None))?;
+            isolation_resistor_for_margin(&stage, cl, target)
+        }
+        "cl" => max_load_capacitance_for_margin(&stage, target),
+        "dominantPoleHz" => dominant_pole_for_margin(&stage, target),
+        "rg" => max_beta_for_margin(&stage, target),
+        _ => {
+            let error = Error::UnknownName {
+                param: "",
+                expected: "cf, riso, cl, dominantPoleHz, rg",
+            };
+            return Err(thrown("part", error, "", None));
+        }
+    }
+    .map_err(|e| {
+        let param = caller_name(e.error.param(), &renames);
+        thrown(&param, e.error, e.name.as_str(), None)
+    })?;
+    to_js(&design)
 }

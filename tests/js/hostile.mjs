@@ -306,6 +306,9 @@ export function goodCalls() {
     circuitGain: [{ circuit: STAGE(), frequenciesHz: [1e3, 1e6] }],
     circuitImpedance: [{ circuit: STAGE(), port: 'input', frequenciesHz: [1e3] }],
     circuitPoles: [{ circuit: STAGE(), spreadPoint: 'min' }],
+    circuitMargins: [{ circuit: STAGE(), pointsPerDecade: 10 }],
+    circuitNyquist: [{ circuit: STAGE(), pointsPerDecade: 10 }],
+    stageDesign: [{ stage: STAGE(), part: 'riso', targetPhaseMarginDeg: 45 }],
     functionCatalog: [],
     errorValues: [],
   };
