@@ -8,6 +8,7 @@
 //! - [`amplifier_json`]: the model as a JSON object (circuit and stage documents);
 //! - [`document`]: the common stages from their parts, and the circuit each writes;
 //! - [`document_json`]: the stage document (`docs/stage.md`);
+//! - [`document_pairs`]: a stage from name/value pairs (worksheet ranges, batch rows);
 //! - [`open_loop`]: the amplifier's open-loop gain A(jω) swept;
 //! - [`loop_gain`]: the return ratio at an amplifier or controlled source, swept;
 //! - [`design`]: the part value for a target phase margin (Cf, Riso, Cl, dominant pole, β);
@@ -27,6 +28,7 @@ pub mod density;
 pub mod design;
 pub mod document;
 pub mod document_json;
+pub mod document_pairs;
 pub mod eigen;
 pub mod loop_gain;
 pub mod margins;

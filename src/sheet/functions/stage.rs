@@ -26,6 +26,7 @@ use crate::circuit::CircuitError;
 use crate::sheet::errors::{CellError, ErrorKind};
 use crate::sheet::value::{Array, Unit, Value};
 use crate::stage::closed_loop::{gain_sweep, impedance_sweep};
+use crate::stage::document_pairs::{document_from_pairs, PAIR_NAMES};
 use crate::stage::loop_gain::{loop_gain, ResponseSweep};
 use crate::stage::margins::circuit_margins;
 use crate::stage::poles::circuit_poles;
@@ -34,7 +35,7 @@ use alloc::format;
 use alloc::string::{String, ToString};
 use alloc::vec;
 use alloc::vec::Vec;
-use serde_json::{Map, Value as Json};
+use serde_json::Value as Json;
 
 const STAGE: Param = req(
     "stage",
@@ -46,45 +47,8 @@ const FREQUENCY: Param = req("frequency", "frequency", "Hz", "≥ 0");
 const AT: &[Param] = &[STAGE, FREQUENCY];
 const ONLY: &[Param] = &[STAGE];
 
-/// Amplifier fields (name in the stage document), and list fields among them.
-const AMPLIFIER: [&str; 13] = [
-    "a0",
-    "gbwHz",
-    "dominantPoleHz",
-    "hold",
-    "polesHz",
-    "zerosHz",
-    "rhpZerosHz",
-    "rd",
-    "cd",
-    "rcm",
-    "ccm",
-    "ro",
-    "slewRate",
-];
-const LISTS: [&str; 3] = ["polesHz", "zerosHz", "rhpZerosHz"];
-const PARTS: [&str; 8] = ["rf", "rg", "cf", "rs", "cs", "rl", "cl", "riso"];
-const TOP: [&str; 2] = ["kind", "spreadPoint"];
-const SPREAD: [&str; 2] = ["a0Min", "a0Max"];
-/// Other spellings an engineer types, and the field each stands for.
-const ALIASES: [(&str, &str); 2] = [("gbw", "gbwHz"), ("poles", "polesHz")];
-const KNOWN: &str = "kind, spreadPoint, a0, a0Min, a0Max, gbwHz, dominantPoleHz, hold, polesHz, zerosHz, rhpZerosHz, rd, cd, rcm, ccm, ro, slewRate, rf, rg, cf, rs, cs, rl, cl, riso";
-
 fn fail(a: &Args<'_>, kind: ErrorKind, what: &str) -> CellError {
     CellError::new(kind, format!("{}: stage: {what}", a.spec.name))
-}
-
-/// The stage document field a typed name stands for (any case).
-fn field_of(name: &str) -> Option<&'static str> {
-    let all = TOP.iter().chain(&AMPLIFIER).chain(&PARTS).chain(&SPREAD);
-    all.copied()
-        .find(|f| f.eq_ignore_ascii_case(name))
-        .or_else(|| {
-            ALIASES
-                .iter()
-                .find(|(alias, _)| alias.eq_ignore_ascii_case(name))
-                .map(|(_, f)| *f)
-        })
 }
 
 /// A cell's value as a JSON value of the document: numbers as numbers, text
@@ -164,62 +128,14 @@ fn pairs(a: &Args<'_>) -> Result<Vec<(String, Value)>, CellError> {
     }
 }
 
-/// The stage document the pairs describe.
+/// The stage document the pairs describe (`crate::stage::document_pairs`).
 fn document(a: &Args<'_>) -> Result<Json, CellError> {
-    let (mut top, mut amp, mut parts, mut spread) =
-        (Map::new(), Map::new(), Map::new(), Map::new());
-    for (name, value) in pairs(a)? {
-        let field = field_of(&name).ok_or_else(|| {
-            fail(
-                a,
-                ErrorKind::Value,
-                &format!("unknown name \"{name}\"; the names are {KNOWN}"),
-            )
-        })?;
-        let mut v = json_of(a, field, &value)?;
-        if LISTS.contains(&field) {
-            v = match v {
-                Json::String(t) => t.split_whitespace().map(Json::from).collect(),
-                other => Json::Array(vec![other]),
-            };
-        }
-        let section = if TOP.contains(&field) {
-            &mut top
-        } else if PARTS.contains(&field) {
-            &mut parts
-        } else if SPREAD.contains(&field) {
-            &mut spread
-        } else {
-            &mut amp
-        };
-        if section.insert(field.into(), v).is_some() {
-            return Err(fail(
-                a,
-                ErrorKind::Value,
-                &format!("{field} is given twice"),
-            ));
-        }
+    let pairs = pairs(a)?;
+    let mut values = Vec::with_capacity(pairs.len());
+    for (name, value) in &pairs {
+        values.push((name.as_str(), json_of(a, name, value)?));
     }
-    if !spread.is_empty() {
-        let mut a0 = Map::new();
-        if let Some(typ) = amp.remove("a0") {
-            a0.insert("typ".into(), typ);
-        }
-        for (k, v) in [
-            ("min", spread.remove("a0Min")),
-            ("max", spread.remove("a0Max")),
-        ] {
-            if let Some(v) = v {
-                a0.insert(k.into(), v);
-            }
-        }
-        amp.insert("a0".into(), Json::Object(a0));
-    }
-    top.insert("format".into(), Json::from("loopwright-stage"));
-    top.insert("version".into(), Json::from(1));
-    top.insert("amplifier".into(), Json::Object(amp));
-    top.insert("parts".into(), Json::Object(parts));
-    Ok(Json::Object(top))
+    document_from_pairs(values).map_err(|e| circuit_fail(a, e))
 }
 
 /// A circuit error as an error value naming the field or element.
@@ -230,8 +146,11 @@ fn circuit_fail(a: &Args<'_>, e: CircuitError) -> CellError {
     };
     let param = e.error.param();
     let sentence = e.to_string();
-    let detail = match (param, e.name.as_str()) {
-        ("field", name) => format!("{}: stage: unknown name \"{name}\"", a.spec.name),
+    let detail = match (&e.error, param, e.name.as_str()) {
+        (crate::Error::UnknownName { .. }, "field", name) => format!(
+            "{}: stage: unknown name \"{name}\"; the names are {PAIR_NAMES}",
+            a.spec.name
+        ),
         _ => format!("{}: stage: {sentence}", a.spec.name),
     };
     CellError::new(kind, detail)
