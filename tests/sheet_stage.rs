@@ -193,7 +193,12 @@ fn phase_margin_and_crossover_match_python_control() {
         .as_array()
         .unwrap()
         .iter()
-        .find(|c| c["label"].as_str().unwrap().starts_with("transimpedance with photodiode"))
+        .find(|c| {
+            c["label"]
+                .as_str()
+                .unwrap()
+                .starts_with("transimpedance with photodiode")
+        })
         .unwrap();
     let mut s = transimpedance_sheet();
     s.set("D1", "=STAGE.MARGIN(A1:B10)").unwrap();
@@ -202,6 +207,10 @@ fn phase_margin_and_crossover_match_python_control() {
     // tests/stage_loop_reference.rs holds them.
     let pm = c["phase_margin_deg"].as_f64().unwrap();
     let fc = c["crossover_hz"].as_f64().unwrap();
-    assert!((num(&s, "D1") - pm).abs() < 1e-6, "{} vs {pm}", num(&s, "D1"));
+    assert!(
+        (num(&s, "D1") - pm).abs() < 1e-6,
+        "{} vs {pm}",
+        num(&s, "D1")
+    );
     assert!(close(num(&s, "E1"), fc, 1e-9));
 }
