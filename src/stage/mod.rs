@@ -16,6 +16,7 @@
 //! - [`asymptotic`]: Af = G∞·T/(1 + T) + G0/(1 + T) with the amplifier's A(jω);
 //! - [`closed_loop`]: gain to any node or element and port impedance, swept;
 //! - [`poles`]: the circuit's poles from its nodal matrices, and the verdict;
+//! - [`step`]: the step response of a circuit (residues at its poles) and its metrics;
 //! - [`eigen`]: eigenvalues of a real matrix (balance, Hessenberg, QR).
 
 pub mod amplifier;
@@ -33,6 +34,7 @@ pub mod measured;
 pub mod nyquist;
 pub mod poles;
 pub mod spread;
+pub mod step;
 
 pub use amplifier::{Amplifier, BandwidthRule, OutputSwing, GBW_MATCH_REL};
 pub use density::NoiseDensity;
