@@ -13,6 +13,7 @@
 //! - [`measured`]: a loop gain measured on the bench (CSV), through the same engine;
 //! - [`margins`]: margins of a circuit's loop, through the freq engine;
 //! - [`nyquist`]: its Nyquist curve, least distance from −1, encirclements;
+//! - [`injection`]: the loop gain broken at a node by double injection;
 //! - [`asymptotic`]: Af = G∞·T/(1 + T) + G0/(1 + T) with the amplifier's A(jω);
 //! - [`closed_loop`]: gain to any node or element and port impedance, swept;
 //! - [`poles`]: the circuit's poles from its nodal matrices, and the verdict;
@@ -28,6 +29,7 @@ pub mod design;
 pub mod document;
 pub mod document_json;
 pub mod eigen;
+pub mod injection;
 pub mod loop_gain;
 pub mod margins;
 pub mod measured;
