@@ -35,11 +35,7 @@ fn run(text: &str) -> (Vec<String>, (u64, u64, u64)) {
     let c = run.counts();
     (
         out.lines().map(String::from).collect(),
-        (
-            c.rows_in as u64,
-            c.rows_written as u64,
-            c.rows_reported as u64,
-        ),
+        (c.rows_in, c.rows_written, c.rows_reported),
     )
 }
 

@@ -794,6 +794,20 @@ impl<'a> Sweeper<'a> {
     pub fn unknowns(&self) -> usize {
         self.lay.size
     }
+
+    /// The unknown vector at a complex frequency s (rad/s): (G + s·C)·x = b,
+    /// for residues of a transfer at its poles (`stage::step`). The structure
+    /// check of [`Sweeper::solve_at`] is not repeated; a singular matrix is
+    /// reported as there.
+    pub fn solve_at_s(&mut self, s: Complex64) -> CircuitResult<Vec<Complex64>> {
+        let m: Vec<Complex64> = self
+            .g
+            .iter()
+            .zip(&self.cap)
+            .map(|(z, b)| z + s * b)
+            .collect();
+        solve_matrix(self.circuit, &self.lay, m, &self.rhs)
+    }
 }
 
 /// A copy with every independent source at zero except `source`, which is set to 1.
