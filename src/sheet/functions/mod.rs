@@ -26,6 +26,7 @@ pub mod math;
 pub mod network;
 pub mod noise;
 mod words;
+pub mod stage;
 
 use super::errors::{CellError, ErrorKind};
 use super::value::{Unit, Value};
@@ -151,6 +152,7 @@ pub static AREAS: &[&[FunctionSpec]] = &[
     circuit::FUNCTIONS,
     distortion::FUNCTIONS,
     noise::FUNCTIONS,
+    stage::FUNCTIONS,
 ];
 
 /// Every function, area by area.
