@@ -251,6 +251,8 @@ fn document_sheet_parse_json_10k(bencher: divan::Bencher) {
 fn document_sheet_parse_serde_json_10k(bencher: divan::Bencher) {
     let text = sheet_document();
     bencher.bench(|| serde_json::from_str::<serde_json::Value>(black_box(&text)).is_ok());
+}
+
 /// The ladder of the circuit_sweep_1000 case of bench/circuit_cases.mjs (an
 /// op-amp as a VCVS with Ri and Ro driving six RC sections, Rf/Rg fed back from
 /// the end: 11 nodes, 13 unknowns), swept at 1 000 log-spaced frequencies.

@@ -25,8 +25,8 @@ pub mod logic;
 pub mod math;
 pub mod network;
 pub mod noise;
-mod words;
 pub mod stage;
+mod words;
 
 use super::errors::{CellError, ErrorKind};
 use super::value::{Unit, Value};
