@@ -297,7 +297,7 @@ fn stage_loop(v: &Values) -> Result<[Option<f64>; 5]> {
         (None, false) => crate::stage::document_pairs::stage_from_pairs(
             v.stage_fields
                 .iter()
-                .map(|(f, t)| (*f, serde_json::Value::from(t.as_str()))),
+                .map(|(f, t)| (*f, crate::json::Json::from(t.as_str()))),
         )?,
         (Some(_), false) => {
             return Err(Error::OutOfDomain {

@@ -14,9 +14,28 @@ use super::document::Stage;
 use super::document_json::read_stage;
 use crate::circuit::{CircuitError, CircuitResult};
 use crate::error::Error;
-use alloc::string::ToString;
+use crate::json::{Json, Members};
+use alloc::string::String;
 use alloc::vec;
-use serde_json::{Map, Value as Json};
+use alloc::vec::Vec;
+
+/// The members of one object of the document, in the order given.
+type Section = Vec<(String, Json)>;
+
+/// Adds a member; false when the name is there already.
+fn insert(section: &mut Section, key: &str, v: Json) -> bool {
+    if section.has(key) {
+        return false;
+    }
+    section.push((key.into(), v));
+    true
+}
+
+/// Removes the member named `key` and gives its value.
+fn take(section: &mut Section, key: &str) -> Option<Json> {
+    let i = section.iter().position(|(k, _)| k == key)?;
+    Some(section.remove(i).1)
+}
 
 const AMPLIFIER: [&str; 13] = [
     "a0",
@@ -74,8 +93,12 @@ pub fn field_of(name: &str) -> Option<&'static str> {
 pub fn document_from_pairs<'a>(
     pairs: impl IntoIterator<Item = (&'a str, Json)>,
 ) -> CircuitResult<Json> {
-    let (mut top, mut amp, mut parts, mut spread) =
-        (Map::new(), Map::new(), Map::new(), Map::new());
+    let (mut top, mut amp, mut parts, mut spread) = (
+        Section::new(),
+        Section::new(),
+        Section::new(),
+        Section::new(),
+    );
     for (name, mut v) in pairs {
         let field = field_of(name.trim()).ok_or_else(|| {
             CircuitError::named(
@@ -88,7 +111,7 @@ pub fn document_from_pairs<'a>(
         })?;
         if LISTS.contains(&field) {
             v = match v {
-                Json::String(t) => t.split_whitespace().map(Json::from).collect(),
+                Json::String(t) => Json::Array(t.split_whitespace().map(Json::from).collect()),
                 other => Json::Array(vec![other]),
             };
         }
@@ -101,7 +124,7 @@ pub fn document_from_pairs<'a>(
         } else {
             &mut amp
         };
-        if section.insert(field.into(), v).is_some() {
+        if !insert(section, field, v) {
             return Err(CircuitError::named(
                 Error::OutOfDomain {
                     param: "field",
@@ -112,21 +135,21 @@ pub fn document_from_pairs<'a>(
         }
     }
     if !spread.is_empty() {
-        let mut a0 = Map::new();
-        if let Some(typ) = amp.remove("a0") {
-            a0.insert("typ".into(), typ);
+        let mut a0 = Section::new();
+        if let Some(typ) = take(&mut amp, "a0") {
+            a0.push(("typ".into(), typ));
         }
         for (k, key) in [("min", "a0Min"), ("max", "a0Max")] {
-            if let Some(v) = spread.remove(key) {
-                a0.insert(k.into(), v);
+            if let Some(v) = take(&mut spread, key) {
+                a0.push((k.into(), v));
             }
         }
-        amp.insert("a0".into(), Json::Object(a0));
+        amp.push(("a0".into(), Json::Object(a0)));
     }
-    top.insert("format".into(), Json::from("loopwright-stage"));
-    top.insert("version".into(), Json::from(1));
-    top.insert("amplifier".into(), Json::Object(amp));
-    top.insert("parts".into(), Json::Object(parts));
+    top.push(("format".into(), Json::from("loopwright-stage")));
+    top.push(("version".into(), Json::whole(1)));
+    top.push(("amplifier".into(), Json::Object(amp)));
+    top.push(("parts".into(), Json::Object(parts)));
     Ok(Json::Object(top))
 }
 
@@ -138,7 +161,7 @@ pub fn document_from_pairs<'a>(
 /// # Example
 /// ```
 /// use loopwright::stage::document_pairs::stage_from_pairs;
-/// use serde_json::Value;
+/// use loopwright::json::Json as Value;
 /// let pairs = [("kind", "inverting"), ("a0", "1e5"), ("gbw_hz", "1M"), ("rf", "10k"), ("rg", "1k")];
 /// let s = stage_from_pairs(pairs.iter().map(|(n, v)| (*n, Value::from(*v)))).unwrap();
 /// assert_eq!(s.parts.rf, Some(1e4));
@@ -150,5 +173,5 @@ pub fn stage_from_pairs<'a>(
     pairs: impl IntoIterator<Item = (&'a str, Json)>,
 ) -> CircuitResult<Stage> {
     let doc = document_from_pairs(pairs)?;
-    read_stage(&doc.to_string())
+    read_stage(&doc.to_text())
 }

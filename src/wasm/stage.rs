@@ -297,6 +297,19 @@ fn thrown(param: &str, error: Error, subject: &str, sentence: Option<String>) ->
     err
 }
 
+/// The JS object `v` of field `field` as the documents' own JSON tree
+/// (`crate::json`), which the amplifier and document readers take.
+fn document_tree(field: &str, v: &Value) -> Result<crate::json::Json, JsValue> {
+    let text = serde_json::to_string(v).unwrap_or_default();
+    crate::json::parse(&text).map_err(|e| {
+        let error = Error::OutOfDomain {
+            param: "",
+            requirement: "must be a JSON object the document reader can read",
+        };
+        thrown(field, error, "", Some(e.to_string()))
+    })
+}
+
 /// A circuit or analysis error under the caller's names (`frequencies` is
 /// the caller's `frequenciesHz`), with its subject.
 fn analysis_error(e: CircuitError) -> JsValue {
@@ -548,7 +561,7 @@ pub fn amplifier_open_loop(
 ) -> Result<JsValue, JsValue> {
     let o: OpenLoopOptions = options::read("", &options)?;
     let point = spread_point(o.spread_point.as_deref())?.unwrap_or(SpreadPoint::Typ);
-    let a = read_amplifier(&o.amplifier)
+    let a = read_amplifier(&document_tree("amplifier", &o.amplifier)?)
         .map_err(|e| model_error(e, "amplifier", &o.amplifier, false))?;
     let s = open_loop_sweep(&a, point, &o.frequencies_hz).map_err(analysis_error)?;
     Ok(response_js(&s))

@@ -23,6 +23,7 @@
 use super::{req, tri, Args, Example, Expected, FunctionSpec, Param};
 use crate::circuit::blackman::Output;
 use crate::circuit::CircuitError;
+use crate::json::Json;
 use crate::sheet::errors::{CellError, ErrorKind};
 use crate::sheet::value::{Array, Unit, Value};
 use crate::stage::closed_loop::{gain_sweep, impedance_sweep};
@@ -35,7 +36,6 @@ use alloc::format;
 use alloc::string::{String, ToString};
 use alloc::vec;
 use alloc::vec::Vec;
-use serde_json::Value as Json;
 
 const STAGE: Param = req(
     "stage",
@@ -159,7 +159,7 @@ fn circuit_fail(a: &Args<'_>, e: CircuitError) -> CellError {
 /// The circuit the stage argument writes.
 fn stage_circuit(a: &Args<'_>) -> Result<StageCircuit, CellError> {
     let doc = document(a)?;
-    let stage = read_stage(&doc.to_string()).map_err(|e| circuit_fail(a, e))?;
+    let stage = read_stage(&doc.to_text()).map_err(|e| circuit_fail(a, e))?;
     stage.circuit().map_err(|e| circuit_fail(a, e))
 }
 
