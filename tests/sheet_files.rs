@@ -3,35 +3,29 @@
 //! files refused with a typed error naming the problem.
 
 use loopwright::sheet::files::{
-    export_ods, export_xlsx, import_delimited, import_ods, import_xlsx, ExportOptions, FileErrorKind, Imported,
-    MAX_FILE_CELLS,
+    export_ods, export_xlsx, import_delimited, import_ods, import_xlsx, ExportOptions,
+    FileErrorKind, Imported, MAX_FILE_CELLS,
 };
 use loopwright::sheet::Sheet;
 use std::io::{Cursor, Write};
-use std::path::PathBuf;
 
-/// The fixture worksheets: tests/fixtures/sheets/*.json (01-demo.json is the page's demo).
-pub fn fixtures() -> Vec<(String, Sheet)> {
-    let dir = PathBuf::from(env!("CARGO_MANIFEST_DIR")).join("tests/fixtures/sheets");
-    let mut paths: Vec<_> = std::fs::read_dir(&dir).unwrap().map(|e| e.unwrap().path()).collect();
-    paths.sort();
-    paths
-        .into_iter()
-        .map(|p| {
-            let mut s = Sheet::new();
-            s.load_document(&std::fs::read_to_string(&p).unwrap()).unwrap();
-            (p.file_stem().unwrap().to_string_lossy().into_owned(), s)
-        })
-        .collect()
-}
+#[path = "support/sheet_fixtures.rs"]
+mod sheet_fixtures;
+use sheet_fixtures::fixtures;
 
 fn options() -> ExportOptions {
-    ExportOptions { date: "2026-12-03T12:00:00Z".into(), ..ExportOptions::default() }
+    ExportOptions {
+        date: "2026-12-03T12:00:00Z".into(),
+        ..ExportOptions::default()
+    }
 }
 
 type Import = fn(&[u8]) -> Result<Imported, loopwright::sheet::files::FileError>;
 type Export = fn(&Sheet, &ExportOptions) -> Result<Vec<u8>, loopwright::sheet::files::FileError>;
-const FORMATS: [(&str, Export, Import); 2] = [("ods", export_ods, import_ods), ("xlsx", export_xlsx, import_xlsx)];
+const FORMATS: [(&str, Export, Import); 2] = [
+    ("ods", export_ods, import_ods),
+    ("xlsx", export_xlsx, import_xlsx),
+];
 
 #[test]
 fn every_fixture_comes_back_byte_for_byte() {
@@ -44,7 +38,11 @@ fn every_fixture_comes_back_byte_for_byte() {
             let bytes = export(sheet, &options()).unwrap();
             let back = import(&bytes).unwrap();
             assert_eq!(back.problems, Vec::<String>::new(), "{name}.{format}");
-            assert_eq!(back.document().unwrap(), sheet.save_document(), "{name}.{format}");
+            assert_eq!(
+                back.document().unwrap(),
+                sheet.save_document(),
+                "{name}.{format}"
+            );
         }
     }
 }
@@ -53,8 +51,16 @@ fn every_fixture_comes_back_byte_for_byte() {
 fn archive(parts: &[(&str, &[u8])]) -> Vec<u8> {
     let mut zip = zip::ZipWriter::new(Cursor::new(Vec::new()));
     for (name, bytes) in parts {
-        let method = if *name == "mimetype" { zip::CompressionMethod::Stored } else { zip::CompressionMethod::Deflated };
-        zip.start_file(*name, zip::write::SimpleFileOptions::default().compression_method(method)).unwrap();
+        let method = if *name == "mimetype" {
+            zip::CompressionMethod::Stored
+        } else {
+            zip::CompressionMethod::Deflated
+        };
+        zip.start_file(
+            *name,
+            zip::write::SimpleFileOptions::default().compression_method(method),
+        )
+        .unwrap();
         zip.write_all(bytes).unwrap();
     }
     zip.finish().unwrap().into_inner()
@@ -65,7 +71,13 @@ fn ods_with(rows: &str) -> Vec<u8> {
     let content = format!(
         r#"<?xml version="1.0" encoding="UTF-8"?><office:document-content xmlns:office="urn:oasis:names:tc:opendocument:xmlns:office:1.0" xmlns:table="urn:oasis:names:tc:opendocument:xmlns:table:1.0" xmlns:text="urn:oasis:names:tc:opendocument:xmlns:text:1.0"><office:body><office:spreadsheet><table:table table:name="Sheet1">{rows}</table:table></office:spreadsheet></office:body></office:document-content>"#
     );
-    archive(&[("mimetype", b"application/vnd.oasis.opendocument.spreadsheet"), ("content.xml", content.as_bytes())])
+    archive(&[
+        (
+            "mimetype",
+            b"application/vnd.oasis.opendocument.spreadsheet",
+        ),
+        ("content.xml", content.as_bytes()),
+    ])
 }
 
 #[test]
@@ -79,8 +91,21 @@ fn a_file_from_another_program_is_read_as_it_stands() {
         r#"<table:table-row table:number-rows-repeated="2"><table:table-cell table:number-columns-repeated="2" office:value-type="boolean" office:boolean-value="true"/></table:table-row>"#,
     ));
     let got = import_ods(&bytes).unwrap();
-    let cells: Vec<(String, String)> = got.contents.cells.iter().map(|(c, i)| (c.to_string(), i.clone())).collect();
-    let want = [("A1", "4700"), ("B1", "=A1*2"), ("C1", "'4k7"), ("A2", "TRUE"), ("B2", "TRUE"), ("A3", "TRUE"), ("B3", "TRUE")];
+    let cells: Vec<(String, String)> = got
+        .contents
+        .cells
+        .iter()
+        .map(|(c, i)| (c.to_string(), i.clone()))
+        .collect();
+    let want = [
+        ("A1", "4700"),
+        ("B1", "=A1*2"),
+        ("C1", "'4k7"),
+        ("A2", "TRUE"),
+        ("B2", "TRUE"),
+        ("A3", "TRUE"),
+        ("B3", "TRUE"),
+    ];
     assert_eq!(cells, want.map(|(a, b)| (a.to_string(), b.to_string())));
 }
 
@@ -101,11 +126,17 @@ fn a_cell_changed_elsewhere_wins_over_the_preserved_input() {
         std::io::Read::read_to_end(&mut f, &mut b).unwrap();
         // The user typed 5k6 over A1 in another program: its value is now 5600.
         if f.name() == "xl/worksheets/sheet2.xml" {
-            b = String::from_utf8(b).unwrap().replace("<v>4700</v>", "<v>5600</v>").into_bytes();
+            b = String::from_utf8(b)
+                .unwrap()
+                .replace("<v>4700</v>", "<v>5600</v>")
+                .into_bytes();
         }
         parts.push((f.name().to_string(), b));
     }
-    let refs: Vec<(&str, &[u8])> = parts.iter().map(|(n, b)| (n.as_str(), b.as_slice())).collect();
+    let refs: Vec<(&str, &[u8])> = parts
+        .iter()
+        .map(|(n, b)| (n.as_str(), b.as_slice()))
+        .collect();
     let got = import_xlsx(&archive(&refs)).unwrap();
     assert_eq!(got.contents.cells[0].1, "5600");
     assert_eq!(got.contents.cells[1].1, "=FEEDBACK.GAIN(1e5; 0.01)");
@@ -120,7 +151,11 @@ fn malformed_files_are_refused_with_the_reason() {
         // Truncated: the central directory at the end is gone.
         let e = import(&bytes[..bytes.len() / 2]).unwrap_err();
         assert_eq!(e.kind, FileErrorKind::Archive, "{format}: {e}");
-        assert_eq!(import(b"not a zip at all").unwrap_err().kind, FileErrorKind::Archive, "{format}");
+        assert_eq!(
+            import(b"not a zip at all").unwrap_err().kind,
+            FileErrorKind::Archive,
+            "{format}"
+        );
         // An archive without the parts the format needs.
         let e = import(&archive(&[("readme.txt", b"hello")])).unwrap_err();
         assert_eq!(e.kind, FileErrorKind::MissingPart, "{format}: {e}");
@@ -136,12 +171,30 @@ fn malformed_files_are_refused_with_the_reason() {
 
 #[test]
 fn an_unreadable_formula_is_reported_by_sheet_and_cell_and_its_value_kept() {
-    let bytes = ods_with(r#"<table:table-row><table:table-cell/><table:table-cell table:formula="of:=1+*2" office:value-type="float" office:value="3"/><table:table-cell table:formula="of:=[$Other.A1]" office:value-type="float" office:value="7"/></table:table-row>"#);
+    let bytes = ods_with(
+        r#"<table:table-row><table:table-cell/><table:table-cell table:formula="of:=1+*2" office:value-type="float" office:value="3"/><table:table-cell table:formula="of:=[$Other.A1]" office:value-type="float" office:value="7"/></table:table-row>"#,
+    );
     let got = import_ods(&bytes).unwrap();
-    assert_eq!(got.contents.cells.iter().map(|(_, i)| i.as_str()).collect::<Vec<_>>(), ["3", "7"]);
+    assert_eq!(
+        got.contents
+            .cells
+            .iter()
+            .map(|(_, i)| i.as_str())
+            .collect::<Vec<_>>(),
+        ["3", "7"]
+    );
     assert_eq!(got.problems.len(), 2, "{:?}", got.problems);
-    assert!(got.problems[0].starts_with("sheet \"Sheet1\", cell B1: the formula \"1+*2\" does not read"), "{:?}", got.problems);
-    assert!(got.problems[1].contains("cell C1") && got.problems[1].contains("another sheet"), "{:?}", got.problems);
+    assert!(
+        got.problems[0]
+            .starts_with("sheet \"Sheet1\", cell B1: the formula \"1+*2\" does not read"),
+        "{:?}",
+        got.problems
+    );
+    assert!(
+        got.problems[1].contains("cell C1") && got.problems[1].contains("another sheet"),
+        "{:?}",
+        got.problems
+    );
 }
 
 #[test]
@@ -153,7 +206,11 @@ fn huge_sheets_and_zip_bombs_stop_at_the_limits() {
     assert!(e.message.contains(&MAX_FILE_CELLS.to_string()), "{e}");
     // Repeated empty rows cost nothing (a program writes them to the last row).
     let empty = r#"<table:table-row table:number-rows-repeated="1048575"><table:table-cell/></table:table-row>"#;
-    assert!(import_ods(&ods_with(empty)).unwrap().contents.cells.is_empty());
+    assert!(import_ods(&ods_with(empty))
+        .unwrap()
+        .contents
+        .cells
+        .is_empty());
     // 100 MB of spaces deflate to about 100 KB: refused while unpacking.
     let bomb = vec![b' '; 100 * 1024 * 1024];
     let e = import_ods(&archive(&[("content.xml", &bomb)])).unwrap_err();

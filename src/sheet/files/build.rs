@@ -99,7 +99,13 @@ fn file_value(v: &Value) -> (FileValue, Option<String>) {
 }
 
 /// The live formula of an input, if it has one in `d`.
-fn live_formula(sheet: &Sheet, c: CellRef, input: &str, shown: &Value, d: Dialect) -> Option<String> {
+fn live_formula(
+    sheet: &Sheet,
+    c: CellRef,
+    input: &str,
+    shown: &Value,
+    d: Dialect,
+) -> Option<String> {
     let expr = parse(input.strip_prefix('=')?).ok()?;
     let computed_plain = matches!(shown, Value::Number(..) | Value::Bool(_) | Value::Text(_));
     if !portable(&expr) || sheet.spill_range(c).is_some() || !computed_plain {
@@ -117,25 +123,59 @@ fn data_and_inputs(sheet: &Sheet, d: Dialect, options: &ExportOptions) -> (Table
         let shown = sheet.shown(c);
         let (value, unit) = file_value(&shown);
         let formula = live_formula(sheet, c, input, &shown, d);
-        data.insert(c, (FileCell { at: c, value, formula, unit }, input));
+        data.insert(
+            c,
+            (
+                FileCell {
+                    at: c,
+                    value,
+                    formula,
+                    unit,
+                },
+                input,
+            ),
+        );
         if let Some(r) = sheet.spill_range(c) {
             for s in r.cells().filter(|s| *s != c) {
                 let (value, unit) = file_value(&sheet.shown(s));
-                data.insert(s, (FileCell { at: s, value, formula: None, unit }, ""));
+                data.insert(
+                    s,
+                    (
+                        FileCell {
+                            at: s,
+                            value,
+                            formula: None,
+                            unit,
+                        },
+                        "",
+                    ),
+                );
             }
         }
     }
     let mut inputs = Table {
         name: String::from(INPUTS_TABLE),
         hidden: true,
-        cells: INPUTS_HEADER.iter().enumerate().map(|(k, h)| text(at(0, k as u32), h)).collect(),
+        cells: INPUTS_HEADER
+            .iter()
+            .enumerate()
+            .map(|(k, h)| text(at(0, k as u32), h))
+            .collect(),
     };
     for (i, (cell, input)) in data.values().enumerate() {
         let row = 1 + i as u32;
         inputs.cells.push(text(at(row, 0), &format!("{}", cell.at)));
         inputs.cells.push(text(at(row, 1), input));
-        inputs.cells.push(text(at(row, 2), cell.formula.as_deref().unwrap_or("")));
-        inputs.cells.push(FileCell { at: at(row, 3), ..cell.clone() }.without_formula());
+        inputs
+            .cells
+            .push(text(at(row, 2), cell.formula.as_deref().unwrap_or("")));
+        inputs.cells.push(
+            FileCell {
+                at: at(row, 3),
+                ..cell.clone()
+            }
+            .without_formula(),
+        );
     }
     let cells = data
         .into_values()

@@ -115,14 +115,22 @@ fn ooxml_quoted_sheet(chars: &[char], mut i: usize, sheet: &str) -> Result<usize
     }
     let quoted: String = chars[start..=i].iter().collect();
     if chars.get(i + 1) != Some(&'!') || !same_sheet(&quoted, sheet) {
-        return Err(format!("the reference {quoted}… reads another sheet; the worksheet has one"));
+        return Err(format!(
+            "the reference {quoted}… reads another sheet; the worksheet has one"
+        ));
     }
     Ok(i + 2)
 }
 
 /// A name, function name, cell reference or `TRUE()`: copied, with the
 /// adjustments of the module doc.
-fn word(chars: &[char], mut i: usize, d: Dialect, sheet: &str, out: &mut String) -> Result<usize, String> {
+fn word(
+    chars: &[char],
+    mut i: usize,
+    d: Dialect,
+    sheet: &str,
+    out: &mut String,
+) -> Result<usize, String> {
     let start = i;
     while chars
         .get(i)
@@ -133,7 +141,9 @@ fn word(chars: &[char], mut i: usize, d: Dialect, sheet: &str, out: &mut String)
     let mut w: String = chars[start..i].iter().collect();
     if d == Dialect::Ooxml && chars.get(i) == Some(&'!') {
         if !same_sheet(&w, sheet) {
-            return Err(format!("the reference {w}!… reads another sheet; the worksheet has one"));
+            return Err(format!(
+                "the reference {w}!… reads another sheet; the worksheet has one"
+            ));
         }
         return Ok(i + 1);
     }
@@ -182,16 +192,29 @@ mod tests {
             "IF(TRUE;1;2)"
         );
         assert_eq!(
-            translate("'Design'!A1+Design!B2+_xlfn.ABS(-1)", Dialect::Ooxml, "Design").unwrap(),
+            translate(
+                "'Design'!A1+Design!B2+_xlfn.ABS(-1)",
+                Dialect::Ooxml,
+                "Design"
+            )
+            .unwrap(),
             "A1+B2+ABS(-1)"
         );
     }
 
     #[test]
     fn other_sheets_and_broken_formulas_are_reported() {
-        assert!(translate("[$Other.A1]", Dialect::Odf, "Design").unwrap_err().contains("another sheet"));
-        assert!(translate("Other!A1", Dialect::Ooxml, "Design").unwrap_err().contains("another sheet"));
-        assert!(translate("\"abc", Dialect::Odf, "D").unwrap_err().contains("not closed"));
-        assert!(checked("1+*", Dialect::Ooxml, "D").unwrap_err().contains("column"));
+        assert!(translate("[$Other.A1]", Dialect::Odf, "Design")
+            .unwrap_err()
+            .contains("another sheet"));
+        assert!(translate("Other!A1", Dialect::Ooxml, "Design")
+            .unwrap_err()
+            .contains("another sheet"));
+        assert!(translate("\"abc", Dialect::Odf, "D")
+            .unwrap_err()
+            .contains("not closed"));
+        assert!(checked("1+*", Dialect::Ooxml, "D")
+            .unwrap_err()
+            .contains("column"));
     }
 }

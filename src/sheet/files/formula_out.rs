@@ -204,7 +204,10 @@ mod tests {
         );
         assert_eq!(
             both("IF(TRUE; 1; \"a\"\"b\")"),
-            ("IF(TRUE();1;\"a\"\"b\")".into(), "IF(TRUE,1,\"a\"\"b\")".into())
+            (
+                "IF(TRUE();1;\"a\"\"b\")".into(),
+                "IF(TRUE,1,\"a\"\"b\")".into()
+            )
         );
     }
 
@@ -222,7 +225,12 @@ mod tests {
 
     #[test]
     fn loopwright_functions_units_and_joins_are_not_portable() {
-        for src in ["FEEDBACK.GAIN(1e5; 0.01)", "A1 + 1 V", "A1 & \"x\"", "NOPE(1)"] {
+        for src in [
+            "FEEDBACK.GAIN(1e5; 0.01)",
+            "A1 + 1 V",
+            "A1 & \"x\"",
+            "NOPE(1)",
+        ] {
             assert!(!portable(&parse(src).unwrap()), "{src}");
         }
     }

@@ -34,12 +34,14 @@ mod model;
 mod ods_read;
 mod ods_write;
 mod restore;
-mod xml;
 mod xlsx_read;
 mod xlsx_write;
+mod xml;
 
 pub use build::{ExportOptions, COVER_TABLE, DATA_TABLE, INPUTS_TABLE};
-pub use model::{FileError, FileErrorKind, MAX_FILE_BYTES, MAX_FILE_CELLS, MAX_PARTS, MAX_PART_BYTES};
+pub use model::{
+    FileError, FileErrorKind, MAX_FILE_BYTES, MAX_FILE_CELLS, MAX_PARTS, MAX_PART_BYTES,
+};
 pub use restore::Imported;
 
 use super::Sheet;
@@ -54,7 +56,10 @@ use model::{FileCell, FileValue};
 /// # Errors
 /// [`FileError`] only if the archive cannot be written (no case is known).
 pub fn export_ods(sheet: &Sheet, options: &ExportOptions) -> Result<Vec<u8>, FileError> {
-    ods_write::write(&build::workbook(sheet, Dialect::Odf, options), &options.date)
+    ods_write::write(
+        &build::workbook(sheet, Dialect::Odf, options),
+        &options.date,
+    )
 }
 
 /// The sheet as an `.xlsx` file.
@@ -62,7 +67,10 @@ pub fn export_ods(sheet: &Sheet, options: &ExportOptions) -> Result<Vec<u8>, Fil
 /// # Errors
 /// [`FileError`] only if the archive cannot be written (no case is known).
 pub fn export_xlsx(sheet: &Sheet, options: &ExportOptions) -> Result<Vec<u8>, FileError> {
-    xlsx_write::write(&build::workbook(sheet, Dialect::Ooxml, options), &options.date)
+    xlsx_write::write(
+        &build::workbook(sheet, Dialect::Ooxml, options),
+        &options.date,
+    )
 }
 
 /// Read an `.ods` file into worksheet inputs; no sheet is touched.
@@ -90,27 +98,53 @@ pub fn import_xlsx(bytes: &[u8]) -> Result<Imported, FileError> {
 /// [`FileErrorKind::TooLarge`] over [`MAX_FILE_BYTES`] or [`crate::sheet::MAX_CELLS`] fields.
 pub fn import_delimited(text: &str, separator: u8) -> Result<Imported, FileError> {
     if text.len() > MAX_FILE_BYTES {
-        return Err(FileError::new(FileErrorKind::TooLarge, format!("the file is larger than {MAX_FILE_BYTES} bytes")));
+        return Err(FileError::new(
+            FileErrorKind::TooLarge,
+            format!("the file is larger than {MAX_FILE_BYTES} bytes"),
+        ));
     }
     let mut out = Imported::default();
-    for (row, record) in csv::read_all(text, separator, csv::BlankLines::Keep).iter().enumerate() {
+    for (row, record) in csv::read_all(text, separator, csv::BlankLines::Keep)
+        .iter()
+        .enumerate()
+    {
         for (col, field) in record.fields.iter().enumerate() {
             let Some(at) = super::CellRef::new(row as u32, col as u32) else {
-                return Err(FileError::new(FileErrorKind::TooLarge, format!("line {} reaches beyond the sheet's rows or columns", record.line)));
+                return Err(FileError::new(
+                    FileErrorKind::TooLarge,
+                    format!(
+                        "line {} reaches beyond the sheet's rows or columns",
+                        record.line
+                    ),
+                ));
             };
-            let cell = FileCell { at, value: FileValue::Text(field.clone()), formula: None, unit: None };
+            let cell = FileCell {
+                at,
+                value: FileValue::Text(field.clone()),
+                formula: None,
+                unit: None,
+            };
             let reads = super::literal::read_cell(field);
             let input = match reads {
                 super::literal::CellReading::Number(_) => Some(field.clone()),
-                _ if field.trim().eq_ignore_ascii_case("TRUE") || field.trim().eq_ignore_ascii_case("FALSE") => Some(field.trim().into()),
-                _ if super::ErrorKind::from_code(field.trim()).is_some() => Some(field.trim().into()),
+                _ if field.trim().eq_ignore_ascii_case("TRUE")
+                    || field.trim().eq_ignore_ascii_case("FALSE") =>
+                {
+                    Some(field.trim().into())
+                }
+                _ if super::ErrorKind::from_code(field.trim()).is_some() => {
+                    Some(field.trim().into())
+                }
                 _ => restore::value_input(&cell),
             };
             if let Some(input) = input {
                 out.contents.cells.push((at, input));
             }
             if out.contents.cells.len() > super::MAX_CELLS {
-                return Err(FileError::new(FileErrorKind::TooLarge, format!("the file has more than {} cells", super::MAX_CELLS)));
+                return Err(FileError::new(
+                    FileErrorKind::TooLarge,
+                    format!("the file has more than {} cells", super::MAX_CELLS),
+                ));
             }
         }
     }

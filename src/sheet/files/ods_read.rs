@@ -4,7 +4,9 @@
 //! cost nothing; repeated cells with a value count against [`MAX_FILE_CELLS`].
 
 use super::container::ArchiveReader;
-use super::model::{FileCell, FileError, FileErrorKind, FileValue, Table, Workbook, MAX_FILE_CELLS};
+use super::model::{
+    FileCell, FileError, FileErrorKind, FileValue, Table, Workbook, MAX_FILE_CELLS,
+};
 use super::ods_write::MIMETYPE;
 use super::xml::{attr, attributes, malformed, name, reference};
 use crate::sheet::{CellRef, MAX_COLS, MAX_ROWS};
@@ -52,14 +54,20 @@ fn repeat(attrs: &[(String, String)], key: &str) -> Result<u64, FileError> {
     match attr(attrs, key) {
         None => Ok(1),
         Some(v) => v.parse::<u64>().ok().filter(|n| *n >= 1).ok_or_else(|| {
-            FileError::new(FileErrorKind::Malformed, format!("{PART}: {key}=\"{v}\" is not a count"))
+            FileError::new(
+                FileErrorKind::Malformed,
+                format!("{PART}: {key}=\"{v}\" is not a count"),
+            )
         }),
     }
 }
 
 impl State {
     fn table_name(&self) -> String {
-        self.wb.tables.last().map_or_else(String::new, |t| t.name.clone())
+        self.wb
+            .tables
+            .last()
+            .map_or_else(String::new, |t| t.name.clone())
     }
 
     fn start(&mut self, e: &BytesStart<'_>, empty: bool) -> Result<(), FileError> {
@@ -77,7 +85,8 @@ impl State {
             }
             "style:style" => {
                 if let Some(s) = attr(&attrs, "style:name") {
-                    self.current_style = Some((s.into(), attr(&attrs, "style:family").unwrap_or("").into()));
+                    self.current_style =
+                        Some((s.into(), attr(&attrs, "style:family").unwrap_or("").into()));
                     if let Some(d) = attr(&attrs, "style:data-style-name") {
                         self.styles.cell_number_style.insert(s.into(), d.into());
                     }
@@ -89,7 +98,8 @@ impl State {
                 }
             }
             "table:table" => {
-                let hidden = attr(&attrs, "table:style-name").is_some_and(|s| self.styles.hidden_tables.iter().any(|h| h == s));
+                let hidden = attr(&attrs, "table:style-name")
+                    .is_some_and(|s| self.styles.hidden_tables.iter().any(|h| h == s));
                 self.wb.tables.push(Table {
                     name: attr(&attrs, "table:name").unwrap_or("").into(),
                     hidden,
@@ -106,7 +116,11 @@ impl State {
                 }
             }
             "table:table-cell" | "table:covered-table-cell" => {
-                let cell = OpenCell { attrs, text: String::new(), paragraphs: 0 };
+                let cell = OpenCell {
+                    attrs,
+                    text: String::new(),
+                    paragraphs: 0,
+                };
                 if empty {
                     self.end_cell(cell)?;
                 } else {
@@ -135,7 +149,11 @@ impl State {
 
     fn push_text(&mut self, t: &str) {
         if self.in_number_text {
-            if let Some(s) = self.current_number_style.as_ref().and_then(|s| self.styles.number_suffix.get_mut(s)) {
+            if let Some(s) = self
+                .current_number_style
+                .as_ref()
+                .and_then(|s| self.styles.number_suffix.get_mut(s))
+            {
                 s.push_str(t);
             }
         } else if let Some(c) = &mut self.cell {
@@ -144,10 +162,15 @@ impl State {
     }
 
     fn named_range(&mut self, attrs: &[(String, String)]) {
-        let (Some(n), Some(address)) = (attr(attrs, "table:name"), attr(attrs, "table:cell-range-address")) else {
+        let (Some(n), Some(address)) = (
+            attr(attrs, "table:name"),
+            attr(attrs, "table:cell-range-address"),
+        ) else {
             return;
         };
-        let Some((table, cell)) = address.rsplit_once('.') else { return };
+        let Some((table, cell)) = address.rsplit_once('.') else {
+            return;
+        };
         let table = table.trim_start_matches('$').trim_matches('\'');
         if let Some(c) = CellRef::parse(&cell.replace('$', "")) {
             self.wb.names.push((n.into(), table.into(), c));
@@ -191,18 +214,38 @@ impl State {
                 let v = attr(&c.attrs, "office:value").unwrap_or("");
                 match v.parse::<f64>() {
                     Ok(x) if x.is_finite() => Some(FileValue::Number(x)),
-                    _ => return Err(FileError::new(FileErrorKind::Malformed, format!("{PART}: the number \"{v}\" in column {} is not a finite number", at()))),
+                    _ => {
+                        return Err(FileError::new(
+                            FileErrorKind::Malformed,
+                            format!(
+                                "{PART}: the number \"{v}\" in column {} is not a finite number",
+                                at()
+                            ),
+                        ))
+                    }
                 }
             }
-            Some("boolean") => Some(FileValue::Bool(attr(&c.attrs, "office:boolean-value") == Some("true"))),
-            Some(_) => Some(FileValue::Text(attr(&c.attrs, "office:string-value").map_or(c.text.clone(), String::from))),
+            Some("boolean") => Some(FileValue::Bool(
+                attr(&c.attrs, "office:boolean-value") == Some("true"),
+            )),
+            Some(_) => Some(FileValue::Text(
+                attr(&c.attrs, "office:string-value").map_or(c.text.clone(), String::from),
+            )),
             None if formula.is_some() => Some(FileValue::Text(String::new())),
             None => None,
         };
         if let Some(value) = value {
             let unit = self.unit_of(&c.attrs);
             for k in 0..columns {
-                self.row_cells.push((self.col + k, FileCell { at: CellRef { row: 0, col: 0 }, value: value.clone(), formula: formula.clone(), unit: unit.clone() }));
+                self.row_cells.push((
+                    self.col + k,
+                    FileCell {
+                        at: CellRef { row: 0, col: 0 },
+                        value: value.clone(),
+                        formula: formula.clone(),
+                        unit: unit.clone(),
+                    },
+                ));
                 self.count_cells(1)?;
             }
         }
@@ -213,7 +256,10 @@ impl State {
     fn count_cells(&mut self, n: usize) -> Result<(), FileError> {
         self.count += n;
         if self.count > MAX_FILE_CELLS {
-            return Err(FileError::new(FileErrorKind::TooLarge, format!("the file has more than {MAX_FILE_CELLS} cells")));
+            return Err(FileError::new(
+                FileErrorKind::TooLarge,
+                format!("the file has more than {MAX_FILE_CELLS} cells"),
+            ));
         }
         Ok(())
     }
@@ -227,8 +273,11 @@ impl State {
                 }
                 for (col, cell) in &cells {
                     let row = self.row + r;
-                    let place = CellRef::new(u32::try_from(row).unwrap_or(u32::MAX), u32::try_from(*col).unwrap_or(u32::MAX))
-                        .filter(|_| row < u64::from(MAX_ROWS) && *col < u64::from(MAX_COLS));
+                    let place = CellRef::new(
+                        u32::try_from(row).unwrap_or(u32::MAX),
+                        u32::try_from(*col).unwrap_or(u32::MAX),
+                    )
+                    .filter(|_| row < u64::from(MAX_ROWS) && *col < u64::from(MAX_COLS));
                     let Some(at) = place else {
                         return Err(FileError::new(FileErrorKind::TooLarge, format!("a cell of sheet \"{}\" lies beyond row {MAX_ROWS} or column {MAX_COLS}", self.table_name())));
                     };
@@ -253,7 +302,13 @@ pub(crate) fn read(bytes: &[u8]) -> Result<Workbook, FileError> {
     if zip.has("mimetype") {
         let m = zip.text("mimetype")?;
         if m.trim() != MIMETYPE {
-            return Err(FileError::new(FileErrorKind::Malformed, format!("the mimetype is \"{}\", not an OpenDocument spreadsheet's", m.trim())));
+            return Err(FileError::new(
+                FileErrorKind::Malformed,
+                format!(
+                    "the mimetype is \"{}\", not an OpenDocument spreadsheet's",
+                    m.trim()
+                ),
+            ));
         }
     }
     let text = zip.text(PART)?;
@@ -285,7 +340,10 @@ pub(crate) fn read(bytes: &[u8]) -> Result<Workbook, FileError> {
         return Err(malformed(PART, "it ends before its elements are closed"));
     }
     if st.wb.tables.is_empty() {
-        return Err(FileError::new(FileErrorKind::Malformed, "content.xml has no table"));
+        return Err(FileError::new(
+            FileErrorKind::Malformed,
+            "content.xml has no table",
+        ));
     }
     Ok(st.wb)
 }

@@ -73,6 +73,11 @@ fn automatic_styles(out: &mut String, units: &BTreeMap<String, usize>) {
     out.push_str("<office:automatic-styles>");
     out.push_str(r#"<style:style style:name="ta1" style:family="table"><style:table-properties table:display="true"/></style:style>"#);
     out.push_str(r#"<style:style style:name="ta2" style:family="table"><style:table-properties table:display="false"/></style:style>"#);
+    // Truth values need a boolean style to show as TRUE/FALSE rather than 1/0.
+    out.push_str(
+        r#"<number:boolean-style style:name="NB"><number:boolean/></number:boolean-style>"#,
+    );
+    out.push_str(r#"<style:style style:name="ceB" style:family="table-cell" style:parent-style-name="Default" style:data-style-name="NB"/>"#);
     for (unit, n) in units {
         out.push_str(&format!(
             r#"<number:number-style style:name="N{n}"><number:number number:min-integer-digits="1"/><number:text> "#
@@ -98,6 +103,8 @@ fn cell(out: &mut String, c: &FileCell, units: &BTreeMap<String, usize>) {
     out.push_str("<table:table-cell");
     if let Some(n) = c.unit.as_ref().and_then(|u| units.get(u)) {
         out.push_str(&format!(r#" table:style-name="ce{n}""#));
+    } else if matches!(c.value, FileValue::Bool(_)) {
+        out.push_str(r#" table:style-name="ceB""#);
     }
     if let Some(f) = &c.formula {
         out.push_str(r#" table:formula="of:="#);
@@ -120,7 +127,11 @@ fn cell(out: &mut String, c: &FileCell, units: &BTreeMap<String, usize>) {
             return;
         }
         FileValue::Bool(b) => {
-            let (v, shown) = if *b { ("true", "TRUE") } else { ("false", "FALSE") };
+            let (v, shown) = if *b {
+                ("true", "TRUE")
+            } else {
+                ("false", "FALSE")
+            };
             out.push_str(&format!(
                 r#" office:value-type="boolean" office:boolean-value="{v}"><text:p>{shown}</text:p></table:table-cell>"#
             ));
@@ -140,14 +151,20 @@ fn repeated(out: &mut String, element: &str, attribute: &str, count: u32) {
     if count == 1 {
         out.push_str(&format!("<table:{element}/>"));
     } else if count > 1 {
-        out.push_str(&format!(r#"<table:{element} table:{attribute}="{count}"/>"#));
+        out.push_str(&format!(
+            r#"<table:{element} table:{attribute}="{count}"/>"#
+        ));
     }
 }
 
 fn table(out: &mut String, t: &Table, units: &BTreeMap<String, usize>) {
     out.push_str("<table:table table:name=\"");
     xml_escape(out, &t.name);
-    out.push_str(if t.hidden { "\" table:style-name=\"ta2\">" } else { "\" table:style-name=\"ta1\">" });
+    out.push_str(if t.hidden {
+        "\" table:style-name=\"ta2\">"
+    } else {
+        "\" table:style-name=\"ta1\">"
+    });
     out.push_str("<table:table-column/>");
     let mut next_row = 0u32;
     let mut i = 0;
@@ -163,7 +180,12 @@ fn table(out: &mut String, t: &Table, units: &BTreeMap<String, usize>) {
         let mut next_col = 0u32;
         while i < t.cells.len() && t.cells[i].at.row == row {
             let c = &t.cells[i];
-            repeated(out, "table-cell", "number-columns-repeated", c.at.col - next_col);
+            repeated(
+                out,
+                "table-cell",
+                "number-columns-repeated",
+                c.at.col - next_col,
+            );
             cell(out, c, units);
             next_col = c.at.col + 1;
             i += 1;
@@ -180,7 +202,10 @@ fn named_ranges(out: &mut String, wb: &Workbook) {
     }
     out.push_str("<table:named-expressions>");
     for (name, table, c) in &wb.names {
-        let col: String = format!("{c}").chars().take_while(char::is_ascii_alphabetic).collect();
+        let col: String = format!("{c}")
+            .chars()
+            .take_while(char::is_ascii_alphabetic)
+            .collect();
         let address = format!("${table}.${col}${}", c.row + 1);
         out.push_str("<table:named-range table:name=\"");
         xml_escape(out, name);
@@ -196,9 +221,13 @@ fn named_ranges(out: &mut String, wb: &Workbook) {
 /// `content.xml` of `wb`.
 pub(crate) fn content(wb: &Workbook) -> String {
     let units = unit_styles(wb);
-    let mut out = format!("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<office:document-content {NAMESPACES}>");
+    let mut out = format!(
+        "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<office:document-content {NAMESPACES}>"
+    );
     automatic_styles(&mut out, &units);
     out.push_str("<office:body><office:spreadsheet>");
+    // Text comparisons ignore case, as in the worksheet (ODF's default is to match case).
+    out.push_str(r#"<table:calculation-settings table:case-sensitive="false" table:use-regular-expressions="false" table:use-wildcards="false"/>"#);
     for t in &wb.tables {
         table(&mut out, t, &units);
     }

@@ -20,7 +20,9 @@ use super::formula_in::checked;
 use super::formula_out::Dialect;
 use super::model::{FileCell, FileError, FileErrorKind, FileValue, Table, Workbook};
 use crate::sheet::literal::{read_cell, CellReading};
-use crate::sheet::{valid_name, write_number, CellRef, Contents, ErrorKind, Sheet, MAX_CELLS, MAX_INPUT_BYTES};
+use crate::sheet::{
+    valid_name, write_number, CellRef, Contents, ErrorKind, Sheet, MAX_CELLS, MAX_INPUT_BYTES,
+};
 use alloc::collections::BTreeMap;
 use alloc::format;
 use alloc::string::String;
@@ -69,7 +71,14 @@ fn preserved(t: &Table) -> BTreeMap<CellRef, Written> {
         .filter_map(|r| {
             let at = CellRef::parse(&as_text(r[0]))?;
             let value = r[3].map_or(FileValue::Text(String::new()), |c| c.value.clone());
-            Some((at, Written { input: as_text(r[1]), formula: as_text(r[2]), value }))
+            Some((
+                at,
+                Written {
+                    input: as_text(r[1]),
+                    formula: as_text(r[2]),
+                    value,
+                },
+            ))
         })
         .collect()
 }
@@ -78,7 +87,9 @@ fn same_value(a: &FileValue, b: &FileValue) -> bool {
     match (a, b) {
         (FileValue::Number(x), FileValue::Number(y)) => x == y,
         (FileValue::Bool(x), FileValue::Bool(y)) => x == y,
-        (FileValue::Text(x) | FileValue::Error(x), FileValue::Text(y) | FileValue::Error(y)) => x == y,
+        (FileValue::Text(x) | FileValue::Error(x), FileValue::Text(y) | FileValue::Error(y)) => {
+            x == y
+        }
         _ => false,
     }
 }
@@ -108,7 +119,11 @@ pub(crate) fn value_input(c: &FileCell) -> Option<String> {
                 && !t.trim().eq_ignore_ascii_case("FALSE")
                 && ErrorKind::from_code(t.trim()).is_none()
                 && matches!(read_cell(t), CellReading::Text);
-            Some(if reads_as_text { t.clone() } else { format!("'{t}") })
+            Some(if reads_as_text {
+                t.clone()
+            } else {
+                format!("'{t}")
+            })
         }
     }
 }
@@ -118,7 +133,10 @@ fn fresh(c: &FileCell, d: Dialect, table: &str, problems: &mut Vec<String>) -> O
     if let Some(f) = &c.formula {
         match checked(f, d, table) {
             Ok(input) => return Some(input),
-            Err(why) => problems.push(format!("sheet \"{table}\", cell {}: {why}; its value is kept", c.at)),
+            Err(why) => problems.push(format!(
+                "sheet \"{table}\", cell {}: {why}; its value is kept",
+                c.at
+            )),
         }
     }
     value_input(c)
@@ -138,13 +156,28 @@ fn data_table(wb: &Workbook) -> Result<&Table, FileError> {
 /// [`FileError`] when the file has no sheet to read or more cells than a worksheet holds.
 pub(crate) fn restore(wb: &Workbook, d: Dialect) -> Result<Imported, FileError> {
     let data = data_table(wb)?;
-    let mut out = Imported { problems: wb.notes.clone(), ..Imported::default() };
+    let mut out = Imported {
+        problems: wb.notes.clone(),
+        ..Imported::default()
+    };
     for t in &wb.tables {
-        if t.name != data.name && t.name != COVER_TABLE && t.name != INPUTS_TABLE && !t.cells.is_empty() {
-            out.problems.push(format!("sheet \"{}\" is not imported: the worksheet has one sheet ({} was read)", t.name, data.name));
+        if t.name != data.name
+            && t.name != COVER_TABLE
+            && t.name != INPUTS_TABLE
+            && !t.cells.is_empty()
+        {
+            out.problems.push(format!(
+                "sheet \"{}\" is not imported: the worksheet has one sheet ({} was read)",
+                t.name, data.name
+            ));
         }
     }
-    let written = wb.tables.iter().find(|t| t.name == INPUTS_TABLE && data.name == DATA_TABLE).map(preserved).unwrap_or_default();
+    let written = wb
+        .tables
+        .iter()
+        .find(|t| t.name == INPUTS_TABLE && data.name == DATA_TABLE)
+        .map(preserved)
+        .unwrap_or_default();
     for c in &data.cells {
         let kept = written.get(&c.at).filter(|w| match &c.formula {
             Some(f) => w.formula == *f,
@@ -155,15 +188,26 @@ pub(crate) fn restore(wb: &Workbook, d: Dialect) -> Result<Imported, FileError> 
             Some(w) => Some(w.input.clone()),
             None => fresh(c, d, &data.name, &mut out.problems),
         };
-        let Some(input) = input.filter(|i| !i.trim().is_empty()) else { continue };
+        let Some(input) = input.filter(|i| !i.trim().is_empty()) else {
+            continue;
+        };
         if input.len() > MAX_INPUT_BYTES {
-            out.problems.push(format!("sheet \"{}\", cell {}: longer than {MAX_INPUT_BYTES} bytes; not imported", data.name, c.at));
+            out.problems.push(format!(
+                "sheet \"{}\", cell {}: longer than {MAX_INPUT_BYTES} bytes; not imported",
+                data.name, c.at
+            ));
             continue;
         }
         out.contents.cells.push((c.at, input));
     }
     if out.contents.cells.len() > MAX_CELLS {
-        return Err(FileError::new(FileErrorKind::TooLarge, format!("the sheet \"{}\" has more than {MAX_CELLS} cells", data.name)));
+        return Err(FileError::new(
+            FileErrorKind::TooLarge,
+            format!(
+                "the sheet \"{}\" has more than {MAX_CELLS} cells",
+                data.name
+            ),
+        ));
     }
     for (name, table, c) in &wb.names {
         if *table == data.name && valid_name(name) {

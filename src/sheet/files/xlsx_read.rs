@@ -6,7 +6,9 @@
 //! of cells) keep their cached values and are reported.
 
 use super::container::ArchiveReader;
-use super::model::{FileCell, FileError, FileErrorKind, FileValue, Table, Workbook, MAX_FILE_CELLS};
+use super::model::{
+    FileCell, FileError, FileErrorKind, FileValue, Table, Workbook, MAX_FILE_CELLS,
+};
 use super::xml::{attr, attributes, malformed, name, reference};
 use crate::sheet::CellRef;
 use alloc::collections::BTreeMap;
@@ -18,7 +20,12 @@ use quick_xml::Reader;
 
 /// What a walk over one XML part does at each element and text.
 trait Visitor {
-    fn start(&mut self, name: &str, attrs: &[(String, String)], empty: bool) -> Result<(), FileError>;
+    fn start(
+        &mut self,
+        name: &str,
+        attrs: &[(String, String)],
+        empty: bool,
+    ) -> Result<(), FileError>;
     fn text(&mut self, _text: &str) {}
     fn end(&mut self, _name: &str) -> Result<(), FileError> {
         Ok(())
@@ -93,7 +100,10 @@ impl Visitor for SharedStrings {
             "rPh" => self.in_phonetic = false,
             "si" => {
                 if self.out.len() >= MAX_FILE_CELLS {
-                    return Err(FileError::new(FileErrorKind::TooLarge, format!("xl/sharedStrings.xml has more than {MAX_FILE_CELLS} strings")));
+                    return Err(FileError::new(
+                        FileErrorKind::TooLarge,
+                        format!("xl/sharedStrings.xml has more than {MAX_FILE_CELLS} strings"),
+                    ));
                 }
                 self.out.push(core::mem::take(&mut self.current));
             }
@@ -230,35 +240,64 @@ enum Field {
 impl SheetPart<'_> {
     fn place(&self, a: &[(String, String)]) -> Result<CellRef, FileError> {
         match attr(a, "r") {
-            Some(r) => CellRef::parse(r).ok_or_else(|| FileError::new(FileErrorKind::Malformed, format!("sheet \"{}\": \"{r}\" is not a cell address", self.table.name))),
+            Some(r) => CellRef::parse(r).ok_or_else(|| {
+                FileError::new(
+                    FileErrorKind::Malformed,
+                    format!(
+                        "sheet \"{}\": \"{r}\" is not a cell address",
+                        self.table.name
+                    ),
+                )
+            }),
             None => Ok(self.next),
         }
     }
 
     fn finish_cell(&mut self) -> Result<(), FileError> {
-        let Some((at, a)) = self.cell.take() else { return Ok(()) };
-        self.next = CellRef { row: at.row, col: at.col + 1 };
+        let Some((at, a)) = self.cell.take() else {
+            return Ok(());
+        };
+        self.next = CellRef {
+            row: at.row,
+            col: at.col + 1,
+        };
         let here = format!("{} of sheet \"{}\"", at, self.table.name);
         let raw = self.value.take();
         let inline = self.inline.take();
         let value = match (attr(&a, "t"), raw) {
             (Some("inlineStr"), _) => inline.map(FileValue::Text),
             (Some("s"), Some(i)) => {
-                let s = i.trim().parse::<usize>().ok().and_then(|i| self.strings.get(i));
-                Some(FileValue::Text(s.cloned().ok_or_else(|| FileError::new(FileErrorKind::Malformed, format!("cell {here}: shared string {i} does not exist")))?))
+                let s = i
+                    .trim()
+                    .parse::<usize>()
+                    .ok()
+                    .and_then(|i| self.strings.get(i));
+                Some(FileValue::Text(s.cloned().ok_or_else(|| {
+                    FileError::new(
+                        FileErrorKind::Malformed,
+                        format!("cell {here}: shared string {i} does not exist"),
+                    )
+                })?))
             }
             (Some("b"), Some(v)) => Some(FileValue::Bool(v.trim() == "1")),
             (Some("e"), Some(v)) => Some(FileValue::Error(v)),
             (Some("str"), Some(v)) => Some(FileValue::Text(v)),
             (_, Some(v)) => match v.trim().parse::<f64>() {
                 Ok(x) if x.is_finite() => Some(FileValue::Number(x)),
-                _ => return Err(FileError::new(FileErrorKind::Malformed, format!("cell {here}: \"{v}\" is not a finite number"))),
+                _ => {
+                    return Err(FileError::new(
+                        FileErrorKind::Malformed,
+                        format!("cell {here}: \"{v}\" is not a finite number"),
+                    ))
+                }
             },
             (_, None) => None,
         };
         let formula = self.formula.take().filter(|f| !f.trim().is_empty());
         if self.shared && formula.is_none() && value.is_some() {
-            self.notes.push(format!("cell {here}: a shared formula is not read; its value is kept"));
+            self.notes.push(format!(
+                "cell {here}: a shared formula is not read; its value is kept"
+            ));
         }
         self.shared = false;
         let value = match (value, &formula) {
@@ -268,10 +307,18 @@ impl SheetPart<'_> {
         };
         *self.count += 1;
         if *self.count > MAX_FILE_CELLS {
-            return Err(FileError::new(FileErrorKind::TooLarge, format!("the file has more than {MAX_FILE_CELLS} cells")));
+            return Err(FileError::new(
+                FileErrorKind::TooLarge,
+                format!("the file has more than {MAX_FILE_CELLS} cells"),
+            ));
         }
         let unit = self.styles.unit(attr(&a, "s"));
-        self.table.cells.push(FileCell { at, value, formula, unit });
+        self.table.cells.push(FileCell {
+            at,
+            value,
+            formula,
+            unit,
+        });
         Ok(())
     }
 }
@@ -283,7 +330,10 @@ impl Visitor for SheetPart<'_> {
                 if let Some(r) = attr(a, "r").and_then(|r| r.parse::<u32>().ok()) {
                     self.row = r.saturating_sub(1);
                 }
-                self.next = CellRef { row: self.row, col: 0 };
+                self.next = CellRef {
+                    row: self.row,
+                    col: 0,
+                };
             }
             "c" => {
                 let at = self.place(a)?;
@@ -338,7 +388,10 @@ fn part_path(target: &str) -> String {
 /// `Design!$A$1` or `'My sheet'!$A$1` → (sheet, cell).
 fn defined_cell(text: &str) -> Option<(String, CellRef)> {
     let (sheet, cell) = text.trim().rsplit_once('!')?;
-    let sheet = sheet.strip_prefix('\'').and_then(|s| s.strip_suffix('\'')).map_or_else(|| String::from(sheet), |s| s.replace("''", "'"));
+    let sheet = sheet
+        .strip_prefix('\'')
+        .and_then(|s| s.strip_suffix('\''))
+        .map_or_else(|| String::from(sheet), |s| s.replace("''", "'"));
     Some((sheet, CellRef::parse(&cell.replace('$', ""))?))
 }
 
@@ -352,10 +405,18 @@ pub(crate) fn read(bytes: &[u8]) -> Result<Workbook, FileError> {
     let mut book = WorkbookPart::default();
     walk(&zip.text("xl/workbook.xml")?, "xl/workbook.xml", &mut book)?;
     let mut rels = Relationships::default();
-    walk(&zip.text("xl/_rels/workbook.xml.rels")?, "xl/_rels/workbook.xml.rels", &mut rels)?;
+    walk(
+        &zip.text("xl/_rels/workbook.xml.rels")?,
+        "xl/_rels/workbook.xml.rels",
+        &mut rels,
+    )?;
     let mut strings = SharedStrings::default();
     if zip.has("xl/sharedStrings.xml") {
-        walk(&zip.text("xl/sharedStrings.xml")?, "xl/sharedStrings.xml", &mut strings)?;
+        walk(
+            &zip.text("xl/sharedStrings.xml")?,
+            "xl/sharedStrings.xml",
+            &mut strings,
+        )?;
     }
     let mut styles = Styles::default();
     if zip.has("xl/styles.xml") {
@@ -364,11 +425,20 @@ pub(crate) fn read(bytes: &[u8]) -> Result<Workbook, FileError> {
     let mut wb = Workbook::default();
     let mut count = 0usize;
     for (sheet, id, hidden) in &book.sheets {
-        let target = rels.0.get(id).ok_or_else(|| FileError::new(FileErrorKind::MissingPart, format!("the sheet \"{sheet}\" has no part (relationship {id})")))?;
+        let target = rels.0.get(id).ok_or_else(|| {
+            FileError::new(
+                FileErrorKind::MissingPart,
+                format!("the sheet \"{sheet}\" has no part (relationship {id})"),
+            )
+        })?;
         let path = part_path(target);
         let text = zip.text(&path)?;
         let mut part = SheetPart {
-            table: Table { name: sheet.clone(), hidden: *hidden, cells: Vec::new() },
+            table: Table {
+                name: sheet.clone(),
+                hidden: *hidden,
+                cells: Vec::new(),
+            },
             strings: &strings.out,
             styles: &styles,
             count: &mut count,
@@ -387,12 +457,17 @@ pub(crate) fn read(bytes: &[u8]) -> Result<Workbook, FileError> {
         wb.tables.push(table);
     }
     if wb.tables.is_empty() {
-        return Err(FileError::new(FileErrorKind::Malformed, "xl/workbook.xml lists no sheet"));
+        return Err(FileError::new(
+            FileErrorKind::Malformed,
+            "xl/workbook.xml lists no sheet",
+        ));
     }
     for (n, text) in &book.names {
         match defined_cell(text) {
             Some((sheet, c)) => wb.names.push((n.clone(), sheet, c)),
-            None => wb.notes.push(format!("the defined name \"{n}\" ({text}) is not one cell; not kept")),
+            None => wb.notes.push(format!(
+                "the defined name \"{n}\" ({text}) is not one cell; not kept"
+            )),
         }
     }
     Ok(wb)

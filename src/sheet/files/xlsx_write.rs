@@ -60,16 +60,24 @@ fn core_properties(date: &str) -> String {
 fn workbook_rels(sheets: usize) -> String {
     let mut out = format!("<?xml version=\"1.0\" encoding=\"UTF-8\" standalone=\"yes\"?>\n<Relationships xmlns=\"{PKG_REL}\">");
     for i in 1..=sheets {
-        out.push_str(&format!(r#"<Relationship Id="rId{i}" Type="{REL}/worksheet" Target="worksheets/sheet{i}.xml"/>"#));
+        out.push_str(&format!(
+            r#"<Relationship Id="rId{i}" Type="{REL}/worksheet" Target="worksheets/sheet{i}.xml"/>"#
+        ));
     }
-    out.push_str(&format!(r#"<Relationship Id="rId{}" Type="{REL}/styles" Target="styles.xml"/>"#, sheets + 1));
+    out.push_str(&format!(
+        r#"<Relationship Id="rId{}" Type="{REL}/styles" Target="styles.xml"/>"#,
+        sheets + 1
+    ));
     out.push_str("</Relationships>\n");
     out
 }
 
 /// `$A$1` for a cell.
 fn absolute(c: crate::sheet::CellRef) -> String {
-    let col: String = format!("{c}").chars().take_while(char::is_ascii_alphabetic).collect();
+    let col: String = format!("{c}")
+        .chars()
+        .take_while(char::is_ascii_alphabetic)
+        .collect();
     format!("${col}${}", c.row + 1)
 }
 
@@ -100,7 +108,10 @@ fn workbook_part(wb: &Workbook) -> String {
             out.push_str("<definedName name=\"");
             xml_escape(&mut out, name);
             out.push_str("\">");
-            xml_escape(&mut out, &format!("{}!{}", sheet_in_formula(table), absolute(*c)));
+            xml_escape(
+                &mut out,
+                &format!("{}!{}", sheet_in_formula(table), absolute(*c)),
+            );
             out.push_str("</definedName>");
         }
         out.push_str("</definedNames>");
@@ -127,7 +138,10 @@ fn styles(units: &BTreeMap<String, usize>) -> String {
     if !units.is_empty() {
         out.push_str(&format!("<numFmts count=\"{}\">", units.len()));
         for (unit, n) in units {
-            out.push_str(&format!("<numFmt numFmtId=\"{}\" formatCode=\"", FIRST_CUSTOM_FORMAT + n - 1));
+            out.push_str(&format!(
+                "<numFmt numFmtId=\"{}\" formatCode=\"",
+                FIRST_CUSTOM_FORMAT + n - 1
+            ));
             xml_escape(&mut out, &format!("General\" {}\"", unit.replace('"', "")));
             out.push_str("\"/>");
         }
@@ -216,10 +230,18 @@ pub(crate) fn write(wb: &Workbook, date: &str) -> Result<Vec<u8>, FileError> {
     zip.part("_rels/.rels", package_rels().as_bytes(), false);
     zip.part("docProps/core.xml", core_properties(date).as_bytes(), false);
     zip.part("xl/workbook.xml", workbook_part(wb).as_bytes(), false);
-    zip.part("xl/_rels/workbook.xml.rels", workbook_rels(n).as_bytes(), false);
+    zip.part(
+        "xl/_rels/workbook.xml.rels",
+        workbook_rels(n).as_bytes(),
+        false,
+    );
     zip.part("xl/styles.xml", styles(&units).as_bytes(), false);
     for (i, t) in wb.tables.iter().enumerate() {
-        zip.part(&format!("xl/worksheets/sheet{}.xml", i + 1), worksheet(t, &units).as_bytes(), false);
+        zip.part(
+            &format!("xl/worksheets/sheet{}.xml", i + 1),
+            worksheet(t, &units).as_bytes(),
+            false,
+        );
     }
     zip.finish()
 }

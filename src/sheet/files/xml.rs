@@ -11,11 +11,17 @@ use quick_xml::XmlVersion;
 
 /// A part that is not well-formed XML.
 pub(crate) fn malformed(part: &str, e: impl core::fmt::Display) -> FileError {
-    FileError::new(FileErrorKind::Malformed, format!("the part {part} is not well-formed XML: {e}"))
+    FileError::new(
+        FileErrorKind::Malformed,
+        format!("the part {part} is not well-formed XML: {e}"),
+    )
 }
 
 /// The attributes of `e` as (qualified name, value).
-pub(crate) fn attributes(e: &BytesStart<'_>, part: &str) -> Result<Vec<(String, String)>, FileError> {
+pub(crate) fn attributes(
+    e: &BytesStart<'_>,
+    part: &str,
+) -> Result<Vec<(String, String)>, FileError> {
     let mut out = Vec::new();
     for a in e.attributes() {
         let a = a.map_err(|err| malformed(part, err))?;
@@ -30,7 +36,10 @@ pub(crate) fn attributes(e: &BytesStart<'_>, part: &str) -> Result<Vec<(String, 
 
 /// The value of attribute `key` in `attrs`.
 pub(crate) fn attr<'a>(attrs: &'a [(String, String)], key: &str) -> Option<&'a str> {
-    attrs.iter().find(|(k, _)| k == key).map(|(_, v)| v.as_str())
+    attrs
+        .iter()
+        .find(|(k, _)| k == key)
+        .map(|(_, v)| v.as_str())
 }
 
 /// The text a reference such as `&amp;` or `&#10;` stands for.
