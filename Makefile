@@ -45,6 +45,7 @@ test-native:
 # value recomputed by LibreOffice Calc (tests/sheet_files_engine.rs; soffice from setup.sh).
 test-sheetfiles:
 	cargo clippy --all-targets --features wasm,sheetfiles -- -D warnings
+	cargo clippy --features wasm-sheetfiles -- -D warnings
 	cargo test --features sheetfiles --lib sheet::files
 	cargo test --features sheetfiles --doc sheet::files
 	LOOPWRIGHT_REQUIRE_SOFFICE=1 cargo test --features sheetfiles --test sheet_files --test sheet_files_engine
@@ -69,7 +70,7 @@ test-browser:
 	GECKODRIVER=$$(command -v geckodriver) cargo test --target wasm32-unknown-unknown --features wasm --test 'wasm_*'
 
 test-page:
-	cd tests/js && GECKODRIVER=$$(command -v geckodriver) node --test format.test.mjs page.test.mjs sheet.test.mjs firefox.test.mjs
+	cd tests/js && GECKODRIVER=$$(command -v geckodriver) node --test format.test.mjs page.test.mjs sheet.test.mjs sheetfiles.test.mjs firefox.test.mjs
 
 # package.test.mjs: the packed package as a user installs it; hostile.test.mjs: the
 # hostile-call campaign over every export (LOOPWRIGHT_HOSTILE_LONG=1 for the long run).

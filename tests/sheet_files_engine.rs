@@ -184,7 +184,7 @@ fn the_engine_recomputes_every_value_alike() {
         }
     }
     eprintln!(
-        "{compared} values compared in {} files; {live} live formulas per format",
+        "{compared} values compared in {} files; {live} live formulas in each format",
         files.len()
     );
     // The fixtures exercise every open-formula function and operator (see
