@@ -53,6 +53,16 @@ fn soffice() -> Option<String> {
 }
 
 fn convert(soffice: &str, dir: &Path, files: &[std::path::PathBuf]) {
+    convert_to(soffice, dir, CSV_FILTER, &dir.join("csv"), files);
+}
+
+fn convert_to(
+    soffice: &str,
+    dir: &Path,
+    filter: &str,
+    out_dir: &Path,
+    files: &[std::path::PathBuf],
+) {
     let profile = dir.join("profile");
     std::fs::create_dir_all(profile.join("user")).unwrap();
     std::fs::write(profile.join("user/registrymodifications.xcu"), PROFILE).unwrap();
@@ -65,10 +75,10 @@ fn convert(soffice: &str, dir: &Path, files: &[std::path::PathBuf]) {
             "--headless",
             "--norestore",
             "--convert-to",
-            CSV_FILTER,
+            filter,
             "--outdir",
         ])
-        .arg(dir.join("csv"))
+        .arg(out_dir)
         .args(files)
         .output()
         .unwrap();
@@ -196,5 +206,75 @@ fn the_engine_recomputes_every_value_alike() {
         failures.len(),
         failures.join("\n")
     );
+    saved_by_the_engine_and_read_back(&soffice, &dir, &sheets, &files);
     let _ = std::fs::remove_dir_all(&dir);
+}
+
+/// Each exported file saved again by the engine in the other format (.ods → .xlsx,
+/// .xlsx → .ods) and imported: files written by another program, with its shared
+/// strings, styles and formula spelling. The preserved inputs bring back the same
+/// document where the engine kept a cell as it was; where it respelled a live
+/// formula, the translated formula must give the same value.
+fn saved_by_the_engine_and_read_back(
+    soffice: &str,
+    dir: &Path,
+    sheets: &[(String, Sheet)],
+    files: &[std::path::PathBuf],
+) {
+    use loopwright::sheet::files::{import_ods, import_xlsx};
+    let resaved = dir.join("resaved");
+    std::fs::create_dir_all(&resaved).unwrap();
+    let (ods, xlsx): (Vec<_>, Vec<_>) = files
+        .iter()
+        .cloned()
+        .partition(|f| f.extension().is_some_and(|e| e == "ods"));
+    convert_to(soffice, dir, "xlsx:Calc MS Excel 2007 XML", &resaved, &ods);
+    convert_to(soffice, dir, "ods", &resaved, &xlsx);
+    let mut failures = Vec::new();
+    let (mut same, mut total) = (0, 0);
+    for (name, sheet) in sheets {
+        for (from, to) in [("ods", "xlsx"), ("xlsx", "ods")] {
+            let path = resaved.join(format!("{name}-{from}.{to}"));
+            let bytes = std::fs::read(&path).unwrap_or_else(|e| panic!("{}: {e}", path.display()));
+            let got = if to == "ods" {
+                import_ods(&bytes)
+            } else {
+                import_xlsx(&bytes)
+            };
+            let got = got.unwrap_or_else(|e| panic!("{}: {e}", path.display()));
+            let mut back = Sheet::new();
+            back.load_document(&got.document().unwrap()).unwrap();
+            total += 1;
+            same += usize::from(back.save_document() == sheet.save_document());
+            let Some(used) = sheet.used_range() else {
+                continue;
+            };
+            for c in used.cells() {
+                let (ours, theirs) = (sheet.shown(c), back.shown(c));
+                let agree = match (&ours, &theirs) {
+                    (Value::Number(x, _), Value::Number(y, _)) => {
+                        (x - y).abs() <= REL_TOLERANCE * x.abs().max(f64::MIN_POSITIVE)
+                    }
+                    _ => ours.display() == theirs.display(),
+                };
+                if !agree {
+                    failures.push(format!(
+                        "{name} {from}→{to} {c}: read back {}, the worksheet {}",
+                        theirs.display(),
+                        ours.display()
+                    ));
+                }
+            }
+            if !got.problems.is_empty() {
+                failures.push(format!("{name} {from}→{to}: {:?}", got.problems));
+            }
+        }
+    }
+    eprintln!("saved again by the engine: {same} of {total} documents the same byte for byte, every value the same");
+    assert!(
+        failures.is_empty(),
+        "{} differences:\n{}",
+        failures.len(),
+        failures.join("\n")
+    );
 }

@@ -48,6 +48,8 @@ struct State {
     row_cells: Vec<(u64, FileCell)>,
     cell: Option<OpenCell>,
     count: usize,
+    /// Inside a cell's comment (`office:annotation`), whose text is not the cell's.
+    in_annotation: bool,
 }
 
 fn repeat(attrs: &[(String, String)], key: &str) -> Result<u64, FileError> {
@@ -127,7 +129,8 @@ impl State {
                     self.cell = Some(cell);
                 }
             }
-            "text:p" if !empty => {
+            "office:annotation" if !empty => self.in_annotation = true,
+            "text:p" if !empty && !self.in_annotation => {
                 if let Some(c) = &mut self.cell {
                     if c.paragraphs > 0 {
                         c.text.push('\n');
@@ -148,6 +151,9 @@ impl State {
     }
 
     fn push_text(&mut self, t: &str) {
+        if self.in_annotation {
+            return;
+        }
         if self.in_number_text {
             if let Some(s) = self
                 .current_number_style
@@ -183,6 +189,7 @@ impl State {
                 self.current_number_style = None;
             }
             b"number:text" => self.in_number_text = false,
+            b"office:annotation" => self.in_annotation = false,
             b"style:style" => self.current_style = None,
             b"table:table-cell" | b"table:covered-table-cell" => {
                 if let Some(c) = self.cell.take() {

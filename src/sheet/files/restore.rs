@@ -87,6 +87,11 @@ fn same_value(a: &FileValue, b: &FileValue) -> bool {
     match (a, b) {
         (FileValue::Number(x), FileValue::Number(y)) => x == y,
         (FileValue::Bool(x), FileValue::Bool(y)) => x == y,
+        // A program that keeps truth values as 1 and 0 with a truth-value format
+        // (LibreOffice saving an .ods from an .xlsx) still holds what was written.
+        (FileValue::Bool(b), FileValue::Number(x)) | (FileValue::Number(x), FileValue::Bool(b)) => {
+            *x == if *b { 1.0 } else { 0.0 }
+        }
         (FileValue::Text(x) | FileValue::Error(x), FileValue::Text(y) | FileValue::Error(y)) => {
             x == y
         }
@@ -142,6 +147,13 @@ fn fresh(c: &FileCell, d: Dialect, table: &str, problems: &mut Vec<String>) -> O
     value_input(c)
 }
 
+/// Whether a formula is only a truth value (`TRUE()`, `FALSE()`): LibreOffice writes
+/// an .xlsx file's truth-value cells that way when it saves them as .ods.
+fn truth_constant(f: &str) -> bool {
+    let f = f.trim().trim_start_matches('=');
+    f.eq_ignore_ascii_case("TRUE()") || f.eq_ignore_ascii_case("FALSE()")
+}
+
 fn data_table(wb: &Workbook) -> Result<&Table, FileError> {
     wb.tables
         .iter()
@@ -179,6 +191,16 @@ pub(crate) fn restore(wb: &Workbook, d: Dialect) -> Result<Imported, FileError> 
         .map(preserved)
         .unwrap_or_default();
     for c in &data.cells {
+        let plain;
+        let c = if c.formula.as_deref().is_some_and(truth_constant) {
+            plain = FileCell {
+                formula: None,
+                ..c.clone()
+            };
+            &plain
+        } else {
+            c
+        };
         let kept = written.get(&c.at).filter(|w| match &c.formula {
             Some(f) => w.formula == *f,
             None => w.formula.is_empty() && same_value(&w.value, &c.value),
