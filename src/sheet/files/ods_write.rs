@@ -91,10 +91,34 @@ fn automatic_styles(out: &mut String, units: &BTreeMap<String, usize>) {
     out.push_str("</office:automatic-styles>");
 }
 
+/// Text as paragraphs, one per line. ODF collapses white space in a paragraph
+/// (ISO/IEC 26300, §6.1.2, from memory), so a run of spaces at either end or of more
+/// than one is written as `<text:s text:c="n"/>`. A tab stays a character (`&#9;`):
+/// LibreOffice keeps it so, while a `<text:tab/>` was missing from its CSV of the cell.
 fn paragraph(out: &mut String, t: &str) {
     for line in t.split('\n') {
         out.push_str("<text:p>");
-        xml_escape(out, line);
+        let mut rest = line;
+        let mut at_start = true;
+        while !rest.is_empty() {
+            let spaces = rest.len() - rest.trim_start_matches(' ').len();
+            if spaces > 0 {
+                let at_end = spaces == rest.len();
+                let literal = usize::from(!at_start && !at_end);
+                if literal == 1 {
+                    out.push(' ');
+                }
+                if spaces > literal {
+                    out.push_str(&format!(r#"<text:s text:c="{}"/>"#, spaces - literal));
+                }
+                rest = &rest[spaces..];
+            } else {
+                let end = rest.find(' ').unwrap_or(rest.len());
+                xml_escape(out, &rest[..end]);
+                rest = &rest[end..];
+            }
+            at_start = false;
+        }
         out.push_str("</text:p>");
     }
 }
