@@ -14,6 +14,8 @@ const env = servedPageTests();
 async function openSheet(context) {
   const page = await context.newPage();
   const problems = [];
+  const requested = [];
+  page.on('request', (r) => requested.push(new URL(r.url()).pathname));
   page.on('console', (msg) => {
     if (msg.type() === 'error') problems.push(msg.text());
   });
@@ -21,7 +23,7 @@ async function openSheet(context) {
   await page.goto(env.url);
   await page.waitForSelector('html[data-ready="true"]');
   await page.click('#tab-sheet');
-  return { page, problems };
+  return { page, problems, requested };
 }
 
 const shown = async (page, a) => (await page.locator(`#cell-${a}`).textContent()).trim();
@@ -41,8 +43,13 @@ async function note(page, pattern) {
 
 test('the demo exported as .ods and .xlsx comes back the same; a broken file changes nothing', async () => {
   const context = await env.browser.newContext({ acceptDownloads: true });
-  const { page, problems } = await openSheet(context);
+  const { page, problems, requested } = await openSheet(context);
   await page.click('#sheet-demo');
+  // The file-format module is not loaded with the page, only on the first export.
+  assert.deepEqual(
+    requested.filter((p) => p.includes('/sheetfiles/')),
+    [],
+  );
   await page.waitForFunction(() => document.querySelector('#cell-B8').textContent.trim() !== '');
   const demo = await saved(page);
   const b8 = await shown(page, 'B8');
@@ -52,6 +59,7 @@ test('the demo exported as .ods and .xlsx comes back the same; a broken file cha
       page.click(`#sheet-export-${format}`),
     ]);
     assert.equal(download.suggestedFilename(), `worksheet.${format}`);
+    assert.ok(requested.some((p) => p.endsWith('/pkg/sheetfiles/loopwright_bg.wasm')));
     const path = join(ARTIFACTS, `demo.${format}`);
     await download.saveAs(path);
     // Both formats are zip archives (PK, ISO/IEC 21320-1).
