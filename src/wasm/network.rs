@@ -64,7 +64,9 @@ export interface StageOptions {
   /** Amplifier input and output resistance, Ω. */
   ri: number; ro: number;
   /** Dominant pole of the typical amplifier (A = aTyp), Hz. */
-  poleHz: number;
+  poleHz?: number;
+  /** Or the gain-bandwidth product, Hz, instead of poleHz: the pole is gbwHz/aTyp. One of the two is given. */
+  gbwHz?: number;
   /** What the spread of A holds: "gbw" (the gain-bandwidth product aTyp·poleHz, the pole moving to GBW/A) or "pole". Default "gbw". */
   hold?: "gbw" | "pole";
 }
@@ -229,7 +231,12 @@ struct StageOptions {
     a_max: f64,
     ri: f64,
     ro: f64,
-    pole_hz: f64,
+    /// The dominant pole at aTyp, Hz; or, instead, `gbw_hz`.
+    #[serde(default)]
+    pole_hz: Option<f64>,
+    /// The gain–bandwidth product, Hz: the pole is GBW/aTyp.
+    #[serde(default)]
+    gbw_hz: Option<f64>,
     #[serde(default = "default_hold")]
     hold: String,
 }
@@ -239,6 +246,20 @@ fn default_hold() -> String {
 }
 
 impl StageOptions {
+    /// The pole from `poleHz`, or from `gbwHz` by the core; exactly one is given.
+    fn pole(&self) -> Result<f64, JsValue> {
+        match (self.pole_hz, self.gbw_hz) {
+            (Some(p), None) => Ok(p),
+            (None, Some(g)) => crate::freq::pole_for_gbw(g, self.a_typ)
+                .map_err(|e| core_error(e, &[("a0", "aTyp")])),
+            _ => throw(Err(crate::Error::OutOfDomain {
+                param: "poleHz",
+                requirement:
+                    "give the pole (poleHz) or the gain-bandwidth product (gbwHz), one of them",
+            })),
+        }
+    }
+
     fn spec(&self) -> Result<StageSpec, JsValue> {
         let named = |e| core_error(e, RENAMES);
         Ok(StageSpec {
@@ -252,7 +273,7 @@ impl StageOptions {
             a_max: self.a_max,
             ri: self.ri,
             ro: self.ro,
-            pole_hz: self.pole_hz,
+            pole_hz: self.pole()?,
             hold: self.hold.parse().map_err(named)?,
         })
     }
@@ -286,7 +307,10 @@ struct MonteCarloOptions {
     a_max: f64,
     ri: f64,
     ro: f64,
-    pole_hz: f64,
+    #[serde(default)]
+    pole_hz: Option<f64>,
+    #[serde(default)]
+    gbw_hz: Option<f64>,
     #[serde(default = "default_hold")]
     hold: String,
     #[serde(default = "default_resistors")]
@@ -358,6 +382,7 @@ pub fn monte_carlo(
         ri: o.ri,
         ro: o.ro,
         pole_hz: o.pole_hz,
+        gbw_hz: o.gbw_hz,
         hold: o.hold,
     };
     let spec = MonteCarloSpec {
