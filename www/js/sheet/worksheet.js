@@ -15,6 +15,7 @@ import { createAutosave } from './autosave.js';
 import { createReplacing } from './replacing.js';
 import { openAtStart, watchLinks, hasSheetLink } from './opening.js';
 import { DEMO_SHEET } from './demo.js';
+import { mountSheetFiles } from './sheetfiles.js';
 import { mountHistoryControls } from './history-controls.js';
 import { createPartNames } from './result-parts.js';
 
@@ -112,6 +113,7 @@ function fillToolbar(panel, parts) {
     button('sheet-demo', 'Load demo', loadDemo),
     parts.fileInput,
   );
+  mountSheetFiles(panel, parts.toolbar);
 }
 
 /**
