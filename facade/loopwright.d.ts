@@ -18,6 +18,8 @@ export {
   circuitBlackman,
   circuitAsymptoticGain,
   circuitAsymptoticGainCurrent,
+  circuitNoise,
+  circuitNoiseIntegral,
   functionCatalog,
   errorValues,
   Worksheet,

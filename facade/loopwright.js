@@ -41,6 +41,10 @@ export const circuitAsymptoticGainCurrent = call(glue.circuitAsymptoticGainCurre
   ['', options],
 ]);
 
+// The noise of a whole circuit (src/noise/circuit; docs/noise.md).
+export const circuitNoise = call(glue.circuitNoise, [['', options]]);
+export const circuitNoiseIntegral = call(glue.circuitNoiseIntegral, [['', options]]);
+
 /**
  * The batch tool's reader and writer (src/batch): CSV chunks in, result CSV out.
  * `compute` is a string or undefined; each chunk a Uint8Array of at most 16 MiB.

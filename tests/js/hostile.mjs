@@ -292,6 +292,23 @@ export function goodCalls() {
     circuitAsymptoticGainCurrent: [
       { circuit: FOLLOWER, controlled: 'E', source: 'Vs', element: 'R2' },
     ],
+    circuitNoise: [
+      {
+        circuit: FOLLOWER,
+        output: 'o',
+        frequenciesHz: [10, 1e3],
+        temperatureK: 300,
+        inputSource: 'Vs',
+      },
+    ],
+    circuitNoiseIntegral: [
+      {
+        circuit: DIVIDER,
+        output: { element: 'R2' },
+        bandHz: [0, 1e4],
+        signalRms: 1e-3,
+      },
+    ],
     functionCatalog: [],
     errorValues: [],
   };

@@ -8,6 +8,8 @@ import type {
   LoopAnalysis, FrequencySweep, LoopPoint, CompensationResult,
 } from 'loopwright';
 import { circuitTemplate, circuitSolve, circuitTwoPort, circuitSweep, circuitBlackman, circuitStageViews } from 'loopwright';
+import { circuitNoise, circuitNoiseIntegral } from 'loopwright';
+import type { CircuitNoiseDensities, CircuitNoiseBand } from 'loopwright';
 import initLite, { closedLoopGain as liteGain, stabilityMargins as liteMargins } from 'loopwright/lite';
 import type { StabilityMargins as LiteMargins } from 'loopwright/lite';
 import type {
@@ -91,4 +93,10 @@ export function circuits(): number {
     if (err.code === 'out_of_domain') return err.subject.length;
   }
   return v + template.elements.length + kind.length + beta.re + h.im[0] + z.tShort.re + views.input.relativeError + tp.af.relativeError;
+}
+
+export function noiseOfACircuit(json: string): number {
+  const d: CircuitNoiseDensities = circuitNoise({ circuit: json, output: { element: 'R1' }, frequenciesHz: [1e3], currentNoise: [{ element: 'I1', shot: true }] });
+  const b: CircuitNoiseBand = circuitNoiseIntegral({ circuit: json, output: 'a', bandHz: [10, 1e4], signalRms: 1 });
+  return d.total[0] + (d.sources.R1?.[0] ?? 0) + (d.noiseGainPeak?.value ?? 0) + b.totalRms + (b.snrDb ?? 0) + b.sources[0].share;
 }
