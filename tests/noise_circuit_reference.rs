@@ -165,3 +165,65 @@ fn band_integrals_match_scipy_quad() {
         }
     }
 }
+
+#[test]
+fn transimpedance_table_beside_numpy() {
+    // The photodiode transimpedance stage of noise_circuit.py: our densities and
+    // band contributions printed beside numpy's (`cargo test --test
+    // noise_circuit_reference transimpedance -- --nocapture`), each within the
+    // tolerances above.
+    let case = cases()
+        .into_iter()
+        .find(|c| c["name"] == "transimpedance")
+        .unwrap();
+    let c = read_circuit(&case["circuit"].to_string()).unwrap();
+    let freqs = numbers(&case["frequenciesHz"]);
+    let d = noise_densities(&c, &setup(&case), &freqs).unwrap();
+    let want_total = numbers(&case["total"]);
+    let ng = numbers(&case["noiseGain"]);
+    println!("f (Hz)      total ours   total numpy  |NG| ours  |NG| numpy   shares (ours): Rf, U1.en, Ipd");
+    for i in (0..freqs.len()).step_by(4) {
+        let share = |n: &str| {
+            d.sources
+                .iter()
+                .find(|s| s.name == n)
+                .map_or(0.0, |s| s.share[i])
+        };
+        println!(
+            "{:<10.3e}  {:.5e}  {:.5e}  {:9.4}  {:9.4}   {:5.1} % {:5.1} % {:5.1} %",
+            freqs[i],
+            d.total[i],
+            want_total[i],
+            d.noise_gain[i],
+            ng[i],
+            100.0 * share("Rf"),
+            100.0 * share("U1.en"),
+            100.0 * share("Ipd")
+        );
+        close(d.total[i], want_total[i], DENSITY_REL, "total");
+        close(d.noise_gain[i], ng[i], DENSITY_REL, "noise gain");
+    }
+    let band = numbers(&case["bandHz"]);
+    let n = band_noise(&c, &setup(&case), [band[0], band[1]]).unwrap();
+    let want = case["bandTotalRms"].as_f64().unwrap();
+    println!(
+        "band {}…{} Hz: total {:.6e} V rms (numpy {:.6e}), {} solves",
+        band[0], band[1], n.total_rms, want, n.evaluations
+    );
+    close(n.total_rms, want, BAND_REL, "band total");
+    for s in &n.sources {
+        let w = case["bandSourceRms"][&s.name].as_f64().unwrap();
+        println!(
+            "  {:<7} {:.6e} V rms (numpy {:.6e})  share {:6.2} %",
+            s.name,
+            s.rms,
+            w,
+            100.0 * s.share
+        );
+    }
+    let peak = d.noise_gain_peak.unwrap();
+    println!(
+        "noise gain peak {:.3} at {:.4e} Hz, {:.2}× its value at {} Hz",
+        peak.value, peak.frequency_hz, peak.over_lowest, freqs[0]
+    );
+}
