@@ -79,8 +79,8 @@ impl<'a> Adjoint<'a> {
         let rhs = selector.at(w);
         let lu = Lu::factor(n, mt.clone()).map_err(|_| {
             CircuitError::from(Error::Singular {
-                param: "output",
-                reason: "the circuit equations are singular at this frequency",
+                param: "frequencies_hz",
+                reason: "the circuit equations are singular at this frequency (a resonance without loss?)",
             })
         })?;
         let mut z = lu.solve(&rhs);

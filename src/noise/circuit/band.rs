@@ -141,12 +141,18 @@ impl Cache<'_, '_> {
 }
 
 /// The band's pieces: [0, f_high·1e-9] first when it starts at 0 Hz, then
-/// equal pieces in log f.
+/// equal pieces in log f (the whole band in f when f_high·1e-9 is subnormal).
 fn pieces(lo: f64, hi: f64) -> Vec<[f64; 2]> {
     let mut out = Vec::new();
     let mut start = lo;
     if lo == 0.0 {
         start = hi * 1e-9;
+        if start < f64::MIN_POSITIVE {
+            // A band so narrow that its log pieces would start below the normal
+            // range: one piece in f.
+            out.push([0.0, hi]);
+            return out;
+        }
         out.push([0.0, start]);
     }
     let decades = libm::log10(hi / start);
