@@ -27,6 +27,8 @@ export {
   circuitMargins,
   circuitNyquist,
   stageDesign,
+  circuitNoise,
+  circuitNoiseIntegral,
   functionCatalog,
   errorValues,
   Worksheet,

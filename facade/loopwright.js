@@ -53,6 +53,9 @@ export const circuitPoles = call(glue.circuitPoles, [['', options]]);
 export const circuitMargins = call(glue.circuitMargins, [['', options]]);
 export const circuitNyquist = call(glue.circuitNyquist, [['', options]]);
 export const stageDesign = call(glue.stageDesign, [['', options]]);
+// The noise of a whole circuit (src/noise/circuit; docs/noise.md).
+export const circuitNoise = call(glue.circuitNoise, [['', options]]);
+export const circuitNoiseIntegral = call(glue.circuitNoiseIntegral, [['', options]]);
 
 /**
  * The batch tool's reader and writer (src/batch): CSV chunks in, result CSV out.

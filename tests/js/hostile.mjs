@@ -309,6 +309,23 @@ export function goodCalls() {
     circuitMargins: [{ circuit: STAGE(), pointsPerDecade: 10 }],
     circuitNyquist: [{ circuit: STAGE(), pointsPerDecade: 10 }],
     stageDesign: [{ stage: STAGE(), part: 'riso', targetPhaseMarginDeg: 45 }],
+    circuitNoise: [
+      {
+        circuit: FOLLOWER,
+        output: 'o',
+        frequenciesHz: [10, 1e3],
+        temperatureK: 300,
+        inputSource: 'Vs',
+      },
+    ],
+    circuitNoiseIntegral: [
+      {
+        circuit: DIVIDER,
+        output: { element: 'R2' },
+        bandHz: [0, 1e4],
+        signalRms: 1e-3,
+      },
+    ],
     functionCatalog: [],
     errorValues: [],
   };

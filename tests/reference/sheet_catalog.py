@@ -459,6 +459,21 @@ TOLERANCES = {
 }
 
 
+# NOISE.CIRCUIT.*: R = 1 kΩ in parallel with C = 1 µF from node a to ground at 300 K.
+RC_DENSITY = '=NOISE.CIRCUIT.DENSITY("{""format"":""loopwright-circuit"",""version"":1,""elements"":[{""name"":""R1"",""kind"":""resistor"",""nodes"":[""a"",""0""],""value"":1000},{""name"":""C1"",""kind"":""capacitor"",""nodes"":[""a"",""0""],""value"":1e-6}]}"; "a"; 1 kHz)'
+RC_TOTAL = '=NOISE.CIRCUIT.TOTAL("{""format"":""loopwright-circuit"",""version"":1,""elements"":[{""name"":""R1"",""kind"":""resistor"",""nodes"":[""a"",""0""],""value"":1000},{""name"":""C1"",""kind"":""capacitor"",""nodes"":[""a"",""0""],""value"":1e-6}]}"; "a"; 0; 1 MHz)'
+RC_R, RC_C = M(1000), M("1e-6")
+RC_FC = 1 / (2 * mp.pi * RC_R * RC_C)
+CASES.update({
+    # Johnson-Nyquist density through the RC's impedance |Z| = R/sqrt(1 + (f/fc)^2).
+    RC_DENSITY: [mp.sqrt(4 * K_B * 300 * RC_R) / mp.sqrt(1 + (M(1000) / RC_FC) ** 2)],
+    # Over 0..1 MHz: 4kTR * fc * atan(1 MHz / fc), the single pole's noise bandwidth.
+    RC_TOTAL: [mp.sqrt(4 * K_B * 300 * RC_R * RC_FC * mp.atan(M(10**6) / RC_FC))],
+})
+TOLERANCES[RC_DENSITY] = ([1e-12], "one nodal solve of the RC")
+TOLERANCES[RC_TOTAL] = ([1e-8], "the core integrates the density to REL_TOL = 1e-9 per piece")
+
+
 def evaluate():
     cases = []
     for f, xs in CASES.items():

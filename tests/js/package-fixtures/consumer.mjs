@@ -719,6 +719,48 @@ assert.ok(catalog.functions.some((f) => f.name === 'FEEDBACK.GAIN'));
 ws.free();
 ws2.free();
 
+// Circuit noise: two 1 kΩ resistors to ground at 300 K are 500 Ω of thermal noise,
+// √(4kT·500) = 2.878 nV/√Hz (Johnson–Nyquist, k exact in the 2019 SI), each half the power.
+const pair = doc([
+  { name: 'R1', kind: 'resistor', nodes: ['a', '0'], value: 1e3 },
+  { name: 'R2', kind: 'resistor', nodes: ['a', '0'], value: 1e3 },
+]);
+const nd = lw.circuitNoise({ circuit: pair, output: 'a', frequenciesHz: [10, 1e6] });
+assert.ok(nd.total instanceof Float64Array && nd.sources.R1 instanceof Float64Array);
+near(nd.total[1], Math.sqrt(4 * 1.380649e-23 * 300 * 500), 1e-12, 'parallel pair noise');
+near(nd.shares.R2[0], 0.5, 1e-12, 'share');
+assert.equal(nd.kinds.R1, 'thermal');
+assert.equal(nd.noiseGainPeak, null);
+// Over 0…10 kHz: white noise, rms = density·√(10 kHz).
+const nb = lw.circuitNoiseIntegral({
+  circuit: pair,
+  output: 'a',
+  bandHz: [0, 1e4],
+  signalRms: 1e-3,
+});
+near(nb.totalRms, nd.total[0] * 100, 1e-8, 'band rms');
+near(nb.snrDb, 20 * Math.log10(1e-3 / nb.totalRms), 1e-12, 'SNR');
+assert.deepEqual(Object.keys(nb).sort(), [
+  'bandHz',
+  'evaluations',
+  'inputReferredRms',
+  'snrDb',
+  'sources',
+  'totalRms',
+]);
+assert.throws(
+  () => lw.circuitNoise({ circuit: pair, output: 'nowhere', frequenciesHz: [1] }),
+  (e) => e.code === 'unknown_name' && e.param === 'output' && e.subject === 'nowhere',
+);
+assert.throws(
+  () => lw.circuitNoise({ circuit: pair, output: 'a', frequenciesHz: [1], temperatureK: -5 }),
+  (e) => e.param === 'temperatureK',
+);
+assert.throws(
+  () => lw.circuitNoiseIntegral({ circuit: pair, output: 'a', bandHz: [10, 1] }),
+  (e) => e.param === 'bandHz',
+);
+
 console.log('consumer: all checks passed');
 
 // Errors must leave the module healthy: a thrown error may not leak wasm stack or

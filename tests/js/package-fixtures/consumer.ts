@@ -10,6 +10,8 @@ import type {
 import { circuitTemplate, circuitSolve, circuitTwoPort, circuitSweep, circuitBlackman, circuitStageViews } from 'loopwright';
 import { stageCircuit, amplifierOpenLoop, circuitLoopGain, circuitGain, circuitImpedance, circuitPoles } from 'loopwright';
 import type { StageDocument, StageCircuitResult, CircuitDocumentV2, ResponseSweep, ImpedanceSweep, CircuitPoles } from 'loopwright';
+import { circuitNoise, circuitNoiseIntegral } from 'loopwright';
+import type { CircuitNoiseDensities, CircuitNoiseBand } from 'loopwright';
 import initLite, { closedLoopGain as liteGain, stabilityMargins as liteMargins } from 'loopwright/lite';
 import type { StabilityMargins as LiteMargins } from 'loopwright/lite';
 import type {
@@ -112,4 +114,10 @@ export function stages(): number {
   const p: CircuitPoles = circuitPoles({ circuit: doc });
   const a: ResponseSweep = amplifierOpenLoop({ amplifier: doc.amplifier, frequenciesHz: [1] });
   return t.phaseDeg[0] + g.re[0] + z.magnitudeOhm[0] + p.poles.length + a.magnitudeDb[0] + circuit.elements.length;
+}
+
+export function noiseOfACircuit(json: string): number {
+  const d: CircuitNoiseDensities = circuitNoise({ circuit: json, output: { element: 'R1' }, frequenciesHz: [1e3], currentNoise: [{ element: 'I1', shot: true }] });
+  const b: CircuitNoiseBand = circuitNoiseIntegral({ circuit: json, output: 'a', bandHz: [10, 1e4], signalRms: 1 });
+  return d.total[0] + (d.sources.R1?.[0] ?? 0) + (d.noiseGainPeak?.value ?? 0) + b.totalRms + (b.snrDb ?? 0) + b.sources[0].share;
 }
