@@ -31,9 +31,14 @@ async function openSheet(context, address = env.url) {
 const cell = (page, a) => page.locator(`#cell-${a}`);
 const shown = async (page, a) => (await cell(page, a).textContent()).trim();
 
+/** The link the share button makes now (not one an earlier click left in the field). */
 async function shareLink(page) {
+  const before = await page.evaluate(() => document.querySelector('.sheet-share')?.value ?? '');
   await page.click('#sheet-share');
-  await page.waitForFunction(() => document.querySelector('.sheet-share').value !== '');
+  await page.waitForFunction((old) => {
+    const value = document.querySelector('.sheet-share').value;
+    return value !== '' && value !== old;
+  }, before);
   return page.inputValue('.sheet-share');
 }
 
