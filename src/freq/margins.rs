@@ -32,7 +32,7 @@
 
 use super::crossings::{scan, DEFAULT_POINTS_PER_DECADE};
 use super::model::FeedbackLoop;
-use super::poles::{closed_loop_poles, Verdict};
+use super::poles::{closed_loop_poles, ClosedLoopPoles, Verdict};
 use super::response::loop_log;
 use crate::error::Result;
 use alloc::vec::Vec;
@@ -145,6 +145,33 @@ pub fn stability_margins(l: &FeedbackLoop) -> Result<Margins> {
 /// assert_eq!(margins_with_density(&l, 3).unwrap_err().param(), "points_per_decade");
 /// ```
 pub fn margins_with_density(l: &FeedbackLoop, points_per_decade: u32) -> Result<Margins> {
+    margins_and_poles_with_density(l, points_per_decade).map(|(m, _)| m)
+}
+
+/// Stability margins with the default grid density, and the closed-loop poles that
+/// sign them: the same two results as [`stability_margins`] and
+/// [`closed_loop_poles`], for the price of computing the poles once.
+///
+/// # Errors
+/// As [`margins_with_density`].
+///
+/// # Example
+/// ```
+/// use loopwright::freq::{closed_loop_poles, margins_and_poles, stability_margins, FeedbackLoop, TransferModel};
+/// let a = TransferModel::constant(1e4).pole(1e3).pole(1e5).pole(1e6);
+/// let l = FeedbackLoop::with_constant_beta(a, 0.01).unwrap();
+/// let (m, p) = margins_and_poles(&l).unwrap();
+/// assert_eq!(m, stability_margins(&l).unwrap());
+/// assert_eq!(p, closed_loop_poles(&l).unwrap());
+/// ```
+pub fn margins_and_poles(l: &FeedbackLoop) -> Result<(Margins, ClosedLoopPoles)> {
+    margins_and_poles_with_density(l, DEFAULT_POINTS_PER_DECADE)
+}
+
+fn margins_and_poles_with_density(
+    l: &FeedbackLoop,
+    points_per_decade: u32,
+) -> Result<(Margins, ClosedLoopPoles)> {
     let (gain_list, phase_list) = scan(l, points_per_decade)?;
     let gains: Vec<Crossing> = gain_list
         .into_iter()
@@ -170,7 +197,8 @@ pub fn margins_with_density(l: &FeedbackLoop, points_per_decade: u32) -> Result<
             .copied()
             .min_by(|a, b| a.margin.total_cmp(&b.margin))
     };
-    let closed_loop = closed_loop_poles(l)?.verdict;
+    let poles = closed_loop_poles(l)?;
+    let closed_loop = poles.verdict;
     let signed = |c: Crossing| {
         if closed_loop == Verdict::Unstable {
             -c.margin
@@ -187,16 +215,19 @@ pub fn margins_with_density(l: &FeedbackLoop, points_per_decade: u32) -> Result<
     } else {
         MarginValidity::Meaningful
     };
-    Ok(Margins {
-        phase_margin_deg: pm.map(signed),
-        crossover_hz: pm.map(|c| c.freq_hz),
-        gain_margin_db: gm.map(signed),
-        phase_crossover_hz: gm.map(|c| c.freq_hz),
-        gain_crossings: gains,
-        phase_crossings: phases,
-        validity,
-        closed_loop,
-    })
+    Ok((
+        Margins {
+            phase_margin_deg: pm.map(signed),
+            crossover_hz: pm.map(|c| c.freq_hz),
+            gain_margin_db: gm.map(signed),
+            phase_crossover_hz: gm.map(|c| c.freq_hz),
+            gain_crossings: gains,
+            phase_crossings: phases,
+            validity,
+            closed_loop,
+        },
+        poles,
+    ))
 }
 
 /// The phase margin at one unity-gain crossing: the smallest phase change, lag

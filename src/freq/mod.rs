@@ -50,7 +50,9 @@ pub use closed_forms::{
 };
 pub use compensation::{dominant_pole_for_margin, max_beta_for_margin, Compensation};
 pub use crossings::{gain_crossings_hz, phase_crossings_hz, CROSSING_REL_TOL};
-pub use margins::{margins_with_density, stability_margins, Crossing, MarginValidity, Margins};
+pub use margins::{
+    margins_and_poles, margins_with_density, stability_margins, Crossing, MarginValidity, Margins,
+};
 pub use model::{ComplexPair, FeedbackLoop, TransferModel};
 pub use poles::{closed_loop_poles, ClosedLoopPoles, Pole, Verdict};
 pub use poly::{

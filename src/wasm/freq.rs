@@ -75,7 +75,11 @@ export interface StabilityMargins {
   validity: MarginValidity;
   /** The closed-loop verdict from the poles, which signs the worst margins. */
   closedLoop: StabilityVerdict;
+  /** The poles themselves, when asked for with `{ closedLoopPoles: true }`. */
+  closedLoopPoles?: ClosedLoopPoles;
 }
+/** Options of `stabilityMargins`: `closedLoopPoles` (default false) adds the poles that sign the margins to the result. */
+export interface MarginOptions { closedLoopPoles?: boolean; }
 export type StabilityVerdict = "stable" | "marginal" | "unstable";
 /** A closed-loop pole in rad/s with its natural frequency (Hz), damping and Q (null for a real pole). */
 export interface ClosedLoopPole { re: number; im: number; naturalHz: number; zeta: number; q: number | null; }
@@ -416,15 +420,40 @@ pub fn loop_at(
 }
 
 /// Stability margins: `{phaseMarginDeg, crossoverHz, gainMarginDb,
-/// phaseCrossoverHz, gainCrossings, phaseCrossings, validity}`; a margin is
-/// `null` when unbounded (no crossover of that kind).
+/// phaseCrossoverHz, gainCrossings, phaseCrossings, validity, closedLoop}`; a margin
+/// is `null` when unbounded (no crossover of that kind). With `{closedLoopPoles:
+/// true}` the result also carries `closedLoopPoles` (as `closedLoopPoles()` returns
+/// them): the margins are signed by those poles, so asking here computes them once.
 #[wasm_bindgen(js_name = stabilityMargins, unchecked_return_type = "StabilityMargins")]
 pub fn stability_margins(
     #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] amplifier: JsValue,
     #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "MarginOptions | undefined")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&amplifier, &beta)?;
-    to_js(&throw(fq::stability_margins(&l))?)
+    let with_poles = !options.is_undefined()
+        && super::options::read::<MarginOptions>("", &options)?.closed_loop_poles;
+    if !with_poles {
+        return to_js(&throw(fq::stability_margins(&l))?);
+    }
+    let (m, p) = throw(fq::margins_and_poles(&l))?;
+    let obj = to_js(&m)?;
+    js_sys::Reflect::set(&obj, &"closedLoopPoles".into(), &to_js(&p)?)?;
+    Ok(obj)
+}
+
+/// The options of `stabilityMargins` (its third argument, which may be left out).
+struct MarginOptions {
+    closed_loop_poles: bool,
+}
+
+impl FromOptions for MarginOptions {
+    const FIELDS: &'static [&'static str] = &["closedLoopPoles"];
+    fn from_fields(f: &mut Fields) -> Self {
+        MarginOptions {
+            closed_loop_poles: f.flag_or("closedLoopPoles", false),
+        }
+    }
 }
 
 /// Closed-loop poles: `{poles: [{re, im, naturalHz, zeta, q}], verdict, minZeta,

@@ -231,6 +231,12 @@ impl Fields {
         self.value(key, true, whole).flatten()
     }
 
+    /// true or false, `default` when left out.
+    pub(crate) fn flag_or(&mut self, key: &str, default: bool) -> bool {
+        self.value(key, false, flag)
+            .map_or(default, |v| v.unwrap_or(default))
+    }
+
     /// A required string.
     pub(crate) fn text(&mut self, key: &str) -> String {
         self.required(key, text).unwrap_or_default()
@@ -379,6 +385,13 @@ fn whole(v: Plain) -> Result<u32, (String, Failure)> {
     }
 }
 
+fn flag(v: Plain) -> Result<bool, (String, Failure)> {
+    match v {
+        Plain::Bool(b) => Ok(b),
+        other => Err((String::new(), wrong(&other, "true or false"))),
+    }
+}
+
 fn text(v: Plain) -> Result<String, (String, Failure)> {
     match v {
         Plain::Text(t) => Ok(t),
@@ -427,15 +440,17 @@ pub(crate) enum Plain {
 }
 
 impl Plain {
+    /// Each test is a call into JS, so the common kinds are tested first (a number
+    /// field costs one call).
     fn from_js(v: &JsValue) -> Plain {
-        if v.is_null() || v.is_undefined() {
-            Plain::Null
-        } else if let Some(b) = v.as_bool() {
-            Plain::Bool(b)
-        } else if let Some(x) = v.as_f64() {
+        if let Some(x) = v.as_f64() {
             Plain::Number(x)
         } else if let Some(t) = v.as_string() {
             Plain::Text(t)
+        } else if v.is_null() || v.is_undefined() {
+            Plain::Null
+        } else if let Some(b) = v.as_bool() {
+            Plain::Bool(b)
         } else if let Some(list) = v.dyn_ref::<js_sys::Array>() {
             Plain::List(list.iter().map(|x| Plain::from_js(&x)).collect())
         } else if let Some(list) = v.dyn_ref::<js_sys::Float64Array>() {
