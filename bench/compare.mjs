@@ -10,8 +10,9 @@
 // case, the median of the per-run medians and the range of the per-run ratios (the
 // noise a reader should allow for).
 
+import { execFileSync } from 'node:child_process';
 import { writeFileSync } from 'node:fs';
-import { cpus, platform, release } from 'node:os';
+import { cpus, loadavg, platform, release } from 'node:os';
 import { join, dirname, resolve } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { timeInterleaved, formatNs } from './harness.mjs';
@@ -51,8 +52,21 @@ for (const c of now.cases) {
   rows.push([c.area, c.what, a, b, ratios, '']);
 }
 
+const commit = (dir) => {
+  try {
+    return execFileSync('git', ['-C', dir, 'rev-parse', '--short', 'HEAD'], {
+      encoding: 'utf8',
+    }).trim();
+  } catch {
+    return 'unknown commit';
+  }
+};
 const lines = [
-  `Base: ${base}; this: ${root}. Machine: ${cpus().length} × ${cpus()[0]?.model ?? 'CPU'}, ${platform()} ${release()}, Node ${process.version}.`,
+  '## Benchmarks: base beside this checkout',
+  '',
+  `Produced by \`node bench/compare.mjs ${base} --runs ${runs}\` (\`make bench-compare\`), both packages built with \`make package\`.`,
+  `Base: ${base} at ${commit(base)}; this: ${commit(root)} (plus any uncommitted changes).`,
+  `Machine: ${cpus().length} × ${cpus()[0]?.model ?? 'CPU'}, ${platform()} ${release()}, Node ${process.version}, load average ${loadavg()[0].toFixed(1)} at the end of the run.`,
   `${runs} interleaved runs per case (each the median of its samples); time = median of the runs; ratio = this ÷ base, median and range over the runs.`,
   '',
   '| area | case | base | this | this ÷ base | range over runs |',
