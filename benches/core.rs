@@ -143,3 +143,73 @@ fn stage_circuit_poles(bencher: divan::Bencher) {
     let c = stage_circuit();
     bencher.bench(|| loopwright::stage::poles::circuit_poles(black_box(&c)).map(|p| p.poles.len()));
 }
+
+/// The circuit document of [`stage_circuit`] (version 2: an amplifier element).
+fn circuit_document() -> String {
+    loopwright::circuit::json::write_circuit(&stage_circuit())
+}
+
+/// A sheet document of 10 000 inputs: numbers with prefixes and formulas over
+/// the column beside them (the shape of the 10 000-cell recalculation case).
+fn sheet_document() -> String {
+    let mut s = loopwright::sheet::Sheet::new();
+    let mut edits: Vec<(loopwright::sheet::CellRef, String)> = Vec::new();
+    for row in 0..5000u32 {
+        edits.push((
+            loopwright::sheet::CellRef { row, col: 0 },
+            format!("{}k7", row % 97 + 1),
+        ));
+        edits.push((
+            loopwright::sheet::CellRef { row, col: 1 },
+            format!("=FEEDBACK.GAIN(A{}; 0.01)*2", row + 1),
+        ));
+    }
+    let borrowed: Vec<_> = edits.iter().map(|(c, t)| (*c, t.as_str())).collect();
+    s.set_many(&borrowed).expect("a valid sheet");
+    s.save_document()
+}
+
+#[divan::bench]
+fn document_circuit_read(bencher: divan::Bencher) {
+    let text = circuit_document();
+    bencher.bench(|| loopwright::circuit::json::read_circuit(black_box(&text)).is_ok());
+}
+
+#[divan::bench]
+fn document_circuit_write(bencher: divan::Bencher) {
+    let c = stage_circuit();
+    bencher.bench(|| loopwright::circuit::json::write_circuit(black_box(&c)).len());
+}
+
+/// The JSON reading alone, by the crate's reader.
+#[divan::bench]
+fn document_circuit_parse_json(bencher: divan::Bencher) {
+    let text = circuit_document();
+    bencher.bench(|| loopwright::json::parse(black_box(&text)).is_ok());
+}
+
+/// The same text by serde_json (float_roundtrip, as the documents used before
+/// `src/json/`), for comparison.
+#[divan::bench]
+fn document_circuit_parse_serde_json(bencher: divan::Bencher) {
+    let text = circuit_document();
+    bencher.bench(|| serde_json::from_str::<serde_json::Value>(black_box(&text)).is_ok());
+}
+
+#[divan::bench(sample_count = 20)]
+fn document_sheet_read_10k(bencher: divan::Bencher) {
+    let text = sheet_document();
+    bencher.bench(|| loopwright::sheet::from_document(black_box(&text)).map(|c| c.cells.len()));
+}
+
+#[divan::bench(sample_count = 20)]
+fn document_sheet_parse_json_10k(bencher: divan::Bencher) {
+    let text = sheet_document();
+    bencher.bench(|| loopwright::json::parse(black_box(&text)).is_ok());
+}
+
+#[divan::bench(sample_count = 20)]
+fn document_sheet_parse_serde_json_10k(bencher: divan::Bencher) {
+    let text = sheet_document();
+    bencher.bench(|| serde_json::from_str::<serde_json::Value>(black_box(&text)).is_ok());
+}

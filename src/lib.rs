@@ -35,6 +35,7 @@ pub mod error;
 pub mod feedback;
 mod float;
 pub mod freq;
+pub mod json;
 pub mod network;
 pub mod noise;
 pub mod notation;

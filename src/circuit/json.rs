@@ -24,22 +24,23 @@
 //! [`crate::stage::amplifier_json`]) and `tolerance` and `tempco` on any
 //! element; a circuit without them is written as version 1.
 //!
-//! Parsing uses `serde_json` with default features off, `alloc` on (no_std) and
-//! `float_roundtrip` (numbers read back to the same f64).
+//! Reading and writing go through the crate's one JSON reader and writer
+//! ([`crate::json`]); the writer keeps the bytes these documents have always
+//! had (members in code-point order of their names, `4700.0`).
 
 use super::error::{CircuitError, CircuitResult, Name, WithName};
 use super::netlist::{Circuit, Control, ControlSpec, ElementKind, MAX_ELEMENTS, MAX_NODES};
 use super::tolerance::{Tolerance, DISTRIBUTION_NAMES};
 use super::value::parse_value_in;
 use crate::error::Error;
+use crate::json::{self, Json, JsonError, JsonWriter, Members, NumberText};
 use crate::notation::Unit;
 use crate::stage::amplifier_json::{
-    at_element, number as amp_number, read_amplifier, write_amplifier,
+    at_element, number as amp_number, read_amplifier, reject_unknown, write_amplifier, Object,
 };
 use crate::stage::SpreadPoint;
 use alloc::string::String;
 use alloc::vec::Vec;
-use serde_json::{Map, Value};
 
 /// The `format` field's value.
 pub const FORMAT: &str = "loopwright-circuit";
@@ -71,8 +72,20 @@ fn err(error: Error) -> CircuitError {
     CircuitError::from(error)
 }
 
-fn text<'a>(v: Option<&'a Value>, param: &'static str, name: Name) -> CircuitResult<&'a str> {
-    v.and_then(Value::as_str).ok_or(CircuitError::new(
+/// The error of a text that is not JSON: param `json`, the name gives
+/// line:column of the first character that is wrong.
+pub(crate) fn syntax_error(e: &JsonError) -> CircuitError {
+    CircuitError::named(
+        Error::OutOfDomain {
+            param: "json",
+            requirement: "must be valid JSON text (the name gives line:column)",
+        },
+        &alloc::format!("{}:{}", e.line, e.col),
+    )
+}
+
+fn text<'a>(v: Option<&'a Json>, param: &'static str, name: Name) -> CircuitResult<&'a str> {
+    v.and_then(Json::as_str).ok_or(CircuitError::new(
         Error::OutOfDomain {
             param,
             requirement: "must be a text",
@@ -82,7 +95,7 @@ fn text<'a>(v: Option<&'a Value>, param: &'static str, name: Name) -> CircuitRes
 }
 
 fn pair<'a>(
-    v: Option<&'a Value>,
+    v: Option<&'a Json>,
     param: &'static str,
     name: Name,
 ) -> CircuitResult<(&'a str, &'a str)> {
@@ -93,7 +106,7 @@ fn pair<'a>(
         },
         name,
     );
-    match v.and_then(Value::as_array).map(Vec::as_slice) {
+    match v.and_then(Json::as_array) {
         Some([a, b]) => Ok((a.as_str().ok_or(bad)?, b.as_str().ok_or(bad)?)),
         _ => Err(bad),
     }
@@ -113,16 +126,14 @@ fn declared_unit(kind: ElementKind) -> Option<Unit> {
 }
 
 fn number(
-    v: Option<&Value>,
+    v: Option<&Json>,
     param: &'static str,
     name: Name,
     unit: Option<Unit>,
 ) -> CircuitResult<f64> {
     match v {
-        Some(Value::Number(n)) => n
-            .as_f64()
-            .ok_or(CircuitError::new(Error::NotFinite { param }, name)),
-        Some(Value::String(s)) => parse_value_in(param, s, unit).named(name),
+        Some(Json::Number(n)) => Ok(n.value),
+        Some(Json::String(s)) => parse_value_in(param, s, unit).named(name),
         _ => Err(CircuitError::new(
             Error::OutOfDomain {
                 param,
@@ -160,15 +171,7 @@ pub fn read_circuit(json: &str) -> CircuitResult<Circuit> {
             limit: MAX_JSON_LEN as u64,
         }));
     }
-    let doc: Value = serde_json::from_str(json).map_err(|e| {
-        CircuitError::named(
-            Error::OutOfDomain {
-                param: "json",
-                requirement: "must be valid JSON text (the name gives line:column)",
-            },
-            &alloc::format!("{}:{}", e.line(), e.column()),
-        )
-    })?;
+    let doc = json::parse(json).map_err(|e| syntax_error(&e))?;
     let obj = doc.as_object().ok_or(err(Error::OutOfDomain {
         param: "json",
         requirement: "must be a JSON object",
@@ -178,13 +181,13 @@ pub fn read_circuit(json: &str) -> CircuitResult<Circuit> {
         &["format", "version", "nodes", "elements"],
         DOCUMENT_FIELDS,
     )?;
-    if obj.get("format").and_then(Value::as_str) != Some(FORMAT) {
+    if obj.field("format").and_then(Json::as_str) != Some(FORMAT) {
         return Err(err(Error::UnknownName {
             param: "format",
             expected: FORMAT,
         }));
     }
-    let version = match obj.get("version").and_then(Value::as_u64) {
+    let version = match obj.field("version").and_then(Json::as_u64) {
         Some(v @ 1..=VERSION) => v,
         _ => return Err(err(Error::OutOfDomain {
             param: "version",
@@ -192,7 +195,7 @@ pub fn read_circuit(json: &str) -> CircuitResult<Circuit> {
                 "must be 1 or 2, the versions of the loopwright-circuit format this reader knows",
         })),
     };
-    let mut circuit = match obj.get("nodes") {
+    let mut circuit = match obj.field("nodes") {
         None => Circuit::new(),
         Some(list) => {
             let list = list.as_array().ok_or(err(Error::OutOfDomain {
@@ -216,8 +219,8 @@ pub fn read_circuit(json: &str) -> CircuitResult<Circuit> {
         }
     };
     let elements =
-        obj.get("elements")
-            .and_then(Value::as_array)
+        obj.field("elements")
+            .and_then(Json::as_array)
             .ok_or(err(Error::OutOfDomain {
                 param: "elements",
                 requirement: "must be a list of elements",
@@ -234,26 +237,7 @@ pub fn read_circuit(json: &str) -> CircuitResult<Circuit> {
     Ok(circuit)
 }
 
-fn reject_unknown(
-    obj: &Map<String, Value>,
-    known: &[&str],
-    expected: &'static str,
-) -> CircuitResult<()> {
-    for key in obj.keys() {
-        if !known.contains(&key.as_str()) {
-            return Err(CircuitError::named(
-                Error::UnknownName {
-                    param: "field",
-                    expected,
-                },
-                key,
-            ));
-        }
-    }
-    Ok(())
-}
-
-fn read_element(circuit: &mut Circuit, e: &Value, index: usize, version: u64) -> CircuitResult<()> {
+fn read_element(circuit: &mut Circuit, e: &Json, index: usize, version: u64) -> CircuitResult<()> {
     let place = Name::truncated(&alloc::format!("elements[{index}]"));
     let obj = e.as_object().ok_or(CircuitError::new(
         Error::OutOfDomain {
@@ -262,13 +246,11 @@ fn read_element(circuit: &mut Circuit, e: &Value, index: usize, version: u64) ->
         },
         place,
     ))?;
-    let name_text = text(obj.get("name"), "name", place)?;
+    let name_text = text(obj.field("name"), "name", place)?;
     let name = Name::new(name_text)?;
     reject_unknown(obj, &ELEMENT_KEYS, ELEMENT_FIELDS)?;
-    let kind = ElementKind::from_name(text(obj.get("kind"), "kind", name)?).named(name)?;
-    if version < 2
-        && (kind == ElementKind::Amplifier || V2_KEYS.iter().any(|k| obj.contains_key(*k)))
-    {
+    let kind = ElementKind::from_name(text(obj.field("kind"), "kind", name)?).named(name)?;
+    if version < 2 && (kind == ElementKind::Amplifier || V2_KEYS.iter().any(|k| obj.has(k))) {
         return Err(CircuitError::new(
             Error::OutOfDomain {
                 param: "version",
@@ -278,13 +260,13 @@ fn read_element(circuit: &mut Circuit, e: &Value, index: usize, version: u64) ->
             name,
         ));
     }
-    let (a, b) = pair(obj.get("nodes"), "nodes", name)?;
+    let (a, b) = pair(obj.field("nodes"), "nodes", name)?;
     if kind == ElementKind::Amplifier {
         read_amplifier_element(circuit, obj, name, (a, b))?;
         return read_spread(circuit, obj, name);
     }
     for key in ["model", "spreadPoint"] {
-        if obj.contains_key(key) {
+        if obj.has(key) {
             return Err(CircuitError::new(
                 Error::OutOfDomain {
                     param: "model",
@@ -294,12 +276,12 @@ fn read_element(circuit: &mut Circuit, e: &Value, index: usize, version: u64) ->
             ));
         }
     }
-    let value = number(obj.get("value"), "value", name, declared_unit(kind))?;
-    let value_im = match obj.get("valueIm") {
+    let value = number(obj.field("value"), "value", name, declared_unit(kind))?;
+    let value_im = match obj.field("valueIm") {
         None => 0.0,
         v => number(v, "valueIm", name, declared_unit(kind))?,
     };
-    let control = match (obj.get("control"), obj.get("controlElement")) {
+    let control = match (obj.field("control"), obj.field("controlElement")) {
         (Some(_), Some(_)) => {
             return Err(CircuitError::new(
                 Error::OutOfDomain {
@@ -330,12 +312,12 @@ fn read_element(circuit: &mut Circuit, e: &Value, index: usize, version: u64) ->
 
 fn read_amplifier_element(
     circuit: &mut Circuit,
-    obj: &Map<String, Value>,
+    obj: &Object,
     name: Name,
     (out, reference): (&str, &str),
 ) -> CircuitResult<()> {
     for key in ["value", "valueIm", "controlElement"] {
-        if obj.contains_key(key) {
+        if obj.has(key) {
             return Err(CircuitError::new(
                 Error::OutOfDomain {
                     param: "value",
@@ -345,8 +327,8 @@ fn read_amplifier_element(
             ));
         }
     }
-    let (plus, minus) = pair(obj.get("control"), "control", name)?;
-    let model = obj.get("model").ok_or(CircuitError::new(
+    let (plus, minus) = pair(obj.field("control"), "control", name)?;
+    let model = obj.field("model").ok_or(CircuitError::new(
         Error::OutOfDomain {
             param: "model",
             requirement: "an amplifier needs its model",
@@ -354,23 +336,23 @@ fn read_amplifier_element(
         name,
     ))?;
     let model = read_amplifier(model).map_err(|e| at_element(e, name))?;
-    let point = match obj.get("spreadPoint") {
+    let point = match obj.field("spreadPoint") {
         None => SpreadPoint::Typ,
         Some(p) => SpreadPoint::from_name("spreadPoint", p.as_str().unwrap_or("")).named(name)?,
     };
     circuit.amplifier(name.as_str(), out, reference, plus, minus, model, point)
 }
 
-fn read_spread(circuit: &mut Circuit, obj: &Map<String, Value>, name: Name) -> CircuitResult<()> {
+fn read_spread(circuit: &mut Circuit, obj: &Object, name: Name) -> CircuitResult<()> {
     let tolerance = obj
-        .get("tolerance")
+        .field("tolerance")
         .map(|t| {
             let value = circuit.element(name.as_str())?.value();
             read_tolerance(t, value).map_err(|e| at_element(e, name))
         })
         .transpose()?;
     let tempco = obj
-        .get("tempco")
+        .field("tempco")
         .map(|t| amp_number(t, "tempco").named(name))
         .transpose()?;
     if tolerance.is_some() || tempco.is_some() {
@@ -381,14 +363,14 @@ fn read_spread(circuit: &mut Circuit, obj: &Map<String, Value>, name: Name) -> C
 
 /// `{"distribution": "uniform", "percent": p}`, `{"distribution": "normal",
 /// "percent": p, "sigmas": k}` or `{"distribution": "limits", "min", "typ"?, "max"}`.
-fn read_tolerance(v: &Value, value: f64) -> CircuitResult<Tolerance> {
+fn read_tolerance(v: &Json, value: f64) -> CircuitResult<Tolerance> {
     const P: &str = "tolerance";
     let o = v.as_object().ok_or(Error::OutOfDomain {
         param: P,
         requirement: "must be an object with a distribution",
     })?;
     let field = |k: &str| -> CircuitResult<f64> {
-        Ok(o.get(k)
+        Ok(o.field(k)
             .map(|x| amp_number(x, P))
             .transpose()?
             .ok_or(Error::OutOfDomain {
@@ -397,7 +379,7 @@ fn read_tolerance(v: &Value, value: f64) -> CircuitResult<Tolerance> {
                     "is missing a field its distribution needs (percent; sigmas; min and max)",
             })?)
     };
-    let dist = o.get("distribution").and_then(Value::as_str).unwrap_or("");
+    let dist = o.field("distribution").and_then(Json::as_str).unwrap_or("");
     let (t, keys): (Tolerance, &[&str]) = match dist {
         "uniform" => (
             Tolerance::Uniform {
@@ -414,11 +396,7 @@ fn read_tolerance(v: &Value, value: f64) -> CircuitResult<Tolerance> {
         ),
         "limits" => {
             let (min, max) = (field("min")?, field("max")?);
-            let typ = if o.contains_key("typ") {
-                field("typ")?
-            } else {
-                value
-            };
+            let typ = if o.has("typ") { field("typ")? } else { value };
             (
                 Tolerance::Limits { min, typ, max },
                 &["distribution", "min", "typ", "max"],
@@ -435,93 +413,79 @@ fn read_tolerance(v: &Value, value: f64) -> CircuitResult<Tolerance> {
     Ok(t)
 }
 
-/// Write a circuit as a version-1 document (compact JSON, elements in order).
+/// Write a circuit document: version 1, or 2 when an element needs it (an
+/// amplifier, a tolerance or a tempco). Canonical: compact JSON, elements in
+/// order, the members of each object in code-point order of their names,
+/// numbers as [`NumberText::WithFraction`] (`4700.0`, `1e-7`): the bytes these
+/// documents have always been written in.
 ///
 /// `nodes` is written only when the circuit declared its nodes
 /// ([`Circuit::declares_nodes`]), so reading the text gives back an equal circuit.
 pub fn write_circuit(c: &Circuit) -> String {
-    let node_name = |i: usize| Value::from(c.nodes().get(i).map(|n| n.as_str()).unwrap_or("0"));
-    let mut doc = Map::new();
-    doc.insert("format".into(), Value::from(FORMAT));
+    let node_name = |i: usize| Json::from(c.nodes().get(i).map_or("0", |n| n.as_str()));
     let v2 = c
         .elements()
         .iter()
         .any(|e| e.amplifier().is_some() || e.tolerance().is_some() || e.tempco_ppm().is_some());
-    doc.insert("version".into(), Value::from(if v2 { VERSION } else { 1 }));
+    let mut doc: Vec<(String, Json)> = alloc::vec![
+        ("format".into(), Json::from(FORMAT)),
+        ("version".into(), Json::whole(if v2 { VERSION } else { 1 })),
+    ];
     if c.declares_nodes() {
-        doc.insert(
-            "nodes".into(),
-            Value::Array(
-                c.nodes()
-                    .iter()
-                    .skip(1)
-                    .map(|n| Value::from(n.as_str()))
-                    .collect(),
-            ),
-        );
+        let names = c.nodes().iter().skip(1).map(|n| Json::from(n.as_str()));
+        doc.push(("nodes".into(), Json::Array(names.collect())));
     }
     let mut list = Vec::with_capacity(c.elements().len());
     for e in c.elements() {
-        let mut m = Map::new();
-        m.insert("name".into(), Value::from(e.name().as_str()));
-        m.insert("kind".into(), Value::from(e.kind().name()));
         let [a, b] = e.nodes();
-        m.insert(
-            "nodes".into(),
-            Value::Array(alloc::vec![node_name(a), node_name(b)]),
-        );
+        let mut m: Vec<(String, Json)> = alloc::vec![
+            ("name".into(), Json::from(e.name().as_str())),
+            ("kind".into(), Json::from(e.kind().name())),
+            (
+                "nodes".into(),
+                Json::Array(alloc::vec![node_name(a), node_name(b)]),
+            ),
+        ];
         match e.control() {
-            Control::Nodes([p, n]) => {
-                m.insert(
-                    "control".into(),
-                    Value::Array(alloc::vec![node_name(p), node_name(n)]),
-                );
-            }
-            Control::Element(n) => {
-                m.insert("controlElement".into(), Value::from(n.as_str()));
-            }
+            Control::Nodes([p, n]) => m.push((
+                "control".into(),
+                Json::Array(alloc::vec![node_name(p), node_name(n)]),
+            )),
+            Control::Element(n) => m.push(("controlElement".into(), Json::from(n.as_str()))),
             Control::None => {}
         }
         if let Some(part) = e.amplifier() {
-            m.insert("model".into(), write_amplifier(&part.model));
-            m.insert("spreadPoint".into(), Value::from(part.point.name()));
+            m.push(("model".into(), write_amplifier(&part.model)));
+            m.push(("spreadPoint".into(), Json::from(part.point.name())));
         } else {
-            m.insert("value".into(), Value::from(e.value()));
+            m.push(("value".into(), Json::from(e.value())));
         }
         if e.kind() == ElementKind::Admittance {
-            m.insert("valueIm".into(), Value::from(e.value_im()));
+            m.push(("valueIm".into(), Json::from(e.value_im())));
         }
         if let Some(t) = e.tolerance() {
-            m.insert("tolerance".into(), write_tolerance(t));
+            m.push(("tolerance".into(), write_tolerance(t)));
         }
         if let Some(tc) = e.tempco_ppm() {
-            m.insert("tempco".into(), Value::from(tc));
+            m.push(("tempco".into(), Json::from(tc)));
         }
-        list.push(Value::Object(m));
+        list.push(Json::sorted_object(m));
     }
-    doc.insert("elements".into(), Value::Array(list));
-    // A Value built from strings and finite numbers always serializes.
-    serde_json::to_string(&Value::Object(doc)).unwrap_or_default()
+    doc.push(("elements".into(), Json::Array(list)));
+    let mut w = JsonWriter::new().with_numbers(NumberText::WithFraction);
+    w.value(&Json::sorted_object(doc));
+    w.finish()
 }
 
-fn write_tolerance(t: Tolerance) -> Value {
-    let mut o = Map::new();
-    o.insert("distribution".into(), Value::from(t.name()));
-    match t {
-        Tolerance::Uniform { percent } => {
-            o.insert("percent".into(), Value::from(percent));
-        }
-        Tolerance::Normal { percent, sigmas } => {
-            o.insert("percent".into(), Value::from(percent));
-            o.insert("sigmas".into(), Value::from(sigmas));
-        }
-        Tolerance::Limits { min, typ, max } => {
-            o.insert("min".into(), Value::from(min));
-            o.insert("typ".into(), Value::from(typ));
-            o.insert("max".into(), Value::from(max));
-        }
-    }
-    Value::Object(o)
+fn write_tolerance(t: Tolerance) -> Json {
+    let mut o: Vec<(String, Json)> = alloc::vec![("distribution".into(), Json::from(t.name()))];
+    let numbers: &[(&str, f64)] = match t {
+        Tolerance::Uniform { percent } => &[("percent", percent)],
+        Tolerance::Normal { percent, sigmas } => &[("percent", percent), ("sigmas", sigmas)],
+        Tolerance::Limits { min, typ, max } => &[("min", min), ("typ", typ), ("max", max)],
+    };
+    o.extend(numbers.iter().map(|(k, v)| ((*k).into(), Json::from(*v))));
+    Json::sorted_object(o)
 }
 
 #[cfg(test)]
@@ -562,6 +526,34 @@ mod tests {
         let c = read_circuit(&strict).unwrap();
         assert!(c.declares_nodes());
         assert_eq!(read_circuit(&write_circuit(&c)).unwrap(), c);
+    }
+
+    #[test]
+    fn the_writer_is_canonical_in_the_documented_order() {
+        // Member order and number text as docs/circuit.md states them.
+        let doc = r#"{"version":2,"elements":[{"value":"4k7","nodes":["a","0"],"kind":"resistor","name":"R1","tempco":-0.5,
+            "tolerance":{"percent":1,"distribution":"uniform"}},
+            {"controlElement":"R1","value":1e-7,"kind":"cccs","nodes":["a","0"],"name":"F1"}],"format":"loopwright-circuit"}"#;
+        let want = concat!(
+            r#"{"elements":["#,
+            r#"{"kind":"resistor","name":"R1","nodes":["a","0"],"tempco":-0.5,"#,
+            r#""tolerance":{"distribution":"uniform","percent":1.0},"value":4700.0},"#,
+            r#"{"controlElement":"R1","kind":"cccs","name":"F1","nodes":["a","0"],"value":1e-7}],"#,
+            r#""format":"loopwright-circuit","version":2}"#
+        );
+        let c = read_circuit(doc).unwrap();
+        assert_eq!(write_circuit(&c), want);
+        assert_eq!(write_circuit(&read_circuit(want).unwrap()), want);
+    }
+
+    #[test]
+    fn a_field_given_twice_is_refused_by_name() {
+        let x =
+            read_circuit(&DOC.replace("\"value\":1e5", "\"value\":1e5,\"value\":2")).unwrap_err();
+        assert_eq!((x.name.as_str(), x.error.param()), ("value", "field"));
+        // `version` must be written as a whole number.
+        let x = read_circuit(&DOC.replace("\"version\":1", "\"version\":1.0")).unwrap_err();
+        assert_eq!(x.error.param(), "version");
     }
 
     #[test]

@@ -35,11 +35,11 @@
 //! apostrophe in front (`'=A1`), unless it is a plain decimal number.
 
 use super::address::{CellRef, Range};
-use super::json::{self, Json, JsonWriter};
 use super::sheet::{valid_name, Sheet, MAX_CELLS, MAX_INPUT_BYTES, MAX_NAMES};
 use super::value::Value;
 use crate::csv;
 use crate::error::{Error, Result};
+use crate::json::{self, Json, JsonWriter};
 use alloc::collections::BTreeSet;
 use alloc::format;
 use alloc::string::String;
@@ -224,11 +224,11 @@ pub fn from_document(text: &str) -> core::result::Result<Contents, DocumentError
         match (key.as_str(), value) {
             ("format", Json::String(f)) if f == FORMAT => format_ok = true,
             ("format", _) => return refuse(format!("\"format\" must be \"{FORMAT}\"; this is not a loopwright sheet")),
-            ("version", Json::Number(v)) if *v == f64::from(VERSION) => version_ok = true,
-            ("version", Json::Number(v)) if *v > f64::from(VERSION) && crate::float::trunc(*v) == *v => {
+            ("version", Json::Number(n)) if n.value == f64::from(VERSION) => version_ok = true,
+            ("version", Json::Number(n)) if n.value > f64::from(VERSION) && crate::float::trunc(n.value) == n.value => {
                 return refuse(format!(
                     "it was written by a newer loopwright (document version {}); this one reads version {VERSION}",
-                    super::value::format_number(*v)
+                    super::value::format_number(n.value)
                 ))
             }
             ("version", _) => return refuse(format!("\"version\" must be the whole number {VERSION}")),
@@ -471,6 +471,8 @@ mod tests {
             ("{\"format\":\"loopwright-sheet\",\"version\":1,\"cells\":{},\"names\":{\"B2\":\"A1\"}}", "not a valid cell name"),
             ("{\"format\":\"loopwright-sheet\",\"version\":1,\"cells\":{},\"names\":{\"g\":\"x\"}}", "must refer to a cell"),
             ("{\"format\":\"loopwright-sheet\",\"version\":1,\"cells\":{}", "not valid JSON at line 1"),
+            // The path of the value being read when the text broke.
+            ("{\"format\":\"loopwright-sheet\",\"version\":1,\"cells\":{\"B2\":\"=1\n\"}}", "line 1, column 59 (in cells.B2): a control character inside a string"),
         ];
         for (text, needle) in cases {
             let e = from_document(text).unwrap_err();

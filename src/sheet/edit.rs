@@ -73,6 +73,7 @@ impl Sheet {
                 }
             }
         }
+        seeds.extend(self.unsettled.iter().copied());
         let pending = self.closure(seeds);
         self.run(pending, &mut rc);
         self.finish(rc);

@@ -27,7 +27,7 @@
 //! [`literal`] (numbers as typed), [`functions`] (the catalog), `graph` (who reads
 //! what), `sheet` (the state and what cells show), `input` (reading an input),
 //! `edit`, `recalc` and `order` (recalculation within a work budget), `spill`,
-//! `document` (the JSON file and CSV/TSV), `json`, `address`. Only the catalog
+//! `document` (the JSON file, through [`crate::json`], and CSV/TSV), `address`. Only the catalog
 //! and the literal reader are modules of the public API; everything a user
 //! needs from the others is re-exported here.
 
@@ -39,7 +39,6 @@ mod eval;
 pub mod functions;
 mod graph;
 mod input;
-mod json;
 mod lexer;
 pub mod literal;
 mod order;

@@ -202,6 +202,11 @@ impl Sheet {
         for i in ord {
             let Some(&c) = nodes.get(i) else { continue };
             let on_cycle = cyclic.get(i).copied().unwrap_or(false);
+            if last {
+                self.unsettled.insert(c);
+            } else {
+                self.unsettled.remove(&c);
+            }
             let v = if last {
                 Some(Value::error(
                     ErrorKind::Cycle,
@@ -225,7 +230,12 @@ impl Sheet {
     }
 
     /// Whoever reads a cell that changed hands reads anew; displaced formulas and
-    /// formulas waiting for those cells try again.
+    /// formulas waiting for those cells try again, and so does every formula
+    /// reading them: a formula tried again may show another value (a blocked
+    /// spill names the cell now in its way), and a reader evaluated before it
+    /// would otherwise keep the old one, so the shown values and error details
+    /// would depend on the order of evaluation (a sheet built cell by cell and
+    /// the same sheet loaded from its document differed).
     fn after_spill_moved(
         &self,
         c: CellRef,
@@ -233,19 +243,19 @@ impl Sheet {
         displaced: Vec<CellRef>,
         again: &mut BTreeSet<CellRef>,
     ) {
-        let touched: BTreeSet<CellRef> = regions
+        let mut retried: BTreeSet<CellRef> = regions
             .iter()
             .flat_map(|r| r.cells())
             .filter(|x| *x != c)
             .collect();
         for (a, want) in &self.blocked {
             if *a != c && regions.iter().any(|r| r.intersects(want)) {
-                again.insert(*a);
+                retried.insert(*a);
             }
         }
-        again.extend(displaced);
-        if !touched.is_empty() {
-            again.extend(self.closure(touched));
+        retried.extend(displaced);
+        if !retried.is_empty() {
+            again.extend(self.closure(retried));
         }
     }
 

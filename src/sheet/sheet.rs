@@ -38,7 +38,7 @@ use super::lexer::ParseError;
 use super::parser::Expr;
 use super::value::Value;
 use crate::error::Result;
-use alloc::collections::BTreeMap;
+use alloc::collections::{BTreeMap, BTreeSet};
 use alloc::string::String;
 use alloc::vec::Vec;
 
@@ -85,6 +85,10 @@ pub struct Sheet {
     pub(super) owner: BTreeMap<CellRef, CellRef>,
     /// Anchor → the rectangle it would spill into but cannot.
     pub(super) blocked: BTreeMap<CellRef, Range>,
+    /// Formulas that gave up with `#CYCLE!` because spills kept moving
+    /// ([`MAX_SPILL_PASSES`]): every edit tries them again, since what they gave
+    /// up on may be settled now (a sheet loaded with the same inputs would be).
+    pub(super) unsettled: BTreeSet<CellRef>,
     pub(super) graph: Graph,
     /// Upper-case name → (name as written, cell).
     pub(super) names: BTreeMap<String, (String, CellRef)>,

@@ -20,8 +20,8 @@ use crate::circuit::error::{CircuitError, CircuitResult, Name};
 use crate::circuit::value::parse_value;
 use crate::error::Error;
 use crate::freq::ComplexPair;
+use crate::json::{Json, Members};
 use alloc::vec::Vec;
-use serde_json::{Map, Value};
 
 /// The fields of the model object.
 pub const MODEL_FIELDS: &str = "a0, gbwHz, dominantPoleHz, hold, polesHz, zerosHz, rhpZerosHz, complexPoles, complexZeros, rd, cd, rcm, ccm, ro, slewRate, swing, voltageNoise, currentNoise";
@@ -46,17 +46,30 @@ const MODEL_KEYS: [&str; 18] = [
     "currentNoise",
 ];
 
-/// Refuse any key not in `known`, naming it (param `field`).
+/// The members of a JSON object.
+pub(crate) type Object = [(alloc::string::String, Json)];
+
+/// Refuse any key not in `known`, naming it (param `field`), and any key given
+/// twice (a second value would otherwise pass unseen).
 pub(crate) fn reject_unknown(
-    obj: &Map<alloc::string::String, Value>,
+    obj: &Object,
     known: &[&str],
     expected: &'static str,
 ) -> CircuitResult<()> {
-    match obj.keys().find(|k| !known.contains(&k.as_str())) {
-        Some(key) => Err(CircuitError::named(
+    if let Some((key, _)) = obj.iter().find(|(k, _)| !known.contains(&k.as_str())) {
+        return Err(CircuitError::named(
             Error::UnknownName {
                 param: "field",
                 expected,
+            },
+            key,
+        ));
+    }
+    match obj.repeated() {
+        Some(key) => Err(CircuitError::named(
+            Error::OutOfDomain {
+                param: "field",
+                requirement: "must be given once",
             },
             key,
         )),
@@ -65,10 +78,10 @@ pub(crate) fn reject_unknown(
 }
 
 /// A number or a value text.
-pub(crate) fn number(v: &Value, param: &'static str) -> crate::Result<f64> {
+pub(crate) fn number(v: &Json, param: &'static str) -> crate::Result<f64> {
     match v {
-        Value::Number(n) => n.as_f64().ok_or(Error::NotFinite { param }),
-        Value::String(s) => parse_value(param, s),
+        Json::Number(n) => Ok(n.value),
+        Json::String(s) => parse_value(param, s),
         _ => Err(Error::OutOfDomain {
             param,
             requirement: "must be a number or a value text such as 4k7 or 10M",
@@ -76,44 +89,38 @@ pub(crate) fn number(v: &Value, param: &'static str) -> crate::Result<f64> {
     }
 }
 
-fn opt_number(
-    obj: &Map<alloc::string::String, Value>,
-    key: &'static str,
-) -> crate::Result<Option<f64>> {
-    obj.get(key).map(|v| number(v, key)).transpose()
+fn opt_number(obj: &Object, key: &'static str) -> crate::Result<Option<f64>> {
+    obj.field(key).map(|v| number(v, key)).transpose()
 }
 
-fn object<'a>(
-    v: &'a Value,
-    param: &'static str,
-) -> crate::Result<&'a Map<alloc::string::String, Value>> {
+fn object<'a>(v: &'a Json, param: &'static str) -> crate::Result<&'a Object> {
     v.as_object().ok_or(Error::OutOfDomain {
         param,
         requirement: "must be a JSON object",
     })
 }
 
-fn list<'a>(v: Option<&'a Value>, param: &'static str) -> crate::Result<&'a [Value]> {
+fn list<'a>(v: Option<&'a Json>, param: &'static str) -> crate::Result<&'a [Json]> {
     match v {
         None => Ok(&[]),
-        Some(v) => v.as_array().map(Vec::as_slice).ok_or(Error::OutOfDomain {
+        Some(v) => v.as_array().ok_or(Error::OutOfDomain {
             param,
             requirement: "must be a list",
         }),
     }
 }
 
-fn spread(v: &Value) -> CircuitResult<Spread> {
-    if let Value::Object(o) = v {
+fn spread(v: &Json) -> CircuitResult<Spread> {
+    if let Json::Object(o) = v {
         reject_unknown(o, &["min", "typ", "max"], "min, typ, max")?;
-        let typ = o
-            .get("typ")
-            .map(|t| number(t, "a0"))
-            .transpose()?
-            .ok_or(Error::OutOfDomain {
-                param: "a0",
-                requirement: "needs typ (min and max default to typ)",
-            })?;
+        let typ =
+            o.field("typ")
+                .map(|t| number(t, "a0"))
+                .transpose()?
+                .ok_or(Error::OutOfDomain {
+                    param: "a0",
+                    requirement: "needs typ (min and max default to typ)",
+                })?;
         Ok(Spread {
             min: opt_number(o, "min")
                 .map_err(|e| e.with_param("a0"))?
@@ -128,13 +135,13 @@ fn spread(v: &Value) -> CircuitResult<Spread> {
     }
 }
 
-fn pairs(v: Option<&Value>, param: &'static str) -> CircuitResult<Vec<ComplexPair>> {
+fn pairs(v: Option<&Json>, param: &'static str) -> CircuitResult<Vec<ComplexPair>> {
     let mut out = Vec::new();
     for p in list(v, param)? {
         let o = object(p, param)?;
         reject_unknown(o, &["freqHz", "q"], "freqHz, q")?;
         let get = |k: &str| {
-            o.get(k)
+            o.field(k)
                 .map(|x| number(x, param))
                 .transpose()?
                 .ok_or(Error::OutOfDomain {
@@ -150,12 +157,12 @@ fn pairs(v: Option<&Value>, param: &'static str) -> CircuitResult<Vec<ComplexPai
     Ok(out)
 }
 
-fn density(v: Option<&Value>, param: &'static str) -> CircuitResult<Option<NoiseDensity>> {
+fn density(v: Option<&Json>, param: &'static str) -> CircuitResult<Option<NoiseDensity>> {
     let Some(v) = v else { return Ok(None) };
     let o = object(v, param)?;
     reject_unknown(o, &["density", "cornerHz"], "density, cornerHz")?;
     let d = o
-        .get("density")
+        .field("density")
         .map(|x| number(x, param))
         .transpose()?
         .ok_or(Error::OutOfDomain {
@@ -171,12 +178,12 @@ fn density(v: Option<&Value>, param: &'static str) -> CircuitResult<Option<Noise
     }))
 }
 
-fn swing(v: Option<&Value>) -> CircuitResult<Option<OutputSwing>> {
+fn swing(v: Option<&Json>) -> CircuitResult<Option<OutputSwing>> {
     let Some(v) = v else { return Ok(None) };
     let o = object(v, "swing")?;
     reject_unknown(o, &["lowV", "highV"], "lowV, highV")?;
     let get = |k: &str| {
-        o.get(k)
+        o.field(k)
             .map(|x| number(x, "swing"))
             .transpose()?
             .ok_or(Error::OutOfDomain {
@@ -190,7 +197,7 @@ fn swing(v: Option<&Value>) -> CircuitResult<Option<OutputSwing>> {
     }))
 }
 
-fn numbers(v: Option<&Value>, param: &'static str) -> crate::Result<Vec<f64>> {
+fn numbers(v: Option<&Json>, param: &'static str) -> crate::Result<Vec<f64>> {
     list(v, param)?.iter().map(|x| number(x, param)).collect()
 }
 
@@ -200,14 +207,14 @@ fn numbers(v: Option<&Value>, param: &'static str) -> crate::Result<Vec<f64>> {
 /// A field that is not of its type or does not read (param: the field); an
 /// unknown field (param `field`, the name is the field); every error of
 /// [`Amplifier::validate`].
-pub fn read_amplifier(v: &Value) -> CircuitResult<Amplifier> {
+pub fn read_amplifier(v: &Json) -> CircuitResult<Amplifier> {
     let o = object(v, "model")?;
     reject_unknown(o, &MODEL_KEYS, MODEL_FIELDS)?;
-    let a0 = spread(o.get("a0").ok_or(Error::OutOfDomain {
+    let a0 = spread(o.field("a0").ok_or(Error::OutOfDomain {
         param: "a0",
         requirement: "the open-loop gain a0 is required",
     })?)?;
-    let hold = match o.get("hold") {
+    let hold = match o.field("hold") {
         None => BandwidthRule::HoldGbw,
         Some(h) => BandwidthRule::from_name(h.as_str().unwrap_or(""))?,
     };
@@ -216,53 +223,53 @@ pub fn read_amplifier(v: &Value) -> CircuitResult<Amplifier> {
         gbw_hz: opt_number(o, "gbwHz")?,
         dominant_pole_hz: opt_number(o, "dominantPoleHz")?,
         hold,
-        poles_hz: numbers(o.get("polesHz"), "polesHz")?,
-        zeros_hz: numbers(o.get("zerosHz"), "zerosHz")?,
-        rhp_zeros_hz: numbers(o.get("rhpZerosHz"), "rhpZerosHz")?,
-        complex_poles: pairs(o.get("complexPoles"), "complexPoles")?,
-        complex_zeros: pairs(o.get("complexZeros"), "complexZeros")?,
+        poles_hz: numbers(o.field("polesHz"), "polesHz")?,
+        zeros_hz: numbers(o.field("zerosHz"), "zerosHz")?,
+        rhp_zeros_hz: numbers(o.field("rhpZerosHz"), "rhpZerosHz")?,
+        complex_poles: pairs(o.field("complexPoles"), "complexPoles")?,
+        complex_zeros: pairs(o.field("complexZeros"), "complexZeros")?,
         rd: opt_number(o, "rd")?,
         cd: opt_number(o, "cd")?.unwrap_or(0.0),
         rcm: opt_number(o, "rcm")?,
         ccm: opt_number(o, "ccm")?.unwrap_or(0.0),
         ro: opt_number(o, "ro")?.unwrap_or(0.0),
         slew_rate: opt_number(o, "slewRate")?,
-        swing: swing(o.get("swing"))?,
-        voltage_noise: density(o.get("voltageNoise"), "voltageNoise")?,
-        current_noise: density(o.get("currentNoise"), "currentNoise")?,
+        swing: swing(o.field("swing"))?,
+        voltage_noise: density(o.field("voltageNoise"), "voltageNoise")?,
+        current_noise: density(o.field("currentNoise"), "currentNoise")?,
     };
     a.validate()?;
     Ok(a)
 }
 
-/// Write an amplifier model object (numbers; empty lists and unset figures left out),
-/// so that [`read_amplifier`] gives back an equal model.
-pub fn write_amplifier(a: &Amplifier) -> Value {
-    let mut m = Map::new();
-    let mut put = |k: &str, v: Value| {
-        m.insert(k.into(), v);
+/// An amplifier model object (numbers; empty lists and unset figures left out;
+/// members in code-point order of their names), so that [`read_amplifier`]
+/// gives back an equal model.
+pub fn write_amplifier(a: &Amplifier) -> Json {
+    let mut m = Vec::new();
+    let mut put = |k: &str, v: Json| {
+        m.push((k.into(), v));
     };
     let s = a.a0;
-    let mut a0 = Map::new();
-    a0.insert("min".into(), Value::from(s.min));
-    a0.insert("typ".into(), Value::from(s.typ));
-    a0.insert("max".into(), Value::from(s.max));
-    put("a0", Value::Object(a0));
-    let opt = |v: Option<f64>| v.map(Value::from);
+    put(
+        "a0",
+        number_object(&[("min", s.min), ("typ", s.typ), ("max", s.max)]),
+    );
+    let opt = |v: Option<f64>| v.map(Json::from);
     if let Some(v) = opt(a.gbw_hz) {
         put("gbwHz", v);
     }
     if let Some(v) = opt(a.dominant_pole_hz) {
         put("dominantPoleHz", v);
     }
-    put("hold", Value::from(a.hold.name()));
+    put("hold", Json::from(a.hold.name()));
     for (k, l) in [
         ("polesHz", &a.poles_hz),
         ("zerosHz", &a.zeros_hz),
         ("rhpZerosHz", &a.rhp_zeros_hz),
     ] {
         if !l.is_empty() {
-            put(k, Value::Array(l.iter().map(|&x| Value::from(x)).collect()));
+            put(k, Json::Array(l.iter().map(|&x| Json::from(x)).collect()));
         }
     }
     for (k, l) in [
@@ -272,42 +279,43 @@ pub fn write_amplifier(a: &Amplifier) -> Value {
         if !l.is_empty() {
             let items = l
                 .iter()
-                .map(|p| {
-                    let mut o = Map::new();
-                    o.insert("freqHz".into(), Value::from(p.freq_hz));
-                    o.insert("q".into(), Value::from(p.q));
-                    Value::Object(o)
-                })
+                .map(|p| number_object(&[("freqHz", p.freq_hz), ("q", p.q)]))
                 .collect();
-            put(k, Value::Array(items));
+            put(k, Json::Array(items));
         }
     }
     for (k, v) in [("rd", a.rd), ("rcm", a.rcm), ("slewRate", a.slew_rate)] {
         if let Some(v) = v {
-            put(k, Value::from(v));
+            put(k, Json::from(v));
         }
     }
     for (k, v) in [("cd", a.cd), ("ccm", a.ccm), ("ro", a.ro)] {
-        put(k, Value::from(v));
+        put(k, Json::from(v));
     }
     if let Some(s) = a.swing {
-        let mut o = Map::new();
-        o.insert("lowV".into(), Value::from(s.low_v));
-        o.insert("highV".into(), Value::from(s.high_v));
-        put("swing", Value::Object(o));
+        put(
+            "swing",
+            number_object(&[("lowV", s.low_v), ("highV", s.high_v)]),
+        );
     }
     for (k, d) in [
         ("voltageNoise", a.voltage_noise),
         ("currentNoise", a.current_noise),
     ] {
         if let Some(d) = d {
-            let mut o = Map::new();
-            o.insert("density".into(), Value::from(d.density));
-            o.insert("cornerHz".into(), Value::from(d.corner_hz));
-            put(k, Value::Object(o));
+            put(
+                k,
+                number_object(&[("density", d.density), ("cornerHz", d.corner_hz)]),
+            );
         }
     }
-    Value::Object(m)
+    Json::sorted_object(m)
+}
+
+/// An object of numbers, members in code-point order of their names.
+pub(crate) fn number_object(members: &[(&str, f64)]) -> Json {
+    let members = members.iter().map(|(k, v)| ((*k).into(), Json::from(*v)));
+    Json::sorted_object(members.collect())
 }
 
 /// The name-less error of a model field, attached to the element `name`.
@@ -334,7 +342,7 @@ mod tests {
 
     #[test]
     fn reads_and_writes_back_every_field() {
-        let v: Value = serde_json::from_str(MODEL).unwrap();
+        let v = crate::json::parse(MODEL).unwrap();
         let a = read_amplifier(&v).unwrap();
         assert_eq!(a.gbw_hz, Some(10e6));
         assert_eq!(a.cd, 3e-12);
@@ -346,7 +354,7 @@ mod tests {
     #[test]
     fn bad_models_name_the_field() {
         let bad = |from: &str, to: &str| {
-            let v: Value = serde_json::from_str(&MODEL.replace(from, to)).unwrap();
+            let v = crate::json::parse(&MODEL.replace(from, to)).unwrap();
             read_amplifier(&v).unwrap_err()
         };
         assert_eq!(bad("\"q\": 0.7", "\"q\": 0").error.param(), "complexPoles");

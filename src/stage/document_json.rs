@@ -8,13 +8,14 @@
 //!   "parts": { "rf": "100k", "cf": "1p5", "cs": "20p" } }
 //! ```
 
-use super::amplifier_json::{number, read_amplifier, reject_unknown, write_amplifier};
+use super::amplifier_json::{number, read_amplifier, reject_unknown, write_amplifier, Object};
 use super::document::{Stage, StageKind, StageParts};
 use super::spread::SpreadPoint;
 use crate::circuit::{CircuitError, CircuitResult};
 use crate::error::Error;
+use crate::json::{self, Json, JsonWriter, Members, NumberText};
 use alloc::string::String;
-use serde_json::{Map, Value};
+use alloc::vec::Vec;
 
 /// The `format` field's value.
 pub const STAGE_FORMAT: &str = "loopwright-stage";
@@ -59,15 +60,7 @@ pub fn read_stage(json: &str) -> CircuitResult<Stage> {
             limit: MAX_STAGE_JSON_LEN as u64,
         }));
     }
-    let doc: Value = serde_json::from_str(json).map_err(|e| {
-        CircuitError::named(
-            Error::OutOfDomain {
-                param: "json",
-                requirement: "must be valid JSON text (the name gives line:column)",
-            },
-            &alloc::format!("{}:{}", e.line(), e.column()),
-        )
-    })?;
+    let doc = json::parse(json).map_err(|e| crate::circuit::json::syntax_error(&e))?;
     let o = doc.as_object().ok_or(Error::OutOfDomain {
         param: "json",
         requirement: "must be a JSON object",
@@ -77,28 +70,28 @@ pub fn read_stage(json: &str) -> CircuitResult<Stage> {
         &TOP_KEYS,
         "format, version, kind, amplifier, spreadPoint, parts",
     )?;
-    if o.get("format").and_then(Value::as_str) != Some(STAGE_FORMAT) {
+    if o.field("format").and_then(Json::as_str) != Some(STAGE_FORMAT) {
         return Err(CircuitError::from(Error::UnknownName {
             param: "format",
             expected: STAGE_FORMAT,
         }));
     }
-    if o.get("version").and_then(Value::as_u64) != Some(STAGE_VERSION) {
+    if o.field("version").and_then(Json::as_u64) != Some(STAGE_VERSION) {
         return Err(CircuitError::from(Error::OutOfDomain {
             param: "version",
             requirement: "must be 1, the version of the loopwright-stage format this reader knows",
         }));
     }
-    let kind = StageKind::from_name(o.get("kind").and_then(Value::as_str).unwrap_or(""))?;
-    let amplifier = read_amplifier(o.get("amplifier").ok_or(Error::OutOfDomain {
+    let kind = StageKind::from_name(o.field("kind").and_then(Json::as_str).unwrap_or(""))?;
+    let amplifier = read_amplifier(o.field("amplifier").ok_or(Error::OutOfDomain {
         param: "amplifier",
         requirement: "the stage needs its amplifier's model",
     })?)?;
-    let point = match o.get("spreadPoint") {
+    let point = match o.field("spreadPoint") {
         None => SpreadPoint::Typ,
         Some(p) => SpreadPoint::from_name("spreadPoint", p.as_str().unwrap_or(""))?,
     };
-    let parts = read_parts(o.get("parts"))?;
+    let parts = read_parts(o.field("parts"))?;
     let stage = Stage {
         kind,
         amplifier,
@@ -109,17 +102,16 @@ pub fn read_stage(json: &str) -> CircuitResult<Stage> {
     Ok(stage)
 }
 
-fn read_parts(v: Option<&Value>) -> CircuitResult<StageParts> {
-    let empty = Map::new();
-    let o = match v {
-        None => &empty,
+fn read_parts(v: Option<&Json>) -> CircuitResult<StageParts> {
+    let o: &Object = match v {
+        None => &[],
         Some(v) => v.as_object().ok_or(Error::OutOfDomain {
             param: "parts",
             requirement: "must be an object of part values (rf, rg, cf, rs, cs, rl, cl, riso)",
         })?,
     };
     reject_unknown(o, &PART_KEYS, "rf, rg, cf, rs, cs, rl, cl, riso")?;
-    let get = |k: &'static str| o.get(k).map(|x| number(x, k)).transpose();
+    let get = |k: &'static str| o.field(k).map(|x| number(x, k)).transpose();
     Ok(StageParts {
         rf: get("rf")?,
         rg: get("rg")?,
@@ -133,17 +125,19 @@ fn read_parts(v: Option<&Value>) -> CircuitResult<StageParts> {
 }
 
 /// Write a stage document (numbers; parts that are not there left out), so
-/// that [`read_stage`] gives back an equal stage.
+/// that [`read_stage`] gives back an equal stage. Canonical as the circuit
+/// document ([`crate::circuit::json::write_circuit`]): compact, members in
+/// code-point order of their names, numbers as [`NumberText::WithFraction`].
 pub fn write_stage(s: &Stage) -> String {
-    let mut doc = Map::new();
-    doc.insert("format".into(), Value::from(STAGE_FORMAT));
-    doc.insert("version".into(), Value::from(STAGE_VERSION));
-    doc.insert("kind".into(), Value::from(s.kind.name()));
-    doc.insert("amplifier".into(), write_amplifier(&s.amplifier));
-    doc.insert("spreadPoint".into(), Value::from(s.point.name()));
+    let mut doc: Vec<(String, Json)> = alloc::vec![
+        ("format".into(), Json::from(STAGE_FORMAT)),
+        ("version".into(), Json::whole(STAGE_VERSION)),
+        ("kind".into(), Json::from(s.kind.name())),
+        ("amplifier".into(), write_amplifier(&s.amplifier)),
+        ("spreadPoint".into(), Json::from(s.point.name())),
+    ];
     let p = &s.parts;
-    let mut parts = Map::new();
-    for (k, v) in [
+    let parts = [
         ("rf", p.rf),
         ("rg", p.rg),
         ("cf", p.cf),
@@ -152,14 +146,14 @@ pub fn write_stage(s: &Stage) -> String {
         ("rl", p.rl),
         ("cl", p.cl),
         ("riso", p.riso),
-    ] {
-        if let Some(v) = v {
-            parts.insert(k.into(), Value::from(v));
-        }
-    }
-    doc.insert("parts".into(), Value::Object(parts));
-    // A Value built from strings and finite numbers always serializes.
-    serde_json::to_string(&Value::Object(doc)).unwrap_or_default()
+    ]
+    .into_iter()
+    .filter_map(|(k, v)| v.map(|v| (String::from(k), Json::from(v))))
+    .collect();
+    doc.push(("parts".into(), Json::sorted_object(parts)));
+    let mut w = JsonWriter::new().with_numbers(NumberText::WithFraction);
+    w.value(&Json::sorted_object(doc));
+    w.finish()
 }
 
 #[cfg(test)]

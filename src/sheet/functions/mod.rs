@@ -27,8 +27,8 @@ pub mod network;
 pub mod noise;
 
 use super::errors::{CellError, ErrorKind};
-use super::json::JsonWriter;
 use super::value::{Unit, Value};
+use crate::json::JsonWriter;
 use alloc::format;
 use alloc::string::String;
 use alloc::vec::Vec;

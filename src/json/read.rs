@@ -1,190 +1,12 @@
-//! A small JSON writer and reader for the sheet document and the catalog.
-//!
-//! Written here rather than taken from a crate so the core stays `no_std` without
-//! a serializer dependency, and so the document's byte layout is fixed by this
-//! code alone (which is what makes save → load → save byte-identical). The reader
-//! follows RFC 8259 strictly (no comments, no trailing commas, no leading zeros,
-//! no lone surrogates) and limits nesting to [`MAX_NESTING`].
+//! The JSON reader: RFC 8259 text to a [`Json`] tree, strictly.
 
-use super::value::write_number;
+use super::value::{Json, Number};
 use alloc::string::String;
 use alloc::vec::Vec;
 use core::fmt::Write;
 
 /// Deepest nesting of arrays and objects the reader accepts.
 pub const MAX_NESTING: usize = 32;
-
-/// A JSON writer; compact, or pretty with two-space indentation.
-pub struct JsonWriter {
-    out: String,
-    pretty: bool,
-    /// Per open container: whether nothing has been written in it yet.
-    first: Vec<bool>,
-    after_key: bool,
-}
-
-impl Default for JsonWriter {
-    fn default() -> Self {
-        JsonWriter::new()
-    }
-}
-
-impl JsonWriter {
-    /// A compact writer.
-    pub fn new() -> JsonWriter {
-        JsonWriter {
-            out: String::new(),
-            pretty: false,
-            first: Vec::new(),
-            after_key: false,
-        }
-    }
-
-    /// A writer that puts each member on its own line.
-    pub fn pretty() -> JsonWriter {
-        JsonWriter {
-            pretty: true,
-            ..JsonWriter::new()
-        }
-    }
-
-    fn before_value(&mut self) {
-        if self.after_key {
-            self.after_key = false;
-            return;
-        }
-        if let Some(first) = self.first.last_mut() {
-            if !*first {
-                self.out.push(',');
-            }
-            *first = false;
-            if self.pretty {
-                self.out.push('\n');
-                for _ in 0..self.first.len() {
-                    self.out.push_str("  ");
-                }
-            }
-        }
-    }
-
-    fn close(&mut self, c: char) {
-        let was_empty = self.first.pop().unwrap_or(true);
-        if self.pretty && !was_empty {
-            self.out.push('\n');
-            for _ in 0..self.first.len() {
-                self.out.push_str("  ");
-            }
-        }
-        self.out.push(c);
-    }
-
-    /// `{`
-    pub fn begin_object(&mut self) {
-        self.before_value();
-        self.out.push('{');
-        self.first.push(true);
-    }
-
-    /// `}`
-    pub fn end_object(&mut self) {
-        self.close('}');
-    }
-
-    /// `[`
-    pub fn begin_array(&mut self) {
-        self.before_value();
-        self.out.push('[');
-        self.first.push(true);
-    }
-
-    /// `]`
-    pub fn end_array(&mut self) {
-        self.close(']');
-    }
-
-    /// An object key; the next call writes its value.
-    pub fn key(&mut self, k: &str) {
-        self.before_value();
-        write_string(&mut self.out, k);
-        self.out.push_str(if self.pretty { ": " } else { ":" });
-        self.after_key = true;
-    }
-
-    /// A string value.
-    pub fn string(&mut self, s: &str) {
-        self.before_value();
-        write_string(&mut self.out, s);
-    }
-
-    /// A number; NaN and ±∞ (which JSON cannot hold) are written as `null`.
-    pub fn number(&mut self, x: f64) {
-        self.before_value();
-        if x.is_finite() {
-            write_number(&mut self.out, x);
-        } else {
-            self.out.push_str("null");
-        }
-    }
-
-    /// `true` or `false`.
-    pub fn boolean(&mut self, b: bool) {
-        self.before_value();
-        self.out.push_str(if b { "true" } else { "false" });
-    }
-
-    /// `null`.
-    pub fn null(&mut self) {
-        self.before_value();
-        self.out.push_str("null");
-    }
-
-    /// The text written, with a final newline in pretty mode.
-    pub fn finish(mut self) -> String {
-        if self.pretty {
-            self.out.push('\n');
-        }
-        self.out
-    }
-}
-
-/// Write `s` as a JSON string literal: `"` `\` and control characters escaped,
-/// everything else as UTF-8.
-pub fn write_string(out: &mut String, s: &str) {
-    out.push('"');
-    for c in s.chars() {
-        match c {
-            '"' => out.push_str("\\\""),
-            '\\' => out.push_str("\\\\"),
-            '\n' => out.push_str("\\n"),
-            '\r' => out.push_str("\\r"),
-            '\t' => out.push_str("\\t"),
-            c if (c as u32) < 0x20 => {
-                // Writing to a String cannot fail.
-                let _ = write!(out, "\\u{:04x}", c as u32);
-            }
-            c => out.push(c),
-        }
-    }
-    out.push('"');
-}
-
-/// A parsed JSON value. Object members keep their order and duplicates, so the
-/// caller can refuse duplicates.
-#[derive(Debug, Clone, PartialEq)]
-pub enum Json {
-    /// `null`
-    Null,
-    /// `true` / `false`
-    Bool(bool),
-    /// A number.
-    Number(f64),
-    /// A string.
-    String(String),
-    /// An array.
-    Array(Vec<Json>),
-    /// An object, members in order.
-    Object(Vec<(String, Json)>),
-}
 
 /// Where and why JSON text is malformed.
 #[derive(Debug, Clone, PartialEq, Eq)]
@@ -193,17 +15,57 @@ pub struct JsonError {
     pub line: usize,
     /// 1-based character column.
     pub col: usize,
+    /// The JSON path of the value being read (`elements[3].value`; empty at
+    /// the top level).
+    pub path: String,
     /// What is wrong.
     pub message: &'static str,
 }
 
+impl JsonError {
+    /// The error of a value read as the member `key` of an object.
+    fn in_member(self, key: &str) -> JsonError {
+        let plain = key
+            .chars()
+            .next()
+            .is_some_and(|c| c.is_ascii_alphabetic() || c == '_')
+            && key.chars().all(|c| c.is_ascii_alphanumeric() || c == '_');
+        let mut head = String::new();
+        if plain {
+            head.push_str(key);
+        } else {
+            head.push('[');
+            super::write::write_string(&mut head, key);
+            head.push(']');
+        }
+        self.prefix(head)
+    }
+
+    /// The error of a value read as item `i` of an array.
+    fn in_item(self, i: usize) -> JsonError {
+        let mut head = String::new();
+        // Writing to a String cannot fail.
+        let _ = write!(head, "[{i}]");
+        self.prefix(head)
+    }
+
+    fn prefix(mut self, mut head: String) -> JsonError {
+        if !self.path.is_empty() && !self.path.starts_with('[') {
+            head.push('.');
+        }
+        head.push_str(&self.path);
+        self.path = head;
+        self
+    }
+}
+
 impl core::fmt::Display for JsonError {
     fn fmt(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
-        write!(
-            f,
-            "line {}, column {}: {}",
-            self.line, self.col, self.message
-        )
+        write!(f, "line {}, column {}", self.line, self.col)?;
+        if !self.path.is_empty() {
+            write!(f, " (in {})", self.path)?;
+        }
+        write!(f, ": {}", self.message)
     }
 }
 
@@ -217,7 +79,12 @@ impl Reader<'_> {
         let before = self.src.get(..self.i).unwrap_or(self.src);
         let line = before.matches('\n').count() + 1;
         let col = before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1;
-        Err(JsonError { line, col, message })
+        Err(JsonError {
+            line,
+            col,
+            path: String::new(),
+            message,
+        })
     }
 
     fn rest(&self) -> &str {
@@ -266,7 +133,7 @@ impl Reader<'_> {
                     if !self.eat(":") {
                         return self.fail("expected : after the member name");
                     }
-                    let v = self.value(depth + 1)?;
+                    let v = self.value(depth + 1).map_err(|e| e.in_member(&k))?;
                     members.push((k, v));
                     self.skip_ws();
                     if self.eat(",") {
@@ -289,7 +156,8 @@ impl Reader<'_> {
                     return Ok(Json::Array(items));
                 }
                 loop {
-                    items.push(self.value(depth + 1)?);
+                    let i = items.len();
+                    items.push(self.value(depth + 1).map_err(|e| e.in_item(i))?);
                     self.skip_ws();
                     if self.eat(",") {
                         continue;
@@ -351,14 +219,16 @@ impl Reader<'_> {
             }
             j += n;
         }
-        match s
-            .get(..j)
-            .and_then(|t| t.parse::<f64>().ok())
-            .filter(|x| x.is_finite())
-        {
-            Some(x) => {
+        let text = s.get(..j).unwrap_or("");
+        match text.parse::<f64>().ok().filter(|x| x.is_finite()) {
+            Some(value) => {
+                let whole = if text.bytes().all(|c| c.is_ascii_digit()) {
+                    text.parse::<u64>().ok()
+                } else {
+                    None
+                };
                 self.i += j;
-                Ok(Json::Number(x))
+                Ok(Json::Number(Number { value, whole }))
             }
             None => self.fail("number outside the floating-point range"),
         }
@@ -449,76 +319,4 @@ pub fn parse(src: &str) -> Result<Json, JsonError> {
         return r.fail("text after the end of the JSON value");
     }
     Ok(v)
-}
-
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn write_then_read() {
-        let mut w = JsonWriter::pretty();
-        w.begin_object();
-        w.key("a\"b");
-        w.string("x\ny\u{1}é");
-        w.key("n");
-        w.begin_array();
-        w.number(1.5);
-        w.number(-2e-9);
-        w.boolean(true);
-        w.null();
-        w.end_array();
-        w.key("empty");
-        w.begin_object();
-        w.end_object();
-        w.end_object();
-        let text = w.finish();
-        assert!(text.contains("\n  \"n\": [\n    1.5,"));
-        let v = parse(&text).unwrap();
-        let Json::Object(m) = v else { panic!() };
-        assert_eq!(m[0], ("a\"b".into(), Json::String("x\ny\u{1}é".into())));
-        assert_eq!(
-            m[1].1,
-            Json::Array(alloc::vec![
-                Json::Number(1.5),
-                Json::Number(-2e-9),
-                Json::Bool(true),
-                Json::Null
-            ])
-        );
-        assert_eq!(m[2].1, Json::Object(alloc::vec![]));
-    }
-
-    #[test]
-    fn strictness() {
-        for bad in [
-            "",
-            "{",
-            "[1,]",
-            "{\"a\":1,}",
-            "01",
-            "1.",
-            "-",
-            "\"\\x\"",
-            "\"\\ud800\"",
-            "nul",
-            "[1] 2",
-            "{a:1}",
-            "1e999",
-            "\"a\u{1}\"",
-        ] {
-            assert!(parse(bad).is_err(), "{bad:?}");
-        }
-        assert_eq!(
-            parse("\"\\ud83d\\ude00\"").unwrap(),
-            Json::String("😀".into())
-        );
-        let deep = alloc::format!("{}{}", "[".repeat(40), "]".repeat(40));
-        assert_eq!(
-            parse(&deep).unwrap_err().message,
-            "nested deeper than 32 levels"
-        );
-        let e = parse("{\n  \"a\": x}").unwrap_err();
-        assert_eq!((e.line, e.col), (2, 8));
-    }
 }
