@@ -6,7 +6,7 @@ PORT ?= 8080
 PY := $(or $(LOOPWRIGHT_VENV),$(HOME)/.cache/loopwright/venv)/bin/python
 export CARGO_TERM_COLOR := never
 
-.PHONY: serve test lint bench bench-quick bench-compare setup setup-page build single package test-native test-fuzz test-reference test-browser test-page test-package
+.PHONY: serve test lint bench bench-quick bench-compare setup setup-page build single package test-native test-fuzz test-reference test-browser test-page test-package test-sheetfiles
 
 serve: setup-page build
 	node scripts/serve.mjs www $(PORT)
@@ -26,7 +26,7 @@ single: build
 package:
 	./scripts/build-package.sh
 
-test: setup lint test-native test-fuzz test-reference test-browser single package bench-quick test-page test-package
+test: setup lint test-native test-sheetfiles test-fuzz test-reference test-browser single package bench-quick test-page test-package
 	@echo "make test: all suites passed"
 
 # Gates: the committed formatting (rustfmt.toml, biome.json) and lints with warnings denied.
@@ -39,6 +39,16 @@ test-native:
 	cargo build --no-default-features
 	cargo test
 	cargo test --bench core
+
+# The worksheet as .ods/.xlsx files (feature sheetfiles): its lints, unit and doc
+# tests, round trips and malformed files (tests/sheet_files.rs), and every exported
+# value recomputed by LibreOffice Calc (tests/sheet_files_engine.rs; soffice from setup.sh).
+test-sheetfiles:
+	cargo clippy --all-targets --features wasm,sheetfiles -- -D warnings
+	cargo clippy --features wasm-sheetfiles -- -D warnings
+	cargo test --features sheetfiles --lib sheet::files
+	cargo test --features sheetfiles --doc sheet::files
+	LOOPWRIGHT_REQUIRE_SOFFICE=1 cargo test --features sheetfiles --test sheet_files --test sheet_files_engine
 
 # The worksheet's formula fuzz target (fuzz/fuzz_targets/formula.rs, nightly + cargo-fuzz)
 # for FUZZ_SECONDS, from the committed seeds in fuzz/corpus/formula; what it finds on
@@ -60,7 +70,7 @@ test-browser:
 	GECKODRIVER=$$(command -v geckodriver) cargo test --target wasm32-unknown-unknown --features wasm --test 'wasm_*'
 
 test-page:
-	cd tests/js && GECKODRIVER=$$(command -v geckodriver) node --test format.test.mjs page.test.mjs sheet.test.mjs firefox.test.mjs
+	cd tests/js && GECKODRIVER=$$(command -v geckodriver) node --test format.test.mjs page.test.mjs sheet.test.mjs sheetfiles.test.mjs firefox.test.mjs
 
 # package.test.mjs: the packed package as a user installs it; hostile.test.mjs: the
 # hostile-call campaign over every export (LOOPWRIGHT_HOSTILE_LONG=1 for the long run).

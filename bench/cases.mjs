@@ -5,6 +5,7 @@
 // python?: true, target}.
 
 import { CIRCUIT_CASES } from './circuit_cases.mjs';
+import { NOISE_CASES } from './noise_cases.mjs';
 import { buildSheet } from './sheet_build.mjs';
 
 // The loop of the freq cases (bench/peers.py builds the same one).
@@ -192,4 +193,5 @@ export const CASES = [
     target: '< 1 ms',
   },
   ...CIRCUIT_CASES,
+  ...NOISE_CASES,
 ];

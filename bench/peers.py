@@ -76,11 +76,91 @@ def freq_cases():
     return {"freq_sweep_10k": sweep, "freq_margins_poles": margins_and_poles}
 
 
-CASES = {"monte_carlo_1e6": monte_carlo_1e6, **freq_cases()}
+def circuit_sweep_1000():
+    """numpy doing the circuit_sweep_1000 case the way a numpy user would: the
+    modified nodal matrices G and C of the same 11-node ladder stamped once, then
+    M(w) = G + jw·C for the 1 000 frequencies stacked and solved in one batched
+    np.linalg.solve (LAPACK zgesv per system), V(n7) taken from each solution."""
+    import numpy as np
+
+    nodes = ["s", "in", "fb", "a"] + [f"n{k}" for k in range(1, 8)]
+    idx = {name: i for i, name in enumerate(nodes)}
+    n = len(nodes) + 2  # + the branch currents of Vs and the VCVS
+    g = np.zeros((n, n))
+    c = np.zeros((n, n))
+
+    def two_terminal(m, a, b, y):
+        for p, q, sign in ((a, a, 1), (b, b, 1), (a, b, -1), (b, a, -1)):
+            if p != "0" and q != "0":
+                m[idx[p], idx[q]] += sign * y
+
+    two_terminal(g, "s", "in", 1 / 1e3)
+    two_terminal(g, "in", "fb", 1 / 1e6)
+    two_terminal(g, "a", "n1", 1 / 75)
+    for k in range(1, 7):
+        two_terminal(g, f"n{k}", f"n{k + 1}", 1 / 1e3)
+        two_terminal(c, f"n{k + 1}", "0", 1e-9)
+    two_terminal(g, "n7", "fb", 1 / 9e3)
+    two_terminal(g, "fb", "0", 1 / 1e3)
+    vs, ea = len(nodes), len(nodes) + 1
+    g[idx["s"], vs] = g[vs, idx["s"]] = 1  # Vs: V(s) = 1
+    g[idx["a"], ea] = g[ea, idx["a"]] = 1  # VCVS: V(a) − 1e5·(V(in) − V(fb)) = 0
+    g[ea, idx["in"]] -= 1e5
+    g[ea, idx["fb"]] += 1e5
+    b = np.zeros(n, dtype=complex)
+    b[vs] = 1
+    w = TAU * np.logspace(1, 7, 1000)
+
+    def sweep():
+        m = g[None, :, :] + 1j * w[:, None, None] * c[None, :, :]
+        x = np.linalg.solve(m, np.broadcast_to(b, (len(w), n))[..., None])
+        x[:, idx["n7"], 0].copy()
+
+    return sweep
+
+
+def noise_circuit_1000():
+    """numpy doing the noise_circuit_1000 case the usual way: the nodal system of
+    bench/noise_circuit_11.json stamped by tests/reference/noise_circuit.py, and each
+    of the 13 sources' transfer by its own solve at each of 1 000 frequencies."""
+    import pathlib
+
+    import numpy as np
+
+    here = pathlib.Path(__file__).resolve().parent
+    sys.path.insert(0, str(here.parent / "tests" / "reference"))
+    import noise_circuit as ref
+
+    circuit = json.loads((here / "noise_circuit_11.json").read_text())
+    mna = ref.Mna(circuit)
+    case = {"output": {"node": "x"}}
+    sources = mna.sources(case, 300.0)
+    c = mna.output_row(case["output"], 1.0)
+    freqs = np.logspace(1, 7, 1000)
+
+    def run():
+        total = np.empty(len(freqs))
+        for i, f in enumerate(freqs):
+            m = mna.matrix(f)
+            total[i] = math.sqrt(
+                sum(abs(c @ np.linalg.solve(m, rhs(f))) ** 2 * psd(f) for _, psd, rhs in sources)
+            )
+        return total
+
+    return run
+
+
+CASES = {
+    "monte_carlo_1e6": monte_carlo_1e6,
+    **freq_cases(),
+    "circuit_sweep_1000": circuit_sweep_1000(),
+    "noise_circuit_1000": noise_circuit_1000(),
+}
 
 
 def main():
-    print(json.dumps({key: median_ns(fn) for key, fn in CASES.items()}))
+    slow = {"noise_circuit_1000": 3}  # about a second per run: three runs
+    print(json.dumps({key: median_ns(fn, slow.get(key)) for key, fn in CASES.items()}))
 
 
 if __name__ == "__main__":

@@ -104,7 +104,7 @@ fn network_best_pairs_e192() -> bool {
 /// A transimpedance front end of our own: a 20 MHz amplifier with a further
 /// pole, input capacitances and Ro; Rf = 100 kΩ ‖ 1.5 pF, a 20 pF photodiode,
 /// an isolation resistor into a 1 nF load (11 elements, 5 nodes, 2 states).
-fn stage_circuit() -> loopwright::circuit::Circuit {
+fn stage_document() -> loopwright::stage::Stage {
     use loopwright::stage::{Amplifier, Spread, SpreadPoint, StageKind, StageParts};
     loopwright::stage::Stage {
         kind: StageKind::Transimpedance,
@@ -124,9 +124,48 @@ fn stage_circuit() -> loopwright::circuit::Circuit {
             ..StageParts::default()
         },
     }
-    .circuit()
-    .expect("a valid stage")
-    .circuit
+}
+
+fn stage_circuit() -> loopwright::circuit::Circuit {
+    stage_document().circuit().expect("a valid stage").circuit
+}
+
+/// Loop gain at 1 000 frequencies plus every margin of the stage (the issue's
+/// "under 3 ms" row).
+#[divan::bench]
+fn stage_loop_gain_1000_and_margins(bencher: divan::Bencher) {
+    let c = stage_circuit();
+    let f = loopwright::freq::log_frequencies(1.0, 1e9, 1000).expect("valid frequencies");
+    bencher.bench(|| {
+        let t = loopwright::stage::loop_gain::loop_gain(black_box(&c), "U1", &f);
+        let m = loopwright::stage::margins::circuit_margins(black_box(&c), "U1");
+        (t.map(|t| t.re.len()), m.map(|m| m.phase_margin_deg))
+    });
+}
+
+/// Each design helper on the stage above at 60° (the "under 50 ms" rows).
+#[divan::bench(args = ["cf", "riso", "cl", "dominant-pole", "beta"])]
+fn stage_design_helper(bencher: divan::Bencher, which: &str) {
+    use loopwright::stage::design as d;
+    use loopwright::stage::StageKind;
+    let s = stage_document();
+    // β needs a divider: the same amplifier as a non-inverting gain of 2.
+    let mut divider = s.clone();
+    divider.kind = StageKind::NonInverting;
+    divider.parts.rg = Some(1e5);
+    divider.parts.cs = None;
+    divider.parts.cf = None;
+    bencher.bench(|| {
+        let s = black_box(&s);
+        match which {
+            "cf" => d::feedback_capacitor_for_margin(s, 60.0),
+            "riso" => d::isolation_resistor_for_margin(s, 1e-9, 60.0),
+            "cl" => d::max_load_capacitance_for_margin(s, 60.0),
+            "dominant-pole" => d::dominant_pole_for_margin(s, 60.0),
+            _ => d::max_beta_for_margin(black_box(&divider), 60.0),
+        }
+        .map(|a| a.value)
+    });
 }
 
 #[divan::bench]
@@ -212,4 +251,32 @@ fn document_sheet_parse_json_10k(bencher: divan::Bencher) {
 fn document_sheet_parse_serde_json_10k(bencher: divan::Bencher) {
     let text = sheet_document();
     bencher.bench(|| serde_json::from_str::<serde_json::Value>(black_box(&text)).is_ok());
+}
+
+/// The ladder of the circuit_sweep_1000 case of bench/circuit_cases.mjs (an
+/// op-amp as a VCVS with Ri and Ro driving six RC sections, Rf/Rg fed back from
+/// the end: 11 nodes, 13 unknowns), swept at 1 000 log-spaced frequencies.
+#[divan::bench]
+fn circuit_sweep_1000(bencher: divan::Bencher) {
+    let mut c = loopwright::circuit::Circuit::new();
+    let ok = [
+        c.voltage_source("Vs", "s", "0", 1.0),
+        c.resistor("Rs", "s", "in", 1e3),
+        c.resistor("Ri", "in", "fb", 1e6),
+        c.vcvs("A", "a", "0", "in", "fb", 1e5),
+        c.resistor("Ro", "a", "n1", 75.0),
+        c.resistor("Rf", "n7", "fb", 9e3),
+        c.resistor("Rg", "fb", "0", 1e3),
+    ];
+    assert!(ok.iter().all(Result::is_ok));
+    for k in 1..=6 {
+        let (a, b) = (format!("n{k}"), format!("n{}", k + 1));
+        assert!(c.resistor(&format!("R{k}"), &a, &b, 1e3).is_ok());
+        assert!(c.capacitor(&format!("C{k}"), &b, "0", 1e-9).is_ok());
+    }
+    let f = loopwright::freq::log_frequencies(10.0, 1e7, 1000).expect("valid frequencies");
+    bencher.bench(|| {
+        loopwright::circuit::voltage_transfer_sweep(black_box(&c), "Vs", "n7", "0", &f)
+            .map(|h| h.len())
+    });
 }

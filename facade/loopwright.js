@@ -41,6 +41,22 @@ export const circuitAsymptoticGainCurrent = call(glue.circuitAsymptoticGainCurre
   ['', options],
 ]);
 
+// The stage area (docs/stage.md): a stage document (object or JSON text) wherever a
+// circuit is taken.
+const documentArg = (x, param) => (typeof x === 'string' ? string(x, param) : options(x, param));
+export const stageCircuit = call(glue.stageCircuit, [['stage', documentArg]]);
+export const amplifierOpenLoop = call(glue.amplifierOpenLoop, [['', options]]);
+export const circuitLoopGain = call(glue.circuitLoopGain, [['', options]]);
+export const circuitGain = call(glue.circuitGain, [['', options]]);
+export const circuitImpedance = call(glue.circuitImpedance, [['', options]]);
+export const circuitPoles = call(glue.circuitPoles, [['', options]]);
+export const circuitMargins = call(glue.circuitMargins, [['', options]]);
+export const circuitNyquist = call(glue.circuitNyquist, [['', options]]);
+export const stageDesign = call(glue.stageDesign, [['', options]]);
+// The noise of a whole circuit (src/noise/circuit; docs/noise.md).
+export const circuitNoise = call(glue.circuitNoise, [['', options]]);
+export const circuitNoiseIntegral = call(glue.circuitNoiseIntegral, [['', options]]);
+
 /**
  * The batch tool's reader and writer (src/batch): CSV chunks in, result CSV out.
  * `compute` is a string or undefined; each chunk a Uint8Array of at most 16 MiB.

@@ -2,6 +2,9 @@
 # Builds the two wasm modules (release) and their JS glue (wasm-bindgen --target web):
 #   <out-dir>/       the full module (feature `wasm`): every area, the circuit solver
 #                    and the worksheet; used by the page and the package's main entry;
+#   <out-dir>/sheetfiles/  the spreadsheet-file module (feature `wasm-sheetfiles`):
+#                    .ods/.xlsx export and import, entry facade/sheetfiles.js; loaded
+#                    by the page only when a file is exported or imported;
 #   <out-dir>/lite/  the lite module (feature `wasm-lite`): feedback, frequency and
 #                    stability, network, distortion, noise; used by the embeddable
 #                    panel and the package's `loopwright/lite` entry.
@@ -34,6 +37,9 @@ build() {
   cp facade/guard.js "$3/"
   if [ "$4" = full ]; then
     cp facade/loopwright.js facade/loopwright.d.ts facade/lite.js facade/lite.d.ts "$3/"
+  elif [ "$4" = sheetfiles ]; then
+    cp facade/sheetfiles.js "$3/loopwright.js"
+    cp facade/sheetfiles.d.ts "$3/loopwright.d.ts"
   else
     cp facade/lite.js "$3/loopwright.js"
     cp facade/lite.d.ts "$3/loopwright.d.ts"
@@ -45,3 +51,5 @@ build() {
 build wasm target "$out" full
 # A target dir of its own, so the two feature sets do not rebuild each other.
 build wasm-lite target/lite "$out/lite" lite
+# The spreadsheet files (.ods, .xlsx): loaded by the page only on export or import.
+build wasm-sheetfiles target/sheetfiles "$out/sheetfiles" sheetfiles

@@ -2,7 +2,8 @@
 # Installs what building and testing loopwright needs and is missing on a fresh
 # Debian machine with rustup and Node: the wasm32 target, the wasm-bindgen CLI at
 # the exact version the crate pins, Chromium + chromedriver and Firefox ESR
-# (Debian packages), geckodriver (crates.io), cargo-fuzz (crates.io, for the nightly
+# (Debian packages), LibreOffice Calc without GUI (Debian, for the spreadsheet-file
+# tests), geckodriver (crates.io), cargo-fuzz (crates.io, for the nightly
 # fuzz run) and the npm packages of the tests.
 # Safe to run again: every step checks first.
 set -euo pipefail
@@ -39,6 +40,15 @@ if [ "$need_browsers" = 1 ]; then
     say "installing geckodriver from crates.io (about 2 minutes)"
     cargo install geckodriver
   fi
+fi
+
+# The spreadsheet engine that `make test-sheetfiles` opens the exported .ods and .xlsx
+# files in (LibreOffice Calc without its GUI; Debian package, installed as root).
+if [ "${LOOPWRIGHT_NEED_SHEETFILES:-$need_browsers}" = 1 ] && ! command -v soffice >/dev/null 2>&1; then
+  SUDO=""; [ "$(id -u)" = 0 ] || SUDO=sudo
+  say "installing Debian package libreoffice-calc-nogui (the spreadsheet-file tests; about 2 minutes)"
+  $SUDO apt-get update -qq
+  DEBIAN_FRONTEND=noninteractive $SUDO apt-get install -y -qq libreoffice-calc-nogui >/dev/null
 fi
 
 # The fuzz run of make test: a nightly toolchain (in the machine image) and cargo-fuzz.

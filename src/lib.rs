@@ -45,5 +45,9 @@ pub mod stage;
 
 #[cfg(feature = "wasm-lite")]
 pub mod wasm;
+// The spreadsheet-file module is a wasm module of its own (src/wasm/files.rs).
+#[cfg(all(feature = "wasm-sheetfiles", not(feature = "wasm-lite")))]
+#[path = "wasm/files.rs"]
+pub mod wasm_files;
 
 pub use error::{Error, Result};

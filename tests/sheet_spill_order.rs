@@ -64,7 +64,7 @@ fn a_copied_blocked_error_names_the_same_cell_built_or_loaded() {
     // B2 is covered by B1's own spill, which comes first in row-then-column order.
     assert_eq!(
         e.message(),
-        "the results would spill into B2, which is not empty"
+        "the results would fan out into B2, which is not empty"
     );
     assert_eq!(shown(&reloaded(&s)), shown(&s));
     let mut reversed = inputs;

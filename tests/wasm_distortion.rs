@@ -154,6 +154,8 @@ fn validity_sweep_returns_typed_arrays_and_the_fold() {
     assert!(amps.to_vec().iter().all(|&x| x < fold));
     assert!(num(&s, "hd3LimitAmplitude") < fold);
     assert_eq!(field(&s, "hd3HoldsThroughout").as_bool(), Some(false));
+    // The core's stated rounding floor of the numeric path (src/distortion/validity.rs).
+    assert_eq!(num(&s, "numericFloor"), 1e-12);
 }
 
 #[wasm_bindgen_test]

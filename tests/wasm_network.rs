@@ -306,3 +306,45 @@ fn bad_input_throws_typed_errors() {
         "kGain",
     );
 }
+
+#[wasm_bindgen_test]
+fn worst_case_takes_the_amplifier_by_its_gain_bandwidth() {
+    // fH = GBW/A0 (the single-pole gain–bandwidth product read backwards,
+    // Sedra & Smith, Microelectronic Circuits, 7th ed., Sec. 2.8, from memory):
+    // GBW 500 kHz at aTyp 100 000 is the 5 Hz pole of `stage`, bit for bit.
+    let by_pole = api::worst_case(stage(&[])).unwrap();
+    let without_pole = |extra: &[(&str, JsValue)]| {
+        let o = stage(extra);
+        js_sys::Reflect::delete_property(o.unchecked_ref::<js_sys::Object>(), &"poleHz".into())
+            .unwrap();
+        o
+    };
+    let by_gbw = api::worst_case(without_pole(&[("gbwHz", n(5e5))])).unwrap();
+    for name in ["gain", "bandwidthHz", "outputImpedance"] {
+        for end in ["min", "max", "nominal"] {
+            assert_eq!(
+                num(&field(&by_gbw, name), end),
+                num(&field(&by_pole, name), end),
+                "{name} {end}"
+            );
+        }
+    }
+    // Both or neither: refused, naming poleHz; a bad GBW names gbwHz.
+    assert_thrown(
+        api::worst_case(stage(&[("gbwHz", n(5e5))])),
+        "out_of_domain",
+        "poleHz",
+    );
+    assert_thrown(
+        api::worst_case(without_pole(&[])),
+        "out_of_domain",
+        "poleHz",
+    );
+    assert_thrown(
+        api::worst_case(without_pole(&[("gbwHz", n(-1.0))])),
+        "out_of_domain",
+        "gbwHz",
+    );
+    let mc = api::monte_carlo(without_pole(&[("gbwHz", n(5e5)), ("trials", n(100.0))]));
+    assert!(mc.is_ok());
+}

@@ -208,7 +208,7 @@ impl BatchRun {
             Some(chosen) => chosen.clone(),
             None => Step::ALL
                 .into_iter()
-                .filter(|s| s.needs().iter().all(has))
+                .filter(|s| s.has_inputs(&columns))
                 .collect(),
         };
         for step in &steps {
@@ -218,6 +218,14 @@ impl BatchRun {
                 .filter(|c| !has(c))
                 .map(|c| c.name())
                 .collect();
+            if *step == Step::Loop && !step.has_inputs(&columns) {
+                return Err(FileError {
+                    param: "compute",
+                    message: String::from(
+                        "the step loop needs a stage column (a stage document) or a kind column with the amplifier figures and parts",
+                    ),
+                });
+            }
             if !missing.is_empty() {
                 return Err(FileError {
                     param: "compute",

@@ -1,6 +1,7 @@
 //! What the batch tool computes for one design row: the input columns it knows, the
-//! steps (stage, impedance, inverse, spread), and each step's result columns. Every
-//! number comes from the feedback area of the core; this file only routes values.
+//! steps (stage, impedance, inverse, spread, loop), and each step's result columns.
+//! Every number comes from the feedback area of the core, or for the loop step from
+//! the stage area; this file only routes values.
 
 use crate::check;
 use crate::error::{Error, Result};
@@ -30,6 +31,11 @@ pub enum Column {
     AMin,
     /// Highest open-loop gain.
     AMax,
+    /// A stage document (JSON text, `docs/stage.md`) for the loop step.
+    Stage,
+    /// A field of a stage described in columns (`kind`, `a0`, `gbw_hz`, `rf`, …;
+    /// [`crate::stage::document_pairs`]): the document field it stands for.
+    StageField(&'static str),
 }
 
 /// The value columns, in the order of [`Values`].
@@ -57,6 +63,8 @@ impl Column {
             Column::Zo => "zo",
             Column::AMin => "a_min",
             Column::AMax => "a_max",
+            Column::Stage => "stage",
+            Column::StageField(f) => f,
         }
     }
 
@@ -65,7 +73,9 @@ impl Column {
         let name = name.trim();
         core::iter::once(Column::Topology)
             .chain(VALUE_COLUMNS)
+            .chain(core::iter::once(Column::Stage))
             .find(|c| c.name().eq_ignore_ascii_case(name))
+            .or_else(|| crate::stage::document_pairs::field_of(name).map(Column::StageField))
     }
 
     fn value_index(self) -> Option<usize> {
@@ -75,11 +85,15 @@ impl Column {
 
 /// One row's inputs: the topology and each value column that is present and
 /// not empty.
-#[derive(Debug, Clone, Copy, PartialEq, Default)]
+#[derive(Debug, Clone, PartialEq, Default)]
 pub struct Values {
     /// The topology (series-shunt when the column is missing or empty).
     pub topology: Option<Topology>,
     values: [Option<f64>; 8],
+    /// The stage document of the row, as written.
+    stage: Option<alloc::string::String>,
+    /// The stage fields of the row, as written.
+    stage_fields: alloc::vec::Vec<(&'static str, alloc::string::String)>,
 }
 
 impl Values {
@@ -95,7 +109,11 @@ impl Values {
             return Ok(());
         }
         match column.value_index() {
-            None => self.topology = Some(text.parse()?),
+            None if column == Column::Stage => self.stage = Some(text.into()),
+            None => match column {
+                Column::StageField(f) => self.stage_fields.push((f, text.into())),
+                _ => self.topology = Some(text.parse()?),
+            },
             Some(i) => {
                 let x =
                     crate::notation::parse_value(text).map_err(|e| e.with_param(column.name()))?;
@@ -128,14 +146,24 @@ pub enum Step {
     Inverse,
     /// Closed-loop gain spread over the open-loop gain range.
     Spread,
+    /// The loop of a stage (a `stage` document column, or a `kind` column with
+    /// the amplifier figures and parts as columns): phase margin, crossover, gain
+    /// margin, the closed-loop verdict and the DC closed-loop gain.
+    Loop,
 }
 
 /// The steps' names, for messages.
-pub const STEP_NAMES: &str = "stage, impedance, inverse, spread";
+pub const STEP_NAMES: &str = "stage, impedance, inverse, spread, loop";
 
 impl Step {
     /// Every step, in output order.
-    pub const ALL: [Step; 4] = [Step::Stage, Step::Impedance, Step::Inverse, Step::Spread];
+    pub const ALL: [Step; 5] = [
+        Step::Stage,
+        Step::Impedance,
+        Step::Inverse,
+        Step::Spread,
+        Step::Loop,
+    ];
 
     /// The name used by `--compute`.
     pub const fn name(self) -> &'static str {
@@ -144,6 +172,7 @@ impl Step {
             Step::Impedance => "impedance",
             Step::Inverse => "inverse",
             Step::Spread => "spread",
+            Step::Loop => "loop",
         }
     }
 
@@ -168,6 +197,17 @@ impl Step {
             Step::Impedance => &[Column::A, Column::Beta, Column::Zi, Column::Zo],
             Step::Inverse => &[Column::A, Column::TargetGain],
             Step::Spread => &[Column::Beta, Column::AMin, Column::AMax],
+            // A `stage` column or a `kind` column: checked by `has_inputs`.
+            Step::Loop => &[],
+        }
+    }
+
+    /// Whether a header with these columns gives the step its inputs.
+    pub fn has_inputs(self, columns: &[Option<Column>]) -> bool {
+        let has = |c: Column| columns.contains(&Some(c));
+        match self {
+            Step::Loop => has(Column::Stage) || has(Column::StageField("kind")),
+            _ => self.needs().iter().all(|c| has(*c)),
         }
     }
 
@@ -184,6 +224,13 @@ impl Step {
             Step::Impedance => &["input_impedance", "output_impedance"],
             Step::Inverse => &["beta_for_target", "min_open_loop_gain"],
             Step::Spread => &["spread_percent", "spread_ppm"],
+            Step::Loop => &[
+                "phase_margin_deg",
+                "crossover_hz",
+                "gain_margin_db",
+                "closed_loop_stable",
+                "dc_gain",
+            ],
         }
     }
 
@@ -229,12 +276,57 @@ impl Step {
                 let s = gain_spread(v.need(Column::Beta)?, a_min, a_typ, a_max)?;
                 [Some(s.spread_percent), Some(s.spread_ppm), None, None, None]
             }
+            Step::Loop => stage_loop(v)?,
         };
         for (slot, r) in out.iter_mut().zip(results) {
             *slot = r;
         }
         Ok(())
     }
+}
+
+/// The loop step of one row: the stage from its document or its fields, then
+/// the margins of its loop ([`crate::stage::margins::circuit_margins`]), the
+/// verdict from its poles (1 stable, 0 marginal or unstable) and its closed-loop
+/// gain at 0 Hz (the real part: the gain with its sign).
+fn stage_loop(v: &Values) -> Result<[Option<f64>; 5]> {
+    use crate::stage::closed_loop::gain_sweep;
+    use crate::stage::margins::circuit_margins;
+    let stage = match (&v.stage, v.stage_fields.is_empty()) {
+        (Some(doc), true) => crate::stage::read_stage(doc)?,
+        (None, false) => crate::stage::document_pairs::stage_from_pairs(
+            v.stage_fields
+                .iter()
+                .map(|(f, t)| (*f, crate::json::Json::from(t.as_str()))),
+        )?,
+        (Some(_), false) => {
+            return Err(Error::OutOfDomain {
+                param: "stage",
+                requirement: "give the stage as a document or as columns, not both in one row",
+            })
+        }
+        (None, true) => {
+            return Err(Error::OutOfDomain {
+                param: "stage",
+                requirement: "is empty in this row: give a stage document or kind and the figures",
+            })
+        }
+    };
+    let sc = stage.circuit()?;
+    let m = circuit_margins(&sc.circuit, sc.amplifier)?;
+    let output = match sc.output_current {
+        Some(e) => crate::circuit::blackman::Output::Current(e),
+        None => crate::circuit::blackman::Output::Voltage(sc.output, "0"),
+    };
+    let dc = gain_sweep(&sc.circuit, sc.source, output, &[0.0])?;
+    let stable = m.closed_loop == crate::freq::Verdict::Stable;
+    Ok([
+        m.phase_margin_deg,
+        m.crossover_hz,
+        m.gain_margin_db,
+        Some(f64::from(u8::from(stable))),
+        dc.re.first().copied(),
+    ])
 }
 
 /// β of an ideal loop (A → ∞) with closed-loop gain `target`: β = 1/target.

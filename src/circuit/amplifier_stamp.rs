@@ -223,6 +223,11 @@ pub(crate) fn output_signal(part: &AmplifierPart, first: usize, x: &[Complex64])
     }
 }
 
+/// The unknown holding the output signal y = A(s)·(V(+) − V(−)).
+pub(crate) fn output_unknown(part: &AmplifierPart, first: usize) -> usize {
+    first + state_count(part) - 1
+}
+
 /// The branch current's unknown when Ro = 0.
 pub(crate) fn branch_unknown(part: &AmplifierPart, first: usize) -> Option<usize> {
     (part.model.ro == 0.0).then(|| first + state_count(part))

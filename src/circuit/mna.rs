@@ -23,7 +23,7 @@
 
 use super::amplifier_stamp::{self, Terminals};
 use super::error::{CircuitError, CircuitResult, Name, WithName};
-use super::lu::Lu;
+use super::lu::{Lu, NoPivot, Pattern};
 use super::netlist::{Circuit, Control, ElementKind};
 use crate::check;
 use crate::error::Error;
@@ -505,61 +505,130 @@ fn solve_matrix(
     m: Vec<Complex64>,
     rhs: &[Complex64],
 ) -> CircuitResult<Vec<Complex64>> {
-    let lu = Lu::factor(lay.size, m.clone()).map_err(|p| {
-        if p.column < lay.nodes {
-            let name = c.nodes().get(p.column + 1).copied().unwrap_or(Name::EMPTY);
-            CircuitError::new(
-                Error::Singular {
-                    param: "node",
-                    reason: "the circuit equations leave this node's voltage undetermined",
-                },
-                name,
-            )
-        } else {
-            let name = lay
-                .branch
-                .iter()
-                .position(|&b| b == Some(p.column))
-                .and_then(|i| c.elements().get(i))
-                .map(|e| e.name())
-                .unwrap_or(Name::EMPTY);
-            CircuitError::new(
-                Error::Singular {
-                    param: "element",
-                    reason: "the circuit equations leave this element's current undetermined",
-                },
-                name,
-            )
-        }
-    })?;
-    let mut x = lu.solve(rhs);
-    // One step of iterative refinement: r = b − M·x, x += M⁻¹·r. It recovers the
-    // digits the elimination lost on badly scaled systems (Golub & Van Loan,
-    // Matrix Computations, 4th ed., section 3.5.3, from memory).
-    let n = lay.size;
-    let residual: Vec<Complex64> = (0..n)
-        .map(|r| {
-            let row = m.get(r * n..(r + 1) * n).unwrap_or(&[]);
-            rhs.get(r).copied().unwrap_or_default()
-                - row.iter().zip(&x).map(|(a, b)| a * b).sum::<Complex64>()
-        })
-        .collect();
-    let dx = lu.solve(&residual);
-    if dx.iter().all(|z| z.re.is_finite() && z.im.is_finite()) {
-        for (xi, d) in x.iter_mut().zip(dx) {
-            *xi += d;
-        }
-    }
-    for (i, z) in x.iter().enumerate() {
-        if !(z.re.is_finite() && z.im.is_finite()) {
-            let name = c.nodes().get(i + 1).copied().unwrap_or(Name::EMPTY);
-            return Err(CircuitError::new(
-                Error::Overflow { param: "solution" },
-                name,
-            ));
-        }
-    }
+    let zero = Complex64::new(0.0, 0.0);
+    let pattern = Pattern::from_fn(lay.size, |i| m.get(i).is_some_and(|z| *z != zero));
+    let mut work = Workspace::new(lay.size, pattern);
+    let mut x = alloc::vec![zero; lay.size];
+    work.solve(
+        c,
+        lay,
+        |i| m.get(i).copied().unwrap_or_default(),
+        rhs,
+        &mut x,
+    )?;
     Ok(x)
+}
+
+/// The storage of one solve — the factorization, the residual and the
+/// correction — allocated once, so that a sweep factors and solves at each
+/// frequency without allocating.
+pub(crate) struct Workspace {
+    n: usize,
+    lu: Lu,
+    residual: Vec<Complex64>,
+    correction: Vec<Complex64>,
+    /// Where M may be nonzero (the stamped pattern of G and C, the same at
+    /// every frequency): the fill, the equilibration and the residual visit
+    /// only these entries.
+    pattern: Pattern,
+}
+
+impl Workspace {
+    pub fn new(n: usize, pattern: Pattern) -> Workspace {
+        Workspace {
+            n,
+            lu: Lu::with_size(n),
+            residual: alloc::vec![Complex64::new(0.0, 0.0); n],
+            correction: alloc::vec![Complex64::new(0.0, 0.0); n],
+            pattern,
+        }
+    }
+
+    /// Factor M (entry i = r·n + c given by `entry`, zero off the pattern),
+    /// solve M·x = rhs into `x`, refine once and check the unknowns.
+    fn solve(
+        &mut self,
+        c: &Circuit,
+        lay: &Layout,
+        entry: impl Fn(usize) -> Complex64,
+        rhs: &[Complex64],
+        x: &mut [Complex64],
+    ) -> CircuitResult<()> {
+        let n = self.n;
+        let a = self.lu.matrix_mut();
+        a.fill(Complex64::new(0.0, 0.0));
+        for r in 0..n {
+            for &j in self.pattern.row(r) {
+                if let Some(z) = a.get_mut(r * n + j) {
+                    *z = entry(r * n + j);
+                }
+            }
+        }
+        self.lu
+            .factor_filled(&self.pattern)
+            .map_err(|p| no_pivot(c, lay, p))?;
+        self.lu.solve_into(rhs, x);
+        // One step of iterative refinement: r = b − M·x, x += M⁻¹·r. It recovers the
+        // digits the elimination lost on badly scaled systems (Golub & Van Loan,
+        // Matrix Computations, 4th ed., section 3.5.3, from memory).
+        for (r, out) in self.residual.iter_mut().enumerate() {
+            let mut s = Complex64::new(0.0, 0.0);
+            for &j in self.pattern.row(r) {
+                s += entry(r * n + j) * x.get(j).copied().unwrap_or_default();
+            }
+            *out = rhs.get(r).copied().unwrap_or_default() - s;
+        }
+        self.lu.solve_into(&self.residual, &mut self.correction);
+        if self
+            .correction
+            .iter()
+            .all(|z| z.re.is_finite() && z.im.is_finite())
+        {
+            for (xi, d) in x.iter_mut().zip(&self.correction) {
+                *xi += d;
+            }
+        }
+        for (i, z) in x.iter().enumerate() {
+            if !(z.re.is_finite() && z.im.is_finite()) {
+                let name = c.nodes().get(i + 1).copied().unwrap_or(Name::EMPTY);
+                return Err(CircuitError::new(
+                    Error::Overflow { param: "solution" },
+                    name,
+                ));
+            }
+        }
+        Ok(())
+    }
+}
+
+/// The error of a factorization without a pivot: the node or element whose
+/// unknown the circuit equations leave undetermined.
+fn no_pivot(c: &Circuit, lay: &Layout, p: NoPivot) -> CircuitError {
+    if p.column < lay.nodes {
+        let name = c.nodes().get(p.column + 1).copied().unwrap_or(Name::EMPTY);
+        CircuitError::new(
+            Error::Singular {
+                param: "node",
+                reason: "the circuit equations leave this node's voltage undetermined",
+            },
+            name,
+        )
+    } else {
+        let name = lay
+            .branch
+            .iter()
+            .position(|&b| b == Some(p.column))
+            .and_then(|i| c.elements().get(i))
+            .map(|e| e.name())
+            .unwrap_or(Name::EMPTY);
+        CircuitError::new(
+            Error::Singular {
+                param: "element",
+                reason: "the circuit equations leave this element's current undetermined",
+            },
+            name,
+        )
+    }
 }
 
 /// The voltage transfer V(plus) − V(minus) per unit of the named independent
@@ -633,9 +702,10 @@ pub fn voltage_transfer_sweep(
     let (c1, _) = unit_source(c, source)?;
     let (p, m) = (c1.node_index(plus)?, c1.node_index(minus)?);
     let mut sweeper = Sweeper::new(&c1)?;
+    let mut x = alloc::vec![Complex64::new(0.0, 0.0); sweeper.unknowns()];
     let mut out = Vec::with_capacity(frequencies_hz.len());
     for &f in frequencies_hz {
-        let x = sweeper.solve_at(f)?;
+        sweeper.solve_into(f, &mut x)?;
         out.push(node_voltage(&x, p) - node_voltage(&x, m));
     }
     Ok(out)
@@ -660,6 +730,7 @@ pub(crate) struct Sweeper<'a> {
     /// C: the coefficient of s.
     pub cap: Vec<f64>,
     pub rhs: Vec<Complex64>,
+    work: Workspace,
     dc_checked: bool,
     ac_checked: bool,
 }
@@ -670,20 +741,36 @@ impl<'a> Sweeper<'a> {
         let lay = layout(circuit)?;
         let (g, rhs) = assemble(circuit, &lay, 0.0);
         let (unit, _) = assemble(circuit, &lay, 1.0);
-        let cap = unit.iter().zip(&g).map(|(u, z)| u.im - z.im).collect();
+        let cap: Vec<f64> = unit.iter().zip(&g).map(|(u, z)| u.im - z.im).collect();
+        let zero = Complex64::new(0.0, 0.0);
+        let pattern = Pattern::from_fn(lay.size, |i| {
+            g.get(i).is_some_and(|z| *z != zero) || cap.get(i).is_some_and(|c| *c != 0.0)
+        });
+        let work = Workspace::new(lay.size, pattern);
         Ok(Sweeper {
             circuit,
             lay,
             g,
             cap,
             rhs,
+            work,
             dc_checked: false,
             ac_checked: false,
         })
     }
 
-    /// The unknown vector at `frequency_hz`.
+    /// The unknown vector at `frequency_hz` (a fresh vector; see
+    /// [`Sweeper::solve_into`] for the sweep without allocation).
     pub fn solve_at(&mut self, frequency_hz: f64) -> CircuitResult<Vec<Complex64>> {
+        let mut x = alloc::vec![Complex64::new(0.0, 0.0); self.lay.size];
+        self.solve_into(frequency_hz, &mut x)?;
+        Ok(x)
+    }
+
+    /// The unknown vector at `frequency_hz` into `x` (length: the unknowns),
+    /// without allocating: M = G + jω·C refilled, factored and solved in the
+    /// sweeper's own storage.
+    pub fn solve_into(&mut self, frequency_hz: f64, x: &mut [Complex64]) -> CircuitResult<()> {
         let w = omega(frequency_hz)?;
         let checked = if w == 0.0 {
             &mut self.dc_checked
@@ -694,13 +781,32 @@ impl<'a> Sweeper<'a> {
             check_structure(self.circuit, w)?;
             *checked = true;
         }
-        let mw: Vec<Complex64> = self
+        let (g, cap) = (&self.g, &self.cap);
+        let entry = |i: usize| match (g.get(i), cap.get(i)) {
+            (Some(z), Some(b)) => Complex64::new(z.re, z.im + w * b),
+            _ => Complex64::new(0.0, 0.0),
+        };
+        self.work
+            .solve(self.circuit, &self.lay, entry, &self.rhs, x)
+    }
+
+    /// The number of unknowns (the length of the vectors `solve_into` fills).
+    pub fn unknowns(&self) -> usize {
+        self.lay.size
+    }
+
+    /// The unknown vector at a complex frequency s (rad/s): (G + s·C)·x = b,
+    /// for residues of a transfer at its poles (`stage::step`). The structure
+    /// check of [`Sweeper::solve_at`] is not repeated; a singular matrix is
+    /// reported as there.
+    pub fn solve_at_s(&mut self, s: Complex64) -> CircuitResult<Vec<Complex64>> {
+        let m: Vec<Complex64> = self
             .g
             .iter()
             .zip(&self.cap)
-            .map(|(z, b)| Complex64::new(z.re, z.im + w * b))
+            .map(|(z, b)| z + s * b)
             .collect();
-        solve_matrix(self.circuit, &self.lay, mw, &self.rhs)
+        solve_matrix(self.circuit, &self.lay, m, &self.rhs)
     }
 }
 

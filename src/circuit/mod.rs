@@ -33,7 +33,7 @@
 //! assert!(r.ideal_af_error > r.af.relative_error);  // the ideal answer is worse
 //! ```
 
-mod amplifier_stamp;
+pub(crate) mod amplifier_stamp;
 pub mod blackman;
 pub mod error;
 pub mod json;

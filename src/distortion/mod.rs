@@ -48,5 +48,5 @@ pub use series::{closed_loop_series, return_difference, PowerSeries};
 pub use slew::{full_power_bandwidth, max_undistorted_amplitude, required_slew_rate};
 pub use validity::{
     relative_difference, series_check, series_validity_sweep, SeriesCheck, ValiditySweep,
-    MAX_SWEEP_POINTS,
+    MAX_SWEEP_POINTS, NUMERIC_HD_FLOOR,
 };

@@ -17,6 +17,12 @@ use alloc::vec::Vec;
 /// Most points of a sweep.
 pub const MAX_SWEEP_POINTS: usize = 512;
 
+/// The rounding floor of the numeric path, as a fraction of the fundamental: a
+/// numeric HD2 or HD3 below it is rounding noise of the solve and the DFT, not a
+/// result (module doc; a linear amplifier, whose true harmonics are 0, gives
+/// values below it: the test `linear_amplifier_stays_under_the_floor`).
+pub const NUMERIC_HD_FLOOR: f64 = 1e-12;
+
 /// Relative difference |a − b| / max(|a|, |b|), 0 when both are 0; in [0, 1] for
 /// values of one sign.
 pub fn relative_difference(a: f64, b: f64) -> f64 {
@@ -110,6 +116,8 @@ pub struct ValiditySweep {
     pub hd3_limit_amplitude: Option<f64>,
     /// True when every swept point agrees within `tolerance` on HD3.
     pub hd3_holds_throughout: bool,
+    /// [`NUMERIC_HD_FLOOR`]: numeric values below it are rounding noise.
+    pub numeric_floor: f64,
 }
 
 /// Sweep the input amplitude from `amplitude_min` to `amplitude_max` in `points`
@@ -178,6 +186,7 @@ pub fn series_validity_sweep(
         fold_amplitude: if fold.is_finite() { Some(fold) } else { None },
         hd3_limit_amplitude: None,
         hd3_holds_throughout: true,
+        numeric_floor: NUMERIC_HD_FLOOR,
     };
     let ratio = hi / lo;
     let mut previous: Option<f64> = None;
@@ -206,6 +215,23 @@ pub fn series_validity_sweep(
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn linear_amplifier_stays_under_the_floor() {
+        // A linear amplifier has no harmonics at all (a2 = a3 = 0): every numeric
+        // HD the sweep reports is rounding noise, and must sit under the floor it
+        // reports (common practice, no source: a double-precision solve and DFT).
+        let amp = PowerSeries::new(1e4, 0.0, 0.0).unwrap();
+        let s = series_validity_sweep(&amp, 0.01, 1e-4, 1.0, 12, 0.1, 256).unwrap();
+        assert_eq!(s.numeric_floor, NUMERIC_HD_FLOOR);
+        assert!(!s.amplitudes.is_empty());
+        for (h2, h3) in s.numeric_hd2.iter().zip(&s.numeric_hd3) {
+            assert!(
+                h2.abs() < s.numeric_floor && h3.abs() < s.numeric_floor,
+                "{h2} {h3}"
+            );
+        }
+    }
 
     #[test]
     fn difference_is_symmetric_and_bounded() {

@@ -78,6 +78,25 @@ pub fn gain_bandwidth(a0: f64, f_h: f64) -> Result<f64> {
     check::result("gain_bandwidth", a0 * f)
 }
 
+/// The dominant pole of a single-pole amplifier given by its gain–bandwidth
+/// product: fH = GBW/A0, Hz (the inverse of [`gain_bandwidth`]; a datasheet gives
+/// GBW, the pole follows from the DC gain).
+///
+/// # Errors
+/// `gbw_hz` or `a0` not > 0.
+///
+/// # Example
+/// ```
+/// use loopwright::freq::closed_forms::pole_for_gbw;
+/// assert_eq!(pole_for_gbw(1e6, 1e5).unwrap(), 10.0);
+/// assert_eq!(pole_for_gbw(0.0, 1e5).unwrap_err().param(), "gbw_hz");
+/// ```
+pub fn pole_for_gbw(gbw_hz: f64, a0: f64) -> Result<f64> {
+    let gbw = check::positive("gbw_hz", gbw_hz)?;
+    let a0 = check::positive("a0", a0)?;
+    check::result("pole_for_gbw", gbw / a0)
+}
+
 /// The closed loop of a two-pole amplifier in closed form.
 #[derive(Debug, Clone, Copy, PartialEq)]
 #[cfg_attr(feature = "serde", derive(serde::Serialize))]

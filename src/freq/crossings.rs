@@ -15,6 +15,7 @@
 //! ch. 4 (the zero finder; from memory).
 
 use super::bandwidth::golden_max;
+use super::evaluated::EvaluatedLoop;
 use super::model::{ComplexPair, FeedbackLoop};
 use super::response::loop_log;
 use crate::error::{Error, Result};
@@ -26,16 +27,13 @@ pub const CROSSING_REL_TOL: f64 = 1e-12;
 pub const DEFAULT_POINTS_PER_DECADE: u32 = 40;
 /// Least and most grid points per decade accepted.
 pub const POINTS_PER_DECADE_RANGE: (u32, u32) = (4, 2000);
-/// Decades beyond the outermost corners that the grid covers.
-const MARGIN_DECADES: f64 = 3.0;
+use super::evaluated::{MARGIN_DECADES, MAX_SPAN_DECADES};
 /// Phase crossings are searched only where |T| ≥ 10^(−MAX_GAIN_MARGIN_DB/20).
 pub const MAX_GAIN_MARGIN_DB: f64 = 240.0;
 const LN_MIN_LOOP_GAIN: f64 = -MAX_GAIN_MARGIN_DB / 20.0 * core::f64::consts::LN_10;
 /// Most phase crossings one loop may have within the search range (a long delay
 /// in front of a wide loop can turn the phase many times).
 pub const MAX_PHASE_CROSSINGS: usize = 5000;
-/// Widest search span, decades.
-const MAX_SPAN_DECADES: f64 = 40.0;
 
 /// The frequency interval [lo, hi] in Hz where crossings are searched.
 pub(crate) fn search_range(l: &FeedbackLoop) -> (f64, f64) {
@@ -74,12 +72,8 @@ pub(crate) fn search_range(l: &FeedbackLoop) -> (f64, f64) {
     (lo, hi)
 }
 
-/// The search grid: a log grid over the search range at `ppd` points per
-/// decade, with every corner frequency on it, and around each complex pair a
-/// local grid set by that pair's own Q (its resonance is f0/Q wide), with the
-/// extremum of |T| near the pair (a peak for a pole pair, a notch for a zero
-/// pair) located by golden section and put on the grid too. Ascending.
-pub(crate) fn grid(l: &FeedbackLoop, ppd: u32) -> Result<Vec<f64>> {
+/// The grid density `ppd` checked against [`POINTS_PER_DECADE_RANGE`].
+pub(crate) fn check_density(ppd: u32) -> Result<()> {
     let (lo_ppd, hi_ppd) = POINTS_PER_DECADE_RANGE;
     if ppd < lo_ppd || ppd > hi_ppd {
         return Err(Error::OutOfDomain {
@@ -87,15 +81,26 @@ pub(crate) fn grid(l: &FeedbackLoop, ppd: u32) -> Result<Vec<f64>> {
             requirement: "must be between 4 and 2000",
         });
     }
-    let (lo, hi) = search_range(l);
+    Ok(())
+}
+
+/// The search grid: a log grid over the search range at `ppd` points per
+/// decade, with every corner frequency on it, and around each complex pair a
+/// local grid set by that pair's own Q (its resonance is f0/Q wide), with the
+/// extremum of |T| near the pair (a peak for a pole pair, a notch for a zero
+/// pair) located by golden section and put on the grid too. Ascending.
+pub(crate) fn grid<L: EvaluatedLoop + ?Sized>(l: &L, ppd: u32) -> Result<Vec<f64>> {
+    check_density(ppd)?;
+    let (lo, hi) = l.search_range();
     let n = (crate::float::ceil(libm::log10(hi / lo) * f64::from(ppd)) as usize).max(2) + 1;
     let (a, b) = (libm::log(lo), libm::log(hi));
     let mut f: Vec<f64> = (0..n)
         .map(|i| libm::exp(a + (b - a) * i as f64 / (n - 1) as f64))
         .collect();
     let inside = |x: f64| x > lo && x < hi;
-    f.extend(l.corners_hz().into_iter().filter(|&x| inside(x)));
-    for (pair, is_pole) in pairs(l) {
+    let hints = l.hints();
+    f.extend(hints.sorted_corners().into_iter().filter(|&x| inside(x)));
+    for &(pair, is_pole) in &hints.pairs {
         f.extend(resonance_points(l, pair, is_pole).filter(|&x| inside(x)));
     }
     crate::sort::sort_by(&mut f, f64::total_cmp);
@@ -111,19 +116,11 @@ const RESONANCE_WIDTHS: i32 = 4;
 /// that the log grid follows).
 const LOCAL_GRID_MIN_Q: f64 = 0.5;
 
-/// Every complex pair of A and β, with true for a pole pair.
-fn pairs(l: &FeedbackLoop) -> impl Iterator<Item = (ComplexPair, bool)> + '_ {
-    let (a, b) = (l.amplifier(), l.feedback());
-    let poles = a.complex_poles.iter().chain(&b.complex_poles);
-    let zeros = a.complex_zeros.iter().chain(&b.complex_zeros);
-    poles.map(|&p| (p, true)).chain(zeros.map(|&p| (p, false)))
-}
-
 /// The local grid of one pair: f0·exp(k/(8Q)) for |k| ≤ 32, the pair's own
 /// extremum f0·√(1 − 1/(2Q²)) (Q > 1/√2), and the extremum of ln|T| within a
 /// resonance width of f0, by golden section.
-fn resonance_points(
-    l: &FeedbackLoop,
+fn resonance_points<L: EvaluatedLoop + ?Sized>(
+    l: &L,
     pair: ComplexPair,
     is_pole: bool,
 ) -> impl Iterator<Item = f64> + '_ {
@@ -138,7 +135,7 @@ fn resonance_points(
     let own = (q * q > 0.5).then(|| f0 * crate::float::sqrt(1.0 - 0.5 / (q * q)));
     let extremum = local.then(|| {
         let sign = if is_pole { 1.0 } else { -1.0 };
-        let h = move |x: f64| sign * loop_log(l, libm::exp(x)).ln_mag;
+        let h = move |x: f64| sign * l.eval(libm::exp(x)).0;
         let x0 = libm::log(f0);
         libm::exp(golden_max(&h, x0 - 1.0 / q, x0 + 1.0 / q).0)
     });
@@ -255,8 +252,13 @@ fn refine(g: &dyn Fn(f64) -> f64, f0: f64, f1: f64, g0: f64, g1: f64) -> f64 {
 /// assert!((c[0] / (10.0 * (1e6f64 - 1.0).sqrt()) - 1.0).abs() < 1e-11);
 /// assert!(gain_crossings_hz(&l, 1).is_err());
 /// ```
-pub fn gain_crossings_hz(l: &FeedbackLoop, ppd: u32) -> Result<Vec<f64>> {
+pub fn gain_crossings_hz<L: EvaluatedLoop + ?Sized>(l: &L, ppd: u32) -> Result<Vec<f64>> {
     Ok(scan(l, ppd)?.0.into_iter().map(|(f, _)| f).collect())
+}
+
+/// The error of a loop gain that could not be evaluated (a NaN ln|T|).
+pub(crate) fn failed() -> Error {
+    Error::Overflow { param: "loopGain" }
 }
 
 /// Unity-gain crossings (frequency, rising) and −180° crossings (frequency).
@@ -265,11 +267,14 @@ pub(crate) type Scan = (Vec<(f64, bool)>, Vec<f64>);
 /// Both kinds of crossing from one pass over the grid: unity-gain crossings with
 /// their direction (`true` when |T| rises through 1 as f rises), and −180°
 /// crossings.
-pub(crate) fn scan(l: &FeedbackLoop, ppd: u32) -> Result<Scan> {
+pub(crate) fn scan<L: EvaluatedLoop + ?Sized>(l: &L, ppd: u32) -> Result<Scan> {
     let f = grid(l, ppd)?;
     let (mut ln, mut ph) = (Vec::with_capacity(f.len()), Vec::with_capacity(f.len()));
-    l.fast_loop().sweep(&f, &mut ln, &mut ph);
-    let g = |x: f64| loop_log(l, libm::exp(x)).ln_mag;
+    l.sweep(&f, &mut ln, &mut ph);
+    if ln.iter().any(|x| x.is_nan()) {
+        return Err(failed());
+    }
+    let g = |x: f64| l.eval(libm::exp(x)).0;
     let mut gains = Vec::new();
     let mut phases = Vec::new();
     for i in 1..f.len() {
@@ -299,9 +304,15 @@ pub(crate) fn scan(l: &FeedbackLoop, ppd: u32) -> Result<Scan> {
             });
         }
         let first = phases.len();
+        let (xp, xi) = (libm::log(fp), libm::log(fi));
         for m in m_lo..=m_hi {
             let level = -180.0 + 360.0 * m as f64;
-            let h = move |x: f64| loop_log(l, libm::exp(x)).deg() - level;
+            // The phase on the branch of the straight line between the two
+            // grid phases (a continuous phase is taken as it is).
+            let h = move |x: f64| {
+                let hint = (pp + (pi - pp) * (x - xp) / (xi - xp)).to_radians();
+                l.eval_near(libm::exp(x), hint).1.to_degrees() - level
+            };
             phases.push(refine(&h, fp, fi, pp - level, pi - level));
         }
         if let Some(tail) = phases.get_mut(first..) {
@@ -329,7 +340,7 @@ pub(crate) fn scan(l: &FeedbackLoop, ppd: u32) -> Result<Scan> {
 /// let c = phase_crossings_hz(&l, 40).unwrap();
 /// assert!((c[0] / (1e3 * 3f64.sqrt()) - 1.0).abs() < 1e-11);
 /// ```
-pub fn phase_crossings_hz(l: &FeedbackLoop, ppd: u32) -> Result<Vec<f64>> {
+pub fn phase_crossings_hz<L: EvaluatedLoop + ?Sized>(l: &L, ppd: u32) -> Result<Vec<f64>> {
     Ok(scan(l, ppd)?.1)
 }
 

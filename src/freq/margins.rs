@@ -31,9 +31,9 @@
 //! at every crossing.
 
 use super::crossings::{scan, DEFAULT_POINTS_PER_DECADE};
+use super::evaluated::EvaluatedLoop;
 use super::model::FeedbackLoop;
 use super::poles::{closed_loop_poles, ClosedLoopPoles, Verdict};
-use super::response::loop_log;
 use crate::error::Result;
 use alloc::vec::Vec;
 
@@ -172,19 +172,63 @@ fn margins_and_poles_with_density(
     l: &FeedbackLoop,
     points_per_decade: u32,
 ) -> Result<(Margins, ClosedLoopPoles)> {
+    let validity = if l.open_loop_unstable() {
+        MarginValidity::OpenLoopUnstable
+    } else if l.amplifier().gain * l.feedback().gain < 0.0 {
+        MarginValidity::PositiveFeedback
+    } else {
+        MarginValidity::Meaningful
+    };
+    let mut poles = None;
+    let margins = margins_of(
+        l,
+        points_per_decade,
+        || {
+            let p = closed_loop_poles(l)?;
+            let verdict = p.verdict;
+            poles = Some(p);
+            Ok(verdict)
+        },
+        validity,
+    )?;
+    // margins_of asks for the verdict whenever it succeeds; the fallback only keeps
+    // this total without an unwrap.
+    let poles = match poles {
+        Some(p) => p,
+        None => closed_loop_poles(l)?,
+    };
+    Ok((margins, poles))
+}
+
+/// The margins of any evaluated loop gain (a pole-list loop, a circuit's
+/// return ratio, a measured loop): every crossing read as its distance to −1,
+/// the worst of each kind signed by the verdict `closed_loop` returns (from
+/// the caller's closed-loop poles; asked after the crossings are found), with
+/// the caller's `validity`.
+///
+/// # Errors
+/// `points_per_decade` outside 4…2000; [`crate::Error::TooLarge`]
+/// (`phase_crossings`); [`crate::Error::Overflow`] (`loopGain`) when the loop
+/// gain cannot be evaluated on the search grid; those of `closed_loop`.
+pub fn margins_of<L: EvaluatedLoop + ?Sized>(
+    l: &L,
+    points_per_decade: u32,
+    closed_loop: impl FnOnce() -> Result<Verdict>,
+    validity: MarginValidity,
+) -> Result<Margins> {
     let (gain_list, phase_list) = scan(l, points_per_decade)?;
     let gains: Vec<Crossing> = gain_list
         .into_iter()
         .map(|(f, rising)| Crossing {
             freq_hz: f,
-            margin: phase_distance_deg(loop_log(l, f).deg()),
+            margin: phase_distance_deg(l.eval(f).1.to_degrees()),
             rising,
         })
         .collect();
     let phases: Vec<Crossing> = phase_list
         .into_iter()
         .map(|f| {
-            let db = loop_log(l, f).db();
+            let db = l.eval(f).0 * (20.0 / core::f64::consts::LN_10);
             Crossing {
                 freq_hz: f,
                 margin: libm::fabs(db),
@@ -197,8 +241,7 @@ fn margins_and_poles_with_density(
             .copied()
             .min_by(|a, b| a.margin.total_cmp(&b.margin))
     };
-    let poles = closed_loop_poles(l)?;
-    let closed_loop = poles.verdict;
+    let closed_loop = closed_loop()?;
     let signed = |c: Crossing| {
         if closed_loop == Verdict::Unstable {
             -c.margin
@@ -208,26 +251,16 @@ fn margins_and_poles_with_density(
     };
     let pm = worst(&gains);
     let gm = worst(&phases);
-    let validity = if l.open_loop_unstable() {
-        MarginValidity::OpenLoopUnstable
-    } else if l.amplifier().gain * l.feedback().gain < 0.0 {
-        MarginValidity::PositiveFeedback
-    } else {
-        MarginValidity::Meaningful
-    };
-    Ok((
-        Margins {
-            phase_margin_deg: pm.map(signed),
-            crossover_hz: pm.map(|c| c.freq_hz),
-            gain_margin_db: gm.map(signed),
-            phase_crossover_hz: gm.map(|c| c.freq_hz),
-            gain_crossings: gains,
-            phase_crossings: phases,
-            validity,
-            closed_loop,
-        },
-        poles,
-    ))
+    Ok(Margins {
+        phase_margin_deg: pm.map(signed),
+        crossover_hz: pm.map(|c| c.freq_hz),
+        gain_margin_db: gm.map(signed),
+        phase_crossover_hz: gm.map(|c| c.freq_hz),
+        gain_crossings: gains,
+        phase_crossings: phases,
+        validity,
+        closed_loop,
+    })
 }
 
 /// The phase margin at one unity-gain crossing: the smallest phase change, lag

@@ -19,8 +19,10 @@
 //!
 //! - [`model`]: the models and the validated loop;
 //! - [`response`]: T(jω), Af(jω), sweeps, phase unwrapping;
+//! - [`evaluated`]: any loop gain given by how to evaluate it (the engine's input);
 //! - [`crossings`]: every unity-gain and −180° crossing;
 //! - [`margins`]: phase and gain margin;
+//! - [`nyquist`]: the Nyquist curve, least distance from −1, encirclements;
 //! - [`poly`], [`roots`]: characteristic polynomial and its roots;
 //! - [`poles`]: closed-loop poles, verdict, ζ and Q;
 //! - [`bandwidth`]: −3 dB frequencies and peaking;
@@ -34,8 +36,10 @@ pub mod closed_forms;
 pub mod compensation;
 pub mod crossings;
 mod eval;
+pub mod evaluated;
 pub mod margins;
 pub mod model;
+pub mod nyquist;
 pub mod poles;
 pub mod poly;
 pub mod response;
@@ -45,15 +49,18 @@ pub mod summary;
 
 pub use bandwidth::{closed_loop_bandwidth, Bandwidth};
 pub use closed_forms::{
-    gain_bandwidth, single_pole_high_cutoff, single_pole_low_cutoff, two_pole_response,
-    TwoPoleResponse,
+    gain_bandwidth, pole_for_gbw, single_pole_high_cutoff, single_pole_low_cutoff,
+    two_pole_response, TwoPoleResponse,
 };
 pub use compensation::{dominant_pole_for_margin, max_beta_for_margin, Compensation};
 pub use crossings::{gain_crossings_hz, phase_crossings_hz, CROSSING_REL_TOL};
+pub use evaluated::{EvaluatedLoop, GridHints};
 pub use margins::{
-    margins_and_poles, margins_with_density, stability_margins, Crossing, MarginValidity, Margins,
+    margins_and_poles, margins_of, margins_with_density, stability_margins, Crossing,
+    MarginValidity, Margins,
 };
 pub use model::{ComplexPair, FeedbackLoop, TransferModel};
+pub use nyquist::{nyquist, nyquist_of, Encirclements, LeastDistance, Nyquist, NyquistCurve};
 pub use poles::{closed_loop_poles, ClosedLoopPoles, Pole, Verdict};
 pub use poly::{
     characteristic_polynomial, closed_loop_transfer, CharacteristicPolynomial, ClosedLoopTransfer,

@@ -449,7 +449,7 @@ pub fn step_response(l: &FeedbackLoop, settle_band: f64, points: usize) -> Resul
         for &v in &y {
             check::result("step_output", v)?;
         }
-        let m = Metrics::of(&sys, yf, band, &t, &y, outside);
+        let m = Metrics::of(&|tau| sys.output_at(tau) / yf, band, &t, &y, outside);
         let waveform = StepWaveform {
             time_s: (0..points)
                 .map(|i| span / sys.wn * i as f64 / (points - 1) as f64)
@@ -486,26 +486,25 @@ fn arg_best(y: &[f64], better: impl Fn(f64, f64) -> bool) -> usize {
 
 /// The step metrics in normalised time, refined between detection samples on
 /// the exact response.
-struct Metrics {
-    overshoot: f64,
-    peak_time: Option<f64>,
-    undershoot: f64,
-    rise: f64,
-    settle: f64,
+pub(crate) struct Metrics {
+    pub overshoot: f64,
+    pub peak_time: Option<f64>,
+    pub undershoot: f64,
+    pub rise: f64,
+    pub settle: f64,
 }
 
 impl Metrics {
-    /// `t`, `y`: detection samples (y normalised by the final value `yf`);
-    /// `outside`: the last sample outside the band, if any.
-    fn of(
-        sys: &System,
-        yf: f64,
+    /// `yn`: the exact response over its final value at time τ; `t`, `y`:
+    /// detection samples of it; `outside`: the last sample outside the band,
+    /// if any.
+    pub(crate) fn of(
+        yn: &dyn Fn(f64) -> f64,
         band: f64,
         t: &[f64],
         y: &[f64],
         outside: Option<usize>,
     ) -> Metrics {
-        let yn = |tau: f64| sys.output_at(tau) / yf;
         let span = t[t.len() - 1];
         let first_at = |level: f64| -> f64 {
             match y.iter().position(|&v| v >= level) {
@@ -539,7 +538,7 @@ impl Metrics {
             peak_time,
             undershoot,
             rise,
-            settle: last_exit(&yn, band, t, y, outside),
+            settle: last_exit(yn, band, t, y, outside),
         }
     }
 }

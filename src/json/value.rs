@@ -58,6 +58,13 @@ impl Json {
         Json::Object(members)
     }
 
+    /// The compact JSON text of the value, members in the tree's order.
+    pub fn to_text(&self) -> String {
+        let mut w = super::JsonWriter::new();
+        w.value(self);
+        w.finish()
+    }
+
     /// The text of a string.
     pub fn as_str(&self) -> Option<&str> {
         match self {

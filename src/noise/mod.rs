@@ -8,6 +8,7 @@
 //!   noise gain, up to two extra poles; unstable loops refused);
 //! - [`quadrature`]: adaptive Gauss–Kronrod integration;
 //! - [`integrated`]: output density versus frequency and rms noise over a band.
+//! - [`circuit`]: noise of any circuit document through its real network.
 //!
 //! ```
 //! use loopwright::noise::{integrated_output_noise, AmplifierNoise, ClosedLoopResponse, Stage, StageKind};
@@ -22,6 +23,7 @@
 //! ```
 
 pub mod amplifier;
+pub mod circuit;
 pub mod integrated;
 pub mod quadrature;
 pub mod response;

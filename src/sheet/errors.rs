@@ -83,7 +83,7 @@ impl ErrorKind {
             ErrorKind::NotAvailable => "a value that is not available",
             ErrorKind::Cycle => "the cell is part of a circular reference, so it has no value",
             ErrorKind::Blocked => {
-                "the formula gives several values but a cell they would spill into is not empty"
+                "the formula gives several values but a cell they would fan out into is not empty"
             }
             ErrorKind::Syntax => "the formula does not parse",
             ErrorKind::Budget => {

@@ -36,6 +36,8 @@ mod document;
 mod edit;
 mod errors;
 mod eval;
+#[cfg(feature = "sheetfiles")]
+pub mod files;
 pub mod functions;
 mod graph;
 mod input;

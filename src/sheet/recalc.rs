@@ -210,7 +210,7 @@ impl Sheet {
             let v = if last {
                 Some(Value::error(
                     ErrorKind::Cycle,
-                    "spilled results keep changing the cells they are computed from",
+                    "results that fan out keep changing the cells they are computed from",
                 ))
             } else {
                 self.compute(c, on_cycle, work)

@@ -133,7 +133,7 @@ impl Sheet {
         displaced: &mut Vec<(CellRef, Range)>,
     ) -> Value {
         let Some(end) = c.offset(a.rows() - 1, a.cols() - 1) else {
-            return Value::error(ErrorKind::Blocked, format!("{c}: the results would spill past the edge of the sheet ({MAX_ROWS} rows, {MAX_COLS} columns)"));
+            return Value::error(ErrorKind::Blocked, format!("{c}: the results would fan out past the edge of the sheet ({MAX_ROWS} rows, {MAX_COLS} columns)"));
         };
         let r = Range::new(c, end);
         let blocker = r.cells().find(|x| {
@@ -143,14 +143,14 @@ impl Sheet {
             self.blocked.insert(c, r);
             return Value::error(
                 ErrorKind::Blocked,
-                format!("the results would spill into {b}, which is not empty"),
+                format!("the results would fan out into {b}, which is not empty"),
             );
         }
         if let Some(x) = self.spill_reads_itself(c, r) {
             self.blocked.insert(c, r);
             return Value::error(
                 ErrorKind::Cycle,
-                format!("the results would spill into {x}, which this formula depends on"),
+                format!("the results would fan out into {x}, which this formula depends on"),
             );
         }
         self.displace_later(c, r, rc, displaced);
@@ -182,7 +182,7 @@ impl Sheet {
                     a,
                     Value::error(
                         ErrorKind::Blocked,
-                        format!("the results would spill into cells that {c} fills"),
+                        format!("the results would fan out into cells that {c} fills"),
                     ),
                 );
                 displaced.push((a, ar));

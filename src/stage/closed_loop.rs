@@ -62,8 +62,9 @@ pub fn gain_sweep(
         Output::Voltage(p, m) => {
             let (p, m) = (c1.node_index(p)?, c1.node_index(m)?);
             let mut sweeper = Sweeper::new(&c1)?;
+            let mut x = alloc::vec![Complex64::new(0.0, 0.0); sweeper.unknowns()];
             for &f in frequencies_hz {
-                let x = sweeper.solve_at(f)?;
+                sweeper.solve_into(f, &mut x)?;
                 h.push(node_voltage(&x, p) - node_voltage(&x, m));
             }
         }
@@ -126,12 +127,13 @@ pub fn impedance_sweep(
     c1.zero_sources();
     c1.add_internal("test", ElementKind::CurrentSource, minus, plus, 1.0)?;
     let mut sweeper = Sweeper::new(&c1)?;
+    let mut x = alloc::vec![Complex64::new(0.0, 0.0); sweeper.unknowns()];
     let mut out = ImpedanceSweep {
         freq_hz: frequencies_hz.to_vec(),
         ..ImpedanceSweep::default()
     };
     for &f in frequencies_hz {
-        let x = sweeper.solve_at(f)?;
+        sweeper.solve_into(f, &mut x)?;
         let z = check::result_complex("impedance", node_voltage(&x, p) - node_voltage(&x, m))?;
         out.magnitude_ohm.push(z.norm());
         out.phase_deg.push(libm::atan2(z.im, z.re).to_degrees());

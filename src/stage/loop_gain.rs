@@ -198,9 +198,10 @@ pub fn return_ratio_samples(
     quiet.zero_sources();
     let opened = open_at(&quiet, controlled, 1.0)?;
     let mut sweeper = Sweeper::new(&opened.circuit)?;
+    let mut x = alloc::vec![Complex64::new(0.0, 0.0); sweeper.unknowns()];
     let mut out = Vec::with_capacity(frequencies_hz.len());
     for &f in frequencies_hz {
-        let x = sweeper.solve_at(f)?;
+        sweeper.solve_into(f, &mut x)?;
         let returned = control_in(c, opened.index, &sweeper, &x)?;
         let k = reference_gain(c, opened.index, f)?;
         out.push(check::result_complex("loopGain", -(k * returned))?);

@@ -76,6 +76,8 @@ export interface ValiditySweepOptions extends LoopSeriesOptions {
 export interface ValiditySweep {
   amplitudes: Float64Array; seriesHd2: Float64Array; seriesHd3: Float64Array; numericHd2: Float64Array; numericHd3: Float64Array;
   foldAmplitude: number | null; hd3LimitAmplitude: number | null; hd3HoldsThroughout: boolean;
+  /** Numeric HD2/HD3 below this fraction are rounding noise of the numeric path, not results. */
+  numericFloor: number;
 }
 "#;
 
@@ -385,7 +387,8 @@ fn default_sweep_samples() -> f64 {
 
 /// Series against numeric over log-spaced input amplitudes: Float64Arrays
 /// `amplitudes, seriesHd2, seriesHd3, numericHd2, numericHd3`, and `foldAmplitude`,
-/// `hd3LimitAmplitude` (numbers or `null`), `hd3HoldsThroughout`.
+/// `hd3LimitAmplitude` (numbers or `null`), `hd3HoldsThroughout`, `numericFloor`
+/// (numeric values below it are rounding noise).
 #[wasm_bindgen(js_name = seriesValiditySweep, unchecked_return_type = "ValiditySweep")]
 pub fn series_validity_sweep(
     #[wasm_bindgen(unchecked_param_type = "ValiditySweepOptions")] options: JsValue,
@@ -426,6 +429,7 @@ pub fn series_validity_sweep(
         &"hd3HoldsThroughout".into(),
         &s.hd3_holds_throughout.into(),
     )?;
+    js_sys::Reflect::set(&obj, &"numericFloor".into(), &s.numeric_floor.into())?;
     Ok(obj)
 }
 

@@ -27,6 +27,8 @@ pub mod notation;
 pub(crate) mod options;
 #[cfg(feature = "wasm")]
 pub mod sheet;
+#[cfg(feature = "wasm")]
+pub mod stage;
 
 use crate::Error;
 use wasm_bindgen::prelude::*;

@@ -64,7 +64,9 @@ export interface StageOptions {
   /** Amplifier input and output resistance, Ω. */
   ri: number; ro: number;
   /** Dominant pole of the typical amplifier (A = aTyp), Hz. */
-  poleHz: number;
+  poleHz?: number;
+  /** Or the gain-bandwidth product, Hz, instead of poleHz: the pole is gbwHz/aTyp. One of the two is given. */
+  gbwHz?: number;
   /** What the spread of A holds: "gbw" (the gain-bandwidth product aTyp·poleHz, the pole moving to GBW/A) or "pole". Default "gbw". */
   hold?: "gbw" | "pole";
 }
@@ -239,13 +241,17 @@ struct StageOptions {
     a_max: f64,
     ri: f64,
     ro: f64,
-    pole_hz: f64,
+    /// The dominant pole at aTyp, Hz; or, instead, `gbw_hz`.
+    pole_hz: Option<f64>,
+    /// The gain–bandwidth product, Hz: the pole is GBW/aTyp.
+    gbw_hz: Option<f64>,
     hold: String,
 }
 
 impl FromOptions for StageOptions {
     const FIELDS: &'static [&'static str] = &[
-        "stage", "r1", "r2", "tolR1", "tolR2", "aMin", "aTyp", "aMax", "ri", "ro", "poleHz", "hold",
+        "stage", "r1", "r2", "tolR1", "tolR2", "aMin", "aTyp", "aMax", "ri", "ro", "poleHz",
+        "gbwHz", "hold",
     ];
     fn from_fields(f: &mut Fields) -> Self {
         StageOptions {
@@ -259,7 +265,8 @@ impl FromOptions for StageOptions {
             a_max: f.num("aMax"),
             ri: f.num("ri"),
             ro: f.num("ro"),
-            pole_hz: f.num("poleHz"),
+            pole_hz: f.opt_num("poleHz"),
+            gbw_hz: f.opt_num("gbwHz"),
             hold: f.text_or("hold", default_hold),
         }
     }
@@ -270,6 +277,20 @@ fn default_hold() -> String {
 }
 
 impl StageOptions {
+    /// The pole from `poleHz`, or from `gbwHz` by the core; exactly one is given.
+    fn pole(&self) -> Result<f64, JsValue> {
+        match (self.pole_hz, self.gbw_hz) {
+            (Some(p), None) => Ok(p),
+            (None, Some(g)) => crate::freq::pole_for_gbw(g, self.a_typ)
+                .map_err(|e| core_error(e, &[("a0", "aTyp")])),
+            _ => throw(Err(crate::Error::OutOfDomain {
+                param: "poleHz",
+                requirement:
+                    "give the pole (poleHz) or the gain-bandwidth product (gbwHz), one of them",
+            })),
+        }
+    }
+
     fn spec(&self) -> Result<StageSpec, JsValue> {
         let named = |e| core_error(e, RENAMES);
         Ok(StageSpec {
@@ -283,7 +304,7 @@ impl StageOptions {
             a_max: self.a_max,
             ri: self.ri,
             ro: self.ro,
-            pole_hz: self.pole_hz,
+            pole_hz: self.pole()?,
             hold: self.hold.parse().map_err(named)?,
         })
     }
@@ -313,7 +334,8 @@ struct MonteCarloOptions {
     a_max: f64,
     ri: f64,
     ro: f64,
-    pole_hz: f64,
+    pole_hz: Option<f64>,
+    gbw_hz: Option<f64>,
     hold: String,
     resistor_distribution: String,
     k: f64,
@@ -340,6 +362,7 @@ impl FromOptions for MonteCarloOptions {
         "ri",
         "ro",
         "poleHz",
+        "gbwHz",
         "hold",
         "resistorDistribution",
         "k",
@@ -364,7 +387,8 @@ impl FromOptions for MonteCarloOptions {
             a_max: f.num("aMax"),
             ri: f.num("ri"),
             ro: f.num("ro"),
-            pole_hz: f.num("poleHz"),
+            pole_hz: f.opt_num("poleHz"),
+            gbw_hz: f.opt_num("gbwHz"),
             hold: f.text_or("hold", default_hold),
             resistor_distribution: f.text_or("resistorDistribution", default_resistors),
             k: f.num_or("k", default_k()),
@@ -427,6 +451,7 @@ pub fn monte_carlo(
         ri: o.ri,
         ro: o.ro,
         pole_hz: o.pole_hz,
+        gbw_hz: o.gbw_hz,
         hold: o.hold,
     };
     let spec = MonteCarloSpec {

@@ -299,3 +299,7 @@ pub fn noise_density_sweep(
         ("inputReferredDensity", &w.input_referred_density),
     ]))
 }
+
+// The noise of a whole circuit needs the circuit solver: full module only.
+#[cfg(feature = "wasm")]
+pub mod circuit;

@@ -269,6 +269,21 @@ impl Fields {
         self.value(key, true, numbers).flatten()
     }
 
+    #[cfg(feature = "wasm")] // the stage and circuit-noise options; not in the lite module
+    /// A required list of numbers.
+    pub(crate) fn req_nums(&mut self, key: &str) -> Vec<f64> {
+        self.required(key, numbers).unwrap_or_default()
+    }
+
+    #[cfg(feature = "wasm")] // the stage documents; not in the lite module
+    /// A required field holding a document of any shape (an object, or its JSON
+    /// text as a string), as the documents' own JSON tree ([`crate::json::Json`]).
+    /// `null` is kept as `Json::Null` for the document reader to refuse.
+    pub(crate) fn document(&mut self, key: &str) -> crate::json::Json {
+        self.required(key, json_tree)
+            .unwrap_or(crate::json::Json::Null)
+    }
+
     /// The raw value of `key` and its place, for a field of more than one kind
     /// (read it with [`Fields::nested`] or record its failure with [`Fields::refuse`]).
     pub(crate) fn raw(&mut self, key: &str) -> Option<(usize, Plain)> {
@@ -413,6 +428,71 @@ fn numbers(v: Plain) -> Result<Vec<f64>, (String, Failure)> {
         }
     }
     Ok(out)
+}
+
+/// A document of any shape as the documents' JSON tree, the way `JSON.stringify`
+/// would write it and `crate::json::parse` read it back: a whole number from 0 to
+/// 2⁵³ keeps its digits ([`crate::json::Number::whole`]), a number that is not
+/// finite becomes `null` (JSON has no NaN or infinity), members keep their order.
+/// A function, symbol or BigInt is of the wrong kind, named by its path.
+#[cfg(feature = "wasm")]
+fn json_tree(v: Plain) -> Result<crate::json::Json, (String, Failure)> {
+    use crate::json::{Json, Number};
+    Ok(match v {
+        Plain::Null => Json::Null,
+        Plain::Bool(b) => Json::Bool(b),
+        Plain::Number(x) if !x.is_finite() => Json::Null,
+        Plain::Number(x) => Json::Number(Number {
+            value: x,
+            whole: is_whole(x).then_some(x as u64),
+        }),
+        Plain::Text(t) => Json::String(t),
+        Plain::List(items) => {
+            let mut out = Vec::with_capacity(items.len());
+            for (i, item) in items.into_iter().enumerate() {
+                out.push(
+                    json_tree(item)
+                        .map_err(|(suffix, failure)| (alloc::format!("[{i}]{suffix}"), failure))?,
+                );
+            }
+            Json::Array(out)
+        }
+        Plain::Map(entries) => {
+            let mut out = Vec::with_capacity(entries.len());
+            for (key, item) in entries {
+                match json_tree(item) {
+                    Ok(x) => out.push((key, x)),
+                    Err((suffix, failure)) => {
+                        return Err((alloc::format!(".{key}{suffix}"), failure))
+                    }
+                }
+            }
+            Json::Object(out)
+        }
+        other @ Plain::Other => return Err((String::new(), wrong(&other, "a JSON value"))),
+    })
+}
+
+/// The argument `value` named `name`, a document object, as the documents' JSON
+/// tree (see [`Fields::document`]).
+///
+/// # Errors
+/// `wrong_type` at `name` when `value` is not an object, or at the path of a
+/// value inside that JSON cannot hold.
+#[cfg(feature = "wasm")]
+pub(crate) fn read_document(name: &str, value: &JsValue) -> Result<crate::json::Json, JsValue> {
+    if !value.is_object() || js_sys::Array::is_array(value) {
+        let e = Error::WrongType {
+            param: "",
+            expected: "an options object",
+        };
+        return Err(error_at(name, e, None));
+    }
+    json_tree(Plain::from_js(value)).map_err(|(suffix, failure)| {
+        let mut path = String::from(name);
+        path.push_str(&suffix);
+        refusal(&path, failure)
+    })
 }
 
 /// A whole number in the range where an f64 holds every integer exactly (the
@@ -625,5 +705,52 @@ mod tests {
             one_of(&["gain", "polesHz", "zerosHz"]),
             "expected one of gain, polesHz, zerosHz"
         );
+    }
+
+    /// A document object becomes the tree `crate::json::parse` builds from the text
+    /// `JSON.stringify` writes of it (the JS object `{"a": [1, 2.5, -3, NaN], "b":
+    /// {"c": "x"}}` stringifies to `{"a":[1,2.5,-3,null],"b":{"c":"x"}}`: MDN,
+    /// JSON.stringify, "NaN and Infinity are serialized as null").
+    #[cfg(feature = "wasm")]
+    #[test]
+    fn a_document_object_becomes_the_tree_of_its_json_text() {
+        let plain = Plain::Map(alloc::vec![
+            (
+                String::from("a"),
+                Plain::List(alloc::vec![
+                    Plain::Number(1.0),
+                    Plain::Number(2.5),
+                    Plain::Number(-3.0),
+                    Plain::Number(f64::NAN),
+                ]),
+            ),
+            (
+                String::from("b"),
+                Plain::Map(alloc::vec![(String::from("c"), Plain::Text("x".into()))]),
+            ),
+        ]);
+        let tree = json_tree(plain).ok().expect("a plain object converts");
+        let text = r#"{"a":[1,2.5,-3,null],"b":{"c":"x"}}"#;
+        assert_eq!(tree, crate::json::parse(text).unwrap());
+        assert_eq!(tree.to_text(), text);
+    }
+
+    #[cfg(feature = "wasm")]
+    #[test]
+    fn a_value_json_cannot_hold_is_named_by_its_path() {
+        let plain = Plain::Map(alloc::vec![(
+            String::from("amplifier"),
+            Plain::Map(alloc::vec![(
+                String::from("polesHz"),
+                Plain::List(alloc::vec![Plain::Number(1.0), Plain::Other]),
+            )]),
+        )]);
+        match json_tree(plain) {
+            Err((path, Failure::WrongType(expected, _))) => {
+                assert_eq!(path, ".amplifier.polesHz[1]");
+                assert_eq!(expected, "a JSON value");
+            }
+            _ => panic!("a function inside a document is refused"),
+        }
     }
 }

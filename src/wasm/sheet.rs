@@ -51,11 +51,13 @@ export interface CatalogFunction {
   params: CatalogParam[];
   /** Whether the last parameter repeats. */
   repeats: boolean;
-  /** What it gives, in words (unit; for several values what each spilled cell holds). */
+  /** What it gives, in words (unit; for several values what each fanned-out cell holds). */
   result: string;
   resultUnit: string;
-  /** For several-valued results: what each spilled cell holds, left to right. */
+  /** For results that fan out into neighbouring cells: what each holds, left to right. */
   spill: string[];
+  /** Search words: synonyms, trade words and units the help finds it by. */
+  words: string;
   examples: { formula: string; expected: number[] | boolean | string; source: string }[];
 }
 export interface FunctionCatalog { format: "loopwright-functions"; version: 1; functions: CatalogFunction[]; }

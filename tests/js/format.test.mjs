@@ -76,7 +76,11 @@ test('plot ticks', () => {
   assert.equal(tickLabel(2.5e-6), '2.5 µ');
   // A percentage axis takes no prefix (it showed 0.0001p before).
   assert.ok(plainAxis({ label: 'HD3 (%)' }));
-  assert.equal(tickLabel(1e-4, plainAxis({ label: 'HD3 (%)' })), '0.0001');
+  // Powers of ten below 0.001 are written 10ⁿ there (short labels on a log axis).
+  assert.equal(tickLabel(1e-4, plainAxis({ label: 'HD3 (%)' })), '10⁻⁴');
+  assert.equal(tickLabel(1e-3, plainAxis({ label: 'HD3 (%)' })), '0.001');
+  assert.equal(tickLabel(2e-4, plainAxis({ label: 'HD3 (%)' })), '0.0002');
+  assert.equal(tickLabel(1e7, true), '10⁷');
   assert.equal(tickLabel(-1000, plainAxis({ label: 'dB' })), '-1000');
   assert.deepEqual(extent([[1, -2, Number.NaN, 5]], true), [1, 5]);
 });

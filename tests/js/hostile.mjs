@@ -147,6 +147,14 @@ const DIVIDER = JSON.stringify({
     { name: 'R2', kind: 'resistor', nodes: ['out', '0'], value: '3k' },
   ],
 });
+/** A stage document (docs/stage.md): non-inverting gain 11 with a capacitive load. */
+const STAGE = () => ({
+  format: 'loopwright-stage',
+  version: 1,
+  kind: 'non-inverting',
+  amplifier: { a0: { min: 5e4, typ: 2e5 }, gbwHz: '10M', polesHz: ['40M'], cd: '3p', ro: 50 },
+  parts: { rf: '10k', rg: '1k', rs: 50, rl: '2k', cl: '1n', riso: 20 },
+});
 const FOLLOWER = JSON.stringify({
   format: 'loopwright-circuit',
   version: 1,
@@ -291,6 +299,32 @@ export function goodCalls() {
     ],
     circuitAsymptoticGainCurrent: [
       { circuit: FOLLOWER, controlled: 'E', source: 'Vs', element: 'R2' },
+    ],
+    stageCircuit: [STAGE()],
+    amplifierOpenLoop: [{ amplifier: STAGE().amplifier, frequenciesHz: [1, 1e6] }],
+    circuitLoopGain: [{ circuit: STAGE(), frequenciesHz: [1e3, 1e6] }],
+    circuitGain: [{ circuit: STAGE(), frequenciesHz: [1e3, 1e6] }],
+    circuitImpedance: [{ circuit: STAGE(), port: 'input', frequenciesHz: [1e3] }],
+    circuitPoles: [{ circuit: STAGE(), spreadPoint: 'min' }],
+    circuitMargins: [{ circuit: STAGE(), pointsPerDecade: 10 }],
+    circuitNyquist: [{ circuit: STAGE(), pointsPerDecade: 10 }],
+    stageDesign: [{ stage: STAGE(), part: 'riso', targetPhaseMarginDeg: 45 }],
+    circuitNoise: [
+      {
+        circuit: FOLLOWER,
+        output: 'o',
+        frequenciesHz: [10, 1e3],
+        temperatureK: 300,
+        inputSource: 'Vs',
+      },
+    ],
+    circuitNoiseIntegral: [
+      {
+        circuit: DIVIDER,
+        output: { element: 'R2' },
+        bandHz: [0, 1e4],
+        signalRms: 1e-3,
+      },
     ],
     functionCatalog: [],
     errorValues: [],

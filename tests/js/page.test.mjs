@@ -307,15 +307,13 @@ test('issue 15 through the page: latching loop, pole and GBW, band, pairs', asyn
   const nbw = fc * (Math.atan(10e3 / fc) - Math.atan(10 / fc));
   const nbwText = await result(page, 'card-noise', 'nbw');
   assert.ok(Math.abs(fromShown(nbwText) / nbw - 1) < SHOWN_DIGITS_REL, `${nbwText} vs ${nbw}`);
-  // Gain 48 from E96 with a series pair: the first candidate has a two-part R2.
+  // Gain 48 from E96 with a series pair allowed: the best candidate has a two-part
+  // R2 (a single E96 R2 cannot hit 47·R1 exactly; the pair comes closer).
   await retype(page, '#card-pairs-target', '48');
-  await retype(page, '#card-pairs-total_min', '10k');
-  await retype(page, '#card-pairs-total_max', '100k');
+  await retype(page, '#card-pairs-r2_max', '500k');
   await page.selectOption('#card-pairs-combine', 'series');
-  assert.match(await result(page, 'card-pairs', 'pair1'), / \+ .*\(0\.0000 %\)$/);
-  await retype(page, '#card-pairs-max_error', '1%');
-  assert.equal(await result(page, 'card-pairs', 'meets'), 'yes');
-  assert.doesNotMatch(await result(page, 'card-pairs', 'pair1'), / \+ /);
+  const firstR2 = page.locator('#card-pairs .result-table tbody tr').first().locator('td').nth(2);
+  assert.match(await firstR2.textContent(), / \+ /);
   assert.deepEqual(problems, []);
   await context.close();
 });
@@ -337,10 +335,10 @@ test('loop stability card: trade facts through the page', async () => {
   assert.match(await result(page, 'card-loop', 'verdict'), /UNSTABLE/);
   await retype(page, '#card-loop-gain', '7');
   assert.equal(await result(page, 'card-loop', 'verdict'), 'stable');
-  // The Bode plots carry the crossover and the phase-margin bar.
+  // The Bode plots carry the crossover and both margins, each a band with its value.
   await retype(page, '#card-loop-poles', '10, 1M, 20M');
   await retype(page, '#card-loop-gain', '100k');
-  assert.equal(await page.locator('#card-loop svg .plot-span').count(), 2);
+  assert.equal(await page.locator('#card-loop svg .plot-marker-margin').count(), 2);
   // Two poles in closed form: Q = √((1 + T0)·f1·f2)/(f1 + f2); with T0 = 1000,
   // f1 = 10 Hz, f2 = 5 MHz: Q = √(1001·5e7)/(5e6 + 10) = 0.0447 (hand computed).
   const q = Math.sqrt(1001 * 10 * 5e6) / (5e6 + 10);

@@ -328,6 +328,53 @@ CASES.update({
 CKT_TOL = ([1e-10, 1e-10, 1e-5], "nodal solve against the sympy closed forms (1e-10, as tests/circuit_reference.rs); "
            "the error item is a difference of two doubles that agree to 1e-10")
 
+# --- the stage (STAGE.): two stages of tests/reference/data/stage_sympy.json
+# (tests/reference/stage_sympy.py: sympy's exact loop gain, mpmath's closed-loop
+# solve, numpy's impedances, sympy's roots of the characteristic polynomial)
+
+STAGES = {c["label"]: c for c in json.loads((Path(__file__).parent / "data" / "stage_sympy.json").read_text())["cases"]}
+LOAD = next(c for label, c in STAGES.items() if label.startswith("capacitive load with isolation"))
+CFS = next(c for label, c in STAGES.items() if label.startswith("feedback capacitor"))
+assert LOAD["stage"]["parts"] == {"rf": "1k", "rg": "1k", "rl": "10k", "cl": "10n", "riso": "20"}
+assert CFS["stage"]["parts"]["cf"] == "4p7" and CFS["stage"]["amplifier"]["polesHz"] == ["30M"]
+LOAD_TEXT = "\"kind=non-inverting, a0=1e5, gbwHz=5M, ro=50, rf=1k, rg=1k, rl=10k, cl=10n, riso=20\""
+CF_TEXT = "\"kind=non-inverting, a0=200k, gbwHz=10M, polesHz=30M, cd=3p, ro=50, rf=10k, rg=1k, cf=4p7, rs=50, rl=2k\""
+
+
+def at_1mhz(case, key):
+    re, im = case[key][case["freqs"].index(1e6)]
+    return mp.mpc(re, im)
+
+
+def magnitude_phase(z):
+    return [abs(z), mp.degrees(mp.arg(z))]
+
+
+def stage_poles(case):
+    """Rows of σ/2π, ω/2π, |s|/2π, ζ sorted by natural frequency, conjugates
+    with the negative imaginary part first."""
+    rows = []
+    for re, im in sorted(case["poles"], key=lambda p: (abs(complex(*p)), p[1])):
+        s = mp.mpc(re, im)
+        rows += [M(re) / (2 * mp.pi), M(im) / (2 * mp.pi), abs(s) / (2 * mp.pi), -M(re) / abs(s)]
+    return rows
+
+
+CASES.update({
+    "=STAGE.GAIN(" + LOAD_TEXT + "; 1 MHz)": magnitude_phase(at_1mhz(LOAD, "closed_loop")),
+    "=STAGE.LOOPGAIN(" + LOAD_TEXT + "; 1 MHz)": [
+        20 * mp.log10(abs(at_1mhz(LOAD, "loop_gain"))), mp.degrees(mp.arg(at_1mhz(LOAD, "loop_gain")))],
+    "=STAGE.ZIN(" + CF_TEXT + "; 1 MHz)": magnitude_phase(at_1mhz(CFS, "zin")),
+    "=STAGE.ZOUT(" + LOAD_TEXT + "; 1 MHz)": magnitude_phase(at_1mhz(LOAD, "zout")),
+    "=STAGE.POLES(" + LOAD_TEXT + ")": stage_poles(LOAD),
+})
+LOOPS = json.loads((Path(__file__).parent / "data" / "stage_loop.json").read_text())["cases"]
+LOAD_LOOP = next(c for c in LOOPS if c["label"].startswith("capacitive load with isolation"))
+assert LOAD_LOOP["stage"] == LOAD["stage"]
+CASES["=STAGE.MARGIN(" + LOAD_TEXT + ")"] = [LOAD_LOOP["phase_margin_deg"], LOAD_LOOP["crossover_hz"]]
+STAGE_TOL = (1e-12, "loop and closed-loop gain against sympy/mpmath to 1e-12, as tests/stage_reference.rs")
+NUMPY_TOL = (1e-9, "impedances against numpy's double-precision solve, as tests/stage_reference.rs")
+
 # --- distortion and slew (DISTORTION.), noise (NOISE.): closed forms
 
 
@@ -401,9 +448,30 @@ TOLERANCES = {
     "=CIRCUIT.RIN" + CKT_STAGE: CKT_TOL,
     "=CIRCUIT.ROUT" + CKT_STAGE: CKT_TOL,
     "=CIRCUIT.IDEAL" + CKT_STAGE: ([1e-12, 1e-10], "Af from the sympy closed form, to 1e-10 as tests/circuit_reference.rs"),
+    "=STAGE.GAIN(" + LOAD_TEXT + "; 1 MHz)": STAGE_TOL,
+    "=STAGE.LOOPGAIN(" + LOAD_TEXT + "; 1 MHz)": STAGE_TOL,
+    "=STAGE.ZIN(" + CF_TEXT + "; 1 MHz)": NUMPY_TOL,
+    "=STAGE.ZOUT(" + LOAD_TEXT + "; 1 MHz)": NUMPY_TOL,
+    "=STAGE.MARGIN(" + LOAD_TEXT + ")": ([1e-8, 1e-9], "crossover refined to 1e-9 relative and the margin to 1e-6 degrees, as tests/stage_loop_reference.rs"),
+    "=STAGE.POLES(" + LOAD_TEXT + ")": (1e-10, "poles against sympy's roots at 30 digits to 1e-10, as tests/stage_reference.rs"),
     "=NOISE.TOTAL(\"non-inverting\"; 9k; 1k; 0; 10n; 0; 0; 0; 300; 1 MHz; 0)": (
         [1e-9, 1e-9, 1e-12], "the core integrates the density numerically to REL_TOL = 1e-10"),
 }
+
+
+# NOISE.CIRCUIT.*: R = 1 kΩ in parallel with C = 1 µF from node a to ground at 300 K.
+RC_DENSITY = '=NOISE.CIRCUIT.DENSITY("{""format"":""loopwright-circuit"",""version"":1,""elements"":[{""name"":""R1"",""kind"":""resistor"",""nodes"":[""a"",""0""],""value"":1000},{""name"":""C1"",""kind"":""capacitor"",""nodes"":[""a"",""0""],""value"":1e-6}]}"; "a"; 1 kHz)'
+RC_TOTAL = '=NOISE.CIRCUIT.TOTAL("{""format"":""loopwright-circuit"",""version"":1,""elements"":[{""name"":""R1"",""kind"":""resistor"",""nodes"":[""a"",""0""],""value"":1000},{""name"":""C1"",""kind"":""capacitor"",""nodes"":[""a"",""0""],""value"":1e-6}]}"; "a"; 0; 1 MHz)'
+RC_R, RC_C = M(1000), M("1e-6")
+RC_FC = 1 / (2 * mp.pi * RC_R * RC_C)
+CASES.update({
+    # Johnson-Nyquist density through the RC's impedance |Z| = R/sqrt(1 + (f/fc)^2).
+    RC_DENSITY: [mp.sqrt(4 * K_B * 300 * RC_R) / mp.sqrt(1 + (M(1000) / RC_FC) ** 2)],
+    # Over 0..1 MHz: 4kTR * fc * atan(1 MHz / fc), the single pole's noise bandwidth.
+    RC_TOTAL: [mp.sqrt(4 * K_B * 300 * RC_R * RC_FC * mp.atan(M(10**6) / RC_FC))],
+})
+TOLERANCES[RC_DENSITY] = ([1e-12], "one nodal solve of the RC")
+TOLERANCES[RC_TOTAL] = ([1e-8], "the core integrates the density to REL_TOL = 1e-9 per piece")
 
 
 def evaluate():

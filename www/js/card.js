@@ -7,7 +7,7 @@
 //   the API field(s) the cell feeds when the cell's name is shorter (`polesHz`), so
 //   a thrown error's `param` points at the cell that caused it;
 // - compute(values, api): returns rows [{name, label, value, unit, format?, text?}]
-//   or {rows, figures: [{svg, name}]}, or throws (a LoopwrightError's `param`, the
+//   or {rows, figures: [{svg, name}], tables: [...]} (tableOf below), or throws (a LoopwrightError's `param`, the
 //   name the caller used, such as `amplifier.polesHz[2]`, marks the input cell at
 //   fault).
 
@@ -62,6 +62,43 @@ export function parseNumber(text, api, unit) {
 /** A list of numbers separated by commas or semicolons, read by the core; empty text is an empty list. */
 export function parseList(text, api, unit) {
   return Array.from(api.parseList(String(text), readOptions(unit)));
+}
+
+/**
+ * A result table `{name, caption, columns: [{key, label, numeric?}], rows: [{key: text}],
+ * note?}`: text only, in a scroller so that a narrow screen scrolls the table, not the page.
+ */
+function tableOf({ name, caption, columns, rows, note }) {
+  const head = el(
+    'tr',
+    {},
+    columns.map((c) => el('th', { scope: 'col', class: c.numeric ? 'num' : null }, c.label)),
+  );
+  const body = rows.map((r) =>
+    el(
+      'tr',
+      { class: r.pass === false ? 'fails' : r.pass === true ? 'passes' : null },
+      columns.map((c) => el('td', { class: c.numeric ? 'num' : null }, r[c.key] ?? '—')),
+    ),
+  );
+  // The caption stands above the scroller, so that it wraps on a narrow screen.
+  const captionId = `table-${name}-${Math.random().toString(36).slice(2, 8)}`;
+  return el(
+    'div',
+    { class: 'result-table-block', 'data-name': name },
+    el('p', { class: 'result-table-caption', id: captionId }, caption),
+    el(
+      'div',
+      { class: 'result-table-scroller' },
+      el(
+        'table',
+        { class: 'result-table', 'aria-labelledby': captionId },
+        el('thead', {}, head),
+        el('tbody', {}, body),
+      ),
+    ),
+    note ? el('p', { class: 'result-table-note' }, note) : null,
+  );
 }
 
 export function mountCard(host, def, api) {
@@ -167,6 +204,8 @@ export function mountCard(host, def, api) {
     try {
       const out = def.compute(values, api);
       const rows = Array.isArray(out) ? out : out.rows;
+      for (const table of Array.isArray(out) ? [] : (out.tables ?? []))
+        figures.append(tableOf(table));
       for (const fig of Array.isArray(out) ? [] : (out.figures ?? [])) {
         figures.append(
           fig.svg,

@@ -25,6 +25,8 @@ pub mod logic;
 pub mod math;
 pub mod network;
 pub mod noise;
+pub mod stage;
+mod words;
 
 use super::errors::{CellError, ErrorKind};
 use super::value::{Unit, Value};
@@ -150,6 +152,7 @@ pub static AREAS: &[&[FunctionSpec]] = &[
     circuit::FUNCTIONS,
     distortion::FUNCTIONS,
     noise::FUNCTIONS,
+    stage::FUNCTIONS,
 ];
 
 /// Every function, area by area.
@@ -444,7 +447,7 @@ pub fn result_text(f: &FunctionSpec) -> String {
 
 /// The whole catalog as JSON: `{"format": "loopwright-functions", "version": 1,
 /// "functions": [{name, area, summary, params: [{name, summary, unit, optional,
-/// default, range}], repeats, result, resultUnit, spill, examples: [{formula,
+/// default, range}], repeats, result, resultUnit, spill, words, examples: [{formula,
 /// expected, source, tolerance}]}]}`.
 pub fn catalog_json() -> String {
     let mut w = JsonWriter::new();
@@ -508,6 +511,8 @@ fn write_function(w: &mut JsonWriter, f: &FunctionSpec) {
         w.string(s);
     }
     w.end_array();
+    w.key("words");
+    w.string(words::search_words(f.name));
     w.key("examples");
     w.begin_array();
     w.begin_object();

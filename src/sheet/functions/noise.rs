@@ -8,6 +8,10 @@
 //! (0 for none) and the resistor temperature in kelvin — see
 //! [`crate::noise::Stage`] and [`crate::noise::AmplifierNoise`]. Each function
 //! converts its arguments, calls the core and converts the result.
+//!
+//! `NOISE.CIRCUIT.DENSITY` and `NOISE.CIRCUIT.TOTAL` take a circuit document
+//! (`docs/circuit.md`) as text — typically a cell holding the JSON — and a node
+//! whose voltage noise they compute ([`crate::noise::circuit`]).
 
 use super::{req, tri, Args, Example, Expected, FunctionSpec, Param};
 use crate::noise::{self as nz, AmplifierNoise, ClosedLoopResponse, Stage, StageKind};
@@ -159,6 +163,83 @@ fn integrated(a: &Args<'_>) -> Value {
     }
 }
 
+/// Core parameter names of the circuit noise analysis, as the worksheet spells them.
+const CIRCUIT_NAMES: &[(&str, &str)] = &[
+    ("temperature_k", "temperature"),
+    ("frequencies_hz", "frequency"),
+    ("band_hz", "f_low"),
+];
+
+/// The circuit document in argument 0, the node in 1, the temperature at `t`
+/// (left out: 300 K), analysed by `run`.
+fn circuit_noise<T>(
+    a: &Args<'_>,
+    t: usize,
+    run: impl FnOnce(
+        &crate::circuit::Circuit,
+        &crate::noise::circuit::NoiseSetup,
+    ) -> crate::circuit::CircuitResult<T>,
+) -> Result<T, CellError> {
+    let json = a.text(0)?;
+    let node = a.text(1)?;
+    let temperature = match a.get(t) {
+        Value::Empty => 300.0,
+        _ => a.number(t)?,
+    };
+    let name = a.spec.name;
+    let fail = |e: crate::circuit::CircuitError| {
+        let mut c = super::core_error(name, e.error, CIRCUIT_NAMES);
+        if !e.name.is_empty() {
+            // Keep the node or element at fault in the sentence.
+            c.detail = alloc::format!("{} ({})", c.detail, e.name.as_str());
+        }
+        c
+    };
+    let c = crate::circuit::json::read_circuit(&json).map_err(fail)?;
+    let setup = crate::noise::circuit::NoiseSetup::at_node(&node, temperature);
+    run(&c, &setup).map_err(fail)
+}
+
+fn circuit_density(a: &Args<'_>) -> Value {
+    let f = tri!(a.number(2));
+    let d = tri!(circuit_noise(a, 3, |c, s| {
+        crate::noise::circuit::noise_densities(c, s, &[f])
+    }));
+    d.total.first().copied().map_or_else(
+        || Value::error(ErrorKind::Value, "empty result"),
+        Value::num,
+    )
+}
+
+fn circuit_total(a: &Args<'_>) -> Value {
+    let band = [tri!(a.number(2)), tri!(a.number(3))];
+    let n = tri!(circuit_noise(a, 4, |c, s| {
+        crate::noise::circuit::band_noise(c, s, band)
+    }));
+    with_unit(n.total_rms, Unit::Volt)
+}
+
+const P_CIRCUIT: Param = req(
+    "circuit",
+    "circuit document (JSON text, docs/circuit.md), e.g. a cell holding it",
+    "text",
+    "a loopwright-circuit document",
+);
+const P_NODE: Param = req(
+    "output",
+    "node whose voltage noise (against ground) is computed",
+    "text",
+    "a node of the circuit",
+);
+const P_TEMP_300: Param = Param {
+    name: "temperature",
+    summary: "temperature of every resistor; left out, 300 K",
+    unit: "K",
+    optional: true,
+    default: Some(300.0),
+    range: "> 0",
+};
+
 /// The noise area's table.
 pub static FUNCTIONS: &[FunctionSpec] = &[
     FunctionSpec {
@@ -246,5 +327,43 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             tolerance: &[1e-9, 1e-9, 1e-12],
         },
         eval: integrated,
+    },
+    FunctionSpec {
+        name: "NOISE.CIRCUIT.DENSITY",
+        area: "noise",
+        summary: "Output noise density of a circuit document at a node and frequency: every resistor's 4kTR and each amplifier's voltage and current noise through the real network",
+        params: &[P_CIRCUIT, P_NODE, req("frequency", "frequency", "Hz", "> 0"), P_TEMP_300],
+        repeats: false,
+        result_unit: "V/√Hz",
+        spill: &[],
+        example: Example {
+            formula: "=NOISE.CIRCUIT.DENSITY(\"{\"\"format\"\":\"\"loopwright-circuit\"\",\"\"version\"\":1,\"\"elements\"\":[{\"\"name\"\":\"\"R1\"\",\"\"kind\"\":\"\"resistor\"\",\"\"nodes\"\":[\"\"a\"\",\"\"0\"\"],\"\"value\"\":1000},{\"\"name\"\":\"\"C1\"\",\"\"kind\"\":\"\"capacitor\"\",\"\"nodes\"\":[\"\"a\"\",\"\"0\"\"],\"\"value\"\":1e-6}]}\"; \"a\"; 1 kHz)",
+            expected: Expected::Numbers(&[6.39765035175364e-10]),
+            source: "1 kΩ ‖ 1 µF at 1 kHz: √(4kTR)/√(1 + (2πfRC)²) (Johnson–Nyquist through the RC's impedance; tests/reference/sheet_catalog.py)",
+            tolerance: &[1e-12],
+        },
+        eval: circuit_density,
+    },
+    FunctionSpec {
+        name: "NOISE.CIRCUIT.TOTAL",
+        area: "noise",
+        summary: "rms output noise of a circuit document at a node over a band [f_low, f_high]",
+        params: &[
+            P_CIRCUIT,
+            P_NODE,
+            req("f_low", "lower band edge", "Hz", ">= 0 (> 0 with a 1/f corner)"),
+            req("f_high", "upper band edge", "Hz", "> f_low, finite"),
+            P_TEMP_300,
+        ],
+        repeats: false,
+        result_unit: "V",
+        spill: &[],
+        example: Example {
+            formula: "=NOISE.CIRCUIT.TOTAL(\"{\"\"format\"\":\"\"loopwright-circuit\"\",\"\"version\"\":1,\"\"elements\"\":[{\"\"name\"\":\"\"R1\"\",\"\"kind\"\":\"\"resistor\"\",\"\"nodes\"\":[\"\"a\"\",\"\"0\"\"],\"\"value\"\":1000},{\"\"name\"\":\"\"C1\"\",\"\"kind\"\":\"\"capacitor\"\",\"\"nodes\"\":[\"\"a\"\",\"\"0\"\"],\"\"value\"\":1e-6}]}\"; \"a\"; 0; 1 MHz)",
+            expected: Expected::Numbers(&[6.435469938575519e-8]),
+            source: "1 kΩ ‖ 1 µF over 0…1 MHz: √(4kTR·fc·atan(1 MHz/fc)), fc = 1/(2πRC) (the single pole's noise bandwidth; tests/reference/sheet_catalog.py); the core integrates to 1e-9",
+            tolerance: &[1e-8],
+        },
+        eval: circuit_total,
     },
 ];

@@ -669,10 +669,97 @@ throws(
   'document',
 );
 assert.equal(ws2.value('A3').number, ws.value('A3').number, 'nothing lost by the refused document');
+// Stage area. A follower on an A0 = 1e5, GBW = 1 MHz amplifier with no input or
+// output parts: T(jω) = A(jω) (β = 1), so at 1 kHz T = 1e5/(1 + j·100) and the
+// closed-loop gain A/(1 + A); the closed loop has one pole at −2π·(GBW + fp)
+// (single-pole algebra, common practice, no source).
+const stageFollower = {
+  format: 'loopwright-stage',
+  version: 1,
+  kind: 'non-inverting',
+  amplifier: { a0: 1e5, gbwHz: '1M' },
+};
+const written = lw.stageCircuit(stageFollower);
+assert.deepEqual(Object.keys(written).sort(), [
+  'amplifier',
+  'circuit',
+  'gainUnit',
+  'input',
+  'output',
+  'outputCurrent',
+  'source',
+]);
+assert.equal(JSON.parse(written.circuit).version, 2);
+const tl = lw.circuitLoopGain({ circuit: stageFollower, frequenciesHz: [1e3] });
+assert.ok(tl.re instanceof Float64Array && tl.magnitudeDb instanceof Float64Array);
+near(tl.re[0], 1e5 / (1 + 1e4), 1e-12, 'follower T re');
+near(tl.im[0], -1e7 / (1 + 1e4), 1e-12, 'follower T im');
+const gl = lw.circuitGain({ circuit: JSON.stringify(stageFollower), frequenciesHz: [0] });
+near(gl.re[0], 1e5 / (1 + 1e5), 1e-12, 'follower DC gain');
+const pl = lw.circuitPoles({ circuit: stageFollower });
+assert.equal(pl.verdict, 'stable');
+assert.equal(pl.poles.length, 1);
+near(pl.poles[0].re, -2 * Math.PI * (1e6 + 10), 1e-12, 'follower pole');
+const zl = lw.circuitImpedance({ circuit: written.circuit, port: 'out', frequenciesHz: [1e3] });
+assert.deepEqual(Object.keys(zl).sort(), ['freqHz', 'im', 'magnitudeOhm', 'phaseDeg', 're']);
+throws(
+  () => lw.stageCircuit({ ...stageFollower, parts: { rf: '10k', rg: 0 } }),
+  'out_of_domain',
+  'parts.rg',
+);
+throws(
+  () => lw.amplifierOpenLoop({ amplifier: { a0: 1e5, gbwHz: -1 }, frequenciesHz: [1] }),
+  'out_of_domain',
+  'amplifier.gbwHz',
+);
+throws(() => lw.circuitPoles({ circuit: stageFollower, spread: 'min' }), 'unknown_field', 'spread');
+
 const catalog = JSON.parse(lw.functionCatalog());
 assert.ok(catalog.functions.some((f) => f.name === 'FEEDBACK.GAIN'));
 ws.free();
 ws2.free();
+
+// Circuit noise: two 1 kΩ resistors to ground at 300 K are 500 Ω of thermal noise,
+// √(4kT·500) = 2.878 nV/√Hz (Johnson–Nyquist, k exact in the 2019 SI), each half the power.
+const pair = doc([
+  { name: 'R1', kind: 'resistor', nodes: ['a', '0'], value: 1e3 },
+  { name: 'R2', kind: 'resistor', nodes: ['a', '0'], value: 1e3 },
+]);
+const nd = lw.circuitNoise({ circuit: pair, output: 'a', frequenciesHz: [10, 1e6] });
+assert.ok(nd.total instanceof Float64Array && nd.sources.R1 instanceof Float64Array);
+near(nd.total[1], Math.sqrt(4 * 1.380649e-23 * 300 * 500), 1e-12, 'parallel pair noise');
+near(nd.shares.R2[0], 0.5, 1e-12, 'share');
+assert.equal(nd.kinds.R1, 'thermal');
+assert.equal(nd.noiseGainPeak, null);
+// Over 0…10 kHz: white noise, rms = density·√(10 kHz).
+const nb = lw.circuitNoiseIntegral({
+  circuit: pair,
+  output: 'a',
+  bandHz: [0, 1e4],
+  signalRms: 1e-3,
+});
+near(nb.totalRms, nd.total[0] * 100, 1e-8, 'band rms');
+near(nb.snrDb, 20 * Math.log10(1e-3 / nb.totalRms), 1e-12, 'SNR');
+assert.deepEqual(Object.keys(nb).sort(), [
+  'bandHz',
+  'evaluations',
+  'inputReferredRms',
+  'snrDb',
+  'sources',
+  'totalRms',
+]);
+assert.throws(
+  () => lw.circuitNoise({ circuit: pair, output: 'nowhere', frequenciesHz: [1] }),
+  (e) => e.code === 'unknown_name' && e.param === 'output' && e.subject === 'nowhere',
+);
+assert.throws(
+  () => lw.circuitNoise({ circuit: pair, output: 'a', frequenciesHz: [1], temperatureK: -5 }),
+  (e) => e.param === 'temperatureK',
+);
+assert.throws(
+  () => lw.circuitNoiseIntegral({ circuit: pair, output: 'a', bandHz: [10, 1] }),
+  (e) => e.param === 'bandHz',
+);
 
 console.log('consumer: all checks passed');
 

@@ -8,6 +8,10 @@ import type {
   LoopAnalysis, FrequencySweep, LoopPoint, CompensationResult,
 } from 'loopwright';
 import { circuitTemplate, circuitSolve, circuitTwoPort, circuitSweep, circuitBlackman, circuitStageViews } from 'loopwright';
+import { stageCircuit, amplifierOpenLoop, circuitLoopGain, circuitGain, circuitImpedance, circuitPoles } from 'loopwright';
+import type { StageDocument, StageCircuitResult, CircuitDocumentV2, ResponseSweep, ImpedanceSweep, CircuitPoles } from 'loopwright';
+import { circuitNoise, circuitNoiseIntegral } from 'loopwright';
+import type { CircuitNoiseDensities, CircuitNoiseBand } from 'loopwright';
 import initLite, { closedLoopGain as liteGain, stabilityMargins as liteMargins } from 'loopwright/lite';
 import type { StabilityMargins as LiteMargins } from 'loopwright/lite';
 import type {
@@ -91,4 +95,29 @@ export function circuits(): number {
     if (err.code === 'out_of_domain') return err.subject.length;
   }
   return v + template.elements.length + kind.length + beta.re + h.im[0] + z.tShort.re + views.input.relativeError + tp.af.relativeError;
+}
+
+export function stages(): number {
+  const doc: StageDocument = {
+    format: 'loopwright-stage',
+    version: 1,
+    kind: 'transimpedance',
+    amplifier: { a0: { typ: 1e6, min: 2e5 }, gbwHz: '20M', cd: '4p', ro: 40 },
+    spreadPoint: 'typ',
+    parts: { rf: '100k', cf: '1p5', cs: '20p' },
+  };
+  const written: StageCircuitResult = stageCircuit(doc);
+  const circuit: CircuitDocumentV2 = JSON.parse(written.circuit);
+  const t: ResponseSweep = circuitLoopGain({ circuit: doc, frequenciesHz: [1e3, 1e6], spreadPoint: 'min' });
+  const g: ResponseSweep = circuitGain({ circuit: written.circuit, input: 'Is', output: 'out', frequenciesHz: new Float64Array([1]) });
+  const z: ImpedanceSweep = circuitImpedance({ circuit: doc, port: 'input', frequenciesHz: [1e3] });
+  const p: CircuitPoles = circuitPoles({ circuit: doc });
+  const a: ResponseSweep = amplifierOpenLoop({ amplifier: doc.amplifier, frequenciesHz: [1] });
+  return t.phaseDeg[0] + g.re[0] + z.magnitudeOhm[0] + p.poles.length + a.magnitudeDb[0] + circuit.elements.length;
+}
+
+export function noiseOfACircuit(json: string): number {
+  const d: CircuitNoiseDensities = circuitNoise({ circuit: json, output: { element: 'R1' }, frequenciesHz: [1e3], currentNoise: [{ element: 'I1', shot: true }] });
+  const b: CircuitNoiseBand = circuitNoiseIntegral({ circuit: json, output: 'a', bandHz: [10, 1e4], signalRms: 1 });
+  return d.total[0] + (d.sources.R1?.[0] ?? 0) + (d.noiseGainPeak?.value ?? 0) + b.totalRms + (b.snrDb ?? 0) + b.sources[0].share;
 }

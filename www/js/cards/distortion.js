@@ -2,6 +2,7 @@
 
 import { formatEngineering, formatPlain } from '../format.js';
 import { lineChart } from '../plot/chart.js';
+import { tickLabel } from '../plot/scale.js';
 
 const STAGE_KINDS = [
   ['non-inverting', 'non-inverting'],
@@ -99,8 +100,16 @@ export const distortionCard = {
       y: { label: 'HD3 (%)', log: true },
       series: [
         { label: 'series', x: sweep.amplitudes, y: pct(sweep.seriesHd3), kind: 'a' },
-        { label: 'exact', x: sweep.amplitudes, y: pct(sweep.numericHd3), kind: 'c' },
+        {
+          label: 'exact',
+          x: sweep.amplitudes,
+          y: pct(sweep.numericHd3),
+          kind: 'c',
+          // The core's rounding floor of the numeric path, in % like the axis.
+          floor: 100 * sweep.numericFloor,
+        },
       ],
+      note: `exact: values under ${tickLabel(100 * sweep.numericFloor, true)} % are rounding noise, not drawn`,
       markers: [
         sweep.foldAmplitude === null ? null : { x: sweep.foldAmplitude, label: 'fold' },
         sweep.hd3LimitAmplitude === null

@@ -67,13 +67,14 @@ export const loopCard = {
       });
     const phaseMarkers = [{ y: -180, label: '−180°' }];
     if (m.crossoverHz !== null && m.phaseMarginDeg !== null) {
-      // The bar runs from the phase at the crossover (exact, on the plotted
+      // The band runs from the phase at the crossover (exact, on the plotted
       // branch) to the nearest odd multiple of 180° (lag or lead, whichever is
-      // closer): its length is the margin.
+      // closer): its height is the margin, read at the crossover.
       const exact = api.loopAt(a, v.beta, m.crossoverHz).loopGain.phaseDeg;
       const near = phaseNear(sweep, m.crossoverHz);
       const at = exact + 360 * Math.round((near - exact) / 360);
       phaseMarkers.push({
+        kind: 'margin',
         x: m.crossoverHz,
         y0: 360 * Math.round((at - 180) / 360) + 180,
         y1: at,
@@ -82,6 +83,7 @@ export const loopCard = {
     }
     if (m.phaseCrossoverHz !== null && m.gainMarginDb !== null) {
       markers.push({
+        kind: 'margin',
         x: m.phaseCrossoverHz,
         y0: 0,
         y1: -m.gainMarginDb,
@@ -126,7 +128,13 @@ export const loopCard = {
           series: [
             { label: 'output', x: r.step.waveform.timeS, y: r.step.waveform.output, kind: 'a' },
           ],
-          markers: [{ y: r.step.finalValue, label: 'final value' }],
+          markers: [
+            {
+              kind: 'level',
+              y: r.step.finalValue,
+              label: `final ${formatPlain(r.step.finalValue, 4)}`,
+            },
+          ],
         }),
         name: 'step-response',
       });

@@ -3,14 +3,15 @@
 // histogramChart({title, width, height, label, edges, counts, limits: [{x, label}]})
 // `edges` has counts.length + 1 entries.
 
-import { svg } from './chart.js';
+import { svg } from './svg.js';
+import { chartWidth } from './chart.js';
 import { makeScale, linearTicks, niceDomain, tickLabel, plainAxis } from './scale.js';
 
 const MARGIN = { top: 26, right: 14, bottom: 40, left: 56 };
 
 export function histogramChart({
   title,
-  width = 640,
+  width = chartWidth(),
   height = 240,
   label,
   edges,

@@ -66,7 +66,36 @@ export function plainAxis(axis = {}) {
   return /\((%|dB|°|ppm)\)$|^(dB|degrees|%)$/.test(axis.label ?? '');
 }
 
-/** Short tick label through the core's display, three significant digits: 10 k, 2.5 µ, 0.0001. */
+const SUPERSCRIPT = {
+  '-': '⁻',
+  0: '⁰',
+  1: '¹',
+  2: '²',
+  3: '³',
+  4: '⁴',
+  5: '⁵',
+  6: '⁶',
+  7: '⁷',
+  8: '⁸',
+  9: '⁹',
+};
+
+/** A power of ten as 10ⁿ ("10⁻⁷"), or null when `v` is not one. */
+function powerOfTen(v) {
+  if (!(v > 0)) return null;
+  const e = Math.round(Math.log10(v));
+  if (Math.abs(v / 10 ** e - 1) > 1e-9) return null;
+  return `10${[...String(e)].map((c) => SUPERSCRIPT[c]).join('')}`;
+}
+
+/**
+ * Short tick label through the core's display, three significant digits: 10 k,
+ * 2.5 µ, 0.01. A plain axis (%, dB, degrees) gets no SI prefix; there a power of
+ * ten below 0.001 or from 1 000 000 up is written 10ⁿ, so that a log axis of
+ * percentages keeps short labels.
+ */
 export function tickLabel(v, plain = false) {
-  return plain ? formatPlain(v, 3) : formatEngineering(v, 3);
+  if (!plain) return formatEngineering(v, 3);
+  const power = Math.abs(v) < 1e-3 || Math.abs(v) >= 1e6 ? powerOfTen(v) : null;
+  return power ?? formatPlain(v, 3);
 }

@@ -22,7 +22,7 @@ export function wireClipboard(g) {
   table.addEventListener('cut', (e) => {
     try {
       copySelection(g, e);
-      g.clearSelection();
+      g.clearSelection(`cutting ${rangeText(g.selection())}`);
     } catch (err) {
       g.say(err.message);
     }
@@ -33,7 +33,7 @@ export function wireClipboard(g) {
     e.preventDefault();
     const { c0, r0 } = g.selection();
     try {
-      g.changed(g.sheet.pasteTsv(addressOf(c0, r0), text));
+      g.changed(g.sheet.pasteTsv(addressOf(c0, r0), text), `pasting at ${addressOf(c0, r0)}`);
       g.showActive();
     } catch (err) {
       g.say(err.message);

@@ -1,5 +1,7 @@
-// The worksheet grid's keyboard: moving and selecting in the table, editing in the
-// formula bar, going to an address or naming a cell in the name box.
+// The worksheet grid's keyboard: moving and selecting in the table (arrows; the
+// table is one tab stop, Tab leaves it), editing in the formula bar (Enter and Tab
+// commit and return to the grid, Escape leaves editing without a change), going to
+// an address or naming a cell in the name box.
 
 import { moved, parseAddress } from './address.js';
 
@@ -12,8 +14,10 @@ function onTableKey(g, e) {
     e.preventDefault();
     g.focusCell(moved(active, ...step), { extend: e.shiftKey });
   } else if (e.key === 'Tab') {
-    e.preventDefault();
-    g.focusCell(moved(active, e.shiftKey ? -1 : 1, 0));
+    // The grid is one tab stop (the ARIA grid pattern): Tab and Shift+Tab leave it
+    // for the next or previous control, and the grid keeps its active cell for when
+    // focus comes back. Arrow keys move inside.
+    return;
   } else if (e.key === 'Enter' || e.key === 'F2') {
     e.preventDefault();
     g.startEditing();

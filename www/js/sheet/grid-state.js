@@ -5,10 +5,14 @@
 
 import { COLS, ROWS, addressOf, parseAddress, rectOf, rangeText, addressesIn } from './address.js';
 import { paintCell } from './grid-view.js';
+import { partCaption } from './result-parts.js';
 
 /** The grid's controller over `view` (buildGridView) and the engine's `sheet`. */
-export function createGridState(view, sheet) {
+export function createGridState(view, sheet, partNames = null) {
   const { nameBox, bar, explain, table, cells } = view;
+  /** The named part of a result that fans out, for the engine's value `v`. */
+  const partOf = (v) =>
+    partNames && (v.spill || v.spilledFrom) ? partNames.partOf(sheet, v) : null;
   let active = { col: 0, row: 0 };
   let anchor = active;
   const g = { editing: false, dragging: false, sheet, view };
@@ -18,15 +22,24 @@ export function createGridState(view, sheet) {
   g.active = () => active;
   g.activeAddress = activeAddress;
   g.selection = () => rectOf(anchor, active);
-  g.say = (text) => {
+  // A confirmation said with `hold` stays until that many ms have passed, even when
+  // the active cell moves (a move would otherwise clear it before it is read).
+  let heldUntil = 0;
+  g.say = (text, { hold = 0 } = {}) => {
     explain.textContent = text;
+    heldUntil = hold ? Date.now() + hold : 0;
+  };
+  const sayUnlessHeld = (text) => {
+    if (text === '' && Date.now() < heldUntil) return;
+    g.say(text);
   };
 
   g.render = (address) => {
     const pos = parseAddress(address);
     if (!pos) return;
     try {
-      paintCell(tdAt(pos), sheet.value(address));
+      const v = sheet.value(address);
+      paintCell(tdAt(pos), v, partOf(v));
     } catch {
       // An address outside the grid: nothing to draw.
     }
@@ -39,7 +52,7 @@ export function createGridState(view, sheet) {
     const rows = sheet.values(`A1:${addressOf(COLS - 1, ROWS - 1)}`);
     rows.forEach((row, r) => {
       row.forEach((v, c) => {
-        paintCell(cells[r][c], v);
+        paintCell(cells[r][c], v, partOf(v));
       });
     });
     g.showActive();
@@ -55,7 +68,10 @@ export function createGridState(view, sheet) {
     nameBox.value = rangeText(g.selection());
     if (!g.editing) bar.value = sheet.input(address) ?? '';
     const v = sheet.value(address);
-    g.say(v.kind === 'error' ? `${address} shows ${v.error}: ${v.message}` : '');
+    const part = partOf(v);
+    if (v.kind === 'error') g.say(`${address} shows ${v.error}: ${v.message}`);
+    else if (part) g.say(`${address}: ${partCaption(part)} — from ${part.name}.`);
+    else sayUnlessHeld('');
   };
 
   g.focusCell = (pos, { extend = false } = {}) => {

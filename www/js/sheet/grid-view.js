@@ -5,6 +5,7 @@
 import { el } from '../dom.js';
 import { formatEngineering } from '../format.js';
 import { COLS, ROWS, addressOf } from './address.js';
+import { partCaption } from './result-parts.js';
 
 /**
  * What a cell shows: numbers to six significant digits (with an SI prefix when
@@ -16,28 +17,37 @@ export function shownText(v) {
   return formatEngineering(v.number, 6, v.unit ?? '');
 }
 
-/** Paint one cell from the engine's value `v` (text, kind classes, title, description). */
-export function paintCell(td, v) {
+/** The words a pointer and assistive technology get for a cell, beside its text. */
+function describeCell(v, part) {
+  const name = part ? `${partCaption(part)} — ${part.name}` : null;
+  if (v.kind === 'error') return `${v.error}: ${v.message}`;
+  if (v.kind === 'number') return name ? `${name}: ${v.display}` : v.display;
+  return name;
+}
+
+/**
+ * Paint one cell from the engine's value `v` (text, kind classes, title,
+ * description); `part` (result-parts.js) names the part of a result that fans
+ * out, shown as a caption over the first row of its cells and in the title.
+ */
+export function paintCell(td, v, part = null) {
   td.textContent = shownText(v);
+  if (part && part.row === 1) td.dataset.part = part.label;
+  else delete td.dataset.part;
   // The full value stays available to a pointer and to assistive technology.
   if (v.kind === 'number') td.dataset.value = String(v.number);
   else delete td.dataset.value;
   const typed = typeof v.input === 'string' && v.input !== '';
   const classes = [`k-${v.kind}`];
-  if (v.spill) classes.push('spill-anchor');
-  if (!typed && v.kind !== 'empty') classes.push('spilled');
+  if (v.spill) classes.push('fan-anchor');
+  if (!typed && v.kind !== 'empty') classes.push('fanned');
   if (typed && v.kind === 'number' && !v.input.trimStart().startsWith('=')) classes.push('k-input');
   td.className = classes.join(' ');
-  if (v.kind === 'error') {
-    td.title = `${v.error}: ${v.message}`;
-    td.setAttribute('aria-description', `${v.error}: ${v.message}`);
-  } else if (v.kind === 'number') {
-    td.title = v.display;
-    td.removeAttribute('aria-description');
-  } else {
-    td.removeAttribute('title');
-    td.removeAttribute('aria-description');
-  }
+  const words = describeCell(v, part);
+  if (words) td.title = words;
+  else td.removeAttribute('title');
+  if (v.kind === 'error' || part) td.setAttribute('aria-description', words);
+  else td.removeAttribute('aria-description');
 }
 
 function barInputs() {

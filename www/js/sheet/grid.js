@@ -1,8 +1,9 @@
 // The worksheet grid: a 26 × 200 table of cells with a formula bar, keyboard
-// navigation and editing, range selection, TSV copy and paste, spilled arrays and
-// error values explained on hover and focus.
+// navigation and editing, range selection, TSV copy and paste, results that fan
+// out into neighbouring cells (each part named from the catalog: result-parts.js)
+// and error values explained on hover and focus.
 //
-// mountGrid(host, sheet, {onChange}) where `sheet` is the engine's Worksheet. The
+// mountGrid(host, sheet, {onChange, partNames}) where `sheet` is the engine's Worksheet. The
 // grid keeps no values of its own: it asks the engine what each cell shows. Its
 // parts: grid-view.js (DOM and painting), grid-state.js (active cell, selection),
 // grid-editing.js (typing, clearing, naming), grid-keys.js, grid-pointer.js and grid-clipboard.js (events).
@@ -16,8 +17,8 @@ import { wireClipboard } from './grid-clipboard.js';
 
 export { shownText } from './grid-view.js';
 
-export function mountGrid(host, sheet, { onChange = () => {} } = {}) {
-  const g = addEditing(createGridState(buildGridView(host), sheet), onChange);
+export function mountGrid(host, sheet, { onChange = () => {}, partNames = null } = {}) {
+  const g = addEditing(createGridState(buildGridView(host), sheet, partNames), onChange);
   wireKeyboard(g);
   wirePointer(g);
   wireClipboard(g);

@@ -1,5 +1,8 @@
 // The function help panel, generated from the engine's machine-readable catalog
-// (functionCatalog()): nothing here is written twice.
+// (functionCatalog()): nothing here is written twice. The search matches every
+// word typed against an entry's name, summary, parameters, units, the names of
+// the parts of a result that fans out, and the entry's own search words
+// (synonyms, trade words and units, kept with the catalog entries).
 
 import { el, clear } from '../dom.js';
 
@@ -8,7 +11,7 @@ export function mountHelp(host, catalogJson, { onUse = () => {} } = {}) {
   const search = el('input', {
     type: 'search',
     class: 'help-search',
-    placeholder: 'find a function (gain, noise, margin…)',
+    placeholder: 'find a function (gain, E96, thd, margin…)',
     'aria-label': 'find a function',
   });
   const list = el('div', { class: 'help-list' });
@@ -20,12 +23,36 @@ export function mountHelp(host, catalogJson, { onUse = () => {} } = {}) {
     return `${f.name}(${params.join('; ')})`;
   }
 
+  /** Everything an entry is found by, lower case. */
+  function haystack(f) {
+    const params = f.params.map((p) => `${p.name} ${p.summary} ${p.unit} ${p.range}`);
+    return [f.name, f.summary, f.area, f.result, f.words ?? '', ...params, ...(f.spill ?? [])]
+      .join(' ')
+      .toLowerCase();
+  }
+  const hays = new Map(catalog.functions.map((f) => [f, haystack(f)]));
+
+  /** The parts of a result that fans out, in order, as the grid names them. */
+  function resultParts(f) {
+    if (!f.spill?.length) return f.result ? el('p', {}, `Result: ${f.result}`) : null;
+    return el(
+      'div',
+      { class: 'help-parts' },
+      el('p', {}, `Result: fans out into ${f.spill.length} cells to the right (${f.resultUnit}):`),
+      el(
+        'ol',
+        {},
+        f.spill.map((part) => el('li', {}, part)),
+      ),
+    );
+  }
+
   function show(filter) {
     clear(list);
     const words = filter.toLowerCase().split(/\s+/).filter(Boolean);
     const areas = new Map();
     for (const f of catalog.functions) {
-      const hay = `${f.name} ${f.summary} ${f.area}`.toLowerCase();
+      const hay = hays.get(f);
       if (!words.every((w) => hay.includes(w))) continue;
       if (!areas.has(f.area)) areas.set(f.area, []);
       areas.get(f.area).push(f);
@@ -66,7 +93,7 @@ export function mountHelp(host, catalogJson, { onUse = () => {} } = {}) {
             'details',
             { class: 'help-fn' },
             el('summary', {}, el('code', {}, signature(f)), ` — ${f.summary}`),
-            f.result ? el('p', {}, `Result: ${f.result}`) : null,
+            resultParts(f),
             params,
             examples.length ? el('ul', { class: 'help-examples' }, examples) : null,
           ),

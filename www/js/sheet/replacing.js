@@ -8,7 +8,8 @@ import { whenText } from './replaced-view.js';
 
 /**
  * The replacing actions over `panel` = `{sheet, grid, note, replaced, showReplaced,
- * autosave}` (`showReplaced()` redraws the list). Returns `{replaceWith, announce}`.
+ * autosave, history}` (`showReplaced()` redraws the list; a load is one step of
+ * `history`, so it can be undone there too). Returns `{replaceWith, announce}`.
  */
 export function createReplacing(panel) {
   const { sheet, grid, note, replaced, showReplaced, autosave } = panel;
@@ -28,6 +29,7 @@ export function createReplacing(panel) {
       return null;
     }
     grid.refresh();
+    panel.history?.record(`loading ${what.replace(/^The /, 'the ')}`);
     const entry = await replaced.add(before, reason);
     showReplaced();
     await autosave.now({ retryReplaced: true });

@@ -1,4 +1,4 @@
-// The worksheet panel: toolbar (open, save, CSV, share link, demo), the grid, the
+// The worksheet panel: toolbar (undo, redo, open, save, CSV, share link, demo), the grid, the
 // function help, the autosave with recovery after a reload, and the list of
 // replaced sheets. Nothing the user typed is lost: see replacing.js (every load
 // that replaces the sheet can be undone), opening.js (a refused link leaves the
@@ -15,15 +15,22 @@ import { createAutosave } from './autosave.js';
 import { createReplacing } from './replacing.js';
 import { openAtStart, watchLinks, hasSheetLink } from './opening.js';
 import { DEMO_SHEET } from './demo.js';
+import { mountSheetFiles } from './sheetfiles.js';
+import { mountHistoryControls } from './history-controls.js';
+import { createPartNames } from './result-parts.js';
 
 const button = (id, label, onclick) =>
   el('button', { type: 'button', class: 'button', id, onclick }, label);
 
-/** What the share message says about who can open the link. */
+/** What the link carries, whatever page it points to. */
+const SHARE_CARRIES =
+  'The link itself carries every cell input and name of this sheet (values are recomputed when it opens); it does not carry the replaced sheets, the undo steps or the calculators’ fields, and nothing is sent to a server.';
+
+/** What the share message says about where the link opens. */
 function shareScope() {
   return location.protocol === 'file:'
-    ? 'It carries the whole sheet, but it points to the page file on this computer: it opens only where that file is at the same place. To share the sheet, send the page file with the sheet saved as a file.'
-    : 'It carries the whole sheet; anyone who opens it gets a copy.';
+    ? `${SHARE_CARRIES} It points to the page file on this computer, so it opens only on a computer that has that file at the same place; to share the sheet with someone else, send them the page file and the sheet saved as a file.`
+    : `${SHARE_CARRIES} It opens this page with a copy of the sheet, on the worksheet, for whoever can reach this page’s address.`;
 }
 
 /** The panel's elements, appended to `host` in their order (the grid and help last). */
@@ -106,6 +113,7 @@ function fillToolbar(panel, parts) {
     button('sheet-demo', 'Load demo', loadDemo),
     parts.fileInput,
   );
+  mountSheetFiles(panel, parts.toolbar);
 }
 
 /**
@@ -127,8 +135,15 @@ export async function mountWorksheet(host, api, { onLink = () => {} } = {}) {
     replaced,
     onReplacedStored: () => panel.showReplaced(),
   });
-  const grid = mountGrid(parts.gridHost, sheet, { onChange: autosave.soon });
-  mountHelp(parts.helpHost, api.functionCatalog(), { onUse: (f) => grid.propose(f) });
+  const catalog = api.functionCatalog();
+  const grid = mountGrid(parts.gridHost, sheet, {
+    partNames: createPartNames(JSON.parse(catalog)),
+    onChange: (_changed, what) => {
+      panel.history.record(what);
+      autosave.soon();
+    },
+  });
+  mountHelp(parts.helpHost, catalog, { onUse: (f) => grid.propose(f) });
   Object.assign(panel, { grid, autosave });
   const render = mountReplacedView(parts.replacedHost, {
     onRestore: (entry) => panel.restore(entry),
@@ -136,10 +151,12 @@ export async function mountWorksheet(host, api, { onLink = () => {} } = {}) {
   panel.showReplaced = () => render(replaced.list());
   Object.assign(panel, createReplacing(panel));
   fillToolbar(panel, parts);
+  mountHistoryControls(panel, { toolbar: parts.toolbar, host });
   watchLinks(panel, onLink);
 
   const cameWithLink = hasSheetLink();
   await openAtStart(panel);
+  panel.history.reset();
   panel.showReplaced();
   grid.refresh();
   return { sheet, grid, cameWithLink };

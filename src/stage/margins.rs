@@ -1,0 +1,222 @@
+//! Stability margins of a circuit's loop, through the same engine as the
+//! pole-list loops ([`crate::freq::margins_of`]).
+//!
+//! The loop gain is the return ratio at the amplifier element or a named
+//! controlled source ([`super::loop_gain`]), evaluated by one nodal solve per
+//! frequency. The search grid gets its corners and resonances from the poles
+//! and zeros of every amplifier model in the circuit, from the poles of the
+//! opened circuit (the poles of T) and from the closed circuit's poles
+//! ([`super::poles::circuit_poles`], where 1 + T comes near 0), so a narrow
+//! resonance is not stepped over. The worst margins are signed by the closed
+//! circuit's poles; the Bode validity flags a loop gain with right-half-plane
+//! poles (the opened circuit's) or a negative real loop gain at the low end
+//! of the search range.
+
+use super::loop_gain::{control_in, open_at, reference_gain, Opened};
+use super::poles::{circuit_poles, CircuitPoles, MARGINAL_REL};
+use crate::circuit::mna::Sweeper;
+use crate::circuit::{Circuit, CircuitError, CircuitResult, ElementKind};
+use crate::freq::crossings::DEFAULT_POINTS_PER_DECADE;
+use crate::freq::{
+    margins_of, ComplexPair, EvaluatedLoop, GridHints, MarginValidity, Margins, Verdict,
+};
+use core::cell::RefCell;
+use num_complex::Complex64;
+
+/// Highest Q given to the local grid of a pole pair found on (or across) the
+/// jω axis: its resonance is then 1e-6 of f0 wide.
+const MAX_HINT_Q: f64 = 1e6;
+
+/// A circuit's return ratio as an evaluated loop gain.
+pub(crate) struct CircuitLoop<'a> {
+    original: &'a Circuit,
+    index: usize,
+    sweeper: RefCell<Sweeper<'a>>,
+    error: RefCell<Option<CircuitError>>,
+    hints: GridHints,
+}
+
+impl<'a> CircuitLoop<'a> {
+    /// The loop of `original` opened in `s` ([`setup`]), with grid hints
+    /// from both pole sets.
+    pub(crate) fn new(original: &'a Circuit, s: &'a LoopSetup) -> CircuitResult<CircuitLoop<'a>> {
+        Ok(CircuitLoop {
+            original,
+            index: s.opened.index,
+            sweeper: RefCell::new(Sweeper::new(&s.opened.circuit)?),
+            error: RefCell::new(None),
+            hints: hints(original, &s.open, &s.closed),
+        })
+    }
+
+    fn try_eval(&self, f_hz: f64) -> CircuitResult<Complex64> {
+        let mut sw = self.sweeper.borrow_mut();
+        let x = sw.solve_at(f_hz)?;
+        let returned = control_in(self.original, self.index, &sw, &x)?;
+        let k = reference_gain(self.original, self.index, f_hz)?;
+        Ok(-(k * returned))
+    }
+
+    /// The first evaluation error, if any (the engine saw a NaN for it).
+    pub(crate) fn take_error(&self) -> Option<CircuitError> {
+        self.error.borrow_mut().take()
+    }
+
+    /// T at `f_hz` as a complex number (NaN after an error, kept).
+    pub(crate) fn at(&self, f_hz: f64) -> Complex64 {
+        match self.try_eval(f_hz) {
+            Ok(t) => t,
+            Err(e) => {
+                self.error.borrow_mut().get_or_insert(e);
+                Complex64::new(f64::NAN, f64::NAN)
+            }
+        }
+    }
+
+    /// The engine's result, or the circuit's own error when an evaluation failed.
+    pub(crate) fn finish<T>(&self, r: crate::error::Result<T>) -> CircuitResult<T> {
+        if let Some(e) = self.take_error() {
+            return Err(e);
+        }
+        r.map_err(CircuitError::from)
+    }
+}
+
+impl EvaluatedLoop for CircuitLoop<'_> {
+    fn eval(&self, f_hz: f64) -> (f64, f64) {
+        let t = self.at(f_hz);
+        (libm::log(t.norm()), libm::atan2(t.im, t.re))
+    }
+
+    fn hints(&self) -> GridHints {
+        self.hints.clone()
+    }
+}
+
+/// Corners and pairs from every amplifier model, the poles of T (`open`:
+/// the opened circuit's, each complex pair with its local grid) and the
+/// closed circuit's poles (`closed`: corners only — T is smooth there, the
+/// curve only passes near −1).
+fn hints(c: &Circuit, open: &CircuitPoles, closed: &CircuitPoles) -> GridHints {
+    let mut h = GridHints::default();
+    for e in c
+        .elements()
+        .iter()
+        .filter(|e| e.kind() == ElementKind::Amplifier)
+    {
+        let Some(part) = e.amplifier() else { continue };
+        if let Ok(m) = part.model.transfer_model(part.point) {
+            m.corners_hz(&mut h.corners_hz);
+            h.pairs.extend(m.complex_poles.iter().map(|&p| (p, true)));
+            h.pairs.extend(m.complex_zeros.iter().map(|&p| (p, false)));
+        }
+    }
+    for p in open.poles.iter().filter(|p| p.natural_hz > 0.0) {
+        h.corners_hz.push(p.natural_hz);
+        if p.im > 0.0 {
+            let zeta = libm::fabs(p.zeta);
+            let q = if zeta > 0.5 / MAX_HINT_Q {
+                0.5 / zeta
+            } else {
+                MAX_HINT_Q
+            };
+            let pair = ComplexPair {
+                freq_hz: p.natural_hz,
+                q,
+            };
+            h.pairs.push((pair, true));
+        }
+    }
+    h.corners_hz.extend(
+        closed
+            .poles
+            .iter()
+            .filter(|p| p.natural_hz > 0.0 && p.im >= 0.0)
+            .map(|p| p.natural_hz),
+    );
+    h
+}
+
+/// Poles of the opened circuit (those of T) in the right half plane.
+pub(crate) fn rhp_count(p: &CircuitPoles) -> u32 {
+    p.poles
+        .iter()
+        .filter(|q| q.re > MARGINAL_REL * libm::hypot(q.re, q.im))
+        .count() as u32
+}
+
+/// Everything the circuit analyses of the loop share: the opened circuit,
+/// the closed and opened poles.
+pub(crate) struct LoopSetup {
+    pub opened: Opened,
+    pub closed: CircuitPoles,
+    pub open: CircuitPoles,
+}
+
+/// Open the loop of `c` at `controlled` and find both pole sets.
+pub(crate) fn setup(c: &Circuit, controlled: &str) -> CircuitResult<LoopSetup> {
+    let mut quiet = c.clone();
+    quiet.zero_sources();
+    let opened = open_at(&quiet, controlled, 1.0)?;
+    let closed = circuit_poles(c)?;
+    let open = circuit_poles(&opened.circuit)?;
+    Ok(LoopSetup {
+        opened,
+        closed,
+        open,
+    })
+}
+
+/// The stability margins of the loop of `c` broken at `controlled` (the
+/// amplifier element or a controlled source), on the default grid density.
+///
+/// # Errors
+/// As [`circuit_margins_with_density`].
+///
+/// # Example
+/// ```
+/// use loopwright::stage::margins::circuit_margins;
+/// use loopwright::stage::{Amplifier, Spread, SpreadPoint, Stage, StageKind, StageParts};
+/// use loopwright::freq::Verdict;
+/// // A follower of a 1 MHz amplifier with a second pole at 1 MHz: T = A(jω),
+/// // PM = 180° − 90° − atan(fc/1 MHz) with fc = 786 kHz (closed form of |T| = 1).
+/// let s = Stage {
+///     kind: StageKind::NonInverting,
+///     amplifier: Amplifier::from_gbw(Spread::fixed(1e5), 1e6).with_pole(1e6),
+///     point: SpreadPoint::Typ,
+///     parts: StageParts::default(),
+/// }.circuit().unwrap();
+/// let m = circuit_margins(&s.circuit, "U1").unwrap();
+/// let fc = 1e6 * ((5f64.sqrt() - 1.0) / 2.0).sqrt();
+/// assert!((m.crossover_hz.unwrap() / fc - 1.0).abs() < 1e-5);
+/// assert!((m.phase_margin_deg.unwrap() - (90.0 - (fc / 1e6).atan().to_degrees())).abs() < 1e-3);
+/// assert_eq!(m.closed_loop, Verdict::Stable);
+/// ```
+pub fn circuit_margins(c: &Circuit, controlled: &str) -> CircuitResult<Margins> {
+    circuit_margins_with_density(c, controlled, DEFAULT_POINTS_PER_DECADE)
+}
+
+/// [`circuit_margins`] with a chosen search-grid density, points per decade.
+///
+/// # Errors
+/// `controlled` unknown or not an amplifier or controlled source; a circuit
+/// that is singular (at DC, at some frequency, or for the pole analysis),
+/// named; `points_per_decade` outside 4…2000; too many phase crossings.
+pub fn circuit_margins_with_density(
+    c: &Circuit,
+    controlled: &str,
+    points_per_decade: u32,
+) -> CircuitResult<Margins> {
+    let s = setup(c, controlled)?;
+    let l = CircuitLoop::new(c, &s)?;
+    let validity = if rhp_count(&s.open) > 0 {
+        MarginValidity::OpenLoopUnstable
+    } else if l.at(l.search_range().0).re < 0.0 {
+        MarginValidity::PositiveFeedback
+    } else {
+        MarginValidity::Meaningful
+    };
+    let verdict: Verdict = s.closed.verdict;
+    let r = margins_of(&l, points_per_decade, || Ok(verdict), validity);
+    l.finish(r)
+}
