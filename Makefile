@@ -6,7 +6,7 @@ PORT ?= 8080
 PY := $(or $(LOOPWRIGHT_VENV),$(HOME)/.cache/loopwright/venv)/bin/python
 export CARGO_TERM_COLOR := never
 
-.PHONY: serve test lint bench bench-quick setup setup-page build single package test-native test-fuzz test-reference test-browser test-page test-package test-sheetfiles
+.PHONY: serve test lint bench bench-quick bench-compare setup setup-page build single package test-native test-fuzz test-reference test-browser test-page test-package test-sheetfiles
 
 serve: setup-page build
 	node scripts/serve.mjs www $(PORT)
@@ -83,3 +83,11 @@ bench: setup single package
 
 bench-quick:
 	node bench/run.mjs --quick
+
+# Every bench case of another checkout (BASE, its package built with `make package`)
+# beside this one's, interleaved in one run: bench/COMPARE.md. E.g. main at d3ae4e5:
+#   git worktree add /tmp/orig d3ae4e5 && make -C /tmp/orig package && make bench-compare
+BASE ?= /tmp/orig
+RUNS ?= 5
+bench-compare: package
+	node bench/compare.mjs $(BASE) --runs $(RUNS) --out bench/COMPARE.md

@@ -127,7 +127,9 @@ function copy(x, path, depth, budget) {
   if (x === null) return null;
   if (depth >= MAX_DEPTH)
     throw refusal('too_large', path, `nested too deep; the limit is ${MAX_DEPTH}`);
-  let at = path;
+  // The index or field being read, for the path of a getter or trap that throws; the
+  // path text itself is built only then, and for a child that is not a number.
+  let last = null;
   try {
     if (Array.isArray(x) || (ArrayBuffer.isView(x) && !(x instanceof DataView))) {
       const n = x.length;
@@ -139,8 +141,9 @@ function copy(x, path, depth, budget) {
       }
       const out = new Array(n);
       for (let i = 0; i < n; i++) {
-        at = `${path}[${i}]`;
-        out[i] = copy(x[i], at, depth + 1, budget);
+        last = i;
+        const v = x[i];
+        out[i] = typeof v === 'number' ? v : copy(v, `${path}[${i}]`, depth + 1, budget);
       }
       return out;
     }
@@ -150,12 +153,25 @@ function copy(x, path, depth, budget) {
     }
     const out = Object.create(null);
     for (const key of keys) {
-      at = path ? `${path}.${key}` : key;
-      const v = copy(x[key], at, depth + 1, budget);
-      if (v !== undefined) out[key] = v;
+      last = key;
+      const v = x[key];
+      if (typeof v === 'number') {
+        out[key] = v;
+        continue;
+      }
+      const c = copy(v, path ? `${path}.${key}` : key, depth + 1, budget);
+      if (c !== undefined) out[key] = c;
     }
     return out;
   } catch (e) {
+    const at =
+      last === null
+        ? path
+        : typeof last === 'number'
+          ? `${path}[${last}]`
+          : path
+            ? `${path}.${last}`
+            : last;
     throw unreadable(at || 'options', e);
   }
 }
@@ -180,32 +196,38 @@ export function numberOrModel(x, param) {
  * last guard, so that no such number ever reaches a caller.
  */
 export function finite(value, name) {
-  const bad = findNonFinite(value, '', 0);
+  const bad = findNonFinite(value, 0);
   if (bad !== null) {
-    throw refusal('overflow', bad || name, 'the result overflows the floating-point range');
+    const path = bad.startsWith('.') ? bad.slice(1) : bad;
+    throw refusal('overflow', path || name, 'the result overflows the floating-point range');
   }
   return value;
 }
 
-function findNonFinite(v, path, depth) {
-  if (typeof v === 'number') return v - v === 0 ? null : path;
+/**
+ * null when every number in `v` is finite, else the path of the first that is not,
+ * relative to `v` (`.gain`, `[2].re`, `''` for `v` itself); built on the way back,
+ * so a finite result costs no strings.
+ */
+function findNonFinite(v, depth) {
+  if (typeof v === 'number') return v - v === 0 ? null : '';
   if (typeof v !== 'object' || v === null || depth > 16) return null;
   if (ArrayBuffer.isView(v)) {
     for (let i = 0; i < v.length; i++) {
-      if (v[i] - v[i] !== 0) return `${path}[${i}]`;
+      if (v[i] - v[i] !== 0) return `[${i}]`;
     }
     return null;
   }
   if (Array.isArray(v)) {
     for (let i = 0; i < v.length; i++) {
-      const bad = findNonFinite(v[i], `${path}[${i}]`, depth + 1);
-      if (bad !== null) return bad;
+      const bad = findNonFinite(v[i], depth + 1);
+      if (bad !== null) return `[${i}]${bad}`;
     }
     return null;
   }
   for (const key of Object.keys(v)) {
-    const bad = findNonFinite(v[key], path ? `${path}.${key}` : key, depth + 1);
-    if (bad !== null) return bad;
+    const bad = findNonFinite(v[key], depth + 1);
+    if (bad !== null) return `.${key}${bad}`;
   }
   return null;
 }

@@ -23,7 +23,6 @@ export {
   loopGainSweep,
   closedLoopSweep,
   loopAt,
-  stabilityMargins,
   closedLoopPoles,
   closedLoopTransfer,
   closedLoopBandwidth,
@@ -91,3 +90,12 @@ export function closedLoopOutput(options: {
   /** Input amplitude. */
   x: number;
 }): number;
+/**
+ * Stability margins (see StabilityMargins); with `{ closedLoopPoles: true }` the result
+ * also carries the closed-loop poles that sign the margins, computed once for both.
+ */
+export function stabilityMargins(
+  amplifier: import('./loopwright_glue.js').AmplifierModelInput,
+  beta: import('./loopwright_glue.js').FeedbackInput,
+  options?: import('./loopwright_glue.js').MarginOptions,
+): import('./loopwright_glue.js').StabilityMargins;

@@ -122,7 +122,11 @@ const MODEL_AND_BETA = [
 export const loopGainSweep = checkedCall(glue.loopGainSweep, [['', O]]);
 export const closedLoopSweep = checkedCall(glue.closedLoopSweep, [['', O]]);
 export const loopAt = checkedCall(glue.loopAt, [...MODEL_AND_BETA, ['fHz', N]]);
-export const stabilityMargins = checkedCall(glue.stabilityMargins, MODEL_AND_BETA);
+export const stabilityMargins = checkedCall(glue.stabilityMargins, [
+  ...MODEL_AND_BETA,
+  // Optional: `{ closedLoopPoles: true }` adds the poles that sign the margins.
+  ['', (x, param) => (x === undefined ? undefined : O(x, param))],
+]);
 export const closedLoopPoles = checkedCall(glue.closedLoopPoles, MODEL_AND_BETA);
 export const closedLoopTransfer = checkedCall(glue.closedLoopTransfer, MODEL_AND_BETA);
 export const closedLoopBandwidth = checkedCall(glue.closedLoopBandwidth, MODEL_AND_BETA);

@@ -5,7 +5,7 @@
 export type * from './loopwright_glue.js';
 export * from './lite.js';
 // Declared by lite.d.ts with their options (the glue declares them without).
-export { parseValue, parseList } from './lite.js';
+export { parseValue, parseList, stabilityMargins } from './lite.js';
 export { default, initSync } from './loopwright_glue.js';
 export {
   circuitNormalize,

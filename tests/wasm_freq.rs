@@ -5,7 +5,7 @@
 
 use js_sys::{Array, JSON};
 use loopwright::wasm::freq as api;
-use wasm_bindgen::JsValue;
+use wasm_bindgen::{JsCast, JsValue};
 use wasm_bindgen_test::*;
 
 wasm_bindgen_test_configure!(run_in_browser);
@@ -57,7 +57,7 @@ fn sweeps_are_typed_arrays_with_continuous_phase() {
 fn margins_poles_and_bandwidth_are_plain_objects() {
     // Three equal poles, T0 = 4: GM = 20·log10(8/4) dB at √3 times the pole
     // frequency (the T0 = 8 trade fact, common practice, no source).
-    let m = api::stability_margins(three_equal_poles(4.0), 1.0.into()).unwrap();
+    let m = api::stability_margins(three_equal_poles(4.0), 1.0.into(), JsValue::UNDEFINED).unwrap();
     assert!((num(&m, "gainMarginDb") - 20.0 * 2f64.log10()).abs() < 1e-9);
     assert!((num(&m, "phaseCrossoverHz") / (1e3 * 3f64.sqrt()) - 1.0).abs() < 1e-10);
     assert_eq!(text(&m, "validity"), "meaningful");
@@ -81,13 +81,21 @@ fn margins_poles_and_bandwidth_are_plain_objects() {
 
     // β as a model object (a feedback capacitor's zero) is accepted too.
     let beta = obj(r#"{"gain": 0.1, "zerosHz": [2e5], "polesHz": [2e6]}"#);
-    let m =
-        api::stability_margins(obj(r#"{"gain": 1e5, "polesHz": [10, 1e6, 1e7]}"#), beta).unwrap();
+    let m = api::stability_margins(
+        obj(r#"{"gain": 1e5, "polesHz": [10, 1e6, 1e7]}"#),
+        beta,
+        JsValue::UNDEFINED,
+    )
+    .unwrap();
     assert!(num(&m, "phaseMarginDeg") > 0.0);
 
     // No crossover: the margin is null (unbounded), not an error.
-    let small =
-        api::stability_margins(obj(r#"{"gain": 0.5, "polesHz": [1e3]}"#), 1.0.into()).unwrap();
+    let small = api::stability_margins(
+        obj(r#"{"gain": 0.5, "polesHz": [1e3]}"#),
+        1.0.into(),
+        JsValue::UNDEFINED,
+    )
+    .unwrap();
     assert!(field(&small, "phaseMarginDeg").is_null());
 }
 
@@ -155,7 +163,7 @@ fn margins_read_every_crossing_as_its_distance_to_minus_one() {
     // "resonance crossing unity twice, Q 20" in tests/reference/freq_loops.py
     // (python-control crossings, read by the definition).
     let a = obj(r#"{"gain": 0.1, "complexPoles": [{"freqHz": 1e6, "q": 20}]}"#);
-    let m = api::stability_margins(a, 1.0.into()).unwrap();
+    let m = api::stability_margins(a, 1.0.into(), JsValue::UNDEFINED).unwrap();
     assert!((num(&m, "phaseMarginDeg") - 31.392871767382786).abs() < 1e-8);
     assert_eq!(text(&m, "closedLoop"), "stable");
     let crossings = Array::from(&field(&m, "gainCrossings"));
@@ -187,7 +195,11 @@ fn bad_input_throws_typed_errors() {
         "points",
     );
     assert_thrown(
-        api::stability_margins(obj(r#"{"gain": 1e5, "polesHz": [-10]}"#), 0.1.into()),
+        api::stability_margins(
+            obj(r#"{"gain": 1e5, "polesHz": [-10]}"#),
+            0.1.into(),
+            JsValue::UNDEFINED,
+        ),
         "out_of_domain",
         "amplifier.polesHz",
     );
@@ -195,17 +207,22 @@ fn bad_input_throws_typed_errors() {
         api::stability_margins(
             obj(r#"{"gain": 1e5, "complexPoles": [{"freqHz": 1e3, "q": 0}]}"#),
             0.1.into(),
+            JsValue::UNDEFINED,
         ),
         "out_of_domain",
         "amplifier.complexPoles",
     );
     assert_thrown(
-        api::stability_margins(obj(r#"{"gain": 1e5, "poles": [10]}"#), 0.1.into()),
+        api::stability_margins(
+            obj(r#"{"gain": 1e5, "poles": [10]}"#),
+            0.1.into(),
+            JsValue::UNDEFINED,
+        ),
         "unknown_field",
         "amplifier.poles",
     );
     assert_thrown(
-        api::stability_margins(obj(r#"{"gain": "big"}"#), 0.1.into()),
+        api::stability_margins(obj(r#"{"gain": "big"}"#), 0.1.into(), JsValue::UNDEFINED),
         "wrong_type",
         "amplifier.gain",
     );
@@ -214,17 +231,22 @@ fn bad_input_throws_typed_errors() {
         api::stability_margins(
             obj(r#"{"gain": 1e5, "polesHz": [10, 20, "3"]}"#),
             0.1.into(),
+            JsValue::UNDEFINED,
         ),
         "wrong_type",
         "amplifier.polesHz[2]",
     );
     assert_thrown(
-        api::stability_margins(obj(r#"{"polesHz": [10]}"#), 0.1.into()),
+        api::stability_margins(obj(r#"{"polesHz": [10]}"#), 0.1.into(), JsValue::UNDEFINED),
         "missing",
         "amplifier.gain",
     );
     assert_thrown(
-        api::stability_margins(obj(r#"{"gain": 1e5, "polesHz": "10"}"#), 0.1.into()),
+        api::stability_margins(
+            obj(r#"{"gain": 1e5, "polesHz": "10"}"#),
+            0.1.into(),
+            JsValue::UNDEFINED,
+        ),
         "wrong_type",
         "amplifier.polesHz",
     );
@@ -267,5 +289,64 @@ fn bad_input_throws_typed_errors() {
         api::closed_loop_bandwidth(a, JsValue::from(f64::NAN)),
         "not_finite",
         "beta.gain",
+    );
+}
+
+#[wasm_bindgen_test]
+fn margins_can_carry_the_poles_that_sign_them() {
+    // Not a numeric oracle but an identity: with `{closedLoopPoles: true}` the margins
+    // are those of the two-argument call and the poles those of `closedLoopPoles`
+    // (both compared as JSON text, so every digit must agree). T0 = 12 with three equal
+    // poles is past the T0 = 8 limit, so the margins are signed negative by the poles.
+    let json = |v: &JsValue| JSON::stringify(v).unwrap().as_string().unwrap();
+    for t0 in [4.0, 12.0] {
+        let plain =
+            api::stability_margins(three_equal_poles(t0), 1.0.into(), JsValue::UNDEFINED).unwrap();
+        let asked = api::stability_margins(
+            three_equal_poles(t0),
+            1.0.into(),
+            obj(r#"{"closedLoopPoles": true}"#),
+        )
+        .unwrap();
+        let poles = api::closed_loop_poles(three_equal_poles(t0), 1.0.into()).unwrap();
+        assert_eq!(json(&field(&asked, "closedLoopPoles")), json(&poles));
+        js_sys::Reflect::delete_property(
+            asked.unchecked_ref::<js_sys::Object>(),
+            &"closedLoopPoles".into(),
+        )
+        .unwrap();
+        assert_eq!(json(&asked), json(&plain));
+        let not_asked = api::stability_margins(
+            three_equal_poles(t0),
+            1.0.into(),
+            obj(r#"{"closedLoopPoles": false}"#),
+        )
+        .unwrap();
+        assert!(field(&not_asked, "closedLoopPoles").is_undefined());
+    }
+    assert!(
+        num(
+            &api::stability_margins(three_equal_poles(12.0), 1.0.into(), JsValue::UNDEFINED)
+                .unwrap(),
+            "gainMarginDb"
+        ) < 0.0
+    );
+    assert_thrown(
+        api::stability_margins(
+            three_equal_poles(4.0),
+            1.0.into(),
+            obj(r#"{"closedLoopPoles": 1}"#),
+        ),
+        "wrong_type",
+        "closedLoopPoles",
+    );
+    assert_thrown(
+        api::stability_margins(
+            three_equal_poles(4.0),
+            1.0.into(),
+            obj(r#"{"poles": true}"#),
+        ),
+        "unknown_field",
+        "poles",
     );
 }

@@ -134,4 +134,24 @@ fn bad_input_names_the_field() {
         ("bandHz", f()),
     ]));
     js::assert_thrown(e, "unknown_field", "bandHz");
+    // The object form of `output` is {plus, minus} or {element}: another field is
+    // named by its path, a half-given pair is refused at `output`.
+    let e = api::circuit_noise(options(&[
+        ("circuit", TIA.into()),
+        ("output", js::object(&[("node", "out".into())])),
+        ("frequenciesHz", f()),
+    ]));
+    js::assert_thrown(e, "unknown_field", "output.node");
+    let e = api::circuit_noise(options(&[
+        ("circuit", TIA.into()),
+        ("output", js::object(&[("plus", "out".into())])),
+        ("frequenciesHz", f()),
+    ]));
+    js::assert_thrown(e, "out_of_domain", "output");
+    let e = api::circuit_noise(options(&[
+        ("circuit", TIA.into()),
+        ("output", 3.into()),
+        ("frequenciesHz", f()),
+    ]));
+    js::assert_thrown(e, "wrong_type", "output");
 }

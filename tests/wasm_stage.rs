@@ -244,6 +244,30 @@ fn errors_name_the_callers_field_with_its_path() {
         "wrong_type",
         "circuit",
     );
+    js::assert_thrown(
+        api::circuit_poles_js(options(serde_json::json!({ "spreadPoint": "min" }))),
+        "missing",
+        "circuit",
+    );
+    js::assert_thrown(
+        api::amplifier_open_loop(options(serde_json::json!({
+            "amplifier": { "a0": 1e5, "gbwHz": "1M" },
+        }))),
+        "missing",
+        "frequenciesHz",
+    );
+    // NaN in a document object reads as JSON.stringify writes it, null: the reader
+    // refuses it at its path.
+    let bad = js_of(&c["stage"]);
+    let amplifier = js::field(&bad, "amplifier");
+    js_sys::Reflect::set(&amplifier, &"gbwHz".into(), &f64::NAN.into()).unwrap();
+    let o = js_sys::Object::new();
+    js_sys::Reflect::set(&o, &"circuit".into(), &bad).unwrap();
+    js::assert_thrown(
+        api::circuit_poles_js(o.into()),
+        "out_of_domain",
+        "circuit.amplifier.gbwHz",
+    );
 }
 
 /// Margins against python-control polished on sympy's exact loop gain

@@ -33,7 +33,7 @@
 use super::crossings::{scan, DEFAULT_POINTS_PER_DECADE};
 use super::evaluated::EvaluatedLoop;
 use super::model::FeedbackLoop;
-use super::poles::{closed_loop_poles, Verdict};
+use super::poles::{closed_loop_poles, ClosedLoopPoles, Verdict};
 use crate::error::Result;
 use alloc::vec::Vec;
 
@@ -145,6 +145,33 @@ pub fn stability_margins(l: &FeedbackLoop) -> Result<Margins> {
 /// assert_eq!(margins_with_density(&l, 3).unwrap_err().param(), "points_per_decade");
 /// ```
 pub fn margins_with_density(l: &FeedbackLoop, points_per_decade: u32) -> Result<Margins> {
+    margins_and_poles_with_density(l, points_per_decade).map(|(m, _)| m)
+}
+
+/// Stability margins with the default grid density, and the closed-loop poles that
+/// sign them: the same two results as [`stability_margins`] and
+/// [`closed_loop_poles`], for the price of computing the poles once.
+///
+/// # Errors
+/// As [`margins_with_density`].
+///
+/// # Example
+/// ```
+/// use loopwright::freq::{closed_loop_poles, margins_and_poles, stability_margins, FeedbackLoop, TransferModel};
+/// let a = TransferModel::constant(1e4).pole(1e3).pole(1e5).pole(1e6);
+/// let l = FeedbackLoop::with_constant_beta(a, 0.01).unwrap();
+/// let (m, p) = margins_and_poles(&l).unwrap();
+/// assert_eq!(m, stability_margins(&l).unwrap());
+/// assert_eq!(p, closed_loop_poles(&l).unwrap());
+/// ```
+pub fn margins_and_poles(l: &FeedbackLoop) -> Result<(Margins, ClosedLoopPoles)> {
+    margins_and_poles_with_density(l, DEFAULT_POINTS_PER_DECADE)
+}
+
+fn margins_and_poles_with_density(
+    l: &FeedbackLoop,
+    points_per_decade: u32,
+) -> Result<(Margins, ClosedLoopPoles)> {
     let validity = if l.open_loop_unstable() {
         MarginValidity::OpenLoopUnstable
     } else if l.amplifier().gain * l.feedback().gain < 0.0 {
@@ -152,12 +179,25 @@ pub fn margins_with_density(l: &FeedbackLoop, points_per_decade: u32) -> Result<
     } else {
         MarginValidity::Meaningful
     };
-    margins_of(
+    let mut poles = None;
+    let margins = margins_of(
         l,
         points_per_decade,
-        || Ok(closed_loop_poles(l)?.verdict),
+        || {
+            let p = closed_loop_poles(l)?;
+            let verdict = p.verdict;
+            poles = Some(p);
+            Ok(verdict)
+        },
         validity,
-    )
+    )?;
+    // margins_of asks for the verdict whenever it succeeds; the fallback only keeps
+    // this total without an unwrap.
+    let poles = match poles {
+        Some(p) => p,
+        None => closed_loop_poles(l)?,
+    };
+    Ok((margins, poles))
 }
 
 /// The margins of any evaluated loop gain (a pole-list loop, a circuit's

@@ -56,7 +56,8 @@ pub use compensation::{dominant_pole_for_margin, max_beta_for_margin, Compensati
 pub use crossings::{gain_crossings_hz, phase_crossings_hz, CROSSING_REL_TOL};
 pub use evaluated::{EvaluatedLoop, GridHints};
 pub use margins::{
-    margins_of, margins_with_density, stability_margins, Crossing, MarginValidity, Margins,
+    margins_and_poles, margins_of, margins_with_density, stability_margins, Crossing,
+    MarginValidity, Margins,
 };
 pub use model::{ComplexPair, FeedbackLoop, TransferModel};
 pub use nyquist::{nyquist, nyquist_of, Encirclements, LeastDistance, Nyquist, NyquistCurve};

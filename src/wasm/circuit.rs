@@ -171,46 +171,89 @@ impl From<Complex64> for Cx {
 /// the Rust docs). `topology` by either naming family; `ri`, `ro`, `rf`, `rg`, `rs`,
 /// `rl` in Ω; `gain` of the topology's kind (V/V, V/A, A/V, A/A, signed); `ci`,
 /// `co`, `cf` in F (default 0 = none).
-#[derive(serde::Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct TemplateOptions {
     topology: alloc::string::String,
     ri: f64,
     ro: f64,
     gain: f64,
-    #[serde(default)]
     ci: f64,
-    #[serde(default)]
     co: f64,
     rf: f64,
     rg: f64,
-    #[serde(default)]
     cf: f64,
     rs: f64,
     rl: f64,
 }
 
+impl super::options::FromOptions for TemplateOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "topology", "ri", "ro", "gain", "ci", "co", "rf", "rg", "cf", "rs", "rl",
+    ];
+    fn from_fields(f: &mut super::options::Fields) -> Self {
+        TemplateOptions {
+            topology: f.text("topology"),
+            ri: f.num("ri"),
+            ro: f.num("ro"),
+            gain: f.num("gain"),
+            ci: f.num_or("ci", 0.0),
+            co: f.num_or("co", 0.0),
+            rf: f.num("rf"),
+            rg: f.num("rg"),
+            cf: f.num_or("cf", 0.0),
+            rs: f.num("rs"),
+            rl: f.num("rl"),
+        }
+    }
+}
+
 /// The options of `circuitTwoPort` and `circuitStageViews`: a template stage and the
 /// frequency (Hz, default 0 = the midband/DC solution).
-#[derive(serde::Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct TemplateAtOptions {
     topology: alloc::string::String,
     ri: f64,
     ro: f64,
     gain: f64,
-    #[serde(default)]
     ci: f64,
-    #[serde(default)]
     co: f64,
     rf: f64,
     rg: f64,
-    #[serde(default)]
     cf: f64,
     rs: f64,
     rl: f64,
-    #[serde(default)]
     frequency_hz: f64,
+}
+
+impl super::options::FromOptions for TemplateAtOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "topology",
+        "ri",
+        "ro",
+        "gain",
+        "ci",
+        "co",
+        "rf",
+        "rg",
+        "cf",
+        "rs",
+        "rl",
+        "frequencyHz",
+    ];
+    fn from_fields(f: &mut super::options::Fields) -> Self {
+        TemplateAtOptions {
+            topology: f.text("topology"),
+            ri: f.num("ri"),
+            ro: f.num("ro"),
+            gain: f.num("gain"),
+            ci: f.num_or("ci", 0.0),
+            co: f.num_or("co", 0.0),
+            rf: f.num("rf"),
+            rg: f.num("rg"),
+            cf: f.num_or("cf", 0.0),
+            rs: f.num("rs"),
+            rl: f.num("rl"),
+            frequency_hz: f.num_or("frequencyHz", 0.0),
+        }
+    }
 }
 
 impl TemplateAtOptions {
@@ -260,24 +303,40 @@ fn spec_at(options: &JsValue) -> Result<(StageSpec, f64), JsValue> {
 }
 
 /// The options of the functions that probe a port of a circuit document.
-#[derive(serde::Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct ProbeOptions {
     circuit: alloc::string::String,
-    #[serde(default)]
     controlled: Option<alloc::string::String>,
-    #[serde(default)]
     source: Option<alloc::string::String>,
-    #[serde(default)]
     plus: Option<alloc::string::String>,
-    #[serde(default)]
     minus: Option<alloc::string::String>,
-    #[serde(default)]
     element: Option<alloc::string::String>,
-    #[serde(default)]
     frequency_hz: f64,
-    #[serde(default)]
     frequencies: Option<alloc::vec::Vec<f64>>,
+}
+
+impl super::options::FromOptions for ProbeOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "circuit",
+        "controlled",
+        "source",
+        "plus",
+        "minus",
+        "element",
+        "frequencyHz",
+        "frequencies",
+    ];
+    fn from_fields(f: &mut super::options::Fields) -> Self {
+        ProbeOptions {
+            circuit: f.text("circuit"),
+            controlled: f.opt_text("controlled"),
+            source: f.opt_text("source"),
+            plus: f.opt_text("plus"),
+            minus: f.opt_text("minus"),
+            element: f.opt_text("element"),
+            frequency_hz: f.num_or("frequencyHz", 0.0),
+            frequencies: f.opt_nums("frequencies"),
+        }
+    }
 }
 
 /// A required text field of a probe: a JS `missing` error naming it when absent.

@@ -6,9 +6,9 @@
 //! defaults in the `.d.ts`).
 
 use super::options::{core_error, read};
+use super::options::{Fields, FromOptions};
 use super::{scalar, throw, to_js, typed_arrays};
 use crate::distortion::{self as nl, AmplitudeAt, PowerSeries};
-use serde::Deserialize;
 use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen(typescript_custom_section)]
@@ -104,15 +104,25 @@ fn default_output() -> String {
 }
 
 /// Options of `seriesFromDistortion`.
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct MeasuredOptions {
     a1: f64,
     hd2: f64,
     hd3: f64,
     amplitude: f64,
-    #[serde(default = "default_output")]
     amplitude_at: String,
+}
+
+impl FromOptions for MeasuredOptions {
+    const FIELDS: &'static [&'static str] = &["a1", "hd2", "hd3", "amplitude", "amplitudeAt"];
+    fn from_fields(f: &mut Fields) -> Self {
+        MeasuredOptions {
+            a1: f.num("a1"),
+            hd2: f.num("hd2"),
+            hd3: f.num("hd3"),
+            amplitude: f.num("amplitude"),
+            amplitude_at: f.text_or("amplitudeAt", default_output),
+        }
+    }
 }
 
 /// Coefficients `{a1, a2, a3}` from signed HD2 and HD3 (fractions) measured at a
@@ -127,17 +137,27 @@ pub fn series_from_distortion(
 }
 
 /// Options of `harmonicDistortion` and `feedbackDistortion`.
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct DistortionOptions {
     a1: f64,
     a2: f64,
     a3: f64,
-    #[serde(default)]
     beta: Option<f64>,
     amplitude: f64,
-    #[serde(default = "default_output")]
     amplitude_at: String,
+}
+
+impl FromOptions for DistortionOptions {
+    const FIELDS: &'static [&'static str] = &["a1", "a2", "a3", "beta", "amplitude", "amplitudeAt"];
+    fn from_fields(f: &mut Fields) -> Self {
+        DistortionOptions {
+            a1: f.num("a1"),
+            a2: f.num("a2"),
+            a3: f.num("a3"),
+            beta: f.opt_num("beta"),
+            amplitude: f.num("amplitude"),
+            amplitude_at: f.text_or("amplitudeAt", default_output),
+        }
+    }
 }
 
 impl DistortionOptions {
@@ -187,18 +207,40 @@ pub fn feedback_distortion(
 }
 
 /// Options of `distortionAtFrequency`.
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct FrequencyOptions {
     a1: f64,
     a2: f64,
     a3: f64,
     beta: f64,
     amplitude: f64,
-    #[serde(default = "default_output")]
     amplitude_at: String,
     pole_hz: f64,
     frequency_hz: f64,
+}
+
+impl FromOptions for FrequencyOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "a1",
+        "a2",
+        "a3",
+        "beta",
+        "amplitude",
+        "amplitudeAt",
+        "poleHz",
+        "frequencyHz",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        FrequencyOptions {
+            a1: f.num("a1"),
+            a2: f.num("a2"),
+            a3: f.num("a3"),
+            beta: f.num("beta"),
+            amplitude: f.num("amplitude"),
+            amplitude_at: f.text_or("amplitudeAt", default_output),
+            pole_hz: f.num("poleHz"),
+            frequency_hz: f.num("frequencyHz"),
+        }
+    }
 }
 
 /// Distortion under feedback at a signal frequency, with the loop gain of a
@@ -230,16 +272,27 @@ pub fn closed_loop_output(a1: f64, a2: f64, a3: f64, beta: f64, x: f64) -> f64 {
 }
 
 /// Options of `closedLoopSpectrum` and `seriesCheck`.
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct SpectrumOptions {
     a1: f64,
     a2: f64,
     a3: f64,
     beta: f64,
     amplitude: f64,
-    #[serde(default = "default_samples")]
     samples: f64,
+}
+
+impl FromOptions for SpectrumOptions {
+    const FIELDS: &'static [&'static str] = &["a1", "a2", "a3", "beta", "amplitude", "samples"];
+    fn from_fields(f: &mut Fields) -> Self {
+        SpectrumOptions {
+            a1: f.num("a1"),
+            a2: f.num("a2"),
+            a3: f.num("a3"),
+            beta: f.num("beta"),
+            amplitude: f.num("amplitude"),
+            samples: f.num_or("samples", default_samples()),
+        }
+    }
 }
 
 fn default_samples() -> f64 {
@@ -283,8 +336,6 @@ pub fn series_check(
 }
 
 /// Options of `seriesValiditySweep`.
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct SweepOptions {
     a1: f64,
     a2: f64,
@@ -292,12 +343,36 @@ struct SweepOptions {
     beta: f64,
     amplitude_min: f64,
     amplitude_max: f64,
-    #[serde(default = "default_points")]
     points: f64,
-    #[serde(default = "default_tolerance")]
     tolerance: f64,
-    #[serde(default = "default_sweep_samples")]
     samples: f64,
+}
+
+impl FromOptions for SweepOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "a1",
+        "a2",
+        "a3",
+        "beta",
+        "amplitudeMin",
+        "amplitudeMax",
+        "points",
+        "tolerance",
+        "samples",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        SweepOptions {
+            a1: f.num("a1"),
+            a2: f.num("a2"),
+            a3: f.num("a3"),
+            beta: f.num("beta"),
+            amplitude_min: f.num("amplitudeMin"),
+            amplitude_max: f.num("amplitudeMax"),
+            points: f.num_or("points", default_points()),
+            tolerance: f.num_or("tolerance", default_tolerance()),
+            samples: f.num_or("samples", default_sweep_samples()),
+        }
+    }
 }
 
 fn default_points() -> f64 {

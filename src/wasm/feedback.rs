@@ -268,22 +268,35 @@ struct ImpedanceResult {
 
 /// The options of `impedancesWithFeedback`: impedances in Ω, the gains of the
 /// topology's kind; imaginary parts default to 0.
-#[derive(serde::Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct ImpedanceOptions {
     topology: String,
     zi_re: f64,
-    #[serde(default)]
     zi_im: f64,
     zo_re: f64,
-    #[serde(default)]
     zo_im: f64,
     a_re: f64,
-    #[serde(default)]
     a_im: f64,
     beta_re: f64,
-    #[serde(default)]
     beta_im: f64,
+}
+
+impl super::options::FromOptions for ImpedanceOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "topology", "ziRe", "ziIm", "zoRe", "zoIm", "aRe", "aIm", "betaRe", "betaIm",
+    ];
+    fn from_fields(f: &mut super::options::Fields) -> Self {
+        ImpedanceOptions {
+            topology: f.text("topology"),
+            zi_re: f.num("ziRe"),
+            zi_im: f.num_or("ziIm", 0.0),
+            zo_re: f.num("zoRe"),
+            zo_im: f.num_or("zoIm", 0.0),
+            a_re: f.num("aRe"),
+            a_im: f.num_or("aIm", 0.0),
+            beta_re: f.num("betaRe"),
+            beta_im: f.num_or("betaIm", 0.0),
+        }
+    }
 }
 
 /// Input and output impedance with feedback, from one options object `{topology,

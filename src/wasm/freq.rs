@@ -7,10 +7,10 @@
 //! either a number (a frequency-independent feedback factor) or such an object.
 //! Sweeps come back as objects of `Float64Array`s.
 
+use super::options::{Fields, FromOptions, Plain};
 use super::{scalar, set_typed_arrays, to_js, typed_arrays};
 use crate::error::Error;
 use crate::freq::{self as fq, ComplexPair, FeedbackLoop, TransferModel};
-use serde::Deserialize;
 use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen(typescript_custom_section)]
@@ -75,7 +75,11 @@ export interface StabilityMargins {
   validity: MarginValidity;
   /** The closed-loop verdict from the poles, which signs the worst margins. */
   closedLoop: StabilityVerdict;
+  /** The poles themselves, when asked for with `{ closedLoopPoles: true }`. */
+  closedLoopPoles?: ClosedLoopPoles;
 }
+/** Options of `stabilityMargins`: `closedLoopPoles` (default false) adds the poles that sign the margins to the result. */
+export interface MarginOptions { closedLoopPoles?: boolean; }
 export type StabilityVerdict = "stable" | "marginal" | "unstable";
 /** A closed-loop pole in rad/s with its natural frequency (Hz), damping and Q (null for a real pole). */
 export interface ClosedLoopPole { re: number; im: number; naturalHz: number; zeta: number; q: number | null; }
@@ -141,37 +145,66 @@ export interface TwoPoleResponse {
 }
 "#;
 
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct JsPair {
     freq_hz: f64,
     q: f64,
 }
 
+impl FromOptions for JsPair {
+    const FIELDS: &'static [&'static str] = &["freqHz", "q"];
+    fn from_fields(f: &mut Fields) -> Self {
+        JsPair {
+            freq_hz: f.num("freqHz"),
+            q: f.num("q"),
+        }
+    }
+}
+
 /// A transfer model as the caller writes it; every field but `gain` may be left out.
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
+#[derive(Default)]
 struct JsModel {
     gain: f64,
-    #[serde(default)]
     poles_hz: Vec<f64>,
-    #[serde(default)]
     zeros_hz: Vec<f64>,
-    #[serde(default)]
     rhp_zeros_hz: Vec<f64>,
-    #[serde(default)]
     rhp_poles_hz: Vec<f64>,
-    #[serde(default)]
     complex_poles: Vec<JsPair>,
-    #[serde(default)]
     complex_zeros: Vec<JsPair>,
-    #[serde(default)]
     origin_poles: u32,
-    #[serde(default)]
     low_cuts_hz: Vec<f64>,
-    #[serde(default)]
     delay_s: f64,
     pade_order: Option<u32>,
+}
+
+impl FromOptions for JsModel {
+    const FIELDS: &'static [&'static str] = &[
+        "gain",
+        "polesHz",
+        "zerosHz",
+        "rhpZerosHz",
+        "rhpPolesHz",
+        "complexPoles",
+        "complexZeros",
+        "originPoles",
+        "lowCutsHz",
+        "delayS",
+        "padeOrder",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        JsModel {
+            gain: f.num("gain"),
+            poles_hz: f.nums("polesHz"),
+            zeros_hz: f.nums("zerosHz"),
+            rhp_zeros_hz: f.nums("rhpZerosHz"),
+            rhp_poles_hz: f.nums("rhpPolesHz"),
+            complex_poles: f.objects("complexPoles"),
+            complex_zeros: f.objects("complexZeros"),
+            origin_poles: f.whole_or("originPoles", 0),
+            low_cuts_hz: f.nums("lowCutsHz"),
+            delay_s: f.num_or("delayS", 0.0),
+            pade_order: f.opt_whole("padeOrder"),
+        }
+    }
 }
 
 fn pairs(v: Vec<JsPair>) -> Vec<ComplexPair> {
@@ -219,26 +252,25 @@ enum JsBeta {
     Model(JsModel),
 }
 
-impl<'de> Deserialize<'de> for JsBeta {
-    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
-        struct Either;
-        impl<'de> serde::de::Visitor<'de> for Either {
-            type Value = JsBeta;
-            fn expecting(&self, f: &mut core::fmt::Formatter<'_>) -> core::fmt::Result {
-                f.write_str("a number or a model object")
+impl JsBeta {
+    /// The required field `key` of `f` as β: a number or a model object.
+    fn field(f: &mut Fields, key: &str) -> JsBeta {
+        match f.raw(key) {
+            Some((_, Plain::Number(x))) => JsBeta::Constant(x),
+            Some((at, value @ Plain::Map(_))) => {
+                let path = f.key_path(key);
+                f.nested(at, path, value)
+                    .map_or(JsBeta::Constant(0.0), JsBeta::Model)
             }
-            fn visit_f64<E>(self, x: f64) -> Result<JsBeta, E> {
-                Ok(JsBeta::Constant(x))
+            Some((at, other)) => {
+                f.refuse(key, at, &other, "a number or a model object");
+                JsBeta::Constant(0.0)
             }
-            fn visit_u64<E>(self, x: u64) -> Result<JsBeta, E> {
-                Ok(JsBeta::Constant(x as f64))
-            }
-            fn visit_map<A: serde::de::MapAccess<'de>>(self, map: A) -> Result<JsBeta, A::Error> {
-                JsModel::deserialize(serde::de::value::MapAccessDeserializer::new(map))
-                    .map(JsBeta::Model)
+            None => {
+                f.missing(key);
+                JsBeta::Constant(0.0)
             }
         }
-        d.deserialize_any(Either)
     }
 }
 
@@ -277,28 +309,34 @@ fn feedback_loop(a: &JsValue, beta: &JsValue) -> Result<FeedbackLoop, JsValue> {
     let amplifier: JsModel = super::options::read("amplifier", a)?;
     let beta: JsBeta = match beta.as_f64() {
         Some(b) => JsBeta::Constant(b),
-        None => super::options::read("beta", beta)?,
+        None => JsBeta::Model(super::options::read("beta", beta)?),
     };
     loop_of(amplifier, beta)
 }
 
 /// The options of `loopGainSweep` and `closedLoopSweep`.
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct SweepOptions {
     amplifier: JsModel,
     beta: JsBeta,
     start_hz: f64,
     stop_hz: f64,
-    #[serde(default = "default_points")]
     points: u32,
 }
 
 /// Points of a sweep when `points` is left out.
 const DEFAULT_SWEEP_POINTS: u32 = 200;
 
-fn default_points() -> u32 {
-    DEFAULT_SWEEP_POINTS
+impl FromOptions for SweepOptions {
+    const FIELDS: &'static [&'static str] = &["amplifier", "beta", "startHz", "stopHz", "points"];
+    fn from_fields(f: &mut Fields) -> Self {
+        SweepOptions {
+            amplifier: f.object("amplifier"),
+            beta: JsBeta::field(f, "beta"),
+            start_hz: f.num("startHz"),
+            stop_hz: f.num("stopHz"),
+            points: f.whole_or("points", DEFAULT_SWEEP_POINTS),
+        }
+    }
 }
 
 /// The loop and the range of a sweep's options.
@@ -382,15 +420,40 @@ pub fn loop_at(
 }
 
 /// Stability margins: `{phaseMarginDeg, crossoverHz, gainMarginDb,
-/// phaseCrossoverHz, gainCrossings, phaseCrossings, validity}`; a margin is
-/// `null` when unbounded (no crossover of that kind).
+/// phaseCrossoverHz, gainCrossings, phaseCrossings, validity, closedLoop}`; a margin
+/// is `null` when unbounded (no crossover of that kind). With `{closedLoopPoles:
+/// true}` the result also carries `closedLoopPoles` (as `closedLoopPoles()` returns
+/// them): the margins are signed by those poles, so asking here computes them once.
 #[wasm_bindgen(js_name = stabilityMargins, unchecked_return_type = "StabilityMargins")]
 pub fn stability_margins(
     #[wasm_bindgen(unchecked_param_type = "AmplifierModelInput")] amplifier: JsValue,
     #[wasm_bindgen(unchecked_param_type = "FeedbackInput")] beta: JsValue,
+    #[wasm_bindgen(unchecked_param_type = "MarginOptions | undefined")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
     let l = feedback_loop(&amplifier, &beta)?;
-    to_js(&throw(fq::stability_margins(&l))?)
+    let with_poles = !options.is_undefined()
+        && super::options::read::<MarginOptions>("", &options)?.closed_loop_poles;
+    if !with_poles {
+        return to_js(&throw(fq::stability_margins(&l))?);
+    }
+    let (m, p) = throw(fq::margins_and_poles(&l))?;
+    let obj = to_js(&m)?;
+    js_sys::Reflect::set(&obj, &"closedLoopPoles".into(), &to_js(&p)?)?;
+    Ok(obj)
+}
+
+/// The options of `stabilityMargins` (its third argument, which may be left out).
+struct MarginOptions {
+    closed_loop_poles: bool,
+}
+
+impl FromOptions for MarginOptions {
+    const FIELDS: &'static [&'static str] = &["closedLoopPoles"];
+    fn from_fields(f: &mut Fields) -> Self {
+        MarginOptions {
+            closed_loop_poles: f.flag_or("closedLoopPoles", false),
+        }
+    }
 }
 
 /// Closed-loop poles: `{poles: [{re, im, naturalHz, zeta, q}], verdict, minZeta,

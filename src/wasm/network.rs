@@ -1,12 +1,12 @@
 //! JS bindings for feedback-network synthesis and tolerance.
 
 use super::options::{core_error, read};
+use super::options::{Fields, FromOptions};
 use super::{scalar, throw, to_js};
 use crate::network::montecarlo::count_from_number;
 use crate::network::{
     self as nw, Distribution, GainDistribution, Metric, MonteCarloSpec, PairSpec, StageSpec,
 };
-use serde::Deserialize;
 use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen(typescript_custom_section)]
@@ -141,22 +141,36 @@ pub fn letter_code(value: f64, digits: u32) -> Result<String, JsValue> {
 }
 
 /// Options of `bestPairs` (defaults in the `.d.ts`).
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct PairOptions {
     network: String,
     target: f64,
     series: String,
     total_min: f64,
     total_max: f64,
-    #[serde(default)]
     fixed_r1: Option<f64>,
-    #[serde(default)]
     max_error: Option<f64>,
-    #[serde(default = "default_combine")]
     combine: String,
-    #[serde(default = "default_count")]
     count: f64,
+}
+
+impl FromOptions for PairOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "network", "target", "series", "totalMin", "totalMax", "fixedR1", "maxError", "combine",
+        "count",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        PairOptions {
+            network: f.text("network"),
+            target: f.num("target"),
+            series: f.text("series"),
+            total_min: f.num("totalMin"),
+            total_max: f.num("totalMax"),
+            fixed_r1: f.opt_num("fixedR1"),
+            max_error: f.opt_num("maxError"),
+            combine: f.text_or("combine", default_combine),
+            count: f.num_or("count", default_count()),
+        }
+    }
 }
 
 fn default_combine() -> String {
@@ -216,15 +230,11 @@ pub fn single_resistor(
 }
 
 /// The stage fields shared by `worstCase` and `monteCarlo` (defaults in the `.d.ts`).
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct StageOptions {
     stage: String,
     r1: f64,
     r2: f64,
-    #[serde(rename = "tolR1")]
     tol_r1: f64,
-    #[serde(rename = "tolR2")]
     tol_r2: f64,
     a_min: f64,
     a_typ: f64,
@@ -232,13 +242,34 @@ struct StageOptions {
     ri: f64,
     ro: f64,
     /// The dominant pole at aTyp, Hz; or, instead, `gbw_hz`.
-    #[serde(default)]
     pole_hz: Option<f64>,
     /// The gain–bandwidth product, Hz: the pole is GBW/aTyp.
-    #[serde(default)]
     gbw_hz: Option<f64>,
-    #[serde(default = "default_hold")]
     hold: String,
+}
+
+impl FromOptions for StageOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "stage", "r1", "r2", "tolR1", "tolR2", "aMin", "aTyp", "aMax", "ri", "ro", "poleHz",
+        "gbwHz", "hold",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        StageOptions {
+            stage: f.text("stage"),
+            r1: f.num("r1"),
+            r2: f.num("r2"),
+            tol_r1: f.num("tolR1"),
+            tol_r2: f.num("tolR2"),
+            a_min: f.num("aMin"),
+            a_typ: f.num("aTyp"),
+            a_max: f.num("aMax"),
+            ri: f.num("ri"),
+            ro: f.num("ro"),
+            pole_hz: f.opt_num("poleHz"),
+            gbw_hz: f.opt_num("gbwHz"),
+            hold: f.text_or("hold", default_hold),
+        }
+    }
 }
 
 fn default_hold() -> String {
@@ -292,47 +323,85 @@ pub fn worst_case(
 }
 
 /// Options of `monteCarlo`: the stage fields and the draw (defaults in the `.d.ts`).
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct MonteCarloOptions {
     stage: String,
     r1: f64,
     r2: f64,
-    #[serde(rename = "tolR1")]
     tol_r1: f64,
-    #[serde(rename = "tolR2")]
     tol_r2: f64,
     a_min: f64,
     a_typ: f64,
     a_max: f64,
     ri: f64,
     ro: f64,
-    #[serde(default)]
     pole_hz: Option<f64>,
-    #[serde(default)]
     gbw_hz: Option<f64>,
-    #[serde(default = "default_hold")]
     hold: String,
-    #[serde(default = "default_resistors")]
     resistor_distribution: String,
-    #[serde(default = "default_k")]
     k: f64,
-    #[serde(default = "default_gain_distribution")]
     gain_distribution: String,
-    #[serde(default = "default_k")]
     k_gain: f64,
-    #[serde(default = "default_metric")]
     metric: String,
-    #[serde(default = "default_trials")]
     trials: f64,
-    #[serde(default = "default_seed")]
     seed: f64,
-    #[serde(default)]
     lower: Option<f64>,
-    #[serde(default)]
     upper: Option<f64>,
-    #[serde(default = "default_bins")]
     bins: f64,
+}
+
+impl FromOptions for MonteCarloOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "stage",
+        "r1",
+        "r2",
+        "tolR1",
+        "tolR2",
+        "aMin",
+        "aTyp",
+        "aMax",
+        "ri",
+        "ro",
+        "poleHz",
+        "gbwHz",
+        "hold",
+        "resistorDistribution",
+        "k",
+        "gainDistribution",
+        "kGain",
+        "metric",
+        "trials",
+        "seed",
+        "lower",
+        "upper",
+        "bins",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        MonteCarloOptions {
+            stage: f.text("stage"),
+            r1: f.num("r1"),
+            r2: f.num("r2"),
+            tol_r1: f.num("tolR1"),
+            tol_r2: f.num("tolR2"),
+            a_min: f.num("aMin"),
+            a_typ: f.num("aTyp"),
+            a_max: f.num("aMax"),
+            ri: f.num("ri"),
+            ro: f.num("ro"),
+            pole_hz: f.opt_num("poleHz"),
+            gbw_hz: f.opt_num("gbwHz"),
+            hold: f.text_or("hold", default_hold),
+            resistor_distribution: f.text_or("resistorDistribution", default_resistors),
+            k: f.num_or("k", default_k()),
+            gain_distribution: f.text_or("gainDistribution", default_gain_distribution),
+            k_gain: f.num_or("kGain", default_k()),
+            metric: f.text_or("metric", default_metric),
+            trials: f.num_or("trials", default_trials()),
+            seed: f.num_or("seed", default_seed()),
+            lower: f.opt_num("lower"),
+            upper: f.opt_num("upper"),
+            bins: f.num_or("bins", default_bins()),
+        }
+    }
 }
 
 fn default_resistors() -> String {

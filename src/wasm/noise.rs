@@ -8,9 +8,9 @@
 //! the export.
 
 use super::options::{core_error, error_at, read};
+use super::options::{Fields, FromOptions};
 use super::{scalar, to_js, typed_arrays};
 use crate::noise::{self as nz, AmplifierNoise, ClosedLoopResponse, Stage, StageKind};
-use serde::Deserialize;
 use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen(typescript_custom_section)]
@@ -61,43 +61,71 @@ export interface NoiseOptions {
 
 /// A stage, its amplifier's noise and its loop, as the noise exports read them
 /// (defaults in the `.d.ts`).
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct NoiseOptions {
     kind: String,
     r_feedback: f64,
     r_gain: f64,
-    #[serde(default)]
     r_plus: f64,
-    #[serde(default = "default_temperature")]
     temperature_k: f64,
     voltage_density: f64,
-    #[serde(default)]
     voltage_corner_hz: f64,
-    #[serde(default)]
     current_density: f64,
-    #[serde(default)]
     current_corner_hz: f64,
     /// Needed by the integrated noise and the sweep.
-    #[serde(default)]
     gbw_hz: Option<f64>,
-    #[serde(default)]
     extra_poles_hz: Vec<f64>,
     /// `stageNoiseContributions`.
-    #[serde(default)]
     frequency_hz: Option<f64>,
     /// `integratedNoise`: the band.
-    #[serde(default)]
     f_low: Option<f64>,
-    #[serde(default)]
     f_high: Option<f64>,
     /// `noiseDensitySweep`: the span and points.
-    #[serde(default)]
     f_start: Option<f64>,
-    #[serde(default)]
     f_stop: Option<f64>,
-    #[serde(default = "default_points")]
     points: f64,
+}
+
+impl FromOptions for NoiseOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "kind",
+        "rFeedback",
+        "rGain",
+        "rPlus",
+        "temperatureK",
+        "voltageDensity",
+        "voltageCornerHz",
+        "currentDensity",
+        "currentCornerHz",
+        "gbwHz",
+        "extraPolesHz",
+        "frequencyHz",
+        "fLow",
+        "fHigh",
+        "fStart",
+        "fStop",
+        "points",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        NoiseOptions {
+            kind: f.text("kind"),
+            r_feedback: f.num("rFeedback"),
+            r_gain: f.num("rGain"),
+            r_plus: f.num_or("rPlus", 0.0),
+            temperature_k: f.num_or("temperatureK", default_temperature()),
+            voltage_density: f.num("voltageDensity"),
+            voltage_corner_hz: f.num_or("voltageCornerHz", 0.0),
+            current_density: f.num_or("currentDensity", 0.0),
+            current_corner_hz: f.num_or("currentCornerHz", 0.0),
+            gbw_hz: f.opt_num("gbwHz"),
+            extra_poles_hz: f.nums("extraPolesHz"),
+            frequency_hz: f.opt_num("frequencyHz"),
+            f_low: f.opt_num("fLow"),
+            f_high: f.opt_num("fHigh"),
+            f_start: f.opt_num("fStart"),
+            f_stop: f.opt_num("fStop"),
+            points: f.num_or("points", default_points()),
+        }
+    }
 }
 
 fn default_temperature() -> f64 {

@@ -1,9 +1,8 @@
 //! The one reader of JS options objects.
 //!
 //! An export with more than four inputs takes one options object with camelCase
-//! fields; its Rust side is a serde struct with
-//! `#[serde(rename_all = "camelCase", deny_unknown_fields)]` (fields with a default
-//! carry `#[serde(default)]` or `#[serde(default = "…")]`, stated in the `.d.ts`).
+//! fields; its Rust side is a struct implementing [`FromOptions`], which reads each
+//! field through [`Fields`] by its camelCase name (defaults stated in the `.d.ts`).
 //! [`read`] turns such an object into the struct, and every way it can fail into a
 //! thrown `LoopwrightError` whose `param` is the name the caller used, with its path:
 //!
@@ -24,8 +23,8 @@
 
 use crate::Error;
 use alloc::string::{String, ToString};
-use serde::de::DeserializeOwned;
-use serde_path_to_error::Segment;
+use alloc::vec::Vec;
+use serde::de::Unexpected;
 use wasm_bindgen::prelude::*;
 use wasm_bindgen::JsCast;
 
@@ -37,25 +36,469 @@ use wasm_bindgen::JsCast;
 /// `amplifier.polesHz`).
 ///
 /// # Errors
-/// A `LoopwrightError` with `code` `missing`, `unknown_field`, `wrong_type` or
-/// `unknown_name` and `param` the path of the field at fault (see the module docs).
-pub(crate) fn read<T: DeserializeOwned>(name: &str, value: &JsValue) -> Result<T, JsValue> {
-    if !value.is_object() || js_sys::Array::is_array(value) {
-        let param = if name.is_empty() { "options" } else { name };
-        return Err(error_at(
-            param,
-            Error::WrongType {
-                param: "",
-                expected: "an options object",
-            },
-            None,
-        ));
+/// A `LoopwrightError` with `code` `missing`, `unknown_field` or `wrong_type` and
+/// `param` the path of the field at fault (see the module docs).
+pub(crate) fn read<T: FromOptions>(name: &str, value: &JsValue) -> Result<T, JsValue> {
+    let mut fields = Fields::top(name, value, T::FIELDS)?;
+    let t = T::from_fields(&mut fields);
+    fields.finish()?;
+    Ok(t)
+}
+
+/// A struct read from an options object by [`read`], or nested in one
+/// ([`Fields::object`], [`Fields::objects`]).
+///
+/// Written by hand rather than derived with serde: one derived deserializer per
+/// struct, monomorphised over the path-tracking wrappers, cost the lite module about
+/// 50 KB gzipped (docs/wasm-size.md); these readers share one non-generic core.
+pub(crate) trait FromOptions: Sized {
+    /// The caller's field names, in the order [`Self::from_fields`] reads them (the
+    /// order of the `.d.ts`); any other field is refused.
+    const FIELDS: &'static [&'static str];
+    /// Read every field, in the order of [`Self::FIELDS`]. A field that fails to read
+    /// gives a placeholder and records its error in `fields`, which [`read`] returns.
+    fn from_fields(fields: &mut Fields) -> Self;
+}
+
+/// The fields of one options object as they are read, and the first failure.
+///
+/// Which failure is reported is the one a reader going through the object's own
+/// entries in order would meet first (the entry order of the JS object): a value of
+/// the wrong kind or an unknown field at its entry, then the missing fields in the
+/// order of [`FromOptions::FIELDS`].
+pub(crate) struct Fields {
+    /// The caller's path of this object: `""` at the top, `amplifier`, `complexPoles[1]`.
+    path: String,
+    entries: Vec<(String, Plain)>,
+    names: &'static [&'static str],
+    /// The first failure so far: its place, the path of the field, what is wrong.
+    failure: Option<(usize, String, Failure)>,
+    /// Missing fields found so far (they rank after every entry, in reading order).
+    missing: usize,
+}
+
+impl Fields {
+    /// The fields of the object `value` named `name`.
+    fn top(name: &str, value: &JsValue, names: &'static [&'static str]) -> Result<Fields, JsValue> {
+        if !value.is_object() || js_sys::Array::is_array(value) {
+            let param = if name.is_empty() { "options" } else { name };
+            return Err(error_at(
+                param,
+                Error::WrongType {
+                    param: "",
+                    expected: "an options object",
+                },
+                None,
+            ));
+        }
+        Fields::of(String::from(name), Plain::from_js(value), names)
+            .map_err(|(path, failure)| refusal(&path, failure))
     }
-    let plain = Plain::from_js(value);
-    serde_path_to_error::deserialize(plain).map_err(|e| {
-        let path = path_text(name, e.path());
-        refusal(&path, &e.inner().to_string())
+
+    /// The fields of `value` at `path`, or the path and message of a value that is
+    /// not an object.
+    fn of(
+        path: String,
+        value: Plain,
+        names: &'static [&'static str],
+    ) -> Result<Fields, (String, Failure)> {
+        match value {
+            Plain::Map(entries) => Ok(Fields {
+                path,
+                entries,
+                names,
+                failure: None,
+                missing: 0,
+            }),
+            other => Err((path, wrong(&other, "an object"))),
+        }
+    }
+
+    /// Refuse the first field not in the struct's list; the error, if any.
+    fn finish(mut self) -> Result<(), JsValue> {
+        self.check_unknown();
+        match self.failure {
+            Some((_, path, failure)) => Err(refusal(&path, failure)),
+            None => Ok(()),
+        }
+    }
+
+    fn check_unknown(&mut self) {
+        let names = self.names;
+        let unknown = self
+            .entries
+            .iter()
+            .position(|(key, _)| !names.contains(&key.as_str()));
+        if let Some(at) = unknown {
+            let path = self.key_path(&self.entries[at].0);
+            self.fail(at, path, Failure::Unknown(names));
+        }
+    }
+
+    /// Keep the failure at `at` if it comes before the one kept so far.
+    fn fail(&mut self, at: usize, path: String, failure: Failure) {
+        if self
+            .failure
+            .as_ref()
+            .map_or(true, |(first, _, _)| at < *first)
+        {
+            self.failure = Some((at, path, failure));
+        }
+    }
+
+    /// The caller's path of the field `key` of this object (`amplifier.polesHz`).
+    pub(crate) fn key_path(&self, key: &str) -> String {
+        let mut out = self.path.clone();
+        push_key(&mut out, key);
+        out
+    }
+
+    /// The entry `key` and its place, if the object has it.
+    fn take(&mut self, key: &str) -> Option<(usize, Plain)> {
+        let at = self.entries.iter().position(|(k, _)| k == key)?;
+        Some((at, core::mem::replace(&mut self.entries[at].1, Plain::Null)))
+    }
+
+    /// A required field left out: its error, ranked after every entry.
+    fn left_out(&mut self, key: &str) {
+        let at = self.entries.len() + self.missing;
+        self.missing += 1;
+        let path = self.key_path(key);
+        self.fail(at, path, Failure::Missing);
+    }
+
+    /// The field `key` converted: `None` when absent (or `null` if `null_is_absent`),
+    /// `Some(None)` when it failed (the failure is recorded).
+    fn value<T>(
+        &mut self,
+        key: &str,
+        null_is_absent: bool,
+        convert: fn(Plain) -> Result<T, (String, Failure)>,
+    ) -> Option<Option<T>> {
+        let (at, v) = self.take(key)?;
+        if null_is_absent && matches!(v, Plain::Null) {
+            return None;
+        }
+        match convert(v) {
+            Ok(t) => Some(Some(t)),
+            Err((suffix, failure)) => {
+                let mut path = self.key_path(key);
+                path.push_str(&suffix);
+                self.fail(at, path, failure);
+                Some(None)
+            }
+        }
+    }
+
+    fn required<T>(
+        &mut self,
+        key: &str,
+        convert: fn(Plain) -> Result<T, (String, Failure)>,
+    ) -> Option<T> {
+        match self.value(key, false, convert) {
+            Some(v) => v,
+            None => {
+                self.left_out(key);
+                None
+            }
+        }
+    }
+
+    /// A required number.
+    pub(crate) fn num(&mut self, key: &str) -> f64 {
+        self.required(key, number).unwrap_or(0.0)
+    }
+
+    /// A number, `default` when left out.
+    pub(crate) fn num_or(&mut self, key: &str, default: f64) -> f64 {
+        self.value(key, false, number)
+            .map_or(default, |v| v.unwrap_or(default))
+    }
+
+    /// A number that may be left out or `null`.
+    pub(crate) fn opt_num(&mut self, key: &str) -> Option<f64> {
+        self.value(key, true, number).flatten()
+    }
+
+    /// A whole number (0 … 2³² − 1), `default` when left out.
+    pub(crate) fn whole_or(&mut self, key: &str, default: u32) -> u32 {
+        self.value(key, false, whole)
+            .map_or(default, |v| v.unwrap_or(default))
+    }
+
+    /// A whole number that may be left out or `null`.
+    pub(crate) fn opt_whole(&mut self, key: &str) -> Option<u32> {
+        self.value(key, true, whole).flatten()
+    }
+
+    /// true or false, `default` when left out.
+    pub(crate) fn flag_or(&mut self, key: &str, default: bool) -> bool {
+        self.value(key, false, flag)
+            .map_or(default, |v| v.unwrap_or(default))
+    }
+
+    /// A required string.
+    pub(crate) fn text(&mut self, key: &str) -> String {
+        self.required(key, text).unwrap_or_default()
+    }
+
+    /// A string, `default()` when left out.
+    pub(crate) fn text_or(&mut self, key: &str, default: fn() -> String) -> String {
+        match self.value(key, false, text) {
+            Some(v) => v.unwrap_or_default(),
+            None => default(),
+        }
+    }
+
+    #[cfg(feature = "wasm")] // the circuit probes; not in the lite module
+    /// A string that may be left out or `null`.
+    pub(crate) fn opt_text(&mut self, key: &str) -> Option<String> {
+        self.value(key, true, text).flatten()
+    }
+
+    /// A list of numbers, empty when left out.
+    pub(crate) fn nums(&mut self, key: &str) -> Vec<f64> {
+        self.value(key, false, numbers)
+            .flatten()
+            .unwrap_or_default()
+    }
+
+    #[cfg(feature = "wasm")] // the circuit probes; not in the lite module
+    /// A list of numbers that may be left out or `null`.
+    pub(crate) fn opt_nums(&mut self, key: &str) -> Option<Vec<f64>> {
+        self.value(key, true, numbers).flatten()
+    }
+
+    #[cfg(feature = "wasm")] // the stage and circuit-noise options; not in the lite module
+    /// A required list of numbers.
+    pub(crate) fn req_nums(&mut self, key: &str) -> Vec<f64> {
+        self.required(key, numbers).unwrap_or_default()
+    }
+
+    #[cfg(feature = "wasm")] // the stage documents; not in the lite module
+    /// A required field holding a document of any shape (an object, or its JSON
+    /// text as a string), as the documents' own JSON tree ([`crate::json::Json`]).
+    /// `null` is kept as `Json::Null` for the document reader to refuse.
+    pub(crate) fn document(&mut self, key: &str) -> crate::json::Json {
+        self.required(key, json_tree)
+            .unwrap_or(crate::json::Json::Null)
+    }
+
+    /// The raw value of `key` and its place, for a field of more than one kind
+    /// (read it with [`Fields::nested`] or record its failure with [`Fields::refuse`]).
+    pub(crate) fn raw(&mut self, key: &str) -> Option<(usize, Plain)> {
+        self.take(key)
+    }
+
+    /// A required field found to be of the wrong kind: `expected` is what it must be.
+    pub(crate) fn refuse(&mut self, key: &str, at: usize, value: &Plain, expected: &'static str) {
+        let path = self.key_path(key);
+        self.fail(at, path, wrong(value, expected));
+    }
+
+    /// A required field left out, for a field read with [`Fields::raw`].
+    pub(crate) fn missing(&mut self, key: &str) {
+        self.left_out(key);
+    }
+
+    /// A required nested object.
+    pub(crate) fn object<T: FromOptions + Default>(&mut self, key: &str) -> T {
+        match self.take(key) {
+            Some((at, v)) => {
+                let path = self.key_path(key);
+                self.nested(at, path, v).unwrap_or_default()
+            }
+            None => {
+                self.left_out(key);
+                T::default()
+            }
+        }
+    }
+
+    /// A list of nested objects, empty when left out.
+    pub(crate) fn objects<T: FromOptions>(&mut self, key: &str) -> Vec<T> {
+        let Some((at, v)) = self.take(key) else {
+            return Vec::new();
+        };
+        let items = match v {
+            Plain::List(items) => items,
+            other => {
+                self.refuse(key, at, &other, "a list");
+                return Vec::new();
+            }
+        };
+        let mut out = Vec::with_capacity(items.len());
+        for (i, item) in items.into_iter().enumerate() {
+            let path = alloc::format!("{}[{i}]", self.key_path(key));
+            match self.nested(at, path, item) {
+                Some(t) => out.push(t),
+                // The first element that fails is the one reported.
+                None => break,
+            }
+        }
+        out
+    }
+
+    /// `value`, found at entry `at`, read as a `T` at `path`; `None` when it failed
+    /// (the failure is recorded at `at`).
+    pub(crate) fn nested<T: FromOptions>(
+        &mut self,
+        at: usize,
+        path: String,
+        value: Plain,
+    ) -> Option<T> {
+        let mut inner = match Fields::of(path, value, T::FIELDS) {
+            Ok(inner) => inner,
+            Err((path, failure)) => {
+                self.fail(at, path, failure);
+                return None;
+            }
+        };
+        let t = T::from_fields(&mut inner);
+        inner.check_unknown();
+        match inner.failure {
+            Some((_, path, failure)) => {
+                self.fail(at, path, failure);
+                None
+            }
+            None => Some(t),
+        }
+    }
+}
+
+/// What is wrong with a field.
+enum Failure {
+    /// A required field is left out.
+    Missing,
+    /// A field the struct does not have; the names it has.
+    Unknown(&'static [&'static str]),
+    /// A value of the wrong kind: what it must be, in the caller's words (`a number`),
+    /// and what it is, in serde's words (`string "10"`, ``floating point `1.5` ``).
+    WrongType(&'static str, String),
+}
+
+/// `value` is not `expected` (`a number`, `a whole number`, `a list`, …).
+fn wrong(value: &Plain, expected: &'static str) -> Failure {
+    Failure::WrongType(expected, value.unexpected().to_string())
+}
+
+/// A number field.
+fn number(v: Plain) -> Result<f64, (String, Failure)> {
+    match v {
+        Plain::Number(x) => Ok(x),
+        other => Err((String::new(), wrong(&other, "a number"))),
+    }
+}
+
+/// A whole-number field (`u32`): a fraction, a negative number or a string is of the
+/// wrong kind, a whole number past 2³² − 1 out of range.
+fn whole(v: Plain) -> Result<u32, (String, Failure)> {
+    match v {
+        Plain::Number(x) if is_whole(x) => u32::try_from(x as u64)
+            .map_err(|_| (String::new(), wrong(&Plain::Number(x), "a whole number"))),
+        other => Err((String::new(), wrong(&other, "a whole number"))),
+    }
+}
+
+fn flag(v: Plain) -> Result<bool, (String, Failure)> {
+    match v {
+        Plain::Bool(b) => Ok(b),
+        other => Err((String::new(), wrong(&other, "true or false"))),
+    }
+}
+
+fn text(v: Plain) -> Result<String, (String, Failure)> {
+    match v {
+        Plain::Text(t) => Ok(t),
+        other => Err((String::new(), wrong(&other, "a string"))),
+    }
+}
+
+/// A list of numbers: an element of the wrong kind is named by its index.
+fn numbers(v: Plain) -> Result<Vec<f64>, (String, Failure)> {
+    let items = match v {
+        Plain::List(items) => items,
+        other => return Err((String::new(), wrong(&other, "a list"))),
+    };
+    let mut out = Vec::with_capacity(items.len());
+    for (i, item) in items.into_iter().enumerate() {
+        match item {
+            Plain::Number(x) => out.push(x),
+            other => return Err((alloc::format!("[{i}]"), wrong(&other, "a number"))),
+        }
+    }
+    Ok(out)
+}
+
+/// A document of any shape as the documents' JSON tree, the way `JSON.stringify`
+/// would write it and `crate::json::parse` read it back: a whole number from 0 to
+/// 2⁵³ keeps its digits ([`crate::json::Number::whole`]), a number that is not
+/// finite becomes `null` (JSON has no NaN or infinity), members keep their order.
+/// A function, symbol or BigInt is of the wrong kind, named by its path.
+#[cfg(feature = "wasm")]
+fn json_tree(v: Plain) -> Result<crate::json::Json, (String, Failure)> {
+    use crate::json::{Json, Number};
+    Ok(match v {
+        Plain::Null => Json::Null,
+        Plain::Bool(b) => Json::Bool(b),
+        Plain::Number(x) if !x.is_finite() => Json::Null,
+        Plain::Number(x) => Json::Number(Number {
+            value: x,
+            whole: is_whole(x).then_some(x as u64),
+        }),
+        Plain::Text(t) => Json::String(t),
+        Plain::List(items) => {
+            let mut out = Vec::with_capacity(items.len());
+            for (i, item) in items.into_iter().enumerate() {
+                out.push(
+                    json_tree(item)
+                        .map_err(|(suffix, failure)| (alloc::format!("[{i}]{suffix}"), failure))?,
+                );
+            }
+            Json::Array(out)
+        }
+        Plain::Map(entries) => {
+            let mut out = Vec::with_capacity(entries.len());
+            for (key, item) in entries {
+                match json_tree(item) {
+                    Ok(x) => out.push((key, x)),
+                    Err((suffix, failure)) => {
+                        return Err((alloc::format!(".{key}{suffix}"), failure))
+                    }
+                }
+            }
+            Json::Object(out)
+        }
+        other @ Plain::Other => return Err((String::new(), wrong(&other, "a JSON value"))),
     })
+}
+
+/// The argument `value` named `name`, a document object, as the documents' JSON
+/// tree (see [`Fields::document`]).
+///
+/// # Errors
+/// `wrong_type` at `name` when `value` is not an object, or at the path of a
+/// value inside that JSON cannot hold.
+#[cfg(feature = "wasm")]
+pub(crate) fn read_document(name: &str, value: &JsValue) -> Result<crate::json::Json, JsValue> {
+    if !value.is_object() || js_sys::Array::is_array(value) {
+        let e = Error::WrongType {
+            param: "",
+            expected: "an options object",
+        };
+        return Err(error_at(name, e, None));
+    }
+    json_tree(Plain::from_js(value)).map_err(|(suffix, failure)| {
+        let mut path = String::from(name);
+        path.push_str(&suffix);
+        refusal(&path, failure)
+    })
+}
+
+/// A whole number in the range where an f64 holds every integer exactly (the
+/// numbers a count field takes, and which messages show as integers).
+fn is_whole(x: f64) -> bool {
+    x.fract() == 0.0 && (0.0..9.007_199_254_740_992e15).contains(&x)
 }
 
 /// The copied options object as Rust data, read from the JS value with calls that
@@ -65,27 +508,29 @@ pub(crate) fn read<T: DeserializeOwned>(name: &str, value: &JsValue) -> Result<T
 /// its iterator with `Reflect.get`, which throws a `TypeError` on a number or a
 /// string; each such caught exception left about 10 bytes of the module's memory
 /// behind (10.3 MiB per million calls of `loopAt({gain: 1e5, polesHz: '10'}, …)`).
-enum Plain {
+pub(crate) enum Plain {
     Null,
     Bool(bool),
     Number(f64),
     Text(String),
-    List(alloc::vec::Vec<Plain>),
-    Map(alloc::vec::Vec<(String, Plain)>),
+    List(Vec<Plain>),
+    Map(Vec<(String, Plain)>),
     /// Anything else (a function, a symbol, a BigInt): refused as the wrong type.
     Other,
 }
 
 impl Plain {
+    /// Each test is a call into JS, so the common kinds are tested first (a number
+    /// field costs one call).
     fn from_js(v: &JsValue) -> Plain {
-        if v.is_null() || v.is_undefined() {
-            Plain::Null
-        } else if let Some(b) = v.as_bool() {
-            Plain::Bool(b)
-        } else if let Some(x) = v.as_f64() {
+        if let Some(x) = v.as_f64() {
             Plain::Number(x)
         } else if let Some(t) = v.as_string() {
             Plain::Text(t)
+        } else if v.is_null() || v.is_undefined() {
+            Plain::Null
+        } else if let Some(b) = v.as_bool() {
+            Plain::Bool(b)
         } else if let Some(list) = v.dyn_ref::<js_sys::Array>() {
             Plain::List(list.iter().map(|x| Plain::from_js(&x)).collect())
         } else if let Some(list) = v.dyn_ref::<js_sys::Float64Array>() {
@@ -111,108 +556,19 @@ impl Plain {
         }
     }
 
-    fn unexpected(&self) -> serde::de::Unexpected<'_> {
-        use serde::de::Unexpected as U;
+    /// What the value is, in serde's words (a whole number is an integer).
+    fn unexpected(&self) -> Unexpected<'_> {
         match self {
-            Plain::Null => U::Unit,
-            Plain::Bool(b) => U::Bool(*b),
-            Plain::Number(x) => U::Float(*x),
-            Plain::Text(t) => U::Str(t),
-            Plain::List(_) => U::Seq,
-            Plain::Map(_) => U::Map,
-            Plain::Other => U::Other("a function, symbol or BigInt"),
+            Plain::Null => Unexpected::Unit,
+            Plain::Bool(b) => Unexpected::Bool(*b),
+            Plain::Number(x) if is_whole(*x) => Unexpected::Unsigned(*x as u64),
+            Plain::Number(x) => Unexpected::Float(*x),
+            Plain::Text(t) => Unexpected::Str(t),
+            Plain::List(_) => Unexpected::Seq,
+            Plain::Map(_) => Unexpected::Map,
+            Plain::Other => Unexpected::Other("a function, symbol or BigInt"),
         }
     }
-}
-
-type DeError = serde::de::value::Error;
-
-impl<'de> serde::de::IntoDeserializer<'de, DeError> for Plain {
-    type Deserializer = Plain;
-    fn into_deserializer(self) -> Plain {
-        self
-    }
-}
-
-impl<'de> serde::Deserializer<'de> for Plain {
-    type Error = DeError;
-
-    fn deserialize_any<V: serde::de::Visitor<'de>>(self, visitor: V) -> Result<V::Value, DeError> {
-        use serde::de::value::{MapDeserializer, SeqDeserializer};
-        match self {
-            Plain::Null => visitor.visit_unit(),
-            Plain::Bool(b) => visitor.visit_bool(b),
-            // Whole numbers as integers, so that a count field (u32) takes `3`; an
-            // f64 field takes integers too.
-            Plain::Number(x)
-                if x.fract() == 0.0 && (0.0..9.007_199_254_740_992e15).contains(&x) =>
-            {
-                visitor.visit_u64(x as u64)
-            }
-            Plain::Number(x) => visitor.visit_f64(x),
-            Plain::Text(t) => visitor.visit_string(t),
-            Plain::List(items) => {
-                let mut seq = SeqDeserializer::new(items.into_iter());
-                let value = visitor.visit_seq(&mut seq)?;
-                seq.end()?;
-                Ok(value)
-            }
-            Plain::Map(entries) => {
-                let mut map = MapDeserializer::new(entries.into_iter());
-                let value = visitor.visit_map(&mut map)?;
-                map.end()?;
-                Ok(value)
-            }
-            other => Err(serde::de::Error::invalid_type(other.unexpected(), &visitor)),
-        }
-    }
-
-    fn deserialize_option<V: serde::de::Visitor<'de>>(
-        self,
-        visitor: V,
-    ) -> Result<V::Value, DeError> {
-        match self {
-            Plain::Null => visitor.visit_none(),
-            other => visitor.visit_some(other),
-        }
-    }
-
-    fn deserialize_enum<V: serde::de::Visitor<'de>>(
-        self,
-        _name: &'static str,
-        _variants: &'static [&'static str],
-        visitor: V,
-    ) -> Result<V::Value, DeError> {
-        match self {
-            Plain::Text(t) => visitor.visit_enum(serde::de::value::StringDeserializer::new(t)),
-            other => Err(serde::de::Error::invalid_type(other.unexpected(), &visitor)),
-        }
-    }
-
-    serde::forward_to_deserialize_any! {
-        bool i8 i16 i32 i64 i128 u8 u16 u32 u64 u128 f32 f64 char str string
-        bytes byte_buf unit unit_struct newtype_struct seq tuple
-        tuple_struct map struct identifier ignored_any
-    }
-}
-
-/// The caller's path of a field: `name` joined with the segments serde walked
-/// (`amplifier` + `polesHz`, `[2]` → `amplifier.polesHz[2]`).
-fn path_text(name: &str, path: &serde_path_to_error::Path) -> String {
-    let mut out = String::from(name);
-    for segment in path.iter() {
-        match segment {
-            Segment::Seq { index } => {
-                out.push('[');
-                out.push_str(&index.to_string());
-                out.push(']');
-            }
-            Segment::Map { key } => push_key(&mut out, key),
-            Segment::Enum { variant } => push_key(&mut out, variant),
-            Segment::Unknown => {}
-        }
-    }
-    out
 }
 
 fn push_key(out: &mut String, key: &str) {
@@ -222,93 +578,38 @@ fn push_key(out: &mut String, key: &str) {
     out.push_str(key);
 }
 
-/// The text between the first pair of backticks of a serde message.
-fn quoted(message: &str) -> Option<&str> {
-    let start = message.find('`')? + 1;
-    let len = message[start..].find('`')?;
-    Some(&message[start..start + len])
-}
-
-/// The JS error for a serde failure at `path`. serde's messages are the standard
-/// ones of `serde::de::Error` ("missing field `x`", "unknown field `x`, expected …",
-/// "invalid type: string \"10\", expected f64", "unknown variant `x`, expected …").
-fn refusal(path: &str, message: &str) -> JsValue {
-    let detail = message.replace('`', "");
-    if message.starts_with("missing field") {
-        let field = quoted(message).unwrap_or("");
-        let mut full = String::from(path);
-        push_key(&mut full, field);
-        return error_at(&full, Error::Missing { param: "" }, None);
-    }
-    if message.starts_with("unknown field") {
-        let field = quoted(message).unwrap_or("");
-        // serde_path_to_error has already walked into the unknown key.
-        let mut full = String::from(path);
-        if !(full == field || full.ends_with(&alloc::format!(".{field}"))) {
-            push_key(&mut full, field);
-        }
-        let expected = detail.split_once(", ").map_or("", |(_, rest)| rest);
-        let sentence = alloc::format!("{full}: unknown field; {expected}");
-        return error_at(
-            &full,
-            Error::UnknownField {
-                param: "",
-                expected: "",
-            },
-            Some(sentence),
-        );
-    }
+/// The JS error for `failure` at `path` (the caller's path of the field).
+fn refusal(path: &str, failure: Failure) -> JsValue {
     let param = if path.is_empty() { "options" } else { path };
-    if message.starts_with("unknown variant") {
-        let sentence = alloc::format!("{param}: unknown name {detail}");
-        return error_at(
-            param,
-            Error::UnknownName {
+    match failure {
+        Failure::Missing => error_at(param, Error::Missing { param: "" }, None),
+        Failure::Unknown(names) => {
+            let sentence = alloc::format!("{param}: unknown field; {}", one_of(names));
+            let e = Error::UnknownField {
                 param: "",
                 expected: "",
-            },
-            Some(sentence),
-        );
+            };
+            error_at(param, e, Some(sentence))
+        }
+        Failure::WrongType(expected, got) => {
+            let e = Error::WrongType {
+                param: "",
+                expected,
+            };
+            let sentence = alloc::format!("{param}: {}, not {got}", e.reason());
+            error_at(param, e, Some(sentence))
+        }
     }
-    let error = Error::WrongType {
-        param: "",
-        expected: expected_kind(message),
-    };
-    let got = message
-        .strip_prefix("invalid type: ")
-        .or_else(|| message.strip_prefix("invalid value: "))
-        .and_then(|rest| rest.rsplit_once(", expected"))
-        .map(|(got, _)| got);
-    let sentence = match got {
-        Some(got) => alloc::format!("{param}: {}, not {got}", error.reason()),
-        None => alloc::format!("{param}: {} ({detail})", error.reason()),
-    };
-    error_at(param, error, Some(sentence))
 }
 
-/// What a field must be, from the `expected …` of a serde message (the Rust type
-/// names become words a JS caller knows).
-fn expected_kind(message: &str) -> &'static str {
-    let expected = message.rsplit_once("expected ").map_or("", |(_, e)| e);
-    if expected.starts_with("a number or") {
-        "a number or a model object"
-    } else if expected.starts_with("f64") || expected.starts_with("f32") {
-        "a number"
-    } else if ["u8", "u16", "u32", "u64", "usize", "i32", "i64"]
-        .iter()
-        .any(|t| expected.starts_with(t))
-    {
-        "a whole number"
-    } else if expected.contains("sequence") || expected.contains("array") {
-        "a list"
-    } else if expected.starts_with("struct") || expected.contains("map") {
-        "an object"
-    } else if expected.contains("bool") {
-        "true or false"
-    } else if expected.contains("string") || expected.contains("variant") {
-        "a string"
-    } else {
-        "a value of another kind"
+/// The fields a struct has, as a sentence: `expected gain`, `expected a or b`,
+/// `expected one of a, b, c` (serde's wording, without its backticks).
+fn one_of(names: &[&str]) -> String {
+    match names {
+        [] => String::from("there are no fields"),
+        [one] => alloc::format!("expected {one}"),
+        [a, b] => alloc::format!("expected {a} or {b}"),
+        _ => alloc::format!("expected one of {}", names.join(", ")),
     }
 }
 
@@ -359,6 +660,10 @@ pub(crate) fn caller_name(param: &str, renames: &[(&str, &str)]) -> String {
 }
 
 /// snake_case → camelCase (`poles_hz` → `polesHz`; dots and brackets kept).
+///
+/// The names are the core's parameter names, Rust identifiers in ASCII, so the
+/// letter after `_` is made upper case by ASCII rules (`char::to_uppercase` would
+/// bring the standard library's Unicode case table, about 12 KB, into the module).
 fn camel(name: &str) -> String {
     let mut out = String::with_capacity(name.len());
     let mut upper = false;
@@ -366,7 +671,7 @@ fn camel(name: &str) -> String {
         if c == '_' {
             upper = !out.is_empty();
         } else if upper {
-            out.extend(c.to_uppercase());
+            out.push(c.to_ascii_uppercase());
             upper = false;
         } else {
             out.push(c);
@@ -393,19 +698,59 @@ mod tests {
     }
 
     #[test]
-    fn serde_messages_map_to_words() {
+    fn an_unknown_field_names_the_fields_there_are() {
+        assert_eq!(one_of(&["gain"]), "expected gain");
+        assert_eq!(one_of(&["freqHz", "q"]), "expected freqHz or q");
         assert_eq!(
-            expected_kind("invalid type: string \"10\", expected f64"),
-            "a number"
+            one_of(&["gain", "polesHz", "zerosHz"]),
+            "expected one of gain, polesHz, zerosHz"
         );
-        assert_eq!(
-            expected_kind("invalid type: number, expected a sequence"),
-            "a list"
-        );
-        assert_eq!(
-            expected_kind("invalid type: string, expected u32"),
-            "a whole number"
-        );
-        assert_eq!(quoted("missing field `gain`"), Some("gain"));
+    }
+
+    /// A document object becomes the tree `crate::json::parse` builds from the text
+    /// `JSON.stringify` writes of it (the JS object `{"a": [1, 2.5, -3, NaN], "b":
+    /// {"c": "x"}}` stringifies to `{"a":[1,2.5,-3,null],"b":{"c":"x"}}`: MDN,
+    /// JSON.stringify, "NaN and Infinity are serialized as null").
+    #[cfg(feature = "wasm")]
+    #[test]
+    fn a_document_object_becomes_the_tree_of_its_json_text() {
+        let plain = Plain::Map(alloc::vec![
+            (
+                String::from("a"),
+                Plain::List(alloc::vec![
+                    Plain::Number(1.0),
+                    Plain::Number(2.5),
+                    Plain::Number(-3.0),
+                    Plain::Number(f64::NAN),
+                ]),
+            ),
+            (
+                String::from("b"),
+                Plain::Map(alloc::vec![(String::from("c"), Plain::Text("x".into()))]),
+            ),
+        ]);
+        let tree = json_tree(plain).ok().expect("a plain object converts");
+        let text = r#"{"a":[1,2.5,-3,null],"b":{"c":"x"}}"#;
+        assert_eq!(tree, crate::json::parse(text).unwrap());
+        assert_eq!(tree.to_text(), text);
+    }
+
+    #[cfg(feature = "wasm")]
+    #[test]
+    fn a_value_json_cannot_hold_is_named_by_its_path() {
+        let plain = Plain::Map(alloc::vec![(
+            String::from("amplifier"),
+            Plain::Map(alloc::vec![(
+                String::from("polesHz"),
+                Plain::List(alloc::vec![Plain::Number(1.0), Plain::Other]),
+            )]),
+        )]);
+        match json_tree(plain) {
+            Err((path, Failure::WrongType(expected, _))) => {
+                assert_eq!(path, ".amplifier.polesHz[1]");
+                assert_eq!(expected, "a JSON value");
+            }
+            _ => panic!("a function inside a document is refused"),
+        }
     }
 }

@@ -15,12 +15,13 @@
 //! `circuit.parts.rf`, `circuit.amplifier.gbwHz`, `amplifier.a0`,
 //! `frequenciesHz`) and `subject` (the node or element at fault, or `""`).
 
-use super::options::{self, caller_name, error_at};
+use super::options::{self, caller_name, error_at, Fields, FromOptions};
 use super::{to_js, typed_arrays};
 use crate::circuit::blackman::Output;
 use crate::circuit::json::{read_circuit, write_circuit};
 use crate::circuit::{Circuit, CircuitError, ElementKind};
 use crate::error::Error;
+use crate::json::{Json, Members};
 use crate::stage::amplifier_json::read_amplifier;
 use crate::stage::closed_loop::{gain_sweep, impedance_sweep, ImpedanceSweep};
 use crate::stage::design::{
@@ -37,7 +38,6 @@ use crate::stage::{SpreadPoint, Stage, StageCircuit};
 use alloc::string::String;
 use alloc::vec::Vec;
 use serde::Serialize;
-use serde_json::Value;
 use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen(typescript_custom_section)]
@@ -297,19 +297,6 @@ fn thrown(param: &str, error: Error, subject: &str, sentence: Option<String>) ->
     err
 }
 
-/// The JS object `v` of field `field` as the documents' own JSON tree
-/// (`crate::json`), which the amplifier and document readers take.
-fn document_tree(field: &str, v: &Value) -> Result<crate::json::Json, JsValue> {
-    let text = serde_json::to_string(v).unwrap_or_default();
-    crate::json::parse(&text).map_err(|e| {
-        let error = Error::OutOfDomain {
-            param: "",
-            requirement: "must be a JSON object the document reader can read",
-        };
-        thrown(field, error, "", Some(e.to_string()))
-    })
-}
-
 /// A circuit or analysis error under the caller's names (`frequencies` is
 /// the caller's `frequenciesHz`), with its subject.
 fn analysis_error(e: CircuitError) -> JsValue {
@@ -323,15 +310,15 @@ fn analysis_error(e: CircuitError) -> JsValue {
 
 /// Where in a model or stage object the unknown key `key` is: the first
 /// object holding it, searched from the top (`parts.rx`, `amplifier.swing.mid`).
-fn key_path(doc: &Value, key: &str) -> String {
-    let mut queue: Vec<(String, &Value)> = alloc::vec![(String::new(), doc)];
+fn key_path(doc: &Json, key: &str) -> String {
+    let mut queue: Vec<(String, &Json)> = alloc::vec![(String::new(), doc)];
     let mut i = 0;
     while let Some((path, v)) = queue.get(i).cloned() {
         i += 1;
         match v {
-            Value::Object(o) if o.contains_key(key) => return join(&path, key),
-            Value::Object(o) => queue.extend(o.iter().map(|(k, x)| (join(&path, k), x))),
-            Value::Array(items) => queue.extend(
+            Json::Object(o) if o.has(key) => return join(&path, key),
+            Json::Object(o) => queue.extend(o.iter().map(|(k, x)| (join(&path, k), x))),
+            Json::Array(items) => queue.extend(
                 items
                     .iter()
                     .enumerate()
@@ -346,7 +333,7 @@ fn key_path(doc: &Value, key: &str) -> String {
 /// A stage or amplifier-model error under the caller's path: `base` + the
 /// section (`parts.`, `amplifier.`, when `sections`) + the core's field name;
 /// an unknown field is `unknown_field` at the path of the key.
-fn model_error(e: CircuitError, base: &str, doc: &Value, sections: bool) -> JsValue {
+fn model_error(e: CircuitError, base: &str, doc: &Json, sections: bool) -> JsValue {
     let p = e.error.param();
     if p == "field" {
         let path = join(base, &key_path(doc, e.name.as_str()));
@@ -407,10 +394,10 @@ fn spread_point(name: Option<&str>) -> Result<Option<SpreadPoint>, JsValue> {
 
 /// Read the document in field `field` (a circuit or stage document, an object
 /// or its JSON text), the stage at `point` when given.
-fn document(v: Value, field: &str, point: Option<&str>) -> Result<Document, JsValue> {
+fn document(v: Json, field: &str, point: Option<&str>) -> Result<Document, JsValue> {
     let point = spread_point(point)?;
     let (text, doc) = match v {
-        Value::String(text) => match serde_json::from_str::<Value>(&text) {
+        Json::String(text) => match crate::json::parse(&text) {
             Ok(doc) => (text, doc),
             // Not JSON: the circuit reader names the line and column.
             Err(_) => {
@@ -420,7 +407,7 @@ fn document(v: Value, field: &str, point: Option<&str>) -> Result<Document, JsVa
                 })
             }
         },
-        Value::Object(_) => (serde_json::to_string(&v).unwrap_or_default(), v),
+        Json::Object(_) => (v.to_text(), v),
         _ => {
             let error = Error::WrongType {
                 param: "",
@@ -429,7 +416,8 @@ fn document(v: Value, field: &str, point: Option<&str>) -> Result<Document, JsVa
             return Err(thrown(field, error, "", None));
         }
     };
-    if doc.get("format").and_then(Value::as_str) == Some("loopwright-stage") {
+    let format = doc.as_object().and_then(|o| o.field("format"));
+    if format.and_then(Json::as_str) == Some("loopwright-stage") {
         let mut stage = read_stage(&text).map_err(|e| model_error(e, field, &doc, true))?;
         if let Some(p) = point {
             stage.point = p;
@@ -515,10 +503,10 @@ pub fn stage_circuit(
     #[wasm_bindgen(unchecked_param_type = "StageDocument | string")] stage: JsValue,
 ) -> Result<JsValue, JsValue> {
     let v = match stage.as_string() {
-        Some(text) => Value::String(text),
-        None => options::read::<Value>("stage", &stage)?,
+        Some(text) => Json::String(text),
+        None => options::read_document("stage", &stage)?,
     };
-    if v.is_string() && v.as_str().is_some_and(|t| !t.trim_start().starts_with('{')) {
+    if v.as_str().is_some_and(|t| !t.trim_start().starts_with('{')) {
         let error = Error::OutOfDomain {
             param: "",
             requirement: "must be a stage document or its JSON text",
@@ -543,13 +531,22 @@ pub fn stage_circuit(
     })
 }
 
-#[derive(serde::Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
+/// Options of `amplifierOpenLoop` (defaults in the `.d.ts`).
 struct OpenLoopOptions {
-    amplifier: Value,
+    amplifier: Json,
     frequencies_hz: Vec<f64>,
-    #[serde(default)]
     spread_point: Option<String>,
+}
+
+impl FromOptions for OpenLoopOptions {
+    const FIELDS: &'static [&'static str] = &["amplifier", "frequenciesHz", "spreadPoint"];
+    fn from_fields(f: &mut Fields) -> Self {
+        OpenLoopOptions {
+            amplifier: f.document("amplifier"),
+            frequencies_hz: f.req_nums("frequenciesHz"),
+            spread_point: f.opt_text("spreadPoint"),
+        }
+    }
 }
 
 /// The amplifier's open-loop gain A(jω) over `frequenciesHz` (Hz), from
@@ -561,21 +558,31 @@ pub fn amplifier_open_loop(
 ) -> Result<JsValue, JsValue> {
     let o: OpenLoopOptions = options::read("", &options)?;
     let point = spread_point(o.spread_point.as_deref())?.unwrap_or(SpreadPoint::Typ);
-    let a = read_amplifier(&document_tree("amplifier", &o.amplifier)?)
+    let a = read_amplifier(&o.amplifier)
         .map_err(|e| model_error(e, "amplifier", &o.amplifier, false))?;
     let s = open_loop_sweep(&a, point, &o.frequencies_hz).map_err(analysis_error)?;
     Ok(response_js(&s))
 }
 
-#[derive(serde::Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
+/// Options of `circuitLoopGain`.
 struct LoopGainOptions {
-    circuit: Value,
-    #[serde(default)]
+    circuit: Json,
     controlled: Option<String>,
     frequencies_hz: Vec<f64>,
-    #[serde(default)]
     spread_point: Option<String>,
+}
+
+impl FromOptions for LoopGainOptions {
+    const FIELDS: &'static [&'static str] =
+        &["circuit", "controlled", "frequenciesHz", "spreadPoint"];
+    fn from_fields(f: &mut Fields) -> Self {
+        LoopGainOptions {
+            circuit: f.document("circuit"),
+            controlled: f.opt_text("controlled"),
+            frequencies_hz: f.req_nums("frequenciesHz"),
+            spread_point: f.opt_text("spreadPoint"),
+        }
+    }
 }
 
 /// The return ratio T(jω) at an amplifier or controlled source of a circuit (or
@@ -596,21 +603,38 @@ pub fn circuit_loop_gain(
     Ok(response_js(&s))
 }
 
-#[derive(serde::Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
+/// Options of `circuitGain`.
 struct GainOptions {
-    circuit: Value,
-    #[serde(default)]
+    circuit: Json,
     input: Option<String>,
-    #[serde(default)]
     output: Option<String>,
-    #[serde(default)]
     output_minus: Option<String>,
-    #[serde(default)]
     output_element: Option<String>,
     frequencies_hz: Vec<f64>,
-    #[serde(default)]
     spread_point: Option<String>,
+}
+
+impl FromOptions for GainOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "circuit",
+        "input",
+        "output",
+        "outputMinus",
+        "outputElement",
+        "frequenciesHz",
+        "spreadPoint",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        GainOptions {
+            circuit: f.document("circuit"),
+            input: f.opt_text("input"),
+            output: f.opt_text("output"),
+            output_minus: f.opt_text("outputMinus"),
+            output_element: f.opt_text("outputElement"),
+            frequencies_hz: f.req_nums("frequenciesHz"),
+            spread_point: f.opt_text("spreadPoint"),
+        }
+    }
 }
 
 /// The closed-loop gain of a circuit (or stage) over frequency: the output (a
@@ -650,17 +674,27 @@ pub fn circuit_gain(
     Ok(response_js(&s))
 }
 
-#[derive(serde::Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
+/// Options of `circuitImpedance`.
 struct ImpedanceOptions {
-    circuit: Value,
-    #[serde(default)]
+    circuit: Json,
     port: Option<String>,
-    #[serde(default)]
     minus: Option<String>,
     frequencies_hz: Vec<f64>,
-    #[serde(default)]
     spread_point: Option<String>,
+}
+
+impl FromOptions for ImpedanceOptions {
+    const FIELDS: &'static [&'static str] =
+        &["circuit", "port", "minus", "frequenciesHz", "spreadPoint"];
+    fn from_fields(f: &mut Fields) -> Self {
+        ImpedanceOptions {
+            circuit: f.document("circuit"),
+            port: f.opt_text("port"),
+            minus: f.opt_text("minus"),
+            frequencies_hz: f.req_nums("frequenciesHz"),
+            spread_point: f.opt_text("spreadPoint"),
+        }
+    }
 }
 
 /// The impedance at a port of a circuit (or stage) over frequency, independent
@@ -689,12 +723,20 @@ pub fn circuit_impedance(
     Ok(impedance_js(&s))
 }
 
-#[derive(serde::Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
+/// Options of `circuitPoles`.
 struct PolesOptions {
-    circuit: Value,
-    #[serde(default)]
+    circuit: Json,
     spread_point: Option<String>,
+}
+
+impl FromOptions for PolesOptions {
+    const FIELDS: &'static [&'static str] = &["circuit", "spreadPoint"];
+    fn from_fields(f: &mut Fields) -> Self {
+        PolesOptions {
+            circuit: f.document("circuit"),
+            spread_point: f.opt_text("spreadPoint"),
+        }
+    }
 }
 
 /// The closed-loop poles of a circuit (or stage) from its nodal matrices, and
@@ -709,16 +751,25 @@ pub fn circuit_poles_js(
     to_js(&circuit_poles(d.circuit()).map_err(analysis_error)?)
 }
 
-#[derive(serde::Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
+/// Options of `circuitMargins` and `circuitNyquist`.
 struct LoopOptions {
-    circuit: Value,
-    #[serde(default)]
+    circuit: Json,
     controlled: Option<String>,
-    #[serde(default = "default_density")]
     points_per_decade: u32,
-    #[serde(default)]
     spread_point: Option<String>,
+}
+
+impl FromOptions for LoopOptions {
+    const FIELDS: &'static [&'static str] =
+        &["circuit", "controlled", "pointsPerDecade", "spreadPoint"];
+    fn from_fields(f: &mut Fields) -> Self {
+        LoopOptions {
+            circuit: f.document("circuit"),
+            controlled: f.opt_text("controlled"),
+            points_per_decade: f.whole_or("pointsPerDecade", default_density()),
+            spread_point: f.opt_text("spreadPoint"),
+        }
+    }
 }
 
 /// The margin engine's grid density when `pointsPerDecade` is left out.
@@ -764,16 +815,27 @@ pub fn circuit_nyquist_js(
     to_js(&n)
 }
 
-#[derive(serde::Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
+/// Options of `stageDesign`.
 struct DesignOptions {
-    stage: Value,
+    stage: Json,
     part: String,
     target_phase_margin_deg: f64,
-    #[serde(default)]
     cl: Option<f64>,
-    #[serde(default)]
     spread_point: Option<String>,
+}
+
+impl FromOptions for DesignOptions {
+    const FIELDS: &'static [&'static str] =
+        &["stage", "part", "targetPhaseMarginDeg", "cl", "spreadPoint"];
+    fn from_fields(f: &mut Fields) -> Self {
+        DesignOptions {
+            stage: f.document("stage"),
+            part: f.text("part"),
+            target_phase_margin_deg: f.num("targetPhaseMarginDeg"),
+            cl: f.opt_num("cl"),
+            spread_point: f.opt_text("spreadPoint"),
+        }
+    }
 }
 
 /// The part value of a stage that gives a target phase margin, from `{stage, part,

@@ -11,11 +11,10 @@ use crate::noise::circuit::{
     band_noise, noise_densities, CurrentSourceNoise, NoiseOutput, NoiseSetup, SourceNoiseKind,
 };
 use crate::stage::NoiseDensity;
-use crate::wasm::options::{caller_name, core_error, error_at, read};
+use crate::wasm::options::{caller_name, core_error, error_at, read, Fields, FromOptions, Plain};
 use crate::wasm::{set_typed_arrays, to_js, typed_arrays};
 use alloc::string::String;
 use alloc::vec::Vec;
-use serde::Deserialize;
 use wasm_bindgen::prelude::*;
 
 #[wasm_bindgen(typescript_custom_section)]
@@ -87,49 +86,135 @@ export interface CircuitNoiseBand {
 }
 "#;
 
-#[derive(Deserialize)]
-#[serde(untagged)]
+/// The `output` option: a node name, `{plus, minus}` or `{element}`.
 enum OutputOption {
     Node(String),
-    Pair { plus: String, minus: String },
-    Element { element: String },
+    Pair {
+        plus: String,
+        minus: String,
+    },
+    Element {
+        element: String,
+    },
+    /// An object that names neither shape (refused when the setup is built).
+    Neither,
 }
 
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
+/// The object form of `output`, before it is told which of the two it is.
+#[derive(Default)]
+struct OutputObject {
+    plus: Option<String>,
+    minus: Option<String>,
+    element: Option<String>,
+}
+
+impl FromOptions for OutputObject {
+    const FIELDS: &'static [&'static str] = &["plus", "minus", "element"];
+    fn from_fields(f: &mut Fields) -> Self {
+        OutputObject {
+            plus: f.opt_text("plus"),
+            minus: f.opt_text("minus"),
+            element: f.opt_text("element"),
+        }
+    }
+}
+
+impl OutputOption {
+    /// The required field `key` of `f`: a string, or an object `{plus, minus}` or
+    /// `{element}` (its unknown fields and wrong kinds named by their path).
+    fn field(f: &mut Fields, key: &str) -> OutputOption {
+        match f.raw(key) {
+            Some((_, Plain::Text(node))) => OutputOption::Node(node),
+            Some((at, value @ Plain::Map(_))) => {
+                let path = f.key_path(key);
+                match f.nested(at, path, value).unwrap_or_default() {
+                    OutputObject {
+                        plus: Some(plus),
+                        minus: Some(minus),
+                        element: None,
+                    } => OutputOption::Pair { plus, minus },
+                    OutputObject {
+                        plus: None,
+                        minus: None,
+                        element: Some(element),
+                    } => OutputOption::Element { element },
+                    _ => OutputOption::Neither,
+                }
+            }
+            Some((at, other)) => {
+                f.refuse(key, at, &other, "a node name or an object");
+                OutputOption::Neither
+            }
+            None => {
+                f.missing(key);
+                OutputOption::Neither
+            }
+        }
+    }
+}
+
+/// One entry of `currentNoise` (defaults in the `.d.ts`).
 struct CurrentNoiseOption {
     element: String,
-    #[serde(default)]
     shot: bool,
-    #[serde(default)]
     density: Option<f64>,
-    #[serde(default)]
     corner_hz: f64,
+}
+
+impl FromOptions for CurrentNoiseOption {
+    const FIELDS: &'static [&'static str] = &["element", "shot", "density", "cornerHz"];
+    fn from_fields(f: &mut Fields) -> Self {
+        CurrentNoiseOption {
+            element: f.text("element"),
+            shot: f.flag_or("shot", false),
+            density: f.opt_num("density"),
+            corner_hz: f.num_or("cornerHz", 0.0),
+        }
+    }
 }
 
 /// Both exports' options (defaults in the `.d.ts`); the fields of the other
 /// export are refused.
-#[derive(Deserialize)]
-#[serde(rename_all = "camelCase", deny_unknown_fields)]
 struct Options {
     circuit: String,
     output: OutputOption,
-    #[serde(default = "default_temperature")]
     temperature_k: f64,
-    #[serde(default)]
     input_source: Option<String>,
-    #[serde(default)]
     amplifier: Option<String>,
-    #[serde(default)]
     current_noise: Vec<CurrentNoiseOption>,
-    #[serde(default)]
     frequencies_hz: Option<Vec<f64>>,
-    #[serde(default)]
     band_hz: Option<Vec<f64>>,
-    #[serde(default)]
     signal_rms: Option<f64>,
-    #[serde(default)]
     signal_frequency_hz: Option<f64>,
+}
+
+impl FromOptions for Options {
+    const FIELDS: &'static [&'static str] = &[
+        "circuit",
+        "output",
+        "temperatureK",
+        "inputSource",
+        "amplifier",
+        "currentNoise",
+        "frequenciesHz",
+        "bandHz",
+        "signalRms",
+        "signalFrequencyHz",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        Options {
+            circuit: f.text("circuit"),
+            output: OutputOption::field(f, "output"),
+            temperature_k: f.num_or("temperatureK", default_temperature()),
+            input_source: f.opt_text("inputSource"),
+            amplifier: f.opt_text("amplifier"),
+            current_noise: f.objects("currentNoise"),
+            frequencies_hz: f.opt_nums("frequenciesHz"),
+            band_hz: f.opt_nums("bandHz"),
+            signal_rms: f.opt_num("signalRms"),
+            signal_frequency_hz: f.opt_num("signalFrequencyHz"),
+        }
+    }
 }
 
 fn default_temperature() -> f64 {
@@ -168,6 +253,15 @@ impl Options {
             OutputOption::Element { element } => NoiseOutput::Current {
                 element: element.clone(),
             },
+            OutputOption::Neither => {
+                return Err(refuse(
+                    "output",
+                    crate::Error::OutOfDomain {
+                        param: "",
+                        requirement: "must be a node name, {plus, minus} or {element}",
+                    },
+                ))
+            }
         };
         let mut current_noise = Vec::with_capacity(self.current_noise.len());
         for (i, x) in self.current_noise.iter().enumerate() {
