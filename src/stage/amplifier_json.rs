@@ -25,7 +25,8 @@ use alloc::vec::Vec;
 
 /// The fields of the model object.
 pub const MODEL_FIELDS: &str = "a0, gbwHz, dominantPoleHz, hold, polesHz, zerosHz, rhpZerosHz, complexPoles, complexZeros, rd, cd, rcm, ccm, ro, slewRate, swing, voltageNoise, currentNoise";
-const MODEL_KEYS: [&str; 18] = [
+/// The names of the model object's fields.
+pub const MODEL_KEYS: [&str; 18] = [
     "a0",
     "gbwHz",
     "dominantPoleHz",

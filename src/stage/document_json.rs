@@ -32,7 +32,8 @@ const TOP_KEYS: [&str; 6] = [
     "spreadPoint",
     "parts",
 ];
-const PART_KEYS: [&str; 8] = ["rf", "rg", "cf", "rs", "cs", "rl", "cl", "riso"];
+/// The names of the parts object's fields.
+pub const PART_KEYS: [&str; 8] = ["rf", "rg", "cf", "rs", "cs", "rl", "cl", "riso"];
 
 /// Read a stage document and validate it.
 ///

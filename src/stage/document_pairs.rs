@@ -53,7 +53,7 @@ const AMPLIFIER: [&str; 13] = [
     "slewRate",
 ];
 const LISTS: [&str; 3] = ["polesHz", "zerosHz", "rhpZerosHz"];
-const PARTS: [&str; 8] = ["rf", "rg", "cf", "rs", "cs", "rl", "cl", "riso"];
+const PARTS: [&str; 8] = super::document_json::PART_KEYS;
 const TOP: [&str; 2] = ["kind", "spreadPoint"];
 const SPREAD: [&str; 2] = ["a0Min", "a0Max"];
 /// Other spellings an engineer types, and the field each stands for.

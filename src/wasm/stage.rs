@@ -255,28 +255,10 @@ export interface StageDesign {
 export interface CircuitPolesOptions { circuit: CircuitInput; spreadPoint?: SpreadPointName; }
 "#;
 
-/// The section of a stage document a core parameter name lives in.
-const PART_KEYS: [&str; 8] = ["rf", "rg", "cf", "rs", "cs", "rl", "cl", "riso"];
-const MODEL_KEYS: [&str; 18] = [
-    "a0",
-    "gbwHz",
-    "dominantPoleHz",
-    "hold",
-    "polesHz",
-    "zerosHz",
-    "rhpZerosHz",
-    "complexPoles",
-    "complexZeros",
-    "rd",
-    "cd",
-    "rcm",
-    "ccm",
-    "ro",
-    "slewRate",
-    "swing",
-    "voltageNoise",
-    "currentNoise",
-];
+// The sections of a stage document a core parameter name may live in: the
+// names the document readers accept (src/stage/document_json.rs, amplifier_json.rs).
+use crate::stage::amplifier_json::MODEL_KEYS;
+use crate::stage::document_json::PART_KEYS;
 
 /// `base.rest`, or `rest` when `base` is empty.
 fn join(base: &str, rest: &str) -> String {
