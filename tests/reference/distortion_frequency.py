@@ -15,7 +15,11 @@ exact one by terms of relative order HD (compression and higher harmonics mixing
 back), so the amplitudes are chosen to keep the closed-loop HD below about 1e-3.
 
 Writes tests/reference/data/distortion_frequency.json; `--check` recomputes and
-compares (rel. tol. 1e-6: the ODE is solved to rtol 1e-11).
+compares: rel. tol. 1e-6 on every number, and for the harmonic ratios HD2, HD3 also
+an absolute 1e-10. The ODE is solved to rtol 1e-11, so a harmonic is known to about
+1e-11 of the fundamental whatever its size: HD3 near 1e-8 (the 1 Hz case) moves by
+about 1e-3 relative between scipy releases (1.1e-11 absolute seen between the data's
+scipy and 1.17.1), which says nothing about the Rust side, checked to 1 %.
 """
 import json
 import math
@@ -27,6 +31,7 @@ from scipy.integrate import solve_ivp
 
 OUT = pathlib.Path(__file__).parent / "data" / "distortion_frequency.json"
 REL_TOL = 1e-6
+HD_ABS_TOL = 1e-10
 N = 128
 SETTLE = 4
 
@@ -86,13 +91,14 @@ def make():
     return data
 
 
-def close(a, b):
+def close(a, b, abs_tol=1e-30):
     if isinstance(a, dict):
-        return isinstance(b, dict) and a.keys() == b.keys() and all(close(a[k], b[k]) for k in a)
+        return isinstance(b, dict) and a.keys() == b.keys() and all(
+            close(a[k], b[k], HD_ABS_TOL if k in ("hd2", "hd3") else 1e-30) for k in a)
     if isinstance(a, list):
         return isinstance(b, list) and len(a) == len(b) and all(close(x, y) for x, y in zip(a, b))
     if isinstance(a, float):
-        return isinstance(b, (int, float)) and math.isclose(a, b, rel_tol=REL_TOL, abs_tol=1e-30)
+        return isinstance(b, (int, float)) and math.isclose(a, b, rel_tol=REL_TOL, abs_tol=abs_tol)
     return a == b
 
 
