@@ -27,6 +27,8 @@ export {
   circuitMargins,
   circuitNyquist,
   stageDesign,
+  circuitStep,
+  circuitGainWithin,
   circuitNoise,
   circuitNoiseIntegral,
   functionCatalog,

@@ -309,6 +309,8 @@ export function goodCalls() {
     circuitMargins: [{ circuit: STAGE(), pointsPerDecade: 10 }],
     circuitNyquist: [{ circuit: STAGE(), pointsPerDecade: 10 }],
     stageDesign: [{ stage: STAGE(), part: 'riso', targetPhaseMarginDeg: 45 }],
+    circuitStep: [{ circuit: STAGE(), points: 50 }],
+    circuitGainWithin: [{ circuit: STAGE(), targetGain: 10, tolerance: 0.01 }],
     circuitNoise: [
       {
         circuit: FOLLOWER,
