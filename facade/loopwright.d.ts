@@ -29,6 +29,7 @@ export {
   stageDesign,
   circuitStep,
   circuitGainWithin,
+  stageDistortion,
   circuitNoise,
   circuitNoiseIntegral,
   functionCatalog,

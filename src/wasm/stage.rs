@@ -28,6 +28,7 @@ use crate::stage::design::{
     dominant_pole_for_margin, feedback_capacitor_for_margin, isolation_resistor_for_margin,
     max_beta_for_margin, max_load_capacitance_for_margin,
 };
+use crate::stage::distortion::{stage_distortion_at, OpenLoopDistortion};
 use crate::stage::document_json::read_stage;
 use crate::stage::loop_gain::{loop_gain, ResponseSweep};
 use crate::stage::margins::circuit_margins_with_density;
@@ -294,6 +295,21 @@ export interface GainWithin {
   status: "leaves" | "within-to-end" | "outside-at-start";
   /** |G| at fromHz. */
   gainAtStart: number;
+}
+/** Options of `stageDistortion`: the amplifier's open-loop HD2 and HD3 inside the stage's loop. */
+export interface StageDistortionOptions {
+  /** A stage document (object or JSON text). */
+  stage: StageDocument | string;
+  /** The amplifier's open-loop second and third harmonic, signed fractions of the fundamental. */
+  hd2: number;
+  hd3: number;
+  /** The open-loop output peak at which hd2 and hd3 hold, V. */
+  amplitude: number;
+  /** The stage's output peak, V. */
+  level: number;
+  /** The signal frequency, Hz (0: the static result). */
+  frequencyHz: number;
+  spreadPoint?: SpreadPointName;
 }
 /** Options of `circuitPoles`. */
 export interface CircuitPolesOptions { circuit: CircuitInput; spreadPoint?: SpreadPointName; }
@@ -1110,4 +1126,68 @@ pub fn circuit_gain_within(
         thrown(&param, e.error, e.name.as_str(), None)
     })?;
     to_js(&w)
+}
+
+/// Options of `stageDistortion`.
+struct StageDistortionOptions {
+    stage: Json,
+    hd2: f64,
+    hd3: f64,
+    amplitude: f64,
+    level: f64,
+    frequency_hz: f64,
+    spread_point: Option<String>,
+}
+
+impl FromOptions for StageDistortionOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "stage",
+        "hd2",
+        "hd3",
+        "amplitude",
+        "level",
+        "frequencyHz",
+        "spreadPoint",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        StageDistortionOptions {
+            stage: f.document("stage"),
+            hd2: f.num("hd2"),
+            hd3: f.num("hd3"),
+            amplitude: f.num("amplitude"),
+            level: f.num("level"),
+            frequency_hz: f.num("frequencyHz"),
+            spread_point: f.opt_text("spreadPoint"),
+        }
+    }
+}
+
+/// HD2 and HD3 of a stage at an output level and a signal frequency, the
+/// amplifier's nonlinearity from its open-loop figures
+/// (`stage::distortion::stage_distortion_at`), from `{stage, hd2, hd3,
+/// amplitude, level, frequencyHz, spreadPoint}`: the object of
+/// `distortionAtFrequency`.
+#[wasm_bindgen(js_name = stageDistortion, unchecked_return_type = "FrequencyDistortion")]
+pub fn stage_distortion(
+    #[wasm_bindgen(unchecked_param_type = "StageDistortionOptions")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let o: StageDistortionOptions = options::read("", &options)?;
+    let Document::Stage(_, stage) = document(o.stage, "stage", o.spread_point.as_deref())? else {
+        let error = Error::UnknownName {
+            param: "",
+            expected: "loopwright-stage",
+        };
+        return Err(thrown("stage.format", error, "", None));
+    };
+    let open = OpenLoopDistortion {
+        hd2: o.hd2,
+        hd3: o.hd3,
+        amplitude: o.amplitude,
+    };
+    let renames = [("frequency_hz", "frequencyHz")];
+    let d = stage_distortion_at(&stage, &open, o.level, o.frequency_hz).map_err(|e| {
+        let param = caller_name(e.error.param(), &renames);
+        thrown(&param, e.error, e.name.as_str(), None)
+    })?;
+    to_js(&d)
 }

@@ -85,6 +85,7 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   await setField(page, 'tolerance', '0.5%');
   await setField(page, 'noiseFromHz', '10');
   await setField(page, 'noiseToHz', '10k');
+  await setField(page, 'distortionLevel', '1');
   assert.equal(await page.locator('#stage-message').textContent(), '');
   // The best E96 pair, put in with one action.
   const before = { rf: await page.inputValue('#stage-rf'), rg: await page.inputValue('#stage-rg') };
@@ -106,12 +107,22 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
         bandHz: [10, 10e3],
       });
       const gain = m.circuitGain({ circuit: stage, frequenciesHz: [1] });
+      // The demo amplifier's open-loop figures the job keeps: HD2 0.3 %, HD3 0.1 % at 5 V.
+      const hd = m.stageDistortion({
+        stage,
+        hd2: 0.003,
+        hd3: 0.001,
+        amplitude: 5,
+        level: 1,
+        frequencyHz: 1e3,
+      });
       return {
         pm: m.formatPlain(margins.phaseMarginDeg, '°', 4),
         fc: m.formatValue(margins.crossoverHz, 'Hz', 4),
         gm: m.formatPlain(margins.gainMarginDb, 'dB', 4),
         noise: m.formatValue(band.totalRms, 'V rms', 4),
         gain1Hz: Math.hypot(gain.re[0], gain.im[0]),
+        hd2: m.formatPlain(Math.abs(hd.closed.hd2) * 100, '%', 3),
         version: m.version(),
       };
     },
@@ -121,6 +132,7 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   assert.equal(await shown(page, 'margin-fc'), api.fc);
   assert.equal(await shown(page, 'margin-gm'), api.gm);
   assert.ok((await shown(page, 'noise')).startsWith(api.noise));
+  assert.ok((await shown(page, 'distortion')).startsWith(`${api.hd2}, `));
   // The pair meets the spec: |Af| at 1 Hz within 48 ± 0.5 % (the spec of the job).
   assert.ok(Math.abs(api.gain1Hz / 48 - 1) < 0.005, `gain ${api.gain1Hz}`);
   const checks = await page.locator('#stage-checks tbody').textContent();

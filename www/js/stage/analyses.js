@@ -35,6 +35,12 @@ function numbers(api, v) {
     'rg',
     'cl',
     'maxNoiseRms',
+    'hd2Open',
+    'hd3Open',
+    'hdAmplitude',
+    'distortionLevel',
+    'distortionHz',
+    'maxThd',
   ];
   for (const k of [
     'a0',
@@ -113,6 +119,19 @@ export function analyseStage(api, v) {
   const noiseBand = part(() =>
     api.circuitNoiseIntegral({ ...noiseSetup, bandHz: [n.noiseFromHz, n.noiseToHz] }),
   );
+  const distortion =
+    n.hd2Open !== undefined && n.hd3Open !== undefined && n.hdAmplitude !== undefined
+      ? part(() =>
+          api.stageDistortion({
+            stage: doc,
+            hd2: n.hd2Open,
+            hd3: n.hd3Open,
+            amplitude: n.hdAmplitude,
+            level: n.distortionLevel,
+            frequencyHz: n.distortionHz ?? 0,
+          }),
+        )
+      : { note: 'Give the amplifier’s open-loop HD2, HD3 and the output peak they hold at.' };
   const tolerance = part(() =>
     stageTolerance(api, v.kind, n, {
       lower: n.gain * (1 - n.tolerance),
@@ -135,8 +154,9 @@ export function analyseStage(api, v) {
     step,
     noise,
     noiseBand,
+    distortion,
     tolerance,
-    checks: checks(n, { margins, spread, nyquist, within, noiseBand, tolerance }),
+    checks: checks(n, { margins, spread, nyquist, within, noiseBand, distortion, tolerance }),
   };
 }
 
@@ -187,6 +207,17 @@ function checks(n, r) {
       limit: n.maxNoiseRms !== undefined ? { upper: n.maxNoiseRms } : null,
       pass: n.maxNoiseRms !== undefined ? r.noiseBand.totalRms <= n.maxNoiseRms : null,
     });
+  if (r.distortion.closed) {
+    const worst = Math.max(Math.abs(r.distortion.closed.hd2), Math.abs(r.distortion.closed.hd3));
+    out.push({
+      name: 'distortion',
+      what: 'Larger of HD2 and HD3 at the level and frequency',
+      value: worst * 100,
+      unit: '%',
+      limit: n.maxThd !== undefined ? { upper: n.maxThd * 100 } : null,
+      pass: n.maxThd !== undefined ? worst <= n.maxThd : null,
+    });
+  }
   if (!r.tolerance.error && r.tolerance.worst) {
     const w = r.tolerance.worst;
     out.push({

@@ -46,6 +46,9 @@ export const FIELDS = [
   { key: 'enCornerHz', group: 'amplifier', label: 'its 1/f corner', unit: 'Hz' },
   { key: 'inDensity', group: 'amplifier', label: 'Current noise', unit: 'A/√Hz' },
   { key: 'inCornerHz', group: 'amplifier', label: 'its 1/f corner', unit: 'Hz' },
+  { key: 'hd2Open', group: 'amplifier', label: 'Open-loop HD2', unit: '%' },
+  { key: 'hd3Open', group: 'amplifier', label: 'Open-loop HD3', unit: '%' },
+  { key: 'hdAmplitude', group: 'amplifier', label: 'at an output peak of', unit: 'V' },
   { key: 'rf', group: 'parts', label: 'Rf (feedback)', unit: 'Ω' },
   { key: 'rg', group: 'parts', label: 'Rg (gain / sense)', unit: 'Ω' },
   { key: 'cf', group: 'parts', label: 'Cf (across Rf)', unit: 'F' },
@@ -60,6 +63,9 @@ export const FIELDS = [
   { key: 'noiseFromHz', group: 'spec', label: 'Noise band from', unit: 'Hz' },
   { key: 'noiseToHz', group: 'spec', label: 'Noise band to', unit: 'Hz' },
   { key: 'maxNoiseRms', group: 'spec', label: 'Most output noise', unit: 'V rms' },
+  { key: 'distortionLevel', group: 'spec', label: 'Distortion at a peak of', unit: 'V' },
+  { key: 'distortionHz', group: 'spec', label: 'and a frequency of', unit: 'Hz' },
+  { key: 'maxThd', group: 'spec', label: 'Most HD2 or HD3', unit: '%' },
   { key: 'partTolerance', group: 'spec', label: 'Resistor tolerance', unit: '%' },
   {
     key: 'series',
@@ -80,7 +86,15 @@ export const GROUPS = [
 export const STAGE_KEYS = FIELDS.filter(
   (f) =>
     !['spec'].includes(f.group) &&
-    !['enDensity', 'enCornerHz', 'inDensity', 'inCornerHz'].includes(f.key),
+    ![
+      'enDensity',
+      'enCornerHz',
+      'inDensity',
+      'inCornerHz',
+      'hd2Open',
+      'hd3Open',
+      'hdAmplitude',
+    ].includes(f.key),
 ).map((f) => f.key);
 
 /**
@@ -106,6 +120,9 @@ export const DEMO = {
   enCornerHz: '10',
   inDensity: '0.2p',
   inCornerHz: '50',
+  hd2Open: '0.3%',
+  hd3Open: '0.1%',
+  hdAmplitude: '5',
   rf: '100k',
   rg: '1k',
   cf: '',
@@ -120,12 +137,15 @@ export const DEMO = {
   noiseFromHz: '0.1',
   noiseToHz: '10',
   maxNoiseRms: '20µ',
+  distortionLevel: '2',
+  distortionHz: '1k',
+  maxThd: '0.05%',
   partTolerance: '0.1%',
   series: 'E96',
 };
 
 /** Where a field reads a value from: the core's reader options of its unit. */
-const READER_UNITS = new Set(['Ω', 'Hz', 'F', 'V/s']);
+const READER_UNITS = new Set(['Ω', 'Hz', 'F', 'V', 'V/s']);
 const readOptions = (f) => ({
   percent: f.unit === '%',
   unit: READER_UNITS.has(f.unit) ? f.unit : null,

@@ -166,10 +166,13 @@ function summary(r) {
       `N = ${e.clockwise}, P = ${e.openLoopRhpPoles}, Z = ${e.closedLoopRhpPoles}: ${e.verdict}`,
     ]);
   }
+  const d = r.distortion;
   rows.push([
     'distortion',
-    'Distortion',
-    'not computed: the stage document has no nonlinearity figures (use the Distortion calculators)',
+    'Distortion (HD2, HD3)',
+    d.closed
+      ? `${formatPlain(Math.abs(d.closed.hd2) * 100, 3, '%')}, ${formatPlain(Math.abs(d.closed.hd3) * 100, 3, '%')} at ${formatPlain(d.closed.outputAmplitude, 3, 'V')} peak, ${formatEngineering(d.frequencyHz, 3, 'Hz')} (loop gain there ${formatPlain(d.loopGains[0].magnitude, 4)}; open loop ${formatPlain(Math.abs(d.open.hd2) * 100, 3, '%')}, ${formatPlain(Math.abs(d.open.hd3) * 100, 3, '%')})`
+      : (d.error?.message ?? d.note),
   ]);
   if (r.tolerance.note) rows.push(['tolerance-note', 'Tolerance analysis', r.tolerance.note]);
   return el(
