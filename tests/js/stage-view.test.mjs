@@ -188,8 +188,41 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
 
 test('a stage goes to the worksheet as a named block its formulas use, and comes back', async () => {
   const { context, page, problems } = await openPage(env.browser, env.url);
+  await context.grantPermissions(['clipboard-read', 'clipboard-write']);
   await page.click('#tab-stage');
   const pm = await shown(page, 'margin-pm');
+  // The results go to the clipboard at full precision: the API's own number, read back
+  // by the core's reader, is the copied one exactly.
+  await page.click('#stage-copy');
+  await page.waitForFunction(() =>
+    document.getElementById('stage-note').textContent.startsWith('Results copied'),
+  );
+  const copied = await page.evaluate(async () => {
+    const m = await import('/pkg/loopwright.js');
+    const text = await navigator.clipboard.readText();
+    const row = text.split('\n').find((l) => l.startsWith('phase margin\t'));
+    const stage = {
+      format: 'loopwright-stage',
+      version: 1,
+      kind: 'non-inverting',
+      amplifier: {
+        a0: { min: '200k', typ: '1M', max: '5M' },
+        gbwHz: '1M',
+        polesHz: [15e6],
+        rd: '10M',
+        cd: '3p',
+        rcm: '1G',
+        ccm: '4p',
+        ro: '50',
+      },
+      parts: { rf: '100k', rg: '1k', rs: '350', rl: '10k', cl: '1n' },
+    };
+    return {
+      copied: m.parseValue(row.split('\t')[1]),
+      api: m.circuitMargins({ circuit: stage }).phaseMarginDeg,
+    };
+  });
+  assert.equal(copied.copied, copied.api);
   await page.click('#stage-to-sheet');
   assert.match(await page.locator('#stage-note').textContent(), /named stage_1/);
   // A name in use is refused, and the sheet keeps its block.
@@ -257,6 +290,10 @@ test('a bad value is named at its field and the answers stay; the view fits a ph
   const overflow = await page.evaluate(() => document.documentElement.scrollWidth - innerWidth);
   assert.ok(overflow <= 0, `page wider than the phone by ${overflow} px`);
   await page.screenshot({ path: join(ARTIFACTS, 'stage-view-390.png'), fullPage: true });
+  // A reload opens on the Stage tab again.
+  await page.reload();
+  await page.waitForSelector('html[data-ready="true"]');
+  assert.equal(await page.getAttribute('#tab-stage', 'aria-selected'), 'true');
   assert.deepEqual(problems, []);
   await context.close();
 });
