@@ -223,20 +223,25 @@ test('a stage goes to the worksheet as a named block its formulas use, and comes
     };
   });
   assert.equal(copied.copied, copied.api);
+  // A cell the engineer typed is in the way at A5: the block goes to the first free
+  // place to the right (D), and A5 keeps what was typed.
+  await page.click('#tab-sheet');
+  await page.locator('#cell-A5').click();
+  await page.keyboard.type('mine');
+  await page.keyboard.press('Enter');
+  await page.click('#tab-stage');
   await page.click('#stage-to-sheet');
-  assert.match(await page.locator('#stage-note').textContent(), /named stage_1/);
+  assert.match(
+    await page.locator('#stage-note').textContent(),
+    /at D2:E\d+ under D1, named stage_1/,
+  );
   // A name in use is refused, and the sheet keeps its block.
   await page.click('#stage-to-sheet');
   assert.match(await page.locator('#stage-note').textContent(), /already has the name "stage_1"/);
   await page.click('#tab-sheet');
-  assert.equal((await page.locator('#cell-H2').textContent()).trim(), 'kind');
+  assert.equal((await page.locator('#cell-A5').textContent()).trim(), 'mine');
+  assert.equal((await page.locator('#cell-D2').textContent()).trim(), 'kind');
   // STAGE.MARGIN over the block gives the view's phase margin (same core, same stage).
-  const margin = await page.evaluate(() => {
-    const cell = [...document.querySelectorAll('.sheet-grid td')].find((td) =>
-      /STAGE\.MARGIN/.test(td.title ?? ''),
-    );
-    return cell?.textContent ?? null;
-  });
   const formulaRow = await page.evaluate(() => {
     const td = [...document.querySelectorAll('.sheet-grid td')].find(
       (c) => c.textContent.trim() === 'phase margin, crossover',
@@ -244,22 +249,19 @@ test('a stage goes to the worksheet as a named block its formulas use, and comes
     return td?.id ?? null;
   });
   assert.ok(formulaRow, 'the block has its formulas');
-  const row = Number(formulaRow.replace(/^cell-H/, ''));
+  const row = Number(formulaRow.replace(/^cell-D/, ''));
   const value = Number(
-    (await page.locator(`#cell-I${row}`).textContent()).trim().replace(/[^\d.e+-]/g, ''),
+    (await page.locator(`#cell-E${row}`).textContent()).trim().replace(/[^\d.e+-]/g, ''),
   );
-  assert.ok(
-    Math.abs(value - Number.parseFloat(pm)) < 0.01,
-    `sheet ${value} (${margin}), view ${pm}`,
-  );
+  assert.ok(Math.abs(value - Number.parseFloat(pm)) < 0.01, `sheet ${value}, view ${pm}`);
   // Edit Rf in the block, then read the block back into the view.
   const rfRow = await page.evaluate(() => {
     const td = [...document.querySelectorAll('.sheet-grid td')].find(
       (c) => c.textContent.trim() === 'rf',
     );
-    return td.id.replace(/^cell-H/, '');
+    return td.id.replace(/^cell-D/, '');
   });
-  await page.locator(`#cell-I${rfRow}`).click();
+  await page.locator(`#cell-E${rfRow}`).click();
   await page.keyboard.type('120k');
   await page.keyboard.press('Enter');
   await page.click('#tab-stage');
@@ -268,6 +270,12 @@ test('a stage goes to the worksheet as a named block its formulas use, and comes
   // One undo in the view takes the read back.
   await page.click('#stage-undo');
   assert.equal(await page.inputValue('#stage-rf'), '100k');
+  // In the worksheet, two undo steps take back the Rf edit and then the whole block.
+  await page.click('#tab-sheet');
+  await page.click('#sheet-step-back');
+  await page.click('#sheet-step-back');
+  assert.equal((await page.locator('#cell-D2').textContent()).trim(), '');
+  assert.equal((await page.locator('#cell-A5').textContent()).trim(), 'mine');
   assert.deepEqual(problems, []);
   await context.close();
 });

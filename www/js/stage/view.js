@@ -249,7 +249,7 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
   });
   const blockAt = el('input', {
     id: 'stage-block-at',
-    value: 'H1',
+    value: 'A1',
     size: 5,
     'aria-label': 'block’s first cell',
   });
