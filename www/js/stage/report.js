@@ -95,6 +95,12 @@ export function renderReport(host, api, r, values, { date = new Date() } = {}) {
           ? 'outside at the low end'
           : formatEngineering(r.within.limitHz, 4, 'Hz'),
     ],
+    [
+      'Distortion at the level and frequency (HD2, HD3)',
+      r.distortion.closed
+        ? `${formatPlain(Math.abs(r.distortion.closed.hd2) * 100, 3, '%')}, ${formatPlain(Math.abs(r.distortion.closed.hd3) * 100, 3, '%')}`
+        : (r.distortion.error?.message ?? r.distortion.note),
+    ],
   ];
   host.append(
     el('h2', {}, 'Stage design report'),
@@ -112,6 +118,7 @@ export function renderReport(host, api, r, values, { date = new Date() } = {}) {
       { class: 'results' },
       summary.flatMap(([k, v]) => [el('dt', {}, k), el('dd', {}, v)]),
     ),
+    r.tolerance.note ? el('p', { class: 'result-table-note' }, r.tolerance.note) : null,
     el('h3', {}, 'Plots'),
     el(
       'div',

@@ -43,7 +43,17 @@ export function stageTolerance(api, kind, n, { lower, upper }) {
   const lo = Math.min(Math.abs(g.min), Math.abs(g.max));
   const hi = Math.max(Math.abs(g.min), Math.abs(g.max));
   return {
-    worst: { nominal: Math.abs(g.nominal), min: lo, max: hi, pass: lo >= lower && hi <= upper },
+    worst: {
+      nominal: Math.abs(g.nominal),
+      min: lo,
+      max: hi,
+      pass: lo >= lower && hi <= upper,
+      // Which end of each part gives the lowest and the highest |gain|.
+      corners:
+        Math.abs(g.min) <= Math.abs(g.max)
+          ? [g.minCorner, g.maxCorner]
+          : [g.maxCorner, g.minCorner],
+    },
     monteCarlo: {
       yieldFraction: mc.stats.yieldFraction,
       mean: Math.abs(mc.stats.mean),

@@ -185,6 +185,9 @@ function summary(r) {
   );
 }
 
+/** A worst-case corner as the parts' ends: "Rg high, Rf low, A0 low". */
+const corner = (c) => `Rg ${c.r1}, Rf ${c.r2}, A0 ${c.openLoopGain}`;
+
 /** The stage's results as tab-separated text at full precision (for the clipboard). */
 function resultsTsv(r) {
   const lines = [['quantity', 'value', 'unit']];
@@ -311,7 +314,7 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
         el(
           'p',
           { class: 'result-table-note', id: 'stage-tolerance-note' },
-          `Worst case ${formatPlain(t.worst.min, 6)} … ${formatPlain(t.worst.max, 6)}; Monte Carlo mean ${formatPlain(t.monteCarlo.mean, 6)}, σ ${formatEngineering(t.monteCarlo.sd, 3)}, yield ${formatPlain(t.monteCarlo.yieldFraction * 100, 4, '%')}. ${t.note}`,
+          `Worst case ${formatPlain(t.worst.min, 6)} (${corner(t.worst.corners[0])}) … ${formatPlain(t.worst.max, 6)} (${corner(t.worst.corners[1])}); Monte Carlo mean ${formatPlain(t.monteCarlo.mean, 6)}, σ ${formatEngineering(t.monteCarlo.sd, 3)}, yield ${formatPlain(t.monteCarlo.yieldFraction * 100, 4, '%')}. ${t.note}`,
         ),
       );
     }
