@@ -182,6 +182,15 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   assert.equal(await page.inputValue('#stage-rg'), before.rg);
   await page.click('#stage-redo');
   assert.equal(await page.inputValue('#stage-rf'), rf);
+  // The dominant pole for the 45° target goes in with one action; the view's margin
+  // is then the target (stageDesign refines to 1e-6 in ln of the pole).
+  await page.click('#stage-use-dominantPoleHz');
+  assert.equal(await page.inputValue('#stage-gbwHz'), '');
+  const pmNow = Number.parseFloat(await shown(page, 'margin-pm'));
+  assert.ok(Math.abs(pmNow - 45) < 0.01, `${pmNow}`);
+  await page.click('#stage-undo');
+  assert.equal(await page.inputValue('#stage-gbwHz'), '4M');
+  assert.equal(await page.inputValue('#stage-dominantPoleHz'), '12');
   assert.deepEqual(problems, []);
   await context.close();
 });

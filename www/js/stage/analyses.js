@@ -41,6 +41,8 @@ function numbers(api, v) {
     'distortionLevel',
     'distortionHz',
     'maxThd',
+    'pairTotalMin',
+    'pairTotalMax',
   ];
   for (const k of [
     'a0',

@@ -44,9 +44,15 @@ export function renderDesign(host, api, r, values, use) {
         {},
         el('output', { id: `stage-design-${h.part}` }, formatEngineering(d.value, 4, h.unit)),
         ` (PM ${formatPlain(d.phaseMarginDeg, 3, '°')}${d.atRangeEnd ? ', the end of the range scanned: the target is met there already' : ''}) `,
-        useButton(`stage-use-${h.part}`, 'Use', () =>
-          use(h.set(text), `${h.part} = ${formatEngineering(d.value, 4, h.unit)} from the design`),
-        ),
+        // A range end is not a design answer (the target is met all the way there).
+        d.atRangeEnd
+          ? null
+          : useButton(`stage-use-${h.part}`, 'Use', () =>
+              use(
+                h.set(text),
+                `${h.part} = ${formatEngineering(d.value, 4, h.unit)} from the design`,
+              ),
+            ),
       );
     } catch (err) {
       answer = el('span', { class: 'stage-design-none' }, err.message);
@@ -70,13 +76,13 @@ function pairTable(api, r, values, use) {
       network,
       target: r.numbers.gain,
       series: values.series,
-      // Around the present network's total (a decade either way), else 1 kΩ … 1 MΩ.
-      ...(r.numbers.rf > 0 && r.numbers.rg > 0
-        ? {
-            totalMin: (r.numbers.rf + r.numbers.rg) / 10,
-            totalMax: (r.numbers.rf + r.numbers.rg) * 10,
-          }
-        : { totalMin: 1e3, totalMax: 1e6 }),
+      // The span of Rf + Rg the spec allows (noise and loading set it), else 1 kΩ … 1 MΩ.
+      totalMin: r.numbers.pairTotalMin ?? 1e3,
+      totalMax: r.numbers.pairTotalMax ?? 1e6,
+      // Candidates whose nominal error is within half the gain tolerance rank first,
+      // fewest parts first: the other half is left to the parts' tolerance and A0
+      // (common practice, no source).
+      maxError: r.numbers.tolerance / 2,
       combine: 'either',
       count: 6,
     });

@@ -67,6 +67,8 @@ export const FIELDS = [
   { key: 'distortionHz', group: 'spec', label: 'and a frequency of', unit: 'Hz' },
   { key: 'maxThd', group: 'spec', label: 'Most HD2 or HD3', unit: '%' },
   { key: 'partTolerance', group: 'spec', label: 'Resistor tolerance', unit: '%' },
+  { key: 'pairTotalMin', group: 'spec', label: 'Rf + Rg at least', unit: 'Ω' },
+  { key: 'pairTotalMax', group: 'spec', label: 'Rf + Rg at most', unit: 'Ω' },
   {
     key: 'series',
     group: 'spec',
@@ -141,6 +143,8 @@ export const DEMO = {
   distortionHz: '1k',
   maxThd: '0.05%',
   partTolerance: '0.1%',
+  pairTotalMin: '5k',
+  pairTotalMax: '200k',
   series: 'E96',
 };
 
