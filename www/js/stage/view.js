@@ -234,7 +234,7 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
     '↷ Redo',
   );
   const note = el('p', {
-    class: 'sheet-note',
+    class: 'stage-note',
     id: 'stage-note',
     role: 'status',
     'aria-live': 'polite',
@@ -408,7 +408,7 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
   host.append(
     el(
       'div',
-      { class: 'sheet-toolbar stage-toolbar', role: 'toolbar', 'aria-label': 'stage' },
+      { class: 'stage-toolbar', role: 'toolbar', 'aria-label': 'stage' },
       undoButton,
       redoButton,
       button('stage-demo', 'Demo stage', loadDemo),
