@@ -123,6 +123,12 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
         noise: m.formatValue(band.totalRms, 'V rms', 4),
         gain1Hz: Math.hypot(gain.re[0], gain.im[0]),
         hd2: m.formatPlain(Math.abs(hd.closed.hd2) * 100, '%', 3),
+        settling: m.formatValue(m.circuitStep({ circuit: stage }).settlingTimeS, 's', 4),
+        within: m.formatValue(
+          m.circuitGainWithin({ circuit: stage, targetGain: 48, tolerance: 0.005 }).limitHz,
+          'Hz',
+          4,
+        ),
         version: m.version(),
       };
     },
@@ -133,6 +139,8 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   assert.equal(await shown(page, 'margin-gm'), api.gm);
   assert.ok((await shown(page, 'noise')).startsWith(api.noise));
   assert.ok((await shown(page, 'distortion')).startsWith(`${api.hd2}, `));
+  assert.equal(await shown(page, 'settling'), api.settling);
+  assert.equal(await shown(page, 'within'), api.within);
   // The pair meets the spec: |Af| at 1 Hz within 48 ± 0.5 % (the spec of the job).
   assert.ok(Math.abs(api.gain1Hz / 48 - 1) < 0.005, `gain ${api.gain1Hz}`);
   const checks = await page.locator('#stage-checks tbody').textContent();
