@@ -53,6 +53,9 @@ export const circuitPoles = call(glue.circuitPoles, [['', options]]);
 export const circuitMargins = call(glue.circuitMargins, [['', options]]);
 export const circuitNyquist = call(glue.circuitNyquist, [['', options]]);
 export const stageDesign = call(glue.stageDesign, [['', options]]);
+export const circuitStep = call(glue.circuitStep, [['', options]]);
+export const circuitGainWithin = call(glue.circuitGainWithin, [['', options]]);
+export const stageDistortion = call(glue.stageDistortion, [['', options]]);
 // The noise of a whole circuit (src/noise/circuit; docs/noise.md).
 export const circuitNoise = call(glue.circuitNoise, [['', options]]);
 export const circuitNoiseIntegral = call(glue.circuitNoiseIntegral, [['', options]]);

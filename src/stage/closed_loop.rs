@@ -143,3 +143,124 @@ pub fn impedance_sweep(
     unwrap_phase_deg(&mut out.phase_deg);
     Ok(out)
 }
+
+/// Where a closed-loop gain leaves its tolerance band: the answer of
+/// [`gain_within_band`].
+#[derive(Debug, Clone, PartialEq)]
+#[cfg_attr(feature = "serde", derive(serde::Serialize))]
+#[cfg_attr(feature = "serde", serde(rename_all = "camelCase"))]
+pub struct GainWithin {
+    /// The highest frequency, Hz, up to which |G| stays inside
+    /// target·(1 ± tolerance) from `from_hz` on; `from_hz` itself when |G| is
+    /// already outside there, `to_hz` when it never leaves.
+    pub limit_hz: f64,
+    /// `"leaves"`, `"within-to-end"` (never leaves over the range) or
+    /// `"outside-at-start"` (outside the band at `from_hz`).
+    pub status: &'static str,
+    /// |G| at `from_hz`, in the unit of the gain.
+    pub gain_at_start: f64,
+}
+
+/// Grid of the scan in [`gain_within_band`], points per decade.
+const WITHIN_PPD: f64 = 50.0;
+
+/// The frequency up to which the closed-loop gain magnitude |G(f)| from
+/// `source` to `output` stays within `target·(1 − tolerance)` …
+/// `target·(1 + tolerance)`, scanning from `from_hz` up to `to_hz`.
+///
+/// |G| is scanned at [`WITHIN_PPD`] points per decade (log spaced); the first
+/// step that leaves the band is refined by bisection in ln f to 1e-10
+/// relative. `target` is the magnitude of the specified gain (unit of the
+/// gain), `tolerance` a fraction (0.005 for ±0.5 %), 0 < tolerance < 1.
+/// A band edge crossed and recrossed between two grid points (a resonance
+/// narrower than 1/50 decade) is not seen.
+///
+/// # Errors
+/// A non-finite or non-positive target, tolerance or frequency, a tolerance
+/// of 1 or more, `to_hz` not above `from_hz`; every error of [`gain_sweep`].
+///
+/// # Example
+/// ```
+/// use loopwright::circuit::{blackman::Output, Circuit};
+/// use loopwright::stage::closed_loop::gain_within_band;
+/// // An RC low pass, |G| = 1/√(1 + (f/fc)²): it leaves 1 − 1 % at
+/// // fc·√(1/0.99² − 1) = 0.14249·fc.
+/// let mut c = Circuit::new();
+/// c.voltage_source("V1", "in", "0", 1.0).unwrap();
+/// c.resistor("R1", "in", "out", 1e3).unwrap();
+/// c.capacitor("C1", "out", "0", 1e-6).unwrap();
+/// let fc = 1.0 / (2.0 * core::f64::consts::PI * 1e-3);
+/// let w = gain_within_band(&c, "V1", Output::Voltage("out", "0"), 1.0, 0.01, 1.0, 1e6).unwrap();
+/// assert_eq!(w.status, "leaves");
+/// assert!((w.limit_hz / (fc * (1.0 / 0.99f64.powi(2) - 1.0).sqrt()) - 1.0).abs() < 1e-8);
+/// ```
+pub fn gain_within_band(
+    c: &Circuit,
+    source: &str,
+    output: Output<'_>,
+    target: f64,
+    tolerance: f64,
+    from_hz: f64,
+    to_hz: f64,
+) -> CircuitResult<GainWithin> {
+    let target = check::positive("target", target)?;
+    let tolerance = check::positive("tolerance", tolerance)?;
+    if tolerance >= 1.0 {
+        return Err(Error::OutOfDomain {
+            param: "tolerance",
+            requirement: "must be below 1 (a fraction: 0.005 for 0.5 %)",
+        }
+        .into());
+    }
+    let from_hz = check::positive("from_hz", from_hz)?;
+    let to_hz = check::positive("to_hz", to_hz)?;
+    if to_hz <= from_hz {
+        return Err(Error::OutOfDomain {
+            param: "to_hz",
+            requirement: "must be above from_hz",
+        }
+        .into());
+    }
+    let (lo, hi) = (target * (1.0 - tolerance), target * (1.0 + tolerance));
+    let inside = |g: f64| (lo..=hi).contains(&g);
+    let magnitude = |f: &[f64]| -> CircuitResult<Vec<f64>> {
+        let s = gain_sweep(c, source, output, f)?;
+        Ok(s.re.iter().zip(&s.im).map(|(r, i)| r.hypot(*i)).collect())
+    };
+    let decades = libm::log10(to_hz / from_hz);
+    let n = (decades * WITHIN_PPD).ceil().max(1.0) as usize;
+    let grid: Vec<f64> = (0..=n)
+        .map(|k| from_hz * libm::pow(10.0, decades * k as f64 / n as f64))
+        .collect();
+    let g = magnitude(&grid)?;
+    let gain_at_start = g[0];
+    if !inside(gain_at_start) {
+        return Ok(GainWithin {
+            limit_hz: from_hz,
+            status: "outside-at-start",
+            gain_at_start,
+        });
+    }
+    let Some(k) = g.iter().position(|&v| !inside(v)) else {
+        return Ok(GainWithin {
+            limit_hz: to_hz,
+            status: "within-to-end",
+            gain_at_start,
+        });
+    };
+    // Bisection in ln f between the last point inside and the first outside.
+    let (mut a, mut b) = (libm::log(grid[k - 1]), libm::log(grid[k]));
+    while b - a > 1e-10 {
+        let m = 0.5 * (a + b);
+        if inside(magnitude(&[libm::exp(m)])?[0]) {
+            a = m;
+        } else {
+            b = m;
+        }
+    }
+    Ok(GainWithin {
+        limit_hz: libm::exp(0.5 * (a + b)),
+        status: "leaves",
+        gain_at_start,
+    })
+}

@@ -28,6 +28,7 @@ pub mod asymptotic;
 pub mod closed_loop;
 pub mod density;
 pub mod design;
+pub mod distortion;
 pub mod document;
 pub mod document_json;
 pub mod document_pairs;

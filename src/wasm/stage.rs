@@ -23,17 +23,19 @@ use crate::circuit::{Circuit, CircuitError, ElementKind};
 use crate::error::Error;
 use crate::json::{Json, Members};
 use crate::stage::amplifier_json::read_amplifier;
-use crate::stage::closed_loop::{gain_sweep, impedance_sweep, ImpedanceSweep};
+use crate::stage::closed_loop::{gain_sweep, gain_within_band, impedance_sweep, ImpedanceSweep};
 use crate::stage::design::{
     dominant_pole_for_margin, feedback_capacitor_for_margin, isolation_resistor_for_margin,
     max_beta_for_margin, max_load_capacitance_for_margin,
 };
+use crate::stage::distortion::{stage_distortion_at, OpenLoopDistortion};
 use crate::stage::document_json::read_stage;
 use crate::stage::loop_gain::{loop_gain, ResponseSweep};
 use crate::stage::margins::circuit_margins_with_density;
 use crate::stage::nyquist::circuit_nyquist_with_density;
 use crate::stage::open_loop::open_loop_sweep;
 use crate::stage::poles::circuit_poles;
+use crate::stage::step::{circuit_step, StepOutput};
 use crate::stage::{SpreadPoint, Stage, StageCircuit};
 use alloc::string::String;
 use alloc::vec::Vec;
@@ -250,6 +252,64 @@ export interface StageDesign {
   feasible: [number, number][];
   /** The answer is at the end of the searched range. */
   atRangeEnd: boolean;
+}
+/** Options of `circuitStep`: a unit step of the source `input`, read at `output` (a node) or as the current of the resistor `outputElement`. */
+export interface CircuitStepOptions {
+  circuit: CircuitInput;
+  /** Default: the stage's source. */
+  input?: string;
+  /** Default: the stage's output node. */
+  output?: string;
+  /** Default "0". */
+  outputMinus?: string;
+  /** A resistor whose current is the output (default for the current-output stages: "Rl"). */
+  outputElement?: string;
+  /** Settling band as a fraction, 0 < band < 0.5; default 0.01. */
+  settleBand?: number;
+  /** Samples of the waveform, default 400. */
+  points?: number;
+  spreadPoint?: SpreadPointName;
+}
+/** Options of `circuitGainWithin`: the band where |G| stays inside targetGain·(1 ± tolerance). */
+export interface CircuitGainWithinOptions {
+  circuit: CircuitInput;
+  /** Default: the stage's source. */
+  input?: string;
+  /** Default: the stage's output (node, or the current of "Rl"). */
+  output?: string;
+  outputMinus?: string;
+  outputElement?: string;
+  /** The specified gain's magnitude, in the unit of the gain (> 0). */
+  targetGain: number;
+  /** The gain tolerance as a fraction, 0 < tolerance < 1 (0.005 for ±0.5 %). */
+  tolerance: number;
+  /** Scan range, Hz; default 1 Hz … 1 GHz. */
+  fromHz?: number;
+  toHz?: number;
+  spreadPoint?: SpreadPointName;
+}
+/** Where |G| leaves its tolerance band. */
+export interface GainWithin {
+  /** Hz: the highest frequency up to which |G| stays in the band (fromHz when outside there, toHz when it never leaves). */
+  limitHz: number;
+  status: "leaves" | "within-to-end" | "outside-at-start";
+  /** |G| at fromHz. */
+  gainAtStart: number;
+}
+/** Options of `stageDistortion`: the amplifier's open-loop HD2 and HD3 inside the stage's loop. */
+export interface StageDistortionOptions {
+  /** A stage document (object or JSON text). */
+  stage: StageDocument | string;
+  /** The amplifier's open-loop second and third harmonic, signed fractions of the fundamental. */
+  hd2: number;
+  hd3: number;
+  /** The open-loop output peak at which hd2 and hd3 hold, V. */
+  amplitude: number;
+  /** The stage's output peak, V. */
+  level: number;
+  /** The signal frequency, Hz (0: the static result). */
+  frequencyHz: number;
+  spreadPoint?: SpreadPointName;
 }
 /** Options of `circuitPoles`. */
 export interface CircuitPolesOptions { circuit: CircuitInput; spreadPoint?: SpreadPointName; }
@@ -862,4 +922,272 @@ pub fn stage_design(
         thrown(&param, e.error, e.name.as_str(), None)
     })?;
     to_js(&design)
+}
+
+/// Options of `circuitStep`.
+struct StepOptions {
+    circuit: Json,
+    input: Option<String>,
+    output: Option<String>,
+    output_minus: Option<String>,
+    output_element: Option<String>,
+    settle_band: f64,
+    points: u32,
+    spread_point: Option<String>,
+}
+
+impl FromOptions for StepOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "circuit",
+        "input",
+        "output",
+        "outputMinus",
+        "outputElement",
+        "settleBand",
+        "points",
+        "spreadPoint",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        StepOptions {
+            circuit: f.document("circuit"),
+            input: f.opt_text("input"),
+            output: f.opt_text("output"),
+            output_minus: f.opt_text("outputMinus"),
+            output_element: f.opt_text("outputElement"),
+            settle_band: f.num_or("settleBand", 0.01),
+            points: f.whole_or("points", 400),
+            spread_point: f.opt_text("spreadPoint"),
+        }
+    }
+}
+
+/// The step response of a circuit (or stage) by residues at its poles
+/// (`stage::step::circuit_step`, docs/stage.md), from `{circuit, input, output,
+/// outputMinus, outputElement, settleBand, points, spreadPoint}`: `{finalValue,
+/// overshootPercent, peakTimeS, undershootPercent, riseTimeS, settlingTimeS,
+/// settleBand, timeS, output}` (s, % of the final value; `timeS` and `output` as
+/// `Float64Array`s).
+#[wasm_bindgen(js_name = circuitStep, unchecked_return_type = "StepResponse")]
+pub fn circuit_step_js(
+    #[wasm_bindgen(unchecked_param_type = "CircuitStepOptions")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let o: StepOptions = options::read("", &options)?;
+    let d = document(o.circuit, "circuit", o.spread_point.as_deref())?;
+    let stage = d.stage();
+    let input = name_or(&o.input, stage.map(|s| s.source), "input")?;
+    let minus = o.output_minus.as_deref().unwrap_or("0");
+    let output = match (&o.output, &o.output_element) {
+        (Some(_), Some(_)) => {
+            let error = Error::OutOfDomain {
+                param: "",
+                requirement: "give output or outputElement, not both",
+            };
+            return Err(thrown("outputElement", error, "", None));
+        }
+        (Some(node), None) => StepOutput::Voltage(node, minus),
+        (None, Some(element)) => StepOutput::ResistorCurrent(element),
+        (None, None) => match stage {
+            Some(StageCircuit {
+                output_current: Some(element),
+                ..
+            }) => StepOutput::ResistorCurrent(element),
+            Some(s) => StepOutput::Voltage(s.output, minus),
+            None => return Err(thrown("output", Error::Missing { param: "" }, "", None)),
+        },
+    };
+    let renames = [("settle_band", "settleBand"), ("points", "points")];
+    let s = circuit_step(d.circuit(), input, output, o.settle_band, o.points as usize).map_err(
+        |e| {
+            let param = caller_name(e.error.param(), &renames);
+            thrown(&param, e.error, e.name.as_str(), None)
+        },
+    )?;
+    #[derive(Serialize)]
+    #[serde(rename_all = "camelCase")]
+    struct Metrics {
+        final_value: f64,
+        overshoot_percent: f64,
+        peak_time_s: Option<f64>,
+        undershoot_percent: f64,
+        rise_time_s: f64,
+        settling_time_s: f64,
+        settle_band: f64,
+    }
+    let obj = to_js(&Metrics {
+        final_value: s.final_value,
+        overshoot_percent: s.overshoot_percent,
+        peak_time_s: s.peak_time_s,
+        undershoot_percent: s.undershoot_percent,
+        rise_time_s: s.rise_time_s,
+        settling_time_s: s.settling_time_s,
+        settle_band: s.settle_band,
+    })?;
+    super::set_typed_arrays(
+        &obj,
+        &[
+            ("timeS", &s.waveform.time_s),
+            ("output", &s.waveform.output),
+        ],
+    );
+    Ok(obj)
+}
+
+/// Options of `circuitGainWithin`.
+struct WithinOptions {
+    circuit: Json,
+    input: Option<String>,
+    output: Option<String>,
+    output_minus: Option<String>,
+    output_element: Option<String>,
+    target_gain: f64,
+    tolerance: f64,
+    from_hz: f64,
+    to_hz: f64,
+    spread_point: Option<String>,
+}
+
+impl FromOptions for WithinOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "circuit",
+        "input",
+        "output",
+        "outputMinus",
+        "outputElement",
+        "targetGain",
+        "tolerance",
+        "fromHz",
+        "toHz",
+        "spreadPoint",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        WithinOptions {
+            circuit: f.document("circuit"),
+            input: f.opt_text("input"),
+            output: f.opt_text("output"),
+            output_minus: f.opt_text("outputMinus"),
+            output_element: f.opt_text("outputElement"),
+            target_gain: f.num("targetGain"),
+            tolerance: f.num("tolerance"),
+            from_hz: f.num_or("fromHz", 1.0),
+            to_hz: f.num_or("toHz", 1e9),
+            spread_point: f.opt_text("spreadPoint"),
+        }
+    }
+}
+
+/// The frequency up to which a circuit's (or stage's) closed-loop gain stays
+/// within its tolerance (`stage::closed_loop::gain_within_band`), from
+/// `{circuit, input, output, outputMinus, outputElement, targetGain, tolerance,
+/// fromHz, toHz, spreadPoint}`: `{limitHz, status, gainAtStart}`.
+#[wasm_bindgen(js_name = circuitGainWithin, unchecked_return_type = "GainWithin")]
+pub fn circuit_gain_within(
+    #[wasm_bindgen(unchecked_param_type = "CircuitGainWithinOptions")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let o: WithinOptions = options::read("", &options)?;
+    let d = document(o.circuit, "circuit", o.spread_point.as_deref())?;
+    let stage = d.stage();
+    let input = name_or(&o.input, stage.map(|s| s.source), "input")?;
+    let minus = o.output_minus.as_deref().unwrap_or("0");
+    let output = match (&o.output, &o.output_element) {
+        (Some(_), Some(_)) => {
+            let error = Error::OutOfDomain {
+                param: "",
+                requirement: "give output or outputElement, not both",
+            };
+            return Err(thrown("outputElement", error, "", None));
+        }
+        (Some(node), None) => Output::Voltage(node, minus),
+        (None, Some(element)) => Output::Current(element),
+        (None, None) => match stage {
+            Some(StageCircuit {
+                output_current: Some(element),
+                ..
+            }) => Output::Current(element),
+            Some(s) => Output::Voltage(s.output, minus),
+            None => return Err(thrown("output", Error::Missing { param: "" }, "", None)),
+        },
+    };
+    let renames = [
+        ("target", "targetGain"),
+        ("from_hz", "fromHz"),
+        ("to_hz", "toHz"),
+    ];
+    let w = gain_within_band(
+        d.circuit(),
+        input,
+        output,
+        o.target_gain,
+        o.tolerance,
+        o.from_hz,
+        o.to_hz,
+    )
+    .map_err(|e| {
+        let param = caller_name(e.error.param(), &renames);
+        thrown(&param, e.error, e.name.as_str(), None)
+    })?;
+    to_js(&w)
+}
+
+/// Options of `stageDistortion`.
+struct StageDistortionOptions {
+    stage: Json,
+    hd2: f64,
+    hd3: f64,
+    amplitude: f64,
+    level: f64,
+    frequency_hz: f64,
+    spread_point: Option<String>,
+}
+
+impl FromOptions for StageDistortionOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "stage",
+        "hd2",
+        "hd3",
+        "amplitude",
+        "level",
+        "frequencyHz",
+        "spreadPoint",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        StageDistortionOptions {
+            stage: f.document("stage"),
+            hd2: f.num("hd2"),
+            hd3: f.num("hd3"),
+            amplitude: f.num("amplitude"),
+            level: f.num("level"),
+            frequency_hz: f.num("frequencyHz"),
+            spread_point: f.opt_text("spreadPoint"),
+        }
+    }
+}
+
+/// HD2 and HD3 of a stage at an output level and a signal frequency, the
+/// amplifier's nonlinearity from its open-loop figures
+/// (`stage::distortion::stage_distortion_at`), from `{stage, hd2, hd3,
+/// amplitude, level, frequencyHz, spreadPoint}`: the object of
+/// `distortionAtFrequency`.
+#[wasm_bindgen(js_name = stageDistortion, unchecked_return_type = "FrequencyDistortion")]
+pub fn stage_distortion(
+    #[wasm_bindgen(unchecked_param_type = "StageDistortionOptions")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let o: StageDistortionOptions = options::read("", &options)?;
+    let Document::Stage(_, stage) = document(o.stage, "stage", o.spread_point.as_deref())? else {
+        let error = Error::UnknownName {
+            param: "",
+            expected: "loopwright-stage",
+        };
+        return Err(thrown("stage.format", error, "", None));
+    };
+    let open = OpenLoopDistortion {
+        hd2: o.hd2,
+        hd3: o.hd3,
+        amplitude: o.amplitude,
+    };
+    let renames = [("frequency_hz", "frequencyHz")];
+    let d = stage_distortion_at(&stage, &open, o.level, o.frequency_hz).map_err(|e| {
+        let param = caller_name(e.error.param(), &renames);
+        thrown(&param, e.error, e.name.as_str(), None)
+    })?;
+    to_js(&d)
 }

@@ -70,3 +70,31 @@ test('Firefox: a pasted share link replaces the sheet, undo brings it back, pack
     /^deflate-raw:/,
   );
 });
+
+test('Firefox: the stage view computes a typed stage and its margin is the API’s', async () => {
+  const ff = env.browser;
+  await ff.go(env.url);
+  await ff.waitFor("return document.documentElement.dataset.ready === 'true'");
+  await ff.run("document.getElementById('tab-stage').click();");
+  // Gain 11 instead of the demo's 101: Rf 10k over Rg 1k; Tab (U+E004) commits the field.
+  await ff.clearAndType('#stage-rf', '10k\uE004');
+  await ff.clearAndType('#stage-gain', '11\uE004');
+  const api = await ff.run(
+    `return import('./pkg/loopwright.js').then(async (m) => {
+      await m.default();
+      const stage = { format: 'loopwright-stage', version: 1, kind: 'non-inverting',
+        amplifier: { a0: { min: '200k', typ: '1M', max: '5M' }, gbwHz: '1M', polesHz: [15e6],
+          rd: '10M', cd: '3p', rcm: '1G', ccm: '4p', ro: '50', slewRate: '0.5M' },
+        parts: { rf: '10k', rg: '1k', rs: '350', rl: '10k', cl: '1n' } };
+      return m.formatPlain(m.circuitMargins({ circuit: stage }).phaseMarginDeg, '°', 4);
+    });`,
+  );
+  await ff.waitFor(
+    `return document.getElementById('stage-out-margin-pm')?.textContent === ${JSON.stringify(api)}`,
+  );
+  assert.match(
+    await ff.text('#stage-checks tr[data-check="gain"]'),
+    /pass/,
+    'gain 11 within 1 % of the spec',
+  );
+});

@@ -309,6 +309,11 @@ export function goodCalls() {
     circuitMargins: [{ circuit: STAGE(), pointsPerDecade: 10 }],
     circuitNyquist: [{ circuit: STAGE(), pointsPerDecade: 10 }],
     stageDesign: [{ stage: STAGE(), part: 'riso', targetPhaseMarginDeg: 45 }],
+    circuitStep: [{ circuit: STAGE(), points: 50 }],
+    circuitGainWithin: [{ circuit: STAGE(), targetGain: 10, tolerance: 0.01 }],
+    stageDistortion: [
+      { stage: STAGE(), hd2: 0.01, hd3: 0.001, amplitude: 1, level: 1, frequencyHz: 1e3 },
+    ],
     circuitNoise: [
       {
         circuit: FOLLOWER,

@@ -10,6 +10,7 @@ import { DISTORTION_CARDS } from './cards/distortion.js';
 import { FREQ_CARDS } from './cards/freq.js';
 import { CIRCUIT_CARDS } from './cards/circuit.js';
 import { mountWorksheet } from './sheet/worksheet.js';
+import { mountStageView } from './stage/view.js';
 import { wasmSource } from './wasm-source.js';
 
 /** Where the open tab is remembered for a reload of this browser tab. */
@@ -89,6 +90,18 @@ async function start() {
         onLink: () => select(document.getElementById('tab-sheet')),
       })
     : null;
+  // The stage view needs the circuit solver of the full module.
+  if (api.stageCircuit)
+    mountStageView(document.getElementById('stage'), api, {
+      worksheet: () =>
+        sheetView && {
+          sheet: sheetView.sheet,
+          record: sheetView.record,
+          refresh: () => sheetView.grid.refresh(),
+        },
+    });
+  if (rememberedView() === 'tab-stage' || location.search.includes('view=stage'))
+    select(document.getElementById('tab-stage'));
   // The sheet's tab when the page came with a share link, when asked for, or when
   // it was open before a reload.
   if (

@@ -119,9 +119,10 @@ function fillToolbar(panel, parts) {
 /**
  * Mount the worksheet in `host`. `onLink()` is called when a share link pasted into
  * this tab's address bar (a fragment change, no reload) was opened or refused.
- * Resolves to `{sheet, grid, cameWithLink}`: `cameWithLink` is true when the page
- * was opened with a share link, whether its sheet was loaded or refused (the
- * worksheet says which).
+ * Resolves to `{sheet, grid, cameWithLink, record}`: `cameWithLink` is true when the
+ * page was opened with a share link, whether its sheet was loaded or refused (the
+ * worksheet says which); `record(what)` keeps a change made from outside the grid
+ * (the stage view's block) as one undo step and autosaves it.
  */
 export async function mountWorksheet(host, api, { onLink = () => {} } = {}) {
   useCore(api);
@@ -159,5 +160,9 @@ export async function mountWorksheet(host, api, { onLink = () => {} } = {}) {
   panel.history.reset();
   panel.showReplaced();
   grid.refresh();
-  return { sheet, grid, cameWithLink };
+  const record = (what) => {
+    panel.history.record(what);
+    autosave.soon();
+  };
+  return { sheet, grid, cameWithLink, record };
 }

@@ -1,0 +1,324 @@
+// The stage view driven as an engineer would: the gain-48 front-end job of issue 20
+// (a 12 Hz / 4 MHz / 20 MHz amplifier, gain 48 ± 0.5 %, E96 parts, noise over
+// 10 Hz … 10 kHz from a 2 kΩ source) typed in by keyboard, the resistor pair put in
+// with one action and undone, the stage to the worksheet and back, and the design
+// report printed to PDF. The shown figures are checked against the JS API called
+// on a stage document this test writes itself (the view's margins and report must
+// be the API's), and the worst case against the closed form of a non-inverting
+// stage.
+
+import { test } from 'node:test';
+import assert from 'node:assert/strict';
+import { join } from 'node:path';
+import { servedPageTests, openPage, ARTIFACTS } from './browser.mjs';
+
+const env = servedPageTests();
+
+/** Actions the engineer took in the view: one per field typed, per button clicked. */
+let actions = 0;
+
+async function setField(page, key, text) {
+  const id = `#stage-${key}`;
+  if ((await page.locator(id).evaluate((n) => n.tagName)) === 'SELECT') {
+    await page.selectOption(id, text);
+  } else {
+    await page.click(id);
+    await page.keyboard.press('Control+A');
+    await page.keyboard.type(text);
+    await page.keyboard.press('Tab');
+  }
+  actions += 1;
+}
+
+async function click(page, selector) {
+  await page.click(selector);
+  actions += 1;
+}
+
+const shown = (page, id) => page.locator(`#stage-out-${id}`).textContent();
+
+/** The stage of the job as this test writes it (docs/stage.md), for the JS API. */
+function jobStage(rf, rg) {
+  return {
+    format: 'loopwright-stage',
+    version: 1,
+    kind: 'non-inverting',
+    amplifier: {
+      a0: { min: '100k', typ: '333k', max: '1M' },
+      gbwHz: '4M',
+      dominantPoleHz: '12',
+      polesHz: [20e6],
+      rd: '10M',
+      cd: '3p',
+      rcm: '1G',
+      ccm: '4p',
+      ro: '50',
+      slewRate: '0.5M',
+      voltageNoise: { density: '9n', cornerHz: '10' },
+      currentNoise: { density: '0.2p', cornerHz: '50' },
+    },
+    spreadPoint: 'typ',
+    parts: { rf, rg, rs: '2k', rl: '10k', cl: '1n' },
+  };
+}
+
+test('the gain-48 front end entered by keyboard: margins, noise and report match the JS API', async () => {
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    width: 1366,
+    height: 900,
+  });
+  // Keyboard to the Stage tab: Calculators → Worksheet → Stage.
+  await page.focus('#tab-cards');
+  await page.keyboard.press('ArrowRight');
+  await page.keyboard.press('ArrowRight');
+  actions += 1;
+  assert.equal(await page.getAttribute('#tab-stage', 'aria-selected'), 'true');
+
+  await setField(page, 'a0Min', '100k');
+  await setField(page, 'a0', '333k');
+  await setField(page, 'a0Max', '1M');
+  await setField(page, 'gbwHz', '4M');
+  await setField(page, 'dominantPoleHz', '12');
+  await setField(page, 'polesHz', '20M');
+  await setField(page, 'rs', '2k');
+  await setField(page, 'gain', '48');
+  await setField(page, 'tolerance', '0.5%');
+  await setField(page, 'noiseFromHz', '10');
+  await setField(page, 'noiseToHz', '10k');
+  await setField(page, 'distortionLevel', '1');
+  assert.equal(await page.locator('#stage-message').textContent(), '');
+  // The best E96 pair, put in with one action.
+  const before = { rf: await page.inputValue('#stage-rf'), rg: await page.inputValue('#stage-rg') };
+  await click(page, '#stage-use-pair-0');
+  const rf = await page.inputValue('#stage-rf');
+  const rg = await page.inputValue('#stage-rg');
+  assert.notDeepEqual({ rf, rg }, before);
+
+  // The view's figures against the API on the test's own stage document.
+  const api = await page.evaluate(
+    async ({ stage }) => {
+      const m = await import('/pkg/loopwright.js');
+      const margins = m.circuitMargins({ circuit: stage });
+      const sc = m.stageCircuit(stage);
+      const band = m.circuitNoiseIntegral({
+        circuit: sc.circuit,
+        output: sc.output,
+        inputSource: sc.source,
+        bandHz: [10, 10e3],
+      });
+      const gain = m.circuitGain({ circuit: stage, frequenciesHz: [1] });
+      // The demo amplifier's open-loop figures the job keeps: HD2 0.3 %, HD3 0.1 % at 5 V.
+      const hd = m.stageDistortion({
+        stage,
+        hd2: 0.003,
+        hd3: 0.001,
+        amplitude: 5,
+        level: 1,
+        frequencyHz: 1e3,
+      });
+      return {
+        pm: m.formatPlain(margins.phaseMarginDeg, '°', 4),
+        fc: m.formatValue(margins.crossoverHz, 'Hz', 4),
+        gm: m.formatPlain(margins.gainMarginDb, 'dB', 4),
+        noise: m.formatValue(band.totalRms, 'V rms', 4),
+        gain1Hz: Math.hypot(gain.re[0], gain.im[0]),
+        hd2: m.formatPlain(Math.abs(hd.closed.hd2) * 100, '%', 3),
+        settling: m.formatValue(m.circuitStep({ circuit: stage }).settlingTimeS, 's', 4),
+        within: m.formatValue(
+          m.circuitGainWithin({ circuit: stage, targetGain: 48, tolerance: 0.005 }).limitHz,
+          'Hz',
+          4,
+        ),
+        version: m.version(),
+      };
+    },
+    { stage: jobStage(rf, rg) },
+  );
+  assert.equal(await shown(page, 'margin-pm'), api.pm);
+  assert.equal(await shown(page, 'margin-fc'), api.fc);
+  assert.equal(await shown(page, 'margin-gm'), api.gm);
+  assert.ok((await shown(page, 'noise')).startsWith(api.noise));
+  assert.ok((await shown(page, 'distortion')).startsWith(`${api.hd2}, `));
+  assert.equal(await shown(page, 'settling'), api.settling);
+  assert.equal(await shown(page, 'within'), api.within);
+  // The pair meets the spec: |Af| at 1 Hz within 48 ± 0.5 % (the spec of the job).
+  assert.ok(Math.abs(api.gain1Hz / 48 - 1) < 0.005, `gain ${api.gain1Hz}`);
+  const checks = await page.locator('#stage-checks tbody').textContent();
+  assert.match(checks, /Closed-loop gain at the low end.*pass/);
+  assert.match(checks, /Gain, worst case of parts and A0.*pass/);
+  await page.screenshot({ path: join(ARTIFACTS, 'stage-view-1366.png'), fullPage: true });
+
+  // The report: inputs, spec, results with pass or fail, plots, cautions, version, date.
+  await click(page, '#stage-report-button');
+  const report = await page.locator('#stage-report').textContent();
+  assert.match(report, /Stage design report/);
+  assert.ok(report.includes(`loopwright core ${api.version}`));
+  assert.ok(report.includes(new Date().toISOString().slice(0, 10)));
+  assert.ok(report.includes(api.pm), 'the report carries the API’s phase margin');
+  assert.match(report, /pass/);
+  assert.match(report, /check every design on the bench/);
+  assert.equal((await page.locator('#stage-report svg.plot').count()) >= 6, true);
+  // Printed: only the report is laid out (the print stylesheet), and the PDF is made
+  // by the browser's own print to PDF.
+  await page.emulateMedia({ media: 'print' });
+  const printed = await page.evaluate(() => ({
+    header: getComputedStyle(document.querySelector('header')).display,
+    form: getComputedStyle(document.querySelector('.stage-layout')).display,
+    report: getComputedStyle(document.querySelector('#stage-report')).display,
+    toolbar: getComputedStyle(document.querySelector('.stage-toolbar')).display,
+    text: document.querySelector('#stage-report').textContent,
+  }));
+  assert.equal(printed.header, 'none');
+  assert.equal(printed.form, 'none');
+  assert.notEqual(printed.report, 'none');
+  assert.equal(printed.toolbar, 'none', 'nothing but the report is printed');
+  assert.match(printed.text, /Results against the spec/);
+  const pdf = await page.pdf({ format: 'A4', printBackground: true });
+  assert.equal(pdf.subarray(0, 5).toString(), '%PDF-');
+  const pages = (pdf.toString('latin1').match(/\/Type\s*\/Page[^s]/g) ?? []).length;
+  assert.ok(pages >= 2 && pages <= 6, `${pages} pages`);
+  await page.screenshot({ path: join(ARTIFACTS, 'stage-report.png'), fullPage: true });
+  await page.emulateMedia({ media: 'screen' });
+
+  // The job took this many actions in the view (issue 20: 54 worksheet entries).
+  console.log(`gain-48 front-end job in the stage view: ${actions} actions`);
+  assert.ok(actions <= 16, `${actions} actions`);
+
+  // Undo takes the pair back in one step, redo puts it in again.
+  await page.click('#stage-undo');
+  assert.equal(await page.inputValue('#stage-rf'), before.rf);
+  assert.equal(await page.inputValue('#stage-rg'), before.rg);
+  await page.click('#stage-redo');
+  assert.equal(await page.inputValue('#stage-rf'), rf);
+  // The dominant pole for the 45° target goes in with one action; the view's margin
+  // is then the target (stageDesign refines to 1e-6 in ln of the pole).
+  await page.click('#stage-use-dominantPoleHz');
+  assert.equal(await page.inputValue('#stage-gbwHz'), '');
+  const pmNow = Number.parseFloat(await shown(page, 'margin-pm'));
+  assert.ok(Math.abs(pmNow - 45) < 0.01, `${pmNow}`);
+  await page.click('#stage-undo');
+  assert.equal(await page.inputValue('#stage-gbwHz'), '4M');
+  assert.equal(await page.inputValue('#stage-dominantPoleHz'), '12');
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+test('a stage goes to the worksheet as a named block its formulas use, and comes back', async () => {
+  const { context, page, problems } = await openPage(env.browser, env.url);
+  await context.grantPermissions(['clipboard-read', 'clipboard-write']);
+  await page.click('#tab-stage');
+  const pm = await shown(page, 'margin-pm');
+  // The results go to the clipboard at full precision: the API's own number, read back
+  // by the core's reader, is the copied one exactly.
+  await page.click('#stage-copy');
+  await page.waitForFunction(() =>
+    document.getElementById('stage-note').textContent.startsWith('Results copied'),
+  );
+  const copied = await page.evaluate(async () => {
+    const m = await import('/pkg/loopwright.js');
+    const text = await navigator.clipboard.readText();
+    const row = text.split('\n').find((l) => l.startsWith('phase margin\t'));
+    const stage = {
+      format: 'loopwright-stage',
+      version: 1,
+      kind: 'non-inverting',
+      amplifier: {
+        a0: { min: '200k', typ: '1M', max: '5M' },
+        gbwHz: '1M',
+        polesHz: [15e6],
+        rd: '10M',
+        cd: '3p',
+        rcm: '1G',
+        ccm: '4p',
+        ro: '50',
+      },
+      parts: { rf: '100k', rg: '1k', rs: '350', rl: '10k', cl: '1n' },
+    };
+    return {
+      copied: m.parseValue(row.split('\t')[1]),
+      api: m.circuitMargins({ circuit: stage }).phaseMarginDeg,
+    };
+  });
+  assert.equal(copied.copied, copied.api);
+  // A cell the engineer typed is in the way at A5: the block goes to the first free
+  // place to the right (D), and A5 keeps what was typed.
+  await page.click('#tab-sheet');
+  await page.locator('#cell-A5').click();
+  await page.keyboard.type('mine');
+  await page.keyboard.press('Enter');
+  await page.click('#tab-stage');
+  await page.click('#stage-to-sheet');
+  assert.match(
+    await page.locator('#stage-note').textContent(),
+    /at D2:E\d+ under D1, named stage_1/,
+  );
+  // A name in use is refused, and the sheet keeps its block.
+  await page.click('#stage-to-sheet');
+  assert.match(await page.locator('#stage-note').textContent(), /already has the name "stage_1"/);
+  await page.click('#tab-sheet');
+  assert.equal((await page.locator('#cell-A5').textContent()).trim(), 'mine');
+  assert.equal((await page.locator('#cell-D2').textContent()).trim(), 'kind');
+  // STAGE.MARGIN over the block gives the view's phase margin (same core, same stage).
+  const formulaRow = await page.evaluate(() => {
+    const td = [...document.querySelectorAll('.sheet-grid td')].find(
+      (c) => c.textContent.trim() === 'phase margin, crossover',
+    );
+    return td?.id ?? null;
+  });
+  assert.ok(formulaRow, 'the block has its formulas');
+  const row = Number(formulaRow.replace(/^cell-D/, ''));
+  const value = Number(
+    (await page.locator(`#cell-E${row}`).textContent()).trim().replace(/[^\d.e+-]/g, ''),
+  );
+  assert.ok(Math.abs(value - Number.parseFloat(pm)) < 0.01, `sheet ${value}, view ${pm}`);
+  // Edit Rf in the block, then read the block back into the view.
+  const rfRow = await page.evaluate(() => {
+    const td = [...document.querySelectorAll('.sheet-grid td')].find(
+      (c) => c.textContent.trim() === 'rf',
+    );
+    return td.id.replace(/^cell-D/, '');
+  });
+  await page.locator(`#cell-E${rfRow}`).click();
+  await page.keyboard.type('120k');
+  await page.keyboard.press('Enter');
+  await page.click('#tab-stage');
+  await page.click('#stage-from-sheet');
+  assert.equal(await page.inputValue('#stage-rf'), '120k');
+  // One undo in the view takes the read back.
+  await page.click('#stage-undo');
+  assert.equal(await page.inputValue('#stage-rf'), '100k');
+  // In the worksheet, two undo steps take back the Rf edit and then the whole block.
+  await page.click('#tab-sheet');
+  await page.click('#sheet-step-back');
+  await page.click('#sheet-step-back');
+  assert.equal((await page.locator('#cell-D2').textContent()).trim(), '');
+  assert.equal((await page.locator('#cell-A5').textContent()).trim(), 'mine');
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+test('a bad value is named at its field and the answers stay; the view fits a phone', async () => {
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    width: 390,
+    height: 844,
+  });
+  await page.click('#tab-stage');
+  await page.click('#stage-rf');
+  await page.keyboard.press('Control+A');
+  await page.keyboard.type('-4k7');
+  await page.keyboard.press('Tab');
+  assert.equal(await page.getAttribute('#stage-rf', 'aria-invalid'), 'true');
+  assert.match(await page.locator('#stage-message').textContent(), /^Rf \(feedback\)/);
+  await page.click('#stage-undo');
+  assert.equal(await page.getAttribute('#stage-rf', 'aria-invalid'), null);
+  assert.equal(await page.locator('#stage-message').textContent(), '');
+  const overflow = await page.evaluate(() => document.documentElement.scrollWidth - innerWidth);
+  assert.ok(overflow <= 0, `page wider than the phone by ${overflow} px`);
+  await page.screenshot({ path: join(ARTIFACTS, 'stage-view-390.png'), fullPage: true });
+  // A reload opens on the Stage tab again.
+  await page.reload();
+  await page.waitForSelector('html[data-ready="true"]');
+  assert.equal(await page.getAttribute('#tab-stage', 'aria-selected'), 'true');
+  assert.deepEqual(problems, []);
+  await context.close();
+});
