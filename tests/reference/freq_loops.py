@@ -502,9 +502,44 @@ def evaluate():
     return out
 
 
+# How closely a re-run must reproduce the committed step figures. Both are read off
+# a sampled response refined on the exact one, and both are ill-conditioned near no
+# overshoot: the peak of a flat maximum is placed only to about the square root of
+# the response's rounding, and an overshoot of 1e-10 % is rounding itself. Re-runs
+# under other numpy/scipy/python-control releases moved peak times by up to 1.1e-5
+# relative and overshoots by up to 2e-8 percentage points (the Padé delay case).
+# tests/freq_reference.rs checks overshoot to 1e-6 points and does not use the peak
+# time, so these bounds keep the data ten times tighter than what it is used for.
+OVERSHOOT_ABS = 1e-7
+PEAK_TIME_REL = 1e-4
+# Below this overshoot (percentage points) there is no peak to place: a peak time
+# given on one side and none on the other is the same answer.
+NO_PEAK_BELOW = 1e-7
+
+
+def compare_step(new, old, path, bad):
+    for k in new:
+        a, b = new[k], old.get(k) if isinstance(old, dict) else None
+        if k == "overshoot_percent":
+            if not isinstance(b, (int, float)) or abs(a - b) > OVERSHOOT_ABS:
+                bad.append(f"{path}.{k}: {a} != committed {b}")
+        elif k == "peak_time_s":
+            if a is None or b is None:
+                if max(new["overshoot_percent"], old.get("overshoot_percent") or 0.0) > NO_PEAK_BELOW \
+                        and a != b:
+                    bad.append(f"{path}.{k}: {a} != committed {b}")
+            elif abs(a - b) > PEAK_TIME_REL * max(abs(a), abs(b)):
+                bad.append(f"{path}.{k}: {a} != committed {b}")
+        else:
+            compare(a, b, f"{path}.{k}", bad)
+
+
 def compare(new, old, path, bad):
     if isinstance(new, dict):
         for k in new:
+            if k == "step" and isinstance(new[k], dict) and isinstance(old, dict) and isinstance(old.get(k), dict):
+                compare_step(new[k], old[k], f"{path}.{k}", bad)
+                continue
             compare(new[k], old.get(k) if isinstance(old, dict) else None, f"{path}.{k}", bad)
     elif isinstance(new, list):
         if not isinstance(old, list) or len(new) != len(old):
