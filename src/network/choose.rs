@@ -325,6 +325,234 @@ fn monte_carlo_yield(
     (y, libm::sqrt(y * (1.0 - y) / n))
 }
 
+/// The spec's window mapped onto q = R2/R1 (see the module doc).
+#[derive(Debug, Clone, Copy)]
+struct Window {
+    network: Network,
+    target: f64,
+    a: Option<f64>,
+    sign: f64,
+    low: f64,
+    high: f64,
+    q_lo: f64,
+    q_hi: f64,
+    q_target: f64,
+}
+
+impl Window {
+    fn new(network: Network, target: f64, tolerance: f64, a: Option<f64>) -> Result<Window> {
+        let target = check::finite("target", target)?;
+        network.ratio_for(target)?;
+        let t = validate_fraction("tolerance", tolerance)?;
+        let a = a
+            .map(|a| check::positive("open_loop_gain", a))
+            .transpose()?;
+        if a.is_some() && network == Network::Divider {
+            return Err(Error::OutOfDomain {
+                param: "open_loop_gain",
+                requirement: "applies to the amplifier networks only; leave it out for a divider",
+            });
+        }
+        // The window, and q at its ends and at the target.
+        let magnitude = libm::fabs(target);
+        let sign = if target < 0.0 { -1.0 } else { 1.0 };
+        let (low_mag, high_mag) = (magnitude * (1.0 - t), magnitude * (1.0 + t));
+        if let Some(a) = a {
+            if high_mag >= a {
+                return Err(Error::Unreachable {
+                    param: "open_loop_gain",
+                    reason: "must be above the window's upper end: no feedback network reaches a gain at or above the open-loop gain",
+                });
+            }
+        }
+        if network == Network::Divider && high_mag >= 1.0 {
+            return Err(Error::OutOfDomain {
+                param: "tolerance",
+                requirement: "must keep the divider window below 1",
+            });
+        }
+        let (qa, qb) = (
+            ratio_of(network, low_mag, a),
+            ratio_of(network, high_mag, a),
+        );
+        let (q_lo, q_hi) = if qa <= qb { (qa, qb) } else { (qb, qa) };
+        let q_target = ratio_of(network, magnitude, a);
+        if !(q_lo.is_finite() && q_hi.is_finite() && q_hi > 0.0) {
+            return Err(Error::OutOfDomain {
+                param: "tolerance",
+                requirement: "must leave a window the network can reach",
+            });
+        }
+        Ok(Window {
+            network,
+            target,
+            a,
+            sign,
+            low: if sign < 0.0 { -high_mag } else { low_mag },
+            high: if sign < 0.0 { -low_mag } else { high_mag },
+            q_lo,
+            q_hi,
+            q_target,
+        })
+    }
+
+    fn value(&self, q: f64) -> f64 {
+        value_of(self.network, q, self.a, self.sign)
+    }
+}
+
+/// The nominal, worst case and yield of one pair at one grade.
+fn judge(w: &Window, series: Series, p: f64, r1: f64, r2: Leg, trials: usize, seed: u64) -> Choice {
+    let spread = (1.0 + p) / (1.0 - p);
+    let q0 = r2.value / r1;
+    let (qmin, qmax) = (q0 / spread, q0 * spread);
+    let (va, vb) = (w.value(qmin), w.value(qmax));
+    let (yield_, se, method) = if qmin >= w.q_lo && qmax <= w.q_hi {
+        (1.0, 0.0, YieldMethod::Exact)
+    } else if qmax < w.q_lo || qmin > w.q_hi {
+        (0.0, 0.0, YieldMethod::Exact)
+    } else if r2.joint == Joint::Single {
+        (
+            exact_yield(w.q_lo, w.q_hi, r1, r2.value, p),
+            0.0,
+            YieldMethod::Exact,
+        )
+    } else {
+        let (y, se) = monte_carlo_yield(w.q_lo, w.q_hi, r1, r2, p, trials, seed);
+        (y, se, YieldMethod::MonteCarlo)
+    };
+    let nominal = w.value(q0);
+    Choice {
+        series,
+        grade: p,
+        r1,
+        r2,
+        parts: if r2.joint == Joint::Single { 2 } else { 3 },
+        nominal,
+        nominal_error: nominal / w.target - 1.0,
+        worst_low: va.min(vb),
+        worst_high: va.max(vb),
+        yield_,
+        yield_std_error: se,
+        method,
+        cost_rank: 0,
+        meets: false,
+    }
+}
+
+fn validate_trials(trials: usize) -> Result<usize> {
+    if trials < MIN_TRIALS {
+        return Err(Error::OutOfDomain {
+            param: "trials",
+            requirement: "must be at least 1000",
+        });
+    }
+    if trials > MAX_TRIALS {
+        return Err(Error::TooLarge {
+            param: "trials",
+            limit: MAX_TRIALS as u64,
+        });
+    }
+    Ok(trials)
+}
+
+/// One given pair to judge against a spec: see [`pair_yield`].
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct PairYieldSpec {
+    /// The network.
+    pub network: Network,
+    /// Gain (V/V) or divider ratio T.
+    pub target: f64,
+    /// Relative half-width t of the window T·(1 ± t).
+    pub tolerance: f64,
+    /// The amplifier's open-loop gain A (V/V), or `None` for an ideal amplifier.
+    pub open_loop_gain: Option<f64>,
+    /// R1, Ω.
+    pub r1: f64,
+    /// R2's first resistor, Ω.
+    pub r2: f64,
+    /// R2's second resistor, Ω, with how it is joined; `None` for one resistor.
+    pub r2_second: Option<(f64, Joint)>,
+    /// Tolerance grade of every part, a fraction in (0, 1).
+    pub grade: f64,
+    /// Monte Carlo trials when R2 has two parts.
+    pub trials: usize,
+    /// Seed of the draws.
+    pub seed: u64,
+}
+
+/// Nominal, worst case and yield of a given pair against a window, computed as
+/// [`choose_parts`] does (exact for one resistor per leg, seeded Monte Carlo
+/// for a two-part leg). The result's `series` is the coarsest series holding every
+/// part (E192 when none does: the values are then taken as given), `cost_rank`
+/// is 1 and `meets` says whether the yield is 1.
+///
+/// # Errors
+/// As [`choose_parts`] for `target`, `tolerance`, `open_loop_gain`, `trials`;
+/// `r1`, `r2`, `r2_second` not finite or outside 10⁻¹⁵ … 10¹⁵ Ω; `r2_second`
+/// with [`Joint::Single`]; `grade` not in (0, 1).
+///
+/// # Example
+/// ```
+/// use loopwright::network::{pair_yield, Network, PairYieldSpec};
+/// // 10 k / 470 k at 1 % against gain 48 ± 0.5 %: 44.5 %.
+/// let c = pair_yield(&PairYieldSpec {
+///     network: Network::NonInverting, target: 48.0, tolerance: 0.005, open_loop_gain: None,
+///     r1: 10e3, r2: 470e3, r2_second: None, grade: 0.01, trials: 20_000, seed: 1,
+/// }).unwrap();
+/// assert!((c.yield_ - 0.4455).abs() < 1e-3);
+/// ```
+pub fn pair_yield(spec: &PairYieldSpec) -> Result<Choice> {
+    let w = Window::new(
+        spec.network,
+        spec.target,
+        spec.tolerance,
+        spec.open_loop_gain,
+    )?;
+    let r1 = in_range("r1", spec.r1)?;
+    let first = in_range("r2", spec.r2)?;
+    let p = validate_fraction("grade", spec.grade)?;
+    let trials = validate_trials(spec.trials)?;
+    let leg = match spec.r2_second {
+        None => Leg::single(first),
+        Some((second, joint)) => {
+            let second = in_range("r2_second", second)?;
+            let value = match joint {
+                Joint::Series => first + second,
+                Joint::Parallel => first * second / (first + second),
+                Joint::Single => {
+                    return Err(Error::OutOfDomain {
+                        param: "r2_second",
+                        requirement: "needs a series or parallel joint",
+                    })
+                }
+            };
+            Leg {
+                value,
+                first,
+                second: Some(second),
+                joint,
+            }
+        }
+    };
+    let holds = |s: Series| {
+        let parts = [Some(r1), Some(first), spec.r2_second.map(|(x, _)| x)];
+        parts.iter().flatten().all(|&x| {
+            super::eseries::standard_value(s, x, super::eseries::Rounding::Nearest)
+                .is_ok_and(|v| libm::fabs(v / x - 1.0) < 1e-12)
+        })
+    };
+    let series = Series::ALL
+        .iter()
+        .copied()
+        .find(|&s| holds(s))
+        .unwrap_or(Series::E192);
+    let mut c = judge(&w, series, p, r1, leg, trials, spec.seed);
+    c.cost_rank = 1;
+    c.meets = c.yield_ >= 1.0;
+    Ok(c)
+}
+
 fn cost_order(a: &Choice, b: &Choice) -> Ordering {
     b.grade
         .total_cmp(&a.grade)
@@ -360,20 +588,8 @@ fn cost_order(a: &Choice, b: &Choice) -> Ordering {
 /// ```
 pub fn choose_parts(spec: &ChooseSpec) -> Result<ChooseResult> {
     let network = spec.network;
-    let target = check::finite("target", spec.target)?;
-    // The network's own check of the target (range, sign).
-    network.ratio_for(target)?;
-    let t = validate_fraction("tolerance", spec.tolerance)?;
-    let a = spec
-        .open_loop_gain
-        .map(|a| check::positive("open_loop_gain", a))
-        .transpose()?;
-    if a.is_some() && network == Network::Divider {
-        return Err(Error::OutOfDomain {
-            param: "open_loop_gain",
-            requirement: "applies to the amplifier networks only; leave it out for a divider",
-        });
-    }
+    let target = spec.target;
+    let w = Window::new(network, target, spec.tolerance, spec.open_loop_gain)?;
     if spec.series.is_empty() {
         return Err(Error::OutOfDomain {
             param: "series",
@@ -405,52 +621,11 @@ pub fn choose_parts(spec: &ChooseSpec) -> Result<ChooseResult> {
             requirement: "must be at most 1",
         });
     }
-    if spec.trials < MIN_TRIALS {
-        return Err(Error::OutOfDomain {
-            param: "trials",
-            requirement: "must be at least 1000",
-        });
-    }
-    if spec.trials > MAX_TRIALS {
-        return Err(Error::TooLarge {
-            param: "trials",
-            limit: MAX_TRIALS as u64,
-        });
-    }
+    validate_trials(spec.trials)?;
 
-    // The window, and q at its ends and at the target.
-    let magnitude = libm::fabs(target);
-    let sign = if target < 0.0 { -1.0 } else { 1.0 };
-    let (low_mag, high_mag) = (magnitude * (1.0 - t), magnitude * (1.0 + t));
-    if let Some(a) = a {
-        if high_mag >= a {
-            return Err(Error::Unreachable {
-                param: "open_loop_gain",
-                reason: "must be above the window's upper end: no feedback network reaches a gain at or above the open-loop gain",
-            });
-        }
-    }
-    if network == Network::Divider && high_mag >= 1.0 {
-        return Err(Error::OutOfDomain {
-            param: "tolerance",
-            requirement: "must keep the divider window below 1",
-        });
-    }
-    let (qa, qb) = (
-        ratio_of(network, low_mag, a),
-        ratio_of(network, high_mag, a),
-    );
-    let (q_lo, q_hi) = if qa <= qb { (qa, qb) } else { (qb, qa) };
-    let q_target = ratio_of(network, magnitude, a);
-    if !(q_lo.is_finite() && q_hi.is_finite() && q_hi > 0.0) {
-        return Err(Error::OutOfDomain {
-            param: "tolerance",
-            requirement: "must leave a window the network can reach",
-        });
-    }
     // The pair search works on the ideal network: its target is the ideal value
     // at q_target.
-    let pair_target = value_of(network, q_target, None, sign);
+    let pair_target = value_of(network, w.q_target, None, w.sign);
 
     let mut series: Vec<Series> = Vec::new();
     for &s in &spec.series {
@@ -465,7 +640,6 @@ pub fn choose_parts(spec: &ChooseSpec) -> Result<ChooseResult> {
         Combine::Either => &[Combine::None, Combine::Series, Combine::Parallel],
     };
 
-    let value = |q: f64| value_of(network, q, a, sign);
     let mut choices: Vec<Choice> = Vec::new();
     for &s in &series {
         for &joint in joints {
@@ -487,44 +661,7 @@ pub fn choose_parts(spec: &ChooseSpec) -> Result<ChooseResult> {
                 continue;
             }
             for &p in grades.iter().filter(|&&p| p <= s.tolerance()) {
-                let spread = (1.0 + p) / (1.0 - p);
-                let judge = |r1: f64, r2: Leg| {
-                    let q0 = r2.value / r1;
-                    let (qmin, qmax) = (q0 / spread, q0 * spread);
-                    let (va, vb) = (value(qmin), value(qmax));
-                    let (yield_, se, method) = if qmin >= q_lo && qmax <= q_hi {
-                        (1.0, 0.0, YieldMethod::Exact)
-                    } else if qmax < q_lo || qmin > q_hi {
-                        (0.0, 0.0, YieldMethod::Exact)
-                    } else if r2.joint == Joint::Single {
-                        (
-                            exact_yield(q_lo, q_hi, r1, r2.value, p),
-                            0.0,
-                            YieldMethod::Exact,
-                        )
-                    } else {
-                        let (y, se) =
-                            monte_carlo_yield(q_lo, q_hi, r1, r2, p, spec.trials, spec.seed);
-                        (y, se, YieldMethod::MonteCarlo)
-                    };
-                    let nominal = value(q0);
-                    Choice {
-                        series: s,
-                        grade: p,
-                        r1,
-                        r2,
-                        parts: if r2.joint == Joint::Single { 2 } else { 3 },
-                        nominal,
-                        nominal_error: nominal / target - 1.0,
-                        worst_low: va.min(vb),
-                        worst_high: va.max(vb),
-                        yield_,
-                        yield_std_error: se,
-                        method,
-                        cost_rank: 0,
-                        meets: false,
-                    }
-                };
+                let judge = |r1: f64, r2: Leg| judge(&w, s, p, r1, r2, spec.trials, spec.seed);
                 let best = if joint == Combine::None {
                     pairs.iter().map(|c| judge(c.r1, c.r2)).max_by(|x, y| {
                         x.yield_.total_cmp(&y.yield_).then(
@@ -558,8 +695,8 @@ pub fn choose_parts(spec: &ChooseSpec) -> Result<ChooseResult> {
     });
     let recommended = choices.first().copied().filter(|c| c.meets);
     let sensitivity_r2 = {
-        let q = q_target;
-        let loss = a.map_or(0.0, |a| q / (a + 1.0 + q));
+        let q = w.q_target;
+        let loss = w.a.map_or(0.0, |a| q / (a + 1.0 + q));
         match network {
             Network::NonInverting => q / (1.0 + q) - loss,
             Network::Inverting => 1.0 - loss,
@@ -569,9 +706,9 @@ pub fn choose_parts(spec: &ChooseSpec) -> Result<ChooseResult> {
     Ok(ChooseResult {
         network,
         target,
-        low: if sign < 0.0 { -high_mag } else { low_mag },
-        high: if sign < 0.0 { -low_mag } else { high_mag },
-        ideal_ratio: q_target,
+        low: w.low,
+        high: w.high,
+        ideal_ratio: w.q_target,
         sensitivity_r2,
         min_yield,
         choices,

@@ -21,8 +21,8 @@ pub mod worstcase;
 
 pub use crate::notation::{format_si, letter_code, parse_value, parse_value_with_unit, Reading};
 pub use choose::{
-    choose_parts, Choice, ChooseResult, ChooseSpec, YieldMethod, CANDIDATES_PER_BUILD,
-    DEFAULT_GRADES, DEFAULT_SERIES, MAX_GRADES,
+    choose_parts, pair_yield, Choice, ChooseResult, ChooseSpec, PairYieldSpec, YieldMethod,
+    CANDIDATES_PER_BUILD, DEFAULT_GRADES, DEFAULT_SERIES, MAX_GRADES,
 };
 pub use eseries::{
     neighbours, series_values, standard_value, Neighbours, Rounding, Series, SERIES_NAMES,
