@@ -200,12 +200,16 @@ fn worked_case_gain_48() {
     // E96 at 0.1 %: the same pair is outside the window at nearly every build.
     let e96_tight = find(Series::E96, 0.001, 2);
     assert!((e96_tight.yield_ - exact(2430.0, 115e3, 0.001)).abs() <= EXACT_TOL);
-    // E192 at 0.1 % and 0.25 %: 11 k / 517 k is exactly 48; every build passes.
+    // E192 at 0.1 % and 0.25 %: 1 k / 47 k is exactly 48 (the smallest total of the
+    // exact pairs); every build passes.
     for g in [0.001, 0.0025] {
         let e192 = find(Series::E192, g, 2);
-        assert_eq!((e192.r1, e192.r2.value, e192.yield_), (11e3, 517e3, 1.0));
+        assert_eq!((e192.r1, e192.r2.value, e192.yield_), (1e3, 47e3, 1.0));
     }
-    assert!((exact(11e3, 517e3, 0.0025) - 1.0).abs() <= EXACT_TOL);
+    assert!((exact(1e3, 47e3, 0.0025) - 1.0).abs() <= EXACT_TOL);
+    // E192 at 0.5 %: the same pair, 76.05 %.
+    let e192 = find(Series::E192, 0.005, 2);
+    assert!((e192.yield_ - exact(10e3, 470e3, 0.005)).abs() <= EXACT_TOL);
     // The cheapest choice meeting 99 %: E192 at 0.25 %, two parts.
     let rec = r.recommended.unwrap();
     assert_eq!(

@@ -51,8 +51,9 @@
 //! # Which pair
 //! For each series and leg build, [`best_pairs`] gives the [`CANDIDATES_PER_BUILD`]
 //! pairs nearest the q that puts the value at T (with A, the q whose closed-loop
-//! value is T) within the total-resistance range. For one-resistor legs the pair of
-//! highest exact yield is kept for each grade; for two-part legs the nearest pair
+//! value is T) within the total-resistance range, ranked as there (|error|, then
+//! smaller total, then smaller R1). For one-resistor legs the pair of highest exact
+//! yield is kept for each grade (the first of that ranking on a tie); for two-part legs the nearest pair
 //! (one Monte Carlo run per grade).
 //!
 //! # Cost order and ranking
@@ -663,9 +664,11 @@ pub fn choose_parts(spec: &ChooseSpec) -> Result<ChooseResult> {
             for &p in grades.iter().filter(|&&p| p <= s.tolerance()) {
                 let judge = |r1: f64, r2: Leg| judge(&w, s, p, r1, r2, spec.trials, spec.seed);
                 let best = if joint == Combine::None {
-                    pairs.iter().map(|c| judge(c.r1, c.r2)).max_by(|x, y| {
-                        x.yield_.total_cmp(&y.yield_).then(
-                            libm::fabs(y.nominal_error).total_cmp(&libm::fabs(x.nominal_error)),
+                    // Highest yield; on a tie the earlier pair (nearer nominal,
+                    // then smaller total): `min_by` keeps the first of equals.
+                    pairs.iter().map(|c| judge(c.r1, c.r2)).min_by(|x, y| {
+                        y.yield_.total_cmp(&x.yield_).then(
+                            libm::fabs(x.nominal_error).total_cmp(&libm::fabs(y.nominal_error)),
                         )
                     })
                 } else {

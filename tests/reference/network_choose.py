@@ -110,7 +110,7 @@ SINGLE_CASES = [
     # network, target, tol, A, r1, r2, grade
     ("non-inverting", 48.0, 0.005, None, 10e3, 470e3, 0.01),
     ("non-inverting", 48.0, 0.005, None, 10e3, 470e3, 0.005),
-    ("non-inverting", 48.0, 0.005, None, 11e3, 517e3, 0.0025),
+    ("non-inverting", 48.0, 0.005, None, 1e3, 47e3, 0.0025),
     ("non-inverting", 48.0, 0.005, None, 2.43e3, 115e3, 0.01),
     ("non-inverting", 48.0, 0.005, None, 2.43e3, 115e3, 0.005),
     ("non-inverting", 48.0, 0.005, None, 2.43e3, 115e3, 0.0025),
