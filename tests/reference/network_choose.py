@@ -39,7 +39,7 @@ OUT = pathlib.Path(__file__).resolve().parent / "data" / "network_choose.json"
 SEED = 20261203
 TRIALS = 2_000_000
 REL_TOL = 1e-9
-mpmath.mp.dps = 30
+DPS = 30
 
 SERIES = ["E6", "E12", "E24", "E48", "E96", "E192"]
 
@@ -83,6 +83,11 @@ def q_window(network, target, tol, a):
 
 def exact_yield(q_lo, q_hi, n1, n2, p):
     """P(q_lo <= n2(1+v)/(n1(1+u)) <= q_hi), u, v uniform on [-p, p], independent."""
+    with mpmath.workdps(DPS):
+        return _exact_yield(q_lo, q_hi, n1, n2, p)
+
+
+def _exact_yield(q_lo, q_hi, n1, n2, p):
     p = mpmath.mpf(p)
     n1, n2 = mpmath.mpf(n1), mpmath.mpf(n2)
     q_lo, q_hi = mpmath.mpf(q_lo), mpmath.mpf(q_hi)
