@@ -108,6 +108,9 @@ pub struct ChooseSpec {
     pub target: f64,
     /// Relative half-width t of the window T·(1 ± t), a fraction in (0, 1).
     pub tolerance: f64,
+    /// Or the window's own ends (lower, upper), in the network's quantity with the
+    /// target's sign; when given, `tolerance` is not used (and not checked).
+    pub limits: Option<(f64, f64)>,
     /// The amplifier's open-loop gain A (V/V) at the frequency of interest, for the
     /// amplifier networks; `None` for an ideal amplifier.
     pub open_loop_gain: Option<f64>,
@@ -138,6 +141,7 @@ impl ChooseSpec {
             network,
             target,
             tolerance,
+            limits: None,
             open_loop_gain: None,
             series: DEFAULT_SERIES.to_vec(),
             grades: DEFAULT_GRADES.to_vec(),
@@ -341,10 +345,43 @@ struct Window {
 }
 
 impl Window {
-    fn new(network: Network, target: f64, tolerance: f64, a: Option<f64>) -> Result<Window> {
+    fn new(
+        network: Network,
+        target: f64,
+        tolerance: f64,
+        limits: Option<(f64, f64)>,
+        a: Option<f64>,
+    ) -> Result<Window> {
         let target = check::finite("target", target)?;
         network.ratio_for(target)?;
-        let t = validate_fraction("tolerance", tolerance)?;
+        let magnitude = libm::fabs(target);
+        let sign = if target < 0.0 { -1.0 } else { 1.0 };
+        let (low_mag, high_mag) = match limits {
+            None => {
+                let t = validate_fraction("tolerance", tolerance)?;
+                (magnitude * (1.0 - t), magnitude * (1.0 + t))
+            }
+            Some((lower, upper)) => {
+                let lower = check::finite("lower", lower)?;
+                let upper = check::finite("upper", upper)?;
+                if upper <= lower {
+                    return Err(Error::OutOfDomain {
+                        param: "upper",
+                        requirement: "must be greater than lower",
+                    });
+                }
+                for (param, x) in [("lower", lower), ("upper", upper)] {
+                    if x * sign <= 0.0 {
+                        return Err(Error::OutOfDomain {
+                            param,
+                            requirement: "must have the target's sign and not be zero",
+                        });
+                    }
+                }
+                let (x, y) = (libm::fabs(lower), libm::fabs(upper));
+                (x.min(y), x.max(y))
+            }
+        };
         let a = a
             .map(|a| check::positive("open_loop_gain", a))
             .transpose()?;
@@ -354,10 +391,7 @@ impl Window {
                 requirement: "applies to the amplifier networks only; leave it out for a divider",
             });
         }
-        // The window, and q at its ends and at the target.
-        let magnitude = libm::fabs(target);
-        let sign = if target < 0.0 { -1.0 } else { 1.0 };
-        let (low_mag, high_mag) = (magnitude * (1.0 - t), magnitude * (1.0 + t));
+        // q at the window's ends and at the target.
         if let Some(a) = a {
             if high_mag >= a {
                 return Err(Error::Unreachable {
@@ -508,6 +542,7 @@ pub fn pair_yield(spec: &PairYieldSpec) -> Result<Choice> {
         spec.network,
         spec.target,
         spec.tolerance,
+        None,
         spec.open_loop_gain,
     )?;
     let r1 = in_range("r1", spec.r1)?;
@@ -568,8 +603,9 @@ fn cost_order(a: &Choice, b: &Choice) -> Ordering {
 /// choice is the best miss (highest yield).
 ///
 /// # Errors
-/// `target` outside its network's range; `tolerance`, each of `grades`
-/// not in (0, 1); `open_loop_gain` not finite or ≤ 0, given for a divider, or not
+/// `target` outside its network's range; `tolerance` (without `limits`), each
+/// of `grades` not in (0, 1); `lower`, `upper` (the `limits`) not finite,
+/// `upper` ≤ `lower`, either of the other sign than the target or zero; `open_loop_gain` not finite or ≤ 0, given for a divider, or not
 /// above the window's upper end (`Unreachable`); `series` or `grades` empty,
 /// `grades` above [`MAX_GRADES`]; `total_min`, `total_max` as in [`best_pairs`];
 /// `min_yield` not in (0, 1]; `trials` outside [`MIN_TRIALS`] … [`MAX_TRIALS`].
@@ -590,7 +626,13 @@ fn cost_order(a: &Choice, b: &Choice) -> Ordering {
 pub fn choose_parts(spec: &ChooseSpec) -> Result<ChooseResult> {
     let network = spec.network;
     let target = spec.target;
-    let w = Window::new(network, target, spec.tolerance, spec.open_loop_gain)?;
+    let w = Window::new(
+        network,
+        target,
+        spec.tolerance,
+        spec.limits,
+        spec.open_loop_gain,
+    )?;
     if spec.series.is_empty() {
         return Err(Error::OutOfDomain {
             param: "series",
@@ -874,6 +916,22 @@ mod tests {
         let r = choose_parts(&ChooseSpec::new(Network::Inverting, -10.0, 0.01)).unwrap();
         assert!(r.low < r.high && r.low < -10.0 && r.high > -10.0);
         assert!(r.choices.iter().all(|c| c.nominal < 0.0));
+        // A window given by its ends: inverting −47.76 … −48.24 is the ±0.5 % one.
+        let mut by_tol = ChooseSpec::new(Network::Inverting, -48.0, 0.005);
+        by_tol.grades = alloc::vec![0.01];
+        let mut by_ends = by_tol.clone();
+        by_ends.tolerance = f64::NAN;
+        by_ends.limits = Some((-48.0 * 1.005, -48.0 * 0.995));
+        assert_eq!(
+            choose_parts(&by_tol).unwrap(),
+            choose_parts(&by_ends).unwrap()
+        );
+        by_ends.limits = Some((-40.0, -50.0));
+        assert_eq!(choose_parts(&by_ends).unwrap_err().param(), "upper");
+        by_ends.limits = Some((-50.0, 40.0));
+        assert_eq!(choose_parts(&by_ends).unwrap_err().param(), "upper");
+        by_ends.limits = Some((f64::NAN, -40.0));
+        assert_eq!(choose_parts(&by_ends).unwrap_err().param(), "lower");
         let r = choose_parts(&ChooseSpec::new(Network::Divider, 0.25, 0.01)).unwrap();
         assert!(r.recommended.is_some());
         let c = r.recommended.unwrap();

@@ -58,8 +58,10 @@ export interface ChoosePartsOptions {
   network: "non-inverting" | "inverting" | "divider";
   /** Gain (V/V) or divider ratio. */
   target: number;
-  /** Relative half-width of the window target·(1 ± tolerance), 0 < tolerance < 1 (0.005 for ±0.5 %). */
-  tolerance: number;
+  /** Relative half-width of the window target·(1 ± tolerance), 0 < tolerance < 1 (0.005 for ±0.5 %). Or give lower and upper. */
+  tolerance?: number;
+  /** The window's own ends, in the network's quantity (with the target's sign), instead of tolerance. */
+  lower?: number; upper?: number;
   /** The amplifier's open-loop gain A, V/V, for the amplifier networks. Default: none (ideal). */
   openLoopGain?: number;
   /** Series tried. Default ["E6", "E12", "E24", "E48", "E96", "E192"]. */
@@ -508,7 +510,9 @@ pub fn monte_carlo(
 struct ChooseOptions {
     network: String,
     target: f64,
-    tolerance: f64,
+    tolerance: Option<f64>,
+    lower: Option<f64>,
+    upper: Option<f64>,
     open_loop_gain: Option<f64>,
     series: Vec<String>,
     grades: Vec<f64>,
@@ -525,6 +529,8 @@ impl FromOptions for ChooseOptions {
         "network",
         "target",
         "tolerance",
+        "lower",
+        "upper",
         "openLoopGain",
         "series",
         "grades",
@@ -549,7 +555,9 @@ impl FromOptions for ChooseOptions {
         ChooseOptions {
             network: f.text("network"),
             target: f.num("target"),
-            tolerance: f.num("tolerance"),
+            tolerance: f.opt_num("tolerance"),
+            lower: f.opt_num("lower"),
+            upper: f.opt_num("upper"),
             open_loop_gain: f.opt_num("openLoopGain"),
             series,
             grades,
@@ -586,10 +594,20 @@ pub fn choose_parts(
                 .map_err(|e| super::options::error_at(&alloc::format!("series[{i}]"), e, None))?,
         );
     }
+    // The window: tolerance, or lower and upper together.
+    let missing = |param| throw(Err(crate::Error::Missing { param }));
+    let (tolerance, limits) = match (o.tolerance, o.lower, o.upper) {
+        (_, Some(l), Some(u)) => (f64::NAN, Some((l, u))),
+        (_, Some(_), None) => return missing("upper"),
+        (_, None, Some(_)) => return missing("lower"),
+        (Some(t), None, None) => (t, None),
+        (None, None, None) => return missing("tolerance"),
+    };
     let spec = ChooseSpec {
         network: o.network.parse().map_err(named)?,
         target: o.target,
-        tolerance: o.tolerance,
+        tolerance,
+        limits,
         open_loop_gain: o.open_loop_gain,
         series,
         grades: o.grades,
