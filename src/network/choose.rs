@@ -85,6 +85,8 @@ pub const MAX_GRADES: usize = 8;
 pub const MIN_TRIALS: usize = 1_000;
 /// Most Monte Carlo trials for a two-part leg.
 pub const MAX_TRIALS: usize = 200_000;
+/// Exact yields closer than this are taken as equal when a pair is chosen.
+const YIELD_TIE: f64 = 1e-12;
 /// Pairs tried per series and leg build.
 pub const CANDIDATES_PER_BUILD: usize = 5;
 /// The grades tried by default, as fractions: 5, 2, 1, 0.5, 0.25, 0.1 %.
@@ -706,13 +708,17 @@ pub fn choose_parts(spec: &ChooseSpec) -> Result<ChooseResult> {
             for &p in grades.iter().filter(|&&p| p <= s.tolerance()) {
                 let judge = |r1: f64, r2: Leg| judge(&w, s, p, r1, r2, spec.trials, spec.seed);
                 let best = if joint == Combine::None {
-                    // Highest yield; on a tie the earlier pair (nearer nominal,
-                    // then smaller total): `min_by` keeps the first of equals.
-                    pairs.iter().map(|c| judge(c.r1, c.r2)).min_by(|x, y| {
-                        y.yield_.total_cmp(&x.yield_).then(
-                            libm::fabs(x.nominal_error).total_cmp(&libm::fabs(y.nominal_error)),
-                        )
-                    })
+                    // Highest yield; yields within YIELD_TIE are a tie (the same
+                    // ratio scaled by a decade differs in the last bits), and a tie
+                    // keeps the earlier pair of the ranking (nearer nominal, then
+                    // smaller total).
+                    let mut best: Option<Choice> = None;
+                    for c in pairs.iter().map(|c| judge(c.r1, c.r2)) {
+                        if best.map_or(true, |b| c.yield_ > b.yield_ + YIELD_TIE) {
+                            best = Some(c);
+                        }
+                    }
+                    best
                 } else {
                     pairs.first().map(|c| judge(c.r1, c.r2))
                 };
