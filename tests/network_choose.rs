@@ -218,3 +218,59 @@ fn worked_case_gain_48() {
         (Series::E192, 0.0025, 2)
     );
 }
+
+fn spec_for(r1: f64, r2: f64, grade: f64, tolerance: f64) -> PairYieldSpec {
+    PairYieldSpec {
+        network: Network::NonInverting,
+        target: 1.0 + r2 / r1,
+        tolerance,
+        open_loop_gain: None,
+        r1,
+        r2,
+        r2_second: None,
+        grade,
+        trials: 1000,
+        seed: 1,
+    }
+}
+
+proptest::proptest! {
+    #![proptest_config(proptest::prelude::ProptestConfig { cases: 64, rng_seed: proptest::test_runner::RngSeed::Fixed(18), ..proptest::prelude::ProptestConfig::default() })]
+
+    /// A window wider than the worst case passes every build: yield exactly 1.
+    #[test]
+    fn yield_is_one_inside_a_wider_window(
+        r1 in 100.0f64..1e5, q in 0.1f64..100.0, grade in 0.0005f64..0.05, margin in 1.001f64..2.0,
+    ) {
+        let r2 = q * r1;
+        // The gain error at the worst corner is below (G − 1)/G·2p/(1 − p) < 2p/(1 − p).
+        let tolerance = (margin * 2.0 * grade / (1.0 - grade)).min(0.9);
+        let c = pair_yield(&spec_for(r1, r2, grade, tolerance)).unwrap();
+        proptest::prop_assert!(c.worst_low >= c.nominal * (1.0 - tolerance));
+        proptest::prop_assert_eq!(c.yield_, 1.0);
+    }
+
+    /// A gain set by R2/R1 is insensitive to scaling both: the same yield (to
+    /// rounding) for the pair scaled by any factor.
+    #[test]
+    fn yield_is_unchanged_by_scaling_both_resistors(
+        r1 in 100.0f64..1e5, q in 0.1f64..100.0, grade in 0.001f64..0.05, tol in 0.001f64..0.05,
+        k in 0.01f64..100.0, offset in -0.01f64..0.01,
+    ) {
+        // The target a little off the pair's own gain, so the yield is not trivially 1.
+        let mut a = spec_for(r1, q * r1, grade, tol);
+        a.target *= 1.0 + offset;
+        let mut b = a;
+        b.r1 *= k;
+        b.r2 *= k;
+        let (ya, yb) = (pair_yield(&a).unwrap().yield_, pair_yield(&b).unwrap().yield_);
+        proptest::prop_assert!((ya - yb).abs() <= 1e-9, "{} vs {}", ya, yb);
+        // And the sensitivities of the ratio: S_R2 = −S_R1 = (G − 1)/G.
+        let mut c = ChooseSpec::new(Network::NonInverting, a.target, tol);
+        c.series = vec![Series::E24];
+        c.grades = vec![0.01];
+        c.combine = Combine::None;
+        let s = choose_parts(&c).unwrap().sensitivity_r2;
+        proptest::prop_assert!((s - (a.target - 1.0) / a.target).abs() < 1e-12);
+    }
+}
