@@ -5,7 +5,8 @@
 //! # The spec
 //! A target T (a non-inverting or inverting gain, or a divider ratio, see
 //! [`Network`]) with a relative tolerance t: the stage passes when its value lies in
-//! [T·(1 − t), T·(1 + t)]. Every network here is set by q = R2/R1, and its value is
+//! [T·(1 − t), T·(1 + t)], or in limits given directly (`limits`, with T's sign).
+//! Every network here is set by q = R2/R1, and its value is
 //! monotonic in q, so the window maps to an interval [q_lo, q_hi] of q:
 //! - non-inverting, ideal: G = 1 + q; with an amplifier of finite open-loop gain A
 //!   the closed-loop gain is G = (1 + q)·A/(A + 1 + q), so 1 + q = G·A/(A − G);
@@ -53,8 +54,9 @@
 //! pairs nearest the q that puts the value at T (with A, the q whose closed-loop
 //! value is T) within the total-resistance range, ranked as there (|error|, then
 //! smaller total, then smaller R1). For one-resistor legs the pair of highest exact
-//! yield is kept for each grade (the first of that ranking on a tie); for two-part legs the nearest pair
-//! (one Monte Carlo run per grade).
+//! yield is kept for each grade (the first of that ranking on a tie, yields within
+//! 10⁻¹² being equal); for two-part legs the nearest pair (one Monte Carlo run per
+//! grade).
 //!
 //! # Cost order and ranking
 //! Cost order (common practice, no source): the looser grade first (the grade sets
