@@ -46,6 +46,7 @@ export {
   formatSi,
   letterCode,
   bestPairs,
+  chooseParts,
   singleResistor,
   worstCase,
   monteCarlo,

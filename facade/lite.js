@@ -266,6 +266,7 @@ export const letterCode = checkedCall(glue.letterCode, [
   ['digits', C],
 ]);
 export const bestPairs = checkedCall(glue.bestPairs, [['', O]]);
+export const chooseParts = checkedCall(glue.chooseParts, [['', O]]);
 export const singleResistor = checkedCall(glue.singleResistor, [
   ['target', N],
   ['series', S],

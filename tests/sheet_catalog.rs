@@ -190,6 +190,7 @@ fn the_required_functions_are_present() {
         "NETWORK.WORSTCASE",
         "NETWORK.MONTECARLO",
         "NETWORK.YIELD",
+        "NETWORK.CHOOSE",
         "CIRCUIT.GAIN",
         "CIRCUIT.RIN",
         "CIRCUIT.ROUT",

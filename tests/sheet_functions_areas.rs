@@ -375,3 +375,57 @@ fn the_worksheet_gives_the_core_results_unchanged() {
         "D = 1 + A·β = −9 < 0"
     );
 }
+
+#[test]
+fn network_choose_takes_a_range_of_grades_and_names_bad_fields() {
+    // Gain 48 ± 0.5 %, E96 only, grades 1 % and 0.1 % from cells, one-resistor legs:
+    // no E96 pair is within 0.5 % of 48 (tests/reference/network_choose.py, brute
+    // force), so no row meets the minimum yield and the best miss is first.
+    let mut s = Sheet::new();
+    s.set("Z1", "1%").unwrap();
+    s.set("Z2", "0.1%").unwrap();
+    s.set(
+        "A1",
+        "=NETWORK.CHOOSE(\"non-inverting\"; 48; 0.5%; \"E96\"; Z1:Z2; \"none\"; 0.99; 10k; 1M)",
+    )
+    .unwrap();
+    let at = |r: u32, c: u32| s.shown(CellRef::parse("A1").unwrap().offset(r, c).unwrap());
+    for r in 0..2 {
+        assert_eq!(at(r, 0), Value::Number(96.0, None));
+        assert_eq!(at(r, 12), Value::Bool(false));
+    }
+    // Ranked by yield: 1 % (33.4 %) above 0.1 % (0.5 %).
+    let (y0, y1) = match (at(0, 7), at(1, 7)) {
+        (Value::Number(a, _), Value::Number(b, _)) => (a, b),
+        v => panic!("{v:?}"),
+    };
+    assert!(y0 > y1, "{y0} {y1}");
+    for (formula, field) in [
+        (
+            "=NETWORK.CHOOSE(\"non-inverting\"; 48; 0.5%; \"E97\"; 1%)",
+            "series",
+        ),
+        (
+            "=NETWORK.CHOOSE(\"non-inverting\"; 48; 0.5%; \"E96\"; -1%)",
+            "grades",
+        ),
+        (
+            "=NETWORK.CHOOSE(\"non-inverting\"; 48; 150%; \"E96\"; 1%)",
+            "tolerance",
+        ),
+        (
+            "=NETWORK.CHOOSE(\"non-inverting\"; 48; 0.5%; \"E96\"; 1%; \"none\"; 2)",
+            "min_yield",
+        ),
+        (
+            "=NETWORK.CHOOSE(\"non-inverting\"; 48; 0.5%; \"E96\"; 1%; \"none\"; 0.9; 10k; 1M; 40)",
+            "open_loop_gain",
+        ),
+    ] {
+        s.set("A20", formula).unwrap();
+        match s.shown(CellRef::parse("A20").unwrap()) {
+            Value::Error(e) => assert!(e.detail.contains(field), "{formula}: {}", e.detail),
+            v => panic!("{formula}: {v:?}"),
+        }
+    }
+}

@@ -7,16 +7,23 @@
 //! - [`pairs`]: ranked standard-value resistor pairs for a gain or divider ratio,
 //!   single resistors for a transresistance or current sense, with optional
 //!   two-resistor legs;
+//! - [`choose`]: series, tolerance grade and leg build ranked by yield against
+//!   a gain or ratio with a tolerance, and by cost;
 //! - [`worstcase`]: extremes of gain, impedances and bandwidth of an op-amp stage
 //!   over resistor tolerance corners and the open-loop gain range;
 //! - [`montecarlo`]: seeded, reproducible Monte Carlo of the same quantities.
 
+pub mod choose;
 pub mod eseries;
 pub mod montecarlo;
 pub mod pairs;
 pub mod worstcase;
 
 pub use crate::notation::{format_si, letter_code, parse_value, parse_value_with_unit, Reading};
+pub use choose::{
+    choose_parts, pair_yield, Choice, ChooseResult, ChooseSpec, PairYieldSpec, YieldMethod,
+    CANDIDATES_PER_BUILD, DEFAULT_GRADES, DEFAULT_SERIES, MAX_GRADES,
+};
 pub use eseries::{
     neighbours, series_values, standard_value, Neighbours, Rounding, Series, SERIES_NAMES,
 };

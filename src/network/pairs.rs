@@ -84,7 +84,7 @@ impl FromStr for Network {
 
 impl Network {
     /// R2/R1 for the target; validates the target for this network.
-    fn ratio_for(self, target: f64) -> Result<f64> {
+    pub(crate) fn ratio_for(self, target: f64) -> Result<f64> {
         let t = check::finite("target", target)?;
         match self {
             Network::NonInverting if t >= 1.0 => Ok(t - 1.0),
@@ -193,7 +193,7 @@ pub struct Leg {
 }
 
 impl Leg {
-    fn single(r: f64) -> Leg {
+    pub(crate) fn single(r: f64) -> Leg {
         Leg {
             value: r,
             first: r,

@@ -5,7 +5,8 @@ use super::options::{Fields, FromOptions};
 use super::{scalar, throw, to_js};
 use crate::network::montecarlo::count_from_number;
 use crate::network::{
-    self as nw, Distribution, GainDistribution, Metric, MonteCarloSpec, PairSpec, StageSpec,
+    self as nw, ChooseSpec, Distribution, GainDistribution, Metric, MonteCarloSpec, PairSpec,
+    StageSpec,
 };
 use wasm_bindgen::prelude::*;
 
@@ -51,6 +52,42 @@ export interface BestPairsOptions {
   combine?: "none" | "series" | "parallel" | "either";
   /** Candidates returned, 1 … 100. Default 10. */
   count?: number;
+}
+/** Options of `chooseParts`. */
+export interface ChoosePartsOptions {
+  network: "non-inverting" | "inverting" | "divider";
+  /** Gain (V/V) or divider ratio. */
+  target: number;
+  /** Relative half-width of the window target·(1 ± tolerance), 0 < tolerance < 1 (0.005 for ±0.5 %). Or give lower and upper. */
+  tolerance?: number;
+  /** The window's own ends, in the network's quantity (with the target's sign), instead of tolerance. */
+  lower?: number; upper?: number;
+  /** The amplifier's open-loop gain A, V/V, for the amplifier networks. Default: none (ideal). */
+  openLoopGain?: number;
+  /** Series tried. Default ["E6", "E12", "E24", "E48", "E96", "E192"]. */
+  series?: SeriesName[];
+  /** Tolerance grades tried, fractions, 1 … 8 of them. Default [0.05, 0.02, 0.01, 0.005, 0.0025, 0.001]. */
+  grades?: number[];
+  /** Two-part R2 legs tried besides one resistor. Default "either". */
+  combine?: "none" | "series" | "parallel" | "either";
+  /** Least and largest R1 + R2, Ω. Default 1 k … 1 M. */
+  totalMin?: number; totalMax?: number;
+  /** Yield a choice must reach, 0 < minYield ≤ 1. Default 0.99. */
+  minYield?: number;
+  /** Monte Carlo trials for a two-part leg, 1000 … 200 000. Default 20 000. */
+  trials?: number;
+  /** Whole number 0 … 2^53 − 1. Default 1. */
+  seed?: number;
+}
+export interface PartChoice {
+  series: SeriesName; grade: number; r1: number; r2: ResistorLeg; parts: number;
+  nominal: number; nominalError: number; worstLow: number; worstHigh: number;
+  yield: number; yieldStdError: number; method: "exact" | "monte-carlo"; costRank: number; meets: boolean;
+}
+export interface ChoosePartsResult {
+  network: "non-inverting" | "inverting" | "divider"; target: number; low: number; high: number;
+  idealRatio: number; sensitivityR2: number; minYield: number;
+  choices: PartChoice[]; recommended: PartChoice | null;
 }
 /** An op-amp stage with its tolerances (`worstCase`, `monteCarlo`). */
 export interface StageOptions {
@@ -467,4 +504,119 @@ pub fn monte_carlo(
         bins: count_from_number("bins", o.bins, nw::MAX_BINS).map_err(named)?,
     };
     to_js(&nw::monte_carlo(&spec).map_err(named)?)
+}
+
+/// Options of `chooseParts` (defaults in the `.d.ts`).
+struct ChooseOptions {
+    network: String,
+    target: f64,
+    tolerance: Option<f64>,
+    lower: Option<f64>,
+    upper: Option<f64>,
+    open_loop_gain: Option<f64>,
+    series: Vec<String>,
+    grades: Vec<f64>,
+    combine: String,
+    total_min: f64,
+    total_max: f64,
+    min_yield: f64,
+    trials: f64,
+    seed: f64,
+}
+
+impl FromOptions for ChooseOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "network",
+        "target",
+        "tolerance",
+        "lower",
+        "upper",
+        "openLoopGain",
+        "series",
+        "grades",
+        "combine",
+        "totalMin",
+        "totalMax",
+        "minYield",
+        "trials",
+        "seed",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        let series = if f.raw_present("series") {
+            f.texts("series")
+        } else {
+            nw::DEFAULT_SERIES.iter().map(|s| s.name().into()).collect()
+        };
+        let grades = if f.raw_present("grades") {
+            f.nums("grades")
+        } else {
+            nw::DEFAULT_GRADES.to_vec()
+        };
+        ChooseOptions {
+            network: f.text("network"),
+            target: f.num("target"),
+            tolerance: f.opt_num("tolerance"),
+            lower: f.opt_num("lower"),
+            upper: f.opt_num("upper"),
+            open_loop_gain: f.opt_num("openLoopGain"),
+            series,
+            grades,
+            combine: f.text_or("combine", default_choose_combine),
+            total_min: f.num_or("totalMin", 1e3),
+            total_max: f.num_or("totalMax", 1e6),
+            min_yield: f.num_or("minYield", 0.99),
+            trials: f.num_or("trials", 20_000.0),
+            seed: f.num_or("seed", default_seed()),
+        }
+    }
+}
+
+fn default_choose_combine() -> String {
+    "either".into()
+}
+
+/// Series, tolerance grade and R2 leg build ranked against a gain or ratio with a
+/// tolerance: `{network, target, low, high, idealRatio, sensitivityR2, minYield,
+/// choices: [{series, grade, r1, r2, parts, nominal, nominalError, worstLow,
+/// worstHigh, yield, yieldStdError, method, costRank, meets}], recommended}`. The
+/// choices meeting `minYield` come first in cost order (looser grade, fewer parts,
+/// coarser series); `recommended` is null when none meets the spec.
+#[wasm_bindgen(js_name = chooseParts, unchecked_return_type = "ChoosePartsResult")]
+pub fn choose_parts(
+    #[wasm_bindgen(unchecked_param_type = "ChoosePartsOptions")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let o: ChooseOptions = read("", &options)?;
+    let named = |e| core_error(e, RENAMES);
+    let mut series = alloc::vec::Vec::with_capacity(o.series.len());
+    for (i, name) in o.series.iter().enumerate() {
+        series.push(
+            name.parse::<nw::Series>()
+                .map_err(|e| super::options::error_at(&alloc::format!("series[{i}]"), e, None))?,
+        );
+    }
+    // The window: tolerance, or lower and upper together.
+    let missing = |param| throw(Err(crate::Error::Missing { param }));
+    let (tolerance, limits) = match (o.tolerance, o.lower, o.upper) {
+        (_, Some(l), Some(u)) => (f64::NAN, Some((l, u))),
+        (_, Some(_), None) => return missing("upper"),
+        (_, None, Some(_)) => return missing("lower"),
+        (Some(t), None, None) => (t, None),
+        (None, None, None) => return missing("tolerance"),
+    };
+    let spec = ChooseSpec {
+        network: o.network.parse().map_err(named)?,
+        target: o.target,
+        tolerance,
+        limits,
+        open_loop_gain: o.open_loop_gain,
+        series,
+        grades: o.grades,
+        combine: o.combine.parse().map_err(named)?,
+        total_min: o.total_min,
+        total_max: o.total_max,
+        min_yield: o.min_yield,
+        trials: count_from_number("trials", o.trials, nw::choose::MAX_TRIALS).map_err(named)?,
+        seed: nw::seed_from_number(o.seed).map_err(named)?,
+    };
+    to_js(&nw::choose_parts(&spec).map_err(named)?)
 }

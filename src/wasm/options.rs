@@ -256,6 +256,20 @@ impl Fields {
         self.value(key, true, text).flatten()
     }
 
+    /// Whether `key` is given and not `null` (for a list whose default is not empty).
+    pub(crate) fn raw_present(&self, key: &str) -> bool {
+        self.entries
+            .iter()
+            .any(|(k, v)| k == key && !matches!(v, Plain::Null))
+    }
+
+    /// A list of strings, empty when left out.
+    pub(crate) fn texts(&mut self, key: &str) -> Vec<String> {
+        self.value(key, false, strings)
+            .flatten()
+            .unwrap_or_default()
+    }
+
     /// A list of numbers, empty when left out.
     pub(crate) fn nums(&mut self, key: &str) -> Vec<f64> {
         self.value(key, false, numbers)
@@ -412,6 +426,22 @@ fn text(v: Plain) -> Result<String, (String, Failure)> {
         Plain::Text(t) => Ok(t),
         other => Err((String::new(), wrong(&other, "a string"))),
     }
+}
+
+/// A list of strings: an element of the wrong kind is named by its index.
+fn strings(v: Plain) -> Result<Vec<String>, (String, Failure)> {
+    let items = match v {
+        Plain::List(items) => items,
+        other => return Err((String::new(), wrong(&other, "a list"))),
+    };
+    let mut out = Vec::with_capacity(items.len());
+    for (i, item) in items.into_iter().enumerate() {
+        match item {
+            Plain::Text(t) => out.push(t),
+            other => return Err((alloc::format!("[{i}]"), wrong(&other, "a string"))),
+        }
+    }
+    Ok(out)
 }
 
 /// A list of numbers: an element of the wrong kind is named by its index.

@@ -252,6 +252,17 @@ export function goodCalls() {
         count: 3,
       },
     ],
+    chooseParts: [
+      {
+        network: 'non-inverting',
+        target: 48,
+        tolerance: 0.005,
+        series: ['E96', 'E192'],
+        grades: [0.01, 0.001],
+        combine: 'series',
+        trials: 1000,
+      },
+    ],
     singleResistor: [4.7e3, 'E24', undefined, 'none'],
     worstCase: [stage],
     monteCarlo: [{ ...stage, trials: 200, seed: 7, bins: 10 }],

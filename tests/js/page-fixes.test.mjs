@@ -343,9 +343,10 @@ test('resistor pairs: per-resistor limits, a table judged against the spec', asy
     await retype(page, '#card-pairs-tol', '0.1%');
     await retype(page, '#card-pairs-spec_low', '47.76');
     await retype(page, '#card-pairs-spec_high', '48.24');
-    const rows = page.locator('#card-pairs .result-table tbody tr');
+    const rows = page.locator('#card-pairs [data-name="pair-candidates"] tbody tr');
     await page.waitForFunction(
-      () => document.querySelectorAll('#card-pairs .result-table tbody tr').length > 0,
+      () =>
+        document.querySelectorAll('#card-pairs [data-name="pair-candidates"] tbody tr').length > 0,
     );
     const table = await rows.evaluateAll((trs) =>
       trs.map((tr) => [...tr.querySelectorAll('td')].map((td) => td.textContent)),

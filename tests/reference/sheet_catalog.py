@@ -288,6 +288,46 @@ def mc_tolerances():
     return [float(t) for t in tols]
 
 
+def choose_rows(target, tol, keys, grade, total_min, total_max):
+    """NETWORK.CHOOSE with one-resistor legs, non-inverting: per series the five
+    pairs nearest the target (every pair of the series' values from 1 Ω to
+    total_max enumerated, ranked as NETWORK.PAIR), the highest exact yield of
+    two independent uniform ±grade parts (mpmath quadrature of the joint density,
+    tests/reference/network_choose.py; the first on a tie), the worst case over
+    the four tolerance corners; ranked: reaching 0.99 first in cost order (same
+    grade and parts here: coarser series first), then by yield."""
+    sys.path.insert(0, str(Path(__file__).parent))
+    from network_choose import exact_yield
+    lo_g, hi_g = target * (1 - tol), target * (1 + tol)
+    rows = []
+    for rank, key in enumerate(keys, start=1):
+        values = e_values(key, 1.0, total_max)
+        pairs = []
+        for r1 in values:
+            best = None
+            for r2 in values:
+                if not total_min <= r1 + r2 <= total_max:
+                    continue
+                g = 1.0 + r2 / r1
+                cand = (abs(g / target - 1.0), r1 + r2, r1, r2)
+                if best is None or cand < best:
+                    best = cand
+            if best is not None:
+                pairs.append(best)
+        pairs.sort()
+        best = None
+        for _, _, r1, r2 in pairs[:5]:
+            y = exact_yield(lo_g - 1, hi_g - 1, r1, r2, grade)
+            if best is None or y > best[0]:
+                best = (y, r1, r2)
+        y, r1, r2 = best
+        corners = [1 + r2 * (1 + s2 * grade) / (r1 * (1 + s1 * grade)) for s1 in (-1, 1) for s2 in (-1, 1)]
+        n = len(eseries.series(key))
+        rows.append([n, grade, 2, r1, r2, 0, (1 + r2 / r1) / target - 1, y, 0, min(corners), max(corners), rank, int(y >= 0.99)])
+    rows.sort(key=lambda r: (-r[12], r[11] if r[12] else -r[7]))
+    return [M(x) for r in rows for x in r]
+
+
 CASES.update({
     "=NETWORK.NEAREST(5k; \"E12\")": [M(eseries.find_nearest(eseries.E12, 5000.0))],
     "=NETWORK.UP(12345; \"E96\")": [M(eseries.find_greater_than_or_equal(eseries.E96, 12345.0))],
@@ -300,6 +340,8 @@ CASES.update({
         [MC_MEAN, MC_SD] + MC_PCT,
     "=NETWORK.YIELD(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 100k; 100k; 100k; 1M; 50; 10 Hz; 200000; 1; \"uniform\"; 9.9; 10.05)":
         [MC_YIELD],
+    "=NETWORK.CHOOSE(\"non-inverting\"; 48; 0.5%; \"E96, E192\"; 0.25%; \"none\"; 0.99; 10k; 1M)": choose_rows(
+        48.0, 0.005, [eseries.E96, eseries.E192], 0.0025, 1e4, 1e6),
 })
 
 # --- the loaded circuit (CIRCUIT.): the worked non-inverting case of the sympy

@@ -12,11 +12,16 @@
 //! `NETWORK.MONTECARLO` and `NETWORK.YIELD` take the open-loop gain's distribution as an
 //! optional last argument (log-normal when left out, see
 //! [`crate::network::GainDistribution`]).
+//!
+//! `NETWORK.CHOOSE` ranks series, tolerance grades and leg builds against a gain
+//! or ratio with a tolerance ([`crate::network::choose_parts`]); its series are
+//! one text ("E96, E192") and its grades a number or a range of numbers.
 
 use super::{req, tri, Args, Example, Expected, FunctionSpec, Param};
 use crate::network::{
-    self as net, best_pairs, monte_carlo, standard_value, Combine, Distribution, GainDistribution,
-    Hold, Joint, Metric, MonteCarloSpec, Network, PairSpec, Rounding, Series, Stage, StageSpec,
+    self as net, best_pairs, choose_parts, monte_carlo, standard_value, ChooseSpec, Combine,
+    Distribution, GainDistribution, Hold, Joint, Metric, MonteCarloSpec, Network, PairSpec,
+    Rounding, Series, Stage, StageSpec,
 };
 use crate::sheet::errors::{CellError, ErrorKind};
 use crate::sheet::value::{Array, Unit, Value};
@@ -249,6 +254,120 @@ fn yield_fraction(a: &Args<'_>) -> Value {
         Value::num,
     )
 }
+
+/// The series of a text argument: names separated by commas or spaces.
+fn series_list(a: &Args<'_>, i: usize) -> Result<Vec<Series>, CellError> {
+    let text = a.text(i)?;
+    let mut out = Vec::new();
+    for name in text.split(|c: char| c == ',' || c == ';' || c.is_whitespace()) {
+        if !name.is_empty() {
+            out.push(from_core(a, name.parse::<Series>())?);
+        }
+    }
+    Ok(out)
+}
+
+/// A number, or every number of a range or array, as a list.
+fn number_list(a: &Args<'_>, i: usize) -> Result<Vec<f64>, CellError> {
+    match a.get(i) {
+        Value::Array(arr) => {
+            let mut out = Vec::new();
+            for item in arr.items() {
+                match item {
+                    Value::Number(x, _) => out.push(*x),
+                    Value::Error(e) => return Err(e.clone()),
+                    Value::Empty => {}
+                    _ => {
+                        return Err(super::core_error(
+                            a.spec.name,
+                            crate::Error::WrongType {
+                                param: "grades",
+                                expected: "numbers",
+                            },
+                            NAMES,
+                        ))
+                    }
+                }
+            }
+            Ok(out)
+        }
+        _ => Ok(vec![a.number(i)?]),
+    }
+}
+
+fn choose(a: &Args<'_>) -> Value {
+    let network = tri!(from_core(a, tri!(a.text(0)).parse::<Network>()));
+    let mut spec = ChooseSpec::new(network, tri!(a.number(1)), tri!(a.number(2)));
+    spec.series = tri!(series_list(a, 3));
+    spec.grades = tri!(number_list(a, 4));
+    let given = |i: usize| !matches!(a.get(i), Value::Empty);
+    if given(5) {
+        spec.combine = tri!(from_core(a, tri!(a.text(5)).parse::<Combine>()));
+    }
+    if given(6) {
+        spec.min_yield = tri!(a.number(6));
+    }
+    if given(7) {
+        spec.total_min = tri!(a.number(7));
+    }
+    if given(8) {
+        spec.total_max = tri!(a.number(8));
+    }
+    if given(9) {
+        spec.open_loop_gain = Some(tri!(a.number(9)));
+    }
+    match choose_parts(&spec) {
+        Ok(r) => {
+            let mut items = Vec::with_capacity(r.choices.len() * CHOOSE_COLUMNS.len());
+            for c in &r.choices {
+                let second = c.r2.second.unwrap_or(0.0);
+                items.extend([
+                    Value::num(c.series.len() as f64),
+                    Value::num(c.grade),
+                    Value::num(c.parts as f64),
+                    with_unit(c.r1, Some(Unit::Ohm)),
+                    with_unit(c.r2.first, Some(Unit::Ohm)),
+                    with_unit(second, Some(Unit::Ohm)),
+                    Value::num(c.nominal_error),
+                    Value::num(c.yield_),
+                    Value::num(c.yield_std_error),
+                    Value::num(c.worst_low),
+                    Value::num(c.worst_high),
+                    Value::num(c.cost_rank as f64),
+                    Value::Bool(c.meets),
+                ]);
+            }
+            let rows = u32::try_from(r.choices.len()).unwrap_or(u32::MAX);
+            let cols = u32::try_from(CHOOSE_COLUMNS.len()).unwrap_or(u32::MAX);
+            Array::new(rows, cols, items).map_or_else(
+                || {
+                    Value::error(
+                        ErrorKind::NotAvailable,
+                        "NETWORK.CHOOSE: no pair fits the total-resistance range",
+                    )
+                },
+                Value::Array,
+            )
+        }
+        Err(e) => core_err(a, e),
+    }
+}
+
+const CHOOSE_COLUMNS: &[&str] = &[
+    "series: values per decade (96 for E96)",
+    "tolerance grade",
+    "parts (2, or 3 with a two-part R2)",
+    "R1, Ω",
+    "R2 first part, Ω",
+    "R2 second part, Ω (0 when single)",
+    "nominal error, value/target − 1",
+    "yield",
+    "yield standard error (0 when exact)",
+    "worst-case low",
+    "worst-case high",
+    "cost rank (1 cheapest)",
+    "meets the minimum yield",
+];
 
 const VALUE: Param = req(
     "value",
@@ -571,5 +690,94 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             tolerance: &[0.00833402017772508],
         },
         eval: yield_fraction,
+    },
+    FunctionSpec {
+        name: "NETWORK.CHOOSE",
+        area: "network",
+        summary: "Series, tolerance grade and R2 build ranked against a gain or ratio with a tolerance: those reaching the minimum yield first, cheapest first; then the rest by yield",
+        params: &[
+            req("network", "\"non-inverting\" (1 + R2/R1), \"inverting\" (−R2/R1) or \"divider\" (R1/(R1 + R2))", "text", "non-inverting, inverting, divider"),
+            req("target", "gain or ratio wanted", "V/V", "non-inverting >= 1; inverting not 0; divider 0 … 1"),
+            req("tolerance", "the spec: target·(1 ± tolerance) (0.5% or 0.005)", "1", "0 < tolerance < 1"),
+            req("series", "series tried, e.g. \"E96, E192\"", "text", "E3, E6, E12, E24, E48, E96, E192"),
+            req("grades", "tolerance grades tried: a number or a range (1% or 0.01)", "1", "1 … 8 values, each 0 … 1"),
+            Param {
+                name: "combine",
+                summary: "two-part R2 legs tried as well: \"none\", \"series\", \"parallel\" or \"either\"; left out, \"either\"",
+                unit: "text",
+                optional: true,
+                default: None,
+                range: "none, series, parallel, either",
+            },
+            Param {
+                name: "min_yield",
+                summary: "yield a choice must reach; left out, 0.99",
+                unit: "1",
+                optional: true,
+                default: None,
+                range: "0 < min_yield <= 1",
+            },
+            Param {
+                name: "total_min",
+                summary: "least R1 + R2; left out, 1 kΩ",
+                unit: "Ω",
+                optional: true,
+                default: None,
+                range: "> 0",
+            },
+            Param {
+                name: "total_max",
+                summary: "largest R1 + R2; left out, 1 MΩ",
+                unit: "Ω",
+                optional: true,
+                default: None,
+                range: ">= total_min",
+            },
+            Param {
+                name: "open_loop_gain",
+                summary: "the amplifier's open-loop gain A; left out, ideal",
+                unit: "V/V",
+                optional: true,
+                default: None,
+                range: "> the window's upper end",
+            },
+        ],
+        repeats: false,
+        result_unit: "1; 1; 1; Ω; Ω; Ω; 1; 1; 1; as target; as target; 1; truth value",
+        spill: CHOOSE_COLUMNS,
+        example: Example {
+            formula: "=NETWORK.CHOOSE(\"non-inverting\"; 48; 0.5%; \"E96, E192\"; 0.25%; \"none\"; 0.99; 10k; 1M)",
+            expected: Expected::Numbers(&[
+                192.0,
+                0.0025,
+                2.0,
+                1000.0,
+                47000.0,
+                0.0,
+                0.0,
+                1.0,
+                0.0,
+                47.76558603491272,
+                48.235588972431074,
+                2.0,
+                1.0,
+                96.0,
+                0.0025,
+                2.0,
+                243.0,
+                11500.0,
+                0.0,
+                0.006772976680384124,
+                0.20481562911693135,
+                0.0,
+                48.08906745481974,
+                48.56232144146374,
+                1.0,
+                0.0,
+            ]),
+            source: "every E96 and E192 pair in 10 k … 1 MΩ enumerated from the eseries package, the five nearest 48 ranked as NETWORK.PAIR, the highest exact yield of two uniform ±0.25 % parts by mpmath quadrature, the worst case at the four corners (tests/reference/sheet_catalog.py)",
+            tolerance: &[],
+        },
+        eval: choose,
     },
 ];

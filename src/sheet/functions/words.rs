@@ -171,6 +171,10 @@ const WORDS: &[(&str, &str)] = &[
         "yield tolerance spec percent % pass rate resistor",
     ),
     (
+        "NETWORK.CHOOSE",
+        "choose parts series grade tolerance yield cost cheapest resistor pair spec",
+    ),
+    (
         "NOISE.THERMAL",
         "johnson nyquist thermal noise resistor nV/√Hz kT",
     ),

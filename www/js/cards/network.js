@@ -92,6 +92,71 @@ function judged(c, v, api) {
   };
 }
 
+/** Rows of the series-and-grade table shown (the ranking puts the useful ones first). */
+const CHOICES_SHOWN = 12;
+
+const CHOICE_COLUMNS = [
+  { key: 'rank', label: '#' },
+  { key: 'series', label: 'series' },
+  { key: 'grade', label: 'grade', numeric: true },
+  { key: 'legs', label: 'parts' },
+  { key: 'values', label: 'R1 / R2', numeric: true },
+  { key: 'error', label: 'nominal error', numeric: true },
+  { key: 'range', label: 'worst case (tolerance)', numeric: true },
+  { key: 'yield', label: 'yield', numeric: true },
+  { key: 'cost', label: 'cost rank', numeric: true },
+];
+
+const legsOf = (c) => (c.parts === 2 ? '2: single R2' : `3: R2 ${c.r2.joint}`);
+
+/** A choice's yield as shown: exact, or Monte Carlo with its standard error. */
+const yieldShown = (c) =>
+  c.method === 'exact'
+    ? formatPlain(c.yield * 100, 4, '%')
+    : `${formatPlain(c.yield * 100, 3, '%')} ± ${formatPlain(c.yieldStdError * 100, 2, '%')}`;
+
+/** The series, grade and R2 build ranked against the spec window (the core's chooseParts). */
+function choicesTable(v, api) {
+  const r = api.chooseParts({
+    network: v.network,
+    target: v.target,
+    lower: v.spec_low,
+    upper: v.spec_high,
+    grades: v.grades,
+    combine: v.combine,
+    minYield: v.min_yield,
+    ...(v.network === 'divider' ? {} : { openLoopGain: v.a_typ }),
+  });
+  const best = r.recommended;
+  const head = best
+    ? `cheapest reaching ${formatPlain(r.minYield * 100, 4, '%')}: ${best.series} ${formatPlain(best.grade * 100, 3, '%')}, ${formatEngineering(best.r1, 4, 'Ω')} / ${leg(best.r2)}`
+    : r.choices.length > 0
+      ? `none reaches ${formatPlain(r.minYield * 100, 4, '%')}; best: ${r.choices[0].series} ${formatPlain(r.choices[0].grade * 100, 3, '%')} at ${yieldShown(r.choices[0])}`
+      : 'no pair fits 1 kΩ … 1 MΩ';
+  return {
+    verdict: head,
+    sensitivity: r.sensitivityR2,
+    table: {
+      name: 'part-choices',
+      caption: `Series and grade for the spec ${formatPlain(v.spec_low, 6)} … ${formatPlain(v.spec_high, 6)}: ${head}`,
+      columns: CHOICE_COLUMNS,
+      rows: r.choices.slice(0, CHOICES_SHOWN).map((c, i) => ({
+        rank: String(i + 1),
+        series: c.series,
+        grade: formatPlain(c.grade * 100, 3, '%'),
+        legs: legsOf(c),
+        values: `${formatEngineering(c.r1, 4, 'Ω')} / ${leg(c.r2)}`,
+        error: formatPlain(c.nominalError * 100, 3, '%'),
+        range: `${formatPlain(c.worstLow, 5)} … ${formatPlain(c.worstHigh, 5)}`,
+        yield: yieldShown(c),
+        cost: String(c.costRank),
+        pass: c.meets,
+      })),
+      note: `First ${Math.min(CHOICES_SHOWN, r.choices.length)} of ${r.choices.length}: those reaching the least yield first, cheapest first (looser grade, then fewer parts, then coarser series), then the rest by yield. Every part uniform within its grade; A fixed at A typ; R1 + R2 from 1 kΩ to 1 MΩ; a series only at its customary tolerance or tighter. Yield exact for two parts, seeded Monte Carlo (20k builds, ± one standard error) with a two-part R2.`,
+    },
+  };
+}
+
 const PAIR_COLUMNS = [
   { key: 'rank', label: '#' },
   { key: 'r1', label: 'R1', numeric: true },
@@ -107,7 +172,7 @@ export const pairCard = {
   id: 'card-pairs',
   title: 'Resistor pair',
   blurb:
-    'Standard-value resistors (IEC 60063) for a gain or divider ratio, each resistor within its own range, and each candidate judged as built: nominal error, the worst case over resistor tolerance and the amplifier’s gain range, and the Monte Carlo yield within the spec.',
+    'Standard-value resistors (IEC 60063) for a gain or divider ratio, each resistor within its own range, and each candidate judged as built: nominal error, the worst case over resistor tolerance and the amplifier’s gain range, and the Monte Carlo yield within the spec. Below, every series and tolerance grade compared against the same spec, cheapest first among those that reach the least yield.',
   formula:
     'non-inverting: G = 1 + R2/R1    inverting: |G| = R2/R1    divider: k = R1/(R1 + R2)\nnominal error = achieved/target − 1    worst case and yield: the stage with the amplifier below',
   inputs: [
@@ -139,8 +204,16 @@ export const pairCard = {
       ],
     },
     { name: 'tol', field: ['tolR1', 'tolR2'], label: 'Resistor tolerance', value: '1%', unit: '' },
-    { name: 'spec_low', label: 'Spec: gain at least', value: '7.7' },
-    { name: 'spec_high', label: 'Spec: gain at most', value: '7.84' },
+    { name: 'spec_low', field: 'lower', label: 'Spec: gain at least', value: '7.7' },
+    { name: 'spec_high', field: 'upper', label: 'Spec: gain at most', value: '7.84' },
+    {
+      name: 'grades',
+      label: 'Grades to compare',
+      value: '5%, 2%, 1%, 0.5%, 0.25%, 0.1%',
+      list: true,
+      unit: '',
+    },
+    { name: 'min_yield', label: 'Least yield', value: '99%', unit: '' },
     { name: 'a_min', label: 'A min', value: '60k' },
     { name: 'a_typ', label: 'A typ', value: '250k' },
     { name: 'a_max', label: 'A max', value: '1M' },
@@ -160,9 +233,17 @@ export const pairCard = {
   ],
   compute(v, api) {
     const { ideal, candidates } = pairsWithinLimits({ ...v, hold: 'gbw' }, api);
+    const choices = choicesTable(v, api);
     const rows = [
       { name: 'ideal', label: 'Ideal R2/R1', value: ideal ?? Number.NaN, format: 'plain' },
       { name: 'count', label: 'Candidates within the limits', text: String(candidates.length) },
+      { name: 'choice', label: 'Series and grade', text: choices.verdict },
+      {
+        name: 'sensitivity',
+        label: 'Sensitivity to R2 (to R1: the negative)',
+        value: choices.sensitivity,
+        format: 'plain',
+      },
     ];
     const tableRows = candidates.map((c, i) => {
       const j = judged(c, { ...v, hold: 'gbw' }, api);
@@ -188,6 +269,7 @@ export const pairCard = {
           rows: tableRows,
           note: `Worst case: every corner of R1, R2 ± tolerance and A min … max. Yield: ${PAIR_TRIALS / 1000}k seeded Monte Carlo builds (resistors uniform, A log-normal), share within the spec. A two-part R2 is taken at the tolerance of one part. A divider has no stage: its columns stay empty.`,
         },
+        choices.table,
       ],
     };
   },
