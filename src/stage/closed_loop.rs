@@ -225,10 +225,10 @@ pub fn gain_within_band(
     let inside = |g: f64| (lo..=hi).contains(&g);
     let magnitude = |f: &[f64]| -> CircuitResult<Vec<f64>> {
         let s = gain_sweep(c, source, output, f)?;
-        Ok(s.re.iter().zip(&s.im).map(|(r, i)| r.hypot(*i)).collect())
+        Ok(s.re.iter().zip(&s.im).map(|(r, i)| libm::hypot(*r, *i)).collect())
     };
     let decades = libm::log10(to_hz / from_hz);
-    let n = (decades * WITHIN_PPD).ceil().max(1.0) as usize;
+    let n = crate::float::ceil(decades * WITHIN_PPD).max(1.0) as usize;
     let grid: Vec<f64> = (0..=n)
         .map(|k| from_hz * libm::pow(10.0, decades * k as f64 / n as f64))
         .collect();
