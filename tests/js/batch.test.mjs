@@ -551,3 +551,26 @@ test('the usage text names every step and the columns of every area', () => {
     assert.match(help.stdout, new RegExp(`\\b${word}\\b`), word);
   }
 });
+
+test('BatchRun and tableFile refuse a bad format or a wrong type by the caller’s name', async () => {
+  const { BatchRun } = await api();
+  const { tableFile } = await import(join(ROOT, 'pkg', 'sheetfiles.mjs'));
+  const refused = (f, code, param) =>
+    assert.throws(f, (e) => e.name === 'LoopwrightError' && e.code === code && e.param === param);
+  refused(() => new BatchRun(undefined, 'xml'), 'unknown_name', 'format');
+  refused(() => new BatchRun(undefined, 5), 'wrong_type', 'format');
+  refused(() => new BatchRun('stage,fft'), 'unknown_name', 'compute');
+  refused(() => tableFile('a\n1\n', 'csv'), 'unknown_name', 'format');
+  refused(() => tableFile(42, 'xlsx'), 'wrong_type', 'csvText');
+  // A record that breaks RFC 4180 is refused naming its line; nothing is written.
+  refused(() => tableFile('a\n"open\n', 'ods'), 'malformed', 'file');
+  // JSON lines from the API, fed in two chunks that split a record.
+  const run = new BatchRun('stage', 'jsonl');
+  const enc = new TextEncoder();
+  let out = run.feed(enc.encode('a,beta\n1e5,0.0'));
+  out += run.feed(enc.encode('1\n')) + run.finish();
+  const row = JSON.parse(out.trim());
+  // Af = A/(1 + Aβ) = 10⁵/1001 (Sedra & Smith, 7th ed., section 10.1, from memory).
+  assert.ok(Math.abs(row.closed_loop_gain - 1e5 / 1001) < 1e-9);
+  assert.deepEqual([run.rowsIn, run.rowsWritten, run.rowsReported], [1, 1, 0]);
+});
