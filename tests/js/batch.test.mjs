@@ -464,6 +464,16 @@ test('noise, design and loop rows of a stage give what the JS API gives', async 
   assert.match(rows[3].error, /target_pm_deg/);
   assert.match(rows[4].error, /^out_of_domain stage/);
 
+  // The same stage described in columns (the amplifier's noise as en, in and their
+  // corners) gives the same figures as its document.
+  const columns =
+    'kind,a0,gbw_hz,poles_hz,rd,ro,en,voltage_noise_corner_hz,in,current_noise_corner_hz,rf,rg,rs,rl,cl,noise_at_hz,f_low_hz,f_high_hz,signal_rms,target_pm_deg\n' +
+    'non-inverting,2e5,10M,40M,2M,60,8n,20,0.5p,100,9k09,1k,50,2k,1n,1k,10,100k,1,60\n';
+  const [same] = objectsOf(batch('columns.csv', columns, '--format', 'jsonl'));
+  for (const key of ['noise_density', 'noise_rms', 'snr_db', 'largest_source', 'design_cf']) {
+    assert.equal(same[key], rows[0][key], key);
+  }
+
   // The same rows as CSV: the contributor's name is text, the numbers are numbers.
   const csv = batch('stage.csv', text);
   assert.equal(csv.status, 0, csv.stderr);
