@@ -36,7 +36,8 @@ Steps and what they write:
   distortion  hd2_closed, hd3_closed, hd2_ratio, hd3_ratio
   eseries     standard_value, standard_error
   pair        r1, r2, pair_achieved, pair_error
-  design      design_cf, design_cf_pm_deg, design_riso, design_riso_pm_deg
+  design      design_cf, design_cf_pm_deg, design_cf_at_range_end, design_riso,
+              design_riso_pm_deg, design_riso_at_range_end
 Values are read as loopwright reads them everywhere: 4700, 4.7k, 4k7, 10m, 1e-3.
 Writes "line" (the record's line in the input), the input columns, the results and
 an "error" column naming the problem of a row that could not be computed; every row

@@ -15,7 +15,7 @@
 //! | `distortion` | `a`, `beta`, `hd2`, `hd3`, `amplitude` | HD2 and HD3 with feedback and their ratios |
 //! | `eseries` | `series`, `resistor` | nearest standard value and its error |
 //! | `pair` | `network`, `series`, `pair_target`, `total_min`, `total_max` | best resistor pair |
-//! | `design` | a stage with `rf` or `cl`, `target_pm_deg` | Cf and Riso for the phase margin |
+//! | `design` | a stage with `rf` or `cl`, `target_pm_deg` | Cf and Riso for the phase margin, whether each is at its range's end |
 //!
 //! A stage is a `stage` column holding a stage document (`docs/stage.md`), or a
 //! `kind` column with the amplifier figures and parts as columns.
@@ -436,8 +436,10 @@ impl Step {
             Step::Design => &[
                 "design_cf",
                 "design_cf_pm_deg",
+                "design_cf_at_range_end",
                 "design_riso",
                 "design_riso_pm_deg",
+                "design_riso_at_range_end",
             ],
         }
     }
@@ -684,7 +686,9 @@ fn resistor_pair(v: &Values) -> Result<Vec<Option<Cell>>> {
 /// ([`crate::stage::design::feedback_capacitor_for_margin`]) when the stage has
 /// Rf, and the smallest Riso for its load capacitance
 /// ([`crate::stage::design::isolation_resistor_for_margin`]) when it has Cl; each
-/// with the phase margin it gives.
+/// with the phase margin it gives and 1 when the answer is an end of the searched
+/// range (1 aF … 100 nF, 1 mΩ … 100 kΩ; at the lower end the part is not needed
+/// for the margin), else 0.
 fn design(v: &Values) -> Result<Vec<Option<Cell>>> {
     use crate::stage::design::{feedback_capacitor_for_margin, isolation_resistor_for_margin};
     let stage = stage_of(v)?;
@@ -709,11 +713,14 @@ fn design(v: &Values) -> Result<Vec<Option<Cell>>> {
         Some(cl) => Some(isolation_resistor_for_margin(&stage, cl, pm).map_err(named)?),
         None => None,
     };
+    let end = |d: &crate::stage::design::Design| Cell::Number(f64::from(u8::from(d.at_range_end)));
     Ok(alloc::vec![
         cf.as_ref().map(|d| Cell::Number(d.value)),
         cf.as_ref().map(|d| Cell::Number(d.phase_margin_deg)),
+        cf.as_ref().map(end),
         riso.as_ref().map(|d| Cell::Number(d.value)),
         riso.as_ref().map(|d| Cell::Number(d.phase_margin_deg)),
+        riso.as_ref().map(end),
     ])
 }
 

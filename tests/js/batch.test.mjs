@@ -454,8 +454,10 @@ test('noise, design and loop rows of a stage give what the JS API gives', async 
     const cf = lw.stageDesign({ stage: STAGE, part: 'cf', targetPhaseMarginDeg: pm });
     assert.equal(row.design_cf, cf.value);
     assert.equal(row.design_cf_pm_deg, cf.phaseMarginDeg);
+    assert.equal(row.design_cf_at_range_end, cf.atRangeEnd ? 1 : 0);
     const riso = lw.stageDesign({ stage: STAGE, part: 'riso', targetPhaseMarginDeg: pm });
     assert.equal(row.design_riso, riso.value);
+    assert.equal(row.design_riso_at_range_end, riso.atRangeEnd ? 1 : 0);
     assert.ok(row.design_riso_pm_deg >= pm - 0.01, `riso margin ${row.design_riso_pm_deg}`);
     // The loop step runs too (a stage column): its margin is the stage's own.
     assert.equal(typeof row.phase_margin_deg, 'number');
@@ -472,6 +474,30 @@ test('noise, design and loop rows of a stage give what the JS API gives', async 
   const [same] = objectsOf(batch('columns.csv', columns, '--format', 'jsonl'));
   for (const key of ['noise_density', 'noise_rms', 'snr_db', 'largest_source', 'design_cf']) {
     assert.equal(same[key], rows[0][key], key);
+  }
+
+  // A stage with no output resistance meets 60° with any Cf and any Riso: the answer
+  // is the lower end of the searched ranges (1 aF, 1 mΩ; src/stage/design.rs), flagged.
+  const [free] = objectsOf(
+    batch(
+      'free.csv',
+      'kind,a0,gbw_hz,rf,rg,rl,cl,target_pm_deg\nnon-inverting,1e5,5M,1k,1k,10k,10n,60\n',
+      '--format',
+      'jsonl',
+    ),
+  );
+  const freeStage = {
+    format: 'loopwright-stage',
+    version: 1,
+    kind: 'non-inverting',
+    amplifier: { a0: 1e5, gbwHz: '5M' },
+    parts: { rf: '1k', rg: '1k', rl: '10k', cl: '10n' },
+  };
+  for (const part of ['cf', 'riso']) {
+    const d = lw.stageDesign({ stage: freeStage, part, targetPhaseMarginDeg: 60 });
+    assert.equal(free[`design_${part}`], d.value, part);
+    assert.equal(d.atRangeEnd, true, part);
+    assert.equal(free[`design_${part}_at_range_end`], 1, part);
   }
 
   // The same rows as CSV: the contributor's name is text, the numbers are numbers.
