@@ -61,13 +61,15 @@ export const circuitNoise = call(glue.circuitNoise, [['', options]]);
 export const circuitNoiseIntegral = call(glue.circuitNoiseIntegral, [['', options]]);
 
 /**
- * The batch tool's reader and writer (src/batch): CSV chunks in, result CSV out.
- * `compute` is a string or undefined; each chunk a Uint8Array of at most 16 MiB.
+ * The batch tool's reader and writer (src/batch): CSV chunks in, result CSV or
+ * JSON lines out. `compute` is a string or undefined; `format` is `'csv'`
+ * (default) or `'jsonl'`; each chunk a Uint8Array of at most 16 MiB.
  */
 export class BatchRun extends glue.BatchRun {
-  constructor(compute) {
+  constructor(compute, format) {
     if (compute !== undefined && compute !== null) string(compute, 'compute');
-    super(compute ?? undefined);
+    if (format !== undefined && format !== null) string(format, 'format');
+    super(compute ?? undefined, format ?? undefined);
   }
   feed(chunk) {
     if (!(chunk instanceof Uint8Array)) {

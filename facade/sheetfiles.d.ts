@@ -14,3 +14,10 @@ export function importSheetFile(
   bytes: Uint8Array | ArrayBuffer,
   format: 'ods' | 'xlsx' | 'csv' | 'tsv',
 ): import('./loopwright_glue.js').ImportedSheet;
+/** A CSV text (the batch tool's output) as a `.ods` or `.xlsx` workbook (sheet `Results`). */
+export function tableFile(
+  csvText: string,
+  format: 'ods' | 'xlsx',
+  title?: string,
+  date?: string,
+): Uint8Array;

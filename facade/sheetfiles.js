@@ -36,3 +36,23 @@ export function importSheetFile(bytes, format) {
     throw refusal('too_large', 'bytes', `too large; the limit is ${MAX_FILE_BYTES} bytes`);
   return glue.importSheetFile(copy, string(format, 'format'));
 }
+
+/**
+ * A CSV text (as `loopwright-batch` writes it) as a `.ods` or `.xlsx` workbook: a
+ * Uint8Array. The records go on the sheet `Results`, plain numbers as numbers,
+ * text that a spreadsheet would run as a formula with an apostrophe in front; the
+ * first sheet names `title` and `date` (default: now, ISO 8601).
+ */
+export function tableFile(
+  csvText,
+  format,
+  title = 'loopwright table',
+  date = new Date().toISOString(),
+) {
+  return glue.tableFile(
+    string(csvText, 'csvText'),
+    string(format, 'format'),
+    string(title, 'title'),
+    string(date, 'date'),
+  );
+}

@@ -7,6 +7,7 @@
 
 import { readFileSync, writeFileSync, mkdirSync } from 'node:fs';
 import { createHash } from 'node:crypto';
+import { gzipSync } from 'node:zlib';
 import { createRequire } from 'node:module';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -16,6 +17,12 @@ const require = createRequire(join(root, 'tests', 'js', 'package.json'));
 const esbuild = require('esbuild');
 
 const wasm = readFileSync(join(root, 'www', 'pkg', 'loopwright_bg.wasm'));
+// The spreadsheet-file module (.ods/.xlsx export and import), inlined as well so that
+// the worksheet's file buttons work from file://: gzipped, base64, in a data block
+// (<script type="application/octet-stream">, never run, so outside the CSP and
+// outside the script the page parses at start), decoded on the first use only.
+const sheetfilesWasm = readFileSync(join(root, 'www', 'pkg', 'sheetfiles', 'loopwright_bg.wasm'));
+const sheetfilesGz = gzipSync(sheetfilesWasm, { level: 9 });
 
 const inlineWasm = {
   name: 'inline-wasm',
@@ -26,11 +33,20 @@ const inlineWasm = {
     }));
     build.onLoad({ filter: /.*/, namespace: 'inline-wasm' }, () => ({
       contents: `const WASM_BASE64 = ${JSON.stringify(wasm.toString('base64'))};
-export function wasmSource() {
-  const text = atob(WASM_BASE64);
+function decode(base64) {
+  const text = atob(base64);
   const bytes = new Uint8Array(text.length);
   for (let i = 0; i < text.length; i++) bytes[i] = text.charCodeAt(i);
   return bytes;
+}
+export function wasmSource() {
+  return decode(WASM_BASE64);
+}
+export async function sheetfilesSource() {
+  const block = document.getElementById('loopwright-sheetfiles-wasm');
+  const gz = new Blob([decode(block.textContent.trim())]);
+  const wasm = gz.stream().pipeThrough(new DecompressionStream('gzip'));
+  return new Uint8Array(await new Response(wasm).arrayBuffer());
 }`,
       loader: 'js',
     }));
@@ -67,6 +83,10 @@ replaceOnce(
   '<script type="module" src="js/main.js"></script>',
   `<script type="module">${script}</script>`,
 );
+replaceOnce(
+  '</body>',
+  `<script type="application/octet-stream" id="loopwright-sheetfiles-wasm">${sheetfilesGz.toString('base64')}</script>\n</body>`,
+);
 html = html.replace(
   /<meta http-equiv="Content-Security-Policy" content="[^"]*">/,
   () =>
@@ -76,5 +96,5 @@ html = html.replace(
 mkdirSync(join(root, 'dist'), { recursive: true });
 writeFileSync(join(root, 'dist', 'loopwright.html'), html);
 console.error(
-  `build-single: dist/loopwright.html ${Buffer.byteLength(html)} bytes (wasm ${wasm.length} bytes inlined)`,
+  `build-single: dist/loopwright.html ${Buffer.byteLength(html)} bytes (wasm ${wasm.length} bytes inlined, the spreadsheet-file wasm ${sheetfilesWasm.length} gzipped to ${sheetfilesGz.length})`,
 );

@@ -1,14 +1,20 @@
 //! The batch evaluation of design rows behind `loopwright-batch`: a CSV file in,
-//! streamed in chunks of any size, and a CSV file out, one output row per input
-//! record.
+//! streamed in chunks of any size, and a CSV file or JSON lines out, one output
+//! row per input record.
 //!
 //! The input is read by [`crate::csv`] (RFC 4180, strict), its values by
-//! [`crate::notation::parse_value`], and every number is computed by the feedback
-//! area ([`steps`]); the output is written by [`crate::csv`], so text that a
-//! spreadsheet program would run as a formula gets an apostrophe in front.
+//! [`crate::notation::parse_value`], and every number is computed by the core's
+//! areas ([`steps`]: feedback, pole-list loops, stage loops, noise, distortion,
+//! network, stage design); the CSV output is written by [`crate::csv`], so text
+//! that a spreadsheet program would run as a formula gets an apostrophe in front
+//! (numbers, `-3` among them, stay numbers). A workbook is made from the CSV
+//! output by the spreadsheet-file module (`crate::sheet::files`).
 //!
-//! Output: `line`, the input columns as written, the result columns of the chosen
-//! steps, `error`. `line` is the physical line (from 1, the header being line 1)
+//! CSV output: `line`, the input columns as written, the result columns of the
+//! chosen steps, `error`. JSON lines ([`Format::JsonLines`], RFC 8259 objects one
+//! a line): `{"line": 3, "input": {column: text, …}, result: number or text or
+//! null, …, "error": null or text}`; `input` is `null` when the record's fields
+//! do not match the header. `line` is the physical line (from 1, the header being line 1)
 //! where the record starts, so blank lines and quoted line breaks never shift it.
 //! A record that breaks RFC 4180, has another number of fields than the header, or
 //! holds a value the core refuses, gets its reason in `error` (`code param:
@@ -21,11 +27,39 @@
 pub mod steps;
 
 use crate::csv::{self, BlankLines, Record};
+use crate::json::JsonWriter;
 use alloc::format;
 use alloc::string::String;
 use alloc::vec::Vec;
 use core::fmt;
-pub use steps::{Column, Step, Values, STEP_NAMES};
+pub use steps::{Cell, Column, Step, Values, STEP_NAMES};
+
+/// What a run writes.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
+pub enum Format {
+    /// CSV (RFC 4180, CRLF line ends) with a header row.
+    #[default]
+    Csv,
+    /// One JSON object a line (LF line ends), no header.
+    JsonLines,
+}
+
+impl Format {
+    /// The format a name means: `csv` or `jsonl`.
+    ///
+    /// # Errors
+    /// [`crate::Error::UnknownName`] on `format`.
+    pub fn from_name(name: &str) -> crate::Result<Format> {
+        match name.trim() {
+            "csv" => Ok(Format::Csv),
+            "jsonl" => Ok(Format::JsonLines),
+            _ => Err(crate::Error::UnknownName {
+                param: "format",
+                expected: "csv, jsonl",
+            }),
+        }
+    }
+}
 
 /// Rows read, written with results, and reported with an error.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -66,6 +100,7 @@ fn header_error<T>(message: String) -> Result<T, FileError> {
 /// The header as read: the columns by position and the steps to compute.
 #[derive(Debug, Clone)]
 struct Header {
+    names: Vec<String>,
     columns: Vec<Option<Column>>,
     steps: Vec<Step>,
     result_width: usize,
@@ -90,6 +125,7 @@ pub struct BatchRun {
     reader: csv::Reader,
     records: Vec<Record>,
     compute: Option<Vec<Step>>,
+    format: Format,
     header: Option<Header>,
     counts: Counts,
 }
@@ -101,6 +137,14 @@ impl BatchRun {
     /// # Errors
     /// [`crate::Error::UnknownName`] on `compute` for an unknown step.
     pub fn new(compute: Option<&[&str]>) -> crate::Result<BatchRun> {
+        BatchRun::with_format(compute, Format::Csv)
+    }
+
+    /// As [`BatchRun::new`], writing `format`.
+    ///
+    /// # Errors
+    /// As [`BatchRun::new`].
+    pub fn with_format(compute: Option<&[&str]>, format: Format) -> crate::Result<BatchRun> {
         let compute = match compute {
             Some(names) => Some(
                 names
@@ -114,6 +158,7 @@ impl BatchRun {
             reader: csv::Reader::new(b',', BlankLines::Skip),
             records: Vec::new(),
             compute,
+            format,
             header: None,
             counts: Counts::default(),
         })
@@ -155,7 +200,7 @@ impl BatchRun {
             match &self.header {
                 None => self.header = Some(self.read_header(record, &mut out)?),
                 Some(header) => {
-                    let ok = write_row(header, record, &mut out);
+                    let ok = write_row(header, record, self.format, &mut out);
                     self.counts.rows_in += 1;
                     if ok {
                         self.counts.rows_written += 1;
@@ -218,14 +263,6 @@ impl BatchRun {
                 .filter(|c| !has(c))
                 .map(|c| c.name())
                 .collect();
-            if *step == Step::Loop && !step.has_inputs(&columns) {
-                return Err(FileError {
-                    param: "compute",
-                    message: String::from(
-                        "the step loop needs a stage column (a stage document) or a kind column with the amplifier figures and parts",
-                    ),
-                });
-            }
             if !missing.is_empty() {
                 return Err(FileError {
                     param: "compute",
@@ -236,19 +273,31 @@ impl BatchRun {
                     ),
                 });
             }
+            if step.needs_stage() && !has(&Column::Stage) && !has(&Column::StageField("kind")) {
+                return Err(FileError {
+                    param: "compute",
+                    message: format!(
+                        "the step {} needs a stage column (a stage document) or a kind column with the amplifier figures and parts",
+                        step.name()
+                    ),
+                });
+            }
         }
-        out.push_str("line");
-        for name in &names {
-            out.push(',');
-            csv::write_text(out, name, ',');
+        if self.format == Format::Csv {
+            out.push_str("line");
+            for name in &names {
+                out.push(',');
+                csv::write_text(out, name, ',');
+            }
+            for column in steps.iter().flat_map(|s| s.columns()) {
+                out.push(',');
+                out.push_str(column);
+            }
+            out.push_str(",error\r\n");
         }
-        for column in steps.iter().flat_map(|s| s.columns()) {
-            out.push(',');
-            out.push_str(column);
-        }
-        out.push_str(",error\r\n");
         let result_width = steps.iter().map(|s| s.columns().len()).sum();
         Ok(Header {
+            names: names.iter().map(|n| String::from(*n)).collect(),
             columns,
             steps,
             result_width,
@@ -258,7 +307,7 @@ impl BatchRun {
 
 /// Read one record's values and run the steps; the results so far and the first
 /// error.
-fn evaluate(header: &Header, record: &Record, results: &mut [Option<f64>]) -> Option<String> {
+fn evaluate(header: &Header, record: &Record, results: &mut [Option<Cell>]) -> Option<String> {
     if let Some(p) = record.problem {
         return Some(format!("malformed_record line {}: {p}", record.line));
     }
@@ -291,28 +340,68 @@ fn evaluate(header: &Header, record: &Record, results: &mut [Option<f64>]) -> Op
 }
 
 /// Write one output row; whether it has no error.
-fn write_row(header: &Header, record: &Record, out: &mut String) -> bool {
+fn write_row(header: &Header, record: &Record, format: Format, out: &mut String) -> bool {
     let mut results = alloc::vec![None; header.result_width];
     let error = evaluate(header, record, &mut results);
-    out.push_str(&format!("{}", record.line));
     let echo = record.fields.len() == header.columns.len();
-    for i in 0..header.columns.len() {
-        out.push(',');
-        if echo {
-            csv::write_text(out, &record.fields[i], ',');
+    match format {
+        Format::Csv => {
+            out.push_str(&format!("{}", record.line));
+            for i in 0..header.columns.len() {
+                out.push(',');
+                if echo {
+                    csv::write_text(out, &record.fields[i], ',');
+                }
+            }
+            for r in &results {
+                out.push(',');
+                match r {
+                    Some(Cell::Number(x)) => csv::write_number(out, *x),
+                    Some(Cell::Text(t)) => csv::write_text(out, t, ','),
+                    None => {}
+                }
+            }
+            out.push(',');
+            if let Some(e) = &error {
+                csv::write_text(out, e, ',');
+            }
+            out.push_str("\r\n");
+        }
+        Format::JsonLines => {
+            let mut w = JsonWriter::new();
+            w.begin_object();
+            w.key("line");
+            w.whole(record.line);
+            w.key("input");
+            if echo {
+                w.begin_object();
+                for (name, field) in header.names.iter().zip(&record.fields) {
+                    w.key(name);
+                    w.string(field);
+                }
+                w.end_object();
+            } else {
+                w.null();
+            }
+            let names = header.steps.iter().flat_map(|s| s.columns());
+            for (name, r) in names.zip(&results) {
+                w.key(name);
+                match r {
+                    Some(Cell::Number(x)) => w.number(*x),
+                    Some(Cell::Text(t)) => w.string(t),
+                    None => w.null(),
+                }
+            }
+            w.key("error");
+            match &error {
+                Some(e) => w.string(e),
+                None => w.null(),
+            }
+            w.end_object();
+            out.push_str(&w.finish());
+            out.push('\n');
         }
     }
-    for r in &results {
-        out.push(',');
-        if let Some(x) = r {
-            csv::write_number(out, *x);
-        }
-    }
-    out.push(',');
-    if let Some(e) = &error {
-        csv::write_text(out, e, ',');
-    }
-    out.push_str("\r\n");
     error.is_none()
 }
 
@@ -347,9 +436,23 @@ mod tests {
         let (e, _) = run("\n\n", None);
         assert!(e.unwrap_err().message.contains("no header"));
         assert_eq!(
-            BatchRun::new(Some(&["noise"])).unwrap_err().param(),
+            BatchRun::new(Some(&["fft"])).unwrap_err().param(),
             "compute"
         );
+        let (e, _) = run("a,beta\n", Some(&["noise"]));
+        let e = e.unwrap_err();
+        assert_eq!(e.param, "compute");
+        assert!(
+            e.message
+                .contains("the step noise needs the column(s) noise_at_hz, f_low_hz, f_high_hz"),
+            "{e}"
+        );
+        let (e, _) = run("noise_at_hz,f_low_hz,f_high_hz\n", Some(&["noise"]));
+        assert!(e
+            .unwrap_err()
+            .message
+            .contains("the step noise needs a stage column"));
+        assert_eq!(Format::from_name("xml").unwrap_err().param(), "format");
     }
 
     #[test]
@@ -381,6 +484,46 @@ mod tests {
                 rows_reported: 2
             }
         );
+    }
+
+    #[test]
+    fn json_lines_hold_the_same_row() {
+        let mut r = BatchRun::with_format(Some(&["stage"]), Format::JsonLines).unwrap();
+        let mut out = r.feed(b"a,beta,note\n1e5,0.01,=x\n1,\n").unwrap();
+        out += &r.finish().unwrap();
+        let lines: Vec<&str> = out.lines().collect();
+        assert_eq!(lines.len(), 2, "no header line: {out}");
+        let row = crate::json::parse(lines[0]).unwrap();
+        let get = |k: &str| {
+            row.as_object()
+                .unwrap()
+                .iter()
+                .find(|(n, _)| n == k)
+                .unwrap()
+                .1
+                .clone()
+        };
+        assert_eq!(get("line").as_f64(), Some(2.0));
+        // JSON holds text as text: nothing to neutralise, the input kept as written.
+        let input = get("input");
+        assert_eq!(input.as_object().unwrap()[2].1.as_str(), Some("=x"));
+        // Af = A/(1 + Aβ) = 10⁵/1001 (Sedra & Smith, 7th ed., section 10.1, from memory).
+        assert!((get("closed_loop_gain").as_f64().unwrap() - 1e5 / 1001.0).abs() < 1e-12);
+        assert_eq!(get("error"), crate::json::Json::Null);
+        let bad = crate::json::parse(lines[1]).unwrap();
+        let members = bad.as_object().unwrap();
+        assert_eq!(
+            members[1].1,
+            crate::json::Json::Null,
+            "input of a short row"
+        );
+        assert!(members
+            .last()
+            .unwrap()
+            .1
+            .as_str()
+            .unwrap()
+            .starts_with("field_count line 3"));
     }
 
     #[test]

@@ -1,21 +1,41 @@
 //! What the batch tool computes for one design row: the input columns it knows, the
-//! steps (stage, impedance, inverse, spread, loop), and each step's result columns.
-//! Every number comes from the feedback area of the core, or for the loop step from
-//! the stage area; this file only routes values.
+//! steps, and each step's result columns. Every number comes from the core's own
+//! areas (feedback, frequency and stability, stage, noise, distortion, network);
+//! this file only routes values.
+//!
+//! | step | needs | writes |
+//! |---|---|---|
+//! | `stage` | `a`, `beta` | closed-loop gain, loop gain, amount of feedback, sensitivity |
+//! | `impedance` | `a`, `beta`, `zi`, `zo` | input and output resistance with feedback |
+//! | `inverse` | `a`, `target_gain` (`gain_error`) | β for the target, least open-loop gain |
+//! | `spread` | `beta`, `a_min`, `a_max` (`a`) | closed-loop gain spread |
+//! | `freq` | `a`, `beta`, `a_poles_hz` | margins, verdict, bandwidth, peaking of a pole-list loop |
+//! | `loop` | a stage | margins, verdict and DC gain of the stage's loop |
+//! | `noise` | a stage, `noise_at_hz`, `f_low_hz`, `f_high_hz` (`signal_rms`, `temperature_k`) | density, band rms, SNR, largest contributor |
+//! | `distortion` | `a`, `beta`, `hd2`, `hd3`, `amplitude` | HD2 and HD3 with feedback and their ratios |
+//! | `eseries` | `series`, `resistor` | nearest standard value and its error |
+//! | `pair` | `network`, `series`, `pair_target`, `total_min`, `total_max` | best resistor pair |
+//! | `design` | a stage with `rf` or `cl`, `target_pm_deg` | Cf and Riso for the phase margin, whether each is at its range's end |
+//!
+//! A stage is a `stage` column holding a stage document (`docs/stage.md`), or a
+//! `kind` column with the amplifier figures and parts as columns.
 
 use crate::check;
 use crate::error::{Error, Result};
 use crate::feedback::{
     beta_for_gain, gain_spread, min_open_loop_gain, resistances_with_feedback, summarize, Topology,
 };
+use alloc::string::String;
+use alloc::vec::Vec;
 
 /// The input columns the batch tool reads (header names, compared without case
-/// and surrounding blanks); every one but `topology` holds a value.
+/// and surrounding blanks).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
 pub enum Column {
     /// Topology name (`series-shunt`, `voltage-series`, …); `series-shunt` when empty.
     Topology,
-    /// Open-loop gain A.
+    /// Open-loop gain A (for `distortion`, the small-signal gain a1; for `freq`,
+    /// the gain at DC).
     A,
     /// Feedback factor β.
     Beta,
@@ -31,7 +51,41 @@ pub enum Column {
     AMin,
     /// Highest open-loop gain.
     AMax,
-    /// A stage document (JSON text, `docs/stage.md`) for the loop step.
+    /// Open-loop second-harmonic distortion at `amplitude`, a fraction with the
+    /// sign of a2/a1.
+    Hd2,
+    /// Open-loop third-harmonic distortion at `amplitude`, a fraction with the
+    /// sign of a3/a1.
+    Hd3,
+    /// Peak output amplitude at which `hd2`, `hd3` are quoted and computed.
+    Amplitude,
+    /// Frequency of the noise density, Hz.
+    NoiseAt,
+    /// Lower edge of the noise band, Hz.
+    FLow,
+    /// Upper edge of the noise band, Hz.
+    FHigh,
+    /// rms signal at the output for the signal-to-noise ratio.
+    SignalRms,
+    /// Temperature of every resistor, K (300 when empty).
+    Temperature,
+    /// Phase margin asked of `design`, degrees.
+    TargetPm,
+    /// A resistance to round to its series, Ω.
+    Resistor,
+    /// Gain (non-inverting, inverting) or ratio (divider) asked of `pair`.
+    PairTarget,
+    /// Least R1 + R2 of a pair, Ω.
+    TotalMin,
+    /// Largest R1 + R2 of a pair, Ω.
+    TotalMax,
+    /// The pair's network: `non-inverting`, `inverting`, `divider`.
+    Network,
+    /// The E series (`E24`, `E96`, …).
+    Series,
+    /// The amplifier's poles for `freq`, Hz, separated by blanks.
+    APoles,
+    /// A stage document (JSON text, `docs/stage.md`).
     Stage,
     /// A field of a stage described in columns (`kind`, `a0`, `gbw_hz`, `rf`, …;
     /// [`crate::stage::document_pairs`]): the document field it stands for.
@@ -39,7 +93,7 @@ pub enum Column {
 }
 
 /// The value columns, in the order of [`Values`].
-const VALUE_COLUMNS: [Column; 8] = [
+const VALUE_COLUMNS: [Column; 22] = [
     Column::A,
     Column::Beta,
     Column::TargetGain,
@@ -48,6 +102,29 @@ const VALUE_COLUMNS: [Column; 8] = [
     Column::Zo,
     Column::AMin,
     Column::AMax,
+    Column::Hd2,
+    Column::Hd3,
+    Column::Amplitude,
+    Column::NoiseAt,
+    Column::FLow,
+    Column::FHigh,
+    Column::SignalRms,
+    Column::Temperature,
+    Column::TargetPm,
+    Column::Resistor,
+    Column::PairTarget,
+    Column::TotalMin,
+    Column::TotalMax,
+    // Read as a list; kept here so that it has a name and a place.
+    Column::APoles,
+];
+
+/// The columns that hold names or documents rather than one value.
+const TEXT_COLUMNS: [Column; 4] = [
+    Column::Topology,
+    Column::Network,
+    Column::Series,
+    Column::Stage,
 ];
 
 impl Column {
@@ -63,6 +140,22 @@ impl Column {
             Column::Zo => "zo",
             Column::AMin => "a_min",
             Column::AMax => "a_max",
+            Column::Hd2 => "hd2",
+            Column::Hd3 => "hd3",
+            Column::Amplitude => "amplitude",
+            Column::NoiseAt => "noise_at_hz",
+            Column::FLow => "f_low_hz",
+            Column::FHigh => "f_high_hz",
+            Column::SignalRms => "signal_rms",
+            Column::Temperature => "temperature_k",
+            Column::TargetPm => "target_pm_deg",
+            Column::Resistor => "resistor",
+            Column::PairTarget => "pair_target",
+            Column::TotalMin => "total_min",
+            Column::TotalMax => "total_max",
+            Column::Network => "network",
+            Column::Series => "series",
+            Column::APoles => "a_poles_hz",
             Column::Stage => "stage",
             Column::StageField(f) => f,
         }
@@ -71,35 +164,42 @@ impl Column {
     /// The column a header name means, if the tool knows it.
     pub fn from_header(name: &str) -> Option<Column> {
         let name = name.trim();
-        core::iter::once(Column::Topology)
+        TEXT_COLUMNS
+            .into_iter()
             .chain(VALUE_COLUMNS)
-            .chain(core::iter::once(Column::Stage))
             .find(|c| c.name().eq_ignore_ascii_case(name))
             .or_else(|| crate::stage::document_pairs::field_of(name).map(Column::StageField))
     }
 
     fn value_index(self) -> Option<usize> {
+        if self == Column::APoles {
+            return None;
+        }
         VALUE_COLUMNS.iter().position(|&c| c == self)
     }
 }
 
-/// One row's inputs: the topology and each value column that is present and
-/// not empty.
+/// One row's inputs: the names, each value column that is present and not
+/// empty, and the stage.
 #[derive(Debug, Clone, PartialEq, Default)]
 pub struct Values {
     /// The topology (series-shunt when the column is missing or empty).
     pub topology: Option<Topology>,
-    values: [Option<f64>; 8],
+    values: [Option<f64>; 22],
+    network: Option<crate::network::Network>,
+    series: Option<crate::network::Series>,
+    a_poles: Option<Vec<f64>>,
     /// The stage document of the row, as written.
-    stage: Option<alloc::string::String>,
+    stage: Option<String>,
     /// The stage fields of the row, as written.
-    stage_fields: alloc::vec::Vec<(&'static str, alloc::string::String)>,
+    stage_fields: Vec<(&'static str, String)>,
 }
 
 impl Values {
-    /// Read one field of `column`: the topology by name, values by
+    /// Read one field of `column`: names by their readers, values by
     /// [`crate::notation::parse_value`] (SI prefixes and IEC 60062 codes; nothing
-    /// else is guessed, so `0x2710` is an error). An empty field leaves it unset.
+    /// else is guessed, so `0x2710` is an error), `a_poles_hz` as values separated
+    /// by blanks. An empty field leaves it unset.
     ///
     /// # Errors
     /// The reader's error, named after the column.
@@ -108,16 +208,25 @@ impl Values {
         if text.is_empty() {
             return Ok(());
         }
-        match column.value_index() {
-            None if column == Column::Stage => self.stage = Some(text.into()),
-            None => match column {
-                Column::StageField(f) => self.stage_fields.push((f, text.into())),
-                _ => self.topology = Some(text.parse()?),
-            },
-            Some(i) => {
-                let x =
-                    crate::notation::parse_value(text).map_err(|e| e.with_param(column.name()))?;
-                self.values[i] = Some(x);
+        let value =
+            |t: &str| crate::notation::parse_value(t).map_err(|e| e.with_param(column.name()));
+        match column {
+            Column::Stage => self.stage = Some(text.into()),
+            Column::StageField(f) => self.stage_fields.push((f, text.into())),
+            Column::Topology => self.topology = Some(text.parse()?),
+            Column::Network => self.network = Some(text.parse()?),
+            Column::Series => self.series = Some(text.parse()?),
+            Column::APoles => {
+                self.a_poles = Some(
+                    text.split_whitespace()
+                        .map(value)
+                        .collect::<Result<Vec<f64>>>()?,
+                )
+            }
+            _ => {
+                if let Some(i) = column.value_index() {
+                    self.values[i] = Some(value(text)?);
+                }
             }
         }
         Ok(())
@@ -128,11 +237,32 @@ impl Values {
     }
 
     fn need(&self, column: Column) -> Result<f64> {
-        self.get(column).ok_or(Error::OutOfDomain {
-            param: column.name(),
-            requirement: "is empty in this row, and a step chosen for it needs it",
-        })
+        self.get(column).ok_or_else(|| empty(column))
     }
+}
+
+fn empty(column: Column) -> Error {
+    Error::OutOfDomain {
+        param: column.name(),
+        requirement: "is empty in this row, and a step chosen for it needs it",
+    }
+}
+
+/// One result cell: a number, or a name (the largest noise contributor).
+#[derive(Debug, Clone, PartialEq)]
+pub enum Cell {
+    /// A computed number (finite: the core checks its results).
+    Number(f64),
+    /// A name the core gave.
+    Text(String),
+}
+
+fn num(x: f64) -> Option<Cell> {
+    Some(Cell::Number(x))
+}
+
+fn opt(x: Option<f64>) -> Option<Cell> {
+    x.map(Cell::Number)
 }
 
 /// What the tool can compute.
@@ -146,23 +276,48 @@ pub enum Step {
     Inverse,
     /// Closed-loop gain spread over the open-loop gain range.
     Spread,
+    /// A loop given as a pole list (`a`, `a_poles_hz`) with a constant β: phase
+    /// and gain margins, crossover, the verdict from the closed-loop poles, the
+    /// closed-loop −3 dB bandwidth and peaking.
+    Freq,
     /// The loop of a stage (a `stage` document column, or a `kind` column with
     /// the amplifier figures and parts as columns): phase margin, crossover, gain
     /// margin, the closed-loop verdict and the DC closed-loop gain.
     Loop,
+    /// Noise of a stage through its whole circuit (every resistor and the
+    /// amplifier's densities): output and input-referred density at
+    /// `noise_at_hz`, rms over the band, SNR, and the largest contributor.
+    Noise,
+    /// Harmonic distortion with feedback from the open-loop HD2, HD3 at the same
+    /// output amplitude (leading order of the power series).
+    Distortion,
+    /// The nearest standard value of a resistance in an E series.
+    Eseries,
+    /// The best resistor pair of a series for a gain or ratio.
+    Pair,
+    /// Feedback capacitor (with `rf`) and isolation resistor (with `cl`) for a
+    /// phase margin.
+    Design,
 }
 
 /// The steps' names, for messages.
-pub const STEP_NAMES: &str = "stage, impedance, inverse, spread, loop";
+pub const STEP_NAMES: &str =
+    "stage, impedance, inverse, spread, freq, loop, noise, distortion, eseries, pair, design";
 
 impl Step {
     /// Every step, in output order.
-    pub const ALL: [Step; 5] = [
+    pub const ALL: [Step; 11] = [
         Step::Stage,
         Step::Impedance,
         Step::Inverse,
         Step::Spread,
+        Step::Freq,
         Step::Loop,
+        Step::Noise,
+        Step::Distortion,
+        Step::Eseries,
+        Step::Pair,
+        Step::Design,
     ];
 
     /// The name used by `--compute`.
@@ -172,7 +327,13 @@ impl Step {
             Step::Impedance => "impedance",
             Step::Inverse => "inverse",
             Step::Spread => "spread",
+            Step::Freq => "freq",
             Step::Loop => "loop",
+            Step::Noise => "noise",
+            Step::Distortion => "distortion",
+            Step::Eseries => "eseries",
+            Step::Pair => "pair",
+            Step::Design => "design",
         }
     }
 
@@ -190,25 +351,46 @@ impl Step {
             })
     }
 
-    /// The columns a file must have for this step.
+    /// The columns a file must have for this step (besides a stage, see
+    /// [`Step::needs_stage`]).
     pub const fn needs(self) -> &'static [Column] {
         match self {
             Step::Stage => &[Column::A, Column::Beta],
             Step::Impedance => &[Column::A, Column::Beta, Column::Zi, Column::Zo],
             Step::Inverse => &[Column::A, Column::TargetGain],
             Step::Spread => &[Column::Beta, Column::AMin, Column::AMax],
-            // A `stage` column or a `kind` column: checked by `has_inputs`.
+            Step::Freq => &[Column::A, Column::Beta, Column::APoles],
             Step::Loop => &[],
+            Step::Noise => &[Column::NoiseAt, Column::FLow, Column::FHigh],
+            Step::Distortion => &[
+                Column::A,
+                Column::Beta,
+                Column::Hd2,
+                Column::Hd3,
+                Column::Amplitude,
+            ],
+            Step::Eseries => &[Column::Series, Column::Resistor],
+            Step::Pair => &[
+                Column::Network,
+                Column::Series,
+                Column::PairTarget,
+                Column::TotalMin,
+                Column::TotalMax,
+            ],
+            Step::Design => &[Column::TargetPm],
         }
+    }
+
+    /// Whether the step works on a stage (a `stage` or a `kind` column).
+    pub const fn needs_stage(self) -> bool {
+        matches!(self, Step::Loop | Step::Noise | Step::Design)
     }
 
     /// Whether a header with these columns gives the step its inputs.
     pub fn has_inputs(self, columns: &[Option<Column>]) -> bool {
         let has = |c: Column| columns.contains(&Some(c));
-        match self {
-            Step::Loop => has(Column::Stage) || has(Column::StageField("kind")),
-            _ => self.needs().iter().all(|c| has(*c)),
-        }
+        let stage = has(Column::Stage) || has(Column::StageField("kind"));
+        (stage || !self.needs_stage()) && self.needs().iter().all(|c| has(*c))
     }
 
     /// The result columns it writes.
@@ -224,12 +406,40 @@ impl Step {
             Step::Impedance => &["input_impedance", "output_impedance"],
             Step::Inverse => &["beta_for_target", "min_open_loop_gain"],
             Step::Spread => &["spread_percent", "spread_ppm"],
+            Step::Freq => &[
+                "freq_phase_margin_deg",
+                "freq_crossover_hz",
+                "freq_gain_margin_db",
+                "freq_stable",
+                "freq_bandwidth_hz",
+                "freq_peaking_db",
+            ],
             Step::Loop => &[
                 "phase_margin_deg",
                 "crossover_hz",
                 "gain_margin_db",
                 "closed_loop_stable",
                 "dc_gain",
+            ],
+            Step::Noise => &[
+                "noise_density",
+                "noise_input_density",
+                "noise_rms",
+                "noise_input_rms",
+                "snr_db",
+                "largest_source",
+                "largest_share",
+            ],
+            Step::Distortion => &["hd2_closed", "hd3_closed", "hd2_ratio", "hd3_ratio"],
+            Step::Eseries => &["standard_value", "standard_error"],
+            Step::Pair => &["r1", "r2", "pair_achieved", "pair_error"],
+            Step::Design => &[
+                "design_cf",
+                "design_cf_pm_deg",
+                "design_cf_at_range_end",
+                "design_riso",
+                "design_riso_pm_deg",
+                "design_riso_at_range_end",
             ],
         }
     }
@@ -239,24 +449,24 @@ impl Step {
     ///
     /// # Errors
     /// An empty needed value, or the core function's error.
-    pub fn run(self, v: &Values, out: &mut [Option<f64>]) -> Result<()> {
+    pub fn run(self, v: &Values, out: &mut [Option<Cell>]) -> Result<()> {
         let topology = v.topology.unwrap_or(Topology::SeriesShunt);
-        let results: [Option<f64>; 5] = match self {
+        let results: Vec<Option<Cell>> = match self {
             Step::Stage => {
                 let s = summarize(topology, v.need(Column::A)?, v.need(Column::Beta)?)?;
-                [
-                    Some(s.closed_loop_gain),
-                    Some(s.loop_gain),
-                    Some(s.feedback_amount),
-                    Some(s.feedback_amount_db),
-                    Some(s.sensitivity),
+                alloc::vec![
+                    num(s.closed_loop_gain),
+                    num(s.loop_gain),
+                    num(s.feedback_amount),
+                    num(s.feedback_amount_db),
+                    num(s.sensitivity),
                 ]
             }
             Step::Impedance => {
                 let (a, beta) = (v.need(Column::A)?, v.need(Column::Beta)?);
                 let (zi, zo) = (v.need(Column::Zi)?, v.need(Column::Zo)?);
                 let (rif, rof) = resistances_with_feedback(topology, zi, zo, a, beta)?;
-                [Some(rif), Some(rof), None, None, None]
+                alloc::vec![num(rif), num(rof)]
             }
             Step::Inverse => {
                 let target = v.need(Column::TargetGain)?;
@@ -265,7 +475,7 @@ impl Step {
                     Some(e) => Some(min_open_loop_gain(ideal_beta(target)?, e)?),
                     None => None,
                 };
-                [Some(beta), a_min, None, None, None]
+                alloc::vec![num(beta), opt(a_min)]
             }
             Step::Spread => {
                 let (a_min, a_max) = (v.need(Column::AMin)?, v.need(Column::AMax)?);
@@ -274,9 +484,23 @@ impl Step {
                     None => geometric_mean(a_min, a_max)?,
                 };
                 let s = gain_spread(v.need(Column::Beta)?, a_min, a_typ, a_max)?;
-                [Some(s.spread_percent), Some(s.spread_ppm), None, None, None]
+                alloc::vec![num(s.spread_percent), num(s.spread_ppm)]
             }
+            Step::Freq => pole_list_loop(v)?,
             Step::Loop => stage_loop(v)?,
+            Step::Noise => stage_noise(v)?,
+            Step::Distortion => distortion(v)?,
+            Step::Eseries => {
+                let series = v.series.ok_or_else(|| empty(Column::Series))?;
+                let r = v.need(Column::Resistor)?;
+                let r = check::positive("resistor", r)?;
+                let s =
+                    crate::network::standard_value(series, r, crate::network::Rounding::Nearest)
+                        .map_err(|e| e.with_param("resistor"))?;
+                alloc::vec![num(s), num(check::result("standard_error", s / r - 1.0)?)]
+            }
+            Step::Pair => resistor_pair(v)?,
+            Step::Design => design(v)?,
         };
         for (slot, r) in out.iter_mut().zip(results) {
             *slot = r;
@@ -285,33 +509,229 @@ impl Step {
     }
 }
 
+/// The stage of a row: from its document or from its fields.
+fn stage_of(v: &Values) -> Result<crate::stage::Stage> {
+    match (&v.stage, v.stage_fields.is_empty()) {
+        (Some(doc), true) => Ok(crate::stage::read_stage(doc)?),
+        (None, false) => Ok(crate::stage::document_pairs::stage_from_pairs(
+            v.stage_fields
+                .iter()
+                .map(|(f, t)| (*f, crate::json::Json::from(t.as_str()))),
+        )?),
+        (Some(_), false) => Err(Error::OutOfDomain {
+            param: "stage",
+            requirement: "give the stage as a document or as columns, not both in one row",
+        }),
+        (None, true) => Err(Error::OutOfDomain {
+            param: "stage",
+            requirement: "is empty in this row: give a stage document or kind and the figures",
+        }),
+    }
+}
+
+/// The `freq` step: A(s) = a / Π(1 + s/(2π·p)) over the `a_poles_hz`, β constant
+/// ([`crate::freq::FeedbackLoop::with_constant_beta`]); the margins
+/// ([`crate::freq::stability_margins`], signed by the closed-loop poles), the
+/// verdict (1 stable, 0 not), and for a stable loop the closed-loop −3 dB
+/// bandwidth and peaking ([`crate::freq::closed_loop_bandwidth`]).
+fn pole_list_loop(v: &Values) -> Result<Vec<Option<Cell>>> {
+    use crate::freq::{closed_loop_bandwidth, stability_margins, FeedbackLoop, TransferModel};
+    let poles = v.a_poles.as_deref().ok_or_else(|| empty(Column::APoles))?;
+    let mut a = TransferModel::constant(v.need(Column::A)?);
+    for &p in poles {
+        a = a.pole(p);
+    }
+    let l = FeedbackLoop::with_constant_beta(a, v.need(Column::Beta)?).map_err(|e| {
+        match e.param() {
+            "a.poles_hz" => e.with_param("a_poles_hz"),
+            "a.gain" => e.with_param("a"),
+            "beta.gain" => e.with_param("beta"),
+            _ => e,
+        }
+    })?;
+    let m = stability_margins(&l)?;
+    let stable = m.closed_loop == crate::freq::Verdict::Stable;
+    let (bandwidth, peaking) = if stable {
+        let b = closed_loop_bandwidth(&l)?;
+        (b.high_hz, Some(b.peaking_db))
+    } else {
+        (None, None)
+    };
+    Ok(alloc::vec![
+        opt(m.phase_margin_deg),
+        opt(m.crossover_hz),
+        opt(m.gain_margin_db),
+        num(f64::from(u8::from(stable))),
+        opt(bandwidth),
+        opt(peaking),
+    ])
+}
+
+/// The `noise` step: the stage's circuit ([`crate::stage::Stage::circuit`]) with
+/// its output (V(out), or the load current of a current-output stage), the
+/// signal source named for the input-referred figures, at `temperature_k` (300 K
+/// when empty). Density and input-referred density at `noise_at_hz`
+/// ([`crate::noise::circuit::noise_densities`]), rms and input-referred rms over
+/// [`f_low_hz`, `f_high_hz`] ([`crate::noise::circuit::band_noise`]), SNR =
+/// 20·log10(signal_rms / rms) when `signal_rms` is given, and the source with the
+/// largest rms over the band with its share of the total power.
+fn stage_noise(v: &Values) -> Result<Vec<Option<Cell>>> {
+    use crate::noise::circuit::{band_noise, noise_densities, NoiseOutput, NoiseSetup};
+    let stage = stage_of(v)?;
+    let sc = stage.circuit()?;
+    let output = match sc.output_current {
+        Some(e) => NoiseOutput::Current {
+            element: String::from(e),
+        },
+        None => NoiseOutput::node(sc.output),
+    };
+    let setup = NoiseSetup {
+        output,
+        temperature_k: v.get(Column::Temperature).unwrap_or(300.0),
+        input_source: Some(String::from(sc.source)),
+        amplifier: Some(String::from(sc.amplifier)),
+        current_noise: Vec::new(),
+    };
+    let named = |e: crate::circuit::CircuitError| -> Error {
+        match e.error.param() {
+            "temperature_k" => e.error.with_param("temperature_k"),
+            "frequencies_hz" => e.error.with_param("noise_at_hz"),
+            "band_hz" => e.error.with_param("f_low_hz"),
+            _ => e.error,
+        }
+    };
+    let f = v.need(Column::NoiseAt)?;
+    let d = noise_densities(&sc.circuit, &setup, &[f]).map_err(named)?;
+    let band = [v.need(Column::FLow)?, v.need(Column::FHigh)?];
+    let b = band_noise(&sc.circuit, &setup, band).map_err(named)?;
+    let snr = match v.get(Column::SignalRms) {
+        Some(s) => Some(b.snr_db(s)?),
+        None => None,
+    };
+    let largest = b.sources.iter().max_by(|x, y| x.rms.total_cmp(&y.rms));
+    Ok(alloc::vec![
+        opt(d.total.first().copied()),
+        opt(d.input_referred.first().copied()),
+        num(b.total_rms),
+        opt(b.input_referred_rms),
+        opt(snr),
+        largest.map(|s| Cell::Text(s.name.clone())),
+        largest.map(|s| Cell::Number(s.share)),
+    ])
+}
+
+/// The `distortion` step: the open-loop power series whose leading-order HD2,
+/// HD3 at the output amplitude are the row's
+/// ([`crate::distortion::series_from_distortion`]), closed by β
+/// ([`crate::distortion::feedback_distortion`]) and compared at the same output
+/// amplitude: HD2 and HD3 closed (fractions) and closed/open.
+fn distortion(v: &Values) -> Result<Vec<Option<Cell>>> {
+    use crate::distortion::{feedback_distortion, series_from_distortion, AmplitudeAt};
+    let amplitude = v.need(Column::Amplitude)?;
+    let open = series_from_distortion(
+        v.need(Column::A)?,
+        v.need(Column::Hd2)?,
+        v.need(Column::Hd3)?,
+        amplitude,
+        AmplitudeAt::Output,
+    )
+    .map_err(|e| {
+        if e.param() == "a1" {
+            e.with_param("a")
+        } else {
+            e
+        }
+    })?;
+    let f = feedback_distortion(&open, v.need(Column::Beta)?, amplitude, AmplitudeAt::Output)?;
+    Ok(alloc::vec![
+        num(f.closed.hd2),
+        num(f.closed.hd3),
+        opt(f.hd2_ratio),
+        opt(f.hd3_ratio),
+    ])
+}
+
+/// The `pair` step: the first candidate of [`crate::network::best_pairs`] (single
+/// resistors of the series, R1 + R2 within [`total_min`, `total_max`]): R1, R2,
+/// the gain or ratio they give and its error (achieved/target − 1).
+fn resistor_pair(v: &Values) -> Result<Vec<Option<Cell>>> {
+    use crate::network::{best_pairs, PairSpec};
+    let network = v.network.ok_or_else(|| empty(Column::Network))?;
+    let series = v.series.ok_or_else(|| empty(Column::Series))?;
+    let mut spec = PairSpec::new(
+        network,
+        v.need(Column::PairTarget)?,
+        series,
+        v.need(Column::TotalMin)?,
+        v.need(Column::TotalMax)?,
+    );
+    spec.count = 1;
+    let r = best_pairs(&spec).map_err(|e| match e.param() {
+        "target" => e.with_param("pair_target"),
+        _ => e,
+    })?;
+    let best = r.candidates.first().ok_or(Error::Unreachable {
+        param: "total_min",
+        reason: "no pair of the series fits between total_min and total_max",
+    })?;
+    Ok(alloc::vec![
+        num(best.r1),
+        num(best.r2.value),
+        num(best.achieved),
+        num(best.error),
+    ])
+}
+
+/// The `design` step: the smallest Cf across Rf that gives `target_pm_deg`
+/// ([`crate::stage::design::feedback_capacitor_for_margin`]) when the stage has
+/// Rf, and the smallest Riso for its load capacitance
+/// ([`crate::stage::design::isolation_resistor_for_margin`]) when it has Cl; each
+/// with the phase margin it gives and 1 when the answer is an end of the searched
+/// range (1 aF … 100 nF, 1 mΩ … 100 kΩ; at the lower end the part is not needed
+/// for the margin), else 0.
+fn design(v: &Values) -> Result<Vec<Option<Cell>>> {
+    use crate::stage::design::{feedback_capacitor_for_margin, isolation_resistor_for_margin};
+    let stage = stage_of(v)?;
+    let pm = v.need(Column::TargetPm)?;
+    let named = |e: crate::circuit::CircuitError| -> Error {
+        match e.error.param() {
+            "target_pm_deg" => e.error.with_param("target_pm_deg"),
+            _ => e.error,
+        }
+    };
+    if stage.parts.rf.is_none() && stage.parts.cl.is_none() {
+        return Err(Error::OutOfDomain {
+            param: "stage",
+            requirement: "needs rf (for Cf across it) or cl (for Riso against it) to design",
+        });
+    }
+    let cf = match stage.parts.rf {
+        Some(_) => Some(feedback_capacitor_for_margin(&stage, pm).map_err(named)?),
+        None => None,
+    };
+    let riso = match stage.parts.cl {
+        Some(cl) => Some(isolation_resistor_for_margin(&stage, cl, pm).map_err(named)?),
+        None => None,
+    };
+    let end = |d: &crate::stage::design::Design| Cell::Number(f64::from(u8::from(d.at_range_end)));
+    Ok(alloc::vec![
+        cf.as_ref().map(|d| Cell::Number(d.value)),
+        cf.as_ref().map(|d| Cell::Number(d.phase_margin_deg)),
+        cf.as_ref().map(end),
+        riso.as_ref().map(|d| Cell::Number(d.value)),
+        riso.as_ref().map(|d| Cell::Number(d.phase_margin_deg)),
+        riso.as_ref().map(end),
+    ])
+}
+
 /// The loop step of one row: the stage from its document or its fields, then
 /// the margins of its loop ([`crate::stage::margins::circuit_margins`]), the
 /// verdict from its poles (1 stable, 0 marginal or unstable) and its closed-loop
 /// gain at 0 Hz (the real part: the gain with its sign).
-fn stage_loop(v: &Values) -> Result<[Option<f64>; 5]> {
+fn stage_loop(v: &Values) -> Result<Vec<Option<Cell>>> {
     use crate::stage::closed_loop::gain_sweep;
     use crate::stage::margins::circuit_margins;
-    let stage = match (&v.stage, v.stage_fields.is_empty()) {
-        (Some(doc), true) => crate::stage::read_stage(doc)?,
-        (None, false) => crate::stage::document_pairs::stage_from_pairs(
-            v.stage_fields
-                .iter()
-                .map(|(f, t)| (*f, crate::json::Json::from(t.as_str()))),
-        )?,
-        (Some(_), false) => {
-            return Err(Error::OutOfDomain {
-                param: "stage",
-                requirement: "give the stage as a document or as columns, not both in one row",
-            })
-        }
-        (None, true) => {
-            return Err(Error::OutOfDomain {
-                param: "stage",
-                requirement: "is empty in this row: give a stage document or kind and the figures",
-            })
-        }
-    };
+    let stage = stage_of(v)?;
     let sc = stage.circuit()?;
     let m = circuit_margins(&sc.circuit, sc.amplifier)?;
     let output = match sc.output_current {
@@ -320,12 +740,12 @@ fn stage_loop(v: &Values) -> Result<[Option<f64>; 5]> {
     };
     let dc = gain_sweep(&sc.circuit, sc.source, output, &[0.0])?;
     let stable = m.closed_loop == crate::freq::Verdict::Stable;
-    Ok([
-        m.phase_margin_deg,
-        m.crossover_hz,
-        m.gain_margin_db,
-        Some(f64::from(u8::from(stable))),
-        dc.re.first().copied(),
+    Ok(alloc::vec![
+        opt(m.phase_margin_deg),
+        opt(m.crossover_hz),
+        opt(m.gain_margin_db),
+        num(f64::from(u8::from(stable))),
+        opt(dc.re.first().copied()),
     ])
 }
 
@@ -383,16 +803,23 @@ mod tests {
         assert_eq!(Column::from_header("notes"), None);
     }
 
+    fn number(c: &Option<Cell>) -> f64 {
+        match c {
+            Some(Cell::Number(x)) => *x,
+            other => panic!("not a number: {other:?}"),
+        }
+    }
+
     #[test]
     fn steps_route_to_the_core() {
         // A = 10⁵, β = 0.01: D = 1001, Af = 10⁵/1001 (the feedback equation
         // Af = A/(1 + Aβ); Sedra & Smith, Microelectronic Circuits, 7th ed., section 10.1,
         // from memory).
         let v = row(&[(Column::A, "1e5"), (Column::Beta, "0.01")]);
-        let mut out = [None; 5];
+        let mut out = alloc::vec![None; 5];
         Step::Stage.run(&v, &mut out).unwrap();
-        assert!((out[0].unwrap() - 1e5 / 1001.0).abs() < 1e-12);
-        assert_eq!(out[2], Some(1001.0));
+        assert!((number(&out[0]) - 1e5 / 1001.0).abs() < 1e-12);
+        assert_eq!(out[2], Some(Cell::Number(1001.0)));
         // Least A for 0.1 % error at gain 10: A ≥ (1 − ε)/(ε·β) with β = 1/10
         // = 0.999/(0.001·0.1) = 9990 (same source, the gain error 1/(1 + Aβ)).
         let v = row(&[
@@ -400,9 +827,9 @@ mod tests {
             (Column::TargetGain, "10"),
             (Column::GainError, "0.001"),
         ]);
-        let mut out = [None; 2];
+        let mut out = alloc::vec![None; 2];
         Step::Inverse.run(&v, &mut out).unwrap();
-        assert!((out[1].unwrap() - 9990.0).abs() < 1e-9);
+        assert!((number(&out[1]) - 9990.0).abs() < 1e-9);
         // The spread's typical gain is the geometric mean, with the gains' sign:
         // −10⁴ … −10⁶ gives −10⁵ (√(10⁴·10⁶) = 10⁵, common practice, no source).
         assert_eq!(geometric_mean(-1e4, -1e6).unwrap(), -1e5);
@@ -412,9 +839,92 @@ mod tests {
         assert!((g / 1e300 - 1.0).abs() < ROUNDING, "{g}");
         let v = row(&[(Column::Beta, "0.01")]);
         assert_eq!(
-            Step::Spread.run(&v, &mut [None; 2]).unwrap_err().param(),
+            Step::Spread
+                .run(&v, &mut alloc::vec![None; 2])
+                .unwrap_err()
+                .param(),
             "a_min"
         );
         assert_eq!(ideal_beta(0.0).unwrap_err().param(), "target_gain");
+    }
+
+    #[test]
+    fn the_other_areas_route_to_the_core() {
+        // One pole at 10 Hz, A0 = 10⁵, β = 0.01: the closed loop's pole moves to
+        // 10 Hz·(1 + A0β) = 10 010 Hz; |T| = 1 where f = 10 Hz·√(1000² − 1), the
+        // phase margin there 180° − atan(f/10 Hz) (single-pole feedback amplifier;
+        // Sedra & Smith, Microelectronic Circuits, 7th ed., section 10.9, from memory).
+        let v = row(&[
+            (Column::A, "1e5"),
+            (Column::Beta, "10m"),
+            (Column::APoles, " 10 "),
+        ]);
+        let mut out = alloc::vec![None; 6];
+        Step::Freq.run(&v, &mut out).unwrap();
+        let fc = 10.0 * (1e6f64 - 1.0).sqrt();
+        assert!((number(&out[1]) / fc - 1.0).abs() < 1e-6, "{out:?}");
+        let pm = 180.0 - (fc / 10.0).atan().to_degrees();
+        assert!((number(&out[0]) - pm).abs() < 1e-4, "{out:?}");
+        assert_eq!(out[2], None, "one pole never reaches −180°");
+        assert_eq!(out[3], Some(Cell::Number(1.0)));
+        assert!((number(&out[4]) / 10_010.0 - 1.0).abs() < 1e-6, "{out:?}");
+        let bad = row(&[
+            (Column::A, "1e5"),
+            (Column::Beta, "10m"),
+            (Column::APoles, "-5"),
+        ]);
+        assert_eq!(
+            Step::Freq.run(&bad, &mut out).unwrap_err().param(),
+            "a_poles_hz"
+        );
+        let mut v = Values::default();
+        assert_eq!(
+            v.read(Column::APoles, "10 1x").unwrap_err().param(),
+            "a_poles_hz"
+        );
+
+        // a1 = 1000, a2 = 0, HD3 1 % at 1 V out, β = 0.099: D = 100; with a2 = 0 the
+        // third harmonic falls by D at the same output (Sedra & Smith, 7th ed.,
+        // section 10.1, "reduction of nonlinear distortion", from memory).
+        let v = row(&[
+            (Column::A, "1000"),
+            (Column::Beta, "0.099"),
+            (Column::Hd2, "0"),
+            (Column::Hd3, "-0.01"),
+            (Column::Amplitude, "1"),
+        ]);
+        let mut out = alloc::vec![None; 4];
+        Step::Distortion.run(&v, &mut out).unwrap();
+        assert!((number(&out[3]) - 0.01).abs() < 1e-12, "{out:?}");
+        assert!((number(&out[1]) - 1e-4).abs() < 1e-15, "{out:?}");
+        assert_eq!(out[2], None, "no open-loop HD2, no ratio");
+
+        // 4.6 kΩ in E24 rounds to 4.7 kΩ (IEC 60063 E24 list: … 4.3, 4.7, 5.1 …).
+        let v = row(&[(Column::Series, "e24"), (Column::Resistor, "4k6")]);
+        let mut out = alloc::vec![None; 2];
+        Step::Eseries.run(&v, &mut out).unwrap();
+        assert_eq!(out[0], Some(Cell::Number(4700.0)));
+        assert!((number(&out[1]) - (4.7 / 4.6 - 1.0)).abs() < 1e-15);
+        let v = row(&[(Column::Series, "E24"), (Column::Resistor, "-1")]);
+        assert_eq!(
+            Step::Eseries.run(&v, &mut out).unwrap_err().param(),
+            "resistor"
+        );
+
+        // Gain 11 non-inverting from E24: R2/R1 = 10 exactly (gain 1 + R2/R1; E24
+        // holds every decade of 1.0, 1.1, …, 9.1 — IEC 60063).
+        let v = row(&[
+            (Column::Network, "non-inverting"),
+            (Column::Series, "E24"),
+            (Column::PairTarget, "11"),
+            (Column::TotalMin, "10k"),
+            (Column::TotalMax, "1M"),
+        ]);
+        let mut out = alloc::vec![None; 4];
+        Step::Pair.run(&v, &mut out).unwrap();
+        assert_eq!(number(&out[1]) / number(&out[0]), 10.0);
+        assert_eq!((number(&out[2]), number(&out[3])), (11.0, 0.0));
+        let total = number(&out[0]) + number(&out[1]);
+        assert!((10e3..=1e6).contains(&total), "{total}");
     }
 }

@@ -8,7 +8,10 @@
 //! amplifier's `a0` (with `a0Min`, `a0Max` for its spread), `gbwHz` (or `gbw`),
 //! `dominantPoleHz`, `hold`, `polesHz` (or `poles`), `zerosHz`, `rhpZerosHz`
 //! (lists: values separated by blanks), `rd`, `cd`, `rcm`, `ccm`, `ro`,
-//! `slewRate`; the parts `rf`, `rg`, `cf`, `rs`, `cs`, `rl`, `cl`, `riso`.
+//! `slewRate`, `voltageNoise` (or `en`) and `currentNoise` (or `in`), the white
+//! noise densities, with `voltageNoiseCornerHz` and `currentNoiseCornerHz`
+//! (their 1/f corners; the document's `{density, cornerHz}` objects); the parts
+//! `rf`, `rg`, `cf`, `rs`, `cs`, `rl`, `cl`, `riso`.
 
 use super::document::Stage;
 use super::document_json::read_stage;
@@ -56,10 +59,27 @@ const LISTS: [&str; 3] = ["polesHz", "zerosHz", "rhpZerosHz"];
 const PARTS: [&str; 8] = super::document_json::PART_KEYS;
 const TOP: [&str; 2] = ["kind", "spreadPoint"];
 const SPREAD: [&str; 2] = ["a0Min", "a0Max"];
+/// The noise densities and their corners: each density with its corner becomes
+/// the amplifier's `{density, cornerHz}` object.
+const NOISE: [(&str, &str); 2] = [
+    ("voltageNoise", "voltageNoiseCornerHz"),
+    ("currentNoise", "currentNoiseCornerHz"),
+];
+const NOISE_FIELDS: [&str; 4] = [
+    "voltageNoise",
+    "voltageNoiseCornerHz",
+    "currentNoise",
+    "currentNoiseCornerHz",
+];
 /// Other spellings an engineer types, and the field each stands for.
-const ALIASES: [(&str, &str); 2] = [("gbw", "gbwHz"), ("poles", "polesHz")];
+const ALIASES: [(&str, &str); 4] = [
+    ("gbw", "gbwHz"),
+    ("poles", "polesHz"),
+    ("en", "voltageNoise"),
+    ("in", "currentNoise"),
+];
 /// Every name the pairs may use.
-pub const PAIR_NAMES: &str = "kind, spreadPoint, a0, a0Min, a0Max, gbwHz, dominantPoleHz, hold, polesHz, zerosHz, rhpZerosHz, rd, cd, rcm, ccm, ro, slewRate, rf, rg, cf, rs, cs, rl, cl, riso";
+pub const PAIR_NAMES: &str = "kind, spreadPoint, a0, a0Min, a0Max, gbwHz, dominantPoleHz, hold, polesHz, zerosHz, rhpZerosHz, rd, cd, rcm, ccm, ro, slewRate, voltageNoise, voltageNoiseCornerHz, currentNoise, currentNoiseCornerHz, rf, rg, cf, rs, cs, rl, cl, riso";
 
 /// `a` and `b` are the same name, ignoring case and `_`.
 fn same(a: &str, b: &str) -> bool {
@@ -76,7 +96,12 @@ fn same(a: &str, b: &str) -> bool {
 
 /// The stage document field a typed name stands for.
 pub fn field_of(name: &str) -> Option<&'static str> {
-    let all = TOP.iter().chain(&AMPLIFIER).chain(&PARTS).chain(&SPREAD);
+    let all = TOP
+        .iter()
+        .chain(&AMPLIFIER)
+        .chain(&PARTS)
+        .chain(&SPREAD)
+        .chain(&NOISE_FIELDS);
     all.copied().find(|f| same(f, name)).or_else(|| {
         ALIASES
             .iter()
@@ -93,7 +118,8 @@ pub fn field_of(name: &str) -> Option<&'static str> {
 pub fn document_from_pairs<'a>(
     pairs: impl IntoIterator<Item = (&'a str, Json)>,
 ) -> CircuitResult<Json> {
-    let (mut top, mut amp, mut parts, mut spread) = (
+    let (mut top, mut amp, mut parts, mut spread, mut noise) = (
+        Section::new(),
         Section::new(),
         Section::new(),
         Section::new(),
@@ -121,6 +147,8 @@ pub fn document_from_pairs<'a>(
             &mut parts
         } else if SPREAD.contains(&field) {
             &mut spread
+        } else if NOISE_FIELDS.contains(&field) {
+            &mut noise
         } else {
             &mut amp
         };
@@ -145,6 +173,22 @@ pub fn document_from_pairs<'a>(
             }
         }
         amp.push(("a0".into(), Json::Object(a0)));
+    }
+    for (density, corner) in NOISE {
+        let d = take(&mut noise, density);
+        let c = take(&mut noise, corner);
+        let mut o = Section::new();
+        if let Some(d) = d {
+            o.push(("density".into(), d));
+        }
+        if let Some(c) = c {
+            o.push(("cornerHz".into(), c));
+        }
+        // A corner without its density is refused by the document's reader
+        // ("needs density"), naming the density's field.
+        if !o.is_empty() {
+            amp.push((density.into(), Json::Object(o)));
+        }
     }
     top.push(("format".into(), Json::from("loopwright-stage")));
     top.push(("version".into(), Json::whole(1)));
@@ -174,4 +218,36 @@ pub fn stage_from_pairs<'a>(
 ) -> CircuitResult<Stage> {
     let doc = document_from_pairs(pairs)?;
     read_stage(&doc.to_text())
+}
+
+#[cfg(test)]
+mod noise_pairs_tests {
+    use super::*;
+
+    #[test]
+    fn noise_densities_and_corners_become_the_documents_objects() {
+        let pairs = [
+            ("kind", "non-inverting"),
+            ("a0", "1e5"),
+            ("gbw", "10M"),
+            ("rf", "9k"),
+            ("rg", "1k"),
+            ("en", "8n"),
+            ("voltage_noise_corner_hz", "20"),
+            ("in", "0.5p"),
+        ];
+        let s = stage_from_pairs(pairs.iter().map(|(n, v)| (*n, Json::from(*v)))).unwrap();
+        let v = s.amplifier.voltage_noise.unwrap();
+        assert_eq!((v.density, v.corner_hz), (8e-9, 20.0));
+        let i = s.amplifier.current_noise.unwrap();
+        assert_eq!((i.density, i.corner_hz), (0.5e-12, 0.0));
+        let bad = [
+            ("kind", "non-inverting"),
+            ("a0", "1e5"),
+            ("gbw", "10M"),
+            ("current_noise_corner_hz", "100"),
+        ];
+        let e = stage_from_pairs(bad.iter().map(|(n, v)| (*n, Json::from(*v)))).unwrap_err();
+        assert_eq!(e.error.param(), "currentNoise");
+    }
 }

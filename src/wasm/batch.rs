@@ -19,12 +19,13 @@ fn file_error(e: FileError) -> JsValue {
     err.into()
 }
 
-/// A batch run over one CSV file of design rows (columns `topology, a, beta,
-/// target_gain, gain_error, zi, zo, a_min, a_max`): feed the file's bytes in chunks
-/// of any size, write what each call returns, then what `finish()` returns. The
-/// output has `line` (the physical line of the record), the input columns, the
-/// results and `error`; text that a spreadsheet would run as a formula gets an
-/// apostrophe in front. `rowsIn = rowsWritten + rowsReported`.
+/// A batch run over one CSV file of design rows (the columns and steps of
+/// `docs/batch.md`): feed the file's bytes in chunks of any size, write what each
+/// call returns, then what `finish()` returns. CSV output has `line` (the
+/// physical line of the record), the input columns, the results and `error`;
+/// text that a spreadsheet would run as a formula gets an apostrophe in front.
+/// JSON lines output has one object a line: `line`, `input`, the results,
+/// `error`. `rowsIn = rowsWritten + rowsReported`.
 #[wasm_bindgen]
 pub struct BatchRun {
     run: batch::BatchRun,
@@ -33,12 +34,18 @@ pub struct BatchRun {
 #[wasm_bindgen]
 impl BatchRun {
     /// `compute`: the steps as a comma-separated list of `stage`, `impedance`,
-    /// `inverse`, `spread`; omitted: every step the header's columns allow.
+    /// `inverse`, `spread`, `freq`, `loop`, `noise`, `distortion`, `eseries`,
+    /// `pair`, `design`; omitted: every step the header's columns allow.
+    /// `format`: `csv` (omitted) or `jsonl`.
     #[wasm_bindgen(constructor)]
-    pub fn new(compute: Option<String>) -> Result<BatchRun, JsValue> {
+    pub fn new(compute: Option<String>, format: Option<String>) -> Result<BatchRun, JsValue> {
         let names: Option<Vec<&str>> = compute.as_deref().map(|c| c.split(',').collect());
+        let format = match format.as_deref() {
+            None => batch::Format::Csv,
+            Some(f) => throw(batch::Format::from_name(f))?,
+        };
         Ok(BatchRun {
-            run: throw(batch::BatchRun::new(names.as_deref()))?,
+            run: throw(batch::BatchRun::with_format(names.as_deref(), format))?,
         })
     }
 

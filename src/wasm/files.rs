@@ -11,8 +11,8 @@
 //! `file`): `bad_archive`, `missing_part`, `malformed`, `too_large`.
 
 use crate::sheet::files::{
-    export_ods, export_xlsx, import_delimited, import_ods, import_xlsx, ExportOptions, FileError,
-    Imported,
+    export_ods, export_xlsx, import_delimited, import_ods, import_xlsx, table_file, ExportOptions,
+    FileError, Imported,
 };
 use crate::sheet::Sheet;
 use alloc::format;
@@ -72,6 +72,40 @@ pub fn export_sheet_file(document: &str, format: &str, date: &str) -> Result<Vec
         }
     };
     bytes.map_err(|e| file_error(&e))
+}
+
+/// A CSV text (the batch tool's output) as a `.ods` or `.xlsx` workbook: a cover
+/// sheet naming `title` and dated `date`, the records on the sheet `Results`
+/// (plain numbers as numbers, text that a spreadsheet would run as a formula
+/// with an apostrophe in front).
+///
+/// # Errors
+/// `unknown_name` (param `format`) for a format other than `"ods"` or `"xlsx"`;
+/// `malformed` (a record that breaks RFC 4180, naming its line) or `too_large`
+/// (over a sheet's rows or columns), param `file`.
+#[wasm_bindgen(js_name = tableFile)]
+pub fn table_file_js(
+    csv_text: &str,
+    format: &str,
+    title: &str,
+    date: &str,
+) -> Result<Vec<u8>, JsValue> {
+    let xlsx = match format {
+        "ods" => false,
+        "xlsx" => true,
+        _ => {
+            return Err(error(
+                "unknown_name",
+                "format",
+                "format must be \"ods\" or \"xlsx\"",
+            ))
+        }
+    };
+    let options = ExportOptions {
+        date: String::from(date),
+        ..ExportOptions::default()
+    };
+    table_file(csv_text, title, xlsx, &options).map_err(|e| file_error(&e))
 }
 
 fn imported(i: &Imported) -> Result<JsValue, JsValue> {

@@ -229,6 +229,47 @@ test('loopwright/lite: the calculator areas without the circuit solver and the w
   );
 });
 
+test('loopwright/sheetfiles: a worksheet to .xlsx and .ods and back from Node, and a table as a workbook', () => {
+  const out = execFileSync(
+    process.execPath,
+    [
+      '--input-type=module',
+      '-e',
+      `
+    import { Worksheet } from 'loopwright';
+    import { exportSheetFile, importSheetFile, tableFile } from 'loopwright/sheetfiles';
+    const sheet = new Worksheet();
+    sheet.setCell('A1', '100k');
+    sheet.setCell('A2', '=FEEDBACK.GAIN(A1; 0.01)');
+    sheet.setCell('A3', '=A2*2');
+    const doc = sheet.saveDocument();
+    const result = {};
+    for (const format of ['xlsx', 'ods']) {
+      const bytes = exportSheetFile(doc, format, '2026-12-03T00:00:00Z');
+      const back = importSheetFile(bytes, format);
+      const again = new Worksheet();
+      again.loadDocument(back.document);
+      result[format] = { same: again.saveDocument() === doc, problems: back.problems };
+    }
+    result.table = Array.from(tableFile('line,a\\n2,-3\\n', 'xlsx').subarray(0, 2));
+    try { tableFile('a', 'pdf'); } catch (e) { result.bad = [e.name, e.code, e.param]; }
+    console.log(JSON.stringify(result));`,
+    ],
+    { cwd: project, encoding: 'utf8' },
+  );
+  const r = JSON.parse(out);
+  for (const format of ['xlsx', 'ods']) {
+    // The round trip gives the same document (docs/worksheet.md, "Spreadsheet files").
+    assert.equal(r[format].same, true, format);
+    assert.deepEqual(r[format].problems, [], format);
+  }
+  // 'PK': the local file header signature of a zip archive (APPNOTE.TXT, 4.3.7).
+  assert.deepEqual(r.table, [0x50, 0x4b]);
+  assert.deepEqual(r.bad, ['LoopwrightError', 'unknown_name', 'format']);
+  const files = join(project, 'node_modules', 'loopwright', 'web', 'sheetfiles');
+  assert.ok(readFileSync(join(files, 'loopwright_bg.wasm')).length > 0);
+});
+
 test('TypeScript: the definitions type-check a consumer, and reject a wrong one', () => {
   // wasm-bindgen's classes declare [Symbol.dispose], typed in ESNext.Disposable (TS ≥ 5.2).
   const args = [

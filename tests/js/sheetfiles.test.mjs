@@ -7,20 +7,25 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { servedPageTests, ARTIFACTS } from './browser.mjs';
+import { pathToFileURL } from 'node:url';
+import { servedPageTests, ARTIFACTS, ROOT } from './browser.mjs';
 
 const env = servedPageTests();
 
-async function openSheet(context) {
+async function openSheet(context, url = env.url) {
   const page = await context.newPage();
   const problems = [];
   const requested = [];
-  page.on('request', (r) => requested.push(new URL(r.url()).pathname));
+  page.on('request', (r) => {
+    const u = new URL(r.url());
+    // data: URLs (the single file's icon) are not requests for files.
+    if (u.protocol !== 'data:') requested.push(u.pathname);
+  });
   page.on('console', (msg) => {
     if (msg.type() === 'error') problems.push(msg.text());
   });
   page.on('pageerror', (err) => problems.push(err.message));
-  await page.goto(env.url);
+  await page.goto(url);
   await page.waitForSelector('html[data-ready="true"]');
   await page.click('#tab-sheet');
   return { page, problems, requested };
@@ -90,6 +95,39 @@ test('the demo exported as .ods and .xlsx comes back the same; a broken file cha
   assert.match(said, /zip archive/);
   assert.match(said, /The sheet is as it was/);
   assert.equal(await saved(page), before);
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+test('the single-file page exports and imports a workbook from file:// with no request', async () => {
+  // dist/loopwright.html (make single) carries the spreadsheet-file module inlined.
+  const file = pathToFileURL(join(ROOT, 'dist', 'loopwright.html')).href;
+  const context = await env.browser.newContext({ acceptDownloads: true });
+  const { page, problems, requested } = await openSheet(context, file);
+  await page.click('#sheet-demo');
+  await page.waitForFunction(() => document.querySelector('#cell-B8').textContent.trim() !== '');
+  const demo = await saved(page);
+  const b8 = await shown(page, 'B8');
+  const [download] = await Promise.all([
+    page.waitForEvent('download'),
+    page.click('#sheet-export-xlsx'),
+  ]);
+  const path = join(ARTIFACTS, 'single-demo.xlsx');
+  await download.saveAs(path);
+  // A zip archive (PK, ISO/IEC 21320-1).
+  assert.equal(readFileSync(path).subarray(0, 2).toString('latin1'), 'PK');
+  await page.click('#cell-A3');
+  await page.keyboard.press('Delete');
+  await page.setInputFiles('#sheet-import-file', path);
+  await note(page, /Imported "single-demo\.xlsx"/);
+  assert.equal(await shown(page, 'B8'), b8);
+  assert.equal(await saved(page), demo, 'the same document after the round trip');
+  await page.screenshot({ path: join(ARTIFACTS, 'single-sheetfiles.png') });
+  // Nothing fetched: the page is one file, the module's wasm inlined in it.
+  assert.deepEqual(
+    requested.filter((p) => !p.endsWith('/dist/loopwright.html')),
+    [],
+  );
   assert.deepEqual(problems, []);
   await context.close();
 });

@@ -34,6 +34,7 @@ mod model;
 mod ods_read;
 mod ods_write;
 mod restore;
+mod table;
 mod xlsx_read;
 mod xlsx_write;
 mod xml;
@@ -43,6 +44,7 @@ pub use model::{
     FileError, FileErrorKind, MAX_FILE_BYTES, MAX_FILE_CELLS, MAX_PARTS, MAX_PART_BYTES,
 };
 pub use restore::Imported;
+pub use table::{MAX_TABLE_COLUMNS, MAX_TABLE_ROWS, RESULTS_TABLE};
 
 use super::Sheet;
 use crate::csv;
@@ -71,6 +73,35 @@ pub fn export_xlsx(sheet: &Sheet, options: &ExportOptions) -> Result<Vec<u8>, Fi
         &build::workbook(sheet, Dialect::Ooxml, options),
         &options.date,
     )
+}
+
+/// A CSV text (the batch tool's output) as an `.ods` (`xlsx` false) or `.xlsx`
+/// workbook: a cover sheet naming `title`, and the records on the sheet
+/// [`RESULTS_TABLE`], plain numbers as numbers and text that would run as a
+/// formula with an apostrophe in front (`table` module).
+///
+/// # Errors
+/// A malformed CSV record (`malformed`, naming its line); more rows than
+/// [`MAX_TABLE_ROWS`] or columns than [`MAX_TABLE_COLUMNS`] (`too_large`).
+///
+/// ```
+/// use loopwright::sheet::files::{table_file, ExportOptions};
+/// let bytes = table_file("line,note\n2,=1+1\n", "loopwright-batch results", true, &ExportOptions::default()).unwrap();
+/// assert!(bytes.starts_with(b"PK"));
+/// assert!(table_file("a\n\"open", "t", false, &ExportOptions::default()).is_err());
+/// ```
+pub fn table_file(
+    csv_text: &str,
+    title: &str,
+    xlsx: bool,
+    options: &ExportOptions,
+) -> Result<Vec<u8>, FileError> {
+    let wb = table::workbook(csv_text, title, options)?;
+    if xlsx {
+        xlsx_write::write(&wb, &options.date)
+    } else {
+        ods_write::write(&wb, &options.date)
+    }
 }
 
 /// Read an `.ods` file into worksheet inputs; no sheet is touched.

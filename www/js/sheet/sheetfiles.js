@@ -1,11 +1,13 @@
 // Spreadsheet files on the worksheet toolbar: the sheet exported as an OpenDocument
 // spreadsheet (.ods) or an Office Open XML workbook (.xlsx), and .ods, .xlsx, .csv
 // or .tsv files imported. The file-format module (www/pkg/sheetfiles/, the zip and
-// XML code) is loaded on the first export or import, not with the page. An import
+// XML code) is loaded on the first export or import, not with the page (the
+// single-file page carries it inlined, decoded only then). An import
 // goes through the panel's one load path (replacing.js): the sheet it replaces is
 // kept with an undo, and a file that cannot be read leaves the sheet as it was.
 
 import { el, downloadBlob } from '../dom.js';
+import { sheetfilesSource } from '../wasm-source.js';
 
 const TYPES = {
   ods: 'application/vnd.oasis.opendocument.spreadsheet',
@@ -18,7 +20,8 @@ let loading = null;
 /** The file-format module, loaded and started once. */
 function fileModule() {
   loading ??= import('../../pkg/sheetfiles/loopwright.js').then(async (m) => {
-    await m.default();
+    // Fetched beside the module on the served page; inlined in the single file.
+    await m.default({ module_or_path: await sheetfilesSource() });
     return m;
   });
   loading.catch(() => {
