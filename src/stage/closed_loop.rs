@@ -225,7 +225,11 @@ pub fn gain_within_band(
     let inside = |g: f64| (lo..=hi).contains(&g);
     let magnitude = |f: &[f64]| -> CircuitResult<Vec<f64>> {
         let s = gain_sweep(c, source, output, f)?;
-        Ok(s.re.iter().zip(&s.im).map(|(r, i)| libm::hypot(*r, *i)).collect())
+        Ok(s.re
+            .iter()
+            .zip(&s.im)
+            .map(|(r, i)| libm::hypot(*r, *i))
+            .collect())
     };
     let decades = libm::log10(to_hz / from_hz);
     let n = crate::float::ceil(decades * WITHIN_PPD).max(1.0) as usize;
