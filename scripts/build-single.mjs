@@ -15,7 +15,12 @@ const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 const require = createRequire(join(root, 'tests', 'js', 'package.json'));
 const esbuild = require('esbuild');
 
-const wasm = readFileSync(join(root, 'www', 'pkg', 'loopwright_bg.wasm'));
+// Both modules: the lite one, decoded at once for the first view, and the full one,
+// decoded only when the worksheet or the loaded-stage card first needs it.
+const wasm = {
+  lite: readFileSync(join(root, 'www', 'pkg', 'lite', 'loopwright_bg.wasm')),
+  full: readFileSync(join(root, 'www', 'pkg', 'loopwright_bg.wasm')),
+};
 
 const inlineWasm = {
   name: 'inline-wasm',
@@ -25,9 +30,12 @@ const inlineWasm = {
       namespace: 'inline-wasm',
     }));
     build.onLoad({ filter: /.*/, namespace: 'inline-wasm' }, () => ({
-      contents: `const WASM_BASE64 = ${JSON.stringify(wasm.toString('base64'))};
-export function wasmSource() {
-  const text = atob(WASM_BASE64);
+      contents: `const WASM_BASE64 = {
+  lite: ${JSON.stringify(wasm.lite.toString('base64'))},
+  full: ${JSON.stringify(wasm.full.toString('base64'))},
+};
+export function wasmSource(name) {
+  const text = atob(WASM_BASE64[name]);
   const bytes = new Uint8Array(text.length);
   for (let i = 0; i < text.length; i++) bytes[i] = text.charCodeAt(i);
   return bytes;
@@ -76,5 +84,5 @@ html = html.replace(
 mkdirSync(join(root, 'dist'), { recursive: true });
 writeFileSync(join(root, 'dist', 'loopwright.html'), html);
 console.error(
-  `build-single: dist/loopwright.html ${Buffer.byteLength(html)} bytes (wasm ${wasm.length} bytes inlined)`,
+  `build-single: dist/loopwright.html ${Buffer.byteLength(html)} bytes (wasm ${wasm.lite.length} + ${wasm.full.length} bytes inlined)`,
 );
