@@ -41,6 +41,8 @@ test('Firefox: a pasted share link replaces the sheet, undo brings it back, pack
   await ff.go(env.url);
   await ff.waitFor("return document.documentElement.dataset.ready === 'true'");
   await ff.run("localStorage.clear(); document.getElementById('tab-sheet').click();");
+  // The worksheet is mounted with the full module, fetched when its tab is first opened.
+  await ff.waitFor("return document.documentElement.dataset.sheet === 'ready'");
   // Typed into A1 through the formula bar; Enter (U+E007 in WebDriver) commits.
   await ff.clearAndType('#formula-bar', 'own sheet\uE007');
   await ff.waitFor(
