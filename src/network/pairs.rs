@@ -405,8 +405,15 @@ fn validate_max_error(max_error: Option<f64>) -> Result<Option<f64>> {
 /// missing when the interval ends there). a ≤ b, all within the value range.
 fn around(series: Series, t: f64, a: f64, b: f64) -> [Option<f64>; 2] {
     let t = t.clamp(a, b);
-    let down = series.value_at(series.floor_rank(t));
-    let up = series.value_at(series.ceil_rank(t));
+    // One rank search: the ceiling is the floor when t is a standard value, else
+    // the next rank (`Series::ceil_rank`, without searching again).
+    let n = series.floor_rank(t);
+    let down = series.value_at(n);
+    let up = if down == t {
+        down
+    } else {
+        series.value_at(n + 1)
+    };
     [(down >= a).then_some(down), (up <= b).then_some(up)]
 }
 
