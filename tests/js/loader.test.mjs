@@ -106,6 +106,14 @@ test('a full module that fails to load leaves the first view working and says so
   await page.waitForSelector('html[data-sheet="failed"]');
   assert.match(await page.locator('#worksheet').textContent(), /could not be loaded/);
   assert.equal(await page.locator('#card-stage .card-message').textContent(), '');
+  // The loaded-stage card's place says so too, and stays a placeholder.
+  await page.click('#tab-cards');
+  const pending = page.locator('#card-loaded-pending');
+  await pending.scrollIntoViewIfNeeded();
+  await page.waitForFunction(() =>
+    /could not be loaded/.test(document.getElementById('card-loaded-pending').textContent),
+  );
+  await pending.screenshot({ path: join(ARTIFACTS, 'loader-full-failed.png') });
   await context.close();
 });
 
