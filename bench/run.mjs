@@ -11,6 +11,7 @@ import { join, dirname } from 'node:path';
 import { fileURLToPath, pathToFileURL } from 'node:url';
 import { timeInterleaved, formatNs } from './harness.mjs';
 import { CASES } from './cases.mjs';
+import { coldStarts } from './first-load.mjs';
 
 const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 const quick = process.argv.includes('--quick');
@@ -58,28 +59,8 @@ function sizes() {
 }
 
 async function coldStart() {
-  const single = join(root, 'dist', 'loopwright.html');
-  if (!existsSync(single)) return null;
-  const { launch } = await import(pathToFileURL(join(root, 'tests', 'js', 'browser.mjs')).href);
-  const browser = await launch();
-  const times = [];
-  try {
-    for (let i = 0; i < (quick ? 2 : 7); i++) {
-      const context = await browser.newContext();
-      const page = await context.newPage();
-      await page.goto(pathToFileURL(single).href);
-      await page.waitForSelector('html[data-ready="true"]');
-      times.push(
-        await page.evaluate(
-          () => performance.getEntriesByName('loopwright-first-result')[0]?.startTime ?? NaN,
-        ),
-      );
-      await context.close();
-    }
-  } finally {
-    await browser.close();
-  }
-  times.sort((a, b) => a - b);
+  const times = await coldStarts(undefined, quick ? 2 : 7);
+  if (!times) return null;
   return times[Math.floor(times.length / 2)];
 }
 

@@ -16,7 +16,13 @@ const root = join(dirname(fileURLToPath(import.meta.url)), '..');
 const require = createRequire(join(root, 'tests', 'js', 'package.json'));
 const esbuild = require('esbuild');
 
-const wasm = readFileSync(join(root, 'www', 'pkg', 'loopwright_bg.wasm'));
+// Both core modules: the lite one, decoded at once for the first view, and the full
+// one, decoded only when the worksheet, the Stage view or the loaded-stage card first
+// needs it.
+const wasm = {
+  lite: readFileSync(join(root, 'www', 'pkg', 'lite', 'loopwright_bg.wasm')),
+  full: readFileSync(join(root, 'www', 'pkg', 'loopwright_bg.wasm')),
+};
 // The spreadsheet-file module (.ods/.xlsx export and import), inlined as well so that
 // the worksheet's file buttons work from file://: gzipped, base64, in a data block
 // (<script type="application/octet-stream">, never run, so outside the CSP and
@@ -32,15 +38,18 @@ const inlineWasm = {
       namespace: 'inline-wasm',
     }));
     build.onLoad({ filter: /.*/, namespace: 'inline-wasm' }, () => ({
-      contents: `const WASM_BASE64 = ${JSON.stringify(wasm.toString('base64'))};
+      contents: `const WASM_BASE64 = {
+  lite: ${JSON.stringify(wasm.lite.toString('base64'))},
+  full: ${JSON.stringify(wasm.full.toString('base64'))},
+};
 function decode(base64) {
   const text = atob(base64);
   const bytes = new Uint8Array(text.length);
   for (let i = 0; i < text.length; i++) bytes[i] = text.charCodeAt(i);
   return bytes;
 }
-export function wasmSource() {
-  return decode(WASM_BASE64);
+export function wasmSource(name) {
+  return decode(WASM_BASE64[name]);
 }
 export async function sheetfilesSource() {
   const block = document.getElementById('loopwright-sheetfiles-wasm');
@@ -96,5 +105,5 @@ html = html.replace(
 mkdirSync(join(root, 'dist'), { recursive: true });
 writeFileSync(join(root, 'dist', 'loopwright.html'), html);
 console.error(
-  `build-single: dist/loopwright.html ${Buffer.byteLength(html)} bytes (wasm ${wasm.length} bytes inlined, the spreadsheet-file wasm ${sheetfilesWasm.length} gzipped to ${sheetfilesGz.length})`,
+  `build-single: dist/loopwright.html ${Buffer.byteLength(html)} bytes (wasm ${wasm.lite.length} + ${wasm.full.length} bytes inlined, the spreadsheet-file wasm ${sheetfilesWasm.length} gzipped to ${sheetfilesGz.length})`,
 );

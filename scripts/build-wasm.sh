@@ -18,10 +18,10 @@ set -euo pipefail
 cd "$(dirname "$0")/.."
 out=${1:-www/pkg}
 
-# build <features> <cargo target dir> <out dir> <full|lite>
+# build <features> <cargo target dir> <out dir> <full|lite|sheetfiles> [cargo args…]
 build() {
   cargo rustc --quiet --lib --crate-type cdylib --release --target wasm32-unknown-unknown \
-    --features "$1" --target-dir "$2"
+    --features "$1" --target-dir "$2" "${@:5}"
   # The name and producers sections are debugging and telemetry only (about 70 KB of
   # the release file). To profile sizes, run twiggy on the file wasm-bindgen reads,
   # which keeps its names: <target dir>/wasm32-unknown-unknown/release/loopwright.wasm.
@@ -50,6 +50,10 @@ build() {
 
 build wasm target "$out" full
 # A target dir of its own, so the two feature sets do not rebuild each other.
-build wasm-lite target/lite "$out/lite" lite
+# The lite module is the page's first download: loopwright itself at opt-level "s"
+# there (its dependencies as in Cargo.toml), the hot loops kept fast by `#[inline]`
+# on their helpers; docs/wasm-size.md has the sizes and the speed against "3".
+build wasm-lite target/lite "$out/lite" lite \
+  --config 'profile.release.package.loopwright.opt-level="s"'
 # The spreadsheet files (.ods, .xlsx): loaded by the page only on export or import.
 build wasm-sheetfiles target/sheetfiles "$out/sheetfiles" sheetfiles

@@ -88,6 +88,7 @@ pub fn impedance(param: &'static str, z: Complex64) -> Result<Complex64> {
 }
 
 /// A computed real result: [`Error::Overflow`] instead of ±∞ or NaN.
+#[inline]
 pub fn result(quantity: &'static str, x: f64) -> Result<f64> {
     if x.is_finite() {
         Ok(x)

@@ -73,6 +73,7 @@ impl FeedbackSense {
 /// Classify a return difference D against the loop gain T that formed it (see
 /// [`FeedbackSense`]). D counts as 0 or 1 within a few ulps of the terms that
 /// formed it, |D| ≤ ZERO_D·(1 + |T|).
+#[inline]
 pub fn feedback_sense(d: Complex64, t: Complex64) -> FeedbackSense {
     let scale = 1.0 + t.norm();
     if d.norm() <= ZERO_D * scale {
@@ -105,6 +106,7 @@ pub fn real_feedback_sense(t: f64) -> FeedbackSense {
     feedback_sense(Complex64::new(1.0 + t, 0.0), Complex64::new(t, 0.0))
 }
 
+#[inline]
 fn inputs(a: f64, beta: f64) -> Result<(f64, f64)> {
     Ok((check::nonzero("a", a)?, check::finite("beta", beta)?))
 }
@@ -123,6 +125,7 @@ fn inputs(a: f64, beta: f64) -> Result<(f64, f64)> {
 /// assert_eq!(loop_gain(2e5, 0.1).unwrap(), 2e4);
 /// assert_eq!(loop_gain(0.0, 0.1).unwrap_err().param(), "a");
 /// ```
+#[inline]
 pub fn loop_gain(a: f64, beta: f64) -> Result<f64> {
     let (a, beta) = inputs(a, beta)?;
     check::result("loop_gain", a * beta)

@@ -324,6 +324,7 @@ impl Draws {
     }
 
     /// Uniform on [0, 1) with 53 random bits.
+    #[inline(always)]
     fn unit(&mut self) -> f64 {
         (self.rng.next_u64() >> 11) as f64 * (1.0 / 9_007_199_254_740_992.0)
     }
@@ -346,6 +347,7 @@ impl Draws {
     }
 
     /// A positive part value about `nominal` with relative tolerance `tol`.
+    #[inline(always)]
     fn part(&mut self, dist: Distribution, nominal: f64, tol: f64) -> f64 {
         loop {
             let x = match dist {
@@ -358,10 +360,19 @@ impl Draws {
         }
     }
 
-    /// An open-loop gain from a_min (`lo`), a_typ (`typ`) and a_max (`hi`),
-    /// 0 < lo ≤ typ ≤ hi, by `dist` (module doc). Always within [lo, hi].
-    fn gain(&mut self, dist: GainDistribution, lo: f64, typ: f64, hi: f64) -> f64 {
-        let (l, m, h) = (libm::log(lo), libm::log(typ), libm::log(hi));
+    /// An open-loop gain drawn from `range` (a_min, a_typ, a_max and their
+    /// logarithms, taken once per run), by its distribution (module doc). Always
+    /// within [a_min, a_max].
+    #[inline(always)]
+    fn gain(&mut self, range: &GainRange) -> f64 {
+        let GainRange {
+            dist,
+            lo,
+            hi,
+            l,
+            m,
+            h,
+        } = *range;
         let x = match dist {
             GainDistribution::Uniform => return lo + (hi - lo) * self.unit(),
             GainDistribution::LogUniform => l + (h - l) * self.unit(),
@@ -388,12 +399,39 @@ impl Draws {
     }
 }
 
+/// The open-loop gain's range for [`Draws::gain`]: a_min (`lo`) ≤ a_typ ≤ a_max
+/// (`hi`), all > 0, and their natural logarithms `l`, `m`, `h`, computed once per
+/// run instead of once per trial (the same values, so the same draws).
+#[derive(Clone, Copy)]
+struct GainRange {
+    dist: GainDistribution,
+    lo: f64,
+    hi: f64,
+    l: f64,
+    m: f64,
+    h: f64,
+}
+
+impl GainRange {
+    fn new(dist: GainDistribution, lo: f64, typ: f64, hi: f64) -> GainRange {
+        GainRange {
+            dist,
+            lo,
+            hi,
+            l: libm::log(lo),
+            m: libm::log(typ),
+            h: libm::log(hi),
+        }
+    }
+}
+
 /// The closed-loop gain of the Monte Carlo inner loop: the operations of
 /// [`stage_gain`] (β = R1/(R1 + R2), T = A·β, D = 1 + T, Af = A/D, times
 /// −R2/(R1 + R2) when inverting) in the same order, so bit-identical to it, without
 /// the oscillation test of [`crate::feedback::closed_loop_gain`]: the parts are
 /// drawn positive, so D > 1 and the loop cannot oscillate. The test
 /// `inner_loop_gain_equals_the_feedback_relation` checks the identity.
+#[inline(always)]
 fn gain_of_positive_parts(stage: Stage, r1: f64, r2: f64, a: f64) -> Result<f64> {
     let sum = r1 + r2;
     let beta = r1 / sum;
@@ -476,12 +514,13 @@ pub fn monte_carlo_samples(spec: &MonteCarloSpec) -> Result<Vec<f64>> {
     let resistors = validate_distribution("k", spec.resistors)?;
     let gain_dist = validate_gain_distribution(spec.open_loop_gain)?;
     let trials = validate_trials(spec.trials)?;
+    let gain_range = GainRange::new(gain_dist, stage.a_min, stage.a_typ, stage.a_max);
     let mut draws = Draws::new(spec.seed);
     let mut out = Vec::with_capacity(trials);
     for _ in 0..trials {
         let r1 = draws.part(resistors, stage.r1, stage.tol_r1);
         let r2 = draws.part(resistors, stage.r2, stage.tol_r2);
-        let a = draws.gain(gain_dist, stage.a_min, stage.a_typ, stage.a_max);
+        let a = draws.gain(&gain_range);
         let v = if spec.metric == Metric::Gain {
             gain_of_positive_parts(stage.stage, r1, r2, a)?
         } else {

@@ -121,15 +121,25 @@ std::thread_local! {
 /// `LoopwrightError`, so a JS caller sees the same contract as everywhere else.
 /// Why not `Result<f64, JsValue>`: its glue returns an array per call, which made a
 /// scalar call 4.5x slower than the same formula written inline in JS (bench/).
+///
+/// Inlined, with the error path kept out of line: the lite module is built for size
+/// (`opt-level = "s"`, docs/wasm-size.md), where this call would otherwise cost a
+/// scalar export a fifth of its time.
+#[inline(always)]
 pub(crate) fn scalar(r: crate::Result<f64>) -> f64 {
     match r {
         Ok(x) => x,
-        Err(e) => {
-            let err = js_error(e);
-            PENDING_ERROR.with(|slot| *slot.borrow_mut() = Some(err));
-            f64::NAN
-        }
+        Err(e) => keep_error(e),
     }
+}
+
+/// The error path of [`scalar`]: keep the error for `takeError`, return NaN.
+#[cold]
+#[inline(never)]
+fn keep_error(e: Error) -> f64 {
+    let err = js_error(e);
+    PENDING_ERROR.with(|slot| *slot.borrow_mut() = Some(err));
+    f64::NAN
 }
 
 /// Internal: the `LoopwrightError` of the last scalar call that returned NaN, or

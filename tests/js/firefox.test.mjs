@@ -41,6 +41,8 @@ test('Firefox: a pasted share link replaces the sheet, undo brings it back, pack
   await ff.go(env.url);
   await ff.waitFor("return document.documentElement.dataset.ready === 'true'");
   await ff.run("localStorage.clear(); document.getElementById('tab-sheet').click();");
+  // The worksheet is mounted with the full module, fetched when its tab is first opened.
+  await ff.waitFor("return document.documentElement.dataset.sheet === 'ready'");
   // Typed into A1 through the formula bar; Enter (U+E007 in WebDriver) commits.
   await ff.clearAndType('#formula-bar', 'own sheet\uE007');
   await ff.waitFor(
@@ -76,6 +78,7 @@ test('Firefox: the stage view computes a typed stage and its margin is the APIâ€
   await ff.go(env.url);
   await ff.waitFor("return document.documentElement.dataset.ready === 'true'");
   await ff.run("document.getElementById('tab-stage').click();");
+  await ff.waitFor("return document.documentElement.dataset.stage === 'ready'");
   // Gain 11 instead of the demo's 101: Rf 10k over Rg 1k; Tab (U+E004) commits the field.
   await ff.clearAndType('#stage-rf', '10k\uE004');
   await ff.clearAndType('#stage-gain', '11\uE004');

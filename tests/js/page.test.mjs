@@ -236,6 +236,9 @@ test('every card computes its defaults, and the area cards show closed-form valu
   const { context, page, problems } = await openPage(env.browser, env.url, {
     allowedOrigin: env.url,
   });
+  // The loaded-stage card is mounted (with the full module) once scrolled near.
+  await page.locator('#card-loaded-pending').scrollIntoViewIfNeeded();
+  await page.waitForSelector('#card-loaded');
   const cards = await page.locator('section.card').evaluateAll((els) => els.map((e) => e.id));
   assert.ok(cards.length >= 9, `cards: ${cards}`);
   for (const id of cards) {
@@ -388,6 +391,8 @@ test('loaded stage card: exact, two-port and ideal side by side', async () => {
   const { context, page, problems } = await openPage(env.browser, env.url, {
     allowedOrigin: env.url,
   });
+  // The card needs the full module: it is mounted once its place is scrolled near.
+  await page.locator('#card-loaded-pending').scrollIntoViewIfNeeded();
   // Series-shunt, Rf = 9k, Rg = 1k: β = Rg/(Rf + Rg) = 0.1, ideal gain 1/β = 10.
   assert.equal(await result(page, 'card-loaded', 'beta'), '0.1');
   assert.match(await result(page, 'card-loaded', 'ideal'), /^10 /);

@@ -73,6 +73,7 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   await page.keyboard.press('ArrowRight');
   actions += 1;
   assert.equal(await page.getAttribute('#tab-stage', 'aria-selected'), 'true');
+  await page.waitForSelector('html[data-stage="ready"]');
 
   await setField(page, 'a0Min', '100k');
   await setField(page, 'a0', '333k');
@@ -207,6 +208,7 @@ test('a stage goes to the worksheet as a named block its formulas use, and comes
   const { context, page, problems } = await openPage(env.browser, env.url);
   await context.grantPermissions(['clipboard-read', 'clipboard-write']);
   await page.click('#tab-stage');
+  await page.waitForSelector('html[data-stage="ready"]');
   const pm = await shown(page, 'margin-pm');
   // The results go to the clipboard at full precision: the API's own number, read back
   // by the core's reader, is the copied one exactly.
@@ -247,6 +249,7 @@ test('a stage goes to the worksheet as a named block its formulas use, and comes
   await page.keyboard.type('mine');
   await page.keyboard.press('Enter');
   await page.click('#tab-stage');
+  await page.waitForSelector('html[data-stage="ready"]');
   await page.click('#stage-to-sheet');
   assert.match(
     await page.locator('#stage-note').textContent(),
@@ -282,6 +285,7 @@ test('a stage goes to the worksheet as a named block its formulas use, and comes
   await page.keyboard.type('120k');
   await page.keyboard.press('Enter');
   await page.click('#tab-stage');
+  await page.waitForSelector('html[data-stage="ready"]');
   await page.click('#stage-from-sheet');
   assert.equal(await page.inputValue('#stage-rf'), '120k');
   // One undo in the view takes the read back.
@@ -303,6 +307,7 @@ test('a bad value is named at its field and the answers stay; the view fits a ph
     height: 844,
   });
   await page.click('#tab-stage');
+  await page.waitForSelector('html[data-stage="ready"]');
   await page.click('#stage-rf');
   await page.keyboard.press('Control+A');
   await page.keyboard.type('-4k7');

@@ -1,9 +1,12 @@
-// Where the page's wasm comes from. The served page returns undefined, so the
-// wasm-bindgen glue fetches pkg/loopwright_bg.wasm (and, on the first spreadsheet
-// file, pkg/sheetfiles/loopwright_bg.wasm) beside it; the single-file build
-// (scripts/build-single.mjs) replaces this module with one that returns the
-// inlined bytes, so the file works from file:// with no request at all.
-export function wasmSource() {
+// Where the page's wasm comes from, for each of its two core modules: `name` is
+// 'lite' (the calculator areas, loaded first) or 'full' (the circuit solver, the
+// worksheet and the Stage view, loaded when a view needs it; www/js/main.js). The
+// served page returns undefined, so each wasm-bindgen glue fetches the
+// loopwright_bg.wasm beside it (pkg/lite/ or pkg/; on the first spreadsheet file,
+// pkg/sheetfiles/); the single-file build (scripts/build-single.mjs) replaces this
+// module with one that returns the inlined bytes, so the file works from file://
+// with no request at all.
+export function wasmSource(_name) {
   return undefined;
 }
 

@@ -211,8 +211,8 @@ function resultsTsv(r) {
 }
 
 /**
- * Mount the stage view in `host`. `worksheet()` returns the worksheet handle
- * `{sheet, record(what), refresh(), show()}` (or null before it exists).
+ * Mount the stage view in `host`. `worksheet()` returns (or resolves to) the
+ * worksheet handle `{sheet, record(what), refresh(), show()}`, or null when there is none.
  */
 export function mountStageView(host, api, { worksheet = () => null } = {}) {
   let values = { ...DEMO };
@@ -357,8 +357,8 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
     step(kind);
   });
 
-  const toWorksheet = () => {
-    const ws = worksheet();
+  const toWorksheet = async () => {
+    const ws = await worksheet();
     if (!ws) return;
     try {
       const out = { ...values };
@@ -373,8 +373,8 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
       note.textContent = err.message;
     }
   };
-  const fromWorksheet = () => {
-    const ws = worksheet();
+  const fromWorksheet = async () => {
+    const ws = await worksheet();
     if (!ws) return;
     try {
       const read = fromSheet(ws, blockName.value.trim());
