@@ -310,13 +310,13 @@ pub fn count_from_number(param: &'static str, x: f64, limit: usize) -> Result<us
 }
 
 /// The generator and the spare normal deviate of the polar method.
-struct Draws {
+pub(crate) struct Draws {
     rng: Xoshiro256PlusPlus,
     spare: Option<f64>,
 }
 
 impl Draws {
-    fn new(seed: u64) -> Draws {
+    pub(crate) fn new(seed: u64) -> Draws {
         Draws {
             rng: Xoshiro256PlusPlus::seed_from_u64(seed),
             spare: None,
@@ -324,12 +324,12 @@ impl Draws {
     }
 
     /// Uniform on [0, 1) with 53 random bits.
-    fn unit(&mut self) -> f64 {
+    pub(crate) fn unit(&mut self) -> f64 {
         (self.rng.next_u64() >> 11) as f64 * (1.0 / 9_007_199_254_740_992.0)
     }
 
     /// Standard normal by the polar method (two deviates per accepted pair).
-    fn normal(&mut self) -> f64 {
+    pub(crate) fn normal(&mut self) -> f64 {
         if let Some(z) = self.spare.take() {
             return z;
         }
@@ -360,7 +360,7 @@ impl Draws {
 
     /// An open-loop gain from a_min (`lo`), a_typ (`typ`) and a_max (`hi`),
     /// 0 < lo ≤ typ ≤ hi, by `dist` (module doc). Always within [lo, hi].
-    fn gain(&mut self, dist: GainDistribution, lo: f64, typ: f64, hi: f64) -> f64 {
+    pub(crate) fn gain(&mut self, dist: GainDistribution, lo: f64, typ: f64, hi: f64) -> f64 {
         let (l, m, h) = (libm::log(lo), libm::log(typ), libm::log(hi));
         let x = match dist {
             GainDistribution::Uniform => return lo + (hi - lo) * self.unit(),
