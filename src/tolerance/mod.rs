@@ -24,4 +24,4 @@ pub use montecarlo::{monte_carlo, MonteCarlo, MonteCarloOptions, MAX_TRIALS};
 pub use parts::{AmplifierSpread, PartSpread, TolStage, Varied};
 pub use sensitivity::{sensitivity, Sensitivity};
 pub use spec::{validate_spec, Limit};
-pub use worstcase::{worst_case, WorstCase, WorstCaseMethod, MAX_CORNER_PARTS};
+pub use worstcase::{worst_case, WorstCase, WorstCaseMethod, DEFAULT_MAX_CORNERS, MAX_CORNERS};

@@ -1,9 +1,11 @@
 //! Worst case of each figure over every part's spread and the temperature range.
 //!
 //! Method ([`WorstCaseMethod`]):
-//! - **corners**, when the varied parts number at most [`MAX_CORNER_PARTS`]:
-//!   every combination of each part at its low or high extreme, at each end of
-//!   the temperature range (2ⁿ·t evaluations), exact over the corners;
+//! - **corners**, when the corners (2ⁿ for n varied parts, times the t
+//!   temperatures) number at most the caller's `max_corners`
+//!   ([`DEFAULT_MAX_CORNERS`] by default, at most [`MAX_CORNERS`]): every
+//!   combination of each part at its low or high extreme at each temperature,
+//!   exact over the corners;
 //! - **sensitivity-guided** otherwise: each part is moved alone to its low and
 //!   high extreme; for the maximum each part goes to the end that raised the
 //!   figure (the minimum: lowered), at each temperature; then single parts are
@@ -23,8 +25,12 @@ use crate::circuit::CircuitResult;
 use alloc::string::String;
 use alloc::vec::Vec;
 
-/// Most varied parts for exact corner enumeration (2¹² = 4096 corners).
-pub const MAX_CORNER_PARTS: usize = 12;
+/// The default largest corner count for exact enumeration: 256 corners of
+/// every figure stay under a second for the costliest figures (margins, noise)
+/// in WebAssembly (common practice, no source: a budget for an interactive page).
+pub const DEFAULT_MAX_CORNERS: usize = 256;
+/// The largest corner count a caller may allow (2¹⁶).
+pub const MAX_CORNERS: usize = 65_536;
 /// Most flip sweeps of the sensitivity-guided method.
 pub const REFINE_SWEEPS: usize = 4;
 /// Golden-section steps of the search inside a part's range.
@@ -131,10 +137,18 @@ fn better(max: bool, a: f64, b: f64) -> bool {
 /// The worst case of every figure of `spec` over the stage's spreads.
 ///
 /// # Errors
-/// The spec's errors ([`validate_spec`]); a figure that cannot be computed at
-/// some evaluated point (the stage's or the figure's error).
-pub fn worst_case(ts: &TolStage, spec: &[Limit]) -> CircuitResult<WorstCase> {
+/// The spec's errors ([`validate_spec`]); `max_corners` above [`MAX_CORNERS`]
+/// (param `maxCorners`); a figure that cannot be computed at some evaluated
+/// point (the stage's or the figure's error).
+pub fn worst_case(ts: &TolStage, spec: &[Limit], max_corners: usize) -> CircuitResult<WorstCase> {
     validate_spec(spec)?;
+    if max_corners > MAX_CORNERS {
+        return Err(crate::error::Error::TooLarge {
+            param: "maxCorners",
+            limit: MAX_CORNERS as u64,
+        }
+        .into());
+    }
     let n = ts.varied.len();
     let temps = ts.temperatures();
     let nominal = ts.nominal();
@@ -161,7 +175,10 @@ pub fn worst_case(ts: &TolStage, spec: &[Limit]) -> CircuitResult<WorstCase> {
         .map(|&v| new_extreme(v, &nominal, temps[0]))
         .collect();
     let mut highs = lows.clone();
-    let method = if n <= MAX_CORNER_PARTS {
+    let corners = 1usize
+        .checked_shl(n as u32)
+        .map_or(usize::MAX, |c| c.saturating_mul(temps.len()));
+    let method = if corners <= max_corners {
         WorstCaseMethod::Corners
     } else {
         WorstCaseMethod::SensitivityGuided
