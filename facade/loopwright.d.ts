@@ -27,6 +27,7 @@ export {
   circuitMargins,
   circuitNyquist,
   stageDesign,
+  stageTolerance,
   circuitNoise,
   circuitNoiseIntegral,
   functionCatalog,

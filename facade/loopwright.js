@@ -53,6 +53,8 @@ export const circuitPoles = call(glue.circuitPoles, [['', options]]);
 export const circuitMargins = call(glue.circuitMargins, [['', options]]);
 export const circuitNyquist = call(glue.circuitNyquist, [['', options]]);
 export const stageDesign = call(glue.stageDesign, [['', options]]);
+// Whole-stage tolerance (src/tolerance; docs/tolerance.md).
+export const stageTolerance = call(glue.stageTolerance, [['', options]]);
 // The noise of a whole circuit (src/noise/circuit; docs/noise.md).
 export const circuitNoise = call(glue.circuitNoise, [['', options]]);
 export const circuitNoiseIntegral = call(glue.circuitNoiseIntegral, [['', options]]);

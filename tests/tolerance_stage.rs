@@ -13,6 +13,8 @@ use loopwright::tolerance::{
 use proptest::prelude::*;
 use serde_json::Value;
 
+include!("fixtures/tolerance_identity.rs");
+
 fn reference() -> Value {
     serde_json::from_str(include_str!("reference/data/tolerance_stage.json")).unwrap()
 }
@@ -181,6 +183,18 @@ fn gain48_monte_carlo_agrees_with_numpy() {
         (mc.limits[0].nominal[0] - num(&r, &["gain48", "nominalGainDb"])).abs() < 1e-9,
         "nominal"
     );
+}
+
+#[test]
+fn gain48_monte_carlo_is_the_same_natively_and_in_wasm() {
+    // The native half of the identity check: tests/wasm_tolerance.rs runs the same
+    // stage, spec and seed in the browser and compares with the same bits.
+    let (ts, spec) = gain48();
+    let mc = monte_carlo(&ts, &spec, options(IDENTITY_SEED, IDENTITY_TRIALS)).unwrap();
+    let s = mc.limits[0].stats.as_ref().unwrap();
+    assert_eq!(mc.yield_fraction.to_bits(), IDENTITY_YIELD_BITS);
+    assert_eq!(s.mean.to_bits(), IDENTITY_MEAN_DB_BITS);
+    assert_eq!(s.percentiles[3].value.to_bits(), IDENTITY_MEDIAN_DB_BITS);
 }
 
 #[test]

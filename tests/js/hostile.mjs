@@ -309,6 +309,14 @@ export function goodCalls() {
     circuitMargins: [{ circuit: STAGE(), pointsPerDecade: 10 }],
     circuitNyquist: [{ circuit: STAGE(), pointsPerDecade: 10 }],
     stageDesign: [{ stage: STAGE(), part: 'riso', targetPhaseMarginDeg: 45 }],
+    stageTolerance: [
+      {
+        stage: STAGE(),
+        parts: [{ part: 'rf', tolerance: { distribution: 'uniform', percent: 1 } }],
+        spec: [{ figure: 'gainDb', freqHz: 1e3, lower: 20, upper: 21 }],
+        trials: 50,
+      },
+    ],
     circuitNoise: [
       {
         circuit: FOLLOWER,
