@@ -73,6 +73,52 @@ export interface StageToleranceOptions {
   /** Largest corner count enumerated exactly (default 256, at most 65536). */
   maxCorners?: number;
 }
+/** A varied quantity: its name (`Rf`, `U1.a0`), nominal, extremes at 25 °C, tempco. */
+export interface ToleranceVaried { name: string; nominal: number; low: number; high: number; tempcoPpm: number; }
+/** A limit as the analyses report it: the figure's name and settings, and the limits. */
+export interface ToleranceLimitOut { figure: { figure: string; [setting: string]: unknown }; lower: number | null; upper: number | null; }
+/** An extreme: the figure's value, the part values (in `parts` order) and the temperature. */
+export interface ToleranceExtreme { value: number; values: number[]; temperatureC: number; }
+export interface ToleranceWorstCase {
+  method: "corners" | "sensitivity-guided";
+  parts: string[];
+  evaluations: number;
+  figures: { limit: ToleranceLimitOut; nominal: number; min: ToleranceExtreme; max: ToleranceExtreme; searched: string[]; meets: boolean }[];
+  meets: boolean;
+}
+export interface ToleranceMonteCarlo {
+  seed: number;
+  trials: number;
+  temperaturesC: number[];
+  yieldFraction: number;
+  limits: { limit: ToleranceLimitOut; nominal: number[]; yieldFraction: number; undefined: number; stats: MonteCarloStats | null }[];
+  failedCount: number;
+  failed: { trial: number; values: number[]; figures: (number | null)[][]; failedLimits: number[] }[];
+}
+/** Statistics of a figure's trials (as the network Monte Carlo's). */
+export interface MonteCarloStats {
+  count: number; mean: number; sd: number; min: number; max: number;
+  percentiles: { percent: number; value: number }[];
+  yieldFraction: number | null;
+  histogram: { edges: number[]; counts: number[] };
+}
+export interface ToleranceSensitivity {
+  temperatureC: number;
+  figures: {
+    limit: ToleranceLimitOut; nominal: number; sd: number;
+    parts: { part: string; perUnit: number; normalised: number | null; varianceShare: number }[];
+    tightenFirst: string | null;
+  }[];
+  tightenFirst: string | null;
+}
+/** The result of `stageTolerance`; an analysis not asked for is null. */
+export interface StageTolerance {
+  parts: ToleranceVaried[];
+  temperaturesC: number[];
+  worstCase: ToleranceWorstCase | null;
+  monteCarlo: ToleranceMonteCarlo | null;
+  sensitivity: ToleranceSensitivity | null;
+}
 "#;
 
 struct TolOptions {
