@@ -20,6 +20,7 @@ use crate::tolerance::{
     TolStage, DEFAULT_MAX_CORNERS,
 };
 use alloc::format;
+use alloc::string::ToString;
 use alloc::vec;
 use alloc::vec::Vec;
 
