@@ -483,3 +483,58 @@ proptest! {
             "{} + {}", p[0].per_unit, p[1].per_unit);
     }
 }
+
+#[test]
+fn a_figure_not_monotonic_in_a_part_is_searched_inside_its_range() {
+    // Settling time of a transimpedance stage against its feedback capacitor:
+    // too little Cf rings, too much is slow (Rf·Cf), so the settling time dips
+    // near the damping between (common practice, no source). The worst case
+    // must then search Cf inside its range rather than take a corner: the
+    // least settling time lies inside, below both ends and the nominal.
+    let stage = Stage {
+        kind: StageKind::Transimpedance,
+        amplifier: Amplifier::from_gbw(Spread::fixed(1e5), 1e7),
+        point: SpreadPoint::Typ,
+        parts: StageParts {
+            rf: Some(100e3),
+            cf: Some(6e-12),
+            cs: Some(100e-12),
+            ..StageParts::default()
+        },
+    };
+    let ts = TolStage::new(
+        &stage,
+        &[uniform("cf", 60.0)],
+        AmplifierSpread::default(),
+        [25.0, 25.0],
+    )
+    .unwrap();
+    let spec = [Limit {
+        figure: Figure::SettlingTimeS { band: 0.001 },
+        lower: None,
+        upper: None,
+    }];
+    let wc = worst_case(&ts, &spec, DEFAULT_MAX_CORNERS).unwrap();
+    let f = &wc.figures[0];
+    assert_eq!(f.searched, ["Cf"]);
+    let cf = f.min.values[0];
+    assert!(cf > 6e-12 * 0.4 && cf < 6e-12 * 1.6, "{cf}");
+    assert!(f.min.value <= f.nominal);
+    let at = |cf: f64| {
+        loopwright::tolerance::figure_value(
+            &Stage {
+                parts: StageParts {
+                    cf: Some(cf),
+                    ..stage.parts
+                },
+                ..stage.clone()
+            },
+            &spec[0].figure,
+            25.0,
+        )
+        .unwrap()
+    };
+    assert!(f.min.value < at(6e-12 * 0.4) && f.min.value < at(6e-12 * 1.6));
+    // The value reported is the figure at the part values reported.
+    assert_eq!(f.min.value, at(cf));
+}
