@@ -538,3 +538,53 @@ fn a_figure_not_monotonic_in_a_part_is_searched_inside_its_range() {
     // The value reported is the figure at the part values reported.
     assert_eq!(f.min.value, at(cf));
 }
+
+fn follower(amplifier: Amplifier) -> Stage {
+    Stage {
+        kind: StageKind::NonInverting,
+        amplifier,
+        point: SpreadPoint::Typ,
+        parts: StageParts::default(),
+    }
+}
+
+#[test]
+fn figures_match_their_closed_forms() {
+    use loopwright::tolerance::figure_value;
+    use num_complex::Complex64;
+    let rel = |got: f64, want: f64| (got / want - 1.0).abs();
+    // −3 dB bandwidth of a single-pole loop, gain 10: the closed-loop pole
+    // fp·(1 + A0·β) (any feedback text, e.g. Sedra & Smith, Microelectronic
+    // Circuits, 7th ed., ch. 11, from memory), fp = GBW/A0.
+    let s = non_inverting(9e3, 1e3, Amplifier::from_gbw(Spread::fixed(1e5), 1e6));
+    let bw = figure_value(&s, &Figure::BandwidthHz, 25.0).unwrap();
+    assert!(rel(bw, 10.0 * (1.0 + 1e5 * 0.1)) < 1e-9, "{bw}");
+    assert_eq!(figure_value(&s, &Figure::PeakingDb, 25.0).unwrap(), 0.0);
+    // Peaking of a follower whose amplifier has a second pole f2: the closed
+    // loop is 1/D with D = k + s·b + s²/(ωG·ω2), k = 1 + 1/A0,
+    // b = 1/ωG + 1/(A0·ω2); as k·(1 + s/(Q·ω0) + s²/ω0²): ω0² = k·ωG·ω2 and
+    // Q = k/(b·ω0); peak |H|/|H(0)| = Q/√(1 − 1/(4Q²)) for Q > 1/√2 (the
+    // second-order resonance, e.g. Ogata, Modern Control Engineering, 5th ed.,
+    // ch. 7, from memory).
+    let (a0, gbw, f2) = (1e6, 1e7, 2.5e6);
+    let s = follower(Amplifier::from_gbw(Spread::fixed(a0), gbw).with_pole(f2));
+    let (wg, w2) = (std::f64::consts::TAU * gbw, std::f64::consts::TAU * f2);
+    let k = 1.0 + 1.0 / a0;
+    let w0 = (k * wg * w2).sqrt();
+    let q = k / ((1.0 / wg + 1.0 / (a0 * w2)) * w0);
+    let want = 20.0 * (q / (1.0 - 1.0 / (4.0 * q * q)).sqrt()).log10();
+    let pk = figure_value(&s, &Figure::PeakingDb, 25.0).unwrap();
+    assert!((pk - want).abs() < 1e-9, "{pk} vs {want}");
+    // Output impedance of a follower with open-loop output resistance ro:
+    // ro/(1 + A(jω)) (the shunt-sampled output, any feedback text, from memory).
+    let s = follower(Amplifier::from_gbw(Spread::fixed(1e5), 1e6).with_ro(50.0));
+    let f = 1e3;
+    let a = Complex64::new(1e5, 0.0) / Complex64::new(1.0, f * 1e5 / 1e6);
+    let want = 50.0 / (Complex64::new(1.0, 0.0) + a).norm();
+    let z = figure_value(&s, &Figure::OutputImpedanceOhm { freq_hz: f }, 25.0).unwrap();
+    assert!(rel(z, want) < 1e-9, "{z} vs {want}");
+    // Phase of the gain-10 stage at its bandwidth: −45° (a single real pole).
+    let s = non_inverting(9e3, 1e3, Amplifier::from_gbw(Spread::fixed(1e5), 1e6));
+    let ph = figure_value(&s, &Figure::PhaseDeg { freq_hz: bw }, 25.0).unwrap();
+    assert!((ph + 45.0).abs() < 1e-6, "{ph}");
+}
