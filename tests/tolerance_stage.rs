@@ -583,6 +583,39 @@ fn figures_match_their_closed_forms() {
     let want = 50.0 / (Complex64::new(1.0, 0.0) + a).norm();
     let z = figure_value(&s, &Figure::OutputImpedanceOhm { freq_hz: f }, 25.0).unwrap();
     assert!(rel(z, want) < 1e-9, "{z} vs {want}");
+    // Noise of a follower whose only source is the amplifier's white voltage
+    // noise en: the output density is en·|H|, H = A/(1 + A) a single pole at
+    // fc = fp·(1 + A0) with DC gain A0/(1 + A0), so over 0 … B the output is
+    // en·(A0/(1 + A0))·√(fc·atan(B/fc)) (the integral of a one-pole response,
+    // common practice, no source); referred to the input it is en·√B.
+    let en = 10e-9;
+    let mut amp = Amplifier::from_gbw(Spread::fixed(1e5), 1e6);
+    amp.voltage_noise = Some(loopwright::stage::NoiseDensity {
+        density: en,
+        corner_hz: 0.0,
+    });
+    let s = follower(amp);
+    let band: f64 = 1e5;
+    let fc: f64 = 10.0 * (1.0 + 1e5);
+    let want = en * (1e5 / (1.0 + 1e5)) * (fc * (band / fc).atan()).sqrt();
+    let out = figure_value(
+        &s,
+        &Figure::OutputNoiseRms {
+            band_hz: [0.0, band],
+        },
+        25.0,
+    )
+    .unwrap();
+    assert!(rel(out, want) < 1e-8, "{out} vs {want}");
+    let inp = figure_value(
+        &s,
+        &Figure::InputNoiseRms {
+            band_hz: [0.0, band],
+        },
+        25.0,
+    )
+    .unwrap();
+    assert!(rel(inp, en * band.sqrt()) < 1e-8, "{inp}");
     // Phase of the gain-10 stage at its bandwidth: −45° (a single real pole).
     let s = non_inverting(9e3, 1e3, Amplifier::from_gbw(Spread::fixed(1e5), 1e6));
     let ph = figure_value(&s, &Figure::PhaseDeg { freq_hz: bw }, 25.0).unwrap();
