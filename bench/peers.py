@@ -150,16 +150,81 @@ def noise_circuit_1000():
     return run
 
 
+
+def split_lognormal(rng, n, lo, typ, hi, k=3.0):
+    """The split log-normal of src/network/montecarlo.rs: median typ, min and max at k sigma."""
+    import numpy as np
+
+    l, m, h = math.log(lo), math.log(typ), math.log(hi)
+    z = rng.standard_normal(n)
+    bad = np.abs(z) > k
+    while bad.any():
+        z[bad] = rng.standard_normal(bad.sum())
+        bad = np.abs(z) > k
+    return np.exp(m + np.where(z < 0, (m - l) / k, (h - m) / k) * z)
+
+
+def tolerance_gain_1e5(n=100_000, seed=1):
+    """numpy doing the tolerance_gain_1e5 case: Rf, Rg uniform 1 %, A0 split
+    log-normal, |A/(1 + A beta)| in dB at 1 kHz (single pole, GBW 10 MHz), mean, sd,
+    the seven percentiles, yield and a 20-bin histogram."""
+    import numpy as np
+
+    def run():
+        rng = np.random.default_rng(seed)
+        rf = 47e3 * (1 + 0.01 * rng.uniform(-1, 1, n))
+        rg = 1e3 * (1 + 0.01 * rng.uniform(-1, 1, n))
+        a0 = split_lognormal(rng, n, 5e4, 2e5, 1e6)
+        a = a0 / (1 + 1j * 1e3 * a0 / 1e7)
+        db = 20 * np.log10(np.abs(a / (1 + a * rg / (rf + rg))))
+        db.mean(), db.std(ddof=1)
+        np.percentile(db, [0.1, 1, 5, 50, 95, 99, 99.9])
+        np.mean((db >= 33.58) & (db <= 33.67))
+        np.histogram(db, bins=20)
+
+    return run
+
+
+def tolerance_pm_1e4(n=10_000, seed=1):
+    """numpy + scipy doing the tolerance_pm_1e4 case: per trial, the crossover of
+    T = A0 beta/((1 + j f A0/GBW)(1 + j f/8 MHz)) by brentq on log f, PM = 180 + angle T."""
+    import numpy as np
+    from scipy.optimize import brentq
+
+    def run():
+        rng = np.random.default_rng(seed)
+        rf = 1e3 * (1 + 0.01 * rng.uniform(-1, 1, n))
+        rg = 1e3 * (1 + 0.01 * rng.uniform(-1, 1, n))
+        a0 = split_lognormal(rng, n, 5e4, 2e5, 1e6)
+        gbw = split_lognormal(rng, n, 7e6, 1e7, 1.3e7)
+        pm = np.empty(n)
+        for i in range(n):
+            beta = rg[i] / (rf[i] + rg[i])
+
+            def t(f, i=i, beta=beta):
+                return a0[i] * beta / ((1 + 1j * f * a0[i] / gbw[i]) * (1 + 1j * f / 8e6))
+
+            x = brentq(lambda lf: abs(t(10 ** lf)) - 1, 0, 10, xtol=1e-12)
+            pm[i] = 180 + math.degrees(np.angle(t(10 ** x)))
+        pm.mean(), pm.std(ddof=1), np.mean(pm >= 61)
+
+    return run
+
+
+
 CASES = {
     "monte_carlo_1e6": monte_carlo_1e6,
     **freq_cases(),
     "circuit_sweep_1000": circuit_sweep_1000(),
     "noise_circuit_1000": noise_circuit_1000(),
+    "tolerance_gain_1e5": tolerance_gain_1e5(),
+    "tolerance_pm_1e4": tolerance_pm_1e4(),
 }
 
 
 def main():
-    slow = {"noise_circuit_1000": 3}  # about a second per run: three runs
+    # About a second or more per run: three runs.
+    slow = {"noise_circuit_1000": 3, "tolerance_pm_1e4": 3}
     print(json.dumps({key: median_ns(fn, slow.get(key)) for key, fn in CASES.items()}))
 
 

@@ -30,6 +30,7 @@ export {
   circuitStep,
   circuitGainWithin,
   stageDistortion,
+  stageTolerance,
   circuitNoise,
   circuitNoiseIntegral,
   functionCatalog,

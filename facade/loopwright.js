@@ -56,6 +56,8 @@ export const stageDesign = call(glue.stageDesign, [['', options]]);
 export const circuitStep = call(glue.circuitStep, [['', options]]);
 export const circuitGainWithin = call(glue.circuitGainWithin, [['', options]]);
 export const stageDistortion = call(glue.stageDistortion, [['', options]]);
+// Whole-stage tolerance (src/tolerance; docs/tolerance.md).
+export const stageTolerance = call(glue.stageTolerance, [['', options]]);
 // The noise of a whole circuit (src/noise/circuit; docs/noise.md).
 export const circuitNoise = call(glue.circuitNoise, [['', options]]);
 export const circuitNoiseIntegral = call(glue.circuitNoiseIntegral, [['', options]]);

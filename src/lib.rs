@@ -42,6 +42,7 @@ pub mod notation;
 pub mod sheet;
 mod sort;
 pub mod stage;
+pub mod tolerance;
 
 #[cfg(feature = "wasm-lite")]
 pub mod wasm;

@@ -310,13 +310,13 @@ pub fn count_from_number(param: &'static str, x: f64, limit: usize) -> Result<us
 }
 
 /// The generator and the spare normal deviate of the polar method.
-struct Draws {
+pub(crate) struct Draws {
     rng: Xoshiro256PlusPlus,
     spare: Option<f64>,
 }
 
 impl Draws {
-    fn new(seed: u64) -> Draws {
+    pub(crate) fn new(seed: u64) -> Draws {
         Draws {
             rng: Xoshiro256PlusPlus::seed_from_u64(seed),
             spare: None,
@@ -325,12 +325,12 @@ impl Draws {
 
     /// Uniform on [0, 1) with 53 random bits.
     #[inline(always)]
-    fn unit(&mut self) -> f64 {
+    pub(crate) fn unit(&mut self) -> f64 {
         (self.rng.next_u64() >> 11) as f64 * (1.0 / 9_007_199_254_740_992.0)
     }
 
     /// Standard normal by the polar method (two deviates per accepted pair).
-    fn normal(&mut self) -> f64 {
+    pub(crate) fn normal(&mut self) -> f64 {
         if let Some(z) = self.spare.take() {
             return z;
         }
@@ -364,7 +364,7 @@ impl Draws {
     /// logarithms, taken once per run), by its distribution (module doc). Always
     /// within [a_min, a_max].
     #[inline(always)]
-    fn gain(&mut self, range: &GainRange) -> f64 {
+    pub(crate) fn gain(&mut self, range: &GainRange) -> f64 {
         let GainRange {
             dist,
             lo,
@@ -403,7 +403,7 @@ impl Draws {
 /// (`hi`), all > 0, and their natural logarithms `l`, `m`, `h`, computed once per
 /// run instead of once per trial (the same values, so the same draws).
 #[derive(Clone, Copy)]
-struct GainRange {
+pub(crate) struct GainRange {
     dist: GainDistribution,
     lo: f64,
     hi: f64,
@@ -413,7 +413,7 @@ struct GainRange {
 }
 
 impl GainRange {
-    fn new(dist: GainDistribution, lo: f64, typ: f64, hi: f64) -> GainRange {
+    pub(crate) fn new(dist: GainDistribution, lo: f64, typ: f64, hi: f64) -> GainRange {
         GainRange {
             dist,
             lo,

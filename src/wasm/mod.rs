@@ -29,6 +29,8 @@ pub(crate) mod options;
 pub mod sheet;
 #[cfg(feature = "wasm")]
 pub mod stage;
+#[cfg(feature = "wasm")]
+pub mod tolerance;
 
 use crate::Error;
 use wasm_bindgen::prelude::*;

@@ -332,7 +332,12 @@ fn join(base: &str, rest: &str) -> String {
 }
 
 /// A `LoopwrightError` at `param` with the `subject` field of circuit errors.
-fn thrown(param: &str, error: Error, subject: &str, sentence: Option<String>) -> JsValue {
+pub(super) fn thrown(
+    param: &str,
+    error: Error,
+    subject: &str,
+    sentence: Option<String>,
+) -> JsValue {
     let err = error_at(param, error, sentence);
     // Reflect::set only fails on frozen or proxy objects; a fresh Error is neither.
     let _ = js_sys::Reflect::set(&err, &"subject".into(), &subject.into());
@@ -406,7 +411,7 @@ fn model_error(e: CircuitError, base: &str, doc: &Json, sections: bool) -> JsVal
 }
 
 /// A circuit given to an analysis: the circuit itself, or the stage's.
-enum Document {
+pub(super) enum Document {
     Circuit(Circuit),
     Stage(StageCircuit, alloc::boxed::Box<Stage>),
 }
@@ -436,7 +441,7 @@ fn spread_point(name: Option<&str>) -> Result<Option<SpreadPoint>, JsValue> {
 
 /// Read the document in field `field` (a circuit or stage document, an object
 /// or its JSON text), the stage at `point` when given.
-fn document(v: Json, field: &str, point: Option<&str>) -> Result<Document, JsValue> {
+pub(super) fn document(v: Json, field: &str, point: Option<&str>) -> Result<Document, JsValue> {
     let point = spread_point(point)?;
     let (text, doc) = match v {
         Json::String(text) => match crate::json::parse(&text) {

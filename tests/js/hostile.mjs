@@ -325,6 +325,14 @@ export function goodCalls() {
     stageDistortion: [
       { stage: STAGE(), hd2: 0.01, hd3: 0.001, amplitude: 1, level: 1, frequencyHz: 1e3 },
     ],
+    stageTolerance: [
+      {
+        stage: STAGE(),
+        parts: [{ part: 'rf', tolerance: { distribution: 'uniform', percent: 1 } }],
+        spec: [{ figure: 'gainDb', freqHz: 1e3, lower: 20, upper: 21 }],
+        trials: 50,
+      },
+    ],
     circuitNoise: [
       {
         circuit: FOLLOWER,

@@ -516,6 +516,58 @@ TOLERANCES[RC_DENSITY] = ([1e-12], "one nodal solve of the RC")
 TOLERANCES[RC_TOTAL] = ([1e-8], "the core integrates the density to REL_TOL = 1e-9 per piece")
 
 
+# --- tolerance (TOLERANCE.): the gain-48 stage, Rf = 47k and Rg = 1k uniform over ±1 %.
+G48 = '"kind=non-inverting, a0=200k, a0Min=50k, a0Max=1M, gbwHz=10M, rf=47k, rg=1k"'
+TOL_WC = '=TOLERANCE.WORSTCASE(' + G48 + '; "rf=1%, rg=1%"; "gainDb"; 20 kHz)'
+
+
+def gain48_db(rf, rg, a0, f=M(20000), gbw=M(10**7)):
+    """20 log10 |A/(1 + A beta)|, A = A0/(1 + j f A0/GBW), beta = Rg/(Rf + Rg)."""
+    a = a0 / (1 + mp.mpc(0, 1) * f * a0 / gbw)
+    return 20 * mp.log10(abs(a / (1 + a * rg / (rf + rg))))
+
+
+TOL_CORNERS = [gain48_db(rf, rg, a0) for rf in (M(46530), M(47470)) for rg in (M(990), M(1010))
+               for a0 in (M(50000), M(10**6))]
+CASES[TOL_WC] = [min(TOL_CORNERS), gain48_db(M(47000), M(1000), M(200000)), max(TOL_CORNERS)]
+TOLERANCES[TOL_WC] = ([1e-9, 1e-9, 1e-9], "the nodal solve against the closed form, as tests/tolerance_stage.rs")
+
+TOL_YIELD_LIMITS = (M("33.5813"), M("33.6681"))
+TOL_YIELD_TRIALS = 20000
+TOL_YIELD = ('=TOLERANCE.YIELD("kind=non-inverting, a0=1e12, gbwHz=10M, rf=47k, rg=1k"; "rf=1%, rg=1%"; '
+             '"gainDb"; 0; 33.5813; 33.6681; 20000; 1)')
+
+
+def uniform_ratio_yield(r, lo_db, hi_db, t=M("0.01")):
+    """P(lo <= 20 log10(1 + r (1+u)/(1+v)) <= hi), u, v uniform on [-t, t]: for each
+    v the admitted u is an interval whose clipped length is piecewise linear in v,
+    so the trapezoid rule between the breakpoints is exact."""
+    c1 = (10 ** (lo_db / 20) - 1) / r
+    c2 = (10 ** (hi_db / 20) - 1) / r
+
+    def length(v):
+        a = max(c1 * (1 + v) - 1, -t)
+        b = min(c2 * (1 + v) - 1, t)
+        return max(b - a, M(0))
+
+    pts = {-t, t}
+    for c in (c1, c2):
+        for edge in (-t, t):
+            v = (1 + edge) / c - 1
+            if -t < v < t:
+                pts.add(v)
+    pts = sorted(pts)
+    return sum((b - a) * (length(a) + length(b)) / 2 for a, b in zip(pts, pts[1:])) / (2 * t) ** 2
+
+
+# A0 = 1e12 moves the gain by 48/1e12 relative: far below the limits' resolution.
+TOL_YIELD_P = uniform_ratio_yield(M(47), *TOL_YIELD_LIMITS)
+CASES[TOL_YIELD] = [TOL_YIELD_P]
+TOLERANCES[TOL_YIELD] = (
+    float(4 * mp.sqrt(TOL_YIELD_P * (1 - TOL_YIELD_P) / TOL_YIELD_TRIALS) / TOL_YIELD_P),
+    "statistical: 4 standard errors sqrt(y(1 - y)/N) of a share of 20000 seeded draws")
+
+
 def evaluate():
     cases = []
     for f, xs in CASES.items():

@@ -26,6 +26,7 @@ pub mod math;
 pub mod network;
 pub mod noise;
 pub mod stage;
+pub mod tolerance;
 mod words;
 
 use super::errors::{CellError, ErrorKind};
@@ -153,6 +154,7 @@ pub static AREAS: &[&[FunctionSpec]] = &[
     distortion::FUNCTIONS,
     noise::FUNCTIONS,
     stage::FUNCTIONS,
+    tolerance::FUNCTIONS,
 ];
 
 /// Every function, area by area.

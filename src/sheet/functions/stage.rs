@@ -139,7 +139,7 @@ fn document(a: &Args<'_>) -> Result<Json, CellError> {
 }
 
 /// A circuit error as an error value naming the field or element.
-fn circuit_fail(a: &Args<'_>, e: CircuitError) -> CellError {
+pub(super) fn circuit_fail(a: &Args<'_>, e: CircuitError) -> CellError {
     let kind = match e.error {
         crate::Error::UnknownName { .. } | crate::Error::OutOfDomain { .. } => ErrorKind::Value,
         _ => ErrorKind::Num,
@@ -156,11 +156,15 @@ fn circuit_fail(a: &Args<'_>, e: CircuitError) -> CellError {
     CellError::new(kind, detail)
 }
 
+/// The stage of the stage argument (argument 0).
+pub(super) fn stage_of(a: &Args<'_>) -> Result<crate::stage::Stage, CellError> {
+    let doc = document(a)?;
+    read_stage(&doc.to_text()).map_err(|e| circuit_fail(a, e))
+}
+
 /// The circuit the stage argument writes.
 fn stage_circuit(a: &Args<'_>) -> Result<StageCircuit, CellError> {
-    let doc = document(a)?;
-    let stage = read_stage(&doc.to_text()).map_err(|e| circuit_fail(a, e))?;
-    stage.circuit().map_err(|e| circuit_fail(a, e))
+    stage_of(a)?.circuit().map_err(|e| circuit_fail(a, e))
 }
 
 /// The frequency argument (Hz, ≥ 0, checked by the core).

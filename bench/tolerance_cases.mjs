@@ -1,0 +1,67 @@
+// Benchmark cases of whole-stage tolerance (src/tolerance; docs/tolerance.md), in
+// the form of bench/cases.mjs (spread into CASES there). The targets:
+// 10 000 Monte Carlo trials of a stage's phase margin in under 2 s in wasm, and
+// 100 000 trials of its gain at one frequency in under 1 s, beside numpy doing
+// the same draws and figures (bench/peers.py, the same stages).
+//
+// Gain: the gain-48 stage (Rf 47k, Rg 1k, uniform ±1 %; A0 5e4/2e5/1e6; GBW
+// 10 MHz), |H| in dB at 1 kHz. Phase margin: Rf = Rg = 1k uniform ±1 %, A0 as
+// above, GBW 7/10/13 MHz, a second pole at 8 MHz (the "margin2" stage of
+// tests/reference/tolerance_stage.py). A stage document has at most six nodes,
+// so the 11-node stage is not a stage document; this is the stage the
+// reference checks.
+
+const amplifier = (extra) => ({ a0: { min: 5e4, typ: 2e5, max: 1e6 }, gbwHz: 1e7, ...extra });
+const uniform = (part) => ({ part, tolerance: { distribution: 'uniform', percent: 1 } });
+
+export const TOLERANCE_CASES = [
+  {
+    key: 'tolerance_gain_1e5',
+    area: 'tolerance',
+    what: 'stage Monte Carlo, 100 000 trials of the gain at 1 kHz (stageTolerance), stats and yield',
+    heavy: true,
+    make: (lw) => () =>
+      lw.stageTolerance({
+        stage: {
+          format: 'loopwright-stage',
+          version: 1,
+          kind: 'non-inverting',
+          amplifier: amplifier({}),
+          parts: { rf: 47e3, rg: 1e3 },
+        },
+        parts: [uniform('rf'), uniform('rg')],
+        spec: [{ figure: 'gainDb', freqHz: 1e3, lower: 33.58, upper: 33.67 }],
+        analyses: ['monteCarlo'],
+        trials: 100_000,
+        keepFailures: 0,
+      }),
+    python: true,
+    pythonLabel: 'numpy, vectorised closed form',
+    target: '< 1 s',
+  },
+  {
+    key: 'tolerance_pm_1e4',
+    area: 'tolerance',
+    what: 'stage Monte Carlo, 10 000 trials of the phase margin (stageTolerance)',
+    heavy: true,
+    make: (lw) => () =>
+      lw.stageTolerance({
+        stage: {
+          format: 'loopwright-stage',
+          version: 1,
+          kind: 'non-inverting',
+          amplifier: amplifier({ polesHz: [8e6] }),
+          parts: { rf: 1e3, rg: 1e3 },
+        },
+        parts: [uniform('rf'), uniform('rg')],
+        amplifierSpread: { gbwHz: { min: 7e6, typ: 1e7, max: 1.3e7 } },
+        spec: [{ figure: 'phaseMarginDeg', lower: 61 }],
+        analyses: ['monteCarlo'],
+        trials: 10_000,
+        keepFailures: 0,
+      }),
+    python: true,
+    pythonLabel: 'numpy + scipy brentq per trial (closed-form loop gain)',
+    target: '< 2 s',
+  },
+];

@@ -1,0 +1,544 @@
+//! JS binding of the tolerance area (`docs/tolerance.md`): a stage document,
+//! its parts' spreads, the amplifier's spreads, a temperature range and a spec
+//! in one options object; worst case, Monte Carlo and sensitivities out.
+//!
+//! Errors are `LoopwrightError`s whose `param` is the caller's path
+//! (`parts[1].tolerance`, `spec[0].upper`, `temperatureC`, `trials`) and whose
+//! `subject` is the stage element at fault (`Rf`), or `""`.
+
+use super::options::{self, Fields, FromOptions, Plain};
+use super::stage::{document, thrown, Document};
+use super::to_js;
+use crate::circuit::tolerance::Tolerance;
+use crate::circuit::CircuitError;
+use crate::error::Error;
+use crate::json::Json;
+use crate::stage::Spread;
+use crate::tolerance::montecarlo::MonteCarlo;
+use crate::tolerance::parts::Varied;
+use crate::tolerance::sensitivity::Sensitivity;
+use crate::tolerance::worstcase::WorstCase;
+use crate::tolerance::{
+    monte_carlo, sensitivity, validate_spec, worst_case, AmplifierSpread, Figure, Limit,
+    MonteCarloOptions, PartSpread, TolStage, DEFAULT_MAX_CORNERS,
+};
+use alloc::string::String;
+use alloc::vec::Vec;
+use serde::Serialize;
+use wasm_bindgen::prelude::*;
+
+#[wasm_bindgen(typescript_custom_section)]
+const TOLERANCE_TYPES: &str = r#"
+/** A part's tolerance (docs/circuit.md): uniform ±percent, normal ±percent at `sigmas` σ, or limits. */
+export type PartTolerance =
+  | { distribution: "uniform"; percent: number }
+  | { distribution: "normal"; percent: number; sigmas: number }
+  | { distribution: "limits"; min: number; typ: number; max: number };
+/** The spread of one stage part (`rf`, `rg`, `cf`, `rs`, `cs`, `rl`, `cl`, `riso`). */
+export interface PartSpreadOptions { part: string; tolerance?: PartTolerance; tempcoPpm?: number; }
+/** A datasheet figure as min/typ/max. */
+export interface MinTypMax { min: number; typ: number; max: number; }
+/**
+ * One limit of a spec (docs/tolerance.md): the figure, its settings, and the
+ * limits (either may be left out). `freqHz` for gainDb, phaseDeg, gainErrorPercent,
+ * inputImpedanceOhm, outputImpedanceOhm; `target` for gainErrorPercent; `bandHz`
+ * for outputNoiseRms, inputNoiseRms; `band` for settlingTimeS.
+ */
+export interface ToleranceLimit {
+  figure: "gainDb" | "phaseDeg" | "gainErrorPercent" | "bandwidthHz" | "peakingDb" | "phaseMarginDeg" | "gainMarginDb" | "inputImpedanceOhm" | "outputImpedanceOhm" | "outputNoiseRms" | "inputNoiseRms" | "settlingTimeS";
+  freqHz?: number; target?: number; bandHz?: [number, number]; band?: number;
+  lower?: number; upper?: number;
+}
+/** Options of `stageTolerance`. */
+export interface StageToleranceOptions {
+  /** A stage document (docs/stage.md), object or JSON text. */
+  stage: object | string;
+  /** Part spreads; parts left out are exact. */
+  parts?: PartSpreadOptions[];
+  /** The amplifier's GBW and output resistance spreads (A0's is in the model). */
+  amplifierSpread?: { gbwHz?: MinTypMax; ro?: MinTypMax };
+  /** Temperature range, °C (default [25, 25]). */
+  temperatureC?: [number, number];
+  spec: ToleranceLimit[];
+  /** Which analyses (default all three). */
+  analyses?: ("worstCase" | "monteCarlo" | "sensitivity")[];
+  /** Monte Carlo seed, 0 … 2^53 − 1 (default 1). */
+  seed?: number;
+  /** Monte Carlo trials, 2 … 100000 (default 10000). */
+  trials?: number;
+  /** Histogram bins (default 20). */
+  bins?: number;
+  /** Failed trials kept, 0 … 1000 (default 20). */
+  keepFailures?: number;
+  /** Largest corner count enumerated exactly (default 256, at most 65536). */
+  maxCorners?: number;
+}
+/** A varied quantity: its name (`Rf`, `U1.a0`), nominal, extremes at 25 °C, tempco. */
+export interface ToleranceVaried { name: string; nominal: number; low: number; high: number; tempcoPpm: number; }
+/** A limit as the analyses report it: the figure's name and settings, and the limits. */
+export interface ToleranceLimitOut { figure: { figure: string; [setting: string]: unknown }; lower: number | null; upper: number | null; }
+/** An extreme: the figure's value, the part values (in `parts` order) and the temperature. */
+export interface ToleranceExtreme { value: number; values: number[]; temperatureC: number; }
+export interface ToleranceWorstCase {
+  method: "corners" | "sensitivity-guided";
+  parts: string[];
+  evaluations: number;
+  figures: { limit: ToleranceLimitOut; nominal: number; min: ToleranceExtreme; max: ToleranceExtreme; searched: string[]; meets: boolean }[];
+  meets: boolean;
+}
+export interface ToleranceMonteCarlo {
+  seed: number;
+  trials: number;
+  temperaturesC: number[];
+  yieldFraction: number;
+  limits: { limit: ToleranceLimitOut; nominal: number[]; yieldFraction: number; undefined: number; stats: MonteCarloStats | null }[];
+  failedCount: number;
+  failed: { trial: number; values: number[]; figures: (number | null)[][]; failedLimits: number[] }[];
+}
+/** Statistics of a figure's trials (as the network Monte Carlo's). */
+export interface MonteCarloStats {
+  count: number; mean: number; sd: number; min: number; max: number;
+  percentiles: { percent: number; value: number }[];
+  yieldFraction: number | null;
+  histogram: { edges: number[]; counts: number[] };
+}
+export interface ToleranceSensitivity {
+  temperatureC: number;
+  figures: {
+    limit: ToleranceLimitOut; nominal: number; sd: number;
+    parts: { part: string; perUnit: number; normalised: number | null; varianceShare: number }[];
+    tightenFirst: string | null;
+  }[];
+  tightenFirst: string | null;
+}
+/** The result of `stageTolerance`; an analysis not asked for is null. */
+export interface StageTolerance {
+  parts: ToleranceVaried[];
+  temperaturesC: number[];
+  worstCase: ToleranceWorstCase | null;
+  monteCarlo: ToleranceMonteCarlo | null;
+  sensitivity: ToleranceSensitivity | null;
+}
+"#;
+
+struct TolOptions {
+    stage: Json,
+    parts: Vec<PartOptions>,
+    amplifier_spread: Option<AmpSpreadOptions>,
+    temperature_c: Option<Vec<f64>>,
+    spec: Vec<LimitOptions>,
+    analyses: Option<Vec<String>>,
+    seed: f64,
+    trials: f64,
+    bins: f64,
+    keep_failures: f64,
+    max_corners: f64,
+}
+
+impl FromOptions for TolOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "stage",
+        "parts",
+        "amplifierSpread",
+        "temperatureC",
+        "spec",
+        "analyses",
+        "seed",
+        "trials",
+        "bins",
+        "keepFailures",
+        "maxCorners",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        TolOptions {
+            stage: f.document("stage"),
+            parts: f.objects("parts"),
+            amplifier_spread: optional(f, "amplifierSpread"),
+            temperature_c: f.opt_nums("temperatureC"),
+            spec: f.objects("spec"),
+            analyses: texts(f, "analyses"),
+            seed: f.num_or("seed", 1.0),
+            trials: f.num_or("trials", 10_000.0),
+            bins: f.num_or("bins", 20.0),
+            keep_failures: f.num_or("keepFailures", 20.0),
+            max_corners: f.num_or("maxCorners", DEFAULT_MAX_CORNERS as f64),
+        }
+    }
+}
+
+/// A list of names, `None` when left out.
+fn texts(f: &mut Fields, key: &str) -> Option<Vec<String>> {
+    let (at, v) = f.raw(key)?;
+    let items = match v {
+        Plain::List(items) => items,
+        other => {
+            f.refuse(key, at, &other, "a list of names");
+            return None;
+        }
+    };
+    let mut out = Vec::with_capacity(items.len());
+    for item in items {
+        match item {
+            Plain::Text(t) => out.push(t),
+            other => {
+                f.refuse(key, at, &other, "a list of names");
+                return None;
+            }
+        }
+    }
+    Some(out)
+}
+
+fn optional<T: FromOptions>(f: &mut Fields, key: &str) -> Option<T> {
+    let (at, v) = f.raw(key)?;
+    let path = f.key_path(key);
+    f.nested(at, path, v)
+}
+
+#[derive(Default)]
+struct PartOptions {
+    part: String,
+    tolerance: Option<TolOptionsObj>,
+    tempco_ppm: Option<f64>,
+}
+
+impl FromOptions for PartOptions {
+    const FIELDS: &'static [&'static str] = &["part", "tolerance", "tempcoPpm"];
+    fn from_fields(f: &mut Fields) -> Self {
+        PartOptions {
+            part: f.text("part"),
+            tolerance: optional(f, "tolerance"),
+            tempco_ppm: f.opt_num("tempcoPpm"),
+        }
+    }
+}
+
+#[derive(Default)]
+struct TolOptionsObj {
+    distribution: String,
+    percent: Option<f64>,
+    sigmas: Option<f64>,
+    min: Option<f64>,
+    typ: Option<f64>,
+    max: Option<f64>,
+}
+
+impl FromOptions for TolOptionsObj {
+    const FIELDS: &'static [&'static str] =
+        &["distribution", "percent", "sigmas", "min", "typ", "max"];
+    fn from_fields(f: &mut Fields) -> Self {
+        TolOptionsObj {
+            distribution: f.text("distribution"),
+            percent: f.opt_num("percent"),
+            sigmas: f.opt_num("sigmas"),
+            min: f.opt_num("min"),
+            typ: f.opt_num("typ"),
+            max: f.opt_num("max"),
+        }
+    }
+}
+
+#[derive(Default)]
+struct AmpSpreadOptions {
+    gbw_hz: Option<MinTypMaxOptions>,
+    ro: Option<MinTypMaxOptions>,
+}
+
+impl FromOptions for AmpSpreadOptions {
+    const FIELDS: &'static [&'static str] = &["gbwHz", "ro"];
+    fn from_fields(f: &mut Fields) -> Self {
+        AmpSpreadOptions {
+            gbw_hz: optional(f, "gbwHz"),
+            ro: optional(f, "ro"),
+        }
+    }
+}
+
+#[derive(Default)]
+struct MinTypMaxOptions {
+    min: f64,
+    typ: f64,
+    max: f64,
+}
+
+impl FromOptions for MinTypMaxOptions {
+    const FIELDS: &'static [&'static str] = &["min", "typ", "max"];
+    fn from_fields(f: &mut Fields) -> Self {
+        MinTypMaxOptions {
+            min: f.num("min"),
+            typ: f.num("typ"),
+            max: f.num("max"),
+        }
+    }
+}
+
+#[derive(Default)]
+struct LimitOptions {
+    figure: String,
+    freq_hz: Option<f64>,
+    target: Option<f64>,
+    band_hz: Option<Vec<f64>>,
+    band: Option<f64>,
+    lower: Option<f64>,
+    upper: Option<f64>,
+}
+
+impl FromOptions for LimitOptions {
+    const FIELDS: &'static [&'static str] = &[
+        "figure", "freqHz", "target", "bandHz", "band", "lower", "upper",
+    ];
+    fn from_fields(f: &mut Fields) -> Self {
+        LimitOptions {
+            figure: f.text("figure"),
+            freq_hz: f.opt_num("freqHz"),
+            target: f.opt_num("target"),
+            band_hz: f.opt_nums("bandHz"),
+            band: f.opt_num("band"),
+            lower: f.opt_num("lower"),
+            upper: f.opt_num("upper"),
+        }
+    }
+}
+
+const PARTS: [&str; 8] = ["rf", "rg", "cf", "rs", "cs", "rl", "cl", "riso"];
+
+fn missing(path: String) -> JsValue {
+    thrown(&path, Error::Missing { param: "" }, "", None)
+}
+
+fn limit_of(k: usize, l: &LimitOptions) -> Result<Limit, JsValue> {
+    let at = |field: &str| alloc::format!("spec[{k}].{field}");
+    let freq = || l.freq_hz.ok_or_else(|| missing(at("freqHz")));
+    let figure = match l.figure.as_str() {
+        "gainDb" => Figure::GainDb { freq_hz: freq()? },
+        "phaseDeg" => Figure::PhaseDeg { freq_hz: freq()? },
+        "gainErrorPercent" => Figure::GainErrorPercent {
+            freq_hz: freq()?,
+            target: l.target.ok_or_else(|| missing(at("target")))?,
+        },
+        "bandwidthHz" => Figure::BandwidthHz,
+        "peakingDb" => Figure::PeakingDb,
+        "phaseMarginDeg" => Figure::PhaseMarginDeg,
+        "gainMarginDb" => Figure::GainMarginDb,
+        "inputImpedanceOhm" => Figure::InputImpedanceOhm { freq_hz: freq()? },
+        "outputImpedanceOhm" => Figure::OutputImpedanceOhm { freq_hz: freq()? },
+        "outputNoiseRms" | "inputNoiseRms" => {
+            let b = l.band_hz.as_deref().ok_or_else(|| missing(at("bandHz")))?;
+            let [lo, hi] = <[f64; 2]>::try_from(b).map_err(|_| {
+                let e = Error::OutOfDomain {
+                    param: "",
+                    requirement: "must be a list of two frequencies [low, high]",
+                };
+                thrown(&at("bandHz"), e, "", None)
+            })?;
+            if l.figure == "outputNoiseRms" {
+                Figure::OutputNoiseRms { band_hz: [lo, hi] }
+            } else {
+                Figure::InputNoiseRms { band_hz: [lo, hi] }
+            }
+        }
+        "settlingTimeS" => Figure::SettlingTimeS {
+            band: l.band.ok_or_else(|| missing(at("band")))?,
+        },
+        _ => {
+            let e = Error::UnknownName {
+                param: "",
+                expected: crate::tolerance::FIGURE_NAMES,
+            };
+            return Err(thrown(&at("figure"), e, "", None));
+        }
+    };
+    let limit = Limit {
+        figure,
+        lower: l.lower,
+        upper: l.upper,
+    };
+    validate_spec(&[limit]).map_err(|e| thrown(&at(e.param()), e, "", None))?;
+    Ok(limit)
+}
+
+fn tolerance_of(k: usize, t: &TolOptionsObj) -> Result<Tolerance, JsValue> {
+    let at = |field: &str| alloc::format!("parts[{k}].tolerance.{field}");
+    let need = |v: Option<f64>, field: &str| v.ok_or_else(|| missing(at(field)));
+    Ok(match t.distribution.as_str() {
+        "uniform" => Tolerance::Uniform {
+            percent: need(t.percent, "percent")?,
+        },
+        "normal" => Tolerance::Normal {
+            percent: need(t.percent, "percent")?,
+            sigmas: need(t.sigmas, "sigmas")?,
+        },
+        "limits" => Tolerance::Limits {
+            min: need(t.min, "min")?,
+            typ: need(t.typ, "typ")?,
+            max: need(t.max, "max")?,
+        },
+        _ => {
+            let e = Error::UnknownName {
+                param: "",
+                expected: crate::circuit::tolerance::DISTRIBUTION_NAMES,
+            };
+            return Err(thrown(&at("distribution"), e, "", None));
+        }
+    })
+}
+
+fn whole(param: &str, x: f64, limit: usize) -> Result<usize, JsValue> {
+    crate::network::montecarlo::count_from_number("", x, limit)
+        .map_err(|e| thrown(param, e, "", None))
+}
+
+#[derive(Serialize)]
+#[serde(rename_all = "camelCase")]
+struct ToleranceOut {
+    parts: Vec<Varied>,
+    temperatures_c: Vec<f64>,
+    worst_case: Option<WorstCase>,
+    monte_carlo: Option<MonteCarlo>,
+    sensitivity: Option<Sensitivity>,
+}
+
+/// A core error of the analyses under the caller's names.
+fn analysis(e: CircuitError, parts: &[PartOptions]) -> JsValue {
+    let subject = e.name.as_str();
+    let param = match e.error.param() {
+        "tolerance" | "tempco" | "part" => {
+            let field = match e.error.param() {
+                "tempco" => "tempcoPpm",
+                p => p,
+            };
+            let lower = subject.to_ascii_lowercase();
+            match parts.iter().position(|p| p.part == lower) {
+                Some(i) => alloc::format!("parts[{i}].{field}"),
+                None => String::from("parts"),
+            }
+        }
+        "temperature" => String::from("temperatureC"),
+        "gbwHz" => String::from("amplifierSpread.gbwHz"),
+        "ro" => String::from("amplifierSpread.ro"),
+        "maxCorners" | "trials" | "bins" | "keepFailures" => String::from(e.error.param()),
+        p => alloc::format!("stage.{p}"),
+    };
+    thrown(&param, e.error, subject, None)
+}
+
+/// Whole-stage tolerance of a stage document against a spec (docs/tolerance.md),
+/// from `{stage, parts, amplifierSpread, temperatureC, spec, analyses, seed,
+/// trials, bins, keepFailures, maxCorners}`: `{parts, temperaturesC, worstCase,
+/// monteCarlo, sensitivity}` (an analysis not asked for is `null`).
+#[wasm_bindgen(js_name = stageTolerance, unchecked_return_type = "StageTolerance")]
+pub fn stage_tolerance(
+    #[wasm_bindgen(unchecked_param_type = "StageToleranceOptions")] options: JsValue,
+) -> Result<JsValue, JsValue> {
+    let o: TolOptions = options::read("", &options)?;
+    let Document::Stage(_, stage) = document(o.stage, "stage", None)? else {
+        let error = Error::UnknownName {
+            param: "",
+            expected: "loopwright-stage",
+        };
+        return Err(thrown("stage.format", error, "", None));
+    };
+    let mut spreads = Vec::with_capacity(o.parts.len());
+    for (k, p) in o.parts.iter().enumerate() {
+        let Some(part) = PARTS.iter().find(|n| **n == p.part) else {
+            let e = Error::UnknownName {
+                param: "",
+                expected: crate::tolerance::parts::PART_NAMES,
+            };
+            return Err(thrown(&alloc::format!("parts[{k}].part"), e, "", None));
+        };
+        spreads.push(PartSpread {
+            part,
+            tolerance: p
+                .tolerance
+                .as_ref()
+                .map(|t| tolerance_of(k, t))
+                .transpose()?,
+            tempco_ppm: p.tempco_ppm,
+        });
+    }
+    let spread = |m: &Option<MinTypMaxOptions>| {
+        m.as_ref().map(|m| Spread {
+            min: m.min,
+            typ: m.typ,
+            max: m.max,
+        })
+    };
+    let amp = o
+        .amplifier_spread
+        .as_ref()
+        .map(|a| AmplifierSpread {
+            gbw_hz: spread(&a.gbw_hz),
+            ro: spread(&a.ro),
+        })
+        .unwrap_or_default();
+    let temperature_c = match o.temperature_c.as_deref() {
+        None => [25.0, 25.0],
+        Some(&[lo, hi]) => [lo, hi],
+        Some(_) => {
+            let e = Error::OutOfDomain {
+                param: "",
+                requirement: "must be a list of two temperatures [low, high]",
+            };
+            return Err(thrown("temperatureC", e, "", None));
+        }
+    };
+    if o.spec.is_empty() {
+        let e = Error::OutOfDomain {
+            param: "",
+            requirement: "must hold at least one limit",
+        };
+        return Err(thrown("spec", e, "", None));
+    }
+    let spec: Vec<Limit> = o
+        .spec
+        .iter()
+        .enumerate()
+        .map(|(k, l)| limit_of(k, l))
+        .collect::<Result<_, _>>()?;
+    let ts =
+        TolStage::new(&stage, &spreads, amp, temperature_c).map_err(|e| analysis(e, &o.parts))?;
+    let wants = |name: &str| {
+        o.analyses
+            .as_ref()
+            .map_or(true, |a| a.iter().any(|x| x == name))
+    };
+    for (k, a) in o.analyses.iter().flatten().enumerate() {
+        if !["worstCase", "monteCarlo", "sensitivity"].contains(&a.as_str()) {
+            let e = Error::UnknownName {
+                param: "",
+                expected: "worstCase, monteCarlo, sensitivity",
+            };
+            return Err(thrown(&alloc::format!("analyses[{k}]"), e, "", None));
+        }
+    }
+    let max_corners = whole("maxCorners", o.max_corners, usize::MAX)?;
+    let worst = wants("worstCase")
+        .then(|| worst_case(&ts, &spec, max_corners))
+        .transpose()
+        .map_err(|e| analysis(e, &o.parts))?;
+    let mc = if wants("monteCarlo") {
+        let seed =
+            crate::network::seed_from_number(o.seed).map_err(|e| thrown("seed", e, "", None))?;
+        let options = MonteCarloOptions {
+            seed,
+            trials: whole("trials", o.trials, usize::MAX)?,
+            bins: whole("bins", o.bins, usize::MAX)?,
+            keep_failures: whole("keepFailures", o.keep_failures, usize::MAX)?,
+        };
+        Some(monte_carlo(&ts, &spec, options).map_err(|e| analysis(e, &o.parts))?)
+    } else {
+        None
+    };
+    let sens = wants("sensitivity")
+        .then(|| sensitivity(&ts, &spec))
+        .transpose()
+        .map_err(|e| analysis(e, &o.parts))?;
+    to_js(&ToleranceOut {
+        parts: ts.varied.clone(),
+        temperatures_c: ts.temperatures(),
+        worst_case: worst,
+        monte_carlo: mc,
+        sensitivity: sens,
+    })
+}

@@ -1,0 +1,211 @@
+#!/usr/bin/env python3
+"""Oracle for whole-stage tolerance (src/tolerance, docs/tolerance.md).
+
+Stages (all non-inverting, the amplifier a single- or two-pole model with ideal
+input and output, so the closed-loop gain is G = A/(1 + A*beta), beta = Rg/(Rf + Rg),
+A(s) = A0/((1 + s/wp)(1 + s/w2)), wp = 2*pi*GBW/A0, the gain-bandwidth product held
+across the A0 spread):
+
+1. "ideal48": Rf = 47k, Rg = 1k, each uniform +-1 %, an ideal amplifier; spec: the
+   gain within 48 +- 0.5 %. Yield in closed form: with u, v uniform on [-t, t],
+   the share of the square where c1 <= (1 + u)/(1 + v) <= c2; for each v the
+   admitted u is an interval whose clipped length is piecewise linear in v, so
+   the trapezoid rule between its breakpoints is exact, done in exact rational
+   arithmetic (fractions.Fraction).
+2. "gain48": Rf = 47k uniform +-1 %, Rg = 1k normal +-1 % at 3 sigma (truncated
+   there), A0 min/typ/max 5e4/2e5/1e6 (split log-normal, 3 sigma, as
+   src/network/montecarlo.rs), GBW 10 MHz; figures: |G| in dB at 20 kHz and the
+   gain error against 48 at 20 kHz in % (limits -1 .. 0). numpy Monte Carlo of
+   400 000 trials (numpy.random.default_rng(18)): mean, sd, yield. Brute-force
+   corner enumeration (itertools.product over the 2^3 extremes) of both figures:
+   min, max and the part values giving them. sympy derivatives x*dF/dx of the
+   gain in dB with respect to Rf, Rg, A0 and GBW at nominal.
+3. "margin2": Rf = Rg = 1k uniform +-1 %, A0 as above, GBW min/typ/max
+   7/10/13 MHz (split log-normal), a second pole at 8 MHz; figure: the phase
+   margin, 180 + angle T at |T| = 1 (T = A*beta, crossover by scipy brentq on
+   log f). numpy Monte Carlo of 20 000 trials: mean, sd, yield of PM >= 61 deg.
+
+The Rust test (tests/tolerance_stage.rs) runs its own seeded Monte Carlo and
+compares mean and yield within 4 standard errors of the difference of two
+independent estimates: for a mean sqrt(sd^2/N_rust + sd^2/N_numpy), for a
+yield sqrt(p(1 - p)(1/N_rust + 1/N_numpy)); the closed-form yield within 4
+sqrt(p(1 - p)/N_rust); the corners and sympy derivatives within the
+tolerances stated there.
+
+Writes tests/reference/data/tolerance_stage.json; `--check` recomputes and
+compares (rel. tol. 1e-12; the Monte Carlo parts are seeded, so identical).
+"""
+import itertools
+import json
+import math
+import pathlib
+import sys
+from fractions import Fraction
+
+import numpy as np
+import sympy as sp
+from scipy.optimize import brentq
+
+OUT = pathlib.Path(__file__).parent / "data" / "tolerance_stage.json"
+REL_TOL = 1e-12
+K = 3.0
+
+
+def closed_form_yield(rf, rg, tol, target, spec_rel):
+    """Share of (u, v) in [-t, t]^2 with G = 1 + rf(1+u)/(rg(1+v)) within target(1 +- spec)."""
+    t = Fraction(tol)
+    r = Fraction(rf) / Fraction(rg)
+    lo = (Fraction(target) * (1 - Fraction(spec_rel)) - 1) / r
+    hi = (Fraction(target) * (1 + Fraction(spec_rel)) - 1) / r
+
+    def length(v):
+        a = max(lo * (1 + v) - 1, -t)
+        b = min(hi * (1 + v) - 1, t)
+        return max(b - a, Fraction(0))
+
+    points = {-t, t}
+    for c in (lo, hi):
+        for edge in (-t, t):
+            v = (1 + edge) / c - 1
+            if -t < v < t:
+                points.add(v)
+    pts = sorted(points)
+    area = sum((b - a) * (length(a) + length(b)) / 2 for a, b in zip(pts, pts[1:]))
+    return float(area / (2 * t) ** 2)
+
+
+def split_lognormal(rng, n, lo, typ, hi):
+    l, m, h = math.log(lo), math.log(typ), math.log(hi)
+    z = rng.standard_normal(n)
+    bad = np.abs(z) > K
+    while bad.any():
+        z[bad] = rng.standard_normal(bad.sum())
+        bad = np.abs(z) > K
+    sigma = np.where(z < 0, (m - l) / K, (h - m) / K)
+    return np.clip(np.exp(m + sigma * z), lo, hi)
+
+
+def truncated_normal(rng, n, nominal, percent):
+    sigma = nominal * percent / 100 / K
+    z = rng.standard_normal(n)
+    bad = np.abs(z) > K
+    while bad.any():
+        z[bad] = rng.standard_normal(bad.sum())
+        bad = np.abs(z) > K
+    return nominal + sigma * z
+
+
+def gain(rf, rg, a0, gbw, f, f2=None):
+    s = 2j * np.pi * f
+    a = a0 / (1 + s * a0 / (2 * np.pi * gbw))
+    if f2 is not None:
+        a = a / (1 + s / (2 * np.pi * f2))
+    beta = rg / (rf + rg)
+    return a / (1 + a * beta)
+
+
+def phase_margin(rf, rg, a0, gbw, f2):
+    beta = rg / (rf + rg)
+
+    def t(f):
+        s = 2j * math.pi * f
+        return a0 / ((1 + s * a0 / (2 * math.pi * gbw)) * (1 + s / (2 * math.pi * f2))) * beta
+
+    x = brentq(lambda lf: abs(t(10 ** lf)) - 1, 0, 10, xtol=1e-14, rtol=1e-15)
+    return 180 + math.degrees(np.angle(t(10 ** x)))
+
+
+def gain48():
+    rf, rg, a0, gbw, f = 47e3, 1e3, (5e4, 2e5, 1e6), 1e7, 2e4
+    n = 400_000
+    rng = np.random.default_rng(18)
+    rfs = rf * (1 + 0.01 * (2 * rng.random(n) - 1))
+    rgs = truncated_normal(rng, n, rg, 1.0)
+    a0s = split_lognormal(rng, n, *a0)
+    g = np.abs(gain(rfs, rgs, a0s, gbw, f))
+    db = 20 * np.log10(g)
+    err = (g - 48) / 48 * 100
+    ok = (err >= -1.0) & (err <= 0.0)
+    corners = []
+    for x in itertools.product((rf * 0.99, rf * 1.01), (rg * 0.99, rg * 1.01), (a0[0], a0[2])):
+        gg = abs(complex(gain(*x, gbw, f)))
+        corners.append((list(x), 20 * math.log10(gg), (gg - 48) / 48 * 100))
+    ext = {}
+    for k, name in ((1, "gainDb"), (2, "gainErrorPercent")):
+        lo = min(corners, key=lambda c: c[k])
+        hi = max(corners, key=lambda c: c[k])
+        ext[name] = {"min": lo[k], "minValues": lo[0], "max": hi[k], "maxValues": hi[0]}
+    # sympy: x * d(20 log10 |G|)/dx at nominal.
+    # G = A/(1 + A*beta) = 1/(beta + 1/A0 + j f/GBW) for the single-pole A, so
+    # |G|^2 = 1/((beta + 1/A0)^2 + (f/GBW)^2), a real expression to differentiate.
+    Rf, Rg, A0, GBW = sp.symbols("Rf Rg A0 GBW", positive=True)
+    beta = Rg / (Rf + Rg)
+    mag2 = 1 / ((beta + 1 / A0) ** 2 + (sp.Integer(int(f)) / GBW) ** 2)
+    db_sym = 10 * sp.log(mag2) / sp.log(10)
+    at = {Rf: sp.Integer(int(rf)), Rg: sp.Integer(int(rg)), A0: sp.Integer(int(a0[1])),
+          GBW: sp.Integer(int(gbw))}
+    sens = {name: float((x * sp.diff(db_sym, x)).subs(at).evalf(30))
+            for name, x in (("Rf", Rf), ("Rg", Rg), ("U1.a0", A0))}
+    nominal = abs(complex(gain(rf, rg, a0[1], gbw, f)))
+    return {
+        "trials": n,
+        "nominalGainDb": 20 * math.log10(nominal),
+        "gainDb": {"mean": float(db.mean()), "sd": float(db.std(ddof=1))},
+        "gainErrorPercent": {"mean": float(err.mean()), "sd": float(err.std(ddof=1)),
+                             "yield": float(ok.mean())},
+        "corners": ext,
+        "sensitivityGainDb": sens,
+    }
+
+
+def margin2():
+    rf, rg, a0, gbw, f2 = 1e3, 1e3, (5e4, 2e5, 1e6), (7e6, 1e7, 1.3e7), 8e6
+    n = 20_000
+    rng = np.random.default_rng(1818)
+    rfs = rf * (1 + 0.01 * (2 * rng.random(n) - 1))
+    rgs = rg * (1 + 0.01 * (2 * rng.random(n) - 1))
+    a0s = split_lognormal(rng, n, *a0)
+    gbws = split_lognormal(rng, n, *gbw)
+    pm = np.array([phase_margin(*x, f2) for x in zip(rfs, rgs, a0s, gbws)])
+    return {
+        "trials": n,
+        "nominal": phase_margin(rf, rg, a0[1], gbw[1], f2),
+        "mean": float(pm.mean()),
+        "sd": float(pm.std(ddof=1)),
+        "yield": float((pm >= 61.0).mean()),
+    }
+
+
+def make():
+    return {
+        "ideal48": {"yield": closed_form_yield(47e3, 1e3, 0.01, 48, 0.005)},
+        "gain48": gain48(),
+        "margin2": margin2(),
+    }
+
+
+def close(a, b):
+    if isinstance(a, dict):
+        return isinstance(b, dict) and a.keys() == b.keys() and all(close(a[k], b[k]) for k in a)
+    if isinstance(a, list):
+        return isinstance(b, list) and len(a) == len(b) and all(close(x, y) for x, y in zip(a, b))
+    if isinstance(a, float):
+        return isinstance(b, (int, float)) and math.isclose(a, b, rel_tol=REL_TOL, abs_tol=1e-300)
+    return a == b
+
+
+def main():
+    data = make()
+    if "--check" in sys.argv:
+        old = json.loads(OUT.read_text())
+        if not close(data, old):
+            print("differs from", OUT)
+            sys.exit(1)
+        print("ok: tolerance stages match")
+        return
+    OUT.write_text(json.dumps(data, indent=1) + "\n")
+    print(f"wrote {OUT}")
+
+
+if __name__ == "__main__":
+    main()
