@@ -554,9 +554,33 @@ impl Workspace {
         rhs: &[Complex64],
         x: &mut [Complex64],
     ) -> CircuitResult<()> {
+        self.solve_refined(entry, rhs, x)
+            .map_err(|p| no_pivot(c, lay, p))?;
+        for (i, z) in x.iter().enumerate() {
+            if !(z.re.is_finite() && z.im.is_finite()) {
+                let name = c.nodes().get(i + 1).copied().unwrap_or(Name::EMPTY);
+                return Err(CircuitError::new(
+                    Error::Overflow { param: "solution" },
+                    name,
+                ));
+            }
+        }
+        Ok(())
+    }
+
+    /// Factor M (as [`Workspace::solve`]), solve M·x = rhs into `x` and refine
+    /// once; the unknowns are not checked.
+    ///
+    /// # Errors
+    /// The column without a pivot.
+    pub fn solve_refined(
+        &mut self,
+        entry: impl Fn(usize) -> Complex64,
+        rhs: &[Complex64],
+        x: &mut [Complex64],
+    ) -> Result<(), NoPivot> {
         let n = self.n;
-        let a = self.lu.matrix_mut();
-        a.fill(Complex64::new(0.0, 0.0));
+        let a = self.lu.matrix_for(&self.pattern);
         for r in 0..n {
             for &j in self.pattern.row(r) {
                 if let Some(z) = a.get_mut(r * n + j) {
@@ -564,9 +588,7 @@ impl Workspace {
                 }
             }
         }
-        self.lu
-            .factor_filled(&self.pattern)
-            .map_err(|p| no_pivot(c, lay, p))?;
+        self.lu.factor_filled(&self.pattern)?;
         self.lu.solve_into(rhs, x);
         // One step of iterative refinement: r = b − M·x, x += M⁻¹·r. It recovers the
         // digits the elimination lost on badly scaled systems (Golub & Van Loan,
@@ -586,15 +608,6 @@ impl Workspace {
         {
             for (xi, d) in x.iter_mut().zip(&self.correction) {
                 *xi += d;
-            }
-        }
-        for (i, z) in x.iter().enumerate() {
-            if !(z.re.is_finite() && z.im.is_finite()) {
-                let name = c.nodes().get(i + 1).copied().unwrap_or(Name::EMPTY);
-                return Err(CircuitError::new(
-                    Error::Overflow { param: "solution" },
-                    name,
-                ));
             }
         }
         Ok(())
@@ -731,6 +744,8 @@ pub(crate) struct Sweeper<'a> {
     pub cap: Vec<f64>,
     pub rhs: Vec<Complex64>,
     work: Workspace,
+    /// The storage of the transposed solves, made at the first.
+    transposed: Option<Workspace>,
     dc_checked: bool,
     ac_checked: bool,
 }
@@ -754,6 +769,7 @@ impl<'a> Sweeper<'a> {
             cap,
             rhs,
             work,
+            transposed: None,
             dc_checked: false,
             ac_checked: false,
         })
@@ -788,6 +804,38 @@ impl<'a> Sweeper<'a> {
         };
         self.work
             .solve(self.circuit, &self.lay, entry, &self.rhs, x)
+    }
+
+    /// z with M(ω)ᵀ·z = `rhs` at angular frequency `w`, into `z` (length: the
+    /// unknowns), refined once as the forward solve, in storage of its own
+    /// (allocated at the first call): the adjoint solve of the noise analysis.
+    /// No structure check and no check of z.
+    ///
+    /// # Errors
+    /// The column of Mᵀ without a pivot.
+    pub fn solve_transposed_into(
+        &mut self,
+        w: f64,
+        rhs: &[Complex64],
+        z: &mut [Complex64],
+    ) -> Result<(), NoPivot> {
+        let n = self.lay.size;
+        let (g, cap) = (&self.g, &self.cap);
+        // Entry (r, c) of Mᵀ is entry (c, r) of M.
+        let at = move |i: usize| (i % n) * n + i / n;
+        let work = self.transposed.get_or_insert_with(|| {
+            let zero = Complex64::new(0.0, 0.0);
+            let pattern = Pattern::from_fn(n, |i| {
+                g.get(at(i)).is_some_and(|z| *z != zero)
+                    || cap.get(at(i)).is_some_and(|c| *c != 0.0)
+            });
+            Workspace::new(n, pattern)
+        });
+        let entry = |i: usize| match (g.get(at(i)), cap.get(at(i))) {
+            (Some(z), Some(b)) => Complex64::new(z.re, z.im + w * b),
+            _ => Complex64::new(0.0, 0.0),
+        };
+        work.solve_refined(entry, rhs, z)
     }
 
     /// The number of unknowns (the length of the vectors `solve_into` fills).

@@ -170,20 +170,19 @@ fn refine(p: &Pencil, s0: Complex64) -> Option<Complex64> {
     let n = p.n;
     let mut s = s0;
     let mut v = alloc::vec![Complex64::new(1.0, 0.0); n];
+    // One factorization storage for every step (refactor: the same bits as a
+    // fresh Lu::factor, without its allocations).
+    let mut lu = Lu::with_size(n);
     for step in 0..REFINE_STEPS {
         // At the pole itself the pencil is singular to working precision:
         // factor a hair away from it (the iteration converges all the same).
         let mut shift = s;
-        let lu = match Lu::factor(n, p.at(shift)) {
-            Ok(lu) => lu,
-            Err(_) => {
-                shift = s * (1.0 + SHIFT_NUDGE);
-                match Lu::factor(n, p.at(shift)) {
-                    Ok(lu) => lu,
-                    Err(_) => break,
-                }
+        if lu.refactor(&p.at(shift)).is_err() {
+            shift = s * (1.0 + SHIFT_NUDGE);
+            if lu.refactor(&p.at(shift)).is_err() {
+                break;
             }
-        };
+        }
         let y = lu.solve(&p.c_times(&v));
         let norm = y.iter().map(|z| z.norm()).fold(0.0, f64::max);
         if !(norm > 0.0 && norm.is_finite()) {
