@@ -51,8 +51,12 @@ pub struct Lu {
     lower_start: Vec<usize>,
     upper: Vec<usize>,
     upper_start: Vec<usize>,
-    /// The last full elimination of a pattern, replayed while it applies.
+    /// Where the matrices factored by [`Lu::factor_pattern`] may be nonzero.
+    pattern: Option<Pattern>,
+    /// The last full elimination on that pattern, replayed while it applies.
     plan: Option<Plan>,
+    /// The last factorization was a replay: its L and U lists are the plan's.
+    replayed: bool,
     /// The equilibrated pattern entries, kept while a replay may be undone.
     saved: Vec<Complex64>,
     /// The current position of each stored row during a replay.
@@ -138,7 +142,9 @@ impl Lu {
             lower_start: alloc::vec![0; n + 1],
             upper: Vec::with_capacity(n * n / 2),
             upper_start: alloc::vec![0; n + 1],
+            pattern: None,
             plan: None,
+            replayed: false,
             saved: Vec::new(),
             position: alloc::vec![0; n],
             #[cfg(test)]
@@ -159,36 +165,54 @@ impl Lu {
         self.factor_in_place(None)
     }
 
-    /// The storage the next [`Lu::factor_filled`] factors: n × n, row-major.
+    /// Storage for factoring, again and again, n × n matrices whose nonzero
+    /// entries all lie in `pattern` (n: its rows): [`Lu::matrix_for_pattern`],
+    /// then [`Lu::factor_pattern`].
+    pub fn with_pattern(pattern: Pattern) -> Lu {
+        let mut lu = Lu::with_size(pattern.start.len().saturating_sub(1));
+        lu.pattern = Some(pattern);
+        lu
+    }
+
+    /// The storage the next factorization reads: n × n, row-major, as the
+    /// last one left it.
     pub fn matrix_mut(&mut self) -> &mut [Complex64] {
         &mut self.a
     }
 
-    /// [`Lu::matrix_mut`] with every entry off `pattern` set to zero, for the
-    /// caller to write the entries on it. After a factorization of the same
-    /// pattern only the entries its fill made nonzero are cleared, not all n².
-    pub fn matrix_for(&mut self, pattern: &Pattern) -> &mut [Complex64] {
+    /// [`Lu::matrix_mut`] with every entry off the pattern of
+    /// [`Lu::with_pattern`] set to zero, for the caller to write the entries on
+    /// it. After a factorization only the entries its fill made nonzero are
+    /// cleared, not all n².
+    pub fn matrix_for_pattern(&mut self) -> &mut [Complex64] {
         match &self.plan {
-            Some(plan) if plan.pattern == *pattern => {
+            Some(plan) => {
                 for &i in &plan.fill {
                     if let Some(z) = self.a.get_mut(i) {
                         *z = Complex64::new(0.0, 0.0);
                     }
                 }
             }
-            _ => self.a.fill(Complex64::new(0.0, 0.0)),
+            None => self.a.fill(Complex64::new(0.0, 0.0)),
         }
         &mut self.a
     }
 
-    /// Factor the matrix written into [`Lu::matrix_mut`], whose nonzero entries
-    /// all lie in `pattern` (the equilibration then visits only those): the same
-    /// factorization as [`Lu::factor`], bit for bit, without allocating.
+    /// Factor the matrix written into [`Lu::matrix_for_pattern`] (or
+    /// [`Lu::matrix_mut`], zero off the pattern): the same factorization as
+    /// [`Lu::factor`], bit for bit, without allocating once the pivots settle.
+    /// The equilibration visits only the pattern's entries, and the
+    /// elimination of the last full factorization is replayed while partial
+    /// pivoting picks the same rows ([`Plan`]). Without a pattern, as
+    /// [`Lu::refactor`] of the stored matrix.
     ///
     /// # Errors
     /// As [`Lu::factor`].
-    pub fn factor_filled(&mut self, pattern: &Pattern) -> Result<(), NoPivot> {
-        self.factor_in_place(Some(pattern))
+    pub fn factor_pattern(&mut self) -> Result<(), NoPivot> {
+        let pattern = self.pattern.take();
+        let r = self.factor_in_place(pattern.as_ref());
+        self.pattern = pattern;
+        r
     }
 
     /// Equilibrate `self.a` by powers of two (each row, then each column, over
@@ -200,27 +224,27 @@ impl Lu {
     /// replayed when it applies ([`Plan`]); otherwise, or when the replay finds
     /// that partial pivoting picks another row, the full elimination runs.
     fn factor_in_place(&mut self, pattern: Option<&Pattern>) -> Result<(), NoPivot> {
+        self.replayed = false;
         self.equilibrate(pattern);
         let Some(p) = pattern else {
             self.plan = None;
             return self.eliminate();
         };
         if let Some(plan) = self.plan.take() {
-            if plan.pattern == *p {
-                self.save_scaled(p);
-                let outcome = self.replay(&plan);
-                self.plan = Some(plan);
-                match outcome {
-                    Ok(true) => {
-                        #[cfg(test)]
-                        {
-                            self.counts.0 += 1;
-                        }
-                        return Ok(());
+            self.save_scaled(p);
+            let outcome = self.replay(&plan);
+            self.plan = Some(plan);
+            match outcome {
+                Ok(true) => {
+                    self.replayed = true;
+                    #[cfg(test)]
+                    {
+                        self.counts.0 += 1;
                     }
-                    Err(e) => return Err(e),
-                    Ok(false) => self.restore_scaled(p),
+                    return Ok(());
                 }
+                Err(e) => return Err(e),
+                Ok(false) => self.restore_scaled(p),
             }
         }
         if let Err(e) = self.eliminate() {
@@ -429,10 +453,6 @@ impl Lu {
                 }
             }
         }
-        self.lower.clone_from(&plan.lower);
-        self.lower_start.clone_from(&plan.lower_start);
-        self.upper.clone_from(&plan.upper);
-        self.upper_start.clone_from(&plan.upper_start);
         Ok(true)
     }
 
@@ -475,8 +495,17 @@ impl Lu {
             let p = self.perm.get(r).copied().unwrap_or(0) * n;
             self.a.get(p..p + n).unwrap_or(&[])
         };
+        let (lower, lower_start, upper, upper_start) = match (&self.plan, self.replayed) {
+            (Some(p), true) => (&p.lower, &p.lower_start, &p.upper, &p.upper_start),
+            _ => (
+                &self.lower,
+                &self.lower_start,
+                &self.upper,
+                &self.upper_start,
+            ),
+        };
         for r in 0..n {
-            let (row, cols) = (row(r), list(&self.lower, &self.lower_start, r));
+            let (row, cols) = (row(r), list(lower, lower_start, r));
             let mut s = zero;
             for &j in cols {
                 let l = row[j];
@@ -487,7 +516,7 @@ impl Lu {
             x[r] -= s;
         }
         for r in (0..n).rev() {
-            let (row, cols) = (row(r), list(&self.upper, &self.upper_start, r));
+            let (row, cols) = (row(r), list(upper, upper_start, r));
             let mut s = zero;
             for &j in cols {
                 let u = row[j];
@@ -519,7 +548,6 @@ fn list<'a>(items: &'a [usize], start: &[usize], r: usize) -> &'a [usize] {
 /// nonzero — so it holds for any values on the pattern.
 #[derive(Debug, Clone)]
 struct Plan {
-    pattern: Pattern,
     /// Stored row pivoted at each step.
     perm: Vec<usize>,
     /// Per step k: the rows not yet pivoted that may be nonzero in column k.
@@ -548,7 +576,6 @@ impl Plan {
         }
         let mut done = alloc::vec![false; n];
         let mut plan = Plan {
-            pattern: pattern.clone(),
             perm: perm.to_vec(),
             cand: Vec::new(),
             cand_start: alloc::vec![0],
@@ -699,15 +726,15 @@ mod tests {
             c(0.5, 0.0),
             c(0.0, 0.0),
         ];
-        let mut lu = Lu::with_size(n);
+        let mut lu = Lu::with_pattern(pattern);
         let mut x = [c(0.0, 0.0); 5];
         let mut perms = Vec::new();
         for i in 0..400 {
             let w = libm::pow(10.0, -2.0 + 12.0 * i as f64 / 399.0);
             let a = m(w);
-            let slot = lu.matrix_for(&pattern);
+            let slot = lu.matrix_for_pattern();
             slot.copy_from_slice(&a);
-            lu.factor_filled(&pattern).unwrap();
+            lu.factor_pattern().unwrap();
             lu.solve_into(&b, &mut x);
             let fresh = Lu::factor(n, a).unwrap();
             assert_eq!(x.to_vec(), fresh.solve(&b), "w = {w}");

@@ -537,7 +537,7 @@ impl Workspace {
     pub fn new(n: usize, pattern: Pattern) -> Workspace {
         Workspace {
             n,
-            lu: Lu::with_size(n),
+            lu: Lu::with_pattern(pattern.clone()),
             residual: alloc::vec![Complex64::new(0.0, 0.0); n],
             correction: alloc::vec![Complex64::new(0.0, 0.0); n],
             pattern,
@@ -580,7 +580,7 @@ impl Workspace {
         x: &mut [Complex64],
     ) -> Result<(), NoPivot> {
         let n = self.n;
-        let a = self.lu.matrix_for(&self.pattern);
+        let a = self.lu.matrix_for_pattern();
         for r in 0..n {
             for &j in self.pattern.row(r) {
                 if let Some(z) = a.get_mut(r * n + j) {
@@ -588,7 +588,7 @@ impl Workspace {
                 }
             }
         }
-        self.lu.factor_filled(&self.pattern)?;
+        self.lu.factor_pattern()?;
         self.lu.solve_into(rhs, x);
         // One step of iterative refinement: r = b − M·x, x += M⁻¹·r. It recovers the
         // digits the elimination lost on badly scaled systems (Golub & Van Loan,
