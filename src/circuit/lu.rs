@@ -252,7 +252,11 @@ impl Lu {
             self.plan = None;
             return Err(e);
         }
-        self.plan = Some(Plan::record(p, &self.perm, self.n));
+        // The storage of the plan it replaces is reused (a sweep whose pivots
+        // change, or the pole refinement moving between poles, records often).
+        let mut plan = self.plan.take().unwrap_or_default();
+        plan.record(p, &self.perm, self.n);
+        self.plan = Some(plan);
         #[cfg(test)]
         {
             self.counts.1 += 1;
@@ -546,7 +550,7 @@ fn list<'a>(items: &'a [usize], start: &[usize], r: usize) -> &'a [usize] {
 /// the full elimination's scans of every row and column. The structure is
 /// symbolic — every entry the pattern and the fill of this order may make
 /// nonzero — so it holds for any values on the pattern.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, Default)]
 struct Plan {
     /// Stored row pivoted at each step.
     perm: Vec<usize>,
@@ -561,12 +565,18 @@ struct Plan {
     upper_start: Vec<usize>,
     /// The entries (r·n + c) off the pattern that the elimination may fill.
     fill: Vec<usize>,
+    /// Scratch of [`Plan::record`]: the entries that may be nonzero, the rows pivoted.
+    nz: Vec<bool>,
+    done: Vec<bool>,
 }
 
 impl Plan {
-    /// The symbolic elimination of `pattern` (n × n) in the order `perm`.
-    fn record(pattern: &Pattern, perm: &[usize], n: usize) -> Plan {
-        let mut nz = alloc::vec![false; n * n];
+    /// The symbolic elimination of `pattern` (n × n) in the order `perm`,
+    /// in this plan's storage.
+    fn record(&mut self, pattern: &Pattern, perm: &[usize], n: usize) {
+        let nz = &mut self.nz;
+        nz.clear();
+        nz.resize(n * n, false);
         for r in 0..n {
             for &j in pattern.row(r) {
                 if let Some(z) = nz.get_mut(r * n + j) {
@@ -574,33 +584,42 @@ impl Plan {
                 }
             }
         }
-        let mut done = alloc::vec![false; n];
-        let mut plan = Plan {
-            perm: perm.to_vec(),
-            cand: Vec::new(),
-            cand_start: alloc::vec![0],
-            lower: Vec::new(),
-            lower_start: alloc::vec![0],
-            upper: Vec::new(),
-            upper_start: alloc::vec![0],
-            fill: Vec::new(),
-        };
+        let done = &mut self.done;
+        done.clear();
+        done.resize(n, false);
+        self.perm.clear();
+        self.perm.extend_from_slice(perm);
+        for v in [
+            &mut self.cand,
+            &mut self.lower,
+            &mut self.upper,
+            &mut self.fill,
+        ] {
+            v.clear();
+        }
+        for v in [
+            &mut self.cand_start,
+            &mut self.lower_start,
+            &mut self.upper_start,
+        ] {
+            v.clear();
+            v.push(0);
+        }
         for (k, &p) in perm.iter().enumerate() {
-            let first = plan.cand.len();
-            plan.cand
+            let first = self.cand.len();
+            self.cand
                 .extend((0..n).filter(|&r| !done[r] && (r == p || nz[r * n + k])));
-            plan.cand_start.push(plan.cand.len());
-            let u0 = plan.upper.len();
-            plan.upper.extend((k + 1..n).filter(|&j| nz[p * n + j]));
-            plan.upper_start.push(plan.upper.len());
-            for ci in first..plan.cand.len() {
-                let r = plan.cand[ci];
+            self.cand_start.push(self.cand.len());
+            let u0 = self.upper.len();
+            self.upper.extend((k + 1..n).filter(|&j| nz[p * n + j]));
+            self.upper_start.push(self.upper.len());
+            for &r in &self.cand[first..] {
                 if r != p {
-                    for ui in u0..plan.upper.len() {
-                        let i = r * n + plan.upper[ui];
+                    for &j in &self.upper[u0..] {
+                        let i = r * n + j;
                         if !nz[i] {
                             nz[i] = true;
-                            plan.fill.push(i);
+                            self.fill.push(i);
                         }
                     }
                 }
@@ -608,10 +627,9 @@ impl Plan {
             done[p] = true;
         }
         for (r, &p) in perm.iter().enumerate() {
-            plan.lower.extend((0..r).filter(|&j| nz[p * n + j]));
-            plan.lower_start.push(plan.lower.len());
+            self.lower.extend((0..r).filter(|&j| nz[p * n + j]));
+            self.lower_start.push(self.lower.len());
         }
-        plan
     }
 
     fn candidates(&self, k: usize) -> &[usize] {
