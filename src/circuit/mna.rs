@@ -523,7 +523,6 @@ fn solve_matrix(
 /// correction — allocated once, so that a sweep factors and solves at each
 /// frequency without allocating.
 pub(crate) struct Workspace {
-    n: usize,
     lu: Lu,
     residual: Vec<Complex64>,
     correction: Vec<Complex64>,
@@ -531,15 +530,22 @@ pub(crate) struct Workspace {
     /// every frequency): the fill, the equilibration and the residual visit
     /// only these entries.
     pattern: Pattern,
+    /// The entries on the pattern, row after row: where (r·n + c) and, for
+    /// the current matrix, what (read once for the fill and the residual).
+    at: Vec<usize>,
+    values: Vec<Complex64>,
 }
 
 impl Workspace {
     pub fn new(n: usize, pattern: Pattern) -> Workspace {
         Workspace {
-            n,
             lu: Lu::with_pattern(pattern.clone()),
             residual: alloc::vec![Complex64::new(0.0, 0.0); n],
             correction: alloc::vec![Complex64::new(0.0, 0.0); n],
+            at: (0..n)
+                .flat_map(|r| pattern.row(r).iter().map(move |&j| r * n + j))
+                .collect(),
+            values: Vec::new(),
             pattern,
         }
     }
@@ -579,13 +585,12 @@ impl Workspace {
         rhs: &[Complex64],
         x: &mut [Complex64],
     ) -> Result<(), NoPivot> {
-        let n = self.n;
+        self.values.clear();
+        self.values.extend(self.at.iter().map(|&i| entry(i)));
         let a = self.lu.matrix_for_pattern();
-        for r in 0..n {
-            for &j in self.pattern.row(r) {
-                if let Some(z) = a.get_mut(r * n + j) {
-                    *z = entry(r * n + j);
-                }
+        for (&i, &v) in self.at.iter().zip(&self.values) {
+            if let Some(z) = a.get_mut(i) {
+                *z = v;
             }
         }
         self.lu.factor_pattern()?;
@@ -593,10 +598,11 @@ impl Workspace {
         // One step of iterative refinement: r = b − M·x, x += M⁻¹·r. It recovers the
         // digits the elimination lost on badly scaled systems (Golub & Van Loan,
         // Matrix Computations, 4th ed., section 3.5.3, from memory).
+        let mut values = self.values.iter();
         for (r, out) in self.residual.iter_mut().enumerate() {
             let mut s = Complex64::new(0.0, 0.0);
-            for &j in self.pattern.row(r) {
-                s += entry(r * n + j) * x.get(j).copied().unwrap_or_default();
+            for (&j, &v) in self.pattern.row(r).iter().zip(&mut values) {
+                s += v * x.get(j).copied().unwrap_or_default();
             }
             *out = rhs.get(r).copied().unwrap_or_default() - s;
         }
