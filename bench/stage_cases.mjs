@@ -49,6 +49,7 @@ export const STAGE_CASES = [
     area: 'stage',
     what: 'design helper: largest β for 60° phase margin (stageDesign, part "rg")',
     make: (lw) => () => lw.stageDesign({ stage: DIVIDER, part: 'rg', targetPhaseMarginDeg: 60 }),
+    heavy: true,
     target: '< 50 ms',
   },
 ];
