@@ -203,7 +203,7 @@ impl Lu {
     /// [`Lu::factor`], bit for bit, without allocating once the pivots settle.
     /// The equilibration visits only the pattern's entries, and the
     /// elimination of the last full factorization is replayed while partial
-    /// pivoting picks the same rows ([`Plan`]). Without a pattern, as
+    /// pivoting picks the same rows (a recorded plan). Without a pattern, as
     /// [`Lu::refactor`] of the stored matrix.
     ///
     /// # Errors
