@@ -7,6 +7,7 @@
 import { CIRCUIT_CASES } from './circuit_cases.mjs';
 import { NOISE_CASES } from './noise_cases.mjs';
 import { TOLERANCE_CASES } from './tolerance_cases.mjs';
+import { STAGE_CASES } from './stage_cases.mjs';
 import { buildSheet } from './sheet_build.mjs';
 
 // The loop of the freq cases (bench/peers.py builds the same one).
@@ -196,4 +197,5 @@ export const CASES = [
   ...CIRCUIT_CASES,
   ...NOISE_CASES,
   ...TOLERANCE_CASES,
+  ...STAGE_CASES,
 ];

@@ -280,3 +280,16 @@ fn circuit_sweep_1000(bencher: divan::Bencher) {
             .map(|h| h.len())
     });
 }
+
+/// The noise case of bench/noise_cases.mjs (bench/noise_circuit_11.json: 11
+/// nodes, 13 noise sources), every contribution at 1 000 log-spaced frequencies.
+#[divan::bench]
+fn noise_circuit_1000(bencher: divan::Bencher) {
+    use loopwright::noise::circuit::{noise_densities, NoiseSetup};
+    let c = loopwright::circuit::json::read_circuit(include_str!("../bench/noise_circuit_11.json"))
+        .expect("the bench circuit");
+    let mut setup = NoiseSetup::at_node("x", 300.0);
+    setup.input_source = Some("Vs".into());
+    let f = loopwright::freq::log_frequencies(10.0, 1e7, 1000).expect("valid frequencies");
+    bencher.bench(|| noise_densities(black_box(&c), &setup, &f).map(|d| d.total.len()));
+}

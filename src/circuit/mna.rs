@@ -523,7 +523,6 @@ fn solve_matrix(
 /// correction — allocated once, so that a sweep factors and solves at each
 /// frequency without allocating.
 pub(crate) struct Workspace {
-    n: usize,
     lu: Lu,
     residual: Vec<Complex64>,
     correction: Vec<Complex64>,
@@ -531,15 +530,22 @@ pub(crate) struct Workspace {
     /// every frequency): the fill, the equilibration and the residual visit
     /// only these entries.
     pattern: Pattern,
+    /// The entries on the pattern, row after row: where (r·n + c) and, for
+    /// the current matrix, what (read once for the fill and the residual).
+    at: Vec<usize>,
+    values: Vec<Complex64>,
 }
 
 impl Workspace {
     pub fn new(n: usize, pattern: Pattern) -> Workspace {
         Workspace {
-            n,
-            lu: Lu::with_size(n),
+            lu: Lu::with_pattern(pattern.clone()),
             residual: alloc::vec![Complex64::new(0.0, 0.0); n],
             correction: alloc::vec![Complex64::new(0.0, 0.0); n],
+            at: (0..n)
+                .flat_map(|r| pattern.row(r).iter().map(move |&j| r * n + j))
+                .collect(),
+            values: Vec::new(),
             pattern,
         }
     }
@@ -554,27 +560,49 @@ impl Workspace {
         rhs: &[Complex64],
         x: &mut [Complex64],
     ) -> CircuitResult<()> {
-        let n = self.n;
-        let a = self.lu.matrix_mut();
-        a.fill(Complex64::new(0.0, 0.0));
-        for r in 0..n {
-            for &j in self.pattern.row(r) {
-                if let Some(z) = a.get_mut(r * n + j) {
-                    *z = entry(r * n + j);
-                }
+        self.solve_refined(entry, rhs, x)
+            .map_err(|p| no_pivot(c, lay, p))?;
+        for (i, z) in x.iter().enumerate() {
+            if !(z.re.is_finite() && z.im.is_finite()) {
+                let name = c.nodes().get(i + 1).copied().unwrap_or(Name::EMPTY);
+                return Err(CircuitError::new(
+                    Error::Overflow { param: "solution" },
+                    name,
+                ));
             }
         }
-        self.lu
-            .factor_filled(&self.pattern)
-            .map_err(|p| no_pivot(c, lay, p))?;
+        Ok(())
+    }
+
+    /// Factor M (as [`Workspace::solve`]), solve M·x = rhs into `x` and refine
+    /// once; the unknowns are not checked.
+    ///
+    /// # Errors
+    /// The column without a pivot.
+    pub fn solve_refined(
+        &mut self,
+        entry: impl Fn(usize) -> Complex64,
+        rhs: &[Complex64],
+        x: &mut [Complex64],
+    ) -> Result<(), NoPivot> {
+        self.values.clear();
+        self.values.extend(self.at.iter().map(|&i| entry(i)));
+        let a = self.lu.matrix_for_pattern();
+        for (&i, &v) in self.at.iter().zip(&self.values) {
+            if let Some(z) = a.get_mut(i) {
+                *z = v;
+            }
+        }
+        self.lu.factor_pattern()?;
         self.lu.solve_into(rhs, x);
         // One step of iterative refinement: r = b − M·x, x += M⁻¹·r. It recovers the
         // digits the elimination lost on badly scaled systems (Golub & Van Loan,
         // Matrix Computations, 4th ed., section 3.5.3, from memory).
+        let mut values = self.values.iter();
         for (r, out) in self.residual.iter_mut().enumerate() {
             let mut s = Complex64::new(0.0, 0.0);
-            for &j in self.pattern.row(r) {
-                s += entry(r * n + j) * x.get(j).copied().unwrap_or_default();
+            for (&j, &v) in self.pattern.row(r).iter().zip(&mut values) {
+                s += v * x.get(j).copied().unwrap_or_default();
             }
             *out = rhs.get(r).copied().unwrap_or_default() - s;
         }
@@ -586,15 +614,6 @@ impl Workspace {
         {
             for (xi, d) in x.iter_mut().zip(&self.correction) {
                 *xi += d;
-            }
-        }
-        for (i, z) in x.iter().enumerate() {
-            if !(z.re.is_finite() && z.im.is_finite()) {
-                let name = c.nodes().get(i + 1).copied().unwrap_or(Name::EMPTY);
-                return Err(CircuitError::new(
-                    Error::Overflow { param: "solution" },
-                    name,
-                ));
             }
         }
         Ok(())
@@ -731,6 +750,8 @@ pub(crate) struct Sweeper<'a> {
     pub cap: Vec<f64>,
     pub rhs: Vec<Complex64>,
     work: Workspace,
+    /// The storage of the transposed solves, made at the first.
+    transposed: Option<Workspace>,
     dc_checked: bool,
     ac_checked: bool,
 }
@@ -754,6 +775,7 @@ impl<'a> Sweeper<'a> {
             cap,
             rhs,
             work,
+            transposed: None,
             dc_checked: false,
             ac_checked: false,
         })
@@ -788,6 +810,38 @@ impl<'a> Sweeper<'a> {
         };
         self.work
             .solve(self.circuit, &self.lay, entry, &self.rhs, x)
+    }
+
+    /// z with M(ω)ᵀ·z = `rhs` at angular frequency `w`, into `z` (length: the
+    /// unknowns), refined once as the forward solve, in storage of its own
+    /// (allocated at the first call): the adjoint solve of the noise analysis.
+    /// No structure check and no check of z.
+    ///
+    /// # Errors
+    /// The column of Mᵀ without a pivot.
+    pub fn solve_transposed_into(
+        &mut self,
+        w: f64,
+        rhs: &[Complex64],
+        z: &mut [Complex64],
+    ) -> Result<(), NoPivot> {
+        let n = self.lay.size;
+        let (g, cap) = (&self.g, &self.cap);
+        // Entry (r, c) of Mᵀ is entry (c, r) of M.
+        let at = move |i: usize| (i % n) * n + i / n;
+        let work = self.transposed.get_or_insert_with(|| {
+            let zero = Complex64::new(0.0, 0.0);
+            let pattern = Pattern::from_fn(n, |i| {
+                g.get(at(i)).is_some_and(|z| *z != zero)
+                    || cap.get(at(i)).is_some_and(|c| *c != 0.0)
+            });
+            Workspace::new(n, pattern)
+        });
+        let entry = |i: usize| match (g.get(at(i)), cap.get(at(i))) {
+            (Some(z), Some(b)) => Complex64::new(z.re, z.im + w * b),
+            _ => Complex64::new(0.0, 0.0),
+        };
+        work.solve_refined(entry, rhs, z)
     }
 
     /// The number of unknowns (the length of the vectors `solve_into` fills).

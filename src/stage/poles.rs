@@ -28,7 +28,7 @@
 
 use super::eigen::eigenvalues;
 use crate::check;
-use crate::circuit::lu::Lu;
+use crate::circuit::lu::{Lu, Pattern};
 use crate::circuit::mna::Sweeper;
 use crate::circuit::{Circuit, CircuitError, CircuitResult, ElementKind};
 use crate::error::Error;
@@ -166,24 +166,29 @@ fn shifted_inverse(p: &Pencil) -> CircuitResult<(f64, Vec<f64>)> {
 }
 
 /// Shifted inverse iteration from `s0`; the refined pole if it verifies.
-fn refine(p: &Pencil, s0: Complex64) -> Option<Complex64> {
+fn refine(p: &Pencil, s0: Complex64, lu: &mut Lu) -> Option<Complex64> {
     let n = p.n;
     let mut s = s0;
     let mut v = alloc::vec![Complex64::new(1.0, 0.0); n];
+    // G + shift·C into the shared storage, factored on the pencil's pattern:
+    // the same bits as a fresh Lu::factor, without its allocations, and the
+    // elimination of the previous step replayed while its pivots still hold.
+    let factor = |lu: &mut Lu, shift: Complex64| {
+        for (a, (&g, &c)) in lu.matrix_mut().iter_mut().zip(p.g.iter().zip(&p.c)) {
+            *a = Complex64::from(g) + shift * c;
+        }
+        lu.factor_pattern()
+    };
     for step in 0..REFINE_STEPS {
         // At the pole itself the pencil is singular to working precision:
         // factor a hair away from it (the iteration converges all the same).
         let mut shift = s;
-        let lu = match Lu::factor(n, p.at(shift)) {
-            Ok(lu) => lu,
-            Err(_) => {
-                shift = s * (1.0 + SHIFT_NUDGE);
-                match Lu::factor(n, p.at(shift)) {
-                    Ok(lu) => lu,
-                    Err(_) => break,
-                }
+        if factor(lu, shift).is_err() {
+            shift = s * (1.0 + SHIFT_NUDGE);
+            if factor(lu, shift).is_err() {
+                break;
             }
-        };
+        }
         let y = lu.solve(&p.c_times(&v));
         let norm = y.iter().map(|z| z.norm()).fold(0.0, f64::max);
         if !(norm > 0.0 && norm.is_finite()) {
@@ -261,12 +266,16 @@ pub fn circuit_poles(c: &Circuit) -> CircuitResult<CircuitPoles> {
     let mu = eigenvalues(p.n, &m)?;
     let largest = mu.iter().map(|z| z.norm()).fold(0.0, f64::max);
     let mut poles = Vec::new();
+    let pattern = Pattern::from_fn(p.n, |i| {
+        p.g.get(i).is_some_and(|&g| g != 0.0) || p.c.get(i).is_some_and(|&c| c != 0.0)
+    });
+    let mut lu = Lu::with_pattern(pattern);
     for z in mu
         .iter()
         .filter(|z| z.norm() > INFINITE_REL * largest && z.im >= 0.0)
     {
         let s0 = Complex64::from(sigma) - 1.0 / z;
-        if let Some(s) = refine(&p, s0) {
+        if let Some(s) = refine(&p, s0, &mut lu) {
             let s = check::result_complex("poles", s)?;
             poles.push(pole(s));
             if z.im > 0.0 {

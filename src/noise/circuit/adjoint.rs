@@ -14,10 +14,11 @@
 //!
 //! The transposed matrix is factored by the same LU with partial pivoting and
 //! equilibration ([`crate::circuit::lu`]) and refined once, as the forward
-//! solver does.
+//! solver does, in the sweeper's storage for it
+//! ([`Sweeper::solve_transposed_into`]: no allocation per frequency, and the
+//! elimination of one frequency replayed at the next).
 
 use super::output::Selector;
-use crate::circuit::lu::Lu;
 use crate::circuit::mna::Sweeper;
 use crate::circuit::{Circuit, CircuitError, CircuitResult};
 use crate::error::Error;
@@ -68,36 +69,16 @@ impl<'a> Adjoint<'a> {
             self.checked = true;
         }
         let w = TAU * frequency_hz;
-        let n = self.sweeper.lay.size;
-        let mut mt = alloc::vec![Complex64::default(); n * n];
-        for (k, (g, b)) in self.sweeper.g.iter().zip(&self.sweeper.cap).enumerate() {
-            let (r, col) = (k / n, k % n);
-            if let Some(x) = mt.get_mut(col * n + r) {
-                *x = Complex64::new(g.re, g.im + w * b);
-            }
-        }
         let rhs = selector.at(w);
-        let lu = Lu::factor(n, mt.clone()).map_err(|_| {
-            CircuitError::from(Error::Singular {
-                param: "frequencies_hz",
-                reason: "the circuit equations are singular at this frequency (a resonance without loss?)",
-            })
-        })?;
-        let mut z = lu.solve(&rhs);
-        // One step of iterative refinement, as the forward solver.
-        let residual: Vec<Complex64> = (0..n)
-            .map(|r| {
-                let row = mt.get(r * n..(r + 1) * n).unwrap_or(&[]);
-                rhs.get(r).copied().unwrap_or_default()
-                    - row.iter().zip(&z).map(|(a, b)| a * b).sum::<Complex64>()
-            })
-            .collect();
-        let dz = lu.solve(&residual);
-        if dz.iter().all(|v| v.re.is_finite() && v.im.is_finite()) {
-            for (zi, d) in z.iter_mut().zip(dz) {
-                *zi += d;
-            }
-        }
+        let mut z = alloc::vec![Complex64::default(); self.sweeper.lay.size];
+        self.sweeper
+            .solve_transposed_into(w, &rhs, &mut z)
+            .map_err(|_| {
+                CircuitError::from(Error::Singular {
+                    param: "frequencies_hz",
+                    reason: "the circuit equations are singular at this frequency (a resonance without loss?)",
+                })
+            })?;
         if z.iter().all(|v| v.re.is_finite() && v.im.is_finite()) {
             Ok(z)
         } else {

@@ -1,0 +1,108 @@
+// Two builds of the full wasm module, timed on the same cases in one interleaved run
+// (alternating calls, so both see the same machine load): the before/after figures
+// of a change to the core, without building the two packages `make bench-compare`
+// needs. Figures only; nothing here asserts a time.
+//
+// Build each checkout's module for Node (from its own directory):
+//   cargo rustc --lib --crate-type cdylib --release --target wasm32-unknown-unknown \
+//     --features wasm && wasm-bindgen --target nodejs --out-dir <dir> --out-name lw \
+//     target/wasm32-unknown-unknown/release/loopwright.wasm
+// then: node bench/pair.mjs <before dir> <after dir> [case …]
+// Prints, per case: the median and the fastest call of each, and the median of
+// the per-round ratios after ÷ before.
+
+import { readFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { join, resolve } from 'node:path';
+
+const require = createRequire(import.meta.url);
+const [beforeDir, afterDir, ...only] = process.argv.slice(2);
+if (!beforeDir || !afterDir) {
+  console.error('usage: node bench/pair.mjs <before dir> <after dir> [case …]');
+  process.exit(2);
+}
+const mods = {
+  before: require(join(resolve(beforeDir), 'lw.js')),
+  after: require(join(resolve(afterDir), 'lw.js')),
+};
+
+// The circuit of bench/circuit_cases.mjs: a VCVS op-amp driving a six-section RC
+// ladder, fed back from its end (11 nodes, 13 unknowns).
+const ladder = (() => {
+  const els = [
+    { name: 'Vs', kind: 'voltage-source', nodes: ['s', '0'], value: 1 },
+    { name: 'Rs', kind: 'resistor', nodes: ['s', 'in'], value: '1k' },
+    { name: 'Ri', kind: 'resistor', nodes: ['in', 'fb'], value: '1M' },
+    { name: 'A', kind: 'vcvs', nodes: ['a', '0'], control: ['in', 'fb'], value: 1e5 },
+    { name: 'Ro', kind: 'resistor', nodes: ['a', 'n1'], value: 75 },
+  ];
+  for (let k = 1; k <= 6; k++) {
+    els.push({ name: `R${k}`, kind: 'resistor', nodes: [`n${k}`, `n${k + 1}`], value: '1k' });
+    els.push({ name: `C${k}`, kind: 'capacitor', nodes: [`n${k + 1}`, '0'], value: '1n' });
+  }
+  els.push({ name: 'Rf', kind: 'resistor', nodes: ['n7', 'fb'], value: '9k' });
+  els.push({ name: 'Rg', kind: 'resistor', nodes: ['fb', '0'], value: '1k' });
+  return JSON.stringify({ format: 'loopwright-circuit', version: 1, elements: els });
+})();
+const noiseJson = readFileSync(new URL('./noise_circuit_11.json', import.meta.url), 'utf8');
+const freqs = new Float64Array(1000).map((_, i) => 10 ** (1 + (6 * i) / 999));
+// The stage of benches/core.rs (20 MHz amplifier, a pole at 80 MHz, input
+// capacitances, Ro = 40 Ω) as a non-inverting gain of 2 into 2 kΩ ‖ 1 nF via 20 Ω.
+const divider = JSON.stringify({
+  format: 'loopwright-stage',
+  version: 1,
+  kind: 'non-inverting',
+  amplifier: {
+    a0: 1e6,
+    gbwHz: 2e7,
+    polesHz: [8e7],
+    rd: 1e12,
+    cd: 4e-12,
+    rcm: 1e12,
+    ccm: 3e-12,
+    ro: 40,
+  },
+  parts: { rf: 1e5, rg: 1e5, rs: 1e9, rl: 2e3, cl: 1e-9, riso: 20 },
+});
+const CASES = {
+  circuit_sweep_1000: (m) => () =>
+    m.circuitSweep({ circuit: ladder, source: 'Vs', plus: 'n7', minus: '0', frequencies: freqs }),
+  noise_circuit_1000: (m) => () =>
+    m.circuitNoise({ circuit: noiseJson, output: 'x', frequenciesHz: freqs, inputSource: 'Vs' }),
+  stage_design_rg: (m) => () =>
+    m.stageDesign({ stage: divider, part: 'rg', targetPhaseMarginDeg: 60 }),
+  freq_sweep_10k: (m) => () =>
+    m.loopGainSweep({
+      amplifier: { gain: 1e5, polesHz: [10, 1e5, 1e6, 3e6, 1e7, 3e7], zerosHz: [2e6, 5e7] },
+      beta: 0.1,
+      startHz: 1,
+      stopHz: 1e9,
+      points: 10_000,
+    }),
+};
+
+const median = (a) => [...a].sort((x, y) => x - y)[a.length >> 1];
+const ms = (x) => `${x.toFixed(3)} ms`;
+for (const [key, make] of Object.entries(CASES)) {
+  if (only.length > 0 && !only.includes(key)) continue;
+  const fns = { before: make(mods.before), after: make(mods.after) };
+  fns.before();
+  fns.after();
+  const t = { before: [], after: [] };
+  const t0 = performance.now();
+  let rounds = 0;
+  while (rounds < 15 || (performance.now() - t0 < 4000 && rounds < 200)) {
+    for (const k of rounds % 2 ? ['after', 'before'] : ['before', 'after']) {
+      const s = performance.now();
+      fns[k]();
+      t[k].push(performance.now() - s);
+    }
+    rounds++;
+  }
+  const ratio = median(t.after.map((a, i) => a / t.before[i]));
+  console.log(
+    `${key}: before ${ms(median(t.before))} (fastest ${ms(Math.min(...t.before))}), ` +
+      `after ${ms(median(t.after))} (fastest ${ms(Math.min(...t.after))}), ` +
+      `after ÷ before ${ratio.toFixed(2)} over ${rounds} rounds`,
+  );
+}
