@@ -124,3 +124,39 @@ test('the Nyquist plot stays round and inside at 390 px', async () => {
   assert.deepEqual(problems, []);
   await context.close();
 });
+
+test('a compensation the target does not need says so and offers no Use', async () => {
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    width: 1366,
+    height: 900,
+  });
+  await page.click('#tab-stage');
+  // The demo stage meets 45° without Cf: stageDesign's answer is the end of its
+  // range (1e-18 F), which is no design value.
+  const d = await page.evaluate(async (stage) => {
+    const m = await import('/pkg/loopwright.js');
+    const cf = m.stageDesign({ stage, part: 'cf', targetPhaseMarginDeg: 45 });
+    return { atRangeEnd: cf.atRangeEnd, pm: m.formatPlain(cf.phaseMarginDeg, '°', 3) };
+  }, DEMO_STAGE);
+  assert.equal(d.atRangeEnd, true);
+  const shown = await page.locator('#stage-design-cf').textContent();
+  assert.equal(shown, `not needed: the target margin is met without it (PM ${d.pm})`);
+  assert.equal(await page.locator('#stage-use-cf').count(), 0);
+  assert.doesNotMatch(await page.locator('.stage-design').textContent(), /e-18|aF/);
+  await page.locator('.stage-design').screenshot({
+    path: join(ARTIFACTS, 'stage-design-not-needed.png'),
+  });
+  // A stage that does need it: gain 2 with 1 MΩ parts puts the input capacitance's
+  // pole in β (1/(2π·500 kΩ·7 pF), about 45 kHz) under the crossover (about
+  // 500 kHz); Cf then has a value and a Use that gives the target margin.
+  await typeField(page, 'rf', '1M');
+  await typeField(page, 'rg', '1M');
+  const cfText = await page.locator('#stage-design-cf').textContent();
+  assert.doesNotMatch(cfText, /not needed/);
+  assert.match(cfText, /F$/);
+  await page.click('#stage-use-cf');
+  const pm = Number.parseFloat(await page.locator('#stage-out-margin-pm').textContent());
+  assert.ok(pm >= 45 - 0.01, `PM ${pm} after the Cf`);
+  assert.deepEqual(problems, []);
+  await context.close();
+});
