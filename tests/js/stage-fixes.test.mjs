@@ -160,3 +160,64 @@ test('a compensation the target does not need says so and offers no Use', async 
   assert.deepEqual(problems, []);
   await context.close();
 });
+
+test('a pair with a two-part Rf shows the parts in the Rf note and the report', async () => {
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    width: 1366,
+    height: 900,
+  });
+  await page.click('#tab-stage');
+  // The gain-48 ± 0.5 % job of issue 20 on E96 parts.
+  await typeField(page, 'gain', '48');
+  await typeField(page, 'tolerance', '0.5%');
+  const rows = page.locator('.stage-pairs tbody tr');
+  const n = await rows.count();
+  let pick = -1;
+  let parts = '';
+  for (let i = 0; i < n; i++) {
+    const rf = await rows.nth(i).locator('td').nth(1).textContent();
+    if (/[+‖]/.test(rf)) {
+      pick = i;
+      parts = rf;
+      break;
+    }
+  }
+  assert.ok(pick >= 0, 'a two-part Rf among the candidates');
+  await page.click(`#stage-use-pair-${pick}`);
+  const rf = await page.inputValue('#stage-rf');
+  // The stage gets the total: the two parts' sum (series) read by the core's reader.
+  const total = await page.evaluate(
+    async ({ rf, parts }) => {
+      const m = await import('/pkg/loopwright.js');
+      const [a, b] = parts.split(/ [+‖] /).map((t) => m.parseValue(t, { unit: 'Ω' }));
+      return {
+        rf: m.parseValue(rf, { unit: 'Ω' }),
+        sum: parts.includes('+') ? a + b : (a * b) / (a + b),
+      };
+    },
+    { rf, parts },
+  );
+  // The table shows the parts to three digits (E96 values have three): the total
+  // agrees to that.
+  assert.ok(Math.abs(total.rf / total.sum - 1) < 1e-9, `${total.rf} vs ${total.sum}`);
+  const note = await page.locator('#stage-rf-note').textContent();
+  assert.equal(note, `two parts: ${parts}; the stage carries their total`);
+  assert.equal(await page.getAttribute('#stage-rf', 'aria-describedby'), 'stage-rf-note');
+  await page.locator('.stage-group-parts').screenshot({
+    path: join(ARTIFACTS, 'stage-rf-two-parts.png'),
+  });
+  await page.click('#stage-report-button');
+  const inputs = await page.locator('#stage-report .report-inputs').allTextContents();
+  assert.ok(
+    inputs.some((t) => t.includes(`${rf} (two parts: ${parts})`)),
+    inputs.join(' | '),
+  );
+  // Typing another Rf drops the note (it no longer names the parts); undo brings both back.
+  await typeField(page, 'rf', '4k7');
+  assert.equal(await page.locator('#stage-rf-note').count(), 0);
+  await page.click('#stage-undo');
+  assert.equal(await page.inputValue('#stage-rf'), rf);
+  assert.equal(await page.locator('#stage-rf-note').textContent(), note);
+  assert.deepEqual(problems, []);
+  await context.close();
+});

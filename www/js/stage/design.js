@@ -148,7 +148,13 @@ function pairTable(api, r, values, use) {
         {},
         useButton(`stage-use-pair-${i}`, 'Use', () =>
           use(
-            { rf: formatFull(leg.value), rg: formatFull(c.r1) },
+            // The stage holds one Rf: the total; the two parts go in the field's note
+            // and the report's inputs (rfParts).
+            {
+              rf: formatFull(leg.value),
+              rg: formatFull(c.r1),
+              rfParts: leg.joint === 'single' ? '' : rfText,
+            },
             `the pair Rg ${formatEngineering(c.r1, 4, 'Ω')}, Rf ${rfText}`,
           ),
         ),
