@@ -221,3 +221,61 @@ test('a pair with a two-part Rf shows the parts in the Rf note and the report', 
   assert.deepEqual(problems, []);
   await context.close();
 });
+
+test('fanned-out percentages show as %, and formulas and copies get the same number', async () => {
+  for (const width of [1366, 390]) {
+    const { context, page, problems } = await openPage(env.browser, env.url, {
+      width,
+      height: 900,
+    });
+    await context.grantPermissions(['clipboard-read', 'clipboard-write']);
+    await page.click('#tab-sheet');
+    const cellOf = (a) => page.locator(`#cell-${a}`);
+    const typeAt = async (a, text) => {
+      await cellOf(a).click();
+      await page.keyboard.type(text);
+      await page.keyboard.press('Enter');
+    };
+    await typeAt('A1', '=FEEDBACK.SPREAD(0.01; 50k; 100k; 200k)');
+    // FEEDBACK.SPREAD's catalog example (closed form Af = A/(1 + Aβ),
+    // src/sheet/functions/feedback.rs): lowest Af relative to typical
+    // −0.09980039920160234 %, spread 0.1497754116953593 %, 1497.754116953593 ppm.
+    assert.equal((await cellOf('D1').textContent()).trim(), '-0.0998004 %');
+    assert.equal((await cellOf('F1').textContent()).trim(), '0.149775 %');
+    // Af itself keeps its plain display; ppm is not a percentage.
+    assert.equal((await cellOf('B1').textContent()).trim(), '99.9001');
+    assert.equal((await cellOf('G1').textContent()).trim(), '1.49775 k');
+    // The number is unchanged: the cell's full value, a formula that refers to it
+    // and a copy all carry −0.09980039920160234.
+    assert.equal(await cellOf('D1').getAttribute('data-value'), '-0.09980039920160234');
+    await typeAt('A3', '=D1*1000');
+    assert.equal((await cellOf('A3').textContent()).trim(), '-99.8004 %');
+    await typeAt('A4', '=D1+1Ω');
+    assert.equal((await cellOf('A4').textContent()).trim(), '#VALUE!');
+    // The migration of pkg-config/CHANGELOG.md: SUM gives the plain number.
+    // −0.09980039920160234 + 1 = 0.9001996007983977 Ω.
+    await typeAt('A5', '=SUM(D1)+1Ω');
+    assert.equal((await cellOf('A5').textContent()).trim(), '900.2 mΩ');
+    await cellOf('D1').click();
+    await page.keyboard.press('Control+C');
+    const copied = await page.evaluate(() => navigator.clipboard.readText());
+    assert.equal(copied.trim(), '-0.09980039920160234');
+    // NETWORK.WORSTCASE's deviations relative to nominal (its catalog example,
+    // corners closed form, tests/reference/sheet_catalog.py): −1.79165 %, +1.82318 %.
+    await typeAt(
+      'A6',
+      '=NETWORK.WORSTCASE("non-inverting"; "gain"; 1k; 9k; 1%; 50k; 100k; 200k; 1M; 50; 10 Hz)',
+    );
+    assert.equal((await cellOf('D6').textContent()).trim(), '-1.79165 %');
+    assert.equal((await cellOf('E6').textContent()).trim(), '1.82318 %');
+    assert.equal((await cellOf('B6').textContent()).trim(), '9.81985');
+    assert.match(
+      await cellOf('D6').getAttribute('title'),
+      /^minimum relative to nominal, % — NETWORK\.WORSTCASE: -1\.79164805646\d* %$/,
+    );
+    await cellOf('A1').scrollIntoViewIfNeeded();
+    await page.screenshot({ path: join(ARTIFACTS, `worksheet-percent-${width}.png`) });
+    assert.deepEqual(problems, []);
+    await context.close();
+  }
+});
