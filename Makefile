@@ -70,7 +70,7 @@ test-browser:
 	GECKODRIVER=$$(command -v geckodriver) cargo test --target wasm32-unknown-unknown --features wasm --test 'wasm_*'
 
 test-page:
-	cd tests/js && GECKODRIVER=$$(command -v geckodriver) node --test format.test.mjs page.test.mjs page-fixes.test.mjs page-choose.test.mjs loader.test.mjs sheet.test.mjs sheetfiles.test.mjs stage-view.test.mjs firefox.test.mjs
+	cd tests/js && GECKODRIVER=$$(command -v geckodriver) node --test format.test.mjs page.test.mjs page-fixes.test.mjs page-choose.test.mjs loader.test.mjs sheet.test.mjs sheetfiles.test.mjs stage-view.test.mjs stage-fixes.test.mjs firefox.test.mjs
 
 # package.test.mjs: the packed package as a user installs it; hostile.test.mjs: the
 # hostile-call campaign over every export (LOOPWRIGHT_HOSTILE_LONG=1 for the long run).

@@ -24,6 +24,12 @@ pub enum Unit {
     Watt,
     /// s.
     Second,
+    /// % — a display unit only: a result that is already a percentage (the
+    /// worst-case deviation −0.0998 % is the number −0.0998), shown as `−0.0998 %`
+    /// without an SI prefix. No literal is read into it (the reader's `%` scales
+    /// the number by 0.01 instead), so it is not in [`Unit::ALL`] and
+    /// [`Unit::from_word`] does not return it; [`Unit::from_result_word`] does.
+    Percent,
 }
 
 /// Every spelling the reader accepts, longest first where one spelling begins
@@ -45,7 +51,7 @@ pub(crate) const SPELLINGS: [(&str, Unit); 13] = [
 ];
 
 impl Unit {
-    /// Every unit.
+    /// Every unit a literal may carry (all but the display unit [`Unit::Percent`]).
     pub const ALL: [Unit; 10] = [
         Unit::Ohm,
         Unit::Volt,
@@ -72,6 +78,7 @@ impl Unit {
             Unit::Decibel => "dB",
             Unit::Watt => "W",
             Unit::Second => "s",
+            Unit::Percent => "%",
         }
     }
 
@@ -84,6 +91,24 @@ impl Unit {
     /// ```
     pub fn from_word(s: &str) -> Option<Unit> {
         SPELLINGS.iter().find(|(w, _)| *w == s).map(|&(_, u)| u)
+    }
+
+    /// The unit a function's catalog entry states for a result: a unit word as
+    /// [`Unit::from_word`] reads it, or `%` for a result that is already a
+    /// percentage ([`Unit::Percent`], shown without scaling).
+    ///
+    /// ```
+    /// use loopwright::notation::Unit;
+    /// assert_eq!(Unit::from_result_word("%"), Some(Unit::Percent));
+    /// assert_eq!(Unit::from_word("%"), None);
+    /// assert_eq!(Unit::from_result_word("Hz"), Some(Unit::Hertz));
+    /// ```
+    pub fn from_result_word(s: &str) -> Option<Unit> {
+        if s == "%" {
+            Some(Unit::Percent)
+        } else {
+            Unit::from_word(s)
+        }
     }
 
     /// What a value declared in this unit must be written in, for the reader's error.
@@ -99,6 +124,7 @@ impl Unit {
             Unit::Decibel => "this value is in dB: write it in dB or as a plain number",
             Unit::Watt => "this value is in W: write it in W or as a plain number",
             Unit::Second => "this value is in s: write it in s or as a plain number",
+            Unit::Percent => "this value is a percentage: write it as a plain number",
         }
     }
 }

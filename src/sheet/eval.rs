@@ -433,15 +433,17 @@ fn call(spec: &'static FunctionSpec, args: &[Expr], ev: &Eval<'_>) -> Value {
 /// Tag the numbers of a catalog function's result with the units its catalog entry
 /// states (`result_unit`, one per spilled column, separated by `; `), where a
 /// number has none and the stated unit is a unit word (`Hz`, `s`, `Ω`…), so that a
-/// cell shows `6.88771 µs`, not a bare number. Units the reader does not know
-/// (`V/V`, `%`, `as a`) leave the number as it is.
+/// cell shows `6.88771 µs`, not a bare number; a result stated in `%` (already a
+/// percentage) gets the display unit [`Unit::Percent`], so that it shows
+/// `-0.0998004 %`, not `-99.8004 m`. The number itself is never changed. Units
+/// the reader does not know (`V/V`, `as a`) leave the number as it is.
 fn with_result_units(spec: &FunctionSpec, v: Value) -> Value {
     let unit_at = |col: usize| {
         let n = spec.result_unit.split("; ").count();
         spec.result_unit
             .split("; ")
             .nth(col % n.max(1))
-            .and_then(Unit::from_word)
+            .and_then(Unit::from_result_word)
     };
     match v {
         Value::Number(x, None) => Value::Number(x, unit_at(0)),
@@ -528,6 +530,59 @@ mod tests {
             ErrorKind::Value
         );
         assert_eq!(kind("DB.VOLTAGERATIO(3 Hz)"), ErrorKind::Value);
+    }
+
+    #[test]
+    fn percent_results_carry_the_percent_display_unit() {
+        // NETWORK.WORSTCASE's deviations relative to nominal are percentages: the
+        // catalog example's minimum is Af at the corner R1 + 1 %, R2 − 1 %,
+        // A = 50k, i.e. 9.819853209032997 against 9.99900009999 nominal, or
+        // −1.7916480564609882 % (the entry's closed form,
+        // tests/reference/sheet_catalog.py). The number stays that, the unit is %.
+        let Value::Array(a) = ev(
+            "NETWORK.WORSTCASE(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 50k; 100k; 200k; 1M; 50; 10 Hz)",
+        ) else {
+            panic!("no array")
+        };
+        assert_eq!(a.get(0, 0), Value::Number(9.99900009999, None));
+        assert_eq!(a.get(0, 1).display(), "9.819853209032997");
+        let Value::Number(low, Some(Unit::Percent)) = a.get(0, 3) else {
+            panic!("{:?}", a.get(0, 3))
+        };
+        assert!((low - -1.791_648_056_460_988_2).abs() < 1e-12, "{low}");
+        assert_eq!(
+            crate::notation::format_value(low, Unit::Percent.symbol(), 6).unwrap(),
+            "-1.79165 %"
+        );
+        assert!(matches!(a.get(0, 4), Value::Number(_, Some(Unit::Percent))));
+        // A small deviation reads as a percentage, not with the prefix m.
+        assert_eq!(
+            crate::notation::format_value(-0.099_800_4, "%", 6).unwrap(),
+            "-0.0998004 %"
+        );
+        // Formulas see the same number: % × 2 stays %, the value doubles.
+        let Value::Array(b) = ev(
+            "2*NETWORK.WORSTCASE(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 50k; 100k; 200k; 1M; 50; 10 Hz)",
+        ) else {
+            panic!("no array")
+        };
+        let Value::Number(twice, Some(Unit::Percent)) = b.get(0, 3) else {
+            panic!("{:?}", b.get(0, 3))
+        };
+        assert!((twice - 2.0 * low).abs() < 1e-12);
+    }
+
+    #[test]
+    fn result_units_are_one_per_column() {
+        // A catalog entry's units are tagged column by column (with_result_units):
+        // a list of several units must name each spilled column, or a unit would
+        // land on the wrong column.
+        for f in super::super::functions::all() {
+            let n = f.result_unit.split("; ").count();
+            if n > 1 && !f.spill.is_empty() {
+                assert_eq!(n, f.spill.len(), "{}: {}", f.name, f.result_unit);
+            }
+        }
     }
 
     #[test]

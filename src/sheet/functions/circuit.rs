@@ -142,7 +142,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         summary: "Closed-loop gain of a loaded template stage at DC: exact, by the two-port method, and their difference",
         params: STAGE,
         repeats: false,
-        result_unit: "the topology's gain unit; 1",
+        result_unit: "the topology's gain unit; the topology's gain unit; 1",
         spill: COMPARED,
         example: Example {
             formula: "=CIRCUIT.GAIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",
@@ -158,7 +158,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         summary: "Input resistance the source sees (after Rs) at DC: exact, by the two-port method, and their difference",
         params: STAGE,
         repeats: false,
-        result_unit: "Ω; 1",
+        result_unit: "Ω; Ω; 1",
         spill: COMPARED,
         example: Example {
             formula: "=CIRCUIT.RIN(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",
@@ -174,7 +174,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         summary: "Output resistance the load sees at DC: exact, by the two-port method, and their difference",
         params: STAGE,
         repeats: false,
-        result_unit: "Ω; 1",
+        result_unit: "Ω; Ω; 1",
         spill: COMPARED,
         example: Example {
             formula: "=CIRCUIT.ROUT(\"series-shunt\"; 10k; 100k; 1k; 1M; 1k; 10k; 2k)",

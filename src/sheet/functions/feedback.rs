@@ -365,7 +365,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             req("a_max", "largest open-loop gain", "as a", "not 0"),
         ],
         repeats: false,
-        result_unit: "as a; %; ppm; 1; TRUE/FALSE",
+        result_unit: "as a; as a; as a; %; %; %; ppm; 1; TRUE/FALSE",
         spill: &[
             "Af at a_min",
             "Af at a_typ",

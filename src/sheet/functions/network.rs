@@ -623,7 +623,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         summary: "Nominal and extreme values of a stage quantity over the resistor tolerance and the open-loop gain range",
         params: STAGE,
         repeats: false,
-        result_unit: "as metric; %",
+        result_unit: "as metric; as metric; as metric; %; %",
         spill: &["nominal", "minimum", "maximum", "minimum relative to nominal, %", "maximum relative to nominal, %"],
         example: Example {
             formula: "=NETWORK.WORSTCASE(\"non-inverting\"; \"gain\"; 1k; 9k; 1%; 50k; 100k; 200k; 1M; 50; 10 Hz)",

@@ -2,13 +2,14 @@
 // Bode, response and step plots, add nothing to download, and need no inline
 // styles, so they work under the page's strict content security policy).
 //
-// lineChart({title, width, height, x: {label, log}, y: {label, log?, domain?},
+// lineChart({title, width, height, x: {label, log, ticks?, tickText?}, y: {label, log?, domain?},
 //            series: [{label, x, y, kind, floor?}], markers: [...], note?})
 // returns an <svg> element. Series and markers are styled by CSS classes
 // (plot-series-<kind>, plot-marker-<kind>), so the look stays in the stylesheet.
 // A series' `floor` leaves out the points below it (a numerical floor: what is
 // under it is not a result); `note` is a line of small text inside the plot
-// saying so. The width follows the window (at most 640), so that the tick labels
+// saying so. An axis may bring its own `ticks` (with its `domain`) and `tickText`
+// (a display mapping's axis labels its ticks with the values they stand for). The width follows the window (at most 640), so that the tick labels
 // keep their size on a phone; the left margin follows the longest tick label;
 // the legend moves under the title when both do not fit on one line.
 
@@ -39,10 +40,14 @@ export function chartWidth() {
 }
 
 function axisTicks(axis, domainFrom, count) {
+  if (axis.ticks) return { ticks: axis.ticks, domain: axis.domain };
   if (axis.log) return decadeTicks(...(axis.domain ?? domainFrom(true)));
   const domain = axis.domain ?? niceDomain(...domainFrom(false));
   return { ticks: linearTicks(...domain, count).ticks, domain };
 }
+
+/** A tick's label: the axis' own `tickText` (a mapped axis names the value shown), else the number. */
+const labelOf = (t, axis) => (axis.tickText ? axis.tickText(t) : tickLabel(t, plainAxis(axis)));
 
 /** Every k-th tick label, k as small as keeps neighbouring labels apart. */
 function thinned(labels, span) {
@@ -55,7 +60,7 @@ function thinned(labels, span) {
 function gridAndTicks(x, y, { sx, sy, xTicks, yTicks, inner }) {
   const grid = svg('g', { class: 'plot-grid' });
   const xLabels = thinned(
-    xTicks.map((t) => tickLabel(t, plainAxis(x))),
+    xTicks.map((t) => labelOf(t, x)),
     inner.x1 - inner.x0,
   );
   xTicks.forEach((t, i) => {
@@ -81,7 +86,7 @@ function gridAndTicks(x, y, { sx, sy, xTicks, yTicks, inner }) {
       svg(
         'text',
         { x: inner.x0 - 6, y: ty.toFixed(1), 'text-anchor': 'end', class: 'plot-tick' },
-        tickLabel(t, plainAxis(y)),
+        labelOf(t, y),
       ),
     );
   }
@@ -202,10 +207,7 @@ export function lineChart({
   const xt = axisTicks(x, (log) => extent(xs, log), 6);
   const yt = axisTicks(y, (log) => extent(ys, log), 5);
   // Room for the widest y tick label and the rotated axis label.
-  const left = Math.max(
-    40,
-    26 + Math.max(...yt.ticks.map((t) => textWidth(tickLabel(t, plainAxis(y))))),
-  );
+  const left = Math.max(40, 26 + Math.max(...yt.ticks.map((t) => textWidth(labelOf(t, y)))));
   // The title wraps when it is wider than the drawing; the legend goes on a line
   // of its own when it does not fit beside the title's last line.
   const titleLines = wrapped(title, width - 16, TITLE_CHAR_PX);

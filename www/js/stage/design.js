@@ -39,21 +39,31 @@ export function renderDesign(host, api, r, values, use) {
     try {
       const d = api.stageDesign({ stage: r.doc, part: h.part, targetPhaseMarginDeg: target });
       const text = formatFull(d.value);
-      answer = el(
-        'span',
-        {},
-        el('output', { id: `stage-design-${h.part}` }, formatEngineering(d.value, 4, h.unit)),
-        ` (PM ${formatPlain(d.phaseMarginDeg, 3, '°')}${d.atRangeEnd ? ', the end of the range scanned: the target is met there already' : ''}) `,
-        // A range end is not a design answer (the target is met all the way there).
-        d.atRangeEnd
-          ? null
-          : useButton(`stage-use-${h.part}`, 'Use', () =>
+      const pm = formatPlain(d.phaseMarginDeg, 3, '°');
+      // An answer at the end of the scanned range (Cf 1e-18 F, a pole at 1 GHz) is
+      // no design value: the target is met without the part, so no value and no Use.
+      answer = d.atRangeEnd
+        ? el(
+            'span',
+            { class: 'stage-design-none' },
+            el(
+              'output',
+              { id: `stage-design-${h.part}` },
+              `not needed: the target margin is met without it (PM ${pm})`,
+            ),
+          )
+        : el(
+            'span',
+            {},
+            el('output', { id: `stage-design-${h.part}` }, formatEngineering(d.value, 4, h.unit)),
+            ` (PM ${pm}) `,
+            useButton(`stage-use-${h.part}`, 'Use', () =>
               use(
                 h.set(text),
                 `${h.part} = ${formatEngineering(d.value, 4, h.unit)} from the design`,
               ),
             ),
-      );
+          );
     } catch (err) {
       answer = el('span', { class: 'stage-design-none' }, err.message);
     }
@@ -138,7 +148,13 @@ function pairTable(api, r, values, use) {
         {},
         useButton(`stage-use-pair-${i}`, 'Use', () =>
           use(
-            { rf: formatFull(leg.value), rg: formatFull(c.r1) },
+            // The stage holds one Rf: the total; the two parts go in the field's note
+            // and the report's inputs (rfParts).
+            {
+              rf: formatFull(leg.value),
+              rg: formatFull(c.r1),
+              rfParts: leg.joint === 'single' ? '' : rfText,
+            },
             `the pair Rg ${formatEngineering(c.r1, 4, 'Ω')}, Rf ${rfText}`,
           ),
         ),

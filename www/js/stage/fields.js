@@ -146,6 +146,9 @@ export const DEMO = {
   pairTotalMin: '5k',
   pairTotalMax: '200k',
   series: 'E96',
+  // Not a field: the two parts of Rf when a two-part pair was put in (the view's
+  // note and the report show them; the stage document holds the total).
+  rfParts: '',
 };
 
 /** Where a field reads a value from: the core's reader options of its unit. */

@@ -3,6 +3,7 @@
 // value as a tab, the −1 point as a ring.
 
 import { lineChart } from '../plot/chart.js';
+import { nyquistChart } from '../plot/nyquist.js';
 import { formatEngineering, formatPlain } from '../format.js';
 
 const FREQ = { label: 'frequency (Hz)', log: true };
@@ -156,24 +157,16 @@ function noisePlot(r) {
 
 function nyquistPlot(r) {
   if (r.nyquist.error) return null;
-  const c = r.nyquist.curve;
   const e = r.nyquist.encirclements;
-  // The curve near −1 is what the count reads: shown inside |T| ≤ 4.
-  const x = Array.from(c.re, (v, i) => (Math.hypot(v, c.im[i]) <= 4 ? v : Number.NaN));
-  const y = Array.from(c.im, (v, i) => (Number.isNaN(x[i]) ? Number.NaN : v));
-  const mirror = y.map((v) => -v);
+  // The curve through the page's compressed Nyquist plot (plot/nyquist.js): the far
+  // part and the neighbourhood of −1 both readable; N, P, Z and the least |1 + T|
+  // are the core's (circuitNyquist).
   return {
     name: 'nyquist',
-    svg: lineChart({
+    svg: nyquistChart({
       title: `Nyquist: N = ${e.clockwise}, P = ${e.openLoopRhpPoles}, Z = ${e.closedLoopRhpPoles} (${e.verdict})`,
-      x: { label: 'Re T', domain: [-4, 4] },
-      y: { label: 'Im T', domain: [-4, 4] },
-      series: [
-        { label: 'T(jω), ω > 0', x, y, kind: 'a' },
-        { label: 'ω < 0', x, y: mirror, kind: 'c' },
-      ],
-      markers: [{ x: -1, y: 0, label: '−1' }],
-      note: `least |1 + T| = ${formatPlain(r.nyquist.leastDistance.distance, 3)} at ${formatEngineering(r.nyquist.leastDistance.freqHz, 3, 'Hz')}`,
+      curve: r.nyquist.curve,
+      note: `Least |1 + T| = ${formatPlain(r.nyquist.leastDistance.distance, 3)} at ${formatEngineering(r.nyquist.leastDistance.freqHz, 3, 'Hz')}.`,
     }),
   };
 }

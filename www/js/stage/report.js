@@ -38,7 +38,18 @@ function inputsTable(values) {
         {},
         FIELDS.filter((f) => f.group === group && String(values[f.key] ?? '').trim() !== '').map(
           (f) =>
-            el('tr', {}, el('th', { scope: 'row' }, f.label), el('td', {}, String(values[f.key]))),
+            el(
+              'tr',
+              {},
+              el('th', { scope: 'row' }, f.label),
+              el(
+                'td',
+                {},
+                f.key === 'rf' && values.rfParts
+                  ? `${values.rf} (two parts: ${values.rfParts})`
+                  : String(values[f.key]),
+              ),
+            ),
         ),
       ),
     ),

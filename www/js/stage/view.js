@@ -17,12 +17,13 @@ import { toSheet, fromSheet } from './sheet-block.js';
 
 const isTextField = (node) => node instanceof HTMLInputElement || node instanceof HTMLSelectElement;
 
-function fieldInput(f, value) {
+function fieldInput(f, value, note) {
   const id = `stage-${f.key}`;
+  const noteId = note ? `${id}-note` : undefined;
   const control = f.choices
     ? el(
         'select',
-        { id, name: f.key },
+        { id, name: f.key, 'aria-describedby': noteId },
         f.choices.map(([v, label]) => el('option', { value: v, selected: v === value }, label)),
       )
     : el('input', {
@@ -32,6 +33,7 @@ function fieldInput(f, value) {
         autocomplete: 'off',
         spellcheck: 'false',
         inputmode: 'text',
+        'aria-describedby': noteId,
       });
   return el(
     'div',
@@ -39,8 +41,18 @@ function fieldInput(f, value) {
     el('label', { class: 'cell-name', for: id }, f.label),
     control,
     el('span', { class: 'cell-unit' }, f.unit === 'gain' ? '' : (f.unit ?? '')),
+    note ? el('span', { class: 'cell-note', id: noteId }, note) : null,
   );
 }
+
+/**
+ * A field's note: Rf made of two parts (a pair put in from the design) says which;
+ * the stage document holds one Rf, the total.
+ */
+const fieldNote = (f, values) =>
+  f.key === 'rf' && values.rfParts
+    ? `two parts: ${values.rfParts}; the stage carries their total`
+    : null;
 
 function buildForm(values) {
   const form = el('form', { class: 'stage-form', id: 'stage-form', novalidate: true });
@@ -53,7 +65,9 @@ function buildForm(values) {
         el(
           'div',
           { class: 'cells' },
-          FIELDS.filter((f) => f.group === group).map((f) => fieldInput(f, values[f.key])),
+          FIELDS.filter((f) => f.group === group).map((f) =>
+            fieldInput(f, values[f.key], fieldNote(f, values)),
+          ),
         ),
       ),
     );
@@ -340,6 +354,12 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
     const key = e.target.name;
     if (!key) return;
     values = { ...values, [key]: e.target.value };
+    // A typed Rf is no longer the two parts of a pair.
+    if (key === 'rf' && values.rfParts) {
+      values.rfParts = '';
+      formHost.querySelector('#stage-rf-note')?.remove();
+      formHost.querySelector('#stage-rf')?.removeAttribute('aria-describedby');
+    }
     const label = FIELDS.find((f) => f.key === key)?.label ?? key;
     history.record(`typing in ${label}`);
     recompute();
@@ -379,6 +399,7 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
     try {
       const read = fromSheet(ws, blockName.value.trim());
       values = { ...values, ...read };
+      if ('rf' in read) values.rfParts = '';
       history.record(`the stage from the worksheet block ${blockName.value.trim()}`);
       showForm();
       recompute();
