@@ -4,8 +4,9 @@
 // with one action and undone, the stage to the worksheet and back, and the design
 // report printed to PDF. The shown figures are checked against the JS API called
 // on a stage document this test writes itself (the view's margins and report must
-// be the API's), and the worst case against the closed form of a non-inverting
-// stage.
+// be the API's), and the tolerance answers (worst case, Monte Carlo yield,
+// sensitivities) against stageTolerance called with the test's own part spreads
+// and spec.
 
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
@@ -87,6 +88,11 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   await setField(page, 'noiseFromHz', '10');
   await setField(page, 'noiseToHz', '10k');
   await setField(page, 'distortionLevel', '1');
+  // Tolerances typed in: 0.1 % resistors at 25 ppm/K (the demo's), C0G within 5 % at
+  // 30 ppm/K, source and load within 1 %, −40 … 85 °C, 300 trials.
+  await setField(page, 'tempLowC', '-40');
+  await setField(page, 'tempHighC', '85');
+  await setField(page, 'mcTrials', '300');
   assert.equal(await page.locator('#stage-message').textContent(), '');
   // The best E96 pair, put in with one action.
   const before = { rf: await page.inputValue('#stage-rf'), rg: await page.inputValue('#stage-rg') };
@@ -146,7 +152,92 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   assert.ok(Math.abs(api.gain1Hz / 48 - 1) < 0.005, `gain ${api.gain1Hz}`);
   const checks = await page.locator('#stage-checks tbody').textContent();
   assert.match(checks, /Closed-loop gain at the low end.*pass/);
-  assert.match(checks, /Gain, worst case of parts and A0.*pass/);
+
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  // The view's worst case, yield and sensitivities are stageTolerance's on the
+  // test's own stage, part spreads and spec (the core is the oracle of the view).
+  const tol = await page.evaluate(
+    async ({ stage }) => {
+      const m = await import('/pkg/loopwright.js');
+      const r = m.stageTolerance({
+        stage,
+        parts: [
+          { part: 'rf', tolerance: { distribution: 'uniform', percent: 0.1 }, tempcoPpm: 25 },
+          { part: 'rg', tolerance: { distribution: 'uniform', percent: 0.1 }, tempcoPpm: 25 },
+          { part: 'rs', tolerance: { distribution: 'uniform', percent: 1 }, tempcoPpm: 25 },
+          { part: 'rl', tolerance: { distribution: 'uniform', percent: 1 }, tempcoPpm: 25 },
+          { part: 'cl', tolerance: { distribution: 'uniform', percent: 5 }, tempcoPpm: 30 },
+        ],
+        temperatureC: [-40, 85],
+        spec: [
+          { figure: 'gainErrorPercent', freqHz: 1, target: 48, lower: -0.5, upper: 0.5 },
+          { figure: 'phaseMarginDeg', lower: 45 },
+          { figure: 'outputNoiseRms', bandHz: [10, 10e3], upper: 20e-6 },
+        ],
+        trials: 300,
+        seed: 1,
+        bins: 24,
+      });
+      const gain = r.worstCase.figures[0];
+      return {
+        method: r.worstCase.method,
+        yield: m.formatPlain(r.monteCarlo.yieldFraction * 100, '%', 4),
+        gainYield: m.formatPlain(r.monteCarlo.limits[0].yieldFraction * 100, '%', 4),
+        gainMin: m.formatPlain(gain.min.value, '%', 4),
+        gainMax: m.formatPlain(gain.max.value, '%', 4),
+        rfAtMin: m.formatValue(gain.min.values[r.worstCase.parts.indexOf('Rf')], 'Ω', 4),
+        pmMin: m.formatPlain(r.worstCase.figures[1].min.value, '°', 4),
+        meets: r.worstCase.figures.map((f) => f.meets),
+        tighten: r.sensitivity.tightenFirst,
+        rfShare: m.formatPlain(
+          r.sensitivity.figures[0].parts.find((p) => p.part === 'Rf').varianceShare * 100,
+          '%',
+          3,
+        ),
+        histogram: r.monteCarlo.limits[0].stats.histogram.counts,
+      };
+    },
+    { stage: jobStage(rf, rg) },
+  );
+  assert.equal(await page.locator('#stage-out-yield').textContent(), tol.yield);
+  const worst = page.locator(
+    '#stage-worst tbody tr[data-figure="gainErrorPercent"]:not(.stage-at) td',
+  );
+  const worstAt = page.locator('#stage-worst tbody tr.stage-at[data-figure="gainErrorPercent"]');
+  assert.match(await page.locator('#stage-worst caption').textContent(), /every corner/);
+  assert.equal(tol.method, 'corners');
+  assert.equal(await worst.nth(2).textContent(), tol.gainMin);
+  assert.equal(await worst.nth(3).textContent(), tol.gainMax);
+  assert.ok((await worstAt.textContent()).startsWith(`lowest at Rf ${tol.rfAtMin}`));
+  assert.match(await worstAt.textContent(), /40\s?°C|85\s?°C/);
+  const pmRow = page.locator(
+    '#stage-worst tbody tr[data-figure="phaseMarginDeg"]:not(.stage-at) td',
+  );
+  assert.equal(await pmRow.nth(2).textContent(), tol.pmMin);
+  const yields = page.locator('#stage-yields tbody tr[data-figure="gainErrorPercent"] td');
+  assert.equal(await yields.nth(1).textContent(), tol.gainYield);
+  const tighten = await page.locator('#stage-out-tighten').textContent();
+  assert.equal(tighten, tol.tighten === 'U1.a0' ? 'A0' : tol.tighten);
+  const share = page.locator(
+    '#stage-sensitivity tbody tr[data-figure="gainErrorPercent"][data-part="Rf"] td.num',
+  );
+  assert.equal(await share.nth(2).textContent(), tol.rfShare);
+  // One histogram per limit; the gain's has the core's bins, its tallest bar the core's
+  // fullest bin.
+  assert.equal(await page.locator('#stage-tolerances svg.plot').count(), 3);
+  const bars = await page
+    .locator('[data-plot="histogram-gainErrorPercent"] .plot-bars rect')
+    .evaluateAll((rs) => rs.map((r) => Number(r.getAttribute('height'))));
+  assert.equal(bars.length, tol.histogram.length);
+  assert.equal(bars.indexOf(Math.max(...bars)), tol.histogram.indexOf(Math.max(...tol.histogram)));
+  // The checks carry the worst case of each limit with the core's verdict.
+  const worstChecks = await page.locator('#stage-checks tbody').textContent();
+  assert.match(
+    worstChecks,
+    new RegExp(
+      `Gain error at 1 Hz, worst case of parts, A0 and temperature.*${tol.meets[0] ? 'pass' : 'FAIL'}`,
+    ),
+  );
   await page.screenshot({ path: join(ARTIFACTS, 'stage-view-1366.png'), fullPage: true });
 
   // The report: inputs, spec, results with pass or fail, plots, cautions, version, date.
@@ -156,6 +247,9 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   assert.ok(report.includes(`loopwright core ${api.version}`));
   assert.ok(report.includes(new Date().toISOString().slice(0, 10)));
   assert.ok(report.includes(api.pm), 'the report carries the API’s phase margin');
+  // The report shows the same tolerance answers as the view.
+  assert.equal(await page.locator('#report-out-yield').textContent(), tol.yield);
+  assert.equal(await page.locator('#report-out-tighten').textContent(), tighten);
   assert.match(report, /pass/);
   assert.match(report, /check every design on the bench/);
   assert.equal((await page.locator('#stage-report svg.plot').count()) >= 6, true);
@@ -183,7 +277,8 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
 
   // The job took this many actions in the view (issue 20: 54 worksheet entries).
   console.log(`gain-48 front-end job in the stage view: ${actions} actions`);
-  assert.ok(actions <= 16, `${actions} actions`);
+  // (the three tolerance fields typed above are not part of the job's count).
+  assert.ok(actions - 3 <= 16, `${actions} actions`);
 
   // Undo takes the pair back in one step, redo puts it in again.
   await page.click('#stage-undo');
@@ -319,6 +414,10 @@ test('a bad value is named at its field and the answers stay; the view fits a ph
   assert.equal(await page.locator('#stage-message').textContent(), '');
   const overflow = await page.evaluate(() => document.documentElement.scrollWidth - innerWidth);
   assert.ok(overflow <= 0, `page wider than the phone by ${overflow} px`);
+  // The tolerance answers fit the phone too (the tables scroll inside their box).
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  const overflowTol = await page.evaluate(() => document.documentElement.scrollWidth - innerWidth);
+  assert.ok(overflowTol <= 0, `tolerance answers wider than the phone by ${overflowTol} px`);
   await page.screenshot({ path: join(ARTIFACTS, 'stage-view-390.png'), fullPage: true });
   // A reload opens on the Stage tab again.
   await page.reload();
