@@ -25,7 +25,8 @@ async function setField(page, key, text) {
   } else {
     await page.click(id);
     await page.keyboard.press('Control+A');
-    await page.keyboard.type(text);
+    if (text === '') await page.keyboard.press('Delete');
+    else await page.keyboard.type(text);
     await page.keyboard.press('Tab');
   }
   actions += 1;
@@ -423,6 +424,103 @@ test('a bad value is named at its field and the answers stay; the view fits a ph
   await page.reload();
   await page.waitForSelector('html[data-ready="true"]');
   assert.equal(await page.getAttribute('#tab-stage', 'aria-selected'), 'true');
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+test('every stage kind gets its tolerance answers: a transimpedance stage typed in', async () => {
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    width: 1366,
+    height: 900,
+  });
+  await page.click('#tab-stage');
+  await page.waitForSelector('html[data-stage="ready"]');
+  // A photodiode front end of our own: 100 kΩ feedback with 2.2 pF across it, the
+  // diode as 10 MΩ ∥ 20 pF, the demo amplifier; spec 100 kΩ within 2 %.
+  await setField(page, 'rg', '');
+  await setField(page, 'kind', 'transimpedance');
+  await setField(page, 'cf', '2.2p');
+  await setField(page, 'rs', '10M');
+  await setField(page, 'cs', '20p');
+  await setField(page, 'gain', '100k');
+  await setField(page, 'tolerance', '2%');
+  await setField(page, 'maxNoiseRms', '');
+  assert.equal(await page.locator('#stage-message').textContent(), '');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  const tol = await page.evaluate(async () => {
+    const m = await import('/pkg/loopwright.js');
+    const stage = {
+      format: 'loopwright-stage',
+      version: 1,
+      kind: 'transimpedance',
+      amplifier: {
+        a0: { min: '200k', typ: '1M', max: '5M' },
+        gbwHz: '1M',
+        polesHz: [15e6],
+        rd: '10M',
+        cd: '3p',
+        rcm: '1G',
+        ccm: '4p',
+        ro: '50',
+        slewRate: '0.5M',
+        voltageNoise: { density: '9n', cornerHz: '10' },
+        currentNoise: { density: '0.2p', cornerHz: '50' },
+      },
+      spreadPoint: 'typ',
+      parts: { rf: '100k', cf: '2.2p', rs: '10M', cs: '20p', rl: '10k', cl: '1n' },
+    };
+    // The view's grades (fields.js DEMO): resistors 0.1 % at 25 ppm/K, capacitors
+    // 5 % at 30 ppm/K, source and load 1 %; 0 … 70 °C; 200 trials, seed 1.
+    const grade = (part, percent, tempcoPpm) => ({
+      part,
+      tolerance: { distribution: 'uniform', percent },
+      tempcoPpm,
+    });
+    const r = m.stageTolerance({
+      stage,
+      parts: [
+        grade('rf', 0.1, 25),
+        grade('cf', 5, 30),
+        grade('rs', 1, 25),
+        grade('cs', 5, 30),
+        grade('rl', 1, 25),
+        grade('cl', 5, 30),
+      ],
+      temperatureC: [0, 70],
+      spec: [
+        { figure: 'gainErrorPercent', freqHz: 1, target: 1e5, lower: -2, upper: 2 },
+        { figure: 'phaseMarginDeg', lower: 45 },
+      ],
+      trials: 200,
+      seed: 1,
+    });
+    return {
+      yield: m.formatPlain(r.monteCarlo.yieldFraction * 100, '%', 4),
+      pmMin: m.formatPlain(r.worstCase.figures[1].min.value, '°', 4),
+      pmMeets: r.worstCase.figures[1].meets,
+      parts: r.worstCase.parts,
+      tighten: r.sensitivity.tightenFirst,
+    };
+  });
+  assert.equal(await page.locator('#stage-out-yield').textContent(), tol.yield);
+  const pmRow = page.locator('#stage-worst tbody tr[data-figure="phaseMarginDeg"]:not(.stage-at)');
+  assert.equal(await pmRow.locator('td').nth(2).textContent(), tol.pmMin);
+  assert.equal(await pmRow.locator('td').nth(5).textContent(), tol.pmMeets ? 'pass' : 'FAIL');
+  // Every part of this stage varies (no Rg here), and A0.
+  assert.deepEqual(tol.parts, ['Rf', 'Cf', 'Rs', 'Cs', 'Rl', 'Cl', 'U1.a0']);
+  assert.match(
+    await page.locator('#stage-tolerance-varied').textContent(),
+    /^Varied: Rf .*Cf .*Rs .*Cs .*Rl .*Cl .*A0 /,
+  );
+  assert.equal(
+    await page.locator('#stage-out-tighten').textContent(),
+    tol.tighten === 'U1.a0' ? 'A0' : tol.tighten,
+  );
+  // No noise limit given: the spec has two limits, so two histograms.
+  assert.equal(await page.locator('#stage-tolerances svg.plot').count(), 2);
+  await page.locator('#stage-tolerances').screenshot({
+    path: join(ARTIFACTS, 'stage-tolerance-transimpedance.png'),
+  });
   assert.deepEqual(problems, []);
   await context.close();
 });

@@ -257,7 +257,7 @@ export function toleranceSection(t, { prefix = 'stage' } = {}) {
               { class: 'stage-plot', 'data-plot': `histogram-${fig}` },
               histogramChart({
                 title: `${words}, ${l.stats.count} values`,
-                label: `${words.toLowerCase()} (${units[fig]}); ${mc.trials} trials × ${mc.temperaturesC.length} temperatures`,
+                label: `${words} (${units[fig]}); ${mc.trials} trials × ${mc.temperaturesC.length} temperatures`,
                 edges: l.stats.histogram.edges,
                 counts: l.stats.histogram.counts,
                 limits,
