@@ -413,6 +413,22 @@ test('a bad value is named at its field and the answers stay; the view fits a ph
   await page.click('#stage-undo');
   assert.equal(await page.getAttribute('#stage-rf', 'aria-invalid'), null);
   assert.equal(await page.locator('#stage-message').textContent(), '');
+  // A trial count the engine refuses is named at its field; the other answers stay.
+  await page.click('#stage-mcTrials');
+  await page.keyboard.press('Control+A');
+  await page.keyboard.type('1');
+  await page.keyboard.press('Tab');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.match(
+    await page.locator('#stage-tolerance-message').textContent(),
+    /^Monte Carlo trials: trials/,
+  );
+  assert.equal(await page.getAttribute('#stage-mcTrials', 'aria-invalid'), 'true');
+  assert.notEqual(await shown(page, 'margin-pm'), '');
+  await page.click('#stage-undo');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.equal(await page.locator('#stage-tolerance-message').count(), 0);
+  assert.equal(await page.getAttribute('#stage-mcTrials', 'aria-invalid'), null);
   const overflow = await page.evaluate(() => document.documentElement.scrollWidth - innerWidth);
   assert.ok(overflow <= 0, `page wider than the phone by ${overflow} px`);
   // The tolerance answers fit the phone too (the tables scroll inside their box).

@@ -107,7 +107,30 @@ export function stageTolerance(
     keepFailures: 0,
   };
   if (analyses) options.analyses = analyses;
-  return { options, ...api.stageTolerance(options) };
+  try {
+    return { options, ...api.stageTolerance(options) };
+  } catch (err) {
+    err.field = fieldOfToleranceParam(err.param, options.parts);
+    throw err;
+  }
+}
+
+/**
+ * The view's field behind a stageTolerance error's `param` (`parts[2].tolerance`,
+ * `temperatureC`, `trials`, `spec[1].upper`), or undefined when it is the stage's.
+ */
+function fieldOfToleranceParam(param, parts) {
+  if (typeof param !== 'string') return undefined;
+  const part = /^parts\[(\d+)\]\.(\w+)/.exec(param);
+  if (part) {
+    const [tol, tc] = PART_GRADES[parts[Number(part[1])]?.part] ?? [];
+    return part[2] === 'tempcoPpm' ? tc : tol;
+  }
+  if (param === 'temperatureC') return 'tempLowC';
+  if (param === 'trials') return 'mcTrials';
+  const limit = /^spec\[(\d+)\]/.exec(param);
+  if (limit) return ['tolerance', 'minPhaseMarginDeg', 'maxNoiseRms'][Number(limit[1])];
+  return undefined;
 }
 
 const unitOfPart = (name) => (name.startsWith('R') ? 'Ω' : name.startsWith('C') ? 'F' : '');

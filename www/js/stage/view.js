@@ -192,7 +192,6 @@ function summary(r) {
       ? `${formatPlain(Math.abs(d.closed.hd2) * 100, 3, '%')}, ${formatPlain(Math.abs(d.closed.hd3) * 100, 3, '%')} at ${formatPlain(d.closed.outputAmplitude, 3, 'V')} peak, ${formatEngineering(d.frequencyHz, 3, 'Hz')} (loop gain there ${formatPlain(d.loopGains[0].magnitude, 4)}; open loop ${formatPlain(Math.abs(d.open.hd2) * 100, 3, '%')}, ${formatPlain(Math.abs(d.open.hd3) * 100, 3, '%')})`
       : (d.error?.message ?? d.note),
   ]);
-  if (r.tolerance?.error) rows.push(['tolerance', 'Tolerance analysis', r.tolerance.error.message]);
   return el(
     'dl',
     { class: 'results stage-summary' },
@@ -361,6 +360,17 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
       },
       el('h3', {}, 'Tolerance: worst case, Monte Carlo, sensitivity'),
     );
+    if (t?.error) {
+      const label = FIELDS.find((f) => f.key === t.error.field)?.label;
+      section.append(
+        el(
+          'p',
+          { class: 'card-message', id: 'stage-tolerance-message', role: 'alert' },
+          label ? `${label}: ${t.error.message}` : t.error.message,
+        ),
+      );
+      if (t.error.field) markField(t.error.field);
+    }
     if (t === null)
       section.append(
         el(
