@@ -4,8 +4,9 @@
 // with one action and undone, the stage to the worksheet and back, and the design
 // report printed to PDF. The shown figures are checked against the JS API called
 // on a stage document this test writes itself (the view's margins and report must
-// be the API's), and the worst case against the closed form of a non-inverting
-// stage.
+// be the API's), and the tolerance answers (worst case, Monte Carlo yield,
+// sensitivities) against stageTolerance called with the test's own part spreads
+// and spec.
 
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
@@ -24,7 +25,8 @@ async function setField(page, key, text) {
   } else {
     await page.click(id);
     await page.keyboard.press('Control+A');
-    await page.keyboard.type(text);
+    if (text === '') await page.keyboard.press('Delete');
+    else await page.keyboard.type(text);
     await page.keyboard.press('Tab');
   }
   actions += 1;
@@ -87,6 +89,11 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   await setField(page, 'noiseFromHz', '10');
   await setField(page, 'noiseToHz', '10k');
   await setField(page, 'distortionLevel', '1');
+  // Tolerances typed in: 0.1 % resistors at 25 ppm/K (the demo's), C0G within 5 % at
+  // 30 ppm/K, source and load within 1 %, −40 … 85 °C, 300 trials.
+  await setField(page, 'tempLowC', '-40');
+  await setField(page, 'tempHighC', '85');
+  await setField(page, 'mcTrials', '300');
   assert.equal(await page.locator('#stage-message').textContent(), '');
   // The best E96 pair, put in with one action.
   const before = { rf: await page.inputValue('#stage-rf'), rg: await page.inputValue('#stage-rg') };
@@ -146,7 +153,92 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   assert.ok(Math.abs(api.gain1Hz / 48 - 1) < 0.005, `gain ${api.gain1Hz}`);
   const checks = await page.locator('#stage-checks tbody').textContent();
   assert.match(checks, /Closed-loop gain at the low end.*pass/);
-  assert.match(checks, /Gain, worst case of parts and A0.*pass/);
+
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  // The view's worst case, yield and sensitivities are stageTolerance's on the
+  // test's own stage, part spreads and spec (the core is the oracle of the view).
+  const tol = await page.evaluate(
+    async ({ stage }) => {
+      const m = await import('/pkg/loopwright.js');
+      const r = m.stageTolerance({
+        stage,
+        parts: [
+          { part: 'rf', tolerance: { distribution: 'uniform', percent: 0.1 }, tempcoPpm: 25 },
+          { part: 'rg', tolerance: { distribution: 'uniform', percent: 0.1 }, tempcoPpm: 25 },
+          { part: 'rs', tolerance: { distribution: 'uniform', percent: 1 }, tempcoPpm: 25 },
+          { part: 'rl', tolerance: { distribution: 'uniform', percent: 1 }, tempcoPpm: 25 },
+          { part: 'cl', tolerance: { distribution: 'uniform', percent: 5 }, tempcoPpm: 30 },
+        ],
+        temperatureC: [-40, 85],
+        spec: [
+          { figure: 'gainErrorPercent', freqHz: 1, target: 48, lower: -0.5, upper: 0.5 },
+          { figure: 'phaseMarginDeg', lower: 45 },
+          { figure: 'outputNoiseRms', bandHz: [10, 10e3], upper: 20e-6 },
+        ],
+        trials: 300,
+        seed: 1,
+        bins: 24,
+      });
+      const gain = r.worstCase.figures[0];
+      return {
+        method: r.worstCase.method,
+        yield: m.formatPlain(r.monteCarlo.yieldFraction * 100, '%', 4),
+        gainYield: m.formatPlain(r.monteCarlo.limits[0].yieldFraction * 100, '%', 4),
+        gainMin: m.formatPlain(gain.min.value, '%', 4),
+        gainMax: m.formatPlain(gain.max.value, '%', 4),
+        rfAtMin: m.formatValue(gain.min.values[r.worstCase.parts.indexOf('Rf')], 'Ω', 4),
+        pmMin: m.formatPlain(r.worstCase.figures[1].min.value, '°', 4),
+        meets: r.worstCase.figures.map((f) => f.meets),
+        tighten: r.sensitivity.tightenFirst,
+        rfShare: m.formatPlain(
+          r.sensitivity.figures[0].parts.find((p) => p.part === 'Rf').varianceShare * 100,
+          '%',
+          3,
+        ),
+        histogram: r.monteCarlo.limits[0].stats.histogram.counts,
+      };
+    },
+    { stage: jobStage(rf, rg) },
+  );
+  assert.equal(await page.locator('#stage-out-yield').textContent(), tol.yield);
+  const worst = page.locator(
+    '#stage-worst tbody tr[data-figure="gainErrorPercent"]:not(.stage-at) td',
+  );
+  const worstAt = page.locator('#stage-worst tbody tr.stage-at[data-figure="gainErrorPercent"]');
+  assert.match(await page.locator('#stage-worst caption').textContent(), /every corner/);
+  assert.equal(tol.method, 'corners');
+  assert.equal(await worst.nth(2).textContent(), tol.gainMin);
+  assert.equal(await worst.nth(3).textContent(), tol.gainMax);
+  assert.ok((await worstAt.textContent()).startsWith(`lowest at Rf ${tol.rfAtMin}`));
+  assert.match(await worstAt.textContent(), /40\s?°C|85\s?°C/);
+  const pmRow = page.locator(
+    '#stage-worst tbody tr[data-figure="phaseMarginDeg"]:not(.stage-at) td',
+  );
+  assert.equal(await pmRow.nth(2).textContent(), tol.pmMin);
+  const yields = page.locator('#stage-yields tbody tr[data-figure="gainErrorPercent"] td');
+  assert.equal(await yields.nth(1).textContent(), tol.gainYield);
+  const tighten = await page.locator('#stage-out-tighten').textContent();
+  assert.equal(tighten, tol.tighten === 'U1.a0' ? 'A0' : tol.tighten);
+  const share = page.locator(
+    '#stage-sensitivity tbody tr[data-figure="gainErrorPercent"][data-part="Rf"] td.num',
+  );
+  assert.equal(await share.nth(2).textContent(), tol.rfShare);
+  // One histogram per limit; the gain's has the core's bins, its tallest bar the core's
+  // fullest bin.
+  assert.equal(await page.locator('#stage-tolerances svg.plot').count(), 3);
+  const bars = await page
+    .locator('[data-plot="histogram-gainErrorPercent"] .plot-bars rect')
+    .evaluateAll((rs) => rs.map((r) => Number(r.getAttribute('height'))));
+  assert.equal(bars.length, tol.histogram.length);
+  assert.equal(bars.indexOf(Math.max(...bars)), tol.histogram.indexOf(Math.max(...tol.histogram)));
+  // The checks carry the worst case of each limit with the core's verdict.
+  const worstChecks = await page.locator('#stage-checks tbody').textContent();
+  assert.match(
+    worstChecks,
+    new RegExp(
+      `Gain error at 1 Hz, worst case of parts, A0 and temperature.*${tol.meets[0] ? 'pass' : 'FAIL'}`,
+    ),
+  );
   await page.screenshot({ path: join(ARTIFACTS, 'stage-view-1366.png'), fullPage: true });
 
   // The report: inputs, spec, results with pass or fail, plots, cautions, version, date.
@@ -156,6 +248,9 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   assert.ok(report.includes(`loopwright core ${api.version}`));
   assert.ok(report.includes(new Date().toISOString().slice(0, 10)));
   assert.ok(report.includes(api.pm), 'the report carries the API’s phase margin');
+  // The report shows the same tolerance answers as the view.
+  assert.equal(await page.locator('#report-out-yield').textContent(), tol.yield);
+  assert.equal(await page.locator('#report-out-tighten').textContent(), tighten);
   assert.match(report, /pass/);
   assert.match(report, /check every design on the bench/);
   assert.equal((await page.locator('#stage-report svg.plot').count()) >= 6, true);
@@ -183,7 +278,8 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
 
   // The job took this many actions in the view (issue 20: 54 worksheet entries).
   console.log(`gain-48 front-end job in the stage view: ${actions} actions`);
-  assert.ok(actions <= 16, `${actions} actions`);
+  // (the three tolerance fields typed above are not part of the job's count).
+  assert.ok(actions - 3 <= 16, `${actions} actions`);
 
   // Undo takes the pair back in one step, redo puts it in again.
   await page.click('#stage-undo');
@@ -317,13 +413,130 @@ test('a bad value is named at its field and the answers stay; the view fits a ph
   await page.click('#stage-undo');
   assert.equal(await page.getAttribute('#stage-rf', 'aria-invalid'), null);
   assert.equal(await page.locator('#stage-message').textContent(), '');
+  // A trial count the engine refuses is named at its field; the other answers stay.
+  await page.click('#stage-mcTrials');
+  await page.keyboard.press('Control+A');
+  await page.keyboard.type('1');
+  await page.keyboard.press('Tab');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.match(
+    await page.locator('#stage-tolerance-message').textContent(),
+    /^Monte Carlo trials: trials/,
+  );
+  assert.equal(await page.getAttribute('#stage-mcTrials', 'aria-invalid'), 'true');
+  assert.notEqual(await shown(page, 'margin-pm'), '');
+  await page.click('#stage-undo');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.equal(await page.locator('#stage-tolerance-message').count(), 0);
+  assert.equal(await page.getAttribute('#stage-mcTrials', 'aria-invalid'), null);
   const overflow = await page.evaluate(() => document.documentElement.scrollWidth - innerWidth);
   assert.ok(overflow <= 0, `page wider than the phone by ${overflow} px`);
+  // The tolerance answers fit the phone too (the tables scroll inside their box).
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  const overflowTol = await page.evaluate(() => document.documentElement.scrollWidth - innerWidth);
+  assert.ok(overflowTol <= 0, `tolerance answers wider than the phone by ${overflowTol} px`);
   await page.screenshot({ path: join(ARTIFACTS, 'stage-view-390.png'), fullPage: true });
   // A reload opens on the Stage tab again.
   await page.reload();
   await page.waitForSelector('html[data-ready="true"]');
   assert.equal(await page.getAttribute('#tab-stage', 'aria-selected'), 'true');
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+test('every stage kind gets its tolerance answers: a transimpedance stage typed in', async () => {
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    width: 1366,
+    height: 900,
+  });
+  await page.click('#tab-stage');
+  await page.waitForSelector('html[data-stage="ready"]');
+  // A photodiode front end of our own: 100 kΩ feedback with 2.2 pF across it, the
+  // diode as 10 MΩ ∥ 20 pF, the demo amplifier; spec 100 kΩ within 2 %.
+  await setField(page, 'rg', '');
+  await setField(page, 'kind', 'transimpedance');
+  await setField(page, 'cf', '2.2p');
+  await setField(page, 'rs', '10M');
+  await setField(page, 'cs', '20p');
+  await setField(page, 'gain', '100k');
+  await setField(page, 'tolerance', '2%');
+  await setField(page, 'maxNoiseRms', '');
+  assert.equal(await page.locator('#stage-message').textContent(), '');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  const tol = await page.evaluate(async () => {
+    const m = await import('/pkg/loopwright.js');
+    const stage = {
+      format: 'loopwright-stage',
+      version: 1,
+      kind: 'transimpedance',
+      amplifier: {
+        a0: { min: '200k', typ: '1M', max: '5M' },
+        gbwHz: '1M',
+        polesHz: [15e6],
+        rd: '10M',
+        cd: '3p',
+        rcm: '1G',
+        ccm: '4p',
+        ro: '50',
+        slewRate: '0.5M',
+        voltageNoise: { density: '9n', cornerHz: '10' },
+        currentNoise: { density: '0.2p', cornerHz: '50' },
+      },
+      spreadPoint: 'typ',
+      parts: { rf: '100k', cf: '2.2p', rs: '10M', cs: '20p', rl: '10k', cl: '1n' },
+    };
+    // The view's grades (fields.js DEMO): resistors 0.1 % at 25 ppm/K, capacitors
+    // 5 % at 30 ppm/K, source and load 1 %; 0 … 70 °C; 200 trials, seed 1.
+    const grade = (part, percent, tempcoPpm) => ({
+      part,
+      tolerance: { distribution: 'uniform', percent },
+      tempcoPpm,
+    });
+    const r = m.stageTolerance({
+      stage,
+      parts: [
+        grade('rf', 0.1, 25),
+        grade('cf', 5, 30),
+        grade('rs', 1, 25),
+        grade('cs', 5, 30),
+        grade('rl', 1, 25),
+        grade('cl', 5, 30),
+      ],
+      temperatureC: [0, 70],
+      spec: [
+        { figure: 'gainErrorPercent', freqHz: 1, target: 1e5, lower: -2, upper: 2 },
+        { figure: 'phaseMarginDeg', lower: 45 },
+      ],
+      trials: 200,
+      seed: 1,
+    });
+    return {
+      yield: m.formatPlain(r.monteCarlo.yieldFraction * 100, '%', 4),
+      pmMin: m.formatPlain(r.worstCase.figures[1].min.value, '°', 4),
+      pmMeets: r.worstCase.figures[1].meets,
+      parts: r.worstCase.parts,
+      tighten: r.sensitivity.tightenFirst,
+    };
+  });
+  assert.equal(await page.locator('#stage-out-yield').textContent(), tol.yield);
+  const pmRow = page.locator('#stage-worst tbody tr[data-figure="phaseMarginDeg"]:not(.stage-at)');
+  assert.equal(await pmRow.locator('td').nth(2).textContent(), tol.pmMin);
+  assert.equal(await pmRow.locator('td').nth(5).textContent(), tol.pmMeets ? 'pass' : 'FAIL');
+  // Every part of this stage varies (no Rg here), and A0.
+  assert.deepEqual(tol.parts, ['Rf', 'Cf', 'Rs', 'Cs', 'Rl', 'Cl', 'U1.a0']);
+  assert.match(
+    await page.locator('#stage-tolerance-varied').textContent(),
+    /^Varied: Rf .*Cf .*Rs .*Cs .*Rl .*Cl .*A0 /,
+  );
+  assert.equal(
+    await page.locator('#stage-out-tighten').textContent(),
+    tol.tighten === 'U1.a0' ? 'A0' : tol.tighten,
+  );
+  // No noise limit given: the spec has two limits, so two histograms.
+  assert.equal(await page.locator('#stage-tolerances svg.plot').count(), 2);
+  await page.locator('#stage-tolerances').screenshot({
+    path: join(ARTIFACTS, 'stage-tolerance-transimpedance.png'),
+  });
   assert.deepEqual(problems, []);
   await context.close();
 });

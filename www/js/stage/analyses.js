@@ -2,11 +2,11 @@
 // loop gain with the margins (at each point of the A0 spread), the Nyquist reading,
 // the closed-loop gain and the frequency up to which it stays within its tolerance,
 // the port impedances, the step response, the noise with each source's part and
-// its band integral, worst case and Monte Carlo (tolerance.js), and the spec's
+// its band integral, worst case, Monte Carlo and sensitivities (tolerance.js), and the spec's
 // checks with pass or fail. No maths here: each figure is the core's.
 
 import { stageDocument, readField } from './fields.js';
-import { stageTolerance } from './tolerance.js';
+import { stageTolerance, figureUnits, FIGURE_WORDS } from './tolerance.js';
 
 /**
  * The sample frequencies of the plots (`perDecade` log-spaced points from `fromHz`
@@ -43,6 +43,13 @@ function numbers(api, v) {
     'maxThd',
     'pairTotalMin',
     'pairTotalMax',
+    'resistorTempco',
+    'capacitorTolerance',
+    'capacitorTempco',
+    'sourceLoadTolerance',
+    'tempLowC',
+    'tempHighC',
+    'mcTrials',
   ];
   for (const k of [
     'a0',
@@ -80,9 +87,10 @@ function phaseAt(api, doc, sweep, fHz) {
 /**
  * Every analysis of the stage whose field texts are `v`. Throws (a LoopwrightError
  * with `field` or a `param` that fieldOfParam maps) when the stage itself cannot
- * be read; an analysis that fails alone is `{error}` in the result.
+ * be read; an analysis that fails alone is `{error}` in the result. With
+ * `deferTolerance`, `tolerance` is null until withTolerance(api, r) adds it.
  */
-export function analyseStage(api, v) {
+export function analyseStage(api, v, { deferTolerance = false } = {}) {
   const doc = stageDocument(api, v);
   const circuit = api.stageCircuit(doc);
   const n = numbers(api, v);
@@ -134,13 +142,7 @@ export function analyseStage(api, v) {
           }),
         )
       : { note: 'Give the amplifier’s open-loop HD2, HD3 and the output peak they hold at.' };
-  const tolerance = part(() =>
-    stageTolerance(api, v.kind, n, {
-      lower: n.gain * (1 - n.tolerance),
-      upper: n.gain * (1 + n.tolerance),
-    }),
-  );
-  return {
+  const r = {
     doc,
     circuit,
     numbers: n,
@@ -157,9 +159,26 @@ export function analyseStage(api, v) {
     noise,
     noiseBand,
     distortion,
-    tolerance,
-    checks: checks(n, { margins, spread, nyquist, within, noiseBand, distortion, tolerance }),
+    tolerance: null,
+    checks: null,
   };
+  return deferTolerance ? withChecks(r) : withTolerance(api, r);
+}
+
+/** The spec's checks of `r` as it stands (the tolerance rows once `r.tolerance` is in). */
+function withChecks(r) {
+  r.checks = checks(r.numbers, r);
+  return r;
+}
+
+/**
+ * `r` (analyseStage) with its worst case, Monte Carlo and sensitivities, and the
+ * checks that come from them: the slowest analysis, which the view runs after the
+ * others are shown.
+ */
+export function withTolerance(api, r) {
+  r.tolerance = part(() => stageTolerance(api, r.doc, r.numbers));
+  return withChecks(r);
 }
 
 /** The spec's checks: `{name, what, value, unit, limit, pass}` (pass null: shown, not judged). */
@@ -220,19 +239,26 @@ function checks(n, r) {
       pass: n.maxThd !== undefined ? worst <= n.maxThd : null,
     });
   }
-  if (!r.tolerance.error && r.tolerance.worst) {
-    const w = r.tolerance.worst;
-    out.push({
-      name: 'worst-case',
-      what: 'Gain, worst case of parts and A0',
-      range: [w.min, w.max],
-      limit: { lower, upper },
-      pass: w.pass,
-    });
+  if (r.tolerance && !r.tolerance.error) {
+    const t = r.tolerance;
+    for (const f of t.worstCase.figures) {
+      const fig = f.limit.figure.figure;
+      const limit = {};
+      if (f.limit.lower !== null) limit.lower = f.limit.lower;
+      if (f.limit.upper !== null) limit.upper = f.limit.upper;
+      out.push({
+        name: `worst-${fig}`,
+        what: `${FIGURE_WORDS[fig] ?? fig}, worst case of parts, A0 and temperature`,
+        range: [f.min.value, f.max.value],
+        unit: figureUnits(r.doc.kind)[fig],
+        limit,
+        pass: f.meets,
+      });
+    }
     out.push({
       name: 'yield',
-      what: 'Monte Carlo yield within the gain tolerance',
-      value: r.tolerance.monteCarlo.yieldFraction * 100,
+      what: `Monte Carlo yield against the spec (${t.monteCarlo.trials} trials)`,
+      value: t.monteCarlo.yieldFraction * 100,
       unit: '%',
       limit: null,
       pass: null,

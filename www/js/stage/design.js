@@ -6,7 +6,7 @@
 
 import { el, clear } from '../dom.js';
 import { formatEngineering, formatFull, formatPlain } from '../format.js';
-import { stageTolerance } from './tolerance.js';
+import { stageTolerance, toleranceSpec } from './tolerance.js';
 
 const PAIR_NETWORK = { 'non-inverting': 'non-inverting', inverting: 'inverting' };
 
@@ -100,12 +100,10 @@ function pairTable(api, r, values, use) {
     return el('p', { class: 'card-message' }, err.message);
   }
   const n = r.numbers;
-  const lower = n.gain * (1 - n.tolerance);
-  const upper = n.gain * (1 + n.tolerance);
   const head = el(
     'tr',
     {},
-    ['Rg', 'Rf', 'nominal error', 'worst case', 'yield', ''].map((h) =>
+    ['Rg', 'Rf', 'nominal error', 'worst-case error', 'yield', ''].map((h) =>
       el('th', { scope: 'col' }, h),
     ),
   );
@@ -117,26 +115,29 @@ function pairTable(api, r, values, use) {
         : `${formatEngineering(leg.first, 3, 'Ω')} ${leg.joint === 'series' ? '+' : '‖'} ${formatEngineering(leg.second, 3, 'Ω')}`;
     let judged;
     try {
-      judged = stageTolerance(
-        api,
-        values.kind,
-        { ...n, rf: leg.value, rg: c.r1 },
-        { lower, upper },
-      );
+      // The candidate in the stage, judged on the gain alone (the spec's gain window).
+      const doc = { ...r.doc, parts: { ...r.doc.parts, rf: leg.value, rg: c.r1 } };
+      judged = stageTolerance(api, doc, n, {
+        spec: [toleranceSpec(n)[0]],
+        analyses: ['worstCase', 'monteCarlo'],
+        trials: 500,
+      });
     } catch {
       judged = {};
     }
-    const w = judged.worst;
+    const w = judged.worstCase?.figures[0];
     return el(
       'tr',
-      { class: w ? (w.pass ? 'passes' : 'fails') : null },
+      { class: w ? (w.meets ? 'passes' : 'fails') : null },
       el('td', {}, formatEngineering(c.r1, 4, 'Ω')),
       el('td', {}, rfText),
       el('td', { class: 'num' }, formatPlain(c.error * 100, 3, '%')),
       el(
         'td',
         { class: 'num' },
-        w ? `${formatPlain(w.min, 5)} … ${formatPlain(w.max, 5)} ${w.pass ? 'pass' : 'fail'}` : '—',
+        w
+          ? `${formatPlain(w.min.value, 3, '%')} … ${formatPlain(w.max.value, 3, '%')} ${w.meets ? 'pass' : 'fail'}`
+          : '—',
       ),
       el(
         'td',

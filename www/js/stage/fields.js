@@ -66,7 +66,19 @@ export const FIELDS = [
   { key: 'distortionLevel', group: 'spec', label: 'Distortion at a peak of', unit: 'V' },
   { key: 'distortionHz', group: 'spec', label: 'and a frequency of', unit: 'Hz' },
   { key: 'maxThd', group: 'spec', label: 'Most HD2 or HD3', unit: '%' },
-  { key: 'partTolerance', group: 'spec', label: 'Resistor tolerance', unit: '%' },
+  { key: 'partTolerance', group: 'tolerance', label: 'Resistor grade (Rf, Rg, Riso)', unit: '%' },
+  { key: 'resistorTempco', group: 'tolerance', label: 'Resistor tempco', unit: 'ppm/K' },
+  {
+    key: 'capacitorTolerance',
+    group: 'tolerance',
+    label: 'Capacitor tolerance (Cf, Cs, Cl)',
+    unit: '%',
+  },
+  { key: 'capacitorTempco', group: 'tolerance', label: 'Capacitor tempco', unit: 'ppm/K' },
+  { key: 'sourceLoadTolerance', group: 'tolerance', label: 'Rs and Rl tolerance', unit: '%' },
+  { key: 'tempLowC', group: 'tolerance', label: 'Temperature from', unit: '°C' },
+  { key: 'tempHighC', group: 'tolerance', label: 'Temperature to', unit: '°C' },
+  { key: 'mcTrials', group: 'tolerance', label: 'Monte Carlo trials', unit: '' },
   { key: 'pairTotalMin', group: 'spec', label: 'Rf + Rg at least', unit: 'Ω' },
   { key: 'pairTotalMax', group: 'spec', label: 'Rf + Rg at most', unit: 'Ω' },
   {
@@ -82,12 +94,13 @@ export const GROUPS = [
   ['amplifier', 'Amplifier (datasheet figures)'],
   ['parts', 'Network, source and load'],
   ['spec', 'Spec'],
+  ['tolerance', 'Tolerances and temperature'],
 ];
 
 /** The fields that are the stage document's (the worksheet block carries these). */
 export const STAGE_KEYS = FIELDS.filter(
   (f) =>
-    !['spec'].includes(f.group) &&
+    !['spec', 'tolerance'].includes(f.group) &&
     ![
       'enDensity',
       'enCornerHz',
@@ -142,7 +155,19 @@ export const DEMO = {
   distortionLevel: '2',
   distortionHz: '1k',
   maxThd: '0.05%',
+  // Tolerances (common grades: 0.1 % thin film at 25 ppm/K, C0G at ±30 ppm/K within
+  // 5 %, the source and load known to 1 %; common practice, no source) and an
+  // industrial-commercial range 0 … 70 °C.
   partTolerance: '0.1%',
+  resistorTempco: '25',
+  capacitorTolerance: '5%',
+  capacitorTempco: '30',
+  sourceLoadTolerance: '1%',
+  tempLowC: '0',
+  tempHighC: '70',
+  // Each trial solves the stage at both temperatures (the phase margin takes ~4 ms a
+  // point): 200 keep the view quick; raise for a finer yield.
+  mcTrials: '200',
   pairTotalMin: '5k',
   pairTotalMax: '200k',
   series: 'E96',

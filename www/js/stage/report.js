@@ -1,5 +1,5 @@
 // The printable design report of a stage: inputs, spec, results with pass or fail,
-// the plots, the cautions, the core's version and the date. It is a section of the
+// the tolerance answers (worst case, Monte Carlo, sensitivities), the plots, the cautions, the core's version and the date. It is a section of the
 // page shown for printing (the print stylesheet hides everything else), so the
 // browser's own print or print to PDF makes the file.
 
@@ -7,11 +7,16 @@ import { el, clear } from '../dom.js';
 import { formatEngineering, formatPlain } from '../format.js';
 import { FIELDS, GROUPS } from './fields.js';
 import { stagePlots } from './plots.js';
+import { toleranceSection } from './tolerance.js';
 
 /** A check's measured value as text. */
 export function checkValue(c) {
   if (c.text) return c.text;
-  if (c.range) return `${formatPlain(c.range[0], 6)} … ${formatPlain(c.range[1], 6)}`;
+  if (c.range) {
+    const v = (x) =>
+      c.unit?.endsWith('rms') ? formatEngineering(x, 4, c.unit) : formatPlain(x, 5, c.unit ?? '');
+    return `${v(c.range[0])} … ${v(c.range[1])}`;
+  }
   return c.unit === 'V' ? formatEngineering(c.value, 4, 'V rms') : formatPlain(c.value, 5, c.unit);
 }
 
@@ -19,7 +24,11 @@ export function checkValue(c) {
 export function checkLimit(c) {
   if (!c.limit) return c.name === 'stable' ? 'stable' : '—';
   const fmt = (x) =>
-    c.unit === 'V' ? formatEngineering(x, 4, 'V rms') : formatPlain(x, 6, c.unit ?? '');
+    c.unit === 'V'
+      ? formatEngineering(x, 4, 'V rms')
+      : c.unit?.endsWith('rms')
+        ? formatEngineering(x, 4, c.unit)
+        : formatPlain(x, 6, c.unit ?? '');
   const { lower, upper } = c.limit;
   if (lower !== undefined && upper !== undefined) return `${fmt(lower)} … ${fmt(upper)}`;
   return lower !== undefined ? `≥ ${fmt(lower)}` : `≤ ${fmt(upper)}`;
@@ -129,7 +138,10 @@ export function renderReport(host, api, r, values, { date = new Date() } = {}) {
       { class: 'results' },
       summary.flatMap(([k, v]) => [el('dt', {}, k), el('dd', {}, v)]),
     ),
-    r.tolerance.note ? el('p', { class: 'result-table-note' }, r.tolerance.note) : null,
+    el('h3', {}, 'Tolerance: worst case, Monte Carlo, sensitivity'),
+    ...(r.tolerance.error
+      ? [el('p', { class: 'card-message' }, r.tolerance.error.message)]
+      : toleranceSection(r.tolerance, { prefix: 'report' })),
     el('h3', {}, 'Plots'),
     el(
       'div',

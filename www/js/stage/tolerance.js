@@ -1,65 +1,339 @@
-// Worst case and Monte Carlo of a stage against its spec, behind one small adapter:
-// today the two-resistor engine of the network area (worstCase, monteCarlo; the
-// amplifier's A0 spread, Rd and Ro with the two feedback resistors' tolerance), for
-// the non-inverting and inverting stages. A whole-stage engine can replace
-// `stageTolerance` without the view changing: it returns the same shape.
+// Worst case, Monte Carlo and sensitivities of a stage against its spec, from the
+// core's whole-stage tolerance engine (`stageTolerance`, docs/tolerance.md): every
+// part the stage has with its tolerance and tempco, the amplifier's A0 over its
+// min/typ/max, a temperature range, and the view's spec as the limits. Every kind of
+// stage the view offers. This file only gathers the inputs: each number shown is the
+// core's.
 
-import { formatPlain } from '../format.js';
+import { el } from '../dom.js';
+import { formatEngineering, formatPlain } from '../format.js';
+import { histogramChart } from '../plot/histogram.js';
 
-/** The network engine's name of a stage kind, or null when it does not model it. */
-const NETWORK_STAGE = { 'non-inverting': 'non-inverting', inverting: 'inverting' };
+/** Which tolerance field and tempco field each stage part takes. */
+const PART_GRADES = {
+  rf: ['partTolerance', 'resistorTempco'],
+  rg: ['partTolerance', 'resistorTempco'],
+  riso: ['partTolerance', 'resistorTempco'],
+  cf: ['capacitorTolerance', 'capacitorTempco'],
+  cs: ['capacitorTolerance', 'capacitorTempco'],
+  cl: ['capacitorTolerance', 'capacitorTempco'],
+  rs: ['sourceLoadTolerance', 'resistorTempco'],
+  rl: ['sourceLoadTolerance', 'resistorTempco'],
+};
+
+/** The spec's figures as the engine names them, with the view's words for each. */
+export const FIGURE_WORDS = {
+  gainErrorPercent: 'Gain error at 1 Hz',
+  phaseMarginDeg: 'Phase margin',
+  outputNoiseRms: 'Output noise over the band',
+};
+
+/** The display unit of each figure of a stage of kind `kind` (the page's label). */
+export const figureUnits = (kind) => ({
+  gainErrorPercent: '%',
+  phaseMarginDeg: '°',
+  // The transconductance and current-amplifier stages put out a current.
+  outputNoiseRms: ['transconductance', 'current-amplifier'].includes(kind) ? 'A rms' : 'V rms',
+});
+
+/** Varied quantities as the view names them (`U1.a0` is the amplifier's A0). */
+export const partWords = (name) => (name === 'U1.a0' ? 'A0' : name);
 
 /**
- * `{worst: {nominal, min, max, pass}, monteCarlo: {yieldFraction, mean, sd,
- * trials}, note}` for the stage `n` (numbers read by the core's reader: rf, rg,
- * a0Min, a0, a0Max, rd, ro, gbwHz or dominantPoleHz, partTolerance) against the
- * gain limits `lower` … `upper`; `{note}` alone when the engine does not apply.
+ * The spec of the view's numbers `n` as engine limits: the gain within its tolerance
+ * at 1 Hz (the low end of the gain check, as a percent error from the target gain,
+ * the same for every kind and sign), the least phase margin, and the most output
+ * noise over the noise band when one is given.
  */
-export function stageTolerance(api, kind, n, { lower, upper }) {
-  const stage = NETWORK_STAGE[kind];
-  if (!stage || !(n.rf > 0) || !(n.rg > 0))
-    return {
-      note: 'Worst case and Monte Carlo cover the non-inverting and inverting stages with Rf and Rg for now.',
-    };
-  const common = {
-    stage,
-    r1: n.rg,
-    r2: n.rf,
-    tolR1: n.partTolerance,
-    tolR2: n.partTolerance,
-    aMin: n.a0Min ?? n.a0,
-    aTyp: n.a0,
-    aMax: n.a0Max ?? n.a0,
-    // The network engine takes one input resistance; Rd stands for it (1 TΩ when none is given).
-    ri: n.rd ?? 1e12,
-    ro: n.ro ?? 0,
-    ...(n.gbwHz ? { gbwHz: n.gbwHz } : { poleHz: n.dominantPoleHz }),
-  };
-  const wc = api.worstCase(common);
-  // The network engine signs the inverting gain; the spec is on its magnitude.
-  const limits = stage === 'inverting' ? { lower: -upper, upper: -lower } : { lower, upper };
-  const mc = api.monteCarlo({ ...common, metric: 'gain', trials: 20000, seed: 1, ...limits });
-  const g = wc.gain;
-  const lo = Math.min(Math.abs(g.min), Math.abs(g.max));
-  const hi = Math.max(Math.abs(g.min), Math.abs(g.max));
-  return {
-    worst: {
-      nominal: Math.abs(g.nominal),
-      min: lo,
-      max: hi,
-      pass: lo >= lower && hi <= upper,
-      // Which end of each part gives the lowest and the highest |gain|.
-      corners:
-        Math.abs(g.min) <= Math.abs(g.max)
-          ? [g.minCorner, g.maxCorner]
-          : [g.maxCorner, g.minCorner],
+export function toleranceSpec(n) {
+  const spec = [
+    {
+      figure: 'gainErrorPercent',
+      freqHz: 1,
+      target: n.gain,
+      lower: -n.tolerance * 100,
+      upper: n.tolerance * 100,
     },
-    monteCarlo: {
-      yieldFraction: mc.stats.yieldFraction,
-      mean: Math.abs(mc.stats.mean),
-      sd: mc.stats.sd,
-      trials: mc.stats.count,
-    },
-    note: `Two resistors at ±${formatPlain(n.partTolerance * 100, 3, '%')} (uniform) and A0 over its spread (log-normal), 20 000 trials; the network engine of the Calculators tab.`,
+    { figure: 'phaseMarginDeg', lower: n.minPhaseMarginDeg },
+  ];
+  if (n.maxNoiseRms !== undefined)
+    spec.push({
+      figure: 'outputNoiseRms',
+      bandHz: [n.noiseFromHz, n.noiseToHz],
+      upper: n.maxNoiseRms,
+    });
+  return spec;
+}
+
+/**
+ * The part spreads of the stage document `doc` from the view's numbers `n`: each part
+ * the stage has, uniform within its grade's tolerance (a part sold as ±p % is screened
+ * to it), with its grade's tempco; a grade left empty keeps its parts exact.
+ */
+export function toleranceParts(doc, n) {
+  const parts = [];
+  for (const [part, [tol, tc]] of Object.entries(PART_GRADES)) {
+    if (!(part in doc.parts) || n[tol] === undefined) continue;
+    parts.push({
+      part,
+      tolerance: { distribution: 'uniform', percent: n[tol] * 100 },
+      tempcoPpm: n[tc] ?? 0,
+    });
+  }
+  return parts;
+}
+
+/**
+ * The engine's answer for the stage document `doc` and the view's numbers `n`: the
+ * options it was called with (`options`, so a test can call the core the same way)
+ * and `{parts, temperaturesC, worstCase, monteCarlo, sensitivity}` as it returned them.
+ * `spec` and `analyses` narrow what is asked (the design's candidates ask only for
+ * the gain's worst case and yield).
+ */
+export function stageTolerance(
+  api,
+  doc,
+  n,
+  { spec = toleranceSpec(n), analyses, trials = n.mcTrials ?? 1000 } = {},
+) {
+  const options = {
+    stage: doc,
+    parts: toleranceParts(doc, n),
+    temperatureC: [n.tempLowC ?? 25, n.tempHighC ?? 25],
+    spec,
+    trials,
+    seed: 1,
+    bins: 24,
+    keepFailures: 0,
   };
+  if (analyses) options.analyses = analyses;
+  try {
+    return { options, ...api.stageTolerance(options) };
+  } catch (err) {
+    err.field = fieldOfToleranceParam(err.param, options.parts);
+    throw err;
+  }
+}
+
+/**
+ * The view's field behind a stageTolerance error's `param` (`parts[2].tolerance`,
+ * `temperatureC`, `trials`, `spec[1].upper`), or undefined when it is the stage's.
+ */
+function fieldOfToleranceParam(param, parts) {
+  if (typeof param !== 'string') return undefined;
+  const part = /^parts\[(\d+)\]\.(\w+)/.exec(param);
+  if (part) {
+    const [tol, tc] = PART_GRADES[parts[Number(part[1])]?.part] ?? [];
+    return part[2] === 'tempcoPpm' ? tc : tol;
+  }
+  if (param === 'temperatureC') return 'tempLowC';
+  if (param === 'trials') return 'mcTrials';
+  const limit = /^spec\[(\d+)\]/.exec(param);
+  if (limit) return ['tolerance', 'minPhaseMarginDeg', 'maxNoiseRms'][Number(limit[1])];
+  return undefined;
+}
+
+const unitOfPart = (name) => (name.startsWith('R') ? 'Ω' : name.startsWith('C') ? 'F' : '');
+const partValue = (name, x) =>
+  unitOfPart(name) ? formatEngineering(x, 4, unitOfPart(name)) : formatEngineering(x, 3);
+/** A figure's value as the view shows it (`units` of figureUnits). */
+export const figureValue = (units, figure, x, digits = 4) =>
+  x === null || x === undefined
+    ? '—'
+    : units[figure].endsWith('rms')
+      ? formatEngineering(x, digits, units[figure])
+      : formatPlain(x, digits, units[figure]);
+const limitText = (units, l) => {
+  const f = l.figure.figure;
+  const v = (x) => figureValue(units, f, x);
+  if (l.lower !== null && l.upper !== null) return `${v(l.lower)} … ${v(l.upper)}`;
+  return l.lower !== null ? `≥ ${v(l.lower)}` : `≤ ${v(l.upper)}`;
+};
+const verdict = (meets) => (meets ? 'pass' : 'FAIL');
+
+/** The part values (at 25 °C) and the temperature of a worst-case extreme. */
+const extremeAt = (names, e) =>
+  `${names.map((p, i) => `${partWords(p)} ${partValue(p, e.values[i])}`).join(', ')}; ${formatPlain(e.temperatureC, 4, '°C')}`;
+
+function table(id, caption, head, rows) {
+  return el(
+    'div',
+    { class: 'result-table-scroller' },
+    el(
+      'table',
+      { class: 'result-table stage-tolerance-table', id },
+      el('caption', { class: 'result-table-caption' }, caption),
+      el(
+        'thead',
+        {},
+        el(
+          'tr',
+          {},
+          head.map((h) => el('th', { scope: 'col' }, h)),
+        ),
+      ),
+      el('tbody', {}, rows),
+    ),
+  );
+}
+
+/**
+ * The tolerance answers `t` (stageTolerance above) as the view and the report show
+ * them: what varies, the worst case with the part values at each extreme, the Monte
+ * Carlo yield overall and per limit with a histogram of each figure, and each part's
+ * sensitivity with the part to tighten first. `prefix` keeps the ids apart.
+ */
+export function toleranceSection(t, { prefix = 'stage' } = {}) {
+  const out = [];
+  const units = figureUnits(t.options.stage.kind);
+  const show = (fig, x, digits) => figureValue(units, fig, x, digits);
+  const varied = t.parts
+    .map(
+      (p) =>
+        `${partWords(p.name)} ${partValue(p.name, p.low)} … ${partValue(p.name, p.high)}${p.tempcoPpm ? ` (${formatPlain(p.tempcoPpm, 4)} ppm/K)` : ''}`,
+    )
+    .join(', ');
+  const [tLow, tHigh] = t.options.temperatureC;
+  out.push(
+    el(
+      'p',
+      { class: 'result-table-note', id: `${prefix}-tolerance-varied` },
+      `Varied: ${varied}; ${formatPlain(tLow, 4)} … ${formatPlain(tHigh, 4, '°C')}. The whole stage is solved at every point (the core's tolerance engine).`,
+    ),
+  );
+  const w = t.worstCase;
+  if (w)
+    out.push(
+      table(
+        `${prefix}-worst`,
+        `Worst case: ${w.method === 'corners' ? 'every corner' : 'sensitivity-guided search'}, ${w.evaluations} evaluations`,
+        ['figure', 'nominal', 'lowest', 'highest', 'spec', ''],
+        w.figures.flatMap((f) => {
+          const fig = f.limit.figure.figure;
+          return [
+            el(
+              'tr',
+              { class: f.meets ? 'passes' : 'fails', 'data-figure': fig },
+              el('td', {}, FIGURE_WORDS[fig] ?? fig),
+              el('td', { class: 'num' }, show(fig, f.nominal)),
+              el('td', { class: 'num' }, show(fig, f.min.value)),
+              el('td', { class: 'num' }, show(fig, f.max.value)),
+              el('td', {}, limitText(units, f.limit)),
+              el('td', { class: 'stage-verdict' }, verdict(f.meets)),
+            ),
+            el(
+              'tr',
+              { class: 'stage-at', 'data-figure': fig },
+              el(
+                'td',
+                { colspan: 6 },
+                `lowest at ${extremeAt(w.parts, f.min)}; highest at ${extremeAt(w.parts, f.max)}${f.searched.length ? `; searched inside ${f.searched.map(partWords).join(', ')} (not monotonic)` : ''}`,
+              ),
+            ),
+          ];
+        }),
+      ),
+    );
+  const mc = t.monteCarlo;
+  if (mc) {
+    out.push(
+      el(
+        'p',
+        { class: 'stage-yield' },
+        'Monte Carlo yield against the whole spec: ',
+        el('output', { id: `${prefix}-out-yield` }, formatPlain(mc.yieldFraction * 100, 4, '%')),
+        ` of ${mc.trials} trials (seed ${mc.seed}).`,
+      ),
+      table(
+        `${prefix}-yields`,
+        'Monte Carlo per limit',
+        ['figure', 'yield', 'mean', 'σ', '0.1 % … 99.9 %', 'not computed'],
+        mc.limits.map((l) => {
+          const fig = l.limit.figure.figure;
+          const s = l.stats;
+          const p = (q) => s?.percentiles.find((x) => x.percent === q)?.value;
+          return el(
+            'tr',
+            { 'data-figure': fig },
+            el('td', {}, FIGURE_WORDS[fig] ?? fig),
+            el('td', { class: 'num' }, formatPlain(l.yieldFraction * 100, 4, '%')),
+            el('td', { class: 'num' }, s ? show(fig, s.mean, 5) : '—'),
+            el('td', { class: 'num' }, s ? show(fig, s.sd, 3) : '—'),
+            el('td', { class: 'num' }, s ? `${show(fig, p(0.1))} … ${show(fig, p(99.9))}` : '—'),
+            el('td', { class: 'num' }, String(l.undefined)),
+          );
+        }),
+      ),
+      el(
+        'div',
+        { class: 'stage-histograms' },
+        mc.limits
+          .filter((l) => l.stats)
+          .map((l) => {
+            const fig = l.limit.figure.figure;
+            const words = FIGURE_WORDS[fig] ?? fig;
+            const limits = [];
+            if (l.limit.lower !== null) limits.push({ x: l.limit.lower, label: 'spec low' });
+            if (l.limit.upper !== null) limits.push({ x: l.limit.upper, label: 'spec high' });
+            return el(
+              'figure',
+              { class: 'stage-plot', 'data-plot': `histogram-${fig}` },
+              histogramChart({
+                title: `${words}, ${l.stats.count} values`,
+                label: `${words} (${units[fig]}); ${mc.trials} trials × ${mc.temperaturesC.length} temperatures`,
+                edges: l.stats.histogram.edges,
+                counts: l.stats.histogram.counts,
+                limits,
+              }),
+            );
+          }),
+      ),
+    );
+  }
+  const s = t.sensitivity;
+  if (s) {
+    const rows = s.figures.flatMap((f) => {
+      const fig = f.limit.figure.figure;
+      return f.parts.map((p, i) =>
+        el(
+          'tr',
+          { 'data-figure': fig, 'data-part': p.part },
+          i === 0
+            ? el('th', { scope: 'rowgroup', rowspan: f.parts.length }, FIGURE_WORDS[fig] ?? fig)
+            : null,
+          el('td', {}, partWords(p.part)),
+          el('td', { class: 'num' }, show(fig, p.perUnit, 4)),
+          el('td', { class: 'num' }, p.normalised === null ? '—' : formatPlain(p.normalised, 4)),
+          el('td', { class: 'num' }, formatPlain(p.varianceShare * 100, 3, '%')),
+          i === 0
+            ? el(
+                'td',
+                { rowspan: f.parts.length },
+                f.tightenFirst ? partWords(f.tightenFirst) : '—',
+              )
+            : null,
+        ),
+      );
+    });
+    out.push(
+      table(
+        `${prefix}-sensitivity`,
+        `Sensitivity at nominal, ${formatPlain(s.temperatureC, 4, '°C')}`,
+        ['figure', 'part', 'per unit x·∂F/∂x', 'normalised S', 'variance share', 'tighten first'],
+        rows,
+      ),
+      el(
+        'p',
+        { class: 'stage-tighten' },
+        'Part to tighten first over the spec: ',
+        el(
+          'output',
+          { id: `${prefix}-out-tighten` },
+          s.tightenFirst ? partWords(s.tightenFirst) : 'none (no part varies)',
+        ),
+        '.',
+      ),
+    );
+  }
+  return out;
 }

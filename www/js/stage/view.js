@@ -9,11 +9,15 @@ import { formatEngineering, formatFull, formatPlain } from '../format.js';
 import { createHistory } from '../sheet/history.js';
 import { historyKey } from '../sheet/history-controls.js';
 import { DEMO, FIELDS, GROUPS, fieldOfParam, readListField } from './fields.js';
-import { analyseStage } from './analyses.js';
+import { analyseStage, withTolerance } from './analyses.js';
 import { stagePlots } from './plots.js';
 import { renderDesign } from './design.js';
 import { renderReport, checkValue, checkLimit, verdictText } from './report.js';
 import { toSheet, fromSheet } from './sheet-block.js';
+import { toleranceSection } from './tolerance.js';
+
+/** How long the view waits after a change before the tolerance analyses start, ms. */
+const TOLERANCE_DELAY_MS = 150;
 
 const isTextField = (node) => node instanceof HTMLInputElement || node instanceof HTMLSelectElement;
 
@@ -188,7 +192,6 @@ function summary(r) {
       ? `${formatPlain(Math.abs(d.closed.hd2) * 100, 3, '%')}, ${formatPlain(Math.abs(d.closed.hd3) * 100, 3, '%')} at ${formatPlain(d.closed.outputAmplitude, 3, 'V')} peak, ${formatEngineering(d.frequencyHz, 3, 'Hz')} (loop gain there ${formatPlain(d.loopGains[0].magnitude, 4)}; open loop ${formatPlain(Math.abs(d.open.hd2) * 100, 3, '%')}, ${formatPlain(Math.abs(d.open.hd3) * 100, 3, '%')})`
       : (d.error?.message ?? d.note),
   ]);
-  if (r.tolerance.note) rows.push(['tolerance-note', 'Tolerance analysis', r.tolerance.note]);
   return el(
     'dl',
     { class: 'results stage-summary' },
@@ -198,9 +201,6 @@ function summary(r) {
     ]),
   );
 }
-
-/** A worst-case corner as the parts' ends: "Rg high, Rf low, A0 low". */
-const corner = (c) => `Rg ${c.r1}, Rf ${c.r2}, A0 ${c.openLoopGain}`;
 
 /** The stage's results as tab-separated text at full precision (for the clipboard). */
 function resultsTsv(r) {
@@ -306,10 +306,12 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
     if (key) formHost.querySelector(`#stage-${key}`)?.setAttribute('aria-invalid', 'true');
   }
 
+  let toleranceTimer = null;
   function recompute() {
+    clearTimeout(toleranceTimer);
     let r;
     try {
-      r = analyseStage(api, values);
+      r = analyseStage(api, values, { deferTolerance: true });
     } catch (err) {
       const key = err.field ?? fieldOfParam(err.param);
       markField(key);
@@ -321,24 +323,64 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
     markField(null);
     message.textContent = '';
     last = r;
-    clear(checksHost).append(checksTable(r), summary(r));
-    if (!r.tolerance.error && r.tolerance.worst) {
-      const t = r.tolerance;
-      checksHost.append(
-        el(
-          'p',
-          { class: 'result-table-note', id: 'stage-tolerance-note' },
-          `Worst case ${formatPlain(t.worst.min, 6)} (${corner(t.worst.corners[0])}) … ${formatPlain(t.worst.max, 6)} (${corner(t.worst.corners[1])}); Monte Carlo mean ${formatPlain(t.monteCarlo.mean, 6)}, σ ${formatEngineering(t.monteCarlo.sd, 3)}, yield ${formatPlain(t.monteCarlo.yieldFraction * 100, 4, '%')}. ${t.note}`,
-        ),
-      );
-    }
+    showAnswers(r);
     clear(plotsHost).append(
       ...stagePlots(r).map((p) =>
         el('figure', { class: 'stage-plot', 'data-plot': p.name }, p.svg),
       ),
     );
     renderDesign(designHost, api, r, values, use);
-    if (!reportHost.hidden) renderReport(reportHost, api, r, values);
+    if (!reportHost.hidden) {
+      withTolerance(api, r);
+      showAnswers(r);
+      renderReport(reportHost, api, r, values);
+    }
+    // The tolerance analyses are the slowest: run once the rest is shown, and only
+    // for the latest stage (a change before then starts again).
+    if (r.tolerance === null)
+      toleranceTimer = setTimeout(() => {
+        if (last !== r) return;
+        withTolerance(api, r);
+        showAnswers(r);
+      }, TOLERANCE_DELAY_MS);
+  }
+
+  /** The checks, the summary and the tolerance answers (or that they are coming). */
+  function showAnswers(r) {
+    clear(checksHost).append(checksTable(r), summary(r));
+    const t = r.tolerance;
+    const section = el(
+      'section',
+      {
+        class: 'stage-tolerance',
+        id: 'stage-tolerances',
+        'aria-label': 'tolerance',
+        'aria-busy': t === null ? 'true' : 'false',
+        'data-state': t === null ? 'running' : 'ready',
+      },
+      el('h3', {}, 'Tolerance: worst case, Monte Carlo, sensitivity'),
+    );
+    if (t?.error) {
+      const label = FIELDS.find((f) => f.key === t.error.field)?.label;
+      section.append(
+        el(
+          'p',
+          { class: 'card-message', id: 'stage-tolerance-message', role: 'alert' },
+          label ? `${label}: ${t.error.message}` : t.error.message,
+        ),
+      );
+      if (t.error.field) markField(t.error.field);
+    }
+    if (t === null)
+      section.append(
+        el(
+          'p',
+          { class: 'result-table-note' },
+          'Worst case, Monte Carlo and sensitivities are being computed…',
+        ),
+      );
+    else if (!t.error) section.append(...toleranceSection(t));
+    checksHost.append(section);
   }
 
   /** Put field texts into the stage as one undoable step. */
@@ -421,6 +463,10 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
   const showReport = () => {
     if (!last) return;
     reportHost.hidden = false;
+    if (last.tolerance === null) {
+      withTolerance(api, last);
+      showAnswers(last);
+    }
     renderReport(reportHost, api, last, values);
     reportHost.scrollIntoView?.();
   };
