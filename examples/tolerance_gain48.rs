@@ -27,9 +27,13 @@ fn main() {
         upper: Some(0.5),
     }];
     for (label, rf, rg, percent) in [
-        ("E96 1 %", 47.5e3, 1.01e3, 1.0),
-        ("E96 0.1 %", 47.5e3, 1.01e3, 0.1),
-        ("E192 0.1 %", 47.0e3, 1.00e3, 0.1),
+        // The E96 pair nearest 48 (no E96 pair is within ±0.5 %: docs/network.md).
+        ("E96 11.5 k / 243, 1 %", 11.5e3, 243.0, 1.0),
+        ("E96 11.5 k / 243, 0.1 %", 11.5e3, 243.0, 0.1),
+        // 1.01 k is an E192 value, 47.5 k is in E96 and E192.
+        ("E192 47.5 k / 1.01 k, 1 %", 47.5e3, 1.01e3, 1.0),
+        ("E192 47.5 k / 1.01 k, 0.1 %", 47.5e3, 1.01e3, 0.1),
+        ("E192 47.0 k / 1.00 k, 0.1 %", 47.0e3, 1.00e3, 0.1),
     ] {
         let stage = Stage {
             kind: StageKind::NonInverting,
