@@ -228,7 +228,7 @@ impl FastModel {
         if self.origin != 0.0 {
             ln_mag -= self.origin * libm::log(f);
         }
-        (ln_mag, libm::atan2(wi, wr), est)
+        (ln_mag, crate::float::atan2(wi, wr), est)
     }
 
     /// Largest change of the factors' phase between two frequencies a ratio
