@@ -11,6 +11,9 @@
 //! library's are the musl ports that `libm` also compiles (the runtime's
 //! `compiler_builtins` carries them for `num-complex`), so calling them through `std`
 //! there leaves one copy in the module. Native builds keep `libm`'s.
+//! The frequency sweep's per-point phase (`freq::eval`) keeps `libm::atan2`, which
+//! the optimiser can inline there: through `std` the 10 000-point sweep was 3–4 %
+//! slower (bench/lite.mjs), for about 450 bytes gzipped.
 
 /// √x, correctly rounded.
 #[inline]

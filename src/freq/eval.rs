@@ -228,7 +228,8 @@ impl FastModel {
         if self.origin != 0.0 {
             ln_mag -= self.origin * libm::log(f);
         }
-        (ln_mag, crate::float::atan2(wi, wr), est)
+        // libm's, not crate::float::atan2: inlined here, 3–4 % of the sweep (src/float.rs).
+        (ln_mag, libm::atan2(wi, wr), est)
     }
 
     /// Largest change of the factors' phase between two frequencies a ratio

@@ -26,7 +26,9 @@ const POW10: [f64; 23] = [
 
 /// The double nearest to ±(the decimal integer `digits`) × 10^`exp`, ties to even;
 /// ±∞ beyond the double range, ±0 below half the smallest subnormal. `digits` holds
-/// ASCII digits only (`None` otherwise); empty means zero.
+/// ASCII digits only (`None` otherwise); empty means zero. The work grows with the
+/// square of the digit count: the reader passes at most 800 (`MAX_DIGITS` on each
+/// side of the point).
 pub(crate) fn to_f64(negative: bool, digits: &[u8], exp: i64) -> Option<f64> {
     if !digits.iter().all(u8::is_ascii_digit) {
         return None;
