@@ -81,8 +81,8 @@ where
         let y = sample(k)?;
         for (h, (r, i)) in re.iter_mut().zip(im.iter_mut()).enumerate() {
             let phase = 2.0 * PI * ((h * k) % n) as f64 / n as f64;
-            *r += y * libm::cos(phase);
-            *i -= y * libm::sin(phase);
+            *r += y * crate::float::cos(phase);
+            *i -= y * crate::float::sin(phase);
         }
     }
     let nf = n as f64;
@@ -127,7 +127,7 @@ pub fn closed_loop_spectrum(
     }
     let n = samples;
     let (dc, harmonics) = short_dft(n, |k| {
-        let x = x_peak * libm::cos(2.0 * PI * k as f64 / n as f64);
+        let x = x_peak * crate::float::cos(2.0 * PI * k as f64 / n as f64);
         solver.output_named(x, "amplitude")
     })?;
     let fundamental = harmonics[0];

@@ -228,6 +228,7 @@ impl FastModel {
         if self.origin != 0.0 {
             ln_mag -= self.origin * libm::log(f);
         }
+        // libm's, not crate::float::atan2: inlined here, 3–4 % of the sweep (src/float.rs).
         (ln_mag, libm::atan2(wi, wr), est)
     }
 

@@ -40,6 +40,7 @@
 //! IEC 60062:2016 *Marking codes for resistors and capacitors*, clause 4 (letter
 //! code, from memory).
 
+mod decimal;
 mod format;
 mod read;
 mod unit;

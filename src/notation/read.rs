@@ -7,9 +7,7 @@
 
 use super::unit::{Unit, SPELLINGS};
 use crate::error::{Error, Result};
-use alloc::string::String;
 use alloc::vec::Vec;
-use core::fmt::Write;
 
 /// What a context allows besides a plain number with prefix, letter code and unit.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, Default)]
@@ -624,18 +622,15 @@ fn check_declared(c: &Cursor<'_>, parts: &Parts<'_>, options: &ReadOptions) -> R
 /// conversion, so `4k7` is exactly the double nearest 4700 (not 4.7 × 1000).
 fn finish(c: &Cursor<'_>, parts: &Parts<'_>, options: &ReadOptions) -> Result<Reading> {
     check_declared(c, parts, options)?;
-    let mut text = String::with_capacity(parts.int.len() + parts.frac.len() + 16);
-    if parts.negative {
-        text.push('-');
-    }
-    text.push_str(if parts.int.is_empty() { "0" } else { parts.int });
-    text.push('.');
-    text.push_str(parts.frac);
-    text.push('0');
-    let exp = parts.exp - if parts.percent { 2 } else { 0 };
-    // Writing to a String cannot fail.
-    let _ = write!(text, "e{exp}");
-    let value: f64 = text.parse().map_err(|_| c.error_at(0, R_DIGIT))?;
+    let mut digits = Vec::with_capacity(parts.int.len() + parts.frac.len());
+    digits.extend_from_slice(parts.int.as_bytes());
+    digits.extend_from_slice(parts.frac.as_bytes());
+    let exp = parts
+        .exp
+        .saturating_sub(parts.frac.len() as i64)
+        .saturating_sub(if parts.percent { 2 } else { 0 });
+    let value = super::decimal::to_f64(parts.negative, &digits, exp)
+        .ok_or_else(|| c.error_at(0, R_DIGIT))?;
     if !value.is_finite() {
         return Err(Error::Overflow { param: "text" });
     }

@@ -136,7 +136,8 @@ pub fn impedance_sweep(
         sweeper.solve_into(f, &mut x)?;
         let z = check::result_complex("impedance", node_voltage(&x, p) - node_voltage(&x, m))?;
         out.magnitude_ohm.push(z.norm());
-        out.phase_deg.push(libm::atan2(z.im, z.re).to_degrees());
+        out.phase_deg
+            .push(crate::float::atan2(z.im, z.re).to_degrees());
         out.re.push(z.re);
         out.im.push(z.im);
     }

@@ -73,7 +73,8 @@ impl ResponseSweep {
                 ));
             }
             r.magnitude_db.push(db);
-            r.phase_deg.push(libm::atan2(z.im, z.re).to_degrees());
+            r.phase_deg
+                .push(crate::float::atan2(z.im, z.re).to_degrees());
             r.re.push(z.re);
             r.im.push(z.im);
         }

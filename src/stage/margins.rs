@@ -85,7 +85,7 @@ impl<'a> CircuitLoop<'a> {
 impl EvaluatedLoop for CircuitLoop<'_> {
     fn eval(&self, f_hz: f64) -> (f64, f64) {
         let t = self.at(f_hz);
-        (libm::log(t.norm()), libm::atan2(t.im, t.re))
+        (libm::log(t.norm()), crate::float::atan2(t.im, t.re))
     }
 
     fn hints(&self) -> GridHints {

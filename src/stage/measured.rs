@@ -362,7 +362,7 @@ pub fn measured_margins(l: &MeasuredLoop, open_loop_rhp_poles: u32) -> Result<Ma
     let n = measured_nyquist(l, open_loop_rhp_poles)?;
     let validity = if open_loop_rhp_poles > 0 {
         MarginValidity::OpenLoopUnstable
-    } else if libm::cos(l.phase_rad[0]) < 0.0 {
+    } else if crate::float::cos(l.phase_rad[0]) < 0.0 {
         MarginValidity::PositiveFeedback
     } else {
         MarginValidity::Meaningful

@@ -272,7 +272,7 @@ pub(crate) fn figure_of(
         Figure::PhaseDeg { freq_hz } => {
             let h = gain_sweep(&b.circuit, b.source, output(b), &[freq_hz])?;
             let z = h.complex()[0];
-            libm::atan2(z.im, z.re).to_degrees()
+            crate::float::atan2(z.im, z.re).to_degrees()
         }
         Figure::GainErrorPercent { freq_hz, target } => {
             (gain_at(b, &[freq_hz])?[0] - libm::fabs(target)) / libm::fabs(target) * 100.0

@@ -182,9 +182,11 @@ fn phasor(a: &Args<'_>) -> Value {
     match fb::loop_phasors(x, b) {
         Ok(p) => row(vec![
             Value::num(p.closed_loop_gain.norm()),
-            Value::num(libm::atan2(p.closed_loop_gain.im, p.closed_loop_gain.re).to_degrees()),
+            Value::num(
+                crate::float::atan2(p.closed_loop_gain.im, p.closed_loop_gain.re).to_degrees(),
+            ),
             Value::num(p.loop_gain.norm()),
-            Value::num(libm::atan2(p.loop_gain.im, p.loop_gain.re).to_degrees()),
+            Value::num(crate::float::atan2(p.loop_gain.im, p.loop_gain.re).to_degrees()),
             Value::Number(p.feedback_amount_db, Some(Unit::Decibel)),
         ]),
         Err(e) => core_err(a, e),

@@ -190,7 +190,7 @@ fn row(items: Vec<Value>) -> Value {
 fn point(s: &ResponseSweep, db: bool, unit: Option<Unit>) -> Value {
     match (s.re.first(), s.im.first(), s.magnitude_db.first()) {
         (Some(&re), Some(&im), Some(&m)) => {
-            let phase = libm::atan2(im, re).to_degrees();
+            let phase = crate::float::atan2(im, re).to_degrees();
             let first = if db {
                 tagged(m, Some(Unit::Decibel))
             } else {
@@ -237,7 +237,7 @@ fn impedance(a: &Args<'_>, input: bool) -> Value {
         Ok(z) => match (z.re.first(), z.im.first()) {
             (Some(&re), Some(&im)) => row(vec![
                 tagged(libm::hypot(re, im), Some(Unit::Ohm)),
-                Value::num(libm::atan2(im, re).to_degrees()),
+                Value::num(crate::float::atan2(im, re).to_degrees()),
             ]),
             _ => Value::error(ErrorKind::Value, "empty result"),
         },
