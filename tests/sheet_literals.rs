@@ -186,11 +186,15 @@ fn agrees_with_the_network_notation_parser() {
 #[test]
 fn function_results_carry_the_catalog_units() {
     // The catalog states FREQ.STEP's result units as "%; s; s" and FREQ.GBW's as
-    // "Hz": the cells carry s and Hz (overshoot in % is a plain number).
+    // "Hz": the cells carry %, s and Hz (the overshoot's % is a display unit: the
+    // number is the same, shown without an SI prefix).
     let mut s = Sheet::new();
     s.set("A1", "=FREQ.STEP(100k; 0.01; 2%; 10 Hz)").unwrap();
     s.set("A2", "=FREQ.GBW(100k; 10 Hz)").unwrap();
-    assert!(matches!(s.value("A1").unwrap(), Value::Number(_, None)));
+    assert!(matches!(
+        s.value("A1").unwrap(),
+        Value::Number(_, Some(Unit::Percent))
+    ));
     assert!(matches!(
         s.value("B1").unwrap(),
         Value::Number(_, Some(Unit::Second))
