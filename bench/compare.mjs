@@ -5,10 +5,10 @@
 // version (positional at 0.1, options objects at 0.2) and does the same work.
 // Prints a Markdown table; figures only, nothing here asserts a time.
 //
-//   node bench/compare.mjs /tmp/orig [--runs N] [--out FILE]
+//   node bench/compare.mjs /tmp/orig [--runs N] [--out FILE] [--cases KEY,KEY]
 // `--runs N` repeats the whole interleaved measurement N times and reports, per
 // case, the median of the per-run medians and the range of the per-run ratios (the
-// noise a reader should allow for).
+// noise a reader should allow for). `--cases` times only the cases of those keys.
 
 import { execFileSync } from 'node:child_process';
 import { writeFileSync } from 'node:fs';
@@ -26,6 +26,7 @@ const flag = (name, fallback) => {
 const base = resolve(args[0] ?? '/tmp/orig');
 const runs = Number(flag('--runs', '3'));
 const out = flag('--out', null);
+const only = flag('--cases', null)?.split(',');
 
 const load = async (dir) => ({
   lw: await import(pathToFileURL(join(dir, 'pkg', 'node.mjs')).href),
@@ -37,6 +38,7 @@ const now = await load(root);
 const median = (xs) => [...xs].sort((a, b) => a - b)[Math.floor(xs.length / 2)];
 const rows = [];
 for (const c of now.cases) {
+  if (only && !only.includes(c.key)) continue;
   const before = old.cases.find((o) => o.key === c.key);
   if (!before) {
     rows.push([c.area, c.what, NaN, NaN, [], 'new case']);

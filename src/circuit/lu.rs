@@ -122,8 +122,7 @@ impl Lu {
         if a.len() != n * n {
             return Err(NoPivot { column: 0 });
         }
-        let mut lu = Lu::with_size(n);
-        lu.a = a;
+        let mut lu = Lu::with_storage(n, a);
         lu.factor_in_place(None)?;
         Ok(lu)
     }
@@ -131,9 +130,14 @@ impl Lu {
     /// Storage for factoring n × n matrices again and again with [`Lu::refactor`]
     /// (a sweep over frequency), allocated once.
     pub fn with_size(n: usize) -> Lu {
+        Lu::with_storage(n, alloc::vec![Complex64::new(0.0, 0.0); n * n])
+    }
+
+    /// The storage of [`Lu::with_size`] around the matrix `a` (n², row-major).
+    fn with_storage(n: usize, a: Vec<Complex64>) -> Lu {
         Lu {
             n,
-            a: alloc::vec![Complex64::new(0.0, 0.0); n * n],
+            a,
             perm: alloc::vec![0; n],
             row_scale: alloc::vec![1.0; n],
             col_scale: alloc::vec![1.0; n],
@@ -146,7 +150,8 @@ impl Lu {
             plan: None,
             replayed: false,
             saved: Vec::new(),
-            position: alloc::vec![0; n],
+            // Sized by the first replay: a one-shot factorization never needs it.
+            position: Vec::new(),
             #[cfg(test)]
             counts: (0, 0),
         }
@@ -407,6 +412,7 @@ impl Lu {
     fn replay(&mut self, plan: &Plan) -> Result<bool, NoPivot> {
         let n = self.n;
         let zero = Complex64::new(0.0, 0.0);
+        self.position.resize(n, 0);
         let a = &mut self.a;
         let (row_at, pos_of) = (&mut self.perm, &mut self.position);
         for (i, (r, p)) in row_at.iter_mut().zip(pos_of.iter_mut()).enumerate() {

@@ -499,6 +499,14 @@ pub(crate) fn solve_vector(c: &Circuit, lay: &Layout, w: f64) -> CircuitResult<V
 }
 
 /// Factor, solve, refine once and check the unknowns of an assembled system.
+///
+/// One factorization of one matrix: [`Lu::factor`] directly, without the
+/// pattern, the recorded elimination plan and the fill list of a [`Workspace`],
+/// which pay off only when the same structure is factored again (a sweep). The
+/// arithmetic is that of [`Workspace::solve`], bit for bit: the equilibration
+/// and the elimination give the same factors with or without a pattern (zero
+/// entries change no maximum and no product), and the residual sums the nonzero
+/// entries of each row in column order, as the pattern lists them.
 fn solve_matrix(
     c: &Circuit,
     lay: &Layout,
@@ -506,17 +514,55 @@ fn solve_matrix(
     rhs: &[Complex64],
 ) -> CircuitResult<Vec<Complex64>> {
     let zero = Complex64::new(0.0, 0.0);
-    let pattern = Pattern::from_fn(lay.size, |i| m.get(i).is_some_and(|z| *z != zero));
-    let mut work = Workspace::new(lay.size, pattern);
-    let mut x = alloc::vec![zero; lay.size];
-    work.solve(
-        c,
-        lay,
-        |i| m.get(i).copied().unwrap_or_default(),
-        rhs,
-        &mut x,
-    )?;
+    let n = lay.size;
+    // −0 entries as +0, as the pattern's fill writes them.
+    let a = m
+        .iter()
+        .map(|&z| if z == zero { zero } else { z })
+        .collect();
+    let lu = Lu::factor(n, a).map_err(|p| no_pivot(c, lay, p))?;
+    let mut x = alloc::vec![zero; n];
+    lu.solve_into(rhs, &mut x);
+    // One step of iterative refinement: r = b − M·x, x += M⁻¹·r (as in
+    // `Workspace::solve_refined`).
+    let mut residual = alloc::vec![zero; n];
+    for (r, out) in residual.iter_mut().enumerate() {
+        let row = m.get(r * n..(r + 1) * n).unwrap_or(&[]);
+        let mut s = zero;
+        for (&v, &xj) in row.iter().zip(&x) {
+            if v != zero {
+                s += v * xj;
+            }
+        }
+        *out = rhs.get(r).copied().unwrap_or_default() - s;
+    }
+    let mut correction = alloc::vec![zero; n];
+    lu.solve_into(&residual, &mut correction);
+    if correction
+        .iter()
+        .all(|z| z.re.is_finite() && z.im.is_finite())
+    {
+        for (xi, d) in x.iter_mut().zip(&correction) {
+            *xi += d;
+        }
+    }
+    check_unknowns(c, &x)?;
     Ok(x)
+}
+
+/// An unknown that is not finite: the overflow error, named by the node of
+/// its row.
+fn check_unknowns(c: &Circuit, x: &[Complex64]) -> CircuitResult<()> {
+    for (i, z) in x.iter().enumerate() {
+        if !(z.re.is_finite() && z.im.is_finite()) {
+            let name = c.nodes().get(i + 1).copied().unwrap_or(Name::EMPTY);
+            return Err(CircuitError::new(
+                Error::Overflow { param: "solution" },
+                name,
+            ));
+        }
+    }
+    Ok(())
 }
 
 /// The storage of one solve — the factorization, the residual and the
@@ -562,16 +608,7 @@ impl Workspace {
     ) -> CircuitResult<()> {
         self.solve_refined(entry, rhs, x)
             .map_err(|p| no_pivot(c, lay, p))?;
-        for (i, z) in x.iter().enumerate() {
-            if !(z.re.is_finite() && z.im.is_finite()) {
-                let name = c.nodes().get(i + 1).copied().unwrap_or(Name::EMPTY);
-                return Err(CircuitError::new(
-                    Error::Overflow { param: "solution" },
-                    name,
-                ));
-            }
-        }
-        Ok(())
+        check_unknowns(c, x)
     }
 
     /// Factor M (as [`Workspace::solve`]), solve M·x = rhs into `x` and refine
@@ -1004,6 +1041,48 @@ mod tests {
             Complex64::new(6.0, 0.0),
             1e-12
         ));
+    }
+
+    #[test]
+    fn one_shot_solve_gives_the_bits_of_the_workspace() {
+        // `solve_matrix` factors without a pattern; a `Workspace` over the
+        // matrix's nonzero pattern (what it used before) gives the same bits,
+        // with pivoting (the controlled sources and the 0 V ammeter), −0
+        // entries and every reactive kind present.
+        let mut c = Circuit::new();
+        c.voltage_source("V1", "in", "0", 2.0).unwrap();
+        c.resistor("R1", "in", "a", 1e3).unwrap();
+        c.capacitor("C1", "a", "0", 1e-8).unwrap();
+        c.inductor("L1", "a", "b", 1e-3).unwrap();
+        c.admittance("Y1", "b", "0", 1e-3, 2e-4).unwrap();
+        c.vcvs("E1", "e", "0", "b", "0", 3e5).unwrap();
+        c.resistor("Re", "e", "m", 2.0).unwrap();
+        c.voltage_source("Vm", "m", "0", 0.0).unwrap();
+        c.ccvs("H1", "h", "0", "Vm", 5.0).unwrap();
+        c.resistor("Rh", "h", "0", 1e-3).unwrap();
+        c.cccs("F1", "0", "f", "Vm", 2.0).unwrap();
+        c.resistor("Rf", "f", "0", 1e6).unwrap();
+        let lay = layout(&c).unwrap();
+        for f in [0.0, 1.0, 1e3, 5e4, 1e6] {
+            let w = omega(f).unwrap();
+            let (mut m, rhs) = assemble(&c, &lay, w);
+            if let Some(z) = m.iter_mut().find(|z| **z == Complex64::new(0.0, 0.0)) {
+                *z = Complex64::new(-0.0, -0.0);
+            }
+            let one = solve_matrix(&c, &lay, m.clone(), &rhs).unwrap();
+            let zero = Complex64::new(0.0, 0.0);
+            let pattern = Pattern::from_fn(lay.size, |i| m[i] != zero);
+            let mut work = Workspace::new(lay.size, pattern);
+            let mut x = alloc::vec![zero; lay.size];
+            work.solve(&c, &lay, |i| m[i], &rhs, &mut x).unwrap();
+            for (a, b) in one.iter().zip(&x) {
+                assert_eq!(
+                    (a.re.to_bits(), a.im.to_bits()),
+                    (b.re.to_bits(), b.im.to_bits()),
+                    "{f} Hz: {a} vs {b}"
+                );
+            }
+        }
     }
 
     #[test]

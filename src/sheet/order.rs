@@ -76,15 +76,14 @@ impl Pending<'_> {
         }
     }
 
-    /// The edges of the pending cell `c`.
-    fn cell_node(&self, c: CellRef, shared: &mut Shared) -> Vec<usize> {
-        let mut out = Vec::new();
+    /// The edges of the pending cell `c`, appended to `out`.
+    fn cell_node(&self, c: CellRef, shared: &mut Shared, out: &mut Vec<usize>) {
         for d in self.sheet.graph.precedents(c) {
             match *d {
-                Dep::Cell(x) => self.cell_edges(c, x, &mut out),
+                Dep::Cell(x) => self.cell_edges(c, x, out),
                 // A small range: an edge per cell costs less than a node.
                 Dep::Range(r) if r.area() <= SMALL_RANGE_CELLS => {
-                    r.cells().for_each(|x| self.cell_edges(c, x, &mut out));
+                    r.cells().for_each(|x| self.cell_edges(c, x, out));
                 }
                 // A larger range is an error value, which reads nothing.
                 Dep::Range(r) if r.area() <= MAX_RANGE_CELLS => {
@@ -93,7 +92,6 @@ impl Pending<'_> {
                 Dep::Range(_) => {}
             }
         }
-        out
     }
 
     /// The node of range `r`, made on first use.
@@ -179,18 +177,25 @@ impl Pending<'_> {
     fn order(&self) -> (Vec<usize>, Vec<bool>, Vec<usize>) {
         let n = self.nodes.len();
         let mut shared = Shared::default();
-        let cells: Vec<Vec<usize>> = self
-            .nodes
-            .iter()
-            .map(|c| self.cell_node(*c, &mut shared))
-            .collect();
+        // The cells' edges in one flat buffer (cell i: targets[start[i]..start[i + 1]]),
+        // not a list per cell: one allocation instead of one per pending cell.
+        let mut start = Vec::with_capacity(n + 1);
+        let mut targets = Vec::new();
+        for c in self.nodes {
+            start.push(targets.len());
+            self.cell_node(*c, &mut shared, &mut targets);
+        }
+        start.push(targets.len());
         let total = n + shared.edges.len();
         let (mut ord, mut cyclic, mut component) = order(total, |i, out| {
             let list = match i.checked_sub(n) {
-                None => cells.get(i),
-                Some(j) => shared.edges.get(j),
+                None => match (start.get(i), start.get(i + 1)) {
+                    (Some(&a), Some(&b)) => targets.get(a..b),
+                    _ => None,
+                },
+                Some(j) => shared.edges.get(j).map(Vec::as_slice),
             };
-            out.extend(list.map_or(&[][..], Vec::as_slice));
+            out.extend_from_slice(list.unwrap_or(&[]));
         });
         ord.retain(|&i| i < n);
         cyclic.truncate(n);

@@ -33,8 +33,10 @@ impl Recalc {
     }
 }
 
-/// (function, range) → (the clock when computed, the result).
-type RangeResults = BTreeMap<(&'static str, Range), (u64, Value)>;
+/// (range, function) → (the clock when computed, the result). The range comes
+/// first in the key: ranges mostly differ, so a lookup compares the function
+/// names only between equal ranges.
+type RangeResults = BTreeMap<(Range, &'static str), (u64, Value)>;
 
 /// What one recalculation has spent of its budget, and the results of
 /// functions over one range it may reuse.
@@ -85,7 +87,7 @@ impl Work {
 
     fn cached(&self, function: &'static str, r: Range) -> Option<Value> {
         let cache = self.cache.borrow();
-        let (when, v) = cache.get(&(function, r))?;
+        let (when, v) = cache.get(&(r, function))?;
         let (b0, b1) = (r.start.row / BLOCK_ROWS, r.end.row / BLOCK_ROWS);
         let stale = self
             .changed_at
@@ -97,7 +99,7 @@ impl Work {
     fn remember(&self, function: &'static str, r: Range, v: &Value) {
         self.cache
             .borrow_mut()
-            .insert((function, r), (self.clock, v.clone()));
+            .insert((r, function), (self.clock, v.clone()));
     }
 }
 

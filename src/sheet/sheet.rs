@@ -125,47 +125,66 @@ impl Sheet {
     /// sheet holds in the rows of `r` are visited, unless they outnumber the
     /// cells of `r`, which are then read one by one instead.
     pub(super) fn occupied(&self, r: Range, out: &mut Vec<Value>) -> u64 {
-        let from = out.len();
-        let mut inputs = self
-            .values
-            .range(r.start..=r.end)
-            .map(|(c, _)| *c)
-            .peekable();
+        let area = r.area();
+        // Count the held cells first, keys only, up to one more than the range
+        // has: a range across rows that hold many cells in other columns (a
+        // ten-row sum in a five-column sheet) is then read one by one without
+        // first reading values it would throw away. The count, and so the work
+        // charged, is that of the single merged walk it replaces.
+        let mut looked = 0u64;
+        self.each_held(r, |_, _| {
+            looked += 1;
+            looked <= area
+        });
+        if looked > area {
+            let dense = r.cells().map(|c| self.shown(c));
+            out.extend(dense.filter(|v| *v != Value::Empty));
+            return looked + area;
+        }
+        self.each_held(r, |c, held| {
+            if r.contains(c) {
+                // The value held at `c` is at hand: `shown` without a second lookup.
+                let v = match held {
+                    Some(Value::Array(a)) => a.get(0, 0),
+                    Some(v) => v.clone(),
+                    None => self.shown(c),
+                };
+                if v != Value::Empty {
+                    out.push(v);
+                }
+            }
+            true
+        });
+        looked
+    }
+
+    /// Each cell in the rows of `r` between its corners that holds a value or is
+    /// covered by a spill, in row-then-column order, with the value it holds;
+    /// until `f` returns false. The two sorted key sequences are merged: a cell
+    /// is in both only for a moment, when it got an input and the spill
+    /// covering it is not yet redone; it is taken once, with its value.
+    fn each_held(&self, r: Range, mut f: impl FnMut(CellRef, Option<&Value>) -> bool) {
+        let mut inputs = self.values.range(r.start..=r.end).peekable();
         let mut covered = self
             .owner
             .range(r.start..=r.end)
             .map(|(c, _)| *c)
             .peekable();
-        let mut looked = 0u64;
-        // Merge the two sorted key sequences. A cell is in both only for a
-        // moment, when it got an input and the spill covering it is not yet
-        // redone: it is taken once.
         loop {
             let next = match (inputs.peek(), covered.peek()) {
-                (Some(a), Some(b)) if b < a => covered.next(),
-                (Some(a), Some(b)) if a == b => {
+                (Some((a, _)), Some(b)) if b < *a => covered.next().map(|c| (c, None)),
+                (Some((a, _)), Some(b)) if *a == b => {
                     covered.next();
-                    inputs.next()
+                    inputs.next().map(|(c, v)| (*c, Some(v)))
                 }
-                (Some(_), _) => inputs.next(),
-                (None, _) => covered.next(),
+                (Some(_), _) => inputs.next().map(|(c, v)| (*c, Some(v))),
+                (None, _) => covered.next().map(|c| (c, None)),
             };
-            let Some(c) = next else { break };
-            looked += 1;
-            if looked > r.area() {
-                out.truncate(from);
-                let dense = r.cells().map(|c| self.shown(c));
-                out.extend(dense.filter(|v| *v != Value::Empty));
-                return looked + r.area();
-            }
-            if r.contains(c) {
-                let v = self.shown(c);
-                if v != Value::Empty {
-                    out.push(v);
-                }
+            let Some((c, held)) = next else { break };
+            if !f(c, held) {
+                break;
             }
         }
-        looked
     }
 
     /// The work one recalculation may do from now on, in the units of

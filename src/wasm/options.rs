@@ -566,21 +566,7 @@ impl Plain {
         } else if let Some(list) = v.dyn_ref::<js_sys::Float64Array>() {
             Plain::List(list.to_vec().into_iter().map(Plain::Number).collect())
         } else if v.is_object() && !v.is_function() {
-            let entries = js_sys::Object::entries(v.unchecked_ref());
-            Plain::Map(
-                entries
-                    .iter()
-                    .filter_map(|pair| {
-                        let pair: js_sys::Array = pair.unchecked_into();
-                        let value = pair.get(1);
-                        // A field set to undefined counts as left out (its default).
-                        if value.is_undefined() {
-                            return None;
-                        }
-                        Some((pair.get(0).as_string()?, Plain::from_js(&value)))
-                    })
-                    .collect(),
-            )
+            Plain::Map(map_entries(v.unchecked_ref()))
         } else {
             Plain::Other
         }
@@ -599,6 +585,52 @@ impl Plain {
             Plain::Other => Unexpected::Other("a function, symbol or BigInt"),
         }
     }
+}
+
+/// The entries of an object, in the order of its own keys; a field set to
+/// undefined counts as left out (its default).
+///
+/// Each call into JS costs more than the reading itself, so the keys cross as
+/// one string (`Object.keys(o).join("\0")`, split here) and a number field as
+/// one read of its value: about 3 calls per field instead of 7 with
+/// `Object.entries`. A key that itself holds a NUL is read one by one.
+fn map_entries(o: &js_sys::Object) -> Vec<(String, Plain)> {
+    let keys = js_sys::Object::keys(o);
+    let values = js_sys::Object::values(o);
+    let n = keys.length();
+    let joined = if n == 0 {
+        String::new()
+    } else {
+        String::from(keys.join("\0"))
+    };
+    let split: Vec<&str> = if n == 0 {
+        Vec::new()
+    } else {
+        joined.split('\0').collect()
+    };
+    let whole = split.len() == n as usize && values.length() == n;
+    let mut out = Vec::with_capacity(n as usize);
+    for i in 0..n {
+        let key = match split.get(i as usize) {
+            Some(k) if whole => String::from(*k),
+            _ => match keys.get(i).as_string() {
+                Some(k) => k,
+                None => continue,
+            },
+        };
+        let value = if whole {
+            values.get(i)
+        } else {
+            js_sys::Reflect::get(o, &key.as_str().into()).unwrap_or(JsValue::UNDEFINED)
+        };
+        let plain = match value.as_f64() {
+            Some(x) => Plain::Number(x),
+            None if value.is_undefined() => continue,
+            None => Plain::from_js(&value),
+        };
+        out.push((key, plain));
+    }
+    out
 }
 
 fn push_key(out: &mut String, key: &str) {
