@@ -18,7 +18,7 @@ use crate::circuit::mna::Sweeper;
 use crate::circuit::{Circuit, CircuitError, CircuitResult, ElementKind};
 use crate::freq::crossings::DEFAULT_POINTS_PER_DECADE;
 use crate::freq::{
-    margins_of, ComplexPair, EvaluatedLoop, GridHints, MarginValidity, Margins, Verdict,
+    margins_of, nyquist_of, ComplexPair, EvaluatedLoop, GridHints, MarginValidity, Margins, Verdict,
 };
 use core::cell::RefCell;
 use num_complex::Complex64;
@@ -46,6 +46,22 @@ impl<'a> CircuitLoop<'a> {
             sweeper: RefCell::new(Sweeper::new(&s.opened.circuit)?),
             error: RefCell::new(None),
             hints: hints(original, &s.open, &s.closed),
+        })
+    }
+
+    /// The loop of `original` opened in `opened`, with grid hints found
+    /// elsewhere (a nearby circuit's: [`LoopHints`]).
+    fn with_hints(
+        original: &'a Circuit,
+        opened: &'a Opened,
+        hints: GridHints,
+    ) -> CircuitResult<CircuitLoop<'a>> {
+        Ok(CircuitLoop {
+            original,
+            index: opened.index,
+            sweeper: RefCell::new(Sweeper::new(&opened.circuit)?),
+            error: RefCell::new(None),
+            hints,
         })
     }
 
@@ -165,6 +181,75 @@ pub(crate) fn setup(c: &Circuit, controlled: &str) -> CircuitResult<LoopSetup> {
         closed,
         open,
     })
+}
+
+/// The grid hints of a circuit's loop and the count of its loop gain's
+/// right-half-plane poles, found once (both pole sets) for the margins of
+/// many circuits of the same topology with nearby values
+/// ([`circuit_margins_hinted`]: a Monte Carlo over the parts' spreads).
+#[derive(Debug, Clone)]
+pub(crate) struct LoopHints {
+    hints: GridHints,
+    open_rhp: u32,
+}
+
+impl LoopHints {
+    /// The hints of the loop of `c` broken at `controlled`.
+    ///
+    /// # Errors
+    /// As [`circuit_margins`].
+    pub(crate) fn of(c: &Circuit, controlled: &str) -> CircuitResult<LoopHints> {
+        let s = setup(c, controlled)?;
+        Ok(LoopHints {
+            hints: hints(c, &s.open, &s.closed),
+            open_rhp: rhp_count(&s.open),
+        })
+    }
+
+    /// True when the loop gain has no right-half-plane pole: the hinted
+    /// margins then sign themselves by Nyquist's criterion with P = 0.
+    pub(crate) fn open_loop_stable(&self) -> bool {
+        self.open_rhp == 0
+    }
+}
+
+/// The margins of the loop of `c` at `controlled` without finding any pole:
+/// the search grid takes its corners and resonances from `h` (a circuit of
+/// the same topology with nearby values, [`LoopHints::of`]), and the worst
+/// margins are signed by the Nyquist encirclement count of the loop gain
+/// ([`crate::freq::nyquist_of`], Z = P − W with P from `h`) in place of the
+/// closed circuit's poles. Only the sign depends on that verdict (negative
+/// when unstable), so for an open-loop-stable `h` the margins are those of
+/// [`circuit_margins`] to the crossing search's tolerance.
+///
+/// Source: Nyquist's criterion, H. Nyquist, "Regeneration theory", *Bell
+/// System Technical Journal* 11, 1932.
+///
+/// # Errors
+/// As [`circuit_margins`] (without the pole analysis's).
+pub(crate) fn circuit_margins_hinted(
+    c: &Circuit,
+    controlled: &str,
+    h: &LoopHints,
+) -> CircuitResult<Margins> {
+    let mut quiet = c.clone();
+    quiet.zero_sources();
+    let opened = open_at(&quiet, controlled, 1.0)?;
+    let l = CircuitLoop::with_hints(c, &opened, h.hints.clone())?;
+    let validity = if h.open_rhp > 0 {
+        MarginValidity::OpenLoopUnstable
+    } else if l.at(l.search_range().0).re < 0.0 {
+        MarginValidity::PositiveFeedback
+    } else {
+        MarginValidity::Meaningful
+    };
+    let verdict = || {
+        Ok(nyquist_of(&l, DEFAULT_POINTS_PER_DECADE, h.open_rhp)?
+            .encirclements
+            .verdict)
+    };
+    let r = margins_of(&l, DEFAULT_POINTS_PER_DECADE, verdict, validity);
+    l.finish(r)
 }
 
 /// The stability margins of the loop of `c` broken at `controlled` (the
