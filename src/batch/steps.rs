@@ -885,7 +885,9 @@ fn stage_tolerance(v: &Values) -> Result<Vec<Option<Cell>>> {
     }
     let named = |e: crate::circuit::CircuitError| -> Error {
         match e.error.param() {
-            "lower" | "upper" => e.error.with_param(if gain.is_some() {
+            // Only the gain limit has an upper end.
+            "upper" => e.error.with_param("gain_max_db"),
+            "lower" => e.error.with_param(if gain.is_some() {
                 "gain_min_db"
             } else {
                 "pm_min_deg"

@@ -276,12 +276,12 @@ pub(crate) const fn is_margin(figure: &Figure) -> bool {
     matches!(figure, Figure::PhaseMarginDeg | Figure::GainMarginDb)
 }
 
-/// The loop's margins: with `hints` of an open-loop-stable nearby stage,
-/// without the pole analysis ([`circuit_margins_hinted`]), otherwise in full.
+/// The loop's margins: with `hints` of a nearby stage, without the pole
+/// analysis where it can ([`circuit_margins_hinted`]), otherwise in full.
 fn margins(b: &StageCircuit, hints: Option<&LoopHints>) -> CircuitResult<Margins> {
     match hints {
-        Some(h) if h.open_loop_stable() => circuit_margins_hinted(&b.circuit, b.amplifier, h),
-        _ => circuit_margins(&b.circuit, b.amplifier),
+        Some(h) => circuit_margins_hinted(&b.circuit, b.amplifier, h),
+        None => circuit_margins(&b.circuit, b.amplifier),
     }
 }
 
