@@ -304,9 +304,23 @@ fn phase_margin_monte_carlo_agrees_with_numpy() {
 /// `figure_value` (the trial's own pole sets; itself checked against numpy in
 /// `phase_margin_monte_carlo_agrees_with_numpy`), trial by trial.
 fn margins_match_the_full_path(amplifier: Amplifier, gbw: Spread, figures: &[Figure]) -> usize {
-    let ts = TolStage::new(
+    margins_of_stage_match(
         &non_inverting(1e3, 1e3, amplifier),
         &[uniform("rf", 5.0), uniform("rg", 5.0)],
+        gbw,
+        figures,
+    )
+}
+
+fn margins_of_stage_match(
+    stage: &Stage,
+    parts: &[PartSpread],
+    gbw: Spread,
+    figures: &[Figure],
+) -> usize {
+    let ts = TolStage::new(
+        stage,
+        parts,
         AmplifierSpread {
             gbw_hz: Some(gbw),
             ro: None,

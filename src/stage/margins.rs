@@ -211,9 +211,17 @@ impl LoopHints {
 /// real axis that T is on is read.
 const SIDE_STEP: f64 = 1e-6;
 
+/// Points per decade of the hinted search grid. Every crossing found is
+/// refined to [`crate::freq::crossings::CROSSING_REL_TOL`] whatever the grid;
+/// the grid only has to bracket it, and the nominal circuit's corners and the
+/// local grids of its resonances (from both pole sets) are on it besides
+/// (common practice, no source: a bracket per crossing suffices).
+pub(crate) const HINTED_POINTS_PER_DECADE: u32 = 12;
+
 /// The margins of the loop of `c` at `controlled` without finding any pole:
 /// the search grid takes its corners and resonances from `h` (a circuit of
-/// the same topology with nearby values, [`LoopHints::of`]), and the worst
+/// the same topology with nearby values, [`LoopHints::of`]) at
+/// [`HINTED_POINTS_PER_DECADE`], and the worst
 /// margins are signed by Nyquist's criterion read off the crossings of the
 /// negative real axis in place of the closed circuit's poles.
 ///
@@ -259,7 +267,7 @@ pub(crate) fn circuit_margins_hinted(
     }
     let r = margins_of(
         &l,
-        DEFAULT_POINTS_PER_DECADE,
+        HINTED_POINTS_PER_DECADE,
         || Ok(Verdict::Stable),
         MarginValidity::Meaningful,
     );
