@@ -14,6 +14,7 @@
 import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { join, resolve } from 'node:path';
+import { TOLERANCE_CASES } from './tolerance_cases.mjs';
 
 const require = createRequire(import.meta.url);
 const [beforeDir, afterDir, ...only] = process.argv.slice(2);
@@ -79,7 +80,10 @@ const CASES = {
       stopHz: 1e9,
       points: 10_000,
     }),
+  // The whole-stage tolerance cases (seconds a call: three rounds at the least).
+  ...Object.fromEntries(TOLERANCE_CASES.map((c) => [c.key, c.make])),
 };
+const HEAVY = new Set(TOLERANCE_CASES.map((c) => c.key));
 
 const median = (a) => [...a].sort((x, y) => x - y)[a.length >> 1];
 const ms = (x) => `${x.toFixed(3)} ms`;
@@ -91,7 +95,8 @@ for (const [key, make] of Object.entries(CASES)) {
   const t = { before: [], after: [] };
   const t0 = performance.now();
   let rounds = 0;
-  while (rounds < 15 || (performance.now() - t0 < 4000 && rounds < 200)) {
+  const least = HEAVY.has(key) ? 3 : 15;
+  while (rounds < least || (performance.now() - t0 < 4000 && rounds < 200)) {
     for (const k of rounds % 2 ? ['after', 'before'] : ['before', 'after']) {
       const s = performance.now();
       fns[k]();

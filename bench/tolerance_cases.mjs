@@ -7,9 +7,13 @@
 // Gain: the gain-48 stage (Rf 47k, Rg 1k, uniform ±1 %; A0 5e4/2e5/1e6; GBW
 // 10 MHz), |H| in dB at 1 kHz. Phase margin: Rf = Rg = 1k uniform ±1 %, A0 as
 // above, GBW 7/10/13 MHz, a second pole at 8 MHz (the "margin2" stage of
-// tests/reference/tolerance_stage.py). A stage document has at most six nodes,
-// so the 11-node stage is not a stage document; this is the stage the
-// reference checks.
+// tests/reference/tolerance_stage.py, the stage the reference checks).
+// The tolerance engine takes stage documents only (src/tolerance/parts.rs
+// TolStage: a stage and its part spreads), and a stage document has at most six
+// nodes besides ground (src, in, fb, amp, out, ld), so the 11-node stage
+// cannot be given to it. The third case is the largest stage it takes: the
+// stage of benches/core.rs (all six nodes, amplifier input capacitances, Ro,
+// Riso into Rl ‖ Cl) with six parts and the GBW spread.
 
 const amplifier = (extra) => ({ a0: { min: 5e4, typ: 2e5, max: 1e6 }, gbwHz: 1e7, ...extra });
 const uniform = (part) => ({ part, tolerance: { distribution: 'uniform', percent: 1 } });
@@ -62,6 +66,38 @@ export const TOLERANCE_CASES = [
       }),
     python: true,
     pythonLabel: 'numpy + scipy brentq per trial (closed-form loop gain)',
+    target: '< 2 s',
+  },
+  {
+    key: 'tolerance_pm_6node_1e4',
+    area: 'tolerance',
+    what: 'stage Monte Carlo, 10 000 trials of the phase margin of a six-node stage, six parts ±1 % and the GBW (stageTolerance)',
+    heavy: true,
+    make: (lw) => () =>
+      lw.stageTolerance({
+        stage: {
+          format: 'loopwright-stage',
+          version: 1,
+          kind: 'non-inverting',
+          amplifier: {
+            a0: 1e6,
+            gbwHz: 2e7,
+            polesHz: [8e7],
+            rd: 1e12,
+            cd: 4e-12,
+            rcm: 1e12,
+            ccm: 3e-12,
+            ro: 40,
+          },
+          parts: { rf: 1e5, rg: 1e5, rs: 1e9, rl: 2e3, cl: 1e-9, riso: 20 },
+        },
+        parts: ['rf', 'rg', 'rs', 'rl', 'cl', 'riso'].map(uniform),
+        amplifierSpread: { gbwHz: { min: 1.4e7, typ: 2e7, max: 2.6e7 } },
+        spec: [{ figure: 'phaseMarginDeg', lower: 30 }],
+        analyses: ['monteCarlo'],
+        trials: 10_000,
+        keepFailures: 0,
+      }),
     target: '< 2 s',
   },
 ];

@@ -7,8 +7,8 @@
 use loopwright::circuit::tolerance::Tolerance;
 use loopwright::stage::{Amplifier, Spread, SpreadPoint, Stage, StageKind, StageParts};
 use loopwright::tolerance::{
-    monte_carlo, sensitivity, worst_case, AmplifierSpread, Figure, Limit, MonteCarloOptions,
-    PartSpread, TolStage, WorstCaseMethod, DEFAULT_MAX_CORNERS,
+    figure_value, monte_carlo, sensitivity, worst_case, AmplifierSpread, Figure, Limit,
+    MonteCarloOptions, PartSpread, TolStage, WorstCaseMethod, DEFAULT_MAX_CORNERS,
 };
 use proptest::prelude::*;
 use serde_json::Value;
@@ -297,6 +297,95 @@ fn phase_margin_monte_carlo_agrees_with_numpy() {
         "yield",
     );
     assert!((mc.limits[0].nominal[0] - num(&r, &["margin2", "nominal"])).abs() < 1e-6);
+}
+
+/// Every trial's margins from the Monte Carlo's pole-free path (the nominal
+/// stage's grid hints, signed by Nyquist's criterion) against the full path of
+/// `figure_value` (the trial's own pole sets; itself checked against numpy in
+/// `phase_margin_monte_carlo_agrees_with_numpy`), trial by trial.
+fn margins_match_the_full_path(amplifier: Amplifier, gbw: Spread, figures: &[Figure]) -> usize {
+    margins_of_stage_match(
+        &non_inverting(1e3, 1e3, amplifier),
+        &[uniform("rf", 5.0), uniform("rg", 5.0)],
+        gbw,
+        figures,
+    )
+}
+
+fn margins_of_stage_match(
+    stage: &Stage,
+    parts: &[PartSpread],
+    gbw: Spread,
+    figures: &[Figure],
+) -> usize {
+    let ts = TolStage::new(
+        stage,
+        parts,
+        AmplifierSpread {
+            gbw_hz: Some(gbw),
+            ro: None,
+        },
+        [25.0, 25.0],
+    )
+    .unwrap();
+    // A limit no trial meets keeps every trial, with its figures.
+    let spec: Vec<Limit> = figures
+        .iter()
+        .map(|&figure| Limit {
+            figure,
+            lower: Some(1e3),
+            upper: None,
+        })
+        .collect();
+    let n = 60;
+    let mut o = options(11, n);
+    o.keep_failures = n;
+    let mc = monte_carlo(&ts, &spec, o).unwrap();
+    assert_eq!(mc.failed.len(), n);
+    let mut negative = 0;
+    for t in &mc.failed {
+        let stage = ts.stage_at(&t.values, 25.0).unwrap();
+        for (k, l) in spec.iter().enumerate() {
+            let full = figure_value(&stage, &l.figure, 25.0).ok();
+            let fast = t.figures[k][0];
+            match (full, fast) {
+                (Some(a), Some(b)) => {
+                    assert!((a - b).abs() < 1e-6, "trial {}: {a} vs {b}", t.trial);
+                    negative += usize::from(b < 0.0);
+                }
+                (a, b) => assert_eq!(a, b, "trial {}", t.trial),
+            }
+        }
+    }
+    negative
+}
+
+#[test]
+fn monte_carlo_margins_match_the_full_path_trial_by_trial() {
+    // The "margin2" stage: stable in every trial.
+    let gbw = Spread {
+        min: 7e6,
+        typ: 1e7,
+        max: 1.3e7,
+    };
+    let stable = margins_match_the_full_path(
+        Amplifier::from_gbw(A0, 1e7).with_pole(8e6),
+        gbw,
+        &[Figure::PhaseMarginDeg],
+    );
+    assert_eq!(stable, 0);
+    // Gain 2 with two more poles at 3 MHz: the phase crosses −180° near the
+    // unity-gain crossover, so trials fall on both sides of stability and the
+    // unstable ones must carry negative margins (the full path's closed poles).
+    let edge = margins_match_the_full_path(
+        Amplifier::from_gbw(A0, 1e7).with_pole(3e6).with_pole(3e6),
+        gbw,
+        &[Figure::PhaseMarginDeg, Figure::GainMarginDb],
+    );
+    assert!(
+        edge > 0,
+        "no unstable trial: the case does not test the sign"
+    );
 }
 
 #[test]

@@ -23,6 +23,9 @@ Reads a CSV (RFC 4180) with a header row; each row is one design. Columns it kno
   network      series (E6 ... E192), resistor; network (non-inverting, inverting,
                divider), pair_target, total_min, total_max
   design       target_pm_deg (with a stage holding rf for Cf, cl for Riso)
+  tolerance    rf_tol, rg_tol, cf_tol, rs_tol, cs_tol, rl_tol, cl_tol, riso_tol (% uniform),
+               gain_at_hz with gain_min_db and/or gain_max_db, pm_min_deg (with a stage);
+               tol_trials (1000 empty), tol_seed (1 empty)
 Steps and what they write:
   stage       closed_loop_gain, loop_gain, feedback_amount, feedback_amount_db, sensitivity
   impedance   input_impedance, output_impedance
@@ -38,6 +41,8 @@ Steps and what they write:
   pair        r1, r2, pair_achieved, pair_error
   design      design_cf, design_cf_pm_deg, design_cf_at_range_end, design_riso,
               design_riso_pm_deg, design_riso_at_range_end
+  tolerance   tol_gain_min_db, tol_gain_max_db, tol_pm_min_deg, tol_pm_max_deg (worst case),
+              tol_yield, tol_gain_yield, tol_pm_yield (Monte Carlo, fixed seed)
 Values are read as loopwright reads them everywhere: 4700, 4.7k, 4k7, 10m, 1e-3.
 Writes "line" (the record's line in the input), the input columns, the results and
 an "error" column naming the problem of a row that could not be computed; every row

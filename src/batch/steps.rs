@@ -16,6 +16,7 @@
 //! | `eseries` | `series`, `resistor` | nearest standard value and its error |
 //! | `pair` | `network`, `series`, `pair_target`, `total_min`, `total_max` | best resistor pair |
 //! | `design` | a stage with `rf` or `cl`, `target_pm_deg` | Cf and Riso for the phase margin, whether each is at its range's end |
+//! | `tolerance` | a stage, part tolerances `rf_tol` … (%, uniform), limits `gain_min_db`/`gain_max_db` at `gain_at_hz` and/or `pm_min_deg` (`tol_trials`, `tol_seed`) | worst-case min and max of each limited figure, Monte Carlo yield overall and per limit |
 //!
 //! A stage is a `stage` column holding a stage document (`docs/stage.md`), or a
 //! `kind` column with the amplifier figures and parts as columns.
@@ -85,6 +86,21 @@ pub enum Column {
     Series,
     /// The amplifier's poles for `freq`, Hz, separated by blanks.
     APoles,
+    /// Frequency of the gain limit of `tolerance`, Hz.
+    GainAt,
+    /// Lowest gain at `gain_at_hz` the `tolerance` spec allows, dB.
+    GainMinDb,
+    /// Highest gain at `gain_at_hz` the `tolerance` spec allows, dB.
+    GainMaxDb,
+    /// Least phase margin the `tolerance` spec allows, degrees.
+    PmMin,
+    /// Monte Carlo trials of `tolerance` (1000 when empty).
+    TolTrials,
+    /// Monte Carlo seed of `tolerance` (1 when empty).
+    TolSeed,
+    /// The tolerance of a stage part, %, uniform (`rf_tol`, `rg_tol`, … for
+    /// the parts of [`crate::tolerance::parts::PART_NAMES`]): the part's name.
+    PartTol(&'static str),
     /// A stage document (JSON text, `docs/stage.md`).
     Stage,
     /// A field of a stage described in columns (`kind`, `a0`, `gbw_hz`, `rf`, …;
@@ -93,7 +109,7 @@ pub enum Column {
 }
 
 /// The value columns, in the order of [`Values`].
-const VALUE_COLUMNS: [Column; 22] = [
+const VALUE_COLUMNS: [Column; 28] = [
     Column::A,
     Column::Beta,
     Column::TargetGain,
@@ -115,9 +131,18 @@ const VALUE_COLUMNS: [Column; 22] = [
     Column::PairTarget,
     Column::TotalMin,
     Column::TotalMax,
+    Column::GainAt,
+    Column::GainMinDb,
+    Column::GainMaxDb,
+    Column::PmMin,
+    Column::TolTrials,
+    Column::TolSeed,
     // Read as a list; kept here so that it has a name and a place.
     Column::APoles,
 ];
+
+/// The stage parts that take a `<part>_tol` column.
+const TOL_PARTS: [&str; 8] = ["rf", "rg", "cf", "rs", "cs", "rl", "cl", "riso"];
 
 /// The columns that hold names or documents rather than one value.
 const TEXT_COLUMNS: [Column; 4] = [
@@ -156,6 +181,22 @@ impl Column {
             Column::Network => "network",
             Column::Series => "series",
             Column::APoles => "a_poles_hz",
+            Column::GainAt => "gain_at_hz",
+            Column::GainMinDb => "gain_min_db",
+            Column::GainMaxDb => "gain_max_db",
+            Column::PmMin => "pm_min_deg",
+            Column::TolTrials => "tol_trials",
+            Column::TolSeed => "tol_seed",
+            Column::PartTol(p) => match p.as_bytes() {
+                b"rf" => "rf_tol",
+                b"rg" => "rg_tol",
+                b"cf" => "cf_tol",
+                b"rs" => "rs_tol",
+                b"cs" => "cs_tol",
+                b"rl" => "rl_tol",
+                b"cl" => "cl_tol",
+                _ => "riso_tol",
+            },
             Column::Stage => "stage",
             Column::StageField(f) => f,
         }
@@ -167,6 +208,7 @@ impl Column {
         TEXT_COLUMNS
             .into_iter()
             .chain(VALUE_COLUMNS)
+            .chain(TOL_PARTS.into_iter().map(Column::PartTol))
             .find(|c| c.name().eq_ignore_ascii_case(name))
             .or_else(|| crate::stage::document_pairs::field_of(name).map(Column::StageField))
     }
@@ -185,7 +227,7 @@ impl Column {
 pub struct Values {
     /// The topology (series-shunt when the column is missing or empty).
     pub topology: Option<Topology>,
-    values: [Option<f64>; 22],
+    values: [Option<f64>; 28],
     network: Option<crate::network::Network>,
     series: Option<crate::network::Series>,
     a_poles: Option<Vec<f64>>,
@@ -193,6 +235,8 @@ pub struct Values {
     stage: Option<String>,
     /// The stage fields of the row, as written.
     stage_fields: Vec<(&'static str, String)>,
+    /// The part tolerances of the row, %.
+    part_tols: Vec<(&'static str, f64)>,
 }
 
 impl Values {
@@ -213,6 +257,7 @@ impl Values {
         match column {
             Column::Stage => self.stage = Some(text.into()),
             Column::StageField(f) => self.stage_fields.push((f, text.into())),
+            Column::PartTol(p) => self.part_tols.push((p, value(text)?)),
             Column::Topology => self.topology = Some(text.parse()?),
             Column::Network => self.network = Some(text.parse()?),
             Column::Series => self.series = Some(text.parse()?),
@@ -298,15 +343,18 @@ pub enum Step {
     /// Feedback capacitor (with `rf`) and isolation resistor (with `cl`) for a
     /// phase margin.
     Design,
+    /// Whole-stage tolerance of a stage with part tolerances against a gain
+    /// and/or phase-margin spec: worst case and seeded Monte Carlo yield.
+    Tolerance,
 }
 
 /// The steps' names, for messages.
 pub const STEP_NAMES: &str =
-    "stage, impedance, inverse, spread, freq, loop, noise, distortion, eseries, pair, design";
+    "stage, impedance, inverse, spread, freq, loop, noise, distortion, eseries, pair, design, tolerance";
 
 impl Step {
     /// Every step, in output order.
-    pub const ALL: [Step; 11] = [
+    pub const ALL: [Step; 12] = [
         Step::Stage,
         Step::Impedance,
         Step::Inverse,
@@ -318,6 +366,7 @@ impl Step {
         Step::Eseries,
         Step::Pair,
         Step::Design,
+        Step::Tolerance,
     ];
 
     /// The name used by `--compute`.
@@ -334,6 +383,7 @@ impl Step {
             Step::Eseries => "eseries",
             Step::Pair => "pair",
             Step::Design => "design",
+            Step::Tolerance => "tolerance",
         }
     }
 
@@ -378,19 +428,26 @@ impl Step {
                 Column::TotalMax,
             ],
             Step::Design => &[Column::TargetPm],
+            Step::Tolerance => &[],
         }
     }
 
     /// Whether the step works on a stage (a `stage` or a `kind` column).
     pub const fn needs_stage(self) -> bool {
-        matches!(self, Step::Loop | Step::Noise | Step::Design)
+        matches!(
+            self,
+            Step::Loop | Step::Noise | Step::Design | Step::Tolerance
+        )
     }
 
     /// Whether a header with these columns gives the step its inputs.
     pub fn has_inputs(self, columns: &[Option<Column>]) -> bool {
         let has = |c: Column| columns.contains(&Some(c));
         let stage = has(Column::Stage) || has(Column::StageField("kind"));
-        (stage || !self.needs_stage()) && self.needs().iter().all(|c| has(*c))
+        let spec = has(Column::GainMinDb) || has(Column::GainMaxDb) || has(Column::PmMin);
+        (stage || !self.needs_stage())
+            && self.needs().iter().all(|c| has(*c))
+            && (self != Step::Tolerance || spec)
     }
 
     /// The result columns it writes.
@@ -440,6 +497,15 @@ impl Step {
                 "design_riso",
                 "design_riso_pm_deg",
                 "design_riso_at_range_end",
+            ],
+            Step::Tolerance => &[
+                "tol_gain_min_db",
+                "tol_gain_max_db",
+                "tol_pm_min_deg",
+                "tol_pm_max_deg",
+                "tol_yield",
+                "tol_gain_yield",
+                "tol_pm_yield",
             ],
         }
     }
@@ -501,6 +567,7 @@ impl Step {
             }
             Step::Pair => resistor_pair(v)?,
             Step::Design => design(v)?,
+            Step::Tolerance => stage_tolerance(v)?,
         };
         for (slot, r) in out.iter_mut().zip(results) {
             *slot = r;
@@ -746,6 +813,129 @@ fn stage_loop(v: &Values) -> Result<Vec<Option<Cell>>> {
         opt(m.gain_margin_db),
         num(f64::from(u8::from(stable))),
         opt(dc.re.first().copied()),
+    ])
+}
+
+/// Monte Carlo trials of the `tolerance` step when `tol_trials` is empty.
+pub const DEFAULT_TOL_TRIALS: usize = 1000;
+
+/// The `tolerance` step: the row's stage with each `<part>_tol` column as a
+/// uniform ±p % spread ([`crate::tolerance::TolStage`], at 25 °C, the
+/// amplifier's A0 drawn from the stage's own min/typ/max), against a spec of
+/// the gain 20·log10|H| at `gain_at_hz` within [`gain_min_db`, `gain_max_db`]
+/// (either may be empty) and the phase margin at or above `pm_min_deg`.
+/// Writes the worst case of each limited figure
+/// ([`crate::tolerance::worst_case`], corners or sensitivity-guided, at most
+/// [`crate::tolerance::DEFAULT_MAX_CORNERS`] corners) and the seeded Monte
+/// Carlo yield ([`crate::tolerance::monte_carlo`], `tol_trials` trials, 1000
+/// when empty; `tol_seed`, 1 when empty) overall and per limit: the numbers
+/// `stageTolerance` gives for the same stage, spreads, spec, seed and trials.
+fn stage_tolerance(v: &Values) -> Result<Vec<Option<Cell>>> {
+    use crate::tolerance::{
+        monte_carlo, worst_case, AmplifierSpread, Figure, Limit, MonteCarloOptions, PartSpread,
+        TolStage, DEFAULT_MAX_CORNERS,
+    };
+    let stage = stage_of(v)?;
+    let spreads: Vec<PartSpread> = v
+        .part_tols
+        .iter()
+        .map(|&(part, percent)| PartSpread {
+            part,
+            tolerance: Some(crate::circuit::tolerance::Tolerance::Uniform { percent }),
+            tempco_ppm: None,
+        })
+        .collect();
+    // The core names a part's error after its element (Rf); the row's column is rf_tol.
+    let column_of = |e: crate::circuit::CircuitError| -> Error {
+        let element = e.name.as_str();
+        match TOL_PARTS.iter().find(|p| p.eq_ignore_ascii_case(element)) {
+            Some(p) => e.error.with_param(Column::PartTol(p).name()),
+            None => e.error,
+        }
+    };
+    let ts = TolStage::new(&stage, &spreads, AmplifierSpread::default(), [25.0, 25.0])
+        .map_err(column_of)?;
+    let mut spec = Vec::new();
+    let (lo, hi) = (v.get(Column::GainMinDb), v.get(Column::GainMaxDb));
+    let gain = if lo.is_some() || hi.is_some() {
+        let freq_hz = v.need(Column::GainAt)?;
+        check::non_negative("gain_at_hz", freq_hz)?;
+        spec.push(Limit {
+            figure: Figure::GainDb { freq_hz },
+            lower: lo,
+            upper: hi,
+        });
+        Some(spec.len() - 1)
+    } else {
+        None
+    };
+    let pm = v.get(Column::PmMin).map(|lower| {
+        spec.push(Limit {
+            figure: Figure::PhaseMarginDeg,
+            lower: Some(lower),
+            upper: None,
+        });
+        spec.len() - 1
+    });
+    if spec.is_empty() {
+        return Err(Error::OutOfDomain {
+            param: "gain_min_db",
+            requirement: "is empty in this row: the tolerance step needs gain_min_db, gain_max_db or pm_min_deg",
+        });
+    }
+    let named = |e: crate::circuit::CircuitError| -> Error {
+        match e.error.param() {
+            // Only the gain limit has an upper end.
+            "upper" => e.error.with_param("gain_max_db"),
+            "lower" => e.error.with_param(if gain.is_some() {
+                "gain_min_db"
+            } else {
+                "pm_min_deg"
+            }),
+            "trials" => e.error.with_param("tol_trials"),
+            "freqHz" => e.error.with_param("gain_at_hz"),
+            _ => column_of(e),
+        }
+    };
+    let trials = match v.get(Column::TolTrials) {
+        Some(t) if t >= 0.0 && libm::trunc(t) == t => t as usize,
+        Some(_) => {
+            return Err(Error::OutOfDomain {
+                param: "tol_trials",
+                requirement: "must be a whole number of trials",
+            })
+        }
+        None => DEFAULT_TOL_TRIALS,
+    };
+    let seed = crate::network::seed_from_number(v.get(Column::TolSeed).unwrap_or(1.0))
+        .map_err(|e| e.with_param("tol_seed"))?;
+    let wc = worst_case(&ts, &spec, DEFAULT_MAX_CORNERS).map_err(named)?;
+    let mc = monte_carlo(
+        &ts,
+        &spec,
+        MonteCarloOptions {
+            seed,
+            trials,
+            bins: 20,
+            keep_failures: 0,
+        },
+    )
+    .map_err(named)?;
+    let extreme = |k: Option<usize>, max: bool| {
+        k.map(|k| {
+            let f = &wc.figures[k];
+            Cell::Number(if max { f.max.value } else { f.min.value })
+        })
+    };
+    let share = |k: Option<usize>| k.map(|k| Cell::Number(mc.limits[k].yield_fraction));
+    Ok(alloc::vec![
+        extreme(gain, false),
+        extreme(gain, true),
+        extreme(pm, false),
+        extreme(pm, true),
+        num(mc.yield_fraction),
+        share(gain),
+        share(pm),
     ])
 }
 

@@ -49,6 +49,22 @@ impl<'a> CircuitLoop<'a> {
         })
     }
 
+    /// The loop of `original` opened in `opened`, with grid hints found
+    /// elsewhere (a nearby circuit's: [`LoopHints`]).
+    fn with_hints(
+        original: &'a Circuit,
+        opened: &'a Opened,
+        hints: GridHints,
+    ) -> CircuitResult<CircuitLoop<'a>> {
+        Ok(CircuitLoop {
+            original,
+            index: opened.index,
+            sweeper: RefCell::new(Sweeper::new(&opened.circuit)?),
+            error: RefCell::new(None),
+            hints,
+        })
+    }
+
     fn try_eval(&self, f_hz: f64) -> CircuitResult<Complex64> {
         let mut sw = self.sweeper.borrow_mut();
         let x = sw.solve_at(f_hz)?;
@@ -165,6 +181,116 @@ pub(crate) fn setup(c: &Circuit, controlled: &str) -> CircuitResult<LoopSetup> {
         closed,
         open,
     })
+}
+
+/// The grid hints of a circuit's loop and the count of its loop gain's
+/// right-half-plane poles, found once (both pole sets) for the margins of
+/// many circuits of the same topology with nearby values
+/// ([`circuit_margins_hinted`]: a Monte Carlo over the parts' spreads).
+#[derive(Debug, Clone)]
+pub(crate) struct LoopHints {
+    hints: GridHints,
+    open_rhp: u32,
+}
+
+impl LoopHints {
+    /// The hints of the loop of `c` broken at `controlled`.
+    ///
+    /// # Errors
+    /// As [`circuit_margins`].
+    pub(crate) fn of(c: &Circuit, controlled: &str) -> CircuitResult<LoopHints> {
+        let s = setup(c, controlled)?;
+        Ok(LoopHints {
+            hints: hints(c, &s.open, &s.closed),
+            open_rhp: rhp_count(&s.open),
+        })
+    }
+}
+
+/// Relative step either side of a phase crossing at which the side of the
+/// real axis that T is on is read.
+const SIDE_STEP: f64 = 1e-6;
+
+/// Points per decade of the hinted search grid. Every crossing found is
+/// refined to [`crate::freq::crossings::CROSSING_REL_TOL`] whatever the grid;
+/// the grid only has to bracket it, and the nominal circuit's corners and the
+/// local grids of its resonances (from both pole sets) are on it besides
+/// (common practice, no source: a bracket per crossing suffices).
+pub(crate) const HINTED_POINTS_PER_DECADE: u32 = 12;
+
+/// The margins of the loop of `c` at `controlled` without finding any pole:
+/// the search grid takes its corners and resonances from `h` (a circuit of
+/// the same topology with nearby values, [`LoopHints::of`]) at
+/// [`HINTED_POINTS_PER_DECADE`], and the worst
+/// margins are signed by Nyquist's criterion read off the crossings of the
+/// negative real axis in place of the closed circuit's poles.
+///
+/// With P right-half-plane poles of T (from `h`), Z = P + N closed-loop poles
+/// lie in the right half plane, N the clockwise encirclements of −1 over the
+/// whole contour. T(jω) starts on the positive real axis (T(0) > 0, checked at
+/// the low end of the search range: |∠T| < 45° there, else the full path is
+/// taken) and ends at 0, so only its crossings of the negative real axis
+/// left of −1 (the phase crossings with |T| > 1) wind around −1: each counts
+/// +1 when T passes from below the axis to above it (clockwise) and −1 the
+/// other way, read from Im T at f·(1 ∓ [`SIDE_STEP`]); the mirror image for
+/// ω < 0 doubles the count. Only the sign of the margins depends on that
+/// verdict (negative when unstable), so the margins are those of
+/// [`circuit_margins`] to the crossing search's tolerance. A loop gain with
+/// right-half-plane poles in `h` takes the full path.
+///
+/// Source: Nyquist's criterion, H. Nyquist, "Regeneration theory", *Bell
+/// System Technical Journal* 11, 1932; the counting of real-axis crossings as
+/// in Franklin, Powell & Emami-Naeini, *Feedback Control of Dynamic Systems*,
+/// 7th ed., section 6.3 (from memory).
+///
+/// # Errors
+/// As [`circuit_margins`].
+pub(crate) fn circuit_margins_hinted(
+    c: &Circuit,
+    controlled: &str,
+    h: &LoopHints,
+) -> CircuitResult<Margins> {
+    if h.open_rhp > 0 {
+        return circuit_margins(c, controlled);
+    }
+    let mut quiet = c.clone();
+    quiet.zero_sources();
+    let opened = open_at(&quiet, controlled, 1.0)?;
+    let l = CircuitLoop::with_hints(c, &opened, h.hints.clone())?;
+    let t0 = l.at(l.search_range().0);
+    if let Some(e) = l.take_error() {
+        return Err(e);
+    }
+    let from_positive_axis = t0.re > libm::fabs(t0.im);
+    if !from_positive_axis {
+        return circuit_margins(c, controlled);
+    }
+    let r = margins_of(
+        &l,
+        HINTED_POINTS_PER_DECADE,
+        || Ok(Verdict::Stable),
+        MarginValidity::Meaningful,
+    );
+    let mut m = l.finish(r)?;
+    let mut half_turns = 0i64;
+    for x in m.phase_crossings.iter().filter(|x| x.rising) {
+        let below = l.at(x.freq_hz * (1.0 - SIDE_STEP)).im;
+        let above = l.at(x.freq_hz * (1.0 + SIDE_STEP)).im;
+        if below < 0.0 && above > 0.0 {
+            half_turns += 1;
+        } else if below > 0.0 && above < 0.0 {
+            half_turns -= 1;
+        }
+    }
+    if let Some(e) = l.take_error() {
+        return Err(e);
+    }
+    if 2 * half_turns > 0 {
+        m.closed_loop = Verdict::Unstable;
+        m.phase_margin_deg = m.phase_margin_deg.map(|x| -x);
+        m.gain_margin_db = m.gain_margin_db.map(|x| -x);
+    }
+    Ok(m)
 }
 
 /// The stability margins of the loop of `c` broken at `controlled` (the

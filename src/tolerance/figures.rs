@@ -23,9 +23,10 @@
 use crate::circuit::blackman::Output;
 use crate::circuit::{CircuitError, CircuitResult};
 use crate::error::Error;
+use crate::freq::Margins;
 use crate::noise::circuit::{band_noise, NoiseOutput, NoiseSetup};
 use crate::stage::closed_loop::{gain_sweep, impedance_sweep};
-use crate::stage::margins::circuit_margins;
+use crate::stage::margins::{circuit_margins, circuit_margins_hinted, LoopHints};
 use crate::stage::step::{circuit_step, StepOutput};
 use crate::stage::{SpreadPoint, Stage, StageCircuit};
 use alloc::string::String;
@@ -267,6 +268,32 @@ pub(crate) fn figure_of(
     figure: &Figure,
     temperature_c: f64,
 ) -> CircuitResult<f64> {
+    figure_hinted(stage, b, figure, temperature_c, None)
+}
+
+/// True for the figures read from the loop's margins.
+pub(crate) const fn is_margin(figure: &Figure) -> bool {
+    matches!(figure, Figure::PhaseMarginDeg | Figure::GainMarginDb)
+}
+
+/// The loop's margins: with `hints` of a nearby stage, without the pole
+/// analysis where it can ([`circuit_margins_hinted`]), otherwise in full.
+fn margins(b: &StageCircuit, hints: Option<&LoopHints>) -> CircuitResult<Margins> {
+    match hints {
+        Some(h) => circuit_margins_hinted(&b.circuit, b.amplifier, h),
+        None => circuit_margins(&b.circuit, b.amplifier),
+    }
+}
+
+/// [`figure_of`], the margins found with the grid hints of a nearby stage of
+/// the same topology (the Monte Carlo's nominal stage) when given.
+pub(crate) fn figure_hinted(
+    stage: &Stage,
+    b: &StageCircuit,
+    figure: &Figure,
+    temperature_c: f64,
+    hints: Option<&LoopHints>,
+) -> CircuitResult<f64> {
     let v = match *figure {
         Figure::GainDb { freq_hz } => 20.0 * libm::log10(gain_at(b, &[freq_hz])?[0]),
         Figure::PhaseDeg { freq_hz } => {
@@ -279,10 +306,10 @@ pub(crate) fn figure_of(
         }
         Figure::BandwidthHz => bandwidth_and_peaking(stage, b)?.0,
         Figure::PeakingDb => bandwidth_and_peaking(stage, b)?.1,
-        Figure::PhaseMarginDeg => circuit_margins(&b.circuit, b.amplifier)?
+        Figure::PhaseMarginDeg => margins(b, hints)?
             .phase_margin_deg
             .ok_or_else(|| unreachable("phaseMarginDeg", "the loop gain never crosses 0 dB"))?,
-        Figure::GainMarginDb => circuit_margins(&b.circuit, b.amplifier)?
+        Figure::GainMarginDb => margins(b, hints)?
             .gain_margin_db
             .ok_or_else(|| unreachable("gainMarginDb", "the loop phase never crosses −180°"))?,
         Figure::InputImpedanceOhm { freq_hz } => {

@@ -18,13 +18,14 @@
 //! (`crate::network::sample_stats`: mean, sd, percentiles by numpy's linear
 //! rule, histogram) pool the trials' values at every temperature.
 
-use super::figures::figure_of;
+use super::figures::{figure_hinted, figure_of, is_margin};
 use super::parts::{Draw, TolStage};
 use super::spec::{validate_spec, Limit};
 use crate::circuit::CircuitResult;
 use crate::error::Error;
 use crate::network::montecarlo::{Draws, GainDistribution, GainRange};
 use crate::network::{sample_stats, SampleStats};
+use crate::stage::margins::LoopHints;
 use alloc::vec::Vec;
 
 /// Most trials of one run.
@@ -169,12 +170,22 @@ pub fn monte_carlo(
     let temps = ts.temperatures();
     let nominal_values = ts.nominal();
     let mut nominal = alloc::vec![Vec::with_capacity(temps.len()); spec.len()];
+    // The margins of every trial search the grid of the nominal stage's loop
+    // (its corners and resonances from both pole sets, found once per
+    // temperature) and are signed by Nyquist's criterion: no trial finds poles.
+    let wants_margins = spec.iter().any(|l| is_margin(&l.figure));
+    let mut hints: Vec<Option<LoopHints>> = Vec::with_capacity(temps.len());
     for &t in &temps {
         let stage = ts.stage_at(&nominal_values, t)?;
         let b = stage.circuit()?;
         for (k, l) in spec.iter().enumerate() {
             nominal[k].push(figure_of(&stage, &b, &l.figure, t)?);
         }
+        hints.push(if wants_margins {
+            Some(LoopHints::of(&b.circuit, b.amplifier)?)
+        } else {
+            None
+        });
     }
     let mut d = Draws::new(o.seed);
     let mut values = Vec::with_capacity(ts.varied.len());
@@ -187,7 +198,7 @@ pub fn monte_carlo(
     for trial in 0..o.trials {
         draw(ts, &mut d, &mut values);
         fig.iter_mut().for_each(Vec::clear);
-        for &t in &temps {
+        for (&t, h) in temps.iter().zip(&hints) {
             let built = ts
                 .stage_at(&values, t)
                 .ok()
@@ -195,7 +206,7 @@ pub fn monte_carlo(
             for (k, l) in spec.iter().enumerate() {
                 let y = built
                     .as_ref()
-                    .and_then(|(s, b)| figure_of(s, b, &l.figure, t).ok());
+                    .and_then(|(s, b)| figure_hinted(s, b, &l.figure, t, h.as_ref()).ok());
                 fig[k].push(y);
             }
         }

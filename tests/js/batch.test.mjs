@@ -610,3 +610,76 @@ test('BatchRun and tableFile refuse a bad format or a wrong type by the callerâ€
   assert.ok(Math.abs(row.closed_loop_gain - 1e5 / 1001) < 1e-9);
   assert.deepEqual([run.rowsIn, run.rowsWritten, run.rowsReported], [1, 1, 0]);
 });
+
+test('tolerance rows give what stageTolerance gives for the same stage, spreads, spec and seed', async () => {
+  const lw = await api();
+  // The phase-margin stage of bench/tolerance_cases.mjs: Rf = Rg = 1k, A0
+  // 5e4/2e5/1e6, GBW 10 MHz, a second pole at 8 MHz.
+  const stage = {
+    format: 'loopwright-stage',
+    version: 1,
+    kind: 'non-inverting',
+    amplifier: { a0: { min: 5e4, typ: 2e5, max: 1e6 }, gbwHz: 1e7, polesHz: [8e6] },
+    parts: { rf: 1e3, rg: 1e3 },
+  };
+  const header =
+    'stage,rf_tol,rg_tol,gain_at_hz,gain_min_db,gain_max_db,pm_min_deg,tol_trials,tol_seed';
+  const doc = field(JSON.stringify(stage));
+  const text =
+    `${header}\n` +
+    `${doc},1,2,1M,5.9,6.1,61,400,7\n` +
+    `${doc},1,,,,,55,300,\n` +
+    // A tolerance of 100 % or more, and a lower gain limit above the upper one.
+    `${doc},100,1,1M,5.9,6.1,61,400,7\n` +
+    `${doc},1,1,1M,6.1,5.9,,400,7\n`;
+  const rows = objectsOf(batch('tol.csv', text, '--format', 'jsonl', '--compute', 'tolerance'));
+  assert.equal(rows.length, 4);
+  // Reference: stageTolerance of the JS API (worst case and Monte Carlo of the
+  // core, src/tolerance) with the row's spreads, spec, seed and trials.
+  const cases = [
+    {
+      parts: [
+        { part: 'rf', tolerance: { distribution: 'uniform', percent: 1 } },
+        { part: 'rg', tolerance: { distribution: 'uniform', percent: 2 } },
+      ],
+      spec: [
+        { figure: 'gainDb', freqHz: 1e6, lower: 5.9, upper: 6.1 },
+        { figure: 'phaseMarginDeg', lower: 61 },
+      ],
+      trials: 400,
+      seed: 7,
+    },
+    {
+      parts: [{ part: 'rf', tolerance: { distribution: 'uniform', percent: 1 } }],
+      spec: [{ figure: 'phaseMarginDeg', lower: 55 }],
+      trials: 300,
+      seed: 1,
+    },
+  ];
+  for (const [k, c] of cases.entries()) {
+    const row = rows[k];
+    assert.equal(row.error, null, row.error);
+    const r = lw.stageTolerance({
+      stage,
+      parts: c.parts,
+      spec: c.spec,
+      analyses: ['worstCase', 'monteCarlo'],
+      trials: c.trials,
+      seed: c.seed,
+      keepFailures: 0,
+    });
+    const gain = c.spec.findIndex((l) => l.figure === 'gainDb');
+    const pm = c.spec.findIndex((l) => l.figure === 'phaseMarginDeg');
+    const wc = (i, end) => (i < 0 ? null : r.worstCase.figures[i][end].value);
+    const share = (i) => (i < 0 ? null : r.monteCarlo.limits[i].yieldFraction);
+    assert.equal(row.tol_gain_min_db, wc(gain, 'min'));
+    assert.equal(row.tol_gain_max_db, wc(gain, 'max'));
+    assert.equal(row.tol_pm_min_deg, wc(pm, 'min'));
+    assert.equal(row.tol_pm_max_deg, wc(pm, 'max'));
+    assert.equal(row.tol_yield, r.monteCarlo.yieldFraction);
+    assert.equal(row.tol_gain_yield, share(gain));
+    assert.equal(row.tol_pm_yield, share(pm));
+  }
+  assert.match(rows[2].error, /rf_tol/);
+  assert.match(rows[3].error, /gain_max_db/);
+});
