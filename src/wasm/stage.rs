@@ -432,6 +432,38 @@ impl Document {
     }
 }
 
+/// The output a response is read at, from the caller's `output` (a node, against
+/// `outputMinus`, ground by default) or `outputElement` (the current in an
+/// element), never both; with neither, the stage's own output (its output current
+/// for a transconductance or current stage).
+fn chosen_output<'a>(
+    output: &'a Option<String>,
+    output_element: &'a Option<String>,
+    output_minus: Option<&'a str>,
+    stage: Option<&'a StageCircuit>,
+) -> Result<Output<'a>, JsValue> {
+    let minus = output_minus.unwrap_or("0");
+    Ok(match (output, output_element) {
+        (Some(_), Some(_)) => {
+            let error = Error::OutOfDomain {
+                param: "",
+                requirement: "give output or outputElement, not both",
+            };
+            return Err(thrown("outputElement", error, "", None));
+        }
+        (Some(node), None) => Output::Voltage(node, minus),
+        (None, Some(element)) => Output::Current(element),
+        (None, None) => match stage {
+            Some(StageCircuit {
+                output_current: Some(element),
+                ..
+            }) => Output::Current(element),
+            Some(s) => Output::Voltage(s.output, minus),
+            None => return Err(thrown("output", Error::Missing { param: "" }, "", None)),
+        },
+    })
+}
+
 /// The spread point named by `spreadPoint`, if given.
 fn spread_point(name: Option<&str>) -> Result<Option<SpreadPoint>, JsValue> {
     name.map(|n| SpreadPoint::from_name("spreadPoint", n))
@@ -697,26 +729,12 @@ pub fn circuit_gain(
     let d = document(o.circuit, "circuit", o.spread_point.as_deref())?;
     let stage = d.stage();
     let input = name_or(&o.input, stage.map(|s| s.source), "input")?;
-    let minus = o.output_minus.as_deref().unwrap_or("0");
-    let output = match (&o.output, &o.output_element) {
-        (Some(_), Some(_)) => {
-            let error = Error::OutOfDomain {
-                param: "",
-                requirement: "give output or outputElement, not both",
-            };
-            return Err(thrown("outputElement", error, "", None));
-        }
-        (Some(node), None) => Output::Voltage(node, minus),
-        (None, Some(element)) => Output::Current(element),
-        (None, None) => match stage {
-            Some(StageCircuit {
-                output_current: Some(element),
-                ..
-            }) => Output::Current(element),
-            Some(s) => Output::Voltage(s.output, minus),
-            None => return Err(thrown("output", Error::Missing { param: "" }, "", None)),
-        },
-    };
+    let output = chosen_output(
+        &o.output,
+        &o.output_element,
+        o.output_minus.as_deref(),
+        stage,
+    )?;
     let s = gain_sweep(d.circuit(), input, output, &o.frequencies_hz).map_err(analysis_error)?;
     Ok(response_js(&s))
 }
@@ -980,25 +998,14 @@ pub fn circuit_step_js(
     let d = document(o.circuit, "circuit", o.spread_point.as_deref())?;
     let stage = d.stage();
     let input = name_or(&o.input, stage.map(|s| s.source), "input")?;
-    let minus = o.output_minus.as_deref().unwrap_or("0");
-    let output = match (&o.output, &o.output_element) {
-        (Some(_), Some(_)) => {
-            let error = Error::OutOfDomain {
-                param: "",
-                requirement: "give output or outputElement, not both",
-            };
-            return Err(thrown("outputElement", error, "", None));
-        }
-        (Some(node), None) => StepOutput::Voltage(node, minus),
-        (None, Some(element)) => StepOutput::ResistorCurrent(element),
-        (None, None) => match stage {
-            Some(StageCircuit {
-                output_current: Some(element),
-                ..
-            }) => StepOutput::ResistorCurrent(element),
-            Some(s) => StepOutput::Voltage(s.output, minus),
-            None => return Err(thrown("output", Error::Missing { param: "" }, "", None)),
-        },
+    let output = match chosen_output(
+        &o.output,
+        &o.output_element,
+        o.output_minus.as_deref(),
+        stage,
+    )? {
+        Output::Voltage(node, minus) => StepOutput::Voltage(node, minus),
+        Output::Current(element) => StepOutput::ResistorCurrent(element),
     };
     let renames = [("settle_band", "settleBand"), ("points", "points")];
     let s = circuit_step(d.circuit(), input, output, o.settle_band, o.points as usize).map_err(
@@ -1092,26 +1099,12 @@ pub fn circuit_gain_within(
     let d = document(o.circuit, "circuit", o.spread_point.as_deref())?;
     let stage = d.stage();
     let input = name_or(&o.input, stage.map(|s| s.source), "input")?;
-    let minus = o.output_minus.as_deref().unwrap_or("0");
-    let output = match (&o.output, &o.output_element) {
-        (Some(_), Some(_)) => {
-            let error = Error::OutOfDomain {
-                param: "",
-                requirement: "give output or outputElement, not both",
-            };
-            return Err(thrown("outputElement", error, "", None));
-        }
-        (Some(node), None) => Output::Voltage(node, minus),
-        (None, Some(element)) => Output::Current(element),
-        (None, None) => match stage {
-            Some(StageCircuit {
-                output_current: Some(element),
-                ..
-            }) => Output::Current(element),
-            Some(s) => Output::Voltage(s.output, minus),
-            None => return Err(thrown("output", Error::Missing { param: "" }, "", None)),
-        },
-    };
+    let output = chosen_output(
+        &o.output,
+        &o.output_element,
+        o.output_minus.as_deref(),
+        stage,
+    )?;
     let renames = [
         ("target", "targetGain"),
         ("from_hz", "fromHz"),
