@@ -343,3 +343,62 @@ fn design_helpers_match_the_reference_scan() {
         "part",
     );
 }
+
+/// The output a response is read at, chosen the same way by circuitGain,
+/// circuitStep and circuitGainWithin: `output` and `outputElement` together are
+/// refused at `outputElement`; a written circuit (no stage to take the output
+/// from) without either is refused at `output`; a stage with neither reads its
+/// own output node, so naming that node gives the same bits (an identity, no
+/// reference needed).
+#[wasm_bindgen_test]
+fn the_output_is_chosen_alike_by_gain_step_and_gain_within() {
+    let c = case("feedback capacitor");
+    let circuit = text(&api::stage_circuit(js_of(&c["stage"])).unwrap(), "circuit");
+    let both = serde_json::json!({
+        "circuit": c["stage"], "output": "out", "outputElement": "Rf",
+        "frequenciesHz": [1.0], "targetGain": 2.0, "tolerance": 0.01,
+    });
+    let neither = serde_json::json!({
+        "circuit": circuit, "input": "Vs",
+        "frequenciesHz": [1.0], "targetGain": 2.0, "tolerance": 0.01,
+    });
+    for (name, call) in [
+        (
+            "circuitGain",
+            api::circuit_gain as fn(JsValue) -> Result<JsValue, JsValue>,
+        ),
+        ("circuitStep", api::circuit_step_js),
+        ("circuitGainWithin", api::circuit_gain_within),
+    ] {
+        let mut b = both.clone();
+        let mut n = neither.clone();
+        if name == "circuitStep" {
+            for o in [&mut b, &mut n] {
+                let m = o.as_object_mut().unwrap();
+                for k in ["frequenciesHz", "targetGain", "tolerance"] {
+                    m.remove(k);
+                }
+            }
+        } else if name == "circuitGain" {
+            for o in [&mut b, &mut n] {
+                let m = o.as_object_mut().unwrap();
+                m.remove("targetGain");
+                m.remove("tolerance");
+            }
+        } else {
+            for o in [&mut b, &mut n] {
+                o.as_object_mut().unwrap().remove("frequenciesHz");
+            }
+        }
+        js::assert_thrown(call(options(b)), "out_of_domain", "outputElement");
+        js::assert_thrown(call(options(n)), "missing", "output");
+    }
+    let default =
+        api::circuit_step_js(options(serde_json::json!({ "circuit": c["stage"] }))).unwrap();
+    let named = api::circuit_step_js(options(serde_json::json!({
+        "circuit": c["stage"], "output": "out",
+    })))
+    .unwrap();
+    assert_eq!(typed(&default, "output"), typed(&named, "output"));
+    assert_eq!(num(&default, "finalValue"), num(&named, "finalValue"));
+}
