@@ -79,22 +79,26 @@ impl Product {
         ln_scale: 0.0,
     };
 
-    /// Multiply by (1 + j·x).
+    /// Multiply by (1 + j·x); rescale when `CHECK`.
     #[inline]
-    fn first(&mut self, x: f64) {
+    fn first<const CHECK: bool>(&mut self, x: f64) {
         let re = self.re - x * self.im;
         self.im += x * self.re;
         self.re = re;
-        self.rescale();
+        if CHECK {
+            self.rescale();
+        }
     }
 
-    /// Multiply by (a + j·b).
+    /// Multiply by (a + j·b); rescale when `CHECK`.
     #[inline]
-    fn by(&mut self, a: f64, b: f64) {
+    fn by<const CHECK: bool>(&mut self, a: f64, b: f64) {
         let re = self.re * a - self.im * b;
         self.im = self.re * b + self.im * a;
         self.re = re;
-        self.rescale();
+        if CHECK {
+            self.rescale();
+        }
     }
 
     #[inline]
@@ -165,7 +169,7 @@ impl FastModel {
 
     /// ln|H(j2πf)| and the continuous phase in radians, f > 0.
     pub(crate) fn eval(&self, f: f64) -> (f64, f64) {
-        let (ln_mag, principal, est) = self.product::<true>(f);
+        let (ln_mag, principal, est) = self.product::<true, true>(f);
         let turns = nearest((est - principal) / TAU);
         (
             ln_mag,
@@ -174,22 +178,37 @@ impl FastModel {
     }
 
     /// ln|H|, the principal phase of the factor product, and (when `EST`) the
-    /// approximate continuous phase of the factors.
+    /// approximate continuous phase of the factors. Without `CHECK` the running
+    /// products are never rescaled: only for frequencies where
+    /// [`FastModel::products_stay_in_range`] holds, where a rescale could not
+    /// trigger anyway, so both forms give the same bits.
     #[inline]
-    fn product<const EST: bool>(&self, f: f64) -> (f64, f64, f64) {
+    fn product<const EST: bool, const CHECK: bool>(&self, f: f64) -> (f64, f64, f64) {
+        let (w2, rest, wr, wi, est) = self.parts::<EST, CHECK>(f);
+        let ln_mag = 0.5 * libm::log(w2) + rest;
+        // libm's, not crate::float::atan2: inlined here, 3–4 % of the sweep (src/float.rs).
+        (ln_mag, libm::atan2(wi, wr), est)
+    }
+
+    /// The factor product w = num/den (without the constant gain, the integrators,
+    /// the low cuts' j·x parts and the delay) as |w|², the rest of ln|H|
+    /// (ln|H| = ½·ln|w|² + rest), w itself, and (when `EST`) the approximate
+    /// continuous phase of the factors.
+    #[inline]
+    fn parts<const EST: bool, const CHECK: bool>(&self, f: f64) -> (f64, f64, f64, f64, f64) {
         let mut num = Product::ONE;
         let mut den = Product::ONE;
         let mut est = 0.0;
         for &(r, s) in &self.zeros {
             let x = f * r;
-            num.first(s * x);
+            num.first::<CHECK>(s * x);
             if EST {
                 est += s * atan_approx(x);
             }
         }
         for &(r, s) in &self.poles {
             let x = f * r;
-            den.first(s * x);
+            den.first::<CHECK>(s * x);
             if EST {
                 est -= s * atan_approx(x);
             }
@@ -201,7 +220,7 @@ impl FastModel {
         for &(r, iq) in &self.pair_zeros {
             let x = f * r;
             let (a, b) = ((1.0 - x) * (1.0 + x), x * iq);
-            num.by(a, b);
+            num.by::<CHECK>(a, b);
             if EST {
                 est += atan2_upper(b, a);
             }
@@ -209,7 +228,7 @@ impl FastModel {
         for &(r, iq) in &self.pair_poles {
             let x = f * r;
             let (a, b) = ((1.0 - x) * (1.0 + x), x * iq);
-            den.by(a, b);
+            den.by::<CHECK>(a, b);
             if EST {
                 est -= atan2_upper(b, a);
             }
@@ -220,16 +239,14 @@ impl FastModel {
         let wi = (num.im * den.re - num.re * den.im) * inv;
         // ln|w| from |w|² (w is a ratio of rescaled products, so |w|² is in range);
         // the low cuts' |j·x| parts were multiplied apart and are logged once.
-        let mut ln_mag =
-            0.5 * libm::log(wr * wr + wi * wi) + num.ln_scale - den.ln_scale + self.ln_gain;
+        let mut rest = num.ln_scale - den.ln_scale + self.ln_gain;
         if !self.cuts.is_empty() {
-            ln_mag += ln_of_product(cut_product, f, &self.cuts);
+            rest += ln_of_product(cut_product, f, &self.cuts);
         }
         if self.origin != 0.0 {
-            ln_mag -= self.origin * libm::log(f);
+            rest -= self.origin * libm::log(f);
         }
-        // libm's, not crate::float::atan2: inlined here, 3–4 % of the sweep (src/float.rs).
-        (ln_mag, libm::atan2(wi, wr), est)
+        (wr * wr + wi * wi, rest, wr, wi, est)
     }
 
     /// Largest change of the factors' phase between two frequencies a ratio
@@ -247,6 +264,38 @@ impl FastModel {
         first + pairs
     }
 
+    /// Whether every partial product of the numerator and of the denominator
+    /// factors stays inside [2^−100, 2^100] in modulus for all frequencies in
+    /// (0, `f_max`], so that [`Product::rescale`] (thresholds 2^±400 on the 1-norm,
+    /// which is at most √2 times the modulus) cannot trigger, and w = num/den and
+    /// the product of two such w stay far inside the f64 range.
+    ///
+    /// Bounds per factor: |1 + j·x| lies in [1, 1 + |x|] and grows with f; a pair
+    /// |(1 − x²) + j·x/Q| is at most 1 + x² + x/Q (triangle inequality) and at least
+    /// min over x of √((1 − x²)² + x²/Q²) = (1/Q)·√(1 − 1/(4Q²)) when 1/Q² < 2, else 1
+    /// (the minimum of a quadratic in x², by differentiation). A partial product
+    /// lies between the product of the lower bounds below 1 and the product of the
+    /// upper bounds, so checking those two for each side is enough.
+    fn products_stay_in_range(&self, f_max: f64) -> bool {
+        const LIMIT: f64 = 100.0 * LN_2;
+        let side = |first: &[(f64, f64)], pairs: &[(f64, f64)]| {
+            let mut hi = 0.0;
+            let mut lo = 0.0;
+            for &(r, _) in first {
+                hi += libm::log1p(f_max * r);
+            }
+            for &(r, iq) in pairs {
+                let x = f_max * r;
+                hi += libm::log1p(x * x + x * iq);
+                if iq * iq < 2.0 {
+                    lo += libm::log(iq * libm::sqrt(1.0 - 0.25 * iq * iq));
+                }
+            }
+            hi < LIMIT && lo > -LIMIT
+        };
+        side(&self.zeros, &self.pair_zeros) && side(&self.poles, &self.pair_poles)
+    }
+
     /// ln|H| and the continuous phase at ascending frequencies `f`, written to
     /// `ln_mag` and `phase`. When the factors' phase cannot move by a quarter turn
     /// between neighbours, each point is unwrapped against the previous one and
@@ -261,11 +310,15 @@ impl FastModel {
             }
             return;
         }
+        if f.last().is_some_and(|&m| self.products_stay_in_range(m)) {
+            self.sweep_by_steps(f, ln_mag, phase);
+            return;
+        }
         let mut prev: Option<f64> = None;
         for &x in f {
             let (l, principal, est) = match prev {
-                None => self.product::<true>(x),
-                Some(_) => self.product::<false>(x),
+                None => self.product::<true, true>(x),
+                Some(_) => self.product::<false, true>(x),
             };
             // Continuous phase of the factors: from the estimate at the first
             // point, then the turn nearest the previous point.
@@ -276,7 +329,75 @@ impl FastModel {
             phase.push(factors + self.phase0 - TAU * x * self.delay);
         }
     }
+
+    /// [`FastModel::sweep`] when the products stay in range (no rescaling) and
+    /// neighbours are less than a quarter turn apart. The factors' phase moves
+    /// from one point to the next by arg(w·w̄ₚ), w̄ₚ the conjugate of the previous
+    /// point's w; when that step is small (|tan| ≤ 1/32, the common case of a
+    /// dense sweep) it is added as the arctangent series
+    /// t − t³/3 + t⁵/5 − t⁷/7 + t⁹/9 − t¹¹/11 (truncation below |t|¹³/13 ≤ 3e-21 rad),
+    /// which costs a fraction of an `atan2`. Every [`RESYNC`]-th point, and any
+    /// point whose step is larger, takes the principal phase from `atan2` and the
+    /// turn nearest the running phase, so the rounding of the summed steps
+    /// (about 1e-16 rad each) cannot build up.
+    ///
+    /// ln|w| steps the same way: with q = |w|²/|wₚ|² and s = (q − 1)/(q + 1) =
+    /// (|w|² − |wₚ|²)/(|w|² + |wₚ|²), ½·ln q = atanh s = s + s³/3 + s⁵/5 + … ;
+    /// for |s| ≤ 1/32 six terms leave less than |s|¹³/13 ≤ 3e-21, larger steps and
+    /// the re-anchoring points take `log`. Source: the series of atanh and of atan,
+    /// any calculus text (e.g. Abramowitz & Stegun, Handbook of Mathematical
+    /// Functions, 4.1.27 and 4.4.42; from memory).
+    fn sweep_by_steps(&self, f: &[f64], ln_mag: &mut Vec<f64>, phase: &mut Vec<f64>) {
+        let Some((&first, later)) = f.split_first() else {
+            return;
+        };
+        let (w2, rest, wr, wi, est) = self.parts::<true, false>(first);
+        let principal = libm::atan2(wi, wr);
+        let mut factors = principal + TAU * nearest((est - principal) / TAU);
+        let (mut pr, mut pi, mut pw2) = (wr, wi, w2);
+        let mut ln_w = 0.5 * libm::log(w2);
+        ln_mag.push(ln_w + rest);
+        phase.push(factors + self.phase0 - TAU * first * self.delay);
+        for (i, &x) in later.iter().enumerate() {
+            let (w2, rest, wr, wi, _) = self.parts::<false, false>(x);
+            let anchor = (i + 1) % RESYNC == 0;
+            // w·w̄ₚ = a + j·b: its argument is the step.
+            let a = wr * pr + wi * pi;
+            let b = wi * pr - wr * pi;
+            let (d, sum) = (w2 - pw2, w2 + pw2);
+            if !anchor && 32.0 * libm::fabs(d) <= sum {
+                let s = d / sum;
+                let v = s * s;
+                ln_w += s
+                    * (1.0
+                        + v * (1.0 / 3.0
+                            + v * (1.0 / 5.0
+                                + v * (1.0 / 7.0 + v * (1.0 / 9.0 + v * (1.0 / 11.0))))));
+            } else {
+                ln_w = 0.5 * libm::log(w2);
+            }
+            if !anchor && a > 0.0 && 32.0 * libm::fabs(b) <= a {
+                let t = b / a;
+                let u = t * t;
+                factors += t
+                    * (1.0
+                        + u * (-1.0 / 3.0
+                            + u * (1.0 / 5.0
+                                + u * (-1.0 / 7.0 + u * (1.0 / 9.0 - u * (1.0 / 11.0))))));
+            } else {
+                let principal = libm::atan2(wi, wr);
+                factors = principal + TAU * nearest((factors - principal) / TAU);
+            }
+            (pr, pi, pw2) = (wr, wi, w2);
+            ln_mag.push(ln_w + rest);
+            phase.push(factors + self.phase0 - TAU * x * self.delay);
+        }
+    }
 }
+
+/// Points between exact re-anchorings of the stepped phase in
+/// [`FastModel::sweep_by_steps`].
+const RESYNC: usize = 32;
 
 /// ln of Π f·r over the low cuts: the product when it is a normal number,
 /// otherwise the sum of logs.
@@ -369,10 +490,61 @@ mod tests {
             fast.sweep(&f, &mut l, &mut p);
             for (i, &x) in f.iter().enumerate() {
                 let (lw, pw) = fast.eval(x);
-                assert_eq!(l[i], lw);
+                // Stepped ln|w| (sweep_by_steps) against one log per point.
+                assert!(
+                    (l[i] - lw).abs() <= 1e-13 * lw.abs().max(1.0),
+                    "f = {x}: {} vs {lw}",
+                    l[i]
+                );
                 assert!(
                     (p[i] - pw).abs() < 1e-9,
                     "n = {n}, f = {x}: {} vs {pw}",
+                    p[i]
+                );
+            }
+        }
+    }
+
+    #[test]
+    fn stepped_phase_of_a_dense_sweep_matches_point_by_point_evaluation() {
+        // The loop of the benchmark (bench/cases.mjs) and one with a sharp pair,
+        // an RHP zero and a delay; eval's atan2 per point is the reference.
+        let models = [
+            TransferModel::constant(1e4)
+                .pole(10.0)
+                .pole(1e5)
+                .pole(1e6)
+                .pole(3e6)
+                .pole(1e7)
+                .pole(3e7)
+                .zero(2e6)
+                .zero(5e7),
+            TransferModel::constant(-2e3)
+                .pole(3.0)
+                .complex_pole(4e5, 20.0)
+                .rhp_zero(8e6)
+                .delay(3e-8),
+        ];
+        for m in &models {
+            let fast = FastModel::new(&[m]);
+            let f: Vec<f64> = (0..10_000)
+                .map(|i| libm::pow(10.0, 9.0 * i as f64 / 9999.0))
+                .collect();
+            // The stepped path is the one under test.
+            assert!(fast.products_stay_in_range(1e9));
+            let (mut l, mut p) = (Vec::new(), Vec::new());
+            fast.sweep(&f, &mut l, &mut p);
+            for (i, &x) in f.iter().enumerate() {
+                let (lw, pw) = fast.eval(x);
+                // Stepped ln|w| (sweep_by_steps) against one log per point.
+                assert!(
+                    (l[i] - lw).abs() <= 1e-13 * lw.abs().max(1.0),
+                    "f = {x}: {} vs {lw}",
+                    l[i]
+                );
+                assert!(
+                    (p[i] - pw).abs() <= 1e-12 * pw.abs().max(1.0),
+                    "f = {x}: {} vs {pw}",
                     p[i]
                 );
             }
