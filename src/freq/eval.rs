@@ -301,7 +301,12 @@ impl FastModel {
     /// between neighbours, each point is unwrapped against the previous one and
     /// the turn estimate is skipped; otherwise every point is evaluated alone.
     pub(crate) fn sweep(&self, f: &[f64], ln_mag: &mut Vec<f64>, phase: &mut Vec<f64>) {
-        let ratio = f.windows(2).map(|w| w[1] / w[0]).fold(1.0, f64::max);
+        // A comparison, not f64::max: that is a call to libm's fmax in wasm, 1.5 %
+        // of the 10 000-point sweep (ratios are positive, never NaN, for f > 0).
+        let ratio = f
+            .windows(2)
+            .map(|w| w[1] / w[0])
+            .fold(1.0, |m, r| if r > m { r } else { m });
         if self.step_bound(ratio) >= FRAC_PI_2 {
             for &x in f {
                 let (l, p) = self.eval(x);
@@ -397,7 +402,7 @@ impl FastModel {
 
 /// Points between exact re-anchorings of the stepped phase in
 /// [`FastModel::sweep_by_steps`].
-const RESYNC: usize = 32;
+const RESYNC: usize = 128;
 
 /// ln of Π f·r over the low cuts: the product when it is a normal number,
 /// otherwise the sum of logs.
