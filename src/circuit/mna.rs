@@ -182,6 +182,7 @@ fn control_element(c: &Circuit, name: Name, control: Name) -> CircuitResult<usiz
 }
 
 /// The structure of the MNA system of a circuit.
+#[derive(Debug, PartialEq, Eq)]
 pub(crate) struct Layout {
     /// Node unknowns (nodes but ground).
     pub nodes: usize,
@@ -774,6 +775,86 @@ pub(crate) fn node_voltage(x: &[Complex64], k: usize) -> Complex64 {
         .unwrap_or_default()
 }
 
+/// G, C and the right-hand side of M(ω) = G + jω·C: assembled at ω = 0 and
+/// ω = 1, C the difference of the imaginary parts.
+fn split(c: &Circuit, lay: &Layout) -> (Vec<Complex64>, Vec<f64>, Vec<Complex64>) {
+    let (g, rhs) = assemble(c, lay, 0.0);
+    let (unit, _) = assemble(c, lay, 1.0);
+    let cap: Vec<f64> = unit.iter().zip(&g).map(|(u, z)| u.im - z.im).collect();
+    (g, cap, rhs)
+}
+
+/// The entries of M(ω) = G + jω·C a stamp makes nonzero.
+fn stamped(n: usize, g: &[Complex64], cap: &[f64]) -> Pattern {
+    let zero = Complex64::new(0.0, 0.0);
+    Pattern::from_fn(n, |i| {
+        g.get(i).is_some_and(|z| *z != zero) || cap.get(i).is_some_and(|c| *c != 0.0)
+    })
+}
+
+/// One topology solved again and again with new element values (the trials
+/// of a Monte Carlo): the layout, the stamped pattern and the factor storage
+/// are kept from the first circuit, so each solve replays the recorded pivot
+/// order of [`Lu::factor_pattern`] (which eliminates in full again when
+/// partial pivoting picks another row). Each solve assembles the new values,
+/// checks the structure and refines as [`Sweeper::solve_into`] of a fresh
+/// sweeper does: the same unknowns, bit for bit.
+pub(crate) struct Refill {
+    lay: Layout,
+    pattern: Pattern,
+    work: Workspace,
+}
+
+impl Refill {
+    /// Lay out `c` and keep its pattern.
+    ///
+    /// # Errors
+    /// As [`layout`].
+    pub fn new(c: &Circuit) -> CircuitResult<Refill> {
+        let lay = layout(c)?;
+        let (g, cap, _) = split(c, &lay);
+        let pattern = stamped(lay.size, &g, &cap);
+        Ok(Refill {
+            work: Workspace::new(lay.size, pattern.clone()),
+            pattern,
+            lay,
+        })
+    }
+
+    /// The unknowns of `c` at `frequency_hz` into `x` (resized to the
+    /// unknowns): `Ok(true)`; `Ok(false)`, with nothing solved, when the layout
+    /// or the stamped pattern of `c` is not the one this storage was made for
+    /// (the caller solves it in full).
+    ///
+    /// # Errors
+    /// As [`Sweeper::new`] and [`Sweeper::solve_into`].
+    pub fn solve_into(
+        &mut self,
+        c: &Circuit,
+        frequency_hz: f64,
+        x: &mut Vec<Complex64>,
+    ) -> CircuitResult<bool> {
+        let lay = layout(c)?;
+        if lay != self.lay {
+            return Ok(false);
+        }
+        let (g, cap, rhs) = split(c, &lay);
+        if stamped(lay.size, &g, &cap) != self.pattern {
+            return Ok(false);
+        }
+        let w = omega(frequency_hz)?;
+        check_structure(c, w)?;
+        x.clear();
+        x.resize(lay.size, Complex64::new(0.0, 0.0));
+        let entry = |i: usize| match (g.get(i), cap.get(i)) {
+            (Some(z), Some(b)) => Complex64::new(z.re, z.im + w * b),
+            _ => Complex64::new(0.0, 0.0),
+        };
+        self.work.solve(c, &lay, entry, &rhs, x)?;
+        Ok(true)
+    }
+}
+
 /// One circuit solved at many frequencies. Every stamp is constant or
 /// proportional to s = jω, so M(ω) = G + jω·C: both are assembled once, and
 /// the structure is checked once per kind of frequency (0 Hz, where capacitors
@@ -797,14 +878,8 @@ impl<'a> Sweeper<'a> {
     /// Lay out and assemble.
     pub fn new(circuit: &'a Circuit) -> CircuitResult<Sweeper<'a>> {
         let lay = layout(circuit)?;
-        let (g, rhs) = assemble(circuit, &lay, 0.0);
-        let (unit, _) = assemble(circuit, &lay, 1.0);
-        let cap: Vec<f64> = unit.iter().zip(&g).map(|(u, z)| u.im - z.im).collect();
-        let zero = Complex64::new(0.0, 0.0);
-        let pattern = Pattern::from_fn(lay.size, |i| {
-            g.get(i).is_some_and(|z| *z != zero) || cap.get(i).is_some_and(|c| *c != 0.0)
-        });
-        let work = Workspace::new(lay.size, pattern);
+        let (g, cap, rhs) = split(circuit, &lay);
+        let work = Workspace::new(lay.size, stamped(lay.size, &g, &cap));
         Ok(Sweeper {
             circuit,
             lay,
