@@ -288,9 +288,24 @@ fn check_structure(c: &Circuit, w: f64) -> CircuitResult<()> {
 
 /// Assemble the MNA matrix and right-hand side at angular frequency `w`.
 pub(crate) fn assemble(c: &Circuit, lay: &Layout, w: f64) -> (Vec<Complex64>, Vec<Complex64>) {
+    let (mut m, mut rhs) = (Vec::new(), Vec::new());
+    assemble_into(c, lay, w, &mut m, &mut rhs);
+    (m, rhs)
+}
+
+/// [`assemble`] into `m` and `rhs` (cleared and resized), reusing their storage.
+fn assemble_into(
+    c: &Circuit,
+    lay: &Layout,
+    w: f64,
+    m: &mut Vec<Complex64>,
+    rhs: &mut Vec<Complex64>,
+) {
     let size = lay.size;
-    let mut m = alloc::vec![Complex64::new(0.0, 0.0); size * size];
-    let mut rhs = alloc::vec![Complex64::new(0.0, 0.0); size];
+    m.clear();
+    m.resize(size * size, Complex64::new(0.0, 0.0));
+    rhs.clear();
+    rhs.resize(size, Complex64::new(0.0, 0.0));
     // Node k (k ≥ 1) is unknown k − 1; ground has no row or column.
     let idx = |node: usize| node.checked_sub(1);
     let mut add = |r: Option<usize>, col: Option<usize>, v: Complex64| {
@@ -326,7 +341,7 @@ pub(crate) fn assemble(c: &Circuit, lay: &Layout, w: f64) -> (Vec<Complex64>, Ve
                         inputs: [idx(p), idx(n)],
                         first,
                     };
-                    amplifier_stamp::stamp(part, &t, s, &mut add, &mut rhs);
+                    amplifier_stamp::stamp(part, &t, s, &mut add, rhs);
                 }
             }
             ElementKind::Resistor => admittance(one / k, &mut add),
@@ -394,7 +409,6 @@ pub(crate) fn assemble(c: &Circuit, lay: &Layout, w: f64) -> (Vec<Complex64>, Ve
             }
         }
     }
-    (m, rhs)
 }
 
 /// Solve the circuit exactly at `frequency_hz`.
@@ -784,12 +798,15 @@ fn split(c: &Circuit, lay: &Layout) -> (Vec<Complex64>, Vec<f64>, Vec<Complex64>
     (g, cap, rhs)
 }
 
+/// Entry i of M(ω) = G + jω·C is made nonzero by a stamp.
+fn nonzero(g: &[Complex64], cap: &[f64], i: usize) -> bool {
+    g.get(i).is_some_and(|z| *z != Complex64::new(0.0, 0.0))
+        || cap.get(i).is_some_and(|c| *c != 0.0)
+}
+
 /// The entries of M(ω) = G + jω·C a stamp makes nonzero.
 fn stamped(n: usize, g: &[Complex64], cap: &[f64]) -> Pattern {
-    let zero = Complex64::new(0.0, 0.0);
-    Pattern::from_fn(n, |i| {
-        g.get(i).is_some_and(|z| *z != zero) || cap.get(i).is_some_and(|c| *c != 0.0)
-    })
+    Pattern::from_fn(n, |i| nonzero(g, cap, i))
 }
 
 /// One topology solved again and again with new element values (the trials
@@ -803,6 +820,12 @@ pub(crate) struct Refill {
     lay: Layout,
     pattern: Pattern,
     work: Workspace,
+    /// G, M at ω = 1, C and the right-hand side, assembled in place.
+    g: Vec<Complex64>,
+    unit: Vec<Complex64>,
+    cap: Vec<f64>,
+    rhs: Vec<Complex64>,
+    unit_rhs: Vec<Complex64>,
 }
 
 impl Refill {
@@ -818,6 +841,11 @@ impl Refill {
             work: Workspace::new(lay.size, pattern.clone()),
             pattern,
             lay,
+            g: Vec::new(),
+            unit: Vec::new(),
+            cap: Vec::new(),
+            rhs: Vec::new(),
+            unit_rhs: Vec::new(),
         })
     }
 
@@ -838,8 +866,14 @@ impl Refill {
         if lay != self.lay {
             return Ok(false);
         }
-        let (g, cap, rhs) = split(c, &lay);
-        if stamped(lay.size, &g, &cap) != self.pattern {
+        // As `split`, in the kept storage.
+        assemble_into(c, &lay, 0.0, &mut self.g, &mut self.rhs);
+        assemble_into(c, &lay, 1.0, &mut self.unit, &mut self.unit_rhs);
+        let (g, cap, rhs) = (&self.g, &mut self.cap, &self.rhs);
+        cap.clear();
+        cap.extend(self.unit.iter().zip(g).map(|(u, z)| u.im - z.im));
+        let cap = &*cap;
+        if !self.pattern.matches(lay.size, |i| nonzero(g, cap, i)) {
             return Ok(false);
         }
         let w = omega(frequency_hz)?;
@@ -850,7 +884,7 @@ impl Refill {
             (Some(z), Some(b)) => Complex64::new(z.re, z.im + w * b),
             _ => Complex64::new(0.0, 0.0),
         };
-        self.work.solve(c, &lay, entry, &rhs, x)?;
+        self.work.solve(c, &lay, entry, rhs, x)?;
         Ok(true)
     }
 }
