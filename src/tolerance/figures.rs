@@ -26,12 +26,12 @@ use crate::error::Error;
 use crate::freq::Margins;
 use crate::noise::circuit::{band_noise, NoiseOutput, NoiseSetup};
 use crate::stage::closed_loop::{gain_sweep, impedance_sweep};
-use crate::stage::loop_gain::ResponseSweep;
 use crate::stage::margins::{circuit_margins, circuit_margins_hinted, LoopHints};
 use crate::stage::step::{circuit_step, StepOutput};
 use crate::stage::{SpreadPoint, Stage, StageCircuit};
 use alloc::string::String;
 use alloc::vec::Vec;
+use num_complex::Complex64;
 
 /// Lowest frequency of the bandwidth grid, Hz.
 pub const GRID_LOW_HZ: f64 = 1.0;
@@ -297,14 +297,13 @@ pub(crate) const fn gain_frequency(figure: &Figure) -> Option<f64> {
     }
 }
 
-/// A gain figure from the one-frequency sweep `h` of H at its frequency:
+/// A gain figure from H at its frequency, `z` (as a gain sweep gives it):
 /// 20·log10|H| dB, ∠H degrees, or (|H| − |target|)/|target|·100 %.
 ///
 /// # Errors
 /// A figure not read from the gain ([`Error::Unreachable`]); a result not
 /// finite (param: the figure).
-pub(crate) fn gain_figure(figure: &Figure, h: &ResponseSweep) -> CircuitResult<f64> {
-    let z = h.complex().first().copied().unwrap_or_default();
+pub(crate) fn gain_figure(figure: &Figure, z: Complex64) -> CircuitResult<f64> {
     let v = match *figure {
         Figure::GainDb { .. } => 20.0 * libm::log10(z.norm()),
         Figure::PhaseDeg { .. } => crate::float::atan2(z.im, z.re).to_degrees(),
@@ -330,7 +329,7 @@ pub(crate) fn figure_hinted(
         | Figure::PhaseDeg { freq_hz }
         | Figure::GainErrorPercent { freq_hz, .. } => {
             let h = gain_sweep(&b.circuit, b.source, output(b), &[freq_hz])?;
-            return gain_figure(figure, &h);
+            return gain_figure(figure, h.complex().first().copied().unwrap_or_default());
         }
         Figure::BandwidthHz => bandwidth_and_peaking(stage, b)?.0,
         Figure::PeakingDb => bandwidth_and_peaking(stage, b)?.1,

@@ -16,7 +16,7 @@ use super::parts::{slot_value, TolStage, NAMES};
 use super::spec::Limit;
 use crate::circuit::mna::{node_voltage, unit_source, Refill};
 use crate::circuit::{Circuit, CircuitResult};
-use crate::stage::loop_gain::ResponseSweep;
+use crate::stage::loop_gain::checked_sample;
 use crate::stage::StageCircuit;
 use alloc::vec::Vec;
 use num_complex::Complex64;
@@ -113,20 +113,20 @@ impl GainTrials {
         for l in spec {
             let f = gain_frequency(&l.figure).unwrap_or_default();
             match self.gain(f) {
-                Some(h) => out.push(h.and_then(|h| gain_figure(&l.figure, &h)).ok()),
+                Some(z) => out.push(z.and_then(|z| gain_figure(&l.figure, z)).ok()),
                 None => return Trial::Rebuild,
             }
         }
         Trial::Done
     }
 
-    /// H(f) as `gain_sweep` gives it, or `None` when the stored pattern does
-    /// not hold.
-    fn gain(&mut self, f: f64) -> Option<CircuitResult<ResponseSweep>> {
+    /// H(f) as `gain_sweep` gives it (its sample checked as there), or `None`
+    /// when the stored pattern does not hold.
+    fn gain(&mut self, f: f64) -> Option<CircuitResult<Complex64>> {
         match self.solver.solve_into(&self.circuit, f, &mut self.x) {
             Ok(true) => {
                 let h = node_voltage(&self.x, self.output) - node_voltage(&self.x, 0);
-                Some(ResponseSweep::from_samples("gain", &[f], &[h]))
+                Some(checked_sample("gain", f, h).map(|(z, _)| z))
             }
             Ok(false) => None,
             Err(e) => Some(Err(e)),
