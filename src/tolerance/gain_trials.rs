@@ -37,7 +37,8 @@ pub(crate) struct GainTrials {
 
 /// What one trial at one temperature gave.
 pub(crate) enum Trial {
-    /// Every limit's figure (`None` where undefined), in spec order.
+    /// The output holds every limit's figure (`None` where undefined), in
+    /// spec order.
     Done,
     /// The fast path does not apply: compute the trial by the full path.
     Rebuild,
