@@ -92,6 +92,19 @@ impl Pattern {
         p
     }
 
+    /// True when this is `Pattern::from_fn(n, nonzero)`, found without
+    /// building it.
+    pub fn matches(&self, n: usize, nonzero: impl Fn(usize) -> bool) -> bool {
+        self.start.len() == n + 1
+            && (0..n).all(|r| {
+                let mut cols = self.row(r).iter();
+                (0..n)
+                    .filter(|&c| nonzero(r * n + c))
+                    .all(|c| cols.next() == Some(&c))
+                    && cols.next().is_none()
+            })
+    }
+
     /// The columns of row `r` (empty beyond the last row).
     pub fn row(&self, r: usize) -> &[usize] {
         match (self.start.get(r), self.start.get(r + 1)) {
@@ -650,6 +663,22 @@ impl Plan {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn pattern_matches_exactly_the_pattern_from_fn() {
+        // Each candidate against each pattern: `matches` must agree with
+        // building the candidate and comparing.
+        let shapes: [fn(usize) -> bool; 4] = [|i| i % 4 == 0, |i| i % 3 != 1, |_| true, |i| i == 5];
+        for n in [1, 3, 4] {
+            for a in shapes {
+                let p = Pattern::from_fn(n, a);
+                for b in shapes {
+                    assert_eq!(p.matches(n, b), p == Pattern::from_fn(n, b), "n {n}");
+                }
+                assert!(!p.matches(n + 1, a));
+            }
+        }
+    }
 
     fn c(re: f64, im: f64) -> Complex64 {
         Complex64::new(re, im)

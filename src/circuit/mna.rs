@@ -182,6 +182,7 @@ fn control_element(c: &Circuit, name: Name, control: Name) -> CircuitResult<usiz
 }
 
 /// The structure of the MNA system of a circuit.
+#[derive(Debug, PartialEq, Eq)]
 pub(crate) struct Layout {
     /// Node unknowns (nodes but ground).
     pub nodes: usize,
@@ -287,9 +288,24 @@ fn check_structure(c: &Circuit, w: f64) -> CircuitResult<()> {
 
 /// Assemble the MNA matrix and right-hand side at angular frequency `w`.
 pub(crate) fn assemble(c: &Circuit, lay: &Layout, w: f64) -> (Vec<Complex64>, Vec<Complex64>) {
+    let (mut m, mut rhs) = (Vec::new(), Vec::new());
+    assemble_into(c, lay, w, &mut m, &mut rhs);
+    (m, rhs)
+}
+
+/// [`assemble`] into `m` and `rhs` (cleared and resized), reusing their storage.
+fn assemble_into(
+    c: &Circuit,
+    lay: &Layout,
+    w: f64,
+    m: &mut Vec<Complex64>,
+    rhs: &mut Vec<Complex64>,
+) {
     let size = lay.size;
-    let mut m = alloc::vec![Complex64::new(0.0, 0.0); size * size];
-    let mut rhs = alloc::vec![Complex64::new(0.0, 0.0); size];
+    m.clear();
+    m.resize(size * size, Complex64::new(0.0, 0.0));
+    rhs.clear();
+    rhs.resize(size, Complex64::new(0.0, 0.0));
     // Node k (k ≥ 1) is unknown k − 1; ground has no row or column.
     let idx = |node: usize| node.checked_sub(1);
     let mut add = |r: Option<usize>, col: Option<usize>, v: Complex64| {
@@ -325,7 +341,7 @@ pub(crate) fn assemble(c: &Circuit, lay: &Layout, w: f64) -> (Vec<Complex64>, Ve
                         inputs: [idx(p), idx(n)],
                         first,
                     };
-                    amplifier_stamp::stamp(part, &t, s, &mut add, &mut rhs);
+                    amplifier_stamp::stamp(part, &t, s, &mut add, rhs);
                 }
             }
             ElementKind::Resistor => admittance(one / k, &mut add),
@@ -393,7 +409,6 @@ pub(crate) fn assemble(c: &Circuit, lay: &Layout, w: f64) -> (Vec<Complex64>, Ve
             }
         }
     }
-    (m, rhs)
 }
 
 /// Solve the circuit exactly at `frequency_hz`.
@@ -774,6 +789,106 @@ pub(crate) fn node_voltage(x: &[Complex64], k: usize) -> Complex64 {
         .unwrap_or_default()
 }
 
+/// G, C and the right-hand side of M(ω) = G + jω·C: assembled at ω = 0 and
+/// ω = 1, C the difference of the imaginary parts.
+fn split(c: &Circuit, lay: &Layout) -> (Vec<Complex64>, Vec<f64>, Vec<Complex64>) {
+    let (g, rhs) = assemble(c, lay, 0.0);
+    let (unit, _) = assemble(c, lay, 1.0);
+    let cap: Vec<f64> = unit.iter().zip(&g).map(|(u, z)| u.im - z.im).collect();
+    (g, cap, rhs)
+}
+
+/// Entry i of M(ω) = G + jω·C is made nonzero by a stamp.
+fn nonzero(g: &[Complex64], cap: &[f64], i: usize) -> bool {
+    g.get(i).is_some_and(|z| *z != Complex64::new(0.0, 0.0))
+        || cap.get(i).is_some_and(|c| *c != 0.0)
+}
+
+/// The entries of M(ω) = G + jω·C a stamp makes nonzero.
+fn stamped(n: usize, g: &[Complex64], cap: &[f64]) -> Pattern {
+    Pattern::from_fn(n, |i| nonzero(g, cap, i))
+}
+
+/// One topology solved again and again with new element values (the trials
+/// of a Monte Carlo): the layout, the stamped pattern and the factor storage
+/// are kept from the first circuit, so each solve replays the recorded pivot
+/// order of [`Lu::factor_pattern`] (which eliminates in full again when
+/// partial pivoting picks another row). Each solve assembles the new values,
+/// checks the structure and refines as [`Sweeper::solve_into`] of a fresh
+/// sweeper does: the same unknowns, bit for bit.
+pub(crate) struct Refill {
+    lay: Layout,
+    pattern: Pattern,
+    work: Workspace,
+    /// G, M at ω = 1, C and the right-hand side, assembled in place.
+    g: Vec<Complex64>,
+    unit: Vec<Complex64>,
+    cap: Vec<f64>,
+    rhs: Vec<Complex64>,
+    unit_rhs: Vec<Complex64>,
+}
+
+impl Refill {
+    /// Lay out `c` and keep its pattern.
+    ///
+    /// # Errors
+    /// As [`layout`].
+    pub fn new(c: &Circuit) -> CircuitResult<Refill> {
+        let lay = layout(c)?;
+        let (g, cap, _) = split(c, &lay);
+        let pattern = stamped(lay.size, &g, &cap);
+        Ok(Refill {
+            work: Workspace::new(lay.size, pattern.clone()),
+            pattern,
+            lay,
+            g: Vec::new(),
+            unit: Vec::new(),
+            cap: Vec::new(),
+            rhs: Vec::new(),
+            unit_rhs: Vec::new(),
+        })
+    }
+
+    /// The unknowns of `c` at `frequency_hz` into `x` (resized to the
+    /// unknowns): `Ok(true)`; `Ok(false)`, with nothing solved, when the layout
+    /// or the stamped pattern of `c` is not the one this storage was made for
+    /// (the caller solves it in full).
+    ///
+    /// # Errors
+    /// As [`Sweeper::new`] and [`Sweeper::solve_into`].
+    pub fn solve_into(
+        &mut self,
+        c: &Circuit,
+        frequency_hz: f64,
+        x: &mut Vec<Complex64>,
+    ) -> CircuitResult<bool> {
+        let lay = layout(c)?;
+        if lay != self.lay {
+            return Ok(false);
+        }
+        // As `split`, in the kept storage.
+        assemble_into(c, &lay, 0.0, &mut self.g, &mut self.rhs);
+        assemble_into(c, &lay, 1.0, &mut self.unit, &mut self.unit_rhs);
+        let (g, cap, rhs) = (&self.g, &mut self.cap, &self.rhs);
+        cap.clear();
+        cap.extend(self.unit.iter().zip(g).map(|(u, z)| u.im - z.im));
+        let cap = &*cap;
+        if !self.pattern.matches(lay.size, |i| nonzero(g, cap, i)) {
+            return Ok(false);
+        }
+        let w = omega(frequency_hz)?;
+        check_structure(c, w)?;
+        x.clear();
+        x.resize(lay.size, Complex64::new(0.0, 0.0));
+        let entry = |i: usize| match (g.get(i), cap.get(i)) {
+            (Some(z), Some(b)) => Complex64::new(z.re, z.im + w * b),
+            _ => Complex64::new(0.0, 0.0),
+        };
+        self.work.solve(c, &lay, entry, rhs, x)?;
+        Ok(true)
+    }
+}
+
 /// One circuit solved at many frequencies. Every stamp is constant or
 /// proportional to s = jω, so M(ω) = G + jω·C: both are assembled once, and
 /// the structure is checked once per kind of frequency (0 Hz, where capacitors
@@ -797,14 +912,8 @@ impl<'a> Sweeper<'a> {
     /// Lay out and assemble.
     pub fn new(circuit: &'a Circuit) -> CircuitResult<Sweeper<'a>> {
         let lay = layout(circuit)?;
-        let (g, rhs) = assemble(circuit, &lay, 0.0);
-        let (unit, _) = assemble(circuit, &lay, 1.0);
-        let cap: Vec<f64> = unit.iter().zip(&g).map(|(u, z)| u.im - z.im).collect();
-        let zero = Complex64::new(0.0, 0.0);
-        let pattern = Pattern::from_fn(lay.size, |i| {
-            g.get(i).is_some_and(|z| *z != zero) || cap.get(i).is_some_and(|c| *c != 0.0)
-        });
-        let work = Workspace::new(lay.size, pattern);
+        let (g, cap, rhs) = split(circuit, &lay);
+        let work = Workspace::new(lay.size, stamped(lay.size, &g, &cap));
         Ok(Sweeper {
             circuit,
             lay,

@@ -311,6 +311,12 @@ impl Circuit {
         &self.elements
     }
 
+    /// The elements, for changing values in place (same names, nodes and
+    /// kinds: the caller keeps every value valid for its kind).
+    pub(crate) fn elements_mut(&mut self) -> &mut [Element] {
+        &mut self.elements
+    }
+
     /// Index of a node by name (`0` and `gnd` give 0).
     ///
     /// # Errors

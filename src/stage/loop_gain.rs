@@ -49,6 +49,28 @@ pub struct ResponseSweep {
     pub im: Vec<f64>,
 }
 
+/// A response sample z at `f` Hz as [`ResponseSweep::from_samples`] takes it,
+/// with its magnitude in dB, 20·log10|z|.
+///
+/// # Errors
+/// z not finite (param `param`); |z| zero or overflowing in dB
+/// ([`Error::Overflow`], named by the frequency).
+pub(crate) fn checked_sample(
+    param: &'static str,
+    f: f64,
+    z: Complex64,
+) -> CircuitResult<(Complex64, f64)> {
+    let z = check::result_complex(param, z)?;
+    let db = 20.0 * libm::log10(z.norm());
+    if !db.is_finite() {
+        return Err(CircuitError::named(
+            Error::Overflow { param },
+            &alloc::format!("{f} Hz"),
+        ));
+    }
+    Ok((z, db))
+}
+
 impl ResponseSweep {
     /// Build from complex samples; magnitude and phase checked finite.
     ///
@@ -64,14 +86,7 @@ impl ResponseSweep {
             ..ResponseSweep::default()
         };
         for (&f, z) in freq_hz.iter().zip(h) {
-            let z = check::result_complex(param, *z)?;
-            let db = 20.0 * libm::log10(z.norm());
-            if !db.is_finite() {
-                return Err(CircuitError::named(
-                    Error::Overflow { param },
-                    &alloc::format!("{f} Hz"),
-                ));
-            }
+            let (z, db) = checked_sample(param, f, *z)?;
             r.magnitude_db.push(db);
             r.phase_deg
                 .push(crate::float::atan2(z.im, z.re).to_degrees());

@@ -31,6 +31,7 @@ use crate::stage::step::{circuit_step, StepOutput};
 use crate::stage::{SpreadPoint, Stage, StageCircuit};
 use alloc::string::String;
 use alloc::vec::Vec;
+use num_complex::Complex64;
 
 /// Lowest frequency of the bandwidth grid, Hz.
 pub const GRID_LOW_HZ: f64 = 1.0;
@@ -285,6 +286,35 @@ fn margins(b: &StageCircuit, hints: Option<&LoopHints>) -> CircuitResult<Margins
     }
 }
 
+/// The frequency of a figure read from the gain H(f) alone (gain in dB,
+/// phase, gain error); `None` for the others.
+pub(crate) const fn gain_frequency(figure: &Figure) -> Option<f64> {
+    match *figure {
+        Figure::GainDb { freq_hz }
+        | Figure::PhaseDeg { freq_hz }
+        | Figure::GainErrorPercent { freq_hz, .. } => Some(freq_hz),
+        _ => None,
+    }
+}
+
+/// A gain figure from H at its frequency, `z` (as a gain sweep gives it):
+/// 20·log10|H| dB, ∠H degrees, or (|H| − |target|)/|target|·100 %.
+///
+/// # Errors
+/// A figure not read from the gain ([`Error::Unreachable`]); a result not
+/// finite (param: the figure).
+pub(crate) fn gain_figure(figure: &Figure, z: Complex64) -> CircuitResult<f64> {
+    let v = match *figure {
+        Figure::GainDb { .. } => 20.0 * libm::log10(z.norm()),
+        Figure::PhaseDeg { .. } => crate::float::atan2(z.im, z.re).to_degrees(),
+        Figure::GainErrorPercent { target, .. } => {
+            (z.norm() - libm::fabs(target)) / libm::fabs(target) * 100.0
+        }
+        _ => return Err(unreachable(figure.name(), "not a figure of the gain alone")),
+    };
+    Ok(crate::check::result(figure.name(), v)?)
+}
+
 /// [`figure_of`], the margins found with the grid hints of a nearby stage of
 /// the same topology (the Monte Carlo's nominal stage) when given.
 pub(crate) fn figure_hinted(
@@ -295,14 +325,11 @@ pub(crate) fn figure_hinted(
     hints: Option<&LoopHints>,
 ) -> CircuitResult<f64> {
     let v = match *figure {
-        Figure::GainDb { freq_hz } => 20.0 * libm::log10(gain_at(b, &[freq_hz])?[0]),
-        Figure::PhaseDeg { freq_hz } => {
+        Figure::GainDb { freq_hz }
+        | Figure::PhaseDeg { freq_hz }
+        | Figure::GainErrorPercent { freq_hz, .. } => {
             let h = gain_sweep(&b.circuit, b.source, output(b), &[freq_hz])?;
-            let z = h.complex()[0];
-            crate::float::atan2(z.im, z.re).to_degrees()
-        }
-        Figure::GainErrorPercent { freq_hz, target } => {
-            (gain_at(b, &[freq_hz])?[0] - libm::fabs(target)) / libm::fabs(target) * 100.0
+            return gain_figure(figure, h.complex().first().copied().unwrap_or_default());
         }
         Figure::BandwidthHz => bandwidth_and_peaking(stage, b)?.0,
         Figure::PeakingDb => bandwidth_and_peaking(stage, b)?.1,

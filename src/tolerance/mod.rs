@@ -13,6 +13,7 @@
 //!   tighten first.
 
 pub mod figures;
+mod gain_trials;
 pub mod montecarlo;
 pub mod parts;
 pub mod sensitivity;

@@ -19,6 +19,7 @@
 //! rule, histogram) pool the trials' values at every temperature.
 
 use super::figures::{figure_hinted, figure_of, is_margin};
+use super::gain_trials::{GainTrials, Trial};
 use super::parts::{Draw, TolStage};
 use super::spec::{validate_spec, Limit};
 use crate::circuit::CircuitResult;
@@ -127,6 +128,30 @@ pub(crate) fn draw(ts: &TolStage, d: &mut Draws, out: &mut Vec<f64>) {
     }
 }
 
+/// The figures of one trial at `temperature_c` into `out` (spec order,
+/// `None` where undefined), the stage and its circuit built from the values.
+pub(crate) fn rebuilt_figures(
+    ts: &TolStage,
+    values: &[f64],
+    temperature_c: f64,
+    spec: &[Limit],
+    hints: Option<&LoopHints>,
+    out: &mut Vec<Option<f64>>,
+) {
+    out.clear();
+    let built = ts
+        .stage_at(values, temperature_c)
+        .ok()
+        .and_then(|s| s.circuit().ok().map(|b| (s, b)));
+    for l in spec {
+        out.push(
+            built
+                .as_ref()
+                .and_then(|(s, b)| figure_hinted(s, b, &l.figure, temperature_c, hints).ok()),
+        );
+    }
+}
+
 /// Run the Monte Carlo of `spec` on the stage.
 ///
 /// # Errors
@@ -175,6 +200,9 @@ pub fn monte_carlo(
     // temperature) and are signed by Nyquist's criterion: no trial finds poles.
     let wants_margins = spec.iter().any(|l| is_margin(&l.figure));
     let mut hints: Vec<Option<LoopHints>> = Vec::with_capacity(temps.len());
+    // A spec of gain figures alone is evaluated on each temperature's circuit
+    // built once, the trials' values written into it (`gain_trials`).
+    let mut fast: Vec<Option<GainTrials>> = Vec::with_capacity(temps.len());
     for &t in &temps {
         let stage = ts.stage_at(&nominal_values, t)?;
         let b = stage.circuit()?;
@@ -186,7 +214,9 @@ pub fn monte_carlo(
         } else {
             None
         });
+        fast.push(GainTrials::new(&b, spec));
     }
+    let mut row = Vec::with_capacity(spec.len());
     let mut d = Draws::new(o.seed);
     let mut values = Vec::with_capacity(ts.varied.len());
     let mut samples: Vec<Vec<f64>> = alloc::vec![Vec::new(); spec.len()];
@@ -198,16 +228,15 @@ pub fn monte_carlo(
     for trial in 0..o.trials {
         draw(ts, &mut d, &mut values);
         fig.iter_mut().for_each(Vec::clear);
-        for (&t, h) in temps.iter().zip(&hints) {
-            let built = ts
-                .stage_at(&values, t)
-                .ok()
-                .and_then(|s| s.circuit().ok().map(|b| (s, b)));
-            for (k, l) in spec.iter().enumerate() {
-                let y = built
-                    .as_ref()
-                    .and_then(|(s, b)| figure_hinted(s, b, &l.figure, t, h.as_ref()).ok());
-                fig[k].push(y);
+        for ((&t, h), g) in temps.iter().zip(&hints).zip(&mut fast) {
+            let done = g
+                .as_mut()
+                .is_some_and(|g| matches!(g.figures(ts, &values, t, spec, &mut row), Trial::Done));
+            if !done {
+                rebuilt_figures(ts, &values, t, spec, h.as_ref(), &mut row);
+            }
+            for (f, y) in fig.iter_mut().zip(&row) {
+                f.push(*y);
             }
         }
         let mut failed_limits = Vec::new();

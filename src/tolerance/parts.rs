@@ -118,6 +118,20 @@ fn slot_of(parts: &crate::stage::StageParts, k: usize) -> Option<f64> {
     .flatten()
 }
 
+/// The value of part slot `k` (the order of [`NAMES`]).
+pub(crate) fn slot_value(parts: &crate::stage::StageParts, k: usize) -> Option<f64> {
+    match k {
+        0 => parts.rf,
+        1 => parts.rg,
+        2 => parts.cf,
+        3 => parts.rs,
+        4 => parts.cs,
+        5 => parts.rl,
+        6 => parts.cl,
+        _ => parts.riso,
+    }
+}
+
 fn set_slot(parts: &mut crate::stage::StageParts, k: usize, v: f64) {
     let field = match k {
         0 => &mut parts.rf,
@@ -132,7 +146,8 @@ fn set_slot(parts: &mut crate::stage::StageParts, k: usize, v: f64) {
     *field = Some(v);
 }
 
-const NAMES: [(&str, &str); 8] = [
+/// Each part slot's field name and its element's name in the stage circuit.
+pub(crate) const NAMES: [(&str, &str); 8] = [
     ("rf", "Rf"),
     ("rg", "Rg"),
     ("cf", "Cf"),
