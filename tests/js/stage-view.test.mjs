@@ -11,9 +11,6 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { join } from 'node:path';
-import { homedir } from 'node:os';
-import { writeFileSync } from 'node:fs';
-import { execFileSync } from 'node:child_process';
 import { servedPageTests, openPage, ARTIFACTS } from './browser.mjs';
 
 const env = servedPageTests();
@@ -276,28 +273,6 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   assert.equal(pdf.subarray(0, 5).toString(), '%PDF-');
   const pages = (pdf.toString('latin1').match(/\/Type\s*\/Page[^s]/g) ?? []).length;
   assert.ok(pages >= 2 && pages <= 6, `${pages} pages`);
-  // The PDF's own text, read back by pypdf (in the reference venv, scripts/setup.sh):
-  // what the browser printed, not the page's DOM.
-  const pdfPath = join(ARTIFACTS, 'stage-report.pdf');
-  writeFileSync(pdfPath, pdf);
-  const venv = process.env.LOOPWRIGHT_VENV ?? join(homedir(), '.cache', 'loopwright', 'venv');
-  const pdfText = execFileSync(
-    join(venv, 'bin', 'python'),
-    [
-      '-c',
-      'import sys, pypdf; print("\\n".join(p.extract_text() for p in pypdf.PdfReader(sys.argv[1]).pages))',
-      pdfPath,
-    ],
-    { encoding: 'utf8' },
-  ).replace(/\s+/g, ' ');
-  assert.match(pdfText, /Stage design report/);
-  assert.match(pdfText, /Results against the spec/);
-  assert.match(pdfText, /check every design on the bench/);
-  assert.ok(
-    pdfText.includes(`loopwright core ${api.version}`),
-    `the core version ${api.version} in the PDF`,
-  );
-  assert.ok(pdfText.includes(api.pm), `the phase margin ${api.pm} in the PDF`);
   await page.screenshot({ path: join(ARTIFACTS, 'stage-report.png'), fullPage: true });
   await page.emulateMedia({ media: 'screen' });
 
