@@ -11,6 +11,10 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { join } from 'node:path';
+import { homedir } from 'node:os';
+import { writeFile } from 'node:fs/promises';
+import { execFile } from 'node:child_process';
+import { promisify } from 'node:util';
 import { servedPageTests, openPage, ARTIFACTS } from './browser.mjs';
 
 const env = servedPageTests();
@@ -35,6 +39,26 @@ async function setField(page, key, text) {
 async function click(page, selector) {
   await page.click(selector);
   actions += 1;
+}
+
+/**
+ * The text of a PDF as a reader gets it: pypdf (pinned in tests/reference/
+ * requirements.txt, installed in the reference venv by scripts/setup.sh) run as an
+ * asynchronous child process, so the test's event loop and the browser it drives go
+ * on meanwhile. Runs of white space become one space.
+ */
+async function pdfText(path) {
+  const venv = process.env.LOOPWRIGHT_VENV ?? join(homedir(), '.cache', 'loopwright', 'venv');
+  const { stdout } = await promisify(execFile)(
+    join(venv, 'bin', 'python'),
+    [
+      '-c',
+      'import sys, pypdf; print("\\n".join(p.extract_text() for p in pypdf.PdfReader(sys.argv[1]).pages))',
+      path,
+    ],
+    { encoding: 'utf8', timeout: 60000 },
+  );
+  return stdout.replace(/\s+/g, ' ');
 }
 
 const shown = (page, id) => page.locator(`#stage-out-${id}`).textContent();
@@ -273,6 +297,55 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   assert.equal(pdf.subarray(0, 5).toString(), '%PDF-');
   const pages = (pdf.toString('latin1').match(/\/Type\s*\/Page[^s]/g) ?? []).length;
   assert.ok(pages >= 2 && pages <= 6, `${pages} pages`);
+  // The PDF's own text (what the browser printed, not the page's DOM): title, inputs,
+  // results with their verdicts, cautions, core version, date, and the API's margin.
+  const pdfPath = join(ARTIFACTS, 'stage-report.pdf');
+  await writeFile(pdfPath, pdf);
+  const inPdf = await pdfText(pdfPath);
+  const squash = (t) => t.replace(/\s+/g, ' ').trim();
+  assert.match(inPdf, /Stage design report/);
+  assert.match(inPdf, /Inputs and spec/);
+  for (const [label, typed] of [
+    ['Gain |Af|', '48'],
+    ['Gain tolerance', '0.5%'],
+    ['Rs (source)', '2k'],
+    ['Further poles', '20M'],
+    ['Temperature from', '-40'],
+  ])
+    assert.ok(inPdf.includes(`${label} ${typed}`), `the input ${label} ${typed} in the PDF`);
+  assert.match(inPdf, /Results against the spec/);
+  const verdicts = await page
+    .locator('#stage-report .report-checks tbody tr')
+    .evaluateAll((rows) =>
+      rows.map((r) => [...r.cells].map((c) => c.textContent)).map((c) => [c[0], c[3]]),
+    );
+  assert.ok(verdicts.length >= 5, `${verdicts.length} checks`);
+  assert.ok(verdicts.some(([, v]) => v === 'pass'));
+  // Each check in order, and its own verdict between it and the next check.
+  const starts = [];
+  for (const [what] of verdicts) {
+    const at = inPdf.indexOf(squash(what), (starts.at(-1) ?? -1) + 1);
+    assert.ok(at >= 0, `the check "${what}" in the PDF`);
+    starts.push(at);
+  }
+  verdicts.forEach(([what, verdict], i) => {
+    const row = inPdf.slice(starts[i] + squash(what).length, starts[i + 1] ?? starts[i] + 200);
+    assert.match(row, new RegExp(`\\b${verdict}\\b`), `the verdict of "${what}" in the PDF`);
+    const other = verdict === 'pass' ? 'FAIL' : 'pass';
+    if (verdict !== 'shown') assert.doesNotMatch(row, new RegExp(`\\b${other}\\b`));
+  });
+  assert.ok(inPdf.includes(`Monte Carlo yield against the whole spec: ${tol.yield}`));
+  assert.match(inPdf, /Cautions/);
+  assert.match(inPdf, /check every design on the bench/);
+  assert.ok(
+    inPdf.includes(`loopwright core ${api.version}`),
+    `the core version ${api.version} in the PDF`,
+  );
+  assert.ok(inPdf.includes(new Date().toISOString().slice(0, 10)), 'the date in the PDF');
+  assert.ok(
+    inPdf.includes(`Phase margin (at the A0 point analysed) ${api.pm}`),
+    `the API's phase margin ${api.pm} in the PDF`,
+  );
   await page.screenshot({ path: join(ARTIFACTS, 'stage-report.png'), fullPage: true });
   await page.emulateMedia({ media: 'screen' });
 
