@@ -613,3 +613,134 @@ test('every stage kind gets its tolerance answers: a transimpedance stage typed 
   assert.deepEqual(problems, []);
   await context.close();
 });
+
+test('the amplifier’s GBW and Ro spreads: typed in the tolerance section, varied by the engine, undone, reported', async () => {
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    width: 1366,
+    height: 900,
+  });
+  await page.click('#tab-stage');
+  await page.waitForSelector('html[data-stage="ready"]');
+  // The demo stage (fields.js DEMO: GBW 1 MHz, Ro 50 Ω) with a datasheet's GBW
+  // 0.7 … 1.4 MHz and Ro 30 … 80 Ω around them (figures of our own).
+  await setField(page, 'gbwMin', '0.7M');
+  await setField(page, 'gbwMax', '1.4M');
+  await setField(page, 'roMin', '30');
+  await setField(page, 'roMax', '80');
+  assert.equal(await page.locator('#stage-message').textContent(), '');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  const tol = await page.evaluate(async () => {
+    const m = await import('/pkg/loopwright.js');
+    // The demo stage as this test writes it (fields.js DEMO).
+    const stage = {
+      format: 'loopwright-stage',
+      version: 1,
+      kind: 'non-inverting',
+      amplifier: {
+        a0: { min: '200k', typ: '1M', max: '5M' },
+        gbwHz: '1M',
+        polesHz: [15e6],
+        rd: '10M',
+        cd: '3p',
+        rcm: '1G',
+        ccm: '4p',
+        ro: '50',
+        slewRate: '0.5M',
+        voltageNoise: { density: '9n', cornerHz: '10' },
+        currentNoise: { density: '0.2p', cornerHz: '50' },
+      },
+      spreadPoint: 'typ',
+      parts: { rf: '100k', rg: '1k', rs: '350', rl: '10k', cl: '1n' },
+    };
+    const grade = (part, percent, tempcoPpm) => ({
+      part,
+      tolerance: { distribution: 'uniform', percent },
+      tempcoPpm,
+    });
+    const r = m.stageTolerance({
+      stage,
+      parts: [
+        grade('rf', 0.1, 25),
+        grade('rg', 0.1, 25),
+        grade('rs', 1, 25),
+        grade('rl', 1, 25),
+        grade('cl', 5, 30),
+      ],
+      amplifierSpread: {
+        gbwHz: { min: 0.7e6, typ: 1e6, max: 1.4e6 },
+        ro: { min: 30, typ: 50, max: 80 },
+      },
+      temperatureC: [0, 70],
+      spec: [
+        { figure: 'gainErrorPercent', freqHz: 1, target: 101, lower: -1, upper: 1 },
+        { figure: 'phaseMarginDeg', lower: 45 },
+        { figure: 'outputNoiseRms', bandHz: [0.1, 10], upper: 20e-6 },
+      ],
+      trials: 200,
+      seed: 1,
+    });
+    const pm = r.worstCase.figures[1];
+    return {
+      parts: r.worstCase.parts,
+      yield: m.formatPlain(r.monteCarlo.yieldFraction * 100, '%', 4),
+      pmMin: m.formatPlain(pm.min.value, '°', 4),
+      pmMax: m.formatPlain(pm.max.value, '°', 4),
+    };
+  });
+  // The engine varied both (docs/tolerance.md: U1.gbwHz, U1.ro after A0).
+  assert.deepEqual(tol.parts.slice(-3), ['U1.a0', 'U1.gbwHz', 'U1.ro']);
+  const varied = await page.locator('#stage-tolerance-varied').textContent();
+  assert.match(varied, /GBW 700 kHz … 1\.4 MHz/);
+  assert.match(varied, /Ro 30 Ω … 80 Ω/);
+  assert.equal(await page.locator('#stage-out-yield').textContent(), tol.yield);
+  const pmRow = page.locator('#stage-worst tbody tr[data-figure="phaseMarginDeg"]:not(.stage-at)');
+  assert.equal(await pmRow.locator('td').nth(2).textContent(), tol.pmMin);
+  assert.equal(await pmRow.locator('td').nth(3).textContent(), tol.pmMax);
+  // GBW and Ro take part in the sensitivities.
+  assert.equal(await page.locator('#stage-sensitivity tr[data-part="U1.gbwHz"]').count(), 3);
+  assert.equal(await page.locator('#stage-sensitivity tr[data-part="U1.ro"]').count(), 3);
+
+  // Undo takes the Ro max back: Ro varies 30 Ω … its typ 50 Ω.
+  await page.click('#stage-undo');
+  assert.equal(await page.inputValue('#stage-roMax'), '');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.match(await page.locator('#stage-tolerance-varied').textContent(), /Ro 30 Ω … 50 Ω/);
+  await page.click('#stage-redo');
+  assert.equal(await page.inputValue('#stage-roMax'), '80');
+
+  // A spread the core refuses (min above typ) is named at its field.
+  await setField(page, 'gbwMin', '2M');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.match(
+    await page.locator('#stage-tolerance-message').textContent(),
+    /^Gain-bandwidth min: /,
+  );
+  assert.equal(await page.getAttribute('#stage-gbwMin', 'aria-invalid'), 'true');
+  await page.click('#stage-undo');
+  // With no Ro, the Ro spread has no typ: said at its field, no maths in the page.
+  await setField(page, 'ro', '');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.match(
+    await page.locator('#stage-tolerance-message').textContent(),
+    /^Ro min: give the amplifier’s Ro \(output\)/,
+  );
+  await page.click('#stage-undo');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.equal(await page.locator('#stage-tolerance-message').count(), 0);
+
+  // The report carries the fields and the same answers.
+  await page.click('#stage-report-button');
+  const report = await page.locator('#stage-report').textContent();
+  for (const text of ['Gain-bandwidth min0.7M', 'Gain-bandwidth max1.4M', 'Ro min30', 'Ro max80'])
+    assert.ok(report.includes(text), `${text} in the report`);
+  assert.match(
+    await page.locator('#report-tolerance-varied').textContent(),
+    /GBW 700 kHz … 1\.4 MHz.*Ro 30 Ω … 80 Ω/,
+  );
+  assert.equal(await page.locator('#report-out-yield').textContent(), tol.yield);
+  await page.locator('.stage-group-tolerance').screenshot({
+    path: join(ARTIFACTS, 'stage-amplifier-spreads-1366.png'),
+  });
+  assert.deepEqual(problems, []);
+  await context.close();
+});
