@@ -15,7 +15,8 @@ import { homedir } from 'node:os';
 import { writeFile } from 'node:fs/promises';
 import { execFile } from 'node:child_process';
 import { promisify } from 'node:util';
-import { servedPageTests, openPage, ARTIFACTS } from './browser.mjs';
+import { pathToFileURL } from 'node:url';
+import { servedPageTests, openPage, ARTIFACTS, ROOT } from './browser.mjs';
 
 const env = servedPageTests();
 
@@ -741,6 +742,163 @@ test('the amplifier’s GBW and Ro spreads: typed in the tolerance section, vari
   await page.locator('.stage-group-tolerance').screenshot({
     path: join(ARTIFACTS, 'stage-amplifier-spreads-1366.png'),
   });
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+/**
+ * stageTolerance on the demo stage (fields.js DEMO, written here as the test's own
+ * stage document) with the view's grades and spec, `temperatureC` and `trials`,
+ * called on the page thread of the served page: the figures the view must show.
+ */
+function demoTolerance(page, temperatureC, trials) {
+  return page.evaluate(
+    async ({ temperatureC, trials }) => {
+      const m = await import('/pkg/loopwright.js');
+      await m.default(); // started already when the page has loaded the full core
+      const grade = (part, percent, tempcoPpm) => ({
+        part,
+        tolerance: { distribution: 'uniform', percent },
+        tempcoPpm,
+      });
+      const r = m.stageTolerance({
+        stage: {
+          format: 'loopwright-stage',
+          version: 1,
+          kind: 'non-inverting',
+          amplifier: {
+            a0: { min: '200k', typ: '1M', max: '5M' },
+            gbwHz: '1M',
+            polesHz: [15e6],
+            rd: '10M',
+            cd: '3p',
+            rcm: '1G',
+            ccm: '4p',
+            ro: '50',
+            slewRate: '0.5M',
+            voltageNoise: { density: '9n', cornerHz: '10' },
+            currentNoise: { density: '0.2p', cornerHz: '50' },
+          },
+          spreadPoint: 'typ',
+          parts: { rf: '100k', rg: '1k', rs: '350', rl: '10k', cl: '1n' },
+        },
+        parts: [
+          grade('rf', 0.1, 25),
+          grade('rg', 0.1, 25),
+          grade('rs', 1, 25),
+          grade('rl', 1, 25),
+          grade('cl', 5, 30),
+        ],
+        temperatureC,
+        spec: [
+          { figure: 'gainErrorPercent', freqHz: 1, target: 101, lower: -1, upper: 1 },
+          { figure: 'phaseMarginDeg', lower: 45 },
+          { figure: 'outputNoiseRms', bandHz: [0.1, 10], upper: 20e-6 },
+        ],
+        trials,
+        seed: 1,
+      });
+      return {
+        yield: m.formatPlain(r.monteCarlo.yieldFraction * 100, '%', 4),
+        pmMin: m.formatPlain(r.worstCase.figures[1].min.value, '°', 4),
+        perLimit: r.monteCarlo.limits.map((l) => m.formatPlain(l.yieldFraction * 100, '%', 4)),
+      };
+    },
+    { temperatureC, trials },
+  );
+}
+
+/** What the view shows of its tolerance answers, in the terms of demoTolerance. */
+async function shownTolerance(page) {
+  const pmRow = page.locator('#stage-worst tbody tr[data-figure="phaseMarginDeg"]:not(.stage-at)');
+  return {
+    yield: await page.locator('#stage-out-yield').textContent(),
+    pmMin: await pmRow.locator('td').nth(2).textContent(),
+    perLimit: await page
+      .locator('#stage-yields tbody tr')
+      .evaluateAll((rows) => rows.map((r) => r.cells[1].textContent)),
+  };
+}
+
+test('the tolerance run leaves the page free: typing while it runs, cancel, a change restarts it, the API’s answers', async () => {
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    width: 1366,
+    height: 900,
+  });
+  await page.click('#tab-stage');
+  await page.waitForSelector('html[data-stage="ready"]');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.equal(await page.getAttribute('#stage-tolerances', 'data-thread'), 'worker');
+  // The demo's 200 trials over 0 … 70 °C are stageTolerance's.
+  assert.deepEqual(await shownTolerance(page), await demoTolerance(page, [0, 70], 200));
+
+  // 10 000 trials: while they run, the page takes typing (a run on the page thread
+  // would hold the keys until it ends, and the run would be over by then).
+  await setField(page, 'mcTrials', '10000');
+  await page.waitForSelector('#stage-tolerances[data-state="running"]');
+  await page.click('#stage-block-name');
+  await page.keyboard.press('Control+A');
+  await page.keyboard.type('front_end');
+  const during = await page.evaluate(() => ({
+    typed: document.querySelector('#stage-block-name').value,
+    state: document.querySelector('#stage-tolerances').dataset.state,
+  }));
+  assert.deepEqual(during, { typed: 'front_end', state: 'running' });
+  // Progress: the worst case and the sensitivities are done before the Monte Carlo.
+  await page.waitForFunction(
+    () => document.querySelector('#stage-tolerance-progress progress')?.value >= 2,
+  );
+  assert.equal(
+    await page.locator('#stage-tolerance-progress .stage-tolerance-step').textContent(),
+    '2 of 3 done (worst case, sensitivities); Monte Carlo of 10000 trials running…',
+  );
+  await page.screenshot({ path: join(ARTIFACTS, 'stage-tolerance-running-1366.png') });
+  // Cancel: the run ends, the other answers stay, and it can be run again.
+  await page.click('#stage-tolerance-cancel');
+  await page.waitForSelector('#stage-tolerances[data-state="cancelled"]');
+  assert.equal(await page.locator('#stage-tolerance-progress').count(), 0);
+  assert.ok(await page.locator('#stage-tolerance-run').isVisible());
+  assert.notEqual(await shown(page, 'margin-pm'), '');
+  // A changed stage starts a new run; a change during it ends that one for the next.
+  await setField(page, 'tempHighC', '60');
+  await page.waitForSelector('#stage-tolerances[data-state="running"]');
+  await setField(page, 'tempLowC', '-10');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]', { timeout: 180000 });
+  assert.equal(await page.locator('#stage-tolerance-message').count(), 0);
+  const api = await demoTolerance(page, [-10, 60], 10000);
+  assert.deepEqual(await shownTolerance(page), api);
+  // The report of the stage on screen carries the same run.
+  await page.click('#stage-report-button');
+  assert.equal(await page.locator('#report-out-yield').textContent(), api.yield);
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+test('the tolerance worker runs in the single file from file:// (a Blob worker from the inlined wasm)', async () => {
+  const served = await openPage(env.browser, env.url);
+  const api = await demoTolerance(served.page, [0, 70], 200);
+  await served.context.close();
+  const file = pathToFileURL(join(ROOT, 'dist', 'loopwright.html')).href;
+  const { context, page, problems } = await openPage(env.browser, file, {
+    width: 390,
+    height: 844,
+  });
+  await page.click('#tab-stage');
+  await page.waitForSelector('html[data-stage="ready"]');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.equal(await page.getAttribute('#stage-tolerances', 'data-thread'), 'worker');
+  assert.deepEqual(await shownTolerance(page), api);
+  // Cancel and run again there too.
+  await setField(page, 'mcTrials', '5000');
+  await page.waitForSelector('#stage-tolerance-cancel');
+  await page.click('#stage-tolerance-cancel');
+  await page.waitForSelector('#stage-tolerances[data-state="cancelled"]');
+  await page.locator('#stage-tolerances').screenshot({
+    path: join(ARTIFACTS, 'stage-tolerance-cancelled-390.png'),
+  });
+  await setField(page, 'mcTrials', '200');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.deepEqual(await shownTolerance(page), api);
   assert.deepEqual(problems, []);
   await context.close();
 });

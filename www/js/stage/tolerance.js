@@ -122,8 +122,41 @@ export function toleranceAmplifier(n) {
  * `spec` and `analyses` narrow what is asked (the design's candidates ask only for
  * the gain's worst case and yield).
  */
-export function stageTolerance(
-  api,
+export function stageTolerance(api, doc, n, settings = {}) {
+  const options = toleranceOptions(doc, n, settings);
+  try {
+    return { options, ...api.stageTolerance(options) };
+  } catch (err) {
+    throw withField(err, options, n);
+  }
+}
+
+/**
+ * The same answer as stageTolerance above, computed by `runner`
+ * (tolerance-run.js: a worker, so the page stays free); `onDone` hears which
+ * analyses are done. Rejects with the core's error (its `field` set) or as
+ * Cancelled.
+ */
+export async function stageToleranceRun(runner, doc, n, { onDone } = {}) {
+  const options = toleranceOptions(doc, n);
+  try {
+    return { options, ...(await runner.run(options, { onDone })) };
+  } catch (err) {
+    throw err.name === 'Cancelled' ? err : withField(err, options, n);
+  }
+}
+
+/** `err` of stageTolerance with the view's field behind its `param`. */
+function withField(err, options, n) {
+  err.field = fieldOfToleranceParam(err.param, options.parts, n);
+  return err;
+}
+
+/**
+ * The options of stageTolerance for the stage document `doc` and the view's numbers
+ * `n` (throws, naming the field, when an amplifier spread has no typ).
+ */
+export function toleranceOptions(
   doc,
   n,
   { spec = toleranceSpec(n), analyses, trials = n.mcTrials ?? 1000 } = {},
@@ -141,12 +174,7 @@ export function stageTolerance(
   };
   if (analyses) options.analyses = analyses;
   if (options.amplifierSpread === undefined) delete options.amplifierSpread;
-  try {
-    return { options, ...api.stageTolerance(options) };
-  } catch (err) {
-    err.field = fieldOfToleranceParam(err.param, options.parts, n);
-    throw err;
-  }
+  return options;
 }
 
 /**
