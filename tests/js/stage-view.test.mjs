@@ -742,6 +742,12 @@ test('the amplifier’s GBW and Ro spreads: typed in the tolerance section, vari
   await page.locator('.stage-group-tolerance').screenshot({
     path: join(ARTIFACTS, 'stage-amplifier-spreads-1366.png'),
   });
+  await page.setViewportSize({ width: 390, height: 844 });
+  await page.locator('.stage-group-tolerance').screenshot({
+    path: join(ARTIFACTS, 'stage-amplifier-spreads-390.png'),
+  });
+  const overflow = await page.evaluate(() => document.documentElement.scrollWidth - innerWidth);
+  assert.ok(overflow <= 0, `page wider than the phone by ${overflow} px`);
   assert.deepEqual(problems, []);
   await context.close();
 });
@@ -890,7 +896,12 @@ test('the tolerance worker runs in the single file from file:// (a Blob worker f
   assert.deepEqual(await shownTolerance(page), api);
   // Cancel and run again there too.
   await setField(page, 'mcTrials', '5000');
-  await page.waitForSelector('#stage-tolerance-cancel');
+  await page.waitForFunction(
+    () => document.querySelector('#stage-tolerance-progress progress')?.value >= 1,
+  );
+  await page.locator('#stage-tolerances').screenshot({
+    path: join(ARTIFACTS, 'stage-tolerance-running-390.png'),
+  });
   await page.click('#stage-tolerance-cancel');
   await page.waitForSelector('#stage-tolerances[data-state="cancelled"]');
   await page.locator('#stage-tolerances').screenshot({
