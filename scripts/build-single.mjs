@@ -30,6 +30,22 @@ const wasm = {
 const sheetfilesWasm = readFileSync(join(root, 'www', 'pkg', 'sheetfiles', 'loopwright_bg.wasm'));
 const sheetfilesGz = gzipSync(sheetfilesWasm, { level: 9 });
 
+// The Stage view's tolerance worker (www/js/stage/tolerance-worker.js and the full
+// core's glue), bundled on its own as a classic script: the page starts it from a
+// Blob of this text (the CSP allows blob: workers only; a module worker from a Blob
+// does not start from file://) and hands it the compiled full module, so the glue's
+// import.meta (only read when no module is given) is never used.
+const workerBundle = await esbuild.build({
+  entryPoints: [join(root, 'www', 'js', 'stage', 'tolerance-worker.js')],
+  bundle: true,
+  format: 'iife',
+  minify: true,
+  write: false,
+  legalComments: 'none',
+  logLevel: 'error',
+});
+const workerText = workerBundle.outputFiles[0].text;
+
 const inlineWasm = {
   name: 'inline-wasm',
   setup(build) {
@@ -50,6 +66,9 @@ function decode(base64) {
 }
 export function wasmSource(name) {
   return decode(WASM_BASE64[name]);
+}
+export function toleranceWorkerSource() {
+  return ${JSON.stringify(workerText)};
 }
 export async function sheetfilesSource() {
   const block = document.getElementById('loopwright-sheetfiles-wasm');
@@ -99,11 +118,11 @@ replaceOnce(
 html = html.replace(
   /<meta http-equiv="Content-Security-Policy" content="[^"]*">/,
   () =>
-    `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; script-src ${hash(script)} 'wasm-unsafe-eval'; style-src ${hash(style)}; img-src data:; object-src 'none'; base-uri 'none'; form-action 'none'">`,
+    `<meta http-equiv="Content-Security-Policy" content="default-src 'none'; script-src ${hash(script)} 'wasm-unsafe-eval'; worker-src blob:; style-src ${hash(style)}; img-src data:; object-src 'none'; base-uri 'none'; form-action 'none'">`,
 );
 
 mkdirSync(join(root, 'dist'), { recursive: true });
 writeFileSync(join(root, 'dist', 'loopwright.html'), html);
 console.error(
-  `build-single: dist/loopwright.html ${Buffer.byteLength(html)} bytes (wasm ${wasm.lite.length} + ${wasm.full.length} bytes inlined, the spreadsheet-file wasm ${sheetfilesWasm.length} gzipped to ${sheetfilesGz.length})`,
+  `build-single: dist/loopwright.html ${Buffer.byteLength(html)} bytes (wasm ${wasm.lite.length} + ${wasm.full.length} bytes inlined, the tolerance worker's script ${Buffer.byteLength(workerText)} bytes, the spreadsheet-file wasm ${sheetfilesWasm.length} gzipped to ${sheetfilesGz.length})`,
 );

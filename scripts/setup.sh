@@ -66,8 +66,8 @@ fi
 
 VENV=${LOOPWRIGHT_VENV:-$HOME/.cache/loopwright/venv}
 if [ "${LOOPWRIGHT_NEED_REFERENCE:-$need_browsers}" = 1 ] && \
-   ! "$VENV/bin/python" -c "import sympy, numpy, scipy, control, eseries, mpmath" >/dev/null 2>&1; then
-  say "creating the reference-oracle venv in $VENV (sympy, numpy, scipy, control, eseries, mpmath)"
+   ! "$VENV/bin/python" -c "import sympy, numpy, scipy, control, eseries, mpmath, pypdf" >/dev/null 2>&1; then
+  say "creating the reference-oracle venv in $VENV (sympy, numpy, scipy, control, eseries, mpmath; pypdf reads the printed report's text)"
   python3 -m venv "$VENV"
   "$VENV/bin/pip" install --quiet --disable-pip-version-check -r tests/reference/requirements.txt
 fi

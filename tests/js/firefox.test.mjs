@@ -101,3 +101,27 @@ test('Firefox: the stage view computes a typed stage and its margin is the APIâ€
     'gain 11 within 1 % of the spec',
   );
 });
+
+test('Firefox: the stage viewâ€™s tolerance run is in a worker, served and from file://, with the same answers', async () => {
+  const ff = env.browser;
+  const shown = [];
+  for (const address of [env.url, pathToFileURL(join(ROOT, 'dist', 'loopwright.html')).href]) {
+    await ff.go(address);
+    await ff.waitFor("return document.documentElement.dataset.ready === 'true'");
+    await ff.run("document.getElementById('tab-stage').click();");
+    await ff.waitFor("return document.documentElement.dataset.stage === 'ready'");
+    await ff.waitFor(
+      "return document.getElementById('stage-tolerances')?.dataset.state === 'ready'",
+    );
+    assert.equal(
+      await ff.run("return document.getElementById('stage-tolerances').dataset.thread"),
+      'worker',
+      address,
+    );
+    shown.push(await ff.text('#stage-out-yield'));
+  }
+  // The module worker of the served page and the Blob worker of the single file run
+  // the same core on the same stage: the same yield to the last digit shown.
+  assert.equal(shown[0], shown[1]);
+  assert.match(shown[0], /%$/);
+});

@@ -616,9 +616,51 @@ test('packing (Node, no browser): round trip, and damaged text named', async () 
   await assert.rejects(unpack('________'), /does not decompress/);
 });
 
+test('the sheet an earlier version kept aside stays stored until the list holds it (Node, no browser)', async () => {
+  // A page closed while the kept sheet is being packed must not lose it: at every
+  // moment it is in storage, first under the old key, then in the replaced list.
+  const items = new Map();
+  globalThis.localStorage = {
+    getItem: (k) => (items.has(k) ? items.get(k) : null),
+    setItem: (k, v) => items.set(k, String(v)),
+    removeItem: (k) => items.delete(k),
+  };
+  try {
+    const { createReplaced } = await import('../../www/js/sheet/replaced.js');
+    const { LEGACY_BACKUP_KEY, REPLACED_KEY } = await import('../../www/js/sheet/storage.js');
+    const kept = JSON.stringify({ format: 'loopwright-sheet', version: 1, cells: { A1: 'kept' } });
+    items.set(LEGACY_BACKUP_KEY, kept);
+    const replaced = createReplaced();
+    // Packing is under way (asynchronous): the old copy is still where it was.
+    assert.equal(items.get(LEGACY_BACKUP_KEY), kept);
+    assert.equal(items.has(REPLACED_KEY), false);
+    const entry = await replaced.ready;
+    assert.equal(entry.stored, true);
+    assert.equal(items.has(LEGACY_BACKUP_KEY), false);
+    const stored = JSON.parse(items.get(REPLACED_KEY));
+    assert.equal(stored.length, 1);
+    assert.equal(stored[0].first, 'kept');
+    // With no room for the list, the old copy stays for the next visit.
+    items.clear();
+    items.set(LEGACY_BACKUP_KEY, kept);
+    globalThis.localStorage.setItem = () => {
+      throw Object.assign(new Error('full'), { name: 'QuotaExceededError' });
+    };
+    const full = createReplaced();
+    assert.equal((await full.ready).stored, false);
+    assert.equal(items.get(LEGACY_BACKUP_KEY), kept);
+  } finally {
+    delete globalThis.localStorage;
+  }
+});
+
 test('the sheet an earlier version kept aside before a share link joins the replaced sheets', async () => {
   const context = await env.browser.newContext();
   const { page, problems } = await openSheet(context);
+  // The worksheet of this first page mounts once the full module is in: wait for it,
+  // so that the kept sheet is read by the reloaded page only (a first page that
+  // mounts while reloading is the race the Node test above covers).
+  await page.waitForSelector('html[data-sheet="ready"]');
   const kept = JSON.stringify({
     format: 'loopwright-sheet',
     version: 1,

@@ -11,7 +11,12 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { join } from 'node:path';
-import { servedPageTests, openPage, ARTIFACTS } from './browser.mjs';
+import { homedir } from 'node:os';
+import { writeFile } from 'node:fs/promises';
+import { execFile } from 'node:child_process';
+import { promisify } from 'node:util';
+import { pathToFileURL } from 'node:url';
+import { servedPageTests, openPage, ARTIFACTS, ROOT } from './browser.mjs';
 
 const env = servedPageTests();
 
@@ -35,6 +40,26 @@ async function setField(page, key, text) {
 async function click(page, selector) {
   await page.click(selector);
   actions += 1;
+}
+
+/**
+ * The text of a PDF as a reader gets it: pypdf (pinned in tests/reference/
+ * requirements.txt, installed in the reference venv by scripts/setup.sh) run as an
+ * asynchronous child process, so the test's event loop and the browser it drives go
+ * on meanwhile. Runs of white space become one space.
+ */
+async function pdfText(path) {
+  const venv = process.env.LOOPWRIGHT_VENV ?? join(homedir(), '.cache', 'loopwright', 'venv');
+  const { stdout } = await promisify(execFile)(
+    join(venv, 'bin', 'python'),
+    [
+      '-c',
+      'import sys, pypdf; print("\\n".join(p.extract_text() for p in pypdf.PdfReader(sys.argv[1]).pages))',
+      path,
+    ],
+    { encoding: 'utf8', timeout: 60000 },
+  );
+  return stdout.replace(/\s+/g, ' ');
 }
 
 const shown = (page, id) => page.locator(`#stage-out-${id}`).textContent();
@@ -273,6 +298,55 @@ test('the gain-48 front end entered by keyboard: margins, noise and report match
   assert.equal(pdf.subarray(0, 5).toString(), '%PDF-');
   const pages = (pdf.toString('latin1').match(/\/Type\s*\/Page[^s]/g) ?? []).length;
   assert.ok(pages >= 2 && pages <= 6, `${pages} pages`);
+  // The PDF's own text (what the browser printed, not the page's DOM): title, inputs,
+  // results with their verdicts, cautions, core version, date, and the API's margin.
+  const pdfPath = join(ARTIFACTS, 'stage-report.pdf');
+  await writeFile(pdfPath, pdf);
+  const inPdf = await pdfText(pdfPath);
+  const squash = (t) => t.replace(/\s+/g, ' ').trim();
+  assert.match(inPdf, /Stage design report/);
+  assert.match(inPdf, /Inputs and spec/);
+  for (const [label, typed] of [
+    ['Gain |Af|', '48'],
+    ['Gain tolerance', '0.5%'],
+    ['Rs (source)', '2k'],
+    ['Further poles', '20M'],
+    ['Temperature from', '-40'],
+  ])
+    assert.ok(inPdf.includes(`${label} ${typed}`), `the input ${label} ${typed} in the PDF`);
+  assert.match(inPdf, /Results against the spec/);
+  const verdicts = await page
+    .locator('#stage-report .report-checks tbody tr')
+    .evaluateAll((rows) =>
+      rows.map((r) => [...r.cells].map((c) => c.textContent)).map((c) => [c[0], c[3]]),
+    );
+  assert.ok(verdicts.length >= 5, `${verdicts.length} checks`);
+  assert.ok(verdicts.some(([, v]) => v === 'pass'));
+  // Each check in order, and its own verdict between it and the next check.
+  const starts = [];
+  for (const [what] of verdicts) {
+    const at = inPdf.indexOf(squash(what), (starts.at(-1) ?? -1) + 1);
+    assert.ok(at >= 0, `the check "${what}" in the PDF`);
+    starts.push(at);
+  }
+  verdicts.forEach(([what, verdict], i) => {
+    const row = inPdf.slice(starts[i] + squash(what).length, starts[i + 1] ?? starts[i] + 200);
+    assert.match(row, new RegExp(`\\b${verdict}\\b`), `the verdict of "${what}" in the PDF`);
+    const other = verdict === 'pass' ? 'FAIL' : 'pass';
+    if (verdict !== 'shown') assert.doesNotMatch(row, new RegExp(`\\b${other}\\b`));
+  });
+  assert.ok(inPdf.includes(`Monte Carlo yield against the whole spec: ${tol.yield}`));
+  assert.match(inPdf, /Cautions/);
+  assert.match(inPdf, /check every design on the bench/);
+  assert.ok(
+    inPdf.includes(`loopwright core ${api.version}`),
+    `the core version ${api.version} in the PDF`,
+  );
+  assert.ok(inPdf.includes(new Date().toISOString().slice(0, 10)), 'the date in the PDF');
+  assert.ok(
+    inPdf.includes(`Phase margin (at the A0 point analysed) ${api.pm}`),
+    `the API's phase margin ${api.pm} in the PDF`,
+  );
   await page.screenshot({ path: join(ARTIFACTS, 'stage-report.png'), fullPage: true });
   await page.emulateMedia({ media: 'screen' });
 
@@ -537,6 +611,305 @@ test('every stage kind gets its tolerance answers: a transimpedance stage typed 
   await page.locator('#stage-tolerances').screenshot({
     path: join(ARTIFACTS, 'stage-tolerance-transimpedance.png'),
   });
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+test('the amplifier’s GBW and Ro spreads: typed in the tolerance section, varied by the engine, undone, reported', async () => {
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    width: 1366,
+    height: 900,
+  });
+  await page.click('#tab-stage');
+  await page.waitForSelector('html[data-stage="ready"]');
+  // The demo stage (fields.js DEMO: GBW 1 MHz, Ro 50 Ω) with a datasheet's GBW
+  // 0.7 … 1.4 MHz and Ro 30 … 80 Ω around them (figures of our own).
+  await setField(page, 'gbwMin', '0.7M');
+  await setField(page, 'gbwMax', '1.4M');
+  await setField(page, 'roMin', '30');
+  await setField(page, 'roMax', '80');
+  assert.equal(await page.locator('#stage-message').textContent(), '');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  const tol = await page.evaluate(async () => {
+    const m = await import('/pkg/loopwright.js');
+    // The demo stage as this test writes it (fields.js DEMO).
+    const stage = {
+      format: 'loopwright-stage',
+      version: 1,
+      kind: 'non-inverting',
+      amplifier: {
+        a0: { min: '200k', typ: '1M', max: '5M' },
+        gbwHz: '1M',
+        polesHz: [15e6],
+        rd: '10M',
+        cd: '3p',
+        rcm: '1G',
+        ccm: '4p',
+        ro: '50',
+        slewRate: '0.5M',
+        voltageNoise: { density: '9n', cornerHz: '10' },
+        currentNoise: { density: '0.2p', cornerHz: '50' },
+      },
+      spreadPoint: 'typ',
+      parts: { rf: '100k', rg: '1k', rs: '350', rl: '10k', cl: '1n' },
+    };
+    const grade = (part, percent, tempcoPpm) => ({
+      part,
+      tolerance: { distribution: 'uniform', percent },
+      tempcoPpm,
+    });
+    const r = m.stageTolerance({
+      stage,
+      parts: [
+        grade('rf', 0.1, 25),
+        grade('rg', 0.1, 25),
+        grade('rs', 1, 25),
+        grade('rl', 1, 25),
+        grade('cl', 5, 30),
+      ],
+      amplifierSpread: {
+        gbwHz: { min: 0.7e6, typ: 1e6, max: 1.4e6 },
+        ro: { min: 30, typ: 50, max: 80 },
+      },
+      temperatureC: [0, 70],
+      spec: [
+        { figure: 'gainErrorPercent', freqHz: 1, target: 101, lower: -1, upper: 1 },
+        { figure: 'phaseMarginDeg', lower: 45 },
+        { figure: 'outputNoiseRms', bandHz: [0.1, 10], upper: 20e-6 },
+      ],
+      trials: 200,
+      seed: 1,
+    });
+    const pm = r.worstCase.figures[1];
+    return {
+      parts: r.worstCase.parts,
+      yield: m.formatPlain(r.monteCarlo.yieldFraction * 100, '%', 4),
+      pmMin: m.formatPlain(pm.min.value, '°', 4),
+      pmMax: m.formatPlain(pm.max.value, '°', 4),
+    };
+  });
+  // The engine varied both (docs/tolerance.md: U1.gbwHz, U1.ro after A0).
+  assert.deepEqual(tol.parts.slice(-3), ['U1.a0', 'U1.gbwHz', 'U1.ro']);
+  const varied = await page.locator('#stage-tolerance-varied').textContent();
+  assert.match(varied, /GBW 700 kHz … 1\.4 MHz/);
+  assert.match(varied, /Ro 30 Ω … 80 Ω/);
+  assert.equal(await page.locator('#stage-out-yield').textContent(), tol.yield);
+  const pmRow = page.locator('#stage-worst tbody tr[data-figure="phaseMarginDeg"]:not(.stage-at)');
+  assert.equal(await pmRow.locator('td').nth(2).textContent(), tol.pmMin);
+  assert.equal(await pmRow.locator('td').nth(3).textContent(), tol.pmMax);
+  // GBW and Ro take part in the sensitivities.
+  assert.equal(await page.locator('#stage-sensitivity tr[data-part="U1.gbwHz"]').count(), 3);
+  assert.equal(await page.locator('#stage-sensitivity tr[data-part="U1.ro"]').count(), 3);
+
+  // Undo takes the Ro max back: Ro varies 30 Ω … its typ 50 Ω.
+  await page.click('#stage-undo');
+  assert.equal(await page.inputValue('#stage-roMax'), '');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.match(await page.locator('#stage-tolerance-varied').textContent(), /Ro 30 Ω … 50 Ω/);
+  await page.click('#stage-redo');
+  assert.equal(await page.inputValue('#stage-roMax'), '80');
+
+  // A spread the core refuses (min above typ) is named at its field.
+  await setField(page, 'gbwMin', '2M');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.match(
+    await page.locator('#stage-tolerance-message').textContent(),
+    /^Gain-bandwidth min: /,
+  );
+  assert.equal(await page.getAttribute('#stage-gbwMin', 'aria-invalid'), 'true');
+  await page.click('#stage-undo');
+  // With no Ro, the Ro spread has no typ: said at its field, no maths in the page.
+  await setField(page, 'ro', '');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.match(
+    await page.locator('#stage-tolerance-message').textContent(),
+    /^Ro min: give the amplifier’s Ro \(output\)/,
+  );
+  await page.click('#stage-undo');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.equal(await page.locator('#stage-tolerance-message').count(), 0);
+
+  // The report carries the fields and the same answers.
+  await page.click('#stage-report-button');
+  const report = await page.locator('#stage-report').textContent();
+  for (const text of ['Gain-bandwidth min0.7M', 'Gain-bandwidth max1.4M', 'Ro min30', 'Ro max80'])
+    assert.ok(report.includes(text), `${text} in the report`);
+  assert.match(
+    await page.locator('#report-tolerance-varied').textContent(),
+    /GBW 700 kHz … 1\.4 MHz.*Ro 30 Ω … 80 Ω/,
+  );
+  assert.equal(await page.locator('#report-out-yield').textContent(), tol.yield);
+  await page.locator('.stage-group-tolerance').screenshot({
+    path: join(ARTIFACTS, 'stage-amplifier-spreads-1366.png'),
+  });
+  await page.setViewportSize({ width: 390, height: 844 });
+  await page.locator('.stage-group-tolerance').screenshot({
+    path: join(ARTIFACTS, 'stage-amplifier-spreads-390.png'),
+  });
+  const overflow = await page.evaluate(() => document.documentElement.scrollWidth - innerWidth);
+  assert.ok(overflow <= 0, `page wider than the phone by ${overflow} px`);
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+/**
+ * stageTolerance on the demo stage (fields.js DEMO, written here as the test's own
+ * stage document) with the view's grades and spec, `temperatureC` and `trials`,
+ * called on the page thread of the served page: the figures the view must show.
+ */
+function demoTolerance(page, temperatureC, trials) {
+  return page.evaluate(
+    async ({ temperatureC, trials }) => {
+      const m = await import('/pkg/loopwright.js');
+      await m.default(); // started already when the page has loaded the full core
+      const grade = (part, percent, tempcoPpm) => ({
+        part,
+        tolerance: { distribution: 'uniform', percent },
+        tempcoPpm,
+      });
+      const r = m.stageTolerance({
+        stage: {
+          format: 'loopwright-stage',
+          version: 1,
+          kind: 'non-inverting',
+          amplifier: {
+            a0: { min: '200k', typ: '1M', max: '5M' },
+            gbwHz: '1M',
+            polesHz: [15e6],
+            rd: '10M',
+            cd: '3p',
+            rcm: '1G',
+            ccm: '4p',
+            ro: '50',
+            slewRate: '0.5M',
+            voltageNoise: { density: '9n', cornerHz: '10' },
+            currentNoise: { density: '0.2p', cornerHz: '50' },
+          },
+          spreadPoint: 'typ',
+          parts: { rf: '100k', rg: '1k', rs: '350', rl: '10k', cl: '1n' },
+        },
+        parts: [
+          grade('rf', 0.1, 25),
+          grade('rg', 0.1, 25),
+          grade('rs', 1, 25),
+          grade('rl', 1, 25),
+          grade('cl', 5, 30),
+        ],
+        temperatureC,
+        spec: [
+          { figure: 'gainErrorPercent', freqHz: 1, target: 101, lower: -1, upper: 1 },
+          { figure: 'phaseMarginDeg', lower: 45 },
+          { figure: 'outputNoiseRms', bandHz: [0.1, 10], upper: 20e-6 },
+        ],
+        trials,
+        seed: 1,
+      });
+      return {
+        yield: m.formatPlain(r.monteCarlo.yieldFraction * 100, '%', 4),
+        pmMin: m.formatPlain(r.worstCase.figures[1].min.value, '°', 4),
+        perLimit: r.monteCarlo.limits.map((l) => m.formatPlain(l.yieldFraction * 100, '%', 4)),
+      };
+    },
+    { temperatureC, trials },
+  );
+}
+
+/** What the view shows of its tolerance answers, in the terms of demoTolerance. */
+async function shownTolerance(page) {
+  const pmRow = page.locator('#stage-worst tbody tr[data-figure="phaseMarginDeg"]:not(.stage-at)');
+  return {
+    yield: await page.locator('#stage-out-yield').textContent(),
+    pmMin: await pmRow.locator('td').nth(2).textContent(),
+    perLimit: await page
+      .locator('#stage-yields tbody tr')
+      .evaluateAll((rows) => rows.map((r) => r.cells[1].textContent)),
+  };
+}
+
+test('the tolerance run leaves the page free: typing while it runs, cancel, a change restarts it, the API’s answers', async () => {
+  const { context, page, problems } = await openPage(env.browser, env.url, {
+    width: 1366,
+    height: 900,
+  });
+  await page.click('#tab-stage');
+  await page.waitForSelector('html[data-stage="ready"]');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.equal(await page.getAttribute('#stage-tolerances', 'data-thread'), 'worker');
+  // The demo's 200 trials over 0 … 70 °C are stageTolerance's.
+  assert.deepEqual(await shownTolerance(page), await demoTolerance(page, [0, 70], 200));
+
+  // 10 000 trials: while they run, the page takes typing (a run on the page thread
+  // would hold the keys until it ends, and the run would be over by then).
+  await setField(page, 'mcTrials', '10000');
+  await page.waitForSelector('#stage-tolerances[data-state="running"]');
+  await page.click('#stage-block-name');
+  await page.keyboard.press('Control+A');
+  await page.keyboard.type('front_end');
+  const during = await page.evaluate(() => ({
+    typed: document.querySelector('#stage-block-name').value,
+    state: document.querySelector('#stage-tolerances').dataset.state,
+  }));
+  assert.deepEqual(during, { typed: 'front_end', state: 'running' });
+  // Progress: the worst case and the sensitivities are done before the Monte Carlo.
+  await page.waitForFunction(
+    () => document.querySelector('#stage-tolerance-progress progress')?.value >= 2,
+  );
+  assert.equal(
+    await page.locator('#stage-tolerance-progress .stage-tolerance-step').textContent(),
+    '2 of 3 done (worst case, sensitivities); Monte Carlo of 10000 trials running…',
+  );
+  await page.screenshot({ path: join(ARTIFACTS, 'stage-tolerance-running-1366.png') });
+  // Cancel: the run ends, the other answers stay, and it can be run again.
+  await page.click('#stage-tolerance-cancel');
+  await page.waitForSelector('#stage-tolerances[data-state="cancelled"]');
+  assert.equal(await page.locator('#stage-tolerance-progress').count(), 0);
+  assert.ok(await page.locator('#stage-tolerance-run').isVisible());
+  assert.notEqual(await shown(page, 'margin-pm'), '');
+  // A changed stage starts a new run; a change during it ends that one for the next.
+  await setField(page, 'tempHighC', '60');
+  await page.waitForSelector('#stage-tolerances[data-state="running"]');
+  await setField(page, 'tempLowC', '-10');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]', { timeout: 180000 });
+  assert.equal(await page.locator('#stage-tolerance-message').count(), 0);
+  const api = await demoTolerance(page, [-10, 60], 10000);
+  assert.deepEqual(await shownTolerance(page), api);
+  // The report of the stage on screen carries the same run.
+  await page.click('#stage-report-button');
+  assert.equal(await page.locator('#report-out-yield').textContent(), api.yield);
+  assert.deepEqual(problems, []);
+  await context.close();
+});
+
+test('the tolerance worker runs in the single file from file:// (a Blob worker from the inlined wasm)', async () => {
+  const served = await openPage(env.browser, env.url);
+  const api = await demoTolerance(served.page, [0, 70], 200);
+  await served.context.close();
+  const file = pathToFileURL(join(ROOT, 'dist', 'loopwright.html')).href;
+  const { context, page, problems } = await openPage(env.browser, file, {
+    width: 390,
+    height: 844,
+  });
+  await page.click('#tab-stage');
+  await page.waitForSelector('html[data-stage="ready"]');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.equal(await page.getAttribute('#stage-tolerances', 'data-thread'), 'worker');
+  assert.deepEqual(await shownTolerance(page), api);
+  // Cancel and run again there too.
+  await setField(page, 'mcTrials', '5000');
+  await page.waitForFunction(
+    () => document.querySelector('#stage-tolerance-progress progress')?.value >= 1,
+  );
+  await page.locator('#stage-tolerances').screenshot({
+    path: join(ARTIFACTS, 'stage-tolerance-running-390.png'),
+  });
+  await page.click('#stage-tolerance-cancel');
+  await page.waitForSelector('#stage-tolerances[data-state="cancelled"]');
+  await page.locator('#stage-tolerances').screenshot({
+    path: join(ARTIFACTS, 'stage-tolerance-cancelled-390.png'),
+  });
+  await setField(page, 'mcTrials', '200');
+  await page.waitForSelector('#stage-tolerances[data-state="ready"]');
+  assert.deepEqual(await shownTolerance(page), api);
   assert.deepEqual(problems, []);
   await context.close();
 });

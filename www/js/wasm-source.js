@@ -14,3 +14,12 @@ export function wasmSource(_name) {
 export async function sheetfilesSource() {
   return undefined;
 }
+
+/**
+ * The Stage view's tolerance worker as script text (a Blob worker): undefined here,
+ * where www/js/stage/tolerance-worker.js is started as a module from its URL; the
+ * single file returns the worker bundled, as it has no file beside it to start.
+ */
+export function toleranceWorkerSource() {
+  return undefined;
+}

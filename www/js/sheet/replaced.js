@@ -39,10 +39,18 @@ export function describe(text) {
  */
 export function createReplaced() {
   let entries = store.readReplaced().map((e) => ({ ...e, text: null, stored: true }));
-  const legacy = store.takeLegacyBackup();
-  const ready = legacy
-    ? add(legacy, 'kept before a share link (earlier version of the page)')
-    : null;
+  // What an earlier version kept aside joins the list; it leaves its old place only
+  // once the list holds it in storage (packing it is asynchronous: a page closed or
+  // reloaded meanwhile finds it where it was). Not stored for want of room, it stays
+  // there too. An empty sheet, or one the list already has, is simply dropped.
+  const legacy = store.readLegacyBackup();
+  const ready =
+    legacy === null
+      ? null
+      : add(legacy, 'kept before a share link (earlier version of the page)').then((entry) => {
+          if (entry === null || entry.stored) store.dropLegacyBackup();
+          return entry;
+        });
 
   // How many entries may take storage: lowered when the autosave needs the room.
   let storable = REPLACED_KEPT;

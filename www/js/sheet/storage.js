@@ -155,11 +155,18 @@ export function writeReplaced(list) {
   return stored;
 }
 
-/** The sheet an earlier version kept aside before a share link, taken out of storage. */
-export function takeLegacyBackup() {
-  const text = get(LEGACY_BACKUP_KEY);
-  if (text !== null) remove(LEGACY_BACKUP_KEY);
-  return text;
+/**
+ * The sheet an earlier version kept aside before a share link, or null. It stays in
+ * storage until `dropLegacyBackup()`: the caller drops it only once it is stored in
+ * the replaced list, so a page closed in between does not lose it.
+ */
+export function readLegacyBackup() {
+  return get(LEGACY_BACKUP_KEY);
+}
+
+/** Take the earlier version's kept sheet out of storage (it is stored elsewhere now). */
+export function dropLegacyBackup() {
+  remove(LEGACY_BACKUP_KEY);
 }
 
 export function download(text, name, type) {

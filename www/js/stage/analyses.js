@@ -47,6 +47,10 @@ function numbers(api, v) {
     'capacitorTolerance',
     'capacitorTempco',
     'sourceLoadTolerance',
+    'gbwMin',
+    'gbwMax',
+    'roMin',
+    'roMax',
     'tempLowC',
     'tempHighC',
     'mcTrials',
@@ -166,7 +170,7 @@ export function analyseStage(api, v, { deferTolerance = false } = {}) {
 }
 
 /** The spec's checks of `r` as it stands (the tolerance rows once `r.tolerance` is in). */
-function withChecks(r) {
+export function withChecks(r) {
   r.checks = checks(r.numbers, r);
   return r;
 }

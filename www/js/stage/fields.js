@@ -76,6 +76,12 @@ export const FIELDS = [
   },
   { key: 'capacitorTempco', group: 'tolerance', label: 'Capacitor tempco', unit: 'ppm/K' },
   { key: 'sourceLoadTolerance', group: 'tolerance', label: 'Rs and Rl tolerance', unit: '%' },
+  // The amplifier's GBW and Ro spreads: min and max here, typ the amplifier's own
+  // Gain-bandwidth and Ro fields (the core checks that typ is the model's figure).
+  { key: 'gbwMin', group: 'tolerance', label: 'Gain-bandwidth min', unit: 'Hz' },
+  { key: 'gbwMax', group: 'tolerance', label: 'Gain-bandwidth max', unit: 'Hz' },
+  { key: 'roMin', group: 'tolerance', label: 'Ro min', unit: 'Ω' },
+  { key: 'roMax', group: 'tolerance', label: 'Ro max', unit: 'Ω' },
   { key: 'tempLowC', group: 'tolerance', label: 'Temperature from', unit: '°C' },
   { key: 'tempHighC', group: 'tolerance', label: 'Temperature to', unit: '°C' },
   { key: 'mcTrials', group: 'tolerance', label: 'Monte Carlo trials', unit: '' },
@@ -163,6 +169,11 @@ export const DEMO = {
   capacitorTolerance: '5%',
   capacitorTempco: '30',
   sourceLoadTolerance: '1%',
+  // The amplifier's GBW and Ro spreads: left empty, both are exact at their typ.
+  gbwMin: '',
+  gbwMax: '',
+  roMin: '',
+  roMax: '',
   tempLowC: '0',
   tempHighC: '70',
   // Each trial solves the stage at both temperatures (the phase margin takes ~4 ms a

@@ -139,9 +139,17 @@ export function renderReport(host, api, r, values, { date = new Date() } = {}) {
       summary.flatMap(([k, v]) => [el('dt', {}, k), el('dd', {}, v)]),
     ),
     el('h3', {}, 'Tolerance: worst case, Monte Carlo, sensitivity'),
-    ...(r.tolerance.error
-      ? [el('p', { class: 'card-message' }, r.tolerance.error.message)]
-      : toleranceSection(r.tolerance, { prefix: 'report' })),
+    ...(r.tolerance === null
+      ? [
+          el(
+            'p',
+            { class: 'result-table-note', id: 'report-tolerance-pending' },
+            'Being computed: the report is filled in when the run is done.',
+          ),
+        ]
+      : r.tolerance.error
+        ? [el('p', { class: 'card-message' }, r.tolerance.error.message)]
+        : toleranceSection(r.tolerance, { prefix: 'report' })),
     el('h3', {}, 'Plots'),
     el(
       'div',

@@ -1,7 +1,8 @@
 // Worst case, Monte Carlo and sensitivities of a stage against its spec, from the
 // core's whole-stage tolerance engine (`stageTolerance`, docs/tolerance.md): every
 // part the stage has with its tolerance and tempco, the amplifier's A0 over its
-// min/typ/max, a temperature range, and the view's spec as the limits. Every kind of
+// min/typ/max (and its GBW and Ro when their spreads are given), a temperature
+// range, and the view's spec as the limits. Every kind of
 // stage the view offers. This file only gathers the inputs: each number shown is the
 // core's.
 
@@ -37,7 +38,8 @@ export const figureUnits = (kind) => ({
 });
 
 /** Varied quantities as the view names them (`U1.a0` is the amplifier's A0). */
-export const partWords = (name) => (name === 'U1.a0' ? 'A0' : name);
+const AMPLIFIER_WORDS = { 'U1.a0': 'A0', 'U1.gbwHz': 'GBW', 'U1.ro': 'Ro' };
+export const partWords = (name) => AMPLIFIER_WORDS[name] ?? name;
 
 /**
  * The spec of the view's numbers `n` as engine limits: the gain within its tolerance
@@ -83,6 +85,36 @@ export function toleranceParts(doc, n) {
   return parts;
 }
 
+/** The amplifier's spreads: the engine's name, the typ field and the min and max fields. */
+const AMPLIFIER_SPREADS = [
+  ['gbwHz', 'gbwHz', 'gbwMin', 'gbwMax'],
+  ['ro', 'ro', 'roMin', 'roMax'],
+];
+
+/**
+ * The amplifier's GBW and Ro spreads of the view's numbers `n` (stageTolerance's
+ * `amplifierSpread`), or undefined when neither is given: min and max as typed (a
+ * side left empty is the typ: not varied that way), typ the amplifier's own figure,
+ * as the engine requires. A spread without its typ throws, naming the field.
+ */
+export function toleranceAmplifier(n) {
+  const out = {};
+  for (const [name, typ, min, max] of AMPLIFIER_SPREADS) {
+    if (n[min] === undefined && n[max] === undefined) continue;
+    if (n[typ] === undefined) {
+      const err = new Error(
+        name === 'ro'
+          ? 'give the amplifier’s Ro (output): it is the typ of this spread'
+          : 'give the amplifier’s Gain-bandwidth: it is the typ of this spread',
+      );
+      err.field = n[min] === undefined ? max : min;
+      throw err;
+    }
+    out[name] = { min: n[min] ?? n[typ], typ: n[typ], max: n[max] ?? n[typ] };
+  }
+  return Object.keys(out).length ? out : undefined;
+}
+
 /**
  * The engine's answer for the stage document `doc` and the view's numbers `n`: the
  * options it was called with (`options`, so a test can call the core the same way)
@@ -90,8 +122,41 @@ export function toleranceParts(doc, n) {
  * `spec` and `analyses` narrow what is asked (the design's candidates ask only for
  * the gain's worst case and yield).
  */
-export function stageTolerance(
-  api,
+export function stageTolerance(api, doc, n, settings = {}) {
+  const options = toleranceOptions(doc, n, settings);
+  try {
+    return { options, ...api.stageTolerance(options) };
+  } catch (err) {
+    throw withField(err, options, n);
+  }
+}
+
+/**
+ * The same answer as stageTolerance above, computed by `runner`
+ * (tolerance-run.js: a worker, so the page stays free); `onDone` hears which
+ * analyses are done. Rejects with the core's error (its `field` set) or as
+ * Cancelled.
+ */
+export async function stageToleranceRun(runner, doc, n, { onDone } = {}) {
+  const options = toleranceOptions(doc, n);
+  try {
+    return { options, ...(await runner.run(options, { onDone })) };
+  } catch (err) {
+    throw err.name === 'Cancelled' ? err : withField(err, options, n);
+  }
+}
+
+/** `err` of stageTolerance with the view's field behind its `param`. */
+function withField(err, options, n) {
+  err.field = fieldOfToleranceParam(err.param, options.parts, n);
+  return err;
+}
+
+/**
+ * The options of stageTolerance for the stage document `doc` and the view's numbers
+ * `n` (throws, naming the field, when an amplifier spread has no typ).
+ */
+export function toleranceOptions(
   doc,
   n,
   { spec = toleranceSpec(n), analyses, trials = n.mcTrials ?? 1000 } = {},
@@ -99,6 +164,7 @@ export function stageTolerance(
   const options = {
     stage: doc,
     parts: toleranceParts(doc, n),
+    amplifierSpread: toleranceAmplifier(n),
     temperatureC: [n.tempLowC ?? 25, n.tempHighC ?? 25],
     spec,
     trials,
@@ -107,20 +173,21 @@ export function stageTolerance(
     keepFailures: 0,
   };
   if (analyses) options.analyses = analyses;
-  try {
-    return { options, ...api.stageTolerance(options) };
-  } catch (err) {
-    err.field = fieldOfToleranceParam(err.param, options.parts);
-    throw err;
-  }
+  if (options.amplifierSpread === undefined) delete options.amplifierSpread;
+  return options;
 }
 
 /**
  * The view's field behind a stageTolerance error's `param` (`parts[2].tolerance`,
  * `temperatureC`, `trials`, `spec[1].upper`), or undefined when it is the stage's.
  */
-function fieldOfToleranceParam(param, parts) {
+function fieldOfToleranceParam(param, parts, n) {
   if (typeof param !== 'string') return undefined;
+  const amp = /^amplifierSpread\.(\w+)/.exec(param);
+  if (amp) {
+    const [, , min, max] = AMPLIFIER_SPREADS.find(([name]) => name === amp[1]) ?? [];
+    return n[min] === undefined ? max : min;
+  }
   const part = /^parts\[(\d+)\]\.(\w+)/.exec(param);
   if (part) {
     const [tol, tc] = PART_GRADES[parts[Number(part[1])]?.part] ?? [];
@@ -133,7 +200,14 @@ function fieldOfToleranceParam(param, parts) {
   return undefined;
 }
 
-const unitOfPart = (name) => (name.startsWith('R') ? 'Ω' : name.startsWith('C') ? 'F' : '');
+const unitOfPart = (name) =>
+  name === 'U1.gbwHz'
+    ? 'Hz'
+    : name === 'U1.ro' || name.startsWith('R')
+      ? 'Ω'
+      : name.startsWith('C')
+        ? 'F'
+        : '';
 const partValue = (name, x) =>
   unitOfPart(name) ? formatEngineering(x, 4, unitOfPart(name)) : formatEngineering(x, 3);
 /** A figure's value as the view shows it (`units` of figureUnits). */

@@ -9,17 +9,28 @@ import { formatEngineering, formatFull, formatPlain } from '../format.js';
 import { createHistory } from '../sheet/history.js';
 import { historyKey } from '../sheet/history-controls.js';
 import { DEMO, FIELDS, GROUPS, fieldOfParam, readListField } from './fields.js';
-import { analyseStage, withTolerance } from './analyses.js';
+import { analyseStage, withChecks } from './analyses.js';
 import { stagePlots } from './plots.js';
 import { renderDesign } from './design.js';
 import { renderReport, checkValue, checkLimit, verdictText } from './report.js';
 import { toSheet, fromSheet } from './sheet-block.js';
-import { toleranceSection } from './tolerance.js';
+import { toleranceSection, stageToleranceRun } from './tolerance.js';
+import { createToleranceRunner } from './tolerance-run.js';
 
 /** How long the view waits after a change before the tolerance analyses start, ms. */
 const TOLERANCE_DELAY_MS = 150;
 
+/** The tolerance analyses as the progress line names them, in the order they run. */
+const ANALYSIS_WORDS = {
+  worstCase: 'worst case',
+  sensitivity: 'sensitivities',
+  monteCarlo: 'Monte Carlo',
+};
+
 const isTextField = (node) => node instanceof HTMLInputElement || node instanceof HTMLSelectElement;
+
+const button = (id, label, onclick) =>
+  el('button', { type: 'button', class: 'button', id, onclick }, label);
 
 function fieldInput(f, value, note) {
   const id = `stage-${f.key}`;
@@ -231,6 +242,9 @@ function resultsTsv(r) {
 export function mountStageView(host, api, { worksheet = () => null } = {}) {
   let values = { ...DEMO };
   let last = null;
+  const runner = createToleranceRunner(api);
+  /** The tolerance run of `last`: `{done: [analysis…], cancelled}` while it is not in. */
+  let run = null;
   const state = {
     saveDocument: () => JSON.stringify(values),
     loadDocument: (text) => {
@@ -309,6 +323,9 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
   let toleranceTimer = null;
   function recompute() {
     clearTimeout(toleranceTimer);
+    // A changed stage ends the run of the one it replaces.
+    runner.cancel();
+    run = null;
     let r;
     try {
       r = analyseStage(api, values, { deferTolerance: true });
@@ -330,19 +347,75 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
       ),
     );
     renderDesign(designHost, api, r, values, use);
-    if (!reportHost.hidden) {
-      withTolerance(api, r);
-      showAnswers(r);
-      renderReport(reportHost, api, r, values);
+    if (!reportHost.hidden) renderReport(reportHost, api, r, values);
+    // The tolerance analyses are the slowest: run off the page thread once the rest
+    // is shown, and only for the latest stage (a change before then starts again).
+    if (r.tolerance === null) {
+      run = { done: [], cancelled: false };
+      toleranceTimer = setTimeout(() => startTolerance(r), TOLERANCE_DELAY_MS);
     }
-    // The tolerance analyses are the slowest: run once the rest is shown, and only
-    // for the latest stage (a change before then starts again).
-    if (r.tolerance === null)
-      toleranceTimer = setTimeout(() => {
-        if (last !== r) return;
-        withTolerance(api, r);
-        showAnswers(r);
-      }, TOLERANCE_DELAY_MS);
+  }
+
+  /** Resolves when the tolerance answers of the stage on screen are in (or failed). */
+  let toleranceWaiters = [];
+  const toleranceIn = () =>
+    last && last.tolerance === null
+      ? new Promise((resolve) => toleranceWaiters.push(resolve))
+      : Promise.resolve();
+
+  /** Run the tolerance analyses of `r` in the worker, showing their progress. */
+  function startTolerance(r) {
+    if (last !== r) return;
+    clearTimeout(toleranceTimer);
+    const mine = { done: [], cancelled: false };
+    run = mine;
+    showAnswers(r);
+    const onDone = (done) => {
+      if (run !== mine) return;
+      mine.done = done;
+      showProgress();
+    };
+    stageToleranceRun(runner, r.doc, r.numbers, { onDone }).then(
+      (t) => finish(r, mine, t),
+      (err) => {
+        if (err.name === 'Cancelled') return;
+        finish(r, mine, { error: err });
+      },
+    );
+  }
+
+  function finish(r, mine, t) {
+    if (run !== mine || last !== r) return;
+    run = null;
+    r.tolerance = t;
+    withChecks(r);
+    showAnswers(r);
+    if (!reportHost.hidden) renderReport(reportHost, api, r, values);
+    const waiters = toleranceWaiters;
+    toleranceWaiters = [];
+    for (const w of waiters) w();
+  }
+
+  function cancelTolerance() {
+    if (!run || !last) return;
+    clearTimeout(toleranceTimer);
+    runner.cancel();
+    run.cancelled = true;
+    showAnswers(last);
+    note.textContent = 'Tolerance run cancelled: the answers above it stay; Run again computes it.';
+  }
+
+  /** The running line: which analyses are done, as a progress bar and in words. */
+  function showProgress() {
+    const host = checksHost.querySelector('#stage-tolerance-progress');
+    if (!host || !run) return;
+    const order = Object.keys(ANALYSIS_WORDS);
+    const bar = host.querySelector('progress');
+    bar.value = run.done.length;
+    const next = order.find((a) => !run.done.includes(a));
+    const trials = last?.numbers.mcTrials ?? 1000;
+    host.querySelector('.stage-tolerance-step').textContent =
+      `${run.done.length} of ${order.length} done${run.done.length ? ` (${run.done.map((a) => ANALYSIS_WORDS[a]).join(', ')})` : ''}; ${next === 'monteCarlo' ? `Monte Carlo of ${trials} trials` : ANALYSIS_WORDS[next]} running…`;
   }
 
   /** The checks, the summary and the tolerance answers (or that they are coming). */
@@ -355,8 +428,9 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
         class: 'stage-tolerance',
         id: 'stage-tolerances',
         'aria-label': 'tolerance',
-        'aria-busy': t === null ? 'true' : 'false',
-        'data-state': t === null ? 'running' : 'ready',
+        'aria-busy': t === null && !run?.cancelled ? 'true' : 'false',
+        'data-state': t !== null ? 'ready' : run?.cancelled ? 'cancelled' : 'running',
+        'data-thread': runner.thread,
       },
       el('h3', {}, 'Tolerance: worst case, Monte Carlo, sensitivity'),
     );
@@ -371,16 +445,38 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
       );
       if (t.error.field) markField(t.error.field);
     }
-    if (t === null)
+    if (t === null && run?.cancelled)
       section.append(
         el(
           'p',
-          { class: 'result-table-note' },
-          'Worst case, Monte Carlo and sensitivities are being computed…',
+          { class: 'result-table-note', id: 'stage-tolerance-cancelled' },
+          'Cancelled: the worst case, Monte Carlo and sensitivities of this stage were not computed. ',
+          button('stage-tolerance-run', 'Run again', () => startTolerance(r)),
+        ),
+      );
+    else if (t === null)
+      section.append(
+        el(
+          'div',
+          { class: 'stage-tolerance-progress', id: 'stage-tolerance-progress' },
+          el(
+            'p',
+            { class: 'result-table-note' },
+            'Worst case, sensitivities and Monte Carlo are being computed (off the page: the fields stay live): ',
+            el('progress', {
+              max: Object.keys(ANALYSIS_WORDS).length,
+              value: run?.done.length ?? 0,
+              'aria-label': 'tolerance analyses done',
+            }),
+            ' ',
+            el('span', { class: 'stage-tolerance-step', role: 'status' }),
+          ),
+          button('stage-tolerance-cancel', 'Cancel', cancelTolerance),
         ),
       );
     else if (!t.error) section.append(...toleranceSection(t));
     checksHost.append(section);
+    if (t === null && !run?.cancelled) showProgress();
   }
 
   /** Put field texts into the stage as one undoable step. */
@@ -408,8 +504,6 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
   });
   formHost.addEventListener('submit', (e) => e.preventDefault());
 
-  const button = (id, label, onclick) =>
-    el('button', { type: 'button', class: 'button', id, onclick }, label);
   undoButton.addEventListener('click', () => step('undo'));
   redoButton.addEventListener('click', () => step('redo'));
   host.addEventListener('keydown', (e) => {
@@ -463,10 +557,8 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
   const showReport = () => {
     if (!last) return;
     reportHost.hidden = false;
-    if (last.tolerance === null) {
-      withTolerance(api, last);
-      showAnswers(last);
-    }
+    // A cancelled run starts again: the report has the tolerance answers.
+    if (last.tolerance === null && run?.cancelled) startTolerance(last);
     renderReport(reportHost, api, last, values);
     reportHost.scrollIntoView?.();
   };
@@ -480,8 +572,9 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
       redoButton,
       button('stage-demo', 'Demo stage', loadDemo),
       button('stage-report-button', 'Design report', showReport),
-      button('stage-print', 'Print report', () => {
+      button('stage-print', 'Print report', async () => {
         showReport();
+        await toleranceIn();
         window.print();
       }),
       button('stage-copy', 'Copy results', copyResults),
@@ -509,6 +602,8 @@ export function mountStageView(host, api, { worksheet = () => null } = {}) {
     get results() {
       return last;
     },
+    /** Resolves once the tolerance answers of the stage on screen are in. */
+    toleranceIn,
     history,
   };
 }
