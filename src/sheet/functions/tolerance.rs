@@ -187,8 +187,13 @@ fn spreads(a: &Args<'_>) -> Result<Spreads, CellError> {
             ));
         };
         let name = name.trim().to_ascii_lowercase();
-        let typed = read_spread(value)
-            .map_err(|e| fail(a, &format!("spreads: {name}: \"{}\": {e}", value.trim())))?;
+        let typed = read_spread(value).map_err(|e| {
+            let why = match e {
+                crate::Error::Syntax { column, reason, .. } => format!("column {column}: {reason}"),
+                other => other.to_string(),
+            };
+            fail(a, &format!("spreads: {name}: \"{}\": {why}", value.trim()))
+        })?;
         if let Some(k) = NAMES.iter().position(|(p, _)| *p == name) {
             let (part, _) = NAMES[k];
             // min…max takes the part's own value as typ (a part the stage
