@@ -209,6 +209,26 @@ fn yield_with_a_normal_part_and_the_a0_spread_agrees_with_numpy() {
 }
 
 #[test]
+fn distribution_with_a_normal_part_and_the_a0_spread_agrees_with_numpy() {
+    // Expected: tolerance_stage.py "gain48" gainDb mean and sd (numpy, 400 000
+    // trials); the mean within 4 standard errors of the difference,
+    // sd·sqrt(1/N + 1/N_numpy); the seven percentiles in order.
+    let r = reference();
+    let n = 20_000.0;
+    let m = values(&format!(
+        "=TOLERANCE.MONTECARLO({GAIN48}; \"rf=1%, rg=1% normal 3σ\"; \"gainDb\"; 20 kHz; {n}; 11)"
+    ));
+    assert_eq!(m.len(), 9);
+    let mean = num(&r, &["gain48", "gainDb", "mean"]);
+    let sd = num(&r, &["gain48", "gainDb", "sd"]);
+    let nn = num(&r, &["gain48", "trials"]);
+    within_4se(m[0], mean, sd * (1.0 / n + 1.0 / nn).sqrt(), "mean");
+    // The sample sd: its standard error is about sd/sqrt(2N) (normal theory).
+    within_4se(m[1], sd, sd / (2.0 * n).sqrt(), "sd");
+    assert!(m[2..].windows(2).all(|w| w[0] <= w[1]), "{m:?}");
+}
+
+#[test]
 fn yield_with_a_gbw_spread_agrees_with_numpy() {
     // Expected: tolerance_stage.py "margin2": numpy Monte Carlo of 20 000
     // trials (brentq crossovers) of the phase margin ≥ 61° with Rf = Rg = 1k

@@ -611,6 +611,43 @@ TOLERANCES[TOL_YIELD] = (
     "statistical: 4 standard errors sqrt(y(1 - y)/N) of a share of 20000 seeded draws")
 
 
+# TOLERANCE.MONTECARLO: the same ideal-amplifier stage, Rf and Rg uniform over
+# ±1 %; the exact distribution of F = 20 log10(1 + 47 (1 + u)/(1 + v)).
+TOL_MC_TRIALS = 20000
+TOL_MC = ('=TOLERANCE.MONTECARLO("kind=non-inverting, a0=1e12, gbwHz=10M, rf=47k, rg=1k"; "rf=1%, rg=1%"; '
+          '"gainDb"; 0; 20000; 1)')
+
+
+def tolerance_mc():
+    t = M("0.01")
+    f = lambda u, v: 20 * mp.log10(1 + 47 * (1 + u) / (1 + v))
+    moment = lambda g: mp.quad(lambda u, v: g(f(u, v)), [-t, t], [-t, t]) / (2 * t) ** 2
+    mean = moment(lambda x: x)
+    var = moment(lambda x: (x - mean) ** 2)
+    mu4 = moment(lambda x: (x - mean) ** 4)
+    sd = mp.sqrt(var)
+    lo, hi = f(-t, t), f(t, -t)
+    cdf = lambda x: uniform_ratio_yield(M(47), lo - 1, x)
+    values, tols = [mean, sd], [5 * sd / mp.sqrt(TOL_MC_TRIALS) / mean,
+                                5 * mp.sqrt((mu4 - var ** 2) / (4 * var * TOL_MC_TRIALS)) / sd]
+    for q in (M("0.001"), M("0.01"), M("0.05"), M("0.5"), M("0.95"), M("0.99"), M("0.999")):
+        a, b = lo, hi
+        for _ in range(80):
+            m = (a + b) / 2
+            a, b = (m, b) if cdf(m) < q else (a, m)
+        x = (a + b) / 2
+        pdf = mp.diff(cdf, x)
+        values.append(x)
+        tols.append(5 * mp.sqrt(q * (1 - q) / TOL_MC_TRIALS) / pdf / x)
+    return values, [float(x) for x in tols]
+
+
+CASES[TOL_MC], _tol_mc = tolerance_mc()
+TOLERANCES[TOL_MC] = (
+    _tol_mc,
+    "statistical: 5 standard errors of each statistic of 20000 seeded draws (mean sd/sqrt(N); sd "
+    "sqrt((mu4 - sd^4)/(4 sd^2 N)); a percentile sqrt(q(1 - q)/N)/pdf)")
+
 def evaluate():
     cases = []
     for f, xs in CASES.items():

@@ -92,6 +92,7 @@ const YIELD: &[Param] = &[
     SEED,
     TEMPERATURE,
 ];
+const MONTE: &[Param] = &[STAGE, SPREADS, FIGURE, FREQUENCY, TRIALS, SEED, TEMPERATURE];
 /// The amplifier figures a spread may be given for, with their names in the
 /// error messages.
 const AMPLIFIER_PARTS: &str = "a0, gbw, ro";
@@ -376,24 +377,58 @@ fn yield_fraction(a: &Args<'_>) -> Value {
         lower: Some(tri!(a.number(4))),
         upper: Some(tri!(a.number(5))),
     };
-    let trials = tri!(crate::network::montecarlo::count_from_number(
+    let o = tri!(run_options(a, 6));
+    match monte_carlo(&ts, &[limit], o) {
+        Ok(mc) => Value::num(mc.yield_fraction),
+        Err(e) => Value::Error(tol_fail(a, e)),
+    }
+}
+
+/// The trials and seed arguments `i`, `i + 1`.
+fn run_options(a: &Args<'_>, i: usize) -> Result<MonteCarloOptions, CellError> {
+    let trials = crate::network::montecarlo::count_from_number(
         "trials",
-        tri!(a.number(6)),
-        crate::tolerance::MAX_TRIALS
+        a.number(i)?,
+        crate::tolerance::MAX_TRIALS,
     )
-    .map_err(|e| fail(a, &e.to_string())));
+    .map_err(|e| fail(a, &e.to_string()))?;
     let seed =
-        tri!(crate::network::seed_from_number(tri!(a.number(7)))
-            .map_err(|e| fail(a, &e.to_string())));
-    let o = MonteCarloOptions {
+        crate::network::seed_from_number(a.number(i + 1)?).map_err(|e| fail(a, &e.to_string()))?;
+    Ok(MonteCarloOptions {
         seed,
         trials,
         bins: 1,
         keep_failures: 0,
+    })
+}
+
+fn distribution(a: &Args<'_>) -> Value {
+    let ts = tri!(tol_stage(a, 6));
+    let limit = tri!(open_limit(a));
+    let o = tri!(run_options(a, 4));
+    let mc = match monte_carlo(&ts, &[limit], o) {
+        Ok(mc) => mc,
+        Err(e) => return Value::Error(tol_fail(a, e)),
     };
-    match monte_carlo(&ts, &[limit], o) {
-        Ok(mc) => Value::num(mc.yield_fraction),
-        Err(e) => Value::Error(tol_fail(a, e)),
+    let Some(l) = mc.limits.first() else {
+        return Value::error(ErrorKind::Value, "empty result");
+    };
+    if l.undefined > 0 {
+        return Value::error(
+            ErrorKind::Num,
+            format!(
+                "{}: figure: not defined in {} of {} trials (no crossover or −3 dB point there); give TOLERANCE.YIELD limits to count them as failures",
+                a.spec.name, l.undefined, mc.trials
+            ),
+        );
+    }
+    match &l.stats {
+        Some(st) => {
+            let mut items = vec![Value::num(st.mean), Value::num(st.sd)];
+            items.extend(st.percentiles.iter().map(|p| Value::num(p.value)));
+            row(items)
+        }
+        None => Value::error(ErrorKind::Num, format!("{}: too few trials", a.spec.name)),
     }
 }
 
@@ -538,6 +573,30 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             tolerance: &[0.0, 1e-6, 1e-6, 1e-6, 0.0, 0.0, 1e-6, 1e-6, 1e-6, 0.0],
         },
         eval: sensitivities,
+    },
+    FunctionSpec {
+        name: "TOLERANCE.MONTECARLO",
+        area: "tolerance",
+        summary: "Seeded Monte Carlo distribution of a stage figure over its parts' spreads, the amplifier's and a temperature range: mean, standard deviation, percentiles",
+        params: MONTE,
+        repeats: false,
+        result_unit: "the figure's unit",
+        spill: &["mean", "standard deviation", "0.1 %", "1 %", "5 %", "50 %", "95 %", "99 %", "99.9 %"],
+        example: Example {
+            formula: "=TOLERANCE.MONTECARLO(\"kind=non-inverting, a0=1e12, gbwHz=10M, rf=47k, rg=1k\"; \"rf=1%, rg=1%\"; \"gainDb\"; 0; 20000; 1)",
+            expected: Expected::Numbers(&[
+                33.624830654060396, 0.06944407586473278, 33.462360367991735, 33.47880345316607,
+                33.50852957021138, 33.624824747511745, 33.741153063970344, 33.77089829180124,
+                33.787353809962326,
+            ]),
+            source: "exact distribution of 20·log10(1 + Rf/Rg), Rf and Rg uniform over ±1 %: mean and sd by mpmath quadrature, percentiles by root-finding on the exact share (tests/reference/sheet_catalog.py); the seeded sample agrees within 5 standard errors of each statistic",
+            tolerance: &[
+                7.30180286443405e-05, 0.02091673621176311, 0.00012697384773502249,
+                0.0001263435861350394, 0.00012366372954012044, 8.942643225718844e-05,
+                0.00012288115074623437, 0.00012534045544742689, 0.0001258526691092626,
+            ],
+        },
+        eval: distribution,
     },
     FunctionSpec {
         name: "TOLERANCE.TIGHTEN",

@@ -187,6 +187,10 @@ const WORDS: &[(&str, &str)] = &[
         "monte carlo yield spec limits tolerance normal gaussian sigma uniform tempco temperature production",
     ),
     (
+        "TOLERANCE.MONTECARLO",
+        "monte carlo distribution percentile histogram mean standard deviation sigma spread tolerance tempco",
+    ),
+    (
         "TOLERANCE.SENSITIVITY",
         "sensitivity derivative variance share contribution budget tighten critical part tolerance",
     ),
