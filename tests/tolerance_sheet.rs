@@ -253,6 +253,81 @@ fn yield_with_a_gbw_spread_agrees_with_numpy() {
 }
 
 #[test]
+fn gain_error_against_a_target_matches_the_brute_force_corners() {
+    // Expected: tolerance_stage.py "gain48" corners of the gain error against
+    // 48 at 20 kHz, % (itertools.product over the 2^3 extremes).
+    let r = reference();
+    let w = values(&format!(
+        "=TOLERANCE.WORSTCASE({GAIN48}; \"rf=1%, rg=1% normal\"; \"gainErrorPercent 48\"; 20 kHz)"
+    ));
+    let lo = num(&r, &["gain48", "corners", "gainErrorPercent", "min"]);
+    let hi = num(&r, &["gain48", "corners", "gainErrorPercent", "max"]);
+    // The nodal solve against numpy's closed form: 1e-9 % (as tests/tolerance_stage.rs).
+    assert!(
+        (w[0] - lo).abs() < 1e-9 && (w[2] - hi).abs() < 1e-9,
+        "{w:?} vs {lo} … {hi}"
+    );
+}
+
+#[test]
+fn output_noise_over_a_band_is_the_resistors_thermal_noise() {
+    // Expected: an ideal amplifier without noise of its own: the output noise
+    // density² is 4kT·(Rf + Rg·(Rf/Rg)²), flat, so over 10 Hz … 10 kHz the rms
+    // is sqrt(4kT·(Rf + Rf²/Rg)·(10k − 10)), T = 298.15 K (25 °C), k =
+    // 1.380649e-23 J/K (SI Brochure, 9th ed., 2019, exact); Johnson–Nyquist.
+    let k = 1.380649e-23;
+    let want =
+        |rf: f64, t: f64| (4.0 * k * (t + 273.15) * (rf + rf * rf / 1e3) * (1e4 - 10.0)).sqrt();
+    let stage = "\"kind=non-inverting, a0=1e12, gbwHz=1T, rf=9k, rg=1k\"";
+    let w = values(&format!(
+        "=TOLERANCE.WORSTCASE({stage}; \"rf=8.9k…9.1k\"; \"outputNoiseRms 10…10k\"; 0)"
+    ));
+    let rel = |got: f64, want: f64| (got / want - 1.0).abs();
+    // 1e-6: the band integral of a flat density through the noise analysis.
+    assert!(
+        rel(w[1], want(9e3, 25.0)) < 1e-6,
+        "{} vs {}",
+        w[1],
+        want(9e3, 25.0)
+    );
+    assert!(rel(w[0], want(8.9e3, 25.0)) < 1e-6, "{}", w[0]);
+    assert!(rel(w[2], want(9.1e3, 25.0)) < 1e-6, "{}", w[2]);
+}
+
+#[test]
+fn settling_time_of_a_single_pole_stage_is_the_exponentials() {
+    // Expected: gain 2 with A(s) = A0/(1 + s·A0/ωt): one closed-loop pole at
+    // ω = ωt·(β + 1/A0), so the step settles into ±0.1 % at ln(1000)/ω
+    // (first-order step response; common practice, no source).
+    let stage = "\"kind=non-inverting, a0=1M, gbwHz=1M, rf=1k, rg=1k\"";
+    let w = values(&format!(
+        "=TOLERANCE.WORSTCASE({stage}; \"rf=1%\"; \"settlingTimeS 0.1%\"; 0)"
+    ));
+    let omega = 2.0 * std::f64::consts::PI * 1e6 * (0.5 + 1e-6);
+    let want = 1000f64.ln() / omega;
+    // 1e-3: the step response is sampled and its last band crossing refined.
+    assert!((w[1] / want - 1.0).abs() < 1e-3, "{} vs {want}", w[1]);
+    assert!(w[0] < w[1] && w[1] < w[2], "{w:?}");
+}
+
+#[test]
+fn figures_that_need_a_value_say_so() {
+    for (figure, words) in [
+        ("gainErrorPercent", "needs the target gain"),
+        ("outputNoiseRms", "needs the band"),
+        ("settlingTimeS", "needs the settling band"),
+        ("gainDb 48", "takes nothing after its name"),
+        ("outputNoiseRms 10…lots", "column 4"),
+        ("loudness", "the figures are gainDb"),
+    ] {
+        let e = error(&format!(
+            "=TOLERANCE.WORSTCASE({GAIN48}; \"rf=1%\"; \"{figure}\"; 1 kHz)"
+        ));
+        assert!(e.contains("figure") && e.contains(words), "{figure}: {e}");
+    }
+}
+
+#[test]
 fn bad_spreads_are_errors_naming_the_argument_and_the_part() {
     let wc = |spreads: &str| {
         error(&format!(
@@ -312,7 +387,7 @@ fn bad_temperatures_and_counts_are_errors_naming_them() {
     for (t, word) in [
         ("\"70…0\"", "low must not be above high"),
         ("-300", "-273.15"),
-        ("\"0…hot\"", "column 1"),
+        ("\"0…hot\"", "column 3"),
         ("TRUE", "a number"),
     ] {
         let e = f(t);

@@ -53,7 +53,7 @@ pub use format::{
     write_full, MAX_UNIT_LEN,
 };
 pub use read::{read, read_list, scan, ReadOptions, Reading, MAX_DIGITS, MAX_LIST_ITEMS};
-pub use spread::{read_spread, TypedSpread, TypedTolerance, DEFAULT_SIGMAS};
+pub use spread::{read_range, read_spread, TypedSpread, TypedTolerance, DEFAULT_SIGMAS};
 pub use unit::Unit;
 
 use crate::error::Result;

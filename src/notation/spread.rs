@@ -313,6 +313,40 @@ pub fn read_spread(text: &str) -> Result<TypedSpread> {
     })
 }
 
+/// Read a range `low…high` (or `low..high`, blanks allowed around the
+/// separator) or one value (low = high), each value as [`read`] reads it
+/// under `options`: a temperature range `"0…70"`, a band `"10…20k"`.
+///
+/// # Errors
+/// As [`read`], with the column counted in the whole text.
+///
+/// # Example
+/// ```
+/// use loopwright::notation::{read_range, ReadOptions};
+/// assert_eq!(read_range("-40 … 85", &ReadOptions::VALUE).unwrap(), [-40.0, 85.0]);
+/// assert_eq!(read_range("10..20k", &ReadOptions::VALUE).unwrap(), [10.0, 2e4]);
+/// assert_eq!(read_range("25", &ReadOptions::VALUE).unwrap(), [25.0, 25.0]);
+/// assert_eq!(read_range("0…hot", &ReadOptions::VALUE).unwrap_err().column(), Some(3));
+/// ```
+pub fn read_range(text: &str, options: &ReadOptions) -> Result<[f64; 2]> {
+    let split = text
+        .split_once('…')
+        .map(|(a, b)| (a, b, 1))
+        .or_else(|| text.split_once("..").map(|(a, b)| (a, b, 2)));
+    let one = |s: &str, column: u32| {
+        read(s, options)
+            .map(|r| r.value)
+            .map_err(|e| shifted(e, column))
+    };
+    match split {
+        Some((a, b, sep)) => Ok([one(a, 1)?, one(b, 1 + chars(a) + sep)?]),
+        None => {
+            let v = one(text, 1)?;
+            Ok([v, v])
+        }
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

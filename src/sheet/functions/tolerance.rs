@@ -13,14 +13,18 @@
 //! stage's `a0Min`/`a0Max`. The figure is one of `gainDb`, `phaseDeg` (at the
 //! frequency argument), `bandwidthHz`, `peakingDb`, `phaseMarginDeg`,
 //! `gainMarginDb`, `inputImpedanceOhm`, `outputImpedanceOhm` (at the
-//! frequency). The optional temperature is one temperature or a range
-//! `"0…70"` (°C; left out, 25 °C, the reference of the parts' values).
+//! frequency), or a name with its value: `"gainErrorPercent 48"` (at the
+//! frequency, against the target gain), `"outputNoiseRms 10…20k"`,
+//! `"inputNoiseRms 10…20k"` (over the band, Hz), `"settlingTimeS 0.1%"`.
+//! The optional temperature is one temperature or a range `"0…70"` (°C;
+//! left out, 25 °C, the reference of the parts' values), read by
+//! [`crate::notation::read_range`].
 
 use super::stage::{circuit_fail, stage_of};
 use super::{req, tri, Args, Example, Expected, FunctionSpec, Param};
 use crate::circuit::tolerance::Tolerance;
 use crate::circuit::CircuitError;
-use crate::notation::{read, read_spread, ReadOptions, TypedTolerance};
+use crate::notation::{read, read_range, read_spread, ReadOptions, TypedTolerance};
 use crate::sheet::errors::{CellError, ErrorKind};
 use crate::sheet::value::{Array, Unit, Value};
 use crate::stage::{Spread, SpreadPoint, Stage};
@@ -48,13 +52,13 @@ const SPREADS: Param = req(
 );
 const FIGURE: Param = req(
     "figure",
-    "the figure: gainDb, phaseDeg, bandwidthHz, peakingDb, phaseMarginDeg, gainMarginDb, inputImpedanceOhm, outputImpedanceOhm",
+    "the figure: gainDb, phaseDeg, bandwidthHz, peakingDb, phaseMarginDeg, gainMarginDb, inputImpedanceOhm, outputImpedanceOhm; \"gainErrorPercent 48\" (against a target gain), \"outputNoiseRms 10…20k\" or \"inputNoiseRms 10…20k\" (over a band, Hz), \"settlingTimeS 0.1%\" (to a band)",
     "text",
     "one of the names",
 );
 const FREQUENCY: Param = req(
     "frequency",
-    "frequency of gainDb, phaseDeg and the impedances (ignored by the others)",
+    "frequency of gainDb, phaseDeg, gainErrorPercent and the impedances (ignored by the others)",
     "Hz",
     "≥ 0",
 );
@@ -114,6 +118,14 @@ fn tol_fail(a: &Args<'_>, e: CircuitError) -> CellError {
         _ => ErrorKind::Num,
     };
     CellError::new(kind, format!("{}: {arg}: {e}", a.spec.name))
+}
+
+/// A reader's error as "column n: why" (its parameter is the whole text).
+fn syntax(e: crate::Error) -> String {
+    match e {
+        crate::Error::Syntax { column, reason, .. } => format!("column {column}: {reason}"),
+        other => other.to_string(),
+    }
 }
 
 /// What the spreads argument (argument 1) gives: the stage with its A0
@@ -189,11 +201,10 @@ fn spreads(a: &Args<'_>) -> Result<Spreads, CellError> {
         };
         let name = name.trim().to_ascii_lowercase();
         let typed = read_spread(value).map_err(|e| {
-            let why = match e {
-                crate::Error::Syntax { column, reason, .. } => format!("column {column}: {reason}"),
-                other => other.to_string(),
-            };
-            fail(a, &format!("spreads: {name}: \"{}\": {why}", value.trim()))
+            fail(
+                a,
+                &format!("spreads: {name}: \"{}\": {}", value.trim(), syntax(e)),
+            )
         })?;
         if let Some(k) = NAMES.iter().position(|(p, _)| *p == name) {
             let (part, _) = NAMES[k];
@@ -274,18 +285,8 @@ fn temperature(a: &Args<'_>, i: usize) -> Result<[f64; 2], CellError> {
     match a.get(i) {
         Value::Empty => Ok([REFERENCE_C, REFERENCE_C]),
         Value::Number(t, _) => Ok([*t, *t]),
-        Value::Text(t) => {
-            let (lo, hi) = t
-                .split_once('…')
-                .or_else(|| t.split_once(".."))
-                .unwrap_or((t.as_str(), t.as_str()));
-            let one = |s: &str| {
-                read(s, &ReadOptions::VALUE)
-                    .map(|r| r.value)
-                    .map_err(|e| bad(&format!("\"{}\": {e}", s.trim())))
-            };
-            Ok([one(lo)?, one(hi)?])
-        }
+        Value::Text(t) => read_range(t, &ReadOptions::VALUE)
+            .map_err(|e| bad(&format!("\"{}\": {}", t.trim(), syntax(e)))),
         Value::Array(arr) => {
             let mut v = Vec::new();
             for item in arr.items() {
@@ -307,28 +308,69 @@ fn temperature(a: &Args<'_>, i: usize) -> Result<[f64; 2], CellError> {
     }
 }
 
-/// The figure of arguments 2 and 3.
+/// The figure of arguments 2 and 3: a name, and for some a value after it
+/// (`"gainErrorPercent 48"`: the target gain; `"outputNoiseRms 10…20k"`: the
+/// band, Hz; `"settlingTimeS 0.1%"`: the band, a fraction).
 fn figure(a: &Args<'_>) -> Result<Figure, CellError> {
-    let name = a.text(2)?;
+    let text = a.text(2)?;
+    let text = text.trim();
+    let (name, rest) = text
+        .split_once(char::is_whitespace)
+        .map_or((text, ""), |(n, r)| (n, r.trim()));
     let f = a.number(3)?;
-    Ok(match name.trim() {
-        "gainDb" => Figure::GainDb { freq_hz: f },
-        "phaseDeg" => Figure::PhaseDeg { freq_hz: f },
-        "bandwidthHz" => Figure::BandwidthHz,
-        "peakingDb" => Figure::PeakingDb,
-        "phaseMarginDeg" => Figure::PhaseMarginDeg,
-        "gainMarginDb" => Figure::GainMarginDb,
-        "inputImpedanceOhm" => Figure::InputImpedanceOhm { freq_hz: f },
-        "outputImpedanceOhm" => Figure::OutputImpedanceOhm { freq_hz: f },
-        other => {
-            return Err(fail(
+    let needs = |what: &str| fail(a, &format!("figure: {name} needs {what} after its name"));
+    let bad = |e: crate::Error| fail(a, &format!("figure: \"{rest}\": {}", syntax(e)));
+    let plain = |fig: Figure| {
+        if rest.is_empty() {
+            Ok(fig)
+        } else {
+            Err(fail(
                 a,
-                &format!(
-                    "figure: unknown figure \"{other}\"; see the function's help for the names"
-                ),
+                &format!("figure: {name} takes nothing after its name (\"{rest}\")"),
             ))
         }
-    })
+    };
+    match name {
+        "gainDb" => plain(Figure::GainDb { freq_hz: f }),
+        "phaseDeg" => plain(Figure::PhaseDeg { freq_hz: f }),
+        "bandwidthHz" => plain(Figure::BandwidthHz),
+        "peakingDb" => plain(Figure::PeakingDb),
+        "phaseMarginDeg" => plain(Figure::PhaseMarginDeg),
+        "gainMarginDb" => plain(Figure::GainMarginDb),
+        "inputImpedanceOhm" => plain(Figure::InputImpedanceOhm { freq_hz: f }),
+        "outputImpedanceOhm" => plain(Figure::OutputImpedanceOhm { freq_hz: f }),
+        "gainErrorPercent" if rest.is_empty() => {
+            Err(needs("the target gain (\"gainErrorPercent 48\")"))
+        }
+        "gainErrorPercent" => Ok(Figure::GainErrorPercent {
+            freq_hz: f,
+            target: read(rest, &ReadOptions::VALUE).map_err(bad)?.value,
+        }),
+        "outputNoiseRms" | "inputNoiseRms" => {
+            if rest.is_empty() {
+                return Err(needs("the band in Hz (\"outputNoiseRms 10…20k\")"));
+            }
+            let band_hz = read_range(rest, &ReadOptions::VALUE).map_err(bad)?;
+            Ok(if name == "outputNoiseRms" {
+                Figure::OutputNoiseRms { band_hz }
+            } else {
+                Figure::InputNoiseRms { band_hz }
+            })
+        }
+        "settlingTimeS" if rest.is_empty() => {
+            Err(needs("the settling band (\"settlingTimeS 0.1%\")"))
+        }
+        "settlingTimeS" => Ok(Figure::SettlingTimeS {
+            band: read(rest, &ReadOptions::CELL).map_err(bad)?.value,
+        }),
+        other => Err(fail(
+            a,
+            &format!(
+                "figure: unknown figure \"{other}\"; the figures are {}",
+                crate::tolerance::FIGURE_NAMES
+            ),
+        )),
+    }
 }
 
 /// The stage under its spreads at the temperature of argument `t_arg`.
