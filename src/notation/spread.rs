@@ -402,6 +402,28 @@ mod tests {
     }
 
     #[test]
+    fn no_text_of_three_pieces_panics() {
+        // Every text of three pieces from the words and characters the reader
+        // looks at: an answer or a syntax/overflow error, never a panic.
+        let pieces = [
+            "", " ", "1", "-", "±", "+/-", "%", "σ", "sigma", "ppm/K", "ppm/°C", "…", "..", "/",
+            "k", "normal", "uniform", "at", "4k7", "1e999", "é", ".", "e",
+        ];
+        for a in pieces {
+            for b in pieces {
+                for c in pieces {
+                    let text = alloc::format!("{a}{b}{c}");
+                    match read_spread(&text) {
+                        Ok(_) => {}
+                        Err(e) => assert!(matches!(e.code(), "syntax" | "overflow"), "{text}"),
+                    }
+                    let _ = read_range(&text, &ReadOptions::VALUE);
+                }
+            }
+        }
+    }
+
+    #[test]
     fn refusals_say_where() {
         assert_eq!(col(""), Some(1));
         assert_eq!(col("   "), Some(1));
