@@ -319,12 +319,19 @@ fn figures_that_need_a_value_say_so() {
         ("gainDb 48", "takes nothing after its name"),
         ("outputNoiseRms 10…lots", "column 4"),
         ("loudness", "the figures are gainDb"),
+        ("gainErrorPercent 0", "target"),
+        ("outputNoiseRms 20k…10", "bandHz"),
+        ("settlingTimeS 60%", "band"),
     ] {
         let e = error(&format!(
             "=TOLERANCE.WORSTCASE({GAIN48}; \"rf=1%\"; \"{figure}\"; 1 kHz)"
         ));
         assert!(e.contains("figure") && e.contains(words), "{figure}: {e}");
     }
+    let e = error(&format!(
+        "=TOLERANCE.WORSTCASE({GAIN48}; \"rf=1%\"; \"gainDb\"; -1 kHz)"
+    ));
+    assert!(e.contains("frequency"), "{e}");
 }
 
 #[test]
@@ -471,6 +478,10 @@ fn bad_temperatures_and_counts_are_errors_naming_them() {
         "=TOLERANCE.YIELD({GAIN48}; \"rf=1%\"; \"gainDb\"; 1 kHz; 30; 40; 100001; 1)"
     ));
     assert!(e.contains("trials"), "{e}");
+    let e = error(&format!(
+        "=TOLERANCE.YIELD({GAIN48}; \"rf=1%\"; \"gainDb\"; 1 kHz; 40; 30; 100; 1)"
+    ));
+    assert!(e.contains("limits") && e.contains("upper"), "{e}");
     let e = error(
         "=TOLERANCE.SENSITIVITY(\"kind=non-inverting, a0=200k, gbwHz=10M, rf=47k, rg=1k\"; \"\"; \"gainDb\"; 1 kHz)",
     );

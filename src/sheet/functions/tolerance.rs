@@ -111,13 +111,25 @@ fn tol_fail(a: &Args<'_>, e: CircuitError) -> CellError {
     let arg = match e.error.param() {
         "part" | "tolerance" | "tempco" | "gbwHz" | "ro" | "a0" => "spreads",
         "temperature" => "temperature",
+        "lower" | "upper" => "limits",
+        "freqHz" => "frequency",
+        "target" | "bandHz" | "band" => "figure",
         _ => return circuit_fail(a, e),
     };
     let kind = match e.error {
         crate::Error::UnknownName { .. } | crate::Error::OutOfDomain { .. } => ErrorKind::Value,
         _ => ErrorKind::Num,
     };
-    CellError::new(kind, format!("{}: {arg}: {e}", a.spec.name))
+    let text = e.to_string();
+    // The argument itself (temperature, frequency) is named once.
+    let text = match (arg, e.name.is_empty()) {
+        ("temperature" | "frequency", true) => text
+            .strip_prefix(e.error.param())
+            .and_then(|t| t.strip_prefix(": "))
+            .map_or(text.clone(), String::from),
+        _ => text,
+    };
+    CellError::new(kind, format!("{}: {arg}: {text}", a.spec.name))
 }
 
 /// A reader's error as "column n: why" (its parameter is the whole text).
