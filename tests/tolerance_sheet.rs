@@ -75,6 +75,12 @@ fn worst_case_of_a_normal_part_and_the_a0_spread_matches_the_brute_force_corners
     for (got, want) in w.iter().zip([lo, nominal, hi]) {
         assert!((got - want).abs() < 1e-9, "{got} vs {want}");
     }
+    // A bare number is a percent, as sheets written before the distributions
+    // kept their spreads: the same extremes.
+    let old = values(&format!(
+        "=TOLERANCE.WORSTCASE({GAIN48}; \"rf=1, rg=1\"; \"gainDb\"; 20 kHz)"
+    ));
+    assert_eq!(old, w);
     // The same extremes written as limits min…max and min/typ/max, and the A0
     // spread given in the spreads instead of the stage.
     let bare = "\"kind=non-inverting, a0=200k, gbwHz=10M, rf=47k, rg=1k\"";
@@ -427,8 +433,9 @@ fn bad_spreads_are_errors_naming_the_argument_and_the_part() {
         ("cl=1%", &["spreads", "Cl", "not in the stage"]),
         ("rf=1%, rf=2%", &["spreads", "Rf", "once"]),
         ("rf=1k%", &["spreads", "rf", "column 1", "plain number"]),
+        ("rf=1 k%", &["spreads", "rf", "column 3", "plain number"]),
         (
-            "rf=1 k%",
+            "rf=47k",
             &["spreads", "rf", "column 1", "not a spread word"],
         ),
         (

@@ -4,7 +4,8 @@
 //!
 //! A spread text is one or more words separated by blanks, in any order:
 //! - `±1 %`, `1%`, `+/-0.1 %`: a tolerance of ±p % of the value (uniform
-//!   unless `normal` or a number of sigmas is given);
+//!   unless `normal` or a number of sigmas is given); a bare number (`1`) is
+//!   read as a percent too, as worksheets written before kept it;
 //! - `normal` (or `uniform`): the distribution of a ± % tolerance; `normal` alone
 //!   means the limit is at 3 σ (common practice, no source: a part sold as
 //!   ±1 % is taken to be screened at 3 σ);
@@ -117,12 +118,16 @@ fn shifted(e: Error, column: u32) -> Error {
     }
 }
 
+/// Whether `s` is written as a plain decimal: sign, digits, point, exponent.
+fn is_plain(s: &str) -> bool {
+    s.starts_with(|c: char| c.is_ascii_digit() || matches!(c, '.' | '+' | '-' | '\u{2212}'))
+        && s.chars()
+            .all(|c| c.is_ascii_digit() || matches!(c, '.' | '+' | '-' | 'e' | 'E' | '\u{2212}'))
+}
+
 /// A plain decimal number (sign, digits, point, exponent) read by [`read`].
 fn plain(s: &str, column: u32) -> Result<f64> {
-    let ok = !s.is_empty()
-        && s.chars()
-            .all(|c| c.is_ascii_digit() || matches!(c, '.' | '+' | '-' | 'e' | 'E' | '\u{2212}'));
-    if !ok {
+    if !is_plain(s) {
         return Err(at(column, R_PLAIN));
     }
     read(s, &ReadOptions::VALUE)
@@ -293,6 +298,14 @@ pub fn read_spread(text: &str) -> Result<TypedSpread> {
             })?;
             continue;
         }
+        if is_plain(w) {
+            // A bare number is a percent: the spreads text of worksheets
+            // written before the distributions were read (`rf=1`).
+            set_tol(TypedTolerance::Uniform {
+                percent: plain(w, col)?,
+            })?;
+            continue;
+        }
         return Err(at(col, R_WORD));
     }
     let tolerance = match (tol, dist, sigmas) {
@@ -368,6 +381,14 @@ mod tests {
         assert_eq!(tol("± 0.1%"), u(0.1));
         assert_eq!(tol("+/-7%"), u(7.0)); // exactly 7, not 0.07·100
         assert_eq!(tol("uniform 5%"), u(5.0));
+        assert_eq!(tol("2"), u(2.0)); // the spreads text before the distributions
+        assert_eq!(
+            tol("0.5 normal"),
+            Some(TypedTolerance::Normal {
+                percent: 0.5,
+                sigmas: 3.0
+            })
+        );
         let n = |percent, sigmas| Some(TypedTolerance::Normal { percent, sigmas });
         assert_eq!(tol("1% normal"), n(1.0, 3.0));
         assert_eq!(tol("1% normal at 2σ"), n(1.0, 2.0));
@@ -430,6 +451,8 @@ mod tests {
         assert_eq!(col("1% tight"), Some(4));
         assert_eq!(col("1k%"), Some(1));
         assert_eq!(col("1% 2%"), Some(4));
+        assert_eq!(col("1% 2"), Some(4));
+        assert_eq!(col("47k"), Some(1));
         assert_eq!(col("1% 5..6"), Some(4));
         assert_eq!(col("normal"), Some(1));
         assert_eq!(col("1k..2k normal"), Some(8));
