@@ -430,6 +430,7 @@ fn bad_spreads_are_errors_naming_the_argument_and_the_part() {
         ("rf=1% normal 0σ", &["spreads", "Rf", "tolerance"]),
         ("rf=1% normal 11σ", &["spreads", "Rf", "tolerance"]),
         ("rx=1%", &["spreads", "unknown part \"rx\"", "riso", "gbw"]),
+        ("rx=25ppm/K", &["spreads", "unknown part \"rx\""]),
         ("cl=1%", &["spreads", "Cl", "not in the stage"]),
         ("rf=1%, rf=2%", &["spreads", "Rf", "once"]),
         ("rf=1k%", &["spreads", "rf", "column 1", "plain number"]),

@@ -236,6 +236,18 @@ fn spreads(a: &Args<'_>) -> Result<Spreads, CellError> {
             });
             continue;
         }
+        let unknown = || {
+            fail(
+                a,
+                &format!(
+                    "spreads: unknown part \"{name}\"; the parts are {}, {AMPLIFIER_PARTS}",
+                    crate::tolerance::parts::PART_NAMES
+                ),
+            )
+        };
+        if !matches!(name.as_str(), "a0" | "gbw" | "gbwhz" | "ro") {
+            return Err(unknown());
+        }
         if typed.tempco_ppm.is_some() {
             return Err(fail(
                 a,
@@ -273,15 +285,7 @@ fn spreads(a: &Args<'_>) -> Result<Spreads, CellError> {
                 }
                 amplifier.ro = Some(amplifier_spread(a, "ro", typed.tolerance, model.ro)?);
             }
-            _ => {
-                return Err(fail(
-                    a,
-                    &format!(
-                        "spreads: unknown part \"{name}\"; the parts are {}, {AMPLIFIER_PARTS}",
-                        crate::tolerance::parts::PART_NAMES
-                    ),
-                ))
-            }
+            _ => return Err(unknown()),
         }
     }
     Ok(Spreads {
