@@ -550,11 +550,11 @@ fn sensitivities(a: &Args<'_>) -> Value {
 }
 
 const SENSITIVITY_COLUMNS: &[&str] = &[
-    "the part's nominal value (rows: the varied parts in the order rf, rg, cf, rs, cs, rl, cl, riso, a0, gbw, ro)",
-    "x·∂F/∂x: the figure's change per unit relative change of the part (the figure's unit)",
-    "normalised sensitivity (x/F)·∂F/∂x",
-    "share of the figure's variance, 0 … 1",
-    "tighten first (TRUE on the part with the largest share)",
+    "nominal value (one row per varied part, in the order rf, rg, cf, rs, cs, rl, cl, riso, a0, gbw, ro)",
+    "x·∂F/∂x (the figure's change per unit relative change of the part, in the figure's unit)",
+    "(x/F)·∂F/∂x, normalised",
+    "variance share, 0 … 1",
+    "tighten first (TRUE on the largest share)",
 ];
 
 fn tighten(a: &Args<'_>) -> Value {
