@@ -207,7 +207,7 @@ fn words(text: &str) -> alloc::vec::Vec<(alloc::string::String, u32)> {
 /// let s = read_spread("±1 % normal 3σ +25 ppm/K").unwrap();
 /// assert_eq!(s.tolerance, Some(TypedTolerance::Normal { percent: 1.0, sigmas: 3.0 }));
 /// assert_eq!(s.tempco_ppm, Some(25.0));
-/// assert_eq!(read_spread("1 k%").unwrap_err().column(), Some(1));
+/// assert_eq!(read_spread("1k%").unwrap_err().column(), Some(1));
 /// ```
 pub fn read_spread(text: &str) -> Result<TypedSpread> {
     let mut tol: Option<(TypedTolerance, u32)> = None;
