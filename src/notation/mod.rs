@@ -23,6 +23,8 @@
 //!   (`S` siemens, `s` second; `hz` is an error).
 //! - `%` at the end (÷ 100), attached or after one space, where the context
 //!   allows it, without prefix or unit.
+//! - A part's spread ([`read_spread`]): `±1 %`, `1 % normal 3σ`, `46.5k…47.5k`,
+//!   `45k/47k/49k`, `25 ppm/K`, each number read as above.
 //! - Lists ([`read_list`]): items separated by `,` or `;`; a blank alone does
 //!   not separate (`4.7 k` is one value), an empty item is an error.
 //!
@@ -43,6 +45,7 @@
 mod decimal;
 mod format;
 mod read;
+mod spread;
 mod unit;
 
 pub use format::{
@@ -50,6 +53,7 @@ pub use format::{
     write_full, MAX_UNIT_LEN,
 };
 pub use read::{read, read_list, scan, ReadOptions, Reading, MAX_DIGITS, MAX_LIST_ITEMS};
+pub use spread::{read_range, read_spread, TypedSpread, TypedTolerance, DEFAULT_SIGMAS};
 pub use unit::Unit;
 
 use crate::error::Result;

@@ -516,9 +516,10 @@ TOLERANCES[RC_DENSITY] = ([1e-12], "one nodal solve of the RC")
 TOLERANCES[RC_TOTAL] = ([1e-8], "the core integrates the density to REL_TOL = 1e-9 per piece")
 
 
-# --- tolerance (TOLERANCE.): the gain-48 stage, Rf = 47k and Rg = 1k uniform over ±1 %.
+# --- tolerance (TOLERANCE.): the gain-48 stage, Rf = 47k and Rg = 1k within ±1 %.
 G48 = '"kind=non-inverting, a0=200k, a0Min=50k, a0Max=1M, gbwHz=10M, rf=47k, rg=1k"'
-TOL_WC = '=TOLERANCE.WORSTCASE(' + G48 + '; "rf=1%, rg=1%"; "gainDb"; 20 kHz)'
+TOL_WC = ('=TOLERANCE.WORSTCASE(' + G48 + '; "rf=1% 25ppm/K, rg=1% normal 3σ -25ppm/K"; '
+          '"gainDb"; 20 kHz; "0…70")')
 
 
 def gain48_db(rf, rg, a0, f=M(20000), gbw=M(10**7)):
@@ -527,10 +528,52 @@ def gain48_db(rf, rg, a0, f=M(20000), gbw=M(10**7)):
     return 20 * mp.log10(abs(a / (1 + a * rg / (rf + rg))))
 
 
-TOL_CORNERS = [gain48_db(rf, rg, a0) for rf in (M(46530), M(47470)) for rg in (M(990), M(1010))
-               for a0 in (M(50000), M(10**6))]
-CASES[TOL_WC] = [min(TOL_CORNERS), gain48_db(M(47000), M(1000), M(200000)), max(TOL_CORNERS)]
+def drift(value, ppm, t):
+    """The linear temperature coefficient of IEC 60115-1 about 25 °C."""
+    return value * (1 + M(ppm) * M("1e-6") * (M(t) - 25))
+
+
+# Every corner of Rf, Rg (±1 %: a normal part sold as ±1 % is screened to it),
+# A0 (min, max) at both ends of 0 … 70 °C; the nominal at the first temperature.
+TOL_CORNERS = [gain48_db(drift(rf, 25, t), drift(rg, -25, t), a0)
+               for rf in (M(46530), M(47470)) for rg in (M(990), M(1010))
+               for a0 in (M(50000), M(10**6)) for t in (0, 70)]
+CASES[TOL_WC] = [min(TOL_CORNERS), gain48_db(drift(M(47000), 25, 0), drift(M(1000), -25, 0), M(200000)),
+                 max(TOL_CORNERS)]
 TOLERANCES[TOL_WC] = ([1e-9, 1e-9, 1e-9], "the nodal solve against the closed form, as tests/tolerance_stage.rs")
+
+# TOLERANCE.SENSITIVITY: the same stage without an A0 spread; Rf uniform ±1 %,
+# Rg normal ±1 % at 3 sigma. x dF/dx by mpmath's numerical derivative of the
+# closed form at 40 digits; each part's sd from its distribution: uniform
+# (2 t x)/sqrt(12), the truncated normal's by quadrature of z^2 phi(z) over ±3;
+# shares (dF/dx sd)^2 / sum (first-order propagation of variance, GUM JCGM
+# 100:2008 §5.1.2, from memory).
+TOL_SENS = ('=TOLERANCE.SENSITIVITY("kind=non-inverting, a0=200k, gbwHz=10M, rf=47k, rg=1k"; '
+            '"rf=1%, rg=1% normal 3σ"; "gainDb"; 20 kHz)')
+
+
+def sensitivity_rows():
+    a0, rf, rg = M(200000), M(47000), M(1000)
+    f0 = gain48_db(rf, rg, a0)
+    d_rf = rf * mp.diff(lambda x: gain48_db(x, rg, a0), rf)
+    d_rg = rg * mp.diff(lambda x: gain48_db(rf, x, a0), rg)
+    phi = lambda z: mp.exp(-z * z / 2) / mp.sqrt(2 * mp.pi)
+    trunc_var = mp.quad(lambda z: z * z * phi(z), [-3, 3]) / mp.quad(phi, [-3, 3])
+    sd_rf = M("0.02") / mp.sqrt(12)                       # relative
+    sd_rg = M("0.01") / 3 * mp.sqrt(trunc_var)            # relative
+    terms = [(d_rf * sd_rf) ** 2, (d_rg * sd_rg) ** 2]
+    total = sum(terms)
+    shares = [t / total for t in terms]
+    first = 0 if shares[0] > shares[1] else 1
+    return [rf, d_rf, d_rf / f0, shares[0], M(first == 0),
+            rg, d_rg, d_rg / f0, shares[1], M(first == 1)]
+
+
+CASES[TOL_SENS] = sensitivity_rows()
+TOLERANCES[TOL_SENS] = (
+    [0, 1e-6, 1e-6, 1e-6, 0] * 2,
+    "central differences with a step of 1e-4 of each part on the nodal solve (truncation ~1e-8, "
+    "rounding of the solve ~1e-8 relative); the values and the flag exact")
 
 TOL_YIELD_LIMITS = (M("33.5813"), M("33.6681"))
 TOL_YIELD_TRIALS = 20000
@@ -567,6 +610,43 @@ TOLERANCES[TOL_YIELD] = (
     float(4 * mp.sqrt(TOL_YIELD_P * (1 - TOL_YIELD_P) / TOL_YIELD_TRIALS) / TOL_YIELD_P),
     "statistical: 4 standard errors sqrt(y(1 - y)/N) of a share of 20000 seeded draws")
 
+
+# TOLERANCE.MONTECARLO: the same ideal-amplifier stage, Rf and Rg uniform over
+# ±1 %; the exact distribution of F = 20 log10(1 + 47 (1 + u)/(1 + v)).
+TOL_MC_TRIALS = 20000
+TOL_MC = ('=TOLERANCE.MONTECARLO("kind=non-inverting, a0=1e12, gbwHz=10M, rf=47k, rg=1k"; "rf=1%, rg=1%"; '
+          '"gainDb"; 0; 20000; 1)')
+
+
+def tolerance_mc():
+    t = M("0.01")
+    f = lambda u, v: 20 * mp.log10(1 + 47 * (1 + u) / (1 + v))
+    moment = lambda g: mp.quad(lambda u, v: g(f(u, v)), [-t, t], [-t, t]) / (2 * t) ** 2
+    mean = moment(lambda x: x)
+    var = moment(lambda x: (x - mean) ** 2)
+    mu4 = moment(lambda x: (x - mean) ** 4)
+    sd = mp.sqrt(var)
+    lo, hi = f(-t, t), f(t, -t)
+    cdf = lambda x: uniform_ratio_yield(M(47), lo - 1, x)
+    values, tols = [mean, sd], [5 * sd / mp.sqrt(TOL_MC_TRIALS) / mean,
+                                5 * mp.sqrt((mu4 - var ** 2) / (4 * var * TOL_MC_TRIALS)) / sd]
+    for q in (M("0.001"), M("0.01"), M("0.05"), M("0.5"), M("0.95"), M("0.99"), M("0.999")):
+        a, b = lo, hi
+        for _ in range(80):
+            m = (a + b) / 2
+            a, b = (m, b) if cdf(m) < q else (a, m)
+        x = (a + b) / 2
+        pdf = mp.diff(cdf, x)
+        values.append(x)
+        tols.append(5 * mp.sqrt(q * (1 - q) / TOL_MC_TRIALS) / pdf / x)
+    return values, [float(x) for x in tols]
+
+
+CASES[TOL_MC], _tol_mc = tolerance_mc()
+TOLERANCES[TOL_MC] = (
+    _tol_mc,
+    "statistical: 5 standard errors of each statistic of 20000 seeded draws (mean sd/sqrt(N); sd "
+    "sqrt((mu4 - sd^4)/(4 sd^2 N)); a percentile sqrt(q(1 - q)/N)/pdf)")
 
 def evaluate():
     cases = []

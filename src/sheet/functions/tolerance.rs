@@ -1,26 +1,40 @@
 //! Worksheet functions of the tolerance area (`src/tolerance`), prefix
-//! `TOLERANCE.`: the worst case and the Monte Carlo yield of one figure of a
-//! stage described in cells (`docs/tolerance.md`).
+//! `TOLERANCE.`: the worst case, the Monte Carlo yield and the sensitivities
+//! of one figure of a stage described in cells (`docs/tolerance.md`).
 //!
 //! The stage is the argument of the `STAGE.` functions (a range of name/value
 //! pairs or a text `"name=value, …"`). The spreads are a text of
-//! `part=percent` items, each part uniform within ±percent of its value:
-//! `"rf=1%, rg=0.1%"` (the `%` may be left out); the amplifier's A0 spread is
-//! the stage's `a0Min`/`a0Max`. The figure is one of `gainDb`, `phaseDeg`
-//! (at the frequency argument), `bandwidthHz`, `peakingDb`, `phaseMarginDeg`,
-//! `gainMarginDb`, `inputImpedanceOhm`, `outputImpedanceOhm` (at the frequency).
+//! `part=spread` items separated by commas, each spread read by
+//! [`crate::notation::read_spread`]: `"rf=1%, rg=0.1% normal 3σ 25ppm/K,
+//! cf=9p..11p, gbw=8M/10M/13M, ro=40…70"`. Parts: the stage's `rf`, `rg`,
+//! `cf`, `rs`, `cs`, `rl`, `cl`, `riso` (any tolerance and a tempco); the
+//! amplifier's `a0`, `gbw` (or `gbwHz`) and `ro` (min…max, min/typ/max with
+//! typ the stage's own figure, or ± %; no tempco). An `a0` spread replaces the
+//! stage's `a0Min`/`a0Max`. The figure is one of `gainDb`, `phaseDeg` (at the
+//! frequency argument), `bandwidthHz`, `peakingDb`, `phaseMarginDeg`,
+//! `gainMarginDb`, `inputImpedanceOhm`, `outputImpedanceOhm` (at the
+//! frequency), or a name with its value: `"gainErrorPercent 48"` (at the
+//! frequency, against the target gain), `"outputNoiseRms 10…20k"`,
+//! `"inputNoiseRms 10…20k"` (over the band, Hz), `"settlingTimeS 0.1%"`.
+//! The optional temperature is one temperature or a range `"0…70"` (°C;
+//! left out, 25 °C, the reference of the parts' values), read by
+//! [`crate::notation::read_range`].
 
 use super::stage::{circuit_fail, stage_of};
 use super::{req, tri, Args, Example, Expected, FunctionSpec, Param};
 use crate::circuit::tolerance::Tolerance;
+use crate::circuit::CircuitError;
+use crate::notation::{read, read_range, read_spread, ReadOptions, TypedTolerance};
 use crate::sheet::errors::{CellError, ErrorKind};
-use crate::sheet::value::{Array, Value};
+use crate::sheet::value::{Array, Unit, Value};
+use crate::stage::{Spread, SpreadPoint, Stage};
+use crate::tolerance::parts::{slot_value, NAMES, REFERENCE_C};
 use crate::tolerance::{
-    monte_carlo, worst_case, AmplifierSpread, Figure, Limit, MonteCarloOptions, PartSpread,
-    TolStage, DEFAULT_MAX_CORNERS,
+    monte_carlo, sensitivity, worst_case, AmplifierSpread, Figure, Limit, MonteCarloOptions,
+    PartSpread, TolStage, DEFAULT_MAX_CORNERS,
 };
 use alloc::format;
-use alloc::string::ToString;
+use alloc::string::{String, ToString};
 use alloc::vec;
 use alloc::vec::Vec;
 
@@ -32,19 +46,19 @@ const STAGE: Param = req(
 );
 const SPREADS: Param = req(
     "spreads",
-    "the parts' tolerances: a text \"rf=1%, rg=1%\" (uniform ±percent)",
+    "the parts' spreads: a text \"rf=1%, rg=0.1% normal 3σ 25ppm/K, cf=9p…11p, gbw=8M/10M/13M, ro=40…70\" (± % uniform unless normal or kσ; min…max; min/typ/max; ppm/K)",
     "text",
-    "parts of the stage, 0 … 100 %",
+    "parts rf rg cf rs cs rl cl riso a0 gbw ro; 0 … 100 %; min ≤ typ ≤ max",
 );
 const FIGURE: Param = req(
     "figure",
-    "the figure: gainDb, phaseDeg, bandwidthHz, peakingDb, phaseMarginDeg, gainMarginDb, inputImpedanceOhm, outputImpedanceOhm",
+    "the figure: gainDb, phaseDeg, bandwidthHz, peakingDb, phaseMarginDeg, gainMarginDb, inputImpedanceOhm, outputImpedanceOhm; \"gainErrorPercent 48\" (against a target gain), \"outputNoiseRms 10…20k\" or \"inputNoiseRms 10…20k\" (over a band, Hz), \"settlingTimeS 0.1%\" (to a band)",
     "text",
     "one of the names",
 );
 const FREQUENCY: Param = req(
     "frequency",
-    "frequency of gainDb, phaseDeg and the impedances (ignored by the others)",
+    "frequency of gainDb, phaseDeg, gainErrorPercent and the impedances (ignored by the others)",
     "Hz",
     "≥ 0",
 );
@@ -62,132 +76,499 @@ const UPPER: Param = req(
 );
 const TRIALS: Param = req("trials", "Monte Carlo trials", "1", "2 … 100000");
 const SEED: Param = req("seed", "seed of the generator", "1", "0 … 2^53 − 1, whole");
-const WORST: &[Param] = &[STAGE, SPREADS, FIGURE, FREQUENCY];
+const TEMPERATURE: Param = Param {
+    name: "temperature",
+    summary: "temperature or range, °C: a number, a text \"0…70\" (or \"0..70\") or two cells; left out, 25 °C",
+    unit: "°C",
+    optional: true,
+    default: None,
+    range: "-273.15 … 1000, low ≤ high",
+};
+const WORST: &[Param] = &[STAGE, SPREADS, FIGURE, FREQUENCY, TEMPERATURE];
 const YIELD: &[Param] = &[
-    STAGE, SPREADS, FIGURE, FREQUENCY, LOWER, UPPER, TRIALS, SEED,
+    STAGE,
+    SPREADS,
+    FIGURE,
+    FREQUENCY,
+    LOWER,
+    UPPER,
+    TRIALS,
+    SEED,
+    TEMPERATURE,
 ];
-const PARTS: [&str; 8] = ["rf", "rg", "cf", "rs", "cs", "rl", "cl", "riso"];
+const MONTE: &[Param] = &[STAGE, SPREADS, FIGURE, FREQUENCY, TRIALS, SEED, TEMPERATURE];
+/// The amplifier figures a spread may be given for, with their names in the
+/// error messages.
+const AMPLIFIER_PARTS: &str = "a0, gbw, ro";
 
 fn fail(a: &Args<'_>, what: &str) -> CellError {
     CellError::new(ErrorKind::Value, format!("{}: {what}", a.spec.name))
 }
 
-/// The spreads argument (argument 1).
-fn spreads(a: &Args<'_>) -> Result<Vec<PartSpread>, CellError> {
+/// A core error about the spreads or the temperature, naming the argument and
+/// the part; the stage's own errors as `STAGE.` shows them.
+fn tol_fail(a: &Args<'_>, e: CircuitError) -> CellError {
+    let arg = match e.error.param() {
+        "part" | "tolerance" | "tempco" | "gbwHz" | "ro" | "a0" => "spreads",
+        "temperature" => "temperature",
+        "lower" | "upper" => "limits",
+        "freqHz" => "frequency",
+        "target" | "bandHz" | "band" => "figure",
+        _ => return circuit_fail(a, e),
+    };
+    let kind = match e.error {
+        crate::Error::UnknownName { .. } | crate::Error::OutOfDomain { .. } => ErrorKind::Value,
+        _ => ErrorKind::Num,
+    };
+    let text = e.to_string();
+    // The argument itself (temperature, frequency) is named once.
+    let text = match (arg, e.name.is_empty()) {
+        ("temperature" | "frequency", true) => text
+            .strip_prefix(e.error.param())
+            .and_then(|t| t.strip_prefix(": "))
+            .map_or(text.clone(), String::from),
+        _ => text,
+    };
+    CellError::new(kind, format!("{}: {arg}: {text}", a.spec.name))
+}
+
+/// A reader's error as "column n: why" (its parameter is the whole text).
+fn syntax(e: crate::Error) -> String {
+    match e {
+        crate::Error::Syntax { column, reason, .. } => format!("column {column}: {reason}"),
+        other => other.to_string(),
+    }
+}
+
+/// What the spreads argument (argument 1) gives: the stage with its A0
+/// spread, the parts' spreads and the amplifier's.
+struct Spreads {
+    stage: Stage,
+    parts: Vec<PartSpread>,
+    amplifier: AmplifierSpread,
+}
+
+/// An amplifier figure's spread from its typed tolerance, typ = the model's `typ`.
+fn amplifier_spread(
+    a: &Args<'_>,
+    name: &str,
+    t: Option<TypedTolerance>,
+    typ: f64,
+) -> Result<Spread, CellError> {
+    let s = match t {
+        Some(TypedTolerance::Uniform { percent }) => {
+            if !(0.0..100.0).contains(&percent) {
+                return Err(fail(
+                    a,
+                    &format!("spreads: {name}: a tolerance must be from 0 to below 100 %"),
+                ));
+            }
+            Spread {
+                min: typ * (1.0 - percent / 100.0),
+                typ,
+                max: typ * (1.0 + percent / 100.0),
+            }
+        }
+        Some(TypedTolerance::Range { min, max }) => Spread { min, typ, max },
+        Some(TypedTolerance::MinTypMax { min, typ: t, max }) => {
+            if (t - typ).abs() > 1e-12 * typ.abs() {
+                return Err(fail(
+                    a,
+                    &format!("spreads: {name}: typ must be the stage's own figure ({typ})"),
+                ));
+            }
+            Spread { min, typ, max }
+        }
+        Some(TypedTolerance::Normal { .. }) | None => {
+            return Err(fail(
+                a,
+                &format!(
+                    "spreads: {name}: an amplifier figure takes min…max, min/typ/max or ± % (drawn as its datasheet spread), without a tempco"
+                ),
+            ))
+        }
+    };
+    if !(s.min <= s.typ && s.typ <= s.max) || s.min <= 0.0 {
+        return Err(fail(
+            a,
+            &format!("spreads: {name}: must be above zero and in order min ≤ typ ≤ max"),
+        ));
+    }
+    Ok(s)
+}
+
+/// The spreads argument (argument 1) over the stage of argument 0.
+fn spreads(a: &Args<'_>) -> Result<Spreads, CellError> {
+    let mut stage = stage_of(a)?;
     let text = a.text(1)?;
-    let mut out = Vec::new();
+    let mut parts = Vec::new();
+    let mut amplifier = AmplifierSpread::default();
+    let mut a0_given = false;
     for item in text.split(',').filter(|i| !i.trim().is_empty()) {
         let Some((name, value)) = item.split_once('=') else {
             return Err(fail(
                 a,
-                &format!("spreads: \"{}\" is not part=percent", item.trim()),
+                &format!("spreads: \"{}\" is not part=spread", item.trim()),
             ));
         };
         let name = name.trim().to_ascii_lowercase();
-        let Some(part) = PARTS.iter().find(|p| **p == name) else {
-            return Err(fail(
-                a,
-                &format!("spreads: unknown part \"{name}\"; the parts are rf, rg, cf, rs, cs, rl, cl, riso"),
-            ));
-        };
-        let v = value.trim().trim_end_matches('%').trim();
-        let percent = crate::notation::parse_value(v).map_err(|_| {
+        let typed = read_spread(value).map_err(|e| {
             fail(
                 a,
-                &format!("spreads: \"{}\" is not a percentage", value.trim()),
+                &format!("spreads: {name}: \"{}\": {}", value.trim(), syntax(e)),
             )
         })?;
-        out.push(PartSpread {
-            part,
-            tolerance: Some(Tolerance::Uniform { percent }),
-            tempco_ppm: None,
-        });
-    }
-    Ok(out)
-}
-
-/// The figure of arguments 2 and 3.
-fn figure(a: &Args<'_>) -> Result<Figure, CellError> {
-    let name = a.text(2)?;
-    let f = a.number(3)?;
-    Ok(match name.trim() {
-        "gainDb" => Figure::GainDb { freq_hz: f },
-        "phaseDeg" => Figure::PhaseDeg { freq_hz: f },
-        "bandwidthHz" => Figure::BandwidthHz,
-        "peakingDb" => Figure::PeakingDb,
-        "phaseMarginDeg" => Figure::PhaseMarginDeg,
-        "gainMarginDb" => Figure::GainMarginDb,
-        "inputImpedanceOhm" => Figure::InputImpedanceOhm { freq_hz: f },
-        "outputImpedanceOhm" => Figure::OutputImpedanceOhm { freq_hz: f },
-        other => {
-            return Err(fail(
+        if let Some(k) = NAMES.iter().position(|(p, _)| *p == name) {
+            let (part, _) = NAMES[k];
+            // min…max takes the part's own value as typ (a part the stage
+            // lacks is refused by the analysis, naming it).
+            let own = slot_value(&stage.parts, k).unwrap_or(1.0);
+            let tolerance = typed.tolerance.map(|t| match t {
+                TypedTolerance::Uniform { percent } => Tolerance::Uniform { percent },
+                TypedTolerance::Normal { percent, sigmas } => Tolerance::Normal { percent, sigmas },
+                TypedTolerance::Range { min, max } => Tolerance::Limits { min, typ: own, max },
+                TypedTolerance::MinTypMax { min, typ, max } => Tolerance::Limits { min, typ, max },
+            });
+            parts.push(PartSpread {
+                part,
+                tolerance,
+                tempco_ppm: typed.tempco_ppm,
+            });
+            continue;
+        }
+        let unknown = || {
+            fail(
                 a,
                 &format!(
-                    "figure: unknown figure \"{other}\"; see the function's help for the names"
+                    "spreads: unknown part \"{name}\"; the parts are {}, {AMPLIFIER_PARTS}",
+                    crate::tolerance::parts::PART_NAMES
                 ),
-            ))
+            )
+        };
+        if !matches!(name.as_str(), "a0" | "gbw" | "gbwhz" | "ro") {
+            return Err(unknown());
         }
+        if typed.tempco_ppm.is_some() {
+            return Err(fail(
+                a,
+                &format!("spreads: {name}: an amplifier figure takes no tempco here"),
+            ));
+        }
+        let model = &stage.amplifier;
+        let twice = || {
+            fail(
+                a,
+                &format!("spreads: {name}: given twice; give each part once"),
+            )
+        };
+        match name.as_str() {
+            "a0" => {
+                if a0_given {
+                    return Err(twice());
+                }
+                a0_given = true;
+                let typ = model.a0.typ;
+                stage.amplifier.a0 = amplifier_spread(a, "a0", typed.tolerance, typ)?;
+            }
+            "gbw" | "gbwhz" => {
+                if amplifier.gbw_hz.is_some() {
+                    return Err(twice());
+                }
+                let typ = model
+                    .gbw_at(SpreadPoint::Typ)
+                    .map_err(|e| fail(a, &format!("spreads: gbw: {e}")))?;
+                amplifier.gbw_hz = Some(amplifier_spread(a, "gbw", typed.tolerance, typ)?);
+            }
+            "ro" => {
+                if amplifier.ro.is_some() {
+                    return Err(twice());
+                }
+                amplifier.ro = Some(amplifier_spread(a, "ro", typed.tolerance, model.ro)?);
+            }
+            _ => return Err(unknown()),
+        }
+    }
+    Ok(Spreads {
+        stage,
+        parts,
+        amplifier,
     })
 }
 
-fn tol_stage(a: &Args<'_>) -> Result<TolStage, CellError> {
-    let stage = stage_of(a)?;
-    let spreads = spreads(a)?;
-    TolStage::new(&stage, &spreads, AmplifierSpread::default(), [25.0, 25.0])
-        .map_err(|e| circuit_fail(a, e))
+/// The temperature argument `i`: a number, a text "low…high" or two cells; °C.
+fn temperature(a: &Args<'_>, i: usize) -> Result<[f64; 2], CellError> {
+    let bad = |what: &str| fail(a, &format!("temperature: {what}"));
+    match a.get(i) {
+        Value::Empty => Ok([REFERENCE_C, REFERENCE_C]),
+        Value::Number(t, _) => Ok([*t, *t]),
+        Value::Text(t) => read_range(t, &ReadOptions::VALUE)
+            .map_err(|e| bad(&format!("\"{}\": {}", t.trim(), syntax(e)))),
+        Value::Array(arr) => {
+            let mut v = Vec::new();
+            for item in arr.items() {
+                match item {
+                    Value::Number(x, _) => v.push(*x),
+                    Value::Empty => {}
+                    Value::Error(e) => return Err(e.clone()),
+                    _ => return Err(bad("a range of two numbers, low and high")),
+                }
+            }
+            match v.as_slice() {
+                [t] => Ok([*t, *t]),
+                [lo, hi] => Ok([*lo, *hi]),
+                _ => Err(bad("a range of two numbers, low and high")),
+            }
+        }
+        Value::Error(e) => Err(e.clone()),
+        Value::Bool(_) => Err(bad("a number, a text \"low…high\" or two cells")),
+    }
+}
+
+/// The figure of arguments 2 and 3: a name, and for some a value after it
+/// (`"gainErrorPercent 48"`: the target gain; `"outputNoiseRms 10…20k"`: the
+/// band, Hz; `"settlingTimeS 0.1%"`: the band, a fraction).
+fn figure(a: &Args<'_>) -> Result<Figure, CellError> {
+    let text = a.text(2)?;
+    let text = text.trim();
+    let (name, rest) = text
+        .split_once(char::is_whitespace)
+        .map_or((text, ""), |(n, r)| (n, r.trim()));
+    let f = a.number(3)?;
+    let needs = |what: &str| fail(a, &format!("figure: {name} needs {what} after its name"));
+    let bad = |e: crate::Error| fail(a, &format!("figure: \"{rest}\": {}", syntax(e)));
+    let plain = |fig: Figure| {
+        if rest.is_empty() {
+            Ok(fig)
+        } else {
+            Err(fail(
+                a,
+                &format!("figure: {name} takes nothing after its name (\"{rest}\")"),
+            ))
+        }
+    };
+    match name {
+        "gainDb" => plain(Figure::GainDb { freq_hz: f }),
+        "phaseDeg" => plain(Figure::PhaseDeg { freq_hz: f }),
+        "bandwidthHz" => plain(Figure::BandwidthHz),
+        "peakingDb" => plain(Figure::PeakingDb),
+        "phaseMarginDeg" => plain(Figure::PhaseMarginDeg),
+        "gainMarginDb" => plain(Figure::GainMarginDb),
+        "inputImpedanceOhm" => plain(Figure::InputImpedanceOhm { freq_hz: f }),
+        "outputImpedanceOhm" => plain(Figure::OutputImpedanceOhm { freq_hz: f }),
+        "gainErrorPercent" if rest.is_empty() => {
+            Err(needs("the target gain (\"gainErrorPercent 48\")"))
+        }
+        "gainErrorPercent" => Ok(Figure::GainErrorPercent {
+            freq_hz: f,
+            target: read(rest, &ReadOptions::VALUE).map_err(bad)?.value,
+        }),
+        "outputNoiseRms" | "inputNoiseRms" => {
+            if rest.is_empty() {
+                return Err(needs("the band in Hz (\"outputNoiseRms 10…20k\")"));
+            }
+            let band_hz = read_range(rest, &ReadOptions::VALUE).map_err(bad)?;
+            Ok(if name == "outputNoiseRms" {
+                Figure::OutputNoiseRms { band_hz }
+            } else {
+                Figure::InputNoiseRms { band_hz }
+            })
+        }
+        "settlingTimeS" if rest.is_empty() => {
+            Err(needs("the settling band (\"settlingTimeS 0.1%\")"))
+        }
+        "settlingTimeS" => Ok(Figure::SettlingTimeS {
+            band: read(rest, &ReadOptions::CELL).map_err(bad)?.value,
+        }),
+        other => Err(fail(
+            a,
+            &format!(
+                "figure: unknown figure \"{other}\"; the figures are {}",
+                crate::tolerance::FIGURE_NAMES
+            ),
+        )),
+    }
+}
+
+/// The stage under its spreads at the temperature of argument `t_arg`.
+fn tol_stage(a: &Args<'_>, t_arg: usize) -> Result<TolStage, CellError> {
+    let s = spreads(a)?;
+    let t = temperature(a, t_arg)?;
+    TolStage::new(&s.stage, &s.parts, s.amplifier, t).map_err(|e| tol_fail(a, e))
+}
+
+fn open_limit(a: &Args<'_>) -> Result<Limit, CellError> {
+    Ok(Limit {
+        figure: figure(a)?,
+        lower: None,
+        upper: None,
+    })
+}
+
+fn row(items: Vec<Value>) -> Value {
+    Array::row(items).map_or_else(
+        || Value::error(ErrorKind::Value, "empty result"),
+        Value::Array,
+    )
 }
 
 fn worst(a: &Args<'_>) -> Value {
-    let ts = tri!(tol_stage(a));
-    let figure = tri!(figure(a));
-    let limit = Limit {
-        figure,
-        lower: None,
-        upper: None,
-    };
+    let ts = tri!(tol_stage(a, 4));
+    let limit = tri!(open_limit(a));
     match worst_case(&ts, &[limit], DEFAULT_MAX_CORNERS) {
         Ok(w) => {
             let f = &w.figures[0];
-            Array::row(vec![
+            row(vec![
                 Value::num(f.min.value),
                 Value::num(f.nominal),
                 Value::num(f.max.value),
             ])
-            .map_or_else(
-                || Value::error(ErrorKind::Value, "empty result"),
-                Value::Array,
-            )
         }
-        Err(e) => Value::Error(circuit_fail(a, e)),
+        Err(e) => Value::Error(tol_fail(a, e)),
     }
 }
 
 fn yield_fraction(a: &Args<'_>) -> Value {
-    let ts = tri!(tol_stage(a));
+    let ts = tri!(tol_stage(a, 8));
     let figure = tri!(figure(a));
     let limit = Limit {
         figure,
         lower: Some(tri!(a.number(4))),
         upper: Some(tri!(a.number(5))),
     };
-    let trials = tri!(crate::network::montecarlo::count_from_number(
+    let o = tri!(run_options(a, 6));
+    match monte_carlo(&ts, &[limit], o) {
+        Ok(mc) => Value::num(mc.yield_fraction),
+        Err(e) => Value::Error(tol_fail(a, e)),
+    }
+}
+
+/// The trials and seed arguments `i`, `i + 1`.
+fn run_options(a: &Args<'_>, i: usize) -> Result<MonteCarloOptions, CellError> {
+    let trials = crate::network::montecarlo::count_from_number(
         "trials",
-        tri!(a.number(6)),
-        crate::tolerance::MAX_TRIALS
+        a.number(i)?,
+        crate::tolerance::MAX_TRIALS,
     )
-    .map_err(|e| fail(a, &e.to_string())));
+    .map_err(|e| fail(a, &e.to_string()))?;
     let seed =
-        tri!(crate::network::seed_from_number(tri!(a.number(7)))
-            .map_err(|e| fail(a, &e.to_string())));
-    let o = MonteCarloOptions {
+        crate::network::seed_from_number(a.number(i + 1)?).map_err(|e| fail(a, &e.to_string()))?;
+    Ok(MonteCarloOptions {
         seed,
         trials,
         bins: 1,
         keep_failures: 0,
+    })
+}
+
+fn distribution(a: &Args<'_>) -> Value {
+    let ts = tri!(tol_stage(a, 6));
+    let limit = tri!(open_limit(a));
+    let o = tri!(run_options(a, 4));
+    let mc = match monte_carlo(&ts, &[limit], o) {
+        Ok(mc) => mc,
+        Err(e) => return Value::Error(tol_fail(a, e)),
     };
-    match monte_carlo(&ts, &[limit], o) {
-        Ok(mc) => Value::num(mc.yield_fraction),
-        Err(e) => Value::Error(circuit_fail(a, e)),
+    let Some(l) = mc.limits.first() else {
+        return Value::error(ErrorKind::Value, "empty result");
+    };
+    if l.undefined > 0 {
+        return Value::error(
+            ErrorKind::Num,
+            format!(
+                "{}: figure: not defined in {} of {} trials (no crossover or −3 dB point there); give TOLERANCE.YIELD limits to count them as failures",
+                a.spec.name, l.undefined, mc.trials
+            ),
+        );
+    }
+    match &l.stats {
+        Some(st) => {
+            let mut items = vec![Value::num(st.mean), Value::num(st.sd)];
+            items.extend(st.percentiles.iter().map(|p| Value::num(p.value)));
+            row(items)
+        }
+        None => Value::error(ErrorKind::Num, format!("{}: too few trials", a.spec.name)),
+    }
+}
+
+/// The unit of a varied quantity's value, from its name (`Rf` Ω, `Cl` F,
+/// `U1.gbwHz` Hz, `U1.ro` Ω, `U1.a0` none).
+fn unit_of(name: &str) -> Option<Unit> {
+    match name {
+        "U1.ro" => Some(Unit::Ohm),
+        "U1.gbwHz" => Some(Unit::Hertz),
+        n if n.starts_with('R') => Some(Unit::Ohm),
+        n if n.starts_with('C') => Some(Unit::Farad),
+        _ => None,
+    }
+}
+
+fn tagged(x: f64, unit: Option<Unit>) -> Value {
+    match Value::num(x) {
+        Value::Number(v, _) => Value::Number(v, unit),
+        other => other,
+    }
+}
+
+fn sensitivities(a: &Args<'_>) -> Value {
+    let ts = tri!(tol_stage(a, 4));
+    let limit = tri!(open_limit(a));
+    if ts.varied.is_empty() {
+        return Value::error(
+            ErrorKind::NotAvailable,
+            format!("{}: spreads: no part varies", a.spec.name),
+        );
+    }
+    let s = match sensitivity(&ts, &[limit]) {
+        Ok(s) => s,
+        Err(e) => return Value::Error(tol_fail(a, e)),
+    };
+    let f = &s.figures[0];
+    let mut items = Vec::with_capacity(f.parts.len() * SENSITIVITY_COLUMNS.len());
+    for (p, v) in f.parts.iter().zip(&ts.varied) {
+        items.extend([
+            tagged(v.nominal, unit_of(&v.name)),
+            Value::num(p.per_unit),
+            p.normalised.map_or_else(
+                || {
+                    Value::error(
+                        ErrorKind::NotAvailable,
+                        "the figure is 0 at nominal: no normalised sensitivity",
+                    )
+                },
+                Value::num,
+            ),
+            Value::num(p.variance_share),
+            Value::Bool(f.tighten_first.as_deref() == Some(p.part.as_str())),
+        ]);
+    }
+    let rows = u32::try_from(f.parts.len()).unwrap_or(u32::MAX);
+    let cols = u32::try_from(SENSITIVITY_COLUMNS.len()).unwrap_or(u32::MAX);
+    Array::new(rows, cols, items).map_or_else(
+        || Value::error(ErrorKind::Value, "empty result"),
+        Value::Array,
+    )
+}
+
+const SENSITIVITY_COLUMNS: &[&str] = &[
+    "nominal value (one row per varied part, in the order rf, rg, cf, rs, cs, rl, cl, riso, a0, gbw, ro)",
+    "x·∂F/∂x (the figure's change per unit relative change of the part, in the figure's unit)",
+    "(x/F)·∂F/∂x, normalised",
+    "variance share, 0 … 1",
+    "tighten first (TRUE on the largest share)",
+];
+
+fn tighten(a: &Args<'_>) -> Value {
+    let ts = tri!(tol_stage(a, 4));
+    let limit = tri!(open_limit(a));
+    match sensitivity(&ts, &[limit]) {
+        Ok(s) => match s.tighten_first {
+            Some(p) => Value::Text(String::from(p.as_str())),
+            None => Value::error(
+                ErrorKind::NotAvailable,
+                format!("{}: no part moves the figure", a.spec.name),
+            ),
+        },
+        Err(e) => Value::Error(tol_fail(a, e)),
     }
 }
 
@@ -203,15 +584,15 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
     FunctionSpec {
         name: "TOLERANCE.WORSTCASE",
         area: "tolerance",
-        summary: "Worst case of a stage figure over its parts' tolerances and the A0 spread: lowest, nominal, highest",
+        summary: "Worst case of a stage figure over its parts' tolerances, tempcos, the amplifier's spreads and a temperature range: lowest, nominal, highest",
         params: WORST,
         repeats: false,
         result_unit: "the figure's unit",
-        spill: &["lowest value", "value at nominal parts", "highest value"],
+        spill: &["lowest value", "value at nominal parts (the low end of the temperature range)", "highest value"],
         example: Example {
-            formula: concat!("=TOLERANCE.WORSTCASE(", gain48!(), "; \"rf=1%, rg=1%\"; \"gainDb\"; 20 kHz)"),
-            expected: Expected::Numbers(&[33.408336888786756, 33.58291814208909, 33.75311767551777]),
-            source: "20·log10|A/(1 + A·Rg/(Rf + Rg))| with A = A0/(1 + j·f·A0/GBW) at all 8 corners of Rf, Rg, A0, by mpmath (tests/reference/sheet_catalog.py)",
+            formula: concat!("=TOLERANCE.WORSTCASE(", gain48!(), "; \"rf=1% 25ppm/K, rg=1% normal 3σ -25ppm/K\"; \"gainDb\"; 20 kHz; \"0…70\")"),
+            expected: Expected::Numbers(&[33.397813294148236, 33.572386555375424, 33.77207907014538]),
+            source: "20·log10|A/(1 + A·Rg/(Rf + Rg))| with A = A0/(1 + j·f·A0/GBW) at all 16 corners of Rf, Rg, A0 and 0, 70 °C (Rf, Rg drifted by ±25 ppm/K from 25 °C), by mpmath (tests/reference/sheet_catalog.py)",
             tolerance: &[1e-9, 1e-9, 1e-9],
         },
         eval: worst,
@@ -219,7 +600,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
     FunctionSpec {
         name: "TOLERANCE.YIELD",
         area: "tolerance",
-        summary: "Seeded Monte Carlo yield of a stage figure over its parts' tolerances and the A0 spread: the share of trials within the limits",
+        summary: "Seeded Monte Carlo yield of a stage figure over its parts' tolerances, tempcos, the amplifier's spreads and a temperature range: the share of trials within the limits",
         params: YIELD,
         repeats: false,
         result_unit: "1",
@@ -231,5 +612,64 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             tolerance: &[0.03157522432108086],
         },
         eval: yield_fraction,
+    },
+    FunctionSpec {
+        name: "TOLERANCE.SENSITIVITY",
+        area: "tolerance",
+        summary: "Sensitivity of a stage figure to each varied part at nominal: per unit change, normalised, share of the figure's variance, and the part to tighten first",
+        params: WORST,
+        repeats: false,
+        result_unit: "the figure's unit per unit; 1",
+        spill: SENSITIVITY_COLUMNS,
+        example: Example {
+            formula: "=TOLERANCE.SENSITIVITY(\"kind=non-inverting, a0=200k, gbwHz=10M, rf=47k, rg=1k\"; \"rf=1%, rg=1% normal 3σ\"; \"gainDb\"; 20 kHz)",
+            expected: Expected::Numbers(&[
+                47000.0, 8.42528276105614, 0.2508800076696381, 0.7550328746044591, 1.0,
+                1000.0, -8.42528276105614, -0.2508800076696381, 0.24496712539554086, 0.0,
+            ]),
+            source: "x·∂F/∂x of 20·log10|A/(1 + A·Rg/(Rf + Rg))|, A = A0/(1 + j·f·A0/GBW), by mpmath's derivative; shares from the parts' standard deviations (uniform 2·1 %/√12, normal 1 %/3 truncated at 3 σ by quadrature), by mpmath (tests/reference/sheet_catalog.py)",
+            tolerance: &[0.0, 1e-6, 1e-6, 1e-6, 0.0, 0.0, 1e-6, 1e-6, 1e-6, 0.0],
+        },
+        eval: sensitivities,
+    },
+    FunctionSpec {
+        name: "TOLERANCE.MONTECARLO",
+        area: "tolerance",
+        summary: "Seeded Monte Carlo distribution of a stage figure over its parts' spreads, the amplifier's and a temperature range: mean, standard deviation, percentiles",
+        params: MONTE,
+        repeats: false,
+        result_unit: "the figure's unit",
+        spill: &["mean", "standard deviation", "0.1 %", "1 %", "5 %", "50 %", "95 %", "99 %", "99.9 %"],
+        example: Example {
+            formula: "=TOLERANCE.MONTECARLO(\"kind=non-inverting, a0=1e12, gbwHz=10M, rf=47k, rg=1k\"; \"rf=1%, rg=1%\"; \"gainDb\"; 0; 20000; 1)",
+            expected: Expected::Numbers(&[
+                33.624830654060396, 0.06944407586473278, 33.462360367991735, 33.47880345316607,
+                33.50852957021138, 33.624824747511745, 33.741153063970344, 33.77089829180124,
+                33.787353809962326,
+            ]),
+            source: "exact distribution of 20·log10(1 + Rf/Rg), Rf and Rg uniform over ±1 %: mean and sd by mpmath quadrature, percentiles by root-finding on the exact share (tests/reference/sheet_catalog.py); the seeded sample agrees within 5 standard errors of each statistic",
+            tolerance: &[
+                7.30180286443405e-05, 0.02091673621176311, 0.00012697384773502249,
+                0.0001263435861350394, 0.00012366372954012044, 8.942643225718844e-05,
+                0.00012288115074623437, 0.00012534045544742689, 0.0001258526691092626,
+            ],
+        },
+        eval: distribution,
+    },
+    FunctionSpec {
+        name: "TOLERANCE.TIGHTEN",
+        area: "tolerance",
+        summary: "The part to tighten first: the one with the largest share of a stage figure's variance (Rf, Rg, …, U1.a0, U1.gbwHz, U1.ro)",
+        params: WORST,
+        repeats: false,
+        result_unit: "text",
+        spill: &[],
+        example: Example {
+            formula: "=TOLERANCE.TIGHTEN(\"kind=non-inverting, a0=200k, gbwHz=10M, rf=47k, rg=1k\"; \"rf=0.1%, rg=0.1%, gbw=5M…20M\"; \"gainDb\"; 100 kHz)",
+            expected: Expected::Text("U1.gbwHz"),
+            source: "|G| = 1/√((β + 1/A0)² + (f/GBW)²), β = 1/48: d ln|G|/d ln GBW = 0.19 times the GBW's relative sd ln(4)/6 ≈ 0.23 outweighs d ln|G|/d ln Rf = 0.79 times 0.2 %/√12 (arithmetic)",
+            tolerance: &[],
+        },
+        eval: tighten,
     },
 ];

@@ -179,6 +179,26 @@ const WORDS: &[(&str, &str)] = &[
         "johnson nyquist thermal noise resistor nV/√Hz kT",
     ),
     (
+        "TOLERANCE.WORSTCASE",
+        "worst case corners extreme min max tolerance tempco ppm/K temperature drift gbw ro a0 spread E96 resistor",
+    ),
+    (
+        "TOLERANCE.YIELD",
+        "monte carlo yield spec limits tolerance normal gaussian sigma uniform tempco temperature production",
+    ),
+    (
+        "TOLERANCE.MONTECARLO",
+        "monte carlo distribution percentile histogram mean standard deviation sigma spread tolerance tempco",
+    ),
+    (
+        "TOLERANCE.SENSITIVITY",
+        "sensitivity derivative variance share contribution budget tighten critical part tolerance",
+    ),
+    (
+        "TOLERANCE.TIGHTEN",
+        "which part tighten first critical part variance share sensitivity tolerance budget",
+    ),
+    (
         "NOISE.STAGE",
         "noise density en in nV/√Hz pA/√Hz input-referred op-amp resistor",
     ),
@@ -219,6 +239,8 @@ mod tests {
         assert!(search_words("NETWORK.PAIR").contains("resistor pair"));
         assert!(search_words("NETWORK.NEAREST").contains("E-series"));
         assert!(search_words("DISTORTION.HD").contains("thd"));
+        assert!(search_words("TOLERANCE.TIGHTEN").contains("tighten"));
+        assert!(search_words("TOLERANCE.WORSTCASE").contains("ppm/K"));
         assert_eq!(search_words("NO.SUCH"), "");
     }
 }

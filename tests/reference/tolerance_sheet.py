@@ -1,0 +1,117 @@
+#!/usr/bin/env python3
+"""Oracle for the worked gain-48 case in worksheet cells (docs/tolerance.md,
+"The worked case in cells"; tests/tolerance_sheet.rs).
+
+The stage: non-inverting, G = A/(1 + A*beta), beta = Rg/(Rf + Rg), the
+amplifier single-pole with the gain-bandwidth product held across the A0
+spread, A(f) = A0/(1 + j f A0/GBW), A0 min/typ/max 5e4/2e5/1e6 (split
+log-normal with min and max at 3 sigma, as src/network/montecarlo.rs),
+GBW = 10 MHz; Rf drifts +25 ppm/K and Rg -25 ppm/K from 25 degC (the linear
+coefficient of IEC 60115-1, from memory), both uniform within their grade.
+Spec: |G(1 kHz)| within 48 +- 0.5 % at both 0 and 70 degC.
+
+For each pair and grade: numpy Monte Carlo of 400 000 trials
+(numpy.random.default_rng(4848)), the share meeting the spec at both
+temperatures; and the brute-force worst case of 20 log10 |G(1 kHz)| over the
+2^3 corners (Rf, Rg at +-grade, A0 at min and max) at both temperatures, with
+the nominal at 0 degC.
+
+tests/tolerance_sheet.rs runs the same cells with its own seeded Monte Carlo
+and compares the yields within 4 standard errors of the difference,
+sqrt(p(1 - p)(1/N_rust + 1/N_numpy)) (0 and 1 exactly when every corner is
+inside or outside the spec), and the worst case within 1e-9 dB.
+
+Writes tests/reference/data/tolerance_sheet.json; `--check` recomputes and
+compares (rel. tol. 1e-12; the Monte Carlo is seeded, so identical).
+"""
+import itertools
+import json
+import math
+import pathlib
+import sys
+
+import numpy as np
+
+OUT = pathlib.Path(__file__).parent / "data" / "tolerance_sheet.json"
+REL_TOL = 1e-12
+K = 3.0
+A0 = (5e4, 2e5, 1e6)
+GBW = 1e7
+F = 1e3
+TEMPS = (0.0, 70.0)
+PAIRS = [("E96 11.5k/243", 11.5e3, 243.0), ("E192 47.5k/1.01k", 47.5e3, 1.01e3),
+         ("47k/1k", 47e3, 1e3)]
+GRADES = (0.01, 0.001)
+N = 400_000
+
+
+def split_lognormal(rng, n, lo, typ, hi):
+    l, m, h = math.log(lo), math.log(typ), math.log(hi)
+    z = rng.standard_normal(n)
+    bad = np.abs(z) > K
+    while bad.any():
+        z[bad] = rng.standard_normal(bad.sum())
+        bad = np.abs(z) > K
+    sigma = np.where(z < 0, (m - l) / K, (h - m) / K)
+    return np.clip(np.exp(m + sigma * z), lo, hi)
+
+
+def gain(rf, rg, a0, t):
+    rf = rf * (1 + 25e-6 * (t - 25))
+    rg = rg * (1 - 25e-6 * (t - 25))
+    a = a0 / (1 + 1j * F * a0 / GBW)
+    return np.abs(a / (1 + a * rg / (rf + rg)))
+
+
+def case(rf, rg, grade, rng):
+    rfs = rf * (1 + grade * (2 * rng.random(N) - 1))
+    rgs = rg * (1 + grade * (2 * rng.random(N) - 1))
+    a0s = split_lognormal(rng, N, *A0)
+    ok = np.ones(N, dtype=bool)
+    for t in TEMPS:
+        g = gain(rfs, rgs, a0s, t)
+        ok &= (g >= 48 * 0.995) & (g <= 48 * 1.005)
+    corners = [20 * math.log10(float(gain(x, y, a, t)))
+               for x, y, a in itertools.product((rf * (1 - grade), rf * (1 + grade)),
+                                                (rg * (1 - grade), rg * (1 + grade)),
+                                                (A0[0], A0[2]))
+               for t in TEMPS]
+    return {
+        "trials": N,
+        "yield": float(ok.mean()),
+        "worstDb": [min(corners), 20 * math.log10(float(gain(rf, rg, A0[1], TEMPS[0]))), max(corners)],
+        "specDb": [20 * math.log10(48 * 0.995), 20 * math.log10(48 * 1.005)],
+    }
+
+
+def make():
+    rng = np.random.default_rng(4848)
+    return {f"{name} {grade * 100:g}%": case(rf, rg, grade, rng)
+            for name, rf, rg in PAIRS for grade in GRADES}
+
+
+def close(a, b):
+    if isinstance(a, dict):
+        return isinstance(b, dict) and a.keys() == b.keys() and all(close(a[k], b[k]) for k in a)
+    if isinstance(a, list):
+        return isinstance(b, list) and len(a) == len(b) and all(close(x, y) for x, y in zip(a, b))
+    if isinstance(a, float):
+        return isinstance(b, (int, float)) and math.isclose(a, b, rel_tol=REL_TOL, abs_tol=1e-300)
+    return a == b
+
+
+def main():
+    data = make()
+    if "--check" in sys.argv:
+        old = json.loads(OUT.read_text())
+        if not close(data, old):
+            print("differs from", OUT)
+            sys.exit(1)
+        print("ok: the worked gain-48 case in cells matches")
+        return
+    OUT.write_text(json.dumps(data, indent=1) + "\n")
+    print(f"wrote {OUT}")
+
+
+if __name__ == "__main__":
+    main()
