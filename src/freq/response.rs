@@ -338,11 +338,21 @@ pub fn loop_gain_sweep(
     let f = log_frequencies(start_hz, stop_hz, points)?;
     let (mut m, mut p) = (Vec::with_capacity(f.len()), Vec::with_capacity(f.len()));
     l.fast_loop().sweep(&f, &mut m, &mut p);
+    // dB and degrees, checked in the same pass (as `finish` checks).
+    let mut finite = true;
     for (mi, pi) in m.iter_mut().zip(p.iter_mut()) {
         *mi *= 20.0 / core::f64::consts::LN_10;
         *pi = pi.to_degrees();
+        finite &= mi.is_finite() & pi.is_finite();
     }
-    finish(f, m, p, "loop_gain")
+    if !finite {
+        return Err(Error::Overflow { param: "loop_gain" });
+    }
+    Ok(Sweep {
+        freq_hz: f,
+        magnitude_db: m,
+        phase_deg: p,
+    })
 }
 
 /// Closed-loop sweep: |Af| in dB (of the unit of A) and the phase of Af in degrees,
