@@ -449,20 +449,39 @@ const MAX_EXPANDED: usize = 8;
 /// can be far smaller than its terms near resonance (by 2Q), so models with
 /// pairs keep the product form.
 ///
-/// The coefficients sit in fixed arrays, zero above the degree (a zero
-/// leading coefficient adds nothing, exactly), so each Horner evaluation is a
-/// straight run of multiply-adds with no loop.
+/// The coefficients sit in fixed arrays with their count, so each Horner
+/// evaluation is a straight run of multiply-adds chosen by one branch, with
+/// no loop.
 struct Expanded {
-    num_even: Even,
-    num_odd: Odd,
-    den_even: Even,
-    den_odd: Odd,
+    num_even: Poly,
+    num_odd: Poly,
+    den_even: Poly,
+    den_odd: Poly,
 }
 
-/// The even coefficients in u of at most [`MAX_EXPANDED`] factors.
-type Even = [f64; MAX_EXPANDED / 2 + 1];
-/// The odd coefficients in u of at most [`MAX_EXPANDED`] factors.
-type Odd = [f64; MAX_EXPANDED / 2];
+/// A polynomial in u of at most [`MAX_EXPANDED`]/2 + 1 coefficients,
+/// lowest first.
+#[derive(Default)]
+struct Poly {
+    c: [f64; MAX_EXPANDED / 2 + 1],
+    len: usize,
+}
+
+impl Poly {
+    /// Σ c_k·u^k by Horner's rule.
+    #[inline(always)]
+    fn at(&self, u: f64) -> f64 {
+        let [c0, c1, c2, c3, c4] = self.c;
+        match self.len {
+            0 => 0.0,
+            1 => c0,
+            2 => c0 + u * c1,
+            3 => c0 + u * (c1 + u * c2),
+            4 => c0 + u * (c1 + u * (c2 + u * c3)),
+            _ => c0 + u * (c1 + u * (c2 + u * (c3 + u * c4))),
+        }
+    }
+}
 
 impl Expanded {
     /// The expansion of `m`'s factors, or `None` when it has complex pairs,
@@ -489,9 +508,10 @@ impl Expanded {
 
     /// The even and odd parts, in u = f², of Π(1 + σ·r·(j·f)) over the
     /// factors (r = 1/f_i, σ = ±1), with the signs of j^k folded in.
-    fn side(factors: &[(f64, f64)]) -> Option<(Even, Odd)> {
+    fn side(factors: &[(f64, f64)]) -> Option<(Poly, Poly)> {
         let mut c = [0.0; MAX_EXPANDED + 1];
         c[0] = 1.0;
+        let degree = factors.len().min(MAX_EXPANDED);
         for (n, &(r, s)) in factors.iter().enumerate().take(MAX_EXPANDED) {
             let a = s * r;
             for k in (1..=n + 1).rev() {
@@ -502,13 +522,13 @@ impl Expanded {
             return None;
         }
         // j^(2m) = (−1)^m; j^(2m+1) = j·(−1)^m.
-        let (mut even, mut odd): (Even, Odd) = Default::default();
-        for (k, &x) in c.iter().enumerate() {
+        let (mut even, mut odd) = (Poly::default(), Poly::default());
+        for (k, &x) in c.iter().enumerate().take(degree + 1) {
             let signed = if (k / 2) % 2 == 0 { x } else { -x };
-            match (k % 2, even.get_mut(k / 2), odd.get_mut(k / 2)) {
-                (0, Some(e), _) => *e = signed,
-                (_, _, Some(o)) => *o = signed,
-                _ => {}
+            let side = if k % 2 == 0 { &mut even } else { &mut odd };
+            if let Some(slot) = side.c.get_mut(k / 2) {
+                *slot = signed;
+                side.len = k / 2 + 1;
             }
         }
         Some((even, odd))
@@ -518,17 +538,11 @@ impl Expanded {
     #[inline]
     fn ratio(&self, f: f64) -> (f64, f64) {
         let u = f * f;
-        let (nr, ni) = (horner(&self.num_even, u), f * horner(&self.num_odd, u));
-        let (dr, di) = (horner(&self.den_even, u), f * horner(&self.den_odd, u));
+        let (nr, ni) = (self.num_even.at(u), f * self.num_odd.at(u));
+        let (dr, di) = (self.den_even.at(u), f * self.den_odd.at(u));
         let inv = 1.0 / (dr * dr + di * di);
         ((nr * dr + ni * di) * inv, (ni * dr - nr * di) * inv)
     }
-}
-
-/// Σ c_k·u^k by Horner's rule (unrolled: `N` is fixed).
-#[inline(always)]
-fn horner<const N: usize>(c: &[f64; N], u: f64) -> f64 {
-    c.iter().rev().fold(0.0, |acc, &x| acc * u + x)
 }
 
 /// Points between exact re-anchorings of the stepped phase in
