@@ -337,14 +337,14 @@ pub fn loop_gain_sweep(
 ) -> Result<Sweep> {
     let f = log_frequencies(start_hz, stop_hz, points)?;
     let (mut m, mut p) = (Vec::with_capacity(f.len()), Vec::with_capacity(f.len()));
-    l.fast_loop().sweep(&f, &mut m, &mut p);
-    // dB and degrees, checked in the same pass (as `finish` checks).
-    let mut finite = true;
-    for (mi, pi) in m.iter_mut().zip(p.iter_mut()) {
-        *mi *= 20.0 / core::f64::consts::LN_10;
-        *pi = pi.to_degrees();
-        finite &= mi.is_finite() & pi.is_finite();
-    }
+    // dB and degrees (x·(180/π) is `f64::to_degrees`), written by the sweep.
+    let units = (
+        20.0 / core::f64::consts::LN_10,
+        180.0 / core::f64::consts::PI,
+    );
+    l.fast_loop().sweep_in(&f, &mut m, &mut p, units);
+    // Checked as `finish` checks.
+    let finite = m.iter().zip(&p).all(|(a, b)| a.is_finite() & b.is_finite());
     if !finite {
         return Err(Error::Overflow { param: "loop_gain" });
     }
