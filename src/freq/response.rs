@@ -278,13 +278,15 @@ pub fn log_frequencies(start_hz: f64, stop_hz: f64, points: usize) -> Result<Vec
     const RESYNC: usize = 64;
     let ratio = libm::exp(step);
     let mut f: Vec<f64> = Vec::with_capacity(points);
-    let mut x = a;
-    for i in 0..points {
-        if i % RESYNC == 0 {
-            x = libm::exp(la + step * i as f64);
-        }
-        f.push(x);
-        x *= ratio;
+    // RESYNC points at a time, each run extended in one go (no per-point
+    // capacity check).
+    for i in (0..points).step_by(RESYNC) {
+        let mut x = libm::exp(la + step * i as f64);
+        f.extend((i..points.min(i + RESYNC)).map(|_| {
+            let y = x;
+            x *= ratio;
+            y
+        }));
     }
     // Pin the ends exactly.
     if let Some(first) = f.first_mut() {
