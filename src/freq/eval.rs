@@ -340,13 +340,13 @@ impl FastModel {
         if f.last().is_some_and(|&m| self.products_stay_in_range(m)) {
             match Expanded::of(self) {
                 Some(e) => self.sweep_by_steps(f, ln_mag, phase, units, |x| {
-                    let (wr, wi) = e.ratio(x);
+                    let (n2, d2, wr, wi) = e.scaled_ratio(x);
                     let cut_product = self.cuts.iter().fold(1.0, |p, &r| p * (x * r));
-                    (wr * wr + wi * wi, self.rest(x, cut_product), wr, wi)
+                    (n2, d2, self.rest(x, cut_product), wr, wi)
                 }),
                 None => self.sweep_by_steps(f, ln_mag, phase, units, |x| {
                     let (w2, rest, wr, wi, _) = self.parts::<false, false>(x);
-                    (w2, rest, wr, wi)
+                    (w2, 1.0, rest, wr, wi)
                 }),
             }
             return;
@@ -394,7 +394,7 @@ impl FastModel {
         ln_mag: &mut Vec<f64>,
         phase: &mut Vec<f64>,
         (km, kp): (f64, f64),
-        point: impl Fn(f64) -> (f64, f64, f64, f64),
+        point: impl Fn(f64) -> (f64, f64, f64, f64, f64),
     ) {
         let Some((&first, later)) = f.split_first() else {
             return;
@@ -402,17 +402,19 @@ impl FastModel {
         let (w2, rest, wr, wi, est) = self.parts::<true, false>(first);
         let principal = libm::atan2(wi, wr);
         let mut factors = principal + TAU * nearest((est - principal) / TAU);
-        let (mut pr, mut pi, mut pw2) = (wr, wi, w2);
+        let (mut pr, mut pi, mut pn2, mut pd2) = (wr, wi, w2, 1.0);
         let mut ln_w = 0.5 * libm::log(w2);
         ln_mag.push((ln_w + rest) * km);
         phase.push((factors + self.phase0 - TAU * first * self.delay) * kp);
         for (i, &x) in later.iter().enumerate() {
-            let (w2, rest, wr, wi) = point(x);
+            let (n2, d2, rest, wr, wi) = point(x);
             let anchor = (i + 1) % RESYNC == 0;
             // w·w̄ₚ = a + j·b: its argument is the step.
             let a = wr * pr + wi * pi;
             let b = wi * pr - wr * pi;
-            let (d, sum) = (w2 - pw2, w2 + pw2);
+            // |w|² = n2/d2: q = |w|²/|wₚ|² = (n2·d2ₚ)/(n2ₚ·d2).
+            let (up, down) = (n2 * pd2, pn2 * d2);
+            let (d, sum) = (up - down, up + down);
             if !anchor && 32.0 * libm::fabs(d) <= sum {
                 let s = d / sum;
                 let v = s * s;
@@ -422,7 +424,7 @@ impl FastModel {
                             + v * (1.0 / 5.0
                                 + v * (1.0 / 7.0 + v * (1.0 / 9.0 + v * (1.0 / 11.0))))));
             } else {
-                ln_w = 0.5 * libm::log(w2);
+                ln_w = 0.5 * libm::log(n2 / d2);
             }
             if !anchor && a > 0.0 && 32.0 * libm::fabs(b) <= a {
                 let t = b / a;
@@ -436,7 +438,7 @@ impl FastModel {
                 let principal = libm::atan2(wi, wr);
                 factors = principal + TAU * nearest((factors - principal) / TAU);
             }
-            (pr, pi, pw2) = (wr, wi, w2);
+            (pr, pi, pn2, pd2) = (wr, wi, n2, d2);
             ln_mag.push((ln_w + rest) * km);
             phase.push((factors + self.phase0 - TAU * x * self.delay) * kp);
         }
@@ -549,14 +551,19 @@ impl Expanded {
         Some((even, odd))
     }
 
-    /// w = num/den at frequency `f`, as (re, im).
+    /// |num|², |den|² and num·conj(den) = w·|den|² (w = num/den: the same
+    /// argument, no division) at frequency `f`.
     #[inline]
-    fn ratio(&self, f: f64) -> (f64, f64) {
+    fn scaled_ratio(&self, f: f64) -> (f64, f64, f64, f64) {
         let u = f * f;
         let (nr, ni) = (self.num_even.at(u), f * self.num_odd.at(u));
         let (dr, di) = (self.den_even.at(u), f * self.den_odd.at(u));
-        let inv = 1.0 / (dr * dr + di * di);
-        ((nr * dr + ni * di) * inv, (ni * dr - nr * di) * inv)
+        (
+            nr * nr + ni * ni,
+            dr * dr + di * di,
+            nr * dr + ni * di,
+            ni * dr - nr * di,
+        )
     }
 }
 
