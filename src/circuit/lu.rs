@@ -17,6 +17,18 @@ fn abs1(z: Complex64) -> f64 {
     libm::fabs(z.re) + libm::fabs(z.im)
 }
 
+/// max(a, b) for a not NaN, as `f64::max` (a NaN b leaves a) but by one
+/// comparison: `f64::max` is a call to libm's `fmax` in wasm, and the sweep's
+/// equilibration takes two per stored entry.
+#[inline]
+fn larger(a: f64, b: f64) -> f64 {
+    if b > a {
+        b
+    } else {
+        a
+    }
+}
+
 /// A power of two within a factor 2 of 1/m (so scaling by it is exact), read
 /// from the exponent bits; 1 for zero, subnormal or non-finite m.
 fn inverse_power_of_two(m: f64) -> f64 {
@@ -308,12 +320,12 @@ impl Lu {
                     let cols = p.row(r);
                     let mut big = 0.0f64;
                     for &j in cols {
-                        big = big.max(abs1(row[j]));
+                        big = larger(big, abs1(row[j]));
                     }
                     *rs = inverse_power_of_two(big);
                     for &j in cols {
                         row[j] *= *rs;
-                        col_max[j] = col_max[j].max(abs1(row[j]));
+                        col_max[j] = larger(col_max[j], abs1(row[j]));
                     }
                 }
             }

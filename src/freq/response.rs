@@ -278,13 +278,15 @@ pub fn log_frequencies(start_hz: f64, stop_hz: f64, points: usize) -> Result<Vec
     const RESYNC: usize = 64;
     let ratio = libm::exp(step);
     let mut f: Vec<f64> = Vec::with_capacity(points);
-    let mut x = a;
-    for i in 0..points {
-        if i % RESYNC == 0 {
-            x = libm::exp(la + step * i as f64);
-        }
-        f.push(x);
-        x *= ratio;
+    // RESYNC points at a time, each run extended in one go (no per-point
+    // capacity check).
+    for i in (0..points).step_by(RESYNC) {
+        let mut x = libm::exp(la + step * i as f64);
+        f.extend((i..points.min(i + RESYNC)).map(|_| {
+            let y = x;
+            x *= ratio;
+            y
+        }));
     }
     // Pin the ends exactly.
     if let Some(first) = f.first_mut() {
@@ -337,12 +339,22 @@ pub fn loop_gain_sweep(
 ) -> Result<Sweep> {
     let f = log_frequencies(start_hz, stop_hz, points)?;
     let (mut m, mut p) = (Vec::with_capacity(f.len()), Vec::with_capacity(f.len()));
-    l.fast_loop().sweep(&f, &mut m, &mut p);
-    for (mi, pi) in m.iter_mut().zip(p.iter_mut()) {
-        *mi *= 20.0 / core::f64::consts::LN_10;
-        *pi = pi.to_degrees();
+    // dB and degrees (x·(180/π) is `f64::to_degrees`), written by the sweep.
+    let units = (
+        20.0 / core::f64::consts::LN_10,
+        180.0 / core::f64::consts::PI,
+    );
+    l.fast_loop().sweep_in(&f, &mut m, &mut p, units);
+    // Checked as `finish` checks.
+    let finite = m.iter().zip(&p).all(|(a, b)| a.is_finite() & b.is_finite());
+    if !finite {
+        return Err(Error::Overflow { param: "loop_gain" });
     }
-    finish(f, m, p, "loop_gain")
+    Ok(Sweep {
+        freq_hz: f,
+        magnitude_db: m,
+        phase_deg: p,
+    })
 }
 
 /// Closed-loop sweep: |Af| in dB (of the unit of A) and the phase of Af in degrees,
