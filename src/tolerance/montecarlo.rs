@@ -198,6 +198,9 @@ pub fn monte_carlo(
     // (its corners and resonances from both pole sets, found once per
     // temperature) and are signed by Nyquist's criterion: no trial finds poles.
     let wants_margins = spec.iter().any(|l| is_margin(&l.figure));
+    let wants_gain_margin = spec
+        .iter()
+        .any(|l| matches!(l.figure, super::figures::Figure::GainMarginDb));
     let mut hints: Vec<Option<LoopHints>> = Vec::with_capacity(temps.len());
     // A spec of gain figures alone is evaluated on each temperature's circuit
     // built once, the trials' values written into it (`gain_trials`).
@@ -209,7 +212,7 @@ pub fn monte_carlo(
             nominal[k].push(figure_hinted(&p, &l.figure, t, None)?);
         }
         hints.push(match (wants_margins, p.amplifier) {
-            (true, Some(a)) => Some(LoopHints::of(p.circuit, a)?),
+            (true, Some(a)) => Some(LoopHints::of(p.circuit, a, wants_gain_margin)?),
             _ => None,
         });
         fast.push(match &built {
