@@ -502,3 +502,71 @@ pub fn circuit_margins_with_density(
     let r = margins_of(&l, points_per_decade, || Ok(verdict), validity);
     l.finish(r)
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::stage::{Amplifier, Spread, SpreadPoint, Stage, StageKind, StageParts};
+
+    fn stage(rf: f64, cl: f64, gbw: f64) -> Circuit {
+        Stage {
+            kind: StageKind::NonInverting,
+            amplifier: Amplifier::from_gbw(
+                Spread {
+                    min: 5e4,
+                    typ: 2e5,
+                    max: 1e6,
+                },
+                gbw,
+            )
+            .with_pole(5e7)
+            .with_ro(50.0),
+            point: SpreadPoint::Typ,
+            parts: StageParts {
+                rf: Some(rf),
+                rg: Some(1e3),
+                rl: Some(2e3),
+                cl: Some(cl),
+                ..StageParts::default()
+            },
+        }
+        .circuit()
+        .unwrap()
+        .circuit
+    }
+
+    /// The warm start gives the margins of the same hinted search on the full
+    /// grid, bit for bit, for trials near the nominal and far from it (the
+    /// guard), with and without the gain margin; and it skips grid points.
+    #[test]
+    fn warm_start_gives_the_full_grids_margins() {
+        let nominal = stage(9e3, 1e-9, 1e7);
+        for gain_margin in [false, true] {
+            let warm = LoopHints::of(&nominal, "U1", gain_margin).unwrap();
+            let p = warm.profile.as_ref().expect("a profile");
+            assert!(p.quiet.iter().filter(|&&q| q).count() > p.f.len() / 4);
+            let cold = LoopHints {
+                profile: None,
+                ..warm.clone()
+            };
+            for (rf, cl, gbw) in [
+                (9e3, 1e-9, 1e7),
+                (9.09e3, 0.95e-9, 1.3e7),
+                (8.91e3, 1.05e-9, 0.7e7),
+                // Far from the nominal: the guard sends it to the full grid.
+                (1e3, 20e-9, 3e7),
+            ] {
+                let c = stage(rf, cl, gbw);
+                let a = circuit_margins_hinted(&c, "U1", &warm).unwrap();
+                let b = circuit_margins_hinted(&c, "U1", &cold).unwrap();
+                let bits = |x: Option<f64>| x.map(f64::to_bits);
+                assert_eq!(bits(a.phase_margin_deg), bits(b.phase_margin_deg));
+                assert_eq!(bits(a.crossover_hz), bits(b.crossover_hz));
+                assert_eq!(a.closed_loop, b.closed_loop);
+                if gain_margin {
+                    assert_eq!(bits(a.gain_margin_db), bits(b.gain_margin_db));
+                }
+            }
+        }
+    }
+}
