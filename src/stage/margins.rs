@@ -145,9 +145,10 @@ impl EvaluatedLoop for CircuitLoop<'_> {
 }
 
 /// Distance from the nominal |T| = 1, in ln|T|, beyond which a grid point of
-/// the nominal loop is quiet: 40 dB (common practice, no source: a part spread
-/// of a few per cent, and an A0 spread of 12 dB, stay well inside it).
-pub(crate) const QUIET_LN: f64 = 4.605_170_185_988_091; // ln 100
+/// the nominal loop is quiet: 26 dB, the guard at half of it 13 dB (common
+/// practice, no source: a part spread of a few per cent moves |T| by a
+/// fraction of a dB, and an A0 spread of 12 dB only where |T| is far above 1).
+pub(crate) const QUIET_LN: f64 = core::f64::consts::LN_10 * 1.3; // 26 dB
 /// Distance of the nominal phase from every −180° + m·360°, degrees, beyond
 /// which a grid point is quiet (common practice, no source).
 pub(crate) const QUIET_DEG: f64 = 60.0;
