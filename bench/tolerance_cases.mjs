@@ -8,13 +8,18 @@
 // 10 MHz), |H| in dB at 1 kHz. Phase margin: Rf = Rg = 1k uniform ±1 %, A0 as
 // above, GBW 7/10/13 MHz, a second pole at 8 MHz (the "margin2" stage of
 // tests/reference/tolerance_stage.py, the stage the reference checks).
-// The tolerance engine takes stage documents only (src/tolerance/parts.rs
-// TolStage: a stage and its part spreads), and a stage document has at most six
-// nodes besides ground (src, in, fb, amp, out, ld), so the 11-node stage
-// cannot be given to it. The third case is the largest stage it takes: the
-// stage of benches/core.rs (all six nodes, amplifier input capacitances, Ro,
-// Riso into Rl ‖ Cl) with six parts and the GBW spread.
+// The third case is the largest stage document: the stage of benches/core.rs
+// (all six nodes, amplifier input capacitances, Ro, Riso into Rl ‖ Cl) with six
+// parts and the GBW spread. The fourth is the 11-node case, a circuit
+// document (bench/tolerance_circuit_11.json): 11 nodes besides ground (s, in,
+// fb, n1 … n8): Vs and Rs into the non-inverting input, U1 (A0 5e4/2e5/1e6, GBW
+// 7/10/13 MHz, a second pole at 50 MHz, Ro 50 Ω) with Rf ‖ Cf and Rg, and its
+// output driving Riso into a six-section RC ladder (10 Ω, 1 nF) inside the loop
+// through Ro; all 17 passive parts uniform ±1 %.
 
+import { readFileSync } from 'node:fs';
+
+const circuit11 = readFileSync(new URL('./tolerance_circuit_11.json', import.meta.url), 'utf8');
 const amplifier = (extra) => ({ a0: { min: 5e4, typ: 2e5, max: 1e6 }, gbwHz: 1e7, ...extra });
 const uniform = (part) => ({ part, tolerance: { distribution: 'uniform', percent: 1 } });
 
@@ -98,6 +103,26 @@ export const TOLERANCE_CASES = [
         trials: 10_000,
         keepFailures: 0,
       }),
+    target: '< 2 s',
+  },
+  {
+    key: 'tolerance_pm_11node_1e4',
+    area: 'tolerance',
+    what: 'circuit Monte Carlo, 10 000 trials of the phase margin of an 11-node circuit, 17 parts ±1 %, A0 and GBW (stageTolerance)',
+    heavy: true,
+    make: (lw) => () =>
+      lw.stageTolerance({
+        circuit: circuit11,
+        input: 'Vs',
+        output: 'n8',
+        amplifierSpread: { gbwHz: { min: 7e6, typ: 1e7, max: 1.3e7 } },
+        spec: [{ figure: 'phaseMarginDeg', lower: 65.5 }],
+        analyses: ['monteCarlo'],
+        trials: 10_000,
+        keepFailures: 0,
+      }),
+    python: true,
+    pythonLabel: 'numpy, batched nodal solves + vectorised bisection',
     target: '< 2 s',
   },
 ];

@@ -17,9 +17,11 @@ use super::poles::{circuit_poles, CircuitPoles, MARGINAL_REL};
 use crate::circuit::mna::Sweeper;
 use crate::circuit::{Circuit, CircuitError, CircuitResult, ElementKind};
 use crate::freq::crossings::DEFAULT_POINTS_PER_DECADE;
+use crate::freq::evaluated::nearest_branch;
 use crate::freq::{
     margins_of, ComplexPair, EvaluatedLoop, GridHints, MarginValidity, Margins, Verdict,
 };
+use alloc::vec::Vec;
 use core::cell::RefCell;
 use num_complex::Complex64;
 
@@ -34,6 +36,8 @@ pub(crate) struct CircuitLoop<'a> {
     sweeper: RefCell<Sweeper<'a>>,
     error: RefCell<Option<CircuitError>>,
     hints: GridHints,
+    /// A nearby loop sampled on the same grid ([`Profile`]), if any.
+    profile: Option<&'a Profile>,
 }
 
 impl<'a> CircuitLoop<'a> {
@@ -46,6 +50,7 @@ impl<'a> CircuitLoop<'a> {
             sweeper: RefCell::new(Sweeper::new(&s.opened.circuit)?),
             error: RefCell::new(None),
             hints: hints(original, &s.open, &s.closed),
+            profile: None,
         })
     }
 
@@ -55,6 +60,7 @@ impl<'a> CircuitLoop<'a> {
         original: &'a Circuit,
         opened: &'a Opened,
         hints: GridHints,
+        profile: Option<&'a Profile>,
     ) -> CircuitResult<CircuitLoop<'a>> {
         Ok(CircuitLoop {
             original,
@@ -62,6 +68,7 @@ impl<'a> CircuitLoop<'a> {
             sweeper: RefCell::new(Sweeper::new(&opened.circuit)?),
             error: RefCell::new(None),
             hints,
+            profile,
         })
     }
 
@@ -106,6 +113,143 @@ impl EvaluatedLoop for CircuitLoop<'_> {
 
     fn hints(&self) -> GridHints {
         self.hints.clone()
+    }
+
+    fn search_range(&self) -> (f64, f64) {
+        match self.profile {
+            Some(p) => p.range,
+            None => crate::freq::evaluated::default_search_range(self),
+        }
+    }
+
+    fn sweep(&self, f: &[f64], ln_mag: &mut Vec<f64>, phase: &mut Vec<f64>) {
+        let warm = self
+            .profile
+            .filter(|p| p.f.len() == f.len() && p.f.iter().zip(f).all(|(a, b)| a == b));
+        if let Some(p) = warm {
+            if p.sweep(self, ln_mag, phase) {
+                return;
+            }
+            ln_mag.clear();
+            phase.clear();
+        }
+        let mut prev: Option<f64> = None;
+        for &x in f {
+            let (l, ph) = self.eval(x);
+            let ph = prev.map_or(ph, |q| nearest_branch(ph, q));
+            prev = Some(ph);
+            ln_mag.push(l);
+            phase.push(ph);
+        }
+    }
+}
+
+/// Distance from the nominal |T| = 1, in ln|T|, beyond which a grid point of
+/// the nominal loop is quiet: 26 dB, the guard at half of it 13 dB (common
+/// practice, no source: a part spread of a few per cent moves |T| by a
+/// fraction of a dB, and an A0 spread of 12 dB only where |T| is far above 1).
+pub(crate) const QUIET_LN: f64 = core::f64::consts::LN_10 * 1.3; // 26 dB
+/// Distance of the nominal phase from every −180° + m·360°, degrees, beyond
+/// which a grid point is quiet (common practice, no source).
+pub(crate) const QUIET_DEG: f64 = 60.0;
+
+/// A nominal loop sampled on its hinted grid: the warm start of the Monte
+/// Carlo's trials. A point is **quiet** when the nominal |T| is more than
+/// [`QUIET_LN`] from 1 and its phase more than [`QUIET_DEG`] from every
+/// −180° level (or, when the gain margin is not wanted, |T| is more than
+/// [`QUIET_LN`] below 1 whatever its phase): no crossing that matters can be
+/// near it. A trial of the same topology is
+/// evaluated on the same grid at every point that is not quiet and at both
+/// ends of every run of quiet points; inside a run its ln|T| and phase are the
+/// nominal's shifted by the trial's offset from the nominal, interpolated
+/// between the run's ends, so no crossing is made or lost there. If at a run's
+/// end the trial is half the quiet distance or more from the nominal (in
+/// ln|T| or in phase), it is evaluated at every point instead (the guard), so
+/// a trial far from the nominal takes the full grid.
+#[derive(Debug, Clone)]
+pub(crate) struct Profile {
+    range: (f64, f64),
+    f: Vec<f64>,
+    ln: Vec<f64>,
+    ph: Vec<f64>,
+    quiet: Vec<bool>,
+}
+
+impl Profile {
+    fn of(l: &CircuitLoop, gain_margin: bool) -> Option<Profile> {
+        let range = l.search_range();
+        let f = crate::freq::crossings::grid(l, HINTED_POINTS_PER_DECADE).ok()?;
+        let (mut ln, mut ph) = (Vec::with_capacity(f.len()), Vec::with_capacity(f.len()));
+        l.sweep(&f, &mut ln, &mut ph);
+        if ln.iter().chain(&ph).any(|x| !x.is_finite()) {
+            return None;
+        }
+        let quiet = ln
+            .iter()
+            .zip(&ph)
+            .map(|(&g, &p)| {
+                let x = p.to_degrees() + 180.0;
+                let off = libm::fabs(x - 360.0 * crate::float::round(x / 360.0));
+                // Without the gain margin, a phase crossing where |T| is far
+                // below 1 matters to nothing (the phase margin is read at
+                // |T| = 1, the verdict from crossings with |T| > 1).
+                libm::fabs(g) > QUIET_LN && (off > QUIET_DEG || (!gain_margin && g < -QUIET_LN))
+            })
+            .collect();
+        Some(Profile {
+            range,
+            f,
+            ln,
+            ph,
+            quiet,
+        })
+    }
+
+    /// The trial `l` on the profile's grid (module doc): `false` when the
+    /// guard sends it to the full grid (the outputs then hold partial data).
+    fn sweep(&self, l: &CircuitLoop, ln_mag: &mut Vec<f64>, phase: &mut Vec<f64>) -> bool {
+        let n = self.f.len();
+        ln_mag.clear();
+        phase.clear();
+        ln_mag.resize(n, 0.0);
+        phase.resize(n, 0.0);
+        let q = |i: usize| self.quiet.get(i).copied().unwrap_or(false);
+        let kept = |i: usize| !q(i) || i == 0 || i + 1 == n || !q(i - 1) || !q(i + 1);
+        let mut prev: Option<f64> = None;
+        let mut last: Option<usize> = None;
+        for i in (0..n).filter(|&i| kept(i)) {
+            let (g, p) = l.eval(self.f[i]);
+            // After a skipped run, the branch nearest the nominal's phase
+            // there plus the trial's offset at the run's start.
+            let reference = match last {
+                Some(a) if i > a + 1 => Some(self.ph[i] + (phase[a] - self.ph[a])),
+                _ => prev,
+            };
+            let p = reference.map_or(p, |r| nearest_branch(p, r));
+            if !(g.is_finite() && p.is_finite()) {
+                return false;
+            }
+            let (dg, dp) = (g - self.ln[i], p - self.ph[i]);
+            if q(i)
+                && (libm::fabs(dg) >= 0.5 * QUIET_LN
+                    || libm::fabs(dp).to_degrees() >= 0.5 * QUIET_DEG)
+            {
+                return false;
+            }
+            if let Some(a) = last.filter(|&a| i > a + 1) {
+                let (dga, dpa) = (ln_mag[a] - self.ln[a], phase[a] - self.ph[a]);
+                for j in a + 1..i {
+                    let t = (j - a) as f64 / (i - a) as f64;
+                    ln_mag[j] = self.ln[j] + dga + (dg - dga) * t;
+                    phase[j] = self.ph[j] + dpa + (dp - dpa) * t;
+                }
+            }
+            ln_mag[i] = g;
+            phase[i] = p;
+            prev = Some(p);
+            last = Some(i);
+        }
+        true
     }
 }
 
@@ -191,18 +335,31 @@ pub(crate) fn setup(c: &Circuit, controlled: &str) -> CircuitResult<LoopSetup> {
 pub(crate) struct LoopHints {
     hints: GridHints,
     open_rhp: u32,
+    /// The loop sampled on the hinted grid (`None` when it could not be).
+    profile: Option<Profile>,
 }
 
 impl LoopHints {
-    /// The hints of the loop of `c` broken at `controlled`.
+    /// The hints of the loop of `c` broken at `controlled`, and its profile
+    /// on the hinted grid ([`Profile`]; with `gain_margin` false, the trials'
+    /// gain margins are not wanted and their phase crossings far below
+    /// |T| = 1 are not searched: only their phase margins and verdicts hold).
     ///
     /// # Errors
     /// As [`circuit_margins`].
-    pub(crate) fn of(c: &Circuit, controlled: &str) -> CircuitResult<LoopHints> {
+    pub(crate) fn of(c: &Circuit, controlled: &str, gain_margin: bool) -> CircuitResult<LoopHints> {
         let s = setup(c, controlled)?;
+        let h = hints(c, &s.open, &s.closed);
+        let open_rhp = rhp_count(&s.open);
+        let mut quiet = c.clone();
+        quiet.zero_sources();
+        let opened = open_at(&quiet, controlled, 1.0)?;
+        let l = CircuitLoop::with_hints(c, &opened, h.clone(), None)?;
+        let profile = Profile::of(&l, gain_margin);
         Ok(LoopHints {
-            hints: hints(c, &s.open, &s.closed),
-            open_rhp: rhp_count(&s.open),
+            hints: h,
+            open_rhp,
+            profile,
         })
     }
 }
@@ -256,7 +413,7 @@ pub(crate) fn circuit_margins_hinted(
     let mut quiet = c.clone();
     quiet.zero_sources();
     let opened = open_at(&quiet, controlled, 1.0)?;
-    let l = CircuitLoop::with_hints(c, &opened, h.hints.clone())?;
+    let l = CircuitLoop::with_hints(c, &opened, h.hints.clone(), h.profile.as_ref())?;
     let t0 = l.at(l.search_range().0);
     if let Some(e) = l.take_error() {
         return Err(e);
@@ -345,4 +502,72 @@ pub fn circuit_margins_with_density(
     let verdict: Verdict = s.closed.verdict;
     let r = margins_of(&l, points_per_decade, || Ok(verdict), validity);
     l.finish(r)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::stage::{Amplifier, Spread, SpreadPoint, Stage, StageKind, StageParts};
+
+    fn stage(rf: f64, cl: f64, gbw: f64) -> Circuit {
+        Stage {
+            kind: StageKind::NonInverting,
+            amplifier: Amplifier::from_gbw(
+                Spread {
+                    min: 5e4,
+                    typ: 2e5,
+                    max: 1e6,
+                },
+                gbw,
+            )
+            .with_pole(5e7)
+            .with_ro(50.0),
+            point: SpreadPoint::Typ,
+            parts: StageParts {
+                rf: Some(rf),
+                rg: Some(1e3),
+                rl: Some(2e3),
+                cl: Some(cl),
+                ..StageParts::default()
+            },
+        }
+        .circuit()
+        .unwrap()
+        .circuit
+    }
+
+    /// The warm start gives the margins of the same hinted search on the full
+    /// grid, bit for bit, for trials near the nominal and far from it (the
+    /// guard), with and without the gain margin; and it skips grid points.
+    #[test]
+    fn warm_start_gives_the_full_grids_margins() {
+        let nominal = stage(9e3, 1e-9, 1e7);
+        for gain_margin in [false, true] {
+            let warm = LoopHints::of(&nominal, "U1", gain_margin).unwrap();
+            let p = warm.profile.as_ref().expect("a profile");
+            assert!(p.quiet.iter().filter(|&&q| q).count() > p.f.len() / 4);
+            let cold = LoopHints {
+                profile: None,
+                ..warm.clone()
+            };
+            for (rf, cl, gbw) in [
+                (9e3, 1e-9, 1e7),
+                (9.09e3, 0.95e-9, 1.3e7),
+                (8.91e3, 1.05e-9, 0.7e7),
+                // Far from the nominal: the guard sends it to the full grid.
+                (1e3, 20e-9, 3e7),
+            ] {
+                let c = stage(rf, cl, gbw);
+                let a = circuit_margins_hinted(&c, "U1", &warm).unwrap();
+                let b = circuit_margins_hinted(&c, "U1", &cold).unwrap();
+                let bits = |x: Option<f64>| x.map(f64::to_bits);
+                assert_eq!(bits(a.phase_margin_deg), bits(b.phase_margin_deg));
+                assert_eq!(bits(a.crossover_hz), bits(b.crossover_hz));
+                assert_eq!(a.closed_loop, b.closed_loop);
+                if gain_margin {
+                    assert_eq!(bits(a.gain_margin_db), bits(b.gain_margin_db));
+                }
+            }
+        }
+    }
 }

@@ -21,6 +21,7 @@
 //! - settling time of the step response to a band, s (`crate::stage::step`).
 
 use crate::circuit::blackman::Output;
+use crate::circuit::Circuit;
 use crate::circuit::{CircuitError, CircuitResult};
 use crate::error::Error;
 use crate::freq::Margins;
@@ -33,6 +34,12 @@ use alloc::string::String;
 use alloc::vec::Vec;
 use num_complex::Complex64;
 
+/// The top of the bandwidth grid per the amplifier's gain-bandwidth product
+/// (a circuit: its amplifiers' largest).
+pub const GRID_TOP_PER_GBW: f64 = 1e4;
+/// The top of the bandwidth grid of a circuit without an amplifier model, Hz
+/// (common practice, no source: above any audio or video band of interest).
+pub const GRID_TOP_NO_AMPLIFIER_HZ: f64 = 1e10;
 /// Lowest frequency of the bandwidth grid, Hz.
 pub const GRID_LOW_HZ: f64 = 1.0;
 /// Points per decade of the bandwidth grid.
@@ -167,15 +174,58 @@ impl Figure {
     }
 }
 
-fn output(b: &StageCircuit) -> Output<'_> {
-    match b.output_current {
-        Some(e) => Output::Current(e),
-        None => Output::Voltage(b.output, "0"),
+/// What a figure is read on: a built circuit and the names of its ports.
+pub(crate) struct Probe<'a> {
+    /// The circuit.
+    pub circuit: &'a Circuit,
+    /// The source the gain is per unit of.
+    pub source: &'a str,
+    /// The output.
+    pub output: Output<'a>,
+    /// The loop's amplifier for the margins, if any.
+    pub amplifier: Option<&'a str>,
+    /// The top of the bandwidth grid, Hz.
+    pub top_hz: f64,
+    /// The stage's circuit, when the subject is a stage (its own input and
+    /// output impedance ports).
+    pub stage: Option<&'a StageCircuit>,
+}
+
+impl<'a> Probe<'a> {
+    /// The probe of a stage's circuit, the grid top from its amplifier.
+    pub fn of_stage(b: &'a StageCircuit, top_hz: f64) -> Probe<'a> {
+        Probe {
+            circuit: &b.circuit,
+            source: b.source,
+            output: match b.output_current {
+                Some(e) => Output::Current(e),
+                None => Output::Voltage(b.output, "0"),
+            },
+            amplifier: Some(b.amplifier),
+            top_hz,
+            stage: Some(b),
+        }
     }
 }
 
-fn gain_at(b: &StageCircuit, freqs: &[f64]) -> CircuitResult<Vec<f64>> {
-    let h = gain_sweep(&b.circuit, b.source, output(b), freqs)?;
+/// The top of the bandwidth grid of a circuit: [`GRID_TOP_PER_GBW`] × its
+/// amplifiers' largest gain-bandwidth product, or [`GRID_TOP_NO_AMPLIFIER_HZ`].
+pub(crate) fn circuit_grid_top(c: &Circuit) -> f64 {
+    let gbw = c
+        .elements()
+        .iter()
+        .filter_map(|e| e.amplifier())
+        .filter_map(|p| p.model.gbw_at(p.point).ok())
+        .fold(0.0, f64::max);
+    if gbw > 0.0 {
+        gbw * GRID_TOP_PER_GBW
+    } else {
+        GRID_TOP_NO_AMPLIFIER_HZ
+    }
+}
+
+fn gain_at(p: &Probe, freqs: &[f64]) -> CircuitResult<Vec<f64>> {
+    let h = gain_sweep(p.circuit, p.source, p.output, freqs)?;
     Ok(h.complex().iter().map(|z| z.norm()).collect())
 }
 
@@ -183,10 +233,10 @@ fn unreachable(param: &'static str, reason: &'static str) -> CircuitError {
     Error::Unreachable { param, reason }.into()
 }
 
-/// −3 dB bandwidth and peaking (dB) of the stage's gain.
-fn bandwidth_and_peaking(stage: &Stage, b: &StageCircuit) -> CircuitResult<(f64, f64)> {
+/// −3 dB bandwidth and peaking (dB) of the gain.
+fn bandwidth_and_peaking(b: &Probe) -> CircuitResult<(f64, f64)> {
     let g0 = gain_at(b, &[0.0])?[0];
-    let top = stage.amplifier.gbw_at(SpreadPoint::Typ)? * 1e4;
+    let top = b.top_hz;
     let decades = libm::log10(top / GRID_LOW_HZ).max(1.0);
     let n = (decades * GRID_PER_DECADE as f64) as usize + 1;
     let grid: Vec<f64> = (0..=n)
@@ -260,16 +310,8 @@ fn bandwidth_and_peaking(stage: &Stage, b: &StageCircuit) -> CircuitResult<(f64,
 pub fn figure_value(stage: &Stage, figure: &Figure, temperature_c: f64) -> CircuitResult<f64> {
     figure.validate()?;
     let b = stage.circuit()?;
-    figure_of(stage, &b, figure, temperature_c)
-}
-
-pub(crate) fn figure_of(
-    stage: &Stage,
-    b: &StageCircuit,
-    figure: &Figure,
-    temperature_c: f64,
-) -> CircuitResult<f64> {
-    figure_hinted(stage, b, figure, temperature_c, None)
+    let top = stage.amplifier.gbw_at(SpreadPoint::Typ)? * GRID_TOP_PER_GBW;
+    figure_hinted(&Probe::of_stage(&b, top), figure, temperature_c, None)
 }
 
 /// True for the figures read from the loop's margins.
@@ -279,11 +321,23 @@ pub(crate) const fn is_margin(figure: &Figure) -> bool {
 
 /// The loop's margins: with `hints` of a nearby stage, without the pole
 /// analysis where it can ([`circuit_margins_hinted`]), otherwise in full.
-fn margins(b: &StageCircuit, hints: Option<&LoopHints>) -> CircuitResult<Margins> {
+fn margins(b: &Probe, hints: Option<&LoopHints>) -> CircuitResult<Margins> {
+    let Some(amplifier) = b.amplifier else {
+        return Err(no_loop());
+    };
     match hints {
-        Some(h) => circuit_margins_hinted(&b.circuit, b.amplifier, h),
-        None => circuit_margins(&b.circuit, b.amplifier),
+        Some(h) => circuit_margins_hinted(b.circuit, amplifier, h),
+        None => circuit_margins(b.circuit, amplifier),
     }
+}
+
+/// The error of a margin figure on a circuit with no loop named.
+pub(crate) fn no_loop() -> CircuitError {
+    Error::OutOfDomain {
+        param: "controlled",
+        requirement: "must name the amplifier whose loop the margins are read at (the circuit has none or several)",
+    }
+    .into()
 }
 
 /// The frequency of a figure read from the gain H(f) alone (gain in dB,
@@ -318,8 +372,7 @@ pub(crate) fn gain_figure(figure: &Figure, z: Complex64) -> CircuitResult<f64> {
 /// [`figure_of`], the margins found with the grid hints of a nearby stage of
 /// the same topology (the Monte Carlo's nominal stage) when given.
 pub(crate) fn figure_hinted(
-    stage: &Stage,
-    b: &StageCircuit,
+    b: &Probe,
     figure: &Figure,
     temperature_c: f64,
     hints: Option<&LoopHints>,
@@ -328,50 +381,72 @@ pub(crate) fn figure_hinted(
         Figure::GainDb { freq_hz }
         | Figure::PhaseDeg { freq_hz }
         | Figure::GainErrorPercent { freq_hz, .. } => {
-            let h = gain_sweep(&b.circuit, b.source, output(b), &[freq_hz])?;
+            let h = gain_sweep(b.circuit, b.source, b.output, &[freq_hz])?;
             return gain_figure(figure, h.complex().first().copied().unwrap_or_default());
         }
-        Figure::BandwidthHz => bandwidth_and_peaking(stage, b)?.0,
-        Figure::PeakingDb => bandwidth_and_peaking(stage, b)?.1,
+        Figure::BandwidthHz => bandwidth_and_peaking(b)?.0,
+        Figure::PeakingDb => bandwidth_and_peaking(b)?.1,
         Figure::PhaseMarginDeg => margins(b, hints)?
             .phase_margin_deg
             .ok_or_else(|| unreachable("phaseMarginDeg", "the loop gain never crosses 0 dB"))?,
         Figure::GainMarginDb => margins(b, hints)?
             .gain_margin_db
             .ok_or_else(|| unreachable("gainMarginDb", "the loop phase never crosses −180°"))?,
-        Figure::InputImpedanceOhm { freq_hz } => {
-            let c = b.input_impedance_circuit()?;
-            impedance_sweep(&c, b.input, "0", &[freq_hz])?.magnitude_ohm[0]
-        }
-        Figure::OutputImpedanceOhm { freq_hz } => {
-            if b.output_current.is_some() {
+        Figure::InputImpedanceOhm { freq_hz } => match b.stage {
+            Some(sc) => {
+                let c = sc.input_impedance_circuit()?;
+                impedance_sweep(&c, sc.input, "0", &[freq_hz])?.magnitude_ohm[0]
+            }
+            None => {
+                // A circuit: what the source sees, the source taken out.
+                let [p, m] = b.circuit.element(b.source)?.nodes();
+                let names = b.circuit.nodes();
+                let (p, m) = (names[p], names[m]);
+                let c = b.circuit.without(b.source)?;
+                impedance_sweep(&c, p.as_str(), m.as_str(), &[freq_hz])?.magnitude_ohm[0]
+            }
+        },
+        Figure::OutputImpedanceOhm { freq_hz } => match (b.stage, b.output) {
+            (Some(sc), _) if sc.output_current.is_some() => {
                 return Err(unreachable(
                     "outputImpedanceOhm",
                     "a current-output stage's load is inside its loop",
                 ));
             }
-            let mut c = b.circuit.clone();
-            for load in ["Rl", "Cl"] {
-                if c.element_index(load).is_ok() {
-                    c = c.without(load)?;
+            (Some(sc), _) => {
+                let mut c = sc.circuit.clone();
+                for load in ["Rl", "Cl"] {
+                    if c.element_index(load).is_ok() {
+                        c = c.without(load)?;
+                    }
                 }
+                impedance_sweep(&c, sc.output, "0", &[freq_hz])?.magnitude_ohm[0]
             }
-            impedance_sweep(&c, b.output, "0", &[freq_hz])?.magnitude_ohm[0]
-        }
+            // A circuit: between its output nodes, every element in place.
+            (None, Output::Voltage(p, m)) => {
+                impedance_sweep(b.circuit, p, m, &[freq_hz])?.magnitude_ohm[0]
+            }
+            (None, Output::Current(_)) => {
+                return Err(unreachable("outputImpedanceOhm", "the output is a current"));
+            }
+        },
         Figure::OutputNoiseRms { band_hz } | Figure::InputNoiseRms { band_hz } => {
             let setup = NoiseSetup {
-                output: match b.output_current {
-                    Some(e) => NoiseOutput::Current {
+                output: match b.output {
+                    Output::Current(e) => NoiseOutput::Current {
                         element: String::from(e),
                     },
-                    None => NoiseOutput::node(b.output),
+                    Output::Voltage(p, m) => NoiseOutput::Voltage {
+                        plus: String::from(p),
+                        minus: String::from(m),
+                    },
                 },
                 temperature_k: temperature_c + ZERO_C_K,
                 input_source: Some(String::from(b.source)),
-                amplifier: Some(String::from(b.amplifier)),
+                amplifier: b.amplifier.map(String::from),
                 current_noise: Vec::new(),
             };
-            let n = band_noise(&b.circuit, &setup, band_hz)?;
+            let n = band_noise(b.circuit, &setup, band_hz)?;
             if matches!(figure, Figure::OutputNoiseRms { .. }) {
                 n.total_rms
             } else {
@@ -381,11 +456,11 @@ pub(crate) fn figure_hinted(
             }
         }
         Figure::SettlingTimeS { band } => {
-            let out = match b.output_current {
-                Some(e) => StepOutput::ResistorCurrent(e),
-                None => StepOutput::Voltage(b.output, "0"),
+            let out = match b.output {
+                Output::Current(e) => StepOutput::ResistorCurrent(e),
+                Output::Voltage(p, m) => StepOutput::Voltage(p, m),
             };
-            circuit_step(&b.circuit, b.source, out, band, 2)?.settling_time_s
+            circuit_step(b.circuit, b.source, out, band, 2)?.settling_time_s
         }
     };
     Ok(crate::check::result(figure.name(), v)?)

@@ -22,7 +22,9 @@ pub mod worstcase;
 
 pub use figures::{figure_value, Figure, FIGURE_NAMES};
 pub use montecarlo::{monte_carlo, MonteCarlo, MonteCarloOptions, MAX_TRIALS};
-pub use parts::{AmplifierSpread, PartSpread, TolStage, Varied};
+pub use parts::{
+    AmplifierSpread, CircuitPorts, CircuitSubject, PartSpread, Subject, TolStage, Varied,
+};
 pub use sensitivity::{sensitivity, Sensitivity};
 pub use spec::{validate_spec, Limit};
 pub use worstcase::{worst_case, WorstCase, WorstCaseMethod, DEFAULT_MAX_CORNERS, MAX_CORNERS};

@@ -18,9 +18,9 @@
 //! (`crate::network::sample_stats`: mean, sd, percentiles by numpy's linear
 //! rule, histogram) pool the trials' values at every temperature.
 
-use super::figures::{figure_hinted, figure_of, is_margin};
+use super::figures::{figure_hinted, is_margin};
 use super::gain_trials::{GainTrials, Trial};
-use super::parts::{Draw, TolStage};
+use super::parts::{Built, Draw, TolStage};
 use super::spec::{validate_spec, Limit};
 use crate::circuit::CircuitResult;
 use crate::error::Error;
@@ -139,15 +139,13 @@ pub(crate) fn rebuilt_figures(
     out: &mut Vec<Option<f64>>,
 ) {
     out.clear();
-    let built = ts
-        .stage_at(values, temperature_c)
-        .ok()
-        .and_then(|s| s.circuit().ok().map(|b| (s, b)));
+    let built = ts.built_at(values, temperature_c).ok();
+    let probe = built.as_ref().map(|b| ts.probe(b));
     for l in spec {
         out.push(
-            built
+            probe
                 .as_ref()
-                .and_then(|(s, b)| figure_hinted(s, b, &l.figure, temperature_c, hints).ok()),
+                .and_then(|p| figure_hinted(p, &l.figure, temperature_c, hints).ok()),
         );
     }
 }
@@ -164,6 +162,7 @@ pub fn monte_carlo(
     o: MonteCarloOptions,
 ) -> CircuitResult<MonteCarlo> {
     validate_spec(spec)?;
+    ts.check_spec(spec)?;
     if o.trials > MAX_TRIALS {
         return Err(Error::TooLarge {
             param: "trials",
@@ -199,22 +198,27 @@ pub fn monte_carlo(
     // (its corners and resonances from both pole sets, found once per
     // temperature) and are signed by Nyquist's criterion: no trial finds poles.
     let wants_margins = spec.iter().any(|l| is_margin(&l.figure));
+    let wants_gain_margin = spec
+        .iter()
+        .any(|l| matches!(l.figure, super::figures::Figure::GainMarginDb));
     let mut hints: Vec<Option<LoopHints>> = Vec::with_capacity(temps.len());
     // A spec of gain figures alone is evaluated on each temperature's circuit
     // built once, the trials' values written into it (`gain_trials`).
     let mut fast: Vec<Option<GainTrials>> = Vec::with_capacity(temps.len());
     for &t in &temps {
-        let stage = ts.stage_at(&nominal_values, t)?;
-        let b = stage.circuit()?;
+        let built = ts.built_at(&nominal_values, t)?;
+        let p = ts.probe(&built);
         for (k, l) in spec.iter().enumerate() {
-            nominal[k].push(figure_of(&stage, &b, &l.figure, t)?);
+            nominal[k].push(figure_hinted(&p, &l.figure, t, None)?);
         }
-        hints.push(if wants_margins {
-            Some(LoopHints::of(&b.circuit, b.amplifier)?)
-        } else {
-            None
+        hints.push(match (wants_margins, p.amplifier) {
+            (true, Some(a)) => Some(LoopHints::of(p.circuit, a, wants_gain_margin)?),
+            _ => None,
         });
-        fast.push(GainTrials::new(&b, spec));
+        fast.push(match &built {
+            Built::Stage(b, _) => GainTrials::new(b, spec),
+            Built::Circuit(_) => None,
+        });
     }
     let mut row = Vec::with_capacity(spec.len());
     let mut d = Draws::new(o.seed);

@@ -13,8 +13,10 @@
 //! - limits: min and max;
 //! - an amplifier figure given as min/typ/max: min and max.
 
+use super::figures::{circuit_grid_top, Probe};
+use crate::circuit::blackman::Output;
 use crate::circuit::tolerance::{validate_tempco, Tolerance};
-use crate::circuit::{CircuitError, CircuitResult, Name};
+use crate::circuit::{Circuit, CircuitError, CircuitResult, ElementKind, Name};
 use crate::error::{Error, Result};
 use crate::stage::{Amplifier, BandwidthRule, Spread, SpreadPoint, Stage, StageCircuit};
 use alloc::string::String;
@@ -86,27 +88,91 @@ pub struct Varied {
     pub(crate) slot: Slot,
 }
 
-/// Where a varied value goes in the stage.
+/// Where a varied value goes in the stage or circuit.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub(crate) enum Slot {
+    /// A stage part ([`NAMES`] order).
     Part(usize),
+    /// The stage amplifier's A0, GBW, Ro.
     A0,
     Gbw,
     Ro,
+    /// A circuit element's value (its index in the circuit).
+    Element(usize),
+    /// A circuit amplifier's A0, GBW, Ro (the index into
+    /// [`CircuitSubject::amplifiers`]).
+    AmpA0(usize),
+    AmpGbw(usize),
+    AmpRo(usize),
 }
 
-/// A stage with the spreads of its parts and a temperature range.
+/// The names a circuit document's figures are read at (as `circuitGain`,
+/// `circuitLoopGain` name them).
+#[derive(Debug, Clone, PartialEq, Eq, Default)]
+pub struct CircuitPorts {
+    /// The independent source carrying the signal (the gain is per unit of it).
+    pub input: String,
+    /// The output node.
+    pub output: String,
+    /// The node the output is read against (`None`: ground, `0`).
+    pub output_minus: Option<String>,
+    /// The amplifier (or controlled source) whose loop the margins are read
+    /// at (`None`: the circuit's only amplifier element, if it has one).
+    pub controlled: Option<String>,
+}
+
+/// A circuit amplifier whose model figures vary: its element index and the
+/// typical GBW and dominant pole of its model.
+#[derive(Debug, Clone, PartialEq)]
+pub(crate) struct VariedAmplifier {
+    pub element: usize,
+    gbw_typ: f64,
+    pole_typ: f64,
+}
+
+/// A circuit document as the subject of the analyses.
+#[derive(Debug, Clone, PartialEq)]
+pub struct CircuitSubject {
+    /// The circuit at its nominal values.
+    pub circuit: Circuit,
+    /// Its ports.
+    pub ports: CircuitPorts,
+    /// The loop's amplifier for the margins (the named or the only one).
+    pub controlled: Option<String>,
+    pub(crate) amplifiers: Vec<VariedAmplifier>,
+}
+
+/// What the spreads apply to: a stage document or a circuit document.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Subject {
+    /// A stage (at most the eight parts of [`PART_NAMES`] and `U1`).
+    Stage(alloc::boxed::Box<Stage>),
+    /// A circuit: any element may carry a tolerance and a tempco, any
+    /// amplifier element a min/typ/max A0.
+    Circuit(CircuitSubject),
+}
+
+/// A stage or circuit with the spreads of its parts and a temperature range.
 #[derive(Debug, Clone, PartialEq)]
 pub struct TolStage {
-    /// The stage at its nominal values.
-    pub stage: Stage,
-    /// The varied quantities, in draw order: parts in [`PART_NAMES`] order,
-    /// then A0, GBW, Ro.
+    /// The stage or circuit at its nominal values.
+    pub subject: Subject,
+    /// The varied quantities, in draw order: for a stage, parts in
+    /// [`PART_NAMES`] order, then A0, GBW, Ro; for a circuit, the elements in
+    /// document order, then each amplifier's A0, GBW, Ro.
     pub varied: Vec<Varied>,
     /// Temperature range, °C, low ≤ high.
     pub temperature_c: [f64; 2],
     gbw_typ: f64,
     pole_typ: f64,
+}
+
+/// The built circuit of one set of values at one temperature.
+pub(crate) enum Built {
+    /// A stage's circuit and the top of its bandwidth grid, Hz.
+    Stage(StageCircuit, f64),
+    /// A circuit document's circuit.
+    Circuit(Circuit),
 }
 
 fn slot_of(parts: &crate::stage::StageParts, k: usize) -> Option<f64> {
@@ -183,7 +249,404 @@ fn extremes(t: Tolerance, v: f64) -> (f64, f64, Draw) {
     }
 }
 
+fn check_temperatures(temperature_c: [f64; 2]) -> Result<()> {
+    for t in temperature_c {
+        crate::check::finite("temperature", t)?;
+        if !(TEMPERATURE_LIMITS_C[0]..=TEMPERATURE_LIMITS_C[1]).contains(&t) {
+            return Err(Error::OutOfDomain {
+                param: "temperature",
+                requirement: "must be from -273.15 to 1000 °C",
+            });
+        }
+    }
+    if temperature_c[0] > temperature_c[1] {
+        return Err(Error::OutOfDomain {
+            param: "temperature",
+            requirement: "low must not be above high",
+        });
+    }
+    Ok(())
+}
+
+/// One part of value `v` with its tolerance and tempco as a varied quantity.
+fn varied_part(
+    element: &str,
+    v: f64,
+    tolerance: Option<Tolerance>,
+    tempco_ppm: Option<f64>,
+    slot: Slot,
+) -> CircuitResult<Varied> {
+    let (low, high, draw) = match tolerance {
+        Some(t) => {
+            t.validate(v).map_err(|e| named(e, element))?;
+            extremes(t, v)
+        }
+        None => (v, v, Draw::Uniform),
+    };
+    if low <= 0.0 {
+        return Err(named(
+            Error::OutOfDomain {
+                param: "tolerance",
+                requirement: "must leave the part's value above zero",
+            },
+            element,
+        ));
+    }
+    let tc = tempco_ppm.unwrap_or(0.0);
+    validate_tempco(tc).map_err(|e| named(e, element))?;
+    Ok(Varied {
+        name: String::from(element),
+        nominal: v,
+        low,
+        high,
+        tempco_ppm: tc,
+        draw,
+        slot,
+    })
+}
+
+/// A model's min/typ/max figure as a varied quantity named `{element}.{param}`,
+/// or `None` when it does not spread.
+fn varied_spread(
+    element: &str,
+    param: &'static str,
+    s: Spread,
+    typ: f64,
+    slot: Slot,
+) -> CircuitResult<Option<Varied>> {
+    s.validate_positive(param).map_err(|e| named(e, element))?;
+    if (s.typ - typ).abs() > 1e-12 * typ.abs() {
+        return Err(named(
+            Error::OutOfDomain {
+                param,
+                requirement: "typ must equal the amplifier model's figure",
+            },
+            element,
+        ));
+    }
+    Ok((s.min < s.max).then(|| Varied {
+        name: alloc::format!("{element}.{param}"),
+        nominal: s.typ,
+        low: s.min,
+        high: s.max,
+        tempco_ppm: 0.0,
+        draw: Draw::MinTypMax,
+        slot,
+    }))
+}
+
+/// The only amplifier element of a circuit, if it has exactly one.
+pub fn only_amplifier(c: &Circuit) -> Option<String> {
+    let mut amps = c
+        .elements()
+        .iter()
+        .filter(|e| e.kind() == ElementKind::Amplifier);
+    match (amps.next(), amps.next()) {
+        (Some(a), None) => Some(String::from(a.name().as_str())),
+        _ => None,
+    }
+}
+
+fn port_error(param: &'static str, requirement: &'static str, name: &str) -> CircuitError {
+    named(Error::OutOfDomain { param, requirement }, name)
+}
+
 impl TolStage {
+    /// A circuit document with the spreads its elements carry (`tolerance`,
+    /// `tempco`), each amplifier element's min/typ/max A0 (from its model),
+    /// further amplifier spreads by element name (`amplifiers`: GBW and Ro,
+    /// typ the model's own), a temperature range (°C), and the names its
+    /// figures are read at.
+    ///
+    /// # Errors
+    /// Param `input`: not an independent source of the circuit; `output`,
+    /// `outputMinus`: not a node of it; `controlled`: not an amplifier or
+    /// controlled source of it; `amplifierSpread` (naming the element): a
+    /// spread for an element that is not an amplifier, or given twice; as
+    /// [`TolStage::new`] for the tolerances, tempcos, amplifier spreads and
+    /// temperatures.
+    pub fn from_circuit(
+        circuit: &Circuit,
+        ports: CircuitPorts,
+        amplifiers: &[(String, AmplifierSpread)],
+        temperature_c: [f64; 2],
+    ) -> CircuitResult<TolStage> {
+        check_temperatures(temperature_c)?;
+        match circuit.element(&ports.input) {
+            Ok(e) if e.kind().is_independent() => {}
+            _ => {
+                return Err(port_error(
+                    "input",
+                    "must name an independent source of the circuit",
+                    &ports.input,
+                ))
+            }
+        }
+        if circuit.node_index(&ports.output).is_err() {
+            return Err(port_error(
+                "output",
+                "must name a node of the circuit",
+                &ports.output,
+            ));
+        }
+        if let Some(m) = &ports.output_minus {
+            if circuit.node_index(m).is_err() {
+                return Err(port_error(
+                    "outputMinus",
+                    "must name a node of the circuit",
+                    m,
+                ));
+            }
+        }
+        let controlled = match &ports.controlled {
+            Some(c) => match circuit.element(c) {
+                Ok(e) if e.kind().is_controlled() || e.kind() == ElementKind::Amplifier => {
+                    Some(c.clone())
+                }
+                _ => {
+                    return Err(port_error(
+                        "controlled",
+                        "must name an amplifier or controlled source of the circuit",
+                        c,
+                    ))
+                }
+            },
+            None => only_amplifier(circuit),
+        };
+        for (k, (name, _)) in amplifiers.iter().enumerate() {
+            let is_amp = circuit
+                .element(name)
+                .is_ok_and(|e| e.kind() == ElementKind::Amplifier);
+            if !is_amp || amplifiers[..k].iter().any(|(n, _)| n == name) {
+                return Err(port_error(
+                    "amplifierSpread",
+                    "must name each amplifier element of the circuit once",
+                    name,
+                ));
+            }
+        }
+        let mut varied = Vec::new();
+        for (i, e) in circuit.elements().iter().enumerate() {
+            if e.tolerance().is_some() || e.tempco_ppm().is_some() {
+                let name = e.name();
+                varied.push(varied_part(
+                    name.as_str(),
+                    e.value(),
+                    e.tolerance(),
+                    e.tempco_ppm(),
+                    Slot::Element(i),
+                )?);
+            }
+        }
+        let mut amps = Vec::new();
+        for (i, e) in circuit.elements().iter().enumerate() {
+            let Some(part) = e.amplifier() else { continue };
+            let name = e.name();
+            let name = name.as_str();
+            let model = &part.model;
+            let k = amps.len();
+            let before = varied.len();
+            let a0 = model.a0;
+            if a0.min < a0.max {
+                varied.push(Varied {
+                    name: alloc::format!("{name}.a0"),
+                    nominal: a0.typ,
+                    low: a0.min,
+                    high: a0.max,
+                    tempco_ppm: 0.0,
+                    draw: Draw::MinTypMax,
+                    slot: Slot::AmpA0(k),
+                });
+            }
+            let gbw_typ = model.gbw_at(SpreadPoint::Typ).map_err(|e| named(e, name))?;
+            let pole_typ = model
+                .dominant_pole_at(SpreadPoint::Typ)
+                .map_err(|e| named(e, name))?;
+            let spread = amplifiers
+                .iter()
+                .find(|(n, _)| n == name)
+                .map(|(_, s)| *s)
+                .unwrap_or_default();
+            for (param, s, typ, slot) in [
+                ("gbwHz", spread.gbw_hz, gbw_typ, Slot::AmpGbw(k)),
+                ("ro", spread.ro, model.ro, Slot::AmpRo(k)),
+            ] {
+                if let Some(s) = s {
+                    varied.extend(varied_spread(name, param, s, typ, slot)?);
+                }
+            }
+            if varied.len() > before {
+                amps.push(VariedAmplifier {
+                    element: i,
+                    gbw_typ,
+                    pole_typ,
+                });
+            }
+        }
+        Ok(TolStage {
+            subject: Subject::Circuit(CircuitSubject {
+                circuit: circuit.clone(),
+                ports,
+                controlled,
+                amplifiers: amps,
+            }),
+            varied,
+            temperature_c,
+            gbw_typ: 0.0,
+            pole_typ: 0.0,
+        })
+    }
+
+    /// The figures' view of a circuit built by [`TolStage::built_at`].
+    pub(crate) fn probe<'a>(&'a self, b: &'a Built) -> Probe<'a> {
+        match (b, &self.subject) {
+            (Built::Stage(sc, top), _) => Probe::of_stage(sc, *top),
+            (Built::Circuit(c), Subject::Circuit(cs)) => Probe {
+                circuit: c,
+                source: &cs.ports.input,
+                output: Output::Voltage(
+                    &cs.ports.output,
+                    cs.ports.output_minus.as_deref().unwrap_or("0"),
+                ),
+                amplifier: cs.controlled.as_deref(),
+                top_hz: circuit_grid_top(c),
+                stage: None,
+            },
+            // Not built by this subject: no source, every figure refuses.
+            (Built::Circuit(c), Subject::Stage(_)) => Probe {
+                circuit: c,
+                source: "",
+                output: Output::Voltage("", ""),
+                amplifier: None,
+                top_hz: circuit_grid_top(c),
+                stage: None,
+            },
+        }
+    }
+
+    /// Check that every figure of `spec` can be read on the subject.
+    ///
+    /// # Errors
+    /// Param `controlled`: a margin figure on a circuit with no loop named
+    /// (none or several amplifiers, `controlled` not given).
+    pub(crate) fn check_spec(&self, spec: &[super::spec::Limit]) -> CircuitResult<()> {
+        if let Subject::Circuit(cs) = &self.subject {
+            if cs.controlled.is_none() && spec.iter().any(|l| super::figures::is_margin(&l.figure))
+            {
+                return Err(super::figures::no_loop());
+            }
+        }
+        Ok(())
+    }
+
+    /// The stage, when the subject is a stage document.
+    pub fn stage(&self) -> Option<&Stage> {
+        match &self.subject {
+            Subject::Stage(s) => Some(s),
+            Subject::Circuit(_) => None,
+        }
+    }
+
+    /// Write `values` (reference temperature, [`TolStage::varied`] order)
+    /// moved to `temperature_c` into `c`, a circuit with the elements of the
+    /// subject circuit (its copy, or one with the same elements first and
+    /// test parts after).
+    ///
+    /// # Errors
+    /// Param `values`: a wrong count; a value at or below zero at the
+    /// temperature (naming the element).
+    pub(crate) fn write_circuit(
+        &self,
+        cs: &CircuitSubject,
+        values: &[f64],
+        temperature_c: f64,
+        c: &mut Circuit,
+    ) -> CircuitResult<()> {
+        if values.len() != self.varied.len() {
+            return Err(Error::OutOfDomain {
+                param: "values",
+                requirement: "must give one value per varied part",
+            }
+            .into());
+        }
+        let dt = temperature_c - REFERENCE_C;
+        let originals = cs.circuit.elements();
+        // Each varied amplifier from its document model: A0 at its point, GBW
+        // ratio 1, Ro as given, then the trial's values.
+        let mut amp_values: Vec<(f64, f64, f64)> = cs
+            .amplifiers
+            .iter()
+            .map(|a| {
+                let part = originals[a.element].amplifier();
+                part.map_or((0.0, 1.0, 0.0), |p| {
+                    (p.model.a0.at(p.point), 1.0, p.model.ro)
+                })
+            })
+            .collect();
+        let elements = c.elements_mut();
+        for (v, &x) in self.varied.iter().zip(values) {
+            let x = x * (1.0 + v.tempco_ppm * 1e-6 * dt);
+            match v.slot {
+                Slot::Element(i) => {
+                    if x <= 0.0 || !x.is_finite() {
+                        return Err(named(
+                            Error::OutOfDomain {
+                                param: "tempco",
+                                requirement: "must leave the part's value above zero over the temperature range",
+                            },
+                            &v.name,
+                        ));
+                    }
+                    elements[i].value = x;
+                }
+                Slot::AmpA0(k) => amp_values[k].0 = x,
+                Slot::AmpGbw(k) => amp_values[k].1 = x / cs.amplifiers[k].gbw_typ,
+                Slot::AmpRo(k) => amp_values[k].2 = x,
+                Slot::Part(_) | Slot::A0 | Slot::Gbw | Slot::Ro => {}
+            }
+        }
+        for (a, (a0, ratio, ro)) in cs.amplifiers.iter().zip(amp_values) {
+            let Some(part) = elements[a.element].amplifier.as_deref_mut() else {
+                continue;
+            };
+            let m = &mut part.model;
+            m.a0 = Spread::fixed(a0);
+            m.ro = ro;
+            match m.hold {
+                BandwidthRule::HoldGbw => {
+                    m.gbw_hz = Some(a.gbw_typ * ratio);
+                    m.dominant_pole_hz = None;
+                }
+                BandwidthRule::HoldPole => {
+                    m.dominant_pole_hz = Some(a.pole_typ * ratio);
+                    m.gbw_hz = None;
+                }
+            }
+            part.point = SpreadPoint::Typ;
+        }
+        Ok(())
+    }
+
+    /// The circuit of the subject at `values` and `temperature_c`.
+    ///
+    /// # Errors
+    /// As [`TolStage::stage_at`] for a stage; as the circuit writer for a circuit.
+    pub(crate) fn built_at(&self, values: &[f64], temperature_c: f64) -> CircuitResult<Built> {
+        match &self.subject {
+            Subject::Stage(_) => {
+                let stage = self.stage_at(values, temperature_c)?;
+                let top =
+                    stage.amplifier.gbw_at(SpreadPoint::Typ)? * super::figures::GRID_TOP_PER_GBW;
+                Ok(Built::Stage(stage.circuit()?, top))
+            }
+            Subject::Circuit(cs) => {
+                let mut c = cs.circuit.clone();
+                self.write_circuit(cs, values, temperature_c, &mut c)?;
+                Ok(Built::Circuit(c))
+            }
+        }
+    }
+
     /// The stage with the spreads of its parts, the amplifier's spreads and a
     /// temperature range (°C).
     ///
@@ -203,23 +666,7 @@ impl TolStage {
         temperature_c: [f64; 2],
     ) -> CircuitResult<TolStage> {
         stage.circuit()?;
-        for t in temperature_c {
-            crate::check::finite("temperature", t)?;
-            if !(TEMPERATURE_LIMITS_C[0]..=TEMPERATURE_LIMITS_C[1]).contains(&t) {
-                return Err(Error::OutOfDomain {
-                    param: "temperature",
-                    requirement: "must be from -273.15 to 1000 °C",
-                }
-                .into());
-            }
-        }
-        if temperature_c[0] > temperature_c[1] {
-            return Err(Error::OutOfDomain {
-                param: "temperature",
-                requirement: "low must not be above high",
-            }
-            .into());
-        }
+        check_temperatures(temperature_c)?;
         let mut varied = Vec::new();
         for (k, (part, element)) in NAMES.iter().enumerate() {
             let mut found = spreads.iter().filter(|s| s.part == *part);
@@ -242,33 +689,13 @@ impl TolStage {
                     element,
                 ));
             };
-            let (low, high, draw) = match s.tolerance {
-                Some(t) => {
-                    t.validate(v).map_err(|e| named(e, element))?;
-                    extremes(t, v)
-                }
-                None => (v, v, Draw::Uniform),
-            };
-            if low <= 0.0 {
-                return Err(named(
-                    Error::OutOfDomain {
-                        param: "tolerance",
-                        requirement: "must leave the part's value above zero",
-                    },
-                    element,
-                ));
-            }
-            let tc = s.tempco_ppm.unwrap_or(0.0);
-            validate_tempco(tc).map_err(|e| named(e, element))?;
-            varied.push(Varied {
-                name: String::from(*element),
-                nominal: v,
-                low,
-                high,
-                tempco_ppm: tc,
-                draw,
-                slot: Slot::Part(k),
-            });
+            varied.push(varied_part(
+                element,
+                v,
+                s.tolerance,
+                s.tempco_ppm,
+                Slot::Part(k),
+            )?);
         }
         if let Some(s) = spreads
             .iter()
@@ -323,7 +750,7 @@ impl TolStage {
             }
         }
         Ok(TolStage {
-            stage: stage.clone(),
+            subject: Subject::Stage(alloc::boxed::Box::new(stage.clone())),
             varied,
             temperature_c,
             gbw_typ,
@@ -362,7 +789,13 @@ impl TolStage {
                 requirement: "must give one value per varied part",
             });
         }
-        let mut s = self.stage.clone();
+        let Subject::Stage(stage) = &self.subject else {
+            return Err(Error::OutOfDomain {
+                param: "stage",
+                requirement: "is a circuit document: its values are written by the circuit path",
+            });
+        };
+        let mut s = Stage::clone(stage);
         let mut a0 = s.amplifier.a0.at(s.point);
         let mut gbw_ratio = 1.0;
         let dt = temperature_c - REFERENCE_C;
@@ -373,6 +806,7 @@ impl TolStage {
                 Slot::A0 => a0 = x,
                 Slot::Gbw => gbw_ratio = x / self.gbw_typ,
                 Slot::Ro => s.amplifier.ro = x,
+                Slot::Element(_) | Slot::AmpA0(_) | Slot::AmpGbw(_) | Slot::AmpRo(_) => {}
             }
         }
         let m: &mut Amplifier = &mut s.amplifier;

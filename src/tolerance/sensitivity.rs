@@ -15,7 +15,7 @@
 //! The part to tighten first is the one with the largest share summed over
 //! the spec's figures.
 
-use super::figures::figure_of;
+use super::figures::figure_hinted;
 use super::parts::{Draw, TolStage};
 use super::spec::{validate_spec, Limit};
 use crate::circuit::CircuitResult;
@@ -95,13 +95,14 @@ pub fn draw_sd(v: &super::parts::Varied) -> f64 {
 /// The spec's errors; a figure not computable at or near nominal.
 pub fn sensitivity(ts: &TolStage, spec: &[Limit]) -> CircuitResult<Sensitivity> {
     validate_spec(spec)?;
+    ts.check_spec(spec)?;
     let t = ts.temperatures()[0];
     let nominal = ts.nominal();
     let eval = |values: &[f64]| -> CircuitResult<Vec<f64>> {
-        let stage = ts.stage_at(values, t)?;
-        let b = stage.circuit()?;
+        let b = ts.built_at(values, t)?;
+        let p = ts.probe(&b);
         spec.iter()
-            .map(|l| figure_of(&stage, &b, &l.figure, t))
+            .map(|l| figure_hinted(&p, &l.figure, t, None))
             .collect()
     };
     let f0 = eval(&nominal)?;

@@ -18,7 +18,7 @@
 //! golden section ([`SEARCH_STEPS`] steps) with the other parts at the extreme
 //! found, and the parts so searched are named in the result.
 
-use super::figures::figure_of;
+use super::figures::figure_hinted;
 use super::parts::TolStage;
 use super::spec::{validate_spec, Limit};
 use crate::circuit::CircuitResult;
@@ -106,18 +106,17 @@ struct Eval<'a> {
 impl Eval<'_> {
     fn one(&mut self, k: usize, values: &[f64], t: f64) -> CircuitResult<f64> {
         self.count += 1;
-        let stage = self.ts.stage_at(values, t)?;
-        let b = stage.circuit()?;
-        figure_of(&stage, &b, &self.spec[k].figure, t)
+        let b = self.ts.built_at(values, t)?;
+        figure_hinted(&self.ts.probe(&b), &self.spec[k].figure, t, None)
     }
 
     fn all(&mut self, values: &[f64], t: f64) -> CircuitResult<Vec<f64>> {
-        let stage = self.ts.stage_at(values, t)?;
-        let b = stage.circuit()?;
+        let b = self.ts.built_at(values, t)?;
+        let p = self.ts.probe(&b);
         self.count += self.spec.len();
         self.spec
             .iter()
-            .map(|l| figure_of(&stage, &b, &l.figure, t))
+            .map(|l| figure_hinted(&p, &l.figure, t, None))
             .collect()
     }
 }
@@ -142,6 +141,7 @@ fn better(max: bool, a: f64, b: f64) -> bool {
 /// point (the stage's or the figure's error).
 pub fn worst_case(ts: &TolStage, spec: &[Limit], max_corners: usize) -> CircuitResult<WorstCase> {
     validate_spec(spec)?;
+    ts.check_spec(spec)?;
     if max_corners > MAX_CORNERS {
         return Err(crate::error::Error::TooLarge {
             param: "maxCorners",

@@ -9,6 +9,7 @@
 use super::options::{self, Fields, FromOptions, Plain};
 use super::stage::{document, thrown, Document};
 use super::to_js;
+use crate::circuit::json::read_circuit;
 use crate::circuit::tolerance::Tolerance;
 use crate::circuit::CircuitError;
 use crate::error::Error;
@@ -19,8 +20,8 @@ use crate::tolerance::parts::Varied;
 use crate::tolerance::sensitivity::Sensitivity;
 use crate::tolerance::worstcase::WorstCase;
 use crate::tolerance::{
-    monte_carlo, sensitivity, validate_spec, worst_case, AmplifierSpread, Figure, Limit,
-    MonteCarloOptions, PartSpread, TolStage, DEFAULT_MAX_CORNERS,
+    monte_carlo, sensitivity, validate_spec, worst_case, AmplifierSpread, CircuitPorts, Figure,
+    Limit, MonteCarloOptions, PartSpread, TolStage, DEFAULT_MAX_CORNERS,
 };
 use alloc::string::String;
 use alloc::vec::Vec;
@@ -49,13 +50,27 @@ export interface ToleranceLimit {
   freqHz?: number; target?: number; bandHz?: [number, number]; band?: number;
   lower?: number; upper?: number;
 }
-/** Options of `stageTolerance`. */
+/**
+ * Options of `stageTolerance`: a stage document with `parts`, or a circuit
+ * document (its elements carry their own `tolerance` and `tempco`) with the
+ * names its figures are read at, as `circuitGain` and `circuitLoopGain` take them.
+ */
 export interface StageToleranceOptions {
-  /** A stage document (docs/stage.md), object or JSON text. */
-  stage: object | string;
-  /** Part spreads; parts left out are exact. */
+  /** A stage document (docs/stage.md), object or JSON text; or give `circuit`. */
+  stage?: object | string;
+  /** A circuit document, version 2 (docs/circuit.md), object or JSON text; or give `stage`. */
+  circuit?: object | string;
+  /** Circuit only: the independent source the gain is per unit of (required). */
+  input?: string;
+  /** Circuit only: the output node (required). */
+  output?: string;
+  /** Circuit only: the node the output is read against (default ground "0"). */
+  outputMinus?: string;
+  /** Circuit only: the amplifier whose loop gives the margins (default: the only amplifier element). */
+  controlled?: string;
+  /** Stage only: part spreads; parts left out are exact. */
   parts?: PartSpreadOptions[];
-  /** The amplifier's GBW and output resistance spreads (A0's is in the model). */
+  /** The amplifier's GBW and output resistance spreads (A0's is in the model); for a circuit, of the `controlled` amplifier. */
   amplifierSpread?: { gbwHz?: MinTypMax; ro?: MinTypMax };
   /** Temperature range, °C (default [25, 25]). */
   temperatureC?: [number, number];
@@ -122,7 +137,12 @@ export interface StageTolerance {
 "#;
 
 struct TolOptions {
-    stage: Json,
+    stage: Option<Json>,
+    circuit: Option<Json>,
+    input: Option<String>,
+    output: Option<String>,
+    output_minus: Option<String>,
+    controlled: Option<String>,
     parts: Vec<PartOptions>,
     amplifier_spread: Option<AmpSpreadOptions>,
     temperature_c: Option<Vec<f64>>,
@@ -138,6 +158,11 @@ struct TolOptions {
 impl FromOptions for TolOptions {
     const FIELDS: &'static [&'static str] = &[
         "stage",
+        "circuit",
+        "input",
+        "output",
+        "outputMinus",
+        "controlled",
         "parts",
         "amplifierSpread",
         "temperatureC",
@@ -150,8 +175,16 @@ impl FromOptions for TolOptions {
         "maxCorners",
     ];
     fn from_fields(f: &mut Fields) -> Self {
+        // `stage` is required unless `circuit` is given.
+        let circuit = f.raw_present("circuit").then(|| f.document("circuit"));
+        let stage = (circuit.is_none() || f.raw_present("stage")).then(|| f.document("stage"));
         TolOptions {
-            stage: f.document("stage"),
+            stage,
+            circuit,
+            input: f.opt_text("input"),
+            output: f.opt_text("output"),
+            output_minus: f.opt_text("outputMinus"),
+            controlled: f.opt_text("controlled"),
             parts: f.objects("parts"),
             amplifier_spread: optional(f, "amplifierSpread"),
             temperature_c: f.opt_nums("temperatureC"),
@@ -422,16 +455,151 @@ fn analysis(e: CircuitError, parts: &[PartOptions]) -> JsValue {
     thrown(&param, e.error, subject, None)
 }
 
-/// Whole-stage tolerance of a stage document against a spec (docs/tolerance.md),
-/// from `{stage, parts, amplifierSpread, temperatureC, spec, analyses, seed,
-/// trials, bins, keepFailures, maxCorners}`: `{parts, temperaturesC, worstCase,
+/// A core error of the analyses of a circuit document under the caller's
+/// names: an element's spread as `circuit.elements[i].tolerance` (or
+/// `.tempco`), the ports and settings as given.
+fn circuit_analysis(e: CircuitError, c: &crate::circuit::Circuit) -> JsValue {
+    let subject = e.name.as_str();
+    let param = match e.error.param() {
+        p @ ("tolerance" | "tempco") => match c.element_index(subject) {
+            Ok(i) => alloc::format!("circuit.elements[{i}].{p}"),
+            Err(_) => String::from("circuit"),
+        },
+        "temperature" => String::from("temperatureC"),
+        "gbwHz" => String::from("amplifierSpread.gbwHz"),
+        "ro" => String::from("amplifierSpread.ro"),
+        p @ ("input" | "output" | "outputMinus" | "controlled" | "amplifierSpread"
+        | "maxCorners" | "trials" | "bins" | "keepFailures") => String::from(p),
+        p => alloc::format!("circuit.{p}"),
+    };
+    thrown(&param, e.error, subject, None)
+}
+
+/// The circuit document in `circuit` (an object or its JSON text), its
+/// errors under the caller's path: `circuit.elements[i].tolerance` for the
+/// element at fault, `circuit.format` for a stage document.
+fn circuit_document(doc: Json) -> Result<crate::circuit::Circuit, JsValue> {
+    use crate::json::Members;
+    let (text, tree) = match doc {
+        Json::String(text) => {
+            let tree = crate::json::parse(&text).ok();
+            (text, tree)
+        }
+        Json::Object(_) => (doc.to_text(), Some(doc)),
+        _ => {
+            let error = Error::WrongType {
+                param: "",
+                expected: "a circuit document, or its JSON text",
+            };
+            return Err(thrown("circuit", error, "", None));
+        }
+    };
+    let members = tree.as_ref().and_then(Json::as_object);
+    if members
+        .and_then(|m| m.field("format"))
+        .and_then(Json::as_str)
+        == Some("loopwright-stage")
+    {
+        let error = Error::UnknownName {
+            param: "",
+            expected: "loopwright-circuit (a stage document goes in stage)",
+        };
+        return Err(thrown("circuit.format", error, "", None));
+    }
+    read_circuit(&text).map_err(|e| {
+        let subject = e.name.as_str();
+        let index = members
+            .and_then(|m| m.field("elements"))
+            .and_then(Json::as_array)
+            .and_then(|els| {
+                els.iter().position(|el| {
+                    el.as_object()
+                        .and_then(|o| o.field("name"))
+                        .and_then(Json::as_str)
+                        == Some(subject)
+                })
+            });
+        let p = e.error.param();
+        let param = match (index, p) {
+            (_, "" | "json") => String::from("circuit"),
+            (Some(i), p) => alloc::format!("circuit.elements[{i}].{p}"),
+            (None, p) => alloc::format!("circuit.{p}"),
+        };
+        thrown(&param, e.error, subject, None)
+    })
+}
+
+/// The subject of a `{circuit, input, output, outputMinus, controlled}` call:
+/// the circuit's own element spreads, `amplifierSpread` on the loop's amplifier.
+fn circuit_subject(
+    o: &TolOptions,
+    doc: Json,
+    amp: AmplifierSpread,
+    given_spread: bool,
+    temperature_c: [f64; 2],
+) -> Result<(TolStage, crate::circuit::Circuit), JsValue> {
+    if !o.parts.is_empty() {
+        let e = Error::OutOfDomain {
+            param: "",
+            requirement:
+                "belongs to a stage; a circuit's elements carry their own tolerance and tempco",
+        };
+        return Err(thrown("parts", e, "", None));
+    }
+    let c = circuit_document(doc)?;
+    let need = |v: &Option<String>, field: &str| {
+        v.clone()
+            .ok_or_else(|| thrown(field, Error::Missing { param: "" }, "", None))
+    };
+    let ports = CircuitPorts {
+        input: need(&o.input, "input")?,
+        output: need(&o.output, "output")?,
+        output_minus: o.output_minus.clone(),
+        controlled: o.controlled.clone(),
+    };
+    let target = ports
+        .controlled
+        .clone()
+        .or_else(|| crate::tolerance::parts::only_amplifier(&c));
+    let amplifiers = match (given_spread, target) {
+        (false, _) => Vec::new(),
+        (true, Some(name)) => alloc::vec![(name, amp)],
+        (true, None) => {
+            let e = Error::OutOfDomain {
+                param: "",
+                requirement: "applies to the controlled amplifier: name it in controlled",
+            };
+            return Err(thrown("amplifierSpread", e, "", None));
+        }
+    };
+    let ts = TolStage::from_circuit(&c, ports, &amplifiers, temperature_c)
+        .map_err(|e| circuit_analysis(e, &c))?;
+    Ok((ts, c))
+}
+
+/// Whole-stage tolerance against a spec (docs/tolerance.md), of a stage
+/// document from `{stage, parts, amplifierSpread, temperatureC, spec, analyses,
+/// seed, trials, bins, keepFailures, maxCorners}`, or of a circuit document
+/// from `{circuit, input, output, outputMinus, controlled, amplifierSpread,
+/// temperatureC, spec, …}` (its elements' own `tolerance` and `tempco`, its
+/// amplifiers' min/typ/max A0): `{parts, temperaturesC, worstCase,
 /// monteCarlo, sensitivity}` (an analysis not asked for is `null`).
 #[wasm_bindgen(js_name = stageTolerance, unchecked_return_type = "StageTolerance")]
 pub fn stage_tolerance(
     #[wasm_bindgen(unchecked_param_type = "StageToleranceOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let o: TolOptions = options::read("", &options)?;
-    let Document::Stage(_, stage) = document(o.stage, "stage", None)? else {
+    let mut o: TolOptions = options::read("", &options)?;
+    if o.circuit.is_some() && o.stage.is_some() {
+        let e = Error::OutOfDomain {
+            param: "",
+            requirement: "give stage or circuit, not both",
+        };
+        return Err(thrown("circuit", e, "", None));
+    }
+    let Some(stage_doc) = o.stage.take() else {
+        return circuit_tolerance(o);
+    };
+    let Document::Stage(_, stage) = document(stage_doc, "stage", None)? else {
         let error = Error::UnknownName {
             param: "",
             expected: "loopwright-stage",
@@ -457,6 +625,25 @@ pub fn stage_tolerance(
             tempco_ppm: p.tempco_ppm,
         });
     }
+    let amp = amplifier_spread(&o);
+    let temperature_c = temperatures(&o)?;
+    let spec = spec_of(&o)?;
+    let ts =
+        TolStage::new(&stage, &spreads, amp, temperature_c).map_err(|e| analysis(e, &o.parts))?;
+    run(&o, &ts, &spec, |e| analysis(e, &o.parts))
+}
+
+/// The circuit-document form of [`stage_tolerance`].
+fn circuit_tolerance(mut o: TolOptions) -> Result<JsValue, JsValue> {
+    let doc = o.circuit.take().unwrap_or(Json::Null);
+    let amp = amplifier_spread(&o);
+    let temperature_c = temperatures(&o)?;
+    let spec = spec_of(&o)?;
+    let (ts, c) = circuit_subject(&o, doc, amp, o.amplifier_spread.is_some(), temperature_c)?;
+    run(&o, &ts, &spec, |e| circuit_analysis(e, &c))
+}
+
+fn amplifier_spread(o: &TolOptions) -> AmplifierSpread {
     let spread = |m: &Option<MinTypMaxOptions>| {
         m.as_ref().map(|m| Spread {
             min: m.min,
@@ -464,25 +651,30 @@ pub fn stage_tolerance(
             max: m.max,
         })
     };
-    let amp = o
-        .amplifier_spread
+    o.amplifier_spread
         .as_ref()
         .map(|a| AmplifierSpread {
             gbw_hz: spread(&a.gbw_hz),
             ro: spread(&a.ro),
         })
-        .unwrap_or_default();
-    let temperature_c = match o.temperature_c.as_deref() {
-        None => [25.0, 25.0],
-        Some(&[lo, hi]) => [lo, hi],
+        .unwrap_or_default()
+}
+
+fn temperatures(o: &TolOptions) -> Result<[f64; 2], JsValue> {
+    match o.temperature_c.as_deref() {
+        None => Ok([25.0, 25.0]),
+        Some(&[lo, hi]) => Ok([lo, hi]),
         Some(_) => {
             let e = Error::OutOfDomain {
                 param: "",
                 requirement: "must be a list of two temperatures [low, high]",
             };
-            return Err(thrown("temperatureC", e, "", None));
+            Err(thrown("temperatureC", e, "", None))
         }
-    };
+    }
+}
+
+fn spec_of(o: &TolOptions) -> Result<Vec<Limit>, JsValue> {
     if o.spec.is_empty() {
         let e = Error::OutOfDomain {
             param: "",
@@ -490,14 +682,20 @@ pub fn stage_tolerance(
         };
         return Err(thrown("spec", e, "", None));
     }
-    let spec: Vec<Limit> = o
-        .spec
+    o.spec
         .iter()
         .enumerate()
         .map(|(k, l)| limit_of(k, l))
-        .collect::<Result<_, _>>()?;
-    let ts =
-        TolStage::new(&stage, &spreads, amp, temperature_c).map_err(|e| analysis(e, &o.parts))?;
+        .collect()
+}
+
+/// The analyses asked for, on either subject.
+fn run(
+    o: &TolOptions,
+    ts: &TolStage,
+    spec: &[Limit],
+    analysis: impl Fn(CircuitError) -> JsValue,
+) -> Result<JsValue, JsValue> {
     let wants = |name: &str| {
         o.analyses
             .as_ref()
@@ -514,9 +712,9 @@ pub fn stage_tolerance(
     }
     let max_corners = whole("maxCorners", o.max_corners, usize::MAX)?;
     let worst = wants("worstCase")
-        .then(|| worst_case(&ts, &spec, max_corners))
+        .then(|| worst_case(ts, spec, max_corners))
         .transpose()
-        .map_err(|e| analysis(e, &o.parts))?;
+        .map_err(&analysis)?;
     let mc = if wants("monteCarlo") {
         let seed =
             crate::network::seed_from_number(o.seed).map_err(|e| thrown("seed", e, "", None))?;
@@ -526,14 +724,14 @@ pub fn stage_tolerance(
             bins: whole("bins", o.bins, usize::MAX)?,
             keep_failures: whole("keepFailures", o.keep_failures, usize::MAX)?,
         };
-        Some(monte_carlo(&ts, &spec, options).map_err(|e| analysis(e, &o.parts))?)
+        Some(monte_carlo(ts, spec, options).map_err(&analysis)?)
     } else {
         None
     };
     let sens = wants("sensitivity")
-        .then(|| sensitivity(&ts, &spec))
+        .then(|| sensitivity(ts, spec))
         .transpose()
-        .map_err(|e| analysis(e, &o.parts))?;
+        .map_err(&analysis)?;
     to_js(&ToleranceOut {
         parts: ts.varied.clone(),
         temperatures_c: ts.temperatures(),

@@ -25,7 +25,22 @@ across the A0 spread):
    margin, 180 + angle T at |T| = 1 (T = A*beta, crossover by scipy brentq on
    log f). numpy Monte Carlo of 20 000 trials: mean, sd, yield of PM >= 61 deg.
 
-The Rust test (tests/tolerance_stage.rs) runs its own seeded Monte Carlo and
+4. "rcloop": a circuit document no stage document describes: a non-inverting
+   amplifier whose feedback is taken after an RC low-pass inside the loop
+   (out -R3- x -C3- ground, x -Rf- fb -Rg- ground, the source at the
+   non-inverting input), the amplifier ideal apart from A(s) (ro = 0, no
+   input parts). The loop gain T = A*beta(s) with
+   beta(s) = Zx/(R3 + Zx) * Rg/(Rf + Rg), Zx = 1/(s*C3 + 1/(Rf + Rg)), and the
+   gain H = A/(1 + T) at node out. R3 uniform +-5 %, C3 normal +-10 % at
+   3 sigma, Rf and Rg uniform +-1 %, A0 min/typ/max 5e4/2e5/1e6 and GBW
+   7/10/13 MHz (split log-normal). Figures: |H| in dB at 10 kHz and the phase
+   margin (crossover by brentq on log f). numpy Monte Carlo of 20 000 trials
+   (default_rng(1819)): mean, sd, yield of PM >= 65 deg; brute-force corners
+   (itertools.product over the 2^6 extremes) of both figures: min, max and
+   the values giving them, in the circuit's draw order (R3, C3, Rf, Rg,
+   U1.a0, U1.gbwHz).
+
+The Rust tests (tests/tolerance_stage.rs, tests/tolerance_circuit.rs) run its own seeded Monte Carlo and
 compares mean and yield within 4 standard errors of the difference of two
 independent estimates: for a mean sqrt(sd^2/N_rust + sd^2/N_numpy), for a
 yield sqrt(p(1 - p)(1/N_rust + 1/N_numpy)); the closed-form yield within 4
@@ -176,11 +191,65 @@ def margin2():
     }
 
 
+def rcloop_t(r3, c3, rf, rg, a0, gbw, f):
+    s = 2j * np.pi * f
+    a = a0 / (1 + s * a0 / (2 * np.pi * gbw))
+    zx = 1 / (s * c3 + 1 / (rf + rg))
+    return a, a * zx / (r3 + zx) * rg / (rf + rg)
+
+
+def rcloop_gain_db(*x, f=1e4):
+    a, t = rcloop_t(*x, f)
+    return 20 * np.log10(np.abs(a / (1 + t)))
+
+
+def rcloop_pm(*x):
+    def mag(lf):
+        return abs(complex(rcloop_t(*x, 10 ** lf)[1])) - 1
+
+    lf = brentq(mag, 0, 10, xtol=1e-14, rtol=1e-15)
+    return 180 + math.degrees(np.angle(complex(rcloop_t(*x, 10 ** lf)[1])))
+
+
+def rcloop():
+    nominal = (1e3, 100e-12, 9e3, 1e3, 2e5, 1e7)
+    lows = (950.0, 90e-12, 8910.0, 990.0, 5e4, 7e6)
+    highs = (1050.0, 110e-12, 9090.0, 1010.0, 1e6, 1.3e7)
+    n = 20_000
+    rng = np.random.default_rng(1819)
+    r3s = 1e3 * (1 + 0.05 * (2 * rng.random(n) - 1))
+    c3s = truncated_normal(rng, n, 100e-12, 10.0)
+    rfs = 9e3 * (1 + 0.01 * (2 * rng.random(n) - 1))
+    rgs = 1e3 * (1 + 0.01 * (2 * rng.random(n) - 1))
+    a0s = split_lognormal(rng, n, 5e4, 2e5, 1e6)
+    gbws = split_lognormal(rng, n, 7e6, 1e7, 1.3e7)
+    db = rcloop_gain_db(r3s, c3s, rfs, rgs, a0s, gbws)
+    pm = np.array([rcloop_pm(*x) for x in zip(r3s, c3s, rfs, rgs, a0s, gbws)])
+    corners = []
+    for x in itertools.product(*zip(lows, highs)):
+        corners.append((list(x), float(rcloop_gain_db(*x)), rcloop_pm(*x)))
+    ext = {}
+    for k, name in ((1, "gainDb"), (2, "phaseMarginDeg")):
+        lo = min(corners, key=lambda c: c[k])
+        hi = max(corners, key=lambda c: c[k])
+        ext[name] = {"min": lo[k], "minValues": lo[0], "max": hi[k], "maxValues": hi[0]}
+    return {
+        "trials": n,
+        "nominalGainDb": float(rcloop_gain_db(*nominal)),
+        "nominalPhaseMarginDeg": rcloop_pm(*nominal),
+        "gainDb": {"mean": float(db.mean()), "sd": float(db.std(ddof=1))},
+        "phaseMarginDeg": {"mean": float(pm.mean()), "sd": float(pm.std(ddof=1)),
+                           "yield": float((pm >= 65.0).mean())},
+        "corners": ext,
+    }
+
+
 def make():
     return {
         "ideal48": {"yield": closed_form_yield(47e3, 1e3, 0.01, 48, 0.005)},
         "gain48": gain48(),
         "margin2": margin2(),
+        "rcloop": rcloop(),
     }
 
 

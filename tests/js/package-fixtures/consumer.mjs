@@ -761,6 +761,100 @@ assert.throws(
   (e) => e.param === 'bandHz',
 );
 
+// stageTolerance on a circuit document (an RC low-pass inside the loop, which no
+// stage document describes): its elements carry their own tolerances. Expected:
+// tests/reference/tolerance_stage.py "rcloop.corners", closed forms at all 64 corners.
+const rcloop = {
+  format: 'loopwright-circuit',
+  version: 2,
+  elements: [
+    { name: 'Vs', kind: 'voltage-source', nodes: ['in', '0'], value: 1 },
+    {
+      name: 'U1',
+      kind: 'amplifier',
+      nodes: ['out', '0'],
+      control: ['in', 'fb'],
+      model: { a0: { min: 5e4, typ: 2e5, max: 1e6 }, gbwHz: 1e7, ro: 0 },
+    },
+    {
+      name: 'R3',
+      kind: 'resistor',
+      nodes: ['out', 'x'],
+      value: '1k',
+      tolerance: { distribution: 'uniform', percent: 5 },
+    },
+    {
+      name: 'C3',
+      kind: 'capacitor',
+      nodes: ['x', '0'],
+      value: '100p',
+      tolerance: { distribution: 'normal', percent: 10, sigmas: 3 },
+    },
+    {
+      name: 'Rf',
+      kind: 'resistor',
+      nodes: ['x', 'fb'],
+      value: '9k',
+      tolerance: { distribution: 'uniform', percent: 1 },
+    },
+    {
+      name: 'Rg',
+      kind: 'resistor',
+      nodes: ['fb', '0'],
+      value: '1k',
+      tolerance: { distribution: 'uniform', percent: 1 },
+    },
+  ],
+};
+const circuitTol = {
+  circuit: rcloop,
+  input: 'Vs',
+  output: 'out',
+  amplifierSpread: { gbwHz: { min: 7e6, typ: 1e7, max: 1.3e7 } },
+  spec: [
+    { figure: 'gainDb', freqHz: 1e4 },
+    { figure: 'phaseMarginDeg', lower: 65 },
+  ],
+  analyses: ['worstCase', 'monteCarlo'],
+  maxCorners: 64,
+  trials: 200,
+  seed: 3,
+};
+const ct = lw.stageTolerance(circuitTol);
+assert.deepEqual(
+  ct.parts.map((p) => p.name),
+  ['R3', 'C3', 'Rf', 'Rg', 'U1.a0', 'U1.gbwHz'],
+);
+assert.equal(ct.worstCase.method, 'corners');
+for (const [k, lo, hi, tol] of [
+  [0, 20.636026634192113, 21.017458221991273, 1e-9],
+  [1, 56.712513877551245, 73.53588119845445, 1e-6],
+]) {
+  assert.ok(Math.abs(ct.worstCase.figures[k].min.value - lo) < tol, `figure ${k} min`);
+  assert.ok(Math.abs(ct.worstCase.figures[k].max.value - hi) < tol, `figure ${k} max`);
+}
+assert.deepEqual(lw.stageTolerance(circuitTol).monteCarlo, ct.monteCarlo);
+throws(() => lw.stageTolerance({ ...circuitTol, input: 'R3' }), 'out_of_domain', 'input');
+throws(() => lw.stageTolerance({ ...circuitTol, output: undefined }), 'missing', 'output');
+throws(
+  () => lw.stageTolerance({ ...circuitTol, parts: [{ part: 'rf' }] }),
+  'out_of_domain',
+  'parts',
+);
+const badTol = structuredClone(rcloop);
+badTol.elements[2].tolerance.percent = 120;
+throws(
+  () => lw.stageTolerance({ ...circuitTol, circuit: badTol }),
+  'out_of_domain',
+  'circuit.elements[2].tolerance',
+);
+throws(
+  () => lw.stageTolerance({ ...circuitTol, temperatureC: [85, -40] }),
+  'out_of_domain',
+  'temperatureC',
+);
+console.log('consumer: stageTolerance on a circuit document matches the corners');
+
 console.log('consumer: all checks passed');
 
 // Errors must leave the module healthy: a thrown error may not leak wasm stack or
