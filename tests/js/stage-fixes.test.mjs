@@ -8,35 +8,12 @@ import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { join } from 'node:path';
 import { servedPageTests, openPage, ARTIFACTS } from './browser.mjs';
+import { demoStage, typeStageField } from './stage-demo.mjs';
 
 const env = servedPageTests();
 
-async function typeField(page, key, text) {
-  await page.click(`#stage-${key}`);
-  await page.keyboard.press('Control+A');
-  await page.keyboard.type(text);
-  await page.keyboard.press('Tab');
-}
-
-/** The demo stage as docs/stage.md writes it (www/js/stage/fields.js DEMO). */
-const DEMO_STAGE = {
-  format: 'loopwright-stage',
-  version: 1,
-  kind: 'non-inverting',
-  amplifier: {
-    a0: { min: '200k', typ: '1M', max: '5M' },
-    gbwHz: '1M',
-    polesHz: [15e6],
-    rd: '10M',
-    cd: '3p',
-    rcm: '1G',
-    ccm: '4p',
-    ro: '50',
-    slewRate: '0.5M',
-  },
-  spreadPoint: 'typ',
-  parts: { rf: '100k', rg: '1k', rs: '350', rl: '10k', cl: '1n' },
-};
+/** The demo stage of the view (fields.js DEMO) as a stage document. */
+const DEMO_STAGE = demoStage();
 
 test('the Nyquist plot of a loop gain near 10⁴ shows both its far part and −1', async () => {
   const { context, page, problems } = await openPage(env.browser, env.url, {
@@ -152,8 +129,8 @@ test('a compensation the target does not need says so and offers no Use', async 
   // A stage that does need it: gain 2 with 1 MΩ parts puts the input capacitance's
   // pole in β (1/(2π·500 kΩ·7 pF), about 45 kHz) under the crossover (about
   // 500 kHz); Cf then has a value and a Use that gives the target margin.
-  await typeField(page, 'rf', '1M');
-  await typeField(page, 'rg', '1M');
+  await typeStageField(page, 'rf', '1M');
+  await typeStageField(page, 'rg', '1M');
   const cfText = await page.locator('#stage-design-cf').textContent();
   assert.doesNotMatch(cfText, /not needed/);
   assert.match(cfText, /F$/);
@@ -172,8 +149,8 @@ test('a pair with a two-part Rf shows the parts in the Rf note and the report', 
   await page.click('#tab-stage');
   await page.waitForSelector('html[data-stage="ready"]');
   // The gain-48 ± 0.5 % job of issue 20 on E96 parts.
-  await typeField(page, 'gain', '48');
-  await typeField(page, 'tolerance', '0.5%');
+  await typeStageField(page, 'gain', '48');
+  await typeStageField(page, 'tolerance', '0.5%');
   const rows = page.locator('.stage-pairs tbody tr');
   const n = await rows.count();
   let pick = -1;
@@ -217,7 +194,7 @@ test('a pair with a two-part Rf shows the parts in the Rf note and the report', 
     inputs.join(' | '),
   );
   // Typing another Rf drops the note (it no longer names the parts); undo brings both back.
-  await typeField(page, 'rf', '4k7');
+  await typeStageField(page, 'rf', '4k7');
   assert.equal(await page.locator('#stage-rf-note').count(), 0);
   await page.click('#stage-undo');
   assert.equal(await page.inputValue('#stage-rf'), rf);

@@ -17,6 +17,7 @@ import { execFile } from 'node:child_process';
 import { promisify } from 'node:util';
 import { pathToFileURL } from 'node:url';
 import { servedPageTests, openPage, ARTIFACTS, ROOT } from './browser.mjs';
+import { demoStage, typeStageField, viewGrades } from './stage-demo.mjs';
 
 const env = servedPageTests();
 
@@ -24,16 +25,7 @@ const env = servedPageTests();
 let actions = 0;
 
 async function setField(page, key, text) {
-  const id = `#stage-${key}`;
-  if ((await page.locator(id).evaluate((n) => n.tagName)) === 'SELECT') {
-    await page.selectOption(id, text);
-  } else {
-    await page.click(id);
-    await page.keyboard.press('Control+A');
-    if (text === '') await page.keyboard.press('Delete');
-    else await page.keyboard.type(text);
-    await page.keyboard.press('Tab');
-  }
+  await typeStageField(page, key, text);
   actions += 1;
 }
 
@@ -537,61 +529,37 @@ test('every stage kind gets its tolerance answers: a transimpedance stage typed 
   await setField(page, 'maxNoiseRms', '');
   assert.equal(await page.locator('#stage-message').textContent(), '');
   await page.waitForSelector('#stage-tolerances[data-state="ready"]');
-  const tol = await page.evaluate(async () => {
-    const m = await import('/pkg/loopwright.js');
-    const stage = {
-      format: 'loopwright-stage',
-      version: 1,
-      kind: 'transimpedance',
-      amplifier: {
-        a0: { min: '200k', typ: '1M', max: '5M' },
-        gbwHz: '1M',
-        polesHz: [15e6],
-        rd: '10M',
-        cd: '3p',
-        rcm: '1G',
-        ccm: '4p',
-        ro: '50',
-        slewRate: '0.5M',
-        voltageNoise: { density: '9n', cornerHz: '10' },
-        currentNoise: { density: '0.2p', cornerHz: '50' },
-      },
-      spreadPoint: 'typ',
-      parts: { rf: '100k', cf: '2.2p', rs: '10M', cs: '20p', rl: '10k', cl: '1n' },
-    };
-    // The view's grades (fields.js DEMO): resistors 0.1 % at 25 ppm/K, capacitors
-    // 5 % at 30 ppm/K, source and load 1 %; 0 … 70 °C; 200 trials, seed 1.
-    const grade = (part, percent, tempcoPpm) => ({
-      part,
-      tolerance: { distribution: 'uniform', percent },
-      tempcoPpm,
-    });
-    const r = m.stageTolerance({
-      stage,
-      parts: [
-        grade('rf', 0.1, 25),
-        grade('cf', 5, 30),
-        grade('rs', 1, 25),
-        grade('cs', 5, 30),
-        grade('rl', 1, 25),
-        grade('cl', 5, 30),
-      ],
-      temperatureC: [0, 70],
-      spec: [
-        { figure: 'gainErrorPercent', freqHz: 1, target: 1e5, lower: -2, upper: 2 },
-        { figure: 'phaseMarginDeg', lower: 45 },
-      ],
-      trials: 200,
-      seed: 1,
-    });
-    return {
-      yield: m.formatPlain(r.monteCarlo.yieldFraction * 100, '%', 4),
-      pmMin: m.formatPlain(r.worstCase.figures[1].min.value, '°', 4),
-      pmMeets: r.worstCase.figures[1].meets,
-      parts: r.worstCase.parts,
-      tighten: r.sensitivity.tightenFirst,
-    };
+  // The view's grades (fields.js DEMO): resistors 0.1 % at 25 ppm/K, capacitors
+  // 5 % at 30 ppm/K, source and load 1 %; 0 … 70 °C; 200 trials, seed 1.
+  const tiaStage = demoStage({
+    kind: 'transimpedance',
+    parts: { rf: '100k', cf: '2.2p', rs: '10M', cs: '20p', rl: '10k', cl: '1n' },
   });
+  const tiaGrades = viewGrades(['rf', 'cf', 'rs', 'cs', 'rl', 'cl']);
+  const tol = await page.evaluate(
+    async ({ stage, parts }) => {
+      const m = await import('/pkg/loopwright.js');
+      const r = m.stageTolerance({
+        stage,
+        parts,
+        temperatureC: [0, 70],
+        spec: [
+          { figure: 'gainErrorPercent', freqHz: 1, target: 1e5, lower: -2, upper: 2 },
+          { figure: 'phaseMarginDeg', lower: 45 },
+        ],
+        trials: 200,
+        seed: 1,
+      });
+      return {
+        yield: m.formatPlain(r.monteCarlo.yieldFraction * 100, '%', 4),
+        pmMin: m.formatPlain(r.worstCase.figures[1].min.value, '°', 4),
+        pmMeets: r.worstCase.figures[1].meets,
+        parts: r.worstCase.parts,
+        tighten: r.sensitivity.tightenFirst,
+      };
+    },
+    { stage: tiaStage, parts: tiaGrades },
+  );
   assert.equal(await page.locator('#stage-out-yield').textContent(), tol.yield);
   const pmRow = page.locator('#stage-worst tbody tr[data-figure="phaseMarginDeg"]:not(.stage-at)');
   assert.equal(await pmRow.locator('td').nth(2).textContent(), tol.pmMin);
@@ -630,43 +598,12 @@ test('the amplifier’s GBW and Ro spreads: typed in the tolerance section, vari
   await setField(page, 'roMax', '80');
   assert.equal(await page.locator('#stage-message').textContent(), '');
   await page.waitForSelector('#stage-tolerances[data-state="ready"]');
-  const tol = await page.evaluate(async () => {
+  const demo = { stage: demoStage(), parts: viewGrades(['rf', 'rg', 'rs', 'rl', 'cl']) };
+  const tol = await page.evaluate(async ({ stage, parts }) => {
     const m = await import('/pkg/loopwright.js');
-    // The demo stage as this test writes it (fields.js DEMO).
-    const stage = {
-      format: 'loopwright-stage',
-      version: 1,
-      kind: 'non-inverting',
-      amplifier: {
-        a0: { min: '200k', typ: '1M', max: '5M' },
-        gbwHz: '1M',
-        polesHz: [15e6],
-        rd: '10M',
-        cd: '3p',
-        rcm: '1G',
-        ccm: '4p',
-        ro: '50',
-        slewRate: '0.5M',
-        voltageNoise: { density: '9n', cornerHz: '10' },
-        currentNoise: { density: '0.2p', cornerHz: '50' },
-      },
-      spreadPoint: 'typ',
-      parts: { rf: '100k', rg: '1k', rs: '350', rl: '10k', cl: '1n' },
-    };
-    const grade = (part, percent, tempcoPpm) => ({
-      part,
-      tolerance: { distribution: 'uniform', percent },
-      tempcoPpm,
-    });
     const r = m.stageTolerance({
       stage,
-      parts: [
-        grade('rf', 0.1, 25),
-        grade('rg', 0.1, 25),
-        grade('rs', 1, 25),
-        grade('rl', 1, 25),
-        grade('cl', 5, 30),
-      ],
+      parts,
       amplifierSpread: {
         gbwHz: { min: 0.7e6, typ: 1e6, max: 1.4e6 },
         ro: { min: 30, typ: 50, max: 80 },
@@ -687,7 +624,7 @@ test('the amplifier’s GBW and Ro spreads: typed in the tolerance section, vari
       pmMin: m.formatPlain(pm.min.value, '°', 4),
       pmMax: m.formatPlain(pm.max.value, '°', 4),
     };
-  });
+  }, demo);
   // The engine varied both (docs/tolerance.md: U1.gbwHz, U1.ro after A0).
   assert.deepEqual(tol.parts.slice(-3), ['U1.a0', 'U1.gbwHz', 'U1.ro']);
   const varied = await page.locator('#stage-tolerance-varied').textContent();
@@ -759,42 +696,12 @@ test('the amplifier’s GBW and Ro spreads: typed in the tolerance section, vari
  */
 function demoTolerance(page, temperatureC, trials) {
   return page.evaluate(
-    async ({ temperatureC, trials }) => {
+    async ({ stage, parts, temperatureC, trials }) => {
       const m = await import('/pkg/loopwright.js');
       await m.default(); // started already when the page has loaded the full core
-      const grade = (part, percent, tempcoPpm) => ({
-        part,
-        tolerance: { distribution: 'uniform', percent },
-        tempcoPpm,
-      });
       const r = m.stageTolerance({
-        stage: {
-          format: 'loopwright-stage',
-          version: 1,
-          kind: 'non-inverting',
-          amplifier: {
-            a0: { min: '200k', typ: '1M', max: '5M' },
-            gbwHz: '1M',
-            polesHz: [15e6],
-            rd: '10M',
-            cd: '3p',
-            rcm: '1G',
-            ccm: '4p',
-            ro: '50',
-            slewRate: '0.5M',
-            voltageNoise: { density: '9n', cornerHz: '10' },
-            currentNoise: { density: '0.2p', cornerHz: '50' },
-          },
-          spreadPoint: 'typ',
-          parts: { rf: '100k', rg: '1k', rs: '350', rl: '10k', cl: '1n' },
-        },
-        parts: [
-          grade('rf', 0.1, 25),
-          grade('rg', 0.1, 25),
-          grade('rs', 1, 25),
-          grade('rl', 1, 25),
-          grade('cl', 5, 30),
-        ],
+        stage,
+        parts,
         temperatureC,
         spec: [
           { figure: 'gainErrorPercent', freqHz: 1, target: 101, lower: -1, upper: 1 },
@@ -810,7 +717,12 @@ function demoTolerance(page, temperatureC, trials) {
         perLimit: r.monteCarlo.limits.map((l) => m.formatPlain(l.yieldFraction * 100, '%', 4)),
       };
     },
-    { temperatureC, trials },
+    {
+      stage: demoStage(),
+      parts: viewGrades(['rf', 'rg', 'rs', 'rl', 'cl']),
+      temperatureC,
+      trials,
+    },
   );
 }
 
