@@ -25,15 +25,14 @@ compared by tests/network_choose.rs:
     ~/.cache/loopwright/venv/bin/python tests/reference/network_choose.py          # write
     ~/.cache/loopwright/venv/bin/python tests/reference/network_choose.py --check  # compare
 """
-import json
 import math
 import pathlib
-import sys
 
 import eseries
 import mpmath
 import numpy as np
 import sympy as sp
+from refdata import write_or_check
 
 OUT = pathlib.Path(__file__).resolve().parent / "data" / "network_choose.json"
 SEED = 20261203
@@ -180,44 +179,9 @@ def build():
     return data
 
 
-def close(a, b):
-    if isinstance(a, float) and isinstance(b, (int, float)):
-        return math.isclose(a, b, rel_tol=REL_TOL, abs_tol=1e-15)
-    return a == b
-
-
-def compare(new, old, path="$"):
-    bad = []
-    if isinstance(new, dict) and isinstance(old, dict):
-        if new.keys() != old.keys():
-            return [f"{path}: keys differ"]
-        for k in new:
-            bad += compare(new[k], old[k], f"{path}.{k}")
-    elif isinstance(new, list) and isinstance(old, list):
-        if len(new) != len(old):
-            return [f"{path}: lengths differ"]
-        for i, (a, b) in enumerate(zip(new, old)):
-            bad += compare(a, b, f"{path}[{i}]")
-    elif not close(new, old):
-        bad.append(f"{path}: recomputed {new!r}, committed {old!r}")
-    return bad
-
-
 def main():
     data = build()
-    if "--check" in sys.argv[1:]:
-        old = json.loads(OUT.read_text())
-        bad = compare(data, old)
-        for line in bad[:20]:
-            print("differs:", line)
-        if bad:
-            sys.exit(1)
-        print(f"network_choose: {len(data['single'])} exact yields, "
-              f"{len(data['two_part'])} Monte Carlo yields, "
-              f"{len(data['feasibility_gain48'])} series match")
-        return
-    OUT.write_text(json.dumps(data, indent=1) + "\n")
-    print("wrote", OUT)
+    write_or_check(data, OUT, REL_TOL, abs_tol=1e-15, summary=f"network_choose: {len(data['single'])} exact yields, {len(data['two_part'])} Monte Carlo yields, {len(data['feasibility_gain48'])} series match")
 
 
 if __name__ == "__main__":

@@ -13,13 +13,11 @@ tests/network_eseries.rs compares loopwright with it.
     ~/.cache/loopwright/venv/bin/python tests/reference/network_eseries.py          # write
     ~/.cache/loopwright/venv/bin/python tests/reference/network_eseries.py --check  # compare
 """
-import json
-import math
 import pathlib
-import sys
 
 import numpy as np
 import eseries
+from refdata import write_or_check
 
 OUT = pathlib.Path(__file__).resolve().parent / "data" / "network_eseries.json"
 SEED = 20261202
@@ -58,42 +56,9 @@ def build():
     return data
 
 
-def close(a, b):
-    if isinstance(a, (int, float)) and isinstance(b, (int, float)):
-        return math.isclose(a, b, rel_tol=REL_TOL, abs_tol=0.0)
-    return a == b
-
-
-def compare(new, old, path="$"):
-    bad = []
-    if isinstance(new, dict) and isinstance(old, dict):
-        if new.keys() != old.keys():
-            return [f"{path}: keys differ"]
-        for k in new:
-            bad += compare(new[k], old[k], f"{path}.{k}")
-    elif isinstance(new, list) and isinstance(old, list):
-        if len(new) != len(old):
-            return [f"{path}: lengths differ"]
-        for i, (a, b) in enumerate(zip(new, old)):
-            bad += compare(a, b, f"{path}[{i}]")
-    elif not close(new, old):
-        bad.append(f"{path}: recomputed {new!r}, committed {old!r}")
-    return bad
-
-
 def main():
     data = build()
-    if "--check" in sys.argv[1:]:
-        old = json.loads(OUT.read_text())
-        bad = compare(data, old)
-        for line in bad[:20]:
-            print("differs:", line)
-        if bad:
-            sys.exit(1)
-        print(f"network_eseries: {sum(len(s['cases']) for s in data['series'].values())} cases match")
-        return
-    OUT.write_text(json.dumps(data, indent=1) + "\n")
-    print("wrote", OUT)
+    write_or_check(data, OUT, REL_TOL, summary=f"network_eseries: {sum(len(s['cases']) for s in data['series'].values())} cases match")
 
 
 if __name__ == "__main__":

@@ -21,13 +21,12 @@ scipy.stats:
 Writes tests/reference/data/network_montecarlo_gain.json; `--check` recomputes and
 compares (rel. tol. 1e-12).
 """
-import json
 import math
 import pathlib
-import sys
 
 from scipy import stats
 from scipy.integrate import quad
+from refdata import write_or_check
 
 OUT = pathlib.Path(__file__).parent / "data" / "network_montecarlo_gain.json"
 REL_TOL = 1e-12
@@ -94,27 +93,9 @@ def make():
     return out
 
 
-def close(a, b):
-    if isinstance(a, dict):
-        return isinstance(b, dict) and a.keys() == b.keys() and all(close(a[k], b[k]) for k in a)
-    if isinstance(a, list):
-        return isinstance(b, list) and len(a) == len(b) and all(close(x, y) for x, y in zip(a, b))
-    if isinstance(a, float):
-        return isinstance(b, (int, float)) and math.isclose(a, b, rel_tol=REL_TOL)
-    return a == b
-
-
 def main():
     data = make()
-    if "--check" in sys.argv:
-        old = json.loads(OUT.read_text())
-        if not close(data, old):
-            print("differs from", OUT)
-            sys.exit(1)
-        print(f"ok: {len(data['cases'])} distributions match")
-        return
-    OUT.write_text(json.dumps(data, indent=1) + "\n")
-    print(f"wrote {OUT}")
+    write_or_check(data, OUT, REL_TOL, summary=f"{len(data['cases'])} distributions match")
 
 
 if __name__ == "__main__":

@@ -25,12 +25,11 @@ Writes tests/reference/data/tolerance_sheet.json; `--check` recomputes and
 compares (rel. tol. 1e-12; the Monte Carlo is seeded, so identical).
 """
 import itertools
-import json
 import math
 import pathlib
-import sys
 
 import numpy as np
+from refdata import write_or_check
 
 OUT = pathlib.Path(__file__).parent / "data" / "tolerance_sheet.json"
 REL_TOL = 1e-12
@@ -90,27 +89,9 @@ def make():
             for name, rf, rg in PAIRS for grade in GRADES}
 
 
-def close(a, b):
-    if isinstance(a, dict):
-        return isinstance(b, dict) and a.keys() == b.keys() and all(close(a[k], b[k]) for k in a)
-    if isinstance(a, list):
-        return isinstance(b, list) and len(a) == len(b) and all(close(x, y) for x, y in zip(a, b))
-    if isinstance(a, float):
-        return isinstance(b, (int, float)) and math.isclose(a, b, rel_tol=REL_TOL, abs_tol=1e-300)
-    return a == b
-
-
 def main():
     data = make()
-    if "--check" in sys.argv:
-        old = json.loads(OUT.read_text())
-        if not close(data, old):
-            print("differs from", OUT)
-            sys.exit(1)
-        print("ok: the worked gain-48 case in cells matches")
-        return
-    OUT.write_text(json.dumps(data, indent=1) + "\n")
-    print(f"wrote {OUT}")
+    write_or_check(data, OUT, REL_TOL, abs_tol=1e-300, summary="the worked gain-48 case in cells matches")
 
 
 if __name__ == "__main__":

@@ -51,15 +51,14 @@ Writes tests/reference/data/tolerance_stage.json; `--check` recomputes and
 compares (rel. tol. 1e-12; the Monte Carlo parts are seeded, so identical).
 """
 import itertools
-import json
 import math
 import pathlib
-import sys
 from fractions import Fraction
 
 import numpy as np
 import sympy as sp
 from scipy.optimize import brentq
+from refdata import write_or_check
 
 OUT = pathlib.Path(__file__).parent / "data" / "tolerance_stage.json"
 REL_TOL = 1e-12
@@ -253,27 +252,9 @@ def make():
     }
 
 
-def close(a, b):
-    if isinstance(a, dict):
-        return isinstance(b, dict) and a.keys() == b.keys() and all(close(a[k], b[k]) for k in a)
-    if isinstance(a, list):
-        return isinstance(b, list) and len(a) == len(b) and all(close(x, y) for x, y in zip(a, b))
-    if isinstance(a, float):
-        return isinstance(b, (int, float)) and math.isclose(a, b, rel_tol=REL_TOL, abs_tol=1e-300)
-    return a == b
-
-
 def main():
     data = make()
-    if "--check" in sys.argv:
-        old = json.loads(OUT.read_text())
-        if not close(data, old):
-            print("differs from", OUT)
-            sys.exit(1)
-        print("ok: tolerance stages match")
-        return
-    OUT.write_text(json.dumps(data, indent=1) + "\n")
-    print(f"wrote {OUT}")
+    write_or_check(data, OUT, REL_TOL, abs_tol=1e-300, summary="tolerance stages match")
 
 
 if __name__ == "__main__":
