@@ -619,7 +619,7 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
         summary: "Sensitivity of a stage figure to each varied part at nominal: per unit change, normalised, share of the figure's variance, and the part to tighten first",
         params: WORST,
         repeats: false,
-        result_unit: "the figure's unit per unit; 1",
+        result_unit: "the part's unit; the figure's unit; 1; 1; 1",
         spill: SENSITIVITY_COLUMNS,
         example: Example {
             formula: "=TOLERANCE.SENSITIVITY(\"kind=non-inverting, a0=200k, gbwHz=10M, rf=47k, rg=1k\"; \"rf=1%, rg=1% normal 3σ\"; \"gainDb\"; 20 kHz)",
