@@ -147,7 +147,7 @@ impl Graph {
 
     /// Call `f` once with every formula that reads `cell` directly or through a
     /// range.
-    pub fn readers_of(&self, cell: CellRef, f: impl FnMut(CellRef)) {
+    pub fn readers_of(&self, cell: CellRef, mut f: impl FnMut(CellRef)) {
         let reads = |reader: &&CellRef| {
             self.range_readers
                 .get(*reader)
@@ -163,6 +163,15 @@ impl Graph {
             .wide_columns
             .get(&cell.col)
             .map_or(&[][..], Vec::as_slice);
+        if in_block.is_empty() && in_column.is_empty() && self.wide_readers.is_empty() {
+            // Direct readers only: a set, already sorted and without repeats.
+            self.readers
+                .get(&cell)
+                .into_iter()
+                .flatten()
+                .for_each(|&r| f(r));
+            return;
+        }
         let mut found: Vec<CellRef> = in_block
             .iter()
             .chain(in_column)
