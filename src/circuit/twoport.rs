@@ -99,6 +99,7 @@ fn drive(
     solves: &mut Solves,
 ) -> CircuitResult<[(Complex64, Complex64); 2]> {
     let mut c = sub.clone();
+    c.reserve(2);
     let tags = ["port1", "port2"];
     for ((&(p, m), d), tag) in ports.iter().zip(drives).zip(tags) {
         match d {
@@ -180,6 +181,7 @@ fn parameters_in(
 ) -> CircuitResult<TwoPortParameters> {
     let [port1, port2] = ports;
     let mut sub = Circuit::new();
+    sub.reserve(elements.len());
     for &name in elements {
         let e = c.element(name)?;
         if !matches!(
