@@ -24,7 +24,7 @@
 use super::amplifier_stamp::{self, Terminals};
 use super::error::{CircuitError, CircuitResult, Name, WithName};
 use super::lu::{Lu, NoPivot, Pattern};
-use super::netlist::{Circuit, Control, ElementKind};
+use super::netlist::{Circuit, Control, Element, ElementKind, MAX_ELEMENTS};
 use crate::check;
 use crate::error::Error;
 use alloc::vec::Vec;
@@ -121,11 +121,17 @@ pub(crate) fn omega(frequency_hz: f64) -> CircuitResult<f64> {
 }
 
 /// Small union-find over node indices.
+#[derive(Default)]
 struct Sets(Vec<usize>);
 
 impl Sets {
     fn new(n: usize) -> Sets {
         Sets((0..n).collect())
+    }
+    /// As [`Sets::new`], in this storage.
+    fn reset(&mut self, n: usize) {
+        self.0.clear();
+        self.0.extend(0..n);
     }
     fn root(&mut self, mut i: usize) -> usize {
         while let Some(&p) = self.0.get(i) {
@@ -182,7 +188,7 @@ fn control_element(c: &Circuit, name: Name, control: Name) -> CircuitResult<usiz
 }
 
 /// The structure of the MNA system of a circuit.
-#[derive(Debug, PartialEq, Eq)]
+#[derive(Debug, Default, PartialEq, Eq)]
 pub(crate) struct Layout {
     /// Node unknowns (nodes but ground).
     pub nodes: usize,
@@ -197,10 +203,25 @@ pub(crate) struct Layout {
 }
 
 pub(crate) fn layout(c: &Circuit) -> CircuitResult<Layout> {
+    let mut lay = Layout {
+        nodes: 0,
+        branch: Vec::with_capacity(c.elements().len()),
+        control: Vec::with_capacity(c.elements().len()),
+        internal: Vec::with_capacity(c.elements().len()),
+        size: 0,
+    };
+    layout_into(c, &mut lay)?;
+    Ok(lay)
+}
+
+/// [`layout`] into the storage of `lay`.
+fn layout_into(c: &Circuit, lay: &mut Layout) -> CircuitResult<()> {
     let nodes = c.nodes().len().saturating_sub(1);
     let mut next = nodes;
-    let mut branch = Vec::with_capacity(c.elements().len());
-    let mut control = Vec::with_capacity(c.elements().len());
+    let (branch, control, internal) = (&mut lay.branch, &mut lay.control, &mut lay.internal);
+    branch.clear();
+    control.clear();
+    internal.clear();
     for e in c.elements() {
         branch.push(if e.kind().has_branch() {
             next += 1;
@@ -213,27 +234,33 @@ pub(crate) fn layout(c: &Circuit) -> CircuitResult<Layout> {
             _ => None,
         });
     }
-    let mut internal = Vec::with_capacity(c.elements().len());
     for e in c.elements() {
         internal.push(e.amplifier().map(|part| {
             next += amplifier_stamp::internal_unknowns(part);
             next - amplifier_stamp::internal_unknowns(part)
         }));
     }
-    Ok(Layout {
-        nodes,
-        branch,
-        control,
-        internal,
-        size: next,
-    })
+    lay.nodes = nodes;
+    lay.size = next;
+    Ok(())
 }
 
 /// Check for floating nodes and loops of voltage-defining elements.
 fn check_structure(c: &Circuit, w: f64) -> CircuitResult<()> {
     let n = c.nodes().len();
-    let mut conducting = Sets::new(n);
-    let mut voltage = Sets::new(n);
+    check_structure_in(c, w, &mut Sets::new(n), &mut Sets::new(n))
+}
+
+/// [`check_structure`] with the union-find storage given (reset here).
+fn check_structure_in(
+    c: &Circuit,
+    w: f64,
+    conducting: &mut Sets,
+    voltage: &mut Sets,
+) -> CircuitResult<()> {
+    let n = c.nodes().len();
+    conducting.reset(n);
+    voltage.reset(n);
     for e in c.elements() {
         let [a, b] = e.nodes();
         if let (Some(part), Control::Nodes([p, n])) = (e.amplifier(), e.control()) {
@@ -301,6 +328,19 @@ fn assemble_into(
     m: &mut Vec<Complex64>,
     rhs: &mut Vec<Complex64>,
 ) {
+    assemble_with(c, lay, w, m, rhs, true);
+}
+
+/// [`assemble_into`]; with `sources` false, every independent source is taken
+/// at value 0 (as `Circuit::zero_sources` would set it).
+fn assemble_with(
+    c: &Circuit,
+    lay: &Layout,
+    w: f64,
+    m: &mut Vec<Complex64>,
+    rhs: &mut Vec<Complex64>,
+    sources: bool,
+) {
     let size = lay.size;
     m.clear();
     m.resize(size * size, Complex64::new(0.0, 0.0));
@@ -328,7 +368,7 @@ fn assemble_into(
                 add(ra, rb, -y);
                 add(rb, ra, -y);
             };
-        let k = Complex64::new(e.value(), 0.0);
+        let k = Complex64::new(source_value(e, sources), 0.0);
         match e.kind() {
             ElementKind::Amplifier => {
                 if let (Some(part), Control::Nodes([p, n]), Some(first)) = (
@@ -434,9 +474,19 @@ fn assemble_into(
 /// assert_eq!(solve(&c, 0.0).unwrap_err().name.as_str(), "x");
 /// ```
 pub fn solve(c: &Circuit, frequency_hz: f64) -> CircuitResult<Solution> {
+    solve_in(c, frequency_hz, &mut Solves::default())
+}
+
+/// [`solve`] in the storage of `solves`, whose factorization is reused when
+/// this circuit's matrix is the one it factored last, bit for bit.
+pub(crate) fn solve_in(
+    c: &Circuit,
+    frequency_hz: f64,
+    solves: &mut Solves,
+) -> CircuitResult<Solution> {
     let w = omega(frequency_hz)?;
-    let lay = layout(c)?;
-    let x = solve_vector(c, &lay, w)?;
+    let x = solves.solve(c, w, Drive::Sources)?;
+    let lay = solves.layout();
     let v = |node: usize| {
         node.checked_sub(1)
             .and_then(|i| x.get(i).copied())
@@ -458,39 +508,7 @@ pub fn solve(c: &Circuit, frequency_hz: f64) -> CircuitResult<Solution> {
     let s = Complex64::new(0.0, w);
     let mut element_currents = Vec::with_capacity(c.elements().len());
     for (i, e) in c.elements().iter().enumerate() {
-        let [a, b] = e.nodes();
-        let vab = v(a) - v(b);
-        let k = Complex64::new(e.value(), 0.0);
-        let branch_current =
-            |j: Option<usize>| j.and_then(|r| x.get(r).copied()).unwrap_or_default();
-        let current = match e.kind() {
-            ElementKind::Amplifier => match (e.amplifier(), lay.internal.get(i).copied().flatten())
-            {
-                (Some(part), Some(first)) => match amplifier_stamp::branch_unknown(part, first) {
-                    Some(br) => branch_current(Some(br)),
-                    None => (vab - amplifier_stamp::output_signal(part, first, &x)) / part.model.ro,
-                },
-                _ => Complex64::default(),
-            },
-            ElementKind::Resistor => vab / k,
-            ElementKind::Capacitor => vab * s * k,
-            ElementKind::Admittance => vab * Complex64::new(e.value(), e.value_im()),
-            ElementKind::CurrentSource => k,
-            ElementKind::Vccs => match e.control() {
-                Control::Nodes([p, n]) => k * (v(p) - v(n)),
-                _ => Complex64::default(),
-            },
-            ElementKind::Cccs => {
-                let j = lay
-                    .control
-                    .get(i)
-                    .copied()
-                    .flatten()
-                    .and_then(|j| lay.branch.get(j).copied().flatten());
-                k * branch_current(j)
-            }
-            _ => branch_current(lay.branch.get(i).copied().flatten()),
-        };
+        let current = element_current(e, i, lay, &x, s, true);
         let current = check::result_complex("current", current).named(e.name())?;
         element_currents.push(NamedValue {
             name: e.name(),
@@ -505,12 +523,62 @@ pub fn solve(c: &Circuit, frequency_hz: f64) -> CircuitResult<Solution> {
     })
 }
 
-/// The raw unknown vector (node voltages, then branch currents) at angular
-/// frequency `w`, after the structural checks.
-pub(crate) fn solve_vector(c: &Circuit, lay: &Layout, w: f64) -> CircuitResult<Vec<Complex64>> {
-    check_structure(c, w)?;
-    let (m, rhs) = assemble(c, lay, w);
-    solve_matrix(c, lay, m, &rhs)
+/// An element's value, or 0 for an independent source when `sources` is false.
+fn source_value(e: &Element, sources: bool) -> f64 {
+    if !sources && e.kind().is_independent() {
+        0.0
+    } else {
+        e.value()
+    }
+}
+
+/// The current of element `i` (`e`) from its node a through it to its node b,
+/// in the unknowns `x` at s = jω (independent sources at 0 when `sources` is
+/// false).
+fn element_current(
+    e: &Element,
+    i: usize,
+    lay: &Layout,
+    x: &[Complex64],
+    s: Complex64,
+    sources: bool,
+) -> Complex64 {
+    let v = |node: usize| {
+        node.checked_sub(1)
+            .and_then(|i| x.get(i).copied())
+            .unwrap_or_default()
+    };
+    let [a, b] = e.nodes();
+    let vab = v(a) - v(b);
+    let k = Complex64::new(source_value(e, sources), 0.0);
+    let branch_current = |j: Option<usize>| j.and_then(|r| x.get(r).copied()).unwrap_or_default();
+    match e.kind() {
+        ElementKind::Amplifier => match (e.amplifier(), lay.internal.get(i).copied().flatten()) {
+            (Some(part), Some(first)) => match amplifier_stamp::branch_unknown(part, first) {
+                Some(br) => branch_current(Some(br)),
+                None => (vab - amplifier_stamp::output_signal(part, first, x)) / part.model.ro,
+            },
+            _ => Complex64::default(),
+        },
+        ElementKind::Resistor => vab / k,
+        ElementKind::Capacitor => vab * s * k,
+        ElementKind::Admittance => vab * Complex64::new(e.value(), e.value_im()),
+        ElementKind::CurrentSource => k,
+        ElementKind::Vccs => match e.control() {
+            Control::Nodes([p, n]) => k * (v(p) - v(n)),
+            _ => Complex64::default(),
+        },
+        ElementKind::Cccs => {
+            let j = lay
+                .control
+                .get(i)
+                .copied()
+                .flatten()
+                .and_then(|j| lay.branch.get(j).copied().flatten());
+            k * branch_current(j)
+        }
+        _ => branch_current(lay.branch.get(i).copied().flatten()),
+    }
 }
 
 /// Factor, solve, refine once and check the unknowns of an assembled system.
@@ -525,22 +593,44 @@ pub(crate) fn solve_vector(c: &Circuit, lay: &Layout, w: f64) -> CircuitResult<V
 fn solve_matrix(
     c: &Circuit,
     lay: &Layout,
-    m: Vec<Complex64>,
+    mut m: Vec<Complex64>,
     rhs: &[Complex64],
 ) -> CircuitResult<Vec<Complex64>> {
-    let zero = Complex64::new(0.0, 0.0);
     let n = lay.size;
-    // −0 entries as +0, as the pattern's fill writes them.
-    let a = m
-        .iter()
-        .map(|&z| if z == zero { zero } else { z })
-        .collect();
-    let lu = Lu::factor(n, a).map_err(|p| no_pivot(c, lay, p))?;
+    positive_zeros(&mut m);
+    let lu = Lu::factor(n, m.clone()).map_err(|p| no_pivot(c, lay, p))?;
+    let zero = Complex64::new(0.0, 0.0);
+    let (mut residual, mut correction) = (alloc::vec![zero; n], alloc::vec![zero; n]);
+    let x = substitute(&lu, &m, rhs, &mut residual, &mut correction);
+    check_unknowns(c, &x)?;
+    Ok(x)
+}
+
+/// −0 entries as +0, as the pattern's fill of a [`Workspace`] writes them.
+fn positive_zeros(m: &mut [Complex64]) {
+    let zero = Complex64::new(0.0, 0.0);
+    for z in m.iter_mut() {
+        if *z == zero {
+            *z = zero;
+        }
+    }
+}
+
+/// x with M·x = rhs from the factorization `lu` of `m` (n × n, row-major),
+/// refined once: r = rhs − M·x, x += M⁻¹·r (as in `Workspace::solve_refined`),
+/// the correction kept only when finite. `residual` and `correction` (length
+/// n) are scratch.
+fn substitute(
+    lu: &Lu,
+    m: &[Complex64],
+    rhs: &[Complex64],
+    residual: &mut [Complex64],
+    correction: &mut [Complex64],
+) -> Vec<Complex64> {
+    let zero = Complex64::new(0.0, 0.0);
+    let n = residual.len();
     let mut x = alloc::vec![zero; n];
     lu.solve_into(rhs, &mut x);
-    // One step of iterative refinement: r = b − M·x, x += M⁻¹·r (as in
-    // `Workspace::solve_refined`).
-    let mut residual = alloc::vec![zero; n];
     for (r, out) in residual.iter_mut().enumerate() {
         let row = m.get(r * n..(r + 1) * n).unwrap_or(&[]);
         let mut s = zero;
@@ -551,18 +641,145 @@ fn solve_matrix(
         }
         *out = rhs.get(r).copied().unwrap_or_default() - s;
     }
-    let mut correction = alloc::vec![zero; n];
-    lu.solve_into(&residual, &mut correction);
+    lu.solve_into(residual, correction);
     if correction
         .iter()
         .all(|z| z.re.is_finite() && z.im.is_finite())
     {
-        for (xi, d) in x.iter_mut().zip(&correction) {
+        for (xi, d) in x.iter_mut().zip(correction.iter()) {
             *xi += d;
         }
     }
-    check_unknowns(c, &x)?;
-    Ok(x)
+    x
+}
+
+/// The storage of single-frequency solves that follow one another, and the
+/// factorizations of the last few matrices factored, each reused while a later
+/// matrix is the same bit for bit. Circuits that differ only in their sources'
+/// values, or by a current source (which writes only the right-hand side),
+/// have the same matrix: the two-port analysis solves one network with several
+/// test sources, and a port impedance is a circuit solved before with its
+/// sources at zero and a test current source. The same bits factored again
+/// would give the same factors, so each result is that of a solve on its own,
+/// bit for bit; only the elimination is skipped.
+#[derive(Default)]
+pub(crate) struct Solves {
+    /// The factorizations kept, oldest first (at most [`Solves::KEPT`]).
+    kept: Vec<Factored>,
+    /// The layout, matrix and right-hand side of the solve in progress.
+    lay: Layout,
+    m: Vec<Complex64>,
+    rhs: Vec<Complex64>,
+    residual: Vec<Complex64>,
+    correction: Vec<Complex64>,
+    /// The structure check's union-find storage.
+    sets: (Sets, Sets),
+}
+
+/// The right-hand side of a solve: the circuit's own sources, or its sources at
+/// zero and a 1 A test current into node `plus`, out of node `minus` (node
+/// indices, 0 for ground).
+#[derive(Clone, Copy)]
+enum Drive {
+    Sources,
+    Test { plus: usize, minus: usize },
+}
+
+/// A matrix (−0 entries as +0) and its factorization.
+struct Factored {
+    m: Vec<Complex64>,
+    lu: Lu,
+}
+
+/// Equal bit for bit (not as numbers: +0 and −0 differ, as a NaN and itself agree).
+fn same_bits(a: &[Complex64], b: &[Complex64]) -> bool {
+    a.len() == b.len()
+        && a.iter()
+            .zip(b)
+            .all(|(x, y)| x.re.to_bits() == y.re.to_bits() && x.im.to_bits() == y.im.to_bits())
+}
+
+impl Solves {
+    /// Most factorizations kept: enough for the two-port analysis, whose
+    /// matching solves are at most three factorizations apart.
+    const KEPT: usize = 4;
+
+    /// The raw unknown vector of `c` (node voltages, then branch currents)
+    /// at angular frequency `w`: laid out (into [`Solves::layout`]), checked
+    /// for its structure, factored (or a kept factorization of the same matrix
+    /// reused), solved, refined once and checked.
+    fn solve(&mut self, c: &Circuit, w: f64, drive: Drive) -> CircuitResult<Vec<Complex64>> {
+        layout_into(c, &mut self.lay)?;
+        check_structure_in(c, w, &mut self.sets.0, &mut self.sets.1)?;
+        let lay = &self.lay;
+        match drive {
+            Drive::Sources => assemble_with(c, lay, w, &mut self.m, &mut self.rhs, true),
+            Drive::Test { plus, minus } => {
+                assemble_with(c, lay, w, &mut self.m, &mut self.rhs, false);
+                // As the stamp of a 1 A current source from `minus` to `plus`
+                // placed last: it leaves `minus` and enters `plus`.
+                let one = Complex64::new(1.0, 0.0);
+                if let Some(x) = minus.checked_sub(1).and_then(|r| self.rhs.get_mut(r)) {
+                    *x -= one;
+                }
+                if let Some(x) = plus.checked_sub(1).and_then(|r| self.rhs.get_mut(r)) {
+                    *x += one;
+                }
+            }
+        }
+        positive_zeros(&mut self.m);
+        let n = lay.size;
+        let at = match self.kept.iter().position(|f| same_bits(&f.m, &self.m)) {
+            Some(i) => i,
+            None => self.factor(n).map_err(|p| no_pivot(c, &self.lay, p))?,
+        };
+        let lay = &self.lay;
+        let zero = Complex64::new(0.0, 0.0);
+        self.residual.clear();
+        self.residual.resize(n, zero);
+        self.correction.clear();
+        self.correction.resize(n, zero);
+        let Some(f) = self.kept.get(at) else {
+            return Err(no_pivot(c, lay, NoPivot { column: 0 }));
+        };
+        let x = substitute(
+            &f.lu,
+            &f.m,
+            &self.rhs,
+            &mut self.residual,
+            &mut self.correction,
+        );
+        check_unknowns(c, &x)?;
+        Ok(x)
+    }
+
+    /// The layout of the last circuit solved.
+    fn layout(&self) -> &Layout {
+        &self.lay
+    }
+
+    /// Factor the matrix in progress (n × n) and keep it, in the place of the
+    /// oldest when [`Solves::KEPT`] are kept (in its storage when the sizes
+    /// agree); its index among those kept.
+    fn factor(&mut self, n: usize) -> Result<usize, NoPivot> {
+        let reuse = self.kept.len() >= Self::KEPT;
+        let mut f = if reuse {
+            self.kept.remove(0)
+        } else {
+            Factored {
+                m: Vec::new(),
+                lu: Lu::with_size(0),
+            }
+        };
+        if f.lu.matrix_mut().len() == self.m.len() && !self.m.is_empty() {
+            f.lu.refactor(&self.m)?;
+        } else {
+            f.lu = Lu::factor(n, self.m.clone())?;
+        }
+        core::mem::swap(&mut f.m, &mut self.m);
+        self.kept.push(f);
+        Ok(self.kept.len() - 1)
+    }
 }
 
 /// An unknown that is not finite: the overflow error, named by the node of
@@ -1100,13 +1317,46 @@ pub fn port_impedance(
     minus: &str,
     frequency_hz: f64,
 ) -> CircuitResult<Complex64> {
-    c.node_index(plus)?;
-    c.node_index(minus)?;
+    port_impedance_in(c, plus, minus, frequency_hz, &mut Solves::default())
+}
+
+/// [`port_impedance`] in the storage of `solves` (see [`solve_in`]): the
+/// matrix is that of `c`, so a solve of `c` just before shares its
+/// factorization.
+pub(crate) fn port_impedance_in(
+    c: &Circuit,
+    plus: &str,
+    minus: &str,
+    frequency_hz: f64,
+    solves: &mut Solves,
+) -> CircuitResult<Complex64> {
+    let p = c.node_index(plus)?;
+    let m = c.node_index(minus)?;
+    let test = Name::internal("test");
+    if p != m && c.elements().len() < MAX_ELEMENTS && c.elements().iter().all(|e| e.name() != test)
+    {
+        // The solve of the copy below without making it: the same matrix, the
+        // same right-hand side, the same checks in the same order, so the same
+        // result or error (a copy with a test source could not be made where
+        // this is not taken).
+        let w = omega(frequency_hz)?;
+        let x = solves.solve(c, w, Drive::Test { plus: p, minus: m })?;
+        let (lay, s) = (solves.layout(), Complex64::new(0.0, w));
+        for (i, e) in c.elements().iter().enumerate() {
+            let current = element_current(e, i, lay, &x, s, false);
+            check::result_complex("current", current).named(e.name())?;
+        }
+        let v = |node: usize| match node.checked_sub(1) {
+            None => Complex64::new(0.0, 0.0),
+            Some(i) => x.get(i).copied().unwrap_or_default(),
+        };
+        return Ok(check::result_complex("impedance", v(p) - v(m))?);
+    }
     let mut c1 = c.clone();
     c1.zero_sources();
     // 1 A from minus through the test source to plus: it enters the circuit at plus.
     c1.add_internal("test", ElementKind::CurrentSource, minus, plus, 1.0)?;
-    let s = solve(&c1, frequency_hz)?;
+    let s = solve_in(&c1, frequency_hz, solves)?;
     Ok(check::result_complex(
         "impedance",
         s.voltage_between(plus, minus)?,
@@ -1194,6 +1444,90 @@ mod tests {
             Complex64::new(6.0, 0.0),
             1e-12
         ));
+    }
+
+    fn bits(z: Complex64) -> (u64, u64) {
+        (z.re.to_bits(), z.im.to_bits())
+    }
+
+    /// Every element kind but the amplifier, with pivoting, for the bit checks.
+    fn mixed_circuit() -> Circuit {
+        let mut c = Circuit::new();
+        c.voltage_source("V1", "in", "0", 2.0).unwrap();
+        c.resistor("R1", "in", "a", 1e3).unwrap();
+        c.capacitor("C1", "a", "0", 1e-8).unwrap();
+        c.inductor("L1", "a", "b", 1e-3).unwrap();
+        c.admittance("Y1", "b", "0", 1e-3, 2e-4).unwrap();
+        c.current_source("I1", "0", "b", 1e-3).unwrap();
+        c.vcvs("E1", "e", "0", "b", "0", 3e5).unwrap();
+        c.resistor("Re", "e", "m", 2.0).unwrap();
+        c.voltage_source("Vm", "m", "0", 0.0).unwrap();
+        c.ccvs("H1", "h", "0", "Vm", 5.0).unwrap();
+        c.resistor("Rh", "h", "0", 1e-3).unwrap();
+        c.cccs("F1", "0", "f", "Vm", 2.0).unwrap();
+        c.resistor("Rf", "f", "0", 1e6).unwrap();
+        c.vccs("G1", "0", "g", "a", "0", 1e-2).unwrap();
+        c.resistor("Rg", "g", "0", 1e2).unwrap();
+        c
+    }
+
+    #[test]
+    fn a_kept_factorization_gives_the_bits_of_a_solve_of_its_own() {
+        // Solves sharing one `Solves` (the circuit, then the same circuit with
+        // other source values, then its port impedances, then another circuit
+        // and the first again) against each solved with fresh storage.
+        let c = mixed_circuit();
+        let mut other = c.clone();
+        other.zero_sources();
+        let mut smaller = c.without("Rh").unwrap();
+        smaller.zero_sources();
+        for f in [0.0, 1e3, 1e6] {
+            let shared = &mut Solves::default();
+            for circuit in [&c, &other, &smaller, &c] {
+                let kept = solve_in(circuit, f, shared).unwrap();
+                let own = solve(circuit, f).unwrap();
+                for (a, b) in kept.node_voltages.iter().zip(&own.node_voltages) {
+                    assert_eq!(bits(a.value()), bits(b.value()), "{f} Hz, {}", a.name);
+                }
+                for (a, b) in kept.element_currents.iter().zip(&own.element_currents) {
+                    assert_eq!(bits(a.value()), bits(b.value()), "{f} Hz, {}", a.name);
+                }
+                for (p, m) in [("a", "0"), ("b", "g"), ("0", "h")] {
+                    let z = port_impedance_in(circuit, p, m, f, shared);
+                    let alone = port_impedance(circuit, p, m, f);
+                    assert_eq!(z.map(bits), alone.map(bits), "{f} Hz, {p}–{m}");
+                }
+            }
+        }
+    }
+
+    #[test]
+    fn a_port_impedance_is_the_solve_of_the_circuit_with_a_test_source() {
+        // The impedance without a copy of the circuit against the solve of the
+        // copy it stands for: sources at zero, a 1 A test source added last.
+        let c = mixed_circuit();
+        for f in [0.0, 1e3, 1e6] {
+            for (p, m) in [("a", "0"), ("0", "a"), ("b", "g"), ("e", "f"), ("in", "0")] {
+                let mut c1 = c.clone();
+                c1.zero_sources();
+                c1.add_internal("test", ElementKind::CurrentSource, m, p, 1.0)
+                    .unwrap();
+                let want = solve(&c1, f)
+                    .and_then(|s| s.voltage_between(p, m))
+                    .and_then(|z| Ok(check::result_complex("impedance", z)?));
+                let got = port_impedance(&c, p, m, f);
+                assert_eq!(got.map(bits), want.map(bits), "{f} Hz, {p}–{m}");
+            }
+        }
+        // The same node twice and an unknown node: the copy's errors.
+        assert_eq!(
+            port_impedance(&c, "a", "a", 0.0).unwrap_err().error.code(),
+            "out_of_domain"
+        );
+        assert_eq!(
+            port_impedance(&c, "a", "zz", 0.0).unwrap_err().error.code(),
+            "unknown_name"
+        );
     }
 
     #[test]

@@ -905,6 +905,13 @@ impl Circuit {
         }
     }
 
+    /// Room for `elements` more elements and as many more nodes, so that the
+    /// adds that follow do not grow the storage step by step.
+    pub(crate) fn reserve(&mut self, elements: usize) {
+        self.elements.reserve(elements);
+        self.nodes.reserve(elements);
+    }
+
     /// Set every independent source to zero (V sources become shorts, I sources opens).
     pub(crate) fn zero_sources(&mut self) {
         for e in &mut self.elements {

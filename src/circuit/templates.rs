@@ -203,6 +203,8 @@ fn build_with(spec: &StageSpec, loading: Option<Loading>) -> CircuitResult<Stage
     spec.validate()?;
     let t = spec.topology;
     let mut c = Circuit::new();
+    // A template stage has 14 elements at most (and fewer nodes).
+    c.reserve(16);
     let source = add_source(&mut c, t, spec.rs)?;
     add_amplifier_input(&mut c, t, &spec.amplifier)?;
     // Series-series with rf = 0: the amplifier's feedback input is the sense node.

@@ -27,7 +27,7 @@
 //! Design of Analog Integrated Circuits*, 5th ed., sections 8.4–8.6 (from memory).
 
 use super::error::{CircuitError, CircuitResult};
-use super::mna::{port_impedance, solve, Solution};
+use super::mna::{port_impedance_in, solve_in, Solution, Solves};
 use super::netlist::{Circuit, ElementKind};
 use super::templates::{build, build_loaded, Loading, Stage, StageSpec};
 use crate::check;
@@ -96,8 +96,10 @@ fn drive(
     ports: [(&str, &str); 2],
     drives: [Drive; 2],
     w_hz: f64,
+    solves: &mut Solves,
 ) -> CircuitResult<[(Complex64, Complex64); 2]> {
     let mut c = sub.clone();
+    c.reserve(2);
     let tags = ["port1", "port2"];
     for ((&(p, m), d), tag) in ports.iter().zip(drives).zip(tags) {
         match d {
@@ -110,7 +112,7 @@ fn drive(
             }
         }
     }
-    let s: Solution = solve(&c, w_hz)?;
+    let s: Solution = solve_in(&c, w_hz, solves)?;
     let mut out = [(Complex64::default(), Complex64::default()); 2];
     for (((&(p, m), d), tag), slot) in ports.iter().zip(drives).zip(tags).zip(out.iter_mut()) {
         let v = s.voltage_between(p, m)?;
@@ -154,7 +156,32 @@ pub fn network_parameters(
     kind: ParameterKind,
     frequency_hz: f64,
 ) -> CircuitResult<TwoPortParameters> {
+    let ports = [port1, port2];
+    parameters_in(
+        c,
+        elements,
+        ports,
+        kind,
+        frequency_hz,
+        &mut Solves::default(),
+    )
+}
+
+/// [`network_parameters`] in the storage of `solves`. Both drives of each
+/// parameter set give the network the same matrix (a test voltage source at
+/// the same port in both, the other port's test current source or none), so
+/// the second solve reuses the first one's factorization.
+fn parameters_in(
+    c: &Circuit,
+    elements: &[&str],
+    ports: [(&str, &str); 2],
+    kind: ParameterKind,
+    frequency_hz: f64,
+    solves: &mut Solves,
+) -> CircuitResult<TwoPortParameters> {
+    let [port1, port2] = ports;
     let mut sub = Circuit::new();
+    sub.reserve(elements.len());
     for &name in elements {
         let e = c.element(name)?;
         if !matches!(
@@ -187,31 +214,54 @@ pub fn network_parameters(
     for n in [port1.0, port1.1, port2.0, port2.1] {
         c.node_index(n)?;
     }
-    let ports = [port1, port2];
     use Drive::*;
     let (p11, p21, p12, p22) = match kind {
         ParameterKind::H => {
-            let [(v1, _), (_, i2)] =
-                drive(&sub, ports, [Current(1.0), Voltage(0.0)], frequency_hz)?;
-            let [(v1b, _), (_, i2b)] = drive(&sub, ports, [Open, Voltage(1.0)], frequency_hz)?;
+            let [(v1, _), (_, i2)] = drive(
+                &sub,
+                ports,
+                [Current(1.0), Voltage(0.0)],
+                frequency_hz,
+                solves,
+            )?;
+            let [(v1b, _), (_, i2b)] =
+                drive(&sub, ports, [Open, Voltage(1.0)], frequency_hz, solves)?;
             (v1, i2, v1b, i2b)
         }
         ParameterKind::Y => {
-            let [(_, i1), (_, i2)] =
-                drive(&sub, ports, [Voltage(1.0), Voltage(0.0)], frequency_hz)?;
-            let [(_, i1b), (_, i2b)] =
-                drive(&sub, ports, [Voltage(0.0), Voltage(1.0)], frequency_hz)?;
+            let [(_, i1), (_, i2)] = drive(
+                &sub,
+                ports,
+                [Voltage(1.0), Voltage(0.0)],
+                frequency_hz,
+                solves,
+            )?;
+            let [(_, i1b), (_, i2b)] = drive(
+                &sub,
+                ports,
+                [Voltage(0.0), Voltage(1.0)],
+                frequency_hz,
+                solves,
+            )?;
             (i1, i2, i1b, i2b)
         }
         ParameterKind::Z => {
-            let [(v1, _), (v2, _)] = drive(&sub, ports, [Current(1.0), Open], frequency_hz)?;
-            let [(v1b, _), (v2b, _)] = drive(&sub, ports, [Open, Current(1.0)], frequency_hz)?;
+            let [(v1, _), (v2, _)] =
+                drive(&sub, ports, [Current(1.0), Open], frequency_hz, solves)?;
+            let [(v1b, _), (v2b, _)] =
+                drive(&sub, ports, [Open, Current(1.0)], frequency_hz, solves)?;
             (v1, v2, v1b, v2b)
         }
         ParameterKind::G => {
-            let [(_, i1), (v2, _)] = drive(&sub, ports, [Voltage(1.0), Open], frequency_hz)?;
-            let [(_, i1b), (v2b, _)] =
-                drive(&sub, ports, [Voltage(0.0), Current(1.0)], frequency_hz)?;
+            let [(_, i1), (v2, _)] =
+                drive(&sub, ports, [Voltage(1.0), Open], frequency_hz, solves)?;
+            let [(_, i1b), (v2b, _)] = drive(
+                &sub,
+                ports,
+                [Voltage(0.0), Current(1.0)],
+                frequency_hz,
+                solves,
+            )?;
             (i1, v2, i1b, v2b)
         }
     };
@@ -324,23 +374,30 @@ fn input_impedances(
     stage: &Stage,
     rs: f64,
     f: f64,
+    solves: &mut Solves,
 ) -> CircuitResult<(Complex64, Complex64)> {
     let no_source = stage.circuit.without(stage.source)?;
-    let rin = port_impedance(&no_source.without("Rs")?, "in", "0", f)?;
+    let rin = port_impedance_in(&no_source.without("Rs")?, "in", "0", f, solves)?;
     let rif = match t.mixing() {
         Mixing::Series => rin + rs,
-        Mixing::Shunt => port_impedance(&no_source, "in", "0", f)?,
+        Mixing::Shunt => port_impedance_in(&no_source, "in", "0", f, solves)?,
     };
     Ok((rin, rif))
 }
 
 /// Output impedance including Rl, with sources zeroed.
-fn output_with_load(t: Topology, stage: &Stage, rl: f64, f: f64) -> CircuitResult<Complex64> {
+fn output_with_load(
+    t: Topology,
+    stage: &Stage,
+    rl: f64,
+    f: f64,
+    solves: &mut Solves,
+) -> CircuitResult<Complex64> {
     match t.sampling() {
-        Sampling::Voltage => port_impedance(&stage.circuit, "out", "0", f),
+        Sampling::Voltage => port_impedance_in(&stage.circuit, "out", "0", f, solves),
         Sampling::Current => {
             let (p, m) = stage.load_port;
-            Ok(port_impedance(&stage.circuit.without("Rl")?, p, m, f)? + rl)
+            Ok(port_impedance_in(&stage.circuit.without("Rl")?, p, m, f, solves)? + rl)
         }
     }
 }
@@ -384,13 +441,17 @@ pub fn analyze(spec: &StageSpec, frequency_hz: f64) -> CircuitResult<TwoPortAnal
     super::mna::omega(f)?;
     let stage = build(spec)?;
     let kind = ParameterKind::for_topology(t);
-    let params = network_parameters(
+    // One storage for every solve below: those of one matrix share its
+    // factorization (the network's two drives; a stage and its output
+    // impedance, and with shunt mixing its input impedance).
+    let solves = &mut Solves::default();
+    let params = parameters_in(
         &stage.circuit,
         stage.feedback,
-        stage.input_port,
-        stage.output_port,
+        [stage.input_port, stage.output_port],
         kind,
         f,
+        solves,
     )?;
     let one = Complex64::new(1.0, 0.0);
     let inv = |z: Complex64, what: &'static str| -> CircuitResult<Complex64> {
@@ -419,10 +480,10 @@ pub fn analyze(spec: &StageSpec, frequency_hz: f64) -> CircuitResult<TwoPortAnal
     };
     // The loaded basic amplifier.
     let a_stage = build_loaded(spec, loading)?;
-    let a_sol = solve(&a_stage.circuit, f)?;
+    let a_sol = solve_in(&a_stage.circuit, f, solves)?;
     let a = output_of(t, &a_sol)?;
-    let (_, ri) = input_impedances(t, &a_stage, spec.rs, f)?;
-    let ro = output_with_load(t, &a_stage, spec.rl, f)?;
+    let (_, ri) = input_impedances(t, &a_stage, spec.rs, f, solves)?;
+    let ro = output_with_load(t, &a_stage, spec.rl, f, solves)?;
     let beta = params.p12;
     let loop_ = fb::loop_phasors(a, beta).map_err(CircuitError::from)?;
     let z = fb::impedances_with_feedback(t, ri, ro, a, beta).map_err(CircuitError::from)?;
@@ -435,12 +496,12 @@ pub fn analyze(spec: &StageSpec, frequency_hz: f64) -> CircuitResult<TwoPortAnal
         Sampling::Current => z.output - spec.rl,
     };
     // The exact solution of the same circuit.
-    let sol = solve(&stage.circuit, f)?;
+    let sol = solve_in(&stage.circuit, f, solves)?;
     let af_exact = output_of(t, &sol)?;
-    let (rin_exact, rif_exact) = input_impedances(t, &stage, spec.rs, f)?;
+    let (rin_exact, rif_exact) = input_impedances(t, &stage, spec.rs, f, solves)?;
     let (lp, lm) = stage.load_port;
-    let rout_exact = port_impedance(&stage.circuit.without("Rl")?, lp, lm, f)?;
-    let rof_exact = output_with_load(t, &stage, spec.rl, f)?;
+    let rout_exact = port_impedance_in(&stage.circuit.without("Rl")?, lp, lm, f, solves)?;
+    let rof_exact = output_with_load(t, &stage, spec.rl, f, solves)?;
     let ideal_af = inv(beta, "beta")?;
     Ok(TwoPortAnalysis {
         topology: t,

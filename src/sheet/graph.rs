@@ -147,7 +147,7 @@ impl Graph {
 
     /// Call `f` once with every formula that reads `cell` directly or through a
     /// range.
-    pub fn readers_of(&self, cell: CellRef, f: impl FnMut(CellRef)) {
+    pub fn readers_of(&self, cell: CellRef, mut f: impl FnMut(CellRef)) {
         let reads = |reader: &&CellRef| {
             self.range_readers
                 .get(*reader)
@@ -163,6 +163,15 @@ impl Graph {
             .wide_columns
             .get(&cell.col)
             .map_or(&[][..], Vec::as_slice);
+        if in_block.is_empty() && in_column.is_empty() && self.wide_readers.is_empty() {
+            // Direct readers only: a set, already sorted and without repeats.
+            self.readers
+                .get(&cell)
+                .into_iter()
+                .flatten()
+                .for_each(|&r| f(r));
+            return;
+        }
         let mut found: Vec<CellRef> = in_block
             .iter()
             .chain(in_column)
@@ -233,14 +242,16 @@ impl Tarjan {
         if self.low[v] != self.index[v] {
             return;
         }
-        let mut component = Vec::new();
+        // The component goes straight onto the order, as it is popped.
+        let first = self.out.len();
         while let Some(w) = self.stack.pop() {
             self.on_stack[w] = false;
-            component.push(w);
+            self.out.push(w);
             if w == v {
                 break;
             }
         }
+        let component = self.out.get(first..).unwrap_or(&[]);
         if component.len() > 1 {
             component.iter().for_each(|&w| self.cyclic[w] = true);
         }
@@ -248,34 +259,19 @@ impl Tarjan {
             .iter()
             .for_each(|&w| self.component_of[w] = self.components);
         self.components += 1;
-        self.out.extend(component);
     }
 }
 
 /// Evaluation order of `n` nodes given, for node `i`, the nodes it reads
-/// (`edges(i, out)` pushes their indices onto `out`): every node comes after the
-/// nodes it reads, except inside circular references. Returns the order
-/// (indices), per node whether it lies on a circular reference, and per node the
-/// number of its strongly connected component (components are numbered in
-/// the order they appear in the returned order, which keeps each one together).
-pub fn order(
+/// (`adj(i)`, their indices): every node comes after the nodes it reads, except
+/// inside circular references. Returns the order (indices), per node whether it
+/// lies on a circular reference, and per node the number of its strongly
+/// connected component (components are numbered in the order they appear in
+/// the returned order, which keeps each one together).
+pub fn order<'a>(
     n: usize,
-    edges: impl Fn(usize, &mut Vec<usize>),
+    adj: impl Fn(usize) -> &'a [usize],
 ) -> (Vec<usize>, Vec<bool>, Vec<usize>) {
-    // Adjacency in one flat buffer: the targets of i are targets[start[i]..start[i + 1]].
-    let mut start = Vec::with_capacity(n + 1);
-    let mut targets = Vec::new();
-    for i in 0..n {
-        start.push(targets.len());
-        edges(i, &mut targets);
-    }
-    start.push(targets.len());
-    let adj = |v: usize| -> &[usize] {
-        match (start.get(v), start.get(v + 1)) {
-            (Some(&a), Some(&b)) => targets.get(a..b).unwrap_or(&[]),
-            _ => &[],
-        }
-    };
     let mut t = Tarjan::new(n);
     // The explicit call stack: (node, next edge to follow).
     let mut calls: Vec<(usize, usize)> = Vec::new();
@@ -398,7 +394,7 @@ mod tests {
             alloc::vec![5],
             alloc::vec![3],
         ];
-        let (ord, cyc, comp) = order(reads.len(), |i, out| out.extend(&reads[i]));
+        let (ord, cyc, comp) = order(reads.len(), |i| reads[i].as_slice());
         assert_eq!(comp[3], comp[4]);
         assert_ne!(comp[3], comp[6]);
         let pos = |i: usize| ord.iter().position(|&x| x == i).unwrap();
@@ -411,11 +407,8 @@ mod tests {
     #[test]
     fn a_long_chain_does_not_recurse() {
         let n = 200_000;
-        let (ord, cyc, _) = order(n, |i, out| {
-            if i + 1 < n {
-                out.push(i + 1);
-            }
-        });
+        let next: Vec<usize> = (1..n).collect();
+        let (ord, cyc, _) = order(n, |i| next.get(i..i + 1).unwrap_or(&[]));
         assert_eq!(ord[0], n - 1);
         assert!(!cyc.iter().any(|&b| b));
     }

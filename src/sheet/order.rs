@@ -20,8 +20,9 @@ use alloc::collections::BTreeMap;
 use alloc::vec::Vec;
 
 /// Ranges of at most this many cells get an edge per cell instead of a node
-/// (the ten-cell sums of the benchmark sheet, say).
-const SMALL_RANGE_CELLS: u64 = 16;
+/// (the ten-cell sums of the benchmark sheet, say), and a function's result
+/// over one is computed again rather than cached (`recalc::Work`).
+pub(super) const SMALL_RANGE_CELLS: u64 = 16;
 
 /// What the nodes of the pending graph are built from.
 struct Pending<'a> {
@@ -30,10 +31,6 @@ struct Pending<'a> {
     nodes: &'a [CellRef],
     /// Whether a reader of a spilled cell also points at the formula spilling it.
     spills: bool,
-    /// Column → (row, node) of its pending cells, by row.
-    columns: BTreeMap<u32, Vec<(u32, usize)>>,
-    /// Pending formulas that spill, with the rectangle they spill into.
-    anchors: Vec<(usize, Range)>,
 }
 
 /// The range and block nodes, numbered from `nodes.len()` on.
@@ -42,26 +39,41 @@ struct Shared {
     edges: Vec<Vec<usize>>,
     ranges: BTreeMap<Range, usize>,
     blocks: BTreeMap<(u32, u32), usize>,
+    /// What the range nodes are made from, built with the first of them (a
+    /// sheet whose ranges are all small needs neither).
+    index: Option<Index>,
+}
+
+/// The pending cells by column, and the pending formulas that spill.
+struct Index {
+    /// Column → (row, node) of its pending cells, by row.
+    columns: BTreeMap<u32, Vec<(u32, usize)>>,
+    /// Pending formulas that spill, with the rectangle they spill into.
+    anchors: Vec<(usize, Range)>,
 }
 
 impl Pending<'_> {
     fn new<'a>(sheet: &'a Sheet, nodes: &'a [CellRef], spills: bool) -> Pending<'a> {
-        let mut columns: BTreeMap<u32, Vec<(u32, usize)>> = BTreeMap::new();
-        let mut anchors = Vec::new();
-        for (i, c) in nodes.iter().enumerate() {
-            // Nodes are in row-then-column order, so each column's list is by row.
-            columns.entry(c.col).or_default().push((c.row, i));
-            if let Some(r) = sheet.spills.get(c).filter(|_| spills) {
-                anchors.push((i, *r));
-            }
-        }
         Pending {
             sheet,
             nodes,
             spills,
-            columns,
-            anchors,
         }
+    }
+
+    fn index(&self) -> Index {
+        let mut columns: BTreeMap<u32, Vec<(u32, usize)>> = BTreeMap::new();
+        let mut anchors = Vec::new();
+        for (i, c) in self.nodes.iter().enumerate() {
+            // Nodes are in row-then-column order, so each column's list is by row.
+            columns.entry(c.col).or_default().push((c.row, i));
+            if self.spills {
+                if let Some(r) = self.sheet.spills.get(c) {
+                    anchors.push((i, *r));
+                }
+            }
+        }
+        Index { columns, anchors }
     }
 
     /// The pending cells `c` reads through the cell `x`: `x` itself and, when
@@ -70,7 +82,10 @@ impl Pending<'_> {
         if let Ok(i) = self.nodes.binary_search(&x) {
             out.push(i);
         }
-        let anchor = self.sheet.owner.get(&x).filter(|a| self.spills && **a != c);
+        if !self.spills {
+            return;
+        }
+        let anchor = self.sheet.owner.get(&x).filter(|a| **a != c);
         if let Some(i) = anchor.and_then(|a| self.nodes.binary_search(a).ok()) {
             out.push(i);
         }
@@ -99,15 +114,17 @@ impl Pending<'_> {
         if let Some(&id) = shared.ranges.get(&r) {
             return id;
         }
+        let index = shared.index.take().unwrap_or_else(|| self.index());
         let mut out = Vec::new();
-        for (&col, list) in self.columns.range(r.start.col..=r.end.col) {
+        for (&col, list) in index.columns.range(r.start.col..=r.end.col) {
             self.column_edges(r, col, list, shared, &mut out);
         }
-        for &(i, spill) in &self.anchors {
+        for &(i, spill) in &index.anchors {
             if spill.intersects(&r) {
                 out.push(i);
             }
         }
+        shared.index = Some(index);
         let id = self.nodes.len() + shared.edges.len();
         shared.edges.push(out);
         shared.ranges.insert(r, id);
@@ -180,14 +197,14 @@ impl Pending<'_> {
         // The cells' edges in one flat buffer (cell i: targets[start[i]..start[i + 1]]),
         // not a list per cell: one allocation instead of one per pending cell.
         let mut start = Vec::with_capacity(n + 1);
-        let mut targets = Vec::new();
+        let mut targets = Vec::with_capacity(n.saturating_mul(2));
         for c in self.nodes {
             start.push(targets.len());
             self.cell_node(*c, &mut shared, &mut targets);
         }
         start.push(targets.len());
         let total = n + shared.edges.len();
-        let (mut ord, mut cyclic, mut component) = order(total, |i, out| {
+        let (mut ord, mut cyclic, mut component) = order(total, |i| {
             let list = match i.checked_sub(n) {
                 None => match (start.get(i), start.get(i + 1)) {
                     (Some(&a), Some(&b)) => targets.get(a..b),
@@ -195,7 +212,7 @@ impl Pending<'_> {
                 },
                 Some(j) => shared.edges.get(j).map(Vec::as_slice),
             };
-            out.extend_from_slice(list.unwrap_or(&[]));
+            list.unwrap_or(&[])
         });
         ord.retain(|&i| i < n);
         cyclic.truncate(n);

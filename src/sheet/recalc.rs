@@ -5,6 +5,7 @@ use super::address::{CellRef, Range};
 use super::errors::ErrorKind;
 use super::eval::{evaluate, Context};
 use super::graph::BLOCK_ROWS;
+use super::order::SMALL_RANGE_CELLS;
 use super::sheet::{Content, Sheet, MAX_SPILL_PASSES};
 use super::value::Value;
 use alloc::collections::{BTreeMap, BTreeSet};
@@ -85,7 +86,18 @@ impl Work {
         }
     }
 
+    /// Whether results over `r` are kept: not over a range of at most
+    /// [`SMALL_RANGE_CELLS`] cells, which is read again for less than keeping
+    /// and finding its result costs (most small ranges have one reader, the
+    /// ten-cell sums of the benchmark sheet say).
+    fn keeps(r: Range) -> bool {
+        r.area() > SMALL_RANGE_CELLS
+    }
+
     fn cached(&self, function: &'static str, r: Range) -> Option<Value> {
+        if !Work::keeps(r) {
+            return None;
+        }
         let cache = self.cache.borrow();
         let (when, v) = cache.get(&(r, function))?;
         let (b0, b1) = (r.start.row / BLOCK_ROWS, r.end.row / BLOCK_ROWS);
@@ -97,6 +109,9 @@ impl Work {
     }
 
     fn remember(&self, function: &'static str, r: Range, v: &Value) {
+        if !Work::keeps(r) {
+            return;
+        }
         self.cache
             .borrow_mut()
             .insert((r, function), (self.clock, v.clone()));

@@ -91,7 +91,15 @@ impl Fields {
                 None,
             ));
         }
-        Fields::of(String::from(name), Plain::from_js(value), names)
+        // An object that is not a list: its entries, read at once. The same as
+        // `Plain::from_js`, whose tests for the other kinds would all fail here
+        // (a call into JS each), but for a Float64Array, which it reads as a list.
+        let plain = if value.is_instance_of::<js_sys::Float64Array>() {
+            Plain::from_js(value)
+        } else {
+            Plain::Map(map_entries(value.unchecked_ref()))
+        };
+        Fields::of(String::from(name), plain, names)
             .map_err(|(path, failure)| refusal(&path, failure))
     }
 

@@ -315,6 +315,7 @@ impl Args<'_> {
         for (i, v) in self.values.iter().enumerate() {
             match v {
                 Value::Array(a) => {
+                    out.reserve(a.items().len());
                     for item in a.items() {
                         match item {
                             Value::Number(x, _) => out.push(*x),
@@ -340,6 +341,7 @@ impl Args<'_> {
         for (i, v) in self.values.iter().enumerate() {
             match v {
                 Value::Array(a) => {
+                    out.reserve(a.items().len());
                     for item in a.items() {
                         match item {
                             Value::Number(x, _) => out.push(*x != 0.0),
