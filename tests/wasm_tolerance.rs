@@ -347,3 +347,35 @@ fn amplifier_spreads_by_name_name_the_callers_path() {
         "amplifierSpread.gbwHz.max",
     );
 }
+
+#[wasm_bindgen_test]
+fn a_stage_takes_its_amplifier_by_name_too() {
+    // {U1: {gbwHz}} on a stage is {gbwHz}: the same Monte Carlo bits.
+    let spread = json!({ "min": 7e6, "typ": 1e7, "max": 1.3e7 });
+    let one = api::stage_tolerance(gain48(json!({
+        "amplifierSpread": { "gbwHz": spread }, "analyses": ["monteCarlo"]
+    })))
+    .unwrap();
+    let named = api::stage_tolerance(gain48(json!({
+        "amplifierSpread": { "U1": { "gbwHz": spread } }, "analyses": ["monteCarlo"]
+    })))
+    .unwrap();
+    let y = |r: &JsValue| num(&field(r, "monteCarlo"), "yieldFraction").to_bits();
+    assert_eq!(y(&one), y(&named));
+    let parts = js_sys::Array::from(&field(&named, "parts"));
+    assert!(parts.iter().any(|p| text(&p, "name") == "U1.gbwHz"));
+    assert_thrown(
+        api::stage_tolerance(gain48(json!({
+            "amplifierSpread": { "U1": { "gbwHz": { "min": 7e6, "typ": 1e7, "max": 6e6 } } }
+        }))),
+        "out_of_domain",
+        "amplifierSpread.U1.gbwHz.max",
+    );
+    assert_thrown(
+        api::stage_tolerance(gain48(
+            json!({ "amplifierSpread": { "U2": { "gbwHz": spread } } }),
+        )),
+        "unknown_name",
+        "amplifierSpread.U2",
+    );
+}

@@ -16,10 +16,12 @@
 //! | `eseries` | `series`, `resistor` | nearest standard value and its error |
 //! | `pair` | `network`, `series`, `pair_target`, `total_min`, `total_max` | best resistor pair |
 //! | `design` | a stage with `rf` or `cl`, `target_pm_deg` | Cf and Riso for the phase margin, whether each is at its range's end |
-//! | `tolerance` | a stage, part tolerances `rf_tol` … (%, uniform), limits `gain_min_db`/`gain_max_db` at `gain_at_hz` and/or `pm_min_deg` (`tol_trials`, `tol_seed`) | worst-case min and max of each limited figure, Monte Carlo yield overall and per limit |
+//! | `tolerance` | a stage with part tolerances `rf_tol` … (%, uniform), or a `circuit` with `input`, `output` or `output_element` (`output_minus`, `controlled`, `amplifier_spread`); limits `gain_min_db`/`gain_max_db` at `gain_at_hz` and/or `pm_min_deg` (`tol_trials`, `tol_seed`) | worst-case min and max of each limited figure, Monte Carlo yield overall and per limit |
 //!
 //! A stage is a `stage` column holding a stage document (`docs/stage.md`), or a
-//! `kind` column with the amplifier figures and parts as columns.
+//! `kind` column with the amplifier figures and parts as columns; `tolerance`
+//! also takes a `circuit` column holding a circuit document (`docs/circuit.md`)
+//! whose elements carry their own tolerances.
 
 use crate::check;
 use crate::error::{Error, Result};

@@ -534,6 +534,8 @@ fn circuit_analysis(
 /// last key the first of min, typ, max at fault: not a positive number, then
 /// min above typ, typ above max, else typ (not the model's own figure).
 fn amplifier_path(amp: Option<&AmpSpreadForm>, subject: &str, p: &str) -> String {
+    // A stage's amplifier spreads are refused unnamed: its one amplifier, U1.
+    let subject = if subject.is_empty() { "U1" } else { subject };
     let (base, given) = match amp {
         Some(AmpSpreadForm::Each(list)) => (
             alloc::format!("amplifierSpread.{subject}.{p}"),
