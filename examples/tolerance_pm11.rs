@@ -18,6 +18,7 @@ fn main() {
         input: "Vs".into(),
         output: "n8".into(),
         output_minus: None,
+        output_element: None,
         controlled: None,
     };
     let amp = AmplifierSpread {

@@ -1,6 +1,10 @@
 //! The batch tool's tolerance step: a stage in columns with `rf_tol`, `rg_tol`
 //! (%, uniform) and a gain spec give the worst-case gain and the Monte Carlo
-//! yield; a bad tolerance is reported naming its column.
+//! yield; a bad tolerance is reported naming its column. A circuit document
+//! in a `circuit` column (tests/fixtures/tolerance_circuit.rs) with its ports
+//! and amplifier spreads gives the same columns.
+// The shared fixture file also holds the identity bits of other tests.
+#![allow(dead_code)]
 
 use loopwright::batch::BatchRun;
 use serde_json::Value;
@@ -67,4 +71,65 @@ fn gain48_rows_give_the_corner_gains_and_the_closed_form_yield() {
         report.len() == 1 && report[0].contains("rf_tol"),
         "no report naming rf_tol: {lines:?}"
     );
+}
+
+include!("fixtures/tolerance_circuit.rs");
+
+/// A CSV field holding `text` (RFC 4180: quoted, quotes doubled).
+fn quoted(text: &str) -> String {
+    format!("\"{}\"", text.replace('\n', "").replace('"', "\"\""))
+}
+
+#[test]
+fn circuit_rows_give_corner_gains_and_the_numpy_yield() {
+    // Expected: tests/reference/tolerance_stage.py "twoamp" (two cascaded
+    // stages, GBW spreads on both amplifiers by name: the 128 brute-force
+    // corners, numpy Monte Carlo yield of gain ≥ 33.55 dB at 200 kHz) and
+    // "transcond" (the current in RL as the output: 16 corners).
+    let reference: Value =
+        serde_json::from_str(include_str!("reference/data/tolerance_stage.json")).unwrap();
+    let spreads = quoted(
+        r#"{"U1":{"gbwHz":{"min":7e6,"typ":1e7,"max":1.3e7}},"U2":{"gbwHz":{"min":3.5e6,"typ":5e6,"max":6.5e6}}}"#,
+    );
+    let one = quoted(r#"{"gbwHz":{"min":7e6,"typ":1e7,"max":1.3e7}}"#);
+    let bad = quoted(r#"{"Rf1":{"gbwHz":{"min":7e6,"typ":1e7,"max":1.3e7}}}"#);
+    let trials = 2000;
+    let (two, tc) = (quoted(TWOAMP), quoted(TRANSCOND));
+    let csv = format!(
+        "circuit,input,output,output_element,amplifier_spread,gain_at_hz,gain_min_db,tol_trials,tol_seed\n\
+         {two},Vs,out,,{spreads},200k,33.55,{trials},4\n\
+         {tc},Vs,,RL,{one},100k,-60.01,{trials},4\n\
+         {two},Vs,out,,{bad},200k,33.55,{trials},4\n\
+         {tc},Vs,o,RL,{one},100k,-60.01,{trials},4\n"
+    );
+    let (lines, counts) = run(&csv);
+    assert_eq!(counts, (4, 2, 2), "{lines:?}");
+    let header: Vec<&str> = lines[0].split(',').collect();
+    let col = |name: &str| header.iter().position(|h| *h == name).unwrap();
+    // The last columns are the results (the input fields hold commas).
+    let field = |row: usize, name: &str| -> f64 {
+        let cells: Vec<&str> = lines[row].rsplit(',').collect();
+        cells[header.len() - 1 - col(name)].parse().unwrap()
+    };
+    let corner =
+        |key: &str, side: &str| reference[key]["corners"]["gainDb"][side].as_f64().unwrap();
+    for (row, key) in [(1, "twoamp"), (2, "transcond")] {
+        assert!(
+            (field(row, "tol_gain_min_db") - corner(key, "min")).abs() < 1e-9,
+            "{key}"
+        );
+        assert!(
+            (field(row, "tol_gain_max_db") - corner(key, "max")).abs() < 1e-9,
+            "{key}"
+        );
+    }
+    // Yield within 4 standard errors of the difference of the two estimates.
+    let p = reference["twoamp"]["gainDb"]["yield"].as_f64().unwrap();
+    let nn = reference["twoamp"]["trials"].as_f64().unwrap();
+    let se = (p * (1.0 - p) * (1.0 / trials as f64 + 1.0 / nn)).sqrt();
+    let y = field(1, "tol_yield");
+    assert!((y - p).abs() <= 4.0 * se, "yield {y}, numpy {p}");
+    let report = &lines[3..];
+    assert!(report[0].contains("amplifier_spread"), "{report:?}");
+    assert!(report[1].contains("output_element"), "{report:?}");
 }

@@ -29,6 +29,7 @@ fn ports(controlled: Option<&str>) -> CircuitPorts {
         input: "Vs".into(),
         output: "out".into(),
         output_minus: None,
+        output_element: None,
         controlled: controlled.map(String::from),
     }
 }
@@ -295,6 +296,7 @@ fn bad_ports_and_spreads_name_the_field() {
             input: input.into(),
             output: output.into(),
             output_minus: minus.map(String::from),
+            output_element: None,
             controlled: controlled.map(String::from),
         };
     let none: &[(String, AmplifierSpread)] = &[];
@@ -354,4 +356,211 @@ fn bad_ports_and_spreads_name_the_field() {
     assert!(monte_carlo(&ts, &rcloop_spec()[..1], options(1, 10)).is_ok());
     let ts = TolStage::from_circuit(&c, ports(Some("U1")), none, [25.0, 25.0]).unwrap();
     assert!(monte_carlo(&ts, &rcloop_spec(), options(1, 10)).is_ok());
+}
+
+fn two_gbw() -> [(String, AmplifierSpread); 2] {
+    [
+        (
+            "U1".into(),
+            AmplifierSpread {
+                gbw_hz: Some(GBW),
+                ro: None,
+            },
+        ),
+        (
+            "U2".into(),
+            AmplifierSpread {
+                gbw_hz: Some(Spread {
+                    min: 3.5e6,
+                    typ: 5e6,
+                    max: 6.5e6,
+                }),
+                ro: None,
+            },
+        ),
+    ]
+}
+
+fn twoamp() -> TolStage {
+    let c = read_circuit(TWOAMP).unwrap();
+    TolStage::from_circuit(&c, ports(None), &two_gbw(), [25.0, 25.0]).unwrap()
+}
+
+fn twoamp_spec() -> [Limit; 2] {
+    [
+        limit(Figure::GainDb { freq_hz: 2e5 }, None),
+        limit(Figure::BandwidthHz, Some(6e5)),
+    ]
+}
+
+/// Each extreme of `wc` against the script's brute-force corners at `key`:
+/// the value within `tols[k]` (absolute) and the part values giving it.
+fn corners_match(wc: &loopwright::tolerance::WorstCase, key: &str, names: &[(&str, f64)]) {
+    let r = reference();
+    for (k, (name, tol)) in names.iter().enumerate() {
+        let f = &wc.figures[k];
+        for (ext, side) in [(&f.min, "min"), (&f.max, "max")] {
+            let want = num(&r, &[key, "corners", name, side]);
+            assert!(
+                (ext.value - want).abs() <= *tol,
+                "{key} {name} {side}: {} vs {want}",
+                ext.value
+            );
+            let values = r[key]["corners"][name][&format!("{side}Values")]
+                .as_array()
+                .unwrap();
+            assert_eq!(ext.values.len(), values.len());
+            for (got, want) in ext.values.iter().zip(values) {
+                let want = want.as_f64().unwrap();
+                assert!(
+                    (got / want - 1.0).abs() < 1e-12,
+                    "{key} {name} {side}: {got} vs {want}"
+                );
+            }
+        }
+    }
+}
+
+#[test]
+fn twoamp_varies_both_amplifiers_by_name() {
+    let names: Vec<String> = twoamp().varied.iter().map(|v| v.name.clone()).collect();
+    assert_eq!(
+        names,
+        ["Rf1", "Rg1", "Rf2", "Rg2", "U1.a0", "U1.gbwHz", "U2.gbwHz"]
+    );
+}
+
+#[test]
+fn twoamp_corners_match_brute_force_enumeration() {
+    // Expected: tolerance_stage.py "twoamp.corners" (closed forms at all 128
+    // corners); the gain within 1e-9 dB, the bandwidth within 1e-6 of itself
+    // (the −3 dB point is bisected to 2^-40 of a tenth of a decade).
+    let wc = worst_case(&twoamp(), &twoamp_spec(), 128).unwrap();
+    assert_eq!(wc.method, WorstCaseMethod::Corners);
+    assert!(wc.evaluations >= 128, "{}", wc.evaluations);
+    corners_match(&wc, "twoamp", &[("gainDb", 1e-9), ("bandwidthHz", 0.5)]);
+}
+
+#[test]
+fn twoamp_monte_carlo_agrees_with_numpy() {
+    // Expected: numpy Monte Carlo of the same circuit and distributions
+    // (tolerance_stage.py "twoamp", 20 000 trials); standard error of the
+    // difference of two independent estimates as in rcloop above:
+    // means sqrt(sd²/N + sd²/Nnp), yield sqrt(p(1 − p)(1/N + 1/Nnp)).
+    let r = reference();
+    let n = 1000;
+    let mc = monte_carlo(&twoamp(), &twoamp_spec(), options(7, n)).unwrap();
+    let nn = num(&r, &["twoamp", "trials"]);
+    for (k, name) in ["gainDb", "bandwidthHz"].into_iter().enumerate() {
+        let sd = num(&r, &["twoamp", name, "sd"]);
+        let s = mc.limits[k].stats.as_ref().unwrap();
+        within_4se(
+            s.mean,
+            num(&r, &["twoamp", name, "mean"]),
+            (sd * sd / n as f64 + sd * sd / nn).sqrt(),
+            name,
+        );
+        assert_eq!(mc.limits[k].undefined, 0);
+    }
+    let p = num(&r, &["twoamp", "bandwidthHz", "yield"]);
+    within_4se(
+        mc.yield_fraction,
+        p,
+        (p * (1.0 - p) * (1.0 / n as f64 + 1.0 / nn)).sqrt(),
+        "yield",
+    );
+    assert!((mc.limits[0].nominal[0] - num(&r, &["twoamp", "nominalGainDb"])).abs() < 1e-9);
+    let bw = num(&r, &["twoamp", "nominalBandwidthHz"]);
+    assert!((mc.limits[1].nominal[0] / bw - 1.0).abs() < 1e-6);
+}
+
+fn transcond() -> TolStage {
+    let c = read_circuit(TRANSCOND).unwrap();
+    let p = CircuitPorts {
+        input: "Vs".into(),
+        output: String::new(),
+        output_minus: None,
+        output_element: Some("RL".into()),
+        controlled: None,
+    };
+    TolStage::from_circuit(&c, p, &[("U1".into(), two_gbw()[0].1)], [25.0, 25.0]).unwrap()
+}
+
+fn transcond_spec() -> [Limit; 2] {
+    [
+        limit(Figure::GainDb { freq_hz: 1e5 }, None),
+        Limit {
+            figure: Figure::GainErrorPercent {
+                freq_hz: 2e4,
+                target: 1e-3,
+            },
+            lower: Some(-0.5),
+            upper: Some(0.0),
+        },
+    ]
+}
+
+#[test]
+fn a_current_output_matches_brute_force_corners() {
+    // Expected: tolerance_stage.py "transcond.corners", I(RL)/Vs =
+    // A/(RL + Rs + A·Rs) at the 16 corners; within 1e-9 dB and 1e-9 %.
+    let wc = worst_case(&transcond(), &transcond_spec(), 16).unwrap();
+    assert_eq!(wc.method, WorstCaseMethod::Corners);
+    corners_match(
+        &wc,
+        "transcond",
+        &[("gainDb", 1e-9), ("gainErrorPercent", 1e-9)],
+    );
+}
+
+#[test]
+fn a_current_output_monte_carlo_agrees_with_numpy() {
+    // Expected: numpy Monte Carlo of "transcond" (100 000 trials); the
+    // standard errors of the difference as above.
+    let r = reference();
+    let n = 4000;
+    let mc = monte_carlo(&transcond(), &transcond_spec(), options(3, n)).unwrap();
+    let nn = num(&r, &["transcond", "trials"]);
+    for (k, name) in ["gainDb", "gainErrorPercent"].into_iter().enumerate() {
+        let sd = num(&r, &["transcond", name, "sd"]);
+        let s = mc.limits[k].stats.as_ref().unwrap();
+        within_4se(
+            s.mean,
+            num(&r, &["transcond", name, "mean"]),
+            (sd * sd / n as f64 + sd * sd / nn).sqrt(),
+            name,
+        );
+    }
+    let p = num(&r, &["transcond", "gainErrorPercent", "yield"]);
+    within_4se(
+        mc.yield_fraction,
+        p,
+        (p * (1.0 - p) * (1.0 / n as f64 + 1.0 / nn)).sqrt(),
+        "yield",
+    );
+    assert!((mc.limits[0].nominal[0] - num(&r, &["transcond", "nominalGainDb"])).abs() < 1e-9);
+}
+
+#[test]
+fn a_current_output_refuses_what_it_cannot_be() {
+    let c = read_circuit(TRANSCOND).unwrap();
+    let p = |output: &str, element: &str| CircuitPorts {
+        input: "Vs".into(),
+        output: output.into(),
+        output_minus: None,
+        output_element: Some(element.into()),
+        controlled: None,
+    };
+    let err = |ports| {
+        let e = TolStage::from_circuit(&c, ports, &[], [25.0, 25.0]).unwrap_err();
+        (e.error.param().to_string(), e.name.as_str().to_string())
+    };
+    assert_eq!(err(p("", "Rx")), ("outputElement".into(), "Rx".into()));
+    assert_eq!(err(p("o", "RL")), ("outputElement".into(), "RL".into()));
+    // An output impedance has no meaning for a current output: the figure is
+    // undefined in every trial, the worst case refuses naming it.
+    let ts = transcond();
+    let spec = [limit(Figure::OutputImpedanceOhm { freq_hz: 1e3 }, None)];
+    let e = worst_case(&ts, &spec, 16).unwrap_err();
+    assert_eq!(e.error.param(), "outputImpedanceOhm");
 }

@@ -206,3 +206,176 @@ fn circuit_bad_input_names_the_callers_field() {
         "circuit",
     );
 }
+
+/// The script's "twoamp" with the spreads of both amplifiers given by name.
+fn twoamp(extra: Value) -> JsValue {
+    let mut o = json!({
+        "circuit": TWOAMP,
+        "input": "Vs",
+        "output": "out",
+        "amplifierSpread": {
+            "U1": { "gbwHz": { "min": 7e6, "typ": 1e7, "max": 1.3e7 } },
+            "U2": { "gbwHz": { "min": 3.5e6, "typ": 5e6, "max": 6.5e6 } }
+        },
+        "spec": [
+            { "figure": "gainDb", "freqHz": 2e5 },
+            { "figure": "bandwidthHz", "lower": 6e5 }
+        ],
+        "analyses": ["worstCase"],
+        "maxCorners": 128
+    });
+    for (k, v) in extra.as_object().unwrap() {
+        o[k] = v.clone();
+    }
+    js_of(&o)
+}
+
+/// `worstCase.figures[k]`'s extremes against the script's corners of `key`.
+fn js_corners_match(out: &JsValue, key: &str, names: &[(&str, f64)]) {
+    let r: Value = serde_json::from_str(REFERENCE).unwrap();
+    let wc = field(out, "worstCase");
+    assert_eq!(text(&wc, "method"), "corners");
+    let figures = js_sys::Array::from(&field(&wc, "figures"));
+    for (k, (name, tol)) in names.iter().enumerate() {
+        let f = figures.get(k as u32);
+        for side in ["min", "max"] {
+            let want = r[key]["corners"][name][side].as_f64().unwrap();
+            let got = num(&field(&f, side), "value");
+            assert!((got - want).abs() <= *tol, "{key} {name} {side}");
+        }
+    }
+}
+
+#[wasm_bindgen_test]
+fn spreads_by_amplifier_name_vary_both_amplifiers() {
+    // Expected: tolerance_stage.py "twoamp.corners" (128 corners), as
+    // tests/tolerance_circuit.rs: gain within 1e-9 dB, bandwidth 0.5 Hz.
+    let out = api::stage_tolerance(twoamp(json!({}))).unwrap();
+    let parts = js_sys::Array::from(&field(&out, "parts"));
+    let names: Vec<String> = parts.iter().map(|p| text(&p, "name")).collect();
+    assert_eq!(
+        names,
+        ["Rf1", "Rg1", "Rf2", "Rg2", "U1.a0", "U1.gbwHz", "U2.gbwHz"]
+    );
+    js_corners_match(&out, "twoamp", &[("gainDb", 1e-9), ("bandwidthHz", 0.5)]);
+}
+
+#[wasm_bindgen_test]
+fn output_element_reads_the_current_in_an_element() {
+    // Expected: tolerance_stage.py "transcond.corners", I(RL)/Vs at 16 corners.
+    let o = json!({
+        "circuit": TRANSCOND,
+        "input": "Vs",
+        "outputElement": "RL",
+        "amplifierSpread": { "gbwHz": { "min": 7e6, "typ": 1e7, "max": 1.3e7 } },
+        "spec": [
+            { "figure": "gainDb", "freqHz": 1e5 },
+            { "figure": "gainErrorPercent", "freqHz": 2e4, "target": 1e-3, "lower": -0.5, "upper": 0 }
+        ],
+        "analyses": ["worstCase"]
+    });
+    let out = api::stage_tolerance(js_of(&o)).unwrap();
+    js_corners_match(
+        &out,
+        "transcond",
+        &[("gainDb", 1e-9), ("gainErrorPercent", 1e-9)],
+    );
+    let mut both = o.clone();
+    both["output"] = json!("o");
+    assert_thrown(
+        api::stage_tolerance(js_of(&both)),
+        "out_of_domain",
+        "outputElement",
+    );
+    let mut unknown = o;
+    unknown["outputElement"] = json!("Rx");
+    assert_thrown(
+        api::stage_tolerance(js_of(&unknown)),
+        "out_of_domain",
+        "outputElement",
+    );
+}
+
+#[wasm_bindgen_test]
+fn amplifier_spreads_by_name_name_the_callers_path() {
+    let u2 = |gbw: Value| {
+        json!({ "amplifierSpread": {
+            "U1": { "gbwHz": { "min": 7e6, "typ": 1e7, "max": 1.3e7 } },
+            "U2": { "gbwHz": gbw }
+        } })
+    };
+    assert_thrown(
+        api::stage_tolerance(twoamp(u2(json!({ "min": 6e6, "typ": 5e6, "max": 6.5e6 })))),
+        "out_of_domain",
+        "amplifierSpread.U2.gbwHz.min",
+    );
+    assert_thrown(
+        api::stage_tolerance(twoamp(u2(
+            json!({ "min": 3.5e6, "typ": 4e6, "max": 6.5e6 }),
+        ))),
+        "out_of_domain",
+        "amplifierSpread.U2.gbwHz.typ",
+    );
+    assert_thrown(
+        api::stage_tolerance(twoamp(u2(
+            json!({ "min": 3.5e6, "typ": 5e6, "max": "6.5M" }),
+        ))),
+        "wrong_type",
+        "amplifierSpread.U2.gbwHz.max",
+    );
+    assert_thrown(
+        api::stage_tolerance(twoamp(json!({ "amplifierSpread": {
+            "Rf1": { "gbwHz": { "min": 7e6, "typ": 1e7, "max": 1.3e7 } }
+        } }))),
+        "out_of_domain",
+        "amplifierSpread.Rf1",
+    );
+    // The one-amplifier form on a circuit of two, no `controlled`: refused.
+    assert_thrown(
+        api::stage_tolerance(twoamp(json!({ "amplifierSpread": {
+            "gbwHz": { "min": 7e6, "typ": 1e7, "max": 1.3e7 }
+        } }))),
+        "out_of_domain",
+        "amplifierSpread",
+    );
+    // The one-amplifier form keeps its path, down to the field.
+    assert_thrown(
+        api::stage_tolerance(rcloop(json!({ "amplifierSpread": {
+            "gbwHz": { "min": 7e6, "typ": 1e7, "max": 6e6 }
+        } }))),
+        "out_of_domain",
+        "amplifierSpread.gbwHz.max",
+    );
+}
+
+#[wasm_bindgen_test]
+fn a_stage_takes_its_amplifier_by_name_too() {
+    // {U1: {gbwHz}} on a stage is {gbwHz}: the same Monte Carlo bits.
+    let spread = json!({ "min": 7e6, "typ": 1e7, "max": 1.3e7 });
+    let one = api::stage_tolerance(gain48(json!({
+        "amplifierSpread": { "gbwHz": spread }, "analyses": ["monteCarlo"]
+    })))
+    .unwrap();
+    let named = api::stage_tolerance(gain48(json!({
+        "amplifierSpread": { "U1": { "gbwHz": spread } }, "analyses": ["monteCarlo"]
+    })))
+    .unwrap();
+    let y = |r: &JsValue| num(&field(r, "monteCarlo"), "yieldFraction").to_bits();
+    assert_eq!(y(&one), y(&named));
+    let parts = js_sys::Array::from(&field(&named, "parts"));
+    assert!(parts.iter().any(|p| text(&p, "name") == "U1.gbwHz"));
+    assert_thrown(
+        api::stage_tolerance(gain48(json!({
+            "amplifierSpread": { "U1": { "gbwHz": { "min": 7e6, "typ": 1e7, "max": 6e6 } } }
+        }))),
+        "out_of_domain",
+        "amplifierSpread.U1.gbwHz.max",
+    );
+    assert_thrown(
+        api::stage_tolerance(gain48(
+            json!({ "amplifierSpread": { "U2": { "gbwHz": spread } } }),
+        )),
+        "unknown_name",
+        "amplifierSpread.U2",
+    );
+}

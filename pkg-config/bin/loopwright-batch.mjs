@@ -25,7 +25,11 @@ Reads a CSV (RFC 4180) with a header row; each row is one design. Columns it kno
   design       target_pm_deg (with a stage holding rf for Cf, cl for Riso)
   tolerance    rf_tol, rg_tol, cf_tol, rs_tol, cs_tol, rl_tol, cl_tol, riso_tol (% uniform),
                gain_at_hz with gain_min_db and/or gain_max_db, pm_min_deg (with a stage);
-               tol_trials (1000 empty), tol_seed (1 empty)
+               tol_trials (1000 empty), tol_seed (1 empty); or in place of a stage:
+               circuit (a circuit document, JSON, its elements' own tolerance), input,
+               output (or output_element: an element's current), output_minus,
+               controlled, amplifier_spread (JSON: {"gbwHz":{"min","typ","max"}} or
+               by amplifier, {"U1":{"gbwHz":...},"U2":{...}})
 Steps and what they write:
   stage       closed_loop_gain, loop_gain, feedback_amount, feedback_amount_db, sensitivity
   impedance   input_impedance, output_impedance

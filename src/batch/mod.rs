@@ -273,12 +273,18 @@ impl BatchRun {
                     ),
                 });
             }
-            if step.needs_stage() && !has(&Column::Stage) && !has(&Column::StageField("kind")) {
+            let circuit = *step == Step::Tolerance && has(&Column::Circuit);
+            if step.needs_stage()
+                && !has(&Column::Stage)
+                && !has(&Column::StageField("kind"))
+                && !circuit
+            {
                 return Err(FileError {
                     param: "compute",
                     message: format!(
-                        "the step {} needs a stage column (a stage document) or a kind column with the amplifier figures and parts",
-                        step.name()
+                        "the step {} needs a stage column (a stage document) or a kind column with the amplifier figures and parts{}",
+                        step.name(),
+                        if *step == Step::Tolerance { ", or a circuit column (a circuit document)" } else { "" }
                     ),
                 });
             }

@@ -16,10 +16,12 @@
 //! | `eseries` | `series`, `resistor` | nearest standard value and its error |
 //! | `pair` | `network`, `series`, `pair_target`, `total_min`, `total_max` | best resistor pair |
 //! | `design` | a stage with `rf` or `cl`, `target_pm_deg` | Cf and Riso for the phase margin, whether each is at its range's end |
-//! | `tolerance` | a stage, part tolerances `rf_tol` … (%, uniform), limits `gain_min_db`/`gain_max_db` at `gain_at_hz` and/or `pm_min_deg` (`tol_trials`, `tol_seed`) | worst-case min and max of each limited figure, Monte Carlo yield overall and per limit |
+//! | `tolerance` | a stage with part tolerances `rf_tol` … (%, uniform), or a `circuit` with `input`, `output` or `output_element` (`output_minus`, `controlled`, `amplifier_spread`); limits `gain_min_db`/`gain_max_db` at `gain_at_hz` and/or `pm_min_deg` (`tol_trials`, `tol_seed`) | worst-case min and max of each limited figure, Monte Carlo yield overall and per limit |
 //!
 //! A stage is a `stage` column holding a stage document (`docs/stage.md`), or a
-//! `kind` column with the amplifier figures and parts as columns.
+//! `kind` column with the amplifier figures and parts as columns; `tolerance`
+//! also takes a `circuit` column holding a circuit document (`docs/circuit.md`)
+//! whose elements carry their own tolerances.
 
 use crate::check;
 use crate::error::{Error, Result};
@@ -103,6 +105,25 @@ pub enum Column {
     PartTol(&'static str),
     /// A stage document (JSON text, `docs/stage.md`).
     Stage,
+    /// A circuit document (JSON text, `docs/circuit.md`, version 2) for
+    /// `tolerance`, its elements carrying their own tolerance and tempco.
+    Circuit,
+    /// The circuit's independent source the gain is per unit of.
+    Input,
+    /// The circuit's output node.
+    Output,
+    /// The node the circuit's output is read against (ground when empty).
+    OutputMinus,
+    /// The circuit element whose current is the output, in place of `output`.
+    OutputElement,
+    /// The circuit's amplifier whose loop gives the phase margin (its only
+    /// amplifier when empty).
+    Controlled,
+    /// Amplifier spreads of a circuit as JSON text, as `stageTolerance`'s
+    /// `amplifierSpread`: `{"gbwHz": {"min": …, "typ": …, "max": …}, "ro": …}`
+    /// for the controlled (or only) amplifier, or by element name
+    /// `{"U1": {"gbwHz": …}, "U2": {…}}`.
+    AmplifierSpread,
     /// A field of a stage described in columns (`kind`, `a0`, `gbw_hz`, `rf`, …;
     /// [`crate::stage::document_pairs`]): the document field it stands for.
     StageField(&'static str),
@@ -145,11 +166,27 @@ const VALUE_COLUMNS: [Column; 28] = [
 const TOL_PARTS: [&str; 8] = ["rf", "rg", "cf", "rs", "cs", "rl", "cl", "riso"];
 
 /// The columns that hold names or documents rather than one value.
-const TEXT_COLUMNS: [Column; 4] = [
+const TEXT_COLUMNS: [Column; 11] = [
     Column::Topology,
     Column::Network,
     Column::Series,
     Column::Stage,
+    Column::Circuit,
+    Column::Input,
+    Column::Output,
+    Column::OutputMinus,
+    Column::OutputElement,
+    Column::Controlled,
+    Column::AmplifierSpread,
+];
+
+/// The circuit-port columns, in the order of [`Values`]' `ports`.
+const PORT_COLUMNS: [Column; 5] = [
+    Column::Input,
+    Column::Output,
+    Column::OutputMinus,
+    Column::OutputElement,
+    Column::Controlled,
 ];
 
 impl Column {
@@ -198,6 +235,13 @@ impl Column {
                 _ => "riso_tol",
             },
             Column::Stage => "stage",
+            Column::Circuit => "circuit",
+            Column::Input => "input",
+            Column::Output => "output",
+            Column::OutputMinus => "output_minus",
+            Column::OutputElement => "output_element",
+            Column::Controlled => "controlled",
+            Column::AmplifierSpread => "amplifier_spread",
             Column::StageField(f) => f,
         }
     }
@@ -237,6 +281,12 @@ pub struct Values {
     stage_fields: Vec<(&'static str, String)>,
     /// The part tolerances of the row, %.
     part_tols: Vec<(&'static str, f64)>,
+    /// The circuit document of the row, as written.
+    circuit: Option<String>,
+    /// The circuit's ports ([`PORT_COLUMNS`] order), as written.
+    ports: [Option<String>; 5],
+    /// The circuit's amplifier spreads (JSON text), as written.
+    amplifier_spread: Option<String>,
 }
 
 impl Values {
@@ -256,6 +306,12 @@ impl Values {
             |t: &str| crate::notation::parse_value(t).map_err(|e| e.with_param(column.name()));
         match column {
             Column::Stage => self.stage = Some(text.into()),
+            Column::Circuit => self.circuit = Some(text.into()),
+            Column::AmplifierSpread => self.amplifier_spread = Some(text.into()),
+            c if PORT_COLUMNS.contains(&c) => {
+                let k = PORT_COLUMNS.iter().position(|&p| p == c).unwrap_or(0);
+                self.ports[k] = Some(text.into());
+            }
             Column::StageField(f) => self.stage_fields.push((f, text.into())),
             Column::PartTol(p) => self.part_tols.push((p, value(text)?)),
             Column::Topology => self.topology = Some(text.parse()?),
@@ -443,7 +499,9 @@ impl Step {
     /// Whether a header with these columns gives the step its inputs.
     pub fn has_inputs(self, columns: &[Option<Column>]) -> bool {
         let has = |c: Column| columns.contains(&Some(c));
-        let stage = has(Column::Stage) || has(Column::StageField("kind"));
+        let stage = has(Column::Stage)
+            || has(Column::StageField("kind"))
+            || (self == Step::Tolerance && has(Column::Circuit));
         let spec = has(Column::GainMinDb) || has(Column::GainMaxDb) || has(Column::PmMin);
         (stage || !self.needs_stage())
             && self.needs().iter().all(|c| has(*c))
@@ -831,10 +889,20 @@ pub const DEFAULT_TOL_TRIALS: usize = 1000;
 /// when empty; `tol_seed`, 1 when empty) overall and per limit: the numbers
 /// `stageTolerance` gives for the same stage, spreads, spec, seed and trials.
 fn stage_tolerance(v: &Values) -> Result<Vec<Option<Cell>>> {
-    use crate::tolerance::{
-        monte_carlo, worst_case, AmplifierSpread, Figure, Limit, MonteCarloOptions, PartSpread,
-        TolStage, DEFAULT_MAX_CORNERS,
-    };
+    use crate::tolerance::{AmplifierSpread, PartSpread, TolStage};
+    if v.circuit.is_some() {
+        return tolerance_of(circuit_subject(v)?, v);
+    }
+    if v.amplifier_spread.is_some() || v.ports.iter().any(Option::is_some) {
+        let column = match v.ports.iter().position(Option::is_some) {
+            Some(k) => PORT_COLUMNS[k].name(),
+            None => "amplifier_spread",
+        };
+        return Err(Error::OutOfDomain {
+            param: column,
+            requirement: "belongs to a circuit column; a stage's amplifier is U1",
+        });
+    }
     let stage = stage_of(v)?;
     let spreads: Vec<PartSpread> = v
         .part_tols
@@ -855,6 +923,155 @@ fn stage_tolerance(v: &Values) -> Result<Vec<Option<Cell>>> {
     };
     let ts = TolStage::new(&stage, &spreads, AmplifierSpread::default(), [25.0, 25.0])
         .map_err(column_of)?;
+    tolerance_of(ts, v)
+}
+
+/// The circuit document of a `tolerance` row with its ports and amplifier
+/// spreads ([`crate::tolerance::TolStage::from_circuit`], at 25 °C); errors
+/// named after the row's columns.
+fn circuit_subject(v: &Values) -> Result<crate::tolerance::TolStage> {
+    use crate::tolerance::{CircuitPorts, TolStage};
+    if let Some((p, _)) = v.part_tols.first() {
+        return Err(Error::OutOfDomain {
+            param: Column::PartTol(p).name(),
+            requirement: "belongs to a stage; a circuit's elements carry their own tolerance",
+        });
+    }
+    if v.stage.is_some() || !v.stage_fields.is_empty() {
+        return Err(Error::OutOfDomain {
+            param: "circuit",
+            requirement: "give a stage or a circuit in one row, not both",
+        });
+    }
+    let text = v.circuit.as_deref().unwrap_or_default();
+    let c = crate::circuit::json::read_circuit(text).map_err(|e| e.error.with_param("circuit"))?;
+    let port = |k: usize| v.ports[k].clone();
+    let output_element = port(3);
+    let output = match (port(1), &output_element) {
+        (Some(_), Some(_)) => {
+            return Err(Error::OutOfDomain {
+                param: "output_element",
+                requirement: "give output (and output_minus) or output_element, not both",
+            })
+        }
+        (Some(o), None) => o,
+        (None, Some(_)) => String::new(),
+        (None, None) => return Err(empty(Column::Output)),
+    };
+    let ports = CircuitPorts {
+        input: port(0).ok_or_else(|| empty(Column::Input))?,
+        output,
+        output_minus: port(2),
+        output_element,
+        controlled: port(4),
+    };
+    let target = ports
+        .controlled
+        .clone()
+        .or_else(|| crate::tolerance::parts::only_amplifier(&c));
+    let amplifiers = match &v.amplifier_spread {
+        Some(t) => amplifier_spreads(t, target)?,
+        None => Vec::new(),
+    };
+    TolStage::from_circuit(&c, ports, &amplifiers, [25.0, 25.0]).map_err(|e| {
+        let column = match e.error.param() {
+            "tolerance" | "tempco" => "circuit",
+            "outputMinus" => "output_minus",
+            "outputElement" => "output_element",
+            "amplifierSpread" | "gbwHz" | "ro" => "amplifier_spread",
+            "temperature" => "circuit",
+            p @ ("input" | "output" | "controlled") => Column::from_header(p)
+                .map(Column::name)
+                .unwrap_or("circuit"),
+            _ => "circuit",
+        };
+        e.error.with_param(column)
+    })
+}
+
+/// The `amplifier_spread` column (JSON text, as `stageTolerance`'s
+/// `amplifierSpread`): `{gbwHz, ro}` for `target` (the controlled or only
+/// amplifier), or one such by amplifier element name.
+fn amplifier_spreads(
+    text: &str,
+    target: Option<String>,
+) -> Result<Vec<(String, crate::tolerance::AmplifierSpread)>> {
+    use crate::json::Json;
+    use crate::stage::Spread;
+    use crate::tolerance::AmplifierSpread;
+    const COLUMN: &str = "amplifier_spread";
+    let wrong = |expected: &'static str| Error::WrongType {
+        param: COLUMN,
+        expected,
+    };
+    let tree = crate::json::parse(text).map_err(|_| wrong("JSON text of an object"))?;
+    let members = tree.as_object().ok_or(wrong("JSON text of an object"))?;
+    let one = |m: &[(String, Json)]| -> Result<AmplifierSpread> {
+        let mut out = AmplifierSpread::default();
+        for (key, value) in m {
+            let o = value
+                .as_object()
+                .ok_or(wrong("{min, typ, max} for gbwHz and ro"))?;
+            let get = |name: &str| {
+                o.iter()
+                    .find(|(k, _)| k == name)
+                    .and_then(|(_, x)| x.as_f64())
+                    .ok_or(wrong("{min, typ, max} numbers for gbwHz and ro"))
+            };
+            let s = Spread {
+                min: get("min")?,
+                typ: get("typ")?,
+                max: get("max")?,
+            };
+            match key.as_str() {
+                "gbwHz" => out.gbw_hz = Some(s),
+                "ro" => out.ro = Some(s),
+                _ => {
+                    return Err(Error::UnknownName {
+                        param: COLUMN,
+                        expected: "gbwHz, ro",
+                    })
+                }
+            }
+        }
+        Ok(out)
+    };
+    if members.iter().any(|(k, _)| k == "gbwHz" || k == "ro") {
+        let Some(name) = target else {
+            return Err(Error::OutOfDomain {
+                param: COLUMN,
+                requirement: "applies to the controlled amplifier: name it in controlled, or give the spreads by amplifier",
+            });
+        };
+        return Ok(alloc::vec![(name, one(members)?)]);
+    }
+    members
+        .iter()
+        .map(|(name, value)| {
+            let m = value
+                .as_object()
+                .ok_or(wrong("an object of {gbwHz, ro} by amplifier name"))?;
+            Ok((name.clone(), one(m)?))
+        })
+        .collect()
+}
+
+/// The worst case and Monte Carlo of a `tolerance` row's subject against
+/// the row's spec columns.
+fn tolerance_of(ts: crate::tolerance::TolStage, v: &Values) -> Result<Vec<Option<Cell>>> {
+    use crate::tolerance::{
+        monte_carlo, worst_case, Figure, Limit, MonteCarloOptions, DEFAULT_MAX_CORNERS,
+    };
+    let column_of = |e: crate::circuit::CircuitError| -> Error {
+        let element = e.name.as_str();
+        match TOL_PARTS.iter().find(|p| p.eq_ignore_ascii_case(element)) {
+            Some(p) if ts.stage().is_some() => e.error.with_param(Column::PartTol(p).name()),
+            _ => match e.error.param() {
+                "controlled" => e.error.with_param("controlled"),
+                _ => e.error,
+            },
+        }
+    };
     let mut spec = Vec::new();
     let (lo, hi) = (v.get(Column::GainMinDb), v.get(Column::GainMaxDb));
     let gain = if lo.is_some() || hi.is_some() {

@@ -112,10 +112,15 @@ pub(crate) enum Slot {
 pub struct CircuitPorts {
     /// The independent source carrying the signal (the gain is per unit of it).
     pub input: String,
-    /// The output node.
+    /// The output node (empty when the output is `output_element`'s current).
     pub output: String,
     /// The node the output is read against (`None`: ground, `0`).
     pub output_minus: Option<String>,
+    /// The element whose current is the output, in place of a node voltage
+    /// (`None`: the voltage at `output`), as `circuitGain`'s `outputElement`:
+    /// the gain is then that current per unit of the input (A/V from a
+    /// voltage source, A/A from a current source).
+    pub output_element: Option<String>,
     /// The amplifier (or controlled source) whose loop the margins are read
     /// at (`None`: the circuit's only amplifier element, if it has one).
     pub controlled: Option<String>,
@@ -149,7 +154,7 @@ pub enum Subject {
     Stage(alloc::boxed::Box<Stage>),
     /// A circuit: any element may carry a tolerance and a tempco, any
     /// amplifier element a min/typ/max A0.
-    Circuit(CircuitSubject),
+    Circuit(alloc::boxed::Box<CircuitSubject>),
 }
 
 /// A stage or circuit with the spreads of its parts and a temperature range.
@@ -360,7 +365,8 @@ impl TolStage {
     ///
     /// # Errors
     /// Param `input`: not an independent source of the circuit; `output`,
-    /// `outputMinus`: not a node of it; `controlled`: not an amplifier or
+    /// `outputMinus`: not a node of it; `outputElement`: not an element of
+    /// it, or given with `output` or `outputMinus`; `controlled`: not an amplifier or
     /// controlled source of it; `amplifierSpread` (naming the element): a
     /// spread for an element that is not an amplifier, or given twice; as
     /// [`TolStage::new`] for the tolerances, tempcos, amplifier spreads and
@@ -382,7 +388,22 @@ impl TolStage {
                 ))
             }
         }
-        if circuit.node_index(&ports.output).is_err() {
+        if let Some(element) = &ports.output_element {
+            if !ports.output.is_empty() || ports.output_minus.is_some() {
+                return Err(port_error(
+                    "outputElement",
+                    "give output (and outputMinus) or outputElement, not both",
+                    element,
+                ));
+            }
+            if circuit.element(element).is_err() {
+                return Err(port_error(
+                    "outputElement",
+                    "must name an element of the circuit",
+                    element,
+                ));
+            }
+        } else if circuit.node_index(&ports.output).is_err() {
             return Err(port_error(
                 "output",
                 "must name a node of the circuit",
@@ -484,12 +505,12 @@ impl TolStage {
             }
         }
         Ok(TolStage {
-            subject: Subject::Circuit(CircuitSubject {
+            subject: Subject::Circuit(alloc::boxed::Box::new(CircuitSubject {
                 circuit: circuit.clone(),
                 ports,
                 controlled,
                 amplifiers: amps,
-            }),
+            })),
             varied,
             temperature_c,
             gbw_typ: 0.0,
@@ -504,10 +525,13 @@ impl TolStage {
             (Built::Circuit(c), Subject::Circuit(cs)) => Probe {
                 circuit: c,
                 source: &cs.ports.input,
-                output: Output::Voltage(
-                    &cs.ports.output,
-                    cs.ports.output_minus.as_deref().unwrap_or("0"),
-                ),
+                output: match &cs.ports.output_element {
+                    Some(e) => Output::Current(e),
+                    None => Output::Voltage(
+                        &cs.ports.output,
+                        cs.ports.output_minus.as_deref().unwrap_or("0"),
+                    ),
+                },
                 amplifier: cs.controlled.as_deref(),
                 top_hz: circuit_grid_top(c),
                 stage: None,

@@ -39,6 +39,8 @@ export type PartTolerance =
 export interface PartSpreadOptions { part: string; tolerance?: PartTolerance; tempcoPpm?: number; }
 /** A datasheet figure as min/typ/max. */
 export interface MinTypMax { min: number; typ: number; max: number; }
+/** One amplifier's spreads beyond A0: min/typ/max with typ the model's own figure. */
+export interface AmplifierSpreadOptions { gbwHz?: MinTypMax; ro?: MinTypMax; }
 /**
  * One limit of a spec (docs/tolerance.md): the figure, its settings, and the
  * limits (either may be left out). `freqHz` for gainDb, phaseDeg, gainErrorPercent,
@@ -62,16 +64,22 @@ export interface StageToleranceOptions {
   circuit?: object | string;
   /** Circuit only: the independent source the gain is per unit of (required). */
   input?: string;
-  /** Circuit only: the output node (required). */
+  /** Circuit only: the output node (required unless `outputElement` is given). */
   output?: string;
   /** Circuit only: the node the output is read against (default ground "0"). */
   outputMinus?: string;
+  /** Circuit only: the element whose current is the output, in place of `output` (the gain in A/V or A/A). */
+  outputElement?: string;
   /** Circuit only: the amplifier whose loop gives the margins (default: the only amplifier element). */
   controlled?: string;
   /** Stage only: part spreads; parts left out are exact. */
   parts?: PartSpreadOptions[];
-  /** The amplifier's GBW and output resistance spreads (A0's is in the model); for a circuit, of the `controlled` amplifier. */
-  amplifierSpread?: { gbwHz?: MinTypMax; ro?: MinTypMax };
+  /**
+   * The amplifier's GBW and output resistance spreads (A0's is in the model):
+   * `{gbwHz, ro}` for a stage's amplifier or a circuit's `controlled` (or only)
+   * amplifier, or by amplifier element name, `{U1: {gbwHz}, U2: {gbwHz, ro}}`.
+   */
+  amplifierSpread?: AmplifierSpreadOptions | { [amplifier: string]: AmplifierSpreadOptions };
   /** Temperature range, °C (default [25, 25]). */
   temperatureC?: [number, number];
   spec: ToleranceLimit[];
@@ -142,9 +150,10 @@ struct TolOptions {
     input: Option<String>,
     output: Option<String>,
     output_minus: Option<String>,
+    output_element: Option<String>,
     controlled: Option<String>,
     parts: Vec<PartOptions>,
-    amplifier_spread: Option<AmpSpreadOptions>,
+    amplifier_spread: Option<AmpSpreadForm>,
     temperature_c: Option<Vec<f64>>,
     spec: Vec<LimitOptions>,
     analyses: Option<Vec<String>>,
@@ -162,6 +171,7 @@ impl FromOptions for TolOptions {
         "input",
         "output",
         "outputMinus",
+        "outputElement",
         "controlled",
         "parts",
         "amplifierSpread",
@@ -184,9 +194,10 @@ impl FromOptions for TolOptions {
             input: f.opt_text("input"),
             output: f.opt_text("output"),
             output_minus: f.opt_text("outputMinus"),
+            output_element: f.opt_text("outputElement"),
             controlled: f.opt_text("controlled"),
             parts: f.objects("parts"),
-            amplifier_spread: optional(f, "amplifierSpread"),
+            amplifier_spread: amplifier_spread_form(f),
             temperature_c: f.opt_nums("temperatureC"),
             spec: f.objects("spec"),
             analyses: texts(f, "analyses"),
@@ -285,6 +296,42 @@ impl FromOptions for AmpSpreadOptions {
             ro: optional(f, "ro"),
         }
     }
+}
+
+/// `amplifierSpread` as given: one amplifier's `{gbwHz, ro}`, or by
+/// amplifier element name `{U1: {gbwHz, ro}, U2: {…}}` (in the caller's order).
+enum AmpSpreadForm {
+    One(AmpSpreadOptions),
+    Each(Vec<(String, AmpSpreadOptions)>),
+}
+
+/// Read `amplifierSpread`: an object with `gbwHz` or `ro` (or none at all) is
+/// one amplifier's spreads; any other object holds one such per amplifier,
+/// each read at `amplifierSpread.<name>`.
+fn amplifier_spread_form(f: &mut Fields) -> Option<AmpSpreadForm> {
+    let (at, v) = f.raw("amplifierSpread")?;
+    let path = f.key_path("amplifierSpread");
+    let per_amplifier = match &v {
+        Plain::Map(entries) => {
+            !entries.is_empty()
+                && !entries
+                    .iter()
+                    .any(|(k, _)| AmpSpreadOptions::FIELDS.contains(&k.as_str()))
+        }
+        _ => false,
+    };
+    if !per_amplifier {
+        return f.nested(at, path, v).map(AmpSpreadForm::One);
+    }
+    let Plain::Map(entries) = v else {
+        return None;
+    };
+    let mut out = Vec::with_capacity(entries.len());
+    for (name, item) in entries {
+        let item_path = alloc::format!("{path}.{name}");
+        out.push((name, f.nested(at, item_path, item)?));
+    }
+    Some(AmpSpreadForm::Each(out))
 }
 
 #[derive(Default)]
@@ -432,7 +479,7 @@ struct ToleranceOut {
 }
 
 /// A core error of the analyses under the caller's names.
-fn analysis(e: CircuitError, parts: &[PartOptions]) -> JsValue {
+fn analysis(e: CircuitError, parts: &[PartOptions], amp: Option<&AmpSpreadForm>) -> JsValue {
     let subject = e.name.as_str();
     let param = match e.error.param() {
         "tolerance" | "tempco" | "part" => {
@@ -447,8 +494,7 @@ fn analysis(e: CircuitError, parts: &[PartOptions]) -> JsValue {
             }
         }
         "temperature" => String::from("temperatureC"),
-        "gbwHz" => String::from("amplifierSpread.gbwHz"),
-        "ro" => String::from("amplifierSpread.ro"),
+        p @ ("gbwHz" | "ro") => amplifier_path(amp, subject, p),
         "maxCorners" | "trials" | "bins" | "keepFailures" => String::from(e.error.param()),
         p => alloc::format!("stage.{p}"),
     };
@@ -458,7 +504,11 @@ fn analysis(e: CircuitError, parts: &[PartOptions]) -> JsValue {
 /// A core error of the analyses of a circuit document under the caller's
 /// names: an element's spread as `circuit.elements[i].tolerance` (or
 /// `.tempco`), the ports and settings as given.
-fn circuit_analysis(e: CircuitError, c: &crate::circuit::Circuit) -> JsValue {
+fn circuit_analysis(
+    e: CircuitError,
+    c: &crate::circuit::Circuit,
+    amp: Option<&AmpSpreadForm>,
+) -> JsValue {
     let subject = e.name.as_str();
     let param = match e.error.param() {
         p @ ("tolerance" | "tempco") => match c.element_index(subject) {
@@ -466,13 +516,57 @@ fn circuit_analysis(e: CircuitError, c: &crate::circuit::Circuit) -> JsValue {
             Err(_) => String::from("circuit"),
         },
         "temperature" => String::from("temperatureC"),
-        "gbwHz" => String::from("amplifierSpread.gbwHz"),
-        "ro" => String::from("amplifierSpread.ro"),
-        p @ ("input" | "output" | "outputMinus" | "controlled" | "amplifierSpread"
-        | "maxCorners" | "trials" | "bins" | "keepFailures") => String::from(p),
+        p @ ("gbwHz" | "ro") => amplifier_path(amp, subject, p),
+        "amplifierSpread" => match amp {
+            Some(AmpSpreadForm::Each(_)) => alloc::format!("amplifierSpread.{subject}"),
+            _ => String::from("amplifierSpread"),
+        },
+        p @ ("input" | "output" | "outputMinus" | "outputElement" | "controlled" | "maxCorners"
+        | "trials" | "bins" | "keepFailures") => String::from(p),
         p => alloc::format!("circuit.{p}"),
     };
     thrown(&param, e.error, subject, None)
+}
+
+/// The caller's path of an amplifier spread the core refused (param `p`,
+/// `gbwHz` or `ro`, of the amplifier `subject`): `amplifierSpread.gbwHz.min`
+/// (one amplifier's form) or `amplifierSpread.U2.gbwHz.min` (by name), the
+/// last key the first of min, typ, max at fault: not a positive number, then
+/// min above typ, typ above max, else typ (not the model's own figure).
+fn amplifier_path(amp: Option<&AmpSpreadForm>, subject: &str, p: &str) -> String {
+    // A stage's amplifier spreads are refused unnamed: its one amplifier, U1.
+    let subject = if subject.is_empty() { "U1" } else { subject };
+    let (base, given) = match amp {
+        Some(AmpSpreadForm::Each(list)) => (
+            alloc::format!("amplifierSpread.{subject}.{p}"),
+            list.iter().find(|(n, _)| n == subject).map(|(_, a)| a),
+        ),
+        Some(AmpSpreadForm::One(a)) => (alloc::format!("amplifierSpread.{p}"), Some(a)),
+        None => (alloc::format!("amplifierSpread.{p}"), None),
+    };
+    let spread = given.and_then(|a| {
+        if p == "ro" {
+            a.ro.as_ref()
+        } else {
+            a.gbw_hz.as_ref()
+        }
+    });
+    let Some(s) = spread else { return base };
+    let bad = |x: f64| !(x.is_finite() && x > 0.0);
+    let field = if bad(s.min) {
+        "min"
+    } else if bad(s.typ) {
+        "typ"
+    } else if bad(s.max) {
+        "max"
+    } else if s.min > s.typ {
+        "min"
+    } else if s.typ > s.max {
+        "max"
+    } else {
+        "typ"
+    };
+    alloc::format!("{base}.{field}")
 }
 
 /// The circuit document in `circuit` (an object or its JSON text), its
@@ -534,8 +628,6 @@ fn circuit_document(doc: Json) -> Result<crate::circuit::Circuit, JsValue> {
 fn circuit_subject(
     o: &TolOptions,
     doc: Json,
-    amp: AmplifierSpread,
-    given_spread: bool,
     temperature_c: [f64; 2],
 ) -> Result<(TolStage, crate::circuit::Circuit), JsValue> {
     if !o.parts.is_empty() {
@@ -551,29 +643,45 @@ fn circuit_subject(
         v.clone()
             .ok_or_else(|| thrown(field, Error::Missing { param: "" }, "", None))
     };
+    let output = match (&o.output, &o.output_element) {
+        (Some(_), Some(_)) => {
+            let e = Error::OutOfDomain {
+                param: "",
+                requirement: "give output (and outputMinus) or outputElement, not both",
+            };
+            return Err(thrown("outputElement", e, "", None));
+        }
+        (None, Some(_)) => String::new(),
+        (output, None) => need(output, "output")?,
+    };
     let ports = CircuitPorts {
         input: need(&o.input, "input")?,
-        output: need(&o.output, "output")?,
+        output,
         output_minus: o.output_minus.clone(),
+        output_element: o.output_element.clone(),
         controlled: o.controlled.clone(),
     };
     let target = ports
         .controlled
         .clone()
         .or_else(|| crate::tolerance::parts::only_amplifier(&c));
-    let amplifiers = match (given_spread, target) {
-        (false, _) => Vec::new(),
-        (true, Some(name)) => alloc::vec![(name, amp)],
-        (true, None) => {
+    let amplifiers = match (&o.amplifier_spread, target) {
+        (None, _) => Vec::new(),
+        (Some(AmpSpreadForm::Each(list)), _) => list
+            .iter()
+            .map(|(name, a)| (name.clone(), spreads_of(a)))
+            .collect(),
+        (Some(AmpSpreadForm::One(a)), Some(name)) => alloc::vec![(name, spreads_of(a))],
+        (Some(AmpSpreadForm::One(_)), None) => {
             let e = Error::OutOfDomain {
                 param: "",
-                requirement: "applies to the controlled amplifier: name it in controlled",
+                requirement: "applies to the controlled amplifier: name it in controlled, or give the spreads by amplifier ({U1: {gbwHz}, U2: {…}})",
             };
             return Err(thrown("amplifierSpread", e, "", None));
         }
     };
     let ts = TolStage::from_circuit(&c, ports, &amplifiers, temperature_c)
-        .map_err(|e| circuit_analysis(e, &c))?;
+        .map_err(|e| circuit_analysis(e, &c, o.amplifier_spread.as_ref()))?;
     Ok((ts, c))
 }
 
@@ -625,25 +733,28 @@ pub fn stage_tolerance(
             tempco_ppm: p.tempco_ppm,
         });
     }
-    let amp = amplifier_spread(&o);
+    let amp = stage_amplifier_spread(&o)?;
     let temperature_c = temperatures(&o)?;
     let spec = spec_of(&o)?;
-    let ts =
-        TolStage::new(&stage, &spreads, amp, temperature_c).map_err(|e| analysis(e, &o.parts))?;
-    run(&o, &ts, &spec, |e| analysis(e, &o.parts))
+    let given = o.amplifier_spread.as_ref();
+    let ts = TolStage::new(&stage, &spreads, amp, temperature_c)
+        .map_err(|e| analysis(e, &o.parts, given))?;
+    run(&o, &ts, &spec, |e| analysis(e, &o.parts, given))
 }
 
 /// The circuit-document form of [`stage_tolerance`].
 fn circuit_tolerance(mut o: TolOptions) -> Result<JsValue, JsValue> {
     let doc = o.circuit.take().unwrap_or(Json::Null);
-    let amp = amplifier_spread(&o);
     let temperature_c = temperatures(&o)?;
     let spec = spec_of(&o)?;
-    let (ts, c) = circuit_subject(&o, doc, amp, o.amplifier_spread.is_some(), temperature_c)?;
-    run(&o, &ts, &spec, |e| circuit_analysis(e, &c))
+    let (ts, c) = circuit_subject(&o, doc, temperature_c)?;
+    run(&o, &ts, &spec, |e| {
+        circuit_analysis(e, &c, o.amplifier_spread.as_ref())
+    })
 }
 
-fn amplifier_spread(o: &TolOptions) -> AmplifierSpread {
+/// One amplifier's spreads as the core takes them.
+fn spreads_of(a: &AmpSpreadOptions) -> AmplifierSpread {
     let spread = |m: &Option<MinTypMaxOptions>| {
         m.as_ref().map(|m| Spread {
             min: m.min,
@@ -651,13 +762,38 @@ fn amplifier_spread(o: &TolOptions) -> AmplifierSpread {
             max: m.max,
         })
     };
-    o.amplifier_spread
-        .as_ref()
-        .map(|a| AmplifierSpread {
-            gbw_hz: spread(&a.gbw_hz),
-            ro: spread(&a.ro),
-        })
-        .unwrap_or_default()
+    AmplifierSpread {
+        gbw_hz: spread(&a.gbw_hz),
+        ro: spread(&a.ro),
+    }
+}
+
+/// A stage's amplifier spreads: `{gbwHz, ro}`, or by name with the stage's
+/// one amplifier `U1` alone (`{U1: {gbwHz, ro}}`).
+fn stage_amplifier_spread(o: &TolOptions) -> Result<AmplifierSpread, JsValue> {
+    match &o.amplifier_spread {
+        None => Ok(AmplifierSpread::default()),
+        Some(AmpSpreadForm::One(a)) => Ok(spreads_of(a)),
+        Some(AmpSpreadForm::Each(list)) => {
+            let mut out = AmplifierSpread::default();
+            for (name, a) in list {
+                if name != "U1" {
+                    let e = Error::UnknownName {
+                        param: "",
+                        expected: "U1 (a stage has one amplifier), or gbwHz, ro",
+                    };
+                    return Err(thrown(
+                        &alloc::format!("amplifierSpread.{name}"),
+                        e,
+                        name,
+                        None,
+                    ));
+                }
+                out = spreads_of(a);
+            }
+            Ok(out)
+        }
+    }
 }
 
 fn temperatures(o: &TolOptions) -> Result<[f64; 2], JsValue> {

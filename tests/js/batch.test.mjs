@@ -683,3 +683,78 @@ test('tolerance rows give what stageTolerance gives for the same stage, spreads,
   assert.match(rows[2].error, /rf_tol/);
   assert.match(rows[3].error, /gain_max_db/);
 });
+
+test('circuit tolerance rows give what stageTolerance gives for the same circuit, ports and spreads', async () => {
+  const lw = await api();
+  // Two cascaded non-inverting stages (gain 10, then 5), the "twoamp" of
+  // tests/reference/tolerance_stage.py, with the GBW spreads of both amplifiers.
+  const amp = (name, out, plus, minus, a0, gbwHz) => ({
+    name,
+    kind: 'amplifier',
+    nodes: [out, '0'],
+    control: [plus, minus],
+    model: { a0, gbwHz, ro: 0 },
+  });
+  const r = (name, a, b, value) => ({
+    name,
+    kind: 'resistor',
+    nodes: [a, b],
+    value,
+    tolerance: { distribution: 'uniform', percent: 1 },
+  });
+  const circuit = {
+    format: 'loopwright-circuit',
+    version: 2,
+    elements: [
+      { name: 'Vs', kind: 'voltage-source', nodes: ['in', '0'], value: 1 },
+      amp('U1', 'o1', 'in', 'f1', { min: 5e4, typ: 2e5, max: 1e6 }, 1e7),
+      r('Rf1', 'o1', 'f1', '9k'),
+      r('Rg1', 'f1', '0', '1k'),
+      amp('U2', 'out', 'o1', 'f2', { typ: 1e5 }, 5e6),
+      r('Rf2', 'out', 'f2', '4k'),
+      r('Rg2', 'f2', '0', '1k'),
+    ],
+  };
+  const amplifierSpread = {
+    U1: { gbwHz: { min: 7e6, typ: 1e7, max: 1.3e7 } },
+    U2: { gbwHz: { min: 3.5e6, typ: 5e6, max: 6.5e6 } },
+  };
+  const header =
+    'circuit,input,output,output_element,controlled,amplifier_spread,gain_at_hz,gain_min_db,pm_min_deg,tol_trials,tol_seed';
+  const doc = field(JSON.stringify(circuit));
+  const spreads = field(JSON.stringify(amplifierSpread));
+  const text =
+    `${header}\n` +
+    `${doc},Vs,out,,U2,${spreads},200k,33.55,80,300,5\n` +
+    // Both an output node and an output element: refused naming the column.
+    `${doc},Vs,out,Rf2,U2,${spreads},200k,33.55,80,300,5\n`;
+  const rows = objectsOf(batch('tolc.csv', text, '--format', 'jsonl', '--compute', 'tolerance'));
+  assert.equal(rows.length, 2);
+  assert.equal(rows[0].error, null, rows[0].error);
+  // Reference: stageTolerance of the JS API (the core's worst case and Monte
+  // Carlo, src/tolerance) with the row's circuit, ports, spreads, spec and seed.
+  const res = lw.stageTolerance({
+    circuit,
+    input: 'Vs',
+    output: 'out',
+    controlled: 'U2',
+    amplifierSpread,
+    spec: [
+      { figure: 'gainDb', freqHz: 2e5, lower: 33.55 },
+      { figure: 'phaseMarginDeg', lower: 80 },
+    ],
+    analyses: ['worstCase', 'monteCarlo'],
+    trials: 300,
+    seed: 5,
+    keepFailures: 0,
+  });
+  const [gain, pm] = res.worstCase.figures;
+  assert.equal(rows[0].tol_gain_min_db, gain.min.value);
+  assert.equal(rows[0].tol_gain_max_db, gain.max.value);
+  assert.equal(rows[0].tol_pm_min_deg, pm.min.value);
+  assert.equal(rows[0].tol_pm_max_deg, pm.max.value);
+  assert.equal(rows[0].tol_yield, res.monteCarlo.yieldFraction);
+  assert.equal(rows[0].tol_gain_yield, res.monteCarlo.limits[0].yieldFraction);
+  assert.equal(rows[0].tol_pm_yield, res.monteCarlo.limits[1].yieldFraction);
+  assert.match(rows[1].error, /output_element/);
+});

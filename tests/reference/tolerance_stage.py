@@ -40,6 +40,33 @@ across the A0 spread):
    the values giving them, in the circuit's draw order (R3, C3, Rf, Rg,
    U1.a0, U1.gbwHz).
 
+5. "twoamp": two cascaded non-inverting stages, two amplifier elements with
+   spreads on both (a circuit document, per-amplifier spreads): the source at
+   U1's non-inverting input, U1 with Rf1 = 9k, Rg1 = 1k (gain 10) driving U2's
+   non-inverting input, U2 with Rf2 = 4k, Rg2 = 1k (gain 5); each amplifier
+   ideal apart from its single-pole A(s), so each stage's gain is
+   G_i = 1/(beta_i + 1/A_i(s)) with 1/A_i = 1/A0_i + s/(2*pi*GBW_i) and
+   H = G1*G2 (Franco, Design with Operational Amplifiers and Analog Integrated
+   Circuits, 4th ed., section 6.1, from memory). Resistors uniform +-1 %, U1's
+   A0 5e4/2e5/1e6 and GBW 7/10/13 MHz, U2's A0 1e5 exact and GBW 3.5/5/6.5 MHz
+   (split log-normal). Figures: |H| in dB at 200 kHz and the -3 dB bandwidth,
+   from |H|^-2 = prod(b_i^2 + (f/GBW_i)^2), b_i = beta_i + 1/A0_i: the
+   quadratic x^2/(g1 g2)^2 + x (b1^2/g2^2 + b2^2/g1^2) - b1^2 b2^2 = 0 in
+   x = f^2 (its positive root). numpy Monte Carlo of 20 000 trials
+   (default_rng(1820)): mean, sd, yield of the bandwidth >= 600 kHz and of
+   the gain >= 33.55 dB (the batch tool's gain limit);
+   brute-force corners (the 2^7 extremes, draw order Rf1, Rg1, Rf2, Rg2,
+   U1.a0, U1.gbwHz, U2.gbwHz).
+6. "transcond": a current output (outputElement): the voltage-to-current
+   stage with its load in the feedback path, U1's output -RL- fb -Rs- ground,
+   the source at the non-inverting input, fb at the inverting one; the output
+   is the current in RL, I/Vs = A/(RL + Rs + A*Rs) (A/V; ideally 1/Rs; Franco,
+   4th ed., section 2.6, from memory). Rs = 1k uniform +-0.1 %, RL = 2k uniform
+   +-5 %, A0 5e4/2e5/1e6, GBW 7/10/13 MHz. Figures: |I/Vs| in dB (re 1 A/V) at
+   100 kHz and the gain error against 1 mA/V at 20 kHz (limits -0.5 .. 0 %).
+   numpy Monte Carlo of 100 000 trials (default_rng(1821)): means, sds, the
+   yield; brute-force corners (2^4, draw order RL, Rs, U1.a0, U1.gbwHz).
+
 The Rust tests (tests/tolerance_stage.rs, tests/tolerance_circuit.rs) run its own seeded Monte Carlo and
 compares mean and yield within 4 standard errors of the difference of two
 independent estimates: for a mean sqrt(sd^2/N_rust + sd^2/N_numpy), for a
@@ -243,12 +270,110 @@ def rcloop():
     }
 
 
+def twoamp_gain(rf1, rg1, rf2, rg2, a01, gbw1, gbw2, f=2e5, a02=1e5):
+    s = 2j * np.pi * f
+    g1 = 1 / (rg1 / (rf1 + rg1) + 1 / a01 + s / (2 * np.pi * gbw1))
+    g2 = 1 / (rg2 / (rf2 + rg2) + 1 / a02 + s / (2 * np.pi * gbw2))
+    return g1 * g2
+
+
+def twoamp_bandwidth(rf1, rg1, rf2, rg2, a01, gbw1, gbw2, a02=1e5):
+    b1 = rg1 / (rf1 + rg1) + 1 / a01
+    b2 = rg2 / (rf2 + rg2) + 1 / a02
+    qa = 1 / (gbw1 * gbw2) ** 2
+    qb = b1**2 / gbw2**2 + b2**2 / gbw1**2
+    qc = -(b1**2) * b2**2
+    x = (-qb + np.sqrt(qb * qb - 4 * qa * qc)) / (2 * qa)
+    return np.sqrt(x)
+
+
+def twoamp():
+    nominal = (9e3, 1e3, 4e3, 1e3, 2e5, 1e7, 5e6)
+    lows = (8910.0, 990.0, 3960.0, 990.0, 5e4, 7e6, 3.5e6)
+    highs = (9090.0, 1010.0, 4040.0, 1010.0, 1e6, 1.3e7, 6.5e6)
+    n = 20_000
+    rng = np.random.default_rng(1820)
+    rs = [v * (1 + 0.01 * (2 * rng.random(n) - 1)) for v in nominal[:4]]
+    a01 = split_lognormal(rng, n, 5e4, 2e5, 1e6)
+    gbw1 = split_lognormal(rng, n, 7e6, 1e7, 1.3e7)
+    gbw2 = split_lognormal(rng, n, 3.5e6, 5e6, 6.5e6)
+    x = (*rs, a01, gbw1, gbw2)
+    db = 20 * np.log10(np.abs(twoamp_gain(*x)))
+    bw = twoamp_bandwidth(*x)
+    corners = []
+    for c in itertools.product(*zip(lows, highs)):
+        corners.append((list(c), float(20 * np.log10(abs(twoamp_gain(*c)))),
+                        float(twoamp_bandwidth(*c))))
+    ext = {}
+    for k, name in ((1, "gainDb"), (2, "bandwidthHz")):
+        lo = min(corners, key=lambda c: c[k])
+        hi = max(corners, key=lambda c: c[k])
+        ext[name] = {"min": lo[k], "minValues": lo[0], "max": hi[k], "maxValues": hi[0]}
+    return {
+        "trials": n,
+        "nominalGainDb": float(20 * np.log10(abs(twoamp_gain(*nominal)))),
+        "nominalBandwidthHz": float(twoamp_bandwidth(*nominal)),
+        "gainDb": {"mean": float(db.mean()), "sd": float(db.std(ddof=1)),
+                   "yield": float((db >= 33.55).mean())},
+        "bandwidthHz": {"mean": float(bw.mean()), "sd": float(bw.std(ddof=1)),
+                        "yield": float((bw >= 6e5).mean())},
+        "corners": ext,
+    }
+
+
+def transcond_gain(rl, rs, a0, gbw, f):
+    s = 2j * np.pi * f
+    a = a0 / (1 + s * a0 / (2 * np.pi * gbw))
+    return a / (rl + rs + a * rs)
+
+
+def transcond():
+    nominal = (2e3, 1e3, 2e5, 1e7)
+    lows = (1900.0, 999.0, 5e4, 7e6)
+    highs = (2100.0, 1001.0, 1e6, 1.3e7)
+    n = 100_000
+    rng = np.random.default_rng(1821)
+    rl = 2e3 * (1 + 0.05 * (2 * rng.random(n) - 1))
+    rs = 1e3 * (1 + 0.001 * (2 * rng.random(n) - 1))
+    a0 = split_lognormal(rng, n, 5e4, 2e5, 1e6)
+    gbw = split_lognormal(rng, n, 7e6, 1e7, 1.3e7)
+
+    def figures(*x):
+        db = 20 * np.log10(np.abs(transcond_gain(*x, 1e5)))
+        err = (np.abs(transcond_gain(*x, 2e4)) - 1e-3) / 1e-3 * 100
+        return db, err
+
+    db, err = figures(rl, rs, a0, gbw)
+    ok = (err >= -0.5) & (err <= 0.0)
+    corners = []
+    for c in itertools.product(*zip(lows, highs)):
+        d, e = figures(*c)
+        corners.append((list(c), float(d), float(e)))
+    ext = {}
+    for k, name in ((1, "gainDb"), (2, "gainErrorPercent")):
+        lo = min(corners, key=lambda c: c[k])
+        hi = max(corners, key=lambda c: c[k])
+        ext[name] = {"min": lo[k], "minValues": lo[0], "max": hi[k], "maxValues": hi[0]}
+    nd, ne = figures(*nominal)
+    return {
+        "trials": n,
+        "nominalGainDb": float(nd),
+        "nominalGainErrorPercent": float(ne),
+        "gainDb": {"mean": float(db.mean()), "sd": float(db.std(ddof=1))},
+        "gainErrorPercent": {"mean": float(err.mean()), "sd": float(err.std(ddof=1)),
+                             "yield": float(ok.mean())},
+        "corners": ext,
+    }
+
+
 def make():
     return {
         "ideal48": {"yield": closed_form_yield(47e3, 1e3, 0.01, 48, 0.005)},
         "gain48": gain48(),
         "margin2": margin2(),
         "rcloop": rcloop(),
+        "twoamp": twoamp(),
+        "transcond": transcond(),
     }
 
 
