@@ -453,7 +453,7 @@ test('batch tool: 100 000 rows streamed, bad rows reported by line number, nothi
     ['--no-install', 'loopwright-batch', 'designs.csv', '-o', 'out2.csv', '--strict'],
     { cwd: project, encoding: 'utf8' },
   );
-  assert.equal(strict.status, 1, '--strict exits 1 when a row failed');
+  assert.equal(strict.status, 1, `--strict exits 1 when a row failed; stderr: ${strict.stderr}`);
   const missing = spawnSync(
     'npx',
     ['--no-install', 'loopwright-batch', 'designs.csv', '--compute', 'spread'],
