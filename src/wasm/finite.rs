@@ -4,10 +4,10 @@
 //!
 //! The entry module (`facade/guard.js`, `finite`) walks every returned object in JS
 //! for the same purpose; an export whose result passes [`first_non_finite`] here
-//! (through [`super::to_js_finite`]) is not walked again there. The walk here costs
-//! a few hundred instructions for the two-port result (about 60 numbers), the JS one
-//! about 20 000 (bench/COMPARE.md). The paths are those of the JS walk: `.af.exact.re`,
-//! `[2].re`, `""` for the value itself.
+//! (through [`super::to_js_finite`]) is not walked again there: the JS walk of the
+//! two-port result cost about 23 000 instructions a call (DEVELOPERS.md, "Worksheet
+//! and two-port speed"), this one walks the Rust value with no call into JS. The
+//! paths are those of the JS walk: `.af.exact.re`, `[2].re`, `""` for the value itself.
 
 use alloc::string::String;
 use core::fmt::{self, Display, Write};
