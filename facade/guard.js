@@ -184,6 +184,69 @@ export function options(x, param) {
   return plain(x, param);
 }
 
+/**
+ * An options object of text and number fields, read once: its values at fixed places
+ * (an array, `fields[i]`'s value at i, undefined for a field left out) when it is
+ * regular (every field known and of its kind, `kinds[i]` 'string' or 'number', every
+ * index of `required` given), else `{ general }` with its copy as `options` makes it,
+ * for the export's general path, whose reader reports what is wrong. Each
+ * value is read once, in the object's own order, and a copy made from the values
+ * already read when the first irregular one is met: errors, their order and paths
+ * are those of `options`.
+ */
+export function packed(x, fields, kinds, required) {
+  if (typeof x !== 'object' || x === null || Array.isArray(x) || ArrayBuffer.isView(x)) {
+    return { general: options(x, '') };
+  }
+  const budget = { numbers: 0 };
+  let last = null;
+  try {
+    const keys = Object.keys(x);
+    if (keys.length > MAX_FIELDS) {
+      throw refusal('too_large', 'options', `too many fields; the limit is ${MAX_FIELDS}`);
+    }
+    const slots = new Array(fields.length);
+    let out = null;
+    for (let k = 0; k < keys.length; k++) {
+      const key = keys[k];
+      last = key;
+      const v = x[key];
+      if (out === null) {
+        if (v === undefined) continue;
+        const i = fields.indexOf(key);
+        if (i >= 0 && typeof v === kinds[i] && (typeof v === 'number' || v.length <= MAX_TEXT)) {
+          slots[i] = v;
+          continue;
+        }
+        out = readSoFar(keys, k, fields, slots);
+      }
+      if (typeof v === 'number') {
+        out[key] = v;
+        continue;
+      }
+      const c = copy(v, key, 1, budget);
+      if (c !== undefined) out[key] = c;
+    }
+    if (out !== null) return { general: out };
+    for (const i of required) {
+      if (slots[i] === undefined) return { general: readSoFar(keys, keys.length, fields, slots) };
+    }
+    return slots;
+  } catch (e) {
+    throw unreadable(last || 'options', e);
+  }
+}
+
+/** The copy of the first `n` keys of a regular object, from its values at fixed places. */
+function readSoFar(keys, n, fields, slots) {
+  const out = Object.create(null);
+  for (let k = 0; k < n; k++) {
+    const v = slots[fields.indexOf(keys[k])];
+    if (v !== undefined) out[keys[k]] = v;
+  }
+  return out;
+}
+
 /** β of the frequency functions: a number, or a transfer-model object. */
 export function numberOrModel(x, param) {
   if (typeof x === 'number') return x;

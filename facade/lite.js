@@ -7,7 +7,8 @@
 // throwing getter or Proxy trap, or an oversized input is a LoopwrightError with
 // `code` and `param`, thrown outside the module, and no NaN or ±Infinity is ever
 // returned. The glue's internal exports (takeError, topologyIndex,
-// summarizeFeedbackPacked, feedbackLabels, scratchView) are used here and not exported.
+// summarizeFeedbackPacked, feedbackLabels, scratchView; circuitTwoPortPacked in
+// loopwright.js) are used here and not exported.
 //
 // Scalar exports return a bare number: the answer, or NaN with the LoopwrightError
 // kept aside in the module (src/wasm/mod.rs, `scalar`); `checked` throws that error.

@@ -6,7 +6,7 @@
 // glue (renamed loopwright_glue.js).
 
 import * as glue from './loopwright_glue.js';
-import { finite, MAX_TEXT, number, options, refusal, string } from './guard.js';
+import { finite, MAX_TEXT, number, options, packed, refusal, string } from './guard.js';
 
 export * from './lite.js';
 export { default, initSync } from './loopwright_glue.js';
@@ -33,7 +33,47 @@ export const circuitPortImpedance = call(glue.circuitPortImpedance, [
   ['frequencyHz', number],
 ]);
 export const circuitSweep = call(glue.circuitSweep, [['', options]]);
-export const circuitTwoPort = call(glue.circuitTwoPort, [['', options]]);
+// circuitTwoPort: a regular options object (every field known and of its kind)
+// crosses as twelve values at fixed places (glue.circuitTwoPortPacked, whose result the
+// module has checked finite); any other object takes the module's options reader,
+// which reports what is wrong. Reading the object in the module cost the call about
+// a fifth of its time (bench/COMPARE.md). The order is that of TemplateAtOptions
+// (src/wasm/circuit.rs); the package test compares both paths.
+const TEMPLATE_AT = [
+  'topology',
+  'ri',
+  'ro',
+  'gain',
+  'ci',
+  'co',
+  'rf',
+  'rg',
+  'cf',
+  'rs',
+  'rl',
+  'frequencyHz',
+];
+const TEMPLATE_AT_KINDS = ['string', ...TEMPLATE_AT.slice(1).map(() => 'number')];
+// topology, ri, ro, gain, rf, rg, rs, rl: the fields without a default.
+const TEMPLATE_AT_REQUIRED = [0, 1, 2, 3, 6, 7, 9, 10];
+export function circuitTwoPort(opts) {
+  const o = packed(opts, TEMPLATE_AT, TEMPLATE_AT_KINDS, TEMPLATE_AT_REQUIRED);
+  if (o.general !== undefined) return finite(glue.circuitTwoPort(o.general), 'result');
+  return glue.circuitTwoPortPacked(
+    o[0],
+    o[1],
+    o[2],
+    o[3],
+    o[4],
+    o[5],
+    o[6],
+    o[7],
+    o[8],
+    o[9],
+    o[10],
+    o[11],
+  );
+}
 export const circuitStageViews = call(glue.circuitStageViews, [['', options]]);
 export const circuitBlackman = call(glue.circuitBlackman, [['', options]]);
 export const circuitAsymptoticGain = call(glue.circuitAsymptoticGain, [['', options]]);

@@ -244,19 +244,24 @@ impl super::options::FromOptions for TemplateAtOptions {
             ri: f.num("ri"),
             ro: f.num("ro"),
             gain: f.num("gain"),
-            ci: f.num_or("ci", 0.0),
-            co: f.num_or("co", 0.0),
+            ci: f.num_or("ci", TemplateAtOptions::NO_CAPACITANCE),
+            co: f.num_or("co", TemplateAtOptions::NO_CAPACITANCE),
             rf: f.num("rf"),
             rg: f.num("rg"),
-            cf: f.num_or("cf", 0.0),
+            cf: f.num_or("cf", TemplateAtOptions::NO_CAPACITANCE),
             rs: f.num("rs"),
             rl: f.num("rl"),
-            frequency_hz: f.num_or("frequencyHz", 0.0),
+            frequency_hz: f.num_or("frequencyHz", TemplateAtOptions::MIDBAND_HZ),
         }
     }
 }
 
 impl TemplateAtOptions {
+    /// ci, co and cf left out: no capacitance (F).
+    const NO_CAPACITANCE: f64 = 0.0;
+    /// frequencyHz left out: the midband (DC) solution (Hz).
+    const MIDBAND_HZ: f64 = 0.0;
+
     fn split(self) -> (TemplateOptions, f64) {
         let t = TemplateOptions {
             topology: self.topology,
@@ -450,6 +455,49 @@ pub fn circuit_two_port(
 ) -> Result<JsValue, JsValue> {
     let (s, frequency_hz) = spec_at(&options)?;
     to_js(&throw(twoport::analyze(&s, frequency_hz))?)
+}
+
+/// `circuitTwoPort` with its options at fixed places, for the entry module
+/// (facade/loopwright.js), which passes a regular options object's fields here
+/// (every field known and of its kind, every required one given; `undefined` for
+/// an optional one left out, which takes the default of [`TemplateAtOptions`]) and
+/// any other object to `circuitTwoPort`, whose reader reports what is wrong. Reading
+/// the object here cost about 3 calls into JS per field (`src/wasm/options.rs`).
+/// Internal: not exported by the entry module. The result is the same object, its
+/// numbers checked finite here ([`super::to_js_finite`]), so the entry module does
+/// not walk it.
+#[wasm_bindgen(js_name = circuitTwoPortPacked, unchecked_return_type = "TwoPortAnalysis")]
+#[allow(clippy::too_many_arguments)]
+pub fn circuit_two_port_packed(
+    topology: alloc::string::String,
+    ri: f64,
+    ro: f64,
+    gain: f64,
+    ci: Option<f64>,
+    co: Option<f64>,
+    rf: f64,
+    rg: f64,
+    cf: Option<f64>,
+    rs: f64,
+    rl: f64,
+    frequency_hz: Option<f64>,
+) -> Result<JsValue, JsValue> {
+    let none = TemplateAtOptions::NO_CAPACITANCE;
+    let o = TemplateOptions {
+        topology,
+        ri,
+        ro,
+        gain,
+        ci: ci.unwrap_or(none),
+        co: co.unwrap_or(none),
+        rf,
+        rg,
+        cf: cf.unwrap_or(none),
+        rs,
+        rl,
+    };
+    let f = frequency_hz.unwrap_or(TemplateAtOptions::MIDBAND_HZ);
+    super::to_js_finite(&throw(twoport::analyze(&spec(&o)?, f))?)
 }
 
 /// Blackman's Rin and Rout and the asymptotic-gain Af of a template stage at a

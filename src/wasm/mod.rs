@@ -20,6 +20,8 @@ pub mod batch;
 pub mod circuit;
 pub mod distortion;
 pub mod feedback;
+#[cfg(feature = "wasm")]
+mod finite;
 pub mod freq;
 pub mod network;
 pub mod noise;
@@ -87,6 +89,24 @@ pub(crate) fn to_js<T: serde::Serialize>(value: &T) -> Result<JsValue, JsValue> 
     value
         .serialize(&ser)
         .map_err(|e| JsValue::from(js_sys::Error::new(&alloc::format!("result: {e}"))))
+}
+
+/// As [`to_js`], with every number of `value` checked finite first
+/// ([`finite::first_non_finite`]): an `overflow` error naming the first that is
+/// not, with the path and sentence of the entry module's check (`facade/guard.js`,
+/// `finite`), which then need not walk the object.
+#[cfg(feature = "wasm")]
+pub(crate) fn to_js_finite<T: serde::Serialize>(value: &T) -> Result<JsValue, JsValue> {
+    if let Some(path) = finite::first_non_finite(value) {
+        let param = path.strip_prefix('.').unwrap_or(&path);
+        let param = if param.is_empty() { "result" } else { param };
+        return Err(options::error_at(
+            param,
+            crate::Error::Overflow { param: "" },
+            None,
+        ));
+    }
+    to_js(value)
 }
 
 /// Set each named field of `obj` to a `Float64Array` copy of the slice (how sweeps

@@ -6,6 +6,7 @@
 import { test } from 'node:test';
 import assert from 'node:assert/strict';
 import { join } from 'node:path';
+import { pathToFileURL } from 'node:url';
 import { ROOT } from './browser.mjs';
 import { campaign, goodCalls, healthy, leak, load } from './hostile.mjs';
 
@@ -88,4 +89,80 @@ test('the issue reproducers: typed errors, never NaN or ∞', async () => {
   }
   // The module answers right afterwards.
   assert.ok(healthy(lw));
+});
+
+test('circuitTwoPort: a regular options object crosses packed, with the answer and errors of the options reader', async () => {
+  const { lw } = await load(join(ROOT, 'pkg'));
+  const web = join(ROOT, 'pkg', 'web');
+  const glue = await import(pathToFileURL(join(web, 'loopwright_glue.js')).href);
+  const guard = await import(pathToFileURL(join(web, 'guard.js')).href);
+  // The general path of every other options export: the copy, the module's options
+  // reader (src/wasm/options.rs), the result walked for non-finite numbers.
+  const general = (o) => guard.finite(glue.circuitTwoPort(guard.options(o, '')), 'result');
+  const outcome = (f) => {
+    try {
+      return { value: f() };
+    } catch (e) {
+      return { error: [e.name, e.code, e.param, e.message] };
+    }
+  };
+  const stage = {
+    topology: 'series-shunt',
+    ri: 1e5,
+    ro: 1e3,
+    gain: 1e4,
+    rf: 1e6,
+    rg: 1e3,
+    rs: 1e4,
+    rl: 2e3,
+  };
+  const { ri, ...noRi } = stage;
+  let throwingGetter = 0;
+  const cases = [
+    stage,
+    // Every optional field given, each a different value (a field put in the wrong
+    // place of the packed call would change the answer).
+    { ...stage, ci: 1e-11, co: 3e-12, cf: 2e-13, frequencyHz: 2e5 },
+    { cf: 1e-12, ...stage, topology: 'shunt-shunt', rg: 0, frequencyHz: 1e4 },
+    { ...stage, topology: 'series-series', ci: undefined, unknownButUndefined: undefined },
+    { ...stage, ri: -1 },
+    { ...stage, ri: Number.NaN },
+    { ...stage, ri: Number.POSITIVE_INFINITY },
+    { ...stage, topology: 'sideways' },
+    { ...stage, topology: 5 },
+    { ...stage, ri: '1e5' },
+    { ...stage, polez: 1 },
+    { polez: 1, ...stage, ri: 'x' },
+    { ...stage, rl: undefined },
+    { ...stage, frequencyHz: -1 },
+    { ...stage, frequencyHz: null },
+    { ...stage, gain: [1] },
+    { ...stage, rs: { re: 1 } },
+    noRi,
+    {},
+    3,
+    null,
+    [stage],
+    new Float64Array(2),
+    {
+      ...stage,
+      get rg() {
+        throwingGetter++;
+        throw new Error('no');
+      },
+    },
+    Object.fromEntries(Array.from({ length: 65 }, (_, i) => [`f${i}`, i])),
+  ];
+  for (const [i, o] of cases.entries()) {
+    assert.deepEqual(
+      outcome(() => lw.circuitTwoPort(o)),
+      outcome(() => general(o)),
+      `case ${i}`,
+    );
+  }
+  assert.equal(throwingGetter, 2, 'the getter ran once per call');
+  assert.ok(
+    outcome(() => lw.circuitTwoPort(cases[1])).value.af.exact.im !== 0,
+    'at 200 kHz Af is complex',
+  );
 });

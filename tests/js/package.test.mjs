@@ -313,6 +313,7 @@ test('API 0.2: the public entry has no internal export, no function of more than
     'feedbackLabels',
     'scratchView',
     'closedLoopOutputAt',
+    'circuitTwoPortPacked',
   ]) {
     assert.equal(entry[internal], undefined, `${internal} is not exported`);
   }
