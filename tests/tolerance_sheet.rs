@@ -771,3 +771,76 @@ fn a_bad_spec_names_the_row_and_the_column() {
     ));
     assert!(e.contains("spec: a range of four columns"), "{e}");
 }
+
+#[test]
+fn the_worst_case_of_a_spec_matches_the_corners_and_bounds_the_yield() {
+    // Expected: tests/reference/tolerance_sheet.py: "47k/1k 1%" worstDb (the
+    // 2^3 corners of Rf, Rg, A0 at 0 and 70 °C, GBW 10 MHz) and "spec"
+    // bandwidthCornersHz (the 2^4 corners with the GBW spread), within 1e-9
+    // relative (the nodal solve and the −3 dB search against closed forms).
+    let r: Json =
+        serde_json::from_str(include_str!("reference/data/tolerance_sheet.json")).unwrap();
+    let mut s = spec_sheet();
+    let rel = |got: f64, want: f64| (got / want - 1.0).abs();
+    s.set(
+        "A12",
+        "=TOLERANCE.SPECWORST(A1:B8; \"rf=1% 25ppm/K, rg=1% -25ppm/K\"; D1:G3; \"0…70\")",
+    )
+    .unwrap();
+    let worst = &r["47k/1k 1%"]["worstDb"];
+    for (c, k) in [("A13", 0), ("B13", 1), ("C13", 2)] {
+        let want = worst[k].as_f64().unwrap();
+        assert!(rel(number_at(&s, c), want) < 1e-9, "{c}");
+    }
+    s.set(
+        "A20",
+        &format!("=TOLERANCE.SPECWORST(A1:B8; {SPEC_SPREADS}; D1:G3; \"0…70\")"),
+    )
+    .unwrap();
+    let corners = &r["spec"]["bandwidthCornersHz"];
+    assert!(rel(number_at(&s, "A22"), corners[0].as_f64().unwrap()) < 1e-9);
+    assert!(rel(number_at(&s, "C22"), corners[1].as_f64().unwrap()) < 1e-9);
+    assert!(
+        rel(
+            number_at(&s, "B22"),
+            r["spec"]["bandwidthNominalHz"].as_f64().unwrap()
+        ) < 1e-9
+    );
+    // The 1 % parts miss 48 ± 0.5 % and the GBW spread misses 200 kHz at the
+    // extremes: no limit holds in the worst case.
+    for c in ["D20", "D21", "D22"] {
+        assert_eq!(
+            s.shown(CellRef::parse(c).unwrap()),
+            Value::Bool(false),
+            "{c}"
+        );
+    }
+    // A spec whose limits are the worst case's own extremes holds in every
+    // trial (a trial's parts lie within the corners; common practice, no
+    // source): the limits read from the worst case's cells.
+    for (cell, input) in [
+        ("D5", "gainDb"),
+        ("E5", "1000"),
+        ("F5", "=A21"),
+        ("G5", "=C21"),
+        ("D6", "bandwidthHz"),
+        ("F6", "=A22"),
+        ("G6", "=C22"),
+    ] {
+        s.set(cell, input).unwrap();
+    }
+    s.set(
+        "A30",
+        &format!("=TOLERANCE.SPECWORST(A1:B8; {SPEC_SPREADS}; D5:G6; \"0…70\")"),
+    )
+    .unwrap();
+    assert_eq!(s.shown(CellRef::parse("D30").unwrap()), Value::Bool(true));
+    s.set(
+        "A40",
+        &format!("=TOLERANCE.SPECYIELD(A1:B8; {SPEC_SPREADS}; D5:G6; 300; 9; \"0…70\")"),
+    )
+    .unwrap();
+    for c in ["A40", "A41", "A42"] {
+        assert_eq!(number_at(&s, c), 1.0, "{c}");
+    }
+}

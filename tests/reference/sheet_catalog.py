@@ -717,6 +717,34 @@ TOLERANCES[TOL_SPEC] = (
     "seen within the gap to the ln(1e6)/N quantile of the corner; the nominal gain exact (1e-12), "
     "the nominal bandwidth found by bisection (1e-9); 0 for the #N/A cells")
 
+# TOLERANCE.SPECWORST: the same stage and spread against gainDb 33.4 … 33.8 dB
+# and bandwidthHz ≥ 208 kHz. |G(0)| = 1/(β + 1/A0) and the bandwidth
+# GBW·(β + 1/A0) are monotonic in β = Rg/(Rf + Rg), so their extremes are the
+# square's corners (Rf high, Rg low and the reverse), by mpmath; meets is 1
+# when both extremes are within the limit. First row: #N/A ×3, every limit.
+TOL_SPEC_WORST = ('=TOLERANCE.SPECWORST("kind=non-inverting, a0=1e12, gbwHz=10M, rf=47k, rg=1k"; '
+                  '"rf=1%, rg=1%"; "gainDb | 0 | 33.4 | 33.8; bandwidthHz | | 208k")')
+
+
+def tolerance_spec_worst():
+    t, gbw, a0 = M("0.01"), M(10) ** 7, M(10) ** 12
+    beta = lambda rf, rg: rg / (rf + rg)
+    b_lo, b_nom, b_hi = beta(47000 * (1 + t), 1000 * (1 - t)), beta(M(47000), M(1000)), beta(47000 * (1 - t), 1000 * (1 + t))
+    gain = lambda b: 20 * mp.log10(1 / (b + 1 / a0))
+    bw = lambda b: gbw * (b + 1 / a0)
+    g = [gain(b_hi), gain(b_nom), gain(b_lo)]
+    w = [bw(b_lo), bw(b_nom), bw(b_hi)]
+    g_meets = 1 if M("33.4") <= g[0] and g[2] <= M("33.8") else 0
+    w_meets = 1 if w[0] >= 208000 else 0
+    return [None, None, None, g_meets * w_meets] + g + [g_meets] + w + [w_meets]
+
+
+CASES[TOL_SPEC_WORST] = tolerance_spec_worst()
+TOLERANCES[TOL_SPEC_WORST] = (
+    [0, 0, 0, 0, 1e-12, 1e-12, 1e-12, 0, 1e-9, 1e-9, 1e-9, 0],
+    "the gain from one nodal solve (1e-12); the bandwidth found by bisection of the −3 dB point (1e-9); "
+    "the flags exact; 0 for the #N/A cells")
+
 def evaluate():
     cases = []
     for f, xs in CASES.items():

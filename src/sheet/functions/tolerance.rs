@@ -104,6 +104,7 @@ const SPEC: Param = req(
     "1 … 32 rows with a figure; lower ≤ upper; empty rows skipped",
 );
 const SPEC_YIELD: &[Param] = &[STAGE, SPREADS, SPEC, TRIALS, SEED, TEMPERATURE];
+const SPEC_WORST: &[Param] = &[STAGE, SPREADS, SPEC, TEMPERATURE];
 const MONTE: &[Param] = &[STAGE, SPREADS, FIGURE, FREQUENCY, TRIALS, SEED, TEMPERATURE];
 /// The amplifier figures a spread may be given for, with their names in the
 /// error messages.
@@ -775,6 +776,44 @@ fn spec_yield(a: &Args<'_>) -> Value {
     )
 }
 
+/// What each column of `TOLERANCE.SPECWORST` holds.
+const SPEC_WORST_COLUMNS: &[&str] = &[
+    "lowest value (one row per limit after the first, in the spec's order); first row #N/A",
+    "the figure at nominal parts (the low end of the temperature range); first row #N/A",
+    "highest value; first row #N/A",
+    "meets: TRUE when lowest and highest are within the limit (first row: every limit)",
+];
+
+fn spec_worst(a: &Args<'_>) -> Value {
+    let ts = tri!(tol_stage(a, 3));
+    let spec = tri!(spec_of(a, 2));
+    let w = match worst_case(&ts, &spec, DEFAULT_MAX_CORNERS) {
+        Ok(w) => w,
+        Err(e) => return Value::Error(tol_fail(a, e)),
+    };
+    let na = || {
+        Value::error(
+            ErrorKind::NotAvailable,
+            "every limit together: no single figure",
+        )
+    };
+    let mut items = vec![na(), na(), na(), Value::Bool(w.meets)];
+    for f in &w.figures {
+        items.extend([
+            Value::num(f.min.value),
+            Value::num(f.nominal),
+            Value::num(f.max.value),
+            Value::Bool(f.meets),
+        ]);
+    }
+    let rows = u32::try_from(w.figures.len() + 1).unwrap_or(u32::MAX);
+    let cols = u32::try_from(SPEC_WORST_COLUMNS.len()).unwrap_or(u32::MAX);
+    Array::new(rows, cols, items).map_or_else(
+        || Value::error(ErrorKind::Value, "empty result"),
+        Value::Array,
+    )
+}
+
 /// The examples' stage: gain 48 (47k/1k), A0 50k … 200k … 1M, GBW 10 MHz.
 macro_rules! gain48 {
     () => {
@@ -890,5 +929,21 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             tolerance: &[0.04304364504440137, 0.018585786570230415, 0.0, 0.0, 0.0, 0.0, 0.03157522432108086, 0.025336320396808346, 1e-12, 7.30180286443405e-05, 0.00018891607516435534, 0.0001871673145133307, 0.024146859629453052, 0.03313060216841625, 1e-09, 0.0002826684675504447, 0.0007284937608376595, 0.0007273684863010181],
         },
         eval: spec_yield,
+    },
+    FunctionSpec {
+        name: "TOLERANCE.SPECWORST",
+        area: "tolerance",
+        summary: "Worst case of a stage against a whole spec (several figures' limits, one row per limit in cells): each figure's lowest, nominal and highest value over the parts' spreads and a temperature range, and whether it meets its limit; first row: every limit",
+        params: SPEC_WORST,
+        repeats: false,
+        result_unit: "the figure's unit; the figure's unit; the figure's unit; 1",
+        spill: SPEC_WORST_COLUMNS,
+        example: Example {
+            formula: "=TOLERANCE.SPECWORST(\"kind=non-inverting, a0=1e12, gbwHz=10M, rf=47k, rg=1k\"; \"rf=1%, rg=1%\"; \"gainDb | 0 | 33.4 | 33.8; bandwidthHz | | 208k\")",
+            expected: Expected::Numbers(&[f64::NAN, f64::NAN, f64::NAN, 0.0, 33.45475607178154, 33.62482474709482, 33.79496430365358, 1.0, 204292.1997623731, 208333.33334333333, 212452.6714445814, 0.0]),
+            source: "|G(0)| = 1/(β + 1/A0) and the bandwidth GBW·(β + 1/A0), β = Rg/(Rf + Rg), monotonic in β: the extremes at the corners Rf +1 %, Rg −1 % and the reverse, by mpmath (tests/reference/sheet_catalog.py); the gain within 33.4 … 33.8 dB at both, the bandwidth below 208 kHz at one, so the spec fails; NaN marks the first row's #N/A cells",
+            tolerance: &[0.0, 0.0, 0.0, 0.0, 1e-12, 1e-12, 1e-12, 0.0, 1e-09, 1e-09, 1e-09, 0.0],
+        },
+        eval: spec_worst,
     },
 ];

@@ -191,6 +191,10 @@ const WORDS: &[(&str, &str)] = &[
         "spec specification limits several figures together overall yield per limit pass fail production test gain bandwidth phase margin datasheet table monte carlo",
     ),
     (
+        "TOLERANCE.SPECWORST",
+        "spec specification limits several figures together worst case corners extreme min max pass fail guaranteed datasheet table",
+    ),
+    (
         "TOLERANCE.MONTECARLO",
         "monte carlo distribution percentile histogram mean standard deviation sigma spread tolerance tempco",
     ),
