@@ -1,6 +1,14 @@
 //! Worksheet functions of the tolerance area (`src/tolerance`), prefix
 //! `TOLERANCE.`: the worst case, the Monte Carlo yield and the sensitivities
-//! of one figure of a stage described in cells (`docs/tolerance.md`).
+//! of one figure of a stage described in cells, and the yield and worst case
+//! of a whole spec, several limits judged together (`TOLERANCE.SPECYIELD`,
+//! `TOLERANCE.SPECWORST`; `docs/tolerance.md`).
+//!
+//! A spec is one row per limit, `figure | frequency | lower | upper`: a range
+//! of four columns or a text of rows separated by `;`, cells by `|`
+//! (`"gainDb | 1k | 33.5813 | 33.6681; bandwidthHz | | 200k"`); an empty lower
+//! or upper leaves that side open, and a trial passes the spec when every
+//! figure is within its limit at every temperature.
 //!
 //! The stage is the argument of the `STAGE.` functions (a range of name/value
 //! pairs or a text `"name=value, …"`). The spreads are a text of
