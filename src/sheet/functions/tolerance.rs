@@ -733,7 +733,7 @@ fn spec_of(a: &Args<'_>, i: usize) -> Result<Vec<Limit>, CellError> {
 const SPEC_YIELD_COLUMNS: &[&str] = &[
     "yield, 0 … 1 (first row: every limit together; then one row per limit, in the spec's order)",
     "trials failing (a figure that cannot be computed in a trial fails its limit)",
-    "the figure at nominal parts (the low end of the temperature range); first row #N/A",
+    "nominal: the figure at nominal parts (the low end of the temperature range); first row #N/A",
     "mean of the figure over the trials and temperatures; first row #N/A",
     "lowest value seen; first row #N/A",
     "highest value seen; first row #N/A",
@@ -787,7 +787,7 @@ fn spec_yield(a: &Args<'_>) -> Value {
 /// What each column of `TOLERANCE.SPECWORST` holds.
 const SPEC_WORST_COLUMNS: &[&str] = &[
     "lowest value (one row per limit after the first, in the spec's order); first row #N/A",
-    "the figure at nominal parts (the low end of the temperature range); first row #N/A",
+    "nominal: the figure at nominal parts (the low end of the temperature range); first row #N/A",
     "highest value; first row #N/A",
     "meets: TRUE when lowest and highest are within the limit (first row: every limit)",
 ];
