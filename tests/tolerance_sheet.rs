@@ -499,3 +499,348 @@ fn bad_temperatures_and_counts_are_errors_naming_them() {
     ));
     assert!(e.contains("figure") && e.contains("loudness"), "{e}");
 }
+
+/// The stage of the spec case as name/value cells (A1:B8), the spec as a
+/// range with its caption row (D1:G3): TOLERANCE.SPECYIELD's cells.
+fn spec_sheet() -> Sheet {
+    let mut s = Sheet::new();
+    for (cell, input) in [
+        ("A1", "kind"),
+        ("B1", "non-inverting"),
+        ("A2", "a0"),
+        ("B2", "200k"),
+        ("A3", "a0Min"),
+        ("B3", "50k"),
+        ("A4", "a0Max"),
+        ("B4", "1M"),
+        ("A5", "gbwHz"),
+        ("B5", "10M"),
+        ("A6", "rf"),
+        ("B6", "47k"),
+        ("A7", "rg"),
+        ("B7", "1k"),
+        ("D1", "figure"),
+        ("E1", "frequency"),
+        ("F1", "lower"),
+        ("G1", "upper"),
+        ("D2", "gainDb"),
+        ("E2", "1000"),
+        ("F2", "=20*LOG10(48*0.995)"),
+        ("G2", "=20*LOG10(48*1.005)"),
+        ("D3", "bandwidthHz"),
+        ("F3", "200000"),
+    ] {
+        s.set(cell, input).unwrap();
+    }
+    s
+}
+
+const SPEC_SPREADS: &str = "\"rf=1% 25ppm/K, rg=1% -25ppm/K, gbw=8M/10M/12M\"";
+
+fn number_at(s: &Sheet, c: &str) -> f64 {
+    match s.shown(CellRef::parse(c).unwrap()) {
+        Value::Number(x, _) => x,
+        v => panic!("{c}: {v:?}"),
+    }
+}
+
+#[test]
+fn a_spec_in_cells_is_judged_together_and_agrees_with_numpy() {
+    // Expected: tests/reference/tolerance_sheet.py "spec": numpy Monte Carlo
+    // of 400 000 trials of the 47k/1k 1 % stage with the A0 and GBW spreads,
+    // |G(1 kHz)| within 48 ± 0.5 % and the bandwidth GBW·(β + 1/A0) ≥ 200 kHz
+    // at 0 and 70 °C. Yields within 4 standard errors of the difference of two
+    // estimates, sqrt(p(1 − p)(1/N + 1/N_numpy)); the bandwidth's mean within 4
+    // sd·sqrt(1/N + 1/N_numpy) (its values at the two temperatures pooled, so
+    // at most N independent draws); the nominal figures within 1e-9 relative
+    // (the nodal solve and the −3 dB search against the closed forms); the
+    // lowest and highest bandwidth seen inside numpy's 2^4 corners.
+    let r: Json =
+        serde_json::from_str(include_str!("reference/data/tolerance_sheet.json")).unwrap();
+    let r = &r["spec"];
+    let want = |k: &str| r[k].as_f64().unwrap();
+    let nn = want("trials");
+    // 2000 trials: the bandwidth's −3 dB search at two temperatures per trial
+    // takes about 20 s in a debug build.
+    let n = 2000.0;
+    let mut s = spec_sheet();
+    s.set(
+        "A12",
+        &format!("=TOLERANCE.SPECYIELD(A1:B8; {SPEC_SPREADS}; D1:G3; {n}; 18; \"0…70\")"),
+    )
+    .unwrap();
+    let spill = s.spill_range(CellRef::parse("A12").unwrap()).unwrap();
+    assert_eq!((spill.rows(), spill.cols()), (3, 6));
+    for (cell, key) in [
+        ("A12", "yieldAll"),
+        ("A13", "yieldGain"),
+        ("A14", "yieldBandwidth"),
+    ] {
+        let p = want(key);
+        within_4se(
+            number_at(&s, cell),
+            p,
+            (p * (1.0 - p) * (1.0 / n + 1.0 / nn)).sqrt(),
+            key,
+        );
+    }
+    // Trials failing: the complement of each yield, as counts.
+    for (y, f) in [("A12", "B12"), ("A13", "B13"), ("A14", "B14")] {
+        assert_eq!(number_at(&s, f), n - (number_at(&s, y) * n).round(), "{f}");
+    }
+    // Every limit together can only lose trials against each one alone.
+    assert!(number_at(&s, "A12") <= number_at(&s, "A13").min(number_at(&s, "A14")));
+    // The first row holds no figure.
+    for c in ["C12", "D12", "E12", "F12"] {
+        assert!(
+            matches!(s.shown(CellRef::parse(c).unwrap()), Value::Error(e) if e.kind == loopwright::sheet::ErrorKind::NotAvailable),
+            "{c}"
+        );
+    }
+    let rel = |got: f64, want: f64| (got / want - 1.0).abs();
+    assert!(rel(number_at(&s, "C13"), want("gainNominalDb")) < 1e-9);
+    assert!(rel(number_at(&s, "C14"), want("bandwidthNominalHz")) < 1e-9);
+    let (mean, sd) = (want("bandwidthMeanHz"), want("bandwidthSdHz"));
+    within_4se(
+        number_at(&s, "D14"),
+        mean,
+        sd * (1.0 / n + 1.0 / nn).sqrt(),
+        "bandwidth mean",
+    );
+    let corners = &r["bandwidthCornersHz"];
+    let (lo, hi) = (corners[0].as_f64().unwrap(), corners[1].as_f64().unwrap());
+    let (seen_lo, seen_hi) = (number_at(&s, "E14"), number_at(&s, "F14"));
+    assert!(
+        lo <= seen_lo && seen_lo < seen_hi && seen_hi <= hi,
+        "{seen_lo} … {seen_hi} within {lo} … {hi}"
+    );
+    assert!(
+        number_at(&s, "E13") <= number_at(&s, "C13")
+            && number_at(&s, "C13") <= number_at(&s, "F13")
+    );
+
+    // One seed draws the same parts whatever the spec: the gain row is
+    // TOLERANCE.YIELD's share of the same limit, exactly.
+    s.set(
+        "A20",
+        &format!(
+            "=TOLERANCE.YIELD(A1:B8; {SPEC_SPREADS}; \"gainDb\"; 1 kHz; F2; G2; {n}; 18; \"0…70\")"
+        ),
+    )
+    .unwrap();
+    assert_eq!(number_at(&s, "A20"), number_at(&s, "A13"));
+    // The spec as one text gives the same cells as the range.
+    s.set(
+        "A22",
+        &format!("=TOLERANCE.SPECYIELD(A1:B8; {SPEC_SPREADS}; \"gainDb | 1k | \"&F2&\" | \"&G2&\"; bandwidthHz | | 200k\"; {n}; 18; \"0…70\")"),
+    )
+    .unwrap();
+    for (a, b) in [
+        ("A12", "A22"),
+        ("A13", "A23"),
+        ("A14", "A24"),
+        ("D14", "D24"),
+        ("F13", "F23"),
+    ] {
+        assert_eq!(number_at(&s, a), number_at(&s, b), "{a} vs {b}");
+    }
+}
+
+#[test]
+fn an_open_side_and_empty_rows_are_kept_as_written() {
+    // A spec row with both sides empty passes every trial where the figure is
+    // defined (the gain always is): yield 1; an empty row in between is
+    // skipped, and the rows keep the spec's order.
+    let mut s = spec_sheet();
+    s.set("D3", "").unwrap();
+    s.set("F3", "").unwrap();
+    s.set("D4", "gainDb").unwrap();
+    s.set("E4", "1000").unwrap();
+    s.set(
+        "A12",
+        &format!("=TOLERANCE.SPECYIELD(A1:B8; {SPEC_SPREADS}; D1:G4; 200; 5)"),
+    )
+    .unwrap();
+    let spill = s.spill_range(CellRef::parse("A12").unwrap()).unwrap();
+    assert_eq!(spill.rows(), 3);
+    assert_eq!(number_at(&s, "A14"), 1.0);
+    assert_eq!(number_at(&s, "B14"), 0.0);
+    // The open row's figure is the gain row's figure: the same values.
+    assert_eq!(number_at(&s, "D13"), number_at(&s, "D14"));
+    // Every limit together is the bounded row's share.
+    assert_eq!(number_at(&s, "A12"), number_at(&s, "A13"));
+}
+
+#[test]
+fn a_bad_spec_names_the_row_and_the_column() {
+    let spec_error = |edits: &[(&str, &str)], range: &str| {
+        let mut s = spec_sheet();
+        for (c, v) in edits {
+            s.set(c, v).unwrap();
+        }
+        s.set(
+            "A12",
+            &format!("=TOLERANCE.SPECYIELD(A1:B8; {SPEC_SPREADS}; {range}; 100; 1)"),
+        )
+        .unwrap();
+        match s.value("A12").unwrap() {
+            Value::Error(e) => e.detail,
+            v => panic!("{edits:?}: not an error: {v:?}"),
+        }
+    };
+    /// Cells to change, the spec's range, the words the error must hold.
+    type Case<'a> = (&'a [(&'a str, &'a str)], &'a str, &'a [&'a str]);
+    let cases: &[Case] = &[
+        (
+            &[("D2", "loudness")],
+            "D1:G3",
+            &["spec", "row 2", "figure", "unknown figure \"loudness\""],
+        ),
+        (
+            &[("D3", "gainErrorPercent")],
+            "D1:G3",
+            &["spec", "row 3", "figure", "needs the target gain"],
+        ),
+        (
+            &[("D3", "gainErrorPercent 0")],
+            "D1:G3",
+            &["spec", "row 3", "figure", "target"],
+        ),
+        (
+            &[("E2", "-5")],
+            "D1:G3",
+            &["spec", "row 2", "figure", "freq"],
+        ),
+        (
+            &[("F3", "300k"), ("G3", "250k")],
+            "D1:G3",
+            &["spec", "row 3", "lower", "above upper"],
+        ),
+        (
+            &[("G2", "high")],
+            "D1:G3",
+            &["spec", "row 2", "upper", "a number", "\"high\""],
+        ),
+        (
+            &[("E3", "fast")],
+            "D1:G3",
+            &["spec", "row 3", "frequency", "a number in Hz"],
+        ),
+        (
+            &[("D2", "5")],
+            "D1:G3",
+            &["spec", "row 2", "figure", "a text naming"],
+        ),
+        (&[], "D1:F3", &["spec", "four columns", "3 columns"]),
+        (&[], "D5:G6", &["spec", "no limit"]),
+    ];
+    for (edits, range, words) in cases {
+        let e = spec_error(edits, range);
+        assert!(e.starts_with("TOLERANCE.SPECYIELD: spec: "), "{e}");
+        for w in *words {
+            assert!(e.contains(w), "{edits:?} {range}: {e} lacks {w}");
+        }
+    }
+    // More rows than the engine's limit (32): the 33rd limit is refused.
+    let rows: Vec<String> = (0..33)
+        .map(|_| String::from("gainDb | 1k | 33 | 34"))
+        .collect();
+    let e = error(&format!(
+        "=TOLERANCE.SPECYIELD({GAIN48}; \"rf=1%\"; \"{}\"; 100; 1)",
+        rows.join("; ")
+    ));
+    assert!(
+        e.contains("spec") && e.contains("at most 32") && e.contains("row 33"),
+        "{e}"
+    );
+    // The text form: a cell that is no value, a row of five cells.
+    let e = error(&format!(
+        "=TOLERANCE.SPECYIELD({GAIN48}; \"rf=1%\"; \"gainDb | 1k | 33 | 34; gainDb | 1k | 33 | lots\"; 100; 1)"
+    ));
+    assert!(
+        e.contains("spec: row 2: upper: \"lots\"") && e.contains("column"),
+        "{e}"
+    );
+    let e = error(&format!(
+        "=TOLERANCE.SPECYIELD({GAIN48}; \"rf=1%\"; \"gainDb | 1k | 33 | 34 | 35\"; 100; 1)"
+    ));
+    assert!(e.contains("spec: row 1: 5 cells"), "{e}");
+    // A number where the spec goes.
+    let e = error(&format!(
+        "=TOLERANCE.SPECYIELD({GAIN48}; \"rf=1%\"; 5; 100; 1)"
+    ));
+    assert!(e.contains("spec: a range of four columns"), "{e}");
+}
+
+#[test]
+fn the_worst_case_of_a_spec_matches_the_corners_and_bounds_the_yield() {
+    // Expected: tests/reference/tolerance_sheet.py: "47k/1k 1%" worstDb (the
+    // 2^3 corners of Rf, Rg, A0 at 0 and 70 °C, GBW 10 MHz) and "spec"
+    // bandwidthCornersHz (the 2^4 corners with the GBW spread), within 1e-9
+    // relative (the nodal solve and the −3 dB search against closed forms).
+    let r: Json =
+        serde_json::from_str(include_str!("reference/data/tolerance_sheet.json")).unwrap();
+    let mut s = spec_sheet();
+    let rel = |got: f64, want: f64| (got / want - 1.0).abs();
+    s.set(
+        "A12",
+        "=TOLERANCE.SPECWORST(A1:B8; \"rf=1% 25ppm/K, rg=1% -25ppm/K\"; D1:G3; \"0…70\")",
+    )
+    .unwrap();
+    let worst = &r["47k/1k 1%"]["worstDb"];
+    for (c, k) in [("A13", 0), ("B13", 1), ("C13", 2)] {
+        let want = worst[k].as_f64().unwrap();
+        assert!(rel(number_at(&s, c), want) < 1e-9, "{c}");
+    }
+    s.set(
+        "A20",
+        &format!("=TOLERANCE.SPECWORST(A1:B8; {SPEC_SPREADS}; D1:G3; \"0…70\")"),
+    )
+    .unwrap();
+    let corners = &r["spec"]["bandwidthCornersHz"];
+    assert!(rel(number_at(&s, "A22"), corners[0].as_f64().unwrap()) < 1e-9);
+    assert!(rel(number_at(&s, "C22"), corners[1].as_f64().unwrap()) < 1e-9);
+    assert!(
+        rel(
+            number_at(&s, "B22"),
+            r["spec"]["bandwidthNominalHz"].as_f64().unwrap()
+        ) < 1e-9
+    );
+    // The 1 % parts miss 48 ± 0.5 % and the GBW spread misses 200 kHz at the
+    // extremes: no limit holds in the worst case.
+    for c in ["D20", "D21", "D22"] {
+        assert_eq!(
+            s.shown(CellRef::parse(c).unwrap()),
+            Value::Bool(false),
+            "{c}"
+        );
+    }
+    // A spec whose limits are the worst case's own extremes holds in every
+    // trial (a trial's parts lie within the corners; common practice, no
+    // source): the limits read from the worst case's cells.
+    for (cell, input) in [
+        ("D5", "gainDb"),
+        ("E5", "1000"),
+        ("F5", "=A21"),
+        ("G5", "=C21"),
+        ("D6", "bandwidthHz"),
+        ("F6", "=A22"),
+        ("G6", "=C22"),
+    ] {
+        s.set(cell, input).unwrap();
+    }
+    s.set(
+        "A30",
+        &format!("=TOLERANCE.SPECWORST(A1:B8; {SPEC_SPREADS}; D5:G6; \"0…70\")"),
+    )
+    .unwrap();
+    assert_eq!(s.shown(CellRef::parse("D30").unwrap()), Value::Bool(true));
+    s.set(
+        "A40",
+        &format!("=TOLERANCE.SPECYIELD(A1:B8; {SPEC_SPREADS}; D5:G6; 300; 9; \"0…70\")"),
+    )
+    .unwrap();
+    for c in ["A40", "A41", "A42"] {
+        assert_eq!(number_at(&s, c), 1.0, "{c}");
+    }
+}

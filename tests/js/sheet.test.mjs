@@ -681,3 +681,56 @@ test('the sheet an earlier version kept aside before a share link joins the repl
   assert.deepEqual(problems, []);
   await context.close();
 });
+
+test('a whole spec in cells: the stage and the limits typed, the yield fans out with captions', async () => {
+  const context = await env.browser.newContext({ viewport: { width: 1280, height: 900 } });
+  const { page, problems } = await openSheet(context);
+  const typed = [
+    ['A1', 'kind'],
+    ['B1', 'non-inverting'],
+    ['A2', 'a0'],
+    ['B2', '200k'],
+    ['A3', 'gbwHz'],
+    ['B3', '10M'],
+    ['A4', 'rf'],
+    ['B4', '47k'],
+    ['A5', 'rg'],
+    ['B5', '1k'],
+    ['D1', 'figure'],
+    ['E1', 'frequency'],
+    ['F1', 'lower'],
+    ['G1', 'upper'],
+    ['D2', 'gainDb'],
+    ['E2', '1k'],
+    ['F2', '=20*LOG10(48*0.995)'],
+    ['G2', '=20*LOG10(48*1.005)'],
+    ['D3', 'bandwidthHz'],
+    ['F3', '200k'],
+  ];
+  for (const [address, text] of typed) await typeAt(page, address, text);
+  await typeAt(
+    page,
+    'A8',
+    '=TOLERANCE.SPECYIELD(A1:B5; "rf=1%, rg=1%, gbw=8M/10M/12M"; D1:G3; 2000; 48)',
+  );
+  await page.waitForFunction(() => document.querySelector('#cell-A10').textContent.trim() !== '');
+  // Three rows: every limit, the gain, the bandwidth; the first row's figure
+  // cells hold no single figure.
+  assert.equal(await shown(page, 'C8'), '#N/A');
+  const yieldOf = async (a) => Number(await cell(page, a).getAttribute('data-value'));
+  const [all, gain, bandwidth] = [await yieldOf('A8'), await yieldOf('A9'), await yieldOf('A10')];
+  assert.ok(all > 0 && all <= Math.min(gain, bandwidth), `${all} ${gain} ${bandwidth}`);
+  assert.match(await cell(page, 'A8').getAttribute('data-part'), /^yield/);
+  assert.match(await cell(page, 'C8').getAttribute('data-part'), /^nominal/);
+  await page.screenshot({ path: join(ARTIFACTS, 'worksheet-spec-yield.png') });
+  // A bad row is an error value naming the row and the column.
+  await typeAt(page, 'D3', 'loudness');
+  await page.waitForFunction(() => document.querySelector('#cell-A8').textContent.includes('#'));
+  assert.match(
+    await cell(page, 'A8').getAttribute('title'),
+    /spec: row 3: figure: unknown figure "loudness"/,
+  );
+  await page.screenshot({ path: join(ARTIFACTS, 'worksheet-spec-yield-error.png') });
+  assert.deepEqual(problems, []);
+  await context.close();
+});

@@ -21,6 +21,9 @@ and compares the yields within 4 standard errors of the difference,
 sqrt(p(1 - p)(1/N_rust + 1/N_numpy)) (0 and 1 exactly when every corner is
 inside or outside the spec), and the worst case within 1e-9 dB.
 
+"spec" (below, spec_case): the same stage against a spec of two limits in
+cells, judged together (TOLERANCE.SPECYIELD).
+
 Writes tests/reference/data/tolerance_sheet.json; `--check` recomputes and
 compares (rel. tol. 1e-12; the Monte Carlo is seeded, so identical).
 """
@@ -83,10 +86,75 @@ def case(rf, rg, grade, rng):
     }
 
 
+# The spec in cells (TOLERANCE.SPECYIELD): the 47k/1k pair at 1 %, the same
+# tempcos and A0 spread, the GBW spread 8/10/12 MHz (split log-normal, min and
+# max at 3 sigma, as A0), and a spec of two limits judged together at 0 and
+# 70 degC: |G(1 kHz)| within 48 +- 0.5 % and the -3 dB bandwidth at least
+# 200 kHz. With one pole the closed loop has one pole, so the bandwidth is
+# exactly GBW (beta + 1/A0). numpy Monte Carlo (default_rng(4849)): the share
+# meeting both limits at both temperatures, each limit's share, and the
+# bandwidth's mean over trials and temperatures; the nominal figures at 0 degC
+# and the bandwidth's corners (2^4: Rf, Rg, A0, GBW at their extremes).
+SPEC_GBW = (8e6, 1e7, 1.2e7)
+SPEC_BW_MIN = 2e5
+
+
+def drifted(rf, rg, t):
+    return rf * (1 + 25e-6 * (t - 25)), rg * (1 - 25e-6 * (t - 25))
+
+
+def gain_at(rf, rg, a0, gbw, t):
+    rf, rg = drifted(rf, rg, t)
+    a = a0 / (1 + 1j * F * a0 / gbw)
+    return np.abs(a / (1 + a * rg / (rf + rg)))
+
+
+def bandwidth(rf, rg, a0, gbw, t):
+    rf, rg = drifted(rf, rg, t)
+    return gbw * (rg / (rf + rg) + 1 / a0)
+
+
+def spec_case(rng):
+    rf, rg, grade = 47e3, 1e3, 0.01
+    rfs = rf * (1 + grade * (2 * rng.random(N) - 1))
+    rgs = rg * (1 + grade * (2 * rng.random(N) - 1))
+    a0s = split_lognormal(rng, N, *A0)
+    gbws = split_lognormal(rng, N, *SPEC_GBW)
+    gain_ok = np.ones(N, dtype=bool)
+    bw_ok = np.ones(N, dtype=bool)
+    bws = []
+    for t in TEMPS:
+        g = gain_at(rfs, rgs, a0s, gbws, t)
+        gain_ok &= (g >= 48 * 0.995) & (g <= 48 * 1.005)
+        b = bandwidth(rfs, rgs, a0s, gbws, t)
+        bw_ok &= b >= SPEC_BW_MIN
+        bws.append(b)
+    bws = np.concatenate(bws)
+    corners = [float(bandwidth(x, y, a, g, t))
+               for x, y, a, g in itertools.product((rf * (1 - grade), rf * (1 + grade)),
+                                                   (rg * (1 - grade), rg * (1 + grade)),
+                                                   (A0[0], A0[2]), (SPEC_GBW[0], SPEC_GBW[2]))
+               for t in TEMPS]
+    return {
+        "trials": N,
+        "yieldAll": float((gain_ok & bw_ok).mean()),
+        "yieldGain": float(gain_ok.mean()),
+        "yieldBandwidth": float(bw_ok.mean()),
+        "gainNominalDb": 20 * math.log10(float(gain_at(rf, rg, A0[1], SPEC_GBW[1], TEMPS[0]))),
+        "bandwidthNominalHz": float(bandwidth(rf, rg, A0[1], SPEC_GBW[1], TEMPS[0])),
+        "bandwidthMeanHz": float(bws.mean()),
+        "bandwidthSdHz": float(bws.std(ddof=1)),
+        "bandwidthCornersHz": [min(corners), max(corners)],
+        "specDb": [20 * math.log10(48 * 0.995), 20 * math.log10(48 * 1.005)],
+    }
+
+
 def make():
     rng = np.random.default_rng(4848)
-    return {f"{name} {grade * 100:g}%": case(rf, rg, grade, rng)
+    data = {f"{name} {grade * 100:g}%": case(rf, rg, grade, rng)
             for name, rf, rg in PAIRS for grade in GRADES}
+    data["spec"] = spec_case(np.random.default_rng(4849))
+    return data
 
 
 def main():

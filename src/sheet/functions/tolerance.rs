@@ -1,6 +1,14 @@
 //! Worksheet functions of the tolerance area (`src/tolerance`), prefix
 //! `TOLERANCE.`: the worst case, the Monte Carlo yield and the sensitivities
-//! of one figure of a stage described in cells (`docs/tolerance.md`).
+//! of one figure of a stage described in cells, and the yield and worst case
+//! of a whole spec, several limits judged together (`TOLERANCE.SPECYIELD`,
+//! `TOLERANCE.SPECWORST`; `docs/tolerance.md`).
+//!
+//! A spec is one row per limit, `figure | frequency | lower | upper`: a range
+//! of four columns or a text of rows separated by `;`, cells by `|`
+//! (`"gainDb | 1k | 33.5813 | 33.6681; bandwidthHz | | 200k"`); an empty lower
+//! or upper leaves that side open, and a trial passes the spec when every
+//! figure is within its limit at every temperature.
 //!
 //! The stage is the argument of the `STAGE.` functions (a range of name/value
 //! pairs or a text `"name=value, …"`). The spreads are a text of
@@ -29,6 +37,7 @@ use crate::sheet::errors::{CellError, ErrorKind};
 use crate::sheet::value::{Array, Unit, Value};
 use crate::stage::{Spread, SpreadPoint, Stage};
 use crate::tolerance::parts::{slot_value, NAMES, REFERENCE_C};
+use crate::tolerance::spec::MAX_LIMITS;
 use crate::tolerance::{
     monte_carlo, sensitivity, worst_case, AmplifierSpread, Figure, Limit, MonteCarloOptions,
     PartSpread, TolStage, DEFAULT_MAX_CORNERS,
@@ -96,6 +105,14 @@ const YIELD: &[Param] = &[
     SEED,
     TEMPERATURE,
 ];
+const SPEC: Param = req(
+    "spec",
+    "the limits, one row per limit: a range of four columns figure | frequency | lower | upper (the figure as TOLERANCE.YIELD's; frequency in Hz, empty 0; an empty lower or upper leaves that side open), or a text \"gainDb | 1k | 33.5 | 33.7; phaseMarginDeg | | 60\"",
+    "text",
+    "1 … 32 rows with a figure; lower ≤ upper; empty rows skipped",
+);
+const SPEC_YIELD: &[Param] = &[STAGE, SPREADS, SPEC, TRIALS, SEED, TEMPERATURE];
+const SPEC_WORST: &[Param] = &[STAGE, SPREADS, SPEC, TEMPERATURE];
 const MONTE: &[Param] = &[STAGE, SPREADS, FIGURE, FREQUENCY, TRIALS, SEED, TEMPERATURE];
 /// The amplifier figures a spread may be given for, with their names in the
 /// error messages.
@@ -324,26 +341,30 @@ fn temperature(a: &Args<'_>, i: usize) -> Result<[f64; 2], CellError> {
     }
 }
 
-/// The figure of arguments 2 and 3: a name, and for some a value after it
-/// (`"gainErrorPercent 48"`: the target gain; `"outputNoiseRms 10…20k"`: the
-/// band, Hz; `"settlingTimeS 0.1%"`: the band, a fraction).
+/// The figure of arguments 2 and 3 ([`figure_of`]).
 fn figure(a: &Args<'_>) -> Result<Figure, CellError> {
     let text = a.text(2)?;
+    let f = a.number(3)?;
+    figure_of(&text, f).map_err(|why| fail(a, &format!("figure: {why}")))
+}
+
+/// A figure from its text and frequency (Hz): a name, and for some a value
+/// after it (`"gainErrorPercent 48"`: the target gain; `"outputNoiseRms
+/// 10…20k"`: the band, Hz; `"settlingTimeS 0.1%"`: the band, a fraction). The
+/// one reader of a figure for the single-figure functions and the spec rows
+/// of `TOLERANCE.SPECYIELD`; the error is the reason, without the argument.
+fn figure_of(text: &str, f: f64) -> Result<Figure, String> {
     let text = text.trim();
     let (name, rest) = text
         .split_once(char::is_whitespace)
         .map_or((text, ""), |(n, r)| (n, r.trim()));
-    let f = a.number(3)?;
-    let needs = |what: &str| fail(a, &format!("figure: {name} needs {what} after its name"));
-    let bad = |e: crate::Error| fail(a, &format!("figure: \"{rest}\": {}", syntax(e)));
+    let needs = |what: &str| format!("{name} needs {what} after its name");
+    let bad = |e: crate::Error| format!("\"{rest}\": {}", syntax(e));
     let plain = |fig: Figure| {
         if rest.is_empty() {
             Ok(fig)
         } else {
-            Err(fail(
-                a,
-                &format!("figure: {name} takes nothing after its name (\"{rest}\")"),
-            ))
+            Err(format!("{name} takes nothing after its name (\"{rest}\")"))
         }
     };
     match name {
@@ -379,12 +400,9 @@ fn figure(a: &Args<'_>) -> Result<Figure, CellError> {
         "settlingTimeS" => Ok(Figure::SettlingTimeS {
             band: read(rest, &ReadOptions::CELL).map_err(bad)?.value,
         }),
-        other => Err(fail(
-            a,
-            &format!(
-                "figure: unknown figure \"{other}\"; the figures are {}",
-                crate::tolerance::FIGURE_NAMES
-            ),
+        other => Err(format!(
+            "unknown figure \"{other}\"; the figures are {}",
+            crate::tolerance::FIGURE_NAMES
         )),
     }
 }
@@ -572,6 +590,238 @@ fn tighten(a: &Args<'_>) -> Value {
     }
 }
 
+/// The columns of a spec row, left to right.
+const SPEC_COLUMNS: [&str; 4] = ["figure", "frequency", "lower", "upper"];
+
+/// The rows of the spec argument `i` as cells: a range of four columns, or a
+/// text of rows separated by `;` (or line breaks) with the four cells of a
+/// row separated by `|` (a row may stop early: the cells left out are empty),
+/// each number cell read by [`crate::notation::read`].
+fn spec_cells(a: &Args<'_>, i: usize) -> Result<Vec<[Value; 4]>, CellError> {
+    let bad = |what: &str| fail(a, &format!("spec: {what}"));
+    match a.get(i) {
+        Value::Array(arr) if arr.cols() == 4 => Ok((0..arr.rows())
+            .map(|r| [arr.get(r, 0), arr.get(r, 1), arr.get(r, 2), arr.get(r, 3)])
+            .collect()),
+        Value::Array(arr) => Err(bad(&format!(
+            "a range of four columns, figure | frequency | lower | upper, one row per limit; this one has {} column{}",
+            arr.cols(),
+            if arr.cols() == 1 { "" } else { "s" }
+        ))),
+        Value::Text(t) => {
+            let mut rows = Vec::new();
+            for (r, line) in t.split([';', '\n']).enumerate() {
+                let cells: Vec<&str> = line.split('|').map(str::trim).collect();
+                if cells.len() > 4 {
+                    return Err(bad(&format!(
+                        "row {}: {} cells; a row has four, figure | frequency | lower | upper",
+                        r + 1,
+                        cells.len()
+                    )));
+                }
+                let mut row = [Value::Empty, Value::Empty, Value::Empty, Value::Empty];
+                for (c, cell) in cells.iter().enumerate() {
+                    row[c] = match (c, cell.is_empty()) {
+                        (_, true) => Value::Empty,
+                        (0, false) => Value::Text((*cell).into()),
+                        _ => match read(cell, &ReadOptions::VALUE) {
+                            Ok(x) => Value::num(x.value),
+                            Err(e) => {
+                                return Err(bad(&format!(
+                                    "row {}: {}: \"{cell}\": {}",
+                                    r + 1,
+                                    SPEC_COLUMNS[c],
+                                    syntax(e)
+                                )))
+                            }
+                        },
+                    };
+                }
+                rows.push(row);
+            }
+            Ok(rows)
+        }
+        Value::Error(e) => Err(e.clone()),
+        _ => Err(bad(
+            "a range of four columns (figure | frequency | lower | upper) or a text \"figure | frequency | lower | upper; …\"",
+        )),
+    }
+}
+
+/// The spec argument `i`: one limit per row of figure | frequency | lower |
+/// upper ([`spec_cells`]). The figure is read as the single-figure functions
+/// read it ([`figure_of`]); an empty frequency is 0 Hz (figures without one
+/// ignore it); an empty lower or upper cell leaves that side open. Empty rows
+/// are skipped, and a first row whose figure cell is the caption `figure`.
+/// At most [`MAX_LIMITS`] limits. Every error names the row (counted in the
+/// range, from 1) and the column.
+fn spec_of(a: &Args<'_>, i: usize) -> Result<Vec<Limit>, CellError> {
+    let bad = |what: &str| fail(a, &format!("spec: {what}"));
+    let rows = spec_cells(a, i)?;
+    let mut spec = Vec::new();
+    for (r, cells) in rows.iter().enumerate() {
+        let at = r + 1;
+        if cells.iter().all(|c| matches!(c, Value::Empty)) {
+            continue;
+        }
+        let text = match &cells[0] {
+            Value::Text(t) if r == 0 && t.trim().eq_ignore_ascii_case("figure") => continue,
+            Value::Text(t) => t,
+            Value::Error(e) => return Err(e.clone()),
+            _ => {
+                return Err(bad(&format!(
+                    "row {at}: figure: a text naming the figure (\"gainDb\", \"phaseMarginDeg\", …)"
+                )))
+            }
+        };
+        let mut numbers = [None; 3];
+        for (k, cell) in cells[1..].iter().enumerate() {
+            numbers[k] = match cell {
+                Value::Number(x, _) => Some(*x),
+                Value::Empty => None,
+                Value::Error(e) => return Err(e.clone()),
+                other => {
+                    return Err(bad(&format!(
+                        "row {at}: {}: a number{}, not {}",
+                        SPEC_COLUMNS[k + 1],
+                        if k == 0 {
+                            " in Hz (empty: 0)"
+                        } else {
+                            " (empty: that side open)"
+                        },
+                        match other {
+                            Value::Text(t) => format!("the text \"{t}\""),
+                            _ => String::from("a truth value"),
+                        }
+                    )))
+                }
+            };
+        }
+        let [freq, lower, upper] = numbers;
+        let figure = figure_of(text, freq.unwrap_or(0.0))
+            .map_err(|why| bad(&format!("row {at}: figure: {why}")))?;
+        figure
+            .validate()
+            .map_err(|e| bad(&format!("row {at}: figure: {e}")))?;
+        if let (Some(lo), Some(hi)) = (lower, upper) {
+            if lo > hi {
+                return Err(bad(&format!(
+                    "row {at}: lower ({lo}) is above upper ({hi})"
+                )));
+            }
+        }
+        if spec.len() == MAX_LIMITS {
+            return Err(bad(&format!(
+                "at most {MAX_LIMITS} limits (rows with a figure); row {at} is one more"
+            )));
+        }
+        spec.push(Limit {
+            figure,
+            lower,
+            upper,
+        });
+    }
+    if spec.is_empty() {
+        return Err(bad(
+            "no limit: give one row per limit, figure | frequency | lower | upper",
+        ));
+    }
+    Ok(spec)
+}
+
+/// What each column of `TOLERANCE.SPECYIELD` holds.
+const SPEC_YIELD_COLUMNS: &[&str] = &[
+    "yield, 0 … 1 (first row: every limit together; then one row per limit, in the spec's order)",
+    "trials failing (a figure that cannot be computed in a trial fails its limit)",
+    "nominal: the figure at nominal parts (the low end of the temperature range); first row #N/A",
+    "mean of the figure over the trials and temperatures; first row #N/A",
+    "lowest value seen; first row #N/A",
+    "highest value seen; first row #N/A",
+];
+
+fn spec_yield(a: &Args<'_>) -> Value {
+    let ts = tri!(tol_stage(a, 5));
+    let spec = tri!(spec_of(a, 2));
+    let o = tri!(run_options(a, 3));
+    let mc = match monte_carlo(&ts, &spec, o) {
+        Ok(mc) => mc,
+        Err(e) => return Value::Error(tol_fail(a, e)),
+    };
+    let n = mc.trials as f64;
+    let na = |what: &str| Value::error(ErrorKind::NotAvailable, what);
+    let together = "every limit together: no single figure";
+    let mut items = vec![
+        Value::num(mc.yield_fraction),
+        Value::num(mc.failed_count as f64),
+        na(together),
+        na(together),
+        na(together),
+        na(together),
+    ];
+    for l in &mc.limits {
+        // yield_fraction is passing/trials: the count back, exactly.
+        let failing = n - libm::round(l.yield_fraction * n);
+        items.extend([
+            Value::num(l.yield_fraction),
+            Value::num(failing),
+            l.nominal
+                .first()
+                .map_or_else(|| na("no temperature"), |x| Value::num(*x)),
+        ]);
+        match &l.stats {
+            Some(st) => items.extend([Value::num(st.mean), Value::num(st.min), Value::num(st.max)]),
+            None => {
+                let none = "the figure could be computed in fewer than 2 trials";
+                items.extend([na(none), na(none), na(none)]);
+            }
+        }
+    }
+    let rows = u32::try_from(mc.limits.len() + 1).unwrap_or(u32::MAX);
+    let cols = u32::try_from(SPEC_YIELD_COLUMNS.len()).unwrap_or(u32::MAX);
+    Array::new(rows, cols, items).map_or_else(
+        || Value::error(ErrorKind::Value, "empty result"),
+        Value::Array,
+    )
+}
+
+/// What each column of `TOLERANCE.SPECWORST` holds.
+const SPEC_WORST_COLUMNS: &[&str] = &[
+    "lowest value (one row per limit after the first, in the spec's order); first row #N/A",
+    "nominal: the figure at nominal parts (the low end of the temperature range); first row #N/A",
+    "highest value; first row #N/A",
+    "meets: TRUE when lowest and highest are within the limit (first row: every limit)",
+];
+
+fn spec_worst(a: &Args<'_>) -> Value {
+    let ts = tri!(tol_stage(a, 3));
+    let spec = tri!(spec_of(a, 2));
+    let w = match worst_case(&ts, &spec, DEFAULT_MAX_CORNERS) {
+        Ok(w) => w,
+        Err(e) => return Value::Error(tol_fail(a, e)),
+    };
+    let na = || {
+        Value::error(
+            ErrorKind::NotAvailable,
+            "every limit together: no single figure",
+        )
+    };
+    let mut items = vec![na(), na(), na(), Value::Bool(w.meets)];
+    for f in &w.figures {
+        items.extend([
+            Value::num(f.min.value),
+            Value::num(f.nominal),
+            Value::num(f.max.value),
+            Value::Bool(f.meets),
+        ]);
+    }
+    let rows = u32::try_from(w.figures.len() + 1).unwrap_or(u32::MAX);
+    let cols = u32::try_from(SPEC_WORST_COLUMNS.len()).unwrap_or(u32::MAX);
+    Array::new(rows, cols, items).map_or_else(
+        || Value::error(ErrorKind::Value, "empty result"),
+        Value::Array,
+    )
+}
+
 /// The examples' stage: gain 48 (47k/1k), A0 50k … 200k … 1M, GBW 10 MHz.
 macro_rules! gain48 {
     () => {
@@ -671,5 +921,37 @@ pub static FUNCTIONS: &[FunctionSpec] = &[
             tolerance: &[],
         },
         eval: tighten,
+    },
+    FunctionSpec {
+        name: "TOLERANCE.SPECYIELD",
+        area: "tolerance",
+        summary: "Seeded Monte Carlo yield of a stage against a whole spec (several figures' limits judged together, one row per limit in cells): the yield of every limit together and of each, the trials failing, and each figure's nominal, mean, lowest and highest value seen",
+        params: SPEC_YIELD,
+        repeats: false,
+        result_unit: "1; 1; the figure's unit; the figure's unit; the figure's unit; the figure's unit",
+        spill: SPEC_YIELD_COLUMNS,
+        example: Example {
+            formula: "=TOLERANCE.SPECYIELD(\"kind=non-inverting, a0=1e12, gbwHz=10M, rf=47k, rg=1k\"; \"rf=1%, rg=1%\"; \"gainDb | 0 | 33.5813 | 33.6681; bandwidthHz | | 208k\"; 20000; 1)",
+            expected: Expected::Numbers(&[0.3015732270004882, 13968.535459990237, f64::NAN, f64::NAN, f64::NAN, f64::NAN, 0.44518771230688964, 11096.245753862207, 33.62482474709482, 33.624830654060396, 33.45475607219038, 33.794964304078746, 0.5784230154145673, 8431.539691708653, 208333.33334333333, 208339.8501479063, 204292.1997523731, 212452.6714345814]),
+            source: "both limits on F = 20·log10(1 + Rf/Rg) (the bandwidth GBW·(β + 1/A0) ≥ 208 kHz is |G(0)| ≤ 1/0.0208): the exact shares of the square of Rf, Rg uniform over ±1 % within each limit and within both, by mpmath; means by quadrature; lowest and highest seen are the square's corners (tests/reference/sheet_catalog.py); the seeded sample agrees within 4 standard errors (5 for the means), the extremes within the gap 20000 draws leave; NaN marks the first row's #N/A cells",
+            tolerance: &[0.04304364504440137, 0.018585786570230415, 0.0, 0.0, 0.0, 0.0, 0.03157522432108086, 0.025336320396808346, 1e-12, 7.30180286443405e-05, 0.00018891607516435534, 0.0001871673145133307, 0.024146859629453052, 0.03313060216841625, 1e-09, 0.0002826684675504447, 0.0007284937608376595, 0.0007273684863010181],
+        },
+        eval: spec_yield,
+    },
+    FunctionSpec {
+        name: "TOLERANCE.SPECWORST",
+        area: "tolerance",
+        summary: "Worst case of a stage against a whole spec (several figures' limits, one row per limit in cells): each figure's lowest, nominal and highest value over the parts' spreads and a temperature range, and whether it meets its limit; first row: every limit",
+        params: SPEC_WORST,
+        repeats: false,
+        result_unit: "the figure's unit; the figure's unit; the figure's unit; 1",
+        spill: SPEC_WORST_COLUMNS,
+        example: Example {
+            formula: "=TOLERANCE.SPECWORST(\"kind=non-inverting, a0=1e12, gbwHz=10M, rf=47k, rg=1k\"; \"rf=1%, rg=1%\"; \"gainDb | 0 | 33.4 | 33.8; bandwidthHz | | 208k\")",
+            expected: Expected::Numbers(&[f64::NAN, f64::NAN, f64::NAN, 0.0, 33.45475607178154, 33.62482474709482, 33.79496430365358, 1.0, 204292.1997623731, 208333.33334333333, 212452.6714445814, 0.0]),
+            source: "|G(0)| = 1/(β + 1/A0) and the bandwidth GBW·(β + 1/A0), β = Rg/(Rf + Rg), monotonic in β: the extremes at the corners Rf +1 %, Rg −1 % and the reverse, by mpmath (tests/reference/sheet_catalog.py); the gain within 33.4 … 33.8 dB at both, the bandwidth below 208 kHz at one, so the spec fails; NaN marks the first row's #N/A cells",
+            tolerance: &[0.0, 0.0, 0.0, 0.0, 1e-12, 1e-12, 1e-12, 0.0, 1e-09, 1e-09, 1e-09, 0.0],
+        },
+        eval: spec_worst,
     },
 ];

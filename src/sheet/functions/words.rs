@@ -187,6 +187,14 @@ const WORDS: &[(&str, &str)] = &[
         "monte carlo yield spec limits tolerance normal gaussian sigma uniform tempco temperature production",
     ),
     (
+        "TOLERANCE.SPECYIELD",
+        "spec specification limits several figures together overall yield per limit pass fail production test gain bandwidth phase margin datasheet table monte carlo",
+    ),
+    (
+        "TOLERANCE.SPECWORST",
+        "spec specification limits several figures together worst case corners extreme min max pass fail guaranteed datasheet table",
+    ),
+    (
         "TOLERANCE.MONTECARLO",
         "monte carlo distribution percentile histogram mean standard deviation sigma spread tolerance tempco",
     ),
@@ -241,6 +249,8 @@ mod tests {
         assert!(search_words("DISTORTION.HD").contains("thd"));
         assert!(search_words("TOLERANCE.TIGHTEN").contains("tighten"));
         assert!(search_words("TOLERANCE.WORSTCASE").contains("ppm/K"));
+        assert!(search_words("TOLERANCE.SPECYIELD").contains("specification"));
+        assert!(search_words("TOLERANCE.SPECYIELD").contains("overall yield"));
         assert_eq!(search_words("NO.SUCH"), "");
     }
 }
