@@ -108,6 +108,14 @@ const FIGURES: &[&str] = &[
     "\"gainErrorPercent 48\"",
     "\"gainErrorPercent 0\"",
     "\"gainErrorPercent -1e308\"",
+    "\"gainErrorPercent 1e-320\"",
+    "\"gainErrorPercent 1e308\"",
+    "\"settlingTimeS 50%\"",
+    "\"settlingTimeS 49.999%\"",
+    "\"inputNoiseRms 10…1e308\"",
+    "\"outputNoiseRms 1e-320…1e-319\"",
+    "\"bandwidthHz\"",
+    "\"peakingDb\"",
     "\"outputNoiseRms 10…20k\"",
     "\"outputNoiseRms 20k…10\"",
     "\"outputNoiseRms 0…1e308\"",
@@ -142,6 +150,10 @@ const TEMPS: &[&str] = &[
     "; \"\"",
     "; 1/0",
     "; \"NaN\"",
+    "; Z1:Z2",
+    "; Z1:Z3",
+    "; Z1",
+    "; TRUE",
 ];
 const SEEDS: &[&str] = &["1", "0", "-1", "1e308", "4294967296", "\"s\""];
 const LIMITS: &[&str] = &[

@@ -19,6 +19,8 @@ test(`${CALLS} hostile calls: no trap, no NaN or ∞, every refusal typed, modul
   const r = campaign(lw, { calls: CALLS, seed: SEED });
   assert.deepEqual(r.missing, [], 'every export and method has a working call in the table');
   assert.equal(r.figures.calls, CALLS);
+  // The fixed hostile circuit documents and spreads texts ran too.
+  assert.ok(r.figures.once >= 100, `once ${r.figures.once}`);
   assert.ok(Object.keys(goodCalls()).length >= 70, 'the table covers the exports');
   assert.equal(r.figures.traps, 0, `traps: ${r.examples.join('; ')}`);
   assert.equal(r.figures.nonFinite, 0, `non-finite results: ${r.examples.join('; ')}`);
