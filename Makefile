@@ -55,10 +55,16 @@ test-sheetfiles:
 # the way goes to a scratch corpus, so the committed one stays as it is. A long run:
 #   make test-fuzz FUZZ_SECONDS=3600
 FUZZ_SECONDS ?= 60
+# Then the spreads reader's target (fuzz/fuzz_targets/spread.rs) from fuzz/corpus/spread.
+FUZZ_SPREAD_SECONDS ?= 20
 test-fuzz:
 	scratch=$$(mktemp -d) && \
 	cargo +nightly fuzz run formula "$$scratch" fuzz/corpus/formula -- \
 	  -max_total_time=$(FUZZ_SECONDS) -timeout=10 -rss_limit_mb=2048 -print_final_stats=1; \
+	status=$$?; rm -rf "$$scratch"; [ $$status -eq 0 ] || exit $$status; \
+	scratch=$$(mktemp -d) && \
+	cargo +nightly fuzz run spread "$$scratch" fuzz/corpus/spread -- \
+	  -max_total_time=$(FUZZ_SPREAD_SECONDS) -timeout=10 -rss_limit_mb=2048 -print_final_stats=1; \
 	status=$$?; rm -rf "$$scratch"; exit $$status
 
 test-reference:

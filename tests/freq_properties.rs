@@ -506,3 +506,88 @@ fn a_narrow_resonance_gives_the_same_margins_at_any_grid_density() {
     // Most cases do cross unity twice.
     assert!(two.get() >= 15, "only {} of 40 cross twice", two.get());
 }
+
+/// Real-factor models with clustered and far-apart poles and LHP/RHP zeros (at
+/// most 8 a side, so `loop_gain_sweep` multiplies them out and steps by Horner).
+fn real_factor_loop() -> impl Strategy<Value = (FeedbackLoop, Vec<(f64, bool)>, Vec<f64>, f64)> {
+    (
+        -2.0..2.0f64,
+        // Pole groups: a centre (log10 Hz) and how many poles sit within 1e-6
+        // relative of it (clustered) — far apart when the centres differ.
+        prop::collection::vec((-1.0..9.0f64, 1usize..=3), 1..=4),
+        prop::collection::vec((-1.0..9.0f64, any::<bool>()), 0..=8),
+        prop::bool::ANY,
+    )
+        .prop_map(|(g, groups, zeros, negative)| {
+            let mut poles = Vec::new();
+            for (c, n) in groups {
+                for k in 0..n {
+                    poles.push(10f64.powf(c) * (1.0 + 1e-6 * k as f64));
+                }
+            }
+            poles.truncate(8);
+            // Proper: no more zeros than poles.
+            let zeros: Vec<(f64, bool)> = zeros
+                .into_iter()
+                .take(poles.len())
+                .map(|(z, r)| (10f64.powf(z), r))
+                .collect();
+            let k = if negative {
+                -10f64.powf(g)
+            } else {
+                10f64.powf(g)
+            };
+            let mut m = TransferModel::constant(k);
+            for &p in &poles {
+                m = m.pole(p);
+            }
+            for &(z, rhp) in &zeros {
+                m = if rhp { m.rhp_zero(z) } else { m.zero(z) };
+            }
+            let l = FeedbackLoop::with_constant_beta(m, 0.5).unwrap();
+            (l, zeros, poles, k * 0.5)
+        })
+}
+
+#[test]
+fn pole_list_sweep_equals_the_per_factor_product() {
+    // The stepped Horner sweep of a multiplied-out real-factor model against the
+    // per-factor product evaluated here (Σ ln|1 ± j·f/f_i|, Σ ±atan(f/f_i)). Bound:
+    // Expanded's 6.4e-14 on ln|T| and arg T (Higham, Accuracy and Stability of
+    // Numerical Algorithms, 2nd ed., 5.1, from memory; src/freq/eval.rs) and the
+    // stepped sweep's 1e-13·max(1, |ln|T||) and 1e-12·max(1, |arg T|) of its unit
+    // tests; phases compared modulo 360°.
+    runner(64, 31)
+        .run(&real_factor_loop(), |(l, zeros, poles, k)| {
+            let s = loopwright::freq::loop_gain_sweep(&l, 0.01, 1e10, 1201)
+                .map_err(|e| TestCaseError::fail(format!("{e}")))?;
+            for (i, &f) in s.freq_hz.iter().enumerate() {
+                let mut ln = k.abs().ln();
+                let mut ph = if k < 0.0 { std::f64::consts::PI } else { 0.0 };
+                for &(z, rhp) in &zeros {
+                    let x = f / z;
+                    ln += 0.5 * x.mul_add(x, 1.0).ln();
+                    ph += if rhp { -x.atan() } else { x.atan() };
+                }
+                for &p in &poles {
+                    let x = f / p;
+                    ln -= 0.5 * x.mul_add(x, 1.0).ln();
+                    ph -= x.atan();
+                }
+                let got_ln = s.magnitude_db[i] * std::f64::consts::LN_10 / 20.0;
+                prop_assert!(
+                    (got_ln - ln).abs() <= 1e-13 * ln.abs().max(1.0) + 1e-15,
+                    "f = {f}: ln|T| {got_ln} vs {ln}"
+                );
+                let got = s.phase_deg[i].to_radians();
+                let d = (got - ph).rem_euclid(std::f64::consts::TAU);
+                let d = d.min(std::f64::consts::TAU - d);
+                prop_assert!(
+                    d <= 1e-12 * ph.abs().max(1.0),
+                    "f = {f}: arg T {got} vs {ph} (diff {d})"
+                );
+            }
+            Ok(())
+        })
+        .unwrap();
+}

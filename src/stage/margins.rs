@@ -570,4 +570,81 @@ mod tests {
             }
         }
     }
+    /// Warm-started margins equal the full hinted grid's, bit for bit, for
+    /// random nominal stages (feedback resistor, load capacitance, GBW and Ro
+    /// over decades) and random trials around them (within ±20 %, the spreads
+    /// of a Monte Carlo run, and far off, where the guard takes the full grid).
+    #[test]
+    fn warm_start_equals_the_full_grid_on_random_stages() {
+        use proptest::prelude::*;
+        use proptest::test_runner::{Config, RngAlgorithm, TestRng, TestRunner};
+        let mut runner = TestRunner::new_with_rng(
+            Config {
+                cases: 64,
+                failure_persistence: None,
+                ..Config::default()
+            },
+            TestRng::from_seed(RngAlgorithm::ChaCha, &[18; 32]),
+        );
+        let nominal = (3.0..5.5f64, -12.0..-7.5f64, 6.0..8.0f64, any::<bool>());
+        let trial = prop::collection::vec((-0.2..0.2f64, -0.2..0.2f64, -0.2..0.2f64), 4);
+        runner
+            .run(
+                &(nominal, trial, -1.0..1.0f64),
+                |((rf, cl, gbw, gain_margin), trials, far)| {
+                    let (rf, cl, gbw) = (10f64.powf(rf), 10f64.powf(cl), 10f64.powf(gbw));
+                    let warm = LoopHints::of(&stage(rf, cl, gbw), "U1", gain_margin)
+                        .map_err(|e| TestCaseError::fail(alloc::format!("{e:?}")))?;
+                    // The warm start is in play (a nominal profile with quiet points).
+                    prop_assert!(warm.profile.is_some());
+                    let cold = LoopHints {
+                        profile: None,
+                        ..warm.clone()
+                    };
+                    let mut cases: alloc::vec::Vec<(f64, f64, f64)> = trials
+                        .iter()
+                        .map(|&(a, b, c)| (rf * (1.0 + a), cl * (1.0 + b), gbw * (1.0 + c)))
+                        .collect();
+                    // One far from the nominal (a decade off in the load).
+                    cases.push((rf, cl * 10f64.powf(far.signum()), gbw));
+                    for (rf, cl, gbw) in cases {
+                        let c = stage(rf, cl, gbw);
+                        let a = circuit_margins_hinted(&c, "U1", &warm);
+                        let b = circuit_margins_hinted(&c, "U1", &cold);
+                        let (a, b) = match (a, b) {
+                            (Ok(a), Ok(b)) => (a, b),
+                            (Err(x), Err(y)) => {
+                                prop_assert_eq!(x, y);
+                                continue;
+                            }
+                            (a, b) => {
+                                return Err(TestCaseError::fail(alloc::format!(
+                                    "rf {rf} cl {cl} gbw {gbw}: {a:?} vs {b:?}"
+                                )))
+                            }
+                        };
+                        let bits = |x: Option<f64>| x.map(f64::to_bits);
+                        let what = alloc::format!("rf {rf} cl {cl} gbw {gbw}: {a:?} vs {b:?}");
+                        prop_assert_eq!(
+                            bits(a.phase_margin_deg),
+                            bits(b.phase_margin_deg),
+                            "{}",
+                            what
+                        );
+                        prop_assert_eq!(bits(a.crossover_hz), bits(b.crossover_hz), "{}", what);
+                        prop_assert_eq!(a.closed_loop, b.closed_loop, "{}", what);
+                        if gain_margin {
+                            prop_assert_eq!(
+                                bits(a.gain_margin_db),
+                                bits(b.gain_margin_db),
+                                "{}",
+                                what
+                            );
+                        }
+                    }
+                    Ok(())
+                },
+            )
+            .unwrap();
+    }
 }

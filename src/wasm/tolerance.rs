@@ -846,7 +846,9 @@ fn run(
             return Err(thrown(&alloc::format!("analyses[{k}]"), e, "", None));
         }
     }
-    let max_corners = whole("maxCorners", o.max_corners, usize::MAX)?;
+    // The analyses' own limits: usize::MAX here (2^32 − 1 in wasm) named a limit
+    // that is not one (`trials: 2**53` said "the limit is 4294967295").
+    let max_corners = whole("maxCorners", o.max_corners, crate::tolerance::MAX_CORNERS)?;
     let worst = wants("worstCase")
         .then(|| worst_case(ts, spec, max_corners))
         .transpose()
@@ -856,9 +858,13 @@ fn run(
             crate::network::seed_from_number(o.seed).map_err(|e| thrown("seed", e, "", None))?;
         let options = MonteCarloOptions {
             seed,
-            trials: whole("trials", o.trials, usize::MAX)?,
-            bins: whole("bins", o.bins, usize::MAX)?,
-            keep_failures: whole("keepFailures", o.keep_failures, usize::MAX)?,
+            trials: whole("trials", o.trials, crate::tolerance::MAX_TRIALS)?,
+            bins: whole("bins", o.bins, crate::network::montecarlo::MAX_BINS)?,
+            keep_failures: whole(
+                "keepFailures",
+                o.keep_failures,
+                crate::tolerance::montecarlo::MAX_KEPT_FAILURES,
+            )?,
         };
         Some(monte_carlo(ts, spec, options).map_err(&analysis)?)
     } else {

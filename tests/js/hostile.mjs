@@ -1,7 +1,12 @@
 // The hostile-call campaign of the JS API: every export and every Worksheet method
 // called with wrong types (null, undefined, BigInt, Symbol, strings for numbers,
 // numbers for strings), throwing getters, Proxies whose traps throw, huge lengths and
-// extreme numbers (5e-324, 1e308, ±Infinity, NaN), seeded and reproducible.
+// extreme numbers (5e-324, 1e308, ±Infinity, NaN), seeded and reproducible; and the
+// newer option forms: stageTolerance on circuit documents (no amplifier, two
+// amplifiers, ports naming missing nodes, zero-value elements, 0 % and 100 %
+// tolerances, temperatures reversed or at the limits, 2 trials and the most) and the
+// worksheet's TOLERANCE functions with hostile spreads texts (extreme, NaN, negative,
+// huge, empty, unicode, very long), read back cell by cell.
 //
 // What it counts (and the test asserts): traps (a WebAssembly RuntimeError), NaN or
 // ±Infinity in a returned number or array, refusals that are not a LoopwrightError
@@ -355,6 +360,264 @@ export function goodCalls() {
   };
 }
 
+/** A circuit document with one amplifier inside an RC loop (element spreads of its own). */
+const RCLOOP = () => ({
+  format: 'loopwright-circuit',
+  version: 2,
+  elements: [
+    { name: 'Vs', kind: 'voltage-source', nodes: ['in', '0'], value: 1 },
+    {
+      name: 'U1',
+      kind: 'amplifier',
+      nodes: ['out', '0'],
+      control: ['in', 'fb'],
+      model: { a0: { min: 5e4, typ: 2e5, max: 1e6 }, gbwHz: 1e7, ro: 0 },
+    },
+    {
+      name: 'R3',
+      kind: 'resistor',
+      nodes: ['out', 'x'],
+      value: '1k',
+      tolerance: { distribution: 'uniform', percent: 5 },
+    },
+    {
+      name: 'C3',
+      kind: 'capacitor',
+      nodes: ['x', '0'],
+      value: '100p',
+      tolerance: { distribution: 'normal', percent: 10, sigmas: 3 },
+      tempco: 30,
+    },
+    {
+      name: 'Rf',
+      kind: 'resistor',
+      nodes: ['x', 'fb'],
+      value: '9k',
+      tolerance: { distribution: 'uniform', percent: 1 },
+    },
+    {
+      name: 'Rg',
+      kind: 'resistor',
+      nodes: ['fb', '0'],
+      value: '1k',
+      tolerance: { distribution: 'uniform', percent: 1 },
+    },
+  ],
+});
+/** RCLOOP with its elements changed by `edit` (index → element or null to drop). */
+const rcloopWith = (edit) => {
+  const c = RCLOOP();
+  const n = Math.max(c.elements.length, ...Object.keys(edit).map((k) => Number(k) + 1));
+  c.elements = Array.from({ length: n }, (_, i) => (i in edit ? edit[i] : c.elements[i])).filter(
+    (e) => e !== null && e !== undefined,
+  );
+  return c;
+};
+const U2 = {
+  name: 'U2',
+  kind: 'amplifier',
+  nodes: ['y', '0'],
+  control: ['out', 'y'],
+  model: { a0: { min: 5e4, typ: 2e5, max: 1e6 }, gbwHz: 1e7, ro: 10 },
+};
+const resistor = (name, nodes, value, percent) => ({
+  name,
+  kind: 'resistor',
+  nodes,
+  value,
+  tolerance: { distribution: 'uniform', percent },
+});
+const circuitTolerance = (extra) => ({
+  circuit: RCLOOP(),
+  input: 'Vs',
+  output: 'out',
+  amplifierSpread: { gbwHz: { min: 7e6, typ: 1e7, max: 1.3e7 } },
+  spec: [
+    { figure: 'gainDb', freqHz: 1e4 },
+    { figure: 'phaseMarginDeg', lower: 45 },
+  ],
+  trials: 20,
+  seed: 3,
+  ...extra,
+});
+/** A spreads text that TOLERANCE.* read (the gain-48 stage of docs/tolerance.md). */
+const GAIN48 = '"kind=non-inverting, a0=200k, a0Min=50k, a0Max=1M, gbwHz=10M, rf=47k, rg=1k"';
+const toleranceFormula = (spreads, rest = '"gainDb"; 1 kHz') =>
+  `=TOLERANCE.WORSTCASE(${GAIN48}; "${spreads}"; ${rest})`;
+
+/**
+ * More working calls of exports already in goodCalls, for option forms added later:
+ * stageTolerance with a circuit document (and its edge cases that still compute),
+ * and the worksheet's TOLERANCE functions read back (`Worksheet.tolerance`: setCell of
+ * the formula, then the values of its spill). Each is mutated like the others.
+ */
+export function variantCalls() {
+  return [
+    ['stageTolerance', [circuitTolerance({})]],
+    ['stageTolerance', [circuitTolerance({ outputMinus: 'x', controlled: 'U1' })]],
+    // Two amplifiers, `controlled` naming one (without it only gain figures compute).
+    [
+      'stageTolerance',
+      [
+        circuitTolerance({
+          circuit: rcloopWith({ 6: U2, 7: resistor('RL', ['y', '0'], '2k', 1) }),
+          output: 'y',
+          controlled: 'U1',
+        }),
+      ],
+    ],
+    [
+      'stageTolerance',
+      [
+        circuitTolerance({
+          circuit: rcloopWith({ 6: U2 }),
+          output: 'y',
+          amplifierSpread: undefined,
+          spec: [{ figure: 'gainDb', freqHz: 1e3 }],
+        }),
+      ],
+    ],
+    // No amplifier: an RC divider's gain.
+    [
+      'stageTolerance',
+      [
+        circuitTolerance({
+          circuit: rcloopWith({ 1: resistor('R1', ['in', 'out'], '1k', 1), 4: null, 5: null }),
+          amplifierSpread: undefined,
+          spec: [{ figure: 'gainDb', freqHz: 1e3 }],
+        }),
+      ],
+    ],
+    // 0 % and 99.99 % tolerances, 2 trials, the temperature limits.
+    [
+      'stageTolerance',
+      [
+        circuitTolerance({
+          circuit: rcloopWith({
+            2: resistor('R3', ['out', 'x'], '1k', 0),
+            4: resistor('Rf', ['x', 'fb'], '9k', 99.99),
+          }),
+          trials: 2,
+          temperatureC: [-273.15, 1000],
+        }),
+      ],
+    ],
+    [
+      'Worksheet.tolerance',
+      [toleranceFormula('rf=1% 25ppm/K, rg=1% -25ppm/K', '"gainDb"; 1 kHz; "0…70"')],
+    ],
+    ['Worksheet.tolerance', [toleranceFormula('rf=0%, rg=99.99%')]],
+    [
+      'Worksheet.tolerance',
+      [
+        `=TOLERANCE.MONTECARLO(${GAIN48}; "rf=1% normal 3σ, gbw=7M/10M/13M"; "phaseMarginDeg"; 0; 2; 1)`,
+      ],
+    ],
+    [
+      'Worksheet.tolerance',
+      [`=TOLERANCE.SENSITIVITY(${GAIN48}; "rf=46k…48k, rg=990/1k/1010"; "settlingTimeS 0.1%"; 0)`],
+    ],
+    [
+      'Worksheet.tolerance',
+      [`=TOLERANCE.YIELD(${GAIN48}; "rf=1%"; "outputNoiseRms 10…20k"; 0; 0; 1; 7; 7; -273.15)`],
+    ],
+    ['Worksheet.tolerance', [`=TOLERANCE.TIGHTEN(${GAIN48}; "rf=5%, rg=0.1%"; "gainDb"; 1 kHz)`]],
+  ];
+}
+
+/**
+ * Circuit documents and ports for stageTolerance at and past the limits, called once
+ * each: the most trials, and documents that must be refused typed.
+ */
+export function hostileCircuitTolerance() {
+  return [
+    circuitTolerance({
+      analyses: ['monteCarlo'],
+      spec: [{ figure: 'gainDb', freqHz: 1e3 }],
+      trials: 100_000,
+    }),
+    circuitTolerance({ output: 'nowhere' }),
+    circuitTolerance({ outputMinus: 'nowhere' }),
+    circuitTolerance({ input: 'R3' }),
+    circuitTolerance({ input: '' }),
+    circuitTolerance({ controlled: 'Rf' }),
+    circuitTolerance({ controlled: 'ｕ１' }),
+    circuitTolerance({ output: 'x'.repeat(100_000) }),
+    // Two amplifiers and no `controlled`: the margin has no loop to read.
+    circuitTolerance({
+      circuit: rcloopWith({ 6: U2, 7: resistor('RL', ['y', '0'], '2k', 1) }),
+      amplifierSpread: undefined,
+    }),
+    // No amplifier, a margin asked.
+    circuitTolerance({
+      circuit: rcloopWith({ 1: resistor('R1', ['in', 'out'], '1k', 1), 4: null, 5: null }),
+      amplifierSpread: undefined,
+    }),
+    circuitTolerance({ circuit: rcloopWith({ 2: resistor('R3', ['out', 'x'], '1k', 100) }) }),
+    circuitTolerance({ circuit: rcloopWith({ 2: resistor('R3', ['out', 'x'], '1k', -1) }) }),
+    circuitTolerance({
+      circuit: rcloopWith({ 2: resistor('R3', ['out', 'x'], '1k', Number.NaN) }),
+    }),
+    circuitTolerance({ circuit: rcloopWith({ 2: resistor('R3', ['out', 'x'], '1k', Infinity) }) }),
+    // Zero-value elements (refused: a resistor or capacitor of 0 is not a part).
+    circuitTolerance({ circuit: rcloopWith({ 3: { ...RCLOOP().elements[3], value: 0 } }) }),
+    circuitTolerance({ circuit: rcloopWith({ 2: resistor('R3', ['out', 'x'], 0, 1) }) }),
+    circuitTolerance({ circuit: rcloopWith({ 2: resistor('R3', ['out', 'x'], '0', 0) }) }),
+    circuitTolerance({ circuit: rcloopWith({ 3: { ...RCLOOP().elements[3], tempco: 1e308 } }) }),
+    circuitTolerance({ temperatureC: [70, 0] }),
+    circuitTolerance({ temperatureC: [-273.16, 25] }),
+    circuitTolerance({ temperatureC: [25, 1000.5] }),
+    circuitTolerance({ temperatureC: [Number.NaN, 25] }),
+    circuitTolerance({ temperatureC: [] }),
+    circuitTolerance({ trials: 1 }),
+    circuitTolerance({ trials: 100_001 }),
+    circuitTolerance({ trials: 2 ** 53 }),
+    circuitTolerance({ amplifierSpread: { gbwHz: { min: 1.3e7, typ: 1e7, max: 7e6 } } }),
+    circuitTolerance({ amplifierSpread: { gbwHz: { min: 7e6, typ: 2e7, max: 1.3e7 } } }),
+    circuitTolerance({ amplifierSpread: { ro: { min: -1, typ: 0, max: 1 } } }),
+    circuitTolerance({ amplifierSpread: { gbwHz: { min: 0, typ: 1e7, max: Infinity } } }),
+    circuitTolerance({ stage: STAGE() }),
+    circuitTolerance({ circuit: { format: 'loopwright-circuit', version: 2, elements: [] } }),
+  ];
+}
+
+/** Spreads texts that TOLERANCE.* must refuse or read (never NaN or a trap). */
+export function hostileSpreads() {
+  return [
+    '',
+    ' ',
+    'rf=',
+    'rf=NaN%',
+    'rf=inf%',
+    'rf=Infinity',
+    'rf=1e308%',
+    'rf=1e-320%',
+    'rf=-1%',
+    'rf=100%',
+    'rf=0%',
+    'rf=1% 0σ',
+    'rf=1% 1e9σ',
+    'rf=1e308ppm/K',
+    'rf=±25ppm/K',
+    'rf=47.5k…46.5k',
+    'rf=0…1e308',
+    'rf=0/0/0',
+    'rf=1e-320/1e-310/1e-300',
+    'ｒｆ=１%',
+    'rf=𝟙%',
+    'rf=\u202e1%',
+    'rf=1%\u0000',
+    `rf=${'9'.repeat(100_000)}%`,
+    `rf=${'1% '.repeat(20_000)}`,
+    'rf=1%, rf=2%',
+    'rx=1%',
+    'a0=1M…50k',
+    'gbw=0/10M/1e308',
+    'ro=-1…70',
+    '…'.repeat(5000),
+  ];
+}
+
 /** Worksheet methods with arguments that work. */
 const SHEET_CALLS = {
   setCell: ['A1', '=FB.GAIN(100k; 0.01)'],
@@ -485,7 +748,16 @@ export function healthy(lw) {
 export function campaign(lw, { calls, seed, skip = [], huge = true }) {
   const rand = generator(seed);
   const values = hostileValues(huge);
-  const figures = { calls: 0, answered: 0, refused: 0, traps: 0, nonFinite: 0, untyped: 0 };
+  // `once`: the fixed hostile calls made before the seeded ones (not in `calls`).
+  const figures = {
+    calls: 0,
+    once: 0,
+    answered: 0,
+    refused: 0,
+    traps: 0,
+    nonFinite: 0,
+    untyped: 0,
+  };
   const examples = [];
   const missing = [];
   const targets = [];
@@ -500,6 +772,37 @@ export function campaign(lw, { calls, seed, skip = [], huge = true }) {
     }
   }
   const sheet = new lw.Worksheet();
+  // The TOLERANCE formula's values, spilled (setCell, then every cell it fills).
+  const toleranceCell = (formula) => {
+    sheet.setCell('K1', formula);
+    return sheet.values('K1:T12');
+  };
+  for (const [name, args] of variantCalls()) {
+    if (skip.includes(name.replace('Worksheet.tolerance', 'Worksheet.setCell'))) continue;
+    const f = name === 'Worksheet.tolerance' ? toleranceCell : lw[name];
+    try {
+      const r = f(...args);
+      if (nonFinite(r) !== null) throw new Error(`non-finite ${nonFinite(r)}`);
+      targets.push([`${name} (variant)`, (a) => f(...a), args]);
+    } catch (e) {
+      missing.push(`${name} variant ${JSON.stringify(args).slice(0, 120)}: ${e?.message}`);
+    }
+  }
+  // Hostile circuit documents and spreads texts, each called once up front too.
+  for (const o of hostileCircuitTolerance()) {
+    figures.once++;
+    classify(() => lw.stageTolerance(o), figures, examples, 'stageTolerance (hostile circuit)');
+  }
+  for (const t of hostileSpreads()) {
+    for (const formula of [
+      toleranceFormula(t),
+      toleranceFormula(`rg=1%, ${t}`, '"phaseMarginDeg"; 0; "0…70"'),
+      `=TOLERANCE.MONTECARLO(${GAIN48}; "${t}"; "gainDb"; 1 kHz; 2; 1)`,
+    ]) {
+      figures.once++;
+      classify(() => toleranceCell(formula), figures, examples, `TOLERANCE "${t.slice(0, 40)}"`);
+    }
+  }
   for (const [name, args] of Object.entries(SHEET_CALLS)) {
     try {
       sheet[name](...args);

@@ -20,6 +20,8 @@ test(`${CALLS} hostile calls: no trap, no NaN or ∞, every refusal typed, modul
   const r = campaign(lw, { calls: CALLS, seed: SEED });
   assert.deepEqual(r.missing, [], 'every export and method has a working call in the table');
   assert.equal(r.figures.calls, CALLS);
+  // The fixed hostile circuit documents and spreads texts ran too.
+  assert.ok(r.figures.once >= 100, `once ${r.figures.once}`);
   assert.ok(Object.keys(goodCalls()).length >= 70, 'the table covers the exports');
   assert.equal(r.figures.traps, 0, `traps: ${r.examples.join('; ')}`);
   assert.equal(r.figures.nonFinite, 0, `non-finite results: ${r.examples.join('; ')}`);
@@ -86,6 +88,38 @@ test('the issue reproducers: typed errors, never NaN or ∞', async () => {
       () => lw.twoPoleResponse(...args),
       (e) => e.name === 'LoopwrightError' && typeof e.code === 'string',
     );
+  }
+  // Counts past a stageTolerance limit name that limit, not the wasm usize's
+  // 4294967295 (the campaign's trials: 2 ** 53 said "the limit is 4294967295").
+  const demo = {
+    stage: {
+      format: 'loopwright-stage',
+      version: 1,
+      kind: 'non-inverting',
+      amplifier: { a0: { min: 5e4, typ: 2e5 }, gbwHz: '10M' },
+      parts: { rf: '10k', rg: '1k' },
+    },
+    parts: [{ part: 'rf', tolerance: { distribution: 'uniform', percent: 1 } }],
+    spec: [{ figure: 'gainDb', freqHz: 1e3 }],
+    trials: 50,
+  };
+  for (const [field, limit] of [
+    ['trials', 100000],
+    ['bins', 1000],
+    ['keepFailures', 1000],
+    ['maxCorners', 65536],
+  ]) {
+    for (const x of [limit + 1, 2 ** 32, 2 ** 53]) {
+      assert.throws(
+        () => lw.stageTolerance({ ...demo, [field]: x }),
+        (e) =>
+          e.name === 'LoopwrightError' &&
+          e.code === 'too_large' &&
+          e.param === field &&
+          e.message.includes(`limit is ${limit}`),
+        `${field}: ${x}`,
+      );
+    }
   }
   // The module answers right afterwards.
   assert.ok(healthy(lw));
