@@ -504,6 +504,7 @@ mod circuits {
             input: i.into(),
             output: o.into(),
             output_minus: m.map(String::from),
+            output_element: None,
             controlled: c.map(String::from),
         };
         vec![
@@ -699,6 +700,7 @@ mod circuits {
             input: i.into(),
             output: o.into(),
             output_minus: m.map(String::from),
+            output_element: None,
             controlled: ctl.map(String::from),
         };
         let param = |ports: CircuitPorts| {
@@ -741,6 +743,7 @@ mod circuits {
             input: "Vs".into(),
             output: "out".into(),
             output_minus: None,
+            output_element: None,
             controlled: None,
         };
         let ts = TolStage::from_circuit(&c, ports, &[], [0.0, 70.0]).unwrap();
