@@ -14,7 +14,7 @@
 import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { join, resolve } from 'node:path';
-import { TOLERANCE_CASES } from './tolerance_cases.mjs';
+import { SIX_NODE_STAGE, TOLERANCE_CASES } from './tolerance_cases.mjs';
 
 const require = createRequire(import.meta.url);
 const [beforeDir, afterDir, ...only] = process.argv.slice(2);
@@ -47,24 +47,7 @@ const ladder = (() => {
 })();
 const noiseJson = readFileSync(new URL('./noise_circuit_11.json', import.meta.url), 'utf8');
 const freqs = new Float64Array(1000).map((_, i) => 10 ** (1 + (6 * i) / 999));
-// The stage of benches/core.rs (20 MHz amplifier, a pole at 80 MHz, input
-// capacitances, Ro = 40 Ω) as a non-inverting gain of 2 into 2 kΩ ‖ 1 nF via 20 Ω.
-const divider = JSON.stringify({
-  format: 'loopwright-stage',
-  version: 1,
-  kind: 'non-inverting',
-  amplifier: {
-    a0: 1e6,
-    gbwHz: 2e7,
-    polesHz: [8e7],
-    rd: 1e12,
-    cd: 4e-12,
-    rcm: 1e12,
-    ccm: 3e-12,
-    ro: 40,
-  },
-  parts: { rf: 1e5, rg: 1e5, rs: 1e9, rl: 2e3, cl: 1e-9, riso: 20 },
-});
+const divider = JSON.stringify(SIX_NODE_STAGE);
 const CASES = {
   circuit_sweep_1000: (m) => () =>
     m.circuitSweep({ circuit: ladder, source: 'Vs', plus: 'n7', minus: '0', frequencies: freqs }),

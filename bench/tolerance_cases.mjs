@@ -23,6 +23,26 @@ const circuit11 = readFileSync(new URL('./tolerance_circuit_11.json', import.met
 const amplifier = (extra) => ({ a0: { min: 5e4, typ: 2e5, max: 1e6 }, gbwHz: 1e7, ...extra });
 const uniform = (part) => ({ part, tolerance: { distribution: 'uniform', percent: 1 } });
 
+// The stage of benches/core.rs (20 MHz amplifier, a pole at 80 MHz, input
+// capacitances, Ro = 40 Ω) as a non-inverting gain of 2 into 2 kΩ ‖ 1 nF via 20 Ω:
+// all six nodes a stage document has (bench/pair.mjs times it too).
+export const SIX_NODE_STAGE = {
+  format: 'loopwright-stage',
+  version: 1,
+  kind: 'non-inverting',
+  amplifier: {
+    a0: 1e6,
+    gbwHz: 2e7,
+    polesHz: [8e7],
+    rd: 1e12,
+    cd: 4e-12,
+    rcm: 1e12,
+    ccm: 3e-12,
+    ro: 40,
+  },
+  parts: { rf: 1e5, rg: 1e5, rs: 1e9, rl: 2e3, cl: 1e-9, riso: 20 },
+};
+
 export const TOLERANCE_CASES = [
   {
     key: 'tolerance_gain_1e5',
@@ -80,22 +100,7 @@ export const TOLERANCE_CASES = [
     heavy: true,
     make: (lw) => () =>
       lw.stageTolerance({
-        stage: {
-          format: 'loopwright-stage',
-          version: 1,
-          kind: 'non-inverting',
-          amplifier: {
-            a0: 1e6,
-            gbwHz: 2e7,
-            polesHz: [8e7],
-            rd: 1e12,
-            cd: 4e-12,
-            rcm: 1e12,
-            ccm: 3e-12,
-            ro: 40,
-          },
-          parts: { rf: 1e5, rg: 1e5, rs: 1e9, rl: 2e3, cl: 1e-9, riso: 20 },
-        },
+        stage: SIX_NODE_STAGE,
         parts: ['rf', 'rg', 'rs', 'rl', 'cl', 'riso'].map(uniform),
         amplifierSpread: { gbwHz: { min: 1.4e7, typ: 2e7, max: 2.6e7 } },
         spec: [{ figure: 'phaseMarginDeg', lower: 30 }],
