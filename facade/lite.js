@@ -77,6 +77,21 @@ function checkedCall(f, params) {
   };
 }
 
+/**
+ * checkedCall for an export whose Rust side refuses every non-finite number of its
+ * result itself (an `overflow` LoopwrightError naming the result, src/wasm): the
+ * result is not walked again here. The walk reads every element of a sweep's
+ * Float64Arrays (about 35 µs for the three arrays of a 10 000-point sweep, a seventh
+ * of the call; bench/).
+ */
+function callCheckedInModule(f, params) {
+  return (...args) => {
+    const copied = new Array(params.length);
+    for (let i = 0; i < params.length; i++) copied[i] = params[i][1](args[i], params[i][0]);
+    return f(...copied);
+  };
+}
+
 const N = number;
 const S = string;
 const C = count;
@@ -120,8 +135,8 @@ const MODEL_AND_BETA = [
   ['amplifier', O],
   ['beta', B],
 ];
-export const loopGainSweep = checkedCall(glue.loopGainSweep, [['', O]]);
-export const closedLoopSweep = checkedCall(glue.closedLoopSweep, [['', O]]);
+export const loopGainSweep = callCheckedInModule(glue.loopGainSweep, [['', O]]);
+export const closedLoopSweep = callCheckedInModule(glue.closedLoopSweep, [['', O]]);
 export const loopAt = checkedCall(glue.loopAt, [...MODEL_AND_BETA, ['fHz', N]]);
 export const stabilityMargins = checkedCall(glue.stabilityMargins, [
   ...MODEL_AND_BETA,

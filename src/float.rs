@@ -91,6 +91,22 @@ pub(crate) fn atan2(y: f64, x: f64) -> f64 {
     return libm::atan2(y, x);
 }
 
+/// |z| = √(re² + im²) of a complex number: the square root of the sum of squares
+/// (two multiplications, an addition and the sqrt instruction) when that sum is a
+/// normal number, else `libm::hypot`, which scales to avoid the overflow or
+/// underflow of the squares. Within an ulp or so of `hypot` (the sum and the sqrt
+/// round once each, IEEE 754), at a fraction of its cost: the root finder takes
+/// several moduli per iteration per root.
+#[inline]
+pub(crate) fn modulus(z: num_complex::Complex64) -> f64 {
+    let s = z.re * z.re + z.im * z.im;
+    if s.is_normal() {
+        sqrt(s)
+    } else {
+        libm::hypot(z.re, z.im)
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -134,6 +150,45 @@ mod tests {
             assert_eq!(ceil(x).to_bits(), libm::ceil(x).to_bits(), "ceil {x:e}");
             assert_eq!(trunc(x).to_bits(), libm::trunc(x).to_bits(), "trunc {x:e}");
             assert_eq!(round(x).to_bits(), libm::round(x).to_bits(), "round {x:e}");
+        }
+    }
+
+    /// Reference: `libm::hypot` (which scales to avoid overflow); within 2 ulps
+    /// of it wherever the squares stay normal, and the same where they do not.
+    #[test]
+    fn modulus_agrees_with_hypot() {
+        let mut state = 0x2545_f491_4f6c_dd1d_u64;
+        let mut next = || {
+            state ^= state << 13;
+            state ^= state >> 7;
+            state ^= state << 17;
+            state
+        };
+        for _ in 0..20_000 {
+            // Exponents across the whole range, both signs.
+            let e = (next() % 1200) as i32 - 600;
+            let re = (next() as f64 / u64::MAX as f64 - 0.5) * libm::pow(2.0, f64::from(e));
+            let im = (next() as f64 / u64::MAX as f64 - 0.5) * libm::pow(2.0, f64::from(e));
+            let z = num_complex::Complex64::new(re, im);
+            let (got, want) = (modulus(z), libm::hypot(re, im));
+            assert!(
+                (got - want).abs() <= 2.0 * f64::EPSILON * want,
+                "|{re:e} + j{im:e}|: {got:e} vs {want:e}"
+            );
+        }
+        for (re, im) in [
+            (0.0, 0.0),
+            (3.0, -4.0),
+            (1e300, 1e300),
+            (1e-300, -1e-300),
+            (5e-324, 0.0),
+        ] {
+            let want = libm::hypot(re, im);
+            let got = modulus(num_complex::Complex64::new(re, im));
+            assert!(
+                (got - want).abs() <= 2.0 * f64::EPSILON * want,
+                "{re:e}, {im:e}"
+            );
         }
     }
 }

@@ -93,10 +93,7 @@ pub(crate) fn grid<L: EvaluatedLoop + ?Sized>(l: &L, ppd: u32) -> Result<Vec<f64
     check_density(ppd)?;
     let (lo, hi) = l.search_range();
     let n = (crate::float::ceil(libm::log10(hi / lo) * f64::from(ppd)) as usize).max(2) + 1;
-    let (a, b) = (libm::log(lo), libm::log(hi));
-    let f: Vec<f64> = (0..n)
-        .map(|i| libm::exp(a + (b - a) * i as f64 / (n - 1) as f64))
-        .collect();
+    let f = super::response::geometric(lo, hi, n);
     let inside = |x: f64| x > lo && x < hi;
     let hints = l.hints();
     let mut extra: Vec<f64> = hints
@@ -334,6 +331,9 @@ pub(crate) fn scan<L: EvaluatedLoop + ?Sized>(l: &L, ppd: u32) -> Result<Scan> {
                 param: "phase_crossings",
                 limit: MAX_PHASE_CROSSINGS as u64,
             });
+        }
+        if m_lo > m_hi {
+            continue;
         }
         let first = phases.len();
         let (xp, xi) = (libm::log(fp), libm::log(fi));

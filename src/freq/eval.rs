@@ -273,10 +273,14 @@ impl FastModel {
     }
 
     /// Whether every partial product of the numerator and of the denominator
-    /// factors stays inside [2^−100, 2^100] in modulus for all frequencies in
-    /// (0, `f_max`], so that [`Product::rescale`] (thresholds 2^±400 on the 1-norm,
-    /// which is at most √2 times the modulus) cannot trigger, and w = num/den and
-    /// the product of two such w stay far inside the f64 range.
+    /// factors stays inside [2^−`bits`, 2^`bits`] in modulus for all frequencies
+    /// in (0, `f_max`]. With `bits` ≤ 200 [`Product::rescale`] (thresholds 2^±400
+    /// on the 1-norm, which is at most √2 times the modulus) cannot trigger.
+    /// [`PRODUCT_BITS`] (100) keeps w = num/den and the product of two such w far
+    /// inside the f64 range for the product form; [`EXPANDED_BITS`] (200) is the
+    /// bound of [`Expanded`], whose largest intermediate is the product of a
+    /// point's |num|² and the previous point's |den|² (≤ 2^800, below 2^1024) and
+    /// whose Horner sums are bounded by the same Π(1 + x_i) as the check below.
     ///
     /// Bounds per factor: |1 + j·x| lies in [1, 1 + |x|] and grows with f; a pair
     /// |(1 − x²) + j·x/Q| is at most 1 + x² + x/Q (triangle inequality) and at least
@@ -284,8 +288,8 @@ impl FastModel {
     /// (the minimum of a quadratic in x², by differentiation). A partial product
     /// lies between the product of the lower bounds below 1 and the product of the
     /// upper bounds, so checking those two for each side is enough.
-    fn products_stay_in_range(&self, f_max: f64) -> bool {
-        const LIMIT: f64 = 100.0 * LN_2;
+    fn products_stay_in_range(&self, f_max: f64, bits: f64) -> bool {
+        let limit = bits * LN_2;
         let side = |first: &[(f64, f64)], pairs: &[(f64, f64)]| {
             let mut hi = 0.0;
             let mut lo = 0.0;
@@ -299,7 +303,7 @@ impl FastModel {
                     lo += libm::log(iq * libm::sqrt(1.0 - 0.25 * iq * iq));
                 }
             }
-            hi < LIMIT && lo > -LIMIT
+            hi < limit && lo > -limit
         };
         side(&self.zeros, &self.pair_zeros) && side(&self.poles, &self.pair_poles)
     }
@@ -337,19 +341,27 @@ impl FastModel {
             }
             return;
         }
-        if f.last().is_some_and(|&m| self.products_stay_in_range(m)) {
-            match Expanded::of(self) {
-                Some(e) => self.sweep_by_steps(f, ln_mag, phase, units, |x| {
+        let in_range = |bits| {
+            f.last()
+                .is_some_and(|&m| self.products_stay_in_range(m, bits))
+        };
+        match Expanded::of(self) {
+            Some(e) if in_range(EXPANDED_BITS) => {
+                self.sweep_by_steps(f, ln_mag, phase, units, |x| {
                     let (n2, d2, wr, wi) = e.scaled_ratio(x);
                     let cut_product = self.cuts.iter().fold(1.0, |p, &r| p * (x * r));
                     (n2, d2, self.rest(x, cut_product), wr, wi)
-                }),
-                None => self.sweep_by_steps(f, ln_mag, phase, units, |x| {
+                });
+                return;
+            }
+            None if in_range(PRODUCT_BITS) => {
+                self.sweep_by_steps(f, ln_mag, phase, units, |x| {
                     let (w2, rest, wr, wi, _) = self.parts::<false, false>(x);
                     (w2, 1.0, rest, wr, wi)
-                }),
+                });
+                return;
             }
-            return;
+            _ => {}
         }
         let mut prev: Option<f64> = None;
         for &x in f {
@@ -418,22 +430,17 @@ impl FastModel {
             if !anchor && 32.0 * libm::fabs(d) <= sum {
                 let s = d / sum;
                 let v = s * s;
-                ln_w += s
-                    * (1.0
-                        + v * (1.0 / 3.0
-                            + v * (1.0 / 5.0
-                                + v * (1.0 / 7.0 + v * (1.0 / 9.0 + v * (1.0 / 11.0))))));
+                ln_w += s * odd_series(v, [1.0 / 3.0, 1.0 / 5.0, 1.0 / 7.0, 1.0 / 9.0, 1.0 / 11.0]);
             } else {
                 ln_w = 0.5 * libm::log(n2 / d2);
             }
             if !anchor && a > 0.0 && 32.0 * libm::fabs(b) <= a {
                 let t = b / a;
                 let u = t * t;
-                factors += t
-                    * (1.0
-                        + u * (-1.0 / 3.0
-                            + u * (1.0 / 5.0
-                                + u * (-1.0 / 7.0 + u * (1.0 / 9.0 - u * (1.0 / 11.0))))));
+                factors += t * odd_series(
+                    u,
+                    [-1.0 / 3.0, 1.0 / 5.0, -1.0 / 7.0, 1.0 / 9.0, -1.0 / 11.0],
+                );
             } else {
                 let principal = libm::atan2(wi, wr);
                 factors = principal + TAU * nearest((factors - principal) / TAU);
@@ -444,6 +451,14 @@ impl FastModel {
         }
     }
 }
+
+/// The bound, in bits, on each side's partial products for the product form of
+/// [`FastModel::sweep_by_steps`] (see [`FastModel::products_stay_in_range`]).
+const PRODUCT_BITS: f64 = 100.0;
+/// The same bound for [`Expanded`]: the margin search grid reaches three decades
+/// past the last corner, where six poles are about 2^100 in modulus, so the
+/// product form's bound would send it point by point through `log` and `atan2`.
+const EXPANDED_BITS: f64 = 200.0;
 
 /// Most first-order factors on a side that [`Expanded`] multiplies out.
 const MAX_EXPANDED: usize = 8;
@@ -565,6 +580,20 @@ impl Expanded {
             ni * dr - nr * di,
         )
     }
+}
+
+/// 1 + c₁·v + c₂·v² + … + c₅·v⁵ in Estrin's form, (1 + c₁v) + v²·(c₂ + c₃v) +
+/// v⁴·(c₄ + c₅v): the same terms as Horner's rule in three levels of dependent
+/// operations instead of five multiply-adds in a row, so that the stepped sweep's
+/// two series (each a chain on the critical path of a point) overlap better.
+/// For |v| ≤ 2^−10 (the steps of [`FastModel::sweep_by_steps`]) every term after
+/// the first is below 2^−10 and the rounding of the sum is within 2 ulps of 1,
+/// as for Horner's rule (Higham, Accuracy and Stability of Numerical Algorithms,
+/// 2nd ed., section 5.1, from memory, for both orders of evaluation).
+#[inline(always)]
+fn odd_series(v: f64, c: [f64; 5]) -> f64 {
+    let v2 = v * v;
+    (1.0 + c[0] * v) + v2 * ((c[1] + c[2] * v) + v2 * (c[3] + c[4] * v))
 }
 
 /// Points between exact re-anchorings of the stepped phase in
@@ -703,7 +732,7 @@ mod tests {
                 .map(|i| libm::pow(10.0, 9.0 * i as f64 / 9999.0))
                 .collect();
             // The stepped path is the one under test.
-            assert!(fast.products_stay_in_range(1e9));
+            assert!(fast.products_stay_in_range(1e9, PRODUCT_BITS));
             let (mut l, mut p) = (Vec::new(), Vec::new());
             fast.sweep(&f, &mut l, &mut p);
             for (i, &x) in f.iter().enumerate() {
@@ -720,6 +749,44 @@ mod tests {
                     p[i]
                 );
             }
+        }
+    }
+
+    #[test]
+    fn margin_grid_of_the_benchmark_loop_takes_the_multiplied_out_steps() {
+        // The margin search grid of the benchmark's loop (bench/cases.mjs) runs from
+        // 0.01 Hz to 5e10 Hz at 40 points a decade: past 2^100 for the product
+        // form, inside 2^200 for Expanded, so the stepped multiplied-out path runs
+        // (before, every point took log and atan2). One evaluation per point,
+        // with its own log and atan2 (eval), is the reference.
+        let m = TransferModel::constant(1e4)
+            .pole(10.0)
+            .pole(1e5)
+            .pole(1e6)
+            .pole(3e6)
+            .pole(1e7)
+            .pole(3e7)
+            .zero(2e6)
+            .zero(5e7);
+        let fast = FastModel::new(&[&m]);
+        assert!(Expanded::of(&fast).is_some());
+        assert!(!fast.products_stay_in_range(5e10, PRODUCT_BITS));
+        assert!(fast.products_stay_in_range(5e10, EXPANDED_BITS));
+        let f = crate::freq::response::geometric(0.01, 5e10, 508);
+        let (mut l, mut p) = (Vec::new(), Vec::new());
+        fast.sweep(&f, &mut l, &mut p);
+        for (i, &x) in f.iter().enumerate() {
+            let (lw, pw) = fast.eval(x);
+            assert!(
+                (l[i] - lw).abs() <= 1e-13 * lw.abs().max(1.0),
+                "f = {x}: {} vs {lw}",
+                l[i]
+            );
+            assert!(
+                (p[i] - pw).abs() <= 1e-12 * pw.abs().max(1.0),
+                "f = {x}: {} vs {pw}",
+                p[i]
+            );
         }
     }
 
@@ -758,7 +825,7 @@ mod tests {
                 .map(|i| libm::pow(10.0, -1.0 + 9.0 * i as f64 / 4999.0))
                 .collect();
             // The stepped path is the one under test.
-            assert!(fast.products_stay_in_range(1e8));
+            assert!(fast.products_stay_in_range(1e8, PRODUCT_BITS));
             let (mut l, mut p) = (Vec::new(), Vec::new());
             fast.sweep(&f, &mut l, &mut p);
             for (i, &x) in f.iter().enumerate() {

@@ -93,7 +93,7 @@ pub fn closed_loop_poles(l: &FeedbackLoop) -> Result<ClosedLoopPoles> {
     let mut poles = Vec::new();
     for z in roots(&c.coeffs)? {
         let s = z * wn;
-        let mag = check::result("poles", s.norm())?;
+        let mag = check::result("poles", crate::float::modulus(s))?;
         let zeta = if mag > 0.0 { -s.re / mag } else { 0.0 };
         let q = if s.im != 0.0 && zeta > 0.0 {
             Some(1.0 / (2.0 * zeta))

@@ -271,18 +271,28 @@ pub fn log_frequencies(start_hz: f64, stop_hz: f64, points: usize) -> Result<Vec
             limit: MAX_SWEEP_POINTS as u64,
         });
     }
+    Ok(geometric(a, b, points))
+}
+
+/// `n` ≥ 2 frequencies from `a` to `b` (0 < a < b, both finite), evenly spaced in
+/// ln f: f_i = a·r^i with r = (b/a)^(1/(n − 1)), the ends exactly `a` and `b`.
+///
+/// A geometric progression by multiplication, re-anchored with exp every 64 points
+/// so the rounding of the products cannot build up: each point is within
+/// (64 + 2·|ln f|)·ε (about 2.3e-14 at 1 GHz) of exp(ln a + i·step), for one `exp`
+/// per 64 points instead of one per point (the search grid of every margin call
+/// is made here too).
+pub(crate) fn geometric(a: f64, b: f64, n: usize) -> Vec<f64> {
     let (la, lb) = (libm::log(a), libm::log(b));
-    let step = (lb - la) / (points - 1) as f64;
-    // A geometric progression by multiplication, re-anchored with exp every
-    // RESYNC points so the rounding of the products cannot build up.
+    let step = (lb - la) / (n - 1) as f64;
     const RESYNC: usize = 64;
     let ratio = libm::exp(step);
-    let mut f: Vec<f64> = Vec::with_capacity(points);
+    let mut f: Vec<f64> = Vec::with_capacity(n);
     // RESYNC points at a time, each run extended in one go (no per-point
     // capacity check).
-    for i in (0..points).step_by(RESYNC) {
+    for i in (0..n).step_by(RESYNC) {
         let mut x = libm::exp(la + step * i as f64);
-        f.extend((i..points.min(i + RESYNC)).map(|_| {
+        f.extend((i..n.min(i + RESYNC)).map(|_| {
             let y = x;
             x *= ratio;
             y
@@ -295,7 +305,7 @@ pub fn log_frequencies(start_hz: f64, stop_hz: f64, points: usize) -> Result<Vec
     if let Some(last) = f.last_mut() {
         *last = b;
     }
-    Ok(f)
+    f
 }
 
 fn finish(
@@ -501,6 +511,32 @@ mod tests {
             let want = a / (Complex64::new(1.0, 0.0) + a * 0.01);
             let got = closed_loop_gain_at(&l, f).unwrap();
             assert!((got - want).norm() <= 1e-12 * want.norm());
+        }
+    }
+
+    #[test]
+    fn geometric_points_are_the_exponentials_of_an_even_ln_grid() {
+        // Reference: exp(ln a + i·(ln b − ln a)/(n − 1)) per point with libm's
+        // exp. The progression differs by at most 63 products' roundings and 63
+        // times the ratio's own (ε/2 each), plus the rounding of the exponent's
+        // argument in the anchor and in the reference (|ln f|·ε each) and of the
+        // two exps: (64 + 2·|ln f|)·ε; the ends are exact.
+        for &(a, b, n) in &[
+            (1.0, 1e9, 10_000),
+            (1e-12, 1e15, 777),
+            (0.01, 5e10, 508),
+            (3.0, 4.0, 2),
+        ] {
+            let f = geometric(a, b, n);
+            assert_eq!(f.len(), n);
+            assert_eq!((f[0], f[n - 1]), (a, b));
+            let (la, lb) = (libm::log(a), libm::log(b));
+            for (i, &x) in f.iter().enumerate() {
+                let want = libm::exp(la + (lb - la) * i as f64 / (n - 1) as f64);
+                let bound = (64.0 + 2.0 * libm::fabs(libm::log(want))) * f64::EPSILON;
+                assert!((x / want - 1.0).abs() <= bound, "{i}: {x} vs {want}");
+            }
+            assert!(f.windows(2).all(|w| w[0] < w[1]));
         }
     }
 

@@ -18,6 +18,7 @@
 //! section 9.5 (Laguerre). All from memory.
 
 use crate::error::{Error, Result};
+use crate::float::modulus;
 use alloc::vec;
 use alloc::vec::Vec;
 use num_complex::Complex64;
@@ -33,20 +34,20 @@ const QUIET_ITERS: u32 = 12;
 fn newton_ratio(c: &[f64], z: Complex64) -> (Complex64, bool) {
     let n = c.len() - 1;
     let eps = f64::EPSILON;
-    if z.norm() <= 1.0 {
+    if modulus(z) <= 1.0 {
         let (mut p, mut dp) = (Complex64::new(0.0, 0.0), Complex64::new(0.0, 0.0));
         let mut bound = 0.0;
-        let az = z.norm();
+        let az = modulus(z);
         for &a in c.iter().rev() {
             dp = dp * z + p;
             p = p * z + a;
             bound = bound * az + libm::fabs(a);
         }
-        (p / dp, p.norm() <= STOP_FACTOR * (n as f64) * eps * bound)
+        (p / dp, modulus(p) <= STOP_FACTOR * (n as f64) * eps * bound)
     } else {
         // P(z) = z^n·Q(y), y = 1/z, Q(y) = Σ a_k y^(n−k); P'/P = n·y − y²·Q'/Q.
         let y = z.inv();
-        let ay = y.norm();
+        let ay = modulus(y);
         let (mut q, mut dq) = (Complex64::new(0.0, 0.0), Complex64::new(0.0, 0.0));
         let mut bound = 0.0;
         for &a in c.iter() {
@@ -54,7 +55,7 @@ fn newton_ratio(c: &[f64], z: Complex64) -> (Complex64, bool) {
             q = q * y + a;
             bound = bound * ay + libm::fabs(a);
         }
-        let small = q.norm() <= STOP_FACTOR * (n as f64) * eps * bound;
+        let small = modulus(q) <= STOP_FACTOR * (n as f64) * eps * bound;
         let dlog = y * (n as f64) - y * y * dq / q;
         (dlog.inv(), small)
     }
@@ -147,8 +148,8 @@ fn aberth(c: &[f64]) -> Option<Vec<Complex64>> {
                 z[i] = zi - w;
                 // A simple root: at rounding level and the correction has
                 // stopped mattering.
-                if w.norm() <= 8.0 * f64::EPSILON * zi.norm()
-                    || (converged_before && w.norm() <= 1e-12 * zi.norm())
+                if modulus(w) <= 8.0 * f64::EPSILON * modulus(zi)
+                    || (converged_before && modulus(w) <= 1e-12 * modulus(zi))
                 {
                     done[i] = true;
                 }
@@ -178,8 +179,8 @@ fn recentre_clusters(c: &[f64], z: &mut [Complex64]) {
     for _ in 0..n {
         for i in 0..n {
             for j in 0..n {
-                let scale = z[i].norm().max(z[j].norm());
-                if (z[i] - z[j]).norm() <= CLUSTER_TOL * scale && label[j] < label[i] {
+                let scale = modulus(z[i]).max(modulus(z[j]));
+                if modulus(z[i] - z[j]) <= CLUSTER_TOL * scale && label[j] < label[i] {
                     label[i] = label[j];
                 }
             }
@@ -194,7 +195,7 @@ fn recentre_clusters(c: &[f64], z: &mut [Complex64]) {
         let centre = members.iter().map(|&i| z[i]).sum::<Complex64>() / m as f64;
         let radius = members
             .iter()
-            .map(|&i| (z[i] - centre).norm())
+            .map(|&i| modulus(z[i] - centre))
             .fold(0.0, f64::max);
         // Only a cluster that the arithmetic cannot resolve: P at its centre is at
         // rounding-error level. Well separated close roots are left alone.
@@ -227,11 +228,11 @@ fn recentre_clusters(c: &[f64], z: &mut [Complex64]) {
                 break;
             }
             x -= step;
-            if step.norm() <= 4.0 * f64::EPSILON * x.norm() {
+            if modulus(step) <= 4.0 * f64::EPSILON * modulus(x) {
                 break;
             }
         }
-        if (x - centre).norm() <= 2.0 * radius + f64::EPSILON * centre.norm() {
+        if modulus(x - centre) <= 2.0 * radius + f64::EPSILON * modulus(centre) {
             let shift = x - centre;
             for &i in &members {
                 z[i] += shift;
@@ -250,16 +251,16 @@ fn laguerre(c: &[Complex64], mut x: Complex64) -> Complex64 {
             Complex64::new(0.0, 0.0),
             Complex64::new(0.0, 0.0),
         );
-        let mut err = b.norm();
-        let abx = x.norm();
+        let mut err = modulus(b);
+        let abx = modulus(x);
         for j in (0..c.len() - 1).rev() {
             f = x * f + d;
             d = x * d + b;
             b = x * b + c[j];
-            err = b.norm() + abx * err;
+            err = modulus(b) + abx * err;
         }
         err *= f64::EPSILON;
-        if b.norm() <= err {
+        if modulus(b) <= err {
             return x;
         }
         let g = d / b;
@@ -267,8 +268,8 @@ fn laguerre(c: &[Complex64], mut x: Complex64) -> Complex64 {
         let h = g2 - f * 2.0 / b;
         let sq = ((h * n - g2) * (n - 1.0)).sqrt();
         let (gp, gm) = (g + sq, g - sq);
-        let den = if gp.norm() > gm.norm() { gp } else { gm };
-        let dx = if den.norm() > 0.0 {
+        let den = if modulus(gp) > modulus(gm) { gp } else { gm };
+        let dx = if modulus(den) > 0.0 {
             Complex64::new(n, 0.0) / den
         } else {
             Complex64::from_polar(1.0 + abx, it as f64)
@@ -358,7 +359,7 @@ fn finish(mut z: Vec<Complex64>) -> Result<Vec<Complex64>> {
                 reason: "a root left the floating-point range",
             });
         }
-        if libm::fabs(r.im) <= 1e-12 * r.norm() {
+        if libm::fabs(r.im) <= 1e-12 * modulus(*r) {
             r.im = 0.0;
         }
     }
@@ -373,8 +374,8 @@ fn finish(mut z: Vec<Complex64>) -> Result<Vec<Complex64>> {
         let mut best: Option<usize> = None;
         for j in 0..n {
             if j != i && !used[j] && z[j].im != 0.0 && z[j].im.signum() != z[i].im.signum() {
-                let d = (z[j].conj() - z[i]).norm();
-                if best.map_or(true, |b: usize| d < (z[b].conj() - z[i]).norm()) {
+                let d = modulus(z[j].conj() - z[i]);
+                if best.map_or(true, |b: usize| d < modulus(z[b].conj() - z[i])) {
                     best = Some(j);
                 }
             }
@@ -396,7 +397,9 @@ fn finish(mut z: Vec<Complex64>) -> Result<Vec<Complex64>> {
         }
     }
     crate::sort::sort_by(&mut z, |a, b| {
-        a.norm().total_cmp(&b.norm()).then(a.im.total_cmp(&b.im))
+        modulus(*a)
+            .total_cmp(&modulus(*b))
+            .then(a.im.total_cmp(&b.im))
     });
     Ok(z)
 }
