@@ -618,8 +618,10 @@ fn positive_zeros(m: &mut [Complex64]) {
 
 /// x with M·x = rhs from the factorization `lu` of `m` (n × n, row-major),
 /// refined once: r = rhs − M·x, x += M⁻¹·r (as in `Workspace::solve_refined`),
-/// the correction kept only when finite. `residual` and `correction` (length
-/// n) are scratch.
+/// the correction kept only when finite, and skipped when the first solution's
+/// componentwise backward error is already at rounding level (the test of
+/// [`Workspace::sweeping`]: |r_i| ≤ γ_{n+1}·(|M|·|x| + |b|)_i in every row).
+/// `residual` and `correction` (length n) are scratch.
 fn substitute(
     lu: &Lu,
     m: &[Complex64],
@@ -631,15 +633,25 @@ fn substitute(
     let n = residual.len();
     let mut x = alloc::vec![zero; n];
     lu.solve_into(rhs, &mut x);
+    let n1 = (n + 1) as f64 * UNIT_ROUNDOFF;
+    let mut stable = true;
     for (r, out) in residual.iter_mut().enumerate() {
         let row = m.get(r * n..(r + 1) * n).unwrap_or(&[]);
         let mut s = zero;
+        let mut size = 0.0;
         for (&v, &xj) in row.iter().zip(&x) {
             if v != zero {
                 s += v * xj;
+                size += abs1(v) * abs1(xj);
             }
         }
-        *out = rhs.get(r).copied().unwrap_or_default() - s;
+        let b = rhs.get(r).copied().unwrap_or_default();
+        *out = b - s;
+        // |r_i| ≤ γ_{n+1}·(|M|·|x| + |b|)_i, false for NaN.
+        stable &= abs1(*out) * (1.0 - n1) <= n1 * (size + abs1(b));
+    }
+    if stable {
+        return x;
     }
     lu.solve_into(residual, correction);
     if correction
@@ -1533,9 +1545,11 @@ mod tests {
     #[test]
     fn one_shot_solve_gives_the_bits_of_the_workspace() {
         // `solve_matrix` factors without a pattern; a `Workspace` over the
-        // matrix's nonzero pattern (what it used before) gives the same bits,
-        // with pivoting (the controlled sources and the 0 V ammeter), −0
-        // entries and every reactive kind present.
+        // matrix's nonzero pattern with the same refinement rule (the
+        // correction skipped when the backward error is at rounding level,
+        // `Workspace::sweeping`) gives the same bits, with pivoting (the
+        // controlled sources and the 0 V ammeter), −0 entries and every
+        // reactive kind present.
         let mut c = Circuit::new();
         c.voltage_source("V1", "in", "0", 2.0).unwrap();
         c.resistor("R1", "in", "a", 1e3).unwrap();
@@ -1559,7 +1573,7 @@ mod tests {
             let one = solve_matrix(&c, &lay, m.clone(), &rhs).unwrap();
             let zero = Complex64::new(0.0, 0.0);
             let pattern = Pattern::from_fn(lay.size, |i| m[i] != zero);
-            let mut work = Workspace::new(lay.size, pattern);
+            let mut work = Workspace::sweeping(lay.size, pattern);
             let mut x = alloc::vec![zero; lay.size];
             work.solve(&c, &lay, |i| m[i], &rhs, &mut x).unwrap();
             for (a, b) in one.iter().zip(&x) {

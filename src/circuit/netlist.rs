@@ -824,9 +824,30 @@ impl Circuit {
     /// # Errors
     /// Unknown element name.
     pub fn without(&self, name: &str) -> CircuitResult<Circuit> {
-        let i = self.element_index(name)?;
-        let mut c = self.clone();
-        c.elements.remove(i);
+        self.without_each(&[name])
+    }
+
+    /// A copy without each of the named elements, as [`Circuit::without`] applied
+    /// for each in turn (the same nodes, in the same order) with one copy.
+    ///
+    /// # Errors
+    /// The first unknown element name.
+    pub(crate) fn without_each(&self, names: &[&str]) -> CircuitResult<Circuit> {
+        let mut gone = Vec::with_capacity(names.len());
+        for name in names {
+            gone.push(self.element_index(name)?);
+        }
+        let mut c = Circuit {
+            nodes: self.nodes.clone(),
+            elements: self
+                .elements
+                .iter()
+                .enumerate()
+                .filter(|(i, _)| !gone.contains(i))
+                .map(|(_, e)| e.clone())
+                .collect(),
+            strict_nodes: self.strict_nodes,
+        };
         let mut used = alloc::vec![false; c.nodes.len()];
         let mut mark = |k: usize| {
             if let Some(u) = used.get_mut(k) {

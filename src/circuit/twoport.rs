@@ -376,11 +376,14 @@ fn input_impedances(
     f: f64,
     solves: &mut Solves,
 ) -> CircuitResult<(Complex64, Complex64)> {
-    let no_source = stage.circuit.without(stage.source)?;
-    let rin = port_impedance_in(&no_source.without("Rs")?, "in", "0", f, solves)?;
+    let open = stage.circuit.without_each(&[stage.source, "Rs"])?;
+    let rin = port_impedance_in(&open, "in", "0", f, solves)?;
     let rif = match t.mixing() {
         Mixing::Series => rin + rs,
-        Mixing::Shunt => port_impedance_in(&no_source, "in", "0", f, solves)?,
+        Mixing::Shunt => {
+            let no_source = stage.circuit.without(stage.source)?;
+            port_impedance_in(&no_source, "in", "0", f, solves)?
+        }
     };
     Ok((rin, rif))
 }
