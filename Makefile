@@ -38,6 +38,9 @@ lint:
 test-native:
 	cargo build --no-default-features
 	cargo test
+	# The boundary's unit tests that need no JS engine (src/wasm/: the result walk,
+	# the options reader's pure parts), natively.
+	cargo test --features wasm --lib wasm::
 	cargo test --bench core
 
 # The worksheet as .ods/.xlsx files (feature sheetfiles): its lints, unit and doc

@@ -34,8 +34,9 @@ export const circuitPortImpedance = call(glue.circuitPortImpedance, [
 ]);
 export const circuitSweep = call(glue.circuitSweep, [['', options]]);
 // circuitTwoPort: a regular options object (every field known and of its kind)
-// crosses as twelve values at fixed places (glue.circuitTwoPortPacked, whose result the
-// module has checked finite); any other object takes the module's options reader,
+// crosses as twelve values at fixed places (glue.circuitTwoPortPacked, whose result
+// comes back as its numbers in one Float64Array, checked finite in the module, and
+// twoPortFromPacked builds the object); any other object takes the module's options reader,
 // which reports what is wrong. Reading the object in the module cost the call about
 // a fifth of its time (bench/COMPARE.md). The order is that of TemplateAtOptions
 // (src/wasm/circuit.rs); the package test compares both paths.
@@ -59,20 +60,55 @@ const TEMPLATE_AT_REQUIRED = [0, 1, 2, 3, 6, 7, 9, 10];
 export function circuitTwoPort(opts) {
   const o = packed(opts, TEMPLATE_AT, TEMPLATE_AT_KINDS, TEMPLATE_AT_REQUIRED);
   if (o.general !== undefined) return finite(glue.circuitTwoPort(o.general), 'result');
-  return glue.circuitTwoPortPacked(
-    o[0],
-    o[1],
-    o[2],
-    o[3],
-    o[4],
-    o[5],
-    o[6],
-    o[7],
-    o[8],
-    o[9],
-    o[10],
-    o[11],
+  return twoPortFromPacked(
+    glue.circuitTwoPortPacked(
+      o[0],
+      o[1],
+      o[2],
+      o[3],
+      o[4],
+      o[5],
+      o[6],
+      o[7],
+      o[8],
+      o[9],
+      o[10],
+      o[11],
+    ),
   );
+}
+
+/**
+ * The circuitTwoPort object around the packed result's numbers, taken in their
+ * order (the order the module serializes the result in; src/wasm/circuit.rs,
+ * `circuit_two_port_packed`), already checked finite there. The package test
+ * compares it with the general export's object for every topology.
+ */
+function twoPortFromPacked(p) {
+  const v = p.values;
+  let i = 0;
+  const cx = () => ({ re: v[i++], im: v[i++] });
+  const both = () => ({ twoPort: cx(), exact: cx(), relativeError: v[i++] });
+  // Property values are evaluated in the order written, so `i` walks `v` in order.
+  return {
+    topology: p.topology,
+    frequencyHz: v[i++],
+    gainUnit: p.gainUnit,
+    parameters: { kind: p.kind, p11: cx(), p12: cx(), p21: cx(), p22: cx() },
+    a: cx(),
+    beta: cx(),
+    loopGain: cx(),
+    feedbackAmount: cx(),
+    ri: cx(),
+    ro: cx(),
+    af: both(),
+    rif: both(),
+    rof: both(),
+    rin: both(),
+    rout: both(),
+    idealAf: cx(),
+    idealAfError: v[i++],
+  };
 }
 export const circuitStageViews = call(glue.circuitStageViews, [['', options]]);
 export const circuitBlackman = call(glue.circuitBlackman, [['', options]]);

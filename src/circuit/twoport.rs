@@ -51,6 +51,16 @@ pub enum ParameterKind {
 }
 
 impl ParameterKind {
+    /// Its letter as results name it: `"h"`, `"y"`, `"z"` or `"g"`.
+    pub const fn letter(self) -> &'static str {
+        match self {
+            ParameterKind::H => "h",
+            ParameterKind::Y => "y",
+            ParameterKind::Z => "z",
+            ParameterKind::G => "g",
+        }
+    }
+
     /// The set the topology's connections call for (see the module table).
     pub const fn for_topology(t: Topology) -> ParameterKind {
         match t {

@@ -82,6 +82,8 @@ export interface TwoPortAnalysis {
   idealAf: Complex;
   idealAfError: number;
 }
+/** Internal (`circuitTwoPortPacked`, not in the entry module): a TwoPortAnalysis's text and its 49 numbers in order. */
+export interface PackedTwoPort { topology: Topology; gainUnit: TwoPortAnalysis["gainUnit"]; kind: TwoPortKind; values: Float64Array; }
 /** Blackman's formula Z0·(1 + Tshort)/(1 + Topen) beside the port impedance solved directly, Ω. */
 export interface BlackmanImpedance { z0: Complex; tShort: Complex; tOpen: Complex; blackman: Complex; exact: Complex; relativeError: number; }
 /** The asymptotic-gain decomposition G∞·T/(1 + T) + G0/(1 + T) beside the transfer solved directly. */
@@ -463,10 +465,16 @@ pub fn circuit_two_port(
 /// an optional one left out, which takes the default of [`TemplateAtOptions`]) and
 /// any other object to `circuitTwoPort`, whose reader reports what is wrong. Reading
 /// the object here cost about 3 calls into JS per field (`src/wasm/options.rs`).
-/// Internal: not exported by the entry module. The result is the same object, its
-/// numbers checked finite here ([`super::to_js_finite`]), so the entry module does
-/// not walk it.
-#[wasm_bindgen(js_name = circuitTwoPortPacked, unchecked_return_type = "TwoPortAnalysis")]
+/// Internal: not exported by the entry module. The result crosses packed:
+/// `{topology, gainUnit, kind, values}`, `values` a `Float64Array` of every number
+/// of the `circuitTwoPort` result in its order (frequencyHz, p11…p22 as re, im, a,
+/// beta, loopGain, feedbackAmount, ri, ro, then af, rif, rof, rin, rout each as
+/// twoPort re, im, exact re, im, relativeError, then idealAf, idealAfError: 49),
+/// each checked finite here ([`super::finite_numbers`]; a non-finite one
+/// is the `overflow` error with the path `circuitTwoPort` would give). The entry
+/// module builds the object around them: building it here took one call into JS
+/// per field and per object (about 75), a quarter of the call.
+#[wasm_bindgen(js_name = circuitTwoPortPacked, unchecked_return_type = "PackedTwoPort")]
 #[allow(clippy::too_many_arguments)]
 pub fn circuit_two_port_packed(
     topology: alloc::string::String,
@@ -497,7 +505,21 @@ pub fn circuit_two_port_packed(
         rl,
     };
     let f = frequency_hz.unwrap_or(TemplateAtOptions::MIDBAND_HZ);
-    super::to_js_finite(&throw(twoport::analyze(&spec(&o)?, f))?)
+    let r = throw(twoport::analyze(&spec(&o)?, f))?;
+    let values = super::finite_numbers(&r)?;
+    let out = js_sys::Object::new();
+    let set = |key: &str, v: JsValue| {
+        // Reflect::set only fails on frozen or proxy objects; this one is fresh.
+        let _ = js_sys::Reflect::set(&out, &key.into(), &v);
+    };
+    set("topology", r.topology.name().into());
+    set("gainUnit", r.gain_unit.into());
+    set("kind", r.parameters.kind.letter().into());
+    set(
+        "values",
+        js_sys::Float64Array::from(values.as_slice()).into(),
+    );
+    Ok(out.into())
 }
 
 /// Blackman's Rin and Rout and the asymptotic-gain Af of a template stage at a

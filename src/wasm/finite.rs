@@ -1,23 +1,27 @@
 //! The result check of the boundary done in the module: the path of the first number
 //! of a result that is NaN or ±Infinity, found by walking its `serde::Serialize`
-//! form (the same fields, in the same order, that serde-wasm-bindgen then writes).
+//! form (the same fields, in the same order, that serde-wasm-bindgen then writes),
+//! and on the way every number in that order.
 //!
 //! The entry module (`facade/guard.js`, `finite`) walks every returned object in JS
-//! for the same purpose; an export whose result passes [`first_non_finite`] here
-//! (through [`super::to_js_finite`]) is not walked again there: the JS walk of the
+//! for the same purpose; a result that crosses as [`finite_numbers`] (through
+//! [`super::finite_numbers`]) is not walked again there: the JS walk of the
 //! two-port result cost about 23 000 instructions a call (DEVELOPERS.md, "Worksheet
 //! and two-port speed"), this one walks the Rust value with no call into JS. The
 //! paths are those of the JS walk: `.af.exact.re`, `[2].re`, `""` for the value itself.
 
 use alloc::string::String;
+use alloc::vec::Vec;
 use core::fmt::{self, Display, Write};
 use serde::ser::{self, Serialize, Serializer};
 
 /// The path of the first non-finite number of `value` in serialization order, or
 /// `None` when every number is finite.
-pub(crate) fn first_non_finite<T: Serialize + ?Sized>(value: &T) -> Option<String> {
+#[cfg(test)]
+fn first_non_finite<T: Serialize + ?Sized>(value: &T) -> Option<String> {
     let mut walk = Walk {
         path: String::new(),
+        numbers: None,
     };
     match value.serialize(&mut walk) {
         Ok(()) => None,
@@ -25,10 +29,27 @@ pub(crate) fn first_non_finite<T: Serialize + ?Sized>(value: &T) -> Option<Strin
     }
 }
 
+/// Every number of `value` in serialization order (the order in which
+/// serde-wasm-bindgen writes them, text and names left out), or the path of the
+/// first that is not finite, as [`first_non_finite`]. A result crosses as these
+/// numbers in one `Float64Array` and the entry module builds the object around
+/// them (`circuitTwoPortPacked`), instead of one call into JS per field.
+pub(crate) fn finite_numbers<T: Serialize + ?Sized>(value: &T) -> Result<Vec<f64>, String> {
+    let mut walk = Walk {
+        path: String::new(),
+        numbers: Some(Vec::new()),
+    };
+    match value.serialize(&mut walk) {
+        Ok(()) => Ok(walk.numbers.unwrap_or_default()),
+        Err(Found) => Err(walk.path),
+    }
+}
+
 /// The walker: `path` is the place being serialized (kept, not unwound, once a
-/// non-finite number is found).
+/// non-finite number is found); `numbers`, when kept, every number so far.
 struct Walk {
     path: String,
+    numbers: Option<Vec<f64>>,
 }
 
 /// "A non-finite number is at `Walk::path`": the error that stops the walk.
@@ -52,6 +73,9 @@ impl ser::Error for Found {
 impl Walk {
     fn number(&mut self, x: f64) -> Result<(), Found> {
         if x.is_finite() {
+            if let Some(n) = &mut self.numbers {
+                n.push(x);
+            }
             Ok(())
         } else {
             Err(Found)
@@ -502,5 +526,42 @@ mod tests {
         let mut bad = r;
         bad.ideal_af_error = f64::NAN;
         assert_eq!(first_non_finite(&bad).as_deref(), Some(".idealAfError"));
+        assert_eq!(finite_numbers(&bad), Err(String::from(".idealAfError")));
+        // Every number in the order of the fields (the order facade/loopwright.js
+        // reads them back in, twoPortFromPacked): 49, frequency first.
+        let n = finite_numbers(&r).unwrap();
+        let cx = |z: num_complex::Complex64| [z.re, z.im];
+        let both = |c: crate::circuit::twoport::Compared| {
+            [
+                c.two_port.re,
+                c.two_port.im,
+                c.exact.re,
+                c.exact.im,
+                c.relative_error,
+            ]
+        };
+        let p = r.parameters;
+        let mut want = alloc::vec![r.frequency_hz];
+        for z in [
+            p.p11,
+            p.p12,
+            p.p21,
+            p.p22,
+            r.a,
+            r.beta,
+            r.loop_gain,
+            r.feedback_amount,
+            r.ri,
+            r.ro,
+        ] {
+            want.extend(cx(z));
+        }
+        for c in [r.af, r.rif, r.rof, r.rin, r.rout] {
+            want.extend(both(c));
+        }
+        want.extend(cx(r.ideal_af));
+        want.push(r.ideal_af_error);
+        assert_eq!(want.len(), 49);
+        assert_eq!(n, want);
     }
 }

@@ -91,22 +91,19 @@ pub(crate) fn to_js<T: serde::Serialize>(value: &T) -> Result<JsValue, JsValue> 
         .map_err(|e| JsValue::from(js_sys::Error::new(&alloc::format!("result: {e}"))))
 }
 
-/// As [`to_js`], with every number of `value` checked finite first
-/// ([`finite::first_non_finite`]): an `overflow` error naming the first that is
-/// not, with the path and sentence of the entry module's check (`facade/guard.js`,
-/// `finite`), which then need not walk the object.
+/// Every number of `value` in serialization order ([`finite::finite_numbers`]), or
+/// the `overflow` error naming the first that is not finite, with the path and
+/// sentence of the entry module's check (`facade/guard.js`, `finite`), which then
+/// need not walk the result.
 #[cfg(feature = "wasm")]
-pub(crate) fn to_js_finite<T: serde::Serialize>(value: &T) -> Result<JsValue, JsValue> {
-    if let Some(path) = finite::first_non_finite(value) {
+pub(crate) fn finite_numbers<T: serde::Serialize>(
+    value: &T,
+) -> Result<alloc::vec::Vec<f64>, JsValue> {
+    finite::finite_numbers(value).map_err(|path| {
         let param = path.strip_prefix('.').unwrap_or(&path);
         let param = if param.is_empty() { "result" } else { param };
-        return Err(options::error_at(
-            param,
-            crate::Error::Overflow { param: "" },
-            None,
-        ));
-    }
-    to_js(value)
+        options::error_at(param, crate::Error::Overflow { param: "" }, None)
+    })
 }
 
 /// Set each named field of `obj` to a `Float64Array` copy of the slice (how sweeps
