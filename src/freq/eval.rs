@@ -687,22 +687,7 @@ mod tests {
             let f: Vec<f64> = (0..n)
                 .map(|i| libm::pow(10.0, 8.0 * i as f64 / (n - 1) as f64))
                 .collect();
-            let (mut l, mut p) = (Vec::new(), Vec::new());
-            fast.sweep(&f, &mut l, &mut p);
-            for (i, &x) in f.iter().enumerate() {
-                let (lw, pw) = fast.eval(x);
-                // Stepped ln|w| (sweep_by_steps) against one log per point.
-                assert!(
-                    (l[i] - lw).abs() <= 1e-13 * lw.abs().max(1.0),
-                    "f = {x}: {} vs {lw}",
-                    l[i]
-                );
-                assert!(
-                    (p[i] - pw).abs() < 1e-9,
-                    "n = {n}, f = {x}: {} vs {pw}",
-                    p[i]
-                );
-            }
+            sweep_matches_point_by_point(&fast, &f, |_| 1e-9);
         }
     }
 
@@ -711,15 +696,7 @@ mod tests {
         // The loop of the benchmark (bench/cases.mjs) and one with a sharp pair,
         // an RHP zero and a delay; eval's atan2 per point is the reference.
         let models = [
-            TransferModel::constant(1e4)
-                .pole(10.0)
-                .pole(1e5)
-                .pole(1e6)
-                .pole(3e6)
-                .pole(1e7)
-                .pole(3e7)
-                .zero(2e6)
-                .zero(5e7),
+            benchmark_amplifier(),
             TransferModel::constant(-2e3)
                 .pole(3.0)
                 .complex_pole(4e5, 20.0)
@@ -733,23 +710,44 @@ mod tests {
                 .collect();
             // The stepped path is the one under test.
             assert!(fast.products_stay_in_range(1e9, PRODUCT_BITS));
-            let (mut l, mut p) = (Vec::new(), Vec::new());
-            fast.sweep(&f, &mut l, &mut p);
-            for (i, &x) in f.iter().enumerate() {
-                let (lw, pw) = fast.eval(x);
-                // Stepped ln|w| (sweep_by_steps) against one log per point.
-                assert!(
-                    (l[i] - lw).abs() <= 1e-13 * lw.abs().max(1.0),
-                    "f = {x}: {} vs {lw}",
-                    l[i]
-                );
-                assert!(
-                    (p[i] - pw).abs() <= 1e-12 * pw.abs().max(1.0),
-                    "f = {x}: {} vs {pw}",
-                    p[i]
-                );
-            }
+            sweep_matches_point_by_point(&fast, &f, relative_phase);
         }
+    }
+
+    /// The sweep of `fast` over `f` (ascending; sweep_by_steps where it applies)
+    /// against one evaluation per point with its own log and atan2 (`eval`):
+    /// 1e-13 relative in ln|H|, and `phase_bound(phase)` rad in the phase.
+    fn sweep_matches_point_by_point(fast: &FastModel, f: &[f64], phase_bound: fn(f64) -> f64) {
+        let (mut l, mut p) = (Vec::new(), Vec::new());
+        fast.sweep(f, &mut l, &mut p);
+        for (i, &x) in f.iter().enumerate() {
+            let (lw, pw) = fast.eval(x);
+            assert!(
+                (l[i] - lw).abs() <= 1e-13 * lw.abs().max(1.0),
+                "f = {x}: {} vs {lw}",
+                l[i]
+            );
+            assert!(
+                (p[i] - pw).abs() <= phase_bound(pw),
+                "f = {x}: {} vs {pw}",
+                p[i]
+            );
+        }
+    }
+
+    /// The amplifier of the benchmark's loop (bench/cases.mjs, A0 1e5 there) with
+    /// A0 = 1e4: six real poles, two real zeros.
+    fn benchmark_amplifier() -> TransferModel {
+        [10.0, 1e5, 1e6, 3e6, 1e7, 3e7]
+            .into_iter()
+            .fold(TransferModel::constant(1e4), TransferModel::pole)
+            .zero(2e6)
+            .zero(5e7)
+    }
+
+    /// 1e-12 relative to the phase (1e-12 rad below 1 rad).
+    fn relative_phase(pw: f64) -> f64 {
+        1e-12 * pw.abs().max(1.0)
     }
 
     #[test]
@@ -759,35 +757,13 @@ mod tests {
         // form, inside 2^200 for Expanded, so the stepped multiplied-out path runs
         // (before, every point took log and atan2). One evaluation per point,
         // with its own log and atan2 (eval), is the reference.
-        let m = TransferModel::constant(1e4)
-            .pole(10.0)
-            .pole(1e5)
-            .pole(1e6)
-            .pole(3e6)
-            .pole(1e7)
-            .pole(3e7)
-            .zero(2e6)
-            .zero(5e7);
+        let m = benchmark_amplifier();
         let fast = FastModel::new(&[&m]);
         assert!(Expanded::of(&fast).is_some());
         assert!(!fast.products_stay_in_range(5e10, PRODUCT_BITS));
         assert!(fast.products_stay_in_range(5e10, EXPANDED_BITS));
         let f = crate::freq::response::geometric(0.01, 5e10, 508);
-        let (mut l, mut p) = (Vec::new(), Vec::new());
-        fast.sweep(&f, &mut l, &mut p);
-        for (i, &x) in f.iter().enumerate() {
-            let (lw, pw) = fast.eval(x);
-            assert!(
-                (l[i] - lw).abs() <= 1e-13 * lw.abs().max(1.0),
-                "f = {x}: {} vs {lw}",
-                l[i]
-            );
-            assert!(
-                (p[i] - pw).abs() <= 1e-12 * pw.abs().max(1.0),
-                "f = {x}: {} vs {pw}",
-                p[i]
-            );
-        }
+        sweep_matches_point_by_point(&fast, &f, relative_phase);
     }
 
     #[test]
@@ -797,15 +773,7 @@ mod tests {
         // most factors a side it takes. The per-factor sum (response::model_log)
         // is the reference; Expanded's bound is 6.4e-14 on ln|w| and arg w.
         let models = [
-            TransferModel::constant(1e4)
-                .pole(10.0)
-                .pole(1e5)
-                .pole(1e6)
-                .pole(3e6)
-                .pole(1e7)
-                .pole(3e7)
-                .zero(2e6)
-                .zero(5e7),
+            benchmark_amplifier(),
             TransferModel::constant(-40.0)
                 .rhp_zero(3e5)
                 .rhp_pole(20.0)
