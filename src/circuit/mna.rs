@@ -1549,20 +1549,8 @@ mod tests {
         // correction skipped when the backward error is at rounding level,
         // `Workspace::sweeping`) gives the same bits, with pivoting (the
         // controlled sources and the 0 V ammeter), −0 entries and every
-        // reactive kind present.
-        let mut c = Circuit::new();
-        c.voltage_source("V1", "in", "0", 2.0).unwrap();
-        c.resistor("R1", "in", "a", 1e3).unwrap();
-        c.capacitor("C1", "a", "0", 1e-8).unwrap();
-        c.inductor("L1", "a", "b", 1e-3).unwrap();
-        c.admittance("Y1", "b", "0", 1e-3, 2e-4).unwrap();
-        c.vcvs("E1", "e", "0", "b", "0", 3e5).unwrap();
-        c.resistor("Re", "e", "m", 2.0).unwrap();
-        c.voltage_source("Vm", "m", "0", 0.0).unwrap();
-        c.ccvs("H1", "h", "0", "Vm", 5.0).unwrap();
-        c.resistor("Rh", "h", "0", 1e-3).unwrap();
-        c.cccs("F1", "0", "f", "Vm", 2.0).unwrap();
-        c.resistor("Rf", "f", "0", 1e6).unwrap();
+        // element kind but the amplifier present (`mixed_circuit`).
+        let c = mixed_circuit();
         let lay = layout(&c).unwrap();
         for f in [0.0, 1.0, 1e3, 5e4, 1e6] {
             let w = omega(f).unwrap();
