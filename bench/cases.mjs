@@ -1,8 +1,8 @@
 // What the benchmarks measure, and the peer a user would reach for instead, doing
 // the same work on the same inputs. Plain-JS peers are written here as a competent
 // engineer would write them inline; Python peers live in bench/peers.py under the
-// same key. Each case: {key, area, what, make(lw) → fn, plainJs?: () → fn,
-// python?: true, target}.
+// same key (or `pythonKey`). Each case: {key, area, what, make(lw) → fn,
+// plainJs?: () → fn, python?: true, pythonKey?, pythonLabel?, target}.
 
 import { CIRCUIT_CASES } from './circuit_cases.mjs';
 import { NOISE_CASES } from './noise_cases.mjs';
@@ -14,11 +14,14 @@ import { buildSheet } from './sheet_build.mjs';
 const FREQ_A = { gain: 1e5, polesHz: [10, 1e5, 1e6, 3e6, 1e7, 3e7], zerosHz: [2e6, 5e7] };
 const FREQ_BETA = 0.1;
 
-/** The sweep as a competent engineer writes it inline: complex products, dB, unwrapped phase. */
-function plainJsSweep(points) {
-  const f = new Float64Array(points);
-  const db = new Float64Array(points);
-  const ph = new Float64Array(points);
+/**
+ * The sweep as a competent engineer writes it inline: complex products, dB, unwrapped
+ * phase; into the three arrays of `into` when given (kept by the caller), else new ones.
+ */
+function plainJsSweep(points, into) {
+  const f = into?.f ?? new Float64Array(points);
+  const db = into?.db ?? new Float64Array(points);
+  const ph = into?.ph ?? new Float64Array(points);
   const a = Math.log10(1);
   const b = Math.log10(1e9);
   let prev = 0;
@@ -115,6 +118,32 @@ export const CASES = [
     python: true,
     pythonLabel: 'python-control',
     target: '< 1 ms; ≥ 5x faster than python-control; no slower than plain JS',
+  },
+  {
+    key: 'freq_sweep_10k_into',
+    area: 'freq',
+    what: 'the same sweep written into three Float64Arrays the caller keeps (loopGainSweepInto)',
+    make: (lw) => {
+      const n = 10_000;
+      const into = {
+        freqHz: new Float64Array(n),
+        magnitudeDb: new Float64Array(n),
+        phaseDeg: new Float64Array(n),
+      };
+      const options = { amplifier: FREQ_A, beta: FREQ_BETA, startHz: 1, stopHz: 1e9, points: n };
+      return () => lw.loopGainSweepInto(options, into);
+    },
+    plainJs: () => {
+      const n = 10_000;
+      const into = { f: new Float64Array(n), db: new Float64Array(n), ph: new Float64Array(n) };
+      return () => plainJsSweep(n, into);
+    },
+    python: true,
+    // python-control has no form that writes into arrays the caller keeps: its
+    // peer is the allocating sweep of freq_sweep_10k.
+    pythonKey: 'freq_sweep_10k',
+    pythonLabel: 'python-control',
+    target: '≥ 2x faster than python-control (issue 17); no slower than plain JS',
   },
   {
     key: 'freq_margins_poles',

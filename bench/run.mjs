@@ -93,7 +93,7 @@ for (const c of CASES) {
   const peers = [];
   if (c.plainJs) peers.push(['plain JS', plain]);
   if (c.python) {
-    const p = python[c.key];
+    const p = python[c.pythonKey ?? c.key];
     peers.push([c.pythonLabel ?? 'numpy/python', typeof p === 'number' ? p : NaN]);
   }
   if (peers.length === 0) peers.push(['—', NaN]);

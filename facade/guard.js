@@ -294,3 +294,92 @@ function findNonFinite(v, depth) {
   }
   return null;
 }
+
+// The typed-array intrinsics, taken once at load: a caller's array is tested and
+// filled through these, so no getter or method of its own (a subclass's `set`, a
+// shadowing `length`) runs, and a Proxy is refused (it has no typed-array slots).
+const TypedArrayProto = Object.getPrototypeOf(Float64Array.prototype);
+const getterOf = (name) => Object.getOwnPropertyDescriptor(TypedArrayProto, name).get;
+const typedArrayTag = getterOf(Symbol.toStringTag);
+const typedArrayLength = getterOf('length');
+const typedArrayBuffer = getterOf('buffer');
+const typedArrayByteOffset = getterOf('byteOffset');
+const typedArraySet = TypedArrayProto.set;
+
+/** The fields of a sweep, in the order a sweep's result object has them. */
+export const SWEEP_FIELDS = ['freqHz', 'magnitudeDb', 'phaseDeg'];
+
+/**
+ * The caller's arrays to fill with a sweep, `{freqHz, magnitudeDb, phaseDeg}`: three
+ * Float64Arrays of one length that do not overlap. Returns `{ arrays, length }`, the
+ * arrays in SWEEP_FIELDS order, each field read once. A field left out, an unknown
+ * field, an array of another kind, lengths that differ or arrays that share memory
+ * are refused naming the field (`into.phaseDeg`).
+ */
+export function sweepTargets(x, param) {
+  const expected = 'an object of three Float64Arrays (freqHz, magnitudeDb, phaseDeg)';
+  if (typeof x !== 'object' || x === null || Array.isArray(x) || ArrayBuffer.isView(x)) {
+    throw wrongType(param, expected, x);
+  }
+  let at = param;
+  let arrays;
+  try {
+    const keys = Object.keys(x);
+    for (const key of keys) {
+      if (!SWEEP_FIELDS.includes(key)) {
+        throw refusal(
+          'unknown_field',
+          `${param}.${key}`,
+          `unknown field; expected one of ${SWEEP_FIELDS.join(', ')}`,
+        );
+      }
+    }
+    arrays = SWEEP_FIELDS.map((key) => {
+      at = `${param}.${key}`;
+      return x[key];
+    });
+  } catch (e) {
+    throw unreadable(at, e);
+  }
+  let length = 0;
+  for (let k = 0; k < 3; k++) {
+    const a = arrays[k];
+    const name = `${param}.${SWEEP_FIELDS[k]}`;
+    if (a === undefined) throw refusal('missing', name, 'is required but missing');
+    if (typedArrayTag.call(a) !== 'Float64Array') throw wrongType(name, 'a Float64Array', a);
+    const n = typedArrayLength.call(a);
+    if (k === 0) length = n;
+    else if (n !== length) {
+      throw refusal(
+        'out_of_domain',
+        name,
+        `must be as long as ${param}.${SWEEP_FIELDS[0]} (${length}), not ${n}`,
+      );
+    }
+  }
+  for (let k = 1; k < 3; k++) {
+    for (let j = 0; j < k; j++) {
+      if (overlap(arrays[j], arrays[k], length)) {
+        throw refusal(
+          'out_of_domain',
+          `${param}.${SWEEP_FIELDS[k]}`,
+          `must not share memory with ${param}.${SWEEP_FIELDS[j]}`,
+        );
+      }
+    }
+  }
+  return { arrays, length };
+}
+
+/** Whether two Float64Arrays of `length` numbers share any bytes. */
+function overlap(a, b, length) {
+  if (length === 0 || typedArrayBuffer.call(a) !== typedArrayBuffer.call(b)) return false;
+  const p = typedArrayByteOffset.call(a);
+  const q = typedArrayByteOffset.call(b);
+  return p < q + 8 * length && q < p + 8 * length;
+}
+
+/** Copy `source` (a typed array of the same length) into the caller's `target`. */
+export function fillFrom(target, source) {
+  typedArraySet.call(target, source);
+}

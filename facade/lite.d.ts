@@ -2,7 +2,8 @@
 // glue (loopwright_glue.d.ts, with its doc comments; scripts/build-wasm.sh writes its
 // parameter names in camelCase), and every type the glue declares. The glue's internal
 // functions (takeError, topologyIndex, summarizeFeedbackPacked, feedbackLabels,
-// scratchView) are not exported by lite.js, so not here either.
+// scratchView, sweepHeld, heldSweepView) are not exported by lite.js, so not here
+// either.
 export type * from './loopwright_glue.js';
 export { default, initSync } from './loopwright_glue.js';
 export {
@@ -78,6 +79,27 @@ export interface ReadOptions {
   /** The declared unit (Ω, V, A, W, S, Hz, F, H, s, dB): another written unit is refused. Default none. */
   unit?: string | null;
 }
+/** The caller's arrays a sweep is written into: three Float64Arrays of one length that do not overlap. */
+export interface SweepTarget {
+  freqHz: Float64Array;
+  magnitudeDb: Float64Array;
+  phaseDeg: Float64Array;
+}
+/**
+ * `loopGainSweep` written into the caller's arrays instead of three new ones (for
+ * repeated sweeps: nothing is allocated per call); `points` may be left out and is
+ * then their length, and must equal it when given. Returns `into`. On an error the
+ * arrays are left as they were.
+ */
+export function loopGainSweepInto(
+  options: import('./loopwright_glue.js').SweepOptions,
+  into: SweepTarget,
+): SweepTarget;
+/** `closedLoopSweep` written into the caller's arrays, as `loopGainSweepInto`. */
+export function closedLoopSweepInto(
+  options: import('./loopwright_glue.js').SweepOptions,
+  into: SweepTarget,
+): SweepTarget;
 /** Read one typed value: `4k7`, `4.7 kΩ`, `100nF`, `R47`; throws a LoopwrightError (code "syntax", with `column`). */
 export function parseValue(text: string, options?: ReadOptions): number;
 /** Read a list of values separated by `,` or `;`. */

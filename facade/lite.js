@@ -7,8 +7,8 @@
 // throwing getter or Proxy trap, or an oversized input is a LoopwrightError with
 // `code` and `param`, thrown outside the module, and no NaN or ±Infinity is ever
 // returned. The glue's internal exports (takeError, topologyIndex,
-// summarizeFeedbackPacked, feedbackLabels, scratchView; circuitTwoPortPacked in
-// loopwright.js) are used here and not exported.
+// summarizeFeedbackPacked, feedbackLabels, scratchView, sweepHeld, heldSweepView;
+// circuitTwoPortPacked in loopwright.js) are used here and not exported.
 //
 // Scalar exports return a bare number: the answer, or NaN with the LoopwrightError
 // kept aside in the module (src/wasm/mod.rs, `scalar`); `checked` throws that error.
@@ -28,6 +28,8 @@ import {
   options,
   refusal,
   string,
+  sweepTargets,
+  fillFrom,
 } from './guard.js';
 
 export { default, initSync } from './loopwright_glue.js';
@@ -137,6 +139,26 @@ const MODEL_AND_BETA = [
 ];
 export const loopGainSweep = callCheckedInModule(glue.loopGainSweep, [['', O]]);
 export const closedLoopSweep = callCheckedInModule(glue.closedLoopSweep, [['', O]]);
+
+/**
+ * The `…Into` forms: the same sweep written into the caller's three Float64Arrays
+ * (`points` their length when left out), which are returned in `into`; nothing is
+ * allocated per call. The module keeps the sweep in its memory (`sweepHeld`) and each
+ * array is copied out through a view of it (`heldSweepView`), made after the module
+ * has returned, so its memory cannot grow in between. On any error the arrays are
+ * left as they were: the module refuses before anything is copied.
+ */
+function sweepInto(closedLoop) {
+  return (opts, into) => {
+    const o = options(opts, '');
+    const targets = sweepTargets(into, 'into');
+    glue.sweepHeld(o, closedLoop, targets.length);
+    for (let k = 0; k < 3; k++) fillFrom(targets.arrays[k], glue.heldSweepView(k));
+    return into;
+  };
+}
+export const loopGainSweepInto = sweepInto(false);
+export const closedLoopSweepInto = sweepInto(true);
 export const loopAt = checkedCall(glue.loopAt, [...MODEL_AND_BETA, ['fHz', N]]);
 export const stabilityMargins = checkedCall(glue.stabilityMargins, [
   ...MODEL_AND_BETA,

@@ -54,6 +54,50 @@ fn sweeps_are_typed_arrays_with_continuous_phase() {
 }
 
 #[wasm_bindgen_test]
+fn a_held_sweep_is_the_sweep_read_in_place() {
+    // The entry module's `loopGainSweepInto`: the sweep kept in the module's memory
+    // and read through views, `points` defaulting to the caller's length.
+    let a = three_equal_poles(4.0);
+    let s = api::loop_gain_sweep(sweep(&a, 1.0.into(), 1.0, 1e7, 301)).unwrap();
+    let no_points = js::object(&[
+        ("amplifier", a.clone()),
+        ("beta", 1.0.into()),
+        ("startHz", 1.0.into()),
+        ("stopHz", 1e7.into()),
+    ]);
+    assert_eq!(api::sweep_held(no_points.clone(), false, 301).unwrap(), 301);
+    for (k, name) in ["freqHz", "magnitudeDb", "phaseDeg"].iter().enumerate() {
+        assert_eq!(
+            api::held_sweep_view(k as u32).to_vec(),
+            typed(&s, name),
+            "{name}"
+        );
+    }
+    let c = api::closed_loop_sweep(sweep(&a, 1.0.into(), 1.0, 1e7, 11)).unwrap();
+    assert_eq!(api::sweep_held(no_points.clone(), true, 11).unwrap(), 11);
+    assert_eq!(api::held_sweep_view(1).to_vec(), typed(&c, "magnitudeDb"));
+    // `points` given must equal the length; a count refused by the core is named as
+    // the place it came from.
+    assert_thrown(
+        api::sweep_held(sweep(&a, 1.0.into(), 1.0, 1e7, 300), false, 301),
+        "out_of_domain",
+        "into.freqHz",
+    );
+    assert_thrown(
+        api::sweep_held(no_points.clone(), false, 1),
+        "out_of_domain",
+        "into.freqHz",
+    );
+    assert_thrown(
+        api::sweep_held(sweep(&a, 1.0.into(), 1.0, 1e7, 1), false, 1),
+        "out_of_domain",
+        "points",
+    );
+    // A refused call leaves the held sweep as it was.
+    assert_eq!(api::held_sweep_view(2).to_vec().len(), 11);
+}
+
+#[wasm_bindgen_test]
 fn margins_poles_and_bandwidth_are_plain_objects() {
     // Three equal poles, T0 = 4: GM = 20·log10(8/4) dB at √3 times the pole
     // frequency (the T0 = 8 trade fact, common practice, no source).

@@ -12,6 +12,7 @@ use super::{scalar, set_typed_arrays, to_js, typed_arrays};
 use crate::error::Error;
 use crate::freq::{self as fq, ComplexPair, FeedbackLoop, TransferModel};
 use wasm_bindgen::prelude::*;
+use wasm_bindgen::JsCast;
 
 #[wasm_bindgen(typescript_custom_section)]
 const FREQ_TYPES: &str = r#"
@@ -48,7 +49,7 @@ export interface SweepOptions {
   beta: FeedbackInput;
   startHz: number;
   stopHz: number;
-  /** Number of frequencies, 2 … 100 000; default 200. */
+  /** Number of frequencies, 2 … 100 000; default 200 (for `loopGainSweepInto` and `closedLoopSweepInto`, the length of their arrays). */
   points?: number;
 }
 /** A log-spaced frequency sweep; phase continuous, in degrees. */
@@ -320,7 +321,9 @@ struct SweepOptions {
     beta: JsBeta,
     start_hz: f64,
     stop_hz: f64,
-    points: u32,
+    /// `None` when left out: [`DEFAULT_SWEEP_POINTS`], or the length of the
+    /// caller's arrays for the `…Into` forms.
+    points: Option<u32>,
 }
 
 /// Points of a sweep when `points` is left out.
@@ -334,20 +337,67 @@ impl FromOptions for SweepOptions {
             beta: JsBeta::field(f, "beta"),
             start_hz: f.num("startHz"),
             stop_hz: f.num("stopHz"),
-            points: f.whole_or("points", DEFAULT_SWEEP_POINTS),
+            points: f.opt_whole("points"),
         }
     }
 }
 
-/// The loop and the range of a sweep's options.
-fn sweep_options(options: &JsValue) -> Result<(FeedbackLoop, f64, f64, usize), JsValue> {
+/// Which sweep a call makes.
+#[derive(Clone, Copy)]
+enum SweepKind {
+    /// T = A·β ([`fq::loop_gain_sweep`]).
+    LoopGain,
+    /// Af = A/(1 + A·β) ([`fq::closed_loop_sweep`]).
+    ClosedLoop,
+}
+
+/// The sweep `kind` of the options object: its loop and range read (errors under the
+/// caller's field names), then swept.
+///
+/// `into_length`: the length of the caller's arrays for the `…Into` forms, which
+/// `points` must equal when given and stands for when left out (an error on the
+/// count then names `into.freqHz`, the place the count came from).
+fn sweep(
+    options: &JsValue,
+    kind: SweepKind,
+    into_length: Option<u32>,
+) -> Result<fq::Sweep, JsValue> {
     let o: SweepOptions = super::options::read("", options)?;
-    Ok((
-        loop_of(o.amplifier, o.beta)?,
-        o.start_hz,
-        o.stop_hz,
-        o.points as usize,
-    ))
+    let given = o.points;
+    let l = loop_of(o.amplifier, o.beta)?;
+    let points = match (given, into_length) {
+        (Some(p), Some(n)) if p != n => {
+            return Err(super::options::error_at(
+                "into.freqHz",
+                Error::OutOfDomain {
+                    param: "",
+                    requirement: "must hold as many numbers as `points`",
+                },
+                None,
+            ))
+        }
+        (Some(p), _) => p,
+        (None, Some(n)) => n,
+        (None, None) => DEFAULT_SWEEP_POINTS,
+    };
+    let s = match kind {
+        SweepKind::LoopGain => fq::loop_gain_sweep(&l, o.start_hz, o.stop_hz, points as usize),
+        SweepKind::ClosedLoop => fq::closed_loop_sweep(&l, o.start_hz, o.stop_hz, points as usize),
+    };
+    let renames: &[(&str, &str)] = match (given, into_length) {
+        (None, Some(_)) => &[("points", "into.freqHz")],
+        _ => &[],
+    };
+    s.map_err(|e| super::options::core_error(e, renames))
+}
+
+/// The three arrays of a sweep as `{freqHz, magnitudeDb, phaseDeg}`.
+fn sweep_arrays(s: &fq::Sweep) -> JsValue {
+    typed_arrays(&[
+        ("freqHz", &s.freq_hz),
+        ("magnitudeDb", &s.magnitude_db),
+        ("phaseDeg", &s.phase_deg),
+    ])
 }
 
 /// Loop-gain sweep T = A·β from `{amplifier, beta, startHz, stopHz, points}`:
@@ -357,13 +407,7 @@ fn sweep_options(options: &JsValue) -> Result<(FeedbackLoop, f64, f64, usize), J
 pub fn loop_gain_sweep(
     #[wasm_bindgen(unchecked_param_type = "SweepOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let (l, start_hz, stop_hz, points) = sweep_options(&options)?;
-    let s = throw(fq::loop_gain_sweep(&l, start_hz, stop_hz, points))?;
-    Ok(typed_arrays(&[
-        ("freqHz", &s.freq_hz),
-        ("magnitudeDb", &s.magnitude_db),
-        ("phaseDeg", &s.phase_deg),
-    ]))
+    Ok(sweep_arrays(&sweep(&options, SweepKind::LoopGain, None)?))
 }
 
 /// Closed-loop sweep Af = A/(1 + Aβ) from the options of `loopGainSweep`:
@@ -372,13 +416,54 @@ pub fn loop_gain_sweep(
 pub fn closed_loop_sweep(
     #[wasm_bindgen(unchecked_param_type = "SweepOptions")] options: JsValue,
 ) -> Result<JsValue, JsValue> {
-    let (l, start_hz, stop_hz, points) = sweep_options(&options)?;
-    let s = throw(fq::closed_loop_sweep(&l, start_hz, stop_hz, points))?;
-    Ok(typed_arrays(&[
-        ("freqHz", &s.freq_hz),
-        ("magnitudeDb", &s.magnitude_db),
-        ("phaseDeg", &s.phase_deg),
-    ]))
+    Ok(sweep_arrays(&sweep(&options, SweepKind::ClosedLoop, None)?))
+}
+
+std::thread_local! {
+    /// The last sweep of the `…Into` forms, kept in the module's memory until the
+    /// entry module has copied it into the caller's arrays ([`held_sweep_view`]).
+    static HELD_SWEEP: core::cell::RefCell<fq::Sweep> = core::cell::RefCell::new(fq::Sweep::default());
+}
+
+/// Internal, for the entry module's `loopGainSweepInto` and `closedLoopSweepInto`:
+/// the sweep of `loopGainSweep` (`closedLoop` false) or `closedLoopSweep` (true),
+/// kept in the module's memory instead of copied into three new `Float64Array`s,
+/// with `points` defaulting to `length`, the length of the caller's arrays. Returns
+/// the number of points; the entry module then copies each array out through
+/// [`held_sweep_view`]. (Three fresh 80 kB arrays cost Node 10–90 µs a call for a
+/// 10 000-point sweep, bench/RESULTS.md.)
+#[wasm_bindgen(js_name = sweepHeld)]
+pub fn sweep_held(options: JsValue, closed_loop: bool, length: u32) -> Result<u32, JsValue> {
+    let kind = if closed_loop {
+        SweepKind::ClosedLoop
+    } else {
+        SweepKind::LoopGain
+    };
+    let s = sweep(&options, kind, Some(length))?;
+    let n = s.freq_hz.len() as u32;
+    HELD_SWEEP.with(|held| *held.borrow_mut() = s);
+    Ok(n)
+}
+
+/// Internal: a `Float64Array` over one array of the held sweep in the module's
+/// memory — 0 frequencies (Hz), 1 magnitudes (dB), 2 phases (deg) — to be copied out
+/// at once: it goes stale when the memory grows.
+#[wasm_bindgen(js_name = heldSweepView)]
+pub fn held_sweep_view(which: u32) -> js_sys::Float64Array {
+    HELD_SWEEP.with(|held| {
+        let s = held.borrow();
+        let values: &[f64] = match which {
+            0 => &s.freq_hz,
+            1 => &s.magnitude_db,
+            _ => &s.phase_deg,
+        };
+        let memory: js_sys::WebAssembly::Memory = wasm_bindgen::memory().unchecked_into();
+        js_sys::Float64Array::new_with_byte_offset_and_length(
+            &memory.buffer(),
+            values.as_ptr() as usize as u32,
+            values.len() as u32,
+        )
+    })
 }
 
 #[derive(serde::Serialize)]

@@ -133,6 +133,12 @@ function hostileValues(huge = true) {
 }
 
 const model = () => ({ gain: 1e5, polesHz: [10, 1e6], zerosHz: [] });
+/** Three arrays of `n` numbers for the …Into sweeps to fill. */
+export const sweepTarget = (n) => ({
+  freqHz: new Float64Array(n),
+  magnitudeDb: new Float64Array(n),
+  phaseDeg: new Float64Array(n),
+});
 const template = () => ({
   topology: 'series-shunt',
   ri: 1e5,
@@ -221,6 +227,14 @@ export function goodCalls() {
     topologyInfo: ['current-shunt'],
     loopGainSweep: [{ amplifier: model(), beta: 0.01, startHz: 1, stopHz: 1e8, points: 20 }],
     closedLoopSweep: [{ amplifier: model(), beta: 0.01, startHz: 1, stopHz: 1e8, points: 20 }],
+    loopGainSweepInto: [
+      { amplifier: model(), beta: 0.01, startHz: 1, stopHz: 1e8 },
+      sweepTarget(20),
+    ],
+    closedLoopSweepInto: [
+      { amplifier: model(), beta: 0.01, startHz: 1, stopHz: 1e8, points: 20 },
+      sweepTarget(20),
+    ],
     loopAt: [model(), 0.01, 1e3],
     stabilityMargins: [model(), 0.01],
     closedLoopPoles: [model(), 0.01],

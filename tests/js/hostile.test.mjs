@@ -8,7 +8,7 @@ import assert from 'node:assert/strict';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import { ROOT } from './browser.mjs';
-import { campaign, goodCalls, healthy, leak, load } from './hostile.mjs';
+import { campaign, goodCalls, healthy, leak, load, sweepTarget } from './hostile.mjs';
 
 const LONG = process.env.LOOPWRIGHT_HOSTILE_LONG === '1';
 const CALLS = LONG ? 1_000_000 : 24_000;
@@ -202,4 +202,129 @@ test('circuitTwoPort: a regular options object crosses packed, with the answer a
     outcome(() => lw.circuitTwoPort(cases[1])).value.af.exact.im !== 0,
     'at 200 kHz Af is complex',
   );
+});
+
+test('the …Into sweeps: hostile arrays refused by the field, the arrays untouched, no caller code run', async () => {
+  const { lw } = await load(join(ROOT, 'pkg'));
+  const options = {
+    amplifier: { gain: 1e5, polesHz: [10, 1e6] },
+    beta: 0.01,
+    startHz: 1,
+    stopHz: 1e8,
+  };
+  const want = lw.loopGainSweep({ ...options, points: 20 });
+  const same = (into, what) => {
+    for (const k of ['freqHz', 'magnitudeDb', 'phaseDeg']) {
+      assert.deepStrictEqual(Array.from(into[k]), Array.from(want[k]), `${what}: ${k}`);
+    }
+  };
+  /** The typed arrays among `into`'s own data fields (no getter is run). */
+  const arraysOf = (into) =>
+    Object.values(Object.getOwnPropertyDescriptors(into))
+      .map((d) => d.value)
+      .filter((v) => ArrayBuffer.isView(v));
+  /** `into` refused with `code` on `param`, and each of its arrays still all 7. */
+  const refused = (into, code, param) => {
+    for (const a of arraysOf(into)) a.fill(7);
+    assert.throws(
+      () => lw.loopGainSweepInto(options, into),
+      (e) => e.name === 'LoopwrightError' && e.code === code && e.param === param,
+      `${code} ${param}`,
+    );
+    for (const a of arraysOf(into))
+      assert.ok(
+        a.every((x) => x === 7),
+        `${param}: untouched`,
+      );
+  };
+  const plain = sweepTarget(20);
+  refused({ ...plain, freqHz: new Proxy(new Float64Array(20), {}) }, 'wrong_type', 'into.freqHz');
+  refused({ ...plain, magnitudeDb: new Float32Array(20) }, 'wrong_type', 'into.magnitudeDb');
+  refused({ ...plain, phaseDeg: new Array(20).fill(0) }, 'wrong_type', 'into.phaseDeg');
+  refused({ ...plain, phaseDeg: new Float64Array(19) }, 'out_of_domain', 'into.phaseDeg');
+  refused({ freqHz: plain.freqHz, magnitudeDb: plain.magnitudeDb }, 'missing', 'into.phaseDeg');
+  refused({ ...plain, phase: new Float64Array(20) }, 'unknown_field', 'into.phase');
+  // Views of one buffer: overlapping is refused, side by side is fine.
+  const buffer = new Float64Array(60);
+  refused(
+    {
+      freqHz: buffer.subarray(0, 20),
+      magnitudeDb: buffer.subarray(19, 39),
+      phaseDeg: buffer.subarray(40),
+    },
+    'out_of_domain',
+    'into.magnitudeDb',
+  );
+  refused({ ...plain, phaseDeg: plain.freqHz }, 'out_of_domain', 'into.phaseDeg');
+  const sideBySide = {
+    freqHz: buffer.subarray(0, 20),
+    magnitudeDb: buffer.subarray(20, 40),
+    phaseDeg: buffer.subarray(40),
+  };
+  lw.loopGainSweepInto(options, sideBySide);
+  same(sideBySide, 'views of one buffer');
+  // A getter that throws, a Proxy whose traps throw: refused, naming where.
+  const getter = { ...plain };
+  Object.defineProperty(getter, 'magnitudeDb', {
+    enumerable: true,
+    get() {
+      throw new Error('hostile getter');
+    },
+  });
+  refused(getter, 'wrong_type', 'into.magnitudeDb');
+  const trap = new Proxy(sweepTarget(20), {
+    ownKeys() {
+      throw new Error('hostile trap');
+    },
+  });
+  assert.throws(
+    () => lw.loopGainSweepInto(options, trap),
+    (e) => e.code === 'wrong_type' && e.param === 'into',
+  );
+  // Counts: too few without `points`, too many, detached buffers.
+  refused(sweepTarget(1), 'out_of_domain', 'into.freqHz');
+  refused(sweepTarget(100_001), 'too_large', 'into.freqHz');
+  const detached = sweepTarget(20);
+  for (const a of Object.values(detached)) structuredClone(a.buffer, { transfer: [a.buffer] });
+  assert.throws(
+    () => lw.loopGainSweepInto(options, detached),
+    (e) => e.code === 'out_of_domain' && e.param === 'into.freqHz',
+  );
+  // A subclass whose own `set` and `length` would lie: filled through the intrinsics,
+  // so neither runs and the numbers are right.
+  let ran = 0;
+  class Lying extends Float64Array {
+    set() {
+      ran++;
+      throw new Error('caller code ran');
+    }
+    get length() {
+      ran++;
+      return 3;
+    }
+  }
+  const lying = { freqHz: new Lying(20), magnitudeDb: new Lying(20), phaseDeg: new Lying(20) };
+  assert.equal(lw.loopGainSweepInto(options, lying), lying);
+  assert.equal(ran, 0, 'no method of the caller ran');
+  for (const k of ['freqHz', 'magnitudeDb', 'phaseDeg']) {
+    assert.deepStrictEqual(Array.from(new Float64Array(lying[k].buffer)), Array.from(want[k]), k);
+  }
+  // Arrays on shared memory are filled too.
+  const shared = new Float64Array(new SharedArrayBuffer(8 * 60));
+  const sharedInto = {
+    freqHz: shared.subarray(0, 20),
+    magnitudeDb: shared.subarray(20, 40),
+    phaseDeg: shared.subarray(40),
+  };
+  lw.loopGainSweepInto(options, sharedInto);
+  same(sharedInto, 'shared memory');
+  // The module's memory grows between two calls (a 100 000-point sweep): the views
+  // the entry module copies through are made afresh, and the numbers stay right.
+  const again = sweepTarget(20);
+  lw.loopGainSweepInto(options, again);
+  lw.loopGainSweep({ ...options, points: 100_000 });
+  again.freqHz.fill(0);
+  lw.loopGainSweepInto(options, again);
+  same(again, 'after the memory grew');
+  assert.ok(healthy(lw));
 });

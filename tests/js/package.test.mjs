@@ -72,9 +72,13 @@ test('every number-returning export is checked: bad input throws a LoopwrightErr
       if (entry[name] === undefined) {
         // An internal export, used by the entry module and not exported by it.
         assert.ok(
-          ['takeError', 'topologyIndex', 'summarizeFeedbackPacked', 'closedLoopOutputAt'].includes(
-            name,
-          ),
+          [
+            'takeError',
+            'topologyIndex',
+            'summarizeFeedbackPacked',
+            'closedLoopOutputAt',
+            'sweepHeld',
+          ].includes(name),
           name,
         );
         continue;
@@ -300,6 +304,11 @@ test('TypeScript: the definitions type-check a consumer, and reject a wrong one'
   assert.match(bad.stdout, /cutoffHz/);
   assert.match(bad.stdout, /loopGainRe/);
   assert.match(bad.stdout, /polez/, 'an unknown options field is a type error');
+  assert.match(
+    bad.stdout,
+    /'number\[\]'[^\n]*'Float64Array/,
+    'a plain array is not a Float64Array to fill',
+  );
   assert.match(bad.stdout, /takeError/, 'internal exports are not in the public types');
 });
 
@@ -314,6 +323,8 @@ test('API 0.2: the public entry has no internal export, no function of more than
     'scratchView',
     'closedLoopOutputAt',
     'circuitTwoPortPacked',
+    'sweepHeld',
+    'heldSweepView',
   ]) {
     assert.equal(entry[internal], undefined, `${internal} is not exported`);
   }

@@ -16,4 +16,9 @@ const loopGainRe: number = tp.loopGainRe;
 import { loopGainSweep, takeError } from 'loopwright';
 const sweep = loopGainSweep({ amplifier: { gain: 1e5 }, beta: 0.01, startHz: 1, stopHz: 10, polez: 3 });
 const taken = takeError();
-export { wrong, missing, notThere, cutoff, loopGainRe, sweep, taken };
+import { loopGainSweepInto } from 'loopwright';
+const intoPlain = loopGainSweepInto(
+  { amplifier: { gain: 1e5 }, beta: 0.01, startHz: 1, stopHz: 10 },
+  { freqHz: new Float64Array(2), magnitudeDb: [0, 0], phaseDeg: new Float64Array(2) },
+);
+export { wrong, missing, notThere, cutoff, loopGainRe, sweep, taken, intoPlain };

@@ -214,6 +214,37 @@ near(
   1e-9,
   '|Af(10 Hz)| dB',
 );
+// The …Into forms write the same numbers into the caller's arrays (points = their
+// length) and return the object they were given.
+{
+  const into = {
+    freqHz: new Float64Array(6),
+    magnitudeDb: new Float64Array(6),
+    phaseDeg: new Float64Array(6),
+  };
+  const range = { amplifier: one, beta: 0.01, startHz: 10, stopHz: 1e6 };
+  assert.equal(lw.loopGainSweepInto(range, into), into);
+  for (const k of ['freqHz', 'magnitudeDb', 'phaseDeg']) assert.deepStrictEqual(into[k], sw[k], k);
+  const cl = lw.closedLoopSweep({ ...range, points: 6 });
+  lw.closedLoopSweepInto({ ...range, points: 6 }, into);
+  for (const k of ['freqHz', 'magnitudeDb', 'phaseDeg']) assert.deepStrictEqual(into[k], cl[k], k);
+  // A refused call leaves the arrays as they were.
+  into.phaseDeg.fill(7);
+  throws(() => lw.loopGainSweepInto({ ...range, points: 5 }, into), 'out_of_domain', 'into.freqHz');
+  throws(() => lw.loopGainSweepInto({ ...range, stopHz: 1 }, into), 'out_of_domain', 'stopHz');
+  assert.ok(into.phaseDeg.every((x) => x === 7));
+  const one1 = {
+    freqHz: new Float64Array(1),
+    magnitudeDb: new Float64Array(1),
+    phaseDeg: new Float64Array(1),
+  };
+  throws(() => lw.loopGainSweepInto(range, one1), 'out_of_domain', 'into.freqHz');
+  throws(
+    () => lw.loopGainSweepInto(range, { ...into, phaseDeg: [0, 0, 0, 0, 0, 0] }),
+    'wrong_type',
+    'into.phaseDeg',
+  );
+}
 // Three equal poles at 1 kHz: 1 + T0/(1 + s/ω)³ = 0 puts poles on the jω axis at ω·√3
 // when T0 = 8, so 8 is the marginal loop gain and the phase crossover is at √3 kHz
 // (common practice, no source). With T0 = 4 the gain margin is 20·log10(8/4) dB.

@@ -3,6 +3,7 @@ import init, { summarizeFeedback, gainSpread, impedancesWithFeedback, topologyIn
 import { bestPairs, integratedNoise, feedbackDistortion, Worksheet } from 'loopwright';
 import type { FeedbackSummary, GainSpread, LoopwrightError, Topology, PairResult, IntegratedNoise, FeedbackDistortion } from 'loopwright';
 import { stabilityMargins, closedLoopPoles, stepResponse, analyzeLoop, loopGainSweep, loopAt, dominantPoleForMargin } from 'loopwright';
+import { loopGainSweepInto, closedLoopSweepInto, type SweepTarget } from 'loopwright';
 import type {
   AmplifierModelInput, FeedbackInput, StabilityMargins, MarginValidity, ClosedLoopPoles, StabilityVerdict, StepResponse,
   LoopAnalysis, FrequencySweep, LoopPoint, CompensationResult,
@@ -64,6 +65,9 @@ export function frequency(): number {
   const sweep: FrequencySweep = loopGainSweep({ amplifier: a, beta, startHz: 1, stopHz: 1e9, points: 200 });
   const at: LoopPoint = loopAt(a, 0.01, 1e6);
   const comp: CompensationResult = dominantPoleForMargin({ gain: 1e5, polesHz: [1e6, 1e7] }, 1, 60);
+  const target: SweepTarget = { freqHz: new Float64Array(50), magnitudeDb: new Float64Array(50), phaseDeg: new Float64Array(50) };
+  const filled: SweepTarget = loopGainSweepInto({ amplifier: a, beta, startHz: 1, stopHz: 1e9 }, target);
+  closedLoopSweepInto({ amplifier: a, beta, startHz: 1, stopHz: 1e9, points: 50 }, filled);
   return (pm ?? 0) + validity.length + verdict.length + (q ?? 0) + out[0] + wave.length + (note?.length ?? 0)
     + sweep.phaseDeg[0] + at.closedLoopGain.phaseDeg + comp.value + (comp.crossoverHz ?? 0);
 }
