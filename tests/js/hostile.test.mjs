@@ -238,6 +238,12 @@ test('the …Into sweeps: hostile arrays refused by the field, the arrays untouc
       );
   };
   const plain = sweepTarget(20);
+  /** Three views side by side over one array of 60 numbers. */
+  const sideBySideIn = (all) => ({
+    freqHz: all.subarray(0, 20),
+    magnitudeDb: all.subarray(20, 40),
+    phaseDeg: all.subarray(40),
+  });
   refused({ ...plain, freqHz: new Proxy(new Float64Array(20), {}) }, 'wrong_type', 'into.freqHz');
   refused({ ...plain, magnitudeDb: new Float32Array(20) }, 'wrong_type', 'into.magnitudeDb');
   refused({ ...plain, phaseDeg: new Array(20).fill(0) }, 'wrong_type', 'into.phaseDeg');
@@ -256,11 +262,7 @@ test('the …Into sweeps: hostile arrays refused by the field, the arrays untouc
     'into.magnitudeDb',
   );
   refused({ ...plain, phaseDeg: plain.freqHz }, 'out_of_domain', 'into.phaseDeg');
-  const sideBySide = {
-    freqHz: buffer.subarray(0, 20),
-    magnitudeDb: buffer.subarray(20, 40),
-    phaseDeg: buffer.subarray(40),
-  };
+  const sideBySide = sideBySideIn(buffer);
   lw.loopGainSweepInto(options, sideBySide);
   same(sideBySide, 'views of one buffer');
   // A getter that throws, a Proxy whose traps throw: refused, naming where.
@@ -310,12 +312,7 @@ test('the …Into sweeps: hostile arrays refused by the field, the arrays untouc
     assert.deepStrictEqual(Array.from(new Float64Array(lying[k].buffer)), Array.from(want[k]), k);
   }
   // Arrays on shared memory are filled too.
-  const shared = new Float64Array(new SharedArrayBuffer(8 * 60));
-  const sharedInto = {
-    freqHz: shared.subarray(0, 20),
-    magnitudeDb: shared.subarray(20, 40),
-    phaseDeg: shared.subarray(40),
-  };
+  const sharedInto = sideBySideIn(new Float64Array(new SharedArrayBuffer(8 * 60)));
   lw.loopGainSweepInto(options, sharedInto);
   same(sharedInto, 'shared memory');
   // The module's memory grows between two calls (a 100 000-point sweep): the views
