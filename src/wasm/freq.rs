@@ -12,7 +12,6 @@ use super::{scalar, set_typed_arrays, to_js, typed_arrays};
 use crate::error::Error;
 use crate::freq::{self as fq, ComplexPair, FeedbackLoop, TransferModel};
 use wasm_bindgen::prelude::*;
-use wasm_bindgen::JsCast;
 
 #[wasm_bindgen(typescript_custom_section)]
 const FREQ_TYPES: &str = r#"
@@ -367,14 +366,12 @@ fn sweep(
     let l = loop_of(o.amplifier, o.beta)?;
     let points = match (given, into_length) {
         (Some(p), Some(n)) if p != n => {
-            return Err(super::options::error_at(
-                "into.freqHz",
-                Error::OutOfDomain {
-                    param: "",
-                    requirement: "must hold as many numbers as `points`",
-                },
-                None,
-            ))
+            let e = Error::OutOfDomain {
+                param: "",
+                requirement: "must hold as many numbers as `points`",
+            };
+            let sentence = alloc::format!("into.freqHz: holds {n} numbers, but `points` is {p}");
+            return Err(super::options::error_at("into.freqHz", e, Some(sentence)));
         }
         (Some(p), _) => p,
         (None, Some(n)) => n,
@@ -457,12 +454,7 @@ pub fn held_sweep_view(which: u32) -> js_sys::Float64Array {
             1 => &s.magnitude_db,
             _ => &s.phase_deg,
         };
-        let memory: js_sys::WebAssembly::Memory = wasm_bindgen::memory().unchecked_into();
-        js_sys::Float64Array::new_with_byte_offset_and_length(
-            &memory.buffer(),
-            values.as_ptr() as usize as u32,
-            values.len() as u32,
-        )
+        super::memory_view(values.as_ptr() as usize, values.len())
     })
 }
 

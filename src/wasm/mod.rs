@@ -194,12 +194,17 @@ pub(crate) fn write_scratch(values: &[f64]) {
 /// object per call. It goes stale (length 0) when the memory grows; ask again then.
 #[wasm_bindgen(js_name = scratchView)]
 pub fn scratch_view() -> js_sys::Float64Array {
-    let address = SCRATCH.with(|cell| cell.as_ptr() as usize as u32);
+    SCRATCH.with(|cell| memory_view(cell.as_ptr() as usize, SCRATCH_LEN))
+}
+
+/// A `Float64Array` over `len` numbers at byte `address` of the module's memory (no
+/// copy); it goes stale (length 0) when the memory grows.
+pub(crate) fn memory_view(address: usize, len: usize) -> js_sys::Float64Array {
     let memory: js_sys::WebAssembly::Memory = wasm_bindgen::memory().unchecked_into();
     js_sys::Float64Array::new_with_byte_offset_and_length(
         &memory.buffer(),
-        address,
-        SCRATCH_LEN as u32,
+        address as u32,
+        len as u32,
     )
 }
 
