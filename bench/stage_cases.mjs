@@ -7,7 +7,8 @@
 // 1.5 pF, a 20 pF photodiode, 20 Ω into 2 kΩ ‖ 1 nF), and the same amplifier as a
 // non-inverting gain of 2 for the β helper.
 
-const amplifier = {
+/** The amplifier of these stages (also the six-node stage of bench/tolerance_cases.mjs). */
+export const BENCH_AMPLIFIER = {
   a0: 1e6,
   gbwHz: 2e7,
   polesHz: [8e7],
@@ -18,7 +19,13 @@ const amplifier = {
   ro: 40,
 };
 const stage = (kind, parts) =>
-  JSON.stringify({ format: 'loopwright-stage', version: 1, kind, amplifier, parts });
+  JSON.stringify({
+    format: 'loopwright-stage',
+    version: 1,
+    kind,
+    amplifier: BENCH_AMPLIFIER,
+    parts,
+  });
 const TIA = stage('transimpedance', {
   rf: 1e5,
   cf: 1.5e-12,

@@ -18,6 +18,7 @@
 // through Ro; all 17 passive parts uniform ±1 %.
 
 import { readFileSync } from 'node:fs';
+import { BENCH_AMPLIFIER } from './stage_cases.mjs';
 
 const circuit11 = readFileSync(new URL('./tolerance_circuit_11.json', import.meta.url), 'utf8');
 const amplifier = (extra) => ({ a0: { min: 5e4, typ: 2e5, max: 1e6 }, gbwHz: 1e7, ...extra });
@@ -30,16 +31,7 @@ export const SIX_NODE_STAGE = {
   format: 'loopwright-stage',
   version: 1,
   kind: 'non-inverting',
-  amplifier: {
-    a0: 1e6,
-    gbwHz: 2e7,
-    polesHz: [8e7],
-    rd: 1e12,
-    cd: 4e-12,
-    rcm: 1e12,
-    ccm: 3e-12,
-    ro: 40,
-  },
+  amplifier: BENCH_AMPLIFIER,
   parts: { rf: 1e5, rg: 1e5, rs: 1e9, rl: 2e3, cl: 1e-9, riso: 20 },
 };
 
